@@ -1,0 +1,77 @@
+"""The ``liftcal`` command line.
+
+Commands live in ``estimator/commands/``, one module per flow, and are imported
+only when run, so ``liftcal --help`` and ``liftcal air`` stay light (no numpy,
+no matplotlib). Every user error becomes one ``error:`` line on stderr, exit 2.
+"""
+
+import importlib
+import sys
+
+import click
+
+from estimator import __version__
+from estimator.errors import InputError
+
+# name -> (module, function, one-line help shown by `liftcal --help`)
+COMMANDS = {
+    "air": ("estimator.commands.preflight", "air", "Air at a site: density, temperature, pressure, density altitude."),
+    "static": ("estimator.commands.preflight", "static", "Momentum-theory static thrust from power, or power from thrust, for one rotor."),
+    "hover": ("estimator.commands.preflight", "hover", "Pre-flight sheet for a vehicle file: will it hover, margin, endurance."),
+    "fit": ("estimator.commands.bench", "fit", "Fit a bench sweep CSV into a validated parameter set."),
+    "check": ("estimator.commands.bench", "check", "Validate a parameter set against its schema."),
+    "export": ("estimator.commands.bench", "export", "Map a parameter set to your flight controller's setting names."),
+    "firmware": ("estimator.commands.watch", "firmware", "Write the MicroPython power-watch bundle for a board."),
+    "replay": ("estimator.commands.watch", "replay", "Run a logged flight through the power watch and list its events."),
+    "demo": ("estimator.commands.demo", "demo", "Run all three flows on the built-in (invented) demo scenario."),
+}
+
+
+class LazyGroup(click.Group):
+    """A click group whose commands are imported on first use."""
+
+    def list_commands(self, ctx):
+        return list(COMMANDS)
+
+    def get_command(self, ctx, name):
+        if name not in COMMANDS:
+            return None
+        module_name, attr, _ = COMMANDS[name]
+        return getattr(importlib.import_module(module_name), attr)
+
+    def format_commands(self, ctx, formatter):
+        rows = [(name, COMMANDS[name][2]) for name in COMMANDS]
+        with formatter.section("Commands"):
+            formatter.write_dl(rows)
+
+
+@click.group(cls=LazyGroup, context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, prog_name="liftcal")
+def cli():
+    """liftcal: will this multirotor hover, with what margin, for how long, and is
+    its propulsion drawing the power it should?
+
+    Estimates only: confirm every number with a tethered or low hover test, props
+    off while configuring, and follow local aviation rules and the makers' limits.
+    """
+
+
+def main(argv=None):
+    """Console-script entry point: run the CLI, turning user errors into ``error:`` lines."""
+    try:
+        rv = cli.main(args=argv, prog_name="liftcal", standalone_mode=False)
+    except InputError as exc:
+        click.echo("error: %s" % exc, err=True)
+        sys.exit(2)
+    except click.exceptions.Abort:
+        click.echo("error: aborted", err=True)
+        sys.exit(2)
+    except click.ClickException as exc:
+        msg = exc.format_message().replace("\n", " ")
+        ctx_cmd = getattr(getattr(exc, "ctx", None), "command_path", "liftcal")
+        click.echo("error: %s: %s (see '%s --help')" % (ctx_cmd, msg, ctx_cmd), err=True)
+        sys.exit(2)
+    except BrokenPipeError:
+        sys.exit(0)
+    code = rv if isinstance(rv, int) else 0
+    sys.exit(code)

@@ -1,0 +1,1 @@
+"""One module per flow; each imports heavy libraries (numpy, matplotlib) only inside its commands."""
