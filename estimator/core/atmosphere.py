@@ -1,0 +1,121 @@
+"""ICAO / US Standard Atmosphere 1976 below 20 km, site air and density altitude.
+
+Troposphere (lapse 6.5 K per geopotential km) up to 11 km and the isothermal layer from
+11 to 20 km, both in geopotential height; inputs are geometric altitudes (maps, GNSS)
+converted with H = r0 h / (r0 + h). Source: U.S. Standard Atmosphere, 1976
+(NOAA-S/T 76-1562), eqs. 18, 23 and 33a/33b; ICAO Doc 7488 uses the same model below 32 km.
+SI units: m, K, Pa, kg/m^3.
+"""
+
+import math
+
+from estimator.core.constants import (ATMOSPHERE_BOTTOM_GEOPOTENTIAL_M, CELSIUS_ZERO_K,
+                                      DRY_AIR_GAS_CONSTANT_J_KG_K, EARTH_RADIUS_M,
+                                      ISOTHERMAL_TOP_GEOPOTENTIAL_M, SEA_LEVEL_DENSITY_KG_M3,
+                                      SEA_LEVEL_PRESSURE_PA,
+                                      SEA_LEVEL_TEMPERATURE_K, STANDARD_GRAVITY_M_S2,
+                                      TROPOPAUSE_GEOPOTENTIAL_M, TROPOSPHERE_LAPSE_K_M)
+from estimator.core.humid_air import humid_air_density_kg_m3, vapour_pressure_Pa
+
+# exponent g0 / (R L) of the troposphere pressure law [-] (about 5.2559)
+_EXPONENT = STANDARD_GRAVITY_M_S2 / (DRY_AIR_GAS_CONSTANT_J_KG_K * TROPOSPHERE_LAPSE_K_M)
+_T11 = SEA_LEVEL_TEMPERATURE_K - TROPOSPHERE_LAPSE_K_M * TROPOPAUSE_GEOPOTENTIAL_M  # 216.65 K
+_P11 = SEA_LEVEL_PRESSURE_PA * (_T11 / SEA_LEVEL_TEMPERATURE_K) ** _EXPONENT  # 22632 Pa
+_RHO11 = _P11 / (DRY_AIR_GAS_CONSTANT_J_KG_K * _T11)
+_RHO0 = SEA_LEVEL_PRESSURE_PA / (DRY_AIR_GAS_CONSTANT_J_KG_K * SEA_LEVEL_TEMPERATURE_K)
+
+
+def geopotential_m(altitude_m):
+    """Geopotential height from geometric altitude, H = r0 h / (r0 + h).
+
+    altitude_m: geometric altitude h [m]. Returns H [m]. r0 = 6 356 766 m.
+    Source: US Standard Atmosphere 1976, eq. 18.
+    """
+    return EARTH_RADIUS_M * altitude_m / (EARTH_RADIUS_M + altitude_m)
+
+
+def geometric_m(geopotential_height_m):
+    """Geometric altitude from geopotential height, h = r0 H / (r0 - H).
+
+    geopotential_height_m: H [m]. Returns h [m]. Inverse of geopotential_m.
+    Source: US Standard Atmosphere 1976, eq. 18 solved for h.
+    """
+    return EARTH_RADIUS_M * geopotential_height_m / (EARTH_RADIUS_M - geopotential_height_m)
+
+
+def standard_atmosphere(altitude_m):
+    """Standard temperature, pressure and density at a geometric altitude.
+
+    Troposphere (H <= 11 km): T = T0 - L H, p = p0 (T / T0)^(g0 / (R L));
+    isothermal layer (11 < H <= 20 km): T = 216.65 K, p = p11 exp(-g0 (H - 11000) / (R T));
+    rho = p / (R T). altitude_m: geometric altitude h [m], valid from -5 km to 20 km
+    geopotential (raises ValueError outside, naming the limit).
+    Returns (temperature_K [K], pressure_Pa [Pa], density_kg_m3 [kg/m^3]).
+    Source: US Standard Atmosphere 1976, eqs. 23, 33a, 33b, 42.
+    """
+    h_geo = geopotential_m(altitude_m)
+    if h_geo < ATMOSPHERE_BOTTOM_GEOPOTENTIAL_M or h_geo > ISOTHERMAL_TOP_GEOPOTENTIAL_M:
+        raise ValueError("altitude %.0f m is outside the model's range, -5000 m to 20000 m geopotential"
+                         % altitude_m)
+    if h_geo <= TROPOPAUSE_GEOPOTENTIAL_M:
+        t = SEA_LEVEL_TEMPERATURE_K - TROPOSPHERE_LAPSE_K_M * h_geo
+        p = SEA_LEVEL_PRESSURE_PA * (t / SEA_LEVEL_TEMPERATURE_K) ** _EXPONENT
+    else:
+        t = _T11
+        p = _P11 * math.exp(-STANDARD_GRAVITY_M_S2 * (h_geo - TROPOPAUSE_GEOPOTENTIAL_M)
+                            / (DRY_AIR_GAS_CONSTANT_J_KG_K * t))
+    return t, p, p / (DRY_AIR_GAS_CONSTANT_J_KG_K * t)
+
+
+def density_altitude_m(density_kg_m3):
+    """Geometric altitude at which the standard atmosphere has this density.
+
+    Troposphere: T = T0 (rho / rho0)^(1 / (g0/(R L) - 1)), H = (T0 - T) / L;
+    isothermal layer: H = 11000 + R T11 ln(rho11 / rho) / g0; then h = r0 H / (r0 - H).
+    density_kg_m3: air density rho [kg/m^3], > 0. Returns the density altitude [m,
+    geometric, so that it round-trips with standard_atmosphere]. Densities beyond
+    the model's range (-5 km .. 20 km) are extrapolated with the nearer layer's law.
+    Source: inverse of US Standard Atmosphere 1976 eqs. 33a/33b with rho = p / (R T).
+    """
+    if not density_kg_m3 > 0.0:
+        raise ValueError("density must be above zero [kg/m^3]")
+    if density_kg_m3 >= _RHO11:
+        t = SEA_LEVEL_TEMPERATURE_K * (density_kg_m3 / _RHO0) ** (1.0 / (_EXPONENT - 1.0))
+        h_geo = (SEA_LEVEL_TEMPERATURE_K - t) / TROPOSPHERE_LAPSE_K_M
+    else:
+        h_geo = TROPOPAUSE_GEOPOTENTIAL_M + (DRY_AIR_GAS_CONSTANT_J_KG_K * _T11
+                                             * math.log(_RHO11 / density_kg_m3) / STANDARD_GRAVITY_M_S2)
+    return geometric_m(h_geo)
+
+
+def site_air(altitude_m, temperature_C=None, pressure_Pa=None, humidity_pct=0.0):
+    """Air at a flying site: density, temperature, pressure and density altitude.
+
+    Temperature and station pressure default to the standard atmosphere at the
+    geometric altitude; a given temperature does not change the default pressure
+    (the standard pressure at that height is the usual estimate of station pressure).
+    Density by partial pressures, rho = (p - e)/(R_d T) + e/(R_v T) (see humid_air).
+    altitude_m: geometric altitude of the site h [m]; temperature_C: outside air
+    temperature [C] or None; pressure_Pa: station pressure (not sea-level QNH) [Pa]
+    or None; humidity_pct: relative humidity [%], 0..100.
+    Returns a dict: density_kg_m3 [kg/m^3], temperature_K [K], pressure_Pa [Pa],
+    density_altitude_m [m], vapour_pressure_Pa [Pa], density_ratio [-] (rho / 1.225).
+    Raises ValueError for values outside the models' ranges.
+    Source: US Standard Atmosphere 1976; Buck (1981).
+    """
+    t_std, p_std, _ = standard_atmosphere(altitude_m)
+    t = t_std if temperature_C is None else temperature_C + CELSIUS_ZERO_K
+    p = p_std if pressure_Pa is None else pressure_Pa
+    if not t > 0.0:
+        raise ValueError("temperature must be above absolute zero")
+    if not p > 0.0:
+        raise ValueError("pressure must be above zero [Pa]")
+    rho = humid_air_density_kg_m3(p, t, humidity_pct)
+    return {
+        "density_kg_m3": rho,
+        "temperature_K": t,
+        "pressure_Pa": p,
+        "density_altitude_m": density_altitude_m(rho),
+        "vapour_pressure_Pa": vapour_pressure_Pa(p, t, humidity_pct),
+        "density_ratio": rho / SEA_LEVEL_DENSITY_KG_M3,
+    }

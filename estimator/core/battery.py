@@ -1,0 +1,72 @@
+"""Battery pack: open-circuit voltage, sag under load, usable capacity and endurance.
+
+The pack is `cells` cells in series with an open-circuit voltage per cell that falls with
+state of charge, minus the drop over the pack's internal resistance: V_bus = V_oc - I R_pack
+(design notes sec. 3). SI units: V, A, ohm, Ah, min.
+"""
+
+
+def pack_open_circuit_V(cells, cell_V):
+    """Open-circuit voltage of a series pack, V_oc = N_s * V_cell.
+
+    cells: cells in series N_s [-]; cell_V: open-circuit voltage of one cell [V].
+    Returns V_oc [V]. Source: series connection.
+    """
+    return cells * cell_V
+
+
+def cell_open_circuit_V(state_of_charge, full_cell_V, nominal_cell_V, empty_cell_V):
+    """Open-circuit cell voltage against state of charge, piecewise linear.
+
+    Straight lines through (0, V_empty), (0.5, V_nominal) and (1, V_full): a coarse
+    stand-in for a measured discharge curve (common practice for first estimates).
+    state_of_charge: SoC [-], clipped to 0..1; full_cell_V, nominal_cell_V,
+    empty_cell_V: cell voltages at full, half and usable-empty charge [V].
+    Returns the cell's open-circuit voltage [V].
+    """
+    s = 0.0 if state_of_charge < 0.0 else (1.0 if state_of_charge > 1.0 else state_of_charge)
+    if s <= 0.5:
+        return empty_cell_V + (nominal_cell_V - empty_cell_V) * s / 0.5
+    return nominal_cell_V + (full_cell_V - nominal_cell_V) * (s - 0.5) / 0.5
+
+
+def loaded_voltage_V(open_circuit_V, current_A, resistance_ohm):
+    """Bus voltage under load, V_bus = V_oc - I R_pack.
+
+    open_circuit_V: V_oc [V]; current_A: pack current I [A]; resistance_ohm: R_pack [ohm].
+    Returns V_bus [V] (may be negative for an impossible load; callers bound I).
+    Source: Thevenin equivalent of a cell stack.
+    """
+    return open_circuit_V - current_A * resistance_ohm
+
+
+def usable_capacity_Ah(capacity_Ah, usable_fraction):
+    """Charge the flight may use, C_use = f_use * C.
+
+    capacity_Ah: rated capacity C [Ah]; usable_fraction: f_use [-], 0..1 (0.8 is
+    common practice for lithium packs, keeping a reserve). Returns C_use [Ah].
+    """
+    return capacity_Ah * usable_fraction
+
+
+def endurance_min(usable_Ah, current_A):
+    """Time to draw the usable charge at a constant current, t = 60 C_use / I.
+
+    usable_Ah: usable charge C_use [Ah]; current_A: mean pack current I [A], > 0.
+    Returns t [min]; None when current_A <= 0. Source: definition of capacity
+    (constant-current estimate; ignores the capacity loss at high C, so optimistic).
+    """
+    if not current_A > 0.0:
+        return None
+    return 60.0 * usable_Ah / current_A
+
+
+def max_pack_current_A(capacity_Ah, max_discharge_C):
+    """Continuous current limit from the maker's C-rating, I_max = C_rate * C.
+
+    capacity_Ah: capacity C [Ah]; max_discharge_C: continuous C-rating [1/h] or None.
+    Returns I_max [A], or None when no rating is given. Source: definition of C-rate.
+    """
+    if max_discharge_C is None:
+        return None
+    return max_discharge_C * capacity_Ah

@@ -1,0 +1,106 @@
+"""Hover of a whole vehicle at full, nominal and empty pack: command, margin, current, endurance.
+
+Each of N rotors carries W / N with W = m g0. For each pack state (open-circuit voltage
+from the cell voltage) the hover duty comes from propulsion.shared_point_for_thrust and the
+full-command thrust from propulsion.shared_operating_point (d = 1, same pack state, with
+sag). Endurance is the usable charge over the hover current at nominal pack voltage
+(constant-current estimate). Coaxial layouts use propulsion.coaxial_propeller
+(power basis, kappa = momentum.COAXIAL_INDUCED_POWER_FACTOR). SI units.
+Sources: design notes sec. 3; the modules named above.
+"""
+
+from estimator.core.battery import endurance_min, pack_open_circuit_V, usable_capacity_Ah
+from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
+from estimator.core.propulsion import coaxial_propeller, shared_operating_point, shared_point_for_thrust
+
+PACK_STATES = ("full", "nominal", "empty")
+
+
+def rotor_propeller(propeller, layout):
+    """Propeller coefficients to use for one rotor of a layout ("flat" or "coaxial").
+
+    propeller: dict diameter_m [m], ct [-], cp [-]; layout: "flat" (every rotor in clean
+    air) or "coaxial" (rotors in stacked pairs). Returns a propeller dict (coaxial: CP raised
+    by the induced-power penalty, see propulsion.coaxial_propeller). Raises ValueError
+    for another layout.
+    """
+    if layout == "flat":
+        return propeller
+    if layout == "coaxial":
+        return coaxial_propeller(propeller)
+    raise ValueError("layout must be 'flat' or 'coaxial', got %r" % layout)
+
+
+def hover_at_pack(mass_kg, rotor_count, open_circuit_V, pack_resistance_ohm, density_kg_m3,
+                  motor, propeller, esc_efficiency=1.0):
+    """Hover and full-command points of N rotors at one pack open-circuit voltage.
+
+    mass_kg: all-up mass m [kg]; rotor_count: N [-]; open_circuit_V: V_oc [V];
+    pack_resistance_ohm: R_pack [ohm]; density_kg_m3: rho [kg/m^3]; motor, propeller:
+    dicts with SI keys (propeller already adjusted for the layout); esc_efficiency [-].
+    Returns a dict: hover (propulsion.shared_point_for_thrust result), full
+    (propulsion.shared_operating_point at d = 1), command [-] or None when the vehicle
+    cannot hover, thrust_to_weight [-] (full-command thrust / weight),
+    thrust_fraction [-] (thrust needed / full-command thrust), weight_N [N].
+    Source: design notes sec. 3.
+    """
+    weight = mass_kg * STANDARD_GRAVITY_M_S2
+    per_rotor = weight / rotor_count
+    hover = shared_point_for_thrust(per_rotor, open_circuit_V, pack_resistance_ohm, rotor_count,
+                                    density_kg_m3, motor, propeller, esc_efficiency)
+    full = shared_operating_point(1.0, open_circuit_V, pack_resistance_ohm, rotor_count,
+                                  density_kg_m3, motor, propeller, esc_efficiency)
+    can_hover = hover["limited_by"] is None and full["total_thrust_N"] >= weight
+    return {
+        "hover": hover,
+        "full": full,
+        "command": hover["duty"] if can_hover else None,
+        "thrust_to_weight": full["total_thrust_N"] / weight,
+        "thrust_fraction": per_rotor / full["thrust_N"] if full["thrust_N"] > 0.0 else None,
+        "weight_N": weight,
+    }
+
+
+def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller, battery,
+                   esc_efficiency=1.0):
+    """Hover at full, nominal and empty pack and the endurance of a vehicle.
+
+    mass_kg: all-up mass [kg]; rotor_count: total rotors N [-] (coaxial: 2 per arm);
+    layout: "flat" or "coaxial"; density_kg_m3: site air density [kg/m^3];
+    motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
+    propeller: dict diameter_m [m], ct [-], cp [-]; battery: dict cells [-],
+    capacity_Ah [Ah], resistance_ohm [ohm], full_cell_V / nominal_cell_V / empty_cell_V [V],
+    usable_fraction [-]; esc_efficiency: eta_esc [-].
+    Returns a dict: states {full, nominal, empty} -> hover_at_pack result (plus
+    open_circuit_V [V]); hover_command, hover_command_full, hover_command_empty [-] or None;
+    thrust_to_weight [-] and hover_thrust_fraction [-] at nominal pack; hover_current_A [A]
+    and hover_power_W [W] (whole vehicle, nominal pack) or None; flight_time_min [min] or
+    None; usable_Ah [Ah]; coaxial_induced_power_factor [-] (1 for flat, power basis).
+    Source: design notes sec. 3; endurance = 60 C_use / I_hover (constant current).
+    """
+    prop = rotor_propeller(propeller, layout)
+    states = {}
+    for name in PACK_STATES:
+        v_oc = pack_open_circuit_V(battery["cells"], battery[name + "_cell_V"])
+        st = hover_at_pack(mass_kg, rotor_count, v_oc, battery["resistance_ohm"], density_kg_m3,
+                           motor, prop, esc_efficiency)
+        st["open_circuit_V"] = v_oc
+        states[name] = st
+    nominal = states["nominal"]
+    usable = usable_capacity_Ah(battery["capacity_Ah"], battery.get("usable_fraction", 0.8))
+    hovering = nominal["command"] is not None
+    current = nominal["hover"]["pack_current_A"] if hovering else None
+    return {
+        "states": states,
+        "hover_command": nominal["command"],
+        "hover_command_full": states["full"]["command"],
+        "hover_command_empty": states["empty"]["command"],
+        "thrust_to_weight": nominal["thrust_to_weight"],
+        "hover_thrust_fraction": nominal["thrust_fraction"],
+        "hover_current_A": current,
+        "hover_power_W": nominal["hover"]["total_power_W"] if hovering else None,
+        "flight_time_min": endurance_min(usable, current) if hovering else None,
+        "usable_Ah": usable,
+        "coaxial_induced_power_factor": COAXIAL_INDUCED_POWER_FACTOR if layout == "coaxial" else 1.0,
+    }
