@@ -1,0 +1,237 @@
+"""The pre-flight estimate of a vehicle: the report dict (``liftcal hover --json``) and its sheet.
+
+hover_report(vehicle) runs the core models (site air, DC motor + propeller + ESC + pack with
+sag, hover at full / nominal / empty pack) on a checked vehicle dict (estimator.vehicle);
+format_sheet(report) lays the result out by the questions a builder asks before a first
+flight: will it hover, with what margin, for how long, what to watch out for.
+"""
+
+import math
+
+from estimator.core.atmosphere import site_air
+from estimator.core.battery import max_pack_current_A
+from estimator.core.hover import hover_estimate, rotor_propeller
+from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_merit,
+                                     induced_velocity_m_s, static_factor)
+from estimator.errors import InputError
+
+# Warning thresholds (common practice for multirotors, not a standard):
+HOVER_COMMAND_LIMIT = 0.6  # hover above 0.6 of full command leaves little for control
+THRUST_TO_WEIGHT_MIN = 2.0  # T/W of 2 puts hover near 0.67 command (thrust ~ command^1.8)
+THIN_AIR_DENSITY_RATIO = 0.9  # below 90 % of 1.225 kg/m^3 thrust margins shrink noticeably
+
+MODEL = "liftcal.dc-motor-momentum/1"
+
+CAUTIONS = [
+    "These numbers are estimates: confirm them with a tethered or low hover test before the real flight.",
+    "Props off while configuring or flashing; on the bench use a clamped stand and a guard, and keep "
+    "everyone out of the plane of the rotors.",
+    "Charge, carry and store lithium packs by the maker's rules; never leave them charging unattended.",
+    "Local aviation rules and the makers' limits for the airframe, motors, ESCs and pack come first.",
+]
+
+
+def hover_report(vehicle, params=None):
+    """The pre-flight report dict for a checked vehicle (see estimator.vehicle.check_vehicle).
+
+    With ``params`` (a fitted parameter set), the thrust and power come from the bench fit:
+    delegated to estimator.fitted_hover.hover_from_params, which returns the same keys.
+    """
+    if params is not None:
+        from estimator.fitted_hover import hover_from_params  # written by the bench flow
+        report = hover_from_params(vehicle, params)
+        report.setdefault("cautions", list(CAUTIONS))
+        return report
+
+    site = vehicle.get("site", {})
+    try:
+        air = site_air(site.get("altitude_m", 0.0), site.get("temperature_C"),
+                       site.get("pressure_Pa"), site.get("humidity_pct", 0.0))
+    except ValueError as exc:
+        raise InputError("$.site: %s" % exc) from None
+    rho = air["density_kg_m3"]
+    rotors = vehicle["rotors"]
+    layout = rotors.get("layout", "flat")
+    count = rotors["count"]
+    esc_eff = vehicle.get("esc", {}).get("efficiency", 1.0)
+    est = hover_estimate(vehicle["mass_kg"], count, layout, rho, vehicle["motor"],
+                         vehicle["propeller"], vehicle["battery"], esc_eff)
+    nominal = est["states"]["nominal"]
+    hov, full = nominal["hover"], nominal["full"]
+    area = disk_area_m2(vehicle["propeller"]["diameter_m"])
+    per_rotor = nominal["weight_N"] / count
+    prop = rotor_propeller(vehicle["propeller"], layout)
+    hovering = est["hover_command"] is not None
+    per_rotor_power = est["hover_power_W"] / count if hovering else None
+    report = {
+        "model": MODEL,
+        "name": vehicle.get("name", "unnamed vehicle"),
+        "can_hover": hovering,
+        "hover_command": est["hover_command"],
+        "hover_command_full": est["hover_command_full"],
+        "hover_command_empty": est["hover_command_empty"],
+        "hover_thrust_fraction": est["hover_thrust_fraction"],
+        "thrust_to_weight": est["thrust_to_weight"],
+        "hover_current_A": est["hover_current_A"],
+        "hover_power_W": est["hover_power_W"],
+        "flight_time_min": est["flight_time_min"],
+        "hover_limited_by": None if hovering else (hov["limited_by"] or "command"),
+        "mass_kg": vehicle["mass_kg"],
+        "weight_N": nominal["weight_N"],
+        "rotor_count": count,
+        "layout": layout,
+        "thrust_per_rotor_N": per_rotor,
+        "full_thrust_N": full["total_thrust_N"],
+        "hover_rpm": hov["rpm"] if hovering else None,
+        "hover_bus_V": hov["bus_V"] if hovering else None,
+        "hover_motor_current_A": hov["motor_current_A"] if hovering else None,
+        "full_motor_current_A": full["motor_current_A"],
+        "full_pack_current_A": full["pack_current_A"],
+        "full_bus_V": full["bus_V"],
+        "motor_current_limit_A": vehicle["motor"].get("max_current_A"),
+        "pack_current_limit_A": max_pack_current_A(vehicle["battery"]["capacity_Ah"],
+                                                   vehicle["battery"].get("max_discharge_C")),
+        "pack_voltage_V": {k: est["states"][k]["open_circuit_V"] for k in ("full", "nominal", "empty")},
+        "usable_Ah": est["usable_Ah"],
+        "density_kg_m3": rho,
+        "density_ratio": air["density_ratio"],
+        "density_altitude_m": air["density_altitude_m"],
+        "temperature_K": air["temperature_K"],
+        "pressure_Pa": air["pressure_Pa"],
+        "site_altitude_m": site.get("altitude_m", 0.0),
+        "figure_of_merit": figure_of_merit(prop["ct"], prop["cp"]),
+        "static_factor": (static_factor(per_rotor, per_rotor_power, rho, area)
+                          if per_rotor_power else None),
+        "disk_loading_N_m2": disk_loading_N_m2(per_rotor, area),
+        "induced_velocity_m_s": induced_velocity_m_s(per_rotor, rho, area),
+        "coaxial_induced_power_factor": est["coaxial_induced_power_factor"],
+        "coaxial_factor_basis": "power",
+        "esc_efficiency": esc_eff,
+    }
+    report["warnings"] = margin_warnings(report)
+    report["cautions"] = list(CAUTIONS)
+    return report
+
+
+def margin_warnings(report):
+    """Warnings for a report dict with the keys of hover_report (also usable on fitted reports)."""
+    out = []
+    tw = report.get("thrust_to_weight")
+    if report.get("hover_command") is None:
+        if report.get("hover_limited_by") == "pack":
+            out.append("cannot hover: the pack cannot deliver the hover power at any voltage "
+                       "(pack resistance too high or pack too small)")
+        else:
+            out.append("cannot hover: full-command thrust %.1f N is below the weight %.1f N "
+                       "(thrust-to-weight %.2f)" % (report.get("full_thrust_N") or 0.0,
+                                                    report.get("weight_N") or 0.0, tw or 0.0))
+    worst = None
+    for key, label in (("hover_command_empty", "empty"), ("hover_command", "nominal"),
+                       ("hover_command_full", "full")):
+        value = report.get(key)
+        if value is not None and value > HOVER_COMMAND_LIMIT:
+            worst = (value, label)
+            break
+    if worst:
+        out.append("hover command %.2f at %s pack is above %.1f of full command: little left for "
+                   "control and gusts (thrust-to-weight %.2f; hovering near 0.5 needs about 3)"
+                   % (worst[0], worst[1], HOVER_COMMAND_LIMIT, tw or 0.0))
+    if tw is not None and 1.0 <= tw < THRUST_TO_WEIGHT_MIN:
+        out.append("thrust-to-weight %.2f is below %.0f: expect a hover command near or above 0.67 "
+                   "and sluggish climbs (common practice: 2 or more)" % (tw, THRUST_TO_WEIGHT_MIN))
+    limit = report.get("motor_current_limit_A")
+    if limit is not None:
+        full_i = report.get("full_motor_current_A")
+        hov_i = report.get("hover_motor_current_A")
+        if hov_i is not None and hov_i > limit:
+            out.append("hover draws %.1f A per motor, above the motor limit %.0f A: it will overheat"
+                       % (hov_i, limit))
+        elif full_i is not None and full_i > limit:
+            out.append("full command draws %.1f A per motor, above the motor limit %.0f A: limit the "
+                       "command or use a smaller propeller" % (full_i, limit))
+    pack_limit = report.get("pack_current_limit_A")
+    if pack_limit is not None:
+        full_pack = report.get("full_pack_current_A")
+        if full_pack is not None and full_pack > pack_limit:
+            out.append("full command draws %.0f A from the pack, above its rating of %.0f A "
+                       "(C-rating x capacity): the pack will sag and heat" % (full_pack, pack_limit))
+    ratio = report.get("density_ratio")
+    if ratio is not None and ratio < THIN_AIR_DENSITY_RATIO:
+        out.append("thin air: %.3f kg/m^3 is %.0f %% of sea-level standard (density altitude %.0f m): "
+                   "less thrust at full command and a higher hover command"
+                   % (report["density_kg_m3"], 100.0 * ratio, report.get("density_altitude_m", 0.0)))
+    return out
+
+
+def _num(value, fmt, unit="", none="n/a"):
+    if value is None or (isinstance(value, float) and not math.isfinite(value)):
+        return none
+    return (fmt % value) + (" " + unit if unit else "")
+
+
+def format_sheet(report):
+    """The human pre-flight sheet for a report dict, grouped by the builder's questions."""
+    lines = []
+    title = "PRE-FLIGHT ESTIMATE: %s" % report.get("name", "vehicle")
+    lines += [title, "=" * len(title)]
+    air = "air %s (%s of standard, density altitude %s)" % (
+        _num(report.get("density_kg_m3"), "%.3f", "kg/m^3"),
+        _num(100.0 * report["density_ratio"] if report.get("density_ratio") else None, "%.0f", "%"),
+        _num(report.get("density_altitude_m"), "%.0f", "m"))
+    setup = "%s, %d rotors (%s)" % (_num(report.get("mass_kg"), "%.2f", "kg"),
+                                   report.get("rotor_count", 0), report.get("layout", "flat"))
+    lines += ["vehicle  " + setup, "site     " + air, ""]
+
+    lines.append("1. Will it hover?")
+    if report.get("can_hover"):
+        lines.append("   YES - command %s on a nominal pack" % _num(report.get("hover_command"), "%.2f"))
+        lines.append("         %s on a full pack, %s near empty" % (
+            _num(report.get("hover_command_full"), "%.2f"),
+            _num(report.get("hover_command_empty"), "%.2f", none="cannot hover")))
+        lines.append("         thrust fraction %s of full-command thrust" %
+                     _num(report.get("hover_thrust_fraction"), "%.2f"))
+    else:
+        lines.append("   NO - it cannot hover: full-command thrust %s against a weight of %s." % (
+            _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("weight_N"), "%.1f", "N")))
+        lines.append("        Lighten it, or fit more thrust (propeller, motor Kv, cells).")
+    lines.append("")
+
+    lines.append("2. With what margin?")
+    lines.append("   thrust-to-weight   %s   (full command, nominal pack; 2 is the usual floor)"
+                 % _num(report.get("thrust_to_weight"), "%.2f"))
+    lines.append("   full-command thrust %s total, each rotor must make %s" % (
+        _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("thrust_per_rotor_N"), "%.2f", "N")))
+    lines.append("   motor current      %s at hover, %s at full command (limit %s)" % (
+        _num(report.get("hover_motor_current_A"), "%.1f", "A"), _num(report.get("full_motor_current_A"), "%.1f", "A"),
+        _num(report.get("motor_current_limit_A"), "%.0f", "A", none="not given")))
+    lines.append("   pack current       %s at full command (rating %s)" % (
+        _num(report.get("full_pack_current_A"), "%.0f", "A"),
+        _num(report.get("pack_current_limit_A"), "%.0f", "A", none="not given")))
+    lines.append("")
+
+    lines.append("3. For how long?")
+    if report.get("can_hover"):
+        lines.append("   about %s of hover on %s usable" % (
+            _num(report.get("flight_time_min"), "%.1f", "min"), _num(report.get("usable_Ah"), "%.2f", "Ah")))
+        lines.append("   hover draws %s, %s (nominal pack, bus at %s)" % (
+            _num(report.get("hover_current_A"), "%.1f", "A"), _num(report.get("hover_power_W"), "%.0f", "W"),
+            _num(report.get("hover_bus_V"), "%.2f", "V")))
+        lines.append("   rotors at %s; figure of merit %s; static factor k %s" % (
+            _num(report.get("hover_rpm"), "%.0f", "rpm"), _num(report.get("figure_of_merit"), "%.2f"),
+            _num(report.get("static_factor"), "%.2f")))
+    else:
+        lines.append("   no hover, no endurance.")
+    lines.append("")
+
+    lines.append("4. What to watch out for")
+    warnings = report.get("warnings") or []
+    if warnings:
+        for w in warnings:
+            lines.append("   ! " + w)
+    else:
+        lines.append("   nothing flagged by the estimate")
+    lines.append("")
+    lines.append("Before you go to the field")
+    for c in report.get("cautions") or CAUTIONS:
+        lines.append("   - " + c)
+    return "\n".join(lines) + "\n"
