@@ -1,0 +1,151 @@
+"""Hover of a whole vehicle (estimator.core.hover) and the pre-flight report (estimator.preflight)."""
+
+import copy
+import json
+import math
+
+import pytest
+
+from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.core.hover import hover_estimate
+from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
+from estimator.core.propulsion import shared_operating_point
+from estimator.demo_data import DEMO_VEHICLE
+from estimator.preflight import CAUTIONS, format_sheet, hover_report
+from estimator.vehicle import check_vehicle
+
+REQUIRED_KEYS = ("hover_command", "hover_command_full", "hover_command_empty", "hover_thrust_fraction",
+                 "thrust_to_weight", "hover_current_A", "hover_power_W", "flight_time_min", "warnings",
+                 "cautions", "density_kg_m3")
+
+
+def vehicle(**changes):
+    doc = copy.deepcopy(DEMO_VEHICLE)
+    for dotted, value in changes.items():
+        node = doc
+        parts = dotted.split("__")
+        for part in parts[:-1]:
+            node = node[part]
+        node[parts[-1]] = value
+    return check_vehicle(doc, "test")
+
+
+def estimate(v):
+    from estimator.core.atmosphere import site_air
+    rho = site_air(v["site"]["altitude_m"], v["site"].get("temperature_C"), None, v["site"]["humidity_pct"])
+    return hover_estimate(v["mass_kg"], v["rotors"]["count"], v["rotors"]["layout"], rho["density_kg_m3"],
+                          v["motor"], v["propeller"], v["battery"], v["esc"]["efficiency"]), rho["density_kg_m3"]
+
+
+def test_report_has_the_interface_keys_and_is_plain_json():
+    report = hover_report(vehicle())
+    for key in REQUIRED_KEYS:
+        assert key in report, key
+    json.dumps(report, allow_nan=False)  # design notes sec. 4: one JSON object, no NaN
+    assert report["cautions"] == CAUTIONS
+
+
+def test_hover_command_rises_as_the_pack_drains():
+    # Physics: lower pack voltage needs a larger duty for the same motor voltage.
+    r = hover_report(vehicle())
+    assert r["hover_command_full"] < r["hover_command"] < r["hover_command_empty"] < 1.0
+
+
+def test_hover_point_holds_the_weight_exactly():
+    # At the reported hover command the forward solver (bisection on the sagging bus) must
+    # give N T = m g0 (closed form vs iteration; 1e-8 relative).
+    v = vehicle()
+    est, rho = estimate(v)
+    nominal = est["states"]["nominal"]
+    fwd = shared_operating_point(est["hover_command"], nominal["open_circuit_V"], v["battery"]["resistance_ohm"],
+                                 4, rho, v["motor"], v["propeller"], v["esc"]["efficiency"])
+    assert fwd["total_thrust_N"] == pytest.approx(v["mass_kg"] * STANDARD_GRAVITY_M_S2, rel=1e-8)
+    assert est["hover_current_A"] == pytest.approx(fwd["pack_current_A"], rel=1e-8)
+
+
+def test_endurance_is_usable_charge_over_hover_current():
+    # Definition of capacity: t = 60 * C * f_use / I (constant current). Exact.
+    r = hover_report(vehicle())
+    assert r["flight_time_min"] == pytest.approx(60.0 * 5.0 * 0.8 / r["hover_current_A"], rel=1e-12)
+    # and the hover power is what the pack delivers at the loaded bus voltage
+    assert r["hover_power_W"] == pytest.approx(r["hover_current_A"] * r["hover_bus_V"], rel=1e-9)
+
+
+def test_thrust_fraction_and_thrust_to_weight_are_reciprocal():
+    # Per rotor, fraction = W/N / T_full and T/W = N T_full / W, so their product is 1.
+    r = hover_report(vehicle())
+    assert r["hover_thrust_fraction"] * r["thrust_to_weight"] == pytest.approx(1.0, rel=1e-12)
+
+
+def test_heavier_vehicle_in_thinner_air_needs_more_command():
+    base = hover_report(vehicle())
+    heavy = hover_report(vehicle(mass_kg=2.6))
+    high = hover_report(vehicle(site__altitude_m=3000))
+    assert heavy["hover_command"] > base["hover_command"]
+    assert high["hover_command"] > base["hover_command"]
+    assert high["density_kg_m3"] < base["density_kg_m3"]
+
+
+def test_a_vehicle_that_cannot_hover_is_not_an_error():
+    r = hover_report(vehicle(mass_kg=6.0))
+    assert r["hover_command"] is None and r["flight_time_min"] is None
+    assert r["can_hover"] is False and r["thrust_to_weight"] < 1.0
+    assert any(w.startswith("cannot hover") for w in r["warnings"])
+    assert "NO - it cannot hover" in format_sheet(r)
+
+
+def test_coaxial_layout_costs_power_on_a_power_basis():
+    # Same vehicle, rotors stacked in pairs: more hover power, by at most the coaxial factor
+    # (only the ideal induced share is penalised), and a positive penalty.
+    flat = hover_report(vehicle())
+    coax = hover_report(vehicle(rotors={"count": 4, "layout": "coaxial"}))
+    ratio = coax["hover_power_W"] / flat["hover_power_W"]
+    assert 1.0 < ratio < COAXIAL_INDUCED_POWER_FACTOR
+    assert coax["coaxial_induced_power_factor"] == COAXIAL_INDUCED_POWER_FACTOR
+    assert coax["coaxial_factor_basis"] == "power"
+
+
+def test_warnings_for_margin_current_and_thin_air():
+    # Thresholds are common practice (estimator.preflight): hover above 0.6, T/W below 2,
+    # motor current above its limit, pack current above C-rating x capacity, thin air.
+    r = hover_report(vehicle(mass_kg=3.0, motor__max_current_A=15, battery__max_discharge_C=10))
+    text = " | ".join(r["warnings"])
+    assert "above 0.6 of full command" in text
+    assert "thrust-to-weight" in text and "below 2" in text
+    assert "above the motor limit 15 A" in text
+    assert "above its rating of 50 A" in text
+    assert "thin air" in text
+    quiet = hover_report(vehicle(site={"altitude_m": 0, "humidity_pct": 0}))
+    assert quiet["warnings"] == []
+
+
+def test_sheet_answers_the_builders_questions():
+    sheet = format_sheet(hover_report(vehicle()))
+    for heading in ("Will it hover?", "With what margin?", "For how long?", "What to watch out for"):
+        assert heading in sheet
+    assert "tethered or low hover test" in sheet
+    assert "plane of the rotors" in sheet
+    r = hover_report(vehicle())
+    assert ("%.2f" % r["hover_command"]) in sheet and ("%.1f min" % r["flight_time_min"]) in sheet
+
+
+def test_demo_hover_is_plausible_for_a_2_kg_quad():
+    # Common practice for a 2 kg quad on 10 in props at 4S: hover near half command,
+    # 200..400 W, 10..20 min on a 5 Ah pack. A sanity band, not a reference value.
+    r = hover_report(vehicle())
+    assert 0.4 < r["hover_command"] < 0.65
+    assert 200.0 < r["hover_power_W"] < 400.0
+    assert 8.0 < r["flight_time_min"] < 20.0
+    assert math.isfinite(r["static_factor"]) and r["static_factor"] < 1.0  # k <= 1 always
+
+
+def test_params_are_delegated_to_the_fitted_flow(monkeypatch):
+    import sys
+    import types
+    calls = []
+    fake = types.ModuleType("estimator.fitted_hover")
+    fake.hover_from_params = lambda v, p: calls.append((v, p)) or {"hover_command": 0.5, "warnings": []}
+    monkeypatch.setitem(sys.modules, "estimator.fitted_hover", fake)
+    r = hover_report(vehicle(), {"model": "liftcal.rotor/1"})
+    assert calls and calls[0][1] == {"model": "liftcal.rotor/1"}
+    assert r["hover_command"] == 0.5 and r["cautions"] == CAUTIONS
