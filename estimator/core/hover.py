@@ -20,8 +20,8 @@ PACK_STATES = ("full", "nominal", "empty")
 def rotor_propeller(propeller, layout):
     """Propeller coefficients to use for one rotor of a layout ("flat" or "coaxial").
 
-    propeller: dict diameter_m [m], ct [-], cp [-]; layout: "flat" (every rotor in clean
-    air) or "coaxial" (rotors in stacked pairs). Returns a propeller dict (coaxial: CP raised
+    propeller: dict diameter_m [m], ct [-], cp [-]; layout: name [text], "flat" (every
+    rotor in clean air) or "coaxial" (rotors in stacked pairs). Returns a propeller dict (coaxial: CP raised
     by the induced-power penalty, see propulsion.coaxial_propeller). Raises ValueError
     for another layout.
     """
@@ -37,8 +37,9 @@ def hover_at_pack(mass_kg, rotor_count, open_circuit_V, pack_resistance_ohm, den
     """Hover and full-command points of N rotors at one pack open-circuit voltage.
 
     mass_kg: all-up mass m [kg]; rotor_count: N [-]; open_circuit_V: V_oc [V];
-    pack_resistance_ohm: R_pack [ohm]; density_kg_m3: rho [kg/m^3]; motor, propeller:
-    dicts with SI keys (propeller already adjusted for the layout); esc_efficiency [-].
+    pack_resistance_ohm: R_pack [ohm]; density_kg_m3: rho [kg/m^3];
+    motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
+    propeller: dict diameter_m [m], ct [-], cp [-] (already adjusted for the layout); esc_efficiency: eta_esc [-].
     Returns a dict: hover (propulsion.shared_point_for_thrust result), full
     (propulsion.shared_operating_point at d = 1), command [-] or None when the vehicle
     cannot hover, thrust_to_weight [-] (full-command thrust / weight),
@@ -67,7 +68,7 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
     """Hover at full, nominal and empty pack and the endurance of a vehicle.
 
     mass_kg: all-up mass [kg]; rotor_count: total rotors N [-] (coaxial: 2 per arm);
-    layout: "flat" or "coaxial"; density_kg_m3: site air density [kg/m^3];
+    layout: name [text], "flat" or "coaxial"; density_kg_m3: site air density [kg/m^3];
     motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
     propeller: dict diameter_m [m], ct [-], cp [-]; battery: dict cells [-],
     capacity_Ah [Ah], resistance_ohm [ohm], full_cell_V / nominal_cell_V / empty_cell_V [V],

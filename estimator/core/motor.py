@@ -109,8 +109,9 @@ def motor_input_for_thrust(thrust_N, density_kg_m3, motor, propeller):
     """Motor voltage and current that hold a given rotor thrust (the model run backwards).
 
     omega = sqrt(T / c_T), Q = c_Q omega^2, I = I0 + Kv Q, Vm = omega / Kv + I Rm.
-    thrust_N: rotor thrust T [N], >= 0; density_kg_m3: rho [kg/m^3]; motor and
-    propeller: dicts as in rotor_operating_point. Returns (motor_V [V], motor_current_A [A],
+    thrust_N: rotor thrust T [N], >= 0; density_kg_m3: rho [kg/m^3];
+    motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
+    propeller: dict diameter_m [m], ct [-], cp [-]. Returns (motor_V [V], motor_current_A [A],
     omega_rad_s [rad/s]). Source: DC motor equivalent model (Drela 2007, from memory).
     """
     c_t, c_q = propeller_constants(density_kg_m3, propeller)

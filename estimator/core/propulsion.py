@@ -45,8 +45,8 @@ def shared_operating_point(duty, open_circuit_V, pack_resistance_ohm, rotor_coun
     (BISECTION_STEPS halvings, fixed), then evaluates motor.rotor_operating_point there.
     duty: d [-], 0..1; open_circuit_V: pack open-circuit voltage V_oc [V], > 0;
     pack_resistance_ohm: R_pack [ohm], >= 0; rotor_count: N [-]; density_kg_m3: rho
-    [kg/m^3]; motor, propeller: dicts as in motor.rotor_operating_point (SI keys);
-    esc_efficiency: eta_esc [-].
+    [kg/m^3]; motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
+    propeller: dict diameter_m [m], ct [-], cp [-]; esc_efficiency: eta_esc [-].
     Returns the rotor dict of rotor_operating_point plus bus_V [V],
     pack_current_A [A] (all rotors), total_thrust_N [N], total_power_W [W] (from the bus).
     Source: design notes sec. 3 (shared sag), bisection (bounded).
@@ -80,8 +80,9 @@ def shared_point_for_thrust(thrust_per_rotor_N, open_circuit_V, pack_resistance_
     V_bus (V_oc - V_bus) = R_pack N P_bus, whose upper (stable) root is
     V_bus = (V_oc + sqrt(V_oc^2 - 4 R_pack N P_bus)) / 2; duty d = Vm / V_bus.
     thrust_per_rotor_N: T [N], >= 0; open_circuit_V: V_oc [V]; pack_resistance_ohm:
-    R_pack [ohm]; rotor_count: N [-]; density_kg_m3: rho [kg/m^3]; motor, propeller:
-    dicts (SI keys); esc_efficiency: eta_esc [-].
+    R_pack [ohm]; rotor_count: N [-]; density_kg_m3: rho [kg/m^3];
+    motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
+    propeller: dict diameter_m [m], ct [-], cp [-]; esc_efficiency: eta_esc [-].
     Returns a dict: duty [-] (may exceed 1: then full command is not enough), bus_V [V],
     omega_rad_s [rad/s], rpm [rpm], thrust_N [N], motor_voltage_V [V], motor_current_A [A],
     bus_current_A [A] (one rotor), pack_current_A [A], total_power_W [W], limited_by
