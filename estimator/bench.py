@@ -1,0 +1,313 @@
+"""Reading a bench sweep CSV (design notes sec. 4) into SI numpy arrays, with row checks.
+
+File layout: lines starting with ``#`` are comments (``# density: 1.19``, ``# altitude: 300``,
+``# temperature: 21``, ``# pressure: 97000``, ``# humidity: 40``, ``# diameter: 10in``);
+then one header row of ``name[unit]`` cells; then comma-separated numbers. Required columns:
+``command[-|%|us]``, ``voltage[V|mV]``, ``current[A|mA]``, ``thrust[N|g|gf|kgf|lbf|mN]``.
+Optional columns (``time[s]``, ``rpm[rpm]``, ``torque[N*m]``, ``temperature[C]``) are read
+past; unknown ones too, with a warning.
+
+Rows that are merely bad (a NaN or empty cell, a negative current, a command outside 0..1)
+are dropped and counted. Files that are broken (no header, a row with the wrong number of
+cells, text where a number belongs) are refused with the row number. Units that are very
+likely mislabelled (voltage in mV labelled V, command in % labelled [-]) are refused.
+"""
+
+import hashlib
+import io
+import re
+
+from estimator.errors import InputError
+from estimator.units import STANDARD_GRAVITY_M_S2, parse_quantity
+
+REQUIRED = ("command", "voltage", "current", "thrust")
+OPTIONAL = ("time", "rpm", "torque", "temperature")
+# column -> {unit as written: (scale, offset)} so that SI = value * scale + offset
+UNITS = {
+    "command": {"-": (1.0, 0.0), "%": (0.01, 0.0), "us": (0.001, -1.0)},
+    "voltage": {"V": (1.0, 0.0), "mV": (1e-3, 0.0)},
+    "current": {"A": (1.0, 0.0), "mA": (1e-3, 0.0)},
+    "thrust": {"N": (1.0, 0.0), "mN": (1e-3, 0.0), "g": (1e-3 * STANDARD_GRAVITY_M_S2, 0.0),
+               "gf": (1e-3 * STANDARD_GRAVITY_M_S2, 0.0), "kgf": (STANDARD_GRAVITY_M_S2, 0.0),
+               "lbf": (0.45359237 * STANDARD_GRAVITY_M_S2, 0.0)},
+}
+_HEADER_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*(?:\[([^\]]*)\])?\s*$")
+_COMMENT_KEYS = {"density": "density", "altitude": "altitude", "temperature": "temperature",
+                 "pressure": "pressure", "humidity": "percent", "diameter": "length"}
+# a bench bus outside these is almost surely a unit slip (mV labelled V, or V labelled mV)
+BUS_VOLTAGE_RANGE_V = (1.0, 100.0)
+# idle current-sensor noise tolerated below zero: the larger of this and 1 % of the largest
+# current [A] (common practice for hall-effect bench sensors, not a standard)
+NEGATIVE_CURRENT_TOLERANCE_A = 0.25
+# share of rows allowed outside 0..1 before the command unit itself is suspect
+COMMAND_OUTSIDE_SHARE = 0.05
+
+
+def _sha256(path):
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for block in iter(lambda: fh.read(1 << 22), b""):
+            h.update(block)
+    return h.hexdigest()
+
+
+def _read_head(path):
+    """Return (comment dict, header cells, number of lines before the data)."""
+    comments = {}
+    try:
+        fh = open(path, "rb")
+    except FileNotFoundError:
+        raise InputError("%s: no such file" % path) from None
+    except IsADirectoryError:
+        raise InputError("%s: is a directory, expected a bench CSV" % path) from None
+    except OSError as exc:
+        raise InputError("%s: cannot read (%s)" % (path, exc.strerror)) from None
+    with fh:
+        line_no = 0
+        for raw in fh:
+            line_no += 1
+            try:
+                line = raw.decode("utf-8").strip()
+            except UnicodeDecodeError:
+                raise InputError("%s: line %d: not UTF-8 text; expected a CSV with a "
+                                 "name[unit] header" % (path, line_no)) from None
+            if not line:
+                continue
+            if line.startswith("#"):
+                body = line[1:].strip()
+                if ":" in body:
+                    key, _, value = body.partition(":")
+                    key = key.strip().lower()
+                    if key in _COMMENT_KEYS:
+                        comments[key] = parse_quantity(value.strip(), _COMMENT_KEYS[key],
+                                                       "%s: line %d: # %s" % (path, line_no, key))
+                continue
+            return comments, [c for c in line.split(",")], line_no
+    raise InputError("%s: no header row found; expected e.g. "
+                     "command[-],voltage[V],current[A],thrust[N]" % path)
+
+
+def _parse_header(path, cells, line_no):
+    """Map required column names to (index, unit); warn about unknown columns."""
+    columns, warnings = {}, []
+    for index, cell in enumerate(cells):
+        m = _HEADER_CELL.match(cell)
+        if not m:
+            raise InputError("%s: line %d column %d: header cell %r is not name[unit]"
+                             % (path, line_no, index + 1, cell[:40]))
+        name, unit = m.group(1).strip().lower(), m.group(2)
+        if name in REQUIRED:
+            if name in columns:
+                raise InputError("%s: line %d: column %r appears twice" % (path, line_no, name))
+            if unit is None:
+                raise InputError("%s: line %d: column %r has no unit; write %s[%s]"
+                                 % (path, line_no, name, name, "|".join(UNITS[name])))
+            unit = unit.strip()
+            if unit not in UNITS[name]:
+                raise InputError("%s: line %d: unit %r of column %r is not one of %s"
+                                 % (path, line_no, unit, name, ", ".join(UNITS[name])))
+            columns[name] = (index, unit)
+        elif name not in OPTIONAL:
+            warnings.append("column %r is not used" % cell.strip()[:40])
+    missing = [n for n in REQUIRED if n not in columns]
+    if missing:
+        raise InputError("%s: line %d: header lacks %s; need command[-|%%|us], voltage[V], "
+                         "current[A], thrust[N|g|gf|kgf|lbf]" % (path, line_no, ", ".join(missing)))
+    return columns, warnings
+
+
+def _slow_parse(path, skip, ncols):
+    """Line-by-line parse that names the first broken row; empty cells become NaN."""
+    import numpy as np
+
+    rows = []
+    with open(path, "rb") as fh:
+        for line_no, raw in enumerate(fh, start=1):
+            if line_no <= skip:
+                continue
+            try:
+                text = raw.decode("utf-8").strip()
+            except UnicodeDecodeError:
+                raise InputError("%s: line %d: not UTF-8 text" % (path, line_no)) from None
+            if not text or text.startswith("#"):
+                continue
+            cells = text.split("#", 1)[0].split(",")
+            if len(cells) != ncols:
+                raise InputError("%s: line %d: %d cells where the header has %d (truncated or "
+                                 "merged row?)" % (path, line_no, len(cells), ncols))
+            row = []
+            for i, cell in enumerate(cells):
+                cell = cell.strip()
+                if not cell:
+                    row.append(float("nan"))
+                    continue
+                try:
+                    row.append(float(cell))
+                except ValueError:
+                    raise InputError("%s: line %d column %d: cannot read %r as a number"
+                                     % (path, line_no, i + 1, cell[:40])) from None
+            rows.append(row)
+    if not rows:
+        return np.empty((0, ncols))
+    return np.array(rows, dtype=float)
+
+
+def _load_numbers(path, skip, ncols):
+    """Fast path: numpy.loadtxt (checks that every row has the header's width); on any
+    trouble, the slow parse that names the row or turns empty cells into NaN."""
+    import warnings
+
+    import numpy as np
+
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")
+            table = np.loadtxt(path, delimiter=",", skiprows=skip, comments="#", ndmin=2,
+                               dtype=float, encoding="utf-8")
+        if table.shape[1] == ncols:
+            return table
+    except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
+        pass
+    return _slow_parse(path, skip, ncols)
+
+
+def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
+               pressure_Pa=None, humidity_pct=None):
+    """Read a bench CSV into SI arrays and apply the row checks.
+
+    Options override the file's comment header. Returns a dict: command, voltage_V,
+    current_A, thrust_N, power_W (numpy arrays of the rows kept), rows_total, rows_rejected,
+    rejected (reason -> count), bench_air {density_kg_m3, source}, diameter_m (or None),
+    input_sha256, warnings (list of str). Raises InputError on broken files and on units
+    that are very likely mislabelled.
+    """
+    import numpy as np
+
+    comments, cells, header_line = _read_head(path)
+    columns, warnings = _parse_header(path, cells, header_line)
+    ncols = len(cells)
+    table = _load_numbers(path, header_line, ncols)
+    data = {}
+    for name in REQUIRED:
+        index, unit = columns[name]
+        scale, offset = UNITS[name][unit]
+        col = table[:, index]
+        data[name] = col * scale + offset if (scale != 1.0 or offset != 0.0) else col.copy()
+        data[name + "_unit"] = unit
+    del table
+    rows_total = data["command"].shape[0]
+    if rows_total < 10:
+        raise InputError("%s: only %d data rows; a sweep needs at least 10" % (path, rows_total))
+
+    _check_units(path, data)
+    u, v, i, t = data["command"], data["voltage"], data["current"], data["thrust"]
+    rejected = {}
+    finite = np.isfinite(u) & np.isfinite(v) & np.isfinite(i) & np.isfinite(t)
+    rejected["not_a_number"] = int(rows_total - np.count_nonzero(finite))
+    with np.errstate(invalid="ignore"):
+        # current sensors read a little below zero at idle; only clearly negative rows are bad
+        tol_i = max(NEGATIVE_CURRENT_TOLERANCE_A, 0.01 * float(np.nanmax(np.abs(i[finite])))
+                    if np.any(finite) else 0.0)
+        neg_i = finite & (i < -tol_i)
+        bad_v = finite & (v <= 0.0)
+        out_u = finite & ((u < 0.0) | (u > 1.0))
+    rejected["negative_current"] = int(np.count_nonzero(neg_i))
+    rejected["voltage_not_positive"] = int(np.count_nonzero(bad_v))
+    rejected["command_outside_0_1"] = int(np.count_nonzero(out_u))
+    keep = finite & ~neg_i & ~bad_v & ~out_u
+    n_keep = int(np.count_nonzero(keep))
+    if n_keep < 10:
+        raise InputError("%s: only %d of %d rows are usable (NaN, negative current, command "
+                         "outside 0..1); a sweep needs at least 10" % (path, n_keep, rows_total))
+    if n_keep < rows_total:
+        u, v, i, t = u[keep], v[keep], i[keep], t[keep]
+
+    air = _bench_air(path, comments, density_kg_m3, altitude_m, temperature_C, pressure_Pa,
+                     humidity_pct, warnings)
+    if diameter_m is None:
+        diameter_m = comments.get("diameter")
+    if diameter_m is not None and not (0.01 <= diameter_m <= 3.0):
+        raise InputError("%s: propeller diameter %.4g m is outside 0.01..3 m; give it as e.g. "
+                         "'# diameter: 10in' or '--diameter 0.254'" % (path, diameter_m))
+    return {
+        "command": u, "voltage_V": v, "current_A": i, "thrust_N": t, "power_W": v * i,
+        "thrust_unit": data["thrust_unit"], "command_unit": data["command_unit"],
+        "current_unit": data["current_unit"],
+        "rows_total": rows_total, "rows_rejected": rows_total - n_keep,
+        "rejected": {k: c for k, c in rejected.items() if c},
+        "bench_air": air, "diameter_m": diameter_m, "input_sha256": _sha256(path),
+        "warnings": warnings,
+    }
+
+
+def _check_units(path, data):
+    """Refuse columns whose values do not fit their unit label."""
+    import numpy as np
+
+    with np.errstate(invalid="ignore"):
+        v = data["voltage"]
+        v_med = float(np.nanmedian(v)) if np.any(np.isfinite(v)) else float("nan")
+        if not np.isfinite(v_med):
+            raise InputError("%s: column voltage holds no numbers" % path)
+        if v_med > BUS_VOLTAGE_RANGE_V[1]:
+            raise InputError("%s: voltage median %.4g V is above %g V for a small multirotor "
+                             "bus; is the column in mV but labelled [V]?"
+                             % (path, v_med, BUS_VOLTAGE_RANGE_V[1]))
+        if v_med < BUS_VOLTAGE_RANGE_V[0]:
+            raise InputError("%s: voltage median %.4g V is below %g V; is the column in V but "
+                             "labelled [mV], or is the supply off?" % (path, v_med, BUS_VOLTAGE_RANGE_V[0]))
+        u = data["command"]
+        finite_u = u[np.isfinite(u)]
+        if finite_u.size == 0:
+            raise InputError("%s: column command holds no numbers" % path)
+        outside = np.count_nonzero((finite_u < -0.01) | (finite_u > 1.01))
+        if outside > COMMAND_OUTSIDE_SHARE * finite_u.size:
+            hint = {"-": "is it command[%] (0..100) or command[us] (1000..2000)?",
+                    "%": "is it command[us] (1000..2000) or command[-] (0..1)?",
+                    "us": "is it command[%] or command[-]?"}[data["command_unit"]]
+            raise InputError("%s: %d of %d command values fall outside 0..1 after converting "
+                             "from [%s]; %s" % (path, outside, finite_u.size,
+                                                data["command_unit"], hint))
+        if data["command_unit"] == "%" and float(np.max(finite_u)) <= 0.0101:
+            raise InputError("%s: command[%%] never exceeds 1 %%; is it command[-] (0..1)?" % path)
+
+
+def _bench_air(path, comments, density, altitude, temperature, pressure, humidity, warnings):
+    """Bench air density from options, then the comment header, else ISA sea level with a warning."""
+    from estimator.core.atmosphere import site_air
+
+    density = density if density is not None else None
+    if density is not None:
+        rho, source = density, "option --density"
+    elif altitude is not None or pressure is not None:
+        air = site_air(altitude if altitude is not None else 0.0, temperature, pressure,
+                       humidity or 0.0)
+        rho, source = air["density_kg_m3"], "options (altitude/temperature/pressure)"
+    elif "density" in comments:
+        rho, source = comments["density"], "file comment '# density'"
+    elif "altitude" in comments or "pressure" in comments:
+        air = site_air(comments.get("altitude", 0.0), comments.get("temperature"),
+                       comments.get("pressure"), comments.get("humidity", 0.0))
+        rho, source = air["density_kg_m3"], "file comments (altitude/temperature/pressure)"
+    else:
+        rho, source = 1.225, "assumed: ISA sea level (no bench air given)"
+        warnings.append("no bench air in the file or options; assumed ISA sea level 1.225 kg/m^3 "
+                        "(add '# altitude: M' and '# temperature: C' to the CSV)")
+    if not (0.3 <= rho <= 1.6):
+        raise InputError("%s: bench air density %.4g kg/m^3 is outside 0.3..1.6" % (path, rho))
+    return {"density_kg_m3": float(rho), "source": source}
+
+
+def read_bench_text(text, name="<text>", **options):
+    """Parse CSV text (e.g. from the simulator) by writing it to a temporary file first."""
+    import os
+    import tempfile
+
+    fd, tmp = tempfile.mkstemp(suffix=".csv")
+    try:
+        with io.open(fd, "w", encoding="utf-8") as fh:
+            fh.write(text)
+        out = read_bench(tmp, **options)
+    finally:
+        os.unlink(tmp)
+    return out

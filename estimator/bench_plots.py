@@ -1,0 +1,122 @@
+"""Plots of a bench fit (``liftcal fit --plot PNG``); matplotlib is imported only in here.
+
+Left: thrust against command, every row scaled to the reference voltage by (V_ref / V)^n,
+with the fitted curve, its pointwise 95 % band (delta method on the thrust-curve
+covariance) and the residuals below. Right: electrical power against thrust with the
+fitted power model, momentum theory's ideal P = T^1.5 / sqrt(2 rho A) as the physical bound
+(k = 1; no real rotor lies below it) and lines of constant static factor k, so the
+efficiency is visible at a glance.
+"""
+
+import math
+import os
+import tempfile
+
+import numpy as np
+
+from estimator.core.momentum import disk_area_m2
+from estimator.errors import InputError
+
+K_LINES = (0.3, 0.5, 0.7)  # constant-k guides; 0.3 is the conservative rule of thumb (common practice)
+
+
+def curve_band_N(curve, cov, command):
+    """Fitted thrust [N] at V_ref and its 95 % half-width [N] at each command (array)."""
+    u = np.asarray(command, dtype=float)
+    t_max, a, u_min = curve["thrust_max_N"], curve["quadratic_share"], curve["command_min"]
+    span = 1.0 - u_min
+    x = np.clip((u - u_min) / span, 0.0, 1.0)
+    active = (u - u_min) > 0.0
+    t = (1.0 - a) * x + a * x * x
+    g = np.column_stack([t, t_max * (x * x - x),
+                         np.where(active, t_max * ((1.0 - a) + 2.0 * a * x) * (u - 1.0) / (span * span), 0.0),
+                         np.zeros_like(u)])
+    c = np.asarray(cov, dtype=float)
+    var = np.einsum("ij,jk,ik->i", g, c, g)
+    return t_max * t, 1.959964 * np.sqrt(np.maximum(var, 0.0))
+
+
+def plot_fit(path, params, arrays):
+    """Draw the two panels to ``path`` (PNG), written through a temporary file and a rename."""
+    import matplotlib
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    directory = os.path.dirname(os.path.abspath(path)) or "."
+    if not os.path.isdir(directory):
+        raise InputError("%s: folder %s does not exist" % (path, directory))
+    curve, power = params["thrust_curve"], params["power_model"]
+    rho = curve["reference_density_kg_m3"]
+    area = disk_area_m2(params["rotor"]["diameter_m"])
+    u, v, t, p = arrays["command"], arrays["voltage_V"], arrays["thrust_N"], arrays["power_W"]
+    used = arrays["used"]
+    # few hundred thousand points are plenty for a picture of a million-row sweep
+    step = max(1, u.size // 200000)
+    sl = slice(None, None, step)
+    u, v, t, p, used, t_model = u[sl], v[sl], t[sl], p[sl], used[sl], arrays["thrust_model_N"][sl]
+    to_ref = (curve["reference_voltage_V"] / v) ** curve["voltage_exponent"]
+
+    fig = plt.figure(figsize=(12, 6.5))
+    grid = fig.add_gridspec(2, 2, height_ratios=[3, 1], hspace=0.08, wspace=0.22)
+    ax = fig.add_subplot(grid[0, 0])
+    axr = fig.add_subplot(grid[1, 0], sharex=ax)
+    axp = fig.add_subplot(grid[:, 1])
+
+    ax.plot(u[used], t[used] * to_ref[used], ".", ms=3, color="0.45", label="rows used (scaled to V_ref)")
+    if np.any(~used):
+        ax.plot(u[~used], t[~used] * to_ref[~used], "x", ms=6, color="tab:red", label="rows dropped")
+    grid_u = np.linspace(0.0, 1.0, 301)
+    fit_t, half = curve_band_N(curve, params["thrust_curve_covariance"]["matrix"], grid_u)
+    ax.fill_between(grid_u, fit_t - half, fit_t + half, color="tab:blue", alpha=0.25, lw=0,
+                    label="95 % band of the fit")
+    ax.plot(grid_u, fit_t, "-", color="tab:blue", lw=1.8,
+            label="fit: T_max %.2f N, a %.3f, u_min %.3f, n %.2f" % (
+                curve["thrust_max_N"], curve["quadratic_share"], curve["command_min"], curve["voltage_exponent"]))
+    h = params.get("hover")
+    if h:
+        ax.axvline(h["hover_command"], color="tab:green", lw=1, ls="--",
+                   label="hover command %.3f (%s)" % (h["hover_command"], params["vehicle"].get("name", "vehicle")))
+    ax.set_ylabel("thrust at %.2f V [N]" % curve["reference_voltage_V"])
+    ax.set_title("Thrust curve (bench air %.3f kg/m^3)" % rho)
+    ax.legend(loc="upper left", fontsize=8)
+    ax.grid(alpha=0.3)
+    plt.setp(ax.get_xticklabels(), visible=False)
+    axr.plot(u[used], (t - t_model)[used], ".", ms=2, color="0.35")
+    axr.axhline(0.0, color="tab:blue", lw=1)
+    axr.set_xlabel("command u [-]")
+    axr.set_ylabel("residual [N]")
+    axr.grid(alpha=0.3)
+
+    t_grid = np.linspace(0.0, max(float(np.max(t[used])), 1e-3) * 1.05, 200)
+    root = math.sqrt(2.0 * rho * area)
+    axp.plot(t[used], p[used], ".", ms=3, color="0.45", label="rows used")
+    axp.plot(t_grid, t_grid ** 1.5 / root, "-", color="k", lw=2,
+             label="ideal, momentum theory (k = 1): physical bound")
+    for k, colour in zip(K_LINES, ("tab:red", "tab:purple", "tab:green")):
+        axp.plot(t_grid, (t_grid / k) ** 1.5 / root, ":", lw=1.4, color=colour,
+                 label="constant k = %.1f" % k)
+    fitted = (power["idle_power_W"] + power["induced_W_per_N1_5"] * t_grid ** 1.5
+              + power["copper_W_per_N2"] * t_grid ** 2)
+    axp.plot(t_grid, fitted, "-", color="tab:orange", lw=1.8,
+             label="power model (rel. noise %.1f %%)" % (100.0 * power["residual_rel_std"]))
+    axp.set_ylim(0.0, max(float(np.max(p[used])), 1.0) * 1.1)
+    axp.set_xlabel("thrust T [N]")
+    axp.set_ylabel("electrical power P [W]")
+    axp.set_title("Power against thrust; k = %.2f at %s" % (
+        params["static_factor"]["value"], params["static_factor"].get("value_at", "median thrust")))
+    axp.legend(loc="upper left", fontsize=8)
+    axp.grid(alpha=0.3)
+    fig.suptitle("liftcal bench fit: %s (estimates; confirm with a tethered hover test)"
+                 % params["provenance"]["input_file"], fontsize=10)
+
+    fd, tmp = tempfile.mkstemp(prefix=".tmp-", suffix=".png", dir=directory)
+    os.close(fd)
+    try:
+        fig.savefig(tmp, dpi=110)
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise
+    finally:
+        plt.close(fig)

@@ -1,0 +1,161 @@
+"""The bench flow on the command line: ``liftcal fit``, ``liftcal check``, ``liftcal export``.
+
+numpy, jsonschema and matplotlib are imported inside the commands, never at module top.
+"""
+
+import click
+
+from estimator.clitypes import Quantity
+from estimator.jsonio import dumps
+
+BENCH_CAUTIONS = [
+    "Props off while configuring the flight controller; on the bench a clamped stand and a guard, "
+    "nobody in the plane of the rotor.",
+    "Charge and store lithium packs by the maker's rules; local aviation rules and the makers' "
+    "limits come first.",
+    "These settings are estimates from one bench sweep: confirm them with a tethered or low hover test.",
+]
+
+
+def _pm(value, se, fmt):
+    return (fmt % value) + " +- " + (fmt % se)
+
+
+def _human_fit(params, out_file):
+    c, p, k, q = (params["thrust_curve"], params["power_model"], params["static_factor"],
+                  params["fit_quality"])
+    se = params["standard_errors"]
+    lines = [
+        "fitted %d rows (%d dropped: %s) -> %s" % (
+            q["rows_used"], q["rows_rejected"],
+            ", ".join("%s %d" % kv for kv in sorted(q["rejected"].items())) or "none", out_file),
+        "thrust curve (at %.2f V, %.3f kg/m^3; +- one standard error)" % (
+            c["reference_voltage_V"], c["reference_density_kg_m3"]),
+        "  full-command thrust  %s N" % _pm(c["thrust_max_N"], se["thrust_max_N"], "%.3f"),
+        "  quadratic share      %s" % _pm(c["quadratic_share"], se["quadratic_share"], "%.3f"),
+        "  spin-up command      %s" % _pm(c["command_min"], se["command_min"], "%.3f"),
+        "  voltage exponent     %s (%s)" % (_pm(c["voltage_exponent"], se["voltage_exponent"], "%.3f"),
+                                           c.get("voltage_exponent_source", "fitted")),
+        "  density exponent     %.3f (m = n - 1 from the DC motor model)" % c["density_exponent"],
+        "  thrust residual      %.3f N rms" % q["rms_residual_N"],
+        "power per rotor  P = %.2f W + %.3f W/N^1.5 T^1.5 + %.4f W/N^2 T^2 (rms %.2f W)" % (
+            p["idle_power_W"], p["induced_W_per_N1_5"], p["copper_W_per_N2"], q["power_rms_residual_W"]),
+        "  power noise for the watch  %.1f %% (robust, through the thrust curve)" % (100.0 * p["residual_rel_std"]),
+        "static thrust factor k = %.3f at %s (%.2f N); efficiency k^1.5 = %.0f %% of ideal" % (
+            k["value"], k.get("value_at", "median thrust"), k.get("thrust_at_value_N", 0.0),
+            100.0 * k["value"] ** 1.5),
+    ]
+    h = params.get("hover")
+    if h:
+        lo, hi = h["hover_command_interval_95"]
+        lines += ["hover for %s: command %.3f (95 %% interval %.3f..%.3f), thrust fraction %.3f, "
+                  "%.0f W, %.1f A" % (params["vehicle"].get("name", "vehicle"), h["hover_command"],
+                                      lo, hi, h["hover_thrust_fraction"], h["power_W"], h["current_A"])]
+    for w in params.get("warnings", []):
+        lines.append("! " + w)
+    lines += ["- " + c for c in BENCH_CAUTIONS]
+    return "\n".join(lines)
+
+
+@click.command()
+@click.argument("bench_file", metavar="BENCH.csv")
+@click.option("--out", "out_file", required=True, metavar="PARAMS.json",
+              help="Where to write the parameter set (written atomically).")
+@click.option("--vehicle", "vehicle_file", default=None, metavar="VEHICLE.json",
+              help="Add hover values and rotor count for this vehicle at its site.")
+@click.option("--diameter", type=Quantity("length", positive=True), default=None,
+              help="Propeller diameter (e.g. 10in, 0.254); else '# diameter:' in the CSV or the vehicle.")
+@click.option("--density", type=Quantity("density", positive=True), default=None,
+              help="Bench air density [kg/m^3]; overrides the CSV comments.")
+@click.option("--altitude", type=Quantity("altitude"), default=None, help="Bench altitude (e.g. 300m).")
+@click.option("--temperature", type=Quantity("temperature"), default=None, help="Bench air temperature (e.g. 21C).")
+@click.option("--pressure", type=Quantity("pressure", positive=True), default=None, help="Bench station pressure.")
+@click.option("--humidity", type=Quantity("percent"), default=None, help="Bench relative humidity (e.g. 40%).")
+@click.option("--voltage-exponent", type=float, default=None,
+              help="Fix the voltage exponent n instead of fitting it.")
+@click.option("--plot", "plot_file", default=None, metavar="PNG",
+              help="Also draw the fit, its interval and residuals, and power against the ideal bound.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
+def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, temperature, pressure,
+        humidity, voltage_exponent, plot_file, as_json):
+    """Fit a bench sweep CSV into a validated parameter set.
+
+    The CSV has a name[unit] header: command[-|%|us], voltage[V], current[A],
+    thrust[N|g|gf|kgf|lbf]; '# altitude:', '# temperature:' or '# density:' comments give
+    the bench air and '# diameter:' the propeller.
+    """
+    from estimator.fit_sweep import fit_bench_file, summary
+    from estimator.params import check_params, write_params
+
+    vehicle = None
+    if vehicle_file is not None:
+        from estimator.vehicle import load_vehicle
+        vehicle = load_vehicle(vehicle_file)
+    params = fit_bench_file(bench_file, diameter_m=diameter, vehicle=vehicle, density_kg_m3=density,
+                            altitude_m=altitude, temperature_C=temperature, pressure_Pa=pressure,
+                            humidity_pct=humidity, voltage_exponent=voltage_exponent,
+                            keep_arrays=plot_file is not None)
+    if voltage_exponent is not None:
+        params["thrust_curve"]["voltage_exponent_source"] = "given"
+    arrays = params.pop("_arrays", None)
+    check_params(params, out_file)
+    if plot_file is not None:
+        from estimator.bench_plots import plot_fit
+        plot_fit(plot_file, params, arrays)
+    write_params(out_file, params)
+    if as_json:
+        out = summary(params)
+        out["out"] = out_file
+        if plot_file:
+            out["plot"] = plot_file
+        out["cautions"] = list(BENCH_CAUTIONS)
+        click.echo(dumps(out))
+    else:
+        click.echo(_human_fit(params, out_file))
+
+
+@click.command()
+@click.argument("params_file", metavar="PARAMS.json")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
+def check(params_file, as_json):
+    """Validate a parameter set against its schema (exit 0 when valid, 2 with the JSON path)."""
+    from estimator.params import load_params
+
+    params = load_params(params_file)
+    if as_json:
+        click.echo(dumps({"valid": True, "file": params_file, "model": params["model"],
+                          "schema_version": params["schema_version"],
+                          "has_hover": "hover" in params}))
+    else:
+        click.echo("%s: valid parameter set (%s, schema version %d)%s"
+                   % (params_file, params["model"], params["schema_version"],
+                      ", with hover values" if "hover" in params else ""))
+
+
+@click.command()
+@click.argument("params_file", metavar="PARAMS.json")
+@click.option("--map", "map_file", default=None, metavar="MAP.json",
+              help="Your mapping of our keys to your controller's names (default: the shipped "
+                   "example with invented names).")
+@click.option("--out", "out_file", default=None, metavar="FILE",
+              help="Also write the settings to FILE (atomically), lines or JSON as printed.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object {name: value}.")
+def export(params_file, map_file, out_file, as_json):
+    """Map a parameter set to your flight controller's setting names.
+
+    Each setting is round(value * scale + offset, decimals); a value outside the map's
+    bounds is refused, never clipped. Props off while you load settings into a controller.
+    """
+    from estimator.export import EXAMPLE_MAP, export_settings, format_lines, load_map
+    from estimator.jsonio import write_atomic
+    from estimator.params import load_params
+
+    params = load_params(params_file)
+    path = map_file or EXAMPLE_MAP
+    settings = export_settings(params, load_map(path), path)
+    text = dumps(dict(settings)) + "\n" if as_json else format_lines(settings)
+    if out_file is not None:
+        write_atomic(out_file, text)
+    click.echo(text, nl=False)
+    if not as_json:
+        click.echo("# props off while loading these; confirm with a tethered or low hover test", err=True)

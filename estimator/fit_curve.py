@@ -1,0 +1,183 @@
+"""Robust fit of the thrust curve T(u, V) = T_max (V / V_ref)^n t(x) to a bench sweep.
+
+x = (u - u_min) / (1 - u_min) clipped at 0, t(x) = (1 - a) x + a x^2 (design notes sec. 3,
+the form of estimator.core.thrust_curve). The four parameters theta = (T_max [N], a [-],
+u_min [-], n [-]) are fitted together by Huber Gauss-Newton IRLS (estimator.robust): rows
+below u_min stay in the fit with model thrust 0, so the spin-up command is located by the
+data on both sides. An up/down sweep with hysteresis is fitted through its middle, since
+the lag has opposite signs on the two legs. The start comes from a coarse profile over
+u_min with the model linear in (T_max (1 - a), T_max a) for each u_min.
+The density exponent follows from the DC motor model, m = n - 1 (DEVELOPERS.md glossary):
+one bench sweep holds one air density, so the data cannot say otherwise.
+"""
+
+import numpy as np
+
+from estimator.errors import InputError
+from estimator.robust import HUBER_C, huber_gauss_newton, mad_scale
+
+# Voltage exponent used when the sweep holds no voltage spread: the DC motor model with a
+# resistive drop of 1/8 of the back-EMF, n = 2 (1 + r) / (1 + 2 r) = 1.8 at r = 0.125
+# (design notes sec. 3; r = 0.1..0.2 is common practice for small outrunners).
+DEFAULT_VOLTAGE_EXPONENT = 1.8
+# below this relative voltage spread (p95 - p5) / median the exponent is not fitted [-]
+MIN_VOLTAGE_SPREAD = 0.05
+# residuals beyond this many robust sigmas are counted as spikes and left out [-]
+SPIKE_SIGMAS = 6.0
+# iterate on at most this many rows of a very large sweep, then polish on all of them
+ITERATION_ROWS = 60000
+PARAM_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
+
+
+def command_groups(command):
+    """Row labels for the cluster-robust covariance: the command rounded to 0.001 [-].
+
+    Rows logged at one command step (both sweep legs, every supply voltage) share the
+    hysteresis and model-form error, so their residuals are not independent.
+    """
+    return np.rint(np.clip(np.asarray(command), 0.0, 1.0) * 1000.0).astype(np.intp)
+
+
+def _model_factory(u, log_v, fixed_n):
+    """Return model(theta, index) -> (f [N], J) for estimator.robust.huber_gauss_newton."""
+
+    def model(theta, index):
+        uu = u if index is None else u[index]
+        lv = log_v if index is None else log_v[index]
+        t_max, a, u_min = theta[0], theta[1], theta[2]
+        n = fixed_n if fixed_n is not None else theta[3]
+        span = 1.0 - u_min
+        x = (uu - u_min) / span
+        active = x > 0.0
+        x = np.where(active, x, 0.0)
+        s = np.exp(n * lv)
+        t = (1.0 - a) * x + a * x * x
+        f = t_max * s * t
+        cols = [s * t, t_max * s * (x * x - x),
+                np.where(active, t_max * s * ((1.0 - a) + 2.0 * a * x) * (uu - 1.0) / (span * span), 0.0)]
+        if fixed_n is None:
+            cols.append(f * lv)
+        return f, np.column_stack(cols)
+
+    return model
+
+
+def _start(u, log_v, thrust, n0):
+    """Coarse profile over u_min: OLS in (T_max (1 - a), T_max a) for each candidate."""
+    s = np.exp(n0 * log_v)
+    best = None
+    for u_min in np.arange(0.0, 0.5, 0.01):
+        x = np.clip((u - u_min) / (1.0 - u_min), 0.0, None)
+        design = np.column_stack([s * x, s * x * x])
+        coef, *_ = np.linalg.lstsq(design, thrust, rcond=None)
+        r = thrust - design @ coef
+        score = float(np.sum(np.minimum(r * r, 9.0 * np.median(r * r) + 1e-30)))
+        if best is None or score < best[0]:
+            best = (score, u_min, coef)
+    _, u_min, (b1, b2) = best
+    t_max = b1 + b2
+    a = b2 / t_max if t_max != 0 else 0.5
+    return np.array([t_max, a, u_min] + ([n0] if n0 is not None else []), dtype=float)
+
+
+def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None):
+    """Fit the thrust curve to bench rows (SI arrays of equal length).
+
+    command: u [-]; voltage_V: bus voltage [V]; thrust_N: measured thrust [N];
+    voltage_exponent: fix n [-] instead of fitting it (None = fit when the sweep holds
+    voltage spread, else DEFAULT_VOLTAGE_EXPONENT with a warning).
+    Returns dict: thrust_max_N [N], quadratic_share [-], command_min [-],
+    reference_voltage_V [V], voltage_exponent [-], voltage_exponent_fitted (bool),
+    density_exponent [-] (= n - 1), standard_errors {name: SE}, covariance {names, matrix},
+    residuals_N, scale_N, spikes (bool mask), rms_residual_N [N], warnings.
+    Raises InputError when the sweep does not follow the curve form.
+    """
+    u = np.asarray(command, dtype=float)
+    v = np.asarray(voltage_V, dtype=float)
+    t = np.asarray(thrust_N, dtype=float)
+    warnings = []
+    v_ref = float(round(float(np.median(v)), 2))
+    log_v = np.log(v / v_ref)
+    p5, p95 = np.percentile(v, [5.0, 95.0])
+    spread = float((p95 - p5) / v_ref)
+    fixed_n = voltage_exponent
+    if fixed_n is None and spread < MIN_VOLTAGE_SPREAD:
+        fixed_n = DEFAULT_VOLTAGE_EXPONENT
+        warnings.append("the sweep's voltage spread is only %.1f %% (p5..p95); voltage exponent "
+                        "not fitted, default n = %.1f used (DC motor model, resistive drop 1/8 of "
+                        "back-EMF); sweep at two or three supply voltages to measure it"
+                        % (100.0 * spread, DEFAULT_VOLTAGE_EXPONENT))
+    if float(np.max(u) - np.min(u)) < 0.3:
+        raise InputError("the sweep spans commands %.2f..%.2f only; sweep from idle to at least "
+                         "0.3 above it" % (float(np.min(u)), float(np.max(u))))
+    step = max(1, u.size // ITERATION_ROWS)
+    sub = slice(None, None, step) if step > 1 else None
+    idx = sub if sub is not None else slice(None)
+    theta0 = _start(u[idx], log_v[idx], t[idx], fixed_n if fixed_n is not None else DEFAULT_VOLTAGE_EXPONENT)
+    if fixed_n is not None:
+        theta0 = theta0[:3]
+    model = _model_factory(u, log_v, fixed_n)
+    groups = command_groups(u)
+    fit = huber_gauss_newton(model, theta0, t, subsample=sub, groups=groups)
+    spikes = np.abs(fit["residuals"]) > SPIKE_SIGMAS * fit["scale"]
+    if np.any(spikes):
+        keep = ~spikes
+        model = _model_factory(u[keep], log_v[keep], fixed_n)
+        sub2 = slice(None, None, step) if step > 1 else None
+        fit = huber_gauss_newton(model, fit["coef"], t[keep], subsample=sub2, max_iter=20,
+                                 groups=groups[keep])
+    theta, cov = fit["coef"], fit["cov"]
+    if fixed_n is not None:
+        theta = np.append(theta, fixed_n)
+        full = np.zeros((4, 4))
+        full[:3, :3] = cov
+        cov = full
+    t_max, a, u_min, n = (float(x) for x in theta)
+    if not (t_max > 0.0 and np.isfinite(t_max)):
+        raise InputError("the fitted full-command thrust is %.4g N; the thrust column does not "
+                         "rise with command (sign of the load cell, or columns swapped?)" % t_max)
+    se = np.sqrt(np.maximum(np.diag(cov), 0.0))
+    if not (-0.05 <= a <= 1.05) or not (0.0 <= u_min < 0.6):
+        raise InputError("the sweep does not follow the thrust-curve form: quadratic share %.3g "
+                         "(expected 0..1), spin-up command %.3g (expected 0..0.6); check the "
+                         "command column and its unit" % (a, u_min))
+    a = min(max(a, 0.0), 1.0) if abs(a - min(max(a, 0.0), 1.0)) <= 2.0 * se[1] else a
+    if not 0.0 <= a <= 1.0:
+        raise InputError("fitted quadratic share %.4g lies outside 0..1 by more than two "
+                         "standard errors; the sweep does not follow the curve form" % a)
+    if fixed_n is None and se[3] > 0.25:
+        warnings.append("voltage exponent %.2f is poorly determined (standard error %.2f); "
+                        "sweep at supply voltages further apart" % (n, se[3]))
+    f_all, _ = _model_factory(u, log_v, n)(np.array([t_max, a, u_min]), None)
+    residuals = t - f_all
+    kept = residuals[~spikes]
+    return {
+        "thrust_max_N": t_max, "quadratic_share": float(a), "command_min": u_min,
+        "command_max": 1.0, "reference_voltage_V": v_ref, "voltage_exponent": n,
+        "voltage_exponent_fitted": fixed_n is None, "density_exponent": n - 1.0,
+        "voltage_spread": spread,
+        "standard_errors": {"thrust_max_N": float(se[0]), "quadratic_share": float(se[1]),
+                            "command_min": float(se[2]),
+                            "voltage_exponent": float(se[3]) if fixed_n is None else 0.0,
+                            "density_exponent": float(se[3]) if fixed_n is None else 0.0},
+        "covariance": {"names": list(PARAM_NAMES), "matrix": cov.tolist()},
+        "residuals_N": residuals, "scale_N": fit["scale"], "spikes": spikes,
+        "rms_residual_N": float(np.sqrt(np.mean(kept * kept))),
+        "huber_c": HUBER_C, "robust_scale_N": float(mad_scale(kept)),
+        "warnings": warnings,
+    }
+
+
+def thrust_model_N(curve, command, voltage_V):
+    """Vectorised T(u, V) [N] at the bench density for a fitted curve dict (arrays in SI)."""
+    u = np.asarray(command, dtype=float)
+    x = np.clip((u - curve["command_min"]) / (1.0 - curve["command_min"]), 0.0, 1.0)
+    a = curve["quadratic_share"]
+    return (curve["thrust_max_N"] * ((1.0 - a) * x + a * x * x)
+            * (np.asarray(voltage_V, dtype=float) / curve["reference_voltage_V"]) ** curve["voltage_exponent"])
+
+
+def fit_bench_file(path, **options):
+    """Alias of estimator.fit_sweep.fit_bench_file (kept here for callers that expect it)."""
+    from estimator.fit_sweep import fit_bench_file as run
+    return run(path, **options)

@@ -1,0 +1,123 @@
+"""From a bench CSV to a parameter set (model ``liftcal.rotor/1``): the whole fit pipeline.
+
+read (estimator.bench) -> static-factor plausibility (k <= 1) -> thrust curve
+(estimator.fit_curve) -> power model and k(T) (estimator.fit_power) -> optional hover
+values for a vehicle (estimator.fitted_hover) -> parameter set (estimator.params.build).
+"""
+
+import os
+
+import numpy as np
+
+from estimator.errors import InputError
+from estimator.core.momentum import disk_area_m2
+from estimator.fit_curve import command_groups, fit_thrust_curve, thrust_model_N
+from estimator.fit_power import (check_static_factor, fit_power_model, fit_static_factor,
+                                 power_model_W, static_factor_at, watch_residual_rel_std)
+
+
+def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, altitude_m=None,
+                   temperature_C=None, pressure_Pa=None, humidity_pct=None,
+                   voltage_exponent=None, keep_arrays=False):
+    """Fit a bench CSV and return the parameter-set dict (not yet written; see params.write_params).
+
+    path: bench CSV; diameter_m: propeller diameter [m] (else ``# diameter:`` or the
+    vehicle's propeller); vehicle: validated vehicle dict (adds the vehicle and hover
+    blocks); density_kg_m3 [kg/m^3] / altitude_m [m] / temperature_C [C] / pressure_Pa [Pa]
+    / humidity_pct [%]: bench air overriding the file; voltage_exponent: fix n [-].
+    keep_arrays=True adds a private ``_arrays`` entry (rows and fits) for plots; it is
+    removed by params.write_params. Raises InputError on bad or impossible data.
+    """
+    from estimator.bench import read_bench
+
+    data = read_bench(path, diameter_m=diameter_m, density_kg_m3=density_kg_m3,
+                      altitude_m=altitude_m, temperature_C=temperature_C,
+                      pressure_Pa=pressure_Pa, humidity_pct=humidity_pct)
+    if data["diameter_m"] is None and vehicle is not None:
+        data["diameter_m"] = vehicle["propeller"]["diameter_m"]
+    if data["diameter_m"] is None:
+        raise InputError("%s: the propeller diameter is needed for the static thrust factor; "
+                         "add '# diameter: 10in' to the CSV, or pass --diameter or --vehicle" % path)
+    return fit_bench(data, path, vehicle=vehicle, voltage_exponent=voltage_exponent,
+                     keep_arrays=keep_arrays)
+
+
+def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=False):
+    """Fit the arrays returned by estimator.bench.read_bench; see fit_bench_file."""
+    from estimator.params import build_params
+
+    rho = data["bench_air"]["density_kg_m3"]
+    area = disk_area_m2(data["diameter_m"])
+    u, v, t, p = data["command"], data["voltage_V"], data["thrust_N"], data["power_W"]
+    check_static_factor(source, t, p, rho, area, data.get("thrust_unit", "N"),
+                        data.get("current_unit", "A"))
+    try:
+        curve = fit_thrust_curve(u, v, t, voltage_exponent=voltage_exponent)
+    except InputError as exc:
+        raise InputError("%s: %s" % (source, exc)) from None
+    curve["reference_density_kg_m3"] = rho
+    t_model = thrust_model_N(curve, u, v)
+    keep = ~curve["spikes"]
+    groups = command_groups(u)
+    power = fit_power_model(t[keep], p[keep], groups[keep])
+    power["reference_density_kg_m3"] = rho
+    spikes_p = np.zeros_like(keep)
+    spikes_p[np.flatnonzero(keep)] = power["spikes"]
+    used = keep & ~spikes_p
+    expected = power_model_W(power, t_model[used])
+    power["residual_rel_std"] = watch_residual_rel_std(p[used], expected,
+                                                       t_model[used] / curve["thrust_max_N"])
+    sf = fit_static_factor(t[used], p[used], rho, area, curve["thrust_max_N"], groups[used])
+    rejected = dict(data["rejected"])
+    n_spike_t = int(np.count_nonzero(curve["spikes"]))
+    n_spike_p = int(np.count_nonzero(spikes_p))
+    if n_spike_t:
+        rejected["thrust_spike"] = n_spike_t
+    if n_spike_p:
+        rejected["power_spike"] = n_spike_p
+    rows_used = int(np.count_nonzero(used))
+    fit = {
+        "curve": curve, "power": power, "static": sf, "rejected": rejected,
+        "rows_used": rows_used, "rows_rejected": int(data["rows_total"] - rows_used),
+        "warnings": list(data["warnings"]) + curve["warnings"],
+    }
+    hover = None
+    if vehicle is not None:
+        from estimator.fitted_hover import hover_block
+        params_draft = build_params(data, fit, source, None, None)
+        hover = hover_block(vehicle, params_draft)
+        value, value_se = static_factor_at(sf, hover["thrust_per_rotor_N"])
+    else:
+        value, value_se = static_factor_at(sf, sf["median_thrust_N"])
+    sf["value"], sf["value_se"] = float(value), value_se
+    if value > 1.0:
+        raise InputError("%s: static thrust factor %.3g at %s is above 1, which is impossible; "
+                         "check the thrust and current units and the load-cell calibration"
+                         % (source, value, "hover" if vehicle else "the median thrust"))
+    params = build_params(data, fit, source, vehicle, hover)
+    if keep_arrays:
+        params["_arrays"] = {"command": u, "voltage_V": v, "thrust_N": t, "power_W": p,
+                             "used": used, "thrust_model_N": t_model}
+    return params
+
+
+def summary(params):
+    """The ``liftcal fit --json`` keys (design notes sec. 4) from a parameter set."""
+    c, q = params["thrust_curve"], params["fit_quality"]
+    out = {k: c[k] for k in ("quadratic_share", "command_min", "thrust_max_N",
+                             "reference_voltage_V", "voltage_exponent", "density_exponent")}
+    out.update({"static_factor": params["static_factor"]["value"],
+                "rows_used": q["rows_used"], "rows_rejected": q["rows_rejected"],
+                "rms_residual_N": q["rms_residual_N"],
+                "power_residual_rel_std": params["power_model"]["residual_rel_std"],
+                "standard_errors": params["standard_errors"],
+                "warnings": params.get("warnings", [])})
+    if "hover" in params:
+        out["hover_command"] = params["hover"]["hover_command"]
+        out["hover_command_interval_95"] = params["hover"]["hover_command_interval_95"]
+    return out
+
+
+def source_name(path):
+    """The file name recorded in provenance (no folders: parameter sets travel)."""
+    return os.path.basename(path)

@@ -1,0 +1,151 @@
+"""The parameter set (model ``liftcal.rotor/1``): build it from a fit, validate, read, write.
+
+Layout: DEVELOPERS.md "Parameter set" and ``schemas/params.schema.json`` (draft 2020-12).
+Keys added beyond the DEVELOPERS.md layout (none renamed): thrust_curve_covariance,
+warnings, bench_air.source text, fit_quality.residual_scale_N, fit_quality.fit_method,
+provenance.bench_air, static_factor.value_at, hover.interval_method, power_model.
+residual_basis.
+"""
+
+import datetime
+import math
+import os
+
+from estimator import __version__
+from estimator.errors import InputError
+from estimator.jsonio import load_json, validate, write_json_atomic
+
+MODEL = "liftcal.rotor/1"
+SCHEMA = "params.schema.json"
+FIT_METHOD = ("Huber M-estimation (c = 1.345) by Gauss-Newton IRLS, robust scale 1.4826 MAD, "
+              "sandwich covariance; rows beyond 6 robust sigmas counted as spikes and left out")
+
+
+def _r(x, digits=6):
+    """Round a float to ``digits`` significant digits for a readable file."""
+    if x is None or x == 0 or not math.isfinite(x):
+        return x
+    return float("%.*g" % (digits, x))
+
+
+def build_params(data, fit, source, vehicle=None, hover=None):
+    """Assemble the parameter-set dict from estimator.bench data and the fit results."""
+    curve, power, sf = fit["curve"], fit["power"], fit["static"]
+    rho = data["bench_air"]["density_kg_m3"]
+    se = dict(curve["standard_errors"])
+    se.update(power["standard_errors"])
+    se.update({"k0": sf["standard_errors"]["k0"], "slope_per_N": sf["standard_errors"]["slope_per_N"]})
+    if "value_se" in sf:
+        se["static_factor"] = sf["value_se"]
+    created = datetime.datetime.now(datetime.timezone.utc).replace(microsecond=0)
+    params = {
+        "schema_version": 1,
+        "model": MODEL,
+        "rotor": {"diameter_m": _r(data["diameter_m"])},
+        "bench_air": {"density_kg_m3": _r(rho), "source": data["bench_air"]["source"]},
+        "thrust_curve": {
+            "command_min": _r(curve["command_min"]), "command_max": 1.0,
+            "quadratic_share": _r(curve["quadratic_share"]), "thrust_max_N": _r(curve["thrust_max_N"]),
+            "reference_voltage_V": _r(curve["reference_voltage_V"]),
+            "voltage_exponent": _r(curve["voltage_exponent"]),
+            "density_exponent": _r(curve["density_exponent"]),
+            "reference_density_kg_m3": _r(rho),
+            "voltage_exponent_source": "fitted" if curve["voltage_exponent_fitted"] else "default",
+            "density_exponent_source": "derived: m = n - 1 (DC motor model)",
+        },
+        "power_model": {
+            "form": "idle+induced+copper",
+            "idle_power_W": _r(power["idle_power_W"]),
+            "induced_W_per_N1_5": _r(power["induced_W_per_N1_5"]),
+            "copper_W_per_N2": _r(power["copper_W_per_N2"]),
+            "reference_density_kg_m3": _r(rho),
+            "residual_rel_std": _r(power["residual_rel_std"]),
+            "residual_basis": "command and voltage -> thrust curve -> power model, rows above 10 % of thrust_max_N",
+        },
+        "static_factor": {
+            "value": _r(sf.get("value", sf["k0"] + sf["slope_per_N"] * sf["median_thrust_N"])),
+            "k0": _r(sf["k0"]), "slope_per_N": _r(sf["slope_per_N"]),
+            "value_at": "hover" if hover else "median thrust",
+            "thrust_at_value_N": _r(hover["thrust_per_rotor_N"] if hover else sf["median_thrust_N"]),
+        },
+        "standard_errors": {k: _r(v, 4) for k, v in se.items()},
+        "thrust_curve_covariance": {
+            "names": list(curve["covariance"]["names"]),
+            "matrix": [[_r(x, 8) for x in row] for row in curve["covariance"]["matrix"]],
+        },
+        "fit_quality": {
+            "rms_residual_N": _r(curve["rms_residual_N"]),
+            "residual_scale_N": _r(curve["robust_scale_N"]),
+            "power_rms_residual_W": _r(power["power_rms_residual_W"]),
+            "rows_used": fit["rows_used"], "rows_rejected": fit["rows_rejected"],
+            "rejected": dict(fit["rejected"]),
+            "fit_method": FIT_METHOD,
+        },
+        "provenance": {
+            "input_file": os.path.basename(source), "input_sha256": data["input_sha256"],
+            "rows_used": fit["rows_used"], "rows_rejected": fit["rows_rejected"],
+            "tool_version": __version__, "created_utc": created.strftime("%Y-%m-%dT%H:%M:%SZ"),
+            "bench_air": {"density_kg_m3": _r(rho), "source": data["bench_air"]["source"]},
+        },
+        "warnings": list(fit["warnings"]),
+    }
+    if vehicle is not None:
+        params["vehicle"] = vehicle_block(vehicle)
+    if hover is not None:
+        params["hover"] = {k: (_r(v) if isinstance(v, float) else v) for k, v in hover.items()}
+    return params
+
+
+def vehicle_block(vehicle):
+    """The ``vehicle`` block: name, mass, rotors, site density and pack voltages."""
+    from estimator.core.atmosphere import site_air
+
+    site = vehicle.get("site", {})
+    air = site_air(site.get("altitude_m", 0.0), site.get("temperature_C"), site.get("pressure_Pa"),
+                   site.get("humidity_pct", 0.0))
+    b = vehicle["battery"]
+    return {
+        "name": vehicle.get("name", "unnamed vehicle"), "mass_kg": vehicle["mass_kg"],
+        "rotor_count": vehicle["rotors"]["count"], "layout": vehicle["rotors"].get("layout", "flat"),
+        "site_density_kg_m3": _r(air["density_kg_m3"]), "cells": b["cells"],
+        "full_voltage_V": _r(b["cells"] * b["full_cell_V"]),
+        "nominal_voltage_V": _r(b["cells"] * b["nominal_cell_V"]),
+        "empty_voltage_V": _r(b["cells"] * b["empty_cell_V"]),
+    }
+
+
+def check_params(document, source):
+    """Validate against the schema, then the cross-key rules a schema cannot state.
+
+    Raises InputError naming ``source`` and the JSON path; returns the document.
+    """
+    validate(document, SCHEMA, source)
+    c = document["thrust_curve"]
+    if not c["command_min"] < c["command_max"]:
+        raise InputError("%s: $.thrust_curve.command_min: %.4g is not below command_max %.4g"
+                         % (source, c["command_min"], c["command_max"]))
+    p, q = document["provenance"], document["fit_quality"]
+    for key in ("rows_used", "rows_rejected"):
+        if p[key] != q[key]:
+            raise InputError("%s: $.provenance.%s: %d differs from $.fit_quality.%s %d"
+                             % (source, key, p[key], key, q[key]))
+    h = document.get("hover")
+    if h and h.get("hover_command") is not None and h.get("hover_command_interval_95"):
+        lo, hi = h["hover_command_interval_95"]
+        if not lo <= h["hover_command"] <= hi:
+            raise InputError("%s: $.hover.hover_command_interval_95: [%g, %g] does not contain "
+                             "hover_command %g" % (source, lo, hi, h["hover_command"]))
+    return document
+
+
+def load_params(path):
+    """Read and validate a parameter-set file; returns the dict or raises InputError."""
+    return check_params(load_json(path), path)
+
+
+def write_params(path, params):
+    """Validate and write a parameter set atomically (never a partial file)."""
+    params = {k: v for k, v in params.items() if not k.startswith("_")}
+    check_params(params, path)
+    write_json_atomic(path, params)
+    return params
