@@ -125,6 +125,9 @@ def margin_warnings(report):
             out.append("cannot hover: full-command thrust %.1f N is below the weight %.1f N "
                        "(thrust-to-weight %.2f)" % (report.get("full_thrust_N") or 0.0,
                                                     report.get("weight_N") or 0.0, tw or 0.0))
+    if report.get("hover_command") is None and report.get("hover_command_full") is not None:
+        out.append("only a freshly charged pack holds it (command %.2f at full pack): not flyable"
+                   % report["hover_command_full"])
     worst = None
     for key, label in (("hover_command_empty", "empty"), ("hover_command", "nominal"),
                        ("hover_command_full", "full")):
@@ -136,9 +139,14 @@ def margin_warnings(report):
         out.append("hover command %.2f at %s pack is above %.1f of full command: little left for "
                    "control and gusts (thrust-to-weight %.2f; hovering near 0.5 needs about 3)"
                    % (worst[0], worst[1], HOVER_COMMAND_LIMIT, tw or 0.0))
+    if report.get("hover_command") is not None and report.get("hover_command_empty") is None:
+        out.append("near the end of the pack it cannot hover (command would exceed full at %s V open "
+                   "circuit): land well before the pack is empty"
+                   % _num((report.get("pack_voltage_V") or {}).get("empty"), "%.1f"))
     if tw is not None and 1.0 <= tw < THRUST_TO_WEIGHT_MIN:
-        out.append("thrust-to-weight %.2f is below %.0f: expect a hover command near or above 0.67 "
-                   "and sluggish climbs (common practice: 2 or more)" % (tw, THRUST_TO_WEIGHT_MIN))
+        out.append("thrust-to-weight %.2f is below %.0f (hover command %s on a nominal pack): sluggish "
+                   "climbs and little control margin (common practice: 2 or more, which puts hover "
+                   "near 0.67)" % (tw, THRUST_TO_WEIGHT_MIN, _num(report.get("hover_command"), "%.2f")))
     limit = report.get("motor_current_limit_A")
     if limit is not None:
         full_i = report.get("full_motor_current_A")
@@ -193,6 +201,9 @@ def format_sheet(report):
     else:
         lines.append("   NO - it cannot hover: full-command thrust %s against a weight of %s." % (
             _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("weight_N"), "%.1f", "N")))
+        if report.get("hover_command_full") is not None:
+            lines.append("        A freshly charged pack would just hold it at command %.2f: no usable margin."
+                         % report["hover_command_full"])
         lines.append("        Lighten it, or fit more thrust (propeller, motor Kv, cells).")
     lines.append("")
 

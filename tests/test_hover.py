@@ -149,3 +149,19 @@ def test_params_are_delegated_to_the_fitted_flow(monkeypatch):
     r = hover_report(vehicle(), {"model": "liftcal.rotor/1"})
     assert calls and calls[0][1] == {"model": "liftcal.rotor/1"}
     assert r["hover_command"] == 0.5 and r["cautions"] == CAUTIONS
+
+
+def test_hover_only_on_a_full_pack_is_said_plainly():
+    # 5.5 kg on the demo set: the full pack (16.8 V) holds it, the nominal pack does not.
+    r = hover_report(vehicle(mass_kg=5.5))
+    assert r["hover_command"] is None and r["hover_command_full"] is not None
+    assert any(w.startswith("only a freshly charged pack") for w in r["warnings"])
+    assert "no usable margin" in format_sheet(r)
+
+
+def test_losing_hover_near_empty_is_warned():
+    # 4.85 kg on the demo set: the nominal pack (14.8 V) holds it at about 0.96, the empty
+    # pack (14.0 V) cannot (found by scanning the mass; the case sits in 4.7..5.05 kg).
+    r = hover_report(vehicle(mass_kg=4.85))
+    assert r["hover_command"] is not None and r["hover_command_empty"] is None
+    assert any("near the end of the pack" in w for w in r["warnings"])
