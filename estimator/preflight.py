@@ -198,6 +198,10 @@ def format_sheet(report):
             _num(report.get("hover_command_empty"), "%.2f", none="cannot hover")))
         lines.append("         thrust fraction %s of full-command thrust" %
                      _num(report.get("hover_thrust_fraction"), "%.2f"))
+        interval = report.get("hover_command_interval_95")
+        if interval:
+            lines.append("         95 %% interval %.3f..%.3f (%s)"
+                         % (interval[0], interval[1], report.get("interval_method", "fit uncertainty")))
     else:
         lines.append("   NO - it cannot hover: full-command thrust %s against a weight of %s." % (
             _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("weight_N"), "%.1f", "N")))
@@ -212,9 +216,11 @@ def format_sheet(report):
                  % _num(report.get("thrust_to_weight"), "%.2f"))
     lines.append("   full-command thrust %s total, each rotor must make %s" % (
         _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("thrust_per_rotor_N"), "%.2f", "N")))
-    lines.append("   motor current      %s at hover, %s at full command (limit %s)" % (
-        _num(report.get("hover_motor_current_A"), "%.1f", "A"), _num(report.get("full_motor_current_A"), "%.1f", "A"),
-        _num(report.get("motor_current_limit_A"), "%.0f", "A", none="not given")))
+    if report.get("hover_motor_current_A") is not None or report.get("full_motor_current_A") is not None:
+        lines.append("   motor current      %s at hover, %s at full command (limit %s)" % (
+            _num(report.get("hover_motor_current_A"), "%.1f", "A"),
+            _num(report.get("full_motor_current_A"), "%.1f", "A"),
+            _num(report.get("motor_current_limit_A"), "%.0f", "A", none="not given")))
     lines.append("   pack current       %s at full command (rating %s)" % (
         _num(report.get("full_pack_current_A"), "%.0f", "A"),
         _num(report.get("pack_current_limit_A"), "%.0f", "A", none="not given")))
@@ -227,9 +233,15 @@ def format_sheet(report):
         lines.append("   hover draws %s, %s (nominal pack, bus at %s)" % (
             _num(report.get("hover_current_A"), "%.1f", "A"), _num(report.get("hover_power_W"), "%.0f", "W"),
             _num(report.get("hover_bus_V"), "%.2f", "V")))
-        lines.append("   rotors at %s; figure of merit %s; static factor k %s" % (
-            _num(report.get("hover_rpm"), "%.0f", "rpm"), _num(report.get("figure_of_merit"), "%.2f"),
-            _num(report.get("static_factor"), "%.2f")))
+        extras = []
+        if report.get("hover_rpm") is not None:
+            extras.append("rotors at %.0f rpm" % report["hover_rpm"])
+        if report.get("figure_of_merit") is not None:
+            extras.append("figure of merit %.2f" % report["figure_of_merit"])
+        if report.get("static_factor") is not None:
+            extras.append("static factor k %.2f" % report["static_factor"])
+        if extras:
+            lines.append("   " + "; ".join(extras))
     else:
         lines.append("   no hover, no endurance.")
     lines.append("")

@@ -148,3 +148,14 @@ def test_importtime_of_air_lists_no_numpy():
     imported = [l.rsplit("|", 1)[-1].strip() for l in out.stderr.splitlines() if l.startswith("import time:")]
     assert "estimator.core.atmosphere" in imported  # the log is real
     assert not any(m.split(".")[0] in ("numpy", "matplotlib") for m in imported)
+
+
+def test_hover_with_params_uses_the_fitted_flow():
+    # --params hands the parameter set to estimator.fitted_hover (the bench flow); its
+    # report carries the hover-command interval, which the physics-only report does not.
+    params = os.path.join(ROOT, "schemas", "examples", "valid", "params-demo-with-hover.json")
+    res = run_json("hover", DEMO_FILE, "--params", params)
+    assert "hover_command_interval_95" in res and isinstance(res["warnings"], list)
+    sheet = run("hover", DEMO_FILE, "--params", params)
+    assert sheet.returncode == 0 and "95 % interval" in sheet.stdout and "n/a" not in sheet.stdout
+    assert_one_error_line(run("hover", DEMO_FILE, "--params", os.path.join(ROOT, "nope.json")), "nope.json")
