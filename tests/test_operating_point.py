@@ -3,6 +3,8 @@
 import math
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from estimator.core.motor import motor_input_for_thrust, rotor_operating_point
 from estimator.core.propulsion import shared_operating_point, shared_point_for_thrust
@@ -115,3 +117,30 @@ def test_thrust_grows_about_as_command_to_the_1_8_common_practice():
 def test_duty_outside_0_1_is_refused():
     with pytest.raises(ValueError, match="0..1"):
         rotor_operating_point(1.2, 14.8, RHO, MOTOR, PROP)
+
+
+@settings(max_examples=80, deadline=None)
+@given(kv=st.floats(100.0, 3000.0), rm=st.floats(0.0, 0.5), i0=st.floats(0.0, 3.0),
+       d=st.floats(0.1, 0.8), ct=st.floats(0.05, 0.15), duty=st.floats(0.05, 1.0),
+       volts=st.floats(6.0, 50.0))
+def test_closed_form_root_satisfies_the_motor_equation(kv, rm, i0, d, ct, duty, volts):
+    # Property: the returned omega solves Vm = omega / Kv + (I0 + Kv Q) Rm (design notes
+    # sec. 3) to round-off (1e-9 of Vm), or the motor stalls because Vm <= Rm I0.
+    motor = {"kv_rpm_per_V": kv, "resistance_ohm": rm, "no_load_current_A": i0}
+    prop = {"diameter_m": d, "ct": ct, "cp": 0.5 * ct}
+    op = rotor_operating_point(duty, volts, 1.2, motor, prop)
+    vm = duty * volts
+    if vm <= rm * i0:
+        assert op["omega_rad_s"] == 0.0 and op["thrust_N"] == 0.0
+        return
+    kv_si = kv * 2.0 * math.pi / 60.0
+    rebuilt = op["omega_rad_s"] / kv_si + op["motor_current_A"] * rm
+    assert rebuilt == pytest.approx(vm, rel=1e-9, abs=1e-12)
+    # more duty never gives less thrust (monotonic: the hover inverse is unique)
+    assert rotor_operating_point(min(1.0, duty + 0.01), volts, 1.2, motor, prop)["thrust_N"] >= op["thrust_N"]
+
+
+def test_more_rotors_on_one_pack_sag_it_more():
+    # Shared pack: the same duty with more rotors draws more current, so V_bus drops.
+    v = [shared_operating_point(0.8, 14.8, 0.05, n, RHO, MOTOR, PROP)["bus_V"] for n in (1, 4, 8)]
+    assert v[0] > v[1] > v[2]
