@@ -1,0 +1,94 @@
+"""The onboard-watch flow on the command line: ``liftcal firmware`` and ``liftcal replay``.
+
+numpy and matplotlib are imported inside the commands (replay --plot only), never at module top.
+"""
+
+import click
+
+from estimator.jsonio import dumps
+
+WATCH_CAUTIONS = [
+    "Props off while flashing and configuring the board; bench runs on a clamped stand behind a guard, "
+    "nobody in the plane of the rotors.",
+    "Charge and store lithium packs by the maker's rules; local aviation rules and the makers' limits come first.",
+    "The watch's alarms are estimates from a bench fit: confirm its behaviour with a tethered or low "
+    "hover test, and do not read silence as proof that the propulsion is healthy.",
+]
+
+
+def _load(params_file, vehicle_file):
+    from estimator.params import load_params
+
+    params = load_params(params_file)
+    vehicle = None
+    if vehicle_file is not None:
+        from estimator.vehicle import load_vehicle
+        vehicle = load_vehicle(vehicle_file)
+    return params, vehicle
+
+
+@click.command()
+@click.argument("params_file", metavar="PARAMS.json")
+@click.option("--out", "out_dir", required=True, metavar="DIR",
+              help="Folder for the bundle (new, empty, or an earlier bundle; replaced atomically).")
+@click.option("--vehicle", "vehicle_file", default=None, metavar="VEHICLE.json",
+              help="Vehicle file (mass, rotors, pack, site); default: the parameter set's vehicle block.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
+def firmware(params_file, out_dir, vehicle_file, as_json):
+    """Write the MicroPython power-watch bundle for a board.
+
+    DIR gets liftwatch.py (the kernel), liftwatch_config.py (CONFIG, integers only),
+    board_loop.py (example loop), README.md, package.json for mip and mpy/*.mpy.
+    """
+    from estimator.firmware import write_bundle
+
+    params, vehicle = _load(params_file, vehicle_file)
+    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file)
+    cfg = out["config"]
+    summary = {"out_dir": out["out_dir"], "files": out["files"], "mpy_bytes": out["mpy_bytes"],
+               "cusum_k_permille": cfg["cusum_k_permille"], "cusum_h_permille": cfg["cusum_h_permille"],
+               "mass_limit_g": cfg["mass_limit_g"], "cautions": list(WATCH_CAUTIONS)}
+    if as_json:
+        click.echo(dumps(summary))
+        return
+    lines = ["wrote the power-watch bundle to %s (%d files, .mpy total %d bytes)"
+             % (out["out_dir"], len(out["files"]), out["mpy_bytes"]),
+             "  CUSUM reference %d permille, threshold %d permille; mass alarm above %d g"
+             % (cfg["cusum_k_permille"], cfg["cusum_h_permille"], cfg["mass_limit_g"])]
+    lines += ["- " + c for c in WATCH_CAUTIONS]
+    click.echo("\n".join(lines))
+
+
+@click.command()
+@click.argument("flight_file", metavar="FLIGHT.csv")
+@click.option("--params", "params_file", required=True, metavar="PARAMS.json", help="The fitted parameter set.")
+@click.option("--vehicle", "vehicle_file", default=None, metavar="VEHICLE.json",
+              help="Vehicle file; default: the parameter set's vehicle block.")
+@click.option("--plot", "plot_file", default=None, metavar="PNG",
+              help="Draw measured against expected power with alarms shaded.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
+def replay(flight_file, params_file, vehicle_file, plot_file, as_json):
+    """Run a logged flight through the power watch and list its events.
+
+    FLIGHT.csv has time[s], command[-] (or [%], [us]), voltage[V] and current[A] columns
+    (bus totals). The same integer kernel as on the board runs on every row.
+    """
+    from estimator.replay import replay_file
+
+    params, vehicle = _load(params_file, vehicle_file)
+    out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None)
+    arrays = out.pop("_arrays", None)
+    if plot_file is not None:
+        from estimator.replay_plots import plot_replay
+        plot_replay(plot_file, arrays, out["events"], title=flight_file)
+        out["plot"] = plot_file
+    if as_json:
+        click.echo(dumps(out))
+        return
+    lines = ["%s: %d samples, %d alarms, %d events" % (flight_file, out["samples"], out["alarms"], len(out["events"]))]
+    for e in out["events"]:
+        lines.append("  %9.1f s  %-13s residual %+.1f %%" % (e["t_s"], e["kind"], 100.0 * e["residual"]))
+    if plot_file:
+        lines.append("plot: %s" % plot_file)
+    lines.append("- " + WATCH_CAUTIONS[2])
+    click.echo("\n".join(lines))

@@ -1,0 +1,254 @@
+"""Onboard power watch: integer-only, heap-free kernel (runs unchanged on MicroPython).
+
+``w = Watch(CONFIG)``; ``flags = w.update(dt_ms, command_permille, bus_mV, bus_mA)``.
+Flag bits: 1 power_high, 2 power_low, 4 sensor_fault, 8 baseline_off, 16 mass_high.
+Readable after each update: ``residual_permille`` r = (P_meas - s P_exp) / (s P_exp) [1/1000],
+``power_dW`` measured and ``expected_dW`` expected bus power [0.1 W], ``thrust_mN`` thrust
+from the measured power [mN], ``hover_permille`` hover command expected at this voltage
+[1/1000], ``mass_g`` all-up mass implied in steady hover [g] (0 until known).
+
+Models (design notes sec. 3):
+- expected power: the parameter set's power model P(T) = idle + c_i T^1.5 sqrt(rho_ref/rho)
+  + c_cu T^2 per rotor, times the rotor count, at the thrust T(u, V, rho) of the thrust
+  curve; CONFIG carries it as a table over f = (V/V_ref)^n t(x) (``power_dW``), the
+  voltage factor as a table over the bus voltage (``volt_q12``);
+- thrust from measured power: momentum theory T = k(T) (2 rho A P^2)^(1/3) per rotor with
+  the calibrated static factor k(T) = k0 + k1 T and the site density, solved in closed form
+  and tabulated over the measured power (``thrust_mN``); the roots are taken by table;
+- detector: two-sided CUSUM on r (Page 1954), reference k and threshold h from Siegmund's
+  average-run-length approximation (estimator/watch_config.py), increments down-weighted
+  while the command changes fast; a learning window at each flight start learns a power
+  scale s and raises baseline_off when |s - 1| exceeds a tolerance.
+
+Integer contract: every intermediate stays below 2^30 in magnitude for every input that
+passes the range checks (the checks themselves only compare); the bound for each line
+is the comment beside it, with CONFIG limits guaranteed by watch_config.check_config.
+update() has no data-dependent loops, builds no tuples/lists/floats and never raises for
+int inputs. This file is copied verbatim into the board bundle as ``liftwatch.py``.
+"""
+
+FLAG_POWER_HIGH = 1
+FLAG_POWER_LOW = 2
+FLAG_SENSOR_FAULT = 4
+FLAG_BASELINE_OFF = 8
+FLAG_MASS_HIGH = 16
+
+
+class Watch:
+    """Power watch state for one vehicle; CONFIG is the dict made by watch_config.make_config."""
+
+    def __init__(self, config):
+        for key in config:            # attribute names are the CONFIG keys (shared qstrs)
+            setattr(self, key, config[key])
+        self.last_u = 0
+        self.last_mA = -1
+        self.stuck = 0
+        self.flags = 0
+        self.residual_permille = 0
+        self.power_dW = 0
+        self.expected_dW = 0
+        self.thrust_mN = 0
+        self.hover_permille = 0
+        self.mass_g = 0
+        self.calm = 0
+        self.quiet = 0
+        self.learning = 1
+        self.l_sum = 0
+        self.l_n = 0
+        self.l_ms = 0
+        self.scale = 1000
+        self.s_hi = 0
+        self.s_lo = 0
+        self.m_filt = 0
+        self.m_n = 0
+
+    def reset(self):
+        """Start a new flight: forget the learned scale, the CUSUM sums and the mass estimate."""
+        self.flags = 0
+        self.learning = 1
+        self.l_sum = 0
+        self.l_n = 0
+        self.l_ms = 0
+        self.scale = 1000
+        self.s_hi = 0
+        self.s_lo = 0
+        self.m_filt = 0
+        self.m_n = 0
+        self.mass_g = 0
+
+    def update(self, dt_ms, command_permille, bus_mV, bus_mA):
+        """One sample: dt_ms [ms] since the last, command [1/1000], bus voltage [mV], current [mA].
+
+        Returns the flag bits (int). Never raises for int inputs, never allocates.
+        """
+        u = command_permille
+        # range checks: comparisons only, so any int is safe here
+        if (dt_ms <= 0 or dt_ms > self.dt_max_ms or u < 0 or u > 1000
+                or bus_mV < self.v_min_mV or bus_mV > self.v_max_mV
+                or bus_mA < self.i_min_mA or bus_mA > self.i_max_mA):
+            self.flags = (self.flags & 27) | 4
+            return self.flags
+        # now 0 < dt <= dt_max (<= 60000), 0 <= u <= 1000, |mV| <= 60000, |mA| <= 300000
+        st = self.stuck
+        if bus_mA == self.last_mA and u >= self.spin_permille:
+            if st < self.stuck_samples:
+                st += 1                                   # <= stuck_n (<= 1000)
+        else:
+            st = 0
+        self.stuck = st
+        self.last_mA = bus_mA
+        if st >= self.stuck_samples:
+            self.flags = (self.flags & 27) | 4
+            return self.flags
+
+        # flight phase: a new flight starts after landed_ms below the spin command
+        if u < self.spin_permille:
+            q = self.quiet + dt_ms                        # <= landed + dt_max <= 120000
+            if q >= self.landed_ms:
+                q = self.landed_ms
+                if self.learning == 0 or self.l_n > 0:
+                    self.reset()
+            self.quiet = q
+        else:
+            self.quiet = 0
+
+        # trust: 0..16, ramps up over settle_ms after the command last moved fast
+        du = u - self.last_u                              # |du| <= 1000
+        if du < 0:
+            du = -du
+        self.last_u = u
+        calm = self.calm
+        if du * 1000 > self.rate_fast_permille_s * dt_ms:            # <= 1e6 ; rate_fast*dt <= 1e4*6e4 = 6e8
+            calm = 0
+        elif calm < self.steady_ms:
+            calm += dt_ms                                 # <= steady + dt_max <= 1.2e5
+        self.calm = calm
+        w = 16
+        if calm < self.settle_ms:
+            w = calm * 16 // self.settle_ms                  # <= 16 * 6e4
+
+        # expected power: thrust fraction t(x) in Q12, voltage factor by table, power by table
+        x = (u - self.command_min_permille) * 4096 // self.command_span_permille    # |.| <= 1000 * 4096 = 4.1e6
+        if x < 0:
+            x = 0
+        elif x > 4096:
+            x = 4096
+        a = self.quadratic_q12                                     # 0..4096
+        t = ((4096 - a) * x + a * (x * x >> 12)) >> 12    # each product <= 2^24 ; t <= 4096
+        dv = bus_mV - self.volt_lo_mV                           # |.| <= 1.2e5
+        vstep = self.volt_step_mV                               # 1..3750
+        if dv < 0:
+            dv = 0
+        elif dv >= vstep * 16:
+            dv = vstep * 16 - 1
+        i = dv // vstep                                   # 0..15
+        fr = dv - i * vstep                               # 0..vstep-1
+        # tables are bytes of 16-bit little-endian unsigned ints (2 bytes per knot)
+        j = i + i
+        tab = self.volt_q12                               # Q12 values <= 8191
+        a = tab[j] | tab[j + 1] << 8
+        vs = a + ((tab[j + 2] | tab[j + 3] << 8) - a) * fr // vstep  # <= 8191 * 3750 = 3.1e7
+        tab = self.hover_table_permille                   # permille, 0..1000
+        a = tab[j] | tab[j + 1] << 8
+        self.hover_permille = a + ((tab[j + 2] | tab[j + 3] << 8) - a) * fr // vstep  # <= 3.75e6
+        f = vs * t >> 12                                  # <= 8191 * 4096 = 3.4e7 ; f <= 8191
+        if f > 6143:
+            f = 6143                                      # table covers f in 0..1.5 (Q12)
+        j = f >> 6 & 254                                  # 2 x (f >> 7): 0..94
+        tab = self.power_table                            # units of 2^power_shift dW, < 2^16
+        a = tab[j] | tab[j + 1] << 8
+        pe = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * (f & 127) >> 7)) << self.power_shift  # <= 2^16 * 127 ; pe < 2^18
+        self.expected_dW = pe
+
+        # measured power [dW] = mV * mA / 1e5, in two steps to stay below 2^30
+        pm = (bus_mV // 10) * (bus_mA // 10) // 1000      # |.| <= 6000 * 30000 = 1.8e8
+        if pm < 0:
+            pm = 0
+        self.power_dW = pm                                # <= 180000
+
+        # thrust from measured power by table over P (power-of-two step, checked diffs)
+        sh = self.thrust_shift
+        i = pm >> sh
+        if i > 63:
+            i = 63
+            fr = (1 << sh) - 1
+        else:
+            fr = pm - (i << sh)                           # < 2^sh
+        j = i + i
+        tab = self.thrust_table                           # units of 2^thrust_unit_shift mN, < 2^16
+        a = tab[j] | tab[j + 1] << 8
+        th = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * fr >> sh)) << self.thrust_unit_shift  # 2^16 * 2^12 ; th <= 1e6
+        self.thrust_mN = th                               # <= 1e6
+
+        flags = self.flags & 24                           # keep baseline_off, mass_high
+        if pe < self.power_floor_dW or u < self.spin_permille:
+            self.residual_permille = 0
+            self.flags = flags
+            return flags
+        sp = pe * self.scale // 1000                      # <= 2^18 * 1300 = 3.4e8 ; sp <= 3.4e5, >= 1
+        r = (pm - sp) * 1000 // sp                        # |pm - sp| * 1000 <= 3.4e8
+        if r > 1000:
+            r = 1000
+        elif r < -1000:
+            r = -1000                                     # |r| <= 1000
+        self.residual_permille = r
+
+        if self.learning:
+            if w == 16:
+                self.l_sum += r                           # <= 1000 * 65535 = 6.6e7
+                self.l_n += 1                             # <= 65535
+                self.l_ms += dt_ms                        # <= learn_ms + dt_max
+            if self.l_n > 0 and (self.l_ms >= self.learn_ms or self.l_n >= 65535):
+                m = self.l_sum // self.l_n                # l_n >= 1 here (l_ms > 0 needs a sample)
+                tol = self.baseline_tol_permille
+                if m > tol:
+                    m = tol
+                    flags |= 8
+                elif m < -tol:
+                    m = -tol
+                    flags |= 8
+                self.scale = 1000 + m                     # 1000 +- tol (tol <= 300)
+                self.learning = 0
+            self.flags = flags
+            return flags
+
+        # two-sided CUSUM on r clipped to +-(h + k - 1), increments weighted by trust w/16
+        k = self.cusum_k_permille
+        h = self.cusum_h_permille
+        if r > self.clip_permille:
+            r = self.clip_permille
+        elif r < -self.clip_permille:
+            r = -self.clip_permille
+        s = self.s_hi + (w * (r - k) >> 4)                # |w (r - k)| <= 16 * 2000
+        if s < 0:
+            s = 0
+        elif s > h + h:
+            s = h + h                                     # <= 2 h <= 2000
+        self.s_hi = s
+        if s >= h:
+            flags |= 1
+        s = self.s_lo + (w * (-r - k) >> 4)
+        if s < 0:
+            s = 0
+        elif s > h + h:
+            s = h + h
+        self.s_lo = s
+        if s >= h:
+            flags |= 2
+
+        # implied mass in steady hover: filtered thrust / g (not while power is abnormal)
+        if calm >= self.steady_ms and flags & 3 == 0:
+            m = self.m_filt
+            if self.m_n == 0:
+                m = th
+            else:
+                m += (th - m) >> 4                        # |.| <= 1e6
+            self.m_filt = m
+            if self.m_n < self.mass_samples:
+                self.m_n += 1
+            else:
+                self.mass_g = m * 1000 // 9807            # <= 1e9 ; 9807 = 1000 g_n [m/s^2]
+                if self.mass_g > self.mass_limit_g:
+                    flags |= 16
+        self.flags = flags
+        return flags

@@ -1,0 +1,157 @@
+"""Desktop replay: run a logged flight through the same integer watch kernel as the board.
+
+Flight CSV (design notes sec. 4): header ``time[s]``, ``command[-]`` (also ``command[%]`` or
+``command[us]`` 1000..2000), ``voltage[V]`` (or ``[mV]``), ``current[A]`` (or ``[mA]``); more
+columns are ignored; lines starting with ``#`` are comments. Each row becomes one
+``Watch.update(dt_ms, command_permille, bus_mV, bus_mA)`` call with the values rounded to
+integers; the first row's dt is the median sample period. Out-of-range values are passed to
+the kernel, which flags them (sensor_fault) - a log with a glitch is still a log.
+"""
+
+import sys
+
+from estimator.core.watch import Watch
+from estimator.errors import InputError
+from estimator.watch_config import make_config
+
+KINDS = ((1, "power_high"), (2, "power_low"), (4, "sensor_fault"), (8, "baseline_off"), (16, "mass_high"))
+ALARM_BITS = 1 | 2 | 8 | 16
+PROGRESS_ROWS = 100000  # logs longer than this get a progress bar (stderr, terminals only)
+
+_COMMAND_UNITS = {"-": (1000.0, 0.0), "%": (10.0, 0.0), "us": (1.0, -1000.0)}
+_VOLT_UNITS = {"V": 1000.0, "mV": 1.0}
+_AMP_UNITS = {"A": 1000.0, "mA": 1.0}
+
+
+def _header(path, line, line_no):
+    cols = {}
+    for idx, cell in enumerate(line.split(",")):
+        cell = cell.strip()
+        name, _, unit = cell.partition("[")
+        cols[name.strip()] = (idx, unit.rstrip("]").strip())
+    need = {"time": ("s",), "command": tuple(_COMMAND_UNITS), "voltage": tuple(_VOLT_UNITS),
+            "current": tuple(_AMP_UNITS)}
+    out = {}
+    for name, units in need.items():
+        if name not in cols:
+            raise InputError("%s: row %d: missing column %s[...] (need time[s], command[-], voltage[V], "
+                             "current[A])" % (path, line_no, name))
+        idx, unit = cols[name]
+        if unit not in units:
+            raise InputError("%s: row %d: column %s has unit [%s]; use one of %s"
+                             % (path, line_no, name, unit, ", ".join("[%s]" % u for u in units)))
+        out[name] = (idx, unit)
+    return out
+
+
+def read_flight(path):
+    """Read a flight CSV; returns dict time_s, command_permille, bus_mV, bus_mA (lists)."""
+    try:
+        with open(path, "r", encoding="utf-8") as fh:
+            text = fh.read()
+    except FileNotFoundError:
+        raise InputError("%s: no such file" % path) from None
+    except UnicodeDecodeError:
+        raise InputError("%s: not UTF-8 text; expected a flight CSV" % path) from None
+    except OSError as exc:
+        raise InputError("%s: cannot read (%s)" % (path, exc.strerror)) from None
+    lines = text.split("\n")
+    cols = None
+    t, u, v, a = [], [], [], []
+    for no, line in enumerate(lines, 1):
+        s = line.strip()
+        if not s or s[0] == "#":
+            continue
+        if cols is None:
+            cols = _header(path, s, no)
+            it, _ = cols["time"]
+            iu, uu = cols["command"]
+            iv, uv = cols["voltage"]
+            ia, ua = cols["current"]
+            cs, co = _COMMAND_UNITS[uu]
+            vs, as_ = _VOLT_UNITS[uv], _AMP_UNITS[ua]
+            width = max(it, iu, iv, ia) + 1
+            continue
+        cells = s.split(",")
+        if len(cells) < width:
+            raise InputError("%s: row %d: %d cells, the header has at least %d" % (path, no, len(cells), width))
+        try:
+            t.append(float(cells[it]))
+            int(round(t[-1]))  # refuses nan and inf times
+            u.append(int(round((float(cells[iu]) + co) * cs)))
+            v.append(int(round(float(cells[iv]) * vs)))
+            a.append(int(round(float(cells[ia]) * as_)))
+        except (ValueError, OverflowError):
+            raise InputError("%s: row %d: a value is not a finite number: %r" % (path, no, s[:80])) from None
+    if cols is None:
+        raise InputError("%s: no header row; expected time[s],command[-],voltage[V],current[A]" % path)
+    if not t:
+        raise InputError("%s: no data rows after the header" % path)
+    return {"time_s": t, "command_permille": u, "bus_mV": v, "bus_mA": a}
+
+
+def run_kernel(flight, config, keep_arrays=False, progress=None):
+    """Feed a flight (dict from read_flight) through Watch(config); returns the replay dict."""
+    t = flight["time_s"]
+    u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
+    n = len(t)
+    gaps = sorted(t[i + 1] - t[i] for i in range(0, min(n - 1, 2000)))
+    first_ms = int(round(1000.0 * gaps[len(gaps) // 2])) if gaps else 100
+    w = Watch(config)
+    update = w.update
+    events = []
+    prev = 0
+    t_prev = None
+    arrays = {"time_s": t, "power_W": [], "expected_W": [], "flags": [], "residual": []} if keep_arrays else None
+    step = max(1, n // 50)
+    for i in range(n):
+        ti = t[i]
+        dt = first_ms if t_prev is None else int(round((ti - t_prev) * 1000.0))
+        t_prev = ti
+        flags = update(dt, u[i], mv[i], ma[i])
+        if flags != prev:
+            new = flags & ~prev
+            if new:
+                for bit, kind in KINDS:
+                    if new & bit:
+                        events.append({"t_s": round(ti, 3), "kind": kind,
+                                       "residual": w.residual_permille / 1000.0})
+            prev = flags
+        if keep_arrays:
+            arrays["power_W"].append(w.power_dW / 10.0)
+            arrays["expected_W"].append(w.expected_dW * w.scale / 10000.0)
+            arrays["flags"].append(flags)
+            arrays["residual"].append(w.residual_permille / 1000.0)
+        if progress is not None and i % step == 0:
+            progress(i, n)
+    if progress is not None:
+        progress(n, n)
+    out = {"samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events}
+    if keep_arrays:
+        out["_arrays"] = arrays
+    return out
+
+
+def _bar(i, n):
+    width = 40
+    done = int(width * i / max(n, 1))
+    sys.stderr.write("\rreplay [%s%s] %3d%%" % ("#" * done, "." * (width - done), 100 * i // max(n, 1)))
+    if i >= n:
+        sys.stderr.write("\n")
+    sys.stderr.flush()
+
+
+def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, progress=None):
+    """Replay a flight CSV through the watch configured from ``params`` (+ ``vehicle``).
+
+    Returns dict samples, alarms (events other than sensor_fault), events
+    [{t_s, kind, residual}] (kinds power_high, power_low, sensor_fault, baseline_off,
+    mass_high; residual [-] = residual_permille / 1000 at the event). A progress bar goes
+    to stderr on logs above PROGRESS_ROWS rows when stderr is a terminal (progress=None),
+    always (True) or never (False). Raises InputError on a bad file.
+    """
+    config, _ = make_config(params, vehicle, options)
+    flight = read_flight(path)
+    if progress is None:
+        progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
+    return run_kernel(flight, config, keep_arrays=keep_arrays, progress=_bar if progress else None)

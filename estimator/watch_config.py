@@ -1,0 +1,295 @@
+"""Parameter set (+ vehicle) -> the integer CONFIG of the onboard power watch.
+
+Desktop side: floats here, integers out. Every CONFIG value comes with a note of the float
+values it was made from (the bundle writes them as comments). The CUSUM reference value k
+and threshold h come from the bench residual noise (power_model.residual_rel_std) and a
+target false-alarm rate through Siegmund's approximation of the average run length:
+
+    ARL(k, h, mu) = (exp(-2 D b) + 2 D b - 1) / (2 D^2),  D = mu - k,  b = h + 1.166
+    (ARL = b^2 when D = 0), in units of the noise sigma, for one-sided CUSUM on N(mu, 1);
+    two-sided: 1 / ARL2 = 1 / ARL(k, h, mu) + 1 / ARL(k, h, -mu).
+
+Source: D. Siegmund, *Sequential Analysis* (Springer 1985), sec. X.2 (from memory); the
+CUSUM itself is E. S. Page, Biometrika 41 (1954). For k = 0.5, h = 4 it gives 336 one-sided
+and 168 two-sided, the published table values (design notes sec. 3a).
+"""
+
+import math
+
+from estimator.core import momentum, thrust_curve
+from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.errors import InputError
+
+LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports; every kernel value stays below
+
+DEFAULTS = {
+    "sample_ms": 100,               # nominal sampling period of the board loop [ms]
+    "false_alarms_per_100h": 0.1,   # target in-control false-alarm rate [1 / 100 flight hours]
+    "design_shift": 0.10,           # relative power shift the CUSUM is tuned for [-]
+    "noise_rel_std": None,          # override of power_model.residual_rel_std [-]
+    "learn_s": 10.0,                # learning window at each flight start [s]
+    "baseline_tol": 0.10,           # learned scale further than this from 1 -> baseline_off [-]
+    "mass_share": 0.08,             # implied mass above planned by this share -> mass_high [-]
+    "rate_fast_per_s": 0.3,         # command rate above which samples are not trusted [1/s]
+    "settle_s": 1.0,                # trust ramps back to full over this time [s]
+    "steady_s": 2.0,                # command calm this long = steady (hover) [s]
+    "landed_s": 3.0,                # command below spin this long = landed, next spin-up a new flight [s]
+    "dt_max_s": 2.0,                # a sample gap above this is a sensor fault [s]
+    "stuck_samples": 30,            # identical current readings in a row while spinning -> sensor_fault
+    "spin_command": None,           # command above which the rotors make thrust [-] (default u_min + 0.05)
+    "current_min_A": -0.2,          # below this the current sensor is faulty [A]
+    "current_max_A": None,          # above this [A] (default 1.5 x motors' max, at most 300 A)
+    "mass_samples": 20,             # steady samples before the mass estimate is reported
+}
+
+SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
+
+
+def siegmund_arl(k, h, mu=0.0):
+    """One-sided CUSUM average run length by Siegmund's approximation [samples].
+
+    k: reference value [sigma]; h: threshold [sigma]; mu: mean of the standardised
+    increments [sigma]. ARL = (exp(-2 D b) + 2 D b - 1) / (2 D^2), D = mu - k, b = h + 1.166.
+    Source: Siegmund (1985), sec. X.2 (from memory).
+    """
+    d = mu - k
+    b = h + SIEGMUND_OFFSET
+    if abs(d) < 1e-9:
+        return b * b
+    return (math.exp(-2.0 * d * b) + 2.0 * d * b - 1.0) / (2.0 * d * d)
+
+
+def siegmund_arl_two_sided(k, h, mu=0.0):
+    """Two-sided CUSUM ARL [samples]: 1 / ARL2 = 1 / ARL+(mu) + 1 / ARL-(mu) (Siegmund 1985)."""
+    return 1.0 / (1.0 / siegmund_arl(k, h, mu) + 1.0 / siegmund_arl(k, h, -mu))
+
+
+def threshold_for_arl(k, arl_two_sided):
+    """Threshold h [sigma] at which the two-sided in-control ARL equals ``arl_two_sided``.
+
+    Bisection over h in [0, 200] (60 halvings). k: reference value [sigma].
+    """
+    lo, hi = 0.0, 200.0
+    for _ in range(60):
+        mid = 0.5 * (lo + hi)
+        if siegmund_arl_two_sided(k, mid) < arl_two_sided:
+            lo = mid
+        else:
+            hi = mid
+    return 0.5 * (lo + hi)
+
+
+def pack16(values):
+    """Table of unsigned ints < 2^16 as bytes, 2 bytes little-endian each (compact on the board)."""
+    out = bytearray()
+    for v in values:
+        v = int(v)
+        if not 0 <= v < 1 << 16:
+            raise InputError("watch CONFIG: table value %d outside 0..65535" % v)
+        out += bytes((v & 255, v >> 8))
+    return bytes(out)
+
+
+def unpack16(data):
+    """Inverse of pack16: list of ints."""
+    return [data[i] | data[i + 1] << 8 for i in range(0, len(data), 2)]
+
+
+def vehicle_facts(params, vehicle=None):
+    """Mass, rotor count, site density and pack voltages for the watch.
+
+    From ``vehicle`` (a checked vehicle file dict) when given, else the parameter set's
+    ``vehicle`` block. Raises InputError when neither is there.
+    """
+    if vehicle is not None:
+        from estimator.params import vehicle_block
+        block = vehicle_block(vehicle)
+        max_a = vehicle.get("motor", {}).get("max_current_A")
+        block["max_current_A"] = None if max_a is None else max_a * block["rotor_count"]
+        return block
+    block = params.get("vehicle")
+    if not block:
+        raise InputError("parameter set: $.vehicle: missing; the watch needs the vehicle's mass, "
+                         "rotor count and site (give --vehicle VEHICLE.json, or fit with --vehicle)")
+    block = dict(block)
+    block.setdefault("max_current_A", None)
+    return block
+
+
+def _rotor_power_W(power_model, thrust_N, density_kg_m3):
+    """P = idle + c_i T^1.5 sqrt(rho_ref / rho) + c_cu T^2 [W] (DEVELOPERS.md power model)."""
+    t = max(thrust_N, 0.0)
+    return (power_model["idle_power_W"]
+            + power_model["induced_W_per_N1_5"] * t ** 1.5
+            * math.sqrt(power_model["reference_density_kg_m3"] / density_kg_m3)
+            + power_model["copper_W_per_N2"] * t * t)
+
+
+def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3):
+    """Total thrust from total bus power by momentum theory with k(T) = k0 + k1 T [N].
+
+    Per rotor g = (2 rho A (P / N)^2)^(1/3) (ideal thrust) and T = k(T) g, solved in closed
+    form T = k0 g / (1 - k1 g), with k capped at 1 (k > 1 is impossible).
+    power_W: total bus power [W]; rotor_count N [-]; density_kg_m3: site rho [kg/m^3].
+    Source: momentum theory (estimator.core.momentum, Leishman 2006 ch. 2, from memory).
+    """
+    sf = params["static_factor"]
+    area = momentum.disk_area_m2(params["rotor"]["diameter_m"])
+    g = momentum.ideal_thrust_N(max(power_W, 0.0) / rotor_count, density_kg_m3, area)
+    den = 1.0 - sf["slope_per_N"] * g
+    t = sf["k0"] * g / den if den > 0.05 else g
+    return rotor_count * min(max(t, 0.0), g)
+
+
+def make_config(params, vehicle=None, options=None):
+    """Build (CONFIG, notes): CONFIG is a dict of ints / tuples of ints for liftwatch.Watch,
+    notes maps each key to the float values it was made from (for the bundle's comments).
+
+    params: parameter-set dict (DEVELOPERS.md layout); vehicle: vehicle-file dict or None;
+    options: overrides of DEFAULTS. Raises InputError when the set cannot be represented
+    within the sensor range (0-60 V, 0-300 A) or misses the vehicle.
+    """
+    o = dict(DEFAULTS)
+    o.update(options or {})
+    v = vehicle_facts(params, vehicle)
+    curve = params["thrust_curve"]
+    pm = params["power_model"]
+    n_rot = int(v["rotor_count"])
+    rho = float(v["site_density_kg_m3"])
+    mass_kg = float(v["mass_kg"])
+    notes = {}
+    cfg = {}
+
+    def put(key, value, note):
+        cfg[key] = value
+        notes[key] = note
+
+    sigma = o["noise_rel_std"] if o["noise_rel_std"] is not None else pm["residual_rel_std"]
+    if not 0.0 < sigma < 0.5:
+        raise InputError("parameter set: $.power_model.residual_rel_std: %g is not a usable noise "
+                         "level for the watch (expected 0 < sigma < 0.5)" % sigma)
+    rate_hz = 1000.0 / o["sample_ms"]
+    arl_target = 100.0 * 3600.0 * rate_hz / o["false_alarms_per_100h"]
+    k_sigma = max(0.5, 0.5 * o["design_shift"] / sigma)
+    h_sigma = threshold_for_arl(k_sigma, arl_target)
+    k_pm = int(round(k_sigma * sigma * 1000.0))
+    h_pm = max(1, int(round(h_sigma * sigma * 1000.0)))
+    put("cusum_k_permille", k_pm, "k = %.3f sigma, sigma = residual_rel_std %.4f, design shift %.3f"
+        % (k_sigma, sigma, o["design_shift"]))
+    put("cusum_h_permille", h_pm, "h = %.3f sigma: two-sided in-control ARL %.3g samples = %g false "
+        "alarms per 100 h at %g Hz (Siegmund 1985)" % (h_sigma, arl_target, o["false_alarms_per_100h"], rate_hz))
+    put("clip_permille", h_pm + k_pm - 1, "one sample can add at most h - 1: alarms need two samples")
+
+    v_full = float(v.get("full_voltage_V") or curve["reference_voltage_V"] * 1.15)
+    v_empty = float(v.get("empty_voltage_V") or curve["reference_voltage_V"] * 0.85)
+    v_lo, v_hi = 0.8 * v_empty, 1.05 * v_full
+    if v_hi > 60.0:
+        raise InputError("vehicle: full pack voltage %.1f V is beyond the watch's 60 V sensor range" % v_full)
+    v_step = int(math.ceil((v_hi - v_lo) * 1000.0 / 16.0))
+    v_lo_mV = int(round(v_lo * 1000.0))
+    put("volt_lo_mV", v_lo_mV, "table from %.2f V (0.8 x empty pack %.2f V)" % (v_lo, v_empty))
+    put("volt_step_mV", v_step, "16 steps to %.2f V (1.05 x full pack %.2f V)" % (v_hi, v_full))
+    put("v_min_mV", int(round(0.5 * v_empty * 1000.0)), "below half the empty-pack voltage: sensor fault")
+    put("v_max_mV", min(60000, int(round(1.2 * v_full * 1000.0))), "above 1.2 x full pack: sensor fault")
+    i_max = o["current_max_A"] or min(300.0, 1.5 * (v.get("max_current_A") or 200.0))
+    put("i_min_mA", int(round(o["current_min_A"] * 1000.0)), "current below this is a sensor fault [mA]")
+    put("i_max_mA", int(round(min(i_max, 300.0) * 1000.0)), "current above this is a sensor fault [mA]")
+
+    n_exp, v_ref = curve["voltage_exponent"], curve["reference_voltage_V"]
+    volts = [(v_lo_mV + i * v_step) / 1000.0 for i in range(17)]
+    vq = [min(8191, int(round(4096.0 * (x / v_ref) ** n_exp))) for x in volts]
+    put("volt_q12", pack16(vq), "(V / %.3f V)^%.4f x 4096 at the table voltages" % (v_ref, n_exp))
+    weight_N = mass_kg * STANDARD_GRAVITY_M_S2
+    hov = []
+    for x in volts:
+        u, _ = thrust_curve.hover_command(weight_N / n_rot, x, rho, curve)
+        hov.append(1000 if u is None else int(round(1000.0 * u)))
+    put("hover_table_permille", pack16(hov), "hover command for %.3f kg on %d rotors at rho %.4f kg/m^3"
+        % (mass_kg, n_rot, rho))
+
+    u_min, u_max = curve["command_min"], curve.get("command_max", 1.0)
+    put("command_min_permille", int(round(1000.0 * u_min)), "u_min = %.4f" % u_min)
+    put("command_span_permille", max(1, int(round(1000.0 * (u_max - u_min)))), "u_max - u_min = %.4f" % (u_max - u_min))
+    put("quadratic_q12", int(round(4096.0 * min(max(curve["quadratic_share"], 0.0), 1.0))),
+        "a = %.4f" % curve["quadratic_share"])
+    spin = o["spin_command"] if o["spin_command"] is not None else u_min + 0.05
+    put("spin_permille", int(round(1000.0 * spin)), "rotors spinning above command %.3f" % spin)
+
+    t_site = curve["thrust_max_N"] * (rho / curve["reference_density_kg_m3"]) ** curve["density_exponent"]
+    p_tab = []
+    for j in range(49):
+        f = j * 128 / 4096.0
+        p_tab.append(int(round(10.0 * n_rot * _rotor_power_W(pm, t_site * f, rho))))
+    if max(p_tab) >= 1 << 18:
+        raise InputError("parameter set: expected power %.0f W at 1.5 x full thrust exceeds the watch's "
+                         "range (26 kW)" % (max(p_tab) / 10.0))
+    ps = 0
+    while max(p_tab) >> ps >= 1 << 16:
+        ps += 1
+    put("power_shift", ps, "power table unit 2^%d x 0.1 W" % ps)
+    put("power_table", pack16([x >> ps for x in p_tab]), "N x P(T) at T = %.3f N x f, f = 0..1.5 step 1/32 "
+        "(power model at rho %.4f) [0.1 W]: %s" % (t_site, rho, " ".join(str(x) for x in p_tab)))
+    p_hover = n_rot * _rotor_power_W(pm, weight_N / n_rot, rho)
+    put("power_floor_dW", max(2, int(round(10.0 * 0.2 * p_hover))), "20 %% of hover power %.1f W" % p_hover)
+
+    f_top = min(vq[-1] / 4096.0, 1.5)  # full command at the top of the voltage table
+    p_top_dW = 1.1 * 10.0 * n_rot * _rotor_power_W(pm, t_site * f_top, rho)
+    sh = 0
+    while (64 << sh) < p_top_dW:
+        sh += 1
+    t_tab = [int(round(min(1e6, 1000.0 * thrust_from_power_total_N(j * (1 << sh) / 10.0, params, n_rot, rho))))
+             for j in range(65)]
+    tu = 0
+    while max(t_tab) >> tu >= 1 << 16:
+        tu += 1
+    put("thrust_shift", sh, "thrust table step 2^%d x 0.1 W, up to %.0f W" % (sh, 64 * (1 << sh) / 10.0))
+    put("thrust_unit_shift", tu, "thrust table unit 2^%d mN" % tu)
+    put("thrust_table", pack16([x >> tu for x in t_tab]), "k(T) (2 rho A (P/N)^2)^(1/3) x N [mN]; k0 %.4f, "
+        "k1 %.5f 1/N, D %.4f m: %s" % (params["static_factor"]["k0"], params["static_factor"]["slope_per_N"],
+                                       params["rotor"]["diameter_m"], " ".join(str(x) for x in t_tab)))
+
+    put("learn_ms", max(1, int(round(1000.0 * o["learn_s"]))), "learning window %.1f s" % o["learn_s"])
+    put("baseline_tol_permille", int(round(1000.0 * o["baseline_tol"])), "|scale - 1| above %.3f -> baseline_off" % o["baseline_tol"])
+    put("rate_fast_permille_s", int(round(1000.0 * o["rate_fast_per_s"])), "command rate %.2f /s" % o["rate_fast_per_s"])
+    put("settle_ms", max(1, int(round(1000.0 * o["settle_s"]))), "trust ramp %.1f s" % o["settle_s"])
+    put("steady_ms", max(1, int(round(1000.0 * o["steady_s"]))), "steady hover after %.1f s calm" % o["steady_s"])
+    put("landed_ms", max(1, int(round(1000.0 * o["landed_s"]))), "landed after %.1f s below spin" % o["landed_s"])
+    put("dt_max_ms", int(round(1000.0 * o["dt_max_s"])), "sample gap limit %.1f s" % o["dt_max_s"])
+    put("stuck_samples", int(o["stuck_samples"]), "identical current readings in a row -> sensor_fault")
+    put("mass_samples", int(o["mass_samples"]), "steady samples before mass_g is reported")
+    put("mass_limit_g", int(round(1000.0 * mass_kg * (1.0 + o["mass_share"]))),
+        "planned %.3f kg + %.0f %%" % (mass_kg, 100.0 * o["mass_share"]))
+    check_config(cfg)
+    return cfg, notes
+
+
+def check_config(cfg):
+    """Refuse a CONFIG whose values would let a kernel intermediate reach 2^30 (InputError).
+
+    The bounds are those in the comments of estimator/core/watch.py.
+    """
+    def need(ok, what):
+        if not ok:
+            raise InputError("watch CONFIG: %s" % what)
+    need(0 < cfg["dt_max_ms"] <= 60000, "dt_max_ms must be in 1..60000")
+    need(0 <= cfg["volt_step_mV"] * 16 <= 60000 and cfg["volt_step_mV"] >= 1, "voltage table outside 0..60 V")
+    need(abs(cfg["v_min_mV"]) <= 60000 and abs(cfg["v_max_mV"]) <= 60000, "voltage limits outside 0..60 V")
+    need(-300000 <= cfg["i_min_mA"] <= cfg["i_max_mA"] <= 300000, "current limits outside -300..300 A")
+    need(len(cfg["volt_q12"]) == 34 and all(0 <= x <= 8191 for x in unpack16(cfg["volt_q12"])), "volt_q12 table")
+    need(len(cfg["hover_table_permille"]) == 34
+         and all(0 <= x <= 1000 for x in unpack16(cfg["hover_table_permille"])), "hover table")
+    need(len(cfg["power_table"]) == 98 and 0 <= cfg["power_shift"] <= 2, "power table (< 2^18 x 0.1 W)")
+    need(cfg["power_floor_dW"] >= 2, "power floor")
+    need(0 <= cfg["quadratic_q12"] <= 4096 and 1 <= cfg["command_span_permille"] <= 1000, "thrust curve")
+    need(0 <= cfg["thrust_shift"] <= 12, "thrust table step (power above 26 kW)")
+    tt = unpack16(cfg["thrust_table"])
+    need(len(tt) == 65 and all((x << cfg["thrust_unit_shift"]) <= 1000000 for x in tt)
+         and 0 <= cfg["thrust_unit_shift"] <= 4, "thrust table (above 1000 N)")
+    need(0 <= cfg["rate_fast_permille_s"] <= 10000, "rate limit")
+    need(1 <= cfg["settle_ms"] <= 60000 and 1 <= cfg["steady_ms"] <= 60000 and 1 <= cfg["landed_ms"] <= 60000,
+         "time constants must be 1..60000 ms")
+    need(1 <= cfg["learn_ms"] <= 600000, "learning window")
+    need(0 <= cfg["baseline_tol_permille"] <= 300, "baseline tolerance")
+    need(1 <= cfg["cusum_h_permille"] <= 1000 and 0 <= cfg["cusum_k_permille"] <= 1000
+         and cfg["clip_permille"] <= 1000, "CUSUM values")
+    need(1 <= cfg["stuck_samples"] <= 1000 and 1 <= cfg["mass_samples"] <= 1000, "sample counts")

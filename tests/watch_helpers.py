@@ -1,0 +1,68 @@
+"""Test helpers for the power watch: parameter sets and vehicles to run the kernel on.
+
+``motor_model_params`` builds a parameter set (DEVELOPERS.md layout) by least squares on
+points of the project's DC motor model for the invented demo vehicle (scipy curve_fit and
+numpy lstsq, test-only) -- the same physics the flight simulator uses, so the watch's
+expected power and thrust estimates can be judged against it.
+"""
+
+import math
+
+import numpy as np
+
+from estimator.core import momentum
+from estimator.core.motor import rotor_operating_point
+from estimator.demo_data import DEMO_VEHICLE
+from estimator.params import vehicle_block
+from estimator.vehicle import check_vehicle
+
+
+def demo_vehicle():
+    """The invented demo vehicle, checked and with defaults filled."""
+    return check_vehicle(DEMO_VEHICLE, "demo")
+
+
+def motor_model_params(vehicle=None, residual_rel_std=0.02, bench_density=1.20):
+    """Parameter set fitted to noise-free motor-model points at the bench density [kg/m^3]."""
+    from scipy.optimize import curve_fit
+
+    veh = vehicle or demo_vehicle()
+    motor, prop = veh["motor"], veh["propeller"]
+    eff = veh.get("esc", {}).get("efficiency", 1.0)
+    cells = veh["battery"]["cells"]
+    v_ref = cells * veh["battery"]["nominal_cell_V"]
+    rows = []
+    for v in (cells * 3.5, v_ref, cells * 4.2):
+        for u in np.linspace(0.1, 1.0, 19):
+            op = rotor_operating_point(float(u), v, bench_density, motor, prop, eff)
+            rows.append((u, v, op["thrust_N"], op["electrical_power_W"]))
+    a = np.array(rows)
+    u, volt, thr, pw = a.T
+
+    def model(X, tmax, share, n_exp):
+        uu, vv = X
+        return tmax * (vv / v_ref) ** n_exp * ((1 - share) * uu + share * uu * uu)
+
+    (tmax, share, n_exp), _ = curve_fit(model, (u, volt), thr, p0=(thr.max(), 0.9, 1.8))
+    design = np.column_stack([np.ones_like(thr), thr ** 1.5, thr ** 2])
+    coef = np.linalg.lstsq(design, pw, rcond=None)[0]
+    area = momentum.disk_area_m2(prop["diameter_m"])
+    k = thr / (2.0 * bench_density * area * pw ** 2) ** (1.0 / 3.0)
+    sel = thr > 0.1 * tmax
+    slope, k0 = np.polyfit(thr[sel], k[sel], 1)
+    params = {
+        "schema_version": 1, "model": "liftcal.rotor/1",
+        "rotor": {"diameter_m": prop["diameter_m"]},
+        "bench_air": {"density_kg_m3": bench_density, "source": "test helper"},
+        "thrust_curve": {"command_min": 0.0, "command_max": 1.0, "quadratic_share": float(share),
+                         "thrust_max_N": float(tmax), "reference_voltage_V": v_ref,
+                         "voltage_exponent": float(n_exp), "density_exponent": float(n_exp - 1.0),
+                         "reference_density_kg_m3": bench_density},
+        "power_model": {"form": "idle+induced+copper", "idle_power_W": float(coef[0]),
+                        "induced_W_per_N1_5": float(coef[1]), "copper_W_per_N2": float(coef[2]),
+                        "reference_density_kg_m3": bench_density, "residual_rel_std": residual_rel_std},
+        "static_factor": {"value": float(k0 + slope * np.median(thr[sel])), "k0": float(k0),
+                          "slope_per_N": float(slope)},
+        "vehicle": vehicle_block(veh),
+    }
+    return params
