@@ -20,7 +20,7 @@ class Quantity(click.ParamType):
     def convert(self, value, param, ctx):
         if isinstance(value, float):
             return value
-        what = "--" + param.name.replace("_", "-") if param is not None else self.kind
+        what = param.opts[0] if param is not None and param.opts else self.kind
         try:
             si = parse_quantity(value, self.kind, what)
         except InputError as exc:

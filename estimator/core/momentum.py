@@ -10,8 +10,9 @@ import math
 # Coaxial pair, lower rotor in the fully developed slipstream of the upper, equal
 # thrust shared: the pair needs 1.2808 times the induced POWER of two isolated
 # rotors at the same total thrust (power basis). Leishman (2006) sec. 6.x
-# "coaxial rotor performance", from memory; derived in tests/test_momentum.py.
-COAXIAL_INDUCED_POWER_FACTOR = 1.2808
+# "coaxial rotor performance", from memory; exactly (1 + sqrt(17)) / 4 = 1.28078,
+# derived again in tests/test_momentum.py from momentum conservation.
+COAXIAL_INDUCED_POWER_FACTOR = (1.0 + math.sqrt(17.0)) / 4.0
 
 
 def disk_area_m2(diameter_m):

@@ -57,8 +57,9 @@ def thrust_N(command, voltage_V, density_kg_m3, curve):
     """Thrust T(u, V, rho) [N] from a curve dict (the ``thrust_curve`` block of a parameter set).
 
     command: u [-]; voltage_V: bus voltage [V]; density_kg_m3: rho [kg/m^3].
-    curve keys: command_min, command_max, quadratic_share, thrust_max_N,
-    reference_voltage_V, voltage_exponent, reference_density_kg_m3, density_exponent.
+    curve: dict command_min [-], command_max [-], quadratic_share [-], thrust_max_N [N],
+    reference_voltage_V [V], voltage_exponent [-], reference_density_kg_m3 [kg/m^3],
+    density_exponent [-].
     """
     x = command_to_x(command, curve["command_min"], curve.get("command_max", 1.0))
     return (curve["thrust_max_N"] * curve_fraction(x, curve["quadratic_share"])
@@ -69,7 +70,8 @@ def thrust_N(command, voltage_V, density_kg_m3, curve):
 def hover_command(thrust_needed_N, voltage_V, density_kg_m3, curve):
     """Command and thrust fraction that give ``thrust_needed_N`` per rotor.
 
-    thrust_needed_N: thrust one rotor must make [N]; voltage_V [V]; density_kg_m3 [kg/m^3].
+    thrust_needed_N: thrust one rotor must make [N]; voltage_V: bus voltage [V];
+    density_kg_m3: air density [kg/m^3]; curve: dict as in thrust_N [N, V, kg/m^3, -].
     Returns (command [-] or None when full command is not enough, thrust fraction [-]),
     where the fraction is T_needed / T_max at this voltage and density (may exceed 1).
     """
