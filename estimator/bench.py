@@ -39,6 +39,11 @@ BUS_VOLTAGE_RANGE_V = (1.0, 100.0)
 # idle current-sensor noise tolerated below zero: the larger of this and 1 % of the largest
 # current [A] (common practice for hall-effect bench sensors, not a standard)
 NEGATIVE_CURRENT_TOLERANCE_A = 0.25
+# single rows beyond these are glitches, not data: a bus voltage off the sweep's median by
+# more than a factor 2, a current above 1000 A, a thrust above 5000 N (far beyond any rotor
+# of a small multirotor) [V, A, N]
+MAX_CURRENT_A = 1000.0
+MAX_THRUST_N = 5000.0
 # share of rows allowed outside 0..1 before the command unit itself is suspect
 COMMAND_OUTSIDE_SHARE = 0.05
 
@@ -211,14 +216,22 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
         neg_i = finite & (i < -tol_i)
         bad_v = finite & (v <= 0.0)
         out_u = finite & ((u < 0.0) | (u > 1.0))
+        v_med = float(np.median(v[finite])) if np.any(finite) else 1.0
+        odd_v = finite & ~bad_v & ((v > 2.0 * v_med) | (v < 0.5 * v_med))
+        odd_i = finite & (i > MAX_CURRENT_A)
+        odd_t = finite & (np.abs(t) > MAX_THRUST_N)
     rejected["negative_current"] = int(np.count_nonzero(neg_i))
     rejected["voltage_not_positive"] = int(np.count_nonzero(bad_v))
     rejected["command_outside_0_1"] = int(np.count_nonzero(out_u))
-    keep = finite & ~neg_i & ~bad_v & ~out_u
+    rejected["voltage_out_of_range"] = int(np.count_nonzero(odd_v))
+    rejected["current_out_of_range"] = int(np.count_nonzero(odd_i))
+    rejected["thrust_out_of_range"] = int(np.count_nonzero(odd_t))
+    keep = finite & ~neg_i & ~bad_v & ~out_u & ~odd_v & ~odd_i & ~odd_t
     n_keep = int(np.count_nonzero(keep))
     if n_keep < 10:
         raise InputError("%s: only %d of %d rows are usable (NaN, negative current, command "
-                         "outside 0..1); a sweep needs at least 10" % (path, n_keep, rows_total))
+                         "outside 0..1, values out of range); a sweep needs at least 10"
+                         % (path, n_keep, rows_total))
     if n_keep < rows_total:
         u, v, i, t = u[keep], v[keep], i[keep], t[keep]
 

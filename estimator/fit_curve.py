@@ -69,6 +69,8 @@ def _start(u, log_v, thrust, n0):
     for u_min in np.arange(0.0, 0.5, 0.01):
         x = np.clip((u - u_min) / (1.0 - u_min), 0.0, None)
         design = np.column_stack([s * x, s * x * x])
+        if not (np.all(np.isfinite(design)) and np.all(np.isfinite(thrust))):
+            raise FloatingPointError("non-finite values in the start of the fit")
         coef, *_ = np.linalg.lstsq(design, thrust, rcond=None)
         r = thrust - design @ coef
         score = float(np.sum(np.minimum(r * r, 9.0 * np.median(r * r) + 1e-30)))
@@ -114,6 +116,8 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None):
     sub = slice(None, None, step) if step > 1 else None
     idx = sub if sub is not None else slice(None)
     theta0 = _start(u[idx], log_v[idx], t[idx], fixed_n if fixed_n is not None else DEFAULT_VOLTAGE_EXPONENT)
+    if not np.all(np.isfinite(theta0)):
+        raise InputError("no thrust curve can be started from this sweep (non-finite start values)")
     if fixed_n is not None:
         theta0 = theta0[:3]
     model = _model_factory(u, log_v, fixed_n)

@@ -43,7 +43,37 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
 
 
 def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=False):
-    """Fit the arrays returned by estimator.bench.read_bench; see fit_bench_file."""
+    """Fit the arrays returned by estimator.bench.read_bench; see fit_bench_file.
+
+    Floating-point trouble on pathological data (overflow, a singular system) becomes an
+    InputError: the sweep cannot be fitted, and nothing is written.
+    """
+    try:
+        with np.errstate(all="ignore"):
+            params = _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays)
+    except (np.linalg.LinAlgError, FloatingPointError, OverflowError, ZeroDivisionError,
+            ValueError) as exc:
+        raise InputError("%s: the sweep cannot be fitted (%s); check that command, voltage, "
+                         "current and thrust hold a real sweep from idle to full command"
+                         % (source, exc)) from None
+    _check_finite(params, source)
+    return params
+
+
+def _check_finite(node, source, path="$"):
+    """Refuse a parameter set with a NaN or infinite number (it would not be valid JSON)."""
+    if isinstance(node, dict):
+        for key, value in node.items():
+            if not key.startswith("_"):
+                _check_finite(value, source, path + "." + key)
+    elif isinstance(node, list):
+        for i, value in enumerate(node):
+            _check_finite(value, source, "%s[%d]" % (path, i))
+    elif isinstance(node, float) and not np.isfinite(node):
+        raise InputError("%s: the fit gave a non-finite %s; the sweep cannot be fitted" % (source, path))
+
+
+def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     from estimator.params import build_params
 
     rho = data["bench_air"]["density_kg_m3"]

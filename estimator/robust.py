@@ -49,6 +49,13 @@ def _scale_floor(r, y):
     return fallback if fallback > 0.0 else 1e-12 * max(1.0, float(np.max(np.abs(y))))
 
 
+def _require_finite(*arrays):
+    """Raise FloatingPointError before non-finite numbers reach LAPACK."""
+    for a in arrays:
+        if not np.all(np.isfinite(a)):
+            raise FloatingPointError("non-finite values in the fit")
+
+
 def sandwich_cov(jac, weights, residuals, groups=None):
     """Sandwich covariance of the parameters of a weighted fit (see module docstring).
 
@@ -77,6 +84,7 @@ def huber_lstsq(design, y, c=HUBER_C, max_iter=50, tol=1e-9, groups=None):
     """
     design = np.asarray(design, dtype=float)
     y = np.asarray(y, dtype=float)
+    _require_finite(design, y)
     beta = np.linalg.lstsq(design, y, rcond=None)[0]
     w = np.ones_like(y)
     scale = 0.0
@@ -115,6 +123,7 @@ def huber_gauss_newton(model, theta0, y, c=HUBER_C, max_iter=60, tol=1e-9, subsa
         ok = False
         for _ in range(passes):
             f, jac = model(theta, index)
+            _require_finite(jac, f)
             r = yy - f
             scale = _scale_floor(r, yy)
             w = huber_weights(r, scale, c)

@@ -1,0 +1,98 @@
+"""`liftcal export`: mapping arithmetic, bounds refused (not clipped), invented example names.
+
+The arithmetic is checked against hand-computed values from the shipped valid example
+(value * scale + offset, rounded half-to-even by Python's round, PEP 3141 / IEEE 754).
+"""
+
+import json
+import os
+import re
+
+import pytest
+
+from estimator.cli import main
+from estimator.errors import InputError
+from estimator.export import EXAMPLE_MAP, export_settings, format_lines, load_map
+from estimator.params import load_params
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+WITH_HOVER = os.path.join(ROOT, "schemas", "examples", "valid", "params-demo-with-hover.json")
+NO_HOVER = os.path.join(ROOT, "schemas", "examples", "valid", "params-demo-no-vehicle.json")
+
+
+def _map(tmp_path, settings):
+    path = tmp_path / "map.json"
+    path.write_text(json.dumps({"schema_version": 1, "model": "liftcal.map/1", "settings": settings}))
+    return str(path)
+
+
+def test_scale_offset_and_rounding(tmp_path):
+    params = load_params(WITH_HOVER)
+    mapping = load_map(_map(tmp_path, [
+        {"name": "A_PULSE", "source": "thrust_curve.command_min", "scale": 1000, "offset": 1000, "decimals": 0},
+        {"name": "B_QUAD", "source": "thrust_curve.quadratic_share", "decimals": 2},
+        {"name": "C_LOW", "source": "hover.hover_command_interval_95.0", "decimals": 4},
+    ]))
+    out = dict(export_settings(params, mapping))
+    c, h = params["thrust_curve"], params["hover"]
+    # hand arithmetic: 1000 + 1000 u_min rounded to an integer pulse, a to two decimals
+    assert out["A_PULSE"] == int(round(1000 + 1000 * c["command_min"])) and isinstance(out["A_PULSE"], int)
+    assert out["B_QUAD"] == round(c["quadratic_share"], 2)
+    assert out["C_LOW"] == round(h["hover_command_interval_95"][0], 4)
+
+
+def test_out_of_bounds_is_refused_not_clipped(tmp_path):
+    params = load_params(WITH_HOVER)
+    path = _map(tmp_path, [{"name": "X_HOVER", "source": "hover.hover_command", "scale": 1000,
+                            "decimals": 0, "min": 0, "max": 300}])
+    with pytest.raises(InputError, match=r"X_HOVER.*outside the setting's bounds.*not clipped"):
+        export_settings(params, load_map(path), path)
+
+
+def test_missing_hover_values_point_to_fit_with_vehicle(tmp_path):
+    params = load_params(NO_HOVER)
+    path = _map(tmp_path, [{"name": "X_HOVER", "source": "hover.hover_command"}])
+    with pytest.raises(InputError, match=r"\$\.settings\[0\].*--vehicle"):
+        export_settings(params, load_map(path), path)
+
+
+def test_source_that_is_not_a_number(tmp_path):
+    params = load_params(WITH_HOVER)
+    path = _map(tmp_path, [{"name": "X", "source": "provenance.input_file"}])
+    with pytest.raises(InputError, match="not a number"):
+        export_settings(params, load_map(path), path)
+
+
+def test_example_map_uses_invented_names_only():
+    # project rule: the shipped example never uses a real firmware's parameter names; ours all
+    # carry the invented LC_ prefix, and the file says it is invented
+    mapping = load_map(EXAMPLE_MAP)
+    assert all(re.fullmatch(r"LC_[A-Z0-9_]+", s["name"]) for s in mapping["settings"])
+    assert "INVENTED" in mapping["description"]
+
+
+def test_cli_lines_and_json(tmp_path, capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(["export", WITH_HOVER])
+    out, _ = capsys.readouterr()
+    assert exc.value.code == 0
+    params = load_params(WITH_HOVER)
+    expected = export_settings(params, load_map(EXAMPLE_MAP))
+    assert out == format_lines(expected)
+    assert out.splitlines()[0] == "LC_HOVER_CMD %d" % int(round(1000 * params["hover"]["hover_command"]))
+    target = tmp_path / "settings.json"
+    with pytest.raises(SystemExit) as exc:
+        main(["export", WITH_HOVER, "--json", "--out", str(target)])
+    out, _ = capsys.readouterr()
+    assert exc.value.code == 0 and json.loads(out) == dict(expected)
+    assert json.loads(target.read_text()) == dict(expected)
+
+
+def test_cli_refusal_is_one_error_line_and_no_file(tmp_path, capsys):
+    path = _map(tmp_path, [{"name": "X_HOVER", "source": "hover.hover_command", "max": 0.1}])
+    target = tmp_path / "out.txt"
+    with pytest.raises(SystemExit) as exc:
+        main(["export", WITH_HOVER, "--map", path, "--out", str(target)])
+    out, err = capsys.readouterr()
+    assert exc.value.code == 2 and out == "" and err.startswith("error: ") and err.count("\n") == 1
+    assert not target.exists()
