@@ -66,3 +66,52 @@ def motor_model_params(vehicle=None, residual_rel_std=0.02, bench_density=1.20):
         "vehicle": vehicle_block(veh),
     }
     return params
+
+
+_DEMO_FIT = {}
+
+
+def demo_fit_params():
+    """The real fitted demo parameter set: the demo bench sweep (benchsim, seed 1) through the fit."""
+    if "p" not in _DEMO_FIT:
+        import os
+        import tempfile
+
+        from estimator.benchsim import simulate_sweep
+        from estimator.fit_sweep import fit_bench_file
+        folder = tempfile.mkdtemp(prefix="liftwatch-fit-")
+        path = os.path.join(folder, "bench.csv")
+        with open(path, "w", encoding="utf-8") as fh:
+            fh.write(simulate_sweep(seed=1))
+        params = fit_bench_file(path, vehicle=demo_vehicle())
+        params.pop("_arrays", None)
+        _DEMO_FIT["p"] = params
+    return _DEMO_FIT["p"]
+
+
+def flight_ints(flight):
+    """Flight arrays -> lists of ints (command permille, mV, mA) as the replay rounds them."""
+    u = [int(round(x * 1000.0)) for x in flight["command"]]
+    mv = [int(round(x * 1000.0)) for x in flight["voltage_V"]]
+    ma = [int(round(x * 1000.0)) for x in flight["current_A"]]
+    return u, mv, ma
+
+
+def run_flight(config, flight, dt_ms=100):
+    """Run the kernel over a simulated flight; returns (watch, list of (t_s, new_bits), mass samples)."""
+    from estimator.core.watch import Watch
+
+    w = Watch(config)
+    u, mv, ma = flight_ints(flight)
+    prev = 0
+    events = []
+    masses = []
+    for i in range(len(u)):
+        f = w.update(dt_ms, u[i], mv[i], ma[i])
+        new = f & ~prev
+        prev = f
+        if new:
+            events.append((float(flight["time_s"][i]), new))
+        if w.mass_g and w.learning == 0 and u[i] > 100:
+            masses.append(w.mass_g)
+    return w, events, masses

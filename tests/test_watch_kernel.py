@@ -1,0 +1,261 @@
+"""The integer watch kernel under CPython: integer bounds, garbage in, and agreement with the
+float physics of the core (momentum theory, thrust curve, power model) it was tabulated from."""
+
+import ast
+import math
+import os
+
+from hypothesis import given, settings, strategies as st
+
+from estimator.core import momentum, thrust_curve
+from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.core.watch import Watch
+from estimator.watch_config import make_config
+from watch_helpers import demo_fit_params, motor_model_params
+
+LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports (design notes sec. 3)
+WATCH_SRC = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "estimator", "core", "watch.py")
+
+
+def demo_config():
+    return make_config(demo_fit_params())[0]
+
+
+def big_config():
+    """A large invented vehicle: 8 rotors, 12S, 25 kg, with 6x the demo rotor's power."""
+    p = motor_model_params()
+    p["power_model"] = dict(p["power_model"], idle_power_W=15.0, induced_W_per_N1_5=3.0, copper_W_per_N2=0.05)
+    p["thrust_curve"] = dict(p["thrust_curve"], thrust_max_N=60.0, reference_voltage_V=44.4)
+    p["rotor"] = {"diameter_m": 0.76}
+    p["vehicle"] = dict(p["vehicle"], mass_kg=25.0, rotor_count=8, full_voltage_V=50.4, nominal_voltage_V=44.4,
+                        empty_voltage_V=42.0)
+    return make_config(p)[0]
+
+
+# ---- instrumented copy: every arithmetic result is checked against 2^30 ----------------------------
+
+class _Checker(ast.NodeTransformer):
+    def visit_BinOp(self, node):
+        self.generic_visit(node)
+        return ast.copy_location(ast.Call(ast.Name("_chk", ast.Load()), [node], []), node)
+
+    def visit_UnaryOp(self, node):
+        self.generic_visit(node)
+        return ast.copy_location(ast.Call(ast.Name("_chk", ast.Load()), [node], []), node)
+
+    def visit_AugAssign(self, node):
+        self.generic_visit(node)
+        load = ast.Name(node.target.id, ast.Load()) if isinstance(node.target, ast.Name) else \
+            ast.Attribute(node.target.value, node.target.attr, ast.Load())
+        value = ast.Call(ast.Name("_chk", ast.Load()), [ast.BinOp(load, node.op, node.value)], [])
+        return ast.copy_location(ast.Assign([node.target], value), node)
+
+
+def _chk(v):
+    if isinstance(v, int) and not -LIMIT < v < LIMIT:
+        raise OverflowError("intermediate %d reaches 2^30" % v)
+    if not isinstance(v, int):
+        raise TypeError("non-int intermediate %r" % (v,))
+    return v
+
+
+def instrumented_watch_class():
+    with open(WATCH_SRC, "r", encoding="utf-8") as fh:
+        tree = ast.parse(fh.read())
+    for node in ast.walk(tree):
+        if isinstance(node, ast.ClassDef):
+            for fn in node.body:
+                if isinstance(fn, ast.FunctionDef) and fn.name == "update":
+                    _Checker().visit(fn)
+    ast.fix_missing_locations(tree)
+    ns = {"_chk": _chk}
+    exec(compile(tree, "watch_instrumented", "exec"), ns)
+    return ns["Watch"]
+
+
+CHECKED = instrumented_watch_class()
+
+
+def _state_ok(w):
+    for name, value in vars(w).items():
+        if isinstance(value, int):
+            assert -LIMIT < value < LIMIT, name
+
+
+def _extremes(c):
+    dts = (1, 2, c["dt_max_ms"] - 1, c["dt_max_ms"])
+    us = (0, 1, c["spin_permille"], c["command_min_permille"], 500, 999, 1000)
+    mvs = (c["v_min_mV"], c["volt_lo_mV"], 15000 if c["v_max_mV"] > 15000 else c["v_max_mV"], c["v_max_mV"])
+    mas = (c["i_min_mA"], 0, 1, 20000, c["i_max_mA"] - 1, c["i_max_mA"])
+    return dts, us, mvs, mas
+
+
+def test_every_intermediate_below_2_30_on_the_extremes():
+    # Design notes sec. 3: small ints on 32-bit MicroPython ports are below 2^30 in magnitude.
+    # The full grid of extreme inputs is run from several states (fresh, learned, alarmed).
+    for cfg in (demo_config(), big_config()):
+        dts, us, mvs, mas = _extremes(cfg)
+        w = CHECKED(cfg)
+        for phase in range(3):
+            for dt in dts:
+                for u in us:
+                    for mv in mvs:
+                        for ma in mas:
+                            w.update(dt, u, mv, ma)
+                            _state_ok(w)
+            for _ in range(400):  # long steady stretch at full power: learning ends, CUSUM saturates
+                w.update(100, 1000, cfg["v_max_mV"], cfg["i_max_mA"] - phase)
+                _state_ok(w)
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.lists(st.tuples(st.integers(1, 60000), st.integers(0, 1000), st.integers(0, 60000),
+                          st.integers(-300000, 300000)), min_size=1, max_size=60))
+def test_every_intermediate_below_2_30_random_in_range(rows):
+    # The whole sensor range of the issue (0-60 V, 0-300 A, command 0..1000, dt to 60 s).
+    cfg = big_config()
+    w = CHECKED(cfg)
+    for dt, u, mv, ma in rows:
+        f = w.update(dt, u, mv, ma)
+        assert 0 <= f < 32
+        _state_ok(w)
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.lists(st.tuples(st.integers(), st.integers(), st.integers(), st.integers()), min_size=1, max_size=20))
+def test_never_raises_for_any_int(rows):
+    # Any int, including huge and negative ones: flags only, never an exception.
+    w = Watch(demo_config())
+    for row in rows:
+        f = w.update(*row)
+        assert isinstance(f, int) and 0 <= f < 32
+
+
+def _healthy(w, n=150, u=520, mv=15000, ma=19000):
+    f = 0
+    for i in range(n):
+        f = w.update(100, u + (i % 3), mv - (i % 5), ma + 37 * (i % 7))
+    return f
+
+
+def test_garbage_in_gives_sensor_fault():
+    cfg = demo_config()
+    garbage = [
+        (100, 520, 0, 19000),            # zero volts
+        (100, 520, 15000, -5000),        # negative current
+        (100, 520, 15000, 900000),       # absurd current (900 A)
+        (10 ** 9, 520, 15000, 19000),    # huge dt
+        (0, 520, 15000, 19000),          # dt zero
+        (-100, 520, 15000, 19000),       # time backwards
+        (100, 1200, 15000, 19000),       # command above 1000
+        (100, -1, 15000, 19000),         # command below 0
+        (100, 520, 10 ** 12, 10 ** 12),  # absurd both
+    ]
+    for row in garbage:
+        w = Watch(cfg)
+        assert _healthy(w) & 4 == 0
+        assert w.update(*row) & 4, row
+        assert _healthy(w, 1) & 4 == 0   # a good sample clears it
+
+
+def test_stuck_current_reading_is_a_sensor_fault():
+    cfg = demo_config()
+    w = Watch(cfg)
+    _healthy(w)
+    flags = [w.update(100, 520 + (i % 3), 15000, 19000) for i in range(cfg["stuck_samples"] + 5)]
+    assert all(f & 4 == 0 for f in flags[:cfg["stuck_samples"] - 1])
+    assert flags[-1] & 4
+    # on the ground (command below spin) a constant reading is normal
+    w = Watch(cfg)
+    assert all(w.update(100, 0, 16000, 120) & 4 == 0 for _ in range(200))
+
+
+def _float_thrust_total_N(power_W, params, n, rho):
+    """Reference: solve T = k(T) (2 rho A (P/N)^2)^(1/3), k(T) = k0 + k1 T, by fixed-point iteration
+    on the core's float momentum function (momentum.thrust_from_power_N)."""
+    sf = params["static_factor"]
+    area = momentum.disk_area_m2(params["rotor"]["diameter_m"])
+    t = 0.0
+    for _ in range(60):
+        t = momentum.thrust_from_power_N(power_W / n, min(1.0, sf["k0"] + sf["slope_per_N"] * t), rho, area)
+    return n * t
+
+
+def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
+    # Issue 4: the kernel's thrust_mN against the core's float momentum-theory function on the
+    # same inputs within 1 %. Source of the formula: Leishman (2006) ch. 2 (from memory). The
+    # table's linear-interpolation error is (h/P)^2 / 36 of T: below 0.2 % from 1/8 of the
+    # table's range, and the integer rounding of mV, mA and the table is below 0.1 %.
+    params = demo_fit_params()
+    cfg = make_config(params)[0]
+    n, rho = params["vehicle"]["rotor_count"], params["vehicle"]["site_density_kg_m3"]
+    top_W = 64 * (1 << cfg["thrust_shift"]) / 10.0
+    mv = 15000
+    worst = 0.0
+    for frac in [i / 40.0 for i in range(5, 41)]:
+        p_W = frac * top_W * 0.999
+        ma = int(round(p_W / (mv / 1000.0) * 1000.0))
+        w = Watch(cfg)
+        w.update(100, 500, mv, ma)
+        p_meas = (mv // 10) * (ma // 10) / 1e5 * 10.0  # the kernel's own integer power, in W
+        ref_mN = 1000.0 * _float_thrust_total_N(p_meas, params, n, rho)
+        worst = max(worst, abs(w.thrust_mN - ref_mN) / ref_mN)
+    assert worst < 0.01, worst
+
+
+def test_expected_power_matches_float_power_model():
+    # DEVELOPERS.md power model at the thrust-curve thrust, times rotor count, density-corrected.
+    # Tolerance 1 %: Q12 fractions (0.05 %), 1/32 table steps in f (below 0.2 % at hover), 0.1 W units.
+    params = demo_fit_params()
+    cfg = make_config(params)[0]
+    v = params["vehicle"]
+    n, rho = v["rotor_count"], v["site_density_kg_m3"]
+    pm = params["power_model"]
+    for u in (0.35, 0.45, 0.55, 0.65, 0.8):
+        for volts in (14.2, 15.2, 16.4):
+            w = Watch(cfg)
+            w.update(100, int(round(1000 * u)), int(volts * 1000), 20000)
+            t = thrust_curve.thrust_N(u, volts, rho, params["thrust_curve"])
+            ref = n * (pm["idle_power_W"] + pm["induced_W_per_N1_5"] * t ** 1.5
+                       * math.sqrt(pm["reference_density_kg_m3"] / rho) + pm["copper_W_per_N2"] * t * t)
+            assert abs(w.expected_dW / 10.0 - ref) / ref < 0.01, (u, volts, w.expected_dW, ref)
+
+
+def test_hover_command_matches_float_inversion():
+    # thrust_curve.hover_command (the float inversion of t(x)) at the present voltage; tolerance
+    # 3 permille: linear interpolation between voltage knots 0.4 V apart of a smooth curve.
+    params = demo_fit_params()
+    cfg = make_config(params)[0]
+    v = params["vehicle"]
+    weight = v["mass_kg"] * STANDARD_GRAVITY_M_S2 / v["rotor_count"]
+    for volts in (14.0, 14.7, 15.5, 16.3):
+        w = Watch(cfg)
+        w.update(100, 500, int(volts * 1000), 20000)
+        ref, _ = thrust_curve.hover_command(weight, volts, v["site_density_kg_m3"], params["thrust_curve"])
+        assert abs(w.hover_permille - 1000 * ref) <= 3, (volts, w.hover_permille, ref)
+
+
+def test_update_source_has_no_loops_and_no_allocating_nodes():
+    # No data-dependent loops and nothing that builds objects inside update (design notes sec. 3).
+    with open(WATCH_SRC, "r", encoding="utf-8") as fh:
+        tree = ast.parse(fh.read())
+    update = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name == "update"][0]
+    banned = (ast.For, ast.While, ast.Tuple, ast.List, ast.Dict, ast.Set, ast.ListComp, ast.GeneratorExp,
+              ast.Lambda, ast.JoinedStr, ast.Try, ast.Raise)
+    for node in ast.walk(update):
+        assert not isinstance(node, banned), ast.dump(node)[:80]
+        if isinstance(node, ast.Constant):
+            assert isinstance(node.value, (int, str)) and not isinstance(node.value, float)
+        if isinstance(node, ast.BinOp):
+            assert not isinstance(node.op, (ast.Div, ast.Pow)), "true division / power make floats"
+
+
+def test_the_bound_checker_catches_an_overflow():
+    # The instrumented copy must be able to fail: a current limit beyond the 300 A sensor range
+    # (not allowed by check_config) lets mV/10 * mA/10 reach 1.5e9 > 2^30.
+    import pytest
+
+    cfg = dict(demo_config(), i_max_mA=10 ** 7)
+    w = CHECKED(cfg)
+    with pytest.raises(OverflowError):
+        w.update(100, 500, 15000, 10 ** 7)
