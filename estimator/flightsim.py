@@ -191,7 +191,7 @@ def flight_arrays(vehicle=None, fault=None, seed=1, duration_s=300.0, fault_at_s
         meas_a[onset:onset + stuck] = round(meas_a[onset], 3)
         meas_v[onset + stuck + 10] = 0.0
         meas_a[onset + stuck + 20] = 2000.0
-    hover = (phase == 1) & (offset == 0.0)
+    hover = (phase == 1) & (offset == 0.0) & (scale >= 1.0)
     return {"time_s": t, "command": command, "voltage_V": meas_v, "current_A": meas_a,
             "thrust_N": thrust, "hover": hover, "mass_kg": mass, "fault": fault,
             "fault_at_s": fault_at_s if fault in ("power_high", "power_low", "sensor") else (0.0 if fault else None)}
