@@ -38,8 +38,38 @@ class Watch:
     """Power watch state for one vehicle; CONFIG is the dict made by watch_config.make_config."""
 
     def __init__(self, config):
-        for key in config:            # attribute names are the CONFIG keys (shared qstrs)
-            setattr(self, key, config[key])
+        # the constants as one tuple: update() unpacks it into locals (cheaper than attributes)
+        self.consts = (config["dt_max_ms"],
+                       config["v_min_mV"],
+                       config["v_max_mV"],
+                       config["i_min_mA"],
+                       config["i_max_mA"],
+                       config["stuck_samples"],
+                       config["spin_permille"],
+                       config["landed_ms"],
+                       config["rate_fast_permille_s"],
+                       config["settle_ms"],
+                       config["steady_ms"],
+                       config["command_min_permille"],
+                       config["command_span_permille"],
+                       config["quadratic_q12"],
+                       config["volt_lo_mV"],
+                       config["volt_step_mV"],
+                       config["volt_q12"],
+                       config["hover_table_permille"],
+                       config["power_table"],
+                       config["power_shift"],
+                       config["thrust_shift"],
+                       config["thrust_table"],
+                       config["thrust_unit_shift"],
+                       config["power_floor_dW"],
+                       config["cusum_k_permille"],
+                       config["cusum_h_permille"],
+                       config["clip_permille"],
+                       config["learn_ms"],
+                       config["baseline_tol_permille"],
+                       config["mass_samples"],
+                       config["mass_limit_g"])
         self.last_u = 0
         self.last_mA = -1
         self.stuck = 0
@@ -82,30 +112,33 @@ class Watch:
         Returns the flag bits (int). Never raises for int inputs, never allocates.
         """
         u = command_permille
+        (dt_max, v_min, v_max, i_min, i_max, stuck_n, spin, landed, rate_fast, settle, steady, cmd_min,
+                cmd_span, quad, v_lo, vstep, vtab, htab, ptab, pshift, sh, ttab, tushift, pfloor, k, h,
+                clip, learn, tol, mass_n, mass_lim) = self.consts
         # range checks: comparisons only, so any int is safe here
-        if (dt_ms <= 0 or dt_ms > self.dt_max_ms or u < 0 or u > 1000
-                or bus_mV < self.v_min_mV or bus_mV > self.v_max_mV
-                or bus_mA < self.i_min_mA or bus_mA > self.i_max_mA):
+        if (dt_ms <= 0 or dt_ms > dt_max or u < 0 or u > 1000
+                or bus_mV < v_min or bus_mV > v_max
+                or bus_mA < i_min or bus_mA > i_max):
             self.flags = (self.flags & 27) | 4
             return self.flags
         # now 0 < dt <= dt_max (<= 60000), 0 <= u <= 1000, |mV| <= 60000, |mA| <= 300000
         st = self.stuck
-        if bus_mA == self.last_mA and u >= self.spin_permille:
-            if st < self.stuck_samples:
+        if bus_mA == self.last_mA and u >= spin:
+            if st < stuck_n:
                 st += 1                                   # <= stuck_n (<= 1000)
         else:
             st = 0
         self.stuck = st
         self.last_mA = bus_mA
-        if st >= self.stuck_samples:
+        if st >= stuck_n:
             self.flags = (self.flags & 27) | 4
             return self.flags
 
         # flight phase: a new flight starts after landed_ms below the spin command
-        if u < self.spin_permille:
+        if u < spin:
             q = self.quiet + dt_ms                        # <= landed + dt_max <= 120000
-            if q >= self.landed_ms:
-                q = self.landed_ms
+            if q >= landed:
+                q = landed
                 if self.learning == 0 or self.l_n > 0:
                     self.reset()
             self.quiet = q
@@ -118,25 +151,24 @@ class Watch:
             du = -du
         self.last_u = u
         calm = self.calm
-        if du * 1000 > self.rate_fast_permille_s * dt_ms:            # <= 1e6 ; rate_fast*dt <= 1e4*6e4 = 6e8
+        if du * 1000 > rate_fast * dt_ms:            # <= 1e6 ; rate_fast*dt <= 1e4*6e4 = 6e8
             calm = 0
-        elif calm < self.steady_ms:
+        elif calm < steady:
             calm += dt_ms                                 # <= steady + dt_max <= 1.2e5
         self.calm = calm
         w = 16
-        if calm < self.settle_ms:
-            w = calm * 16 // self.settle_ms                  # <= 16 * 6e4
+        if calm < settle:
+            w = calm * 16 // settle                  # <= 16 * 6e4
 
         # expected power: thrust fraction t(x) in Q12, voltage factor by table, power by table
-        x = (u - self.command_min_permille) * 4096 // self.command_span_permille    # |.| <= 1000 * 4096 = 4.1e6
+        x = (u - cmd_min) * 4096 // cmd_span    # |.| <= 1000 * 4096 = 4.1e6
         if x < 0:
             x = 0
         elif x > 4096:
             x = 4096
-        a = self.quadratic_q12                                     # 0..4096
+        a = quad                                     # 0..4096
         t = ((4096 - a) * x + a * (x * x >> 12)) >> 12    # each product <= 2^24 ; t <= 4096
-        dv = bus_mV - self.volt_lo_mV                           # |.| <= 1.2e5
-        vstep = self.volt_step_mV                               # 1..3750
+        dv = bus_mV - v_lo                           # |.| <= 1.2e5
         if dv < 0:
             dv = 0
         elif dv >= vstep * 16:
@@ -145,19 +177,19 @@ class Watch:
         fr = dv - i * vstep                               # 0..vstep-1
         # tables are bytes of 16-bit little-endian unsigned ints (2 bytes per knot)
         j = i + i
-        tab = self.volt_q12                               # Q12 values <= 8191
+        tab = vtab  # Q12 values <= 8191
         a = tab[j] | tab[j + 1] << 8
         vs = a + ((tab[j + 2] | tab[j + 3] << 8) - a) * fr // vstep  # <= 8191 * 3750 = 3.1e7
-        tab = self.hover_table_permille                   # permille, 0..1000
+        tab = htab  # permille, 0..1000
         a = tab[j] | tab[j + 1] << 8
         self.hover_permille = a + ((tab[j + 2] | tab[j + 3] << 8) - a) * fr // vstep  # <= 3.75e6
         f = vs * t >> 12                                  # <= 8191 * 4096 = 3.4e7 ; f <= 8191
         if f > 6143:
             f = 6143                                      # table covers f in 0..1.5 (Q12)
         j = f >> 6 & 254                                  # 2 x (f >> 7): 0..94
-        tab = self.power_table                            # units of 2^power_shift dW, < 2^16
+        tab = ptab  # units of 2^power_shift dW, < 2^16
         a = tab[j] | tab[j + 1] << 8
-        pe = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * (f & 127) >> 7)) << self.power_shift  # <= 2^16 * 127 ; pe < 2^18
+        pe = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * (f & 127) >> 7)) << pshift  # <= 2^16 * 127 ; pe < 2^18
         self.expected_dW = pe
 
         # measured power [dW] = mV * mA / 1e5, in two steps to stay below 2^30
@@ -167,7 +199,6 @@ class Watch:
         self.power_dW = pm                                # <= 180000
 
         # thrust from measured power by table over P (power-of-two step, checked diffs)
-        sh = self.thrust_shift
         i = pm >> sh
         if i > 63:
             i = 63
@@ -175,13 +206,13 @@ class Watch:
         else:
             fr = pm - (i << sh)                           # < 2^sh
         j = i + i
-        tab = self.thrust_table                           # units of 2^thrust_unit_shift mN, < 2^16
+        tab = ttab  # units of 2^thrust_unit_shift mN, < 2^16
         a = tab[j] | tab[j + 1] << 8
-        th = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * fr >> sh)) << self.thrust_unit_shift  # 2^16 * 2^12 ; th <= 1e6
+        th = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * fr >> sh)) << tushift  # 2^16 * 2^12 ; th <= 1e6
         self.thrust_mN = th                               # <= 1e6
 
         flags = self.flags & 24                           # keep baseline_off, mass_high
-        if pe < self.power_floor_dW or u < self.spin_permille:
+        if pe < pfloor or u < spin:
             self.residual_permille = 0
             self.flags = flags
             return flags
@@ -198,9 +229,9 @@ class Watch:
                 self.l_sum += r                           # <= 1000 * 65535 = 6.6e7
                 self.l_n += 1                             # <= 65535
                 self.l_ms += dt_ms                        # <= learn_ms + dt_max
-            if self.l_n > 0 and (self.l_ms >= self.learn_ms or self.l_n >= 65535):
+            if self.l_n > 0 and (self.l_ms >= learn or self.l_n >= 65535):
                 m = self.l_sum // self.l_n                # l_n >= 1 here (l_ms > 0 needs a sample)
-                tol = self.baseline_tol_permille
+                tol = tol
                 if m > tol:
                     m = tol
                     flags |= 8
@@ -213,12 +244,10 @@ class Watch:
             return flags
 
         # two-sided CUSUM on r clipped to +-(h + k - 1), increments weighted by trust w/16
-        k = self.cusum_k_permille
-        h = self.cusum_h_permille
-        if r > self.clip_permille:
-            r = self.clip_permille
-        elif r < -self.clip_permille:
-            r = -self.clip_permille
+        if r > clip:
+            r = clip
+        elif r < -clip:
+            r = -clip
         s = self.s_hi + (w * (r - k) >> 4)                # |w (r - k)| <= 16 * 2000
         if s < 0:
             s = 0
@@ -237,18 +266,18 @@ class Watch:
             flags |= 2
 
         # implied mass in steady hover: filtered thrust / g (not while power is abnormal)
-        if calm >= self.steady_ms and flags & 3 == 0:
+        if calm >= steady and flags & 3 == 0:
             m = self.m_filt
             if self.m_n == 0:
                 m = th
             else:
                 m += (th - m) >> 4                        # |.| <= 1e6
             self.m_filt = m
-            if self.m_n < self.mass_samples:
+            if self.m_n < mass_n:
                 self.m_n += 1
             else:
                 self.mass_g = m * 1000 // 9807            # <= 1e9 ; 9807 = 1000 g_n [m/s^2]
-                if self.mass_g > self.mass_limit_g:
+                if self.mass_g > mass_lim:
                     flags |= 16
         self.flags = flags
         return flags

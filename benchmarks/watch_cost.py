@@ -1,0 +1,55 @@
+"""Goal: Watch.update in MicroPython costs at most 20 times a bare call of a four-int-argument
+function. Both are timed in the same MicroPython run (WebAssembly port under Node.js), each
+loop's own overhead (an empty loop) subtracted; best of 5 rounds."""
+
+import os
+
+from _watch_common import bundle_dir
+from mpy_harness import run_micropython
+
+SCRIPT = r'''
+import time
+from liftwatch import Watch
+from liftwatch_config import CONFIG
+w = Watch(CONFIG)
+
+def bare(a, b, c, d):
+    return a
+
+def rounds(n):
+    up = w.update
+    t0 = time.ticks_us()
+    for i in range(n):
+        pass
+    t1 = time.ticks_us()
+    for i in range(n):
+        bare(100, 520, 15000, 19000)
+    t2 = time.ticks_us()
+    for i in range(n):
+        up(100, 520 + (i & 7), 15000, 19000 + (i & 15))
+    t3 = time.ticks_us()
+    return time.ticks_diff(t1, t0), time.ticks_diff(t2, t1), time.ticks_diff(t3, t2)
+
+best = None
+for r in range(5):
+    e, b, u = rounds(50000)
+    ratio = (u - e) / (b - e)
+    if best is None or ratio < best[0]:
+        best = (ratio, e, b, u)
+print("RESULT %.2f %d %d %d" % best)
+'''
+
+
+def main():
+    d = bundle_dir()
+    mods = [os.path.join(d, "mpy", m + ".mpy") for m in ("liftwatch", "liftwatch_config")]
+    out = run_micropython(SCRIPT, mods)
+    ratio, empty, bare, upd = out.split("RESULT", 1)[1].split()
+    n = 50000
+    print("MicroPython %s loop of %d: empty %.2f us, bare 4-arg call %.2f us, update %.2f us per iteration"
+          % ("1.27 (wasm)", n, int(empty) / n, int(bare) / n, int(upd) / n))
+    print("update / bare call = %s (goal <= 20): %s" % (ratio, "met" if float(ratio) <= 20 else "NOT met"))
+
+
+if __name__ == "__main__":
+    main()
