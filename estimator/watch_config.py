@@ -39,7 +39,7 @@ DEFAULTS = {
     "spin_command": None,           # command above which the rotors make thrust [-] (default u_min + 0.05)
     "current_min_A": -0.2,          # below this the current sensor is faulty [A]
     "current_max_A": None,          # above this [A] (default 1.5 x motors' max, at most 300 A)
-    "mass_samples": 20,             # steady samples before the mass estimate is reported
+    "mass_samples": 20,             # steady mass-filter updates (every 4th sample) before mass_g is reported
 }
 
 SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
@@ -256,7 +256,7 @@ def make_config(params, vehicle=None, options=None):
     put("landed_ms", max(1, int(round(1000.0 * o["landed_s"]))), "landed after %.1f s below spin" % o["landed_s"])
     put("dt_max_ms", int(round(1000.0 * o["dt_max_s"])), "sample gap limit %.1f s" % o["dt_max_s"])
     put("stuck_samples", int(o["stuck_samples"]), "identical current readings in a row -> sensor_fault")
-    put("mass_samples", int(o["mass_samples"]), "steady samples before mass_g is reported")
+    put("mass_samples", int(o["mass_samples"]), "steady mass-filter updates (every 4th sample) before mass_g is reported")
     put("mass_limit_g", int(round(1000.0 * mass_kg * (1.0 + o["mass_share"]))),
         "planned %.3f kg + %.0f %%" % (mass_kg, 100.0 * o["mass_share"]))
     check_config(cfg)

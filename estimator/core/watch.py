@@ -91,6 +91,8 @@ class Watch:
         self.s_lo = 0
         self.m_filt = 0
         self.m_n = 0
+        self.tick = 0
+        self.p_acc = 0
 
     def reset(self):
         """Start a new flight: forget the learned scale, the CUSUM sums and the mass estimate."""
@@ -180,9 +182,8 @@ class Watch:
         tab = vtab  # Q12 values <= 8191
         a = tab[j] | tab[j + 1] << 8
         vs = a + ((tab[j + 2] | tab[j + 3] << 8) - a) * fr // vstep  # <= 8191 * 3750 = 3.1e7
-        tab = htab  # permille, 0..1000
-        a = tab[j] | tab[j + 1] << 8
-        self.hover_permille = a + ((tab[j + 2] | tab[j + 3] << 8) - a) * fr // vstep  # <= 3.75e6
+        vj = j
+        vfr = fr
         f = vs * t >> 12                                  # <= 8191 * 4096 = 3.4e7 ; f <= 8191
         if f > 6143:
             f = 6143                                      # table covers f in 0..1.5 (Q12)
@@ -198,18 +199,30 @@ class Watch:
             pm = 0
         self.power_dW = pm                                # <= 180000
 
-        # thrust from measured power by table over P (power-of-two step, checked diffs)
-        i = pm >> sh
-        if i > 63:
-            i = 63
-            fr = (1 << sh) - 1
-        else:
-            fr = pm - (i << sh)                           # < 2^sh
-        j = i + i
-        tab = ttab  # units of 2^thrust_unit_shift mN, < 2^16
-        a = tab[j] | tab[j + 1] << 8
-        th = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * fr >> sh)) << tushift  # 2^16 * 2^12 ; th <= 1e6
-        self.thrust_mN = th                               # <= 1e6
+        # slow outputs every 4th sample: hover command by table over V, thrust by table over the
+        # mean measured power of the last 4 samples
+        tick = self.tick + 1
+        acc = self.p_acc + pm                             # <= 4 * 180000
+        if tick >= 4:
+            tick = 0
+            pm4 = acc >> 2
+            acc = 0
+        self.tick = tick
+        self.p_acc = acc
+        if tick == 0:
+            tab = htab  # permille, 0..1000
+            a = tab[vj] | tab[vj + 1] << 8
+            self.hover_permille = a + ((tab[vj + 2] | tab[vj + 3] << 8) - a) * vfr // vstep  # <= 3.75e6
+            i = pm4 >> sh
+            if i > 63:
+                i = 63
+                fr = (1 << sh) - 1
+            else:
+                fr = pm4 - (i << sh)                      # < 2^sh
+            j = i + i
+            tab = ttab  # units of 2^thrust_unit_shift mN, < 2^16
+            a = tab[j] | tab[j + 1] << 8
+            self.thrust_mN = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * fr >> sh)) << tushift  # 2^28 ; <= 1e6
 
         flags = self.flags & 24                           # keep baseline_off, mass_high
         if pe < pfloor or u < spin:
@@ -231,7 +244,6 @@ class Watch:
                 self.l_ms += dt_ms                        # <= learn_ms + dt_max
             if self.l_n > 0 and (self.l_ms >= learn or self.l_n >= 65535):
                 m = self.l_sum // self.l_n                # l_n >= 1 here (l_ms > 0 needs a sample)
-                tol = tol
                 if m > tol:
                     m = tol
                     flags |= 8
@@ -265,13 +277,15 @@ class Watch:
         if s >= h:
             flags |= 2
 
-        # implied mass in steady hover: filtered thrust / g (not while power is abnormal)
-        if calm >= steady and flags & 3 == 0:
+        # implied mass in steady hover: filtered thrust / g (not while power is abnormal),
+        # every 4th sample (EMA 1/4 per update: about 1.6 s at 10 Hz)
+        if tick == 0 and calm >= steady and flags & 3 == 0:
+            th = self.thrust_mN
             m = self.m_filt
             if self.m_n == 0:
                 m = th
             else:
-                m += (th - m) >> 4                        # |.| <= 1e6
+                m += (th - m) >> 2                        # |.| <= 1e6
             self.m_filt = m
             if self.m_n < mass_n:
                 self.m_n += 1
