@@ -10,9 +10,8 @@ the kernel, which flags them (sensor_fault) - a log with a glitch is still a log
 
 import sys
 
-from estimator.core.watch import Watch
 from estimator.errors import InputError
-from estimator.watch_config import make_config
+from estimator.watch_config import make_config, new_watch
 
 KINDS = ((1, "power_high"), (2, "power_low"), (4, "sensor_fault"), (8, "baseline_off"), (16, "mass_high"))
 ALARM_BITS = 1 | 2 | 8 | 16
@@ -97,7 +96,7 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
     n = len(t)
     gaps = sorted(t[i + 1] - t[i] for i in range(0, min(n - 1, 2000)))
     first_ms = int(round(1000.0 * gaps[len(gaps) // 2])) if gaps else 100
-    w = Watch(config)
+    w = new_watch(config)
     update = w.update
     events = []
     prev = 0

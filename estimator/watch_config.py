@@ -42,6 +42,44 @@ DEFAULTS = {
     "mass_samples": 20,             # steady mass-filter updates (every 4th sample) before mass_g is reported
 }
 
+# Order of the CONFIG tuple the kernel takes (estimator/core/watch.py unpacks it in this order);
+# "format" is the kernel's CONFIG format number.
+CONFIG_FORMAT = 1
+CONFIG_KEYS = (
+    "format",
+    "dt_max_ms",
+    "v_min_mV",
+    "v_max_mV",
+    "i_min_mA",
+    "i_max_mA",
+    "stuck_samples",
+    "spin_permille",
+    "landed_ms",
+    "rate_fast_permille_s",
+    "settle_ms",
+    "steady_ms",
+    "command_min_permille",
+    "command_span_permille",
+    "quadratic_q12",
+    "volt_lo_mV",
+    "volt_step_mV",
+    "volt_q12",
+    "hover_table_permille",
+    "power_table",
+    "power_shift",
+    "thrust_shift",
+    "thrust_table",
+    "thrust_unit_shift",
+    "power_floor_dW",
+    "cusum_k_permille",
+    "cusum_h_permille",
+    "clip_permille",
+    "learn_ms",
+    "baseline_tol_permille",
+    "mass_samples",
+    "mass_limit_g",
+)
+
 SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
 
 
@@ -164,6 +202,8 @@ def make_config(params, vehicle=None, options=None):
         cfg[key] = value
         notes[key] = note
 
+    put("format", CONFIG_FORMAT, "CONFIG format of this kernel")
+
     sigma = o["noise_rel_std"] if o["noise_rel_std"] is not None else pm["residual_rel_std"]
     if not 0.0 < sigma < 0.5:
         raise InputError("parameter set: $.power_model.residual_rel_std: %g is not a usable noise "
@@ -263,6 +303,17 @@ def make_config(params, vehicle=None, options=None):
     return cfg, notes
 
 
+def as_tuple(cfg):
+    """The CONFIG dict as the tuple Watch takes (CONFIG_KEYS order)."""
+    return tuple(cfg[k] for k in CONFIG_KEYS)
+
+
+def new_watch(cfg):
+    """A Watch (estimator/core/watch.py) made from a CONFIG dict."""
+    from estimator.core.watch import Watch
+    return Watch(as_tuple(cfg))
+
+
 def check_config(cfg):
     """Refuse a CONFIG whose values would let a kernel intermediate reach 2^30 (InputError).
 
@@ -271,6 +322,7 @@ def check_config(cfg):
     def need(ok, what):
         if not ok:
             raise InputError("watch CONFIG: %s" % what)
+    need(set(cfg) == set(CONFIG_KEYS) and cfg["format"] == CONFIG_FORMAT, "keys differ from CONFIG_KEYS")
     need(0 < cfg["dt_max_ms"] <= 60000, "dt_max_ms must be in 1..60000")
     need(0 <= cfg["volt_step_mV"] * 16 <= 60000 and cfg["volt_step_mV"] >= 1, "voltage table outside 0..60 V")
     need(abs(cfg["v_min_mV"]) <= 60000 and abs(cfg["v_max_mV"]) <= 60000, "voltage limits outside 0..60 V")

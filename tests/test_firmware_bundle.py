@@ -11,6 +11,7 @@ from estimator import firmware
 from estimator.cli import main
 from estimator.errors import InputError
 from estimator.firmware import write_bundle
+from estimator.watch_config import CONFIG_KEYS
 from watch_helpers import demo_fit_params
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
@@ -38,9 +39,11 @@ def test_config_is_integers_only_with_comments(tmp_path):
     text = (tmp_path / "b" / "liftwatch_config.py").read_text()
     tree = ast.parse(text)
     config = ast.literal_eval(tree.body[0].value)
-    for key, value in config.items():
+    assert isinstance(config, tuple) and len(config) == len(CONFIG_KEYS)
+    for key, value in zip(CONFIG_KEYS, config):
         # ints, or bytes tables of 16-bit ints; never a float
         assert isinstance(value, (int, bytes)) and not isinstance(value, bool), key
+        assert "] %s:" % key in text   # every value is named in its comment
     assert "residual_rel_std" in text and "Siegmund" in text   # the values it was made from
     assert "Props off" in text
 

@@ -97,12 +97,12 @@ def bundle(tmp_path_factory):
 
 def _cpython_stream(n, seed):
     from estimator.core.watch import Watch
-    from estimator.watch_config import make_config
+    from estimator.watch_config import as_tuple, make_config
 
     ns = {}
     exec(STREAM, ns)
     stats = [0] * 8
-    ns["run_stream"](Watch(make_config(demo_fit_params())[0]), n, seed, stats)
+    ns["run_stream"](Watch(as_tuple(make_config(demo_fit_params())[0])), n, seed, stats)
     return stats
 
 

@@ -10,7 +10,7 @@ from hypothesis import given, settings, strategies as st
 from estimator.core import momentum, thrust_curve
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.watch import Watch
-from estimator.watch_config import make_config
+from estimator.watch_config import as_tuple, make_config
 from watch_helpers import demo_fit_params, motor_model_params
 
 LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports (design notes sec. 3)
@@ -95,7 +95,7 @@ def test_every_intermediate_below_2_30_on_the_extremes():
     # The full grid of extreme inputs is run from several states (fresh, learned, alarmed).
     for cfg in (demo_config(), big_config()):
         dts, us, mvs, mas = _extremes(cfg)
-        w = CHECKED(cfg)
+        w = CHECKED(as_tuple(cfg))
         for phase in range(3):
             for dt in dts:
                 for u in us:
@@ -114,7 +114,7 @@ def test_every_intermediate_below_2_30_on_the_extremes():
 def test_every_intermediate_below_2_30_random_in_range(rows):
     # The whole sensor range of the issue (0-60 V, 0-300 A, command 0..1000, dt to 60 s).
     cfg = big_config()
-    w = CHECKED(cfg)
+    w = CHECKED(as_tuple(cfg))
     for dt, u, mv, ma in rows:
         f = w.update(dt, u, mv, ma)
         assert 0 <= f < 32
@@ -125,7 +125,7 @@ def test_every_intermediate_below_2_30_random_in_range(rows):
 @given(st.lists(st.tuples(st.integers(), st.integers(), st.integers(), st.integers()), min_size=1, max_size=20))
 def test_never_raises_for_any_int(rows):
     # Any int, including huge and negative ones: flags only, never an exception.
-    w = Watch(demo_config())
+    w = Watch(as_tuple(demo_config()))
     for row in rows:
         f = w.update(*row)
         assert isinstance(f, int) and 0 <= f < 32
@@ -152,7 +152,7 @@ def test_garbage_in_gives_sensor_fault():
         (100, 520, 10 ** 12, 10 ** 12),  # absurd both
     ]
     for row in garbage:
-        w = Watch(cfg)
+        w = Watch(as_tuple(cfg))
         assert _healthy(w) & 4 == 0
         assert w.update(*row) & 4, row
         assert _healthy(w, 1) & 4 == 0   # a good sample clears it
@@ -160,13 +160,13 @@ def test_garbage_in_gives_sensor_fault():
 
 def test_stuck_current_reading_is_a_sensor_fault():
     cfg = demo_config()
-    w = Watch(cfg)
+    w = Watch(as_tuple(cfg))
     _healthy(w)
     flags = [w.update(100, 520 + (i % 3), 15000, 19000) for i in range(cfg["stuck_samples"] + 5)]
     assert all(f & 4 == 0 for f in flags[:cfg["stuck_samples"] - 1])
     assert flags[-1] & 4
     # on the ground (command below spin) a constant reading is normal
-    w = Watch(cfg)
+    w = Watch(as_tuple(cfg))
     assert all(w.update(100, 0, 16000, 120) & 4 == 0 for _ in range(200))
 
 
@@ -195,7 +195,7 @@ def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
     for frac in [i / 40.0 for i in range(5, 41)]:
         p_W = frac * top_W * 0.999
         ma = int(round(p_W / (mv / 1000.0) * 1000.0))
-        w = Watch(cfg)
+        w = Watch(as_tuple(cfg))
         for _ in range(4):   # slow outputs are refreshed every 4th sample
             w.update(100, 500, mv, ma)
         p_meas = (mv // 10) * (ma // 10) / 1e5 * 10.0  # the kernel's own integer power, in W
@@ -214,7 +214,7 @@ def test_expected_power_matches_float_power_model():
     pm = params["power_model"]
     for u in (0.35, 0.45, 0.55, 0.65, 0.8):
         for volts in (14.2, 15.2, 16.4):
-            w = Watch(cfg)
+            w = Watch(as_tuple(cfg))
             w.update(100, int(round(1000 * u)), int(volts * 1000), 20000)
             t = thrust_curve.thrust_N(u, volts, rho, params["thrust_curve"])
             ref = n * (pm["idle_power_W"] + pm["induced_W_per_N1_5"] * t ** 1.5
@@ -230,7 +230,7 @@ def test_hover_command_matches_float_inversion():
     v = params["vehicle"]
     weight = v["mass_kg"] * STANDARD_GRAVITY_M_S2 / v["rotor_count"]
     for volts in (14.0, 14.7, 15.5, 16.3):
-        w = Watch(cfg)
+        w = Watch(as_tuple(cfg))
         for _ in range(4):   # slow outputs are refreshed every 4th sample
             w.update(100, 500, int(volts * 1000), 20000)
         ref, _ = thrust_curve.hover_command(weight, volts, v["site_density_kg_m3"], params["thrust_curve"])
@@ -260,6 +260,6 @@ def test_the_bound_checker_catches_an_overflow():
     import pytest
 
     cfg = dict(demo_config(), i_max_mA=10 ** 7)
-    w = CHECKED(cfg)
+    w = CHECKED(as_tuple(cfg))
     with pytest.raises(OverflowError):
         w.update(100, 500, 15000, 10 ** 7)

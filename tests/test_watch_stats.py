@@ -16,7 +16,7 @@ from scipy.stats import norm
 
 from estimator.core.watch import Watch
 from estimator.flightsim import flight_arrays
-from estimator.watch_config import make_config, siegmund_arl, siegmund_arl_two_sided, threshold_for_arl
+from estimator.watch_config import as_tuple, make_config, siegmund_arl, siegmund_arl_two_sided, threshold_for_arl
 from watch_helpers import demo_fit_params, run_flight
 
 
@@ -62,7 +62,7 @@ def test_threshold_solver_inverts_siegmund():
 
 def _kernel_run_length(cfg, sigma_pm, rng, cap=20000):
     """Samples until the kernel's first power alarm when P_meas = P_exp (1 + sigma z), z ~ N(0, 1)."""
-    w = Watch(cfg)
+    w = Watch(as_tuple(cfg))
     mv, u = 15000, 520
     w.update(100, u, mv, 20000)
     pe = w.expected_dW
@@ -133,7 +133,7 @@ def test_implied_mass_in_steady_hover_and_mass_alarm():
     for fault in (None, "heavy"):
         for seed in range(4):
             fl = flight_arrays(fault=fault, seed=3000 + seed, current_noise=(0.05, _sigma()))
-            w = Watch(cfg)
+            w = Watch(as_tuple(cfg))
             from watch_helpers import flight_ints
             u, mv, ma = flight_ints(fl)
             hover = fl["hover"]

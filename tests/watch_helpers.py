@@ -99,9 +99,9 @@ def flight_ints(flight):
 
 def run_flight(config, flight, dt_ms=100):
     """Run the kernel over a simulated flight; returns (watch, list of (t_s, new_bits), mass samples)."""
-    from estimator.core.watch import Watch
+    from estimator.watch_config import new_watch
 
-    w = Watch(config)
+    w = new_watch(config)
     u, mv, ma = flight_ints(flight)
     prev = 0
     events = []

@@ -10,11 +10,11 @@ from the measured power [mN], ``hover_permille`` hover command expected at this 
 Models (design notes sec. 3):
 - expected power: the parameter set's power model P(T) = idle + c_i T^1.5 sqrt(rho_ref/rho)
   + c_cu T^2 per rotor, times the rotor count, at the thrust T(u, V, rho) of the thrust
-  curve; CONFIG carries it as a table over f = (V/V_ref)^n t(x) (``power_dW``), the
+  curve; CONFIG carries it as a table over f = (V/V_ref)^n t(x) (``power_table``), the
   voltage factor as a table over the bus voltage (``volt_q12``);
 - thrust from measured power: momentum theory T = k(T) (2 rho A P^2)^(1/3) per rotor with
   the calibrated static factor k(T) = k0 + k1 T and the site density, solved in closed form
-  and tabulated over the measured power (``thrust_mN``); the roots are taken by table;
+  and tabulated over the measured power (``thrust_table``); the roots are taken by table;
 - detector: two-sided CUSUM on r (Page 1954), reference k and threshold h from Siegmund's
   average-run-length approximation (estimator/watch_config.py), increments down-weighted
   while the command changes fast; a learning window at each flight start learns a power
@@ -27,72 +27,35 @@ update() has no data-dependent loops, builds no tuples/lists/floats and never ra
 int inputs. This file is copied verbatim into the board bundle as ``liftwatch.py``.
 """
 
-FLAG_POWER_HIGH = 1
-FLAG_POWER_LOW = 2
-FLAG_SENSOR_FAULT = 4
-FLAG_BASELINE_OFF = 8
-FLAG_MASS_HIGH = 16
+# Flag bits (plain numbers, no module constants: each global costs board heap):
+# 1 power_high, 2 power_low, 4 sensor_fault, 8 baseline_off, 16 mass_high.
 
 
 class Watch:
-    """Power watch state for one vehicle; CONFIG is the dict made by watch_config.make_config."""
+    """Power watch state for one vehicle; CONFIG is the tuple written by liftcal firmware
+    (on the desktop: estimator.watch_config.as_tuple(make_config(...)[0]))."""
 
     def __init__(self, config):
-        # the constants as one tuple: update() unpacks it into locals (cheaper than attributes)
-        self.consts = (config["dt_max_ms"],
-                       config["v_min_mV"],
-                       config["v_max_mV"],
-                       config["i_min_mA"],
-                       config["i_max_mA"],
-                       config["stuck_samples"],
-                       config["spin_permille"],
-                       config["landed_ms"],
-                       config["rate_fast_permille_s"],
-                       config["settle_ms"],
-                       config["steady_ms"],
-                       config["command_min_permille"],
-                       config["command_span_permille"],
-                       config["quadratic_q12"],
-                       config["volt_lo_mV"],
-                       config["volt_step_mV"],
-                       config["volt_q12"],
-                       config["hover_table_permille"],
-                       config["power_table"],
-                       config["power_shift"],
-                       config["thrust_shift"],
-                       config["thrust_table"],
-                       config["thrust_unit_shift"],
-                       config["power_floor_dW"],
-                       config["cusum_k_permille"],
-                       config["cusum_h_permille"],
-                       config["clip_permille"],
-                       config["learn_ms"],
-                       config["baseline_tol_permille"],
-                       config["mass_samples"],
-                       config["mass_limit_g"])
+        """config: the CONFIG tuple of liftwatch_config (estimator.watch_config.CONFIG_KEYS order).
+
+        Raises ValueError when CONFIG was made for another kernel format (here, not in update).
+        """
+        if len(config) != 32 or config[0] != 1:
+            raise ValueError("CONFIG is not for this kernel: regenerate it")
+        self.consts = config   # update() unpacks it into locals (cheaper than attributes)
         self.last_u = 0
         self.last_mA = -1
         self.stuck = 0
-        self.flags = 0
         self.residual_permille = 0
         self.power_dW = 0
         self.expected_dW = 0
         self.thrust_mN = 0
         self.hover_permille = 0
-        self.mass_g = 0
         self.calm = 0
         self.quiet = 0
-        self.learning = 1
-        self.l_sum = 0
-        self.l_n = 0
-        self.l_ms = 0
-        self.scale = 1000
-        self.s_hi = 0
-        self.s_lo = 0
-        self.m_filt = 0
-        self.m_n = 0
         self.tick = 0
         self.p_acc = 0
+        self.reset()
 
     def reset(self):
         """Start a new flight: forget the learned scale, the CUSUM sums and the mass estimate."""
@@ -114,7 +77,7 @@ class Watch:
         Returns the flag bits (int). Never raises for int inputs, never allocates.
         """
         u = command_permille
-        (dt_max, v_min, v_max, i_min, i_max, stuck_n, spin, landed, rate_fast, settle, steady, cmd_min,
+        (fmt, dt_max, v_min, v_max, i_min, i_max, stuck_n, spin, landed, rate_fast, settle, steady, cmd_min,
                 cmd_span, quad, v_lo, vstep, vtab, htab, ptab, pshift, sh, ttab, tushift, pfloor, k, h,
                 clip, learn, tol, mass_n, mass_lim) = self.consts
         # range checks: comparisons only, so any int is safe here
