@@ -44,3 +44,11 @@ def test_mypy_against_micropython_stubs(tmp_path):
          os.path.join(ROOT, "estimator", "core"), os.path.join(ROOT, "firmware_port")],
         capture_output=True, text=True, env=env, cwd=str(tmp_path))
     assert proc.returncode == 0, proc.stdout + proc.stderr
+    # negative control: the same set-up reports a type error (so the check above can fail)
+    bad = tmp_path / "bad_board.py"
+    bad.write_text("import math\nimport micropython\nx: int = math.sqrt(2.0)\n")
+    proc = subprocess.run(
+        [sys.executable, "-m", "mypy", "--config-file", str(ini), "--custom-typeshed-dir", site,
+         "--no-site-packages", "--cache-dir", str(tmp_path / "cache"), str(bad)],
+        capture_output=True, text=True, env=env, cwd=str(tmp_path))
+    assert proc.returncode == 1 and "bad_board.py:3" in proc.stdout, proc.stdout + proc.stderr
