@@ -24,7 +24,7 @@ LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports; every kernel val
 
 DEFAULTS = {
     "sample_ms": 100,               # nominal sampling period of the board loop [ms]
-    "false_alarms_per_100h": 0.1,   # target in-control false-alarm rate [1 / 100 flight hours]
+    "false_alarms_per_100h": 0.01,  # target in-control false-alarm rate [1 / 100 flight hours]
     "design_shift": 0.10,           # relative power shift the CUSUM is tuned for [-]
     "noise_rel_std": None,          # override of power_model.residual_rel_std [-]
     "learn_s": 10.0,                # learning window at each flight start [s]
@@ -39,6 +39,7 @@ DEFAULTS = {
     "spin_command": None,           # command above which the rotors make thrust [-] (default u_min + 0.05)
     "current_min_A": -0.2,          # below this the current sensor is faulty [A]
     "current_max_A": None,          # above this [A] (default 1.5 x motors' max, at most 300 A)
+    "drift_tol": 0.03,              # bound of the slow in-flight baseline tracking [-]
     "mass_samples": 20,             # steady mass-filter updates (every 4th sample) before mass_g is reported
 }
 
@@ -78,6 +79,7 @@ CONFIG_KEYS = (
     "baseline_tol_permille",
     "mass_samples",
     "mass_limit_g",
+    "drift_tol_permille",
 )
 
 SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
@@ -299,6 +301,8 @@ def make_config(params, vehicle=None, options=None):
     put("mass_samples", int(o["mass_samples"]), "steady mass-filter updates (every 4th sample) before mass_g is reported")
     put("mass_limit_g", int(round(1000.0 * mass_kg * (1.0 + o["mass_share"]))),
         "planned %.3f kg + %.0f %%" % (mass_kg, 100.0 * o["mass_share"]))
+    put("drift_tol_permille", int(round(1000.0 * o["drift_tol"])),
+        "slow baseline tracking bounded to +-%.3f (EMA over 512 trusted samples)" % o["drift_tol"])
     check_config(cfg)
     return cfg, notes
 
@@ -344,4 +348,5 @@ def check_config(cfg):
     need(0 <= cfg["baseline_tol_permille"] <= 300, "baseline tolerance")
     need(1 <= cfg["cusum_h_permille"] <= 1000 and 0 <= cfg["cusum_k_permille"] <= 1000
          and cfg["clip_permille"] <= 1000, "CUSUM values")
+    need(0 <= cfg["drift_tol_permille"] <= 100, "drift tolerance")
     need(1 <= cfg["stuck_samples"] <= 1000 and 1 <= cfg["mass_samples"] <= 1000, "sample counts")

@@ -99,7 +99,7 @@ def _sigma():
 
 def test_no_false_alarms_on_clean_flights():
     # 60 clean 5-minute flights (5 flight hours) at the demo bench fit's noise (current noise =
-    # residual_rel_std): no event of any kind. The CONFIG targets 0.1 false alarms per 100 h
+    # residual_rel_std): no event of any kind. The CONFIG targets 0.01 false alarms per 100 h
     # (Siegmund), so over 5 h any alarm would mean the tuning is badly off.
     cfg = make_config(demo_fit_params())[0]
     for seed in range(60):

@@ -18,7 +18,9 @@ Models (design notes sec. 3):
 - detector: two-sided CUSUM on r (Page 1954), reference k and threshold h from Siegmund's
   average-run-length approximation (estimator/watch_config.py), increments down-weighted
   while the command changes fast; a learning window at each flight start learns a power
-  scale s and raises baseline_off when |s - 1| exceeds a tolerance.
+  scale s and raises baseline_off when |s - 1| exceeds a tolerance; afterwards a slow,
+  bounded (+-drift_tol) tracking of the residual's mean follows the hover point as the pack
+  drains, frozen whenever a CUSUM sum is above h / 2.
 
 Integer contract: every intermediate stays below 2^30 in magnitude for every input that
 passes the range checks (the checks themselves only compare); the bound for each line
@@ -40,7 +42,7 @@ class Watch:
 
         Raises ValueError when CONFIG was made for another kernel format (here, not in update).
         """
-        if len(config) != 32 or config[0] != 1:
+        if len(config) != 33 or config[0] != 1:
             raise ValueError("CONFIG is not for this kernel: regenerate it")
         self.consts = config   # update() unpacks it into locals (cheaper than attributes)
         self.last_u = 0
@@ -70,6 +72,7 @@ class Watch:
         self.m_filt = 0
         self.m_n = 0
         self.mass_g = 0
+        self.drift = 0
 
     def update(self, dt_ms, command_permille, bus_mV, bus_mA):
         """One sample: dt_ms [ms] since the last, command [1/1000], bus voltage [mV], current [mA].
@@ -79,7 +82,7 @@ class Watch:
         u = command_permille
         (fmt, dt_max, v_min, v_max, i_min, i_max, stuck_n, spin, landed, rate_fast, settle, steady, cmd_min,
                 cmd_span, quad, v_lo, vstep, vtab, htab, ptab, pshift, sh, ttab, tushift, pfloor, k, h,
-                clip, learn, tol, mass_n, mass_lim) = self.consts
+                clip, learn, tol, mass_n, mass_lim, drift_tol) = self.consts
         # range checks: comparisons only, so any int is safe here
         if (dt_ms <= 0 or dt_ms > dt_max or u < 0 or u > 1000
                 or bus_mV < v_min or bus_mV > v_max
@@ -218,6 +221,19 @@ class Watch:
             self.flags = flags
             return flags
 
+        # slow drift of the baseline (pack drain moves the hover point along the fitted curves):
+        # EMA of r over 512 trusted samples, bounded to +-drift_tol, frozen while either CUSUM
+        # sum is above h / 2 so that a fault is never absorbed. Kept in 1/256 permille.
+        d = self.drift
+        if w == 16 and self.s_hi + self.s_lo < h >> 1:
+            d += (r * 256 - d) >> 9                       # |r * 256| <= 256000
+            lim = drift_tol * 256                         # <= 100 * 256
+            if d > lim:
+                d = lim
+            elif d < -lim:
+                d = -lim
+            self.drift = d
+        r -= d >> 8
         # two-sided CUSUM on r clipped to +-(h + k - 1), increments weighted by trust w/16
         if r > clip:
             r = clip
