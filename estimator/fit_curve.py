@@ -14,7 +14,7 @@ one bench sweep holds one air density, so the data cannot say otherwise.
 import numpy as np
 
 from estimator.errors import InputError
-from estimator.robust import HUBER_C, huber_gauss_newton, mad_scale
+from estimator.robust import HUBER_C, WORK_ROWS, huber_fit, mad_scale
 
 # Voltage exponent used when the sweep holds no voltage spread: the DC motor model with a
 # resistive drop of 1/8 of the back-EMF, n = 2 (1 + r) / (1 + 2 r) = 1.8 at r = 0.125
@@ -24,8 +24,6 @@ DEFAULT_VOLTAGE_EXPONENT = 1.8
 MIN_VOLTAGE_SPREAD = 0.05
 # residuals beyond this many robust sigmas are counted as spikes and left out [-]
 SPIKE_SIGMAS = 6.0
-# iterate on at most this many rows of a very large sweep, then polish on all of them
-ITERATION_ROWS = 60000
 PARAM_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
 
 
@@ -35,29 +33,33 @@ def command_groups(command):
     Rows logged at one command step (both sweep legs, every supply voltage) share the
     hysteresis and model-form error, so their residuals are not independent.
     """
-    return np.rint(np.clip(np.asarray(command), 0.0, 1.0) * 1000.0).astype(np.intp)
+    return np.rint(np.clip(np.asarray(command), 0.0, 1.0) * 1000.0).astype(np.int16)
 
 
 def _model_factory(u, log_v, fixed_n):
-    """Return model(theta, index) -> (f [N], J) for estimator.robust.huber_gauss_newton."""
+    """Return model(theta, rows) -> (f [N], J) for estimator.robust.huber_fit (rows: a slice)."""
 
-    def model(theta, index):
-        uu = u if index is None else u[index]
-        lv = log_v if index is None else log_v[index]
+    def model(theta, rows):
+        uu = u[rows]
+        lv = log_v[rows]
         t_max, a, u_min = theta[0], theta[1], theta[2]
         n = fixed_n if fixed_n is not None else theta[3]
         span = 1.0 - u_min
         x = (uu - u_min) / span
         active = x > 0.0
-        x = np.where(active, x, 0.0)
+        x[~active] = 0.0
         s = np.exp(n * lv)
-        t = (1.0 - a) * x + a * x * x
-        f = t_max * s * t
-        cols = [s * t, t_max * s * (x * x - x),
-                np.where(active, t_max * s * ((1.0 - a) + 2.0 * a * x) * (uu - 1.0) / (span * span), 0.0)]
+        t = x * ((1.0 - a) + a * x)
+        jac = np.empty((uu.size, 3 if fixed_n is not None else 4))
+        jac[:, 0] = s * t
+        f = t_max * jac[:, 0]
+        ts = t_max * s
+        jac[:, 1] = ts * (x * x - x)
+        jac[:, 2] = ts * ((1.0 - a) + 2.0 * a * x) * ((uu - 1.0) / (span * span))
+        jac[~active, 2] = 0.0
         if fixed_n is None:
-            cols.append(f * lv)
-        return f, np.column_stack(cols)
+            jac[:, 3] = f * lv
+        return f, jac
 
     return model
 
@@ -66,7 +68,7 @@ def _start(u, log_v, thrust, n0):
     """Coarse profile over u_min: OLS in (T_max (1 - a), T_max a) for each candidate."""
     s = np.exp(n0 * log_v)
     best = None
-    for u_min in np.arange(0.0, 0.5, 0.01):
+    for u_min in np.arange(0.0, 0.5, 0.02):
         x = np.clip((u - u_min) / (1.0 - u_min), 0.0, None)
         design = np.column_stack([s * x, s * x * x])
         if not (np.all(np.isfinite(design)) and np.all(np.isfinite(thrust))):
@@ -82,12 +84,13 @@ def _start(u, log_v, thrust, n0):
     return np.array([t_max, a, u_min] + ([n0] if n0 is not None else []), dtype=float)
 
 
-def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None):
+def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups=None):
     """Fit the thrust curve to bench rows (SI arrays of equal length).
 
     command: u [-]; voltage_V: bus voltage [V]; thrust_N: measured thrust [N];
     voltage_exponent: fix n [-] instead of fitting it (None = fit when the sweep holds
-    voltage spread, else DEFAULT_VOLTAGE_EXPONENT with a warning).
+    voltage spread, else DEFAULT_VOLTAGE_EXPONENT with a warning); groups: row labels for
+    the cluster-robust covariance (default command_groups(command)).
     Returns dict: thrust_max_N [N], quadratic_share [-], command_min [-],
     reference_voltage_V [V], voltage_exponent [-], voltage_exponent_fitted (bool),
     density_exponent [-] (= n - 1), standard_errors {name: SE}, covariance {names, matrix},
@@ -112,24 +115,18 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None):
     if float(np.max(u) - np.min(u)) < 0.3:
         raise InputError("the sweep spans commands %.2f..%.2f only; sweep from idle to at least "
                          "0.3 above it" % (float(np.min(u)), float(np.max(u))))
-    step = max(1, u.size // ITERATION_ROWS)
-    sub = slice(None, None, step) if step > 1 else None
-    idx = sub if sub is not None else slice(None)
+    step = max(1, u.size // WORK_ROWS)
+    idx = slice(None, None, step)
     theta0 = _start(u[idx], log_v[idx], t[idx], fixed_n if fixed_n is not None else DEFAULT_VOLTAGE_EXPONENT)
     if not np.all(np.isfinite(theta0)):
         raise InputError("no thrust curve can be started from this sweep (non-finite start values)")
     if fixed_n is not None:
         theta0 = theta0[:3]
     model = _model_factory(u, log_v, fixed_n)
-    groups = command_groups(u)
-    fit = huber_gauss_newton(model, theta0, t, subsample=sub, groups=groups)
-    spikes = np.abs(fit["residuals"]) > SPIKE_SIGMAS * fit["scale"]
-    if np.any(spikes):
-        keep = ~spikes
-        model = _model_factory(u[keep], log_v[keep], fixed_n)
-        sub2 = slice(None, None, step) if step > 1 else None
-        fit = huber_gauss_newton(model, fit["coef"], t[keep], subsample=sub2, max_iter=20,
-                                 groups=groups[keep])
+    if groups is None:
+        groups = command_groups(u)
+    fit = huber_fit(model, theta0, t, groups=groups, spike_sigmas=SPIKE_SIGMAS)
+    spikes = fit["spikes"]
     theta, cov = fit["coef"], fit["cov"]
     if fixed_n is not None:
         theta = np.append(theta, fixed_n)
@@ -152,8 +149,7 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None):
     if fixed_n is None and se[3] > 0.25:
         warnings.append("voltage exponent %.2f is poorly determined (standard error %.2f); "
                         "sweep at supply voltages further apart" % (n, se[3]))
-    f_all, _ = _model_factory(u, log_v, n)(np.array([t_max, a, u_min]), None)
-    residuals = t - f_all
+    residuals = fit["residuals"]
     kept = residuals[~spikes]
     return {
         "thrust_max_N": t_max, "quadratic_share": float(a), "command_min": u_min,
@@ -167,7 +163,7 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None):
         "covariance": {"names": list(PARAM_NAMES), "matrix": cov.tolist()},
         "residuals_N": residuals, "scale_N": fit["scale"], "spikes": spikes,
         "rms_residual_N": float(np.sqrt(np.mean(kept * kept))),
-        "huber_c": HUBER_C, "robust_scale_N": float(mad_scale(kept)),
+        "huber_c": HUBER_C, "robust_scale_N": fit["scale"],
         "warnings": warnings,
     }
 

@@ -24,6 +24,8 @@ K_MIN_THRUST_SHARE = 0.1
 # k below this is far under any working rotor (0.3 is the conservative rule of thumb,
 # common practice) and almost surely a unit slip [-]
 K_IMPLAUSIBLY_LOW = 0.05
+# medians of a very large sweep are taken over a systematic subsample of this many rows [-]
+MAD_ROWS = 200000
 # relative power residuals beyond this many robust sigmas are counted as spikes, left out [-]
 SPIKE_SIGMAS = 6.0
 
@@ -63,10 +65,13 @@ def check_static_factor(source, thrust_N, power_W, density_kg_m3, area_m2, thrus
 
     Rows above 10 % of the 99th-percentile thrust are sorted by thrust into up to ten bins;
     if the median k of any bin (at least five rows each) exceeds 1 the data is impossible.
-    One noisy row cannot trip it. thrust_N [N]; power_W [W]; density_kg_m3 [kg/m^3];
+    One noisy row cannot trip it. A very large sweep is judged on a systematic subsample
+    of at most MAD_ROWS rows. thrust_N [N]; power_W [W]; density_kg_m3 [kg/m^3];
     area_m2 [m^2]. Raises InputError naming the likely cause; returns the median k [-].
     """
-    t = np.asarray(thrust_N, dtype=float)
+    step = max(1, np.asarray(thrust_N).size // MAD_ROWS)
+    t = np.asarray(thrust_N, dtype=float)[::step]
+    power_W = np.asarray(power_W)[::step]
     top = float(np.percentile(t, 99.0))
     if not top > 0.0:
         raise InputError("%s: thrust never rises above zero (99th percentile %.4g N); is the "
@@ -110,18 +115,17 @@ def fit_power_model(thrust_N, power_W, groups=None):
     """
     t = np.clip(np.asarray(thrust_N, dtype=float), 0.0, None)
     p = np.asarray(power_W, dtype=float)
-    design = np.column_stack([np.ones_like(t), t * np.sqrt(t), t * t])
-    fit = huber_lstsq(design, p, groups=groups)
+    design = np.empty((t.size, 3))
+    design[:, 0] = 1.0
+    np.sqrt(t, out=design[:, 1])
+    design[:, 1] *= t
+    np.multiply(t, t, out=design[:, 2])
     # power noise grows with power (sensor gain error), so spikes are judged relative
-    fitted = design @ fit["coef"]
-    rel = fit["residuals"] / np.maximum(np.abs(fitted), 0.05 * float(np.max(np.abs(fitted))))
-    spikes = np.abs(rel - np.median(rel)) > SPIKE_SIGMAS * max(mad_scale(rel), 1e-9)
-    if np.any(spikes):
-        fit = huber_lstsq(design[~spikes], p[~spikes],
-                          groups=None if groups is None else groups[~spikes])
+    fit = huber_lstsq(design, p, groups=groups, spike_sigmas=SPIKE_SIGMAS, relative_spikes=True)
+    spikes = fit["spikes"]
     coef = fit["coef"]
     se = np.sqrt(np.maximum(np.diag(fit["cov"]), 0.0))
-    residuals = p - design @ coef
+    residuals = fit["residuals"]
     kept = residuals[~spikes]
     if not coef[1] + coef[2] * 10.0 > 0.0:
         raise InputError("power does not rise with thrust in this sweep (fitted induced term "
@@ -147,10 +151,13 @@ def watch_residual_rel_std(power_W, expected_W, thrust_share):
     """Robust relative std of (P_meas - P_exp) / P_exp over rows above 10 % of T_max [-].
 
     expected_W is what the watch would expect: the power model at the thrust the fitted
-    curve gives for each row's command and voltage. Robust std = 1.4826 MAD.
+    curve gives for each row's command and voltage. Robust std = 1.4826 MAD, taken over a
+    systematic subsample of at most MAD_ROWS rows of a very large sweep.
     """
-    sel = (np.asarray(thrust_share) > K_MIN_THRUST_SHARE) & (np.asarray(expected_W) > 0.0)
-    rel = (np.asarray(power_W)[sel] - np.asarray(expected_W)[sel]) / np.asarray(expected_W)[sel]
+    step = max(1, np.asarray(power_W).size // MAD_ROWS)
+    power_W, expected_W = np.asarray(power_W)[::step], np.asarray(expected_W)[::step]
+    sel = (np.asarray(thrust_share)[::step] > K_MIN_THRUST_SHARE) & (expected_W > 0.0)
+    rel = (power_W[sel] - expected_W[sel]) / expected_W[sel]
     if rel.size < 5:
         raise InputError("fewer than 5 rows above 10 % of full thrust; cannot judge power noise")
     return float(mad_scale(rel))
@@ -163,15 +170,23 @@ def fit_static_factor(thrust_N, power_W, density_kg_m3, area_m2, thrust_max_N, g
     """
     t = np.asarray(thrust_N, dtype=float)
     sel = t > K_MIN_THRUST_SHARE * thrust_max_N
-    k = static_factors(t[sel], np.asarray(power_W)[sel], density_kg_m3, area_m2)
+    ts = t[sel]
+    k = static_factors(ts, np.asarray(power_W)[sel], density_kg_m3, area_m2)
+    gs = None if groups is None else groups[sel]
     good = np.isfinite(k)
-    ts, k = t[sel][good], k[good]
-    fit = huber_lstsq(np.column_stack([np.ones_like(ts), ts]), k,
-                      groups=None if groups is None else groups[sel][good])
+    if not np.all(good):
+        ts, k = ts[good], k[good]
+        gs = None if gs is None else gs[good]
+    if k.size < 5:
+        raise InputError("fewer than 5 rows above 10 % of full thrust with power above zero")
+    design = np.empty((ts.size, 2))
+    design[:, 0] = 1.0
+    design[:, 1] = ts
+    fit = huber_lstsq(design, k, groups=gs)
     se = np.sqrt(np.maximum(np.diag(fit["cov"]), 0.0))
     return {"k0": float(fit["coef"][0]), "slope_per_N": float(fit["coef"][1]),
             "standard_errors": {"k0": float(se[0]), "slope_per_N": float(se[1])},
-            "cov": fit["cov"], "median_thrust_N": float(np.median(ts))}
+            "cov": fit["cov"], "median_thrust_N": float(np.median(ts[:: max(1, ts.size // MAD_ROWS)]))}
 
 
 def static_factor_at(sf, thrust_N):
