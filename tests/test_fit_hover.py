@@ -1,0 +1,160 @@
+"""Hover values from a fitted parameter set, the `liftcal fit` command, and its plot.
+
+External references: scipy.optimize.brentq on the DC motor physics (design notes sec. 3),
+the Thevenin pack relation V = V_oc - I R, and momentum theory's ideal power
+P = T^1.5 / sqrt(2 rho A) (Leishman 2006, eq. 2.14, from memory) as the lower bound of power.
+"""
+
+import json
+import math
+import os
+import subprocess
+import sys
+
+import pytest
+from scipy.optimize import brentq
+
+from estimator.benchsim import DEAD_BAND, bench_density_kg_m3, simulate_sweep, true_point
+from estimator.cli import main
+from estimator.core.momentum import disk_area_m2, ideal_power_W
+from estimator.demo_data import DEMO_VEHICLE
+from estimator.fit_sweep import fit_bench_file
+from estimator.fitted_hover import hover_from_params, rotor_power_W, sagged_bus_V
+from estimator.units import STANDARD_GRAVITY_M_S2
+from estimator.vehicle import check_vehicle
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+
+
+@pytest.fixture(scope="module")
+def fitted(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("fit")
+    path = folder / "demo.csv"
+    path.write_text(simulate_sweep(seed=31))
+    vehicle = check_vehicle(DEMO_VEHICLE, "demo")
+    return vehicle, fit_bench_file(str(path), vehicle=vehicle), folder
+
+
+def test_sagged_bus_voltage_solves_the_thevenin_pack():
+    v = sagged_bus_V(14.8, 0.02, 280.0)
+    # V = V_oc - I R with I = P / V (Thevenin pack): residual to rounding
+    assert v == pytest.approx(14.8 - 0.02 * 280.0 / v, abs=1e-12)
+    assert sagged_bus_V(14.8, 1.0, 100.0) is None  # V_oc^2 < 4 R P: no voltage delivers it
+
+
+def test_hover_command_at_bench_air_matches_the_physics(fitted):
+    vehicle, params, _ = fitted
+    rho = bench_density_kg_m3()
+    bench_vehicle = dict(vehicle, site={"pressure_Pa": 97800.0, "temperature_C": 21.0})
+    report = hover_from_params(bench_vehicle, params)
+    v_bus = report["hover_bus_V"]
+    need = vehicle["mass_kg"] * STANDARD_GRAVITY_M_S2 / vehicle["rotors"]["count"]
+    rho_site = report["density_kg_m3"]
+    # reference: scipy.optimize.brentq on the simulator's DC motor physics at that bus voltage
+    u_true = brentq(lambda u: true_point(u, v_bus, rho_site, source_resistance_ohm=0.0)["thrust_N"] - need,
+                    0.07, 1.0, xtol=1e-10)
+    # site air within 1 % of the bench air here, so the density exponent hardly matters;
+    # 0.01 covers the curve-form error (<= 0.005) and noise
+    assert abs(rho_site / rho - 1.0) < 0.01
+    assert report["hover_command"] == pytest.approx(u_true, abs=0.01)
+    lo, hi = report["hover_command_interval_95"]
+    assert lo < report["hover_command"] < hi
+
+
+def test_hover_power_is_above_the_momentum_theory_bound_and_consistent(fitted):
+    vehicle, params, _ = fitted
+    report = hover_from_params(vehicle, params)
+    rho = report["density_kg_m3"]
+    per_rotor = report["thrust_per_rotor_N"]
+    area = disk_area_m2(params["rotor"]["diameter_m"])
+    ideal = vehicle["rotors"]["count"] * ideal_power_W(per_rotor, rho, area)
+    # momentum theory: no real rotor hovers on less than the ideal power (k <= 1)
+    assert report["hover_power_W"] > ideal
+    # the power model scales the induced term by sqrt(rho_ref / rho) (DEVELOPERS.md)
+    expected = vehicle["rotors"]["count"] * rotor_power_W(params["power_model"], per_rotor, rho)
+    assert report["hover_power_W"] == pytest.approx(expected, rel=1e-12)
+    # I = P / V and endurance = 60 C_use / I (definition of capacity)
+    assert report["hover_current_A"] == pytest.approx(report["hover_power_W"] / report["hover_bus_V"], rel=1e-12)
+    usable = vehicle["battery"]["capacity_Ah"] * vehicle["battery"]["usable_fraction"]
+    assert report["flight_time_min"] == pytest.approx(60.0 * usable / report["hover_current_A"], rel=1e-12)
+
+
+def test_fitted_hover_agrees_with_the_datasheet_model(fitted):
+    from estimator.preflight import hover_report
+
+    vehicle, params, _ = fitted
+    fitted_report = hover_from_params(vehicle, params)
+    model_report = hover_report(vehicle)
+    # same DC motor physics behind both (the bench sweep was simulated with it; its ESC adds
+    # a start-up dead band, command = u_dead + (1 - u_dead) duty), but the fit extrapolates
+    # from bench air 1.158 to site air 0.984 kg/m^3 with m = n - 1 and the curve form: agree
+    # within 0.02 of command and 5 % of power
+    duty_as_command = DEAD_BAND + (1.0 - DEAD_BAND) * model_report["hover_command"]
+    assert fitted_report["hover_command"] == pytest.approx(duty_as_command, abs=0.02)
+    assert fitted_report["hover_power_W"] == pytest.approx(model_report["hover_power_W"], rel=0.05)
+    assert fitted_report["hover_command_full"] < fitted_report["hover_command"] < fitted_report["hover_command_empty"]
+    for key in ("hover_command", "hover_command_full", "hover_command_empty", "hover_thrust_fraction",
+                "thrust_to_weight", "hover_current_A", "hover_power_W", "flight_time_min", "warnings",
+                "hover_command_interval_95"):
+        assert key in fitted_report
+
+
+def test_parameter_set_carries_the_vehicle_and_hover(fitted):
+    vehicle, params, _ = fitted
+    assert params["vehicle"]["rotor_count"] == 4 and params["static_factor"]["value_at"] == "hover"
+    h = params["hover"]
+    lo, hi = h["hover_command_interval_95"]
+    assert lo <= h["hover_command"] <= hi and "linearised" in h["interval_method"]
+    # k at hover from the line k0 + slope T (DEVELOPERS.md)
+    k = params["static_factor"]
+    assert k["value"] == pytest.approx(k["k0"] + k["slope_per_N"] * h["thrust_per_rotor_N"], rel=1e-4)
+
+
+def test_cli_fit_json_keys_plot_and_files(fitted, capsys):
+    _, _, folder = fitted
+    out, png = folder / "p.json", folder / "fit.png"
+    with pytest.raises(SystemExit) as exc:
+        main(["fit", str(folder / "demo.csv"), "--out", str(out), "--plot", str(png), "--json"])
+    stdout, stderr = capsys.readouterr()
+    assert exc.value.code == 0 and stderr == ""
+    doc = json.loads(stdout)
+    for key in ("quadratic_share", "command_min", "thrust_max_N", "reference_voltage_V",
+                "voltage_exponent", "density_exponent", "static_factor", "rows_used",
+                "rows_rejected", "rms_residual_N"):  # design notes sec. 4
+        assert isinstance(doc[key], (int, float)), key
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and png.stat().st_size > 20000
+    assert json.loads(out.read_text())["model"] == "liftcal.rotor/1"
+    assert not [p for p in os.listdir(folder) if p.startswith(".tmp-")]
+
+
+def test_cli_fit_human_summary_has_uncertainties_and_cautions(fitted, capsys):
+    _, _, folder = fitted
+    with pytest.raises(SystemExit):
+        main(["fit", str(folder / "demo.csv"), "--out", str(folder / "q.json")])
+    text = capsys.readouterr()[0]
+    assert "+-" in text and "Props off" in text and "tethered or low hover test" in text
+
+
+def test_fit_without_plot_does_not_import_matplotlib(fitted):
+    _, _, folder = fitted
+    code = ("import sys\nfrom estimator.cli import main\n"
+            "try:\n    main(['fit', %r, '--out', %r, '--json'])\nexcept SystemExit:\n    pass\n"
+            "print('matplotlib' in sys.modules)\n" % (str(folder / "demo.csv"), str(folder / "r.json")))
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT, check=True)
+    assert done.stdout.strip().splitlines()[-1] == "False"
+
+
+def test_liftcal_hover_with_params(fitted, tmp_path, capsys):
+    vehicle, params, folder = fitted
+    (tmp_path / "v.json").write_text(json.dumps(DEMO_VEHICLE))
+    with pytest.raises(SystemExit):
+        main(["fit", str(folder / "demo.csv"), "--out", str(tmp_path / "p.json"),
+              "--vehicle", str(tmp_path / "v.json")])
+    capsys.readouterr()
+    with pytest.raises(SystemExit) as exc:
+        main(["hover", str(tmp_path / "v.json"), "--params", str(tmp_path / "p.json"), "--json"])
+    out, err = capsys.readouterr()
+    assert exc.value.code == 0 and err == ""
+    report = json.loads(out)
+    assert report["hover_command"] == pytest.approx(params["hover"]["hover_command"], abs=1e-5)
+    assert math.isfinite(report["flight_time_min"])
