@@ -64,12 +64,9 @@ CONFIG_KEYS = (
     "quadratic_q12",
     "volt_lo_mV",
     "volt_step_mV",
-    "volt_q12",
-    "hover_table_permille",
-    "power_table",
+    "tables",
     "power_shift",
     "thrust_shift",
-    "thrust_table",
     "thrust_unit_shift",
     "power_floor_dW",
     "cusum_k_permille",
@@ -81,6 +78,11 @@ CONFIG_KEYS = (
     "mass_limit_g",
     "drift_tol_permille",
 )
+
+# byte offsets of the tables inside CONFIG "tables" (the kernel uses these numbers)
+TABLE_PARTS = ("volt_q12", "hover_table_permille", "power_table", "thrust_table")
+TABLE_AT = {"volt_q12": 0, "hover_table_permille": 34, "power_table": 68, "thrust_table": 166}
+TABLES_BYTES = 296
 
 SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
 
@@ -301,6 +303,10 @@ def make_config(params, vehicle=None, options=None):
     put("mass_samples", int(o["mass_samples"]), "steady mass-filter updates (every 4th sample) before mass_g is reported")
     put("mass_limit_g", int(round(1000.0 * mass_kg * (1.0 + o["mass_share"]))),
         "planned %.3f kg + %.0f %%" % (mass_kg, 100.0 * o["mass_share"]))
+    # the four tables as one bytes object (one heap object on the board); offsets in TABLE_AT
+    parts = [cfg.pop(name) for name in TABLE_PARTS]
+    put("tables", b"".join(parts), "; ".join("%s at byte %d: %s" % (name, TABLE_AT[name], notes.pop(name))
+                                              for name in TABLE_PARTS))
     put("drift_tol_permille", int(round(1000.0 * o["drift_tol"])),
         "slow baseline tracking bounded to +-%.3f (EMA over 512 trusted samples)" % o["drift_tol"])
     check_config(cfg)
@@ -331,14 +337,15 @@ def check_config(cfg):
     need(0 <= cfg["volt_step_mV"] * 16 <= 60000 and cfg["volt_step_mV"] >= 1, "voltage table outside 0..60 V")
     need(abs(cfg["v_min_mV"]) <= 60000 and abs(cfg["v_max_mV"]) <= 60000, "voltage limits outside 0..60 V")
     need(-300000 <= cfg["i_min_mA"] <= cfg["i_max_mA"] <= 300000, "current limits outside -300..300 A")
-    need(len(cfg["volt_q12"]) == 34 and all(0 <= x <= 8191 for x in unpack16(cfg["volt_q12"])), "volt_q12 table")
-    need(len(cfg["hover_table_permille"]) == 34
-         and all(0 <= x <= 1000 for x in unpack16(cfg["hover_table_permille"])), "hover table")
-    need(len(cfg["power_table"]) == 98 and 0 <= cfg["power_shift"] <= 2, "power table (< 2^18 x 0.1 W)")
-    need(cfg["power_floor_dW"] >= 2, "power floor")
-    need(0 <= cfg["quadratic_q12"] <= 4096 and 1 <= cfg["command_span_permille"] <= 1000, "thrust curve")
+    tb = cfg["tables"]
+    need(isinstance(tb, bytes) and len(tb) == TABLES_BYTES, "tables must be %d bytes" % TABLES_BYTES)
+    part = dict((name, unpack16(tb[TABLE_AT[name]:TABLE_AT[name] + n]))
+                for name, n in zip(TABLE_PARTS, (34, 34, 98, 130)))
+    need(all(0 <= x <= 8191 for x in part["volt_q12"]), "volt_q12 table")
+    need(all(0 <= x <= 1000 for x in part["hover_table_permille"]), "hover table")
+    need(0 <= cfg["power_shift"] <= 2, "power table (< 2^18 x 0.1 W)")
     need(0 <= cfg["thrust_shift"] <= 12, "thrust table step (power above 26 kW)")
-    tt = unpack16(cfg["thrust_table"])
+    tt = part["thrust_table"]
     need(len(tt) == 65 and all((x << cfg["thrust_unit_shift"]) <= 1000000 for x in tt)
          and 0 <= cfg["thrust_unit_shift"] <= 4, "thrust table (above 1000 N)")
     need(0 <= cfg["rate_fast_permille_s"] <= 10000, "rate limit")

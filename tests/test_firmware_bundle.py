@@ -39,7 +39,7 @@ def test_config_is_integers_only_with_comments(tmp_path):
     text = (tmp_path / "b" / "liftwatch_config.py").read_text()
     tree = ast.parse(text)
     config = ast.literal_eval(tree.body[0].value)
-    assert isinstance(config, tuple) and len(config) == len(CONFIG_KEYS)
+    assert isinstance(config, list) and len(config) == len(CONFIG_KEYS)
     for key, value in zip(CONFIG_KEYS, config):
         # ints, or bytes tables of 16-bit ints; never a float
         assert isinstance(value, (int, bytes)) and not isinstance(value, bool), key

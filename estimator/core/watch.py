@@ -10,11 +10,11 @@ from the measured power [mN], ``hover_permille`` hover command expected at this 
 Models (design notes sec. 3):
 - expected power: the parameter set's power model P(T) = idle + c_i T^1.5 sqrt(rho_ref/rho)
   + c_cu T^2 per rotor, times the rotor count, at the thrust T(u, V, rho) of the thrust
-  curve; CONFIG carries it as a table over f = (V/V_ref)^n t(x) (``power_table``), the
-  voltage factor as a table over the bus voltage (``volt_q12``);
+  curve; CONFIG carries it as a table over f = (V/V_ref)^n t(x), the voltage factor as a
+  table over the bus voltage (both in CONFIG ``tables``);
 - thrust from measured power: momentum theory T = k(T) (2 rho A P^2)^(1/3) per rotor with
   the calibrated static factor k(T) = k0 + k1 T and the site density, solved in closed form
-  and tabulated over the measured power (``thrust_table``); the roots are taken by table;
+  and tabulated over the measured power (also in ``tables``); the roots are taken by table;
 - detector: two-sided CUSUM on r (Page 1954), reference k and threshold h from Siegmund's
   average-run-length approximation (estimator/watch_config.py), increments down-weighted
   while the command changes fast; a learning window at each flight start learns a power
@@ -34,16 +34,16 @@ int inputs. This file is copied verbatim into the board bundle as ``liftwatch.py
 
 
 class Watch:
-    """Power watch state for one vehicle; CONFIG is the tuple written by liftcal firmware
+    """Power watch state for one vehicle; CONFIG is the list written by liftcal firmware
     (on the desktop: estimator.watch_config.as_tuple(make_config(...)[0]))."""
 
     def __init__(self, config):
-        """config: the CONFIG tuple of liftwatch_config (estimator.watch_config.CONFIG_KEYS order).
+        """config: CONFIG of liftwatch_config, a list (or tuple) of ints in CONFIG_KEYS order.
 
         Raises ValueError when CONFIG was made for another kernel format (here, not in update).
         """
-        if len(config) != 33 or config[0] != 1:
-            raise ValueError("CONFIG is not for this kernel: regenerate it")
+        if len(config) != 30 or config[0] != 1:
+            raise ValueError("CONFIG: not for this kernel")
         self.consts = config   # update() unpacks it into locals (cheaper than attributes)
         self.last_u = 0
         self.last_mA = -1
@@ -81,7 +81,7 @@ class Watch:
         """
         u = command_permille
         (fmt, dt_max, v_min, v_max, i_min, i_max, stuck_n, spin, landed, rate_fast, settle, steady, cmd_min,
-                cmd_span, quad, v_lo, vstep, vtab, htab, ptab, pshift, sh, ttab, tushift, pfloor, k, h,
+                cmd_span, quad, v_lo, vstep, tb, pshift, sh, tushift, pfloor, k, h,
                 clip, learn, tol, mass_n, mass_lim, drift_tol) = self.consts
         # range checks: comparisons only, so any int is safe here
         if (dt_ms <= 0 or dt_ms > dt_max or u < 0 or u > 1000
@@ -143,20 +143,19 @@ class Watch:
             dv = vstep * 16 - 1
         i = dv // vstep                                   # 0..15
         fr = dv - i * vstep                               # 0..vstep-1
-        # tables are bytes of 16-bit little-endian unsigned ints (2 bytes per knot)
+        # tables: one bytes object of 16-bit little-endian unsigned ints (2 bytes per knot):
+        # voltage factor at byte 0, hover command at 34, power at 68, thrust at 166
         j = i + i
-        tab = vtab  # Q12 values <= 8191
-        a = tab[j] | tab[j + 1] << 8
-        vs = a + ((tab[j + 2] | tab[j + 3] << 8) - a) * fr // vstep  # <= 8191 * 3750 = 3.1e7
+        a = tb[j] | tb[j + 1] << 8                        # Q12 values <= 8191
+        vs = a + ((tb[j + 2] | tb[j + 3] << 8) - a) * fr // vstep  # <= 8191 * 3750 = 3.1e7
         vj = j
         vfr = fr
         f = vs * t >> 12                                  # <= 8191 * 4096 = 3.4e7 ; f <= 8191
         if f > 6143:
             f = 6143                                      # table covers f in 0..1.5 (Q12)
-        j = f >> 6 & 254                                  # 2 x (f >> 7): 0..94
-        tab = ptab  # units of 2^power_shift dW, < 2^16
-        a = tab[j] | tab[j + 1] << 8
-        pe = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * (f & 127) >> 7)) << pshift  # <= 2^16 * 127 ; pe < 2^18
+        j = (f >> 6 & 254) + 68                           # 2 x (f >> 7): 0..94, power table
+        a = tb[j] | tb[j + 1] << 8                        # units of 2^power_shift dW, < 2^16
+        pe = (a + (((tb[j + 2] | tb[j + 3] << 8) - a) * (f & 127) >> 7)) << pshift  # <= 2^16 * 127 ; pe < 2^18
         self.expected_dW = pe
 
         # measured power [dW] = mV * mA / 1e5, in two steps to stay below 2^30
@@ -176,19 +175,17 @@ class Watch:
         self.tick = tick
         self.p_acc = acc
         if tick == 0:
-            tab = htab  # permille, 0..1000
-            a = tab[vj] | tab[vj + 1] << 8
-            self.hover_permille = a + ((tab[vj + 2] | tab[vj + 3] << 8) - a) * vfr // vstep  # <= 3.75e6
+            a = tb[vj + 34] | tb[vj + 35] << 8            # permille, 0..1000
+            self.hover_permille = a + ((tb[vj + 36] | tb[vj + 37] << 8) - a) * vfr // vstep  # <= 3.75e6
             i = pm4 >> sh
             if i > 63:
                 i = 63
                 fr = (1 << sh) - 1
             else:
                 fr = pm4 - (i << sh)                      # < 2^sh
-            j = i + i
-            tab = ttab  # units of 2^thrust_unit_shift mN, < 2^16
-            a = tab[j] | tab[j + 1] << 8
-            self.thrust_mN = (a + (((tab[j + 2] | tab[j + 3] << 8) - a) * fr >> sh)) << tushift  # 2^28 ; <= 1e6
+            j = i + i + 166                               # thrust table
+            a = tb[j] | tb[j + 1] << 8                    # units of 2^thrust_unit_shift mN, < 2^16
+            self.thrust_mN = (a + (((tb[j + 2] | tb[j + 3] << 8) - a) * fr >> sh)) << tushift  # 2^28 ; <= 1e6
 
         flags = self.flags & 24                           # keep baseline_off, mass_high
         if pe < pfloor or u < spin:
