@@ -15,7 +15,6 @@ Usage: .venv/bin/python benchmarks/fit_large.py [ROWS]
 """
 
 import os
-import resource
 import subprocess
 import sys
 import tempfile
@@ -70,7 +69,7 @@ def best_of(fn, repeat=3):
     return best
 
 
-RSS_PROBE = ("import resource, sys\n"
+RSS_PROBE = ("import sys\n"
              "args = sys.argv[1:]\n"
              "if args:\n"
              "    from estimator.cli import main\n"
@@ -80,11 +79,16 @@ RSS_PROBE = ("import resource, sys\n"
              "        pass\n"
              "else:\n"
              "    import numpy, click, jsonschema, estimator.cli\n"
-             "sys.stderr.write('%d\\n' % resource.getrusage(resource.RUSAGE_SELF).ru_maxrss)\n")
+             "hwm = [l for l in open('/proc/self/status') if l.startswith('VmHWM:')][0]\n"
+             "sys.stderr.write(hwm.split()[1] + '\\n')\n")
 
 
 def peak_rss_kib(args):
-    """Peak resident set [KiB] of a fresh interpreter running ``liftcal args`` (Linux ru_maxrss)."""
+    """Peak resident set [KiB] of a fresh interpreter running ``liftcal args``.
+
+    Linux VmHWM of the child's own address space (ru_maxrss would inherit the parent's peak
+    across fork + exec).
+    """
     done = subprocess.run([sys.executable, "-c", RSS_PROBE] + args, check=True, cwd=ROOT,
                           stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
     return int(done.stderr.strip().splitlines()[-1])
@@ -120,8 +124,9 @@ def main():
           % (t_cli, t_cli / t_load, t_py))
     print("peak traced memory, in process  %.1f MB   ratio %.2f x numeric array  (goal < 4)"
           % (peak / 1e6, peak / nbytes))
-    print("peak RSS of liftcal fit above its bare imports  %.1f MB   ratio %.2f x numeric array"
-          % ((rss_cli - rss_base) * 1024 / 1e6, (rss_cli - rss_base) * 1024 / nbytes))
+    print("peak RSS of liftcal fit %.1f MB, bare imports %.1f MB: %.1f MB above, ratio %.2f x numeric array"
+          % (rss_cli * 1024 / 1e6, rss_base * 1024 / 1e6, (rss_cli - rss_base) * 1024 / 1e6,
+             (rss_cli - rss_base) * 1024 / nbytes))
 
 
 if __name__ == "__main__":

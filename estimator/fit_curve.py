@@ -20,8 +20,10 @@ from estimator.robust import HUBER_C, WORK_ROWS, huber_fit, mad_scale
 # resistive drop of 1/8 of the back-EMF, n = 2 (1 + r) / (1 + 2 r) = 1.8 at r = 0.125
 # (design notes sec. 3; r = 0.1..0.2 is common practice for small outrunners).
 DEFAULT_VOLTAGE_EXPONENT = 1.8
-# below this relative voltage spread (p95 - p5) / median the exponent is not fitted [-]
-MIN_VOLTAGE_SPREAD = 0.05
+# below this relative voltage spread at equal command (see voltage_spread_at_equal_command)
+# the exponent is not fitted: the sag of one supply alone moves with the command and cannot
+# be told apart from the curve's shape [-]
+MIN_VOLTAGE_SPREAD = 0.03
 # residuals beyond this many robust sigmas are counted as spikes and left out [-]
 SPIKE_SIGMAS = 6.0
 PARAM_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
@@ -34,6 +36,25 @@ def command_groups(command):
     hysteresis and model-form error, so their residuals are not independent.
     """
     return np.rint(np.clip(np.asarray(command), 0.0, 1.0) * 1000.0).astype(np.int16)
+
+
+def voltage_spread_at_equal_command(command, voltage_V, bins=20):
+    """Median over command bins of (p90 - p10) / median of the bus voltage [-].
+
+    Measures the voltage spread that is independent of the command (sweeps at several
+    supply voltages); the sag of a single supply, which follows the command, hardly counts.
+    command [-]; voltage_V [V]. A very large sweep is judged on a systematic subsample.
+    """
+    step = max(1, command.size // 200000)
+    u, v = command[::step], voltage_V[::step]
+    index = np.minimum((u * bins).astype(np.intp), bins - 1)
+    spreads = []
+    for b in range(bins):
+        vb = v[index == b]
+        if vb.size >= 5:
+            p10, p50, p90 = np.percentile(vb, [10.0, 50.0, 90.0])
+            spreads.append((p90 - p10) / p50)
+    return float(np.median(spreads)) if spreads else 0.0
 
 
 def _model_factory(u, log_v, fixed_n):
@@ -103,12 +124,11 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
     warnings = []
     v_ref = float(round(float(np.median(v)), 2))
     log_v = np.log(v / v_ref)
-    p5, p95 = np.percentile(v, [5.0, 95.0])
-    spread = float((p95 - p5) / v_ref)
+    spread = voltage_spread_at_equal_command(u, v)
     fixed_n = voltage_exponent
     if fixed_n is None and spread < MIN_VOLTAGE_SPREAD:
         fixed_n = DEFAULT_VOLTAGE_EXPONENT
-        warnings.append("the sweep's voltage spread is only %.1f %% (p5..p95); voltage exponent "
+        warnings.append("the sweep's voltage spread at equal command is only %.1f %%; voltage exponent "
                         "not fitted, default n = %.1f used (DC motor model, resistive drop 1/8 of "
                         "back-EMF); sweep at two or three supply voltages to measure it"
                         % (100.0 * spread, DEFAULT_VOLTAGE_EXPONENT))

@@ -250,3 +250,17 @@ def test_standard_errors_are_honest():
         se = np.mean([f["standard_errors"][key] for f in fits])
         assert np.std(values, ddof=1) / se < 1.5, key
         assert abs(np.mean(values) - ref) < 2.0 * se, key
+
+
+def test_sweep_without_voltage_spread_uses_the_stated_default_with_a_warning():
+    # one supply voltage with almost no sag: n cannot be measured. The default 1.8 is the DC
+    # motor model's n = 2 (1 + r) / (1 + 2 r) at r = 0.125 (design notes sec. 3)
+    text = simulate_sweep(seed=8, supply_voltages_V=(15.4,))
+    from estimator.benchsim import SOURCE_RESISTANCE_OHM  # noqa: F401  (sag stays below 5 %)
+    params = fit_bench(read_bench_text(text, "one-voltage.csv"), "one-voltage.csv")
+    c = params["thrust_curve"]
+    assert 2.0 * (1.0 + 0.125) / (1.0 + 2.0 * 0.125) == pytest.approx(1.8, abs=1e-12)
+    assert c["voltage_exponent"] == 1.8 and c["voltage_exponent_source"] == "default"
+    assert c["density_exponent"] == pytest.approx(0.8, abs=1e-12)
+    assert params["standard_errors"]["voltage_exponent"] == 0.0
+    assert any("voltage exponent not fitted" in w for w in params["warnings"])
