@@ -21,7 +21,7 @@ from estimator.params import load_params
 VALID = simulate_sweep(seed=21)
 LINES = VALID.splitlines()
 FIRST_DATA = next(i for i, line in enumerate(LINES) if line[:1].isdigit())
-FUZZ = settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+FUZZ = settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 
 
 def run_fit(content):
