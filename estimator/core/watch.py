@@ -222,7 +222,9 @@ class Watch:
         # EMA of r over 512 trusted samples, bounded to +-drift_tol, frozen while either CUSUM
         # sum is above h / 2 so that a fault is never absorbed. Kept in 1/256 permille.
         d = self.drift
-        if w == 16 and self.s_hi + self.s_lo < h >> 1:
+        s_hi = self.s_hi
+        s_lo = self.s_lo
+        if w == 16 and s_hi + s_lo < h >> 1:
             d += (r * 256 - d) >> 9                       # |r * 256| <= 256000
             lim = drift_tol * 256                         # <= 100 * 256
             if d > lim:
@@ -236,7 +238,7 @@ class Watch:
             r = clip
         elif r < -clip:
             r = -clip
-        s = self.s_hi + (w * (r - k) >> 4)                # |w (r - k)| <= 16 * 2000
+        s = s_hi + (w * (r - k) >> 4)                     # |w (r - k)| <= 16 * 2000
         if s < 0:
             s = 0
         elif s > h + h:
@@ -244,7 +246,7 @@ class Watch:
         self.s_hi = s
         if s >= h:
             flags |= 1
-        s = self.s_lo + (w * (-r - k) >> 4)
+        s = s_lo + (w * (-r - k) >> 4)
         if s < 0:
             s = 0
         elif s > h + h:
