@@ -264,3 +264,29 @@ def test_sweep_without_voltage_spread_uses_the_stated_default_with_a_warning():
     assert c["density_exponent"] == pytest.approx(0.8, abs=1e-12)
     assert params["standard_errors"]["voltage_exponent"] == 0.0
     assert any("voltage exponent not fitted" in w for w in params["warnings"])
+
+
+def test_one_step_finish_of_a_large_fit_matches_the_fully_iterated_fit():
+    # Bickel (1975): one full-data Newton step from a consistent start is asymptotically the
+    # fully iterated M-estimate. 100,000 rows: the working set (20,000 rows) plus one step
+    # must land within 0.1 standard error of iterating on every row.
+    from estimator.fit_curve import _model_factory, command_groups
+    from estimator.robust import huber_fit
+
+    rng = np.random.default_rng(9)
+    n = 100000
+    u = rng.uniform(0.0, 1.0, n)
+    v = rng.choice([14.4, 15.4, 16.4], n) + rng.normal(0.0, 0.01, n)
+    truth = np.array([18.0, 0.65, 0.12, 1.8])
+    log_v = np.log(v / 15.4)
+    model = _model_factory(u, log_v, None)
+    f, _ = model(truth, slice(None))
+    t = f + rng.normal(0.0, 0.05, n) + 0.004 * f * rng.normal(0.0, 1.0, n)
+    t[rng.integers(0, n, 30)] += 3.0
+    start = truth * np.array([0.9, 0.8, 1.2, 0.95])
+    quick = huber_fit(model, start, t, groups=command_groups(u), spike_sigmas=6.0)
+    full = huber_fit(model, start, t, groups=command_groups(u), spike_sigmas=6.0, work_rows=10 ** 9)
+    se = np.sqrt(np.diag(full["cov"]))
+    assert np.all(np.abs(quick["coef"] - full["coef"]) < 0.1 * se)
+    assert np.all(np.abs(full["coef"] - truth) < 4.0 * se)  # and both recover the truth
+    assert quick["spikes"].sum() >= 25
