@@ -36,7 +36,8 @@ def _human_fit(params, out_file):
         "  spin-up command      %s" % _pm(c["command_min"], se["command_min"], "%.3f"),
         "  voltage exponent     %s (%s)" % (_pm(c["voltage_exponent"], se["voltage_exponent"], "%.3f"),
                                            c.get("voltage_exponent_source", "fitted")),
-        "  density exponent     %.3f (m = n - 1 from the DC motor model)" % c["density_exponent"],
+        "  density exponent     %s (m = n - 1 from the DC motor model)" % _pm(
+            c["density_exponent"], se["density_exponent"], "%.3f"),
         "  thrust residual      %.3f N rms" % q["rms_residual_N"],
         "power per rotor  P = %.2f W + %.3f W/N^1.5 T^1.5 + %.4f W/N^2 T^2 (rms %.2f W)" % (
             p["idle_power_W"], p["induced_W_per_N1_5"], p["copper_W_per_N2"], q["power_rms_residual_W"]),
