@@ -31,9 +31,9 @@ def main():
     out = run_micropython(SCRIPT, [os.path.join(d, "mpy", "liftwatch.mpy"), os.path.join(d, "mpy", "liftwatch_config.mpy")])
     cfg, ker, watch, heap = (int(x) for x in out.split("RESULT", 1)[1].split())
     print("heap: config module %d B, kernel module %d B, one Watch %d B; total %d B" % (cfg, ker, watch, heap))
-    print("heap / 4096 B = %.2f (goal < 1): %s" % (heap / 4096.0, "met" if heap < 4096 else "NOT met"))
+    print("heap / 4096 B = %.3f (goal < 1): %s" % (heap / 4096.0, "met" if heap < 4096 else "NOT met"))
     print(".mpy sizes: %s" % ", ".join("%s %d B" % kv for kv in sizes.items()))
-    print(".mpy total / 12288 B = %.2f (goal < 1): %s" % (total / 12288.0, "met" if total < 12288 else "NOT met"))
+    print(".mpy total / 12288 B = %.3f (goal < 1): %s" % (total / 12288.0, "met" if total < 12288 else "NOT met"))
 
 
 if __name__ == "__main__":
