@@ -17,7 +17,8 @@ from watch_helpers import demo_fit_params
 
 # One stream generator, run unchanged in both interpreters: ZX81-style LCG (x * 75 + 74) mod
 # 65537, every value below 2^23 so it allocates nothing on MicroPython either. The stream holds
-# hover and manoeuvres, a slow pack drain, +15 % / -15 % power segments, landings and garbage.
+# hover and manoeuvres, a slow pack drain, +15 % / -15 % power segments, landings, a stuck
+# current sensor and garbage.
 STREAM = r'''
 def run_stream(w, n, seed, stats):
     x = seed
@@ -56,6 +57,8 @@ def run_stream(w, n, seed, stats):
             ma = ma * 85 // 100
         if u < 60:
             ma = 120 + x % 7
+        elif 10000 <= k < 10040:
+            ma = 19000                 # a stuck current sensor in flight
         g = i % 997
         if g == 5:
             mv = 0
