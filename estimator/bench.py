@@ -72,7 +72,7 @@ def _read_head(path):
         for raw in fh:
             line_no += 1
             try:
-                line = raw.decode("utf-8").strip()
+                line = raw.decode("utf-8-sig" if line_no == 1 else "utf-8").strip()
             except UnicodeDecodeError:
                 raise InputError("%s: line %d: not UTF-8 text; expected a CSV with a "
                                  "name[unit] header" % (path, line_no)) from None
@@ -87,6 +87,10 @@ def _read_head(path):
                         comments[key] = parse_quantity(value.strip(), _COMMENT_KEYS[key],
                                                        "%s: line %d: # %s" % (path, line_no, key))
                 continue
+            if "," not in line and (";" in line or "\t" in line):
+                raise InputError("%s: line %d: the header is separated by %s; liftcal reads "
+                                 "comma-separated files (command[-],voltage[V],...)"
+                                 % (path, line_no, "semicolons" if ";" in line else "tabs"))
             return comments, [c for c in line.split(",")], line_no
     raise InputError("%s: no header row found; expected e.g. "
                      "command[-],voltage[V],current[A],thrust[N]" % path)

@@ -204,3 +204,19 @@ def test_read_bench_text_matches_file(tmp_path):
     b = read_bench(str(path))
     assert np.array_equal(a["thrust_N"], b["thrust_N"]) and a["input_sha256"] == b["input_sha256"]
     assert not math.isnan(a["bench_air"]["density_kg_m3"])
+
+
+def test_spreadsheet_export_with_bom_and_crlf_reads_like_the_plain_file(tmp_path):
+    text = simulate_sweep(seed=2)
+    plain = _fit_text(tmp_path, text, name="plain.csv")
+    path = tmp_path / "excel.csv"
+    path.write_bytes(("\ufeff" + text.replace("\n", "\r\n")).encode("utf-8"))
+    other = fit_bench_file(str(path))
+    # same numbers, other bytes: identical fit, different file hash
+    assert other["thrust_curve"] == plain["thrust_curve"]
+    assert other["provenance"]["input_sha256"] != plain["provenance"]["input_sha256"]
+
+
+def test_semicolon_separated_file_gets_a_clear_refusal(tmp_path):
+    with pytest.raises(InputError, match="semicolons"):
+        _fit_text(tmp_path, simulate_sweep(seed=2).replace(",", ";"))
