@@ -33,8 +33,13 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
     data = read_bench(path, diameter_m=diameter_m, density_kg_m3=density_kg_m3,
                       altitude_m=altitude_m, temperature_C=temperature_C,
                       pressure_Pa=pressure_Pa, humidity_pct=humidity_pct)
-    if data["diameter_m"] is None and vehicle is not None:
-        data["diameter_m"] = vehicle["propeller"]["diameter_m"]
+    if vehicle is not None:
+        d_vehicle = vehicle["propeller"]["diameter_m"]
+        if data["diameter_m"] is None:
+            data["diameter_m"] = d_vehicle
+        elif abs(data["diameter_m"] / d_vehicle - 1.0) > 0.01:
+            data["warnings"].append("the bench propeller (%.4g m) is not the vehicle's (%.4g m): the "
+                                    "hover values assume the bench propeller" % (data["diameter_m"], d_vehicle))
     if data["diameter_m"] is None:
         raise InputError("%s: the propeller diameter is needed for the static thrust factor; "
                          "add '# diameter: 10in' to the CSV, or pass --diameter or --vehicle" % path)
