@@ -309,19 +309,26 @@ def _bench_air(path, comments, density, altitude, temperature, pressure, humidit
     """Bench air density from options, then the comment header, else ISA sea level with a warning."""
     from estimator.core.atmosphere import site_air
 
-    density = density if density is not None else None
+    def air_from(altitude_m, temperature_C, pressure_Pa, humidity):
+        try:
+            return site_air(altitude_m, temperature_C, pressure_Pa, humidity)["density_kg_m3"]
+        except ValueError as exc:
+            raise InputError("%s: bench air: %s" % (path, exc)) from None
+
     if density is not None:
         rho, source = density, "option --density"
-    elif altitude is not None or pressure is not None:
-        air = site_air(altitude if altitude is not None else 0.0, temperature, pressure,
-                       humidity or 0.0)
-        rho, source = air["density_kg_m3"], "options (altitude/temperature/pressure)"
+    elif altitude is not None or pressure is not None or temperature is not None:
+        rho = air_from(altitude if altitude is not None else comments.get("altitude", 0.0),
+                       temperature if temperature is not None else comments.get("temperature"),
+                       pressure if pressure is not None else comments.get("pressure"),
+                       humidity if humidity is not None else comments.get("humidity", 0.0))
+        source = "options (altitude/temperature/pressure), file comments for the rest"
     elif "density" in comments:
         rho, source = comments["density"], "file comment '# density'"
     elif "altitude" in comments or "pressure" in comments:
-        air = site_air(comments.get("altitude", 0.0), comments.get("temperature"),
+        rho = air_from(comments.get("altitude", 0.0), comments.get("temperature"),
                        comments.get("pressure"), comments.get("humidity", 0.0))
-        rho, source = air["density_kg_m3"], "file comments (altitude/temperature/pressure)"
+        source = "file comments (altitude/temperature/pressure)"
     else:
         rho, source = 1.225, "assumed: ISA sea level (no bench air given)"
         warnings.append("no bench air in the file or options; assumed ISA sea level 1.225 kg/m^3 "

@@ -14,7 +14,7 @@ one bench sweep holds one air density, so the data cannot say otherwise.
 import numpy as np
 
 from estimator.errors import InputError
-from estimator.robust import HUBER_C, WORK_ROWS, huber_fit, mad_scale
+from estimator.robust import HUBER_C, WORK_ROWS, huber_fit
 
 # Voltage exponent used when the sweep holds no voltage spread: the DC motor model with a
 # resistive drop of 1/8 of the back-EMF, n = 2 (1 + r) / (1 + 2 r) = 1.8 at r = 0.125

@@ -220,3 +220,15 @@ def test_spreadsheet_export_with_bom_and_crlf_reads_like_the_plain_file(tmp_path
 def test_semicolon_separated_file_gets_a_clear_refusal(tmp_path):
     with pytest.raises(InputError, match="semicolons"):
         _fit_text(tmp_path, simulate_sweep(seed=2).replace(",", ";"))
+
+
+def test_bench_air_options_combine_with_the_file_comments(tmp_path):
+    path = _csv(tmp_path, "0.5,15,5,2\n" * 12, comments="# altitude: 300\n# diameter: 10in\n")
+    data = read_bench(path, temperature_C=35.0)
+    # 300 m from the file, 35 C from the option: ideal-gas density at the standard pressure of
+    # 300 m (ambiance, US Standard Atmosphere 1976), rho = p / (R_d T), R_d = 287.05 J/(kg K)
+    p = float(ambiance.Atmosphere(300.0).pressure[0])
+    assert data["bench_air"]["density_kg_m3"] == pytest.approx(p / (287.05 * (35.0 + 273.15)), rel=2e-4)
+    assert data["bench_air"]["source"].startswith("options")
+    with pytest.raises(InputError, match="bench air"):
+        read_bench(path, altitude_m=90000.0)
