@@ -2,11 +2,14 @@
 
 import json
 import os
+import sys
 import tempfile
 
 from estimator.errors import InputError
 
 SCHEMA_DIR = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "schemas")
+if not os.path.isdir(SCHEMA_DIR):  # a non-editable install: the copy under <prefix>/share
+    SCHEMA_DIR = os.path.join(sys.prefix, "share", "liftcal", "schemas")
 
 
 def load_json(path):

@@ -28,7 +28,7 @@ def run_demo(out_dir, seed=1):
     """Run pre-flight, bench-to-settings and watch on the demo scenario; return (report dict, text)."""
     from estimator.benchsim import simulate_sweep
     from estimator.demo_data import DEMO_VEHICLE
-    from estimator.export import export_settings, format_lines, load_map
+    from estimator.export import EXAMPLE_MAP, export_settings, format_lines, load_map
     from estimator.firmware import write_bundle
     from estimator.fit_sweep import fit_bench_file
     from estimator.flightsim import simulate_flight
@@ -54,8 +54,7 @@ def run_demo(out_dir, seed=1):
     write_params(path("params.json"), params)
     check_params(params, path("params.json"))
     fitted = hover_report(vehicle, params)
-    map_file = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))),
-                            "data", "example-map.json")
+    map_file = EXAMPLE_MAP
     settings = export_settings(params, load_map(map_file), map_file)
     write_atomic(path("settings.txt"), format_lines(settings))
     c, k = params["thrust_curve"], params["static_factor"]
