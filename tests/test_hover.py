@@ -71,10 +71,16 @@ def test_endurance_is_usable_charge_over_hover_current():
     assert r["hover_power_W"] == pytest.approx(r["hover_current_A"] * r["hover_bus_V"], rel=1e-9)
 
 
-def test_thrust_fraction_and_thrust_to_weight_are_reciprocal():
-    # Per rotor, fraction = W/N / T_full and T/W = N T_full / W, so their product is 1.
+def test_thrust_fraction_is_taken_at_the_hover_bus_voltage():
+    # Design notes sec. 3: fraction = T_needed / T_max "at that voltage", i.e. full duty with the
+    # bus held at the hover bus voltage. T/W uses full command on the same pack WITH the extra
+    # sag of full current, so fraction * T/W < 1; the gap is the sag: with the bus held, the
+    # DC motor model gives T_full(V) roughly proportional to V^n with n near 2 (common practice),
+    # so the product is about (V_full_bus / V_hover_bus)^2 (10 % allowed for n between 1.6 and 2).
     r = hover_report(vehicle())
-    assert r["hover_thrust_fraction"] * r["thrust_to_weight"] == pytest.approx(1.0, rel=1e-12)
+    product = r["hover_thrust_fraction"] * r["thrust_to_weight"]
+    assert product < 1.0
+    assert product == pytest.approx((r["full_bus_V"] / r["hover_bus_V"]) ** 2, rel=0.10)
 
 
 def test_heavier_vehicle_in_thinner_air_needs_more_command():

@@ -12,6 +12,7 @@ Sources: design notes sec. 3; the modules named above.
 from estimator.core.battery import endurance_min, pack_open_circuit_V, usable_capacity_Ah
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
+from estimator.core.motor import rotor_operating_point
 from estimator.core.propulsion import coaxial_propeller, shared_operating_point, shared_point_for_thrust
 
 PACK_STATES = ("full", "nominal", "empty")
@@ -43,7 +44,8 @@ def hover_at_pack(mass_kg, rotor_count, open_circuit_V, pack_resistance_ohm, den
     Returns a dict: hover (propulsion.shared_point_for_thrust result), full
     (propulsion.shared_operating_point at d = 1), command [-] or None when the vehicle
     cannot hover, thrust_to_weight [-] (full-command thrust / weight),
-    thrust_fraction [-] (thrust needed / full-command thrust), weight_N [N].
+    thrust_fraction [-] (thrust needed / full-command thrust at the hover bus voltage, the
+    definition the fitted thrust curve uses too; None when hover is out of reach), weight_N [N].
     Source: design notes sec. 3.
     """
     weight = mass_kg * STANDARD_GRAVITY_M_S2
@@ -53,12 +55,17 @@ def hover_at_pack(mass_kg, rotor_count, open_circuit_V, pack_resistance_ohm, den
     full = shared_operating_point(1.0, open_circuit_V, pack_resistance_ohm, rotor_count,
                                   density_kg_m3, motor, propeller, esc_efficiency)
     can_hover = hover["limited_by"] is None and full["total_thrust_N"] >= weight
+    fraction = None
+    if hover["bus_V"] is not None:
+        at_bus = rotor_operating_point(1.0, hover["bus_V"], density_kg_m3, motor, propeller, esc_efficiency)
+        if at_bus["thrust_N"] > 0.0:
+            fraction = per_rotor / at_bus["thrust_N"]
     return {
         "hover": hover,
         "full": full,
         "command": hover["duty"] if can_hover else None,
         "thrust_to_weight": full["total_thrust_N"] / weight,
-        "thrust_fraction": per_rotor / full["thrust_N"] if full["thrust_N"] > 0.0 else None,
+        "thrust_fraction": fraction,
         "weight_N": weight,
     }
 
