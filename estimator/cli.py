@@ -66,6 +66,9 @@ def main(argv=None):
     except click.exceptions.Abort:
         click.echo("error: aborted", err=True)
         sys.exit(2)
+    except click.exceptions.NoArgsIsHelpError as exc:
+        click.echo(exc.ctx.get_help() if exc.ctx is not None else cli.get_help(click.Context(cli)))
+        sys.exit(0)
     except click.ClickException as exc:
         msg = exc.format_message().replace("\n", " ")
         ctx_cmd = getattr(getattr(exc, "ctx", None), "command_path", "liftcal")

@@ -20,11 +20,11 @@ class Quantity(click.ParamType):
     def convert(self, value, param, ctx):
         if isinstance(value, float):
             return value
-        what = param.opts[0] if param is not None and param.opts else self.kind
+        # click's message already names the option: "Invalid value for '--diameter': ..."
         try:
-            si = parse_quantity(value, self.kind, what)
+            si = parse_quantity(value, self.kind, "")
         except InputError as exc:
-            self.fail(str(exc), param, ctx)
+            self.fail(str(exc).lstrip(": "), param, ctx)
         if self.positive and not si > 0:
-            self.fail("%s must be above zero, got %r" % (what, value), param, ctx)
+            self.fail("must be above zero, got %r" % (value,), param, ctx)
         return si

@@ -65,12 +65,21 @@ def _best(errors):
 
 
 def write_atomic(path, text):
-    """Write ``text`` to ``path`` through a temporary file and a rename: never a partial file."""
+    """Write ``text`` to ``path`` through a temporary file and a rename: never a partial file.
+
+    The file gets the usual permissions for a new file (0666 less the umask). Raises
+    InputError when the folder is missing or ``path`` is a folder.
+    """
     directory = os.path.dirname(os.path.abspath(path)) or "."
     if not os.path.isdir(directory):
         raise InputError("%s: folder %s does not exist" % (path, directory))
+    if os.path.isdir(path):
+        raise InputError("%s: is a folder; give a file name for the output" % path)
     fd, tmp = tempfile.mkstemp(prefix=".tmp-", dir=directory)
     try:
+        umask = os.umask(0)
+        os.umask(umask)
+        os.fchmod(fd, 0o666 & ~umask)
         with os.fdopen(fd, "w", encoding="utf-8") as fh:
             fh.write(text)
         os.replace(tmp, path)

@@ -64,10 +64,11 @@ def test_source_that_is_not_a_number(tmp_path):
 
 
 def test_example_map_uses_invented_names_only():
-    # project rule: the shipped example never uses a real firmware's parameter names; ours all
-    # carry the invented LC_ prefix, and the file says it is invented
+    # project rule: the shipped example never uses a real firmware's parameter names; ours are
+    # dotted lower-case names of our own (group.setting), unlike the upper-case names such
+    # firmware uses, and the file says it is invented
     mapping = load_map(EXAMPLE_MAP)
-    assert all(re.fullmatch(r"LC_[A-Z0-9_]+", s["name"]) for s in mapping["settings"])
+    assert all(re.fullmatch(r"[a-z]+\.[a-z_]+", s["name"]) for s in mapping["settings"])
     assert "INVENTED" in mapping["description"]
 
 
@@ -79,7 +80,7 @@ def test_cli_lines_and_json(tmp_path, capsys):
     params = load_params(WITH_HOVER)
     expected = export_settings(params, load_map(EXAMPLE_MAP))
     assert out == format_lines(expected)
-    assert out.splitlines()[0] == "LC_HOVER_CMD %d" % int(round(1000 * params["hover"]["hover_command"]))
+    assert out.splitlines()[0] == "hoverpoint.command_permille %d" % int(round(1000 * params["hover"]["hover_command"]))
     target = tmp_path / "settings.json"
     with pytest.raises(SystemExit) as exc:
         main(["export", WITH_HOVER, "--json", "--out", str(target)])

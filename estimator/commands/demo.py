@@ -24,8 +24,30 @@ def _rule(title):
     return "\n== %s %s" % (title, "=" * max(3, 66 - len(title)))
 
 
-def run_demo(out_dir, seed=1):
-    """Run pre-flight, bench-to-settings and watch on the demo scenario; return (report dict, text)."""
+class _Text(list):
+    """Collects the demo's text; with ``emit`` set, also prints each piece as soon as it exists."""
+
+    def __init__(self, emit):
+        super().__init__()
+        self.emit = emit
+
+    def append(self, item):
+        super().append(item)
+        if self.emit is not None:
+            self.emit(item)
+
+    def __iadd__(self, items):
+        for item in items:
+            self.append(item)
+        return self
+
+
+def run_demo(out_dir, seed=1, emit=None):
+    """Run pre-flight, bench-to-settings and watch on the demo scenario; return (report dict, text).
+
+    ``emit``, when given, is called with each piece of text as soon as its step is done.
+    """
+    from estimator.errors import InputError
     from estimator.benchsim import simulate_sweep
     from estimator.demo_data import DEMO_VEHICLE
     from estimator.export import EXAMPLE_MAP, export_settings, format_lines, load_map
@@ -36,9 +58,12 @@ def run_demo(out_dir, seed=1):
     from estimator.preflight import format_sheet, hover_report
     from estimator.replay import replay_file
 
+    if os.path.exists(out_dir) and not os.path.isdir(out_dir):
+        raise InputError("--out %s: is a file; give a folder for the demo's files" % out_dir)
     os.makedirs(out_dir, exist_ok=True)
     path = lambda name: os.path.join(out_dir, name)  # noqa: E731
-    text = ["liftcal demo - an INVENTED scenario: a 2.05 kg survey quad at a 1400 m, 28 C site;",
+    text = _Text(emit)
+    text += ["liftcal demo - an INVENTED scenario: a 2.05 kg survey quad at a 1400 m, 28 C site;",
             "its bench sweep and flights are simulated. Files go to %s" % out_dir]
 
     # 1. before the first flight: datasheet model
@@ -120,5 +145,8 @@ def demo(out_dir, as_json):
     Writes a vehicle file, a simulated bench sweep, its parameter set, exported settings,
     a board bundle and four simulated flights into DIR, and prints what each step found.
     """
-    report, text = run_demo(out_dir)
-    click.echo(dumps(report) if as_json else text)
+    if as_json:
+        report, _ = run_demo(out_dir)
+        click.echo(dumps(report))
+    else:
+        run_demo(out_dir, emit=click.echo)

@@ -27,6 +27,19 @@ def _load(params_file, vehicle_file):
     return params, vehicle
 
 
+EVENT_MEANING = {
+    "power_high": "more power than expected (bearing, winding, prop strike?)",
+    "power_low": "less power than expected (chipped or loose blade?)",
+    "sensor_fault": "reading out of range, stuck current or a bad sample gap",
+    "baseline_off": "power at flight start far from the bench fit (site, pack, other prop? units?)",
+    "mass_high": "implied all-up mass above plan (payload heavier than planned?)",
+}
+
+
+def _count(n, word):
+    return "%d %s%s" % (n, word, "" if n == 1 else "s")
+
+
 @click.command()
 @click.argument("params_file", metavar="PARAMS.json")
 @click.option("--out", "out_dir", required=True, metavar="DIR",
@@ -85,9 +98,15 @@ def replay(flight_file, params_file, vehicle_file, plot_file, as_json):
     if as_json:
         click.echo(dumps(out))
         return
-    lines = ["%s: %d samples, %d alarms, %d events" % (flight_file, out["samples"], out["alarms"], len(out["events"]))]
+    lines = ["%s: %d samples, %s, %s" % (flight_file, out["samples"], _count(out["alarms"], "alarm"),
+                                           _count(len(out["events"]), "event"))]
+    if not out["events"]:
+        lines.append("  no event: power stayed within what the parameter set expects")
     for e in out["events"]:
-        lines.append("  %9.1f s  %-13s residual %+.1f %%" % (e["t_s"], e["kind"], 100.0 * e["residual"]))
+        lines.append("  %9.1f s  %-13s %s" % (e["t_s"], e["kind"], EVENT_MEANING.get(e["kind"], "")
+                                              if e["kind"] == "sensor_fault" else
+                                              "residual %+.1f %%  %s" % (100.0 * e["residual"],
+                                                                         EVENT_MEANING.get(e["kind"], ""))))
     if plot_file:
         lines.append("plot: %s" % plot_file)
     lines.append("- " + WATCH_CAUTIONS[2])
