@@ -1,6 +1,6 @@
 """`liftcal demo` runs the three flows end to end on the invented demo scenario.
 
-What is checked is what a builder reads off the demo: the simulated clean flight raises
+What is checked is what a builder reads off the demo: the simulated fault-free flight raises
 no alarm and each injected fault raises its own kind (fault sizes of +-15 % and +15 %
 mass are the issue's acceptance numbers); every file the demo writes is valid input for
 the next command.
