@@ -6,12 +6,23 @@ power basis); the pack sags as V_bus = V_oc - I R with I = P / V_bus, so
 V_bus = (V_oc + sqrt(V_oc^2 - 4 R P)) / 2 (Thevenin pack, design notes sec. 3); the
 thrust curve inverted at (V_bus, rho_site) gives the hover command.
 The 95 % interval of the hover command is linearised propagation (delta method) of the
-thrust-curve covariance, +-1.96 standard errors, clipped to the command range 0..1.
+thrust-curve covariance, +-1.96 standard errors, clipped to the command range 0..1: it
+holds the bench-fit uncertainty only, not the spread of sites, packs or propellers.
+
+Motor current (per motor, against the maker's limit): with an ideal ESC (no loss) the motor
+current is the rotor's bus current over the ESC duty, I_motor = I_bus,rotor / d (power
+balance V_bus I_bus = d V_bus I_motor). The fitted curve does not know the duty itself; its
+own variable x = (u - u_min) / (u_max - u_min), the command above the start-up dead band, is
+taken as the duty (a real ESC with losses draws less motor current for the same bus current,
+so this errs high). At full command d = 1 and the motor current equals the rotor's bus
+current. Rotor bus current = pack current / N.
+
+The bench sweep holds the curve only over its own bus voltages; a pack whose hover voltage
+lies beyond them (e.g. a 6S vehicle on a 4S fit) is warned as an extrapolation.
 """
 
 import math
 
-from estimator.core.atmosphere import site_air
 from estimator.core.battery import endurance_min, max_pack_current_A, usable_capacity_Ah
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
 from estimator.core.thrust_curve import hover_command, scale_factor
@@ -20,6 +31,15 @@ from estimator.units import STANDARD_GRAVITY_M_S2
 
 INTERVAL_METHOD = ("linearised propagation (delta method) of the thrust-curve covariance, "
                    "+-1.96 standard errors, clipped to 0..1")
+# what the interval holds, in words for the sheet
+INTERVAL_SCOPE = "bench-fit uncertainty only; not site, pack or prop-to-prop spread"
+# bus voltages this far beyond the sweep's range count as extrapolation [-]; within it the
+# voltage exponent n ~ 1.8 moves thrust by under 4 %, about the fit's own power residual
+VOLTAGE_RANGE_TOLERANCE = 0.02
+# when the parameter set does not record the sweep's voltage range: a sweep on one pack type
+# spans about 3.5..4.2 V per cell, i.e. +-9 % around its middle; beyond +-12 % of the
+# reference voltage the pack is most likely another cell count [-]
+REFERENCE_VOLTAGE_BAND = 0.12
 Z_95 = 1.959964  # two-sided 95 % point of the standard normal [-]
 _NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
 
@@ -82,11 +102,29 @@ def _state(params, vehicle, rho, open_circuit_V):
     if v_bus is None:
         out["limited_by"] = "pack"
         return out
+    # full command: duty 1, so each motor carries its rotor's bus current (module docstring)
+    out["full_motor_current_A"] = out["full_pack_current_A"] / count
     cmd, fraction = hover_command(t_r, v_bus, rho, curve)
     out.update({"command": cmd, "fraction": fraction, "current_A": p_total / v_bus})
     if cmd is None:
         out["limited_by"] = "command"
+    else:
+        out["motor_current_A"] = motor_current_A(p_total / v_bus / count, cmd, curve)
     return out
+
+
+def motor_current_A(rotor_bus_current_A, command, curve):
+    """Motor current of one rotor from its bus current with an ideal ESC, I_m = I_bus / d.
+
+    rotor_bus_current_A: the rotor's share of the pack current [A]; command: u [-];
+    curve: thrust_curve block. The duty d is the command above the start-up dead band,
+    x = (u - u_min) / (u_max - u_min) (module docstring; errs high for a lossy ESC).
+    Returns I_m [A], or None at or below the dead band. Source: power balance of an ideal ESC.
+    """
+    duty = (command - curve["command_min"]) / (curve["command_max"] - curve["command_min"])
+    if not duty > 0.0:
+        return None
+    return rotor_bus_current_A / min(duty, 1.0)
 
 
 def hover_interval(params, thrust_N, voltage_V, density_kg_m3):
@@ -122,12 +160,39 @@ def hover_interval(params, thrust_N, voltage_V, density_kg_m3):
 
 
 def _site(vehicle):
-    site = vehicle.get("site", {})
-    try:
-        return site_air(site.get("altitude_m", 0.0), site.get("temperature_C"),
-                        site.get("pressure_Pa"), site.get("humidity_pct", 0.0))
-    except ValueError as exc:
-        raise InputError("$.site: %s" % exc) from None
+    from estimator.preflight import vehicle_site_air
+    return vehicle_site_air(vehicle)
+
+
+def voltage_range_warning(params, voltages):
+    """A warning when bus voltages lie beyond the bench sweep's, or None.
+
+    params: parameter set; voltages: list of (label, bus voltage [V]) where the model
+    evaluates the thrust curve. Uses thrust_curve.voltage_min_V / voltage_max_V (the sweep's
+    range) when the parameter set has them, else a band of +-REFERENCE_VOLTAGE_BAND around
+    reference_voltage_V (module constants).
+    """
+    curve = params["thrust_curve"]
+    v_ref = curve["reference_voltage_V"]
+    lo, hi = curve.get("voltage_min_V"), curve.get("voltage_max_V")
+    recorded = lo is not None and hi is not None
+    if recorded:
+        lo_ok, hi_ok = lo * (1.0 - VOLTAGE_RANGE_TOLERANCE), hi * (1.0 + VOLTAGE_RANGE_TOLERANCE)
+    else:
+        lo_ok, hi_ok = v_ref * (1.0 - REFERENCE_VOLTAGE_BAND), v_ref * (1.0 + REFERENCE_VOLTAGE_BAND)
+    outside = ["%.1f V (%s)" % (v, label) for label, v in voltages
+               if v is not None and not lo_ok <= v <= hi_ok]
+    if not outside:
+        return None
+    if recorded:
+        swept = "the bench sweep ran at %.1f..%.1f V" % (lo, hi)
+    else:
+        swept = ("against its reference voltage %.1f V; the parameter set does not record the "
+                 "sweep's range" % v_ref)
+    return ("pack voltage beyond the bench sweep: %s, %s; thrust and power are extrapolated with "
+            "the voltage exponent %.2f, so hover command, currents and margins may be well off "
+            "(another cell count?): sweep the rotor at this pack's voltage"
+            % (", ".join(outside), swept, curve["voltage_exponent"]))
 
 
 def hover_from_params(vehicle, params):
@@ -140,6 +205,7 @@ def hover_from_params(vehicle, params):
     warnings, and the keys the pre-flight sheet shows.
     """
     from estimator.preflight import CAUTIONS, margin_warnings
+    from estimator.vehicle import assumed_warnings
 
     air = _site(vehicle)
     rho = air["density_kg_m3"]
@@ -164,6 +230,7 @@ def hover_from_params(vehicle, params):
         "hover_command_interval_95": interval,
         "hover_command_standard_error": se,
         "interval_method": INTERVAL_METHOD,
+        "interval_scope": INTERVAL_SCOPE,
         "hover_thrust_fraction": nom["fraction"],
         "thrust_to_weight": nom["full_thrust_N"] / nom["weight_N"],
         "hover_current_A": nom["current_A"],
@@ -175,7 +242,8 @@ def hover_from_params(vehicle, params):
         "thrust_per_rotor_N": nom["thrust_per_rotor_N"], "full_thrust_N": nom["full_thrust_N"],
         "hover_bus_V": nom["bus_V"] if hovering else None,
         "full_bus_V": nom["full_bus_V"], "full_pack_current_A": nom["full_pack_current_A"],
-        "full_motor_current_A": None, "hover_motor_current_A": None,
+        "full_motor_current_A": nom["full_motor_current_A"],
+        "hover_motor_current_A": nom.get("motor_current_A") if hovering else None,
         "motor_current_limit_A": vehicle["motor"].get("max_current_A"),
         "pack_current_limit_A": max_pack_current_A(b["capacity_Ah"], b.get("max_discharge_C")),
         "pack_voltage_V": {k: states[k]["open_circuit_V"] for k in states},
@@ -185,7 +253,14 @@ def hover_from_params(vehicle, params):
         "static_factor": k_at["k0"] + k_at["slope_per_N"] * nom["thrust_per_rotor_N"],
         "per_rotor_bus_current_A": (nom["current_A"] / count) if hovering else None,
     }
-    warnings = margin_warnings(report)
+    warnings = assumed_warnings(vehicle) + margin_warnings(report)
+    volts = [("hover bus, %s pack" % name if states[name]["command"] is not None
+               else "open circuit, %s pack" % name,
+              states[name]["bus_V"] if states[name]["command"] is not None else states[name]["open_circuit_V"])
+             for name in ("full", "nominal", "empty")]
+    extrapolated = voltage_range_warning(params, volts)
+    if extrapolated:
+        warnings.append(extrapolated)
     bench_rho = params["thrust_curve"]["reference_density_kg_m3"]
     if abs(rho / bench_rho - 1.0) > 0.15:
         warnings.append("the site air (%.3f kg/m^3) differs from the bench air (%.3f kg/m^3) by more "
@@ -195,9 +270,6 @@ def hover_from_params(vehicle, params):
         warnings.append("the thrust curve was measured on an isolated rotor; lower rotors of a "
                         "coaxial pair make less thrust at the same command, so the hover command "
                         "is underestimated (power includes the 1.28 induced-power factor)")
-    if hovering and report["per_rotor_bus_current_A"] > (vehicle["motor"].get("max_current_A") or 1e9):
-        warnings.append("hover draws %.1f A per rotor from the bus, above the motor limit %.0f A"
-                        % (report["per_rotor_bus_current_A"], vehicle["motor"]["max_current_A"]))
     report["warnings"] = warnings + list(params.get("warnings", []))
     report["cautions"] = list(CAUTIONS)
     return report
@@ -209,11 +281,19 @@ def hover_block(vehicle, params):
     Raises InputError when the vehicle cannot hover on this rotor (there is no hover command
     to store).
     """
+    from estimator.vehicle import vehicle_source
+
     r = hover_from_params(vehicle, params)
     if r["hover_command"] is None:
-        raise InputError("the vehicle cannot hover with this rotor at nominal pack (%s); the "
-                         "parameter set would have no hover values: %s"
-                         % (r["hover_limited_by"], "; ".join(r["warnings"][:1])))
+        why = {"pack": "the pack cannot deliver the hover power",
+               "command": "full command does not lift it"}.get(r["hover_limited_by"], "no hover command")
+        bench = (params.get("provenance") or {}).get("input_file")
+        raise InputError("%s: this vehicle cannot hover on the rotor fitted from %s at nominal pack "
+                         "(%s): %s; lighten it or fit more thrust, or fit without --vehicle (the "
+                         "parameter set would have no hover values)"
+                         % (vehicle_source(vehicle, "the vehicle"), bench or "the bench sweep", why,
+                            "; ".join([w for w in r["warnings"] if w.startswith("cannot hover")][:1])
+                            .replace("cannot hover: ", "")))
     return {
         "hover_command": r["hover_command"],
         "hover_command_interval_95": r["hover_command_interval_95"],

@@ -47,7 +47,11 @@ def json_path(error_path):
 def validate(document, schema_name, source):
     """Validate ``document`` against ``schemas/<schema_name>`` (draft 2020-12).
 
-    Raises InputError naming ``source`` and the JSON path of the first (deepest) problem.
+    Raises InputError naming ``source`` and the JSON path of the first (deepest) problem,
+    with the likely cause where one can be told from the document itself: a missing key
+    next to an unknown key spelled like it (a typo), an unknown key spelled like an allowed
+    one, a number outside its bounds that a unit slip (g for kg, mm for m, mAh for Ah, hPa
+    for Pa ...) would bring inside.
     """
     import jsonschema  # imported here: keeps `liftcal --help` light
 
@@ -56,12 +60,131 @@ def validate(document, schema_name, source):
     errors = sorted(validator.iter_errors(document), key=lambda e: (len(list(e.absolute_path)), str(e.message)))
     if errors:
         err = errors[-1] if len(errors) == 1 else _best(errors)
-        raise InputError("%s: %s: %s" % (source, json_path(err.absolute_path), err.message))
+        raise InputError("%s: %s: %s%s" % (source, json_path(err.absolute_path), err.message, _likely_cause(err)))
 
 
 def _best(errors):
     from jsonschema.exceptions import best_match
     return best_match(errors)
+
+
+# unit named by the end of a key (``mass_kg``) -> (kind in estimator.units, slips to try in
+# order); keys starting with "altitude" are heights (ft, km), not lengths (mm, in)
+_KEY_UNITS = {
+    "kg": ("mass", ("g", "lb")), "m": ("length", ("mm", "cm", "in")), "Ah": ("capacity", ("mAh",)),
+    "V": ("voltage", ("mV",)), "A": ("current", ("mA",)), "W": ("power", ("mW", "kW")),
+    "N": ("force", ("g", "kgf", "lbf")), "Pa": ("pressure", ("hPa", "kPa", "bar")),
+    "C": ("temperature", ("K", "F")),
+}
+_CLOSE = 0.6  # difflib similarity above which two keys count as the same word misspelt
+
+
+def _unknown_keys(err):
+    """Keys of the failing object that its schema does not name (None when it names none)."""
+    props = err.schema.get("properties") if isinstance(err.schema, dict) else None
+    if not isinstance(err.instance, dict) or props is None:
+        return None
+    return [k for k in err.instance if k not in props]
+
+
+def _likely_cause(err):
+    """A short "; did you mean ..." for a schema error, or ""."""
+    import difflib
+
+    if err.validator == "required" and isinstance(err.instance, dict):
+        unknown = _unknown_keys(err) or []
+        for key in err.validator_value:
+            if key not in err.instance:
+                close = difflib.get_close_matches(key, unknown, 1, _CLOSE)
+                if close:
+                    return "; the file has %r there instead: a typo for %r?" % (close[0], key)
+        return ""
+    if err.validator == "additionalProperties":
+        props = list(err.schema.get("properties", {}))
+        free = [k for k in props if k not in err.instance]
+        given = [k for k in props if k in err.instance]
+        hints = []
+        for key in _unknown_keys(err) or []:
+            close = difflib.get_close_matches(key, free, 1, _CLOSE)
+            if close:
+                hints.append("did you mean %r for %r?" % (close[0], key))
+                continue
+            close = difflib.get_close_matches(key, given, 1, _CLOSE)
+            if close:
+                hints.append("%r repeats %r, which is already given: remove it" % (key, close[0]))
+        return ("; " + "; ".join(hints)) if hints else ""
+    if err.validator in ("maximum", "exclusiveMaximum", "minimum", "exclusiveMinimum"):
+        path = list(err.absolute_path)
+        key = path[-1] if path and isinstance(path[-1], str) else ""
+        unit = key.rsplit("_", 1)[-1] if "_" in key else ""
+        if unit not in _KEY_UNITS or isinstance(err.instance, bool):
+            return ""
+        kind, slips = _KEY_UNITS[unit]
+        if key.startswith("altitude"):
+            kind, slips = "altitude", ("ft", "km")
+        slip = unit_slip(err.instance, kind, slips, err.schema)
+        if slip is None:
+            return ""
+        return "; given in %s instead of %s? %g %s = %.4g %s" % (slip[0], unit, err.instance, slip[0],
+                                                                slip[1], unit)
+    return ""
+
+
+def bounds_of(schema):
+    """(lo, lo_open, hi, hi_open) of a number schema; None for a side without a bound."""
+    lo, lo_open = schema.get("minimum"), False
+    if "exclusiveMinimum" in schema:
+        lo, lo_open = schema["exclusiveMinimum"], True
+    hi, hi_open = schema.get("maximum"), False
+    if "exclusiveMaximum" in schema:
+        hi, hi_open = schema["exclusiveMaximum"], True
+    return lo, lo_open, hi, hi_open
+
+
+def within(value, schema):
+    """True when ``value`` satisfies the bounds of a number schema."""
+    lo, lo_open, hi, hi_open = bounds_of(schema)
+    if lo is not None and (value <= lo if lo_open else value < lo):
+        return False
+    if hi is not None and (value >= hi if hi_open else value > hi):
+        return False
+    return True
+
+
+def unit_slip(value, kind, slips, schema):
+    """The likeliest unit slip behind a number outside a number schema's bounds.
+
+    value: the number as given (read in the schema's unit); kind: an estimator.units kind
+    ("mass", "length", ...); slips: unit suffixes of that kind to try; schema: the number's
+    schema (bounds, optional "examples" with a typical value). Returns (suffix, value in
+    the schema's unit) for the slip that brings the number inside the bounds and nearest
+    the typical value (else the middle of the bounds), or None when no slip does.
+    """
+    import math
+
+    from estimator.units import parse_quantity
+
+    if not isinstance(value, (int, float)) or not math.isfinite(value) or value == 0:
+        return None
+    lo, _, hi, _ = bounds_of(schema)
+    typical = (schema.get("examples") or [None])[0]
+    linear = kind == "temperature"  # an offset scale: compare differences, not ratios
+    if typical is None and lo is not None and hi is not None:
+        typical = 0.5 * (lo + hi) if linear else math.sqrt(max(lo, hi * 1e-3) * hi)
+    best = None
+    for suffix in slips:
+        si = parse_quantity("%r%s" % (float(value), suffix), kind)
+        if not within(si, schema):
+            continue
+        if typical is None:
+            score = 0.0
+        elif linear:
+            score = abs(si - typical)
+        else:
+            score = abs(math.log(si / typical)) if si > 0 and typical > 0 else float("inf")
+        if best is None or score < best[0]:
+            best = (score, suffix, si)
+    return None if best is None else (best[1], best[2])
 
 
 def write_atomic(path, text):

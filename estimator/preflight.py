@@ -14,6 +14,7 @@ from estimator.core.hover import hover_estimate, rotor_propeller
 from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_merit,
                                      induced_velocity_m_s, static_factor)
 from estimator.errors import InputError
+from estimator.vehicle import assumed_warnings, vehicle_source
 
 # Warning thresholds (common practice for multirotors, not a standard):
 HOVER_COMMAND_LIMIT = 0.6  # hover above 0.6 of full command leaves little for control
@@ -21,6 +22,9 @@ THRUST_TO_WEIGHT_MIN = 2.0  # T/W of 2 puts hover near 0.67 command (thrust ~ co
 THIN_AIR_DENSITY_RATIO = 0.9  # below 90 % of 1.225 kg/m^3 thrust margins shrink noticeably
 
 MODEL = "liftcal.dc-motor-momentum/1"
+# the datasheet model takes command = ESC duty; a real ESC only starts the motor above a
+# dead band, so a bench fit reports a higher hover command for the same set
+DUTY_NOTE = "command = ESC duty; a real ESC's start-up dead band adds to it: fit a bench sweep"
 
 CAUTIONS = [
     "These numbers are estimates: confirm them with a tethered or low hover test before the real flight.",
@@ -44,11 +48,7 @@ def hover_report(vehicle, params=None):
         return report
 
     site = vehicle.get("site", {})
-    try:
-        air = site_air(site.get("altitude_m", 0.0), site.get("temperature_C"),
-                       site.get("pressure_Pa"), site.get("humidity_pct", 0.0))
-    except ValueError as exc:
-        raise InputError("$.site: %s" % exc) from None
+    air = vehicle_site_air(vehicle)
     rho = air["density_kg_m3"]
     rotors = vehicle["rotors"]
     layout = rotors.get("layout", "flat")
@@ -108,9 +108,25 @@ def hover_report(vehicle, params=None):
         "coaxial_factor_basis": "power",
         "esc_efficiency": esc_eff,
     }
-    report["warnings"] = margin_warnings(report)
+    report["warnings"] = assumed_warnings(vehicle) + margin_warnings(report)
     report["cautions"] = list(CAUTIONS)
     return report
+
+
+_SITE_KEYS = {"altitude": "altitude_m", "temperature": "temperature_C", "pressure": "pressure_Pa",
+              "humidity": "humidity_pct"}
+
+
+def vehicle_site_air(vehicle):
+    """Site air of a vehicle (core.atmosphere.site_air); InputError naming file and JSON key."""
+    from estimator.core.atmosphere import AirInputError
+
+    site = vehicle.get("site", {})
+    try:
+        return site_air(site.get("altitude_m", 0.0), site.get("temperature_C"),
+                        site.get("pressure_Pa"), site.get("humidity_pct", 0.0))
+    except AirInputError as exc:
+        raise InputError("%s: $.site.%s: %s" % (vehicle_source(vehicle), _SITE_KEYS[exc.quantity], exc)) from None
 
 
 def margin_warnings(report):
@@ -201,7 +217,9 @@ def format_sheet(report):
         interval = report.get("hover_command_interval_95")
         if interval:
             lines.append("         95 %% interval %.3f..%.3f (%s)"
-                         % (interval[0], interval[1], report.get("interval_method", "fit uncertainty")))
+                         % (interval[0], interval[1], report.get("interval_scope", "bench-fit uncertainty only")))
+        if report.get("model") == MODEL:
+            lines.append("         " + DUTY_NOTE)
     else:
         lines.append("   NO - it cannot hover: full-command thrust %s against a weight of %s." % (
             _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("weight_N"), "%.1f", "N")))
@@ -217,12 +235,13 @@ def format_sheet(report):
     lines.append("   full-command thrust %s total, each rotor must make %s" % (
         _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("thrust_per_rotor_N"), "%.2f", "N")))
     if report.get("hover_motor_current_A") is not None or report.get("full_motor_current_A") is not None:
-        lines.append("   motor current      %s at hover, %s at full command (limit %s)" % (
+        lines.append("   current per motor  %s at hover, %s at full command (motor limit %s)" % (
             _num(report.get("hover_motor_current_A"), "%.1f", "A"),
             _num(report.get("full_motor_current_A"), "%.1f", "A"),
             _num(report.get("motor_current_limit_A"), "%.0f", "A", none="not given")))
-    lines.append("   pack current       %s at full command (rating %s)" % (
-        _num(report.get("full_pack_current_A"), "%.0f", "A"),
+    lines.append("   pack current       %s at hover, %s at full command, all %d motors (rating %s)" % (
+        _num(report.get("hover_current_A"), "%.1f", "A", none="no hover"),
+        _num(report.get("full_pack_current_A"), "%.0f", "A"), report.get("rotor_count", 0),
         _num(report.get("pack_current_limit_A"), "%.0f", "A", none="not given")))
     lines.append("")
 
@@ -230,7 +249,7 @@ def format_sheet(report):
     if report.get("can_hover"):
         lines.append("   about %s of hover on %s usable" % (
             _num(report.get("flight_time_min"), "%.1f", "min"), _num(report.get("usable_Ah"), "%.2f", "Ah")))
-        lines.append("   hover draws %s, %s (nominal pack, bus at %s)" % (
+        lines.append("   hover draws %s from the pack (all motors), %s (nominal pack, bus at %s)" % (
             _num(report.get("hover_current_A"), "%.1f", "A"), _num(report.get("hover_power_W"), "%.0f", "W"),
             _num(report.get("hover_bus_V"), "%.2f", "V")))
         extras = []

@@ -99,7 +99,8 @@ def test_vehicle_that_cannot_hover_exits_0_with_null_command(tmp_path):
     (("static", "--diameter", "10in", "--power", "100", "--factor", "1.3"), ("--factor", "above 1")),
     (("air", "--altitude", "1400furlong"), ("--altitude", "unknown unit")),
     (("air", "--humidity", "130%"), ("--humidity",)),
-    (("air", "--altitude", "40km"), ("20000 m",)),
+    # the site bounds of schemas/vehicle.schema.json ($.site.altitude_m: -500..9000 m)
+    (("air", "--altitude", "40km"), ("--altitude", "40000 m", "-500..9000 m")),
 ])
 def test_bad_options_give_one_error_line(args, needles):
     assert_one_error_line(run(*args), *needles)
@@ -159,3 +160,125 @@ def test_hover_with_params_uses_the_fitted_flow():
     sheet = run("hover", DEMO_FILE, "--params", params)
     assert sheet.returncode == 0 and "95 % interval" in sheet.stdout and "n/a" not in sheet.stdout
     assert_one_error_line(run("hover", DEMO_FILE, "--params", os.path.join(ROOT, "nope.json")), "nope.json")
+
+
+# Implausible bare numbers: refused with the bound, its unit and the likely slip. Expected
+# slips: 10 in = 0.254 m, 1 hPa = 100 Pa, 1 ft = 0.3048 m, 1 kW = 1000 W, 1 gf = 9.80665 mN
+# (NIST SP 811, exact); 300 K = 26.85 C (definition of the kelvin). The bounds are those of
+# schemas/vehicle.schema.json (site, propeller and $defs.limits).
+@pytest.mark.parametrize("args, needles", [
+    (("static", "--diameter", "10", "--power", "70"), ("--diameter", "10 m: did you mean 10in?", "0.01..3 m")),
+    (("static", "--diameter", "254", "--power", "70"), ("--diameter", "254 m: did you mean 254mm?")),
+    (("air", "--pressure", "1013"), ("--pressure", "1013 Pa: did you mean 1013hPa?", "30000..110000 Pa")),
+    (("air", "--temperature", "300"), ("--temperature", "300 C: did you mean 300K?", "-60..50 C")),
+    (("air", "--altitude", "12000"), ("--altitude", "12000 m: did you mean 12000ft?", "-500..9000 m")),
+    (("air", "--humidity", "130"), ("--humidity", "130 %", "0..100 %")),
+    (("static", "--diameter", "10in", "--power", "0.07"), ("--power", "0.07 W: did you mean 0.07kW?", "W")),
+    (("static", "--diameter", "10in", "--thrust", "850"), ("--thrust", "N/m^2", "did you mean 850g?")),
+    (("static", "--diameter", "10in", "--power", "70", "--density", "1225"), ("--density", "0.25..1.8 kg/m^3")),
+    (("static", "--diameter", "10in", "--power", "70", "--factor", "30"),
+     ("--factor", "above 1", "did you mean 0.3 (a fraction, not 30 %)?")),
+    (("static", "--diameter", "10in", "--power", "70", "--altitude", "1013", "--pressure", "1013"),
+     ("--pressure", "1013hPa")),
+])
+def test_implausible_numbers_are_refused_with_the_bound_and_the_slip(args, needles):
+    assert_one_error_line(run(*args), *needles)
+
+
+def test_a_unit_typed_explicitly_gets_no_slip_guess():
+    # 33 ft = 10.0584 m (NIST SP 811): outside the bound, but the person chose the unit
+    line = assert_one_error_line(run("static", "--diameter", "33ft", "--power", "70"), "33ft = 10.0584 m", "0.01..3 m")
+    assert "did you mean" not in line
+
+
+@pytest.mark.parametrize("args", [
+    ("static", "--diameter", "3m", "--power", "50kW"),  # both at the upper bound (inclusive)
+    ("static", "--diameter", "1cm", "--power", "0.1W"),  # both at the lower bound (inclusive)
+    ("air", "--altitude", "9000m", "--pressure", "300hPa", "--temperature", "-60C", "--humidity", "100"),
+    ("air", "--altitude", "-500m", "--pressure", "1100hPa", "--temperature", "50C"),
+    ("static", "--diameter", "10in", "--power", "70", "--factor", "1"),  # k = 1: the ideal disk
+])
+def test_values_at_the_bounds_are_accepted(args):
+    out = run(*args)
+    assert out.returncode == 0, out.stderr
+
+
+def test_option_bounds_are_the_vehicle_schema_bounds():
+    # one place for the limits: the options read schemas/vehicle.schema.json
+    from estimator.vehicle import QUANTITIES, quantity_schema
+    with open(os.path.join(ROOT, "schemas", "vehicle.schema.json"), encoding="utf-8") as fh:
+        schema = json.load(fh)
+    site = schema["properties"]["site"]["properties"]
+    for name, key in (("altitude", "altitude_m"), ("temperature", "temperature_C"),
+                      ("pressure", "pressure_Pa"), ("humidity", "humidity_pct")):
+        assert quantity_schema(name)["minimum"] == site[key]["minimum"]
+        assert quantity_schema(name)["maximum"] == site[key]["maximum"]
+    assert quantity_schema("diameter") == schema["properties"]["propeller"]["properties"]["diameter_m"]
+    for name in ("power", "thrust", "density", "factor", "disk_loading"):
+        assert quantity_schema(name) is not None and QUANTITIES[name][0][0] == "$defs"
+
+
+def test_air_errors_name_only_the_option_at_fault():
+    line = assert_one_error_line(run("air", "--temperature", "-300C"), "--temperature", "-300 C", "-60..50 C")
+    assert "--altitude" not in line and "--pressure" not in line
+    # past the option bounds, the core's own range errors are mapped to the option too
+    from estimator.commands.preflight import _air
+    from estimator.errors import InputError
+    for args, option in (((40000.0, None, None, 0.0), "--altitude"), ((0.0, -300.0, None, 0.0), "--temperature"),
+                         ((0.0, None, -5.0, 0.0), "--pressure"), ((0.0, None, None, 130.0), "--humidity"),
+                         ((0.0, -90.0, None, 50.0), "--temperature")):  # Buck (1981) fit ends at -80 C
+        with pytest.raises(InputError) as info:
+            _air(*args)
+        assert str(info.value).startswith(option + ": "), str(info.value)
+
+
+def test_static_shows_what_good_sets_reach_beside_the_rule_of_thumb():
+    res = run_json("static", "--diameter", "10in", "--power", "70")
+    # T = k (2 rho A P^2)^(1/3) is linear in k (design notes sec. 3), so the thrust at k = 0.5
+    # and 0.7 is the k = 0.3 thrust times 5/3 and 7/3; 1e-12: the same formula, rounding only
+    assert res["static_factor"] == 0.3
+    assert res["thrust_N_at_k_0_5"] == pytest.approx(res["thrust_N"] * 0.5 / 0.3, rel=1e-12)
+    assert res["thrust_N_at_k_0_7"] == pytest.approx(res["thrust_N"] * 0.7 / 0.3, rel=1e-12)
+    text = run("static", "--diameter", "10in", "--power", "70").stdout
+    assert "good small sets reach k 0.5..0.7: %.2f..%.2f N" % (res["thrust_N_at_k_0_5"], res["thrust_N_at_k_0_7"]) in text
+    assert "clamped, guarded stand" in text  # the bench caution stays
+    back = run_json("static", "--diameter", "10in", "--thrust", "5N")
+    # P = (T / k)^1.5 / sqrt(2 rho A): P scales as k^-1.5 (same formula solved for P)
+    assert back["power_W_at_k_0_5"] == pytest.approx(back["power_W"] * (0.3 / 0.5) ** 1.5, rel=1e-12)
+    assert back["power_W_at_k_0_7"] == pytest.approx(back["power_W"] * (0.3 / 0.7) ** 1.5, rel=1e-12)
+    given = run("static", "--diameter", "10in", "--power", "70", "--factor", "0.6").stdout
+    assert "good small sets" not in given  # the range is shown beside the default only
+
+
+def test_hover_refuses_a_parameter_set_or_a_map_given_as_the_vehicle():
+    params = os.path.join(ROOT, "schemas", "examples", "valid", "params-demo-with-hover.json")
+    assert_one_error_line(run("hover", params), "params-demo-with-hover.json", "parameter set", "--params")
+    mapping = os.path.join(ROOT, "schemas", "examples", "valid", "map-example.json")
+    assert_one_error_line(run("hover", mapping), "map-example.json", "export map")
+
+
+def test_vehicle_file_slips_give_one_error_line_with_the_cause(tmp_path):
+    cases = []
+    doc = json.loads(json.dumps(DEMO_VEHICLE))
+    doc["mas_kg"] = doc.pop("mass_kg")
+    cases.append((doc, ("$", "'mass_kg' is a required property", "'mas_kg'", "typo")))
+    doc = json.loads(json.dumps(DEMO_VEHICLE))
+    doc["site"]["altitude"] = doc["site"].pop("altitude_m")
+    cases.append((doc, ("$.site", "'altitude'", "did you mean 'altitude_m'")))
+    # 2050 g = 2.05 kg (definition of the gram)
+    cases.append((dict(DEMO_VEHICLE, mass_kg=2050), ("$.mass_kg", "maximum of 200", "g instead of kg", "2.05 kg")))
+    for i, (doc, needles) in enumerate(cases):
+        path = tmp_path / ("slip%d.json" % i)
+        path.write_text(json.dumps(doc))
+        assert_one_error_line(run("hover", str(path)), "slip%d.json" % i, *needles)
+
+
+def test_vehicle_without_site_is_warned_as_sea_level(tmp_path):
+    doc = json.loads(json.dumps(DEMO_VEHICLE))
+    del doc["site"]
+    path = tmp_path / "nosite.json"
+    path.write_text(json.dumps(doc))
+    res = run_json("hover", str(path))
+    assert any("no site" in w and "sea level" in w for w in res["warnings"]), res["warnings"]
+    assert res["density_kg_m3"] == pytest.approx(1.225, rel=1e-4)  # ISA sea level (table value, 4 digits)
+    assert not any("no site" in w for w in run_json("hover", DEMO_FILE)["warnings"])

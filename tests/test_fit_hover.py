@@ -158,3 +158,94 @@ def test_liftcal_hover_with_params(fitted, tmp_path, capsys):
     report = json.loads(out)
     assert report["hover_command"] == pytest.approx(params["hover"]["hover_command"], abs=1e-5)
     assert math.isfinite(report["flight_time_min"])
+
+
+def _six_cell(vehicle, **battery):
+    v = json.loads(json.dumps(vehicle))
+    v["battery"].update(dict({"cells": 6}, **battery))
+    return v
+
+
+def test_fitted_sheet_keeps_the_motor_and_pack_current_checks(fitted):
+    vehicle, params, _ = fitted
+    report = hover_from_params(_six_cell(vehicle, max_discharge_C=20), params)  # 6S on the 4S fit
+    count = vehicle["rotors"]["count"]
+    # ideal ESC (fitted_hover docstring): at full command duty 1, motor current = rotor bus
+    # current = pack current / N; exact by construction
+    assert report["full_motor_current_A"] == pytest.approx(report["full_pack_current_A"] / count, rel=1e-12)
+    # in hover I_motor = I_bus,rotor / x with x = (u - u_min) / (u_max - u_min)
+    c = params["thrust_curve"]
+    x = (report["hover_command"] - c["command_min"]) / (c["command_max"] - c["command_min"])
+    assert report["hover_motor_current_A"] == pytest.approx(report["hover_current_A"] / count / x, rel=1e-12)
+    limit = vehicle["motor"]["max_current_A"]
+    assert report["full_motor_current_A"] > limit  # the case the trial found (about 40 A on 30 A)
+    # the datasheet sheet's own wording: one shared function (estimator.preflight.margin_warnings)
+    assert any(w.startswith("full command draws %.1f A per motor, above the motor limit %.0f A"
+                            % (report["full_motor_current_A"], limit)) for w in report["warnings"])
+    # 20 C x 5 Ah = 100 A (definition of C-rate) is below the full-command pack current
+    assert report["full_pack_current_A"] > 100.0
+    assert any("above its rating of 100 A" in w for w in report["warnings"])
+    assert any(w.startswith("pack voltage beyond the bench sweep") for w in report["warnings"])
+    assert not any("per rotor from the bus" in w for w in report["warnings"])  # no second copy
+
+
+def test_fitted_hover_motor_current_errs_high_against_the_physics(fitted):
+    # reference: the simulator's DC motor + ESC (benchsim) at the fitted hover command and
+    # hover bus voltage. Taking the curve's x as the duty (the dead band of the fit, 0.14,
+    # sits above the simulator's 0.06) and ignoring the ESC's 5 % loss both err high, never
+    # low; here x = 0.47 against duty 0.51 and 5 % loss give about +15 %, bounded by 25 %
+    from estimator.benchsim import DEAD_BAND, ESC_EFFICIENCY, demo_rotor
+    from estimator.core.motor import rotor_operating_point
+    vehicle, params, _ = fitted
+    bench_vehicle = dict(vehicle, site={"pressure_Pa": 97800.0, "temperature_C": 21.0})
+    report = hover_from_params(bench_vehicle, params)
+    motor, prop = demo_rotor()
+    duty = (report["hover_command"] - DEAD_BAND) / (1.0 - DEAD_BAND)
+    true = rotor_operating_point(duty, report["hover_bus_V"], report["density_kg_m3"], motor, prop, ESC_EFFICIENCY)
+    assert true["motor_current_A"] <= report["hover_motor_current_A"] <= 1.25 * true["motor_current_A"]
+
+
+def test_voltage_range_warning_uses_the_sweep_range_when_recorded(fitted):
+    from estimator.fitted_hover import voltage_range_warning
+    _, params, _ = fitted
+    # the demo pack on its own bench fit: 4S hover voltages within 12 % of V_ref, no warning
+    demo = hover_from_params(check_vehicle(DEMO_VEHICLE, "demo"), params)
+    assert not any("beyond the bench sweep" in w for w in demo["warnings"])
+    with_range = json.loads(json.dumps(params))
+    with_range["thrust_curve"].update({"voltage_min_V": 14.0, "voltage_max_V": 16.5})
+    text = voltage_range_warning(with_range, [("hover bus, nominal pack", 13.5)])
+    assert text is not None and "ran at 14.0..16.5 V" in text
+    # within 2 % of the range edge (13.72 V) counts as inside (module constant)
+    assert voltage_range_warning(with_range, [("hover bus, nominal pack", 13.8)]) is None
+
+
+def test_vehicle_without_site_warns_in_the_fitted_sheet_too(fitted):
+    _, params, _ = fitted
+    doc = json.loads(json.dumps(DEMO_VEHICLE))
+    del doc["site"]
+    report = hover_from_params(check_vehicle(doc, "x.json"), params)
+    assert any("no site" in w for w in report["warnings"])
+
+
+def test_fitted_sheet_interval_is_short_and_says_what_it_holds(fitted):
+    from estimator.preflight import format_sheet
+    vehicle, params, _ = fitted
+    sheet = format_sheet(dict(hover_from_params(vehicle, params), cautions=None))
+    line = [l for l in sheet.splitlines() if "95 % interval" in l][0]
+    assert line.strip().endswith("(bench-fit uncertainty only; not site, pack or prop-to-prop spread)")
+    assert "delta method" not in sheet
+    assert "start-up dead band" not in sheet  # that note belongs to the datasheet sheet
+
+
+def test_fit_with_a_vehicle_that_cannot_hover_names_the_file(fitted, tmp_path):
+    _, _, folder = fitted
+    heavy = tmp_path / "heavy.json"
+    heavy.write_text(json.dumps(dict(DEMO_VEHICLE, mass_kg=8.0)))
+    out = tmp_path / "p.json"
+    done = subprocess.run([sys.executable, "-m", "estimator", "fit", str(folder / "demo.csv"), "--vehicle",
+                           str(heavy), "--out", str(out)], capture_output=True, text=True, cwd=ROOT)
+    assert done.returncode == 2
+    lines = done.stderr.strip().splitlines()
+    assert len(lines) == 1 and lines[0].startswith("error: %s: " % heavy) and "Traceback" not in done.stderr
+    assert "cannot hover" in lines[0] and "demo.csv" in lines[0] and "(command)" not in lines[0]
+    assert not out.exists() and not [p for p in os.listdir(tmp_path) if p.startswith(".tmp-")]

@@ -171,3 +171,42 @@ def test_losing_hover_near_empty_is_warned():
     r = hover_report(vehicle(mass_kg=4.85))
     assert r["hover_command"] is not None and r["hover_command_empty"] is None
     assert any("near the end of the pack" in w for w in r["warnings"])
+
+
+def test_sheet_says_per_motor_and_pack_total():
+    r = hover_report(vehicle())
+    sheet = format_sheet(r)
+    # the per-motor line and the pack-total line must not be mistaken for each other
+    assert ("current per motor  %.1f A at hover" % r["hover_motor_current_A"]) in sheet
+    assert ("pack current       %.1f A at hover" % r["hover_current_A"]) in sheet
+    assert "all 4 motors" in sheet and "from the pack (all motors)" in sheet
+    # the two are tied by the ESC power balance V_bus I_bus eta = d V_bus I_motor (design
+    # notes sec. 3), per rotor I_bus = d I_motor / eta and the pack carries N of them;
+    # 1e-9: the core computes the same relation, rounding only
+    n, d, eta = r["rotor_count"], r["hover_command"], r["esc_efficiency"]
+    assert r["hover_current_A"] == pytest.approx(n * d * r["hover_motor_current_A"] / eta, rel=1e-9)
+
+
+def test_datasheet_sheet_says_command_is_duty():
+    sheet = format_sheet(hover_report(vehicle()))
+    assert "command = ESC duty; a real ESC's start-up dead band adds to it: fit a bench sweep" in sheet
+
+
+def test_site_errors_name_the_file_and_the_key():
+    from estimator.errors import InputError
+    v = vehicle()
+    v["site"] = {"altitude_m": 0.0, "temperature_C": -300.0}  # past the schema, straight to the core
+    with pytest.raises(InputError) as info:
+        hover_report(v)
+    assert str(info.value).startswith("test: $.site.temperature_C: ")
+    v["site"] = {"altitude_m": 40000.0}
+    with pytest.raises(InputError) as info:
+        hover_report(v)
+    assert str(info.value).startswith("test: $.site.altitude_m: ") and "20000 m" in str(info.value)
+
+
+def test_no_site_is_warned_first():
+    doc = copy.deepcopy(DEMO_VEHICLE)
+    del doc["site"]
+    r = hover_report(check_vehicle(doc, "x.json"))
+    assert "no site" in r["warnings"][0] and "sea level" in r["warnings"][0]

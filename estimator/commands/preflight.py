@@ -13,27 +13,52 @@ from estimator.jsonio import dumps
 # common practice rule of thumb for small electric propeller sets (design notes sec. 3a):
 # conservative, not a value to expect
 DEFAULT_STATIC_FACTOR = 0.3
+# what good small sets reach (design notes sec. 3a): shown beside the rule of thumb
+GOOD_SET_FACTORS = (0.5, 0.7)
+
+
+class Bounded(Quantity):
+    """A Quantity that also refuses values outside the sensible bounds of ``quantity``.
+
+    The bounds live in schemas/vehicle.schema.json (estimator.vehicle.QUANTITIES); a bare
+    number outside them gets the likely unit slip named ("10 m: did you mean 10in?").
+    """
+
+    def __init__(self, kind, quantity, positive=False):
+        Quantity.__init__(self, kind, positive)
+        self.quantity = quantity
+
+    def convert(self, value, param, ctx):
+        si = Quantity.convert(self, value, param, ctx)
+        if si is not None:
+            from estimator.vehicle import check_quantity
+
+            what = param.opts[0] if param is not None and param.opts else None
+            typed = value if isinstance(value, str) else None
+            check_quantity(self.quantity, si, typed, what)
+            if ctx is not None:  # what was typed, for checks across options (disk loading)
+                ctx.meta["liftcal.typed." + self.quantity] = typed
+        return si
 
 
 def _air(altitude_m, temperature_C, pressure_Pa, humidity_pct):
-    from estimator.core.atmosphere import site_air
+    from estimator.core.atmosphere import AirInputError, site_air
 
-    if humidity_pct is not None and not 0.0 <= humidity_pct <= 100.0:
-        raise InputError("--humidity: %g %% is outside 0..100 %%" % humidity_pct)
     try:
         return site_air(altitude_m, temperature_C, pressure_Pa, humidity_pct or 0.0)
-    except ValueError as exc:
-        raise InputError("--altitude/--temperature/--pressure: %s" % exc) from None
+    except AirInputError as exc:  # the core names the input at fault: name its option
+        raise InputError("--%s: %s" % (exc.quantity, exc)) from None
 
 
 @click.command()
-@click.option("--altitude", type=Quantity("altitude"), default="0m", show_default=True,
-              help="Geometric altitude of the site above sea level (m, km, ft).")
-@click.option("--temperature", type=Quantity("temperature"), default=None,
-              help="Outside air temperature (C, K, F); default: standard atmosphere.")
-@click.option("--pressure", type=Quantity("pressure", positive=True), default=None,
-              help="Station pressure (Pa, hPa, kPa, mbar), not sea-level QNH; default: standard.")
-@click.option("--humidity", type=Quantity("percent"), default="0%", show_default=True,
+@click.option("--altitude", type=Bounded("altitude", "altitude"), default="0m", show_default=True,
+              help="Geometric altitude of the site above sea level (m, km, ft), -500..9000 m.")
+@click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
+              help="Outside air temperature (C, K, F), -60..50 C; default: standard atmosphere.")
+@click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
+              help="Station pressure (Pa, hPa, kPa, mbar), not sea-level QNH, 300..1100 hPa; "
+                   "default: standard.")
+@click.option("--humidity", type=Bounded("percent", "humidity"), default="0%", show_default=True,
               help="Relative humidity (%).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def air(altitude, temperature, pressure, humidity, as_json):
@@ -59,23 +84,24 @@ def air(altitude, temperature, pressure, humidity, as_json):
 
 
 @click.command()
-@click.option("--diameter", type=Quantity("length", positive=True), required=True,
-              help="Rotor diameter (m, cm, mm, in).")
-@click.option("--power", type=Quantity("power", positive=True), default=None,
+@click.option("--diameter", type=Bounded("length", "diameter", positive=True), required=True,
+              help="Rotor diameter (m, cm, mm, in), 0.01..3 m; a bare number is metres.")
+@click.option("--power", type=Bounded("power", "power", positive=True), default=None,
               help="Electrical input power of one rotor (W, kW): gives thrust.")
-@click.option("--thrust", type=Quantity("force", positive=True), default=None,
+@click.option("--thrust", type=Bounded("force", "thrust", positive=True), default=None,
               help="Thrust of one rotor (N, g, gf, kgf, lbf): gives power.")
-@click.option("--factor", "factor", type=Quantity("ratio", positive=True), default=None,
-              help="Static thrust factor k, 0 < k <= 1 (default 0.3, a conservative rule of thumb).")
-@click.option("--density", type=Quantity("density", positive=True), default=None,
-              help="Air density (kg/m3); default: from --altitude etc.")
-@click.option("--altitude", type=Quantity("altitude"), default="0m", show_default=True,
+@click.option("--factor", "factor", type=Bounded("ratio", "factor", positive=True), default=None,
+              help="Static thrust factor k, 0 < k <= 1 (default 0.3, a conservative rule of thumb; "
+                   "good small sets reach 0.5..0.7).")
+@click.option("--density", type=Bounded("density", "density", positive=True), default=None,
+              help="Air density (kg/m3), 0.25..1.8; default: from --altitude etc.")
+@click.option("--altitude", type=Bounded("altitude", "altitude"), default="0m", show_default=True,
               help="Site altitude when --density is not given.")
-@click.option("--temperature", type=Quantity("temperature"), default=None,
+@click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
               help="Outside air temperature when --density is not given.")
-@click.option("--pressure", type=Quantity("pressure", positive=True), default=None,
+@click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
               help="Station pressure when --density is not given.")
-@click.option("--humidity", type=Quantity("percent"), default="0%",
+@click.option("--humidity", type=Bounded("percent", "humidity"), default="0%",
               help="Relative humidity when --density is not given.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def static(diameter, power, thrust, factor, density, altitude, temperature, pressure, humidity,
@@ -91,8 +117,6 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
     altitude_m, temperature_C, pressure_Pa, humidity_pct = altitude, temperature, pressure, humidity
     if (power_W is None) == (thrust_N is None):
         raise InputError("static: give exactly one of --power or --thrust")
-    if factor is not None and factor > 1.0:
-        raise InputError("--factor: %g is above 1, which momentum theory forbids (k <= 1 always)" % factor)
     density_given = density_kg_m3 is not None
     if density_given and (temperature_C is not None or pressure_Pa is not None or altitude_m != 0.0):
         raise InputError("--density: give either --density or --altitude/--temperature/--pressure, not both")
@@ -100,6 +124,8 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
         density_kg_m3 = _air(altitude_m, temperature_C, pressure_Pa, humidity_pct)["density_kg_m3"]
     k = DEFAULT_STATIC_FACTOR if factor is None else factor
     area = momentum.disk_area_m2(diameter_m)
+    if thrust_N is not None:
+        _check_disk_loading(thrust_N, area, diameter_m)
     out = {"diameter_m": diameter_m, "disk_area_m2": area, "density_kg_m3": density_kg_m3,
            "static_factor": k, "static_factor_source": "default rule of thumb (common practice)"
            if factor is None else "given", "efficiency": k ** 1.5}
@@ -107,11 +133,15 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
         out["power_W"] = power_W
         out["ideal_thrust_N"] = momentum.ideal_thrust_N(power_W, density_kg_m3, area)
         out["thrust_N"] = momentum.thrust_from_power_N(power_W, k, density_kg_m3, area)
+        for good in GOOD_SET_FACTORS:  # design notes sec. 3a: what good small sets reach
+            out["thrust_N_at_k_%s" % _tag(good)] = momentum.thrust_from_power_N(power_W, good, density_kg_m3, area)
         thrust = out["thrust_N"]
     else:
         out["thrust_N"] = thrust_N
         out["ideal_power_W"] = momentum.ideal_power_W(thrust_N, density_kg_m3, area)
         out["power_W"] = momentum.power_from_thrust_W(thrust_N, k, density_kg_m3, area)
+        for good in GOOD_SET_FACTORS:
+            out["power_W_at_k_%s" % _tag(good)] = momentum.power_from_thrust_W(thrust_N, good, density_kg_m3, area)
         thrust = thrust_N
     out["induced_velocity_m_s"] = momentum.induced_velocity_m_s(thrust, density_kg_m3, area)
     out["slipstream_velocity_m_s"] = 2.0 * out["induced_velocity_m_s"]
@@ -121,15 +151,51 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
         return
     click.echo("one rotor, D = %.3f m (disk %.4f m^2), air %.3f kg/m^3, k = %.2f%s"
                % (diameter_m, area, density_kg_m3, k, " (rule of thumb)" if factor is None else ""))
+    lo, hi = GOOD_SET_FACTORS
     if power_W is not None:
         click.echo("  %.0f W in -> %.2f N of thrust (ideal actuator disk: %.2f N)"
                    % (power_W, out["thrust_N"], out["ideal_thrust_N"]))
+        if factor is None:
+            click.echo("  good small sets reach k %.1f..%.1f: %.2f..%.2f N (k = 0.3 is a conservative "
+                       "rule of thumb, common practice)" % (lo, hi, out["thrust_N_at_k_" + _tag(lo)],
+                                                           out["thrust_N_at_k_" + _tag(hi)]))
     else:
         click.echo("  %.2f N of thrust needs %.0f W in (ideal actuator disk: %.0f W)"
                    % (thrust_N, out["power_W"], out["ideal_power_W"]))
+        if factor is None:
+            click.echo("  good small sets reach k %.1f..%.1f: %.0f..%.0f W (k = 0.3 is a conservative "
+                       "rule of thumb, common practice)" % (lo, hi, out["power_W_at_k_" + _tag(lo)],
+                                                           out["power_W_at_k_" + _tag(hi)]))
     click.echo("  induced velocity %.1f m/s, slipstream %.1f m/s, disk loading %.0f N/m^2"
                % (out["induced_velocity_m_s"], out["slipstream_velocity_m_s"], out["disk_loading_N_m2"]))
     click.echo("  estimate only: confirm on a clamped, guarded stand, nobody in the plane of the rotor")
+
+
+def _tag(k):
+    """JSON key tag of a factor: 0.5 -> "0_5"."""
+    return ("%g" % k).replace(".", "_")
+
+
+def _check_disk_loading(thrust_N, area_m2, diameter_m):
+    """Refuse a thrust no open propeller of this diameter makes (disk loading out of bounds)."""
+    from estimator.jsonio import unit_slip, within
+    from estimator.vehicle import quantity_schema
+
+    sub = quantity_schema("disk_loading")
+    if within(thrust_N / area_m2, sub):
+        return
+    typed = click.get_current_context().meta.get("liftcal.typed.thrust")
+    hint = "the diameter too small?"
+    if typed is not None and typed.strip().replace(".", "", 1).isdigit():  # a bare number
+        # the same bounds on thrust: disk loading times this disk's area
+        on_disk = {k: v * area_m2 for k, v in sub.items() if k in ("minimum", "exclusiveMinimum", "maximum")}
+        on_disk["examples"] = [sub["examples"][0] * area_m2]
+        slip = unit_slip(thrust_N, "force", ("g", "gf"), on_disk)
+        if slip is not None:
+            hint = "did you mean %s%s?" % (typed.strip(), slip[0])
+    raise InputError("--thrust: %g N on a %.3g m rotor is a disk loading of %.0f N/m^2, above the "
+                     "sensible %g N/m^2 for an open propeller: %s"
+                     % (thrust_N, diameter_m, thrust_N / area_m2, sub["maximum"], hint))
 
 
 @click.command()

@@ -25,6 +25,19 @@ _RHO11 = _P11 / (DRY_AIR_GAS_CONSTANT_J_KG_K * _T11)
 _RHO0 = SEA_LEVEL_PRESSURE_PA / (DRY_AIR_GAS_CONSTANT_J_KG_K * SEA_LEVEL_TEMPERATURE_K)
 
 
+class AirInputError(ValueError):
+    """A site-air input outside the models' range.
+
+    ``quantity`` names the input at fault: "altitude", "temperature", "pressure" or
+    "humidity", so that a caller can name its own option or JSON key; the message names
+    the limit. A ValueError, so callers that catch ValueError keep working.
+    """
+
+    def __init__(self, quantity, message):
+        super().__init__(message)
+        self.quantity = quantity
+
+
 def geopotential_m(altitude_m):
     """Geopotential height from geometric altitude, H = r0 h / (r0 + h).
 
@@ -100,22 +113,36 @@ def site_air(altitude_m, temperature_C=None, pressure_Pa=None, humidity_pct=0.0)
     or None; humidity_pct: relative humidity [%], 0..100.
     Returns a dict: density_kg_m3 [kg/m^3], temperature_K [K], pressure_Pa [Pa],
     density_altitude_m [m], vapour_pressure_Pa [Pa], density_ratio [-] (rho / 1.225).
-    Raises ValueError for values outside the models' ranges.
+    Raises AirInputError (a ValueError naming the input at fault in ``quantity``) for
+    values outside the models' ranges.
     Source: US Standard Atmosphere 1976; Buck (1981).
     """
-    t_std, p_std, _ = standard_atmosphere(altitude_m)
+    try:
+        t_std, p_std, _ = standard_atmosphere(altitude_m)
+    except ValueError as exc:
+        raise AirInputError("altitude", str(exc))
     t = t_std if temperature_C is None else temperature_C + CELSIUS_ZERO_K
     p = p_std if pressure_Pa is None else pressure_Pa
     if not t > 0.0:
-        raise ValueError("temperature must be above absolute zero")
+        raise AirInputError("temperature", "temperature %.2f C is below absolute zero (-273.15 C)"
+                            % (t - CELSIUS_ZERO_K))
     if not p > 0.0:
-        raise ValueError("pressure must be above zero [Pa]")
+        raise AirInputError("pressure", "pressure must be above zero [Pa]")
+    if not 0.0 <= humidity_pct <= 100.0:
+        raise AirInputError("humidity", "relative humidity %.1f %% is outside 0..100 %%" % humidity_pct)
+    try:
+        e = vapour_pressure_Pa(p, t, humidity_pct)
+    except ValueError as exc:  # only the Buck (1981) fit's temperature range is left to fail
+        raise AirInputError("temperature", str(exc))
+    if e >= p:
+        raise AirInputError("humidity", "vapour pressure %.0f Pa at %.0f %% humidity is not below the "
+                            "total pressure %.0f Pa" % (e, humidity_pct, p))
     rho = humid_air_density_kg_m3(p, t, humidity_pct)
     return {
         "density_kg_m3": rho,
         "temperature_K": t,
         "pressure_Pa": p,
         "density_altitude_m": density_altitude_m(rho),
-        "vapour_pressure_Pa": vapour_pressure_Pa(p, t, humidity_pct),
+        "vapour_pressure_Pa": e,
         "density_ratio": rho / SEA_LEVEL_DENSITY_KG_M3,
     }
