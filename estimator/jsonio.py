@@ -60,7 +60,32 @@ def validate(document, schema_name, source):
     errors = sorted(validator.iter_errors(document), key=lambda e: (len(list(e.absolute_path)), str(e.message)))
     if errors:
         err = errors[-1] if len(errors) == 1 else _best(errors)
+        other = _other_kind(document, schema_name, schema) if not list(err.absolute_path) else None
+        if other:
+            raise InputError("%s: $: this is %s, not %s: wrong file for this place?" % (source, other[0], other[1]))
         raise InputError("%s: %s: %s%s" % (source, json_path(err.absolute_path), err.message, _likely_cause(err)))
+
+
+def _other_kind(document, schema_name, schema):
+    """(what the document is, what was expected) when it is valid under another of our schemas."""
+    import glob
+
+    import jsonschema
+
+    for path in sorted(glob.glob(os.path.join(SCHEMA_DIR, "*.schema.json"))):
+        if os.path.basename(path) == schema_name:
+            continue
+        with open(path, "r", encoding="utf-8") as fh:
+            other = json.load(fh)
+        if jsonschema.Draft202012Validator(other).is_valid(document):
+            return ("%s (schemas/%s)" % (_kind_name(other), os.path.basename(path)), _kind_name(schema))
+    return None
+
+
+def _kind_name(schema):
+    """'a parameter set' from the title 'liftcal parameter set (model liftcal.rotor/1)'."""
+    name = str(schema.get("title", "document")).replace("liftcal ", "", 1).split(" (")[0]
+    return ("an " if name[:1] in "aeiou" else "a ") + name
 
 
 def _best(errors):
@@ -97,7 +122,7 @@ def _likely_cause(err):
             if key not in err.instance:
                 close = difflib.get_close_matches(key, unknown, 1, _CLOSE)
                 if close:
-                    return "; the file has %r there instead: a typo for %r?" % (close[0], key)
+                    return "; the file has %r where %r is expected: a typo?" % (close[0], key)
         return ""
     if err.validator == "additionalProperties":
         props = list(err.schema.get("properties", {}))
