@@ -99,11 +99,11 @@ def _state(params, vehicle, rho, open_circuit_V):
         v_full = 0.5 * (v_full + v_new)
     out.update({"full_thrust_N": count * t_full, "full_power_W": p_full, "full_bus_V": v_full,
                 "full_pack_current_A": p_full / v_full})
+    # full command: duty 1, so each motor carries its rotor's bus current (module docstring)
+    out["full_motor_current_A"] = out["full_pack_current_A"] / count
     if v_bus is None:
         out["limited_by"] = "pack"
         return out
-    # full command: duty 1, so each motor carries its rotor's bus current (module docstring)
-    out["full_motor_current_A"] = out["full_pack_current_A"] / count
     cmd, fraction = hover_command(t_r, v_bus, rho, curve)
     out.update({"command": cmd, "fraction": fraction, "current_A": p_total / v_bus})
     if cmd is None:
@@ -285,15 +285,13 @@ def hover_block(vehicle, params):
 
     r = hover_from_params(vehicle, params)
     if r["hover_command"] is None:
-        why = {"pack": "the pack cannot deliver the hover power",
-               "command": "full command does not lift it"}.get(r["hover_limited_by"], "no hover command")
+        cause = [w for w in r["warnings"] if w.startswith("cannot hover: ")][:1]
         bench = (params.get("provenance") or {}).get("input_file")
-        raise InputError("%s: this vehicle cannot hover on the rotor fitted from %s at nominal pack "
-                         "(%s): %s; lighten it or fit more thrust, or fit without --vehicle (the "
-                         "parameter set would have no hover values)"
-                         % (vehicle_source(vehicle, "the vehicle"), bench or "the bench sweep", why,
-                            "; ".join([w for w in r["warnings"] if w.startswith("cannot hover")][:1])
-                            .replace("cannot hover: ", "")))
+        raise InputError("%s: this vehicle cannot hover on the rotor fitted from %s at nominal pack: %s; "
+                         "lighten it or fit more thrust, or fit without --vehicle (the parameter set "
+                         "would have no hover values)"
+                         % (vehicle_source(vehicle, "the vehicle"), bench or "the bench sweep",
+                            cause[0][len("cannot hover: "):] if cause else "no hover command"))
     return {
         "hover_command": r["hover_command"],
         "hover_command_interval_95": r["hover_command_interval_95"],

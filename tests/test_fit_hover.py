@@ -249,3 +249,17 @@ def test_fit_with_a_vehicle_that_cannot_hover_names_the_file(fitted, tmp_path):
     assert len(lines) == 1 and lines[0].startswith("error: %s: " % heavy) and "Traceback" not in done.stderr
     assert "cannot hover" in lines[0] and "demo.csv" in lines[0] and "(command)" not in lines[0]
     assert not out.exists() and not [p for p in os.listdir(tmp_path) if p.startswith(".tmp-")]
+
+
+def test_pack_limited_vehicle_on_the_fitted_model(fitted):
+    from estimator.fitted_hover import hover_block
+    from estimator.errors import InputError
+    _, params, _ = fitted
+    doc = json.loads(json.dumps(DEMO_VEHICLE))
+    doc["battery"]["resistance_ohm"] = 1.0  # V_oc^2 = 219 V^2 < 4 R P = 1120 V^2: no bus voltage delivers it
+    report = hover_from_params(check_vehicle(doc, "weak.json"), params)
+    assert report["hover_command"] is None and report["hover_limited_by"] == "pack"
+    assert report["full_motor_current_A"] == pytest.approx(report["full_pack_current_A"] / 4, rel=1e-12)
+    with pytest.raises(InputError) as info:
+        hover_block(check_vehicle(doc, "weak.json"), params)
+    assert str(info.value).startswith("weak.json: ") and "pack cannot deliver" in str(info.value)
