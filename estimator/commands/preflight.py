@@ -52,12 +52,11 @@ def _air(altitude_m, temperature_C, pressure_Pa, humidity_pct):
 
 @click.command()
 @click.option("--altitude", type=Bounded("altitude", "altitude"), default="0m", show_default=True,
-              help="Geometric altitude of the site above sea level (m, km, ft), -500..9000 m.")
+              help="Geometric altitude of the site above sea level (m, km, ft).")
 @click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
-              help="Outside air temperature (C, K, F), -60..50 C; default: standard atmosphere.")
+              help="Outside air temperature (C, K, F); default: standard atmosphere.")
 @click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
-              help="Station pressure (Pa, hPa, kPa, mbar), not sea-level QNH, 300..1100 hPa; "
-                   "default: standard.")
+              help="Station pressure (Pa, hPa, kPa, mbar), not sea-level QNH; default: standard.")
 @click.option("--humidity", type=Bounded("percent", "humidity"), default="0%", show_default=True,
               help="Relative humidity (%).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
@@ -65,7 +64,8 @@ def air(altitude, temperature, pressure, humidity, as_json):
     """Air at a site: density, temperature, pressure and density altitude.
 
     US Standard Atmosphere 1976 from geometric altitude; humidity by partial
-    pressures with Buck (1981) saturation pressure.
+    pressures with Buck (1981) saturation pressure. Values outside a flying site's
+    sensible range are refused with the range (schemas/vehicle.schema.json, site).
     """
     altitude_m, temperature_C, pressure_Pa, humidity_pct = altitude, temperature, pressure, humidity
     res = _air(altitude_m, temperature_C, pressure_Pa, humidity_pct)
@@ -85,7 +85,7 @@ def air(altitude, temperature, pressure, humidity, as_json):
 
 @click.command()
 @click.option("--diameter", type=Bounded("length", "diameter", positive=True), required=True,
-              help="Rotor diameter (m, cm, mm, in), 0.01..3 m; a bare number is metres.")
+              help="Rotor diameter (m, cm, mm, in); a bare number is metres.")
 @click.option("--power", type=Bounded("power", "power", positive=True), default=None,
               help="Electrical input power of one rotor (W, kW): gives thrust.")
 @click.option("--thrust", type=Bounded("force", "thrust", positive=True), default=None,
@@ -94,7 +94,7 @@ def air(altitude, temperature, pressure, humidity, as_json):
               help="Static thrust factor k, 0 < k <= 1 (default 0.3, a conservative rule of thumb; "
                    "good small sets reach 0.5..0.7).")
 @click.option("--density", type=Bounded("density", "density", positive=True), default=None,
-              help="Air density (kg/m3), 0.25..1.8; default: from --altitude etc.")
+              help="Air density (kg/m3); default: from --altitude etc.")
 @click.option("--altitude", type=Bounded("altitude", "altitude"), default="0m", show_default=True,
               help="Site altitude when --density is not given.")
 @click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
