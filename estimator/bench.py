@@ -15,6 +15,7 @@ likely mislabelled (voltage in mV labelled V, command in % labelled [-]) are ref
 
 import hashlib
 import io
+import math
 import re
 
 from estimator.errors import InputError
@@ -180,6 +181,20 @@ def _load_numbers(path, skip, ncols):
     return _slow_parse(path, skip, ncols)
 
 
+def _columns(table, indices, block_rows=8192):
+    """Contiguous copies of the table's columns ``indices``, copied block by block so each
+    block of the row-major table is read from the cache once for all of them."""
+    import numpy as np
+
+    n = table.shape[0]
+    out = [np.empty(n) for _ in indices]
+    for b0 in range(0, n, block_rows):
+        block = table[b0:b0 + block_rows]
+        for col, index in zip(out, indices):
+            col[b0:b0 + block_rows] = block[:, index]
+    return out
+
+
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
                pressure_Pa=None, humidity_pct=None):
     """Read a bench CSV into SI arrays and apply the row checks.
@@ -192,33 +207,76 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     """
     import numpy as np
 
-    import threading
-
     comments, cells, header_line = _read_head(path)
     columns, warnings = _parse_header(path, cells, header_line)
     ncols = len(cells)
-    digest = {}
-    # hashlib releases the GIL on large blocks: hash the file while numpy parses it
-    hasher = threading.Thread(target=lambda: digest.setdefault("sha256", _sha256(path)))
-    hasher.start()
-    try:
-        table = _load_numbers(path, header_line, ncols)
-    finally:
-        hasher.join()
+    table = _load_numbers(path, header_line, ncols)
+    digest = _sha256(path)
     data = {}
-    for name in REQUIRED:
-        index, unit = columns[name]
+    cols = _columns(table, [columns[name][0] for name in REQUIRED])
+    for name, col in zip(REQUIRED, cols):
+        unit = columns[name][1]
         scale, offset = UNITS[name][unit]
-        col = table[:, index]
-        data[name] = col * scale + offset if (scale != 1.0 or offset != 0.0) else col.copy()
+        if scale != 1.0:
+            col *= scale
+        if offset != 0.0:
+            col += offset
+        data[name] = col
         data[name + "_unit"] = unit
-    del table
+    del cols
     rows_total = data["command"].shape[0]
     if rows_total < 10:
         raise InputError("%s: only %d data rows; a sweep needs at least 10" % (path, rows_total))
 
-    _check_units(path, data)
+    u, v, i, t = data["command"], data["voltage"], data["current"], data["thrust"]
+    # one min and max per column decide the common case: every value finite and inside
+    # every row check, so no row is dropped and no mask is needed
+    with np.errstate(invalid="ignore"):
+        extremes = [float(f(x)) for x in (u, v, i, t) for f in (np.min, np.max)]
+    clean = all(math.isfinite(x) for x in extremes)
+    v_med = None
+    if clean:
+        v_med = float(np.median(v[:: max(1, v.size // 200000)]))
+    _check_units(path, data, v_med, extremes if clean else None)
     units = {name: data[name + "_unit"] for name in REQUIRED}
+    if clean:
+        u_lo, u_hi, v_lo, v_hi, i_lo, i_hi, t_lo, t_hi = extremes
+        tol_i = max(NEGATIVE_CURRENT_TOLERANCE_A, 0.01 * max(abs(i_lo), abs(i_hi)))
+        clean = (u_lo >= 0.0 and u_hi <= 1.0 and v_lo > 0.0 and v_hi <= 2.0 * v_med
+                 and v_lo >= 0.5 * v_med and i_lo >= -tol_i and i_hi <= MAX_CURRENT_A
+                 and max(abs(t_lo), abs(t_hi)) <= MAX_THRUST_N)
+    if clean:
+        rejected = {}
+        n_keep = rows_total
+        power = v * i  # electrical (bus) power [W]; the current column itself is not kept
+        del i, data, table
+    else:
+        u, v, t, power, rejected, n_keep = _row_checks(path, data, rows_total)
+        del data, table
+
+    air = _bench_air(path, comments, density_kg_m3, altitude_m, temperature_C, pressure_Pa,
+                     humidity_pct, warnings)
+    if diameter_m is None:
+        diameter_m = comments.get("diameter")
+    if diameter_m is not None and not (0.01 <= diameter_m <= 3.0):
+        raise InputError("%s: propeller diameter %.4g m is outside 0.01..3 m; give it as e.g. "
+                         "'# diameter: 10in' or '--diameter 0.254'" % (path, diameter_m))
+    return {
+        "command": u, "voltage_V": v, "thrust_N": t, "power_W": power,
+        "thrust_unit": units["thrust"], "command_unit": units["command"],
+        "current_unit": units["current"],
+        "rows_total": rows_total, "rows_rejected": rows_total - n_keep,
+        "rejected": {k: c for k, c in rejected.items() if c},
+        "bench_air": air, "diameter_m": diameter_m, "input_sha256": digest,
+        "warnings": warnings,
+    }
+
+
+def _row_checks(path, data, rows_total):
+    """Drop and count the merely bad rows (module docstring); returns u, v, t, power,
+    rejected counts and the number of rows kept."""
+    import numpy as np
+
     u, v, i, t = data["command"], data["voltage"], data["current"], data["thrust"]
     rejected = {}
     finite = np.isfinite(u) & np.isfinite(v) & np.isfinite(i) & np.isfinite(t)
@@ -250,36 +308,25 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
                          % (path, n_keep, rows_total))
     with np.errstate(over="ignore", invalid="ignore"):
         power = v * i  # electrical (bus) power [W]; the current column itself is not kept
-    del i, data
     if n_keep < rows_total:
         u, v, t, power = u[keep], v[keep], t[keep], power[keep]
-
-    air = _bench_air(path, comments, density_kg_m3, altitude_m, temperature_C, pressure_Pa,
-                     humidity_pct, warnings)
-    if diameter_m is None:
-        diameter_m = comments.get("diameter")
-    if diameter_m is not None and not (0.01 <= diameter_m <= 3.0):
-        raise InputError("%s: propeller diameter %.4g m is outside 0.01..3 m; give it as e.g. "
-                         "'# diameter: 10in' or '--diameter 0.254'" % (path, diameter_m))
-    return {
-        "command": u, "voltage_V": v, "thrust_N": t, "power_W": power,
-        "thrust_unit": units["thrust"], "command_unit": units["command"],
-        "current_unit": units["current"],
-        "rows_total": rows_total, "rows_rejected": rows_total - n_keep,
-        "rejected": {k: c for k, c in rejected.items() if c},
-        "bench_air": air, "diameter_m": diameter_m, "input_sha256": digest["sha256"],
-        "warnings": warnings,
-    }
+    return u, v, t, power, {k: c for k, c in rejected.items() if c}, n_keep
 
 
-def _check_units(path, data):
-    """Refuse columns whose values do not fit their unit label."""
+def _check_units(path, data, v_med=None, extremes=None):
+    """Refuse columns whose values do not fit their unit label.
+
+    v_med, extremes: the subsample median of the voltage [V] and the (min, max) of command,
+    voltage, current and thrust when every value is finite (read_bench's clean case); they
+    spare passes over the columns and give the same answers.
+    """
     import numpy as np
 
     with np.errstate(invalid="ignore"):
-        v = data["voltage"]
-        v = v[:: max(1, v.size // 200000)]
-        v_med = float(np.nanmedian(v)) if np.any(np.isfinite(v)) else float("nan")
+        if v_med is None:
+            v = data["voltage"]
+            v = v[:: max(1, v.size // 200000)]
+            v_med = float(np.nanmedian(v)) if np.any(np.isfinite(v)) else float("nan")
         if not np.isfinite(v_med):
             raise InputError("%s: column voltage holds no numbers" % path)
         if v_med > BUS_VOLTAGE_RANGE_V[1]:
@@ -290,10 +337,19 @@ def _check_units(path, data):
             raise InputError("%s: voltage median %.4g V is below %g V; is the column in V but "
                              "labelled [mV], or is the supply off?" % (path, v_med, BUS_VOLTAGE_RANGE_V[0]))
         u = data["command"]
-        finite_u = u[np.isfinite(u)]
-        if finite_u.size == 0:
-            raise InputError("%s: column command holds no numbers" % path)
-        outside = np.count_nonzero((finite_u < -0.01) | (finite_u > 1.01))
+        if extremes is not None:
+            finite_u = u
+            u_max = extremes[1]
+            if extremes[0] >= -0.01 and u_max <= 1.01:
+                outside = 0
+            else:
+                outside = np.count_nonzero((u < -0.01) | (u > 1.01))
+        else:
+            finite_u = u[np.isfinite(u)]
+            if finite_u.size == 0:
+                raise InputError("%s: column command holds no numbers" % path)
+            outside = np.count_nonzero((finite_u < -0.01) | (finite_u > 1.01))
+            u_max = float(np.max(finite_u))
         if outside > COMMAND_OUTSIDE_SHARE * finite_u.size:
             hint = {"-": "is it command[%] (0..100) or command[us] (1000..2000)?",
                     "%": "is it command[us] (1000..2000) or command[-] (0..1)?",
@@ -301,7 +357,7 @@ def _check_units(path, data):
             raise InputError("%s: %d of %d command values fall outside 0..1 after converting "
                              "from [%s]; %s" % (path, outside, finite_u.size,
                                                 data["command_unit"], hint))
-        if data["command_unit"] == "%" and float(np.max(finite_u)) <= 0.0101:
+        if data["command_unit"] == "%" and u_max <= 0.0101:
             raise InputError("%s: command[%%] never exceeds 1 %%; is it command[-] (0..1)?" % path)
 
 

@@ -14,7 +14,7 @@ one bench sweep holds one air density, so the data cannot say otherwise.
 import numpy as np
 
 from estimator.errors import InputError
-from estimator.robust import HUBER_C, WORK_ROWS, huber_fit
+from estimator.robust import HUBER_C, WORK_ROWS, huber_fit, working_rows
 
 # Voltage exponent used when the sweep holds no voltage spread: the DC motor model with a
 # resistive drop of 1/8 of the back-EMF, n = 2 (1 + r) / (1 + 2 r) = 1.8 at r = 0.125
@@ -26,6 +26,8 @@ DEFAULT_VOLTAGE_EXPONENT = 1.8
 MIN_VOLTAGE_SPREAD = 0.03
 # residuals beyond this many robust sigmas are counted as spikes and left out [-]
 SPIKE_SIGMAS = 6.0
+# rows of the coarse profile that starts a very large fit [-]
+START_ROWS = 5000
 PARAM_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
 
 
@@ -48,39 +50,76 @@ def voltage_spread_at_equal_command(command, voltage_V, bins=20):
     step = max(1, command.size // 200000)
     u, v = command[::step], voltage_V[::step]
     index = np.minimum((u * bins).astype(np.intp), bins - 1)
+    # one stable sort of the small bin labels groups the voltages bin by bin (same values
+    # as selecting each bin in turn, in one pass)
+    order = np.argsort(index.astype(np.int8 if bins < 128 else np.intp), kind="stable")
     spreads = []
+    if index.size == 0 or int(np.min(index)) < 0:  # negative commands: bin by bin, plainly
+        for b in range(bins):
+            vb = v[index == b]
+            if vb.size >= 5:
+                p10, p50, p90 = np.percentile(vb, [10.0, 50.0, 90.0])
+                spreads.append((p90 - p10) / p50)
+        return float(np.median(spreads)) if spreads else 0.0
+    v_sorted = v[order]
+    edges = np.concatenate([[0], np.cumsum(np.bincount(index, minlength=bins))])
     for b in range(bins):
-        vb = v[index == b]
+        vb = v_sorted[edges[b]:edges[b + 1]]
         if vb.size >= 5:
             p10, p50, p90 = np.percentile(vb, [10.0, 50.0, 90.0])
             spreads.append((p90 - p10) / p50)
     return float(np.median(spreads)) if spreads else 0.0
 
 
+def exact_median(values):
+    """Median [unit of values] by one O(n) selection (np.partition) instead of np.median's
+    two-point selection: the same value (mean of the two middle values for an even count)."""
+    v = np.asarray(values, dtype=float)
+    n = v.size
+    if n < 1000 or not np.isfinite(np.sum(v)):
+        return float(np.median(v))
+    k = n // 2
+    part = np.partition(v, k)
+    if n % 2:
+        return float(part[k])
+    return float(0.5 * (part[k] + np.max(part[:k])))
+
+
 def _model_factory(u, log_v, fixed_n):
-    """Return model(theta, rows) -> (f [N], J) for estimator.robust.huber_fit (rows: a slice)."""
+    """Return model(theta, rows) -> (f [N], J) for estimator.robust.huber_fit (rows: a slice
+    or an index array). J is n x p with contiguous columns (Fortran order)."""
+    p = 3 if fixed_n is not None else 4
 
     def model(theta, rows):
         uu = u[rows]
         lv = log_v[rows]
-        t_max, a, u_min = theta[0], theta[1], theta[2]
-        n = fixed_n if fixed_n is not None else theta[3]
+        t_max, a, u_min = float(theta[0]), float(theta[1]), float(theta[2])
+        n = fixed_n if fixed_n is not None else float(theta[3])
         span = 1.0 - u_min
-        x = (uu - u_min) / span
+        jt = np.empty((p, uu.size))
+        x = uu - u_min
+        x *= 1.0 / span
         active = x > 0.0
-        x[~active] = 0.0
-        s = np.exp(n * lv)
-        t = x * ((1.0 - a) + a * x)
-        jac = np.empty((uu.size, 3 if fixed_n is not None else 4))
-        jac[:, 0] = s * t
-        f = t_max * jac[:, 0]
-        ts = t_max * s
-        jac[:, 1] = ts * (x * x - x)
-        jac[:, 2] = ts * ((1.0 - a) + 2.0 * a * x) * ((uu - 1.0) / (span * span))
-        jac[~active, 2] = 0.0
+        np.maximum(x, 0.0, out=x)
+        s = lv * n
+        np.exp(s, out=s)                    # (V / V_ref)^n
+        ax = a * x
+        q = ax + (1.0 - a)                  # t(x) / x
+        np.multiply(x, q, out=jt[0])        # t(x)
+        jt[0] *= s                          # dT/dT_max = s t(x)
+        f = jt[0] * t_max
+        s *= t_max                          # T_max s
+        xm1 = x - 1.0
+        np.multiply(x, xm1, out=jt[1])
+        jt[1] *= s                          # dT/da = T_max s (x^2 - x)
+        q += ax                             # t'(x) = (1 - a) + 2 a x
+        q *= xm1                            # dx/du_min = (x - 1) / span on the active rows
+        q *= active
+        np.multiply(q, s, out=jt[2])
+        jt[2] *= 1.0 / span                 # dT/du_min, 0 below u_min
         if fixed_n is None:
-            jac[:, 3] = f * lv
-        return f, jac
+            np.multiply(f, lv, out=jt[3])   # dT/dn = T ln(V / V_ref)
+        return f, jt.T
 
     return model
 
@@ -105,13 +144,16 @@ def _start(u, log_v, thrust, n0):
     return np.array([t_max, a, u_min] + ([n0] if n0 is not None else []), dtype=float)
 
 
-def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups=None):
+def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups=None,
+                     work_rows=WORK_ROWS, keep_residuals=True):
     """Fit the thrust curve to bench rows (SI arrays of equal length).
 
     command: u [-]; voltage_V: bus voltage [V]; thrust_N: measured thrust [N];
     voltage_exponent: fix n [-] instead of fitting it (None = fit when the sweep holds
     voltage spread, else DEFAULT_VOLTAGE_EXPONENT with a warning); groups: row labels for
-    the cluster-robust covariance (default command_groups(command)).
+    the cluster-robust covariance (default command_groups(command)); work_rows: sweeps of
+    more than twice this many rows take the very large path of estimator.robust.huber_fit;
+    keep_residuals=False leaves residuals_N None on that path (saves an array).
     Returns dict: thrust_max_N [N], quadratic_share [-], command_min [-],
     reference_voltage_V [V], voltage_exponent [-], voltage_exponent_fitted (bool),
     density_exponent [-] (= n - 1), standard_errors {name: SE}, covariance {names, matrix},
@@ -122,8 +164,9 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
     v = np.asarray(voltage_V, dtype=float)
     t = np.asarray(thrust_N, dtype=float)
     warnings = []
-    v_ref = float(round(float(np.median(v)), 2))
-    log_v = np.log(v / v_ref)
+    v_ref = float(round(exact_median(v), 2))
+    log_v = np.log(v)
+    log_v -= np.log(v_ref)
     spread = voltage_spread_at_equal_command(u, v)
     fixed_n = voltage_exponent
     if fixed_n is None and spread < MIN_VOLTAGE_SPREAD:
@@ -135,8 +178,12 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
     if float(np.max(u) - np.min(u)) < 0.3:
         raise InputError("the sweep spans commands %.2f..%.2f only; sweep from idle to at least "
                          "0.3 above it" % (float(np.min(u)), float(np.max(u))))
-    step = max(1, u.size // WORK_ROWS)
-    idx = slice(None, None, step)
+    if u.size // work_rows > 1:
+        # a very large sweep: the start only needs to be near; a coarse subsample places it
+        idx = working_rows(u.size, work_rows)
+        idx = idx[:: max(1, idx.size // START_ROWS)]
+    else:
+        idx = slice(None, None, max(1, u.size // work_rows))
     theta0 = _start(u[idx], log_v[idx], t[idx], fixed_n if fixed_n is not None else DEFAULT_VOLTAGE_EXPONENT)
     if not np.all(np.isfinite(theta0)):
         raise InputError("no thrust curve can be started from this sweep (non-finite start values)")
@@ -145,7 +192,8 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
     model = _model_factory(u, log_v, fixed_n)
     if groups is None:
         groups = command_groups(u)
-    fit = huber_fit(model, theta0, t, groups=groups, spike_sigmas=SPIKE_SIGMAS)
+    fit = huber_fit(model, theta0, t, groups=groups, spike_sigmas=SPIKE_SIGMAS, work_rows=work_rows,
+                    keep_residuals=keep_residuals)
     spikes = fit["spikes"]
     theta, cov = fit["coef"], fit["cov"]
     if fixed_n is not None:
@@ -170,7 +218,6 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
         warnings.append("voltage exponent %.2f is poorly determined (standard error %.2f); "
                         "sweep at supply voltages further apart" % (n, se[3]))
     residuals = fit["residuals"]
-    kept = residuals[~spikes]
     return {
         "thrust_max_N": t_max, "quadratic_share": float(a), "command_min": u_min,
         "command_max": 1.0, "reference_voltage_V": v_ref, "voltage_exponent": n,
@@ -182,7 +229,7 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
                             "density_exponent": float(se[3]) if fixed_n is None else 0.0},
         "covariance": {"names": list(PARAM_NAMES), "matrix": cov.tolist()},
         "residuals_N": residuals, "scale_N": fit["scale"], "spikes": spikes,
-        "rms_residual_N": float(np.sqrt(np.mean(kept * kept))),
+        "rms_residual_N": float(np.sqrt(fit["sum_sq_kept"] / max(fit["rows_kept"], 1))),
         "huber_c": HUBER_C, "robust_scale_N": fit["scale"],
         "warnings": warnings,
     }

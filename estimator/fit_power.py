@@ -16,7 +16,7 @@ import math
 import numpy as np
 
 from estimator.errors import InputError
-from estimator.robust import huber_lstsq, mad_scale
+from estimator.robust import WORK_ROWS, _cross, huber_fit, huber_lstsq, mad_scale, working_rows
 
 # rows below this share of T_max are left out of k and of the watch residual: there the
 # power is mostly idle draw and k means little [-]
@@ -83,8 +83,14 @@ def check_static_factor(source, thrust_N, power_W, density_kg_m3, area_m2, thrus
     ts, k = ts[good], k[good]
     if k.size < 5:
         raise InputError("%s: fewer than 5 rows with thrust and power above idle" % source)
-    bins = np.array_split(k[np.argsort(ts)], min(10, k.size // 5))
-    worst = max(float(np.median(b)) for b in bins)
+    # equal-count thrust bins, as np.array_split of k sorted by thrust would give; one
+    # partition at the bin edges places every row in its bin without a full sort
+    n_bins = min(10, k.size // 5)
+    sizes = [len(b) for b in np.array_split(np.empty(k.size), n_bins)]
+    edges = np.cumsum(sizes)[:-1]
+    order = np.argpartition(ts, edges) if edges.size else np.arange(k.size)
+    bounds = np.concatenate([[0], edges, [k.size]])
+    worst = max(float(np.median(k[order[bounds[i]:bounds[i + 1]]])) for i in range(n_bins))
     k_med = float(np.median(k))
     if worst > 1.0:
         causes = _unit_slips(worst, thrust_unit, current_unit) or [
@@ -104,29 +110,69 @@ def check_static_factor(source, thrust_N, power_W, density_kg_m3, area_m2, thrus
     return k_med
 
 
-def fit_power_model(thrust_N, power_W, groups=None):
+def _power_design_model(thrust_N):
+    """model(beta, rows) -> (f [W], J) for P = b0 + b1 T^1.5 + b2 T^2 (T clipped at 0),
+    J with contiguous columns (Fortran order), for estimator.robust.huber_fit."""
+    def model(beta, rows):
+        tt = np.maximum(thrust_N[rows], 0.0)
+        jt = np.empty((3, tt.size))
+        jt[0] = 1.0
+        np.sqrt(tt, out=jt[1])
+        jt[1] *= tt
+        np.multiply(tt, tt, out=jt[2])
+        f = jt[1] * float(beta[1])
+        f += float(beta[0])
+        np.multiply(jt[2], float(beta[2]), out=tt)
+        f += tt
+        return f, jt.T
+
+    return model
+
+
+def fit_power_model(thrust_N, power_W, groups=None, exclude=None, work_rows=WORK_ROWS):
     """Huber fit of P = P_idle + c_i T^1.5 + c_c T^2 at the bench density.
 
     thrust_N: measured thrust [N] (negative values from load-cell zero drift count as 0);
     power_W: electrical power [W]; groups: row labels for the cluster-robust covariance
-    (estimator.robust.sandwich_cov). Returns dict: idle_power_W [W], induced_W_per_N1_5
-    [W/N^1.5], copper_W_per_N2 [W/N^2], standard_errors, spikes (mask), residuals_W,
+    (estimator.robust.sandwich_cov); exclude: optional bools, rows left out (e.g. thrust
+    spikes); work_rows: see estimator.robust.huber_fit. Returns dict: idle_power_W [W],
+    induced_W_per_N1_5 [W/N^1.5], copper_W_per_N2 [W/N^2], standard_errors, spikes (mask
+    over all rows given, False on excluded rows), residuals_W (None for a very large sweep),
     power_rms_residual_W [W].
     """
-    t = np.clip(np.asarray(thrust_N, dtype=float), 0.0, None)
-    p = np.asarray(power_W, dtype=float)
-    design = np.empty((t.size, 3))
-    design[:, 0] = 1.0
-    np.sqrt(t, out=design[:, 1])
-    design[:, 1] *= t
-    np.multiply(t, t, out=design[:, 2])
-    # power noise grows with power (sensor gain error), so spikes are judged relative
-    fit = huber_lstsq(design, p, groups=groups, spike_sigmas=SPIKE_SIGMAS, relative_spikes=True)
-    spikes = fit["spikes"]
+    t_all = np.asarray(thrust_N, dtype=float)
+    p_all = np.asarray(power_W, dtype=float)
+    n_in = t_all.size if exclude is None else t_all.size - int(np.count_nonzero(exclude))
+    if n_in // work_rows > 1:
+        # very large sweep: the design is built block by block, excluded rows stay in place
+        model = _power_design_model(t_all)
+        ws = working_rows(t_all.size, work_rows, exclude)
+        f0, design_w = model(np.zeros(3), ws)
+        beta0 = np.linalg.lstsq(_cross(design_w, design_w), _cross(design_w, p_all[ws]), rcond=None)[0]
+        fit = huber_fit(model, beta0, p_all, groups=groups, spike_sigmas=SPIKE_SIGMAS,
+                        relative_spikes=True, work_rows=work_rows, exclude=exclude,
+                        keep_residuals=False)
+        spikes = fit["spikes"]
+        residuals = None
+    else:
+        keep = None if exclude is None else ~exclude
+        t = np.clip(t_all if keep is None else t_all[keep], 0.0, None)
+        p = p_all if keep is None else p_all[keep]
+        design = np.empty((t.size, 3))
+        design[:, 0] = 1.0
+        np.sqrt(t, out=design[:, 1])
+        design[:, 1] *= t
+        np.multiply(t, t, out=design[:, 2])
+        # power noise grows with power (sensor gain error), so spikes are judged relative
+        fit = huber_lstsq(design, p, groups=groups if keep is None or groups is None else groups[keep],
+                          spike_sigmas=SPIKE_SIGMAS, relative_spikes=True)
+        spikes = fit["spikes"]
+        residuals = fit["residuals"]
+        if keep is not None:
+            spikes = np.zeros(t_all.size, dtype=bool)
+            spikes[np.flatnonzero(keep)] = fit["spikes"]
     coef = fit["coef"]
     se = np.sqrt(np.maximum(np.diag(fit["cov"]), 0.0))
-    residuals = fit["residuals"]
-    kept = residuals[~spikes]
     if not coef[1] + coef[2] * 10.0 > 0.0:
         raise InputError("power does not rise with thrust in this sweep (fitted induced term "
                          "%.4g W/N^1.5); check the current column" % coef[1])
@@ -136,7 +182,7 @@ def fit_power_model(thrust_N, power_W, groups=None):
         "standard_errors": {"idle_power_W": float(se[0]), "induced_W_per_N1_5": float(se[1]),
                             "copper_W_per_N2": float(se[2])},
         "spikes": spikes, "residuals_W": residuals,
-        "power_rms_residual_W": float(np.sqrt(np.mean(kept * kept))),
+        "power_rms_residual_W": float(np.sqrt(fit["sum_sq_kept"] / max(fit["rows_kept"], 1))),
     }
 
 
@@ -163,15 +209,64 @@ def watch_residual_rel_std(power_W, expected_W, thrust_share):
     return float(mad_scale(rel))
 
 
-def fit_static_factor(thrust_N, power_W, density_kg_m3, area_m2, thrust_max_N, groups=None):
+def _line_model(x):
+    """model(beta, rows) -> (f, J) for the line f = b0 + b1 x (J in Fortran order)."""
+    def model(beta, rows):
+        xx = x[rows]
+        jt = np.empty((2, xx.size))
+        jt[0] = 1.0
+        jt[1] = xx
+        f = xx * float(beta[1])
+        f += float(beta[0])
+        return f, jt.T
+
+    return model
+
+
+def fit_static_factor(thrust_N, power_W, density_kg_m3, area_m2, thrust_max_N, groups=None,
+                      exclude=None, work_rows=WORK_ROWS):
     """Huber line k(T) = k0 + slope T through rows above 10 % of T_max.
 
+    exclude: optional bools, rows left out (spikes); work_rows: see estimator.robust.huber_fit.
     Returns dict: k0 [-], slope_per_N [1/N], standard_errors, median_thrust_N [N], cov.
     """
     t = np.asarray(thrust_N, dtype=float)
+    p_all = np.asarray(power_W, dtype=float)
+    if t.size // work_rows > 1:
+        # very large sweep: k for every row, the unused rows excluded in place (no copies)
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            k = np.multiply(p_all, p_all)
+            k *= 2.0 * density_kg_m3 * area_m2
+            np.cbrt(k, out=k)
+            np.divide(t, k, out=k)
+            sel = t > K_MIN_THRUST_SHARE * thrust_max_N
+            sel &= p_all > 0.0
+            sel &= np.isfinite(k)
+            if exclude is not None:
+                sel &= ~exclude
+        n_sel = int(np.count_nonzero(sel))
+        if n_sel < 5:
+            raise InputError("fewer than 5 rows above 10 % of full thrust with power above zero")
+        if n_sel // work_rows > 1:
+            picked = np.flatnonzero(sel)
+            ws = picked[:: max(1, picked.size // work_rows)]  # = working_rows(t.size, work_rows, ~sel)
+            model = _line_model(t)
+            _, design_w = model(np.zeros(2), ws)
+            beta0 = np.linalg.lstsq(_cross(design_w, design_w), _cross(design_w, k[ws]), rcond=None)[0]
+            fit = huber_fit(model, beta0, k, groups=groups, work_rows=work_rows, exclude=~sel,
+                            keep_residuals=False, work=ws)
+            t_med = float(np.median(t[picked[:: max(1, picked.size // MAD_ROWS)]]))
+            se = np.sqrt(np.maximum(np.diag(fit["cov"]), 0.0))
+            return {"k0": float(fit["coef"][0]), "slope_per_N": float(fit["coef"][1]),
+                    "standard_errors": {"k0": float(se[0]), "slope_per_N": float(se[1])},
+                    "cov": fit["cov"], "median_thrust_N": t_med}
+    if exclude is not None:
+        keep = ~exclude
+        t, p_all = t[keep], p_all[keep]
+        groups = None if groups is None else groups[keep]
     sel = t > K_MIN_THRUST_SHARE * thrust_max_N
     ts = t[sel]
-    k = static_factors(ts, np.asarray(power_W)[sel], density_kg_m3, area_m2)
+    k = static_factors(ts, p_all[sel], density_kg_m3, area_m2)
     gs = None if groups is None else groups[sel]
     good = np.isfinite(k)
     if not np.all(good):

@@ -11,14 +11,15 @@ import numpy as np
 
 from estimator.errors import InputError
 from estimator.core.momentum import disk_area_m2
-from estimator.fit_curve import command_groups, fit_thrust_curve
+from estimator.fit_curve import command_groups, fit_thrust_curve, thrust_model_N
 from estimator.fit_power import (MAD_ROWS, check_static_factor, fit_power_model, fit_static_factor,
                                  power_model_W, static_factor_at, watch_residual_rel_std)
+from estimator.robust import WORK_ROWS
 
 
 def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, altitude_m=None,
                    temperature_C=None, pressure_Pa=None, humidity_pct=None,
-                   voltage_exponent=None, keep_arrays=False):
+                   voltage_exponent=None, keep_arrays=False, work_rows=WORK_ROWS):
     """Fit a bench CSV and return the parameter-set dict (not yet written; see params.write_params).
 
     path: bench CSV; diameter_m: propeller diameter [m] (else ``# diameter:`` or the
@@ -26,7 +27,10 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
     blocks); density_kg_m3 [kg/m^3] / altitude_m [m] / temperature_C [C] / pressure_Pa [Pa]
     / humidity_pct [%]: bench air overriding the file; voltage_exponent: fix n [-].
     keep_arrays=True adds a private ``_arrays`` entry (rows and fits) for plots; it is
-    removed by params.write_params. Raises InputError on bad or impossible data.
+    removed by params.write_params. work_rows: sweeps of more than twice this many rows
+    take the very large path of the fits (estimator.robust.huber_fit); a huge value forces
+    every fit to iterate on all rows (the reference path). Raises InputError on bad or
+    impossible data.
     """
     from estimator.bench import read_bench
 
@@ -44,10 +48,11 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
         raise InputError("%s: the propeller diameter is needed for the static thrust factor; "
                          "add '# diameter: 10in' to the CSV, or pass --diameter or --vehicle" % path)
     return fit_bench(data, path, vehicle=vehicle, voltage_exponent=voltage_exponent,
-                     keep_arrays=keep_arrays)
+                     keep_arrays=keep_arrays, work_rows=work_rows)
 
 
-def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=False):
+def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=False,
+              work_rows=WORK_ROWS):
     """Fit the arrays returned by estimator.bench.read_bench; see fit_bench_file.
 
     Floating-point trouble on pathological data (overflow, a singular system) becomes an
@@ -55,7 +60,7 @@ def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=Fal
     """
     try:
         with np.errstate(all="ignore"):
-            params = _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays)
+            params = _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, work_rows)
     except (np.linalg.LinAlgError, FloatingPointError, OverflowError, ZeroDivisionError,
             ValueError) as exc:
         raise InputError("%s: the sweep cannot be fitted (%s); check that command, voltage, "
@@ -78,7 +83,7 @@ def _check_finite(node, source, path="$"):
         raise InputError("%s: the fit gave a non-finite %s; the sweep cannot be fitted" % (source, path))
 
 
-def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
+def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, work_rows=WORK_ROWS):
     from estimator.params import build_params
 
     rho = data["bench_air"]["density_kg_m3"]
@@ -88,25 +93,27 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
                         data.get("current_unit", "A"))
     groups = command_groups(u)
     try:
-        curve = fit_thrust_curve(u, v, t, voltage_exponent=voltage_exponent, groups=groups)
+        curve = fit_thrust_curve(u, v, t, voltage_exponent=voltage_exponent, groups=groups,
+                                 work_rows=work_rows, keep_residuals=False)
     except InputError as exc:
         raise InputError("%s: %s" % (source, exc)) from None
     curve["reference_density_kg_m3"] = rho
-    t_model = t - curve["residuals_N"]  # the fitted curve at every row's command and voltage
-    keep = ~curve["spikes"]
-    power = fit_power_model(t[keep], p[keep], groups[keep])
+    spikes_t = curve["spikes"]
+    n_spike_t = int(np.count_nonzero(spikes_t))
+    power = fit_power_model(t, p, groups, exclude=spikes_t if n_spike_t else None, work_rows=work_rows)
     power["reference_density_kg_m3"] = rho
-    spikes_p = np.zeros_like(keep)
-    spikes_p[np.flatnonzero(keep)] = power["spikes"]
-    used = keep & ~spikes_p
+    spikes_p = power["spikes"]
+    used = ~spikes_t
+    used &= ~spikes_p
     step = max(1, u.size // MAD_ROWS)  # a systematic subsample is plenty for a median
-    t_sub, used_sub = t_model[::step], used[::step]
+    # the fitted curve at the subsample's command and voltage
+    t_sub, used_sub = thrust_model_N(curve, u[::step], v[::step]), used[::step]
     expected = power_model_W(power, t_sub[used_sub])
     power["residual_rel_std"] = watch_residual_rel_std(p[::step][used_sub], expected,
                                                        t_sub[used_sub] / curve["thrust_max_N"])
-    sf = fit_static_factor(t[used], p[used], rho, area, curve["thrust_max_N"], groups[used])
+    sf = fit_static_factor(t, p, rho, area, curve["thrust_max_N"], groups, exclude=~used,
+                           work_rows=work_rows)
     rejected = dict(data["rejected"])
-    n_spike_t = int(np.count_nonzero(curve["spikes"]))
     n_spike_p = int(np.count_nonzero(spikes_p))
     if n_spike_t:
         rejected["thrust_spike"] = n_spike_t
@@ -134,7 +141,7 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     params = build_params(data, fit, source, vehicle, hover)
     if keep_arrays:
         params["_arrays"] = {"command": u, "voltage_V": v, "thrust_N": t, "power_W": p,
-                             "used": used, "thrust_model_N": t_model}
+                             "used": used, "thrust_model_N": thrust_model_N(curve, u, v)}
     return params
 
 
