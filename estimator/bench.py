@@ -57,6 +57,37 @@ def _sha256(path):
     return h.hexdigest()
 
 
+class _Digest:
+    """SHA-256 of a file computed on a helper thread (hashlib releases the GIL on large
+    blocks, so it runs beside the numpy work of the fit); value() waits for it."""
+
+    def __init__(self, path):
+        import threading
+
+        self._path, self._value, self._error = path, None, None
+        self._thread = threading.Thread(target=self._run, daemon=True)
+        self._thread.start()
+
+    def _run(self):
+        try:
+            self._value = _sha256(self._path)
+        except OSError as exc:
+            self._error = exc
+
+    def value(self):
+        self._thread.join()
+        if self._error is not None:
+            raise InputError("%s: cannot read (%s)" % (self._path, self._error.strerror))
+        return self._value
+
+
+def bench_digest(data):
+    """The input_sha256 of read_bench data, waiting for a background hash if one runs."""
+    if data.get("input_sha256") is None and "_digest" in data:
+        data["input_sha256"] = data.pop("_digest").value()
+    return data["input_sha256"]
+
+
 def _read_head(path):
     """Return (comment dict, header cells, number of lines before the data)."""
     comments = {}
@@ -196,14 +227,16 @@ def _columns(table, indices, block_rows=8192):
 
 
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
-               pressure_Pa=None, humidity_pct=None):
+               pressure_Pa=None, humidity_pct=None, hash_in_background=False):
     """Read a bench CSV into SI arrays and apply the row checks.
 
     Options override the file's comment header. Returns a dict: command, voltage_V,
     thrust_N, power_W (numpy arrays of the rows kept), rows_total, rows_rejected,
     rejected (reason -> count), bench_air {density_kg_m3, source}, diameter_m (or None),
     input_sha256, warnings (list of str). Raises InputError on broken files and on units
-    that are very likely mislabelled.
+    that are very likely mislabelled. hash_in_background=True leaves input_sha256 None
+    and hashes the file on a helper thread after the parse, while the caller fits (the
+    parse itself runs faster alone); bench_digest(data) then waits for the value.
     """
     import numpy as np
 
@@ -211,7 +244,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     columns, warnings = _parse_header(path, cells, header_line)
     ncols = len(cells)
     table = _load_numbers(path, header_line, ncols)
-    digest = _sha256(path)
+    digest = _Digest(path) if hash_in_background else _sha256(path)
     data = {}
     cols = _columns(table, [columns[name][0] for name in REQUIRED])
     for name, col in zip(REQUIRED, cols):
@@ -261,15 +294,19 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     if diameter_m is not None and not (0.01 <= diameter_m <= 3.0):
         raise InputError("%s: propeller diameter %.4g m is outside 0.01..3 m; give it as e.g. "
                          "'# diameter: 10in' or '--diameter 0.254'" % (path, diameter_m))
-    return {
+    out = {
         "command": u, "voltage_V": v, "thrust_N": t, "power_W": power,
         "thrust_unit": units["thrust"], "command_unit": units["command"],
         "current_unit": units["current"],
         "rows_total": rows_total, "rows_rejected": rows_total - n_keep,
         "rejected": {k: c for k, c in rejected.items() if c},
-        "bench_air": air, "diameter_m": diameter_m, "input_sha256": digest,
+        "bench_air": air, "diameter_m": diameter_m,
+        "input_sha256": None if hash_in_background else digest,
         "warnings": warnings,
     }
+    if hash_in_background:
+        out["_digest"] = digest
+    return out
 
 
 def _row_checks(path, data, rows_total):

@@ -15,6 +15,7 @@ import numpy as np
 
 from estimator.errors import InputError
 from estimator.robust import HUBER_C, WORK_ROWS, huber_fit, working_rows
+from estimator.robust import fast_median as exact_median  # O(n), equal to np.median
 
 # Voltage exponent used when the sweep holds no voltage spread: the DC motor model with a
 # resistive drop of 1/8 of the back-EMF, n = 2 (1 + r) / (1 + 2 r) = 1.8 at r = 0.125
@@ -71,28 +72,20 @@ def voltage_spread_at_equal_command(command, voltage_V, bins=20):
     return float(np.median(spreads)) if spreads else 0.0
 
 
-def exact_median(values):
-    """Median [unit of values] by one O(n) selection (np.partition) instead of np.median's
-    two-point selection: the same value (mean of the two middle values for an even count)."""
-    v = np.asarray(values, dtype=float)
-    n = v.size
-    if n < 1000 or not np.isfinite(np.sum(v)):
-        return float(np.median(v))
-    k = n // 2
-    part = np.partition(v, k)
-    if n % 2:
-        return float(part[k])
-    return float(0.5 * (part[k] + np.max(part[:k])))
-
-
-def _model_factory(u, log_v, fixed_n):
+def _model_factory(u, log_v, fixed_n, voltage_V=None, v_ref=None):
     """Return model(theta, rows) -> (f [N], J) for estimator.robust.huber_fit (rows: a slice
-    or an index array). J is n x p with contiguous columns (Fortran order)."""
+    or an index array). J is n x p with contiguous columns (Fortran order). log_v: ln(V /
+    V_ref) per row, or None to take it block by block from voltage_V [V] and v_ref [V]."""
     p = 3 if fixed_n is not None else 4
+    log_ref = None if v_ref is None else float(np.log(v_ref))
 
     def model(theta, rows):
         uu = u[rows]
-        lv = log_v[rows]
+        if log_v is None:
+            lv = np.log(voltage_V[rows])
+            lv -= log_ref
+        else:
+            lv = log_v[rows]
         t_max, a, u_min = float(theta[0]), float(theta[1]), float(theta[2])
         n = fixed_n if fixed_n is not None else float(theta[3])
         span = 1.0 - u_min
@@ -165,8 +158,7 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
     t = np.asarray(thrust_N, dtype=float)
     warnings = []
     v_ref = float(round(exact_median(v), 2))
-    log_v = np.log(v)
-    log_v -= np.log(v_ref)
+    large = u.size // work_rows > 1
     spread = voltage_spread_at_equal_command(u, v)
     fixed_n = voltage_exponent
     if fixed_n is None and spread < MIN_VOLTAGE_SPREAD:
@@ -178,18 +170,23 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
     if float(np.max(u) - np.min(u)) < 0.3:
         raise InputError("the sweep spans commands %.2f..%.2f only; sweep from idle to at least "
                          "0.3 above it" % (float(np.min(u)), float(np.max(u))))
-    if u.size // work_rows > 1:
+    if large:
         # a very large sweep: the start only needs to be near; a coarse subsample places it
         idx = working_rows(u.size, work_rows)
         idx = idx[:: max(1, idx.size // START_ROWS)]
+        log_v = None  # ln(V / V_ref) is taken block by block: no full-size array
+        lv_start = np.log(v[idx] / v_ref)
     else:
         idx = slice(None, None, max(1, u.size // work_rows))
-    theta0 = _start(u[idx], log_v[idx], t[idx], fixed_n if fixed_n is not None else DEFAULT_VOLTAGE_EXPONENT)
+        log_v = np.log(v)
+        log_v -= np.log(v_ref)
+        lv_start = log_v[idx]
+    theta0 = _start(u[idx], lv_start, t[idx], fixed_n if fixed_n is not None else DEFAULT_VOLTAGE_EXPONENT)
     if not np.all(np.isfinite(theta0)):
         raise InputError("no thrust curve can be started from this sweep (non-finite start values)")
     if fixed_n is not None:
         theta0 = theta0[:3]
-    model = _model_factory(u, log_v, fixed_n)
+    model = _model_factory(u, log_v, fixed_n, v, v_ref)
     if groups is None:
         groups = command_groups(u)
     fit = huber_fit(model, theta0, t, groups=groups, spike_sigmas=SPIKE_SIGMAS, work_rows=work_rows,

@@ -36,7 +36,8 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
 
     data = read_bench(path, diameter_m=diameter_m, density_kg_m3=density_kg_m3,
                       altitude_m=altitude_m, temperature_C=temperature_C,
-                      pressure_Pa=pressure_Pa, humidity_pct=humidity_pct)
+                      pressure_Pa=pressure_Pa, humidity_pct=humidity_pct,
+                      hash_in_background=True)  # the hash runs beside the fit
     if vehicle is not None:
         d_vehicle = vehicle["propeller"]["diameter_m"]
         if data["diameter_m"] is None:
@@ -84,6 +85,7 @@ def _check_finite(node, source, path="$"):
 
 
 def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, work_rows=WORK_ROWS):
+    from estimator.bench import bench_digest
     from estimator.params import build_params
 
     rho = data["bench_air"]["density_kg_m3"]
@@ -125,6 +127,7 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, work_rows=W
         "rows_used": rows_used, "rows_rejected": int(data["rows_total"] - rows_used),
         "warnings": list(data["warnings"]) + curve["warnings"],
     }
+    bench_digest(data)  # the file's SHA-256 (provenance), hashed while the fits ran
     hover = None
     if vehicle is not None:
         from estimator.fitted_hover import hover_block

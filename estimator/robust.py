@@ -28,13 +28,30 @@ WORK_ROWS = 20000        # rows the iterations of a very large fit use [-]
 COARSE_ROWS = 2000       # rows of the first (IRLS) iterations of a very large fit [-]
 SCALE_ROWS = 100000      # rows that fix a very large fit's robust scale and spike edge [-]
 BLOCK_ROWS = 16384       # rows per block of a full-data pass (arrays stay in the CPU cache) [-]
+CHUNK_BLOCKS = 16        # blocks per matrix product of a full-data pass [-]
+
+
+def fast_median(values):
+    """Median [unit of values] by one O(n) selection (np.partition) instead of np.median's
+    two-point selection: the same value (mean of the two middle values for an even count)."""
+    v = np.asarray(values, dtype=float)
+    n = v.size
+    if n < 1000 or not np.isfinite(np.sum(v)):
+        return float(np.median(v))
+    k = n // 2
+    part = np.partition(v, k)
+    if n % 2:
+        return float(part[k])
+    return float(0.5 * (part[k] + np.max(part[:k])))
 
 
 def mad_scale(residuals):
     """Robust scale s = 1.4826 median(|r - median(r)|) [same unit as r]; 0 for a constant r."""
     r = np.asarray(residuals, dtype=float)
-    med = np.median(r)
-    return float(MAD_TO_SIGMA * np.median(np.abs(r - med)))
+    med = fast_median(r)
+    dev = r - med
+    np.abs(dev, out=dev)
+    return float(MAD_TO_SIGMA * fast_median(dev))
 
 
 def huber_weights(residuals, scale, c=HUBER_C):
@@ -165,12 +182,11 @@ def _newton(model, theta, y, index, c, max_iter, tol):
         r = yy - f
         scale = _scale_floor(r[:: max(1, r.size // 5000)], yy)
         limit = c * scale
-        inside = np.abs(r) <= limit
+        inside = np.less_equal(np.abs(r), limit, out=np.empty(r.size))
         psi = np.clip(r, -limit, limit)
-        j_in = jac[inside]
-        if j_in.shape[0] <= 2 * jac.shape[1]:
+        if np.sum(inside) <= 2 * jac.shape[1]:
             break  # too few rows inside the band for a Newton matrix; IRLS already placed it
-        step = _solve(_cross(j_in, j_in), _cross(jac, psi))
+        step = _solve(np.einsum("ij,i,ik->jk", jac, inside, jac), _cross(jac, psi))
         base = huber_loss(r, scale, c)
         lam = 1.0
         for _ in range(30):
@@ -181,8 +197,7 @@ def _newton(model, theta, y, index, c, max_iter, tol):
         theta = theta + lam * step
         if np.all(np.abs(lam * step) <= tol * (np.abs(theta) + 1e-9)):
             break
-    f, _ = model(theta, index)
-    return theta, _scale_floor(yy - f, yy)
+    return theta
 
 
 def huber_fit(model, theta0, y, c=HUBER_C, groups=None, spike_sigmas=None, relative_spikes=False,
@@ -271,8 +286,8 @@ def _large_fit(model, theta, y, c, groups, spike_sigmas, relative_spikes, max_it
     n = y.size
     ws = working_rows(n, work_rows, exclude) if work is None else work
     coarse = ws[:: max(1, ws.size // COARSE_ROWS)]
-    theta, _ = _iterate(model, theta, y, coarse, c, max_iter, 1e-4)
-    theta, _ = _newton(model, theta, y, ws, c, 30, 1e-6)
+    theta, _ = _iterate(model, theta, y, coarse, c, max_iter, 1e-3)
+    theta = _newton(model, theta, y, ws, c, 30, 1e-6)
     # the robust scale (Huber's threshold, the spike edge) from a larger systematic sample
     # than the working set, at the working-set estimate: the full data's own scale to about
     # 0.4 % with SCALE_ROWS rows, where the working set alone leaves about 1 % (and a few
@@ -290,9 +305,11 @@ def _large_fit(model, theta, y, c, groups, spike_sigmas, relative_spikes, max_it
     limit = c * scale
     spikes = np.zeros(n, dtype=bool)
     residuals = np.empty(n) if keep_residuals else None
-    # slope-weighted Jacobian of every row, kept so that A = J^T diag(psi') J is one matrix
-    # product at the end (one BLAS call, not one per block) [p x n, J's units]
-    j_slope = np.empty((p, n))
+    # slope-weighted Jacobian of CHUNK_BLOCKS blocks, gathered so that A = J^T diag(psi') J
+    # takes one matrix product per chunk (few BLAS calls, not one per block) [J's units]
+    chunk = CHUNK_BLOCKS * block_rows
+    j_slope = np.empty((p, min(n, chunk)))
+    a_mat = np.zeros((p, p))
     g_vec = np.zeros(p)
     b_mat = np.zeros((p, p))
     n_groups = int(np.max(groups)) + 1 if groups is not None else 0
@@ -304,10 +321,10 @@ def _large_fit(model, theta, y, c, groups, spike_sigmas, relative_spikes, max_it
             rows = slice(b0, min(n, b0 + block_rows))
             f, jac = model(theta, rows)
             r = y[rows] - f
-            if exclude is not None:
-                ex = exclude[rows]
-                r[ex] = 0.0  # excluded rows may hold anything, even NaN
+            ex = None if exclude is None else exclude[rows]
             if not np.isfinite(np.sum(r)):
+                if ex is not None:
+                    r[ex] = 0.0  # excluded rows may hold anything, even NaN
                 _require_finite(r)
             if residuals is not None:
                 residuals[rows] = r
@@ -333,30 +350,35 @@ def _large_fit(model, theta, y, c, groups, spike_sigmas, relative_spikes, max_it
                 spikes[rows] = spk
             w = np.divide(limit, a)
             np.minimum(w, 1.0, out=w)
-            slope = (a <= limit).astype(float)  # psi'(r): 1 inside c s, 0 outside
+            slope = np.less_equal(a, limit, out=a)  # psi'(r): 1 inside c s, 0 outside (as float)
             if drop is not None and drop.any():
-                w[drop] = 0.0
-                slope[drop] = 0.0
-                rd = r[drop]
-                sum_sq -= float(np.einsum("i,i->", rd, rd))
+                keep = np.logical_not(drop, out=np.empty(r.size))  # 1.0 on the rows used
+                w *= keep
+                slope *= keep
+                sum_sq += float(np.einsum("i,i,i->", r, r, keep))
                 n_drop += int(np.count_nonzero(drop))
-            sum_sq += float(np.einsum("i,i->", r, r))
+            else:
+                sum_sq += float(np.einsum("i,i->", r, r))
             w *= r  # psi(r) = w r
             jt = jac.T
-            np.multiply(jt, slope, out=j_slope[:, rows])
+            c0 = b0 % chunk
+            np.multiply(jt, slope, out=j_slope[:, c0:c0 + jt.shape[1]])
+            if c0 + jt.shape[1] == chunk or rows.stop == n:
+                js = j_slope[:, :c0 + jt.shape[1]]
+                a_mat += js @ js.T  # psi' is 0 or 1: J^T diag(psi') J = (psi' J)^T (psi' J)
             jt_psi = jt * w
-            g_vec += np.sum(jt_psi, axis=1)
             if groups is not None:
                 gb = groups[rows].astype(np.intp)
                 for j in range(p):
                     scores[j] += np.bincount(gb, weights=jt_psi[j], minlength=n_groups)
             else:
-                b_mat += jt_psi @ jt_psi.T
+                g_vec += np.sum(jt_psi, axis=1)
+                b_mat += _cross(jt_psi.T, jt_psi.T)
     n_used = n - n_drop
-    a_mat = j_slope @ j_slope.T  # psi' is 0 or 1, so J^T diag(psi') J = (psi' J)^T (psi' J)
     del j_slope
     if groups is not None:
         b_mat = scores @ scores.T
+        g_vec = np.sum(scores, axis=1)  # J^T psi: the cluster scores summed
     a_inv = np.linalg.pinv(a_mat)
     cov = a_inv @ b_mat @ a_inv * (n_used / max(n_used - p, 1))
     theta = theta + _solve(a_mat, g_vec)  # one-step Newton estimate (Bickel 1975)
