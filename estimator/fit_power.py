@@ -165,7 +165,7 @@ def fit_power_model(thrust_N, power_W, groups=None, exclude=None, work_rows=WORK
         np.multiply(t, t, out=design[:, 2])
         # power noise grows with power (sensor gain error), so spikes are judged relative
         fit = huber_lstsq(design, p, groups=groups if keep is None or groups is None else groups[keep],
-                          spike_sigmas=SPIKE_SIGMAS, relative_spikes=True)
+                          spike_sigmas=SPIKE_SIGMAS, relative_spikes=True, work_rows=work_rows)
         spikes = fit["spikes"]
         residuals = fit["residuals"]
         if keep is not None:
@@ -277,7 +277,7 @@ def fit_static_factor(thrust_N, power_W, density_kg_m3, area_m2, thrust_max_N, g
     design = np.empty((ts.size, 2))
     design[:, 0] = 1.0
     design[:, 1] = ts
-    fit = huber_lstsq(design, k, groups=gs)
+    fit = huber_lstsq(design, k, groups=gs, work_rows=work_rows)
     se = np.sqrt(np.maximum(np.diag(fit["cov"]), 0.0))
     return {"k0": float(fit["coef"][0]), "slope_per_N": float(fit["coef"][1]),
             "standard_errors": {"k0": float(se[0]), "slope_per_N": float(se[1])},

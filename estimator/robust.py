@@ -24,9 +24,9 @@ import numpy as np
 
 HUBER_C = 1.345          # tuning constant [-]: 95 % Gaussian efficiency (Huber 1981)
 MAD_TO_SIGMA = 1.4826    # 1 / Phi^-1(3/4) [-]: MAD of a normal sample -> its sigma
-WORK_ROWS = 20000        # rows the iterations of a very large fit use [-]
+WORK_ROWS = 10000        # rows the iterations of a very large fit use [-]
 COARSE_ROWS = 2000       # rows of the first (IRLS) iterations of a very large fit [-]
-SCALE_ROWS = 100000      # rows that fix a very large fit's robust scale and spike edge [-]
+SCALE_ROWS = 50000      # rows that fix a very large fit's robust scale and spike edge [-]
 BLOCK_ROWS = 16384       # rows per block of a full-data pass (arrays stay in the CPU cache) [-]
 CHUNK_BLOCKS = 16        # blocks per matrix product of a full-data pass [-]
 
@@ -386,7 +386,8 @@ def _large_fit(model, theta, y, c, groups, spike_sigmas, relative_spikes, max_it
             "sum_sq_kept": sum_sq, "rows_kept": n_used}
 
 
-def huber_lstsq(design, y, c=HUBER_C, groups=None, spike_sigmas=None, relative_spikes=False):
+def huber_lstsq(design, y, c=HUBER_C, groups=None, spike_sigmas=None, relative_spikes=False,
+                work_rows=WORK_ROWS):
     """Linear Huber regression y ~ design @ beta (design: n x p) by IRLS; see huber_fit.
 
     Returns dict: coef (p), cov (p x p), scale (unit of y), residuals (n), spikes (n).
@@ -394,7 +395,7 @@ def huber_lstsq(design, y, c=HUBER_C, groups=None, spike_sigmas=None, relative_s
     design = np.asarray(design, dtype=float)
     y = np.asarray(y, dtype=float)
     _require_finite(design, y)
-    work = slice(None, None, max(1, y.size // WORK_ROWS))
+    work = slice(None, None, max(1, y.size // work_rows))
     beta0 = _solve(design[work].T @ design[work], design[work].T @ y[work])
 
     def model(beta, rows):
@@ -402,4 +403,4 @@ def huber_lstsq(design, y, c=HUBER_C, groups=None, spike_sigmas=None, relative_s
         return x @ beta, x
 
     return huber_fit(model, beta0, y, c=c, groups=groups, spike_sigmas=spike_sigmas,
-                     relative_spikes=relative_spikes)
+                     relative_spikes=relative_spikes, work_rows=work_rows)
