@@ -43,9 +43,12 @@ DEFAULTS = {
     "mass_samples": 20,             # steady mass-filter updates (every 4th sample) before mass_g is reported
 }
 
-# Order of the CONFIG tuple the kernel takes (estimator/core/watch.py unpacks it in this order);
-# "format" is the kernel's CONFIG format number.
-CONFIG_FORMAT = 1
+# CONFIG is one flat tuple of plain ints (each below 2^30 in magnitude): the scalars in
+# CONFIG_KEYS order (index 0 is "format", the kernel's CONFIG format number), then the four
+# tables in TABLES order, knot after knot. The kernel copies the scalars into its state list in
+# __init__ (estimator/core/watch.py unpacks them in this order) and reads the tables by index
+# at the offsets in TABLE_AT.
+CONFIG_FORMAT = 2
 CONFIG_KEYS = (
     "format",
     "dt_max_ms",
@@ -62,12 +65,7 @@ CONFIG_KEYS = (
     "command_min_permille",
     "command_span_permille",
     "quadratic_q12",
-    "volt_lo_mV",
     "volt_step_mV",
-    "tables",
-    "power_shift",
-    "thrust_shift",
-    "thrust_unit_shift",
     "power_floor_dW",
     "cusum_k_permille",
     "cusum_h_permille",
@@ -77,12 +75,20 @@ CONFIG_KEYS = (
     "mass_samples",
     "mass_limit_g",
     "drift_tol_permille",
+    "thrust_shift",
+    "thrust_unit_shift",
 )
 
-# byte offsets of the tables inside CONFIG "tables" (the kernel uses these numbers)
-TABLE_PARTS = ("volt_q12", "hover_table_permille", "power_table", "thrust_table")
-TABLE_AT = {"volt_q12": 0, "hover_table_permille": 34, "power_table": 68, "thrust_table": 166}
-TABLES_BYTES = 296
+# the tables after the scalars: (name, knots); their CONFIG index ranges (the kernel uses these
+# offsets as literal numbers)
+TABLES = (("volt_q12", 13), ("hover_table_permille", 13), ("power_table", 49), ("thrust_table", 33))
+TABLE_AT = {}
+_at = len(CONFIG_KEYS)
+for _name, _n in TABLES:
+    TABLE_AT[_name] = _at
+    _at += _n
+CONFIG_LENGTH = _at  # 135
+del _at, _name, _n
 
 SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
 
@@ -121,20 +127,13 @@ def threshold_for_arl(k, arl_two_sided):
     return 0.5 * (lo + hi)
 
 
-def pack16(values):
-    """Table of unsigned ints < 2^16 as bytes, 2 bytes little-endian each (compact on the board)."""
-    out = bytearray()
-    for v in values:
-        v = int(v)
-        if not 0 <= v < 1 << 16:
-            raise InputError("watch CONFIG: table value %d outside 0..65535" % v)
-        out += bytes((v & 255, v >> 8))
-    return bytes(out)
-
-
-def unpack16(data):
-    """Inverse of pack16: list of ints."""
-    return [data[i] | data[i + 1] << 8 for i in range(0, len(data), 2)]
+def table(values, name, top):
+    """A CONFIG table: tuple of ints in 0..top (InputError otherwise)."""
+    out = tuple(int(v) for v in values)
+    for v in out:
+        if not 0 <= v <= top:
+            raise InputError("watch CONFIG: %s value %d outside 0..%d" % (name, v, top))
+    return out
 
 
 def vehicle_facts(params, vehicle=None):
@@ -226,29 +225,31 @@ def make_config(params, vehicle=None, options=None):
 
     v_full = float(v.get("full_voltage_V") or curve["reference_voltage_V"] * 1.15)
     v_empty = float(v.get("empty_voltage_V") or curve["reference_voltage_V"] * 0.85)
-    v_lo, v_hi = 0.8 * v_empty, 1.05 * v_full
-    if v_hi > 60.0:
+    if 1.05 * v_full > 60.0:
         raise InputError("vehicle: full pack voltage %.1f V is beyond the watch's 60 V sensor range" % v_full)
-    v_step = int(math.ceil((v_hi - v_lo) * 1000.0 / 16.0))
-    v_lo_mV = int(round(v_lo * 1000.0))
-    put("volt_lo_mV", v_lo_mV, "table from %.2f V (0.8 x empty pack %.2f V)" % (v_lo, v_empty))
-    put("volt_step_mV", v_step, "16 steps to %.2f V (1.05 x full pack %.2f V)" % (v_hi, v_full))
-    put("v_min_mV", int(round(0.5 * v_empty * 1000.0)), "below half the empty-pack voltage: sensor fault")
-    put("v_max_mV", min(60000, int(round(1.2 * v_full * 1000.0))), "above 1.2 x full pack: sensor fault")
+    v_min_mV = int(round(0.5 * v_empty * 1000.0))
+    v_max_mV = min(60000, int(round(1.2 * v_full * 1000.0)))
+    put("v_min_mV", v_min_mV, "below half the empty-pack voltage %.2f V: sensor fault" % v_empty)
+    put("v_max_mV", v_max_mV, "above 1.2 x full pack %.2f V: sensor fault" % v_full)
+    # the voltage tables span the whole accepted range v_min..v_max (no clamping in the kernel)
+    v_step = (v_max_mV - v_min_mV) // 12 + 1
+    put("volt_step_mV", v_step, "voltage tables: 12 steps from v_min_mV, to %.3f V" % ((v_min_mV + 12 * v_step) / 1000.0))
     i_max = o["current_max_A"] or min(300.0, 1.5 * (v.get("max_current_A") or 200.0))
     put("i_min_mA", int(round(o["current_min_A"] * 1000.0)), "current below this is a sensor fault [mA]")
     put("i_max_mA", int(round(min(i_max, 300.0) * 1000.0)), "current above this is a sensor fault [mA]")
 
     n_exp, v_ref = curve["voltage_exponent"], curve["reference_voltage_V"]
-    volts = [(v_lo_mV + i * v_step) / 1000.0 for i in range(17)]
-    vq = [min(8191, int(round(4096.0 * (x / v_ref) ** n_exp))) for x in volts]
-    put("volt_q12", pack16(vq), "(V / %.3f V)^%.4f x 4096 at the table voltages" % (v_ref, n_exp))
+    volts = [(v_min_mV + i * v_step) / 1000.0 for i in range(13)]
+    # capped at 1.5 (6143): with t(x) <= 1 the power table's argument f = factor x t stays in its range
+    vq = [min(6143, int(round(4096.0 * (x / v_ref) ** n_exp))) for x in volts]
+    put("volt_q12", table(vq, "volt_q12", 6143), "(V / %.3f V)^%.4f x 4096 at the table voltages %.3f..%.3f V"
+        % (v_ref, n_exp, volts[0], volts[-1]))
     weight_N = mass_kg * STANDARD_GRAVITY_M_S2
     hov = []
     for x in volts:
         u, _ = thrust_curve.hover_command(weight_N / n_rot, x, rho, curve)
         hov.append(1000 if u is None else int(round(1000.0 * u)))
-    put("hover_table_permille", pack16(hov), "hover command for %.3f kg on %d rotors at rho %.4f kg/m^3"
+    put("hover_table_permille", table(hov, "hover table", 1000), "hover command for %.3f kg on %d rotors at rho %.4f kg/m^3"
         % (mass_kg, n_rot, rho))
 
     u_min, u_max = curve["command_min"], curve.get("command_max", 1.0)
@@ -267,30 +268,27 @@ def make_config(params, vehicle=None, options=None):
     if max(p_tab) >= 1 << 18:
         raise InputError("parameter set: expected power %.0f W at 1.5 x full thrust exceeds the watch's "
                          "range (26 kW)" % (max(p_tab) / 10.0))
-    ps = 0
-    while max(p_tab) >> ps >= 1 << 16:
-        ps += 1
-    put("power_shift", ps, "power table unit 2^%d x 0.1 W" % ps)
-    put("power_table", pack16([x >> ps for x in p_tab]), "N x P(T) at T = %.3f N x f, f = 0..1.5 step 1/32 "
-        "(power model at rho %.4f) [0.1 W]: %s" % (t_site, rho, " ".join(str(x) for x in p_tab)))
+    put("power_table", table(p_tab, "power table", (1 << 18) - 1), "N x P(T) [0.1 W] at T = %.3f N x f, "
+        "f = 0..1.5 step 1/32 (power model at rho %.4f)" % (t_site, rho))
     p_hover = n_rot * _rotor_power_W(pm, weight_N / n_rot, rho)
     put("power_floor_dW", max(2, int(round(10.0 * 0.2 * p_hover))), "20 %% of hover power %.1f W" % p_hover)
 
-    f_top = min(vq[-1] / 4096.0, 1.5)  # full command at the top of the voltage table
+    f_top = min((1.05 * v_full / v_ref) ** n_exp, 1.5)  # full command at 1.05 x full pack voltage
     p_top_dW = 1.1 * 10.0 * n_rot * _rotor_power_W(pm, t_site * f_top, rho)
     sh = 0
-    while (64 << sh) < p_top_dW:
+    while (32 << sh) < p_top_dW:
         sh += 1
     t_tab = [int(round(min(1e6, 1000.0 * thrust_from_power_total_N(j * (1 << sh) / 10.0, params, n_rot, rho))))
-             for j in range(65)]
+             for j in range(33)]
     tu = 0
-    while max(t_tab) >> tu >= 1 << 16:
+    while max(t_tab) >> tu >= 1 << 13:   # knots below 2^13: short in the bundle, 2^13 x 2^13 in the kernel
         tu += 1
-    put("thrust_shift", sh, "thrust table step 2^%d x 0.1 W, up to %.0f W" % (sh, 64 * (1 << sh) / 10.0))
+    put("thrust_shift", sh, "thrust table step 2^%d x 0.1 W, up to %.0f W" % (sh, 32 * (1 << sh) / 10.0))
     put("thrust_unit_shift", tu, "thrust table unit 2^%d mN" % tu)
-    put("thrust_table", pack16([x >> tu for x in t_tab]), "k(T) (2 rho A (P/N)^2)^(1/3) x N [mN]; k0 %.4f, "
-        "k1 %.5f 1/N, D %.4f m: %s" % (params["static_factor"]["k0"], params["static_factor"]["slope_per_N"],
-                                       params["rotor"]["diameter_m"], " ".join(str(x) for x in t_tab)))
+    put("thrust_table", table([x >> tu for x in t_tab], "thrust table", (1 << 13) - 1),
+        "k(T) (2 rho A (P/N)^2)^(1/3) x N [2^%d mN] at P = 0.1 W x 2^%d x 0..32; k0 %.4f, k1 %.5f 1/N, "
+        "D %.4f m; in mN: %s" % (tu, sh, params["static_factor"]["k0"], params["static_factor"]["slope_per_N"],
+                                 params["rotor"]["diameter_m"], " ".join(str(x) for x in t_tab)))
 
     put("learn_ms", max(1, int(round(1000.0 * o["learn_s"]))), "learning window %.1f s" % o["learn_s"])
     put("baseline_tol_permille", int(round(1000.0 * o["baseline_tol"])), "|scale - 1| above %.3f -> baseline_off" % o["baseline_tol"])
@@ -303,10 +301,6 @@ def make_config(params, vehicle=None, options=None):
     put("mass_samples", int(o["mass_samples"]), "steady mass-filter updates (every 4th sample) before mass_g is reported")
     put("mass_limit_g", int(round(1000.0 * mass_kg * (1.0 + o["mass_share"]))),
         "planned %.3f kg + %.0f %%" % (mass_kg, 100.0 * o["mass_share"]))
-    # the four tables as one bytes object (one heap object on the board); offsets in TABLE_AT
-    parts = [cfg.pop(name) for name in TABLE_PARTS]
-    put("tables", b"".join(parts), "; ".join("%s at byte %d: %s" % (name, TABLE_AT[name], notes.pop(name))
-                                              for name in TABLE_PARTS))
     put("drift_tol_permille", int(round(1000.0 * o["drift_tol"])),
         "slow baseline tracking bounded to +-%.3f (EMA over 512 trusted samples)" % o["drift_tol"])
     check_config(cfg)
@@ -314,8 +308,11 @@ def make_config(params, vehicle=None, options=None):
 
 
 def as_tuple(cfg):
-    """The CONFIG dict as the tuple Watch takes (CONFIG_KEYS order)."""
-    return tuple(cfg[k] for k in CONFIG_KEYS)
+    """The CONFIG dict as the flat tuple of ints Watch takes: CONFIG_KEYS order, then the tables."""
+    out = [cfg[k] for k in CONFIG_KEYS]
+    for name, _ in TABLES:
+        out.extend(cfg[name])
+    return tuple(out)
 
 
 def new_watch(cfg):
@@ -332,28 +329,33 @@ def check_config(cfg):
     def need(ok, what):
         if not ok:
             raise InputError("watch CONFIG: %s" % what)
-    need(set(cfg) == set(CONFIG_KEYS) and cfg["format"] == CONFIG_FORMAT, "keys differ from CONFIG_KEYS")
+    need(set(cfg) == set(CONFIG_KEYS) | set(name for name, _ in TABLES) and cfg["format"] == CONFIG_FORMAT,
+         "keys differ from CONFIG_KEYS and TABLES")
+    need(all(type(cfg[k]) is int for k in CONFIG_KEYS), "scalars must be ints")
+    for name, n in TABLES:
+        need(isinstance(cfg[name], tuple) and len(cfg[name]) == n and all(type(x) is int for x in cfg[name]),
+             "%s must be a tuple of %d ints" % (name, n))
     need(0 < cfg["dt_max_ms"] <= 60000, "dt_max_ms must be in 1..60000")
-    need(0 <= cfg["volt_step_mV"] * 16 <= 60000 and cfg["volt_step_mV"] >= 1, "voltage table outside 0..60 V")
-    need(abs(cfg["v_min_mV"]) <= 60000 and abs(cfg["v_max_mV"]) <= 60000, "voltage limits outside 0..60 V")
+    need(0 <= cfg["v_min_mV"] < cfg["v_max_mV"] <= 60000, "voltage limits outside 0..60 V")
+    need(1 <= cfg["volt_step_mV"] <= 5001 and cfg["v_min_mV"] + 12 * cfg["volt_step_mV"] > cfg["v_max_mV"],
+         "voltage tables must span v_min_mV..v_max_mV in 12 steps")
     need(-300000 <= cfg["i_min_mA"] <= cfg["i_max_mA"] <= 300000, "current limits outside -300..300 A")
-    tb = cfg["tables"]
-    need(isinstance(tb, bytes) and len(tb) == TABLES_BYTES, "tables must be %d bytes" % TABLES_BYTES)
-    part = dict((name, unpack16(tb[TABLE_AT[name]:TABLE_AT[name] + n]))
-                for name, n in zip(TABLE_PARTS, (34, 34, 98, 130)))
-    need(all(0 <= x <= 8191 for x in part["volt_q12"]), "volt_q12 table")
-    need(all(0 <= x <= 1000 for x in part["hover_table_permille"]), "hover table")
-    need(0 <= cfg["power_shift"] <= 2, "power table (< 2^18 x 0.1 W)")
-    need(0 <= cfg["thrust_shift"] <= 12, "thrust table step (power above 26 kW)")
-    tt = part["thrust_table"]
-    need(len(tt) == 65 and all((x << cfg["thrust_unit_shift"]) <= 1000000 for x in tt)
-         and 0 <= cfg["thrust_unit_shift"] <= 4, "thrust table (above 1000 N)")
+    need(0 <= cfg["command_min_permille"] <= 1000 and 1 <= cfg["command_span_permille"] <= 1000
+         and 0 <= cfg["quadratic_q12"] <= 4096, "thrust curve")
+    need(all(0 <= x <= 6143 for x in cfg["volt_q12"]), "volt_q12 table (0..1.5 in Q12)")
+    need(all(0 <= x <= 1000 for x in cfg["hover_table_permille"]), "hover table")
+    need(all(0 <= x < 1 << 18 for x in cfg["power_table"]), "power table (< 2^18 x 0.1 W)")
+    need(0 <= cfg["thrust_shift"] <= 13, "thrust table step (power above 26 kW)")
+    need(0 <= cfg["thrust_unit_shift"] <= 7 and all(0 <= x < 1 << 13 and (x << cfg["thrust_unit_shift"]) <= 1000000
+                                                      for x in cfg["thrust_table"]), "thrust table (above 1000 N)")
     need(0 <= cfg["rate_fast_permille_s"] <= 10000, "rate limit")
     need(1 <= cfg["settle_ms"] <= 60000 and 1 <= cfg["steady_ms"] <= 60000 and 1 <= cfg["landed_ms"] <= 60000,
          "time constants must be 1..60000 ms")
+    need(cfg["settle_ms"] <= cfg["steady_ms"], "settle_ms above steady_ms (full trust would never be reached)")
     need(1 <= cfg["learn_ms"] <= 600000, "learning window")
     need(0 <= cfg["baseline_tol_permille"] <= 300, "baseline tolerance")
     need(1 <= cfg["cusum_h_permille"] <= 1000 and 0 <= cfg["cusum_k_permille"] <= 1000
-         and cfg["clip_permille"] <= 1000, "CUSUM values")
+         and 0 <= cfg["clip_permille"] <= 1000, "CUSUM values")
     need(0 <= cfg["drift_tol_permille"] <= 100, "drift tolerance")
     need(1 <= cfg["stuck_samples"] <= 1000 and 1 <= cfg["mass_samples"] <= 1000, "sample counts")
+    need(abs(cfg["power_floor_dW"]) <= 1 << 18 and 0 <= cfg["mass_limit_g"] <= 1 << 29, "power floor, mass limit")

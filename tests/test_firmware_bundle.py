@@ -11,7 +11,7 @@ from estimator import firmware
 from estimator.cli import main
 from estimator.errors import InputError
 from estimator.firmware import write_bundle
-from estimator.watch_config import CONFIG_KEYS
+from estimator.watch_config import CONFIG_KEYS, CONFIG_LENGTH, TABLE_AT, TABLES
 from watch_helpers import demo_fit_params
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
@@ -35,17 +35,41 @@ def test_bundle_layout_and_kernel_is_a_copy(tmp_path):
 
 
 def test_config_is_integers_only_with_comments(tmp_path):
+    # Design notes sec. 4: liftwatch_config exposes CONFIG, integers only. Every element is a plain
+    # int (not bool, not bytes, not float) below 2^30 in magnitude (small ints of 32-bit ports,
+    # design notes sec. 3), and every scalar and table is named in a comment.
     write_bundle(demo_fit_params(), str(tmp_path / "b"))
     text = (tmp_path / "b" / "liftwatch_config.py").read_text()
     tree = ast.parse(text)
     config = ast.literal_eval(tree.body[0].value)
-    assert isinstance(config, list) and len(config) == len(CONFIG_KEYS)
-    for key, value in zip(CONFIG_KEYS, config):
-        # ints, or bytes tables of 16-bit ints; never a float
-        assert isinstance(value, (int, bytes)) and not isinstance(value, bool), key
-        assert "] %s:" % key in text   # every value is named in its comment
+    assert isinstance(config, list) and len(config) == CONFIG_LENGTH
+    assert all(type(v) is int and -(1 << 30) < v < 1 << 30 for v in config)
+    for i, key in enumerate(CONFIG_KEYS):
+        assert "# [%d] %s:" % (i, key) in text   # every value is named in its comment
+    for name, n in TABLES:
+        assert "# [%d..%d] %s (%d knots):" % (TABLE_AT[name], TABLE_AT[name] + n - 1, name, n) in text
     assert "residual_rel_std" in text and "Siegmund" in text   # the values it was made from
     assert "Props off" in text
+
+
+def test_config_file_matches_the_desktop_tuple(tmp_path):
+    # The bundle's CONFIG is the same flat tuple the desktop replay feeds the kernel (as_tuple).
+    from estimator.watch_config import as_tuple, make_config
+
+    write_bundle(demo_fit_params(), str(tmp_path / "b"))
+    text = (tmp_path / "b" / "liftwatch_config.py").read_text()
+    config = ast.literal_eval(ast.parse(text).body[0].value)
+    assert tuple(config) == as_tuple(make_config(demo_fit_params())[0])
+
+
+def test_the_integer_check_can_fail():
+    # check_config refuses a CONFIG with a non-int value (here a bytes table, the old layout).
+    from estimator.watch_config import check_config, make_config
+
+    cfg = dict(make_config(demo_fit_params())[0])
+    cfg["power_table"] = bytes(98)
+    with pytest.raises(InputError, match="power_table"):
+        check_config(cfg)
 
 
 def test_every_module_compiles_with_mpy_cross(tmp_path):

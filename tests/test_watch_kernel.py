@@ -10,8 +10,8 @@ from hypothesis import given, settings, strategies as st
 from estimator.core import momentum, thrust_curve
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.watch import Watch
-from estimator.watch_config import as_tuple, make_config
-from watch_helpers import demo_fit_params, motor_model_params
+from estimator.watch_config import CONFIG_LENGTH, as_tuple, make_config
+from watch_helpers import demo_fit_params, motor_model_params, state_names
 
 LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports (design notes sec. 3)
 WATCH_SRC = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "estimator", "core", "watch.py")
@@ -80,12 +80,14 @@ def _state_ok(w):
     for name, value in vars(w).items():
         if isinstance(value, int):
             assert -LIMIT < value < LIMIT, name
+    for i, value in enumerate(w.st[1:]):   # the state list after the CONFIG reference
+        assert type(value) is int and -LIMIT < value < LIMIT, (i + 1, value)
 
 
 def _extremes(c):
     dts = (1, 2, c["dt_max_ms"] - 1, c["dt_max_ms"])
     us = (0, 1, c["spin_permille"], c["command_min_permille"], 500, 999, 1000)
-    mvs = (c["v_min_mV"], c["volt_lo_mV"], 15000 if c["v_max_mV"] > 15000 else c["v_max_mV"], c["v_max_mV"])
+    mvs = (c["v_min_mV"], c["v_min_mV"] + c["volt_step_mV"] - 1, 15000 if c["v_max_mV"] > 15000 else c["v_max_mV"], c["v_max_mV"])
     mas = (c["i_min_mA"], 0, 1, 20000, c["i_max_mA"] - 1, c["i_max_mA"])
     return dts, us, mvs, mas
 
@@ -189,7 +191,7 @@ def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
     params = demo_fit_params()
     cfg = make_config(params)[0]
     n, rho = params["vehicle"]["rotor_count"], params["vehicle"]["site_density_kg_m3"]
-    top_W = 64 * (1 << cfg["thrust_shift"]) / 10.0
+    top_W = 32 * (1 << cfg["thrust_shift"]) / 10.0
     mv = 15000
     worst = 0.0
     for frac in [i / 40.0 for i in range(5, 41)]:
@@ -263,3 +265,40 @@ def test_the_bound_checker_catches_an_overflow():
     w = CHECKED(as_tuple(cfg))
     with pytest.raises(OverflowError):
         w.update(100, 500, 15000, 10 ** 7)
+
+
+def test_config_tuple_is_plain_ints_below_2_30():
+    # Design notes sec. 4: CONFIG holds integers only; sec. 3: small ints (below 2^30) on the board.
+    for cfg in (demo_config(), big_config()):
+        t = as_tuple(cfg)
+        assert len(t) == CONFIG_LENGTH
+        assert all(type(v) is int and -LIMIT < v < LIMIT for v in t)
+
+
+def test_state_stores_go_back_to_their_own_slots():
+    # update() unpacks st into names and writes changed values back as st[i] = name: each such
+    # store must use the slot the name was unpacked from (a wrong index would corrupt the state).
+    names = state_names()
+    state = names[1:names.index("m_n") + 1]   # after the CONFIG reference, up to the last state value
+    with open(WATCH_SRC, "r", encoding="utf-8") as fh:
+        tree = ast.parse(fh.read())
+    update = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name == "update"][0]
+    checked = 0
+    for node in ast.walk(update):
+        if isinstance(node, ast.Assign) and isinstance(node.targets[0], ast.Subscript):
+            tgt = node.targets[0]
+            if isinstance(tgt.value, ast.Name) and tgt.value.id == "st" and isinstance(node.value, ast.Name):
+                name = node.value.id
+                if name in state:
+                    assert names[tgt.slice.value] == name, (tgt.slice.value, name)
+                    checked += 1
+    assert checked >= 10
+
+
+def test_watch_refuses_a_config_of_another_format():
+    import pytest
+
+    with pytest.raises(ValueError):
+        Watch((1,) + as_tuple(demo_config())[1:])
+    with pytest.raises(ValueError):
+        Watch(as_tuple(demo_config())[:-1])

@@ -17,7 +17,7 @@ from scipy.stats import norm
 from estimator.core.watch import Watch
 from estimator.flightsim import flight_arrays
 from estimator.watch_config import as_tuple, make_config, siegmund_arl, siegmund_arl_two_sided, threshold_for_arl
-from watch_helpers import demo_fit_params, run_flight
+from watch_helpers import demo_fit_params, run_flight, set_state
 
 
 def markov_arl(k, h, mu=0.0, m=400):
@@ -66,11 +66,7 @@ def _kernel_run_length(cfg, sigma_pm, rng, cap=20000):
     mv, u = 15000, 520
     w.update(100, u, mv, 20000)
     pe = w.expected_dW
-    w.learning = 0
-    w.scale = 1000
-    w.calm = cfg["steady_ms"]
-    w.s_hi = w.s_lo = 0
-    w.flags = 0
+    set_state(w, learning=0, scale=1000, rest=0, s_hi=0, s_lo=0, flags=0)   # learned, steady, no alarm
     for n in range(1, cap):
         target_dW = pe * (1.0 + sigma_pm / 1000.0 * rng.gauss(0.0, 1.0))
         ma = int(round(target_dW * 1e5 / mv / 10.0)) * 10 + 5

@@ -89,6 +89,30 @@ def demo_fit_params():
     return _DEMO_FIT["p"]
 
 
+def state_names():
+    """Names of the kernel's state list ``Watch.st`` in order: the targets of the one unpacking
+    ``(...) = st`` in estimator/core/watch.py's update() (read from the source, so they cannot drift)."""
+    import ast
+    import os
+
+    path = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "estimator", "core", "watch.py")
+    with open(path, "r", encoding="utf-8") as fh:
+        tree = ast.parse(fh.read())
+    update = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name == "update"][0]
+    for node in ast.walk(update):
+        if (isinstance(node, ast.Assign) and isinstance(node.targets[0], ast.Tuple)
+                and isinstance(node.value, ast.Name) and node.value.id == "st"):
+            return [t.id for t in node.targets[0].elts]
+    raise AssertionError("no (...) = st unpacking in update()")
+
+
+def set_state(w, **values):
+    """Set named entries of a Watch's state list (tests only), e.g. set_state(w, learning=0)."""
+    names = state_names()
+    for name, value in values.items():
+        w.st[names.index(name)] = value
+
+
 def flight_ints(flight):
     """Flight arrays -> lists of ints (command permille, mV, mA) as the replay rounds them."""
     u = [int(round(x * 1000.0)) for x in flight["command"]]
@@ -102,6 +126,7 @@ def run_flight(config, flight, dt_ms=100):
     from estimator.watch_config import new_watch
 
     w = new_watch(config)
+    learning = state_names().index("learning")
     u, mv, ma = flight_ints(flight)
     prev = 0
     events = []
@@ -112,6 +137,6 @@ def run_flight(config, flight, dt_ms=100):
         prev = f
         if new:
             events.append((float(flight["time_s"][i]), new))
-        if w.mass_g and w.learning == 0 and u[i] > 100:
+        if w.mass_g and w.st[learning] == 0 and u[i] > 100:
             masses.append(w.mass_g)
     return w, events, masses
