@@ -28,7 +28,7 @@ MIN_VOLTAGE_SPREAD = 0.03
 # residuals beyond this many robust sigmas are counted as spikes and left out [-]
 SPIKE_SIGMAS = 6.0
 # rows of the coarse profile that starts a very large fit [-]
-START_ROWS = 5000
+START_ROWS = 2000
 PARAM_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
 
 
@@ -237,8 +237,10 @@ def thrust_model_N(curve, command, voltage_V):
     u = np.asarray(command, dtype=float)
     x = np.clip((u - curve["command_min"]) / (1.0 - curve["command_min"]), 0.0, 1.0)
     a = curve["quadratic_share"]
-    return (curve["thrust_max_N"] * ((1.0 - a) * x + a * x * x)
-            * (np.asarray(voltage_V, dtype=float) / curve["reference_voltage_V"]) ** curve["voltage_exponent"])
+    s = np.log(np.asarray(voltage_V, dtype=float) / curve["reference_voltage_V"])
+    s *= curve["voltage_exponent"]
+    np.exp(s, out=s)  # (V / V_ref)^n
+    return curve["thrust_max_N"] * ((1.0 - a) * x + a * x * x) * s
 
 
 def fit_bench_file(path, **options):

@@ -16,7 +16,7 @@ import math
 import numpy as np
 
 from estimator.errors import InputError
-from estimator.robust import WORK_ROWS, _cross, huber_fit, huber_lstsq, mad_scale, working_rows
+from estimator.robust import WORK_ROWS, _cross, fast_median, huber_fit, huber_lstsq, mad_scale, working_rows
 
 # rows below this share of T_max are left out of k and of the watch residual: there the
 # power is mostly idle draw and k means little [-]
@@ -70,8 +70,8 @@ def check_static_factor(source, thrust_N, power_W, density_kg_m3, area_m2, thrus
     area_m2 [m^2]. Raises InputError naming the likely cause; returns the median k [-].
     """
     step = max(1, np.asarray(thrust_N).size // MAD_ROWS)
-    t = np.asarray(thrust_N, dtype=float)[::step]
-    power_W = np.asarray(power_W)[::step]
+    t = np.ascontiguousarray(np.asarray(thrust_N, dtype=float)[::step])
+    power_W = np.ascontiguousarray(np.asarray(power_W)[::step])
     top = float(np.percentile(t, 99.0))
     if not top > 0.0:
         raise InputError("%s: thrust never rises above zero (99th percentile %.4g N); is the "
@@ -90,8 +90,8 @@ def check_static_factor(source, thrust_N, power_W, density_kg_m3, area_m2, thrus
     edges = np.cumsum(sizes)[:-1]
     order = np.argpartition(ts, edges) if edges.size else np.arange(k.size)
     bounds = np.concatenate([[0], edges, [k.size]])
-    worst = max(float(np.median(k[order[bounds[i]:bounds[i + 1]]])) for i in range(n_bins))
-    k_med = float(np.median(k))
+    worst = max(fast_median(k[order[bounds[i]:bounds[i + 1]]]) for i in range(n_bins))
+    k_med = fast_median(k)
     if worst > 1.0:
         causes = _unit_slips(worst, thrust_unit, current_unit) or [
             "the thrust unit in the header (%s)" % thrust_unit]
@@ -255,7 +255,7 @@ def fit_static_factor(thrust_N, power_W, density_kg_m3, area_m2, thrust_max_N, g
             beta0 = np.linalg.lstsq(_cross(design_w, design_w), _cross(design_w, k[ws]), rcond=None)[0]
             fit = huber_fit(model, beta0, k, groups=groups, work_rows=work_rows, exclude=~sel,
                             keep_residuals=False, work=ws)
-            t_med = float(np.median(t[picked[:: max(1, picked.size // MAD_ROWS)]]))
+            t_med = fast_median(t[picked[:: max(1, picked.size // MAD_ROWS)]])
             se = np.sqrt(np.maximum(np.diag(fit["cov"]), 0.0))
             return {"k0": float(fit["coef"][0]), "slope_per_N": float(fit["coef"][1]),
                     "standard_errors": {"k0": float(se[0]), "slope_per_N": float(se[1])},
