@@ -15,9 +15,11 @@ fit with one full-data Newton step from a consistent start (all from memory).
 
 Very large sweeps: the iterations run on a systematic subsample of at most ``work_rows``
 rows (every k-th row): IRLS on a coarse part of it, then Newton steps (matrix
-J^T diag(psi') J, the same fixed point) on all of it; then the full data is passed once in
+J^T diag(psi') J, the same fixed point) on all of it; the robust scale and the spike edge
+come from a larger systematic sample (SCALE_ROWS); then the full data is passed once in
 cache-sized blocks (bounded memory) for the spike mask, the one-step update and the
-covariance. Small sweeps iterate on all rows (the reference path).
+covariance. Rows can be excluded in place (weight 0) instead of copied out. Small sweeps
+iterate on all rows (the reference path).
 """
 
 import numpy as np

@@ -4,9 +4,13 @@ A sweep of more than twice ``work_rows`` rows is fitted on a working subsample a
 by one full-data Newton step (estimator.robust, Bickel 1975 "One-step Huber estimates in the
 linear model", from memory: the one-step estimate from a consistent start is asymptotically
 the fully iterated M-estimate). Here a 20,000-row sweep is fitted both ways: with
-work_rows = 2000 (the large path on a subsample of every 10th row) and with work_rows so
-large that every fit iterates on all rows (the reference). The reference is the plain
-definition; the fast path must land within a small fraction of its standard errors.
+work_rows = 5000 (the large path, working set every 4th row) and with work_rows so large
+that every fit iterates on all rows (the reference, the plain definition); the fast path
+must land within a small fraction of the reference's standard errors.
+The sweep is continuous (commands spread over 0..1): on a stepped sweep the reference
+itself is not unique to that level, since the joint (estimate, MAD scale) iteration has
+fixed points a few tenths of a standard error apart (the MAD of clustered residuals moves
+in jumps), and which one it reaches depends on its start.
 Also checked against plain definitions: the reader's clean-file shortcut (one min and max
 per column) against its row-by-row mask path, the O(n) median against numpy.median, the
 one-sort voltage spread against bin-by-bin selection, and the partition binning of the
@@ -79,8 +83,8 @@ def test_estimates_agree_within_a_tenth_of_a_standard_error(both, block, name):
     _, fast, ref = both
     se = ref["standard_errors"][name]
     # reference: the same fit iterated to convergence on all 20,000 rows. 0.1 SE: the
-    # one-step finish from a 2,000-row working set leaves a second-order difference (seen
-    # below 0.03 SE here); a real slip (a wrong row set, a wrong Jacobian) moves it by more
+    # one-step finish from a 5,000-row working set leaves a second-order difference (seen
+    # up to 0.025 SE here); a real slip (a wrong row set, a wrong Jacobian) moves it by more
     assert se > 0.0
     assert abs(fast[block][name] - ref[block][name]) < 0.1 * se, (fast[block][name], ref[block][name], se)
 
@@ -91,8 +95,8 @@ def test_estimates_agree_within_a_tenth_of_a_standard_error(both, block, name):
 def test_standard_errors_agree_within_five_percent(both, name):
     _, fast, ref = both
     # the reference's cluster-robust sandwich at its converged estimate; the fast path
-    # takes it at the working-set estimate and the working-set scale: a few percent at most
-    # (seen below 1 %); a sandwich with a wrong bread or wrong clusters is off by far more
+    # takes it at the working-set estimate: a few percent at most (seen up to 2.2 %); a
+    # sandwich with a wrong bread or wrong clusters is off by far more
     assert fast["standard_errors"][name] == pytest.approx(ref["standard_errors"][name], rel=0.05)
 
 
@@ -103,6 +107,7 @@ def test_hover_command_and_its_interval_agree(both):
     se = (hi - lo) / (2 * 1.959964)  # the reference's delta-method SE of the hover command
     assert se > 0.0
     # within a tenth of the reference's standard error, for the same reason as the estimates
+    # (seen up to 0.04 SE)
     assert abs(hf["hover_command"] - hr["hover_command"]) < 0.1 * se
     for a, b in zip(hf["hover_command_interval_95"], hr["hover_command_interval_95"]):
         assert abs(a - b) < 0.1 * se
@@ -114,9 +119,9 @@ def test_rows_used_and_rejected_agree(both):
     # the 12 gross load-cell spikes (+3 N, about 40 noise sigmas) are found by both paths
     assert qf["rejected"].get("thrust_spike") == qr["rejected"].get("thrust_spike")
     assert qr["rejected"].get("thrust_spike", 0) >= 10
-    # power spikes are judged against a robust scale taken from the working set on the fast
-    # path: rows near the 6-sigma edge may fall either way, a handful at most
-    assert abs(qf["rows_used"] - qr["rows_used"]) <= 5
+    # the fast path places the spike edges at its working-set estimate, the reference at its
+    # own: rows right at a 6-sigma edge may fall either way, two at most (equal here)
+    assert abs(qf["rows_used"] - qr["rows_used"]) <= 2
     assert abs(qf["rms_residual_N"] / qr["rms_residual_N"] - 1.0) < 0.01
     assert fast["power_model"]["residual_rel_std"] == pytest.approx(ref["power_model"]["residual_rel_std"], rel=0.01)
 
