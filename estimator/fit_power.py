@@ -248,14 +248,14 @@ def fit_static_factor(thrust_N, power_W, density_kg_m3, area_m2, thrust_max_N, g
         if n_sel < 5:
             raise InputError("fewer than 5 rows above 10 % of full thrust with power above zero")
         if n_sel // work_rows > 1:
-            picked = np.flatnonzero(sel)
-            ws = picked[:: max(1, picked.size // work_rows)]  # = working_rows(t.size, work_rows, ~sel)
+            out = ~sel
+            ws = working_rows(t.size, work_rows, out)
             model = _line_model(t)
             _, design_w = model(np.zeros(2), ws)
             beta0 = np.linalg.lstsq(_cross(design_w, design_w), _cross(design_w, k[ws]), rcond=None)[0]
-            fit = huber_fit(model, beta0, k, groups=groups, work_rows=work_rows, exclude=~sel,
+            fit = huber_fit(model, beta0, k, groups=groups, work_rows=work_rows, exclude=out,
                             keep_residuals=False, work=ws)
-            t_med = fast_median(t[picked[:: max(1, picked.size // MAD_ROWS)]])
+            t_med = fast_median(t[working_rows(t.size, MAD_ROWS, out)])
             se = np.sqrt(np.maximum(np.diag(fit["cov"]), 0.0))
             return {"k0": float(fit["coef"][0]), "slope_per_N": float(fit["coef"][1]),
                     "standard_errors": {"k0": float(se[0]), "slope_per_N": float(se[1])},

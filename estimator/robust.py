@@ -175,7 +175,9 @@ def _newton(model, theta, y, index, c, max_iter, tol):
     """Newton steps for Huber's objective on the rows ``index`` with the scale re-estimated
     each step (matrix J^T diag(psi') J, gradient J^T psi(r); step halving keeps the objective
     from rising). Same fixed point as _iterate, reached in fewer steps from a near start.
-    Returns theta, scale."""
+    Stops when a step moves every parameter by less than ``tol`` of itself or by less than
+    a thousandth of its standard error on these rows (the MAD of residuals moves in small
+    jumps, which can keep a relative test from ever passing). Returns theta."""
     yy = y[index]
     scale = 0.0
     for _ in range(max_iter):
@@ -188,7 +190,9 @@ def _newton(model, theta, y, index, c, max_iter, tol):
         psi = np.clip(r, -limit, limit)
         if np.sum(inside) <= 2 * jac.shape[1]:
             break  # too few rows inside the band for a Newton matrix; IRLS already placed it
-        step = _solve(np.einsum("ij,i,ik->jk", jac, inside, jac), _cross(jac, psi))
+        hess = np.einsum("ij,i,ik->jk", jac, inside, jac)
+        step = _solve(hess, _cross(jac, psi))
+        se_rows = scale * np.sqrt(np.maximum(np.diag(np.linalg.pinv(hess)), 0.0))
         base = huber_loss(r, scale, c)
         lam = 1.0
         for _ in range(30):
@@ -197,7 +201,8 @@ def _newton(model, theta, y, index, c, max_iter, tol):
                 break
             lam *= 0.5
         theta = theta + lam * step
-        if np.all(np.abs(lam * step) <= tol * (np.abs(theta) + 1e-9)):
+        moved = np.abs(lam * step)
+        if np.all((moved <= tol * (np.abs(theta) + 1e-9)) | (moved <= 1e-3 * se_rows)):
             break
     return theta
 
@@ -276,8 +281,15 @@ def working_rows(n, work_rows=WORK_ROWS, exclude=None):
     compressed arrays would take."""
     if exclude is None:
         return np.arange(0, n, max(1, n // work_rows))
-    rows = np.flatnonzero(~exclude)
-    return rows[:: max(1, rows.size // work_rows)]
+    out = np.flatnonzero(exclude)
+    n_in = n - out.size
+    if out.size > n // 8:
+        rows = np.flatnonzero(~exclude)
+        return rows[:: max(1, rows.size // work_rows)]
+    # few rows excluded: map the ranks 0, k, 2k, ... among the kept rows to row indices
+    # without listing every kept row (kept row of rank m = m + excluded rows before it)
+    ranks = np.arange(0, n_in, max(1, n_in // work_rows))
+    return ranks + np.searchsorted(out - np.arange(out.size), ranks, side="right")
 
 
 def _large_fit(model, theta, y, c, groups, spike_sigmas, relative_spikes, max_iter, work_rows,

@@ -180,3 +180,15 @@ def test_static_factor_bins_equal_a_full_sort(tmp_path):
     with pytest.raises(InputError, match="above 1"):
         check_static_factor("s.csv", t, p, rho, area * (worst / 1.001) ** 3)
     check_static_factor("s.csv", t, p, rho, area * (worst / 0.999) ** 3)
+
+
+@pytest.mark.parametrize("share", [0.0, 0.001, 0.05, 0.5])
+def test_working_rows_are_every_kth_kept_row(share):
+    from estimator.robust import working_rows
+
+    rng = np.random.default_rng(7)
+    exclude = rng.uniform(size=123457) < share
+    exclude[-2:] = True
+    # the plain definition: list the kept rows, take every k-th (k = kept // work_rows)
+    kept = np.flatnonzero(~exclude)
+    assert np.array_equal(working_rows(exclude.size, 37, exclude), kept[:: kept.size // 37])
