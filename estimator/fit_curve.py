@@ -148,7 +148,8 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
     more than twice this many rows take the very large path of estimator.robust.huber_fit;
     keep_residuals=False leaves residuals_N None on that path (saves an array).
     Returns dict: thrust_max_N [N], quadratic_share [-], command_min [-],
-    reference_voltage_V [V], voltage_exponent [-], voltage_exponent_fitted (bool),
+    reference_voltage_V [V], voltage_min_V / voltage_max_V [V] (bus voltage range of the
+    rows), voltage_exponent [-], voltage_exponent_fitted (bool),
     density_exponent [-] (= n - 1), standard_errors {name: SE}, covariance {names, matrix},
     residuals_N, scale_N, spikes (bool mask), rms_residual_N [N], warnings.
     Raises InputError when the sweep does not follow the curve form.
@@ -218,6 +219,7 @@ def fit_thrust_curve(command, voltage_V, thrust_N, voltage_exponent=None, groups
     return {
         "thrust_max_N": t_max, "quadratic_share": float(a), "command_min": u_min,
         "command_max": 1.0, "reference_voltage_V": v_ref, "voltage_exponent": n,
+        "voltage_min_V": float(v.min()), "voltage_max_V": float(v.max()),
         "voltage_exponent_fitted": fixed_n is None, "density_exponent": n - 1.0,
         "voltage_spread": spread,
         "standard_errors": {"thrust_max_N": float(se[0]), "quadratic_share": float(se[1]),

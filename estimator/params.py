@@ -47,6 +47,8 @@ def build_params(data, fit, source, vehicle=None, hover=None):
             "command_min": _r(curve["command_min"]), "command_max": 1.0,
             "quadratic_share": _r(curve["quadratic_share"]), "thrust_max_N": _r(curve["thrust_max_N"]),
             "reference_voltage_V": _r(curve["reference_voltage_V"]),
+            "voltage_min_V": _r(curve["voltage_min_V"]),
+            "voltage_max_V": _r(curve["voltage_max_V"]),
             "voltage_exponent": _r(curve["voltage_exponent"]),
             "density_exponent": _r(curve["density_exponent"]),
             "reference_density_kg_m3": _r(rho),
