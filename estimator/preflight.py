@@ -212,7 +212,7 @@ def format_sheet(report):
         lines.append("         %s on a full pack, %s near empty" % (
             _num(report.get("hover_command_full"), "%.2f"),
             _num(report.get("hover_command_empty"), "%.2f", none="cannot hover")))
-        lines.append("         thrust fraction %s of full-command thrust" %
+        lines.append("         thrust fraction %s of full-command thrust at the hover bus voltage" %
                      _num(report.get("hover_thrust_fraction"), "%.2f"))
         interval = report.get("hover_command_interval_95")
         if interval:
