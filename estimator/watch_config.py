@@ -43,22 +43,21 @@ DEFAULTS = {
     "mass_samples": 20,             # steady mass-filter updates (every 4th sample) before mass_g is reported
 }
 
-# CONFIG is one flat tuple of plain ints (each below 2^30 in magnitude): the scalars in
-# CONFIG_KEYS order (index 0 is "format", the kernel's CONFIG format number), then the four
-# tables in TABLES order, knot after knot. The kernel copies the scalars into its state list in
-# __init__ (estimator/core/watch.py unpacks them in this order) and reads the tables by index
-# at the offsets in TABLE_AT.
+# CONFIG is one flat tuple of plain ints (each below 2^30 in magnitude): the four tables in
+# TABLES order, knot after knot, at the offsets in TABLE_AT (the kernel uses these offsets as
+# literal numbers), then the scalars in CONFIG_KEYS order from SCALAR_AT ("format", the
+# kernel's CONFIG format number, first). The kernel copies the scalars it needs on every
+# sample into its state list in __init__ (estimator/core/watch.py).
 CONFIG_FORMAT = 2
 CONFIG_KEYS = (
     "format",
+    # used on every sample (the kernel copies these into its state list)
     "dt_max_ms",
     "v_min_mV",
     "v_max_mV",
     "i_min_mA",
     "i_max_mA",
-    "stuck_samples",
     "spin_permille",
-    "landed_ms",
     "rate_fast_permille_s",
     "settle_ms",
     "steady_ms",
@@ -70,24 +69,26 @@ CONFIG_KEYS = (
     "cusum_k_permille",
     "cusum_h_permille",
     "clip_permille",
+    "thrust_shift",
+    "thrust_unit_shift",
+    # used rarely (read from CONFIG where needed)
+    "stuck_samples",
+    "landed_ms",
     "learn_ms",
     "baseline_tol_permille",
     "mass_samples",
     "mass_limit_g",
     "drift_tol_permille",
-    "thrust_shift",
-    "thrust_unit_shift",
 )
 
-# the tables after the scalars: (name, knots); their CONFIG index ranges (the kernel uses these
-# offsets as literal numbers)
 TABLES = (("volt_q12", 13), ("hover_table_permille", 13), ("power_table", 49), ("thrust_table", 33))
 TABLE_AT = {}
-_at = len(CONFIG_KEYS)
+_at = 0
 for _name, _n in TABLES:
     TABLE_AT[_name] = _at
     _at += _n
-CONFIG_LENGTH = _at  # 135
+SCALAR_AT = _at  # 108
+CONFIG_LENGTH = _at + len(CONFIG_KEYS)  # 135
 del _at, _name, _n
 
 SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
@@ -254,7 +255,11 @@ def make_config(params, vehicle=None, options=None):
 
     u_min, u_max = curve["command_min"], curve.get("command_max", 1.0)
     put("command_min_permille", int(round(1000.0 * u_min)), "u_min = %.4f" % u_min)
-    put("command_span_permille", max(1, int(round(1000.0 * (u_max - u_min)))), "u_max - u_min = %.4f" % (u_max - u_min))
+    span = int(round(1000.0 * (u_max - u_min)))
+    if span < 100:
+        raise InputError("parameter set: $.thrust_curve: command range %.3f..%.3f is below 0.1 wide; the watch "
+                         "needs a thrust curve over a wider command range" % (u_min, u_max))
+    put("command_span_permille", span, "u_max - u_min = %.4f" % (u_max - u_min))
     put("quadratic_q12", int(round(4096.0 * min(max(curve["quadratic_share"], 0.0), 1.0))),
         "a = %.4f" % curve["quadratic_share"])
     spin = o["spin_command"] if o["spin_command"] is not None else u_min + 0.05
@@ -308,10 +313,11 @@ def make_config(params, vehicle=None, options=None):
 
 
 def as_tuple(cfg):
-    """The CONFIG dict as the flat tuple of ints Watch takes: CONFIG_KEYS order, then the tables."""
-    out = [cfg[k] for k in CONFIG_KEYS]
+    """The CONFIG dict as the flat tuple of ints Watch takes: the tables, then CONFIG_KEYS order."""
+    out = []
     for name, _ in TABLES:
         out.extend(cfg[name])
+    out.extend(cfg[k] for k in CONFIG_KEYS)
     return tuple(out)
 
 
@@ -340,7 +346,7 @@ def check_config(cfg):
     need(1 <= cfg["volt_step_mV"] <= 5001 and cfg["v_min_mV"] + 12 * cfg["volt_step_mV"] > cfg["v_max_mV"],
          "voltage tables must span v_min_mV..v_max_mV in 12 steps")
     need(-300000 <= cfg["i_min_mA"] <= cfg["i_max_mA"] <= 300000, "current limits outside -300..300 A")
-    need(0 <= cfg["command_min_permille"] <= 1000 and 1 <= cfg["command_span_permille"] <= 1000
+    need(0 <= cfg["command_min_permille"] <= 1000 and 100 <= cfg["command_span_permille"] <= 1000
          and 0 <= cfg["quadratic_q12"] <= 4096, "thrust curve")
     need(all(0 <= x <= 6143 for x in cfg["volt_q12"]), "volt_q12 table (0..1.5 in Q12)")
     need(all(0 <= x <= 1000 for x in cfg["hover_table_permille"]), "hover table")

@@ -11,7 +11,7 @@ from estimator import firmware
 from estimator.cli import main
 from estimator.errors import InputError
 from estimator.firmware import write_bundle
-from estimator.watch_config import CONFIG_KEYS, CONFIG_LENGTH, TABLE_AT, TABLES
+from estimator.watch_config import CONFIG_KEYS, CONFIG_LENGTH, SCALAR_AT, TABLE_AT, TABLES
 from watch_helpers import demo_fit_params
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
@@ -45,7 +45,7 @@ def test_config_is_integers_only_with_comments(tmp_path):
     assert isinstance(config, list) and len(config) == CONFIG_LENGTH
     assert all(type(v) is int and -(1 << 30) < v < 1 << 30 for v in config)
     for i, key in enumerate(CONFIG_KEYS):
-        assert "# [%d] %s:" % (i, key) in text   # every value is named in its comment
+        assert "# [%d] %s:" % (SCALAR_AT + i, key) in text   # every value is named in its comment
     for name, n in TABLES:
         assert "# [%d..%d] %s (%d knots):" % (TABLE_AT[name], TABLE_AT[name] + n - 1, name, n) in text
     assert "residual_rel_std" in text and "Siegmund" in text   # the values it was made from

@@ -10,7 +10,7 @@ from hypothesis import given, settings, strategies as st
 from estimator.core import momentum, thrust_curve
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.watch import Watch
-from estimator.watch_config import CONFIG_LENGTH, as_tuple, make_config
+from estimator.watch_config import CONFIG_LENGTH, SCALAR_AT, as_tuple, make_config
 from watch_helpers import demo_fit_params, motor_model_params, state_names
 
 LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports (design notes sec. 3)
@@ -200,7 +200,7 @@ def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
         w = Watch(as_tuple(cfg))
         for _ in range(4):   # slow outputs are refreshed every 4th sample
             w.update(100, 500, mv, ma)
-        p_meas = (mv // 10) * (ma // 10) / 1e5 * 10.0  # the kernel's own integer power, in W
+        p_meas = (mv // 20) * ma // 5000 / 10.0  # the kernel's own integer power, in W
         ref_mN = 1000.0 * _float_thrust_total_N(p_meas, params, n, rho)
         worst = max(worst, abs(w.thrust_mN - ref_mN) / ref_mN)
     assert worst < 0.01, worst
@@ -299,6 +299,7 @@ def test_watch_refuses_a_config_of_another_format():
     import pytest
 
     with pytest.raises(ValueError):
-        Watch((1,) + as_tuple(demo_config())[1:])
+        t = as_tuple(demo_config())
+        Watch(t[:SCALAR_AT] + (1,) + t[SCALAR_AT + 1:])   # format 1 (the earlier bytes-table layout)
     with pytest.raises(ValueError):
         Watch(as_tuple(demo_config())[:-1])

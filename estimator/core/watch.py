@@ -23,12 +23,14 @@ Models (design notes sec. 3):
   bounded (+-drift_tol) tracking of the residual's mean follows the hover point as the pack
   drains, frozen whenever a CUSUM sum is above h / 2.
 
-CONFIG (estimator/watch_config.py) is a flat tuple of ints: 27 scalars (CONFIG_KEYS order,
-[0] the format number 2), then the tables: voltage factor (Q12) at [27..39] and hover command
-(permille) at [40..52], both over the 13 voltages v_min + i volt_step (they span the whole
-accepted voltage range); expected power [0.1 W] at [53..101] over f = 0..1.5 in steps of 1/32
-(Q12 128); thrust [2^thrust_unit_shift mN] at [102..134] over the measured power
-0..32 x 2^thrust_shift [0.1 W].
+CONFIG (estimator/watch_config.py) is a flat tuple of ints: first the tables, voltage factor
+(Q12) at [0..12] and hover command (permille) at [13..25], both over the 13 voltages
+v_min + i volt_step (they span the whole accepted voltage range); expected power [0.1 W] at
+[26..74] over f = 0..1.5 in steps of 1/32 (Q12 128); thrust [2^thrust_unit_shift mN] at
+[75..107] over the measured power 0..32 x 2^thrust_shift [0.1 W]; then 27 scalars at
+[108..134] (CONFIG_KEYS order: [108] the format number 2, [109..127] those used on every
+sample, [128..134] the rare ones). The voltage table comes first
+so that its index needs no offset.
 
 Speed (MicroPython): all state and constants live in one list ``st`` that update() unpacks
 into locals in one step (a local costs almost nothing, an attribute is a map lookup); state
@@ -57,24 +59,33 @@ class Watch:
 
         Raises ValueError when CONFIG was made for another kernel format (here, not in update).
         """
-        if len(config) != 135 or config[0] != 2:
+        if len(config) != 135 or config[108] != 2:
             raise ValueError("CONFIG")
         c = config
-        rb = c[19] - c[24]                # residual needs no clamp when |r| < rb (rb <= 1000)
+        # CONFIG[108 + i]: [109..127] the scalars used on every sample, [128..134] the rare ones
+        # (stuck_samples, landed_ms, learn_ms, baseline_tol, mass_samples, mass_limit_g, drift_tol)
+        h = c[124]
+        rb = c[125] - c[134]              # residual needs no clamp when |r| < rb (rb <= 1000)
         if rb > 1000:
             rb = 1000
-        i_pos = c[4]                      # currents below this: negative (power 0) or a fault
+        i_pos = c[112]                    # currents below this: negative (power 0) or a fault
         if i_pos < 0:
             i_pos = 0
-        sh = c[25]
-        # st: [0] the tables (CONFIG itself; its rarely used scalars are read there), [1..17] the
-        # state, [18..36] the scalars update() uses on every sample, [37..48] values derived from
-        # them; in the order update() unpacks them
-        self.st = [c, 0, 0, 0, 0, c[11], 0, 0, -1, 0, 0, 1, 0, 0, 0, 1000, 0, 0,
-                   c[1], c[2], c[3], c[4], c[5], c[7], c[9], c[10], c[11], c[12], c[13], c[14], c[15],
-                   c[16], c[17], c[18], c[19], c[25], c[26],
-                   4096 - c[14], c[12] + c[13], i_pos, c[18] + c[18], c[18] >> 1, rb, -rb, -c[19],
-                   c[24] * 256, -256 * c[24], (32 << sh) - 1, (1 << sh) - 1]
+        sh = c[126]
+        span = c[119]
+        # thrust fraction t = 4096 ((1 - a) d/S + a (d/S)^2) = d (ta + (tq d >> 10)) >> 14 with
+        # d = u - u_min, S = command span (>= 100, check_config): ta <= 6.7e5, tq <= 6.9e6
+        ta = ((4096 - c[120]) << 14) // span
+        tq = (((c[120] << 12) // span) << 12) // span   # in two steps: every value below 2^30
+        # st: [0] CONFIG itself (tables and rare scalars are read there), [1..17] the state,
+        # [18..36] CONFIG[109..127], [37..49] values derived from them: update() unpacks them
+        st = [c, 0, 0, 0, 0, c[117], 0, 0, -1, 0, 0, 1, 0, 0, 0, 1000, 0, 0,
+              0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+              ta, tq, c[118] + span, i_pos, h + h, h >> 1, rb, -rb, -c[125],
+              c[134] * 256, -256 * c[134], (32 << sh) - 1, (1 << sh) - 1]
+        for i in range(19):
+            st[18 + i] = c[109 + i]
+        self.st = st
         self.residual_permille = 0
         self.power_dW = 0
         self.expected_dW = 0
@@ -94,7 +105,7 @@ class Watch:
          scale, m_filt, m_n,
          dt_max, v_min, v_max, i_min, i_max, spin, rate_fast, settle, steady, cmd_min, cmd_span, quad, vstep,
          pfloor, k, h, clip, sh, tu,
-         lin, u_top, i_pos, hh, half_h, rb, nrb, nclip, dlim, ndlim, pm_top, sh_mask) = st
+         ta, tq, u_top, i_pos, hh, half_h, rb, nrb, nclip, dlim, ndlim, pm_top, sh_mask) = st
         # range checks: comparisons only, so any int is safe here. The command's and the
         # current's checks share their comparisons with the thrust curve's clamps and the
         # power's sign (u_top = cmd_min + cmd_span; i_pos = max(i_min, 0)).
@@ -107,15 +118,17 @@ class Watch:
                 flags = (flags & 27) | 4
                 st[1] = flags
                 return flags
-            x = 0
+            t = 0
         elif u > u_top:
             if u > 1000:
                 flags = (flags & 27) | 4
                 st[1] = flags
                 return flags
-            x = 4096
+            t = 4096
         else:
-            x = (u - cmd_min) * 4096 // cmd_span          # 0..4096: cmd_span * 4096 <= 4.1e6
+            # thrust fraction t(x) = (1 - a) x + a x^2 in Q12 at x = d / span, d = u - cmd_min
+            d = u - cmd_min                               # 0..span
+            t = d * (ta + (tq * d >> 10)) >> 14           # tq*d <= 4096 2^24 / span <= 6.9e8 ; d*(..) <= 2^26
         ma = bus_mA
         if bus_mA < i_pos:
             if bus_mA < i_min:
@@ -131,8 +144,8 @@ class Watch:
         # 0 <= ma <= 300000
         if bus_mA == last_mA and u >= spin:
             stuck += 1                                    # <= stuck_samples (<= 1000)
-            if stuck >= tb[6]:                            # stuck_samples
-                st[9] = tb[6]
+            if stuck >= tb[128]:                           # stuck_samples
+                st[9] = tb[128]
                 flags = (flags & 27) | 4
                 st[1] = flags
                 return flags
@@ -162,20 +175,19 @@ class Watch:
         else:
             wp = 0
 
-        # expected power: thrust fraction t(x) in Q12, voltage factor by table, power by table
-        t = x * (lin + (quad * x >> 12)) >> 12            # (1 - a) x + a x^2: quad*x <= 2^24, x*(..) <= 2^24
+        # expected power: thrust fraction t (above), voltage factor by table, power by table
         dv = bus_mV - v_min                               # 0 .. v_max - v_min < 12 vstep
-        i = dv // vstep + 27                              # voltage factor knot, CONFIG[27..38]
+        i = dv // vstep                                   # voltage factor knot, CONFIG[0..11]
         fr = dv % vstep                                   # 0..vstep-1
         a = tb[i]                                         # Q12, 0..6143
         f = (a + (tb[i + 1] - a) * fr // vstep) * t >> 12  # 6143 * 5001 = 3.1e7 ; 6143 * 4096 = 2.5e7 ; f <= 6143
-        j = (f >> 7) + 53                                 # power knot, CONFIG[53..100]
+        j = (f >> 7) + 26                                 # power knot, CONFIG[26..73]
         a = tb[j]                                         # [0.1 W], < 2^18
         pe = a + ((tb[j + 1] - a) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7 ; pe < 2^18
         self.expected_dW = pe
 
-        # measured power [dW] = mV * mA / 1e5, in two steps to stay below 2^30
-        pm = (bus_mV // 10) * (ma // 10) // 1000          # <= 6000 * 30000 = 1.8e8
+        # measured power [dW] = mV * mA / 1e5 with the voltage in 20 mV steps (0.13 % at 15 V)
+        pm = (bus_mV // 20) * ma // 5000                  # <= 3000 * 300000 = 9e8
         self.power_dW = pm                                # <= 180000 < 2^18
 
         # slow outputs every 4th sample: hover command by table over V, thrust by table over the
@@ -185,11 +197,11 @@ class Watch:
             pm4 = (acc & 1048575) >> 2                    # mean of the 4 samples
             acc = 0
             slow = 1
-            a = tb[i + 13]                                # hover knot, CONFIG[40..51]: permille
+            a = tb[i + 13]                                # hover knot, CONFIG[13..24]: permille
             self.hover_permille = a + (tb[i + 14] - a) * fr // vstep   # 1000 * 5001 = 5e6
             if pm4 > pm_top:
                 pm4 = pm_top                              # table covers 0..32 x 2^sh - 1
-            j = (pm4 >> sh) + 102                         # thrust knot, CONFIG[102..133]
+            j = (pm4 >> sh) + 75                          # thrust knot, CONFIG[75..106]
             a = tb[j]                                     # units of 2^thrust_unit_shift mN, < 2^13
             self.thrust_mN = (a + ((tb[j + 1] - a) * (pm4 & sh_mask) >> sh)) << tu  # 2^13 * 2^13 = 2^26 ; <= 1e6
         else:
@@ -200,8 +212,8 @@ class Watch:
         # flight phase: a new flight starts after landed_ms below the spin command
         if u < spin:
             quiet += dt_ms                                # <= landed + dt_max <= 120000
-            if quiet >= tb[8]:                            # landed_ms
-                quiet = tb[8]
+            if quiet >= tb[129]:                           # landed_ms
+                quiet = tb[129]
                 if learning == 0 or l_n > 0:              # a new flight: forget the learned
                     flags = 0                             # scale, the CUSUM sums, the mass
                     st[2] = 0       # s_hi
@@ -246,13 +258,13 @@ class Watch:
                 st[12] = l_sum
                 st[13] = l_n
                 st[14] = l_ms
-            if l_n > 0 and (l_ms >= tb[20] or l_n >= 65535):   # learn_ms
+            if l_n > 0 and (l_ms >= tb[130] or l_n >= 65535):  # learn_ms
                 m = l_sum // l_n                          # l_n >= 1 here (l_ms > 0 needs a sample)
-                if m > tb[21]:                            # baseline_tol_permille
-                    m = tb[21]
+                if m > tb[131]:                           # baseline_tol_permille
+                    m = tb[131]
                     flags |= 8
-                elif m < -tb[21]:
-                    m = -tb[21]
+                elif m < -tb[131]:
+                    m = -tb[131]
                     flags |= 8
                 scale = 1000 + m                          # 1000 +- tol (tol <= 300)
                 st[15] = scale
@@ -317,12 +329,12 @@ class Watch:
             else:
                 m_filt += (th - m_filt) >> 2              # |.| <= 1e6
             st[16] = m_filt
-            if m_n < tb[22]:                              # mass_samples
+            if m_n < tb[132]:                             # mass_samples
                 st[17] = m_n + 1
             else:
                 m = m_filt * 1000 // 9807                 # <= 1e9 ; 9807 = 1000 g_n [m/s^2]
                 self.mass_g = m
-                if m > tb[23]:                            # mass_limit_g
+                if m > tb[133]:                           # mass_limit_g
                     flags |= 16
         st[1] = flags
         return flags
