@@ -34,7 +34,7 @@ def main(hours=100.0):
     k = cfg["cusum_k_permille"] / (1000.0 * sigma)
     h = cfg["cusum_h_permille"] / (1000.0 * sigma)
     design = 100.0 * 3600.0 * 10.0 / siegmund_arl_two_sided(k, h)
-    print("clean flights: %d x %.0f s = %.1f h, %d samples in %.0f s; events: %d -> %.2f per 100 h "
+    print("fault-free flights: %d x %.0f s = %.1f h, %d samples in %.0f s; events: %d -> %.2f per 100 h "
           "(design %.3g per 100 h by Siegmund, goal 0)" % (n_flights, flight_s, hours, samples, wall,
                                                             len(false_events), per_100h, design))
     if false_events:
