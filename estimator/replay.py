@@ -28,6 +28,10 @@ def _header(path, line, line_no):
         cell = cell.strip()
         name, _, unit = cell.partition("[")
         cols[name.strip()] = (idx, unit.rstrip("]").strip())
+    if "thrust" in cols:
+        raise InputError("%s: row %d: this file has a thrust column, so it looks like a bench sweep, "
+                         "not a flight log; fit it with 'liftcal fit', replay flight logs "
+                         "(time[s], command[-], voltage[V], current[A])" % (path, line_no))
     need = {"time": ("s",), "command": tuple(_COMMAND_UNITS), "voltage": tuple(_VOLT_UNITS),
             "current": tuple(_AMP_UNITS)}
     out = {}

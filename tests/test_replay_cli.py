@@ -91,3 +91,19 @@ def test_progress_bar_on_request(tmp_path, capsys):
     f = _flight(tmp_path, None)
     replay_file(str(f), demo_fit_params(), progress=True)
     assert "replay [" in capsys.readouterr().err
+
+
+def test_a_bench_sweep_given_as_a_flight_log_is_refused(tmp_path, capsys):
+    # a bench CSV carries thrust (design notes sec. 4) and no flight log does: replaying one
+    # would give meaningless alarms, so it is one error line naming the likely mix-up
+    from estimator.benchsim import simulate_sweep
+    from estimator.cli import main
+    bench = tmp_path / "bench.csv"
+    bench.write_text(simulate_sweep(seed=2))
+    params = tmp_path / "params.json"
+    params.write_text(json.dumps(demo_fit_params()))
+    with pytest.raises(SystemExit) as exc:
+        main(["replay", str(bench), "--params", str(params)])
+    assert exc.value.code == 2
+    err = capsys.readouterr().err
+    assert err.startswith("error:") and "bench sweep" in err and err.count("\n") == 1
