@@ -10,12 +10,12 @@ efficiency is visible at a glance.
 
 import math
 import os
-import tempfile
 
 import numpy as np
 
 from estimator.core.momentum import disk_area_m2
 from estimator.errors import InputError
+from estimator.jsonio import save_figure_atomic
 
 K_LINES = (0.3, 0.5, 0.7)  # constant-k guides; 0.3 is the conservative rule of thumb (common practice)
 
@@ -109,14 +109,7 @@ def plot_fit(path, params, arrays):
     fig.suptitle("liftcal bench fit: %s (estimates; confirm with a tethered hover test)"
                  % params["provenance"]["input_file"], fontsize=10)
 
-    fd, tmp = tempfile.mkstemp(prefix=".tmp-", suffix=".png", dir=directory)
-    os.close(fd)
     try:
-        fig.savefig(tmp, dpi=110)
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
+        save_figure_atomic(fig, path)
     finally:
         plt.close(fig)

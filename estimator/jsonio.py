@@ -218,6 +218,23 @@ def write_atomic(path, text):
     The file gets the usual permissions for a new file (0666 less the umask). Raises
     InputError when the folder is missing or ``path`` is a folder.
     """
+    def write(fd, tmp):
+        with os.fdopen(fd, "w", encoding="utf-8") as fh:
+            fh.write(text)
+
+    _replace_atomic(path, write)
+
+
+def save_figure_atomic(fig, path, dpi=110):
+    """Save a matplotlib figure as PNG at ``path`` atomically (as write_atomic)."""
+    def write(fd, tmp):
+        os.close(fd)
+        fig.savefig(tmp, dpi=dpi, format="png")
+
+    _replace_atomic(path, write)
+
+
+def _replace_atomic(path, write):
     directory = os.path.dirname(os.path.abspath(path)) or "."
     if not os.path.isdir(directory):
         raise InputError("%s: folder %s does not exist" % (path, directory))
@@ -228,8 +245,7 @@ def write_atomic(path, text):
         umask = os.umask(0)
         os.umask(umask)
         os.fchmod(fd, 0o666 & ~umask)
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
-            fh.write(text)
+        write(fd, tmp)
         os.replace(tmp, path)
     except BaseException:
         if os.path.exists(tmp):

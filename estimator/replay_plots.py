@@ -1,5 +1,7 @@
 """Replay plot: measured against expected bus power, alarms shaded (matplotlib imported inside)."""
 
+from estimator.jsonio import save_figure_atomic
+
 
 SHADES = ((1, "power_high", "tab:red"), (2, "power_low", "tab:blue"), (4, "sensor_fault", "tab:gray"),
           (8, "baseline_off", "tab:olive"), (16, "mass_high", "tab:purple"))
@@ -8,7 +10,6 @@ SHADES = ((1, "power_high", "tab:red"), (2, "power_low", "tab:blue"), (4, "senso
 def plot_replay(path, arrays, events, title="flight"):
     """Write a PNG of measured and expected power [W] against time [s] with flag spans shaded."""
     import os
-    import tempfile
 
     import matplotlib
     matplotlib.use("Agg")
@@ -30,15 +31,7 @@ def plot_replay(path, arrays, events, title="flight"):
     ax.set_title("%s: %d events (estimates; confirm with a tethered or low hover test)" % (os.path.basename(str(title)), len(events)))
     ax.legend(loc="upper right", fontsize=8)
     fig.tight_layout()
-    directory = os.path.dirname(os.path.abspath(path))
-    fd, tmp = tempfile.mkstemp(prefix=".tmp-", suffix=".png", dir=directory)
-    os.close(fd)
     try:
-        fig.savefig(tmp, dpi=110)
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
+        save_figure_atomic(fig, path)
     finally:
         plt.close(fig)

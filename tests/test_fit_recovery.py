@@ -256,7 +256,6 @@ def test_sweep_without_voltage_spread_uses_the_stated_default_with_a_warning():
     # one supply voltage with almost no sag: n cannot be measured. The default 1.8 is the DC
     # motor model's n = 2 (1 + r) / (1 + 2 r) at r = 0.125 (design notes sec. 3)
     text = simulate_sweep(seed=8, supply_voltages_V=(15.4,))
-    from estimator.benchsim import SOURCE_RESISTANCE_OHM  # noqa: F401  (sag stays below 5 %)
     params = fit_bench(read_bench_text(text, "one-voltage.csv"), "one-voltage.csv")
     c = params["thrust_curve"]
     assert 2.0 * (1.0 + 0.125) / (1.0 + 2.0 * 0.125) == pytest.approx(1.8, abs=1e-12)

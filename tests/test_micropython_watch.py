@@ -7,7 +7,6 @@ function: at module level it hangs this port), the compiled .mpy bundle importin
 Without Node.js these tests fail with a clear message; they are never skipped.
 """
 
-import os
 
 import pytest
 

@@ -6,7 +6,6 @@ numpy lstsq, test-only) -- the same physics the flight simulator uses, so the wa
 expected power and thrust estimates can be judged against it.
 """
 
-import math
 
 import numpy as np
 
