@@ -193,9 +193,30 @@ def _slow_parse(path, skip, ncols):
     return np.array(rows, dtype=float)
 
 
-def _load_numbers(path, skip, ncols):
-    """Fast path: numpy.loadtxt (checks that every row has the header's width); on any
-    trouble, the slow parse that names the row or turns empty cells into NaN."""
+_LOADTXT = {"delimiter": ",", "comments": "#", "ndmin": 2, "dtype": float, "encoding": "utf-8"}
+# files at least this large are parsed by two processes when the system can fork [bytes]
+PARALLEL_MIN_BYTES = 8 << 20
+# share of the data lines the helper process parses: it reads them through a line iterator,
+# a little slower per line than the parent's own numpy.loadtxt of the rest, which first
+# skips the helper's lines (measured on 1,000,000-row sweeps; any share gives the same table)
+HELPER_SHARE = 0.45
+_PART_MAGIC = 0x6C69667463616C31  # marks a complete part written by the helper
+_PART_HEADER = 64                 # bytes before the helper's numbers (magic, rows, columns)
+
+
+def _load_numbers(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES):
+    """The numbers of the data rows as a list of row-major tables (read in this order, they
+    are numpy.loadtxt's table of the whole file). Fast path: numpy.loadtxt (checks that
+    every row has the header's width), split over two processes for large files; on any
+    trouble, the single-process loadtxt and then the slow parse that names the row or turns
+    empty cells into NaN."""
+    parts = _parallel_load(path, skip, ncols, parallel_min_bytes)
+    if parts is not None:
+        return parts
+    return [_load_single(path, skip, ncols)]
+
+
+def _load_single(path, skip, ncols):
     import warnings
 
     import numpy as np
@@ -203,8 +224,7 @@ def _load_numbers(path, skip, ncols):
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("error")
-            table = np.loadtxt(path, delimiter=",", skiprows=skip, comments="#", ndmin=2,
-                               dtype=float, encoding="utf-8")
+            table = np.loadtxt(path, skiprows=skip, **_LOADTXT)
         if table.shape[1] == ncols:
             return table
     except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
@@ -212,22 +232,168 @@ def _load_numbers(path, skip, ncols):
     return _slow_parse(path, skip, ncols)
 
 
-def _columns(table, indices, block_rows=8192):
-    """Contiguous copies of the table's columns ``indices``, copied block by block so each
-    block of the row-major table is read from the cache once for all of them."""
+def _estimated_lines(path, size):
+    """Lines of the file estimated from a 64 KiB sample at its middle [-]."""
+    with open(path, "rb") as fh:
+        fh.seek(max(0, size // 2 - (1 << 15)))
+        sample = fh.read(1 << 16)
+    newlines = sample.count(b"\n")
+    return size * newlines // len(sample) if newlines and sample else 0
+
+
+def _parallel_load(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES, helper_lines=None):
+    """numpy.loadtxt's table of a large file as two parts read by two processes, or None when
+    the file is small, the system cannot fork, or anything at all goes wrong (the caller
+    then reads the file in one process, which also reports any error as usual).
+
+    A forked helper parses the ``helper_lines`` text lines after the ``skip`` lines before
+    the data (default: HELPER_SHARE of the estimated lines) and writes its table into an
+    anonymous shared-memory file; this process parses the rest with skiprows. Lines are
+    text-mode lines on both sides (the same universal-newline reading numpy.loadtxt does),
+    and comment and blank lines are skipped on both sides as in one loadtxt, so the two
+    parts in order are that table bit for bit. numpy.loadtxt holds the GIL, hence a
+    process, not a thread. Forking while another Python thread runs is unsafe, so this
+    needs the calling process to run one (the file hash starts after the parse); numpy's
+    BLAS worker threads idle on their own locks and the helper never calls BLAS.
+    """
+    import os
+    import threading
+    import warnings
+
+    if not (hasattr(os, "fork") and hasattr(os, "memfd_create") and hasattr(os, "waitpid")):
+        return None
+    if threading.active_count() != 1:
+        return None
+    try:
+        size = os.path.getsize(path)
+        if size < parallel_min_bytes:
+            return None
+        if helper_lines is None:
+            helper_lines = int(HELPER_SHARE * max(0, _estimated_lines(path, size) - skip))
+        if helper_lines < 1:
+            return None
+        fd = os.memfd_create("liftcal-bench-part", getattr(os, "MFD_CLOEXEC", 0))
+    except (OSError, ValueError):
+        return None
+    pid = None
+    try:
+        with warnings.catch_warnings():
+            # Python 3.12+ warns of any OS thread at a fork, the idle BLAS workers included
+            warnings.simplefilter("ignore", DeprecationWarning)
+            pid = os.fork()
+        if pid == 0:  # the helper: never returns, never runs the caller's code
+            code = 1
+            try:
+                _helper_part(path, skip, helper_lines, ncols, fd)
+                code = 0
+            except BaseException:
+                pass
+            finally:
+                os._exit(code)
+        rest = _part(path, skip + helper_lines, ncols)
+        _, status = os.waitpid(pid, 0)
+        pid = None
+        if rest is None or not (os.WIFEXITED(status) and os.WEXITSTATUS(status) == 0):
+            return None
+        first = _read_part(fd, ncols)
+        return None if first is None else [first, rest]
+    except (OSError, ValueError):
+        return None
+    finally:
+        if pid is not None:  # this process failed or was interrupted while the helper ran
+            import signal
+
+            try:
+                os.kill(pid, signal.SIGKILL)
+                os.waitpid(pid, 0)
+            except OSError:
+                pass
+        os.close(fd)
+
+
+def _part(path, skip, ncols):
+    """numpy.loadtxt's table of the file after ``skip`` lines, or None on any trouble."""
+    import warnings
+
     import numpy as np
 
-    n = table.shape[0]
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")
+            table = np.loadtxt(path, skiprows=skip, **_LOADTXT)
+    except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
+        return None
+    return table if table.shape[1] == ncols else None
+
+
+def _helper_part(path, skip, lines, ncols, fd):
+    """In the helper process: parse ``lines`` text lines after ``skip`` lines and write the
+    table to the shared-memory file ``fd`` (numbers first, then the header that marks the
+    part complete). Raises on any trouble; the helper then exits with status 1."""
+    import itertools
+    import mmap
+    import os
+    import struct
+    import warnings
+
+    import numpy as np
+
+    with open(path, "r", encoding="utf-8") as fh:  # as numpy.loadtxt opens a path
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")
+            table = np.loadtxt(itertools.islice(fh, skip, skip + lines), **_LOADTXT)
+    if table.shape[1] != ncols:
+        raise ValueError("column count")
+    os.ftruncate(fd, _PART_HEADER + table.nbytes)
+    with mmap.mmap(fd, _PART_HEADER + table.nbytes) as mm:
+        out = np.frombuffer(mm, dtype=np.float64, count=table.size, offset=_PART_HEADER)
+        out[:] = table.reshape(-1)
+        del out
+        struct.pack_into("<qqq", mm, 0, _PART_MAGIC, table.shape[0], table.shape[1])
+
+
+def _read_part(fd, ncols):
+    """The helper's table from the shared-memory file (a read-only view), or None when the
+    part is incomplete or not of the expected shape."""
+    import mmap
+    import os
+    import struct
+
+    import numpy as np
+
+    size = os.fstat(fd).st_size
+    if size < _PART_HEADER:
+        return None
+    mm = mmap.mmap(fd, size, access=mmap.ACCESS_READ)
+    magic, rows, cols = struct.unpack_from("<qqq", mm, 0)
+    if magic != _PART_MAGIC or cols != ncols or rows < 1 or _PART_HEADER + rows * cols * 8 != size:
+        mm.close()
+        return None
+    return np.frombuffer(mm, dtype=np.float64, count=rows * cols,
+                         offset=_PART_HEADER).reshape(rows, cols)
+
+
+def _columns(tables, indices, block_rows=8192):
+    """Contiguous copies of the columns ``indices`` of the row-major tables stacked in
+    order, copied block by block so each block is read from the cache once for all of them."""
+    import numpy as np
+
+    n = sum(table.shape[0] for table in tables)
     out = [np.empty(n) for _ in indices]
-    for b0 in range(0, n, block_rows):
-        block = table[b0:b0 + block_rows]
-        for col, index in zip(out, indices):
-            col[b0:b0 + block_rows] = block[:, index]
+    start = 0
+    for table in tables:
+        for b0 in range(0, table.shape[0], block_rows):
+            block = table[b0:b0 + block_rows]
+            rows = slice(start + b0, start + b0 + block.shape[0])
+            for col, index in zip(out, indices):
+                col[rows] = block[:, index]
+        start += table.shape[0]
     return out
 
 
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
-               pressure_Pa=None, humidity_pct=None, hash_in_background=False):
+               pressure_Pa=None, humidity_pct=None, hash_in_background=False,
+               parallel_min_bytes=PARALLEL_MIN_BYTES):
     """Read a bench CSV into SI arrays and apply the row checks.
 
     Options override the file's comment header. Returns a dict: command, voltage_V,
@@ -237,16 +403,19 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     that are very likely mislabelled. hash_in_background=True leaves input_sha256 None
     and hashes the file on a helper thread after the parse, while the caller fits (the
     parse itself runs faster alone); bench_digest(data) then waits for the value.
+    Files of at least parallel_min_bytes bytes are parsed by two processes where the system
+    can fork (_parallel_load); the result is the same.
     """
     import numpy as np
 
     comments, cells, header_line = _read_head(path)
     columns, warnings = _parse_header(path, cells, header_line)
     ncols = len(cells)
-    table = _load_numbers(path, header_line, ncols)
-    digest = _Digest(path) if hash_in_background else _sha256(path)
+    tables = _load_numbers(path, header_line, ncols, parallel_min_bytes)
+    digest = _Digest(path) if hash_in_background else _sha256(path)  # threads after the parse
     data = {}
-    cols = _columns(table, [columns[name][0] for name in REQUIRED])
+    cols = _columns(tables, [columns[name][0] for name in REQUIRED])
+    del tables
     for name, col in zip(REQUIRED, cols):
         unit = columns[name][1]
         scale, offset = UNITS[name][unit]
@@ -282,10 +451,10 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
         rejected = {}
         n_keep = rows_total
         power = v * i  # electrical (bus) power [W]; the current column itself is not kept
-        del i, data, table
+        del i, data
     else:
         u, v, t, power, rejected, n_keep = _row_checks(path, data, rows_total)
-        del data, table
+        del data
 
     air = _bench_air(path, comments, density_kg_m3, altitude_m, temperature_C, pressure_Pa,
                      humidity_pct, warnings)
