@@ -200,19 +200,26 @@ PARALLEL_MIN_BYTES = 8 << 20
 # a little slower per line than the parent's own numpy.loadtxt of the rest, which first
 # skips the helper's lines (measured on 1,000,000-row sweeps; any share gives the same table)
 HELPER_SHARE = 0.45
+# the same when this process first runs other work beside the parse (read_bench's beside=),
+# such as the roughly 40 ms import of the schema validator before writing a parameter set
+HELPER_SHARE_BESIDE = 0.55
 _PART_MAGIC = 0x6C69667463616C31  # marks a complete part written by the helper
 _PART_HEADER = 64                 # bytes before the helper's numbers (magic, rows, columns)
 
 
-def _load_numbers(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES):
+def _load_numbers(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES, beside=None):
     """The numbers of the data rows as a list of row-major tables (read in this order, they
     are numpy.loadtxt's table of the whole file). Fast path: numpy.loadtxt (checks that
     every row has the header's width), split over two processes for large files; on any
     trouble, the single-process loadtxt and then the slow parse that names the row or turns
-    empty cells into NaN."""
-    parts = _parallel_load(path, skip, ncols, parallel_min_bytes)
+    empty cells into NaN. beside: optional callable run once in this process, while the
+    helper parses when there is one, else before the parse."""
+    pending = [beside] if beside is not None else []
+    parts = _parallel_load(path, skip, ncols, parallel_min_bytes, beside=pending)
     if parts is not None:
         return parts
+    while pending:
+        pending.pop()()
     return [_load_single(path, skip, ncols)]
 
 
@@ -241,7 +248,8 @@ def _estimated_lines(path, size):
     return size * newlines // len(sample) if newlines and sample else 0
 
 
-def _parallel_load(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES, helper_lines=None):
+def _parallel_load(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES, helper_lines=None,
+                   beside=()):
     """numpy.loadtxt's table of a large file as two parts read by two processes, or None when
     the file is small, the system cannot fork, or anything at all goes wrong (the caller
     then reads the file in one process, which also reports any error as usual).
@@ -251,7 +259,9 @@ def _parallel_load(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES, hel
     anonymous shared-memory file; this process parses the rest with skiprows. Lines are
     text-mode lines on both sides (the same universal-newline reading numpy.loadtxt does),
     and comment and blank lines are skipped on both sides as in one loadtxt, so the two
-    parts in order are that table bit for bit. numpy.loadtxt holds the GIL, hence a
+    parts in order are that table bit for bit. beside: a list of callables, taken out and
+    run in this process after the fork, before its own part (the helper then takes the
+    larger share, HELPER_SHARE_BESIDE). numpy.loadtxt holds the GIL, hence a
     process, not a thread. Forking while another Python thread runs is unsafe, so this
     needs the calling process to run one (the file hash starts after the parse); numpy's
     BLAS worker threads idle on their own locks and the helper never calls BLAS.
@@ -269,7 +279,8 @@ def _parallel_load(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES, hel
         if size < parallel_min_bytes:
             return None
         if helper_lines is None:
-            helper_lines = int(HELPER_SHARE * max(0, _estimated_lines(path, size) - skip))
+            share = HELPER_SHARE_BESIDE if beside else HELPER_SHARE
+            helper_lines = int(share * max(0, _estimated_lines(path, size) - skip))
         if helper_lines < 1:
             return None
         fd = os.memfd_create("liftcal-bench-part", getattr(os, "MFD_CLOEXEC", 0))
@@ -290,6 +301,8 @@ def _parallel_load(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES, hel
                 pass
             finally:
                 os._exit(code)
+        while beside:
+            beside.pop()()
         rest = _part(path, skip + helper_lines, ncols)
         _, status = os.waitpid(pid, 0)
         pid = None
@@ -393,7 +406,7 @@ def _columns(tables, indices, block_rows=8192):
 
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
                pressure_Pa=None, humidity_pct=None, hash_in_background=False,
-               parallel_min_bytes=PARALLEL_MIN_BYTES):
+               parallel_min_bytes=PARALLEL_MIN_BYTES, beside=None):
     """Read a bench CSV into SI arrays and apply the row checks.
 
     Options override the file's comment header. Returns a dict: command, voltage_V,
@@ -404,14 +417,16 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     and hashes the file on a helper thread after the parse, while the caller fits (the
     parse itself runs faster alone); bench_digest(data) then waits for the value.
     Files of at least parallel_min_bytes bytes are parsed by two processes where the system
-    can fork (_parallel_load); the result is the same.
+    can fork (_parallel_load); the result is the same. beside: optional callable without
+    arguments run once during the parse, in this process while the helper parses its part
+    (work the caller needs later anyway, e.g. imports); errors it raises propagate.
     """
     import numpy as np
 
     comments, cells, header_line = _read_head(path)
     columns, warnings = _parse_header(path, cells, header_line)
     ncols = len(cells)
-    tables = _load_numbers(path, header_line, ncols, parallel_min_bytes)
+    tables = _load_numbers(path, header_line, ncols, parallel_min_bytes, beside)
     digest = _Digest(path) if hash_in_background else _sha256(path)  # threads after the parse
     data = {}
     cols = _columns(tables, [columns[name][0] for name in REQUIRED])
@@ -438,7 +453,9 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     clean = all(math.isfinite(x) for x in extremes)
     v_med = None
     if clean:
-        v_med = float(np.median(v[:: max(1, v.size // 200000)]))
+        from estimator.robust import fast_median  # one selection; the same value as np.median
+
+        v_med = fast_median(v[:: max(1, v.size // 200000)])
     _check_units(path, data, v_med, extremes if clean else None)
     units = {name: data[name + "_unit"] for name in REQUIRED}
     if clean:

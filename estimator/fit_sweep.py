@@ -19,7 +19,7 @@ from estimator.robust import WORK_ROWS
 
 def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, altitude_m=None,
                    temperature_C=None, pressure_Pa=None, humidity_pct=None,
-                   voltage_exponent=None, keep_arrays=False, work_rows=WORK_ROWS):
+                   voltage_exponent=None, keep_arrays=False, work_rows=WORK_ROWS, beside=None):
     """Fit a bench CSV and return the parameter-set dict (not yet written; see params.write_params).
 
     path: bench CSV; diameter_m: propeller diameter [m] (else ``# diameter:`` or the
@@ -29,7 +29,8 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
     keep_arrays=True adds a private ``_arrays`` entry (rows and fits) for plots; it is
     removed by params.write_params. work_rows: sweeps of more than twice this many rows
     take the very large path of the fits (estimator.robust.huber_fit); a huge value forces
-    every fit to iterate on all rows (the reference path). Raises InputError on bad or
+    every fit to iterate on all rows (the reference path). beside: optional callable run
+    once while the file is parsed (estimator.bench.read_bench). Raises InputError on bad or
     impossible data.
     """
     from estimator.bench import read_bench
@@ -37,7 +38,8 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
     data = read_bench(path, diameter_m=diameter_m, density_kg_m3=density_kg_m3,
                       altitude_m=altitude_m, temperature_C=temperature_C,
                       pressure_Pa=pressure_Pa, humidity_pct=humidity_pct,
-                      hash_in_background=True)  # the hash runs beside the fit
+                      hash_in_background=True,  # the hash runs beside the fit
+                      beside=beside)
     if vehicle is not None:
         d_vehicle = vehicle["propeller"]["diameter_m"]
         if data["diameter_m"] is None:

@@ -180,3 +180,24 @@ def test_the_helper_is_reaped(tmp_path):
         assert bench._parallel_load(path, SKIP, 4, parallel_min_bytes=0, helper_lines=200)
     children = open("/proc/self/task/%d/children" % os.getpid()).read().split()
     assert children == []  # no zombie left behind
+
+
+@pytest.mark.parametrize("threshold", [0, 1 << 62])  # with the helper, and in one process
+def test_work_beside_the_parse_runs_once(tmp_path, threshold):
+    path = _write(tmp_path, HEAD + "\n".join(_sweep_rows(3000)) + "\n")
+    calls = []
+    data = read_bench(path, parallel_min_bytes=threshold, beside=lambda: calls.append(os.getpid()))
+    assert calls == [os.getpid()]  # once, in this process (never in the helper)
+    assert data["rows_total"] == 3000  # the rows written above
+
+
+def test_an_error_beside_the_parse_propagates_and_reaps_the_helper(tmp_path):
+    path = _write(tmp_path, HEAD + "\n".join(_sweep_rows(3000)) + "\n")
+
+    def fails():
+        raise ImportError("no such validator")
+
+    with pytest.raises(ImportError):
+        read_bench(path, parallel_min_bytes=0, beside=fails)
+    if sys.platform == "linux":
+        assert open("/proc/self/task/%d/children" % os.getpid()).read().split() == []

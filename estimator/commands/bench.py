@@ -58,6 +58,14 @@ def _human_fit(params, out_file):
     return "\n".join(lines)
 
 
+def _import_validator():
+    """Import the schema validator the parameter set is checked with before it is written;
+    fit runs this while a large bench file is parsed in a second process."""
+    import importlib
+
+    importlib.import_module("jsonschema")  # kept in sys.modules for estimator.jsonio
+
+
 @click.command()
 @click.argument("bench_file", metavar="BENCH.csv")
 @click.option("--out", "out_file", required=True, metavar="PARAMS.json",
@@ -95,7 +103,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     params = fit_bench_file(bench_file, diameter_m=diameter, vehicle=vehicle, density_kg_m3=density,
                             altitude_m=altitude, temperature_C=temperature, pressure_Pa=pressure,
                             humidity_pct=humidity, voltage_exponent=voltage_exponent,
-                            keep_arrays=plot_file is not None)
+                            keep_arrays=plot_file is not None, beside=_import_validator)
     if voltage_exponent is not None:
         params["thrust_curve"]["voltage_exponent_source"] = "given"
     arrays = params.pop("_arrays", None)
