@@ -152,7 +152,27 @@ def _likely_cause(err):
             return ""
         return "; given in %s instead of %s? %g %s = %.4g %s" % (slip[0], unit, err.instance, slip[0],
                                                                 slip[1], unit)
+    if err.validator == "type" and isinstance(err.instance, str) and "number" in str(err.validator_value):
+        return _text_for_number(err)
     return ""
+
+
+def _text_for_number(err):
+    """Hint for a number written as text with a unit ("850g"): the key names the unit."""
+    from estimator.units import parse_quantity
+
+    path = list(err.absolute_path)
+    key = path[-1] if path and isinstance(path[-1], str) else ""
+    unit = key.rsplit("_", 1)[-1] if "_" in key else ""
+    if unit not in _KEY_UNITS:
+        return "; write a plain number, without quotes"
+    kind = "altitude" if key.startswith("altitude") else _KEY_UNITS[unit][0]
+    try:
+        value = parse_quantity(err.instance, kind)
+    except (InputError, KeyError):
+        return "; write a plain number in %s, without quotes (the key name gives the unit)" % unit
+    # parse_quantity returns the SI unit, which is the unit every key suffix of ours names
+    return "; numbers in the file are plain, in the unit the key names (%s): write %.6g" % (unit, value)
 
 
 def bounds_of(schema):

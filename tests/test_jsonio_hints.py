@@ -76,3 +76,19 @@ def test_unit_slip_picks_the_slip_that_lands_inside(value, kind, slips, schema, 
         assert got is None
     else:
         assert got[0] == expected[0] and got[1] == pytest.approx(expected[1], rel=1e-12)  # exact factors
+
+
+@pytest.mark.parametrize("key_path, text, expected", [
+    # NIST SP 811 factors: 850 g = 0.85 kg; 10 in = 0.254 m exactly; 5000 mAh = 5 Ah
+    (("mass_kg",), "850g", "write 0.85"),
+    (("propeller", "diameter_m"), "10in", "write 0.254"),
+    (("battery", "capacity_Ah"), "5000mAh", "write 5"),
+])
+def test_a_number_written_as_text_with_a_unit_gets_the_plain_number(key_path, text, expected):
+    doc = _load("vehicle-demo-quad.json")
+    node = doc
+    for key in key_path[:-1]:
+        node = node[key]
+    node[key_path[-1]] = text
+    msg = _message(doc, "vehicle.schema.json")
+    assert "is not of type 'number'" in msg and expected in msg
