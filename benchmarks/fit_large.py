@@ -121,12 +121,14 @@ def peak_rss_kib(args):
 
 
 def main():
-    args = [a for a in sys.argv[1:] if not a.startswith("--")]
-    rows = int(args[0]) if args else 1_000_000
+    argv = sys.argv[1:]
     rounds = 5
-    if "--rounds" in sys.argv:
-        rounds = int(sys.argv[sys.argv.index("--rounds") + 1])
-        args = [a for a in args if a != str(rounds)]
+    if "--rounds" in argv:
+        k = argv.index("--rounds")
+        rounds = int(argv[k + 1])
+        del argv[k:k + 2]
+    args = [a for a in argv if not a.startswith("--")]
+    rows = int(args[0]) if args else 1_000_000
     from estimator.fit_sweep import fit_bench_file
 
     with tempfile.TemporaryDirectory() as folder:

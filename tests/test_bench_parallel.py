@@ -66,6 +66,10 @@ AWKWARD = [
     "\ufeff" + HEAD.replace("\n", "\r\n") + "\r\n".join(_sweep_rows(12)) + "\r\n",
     # old Mac line ends inside the data (universal newlines read them as line ends)
     HEAD + "\r".join(_sweep_rows(12)) + "\n",
+    # characters str.splitlines would split at, in comment lines: text files end lines only
+    # at \n and \r, on both sides
+    HEAD + "\n".join(_sweep_rows(12)[:5] + ["# vt\x0bff\x0cfs\x1cnel\x85ls\u2028ps\u2029"] * 3
+                      + _sweep_rows(12)[5:]) + "\n",
     # NaN, infinities, signs, exponents, spaces around cells
     HEAD + "\n".join(["nan,15,1,2", "-0.0,15,inf,-inf", " 0.5 , 1.5e1 ,2E0,+3"] + _sweep_rows(9)) + "\n",
 ]
