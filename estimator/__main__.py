@@ -1,5 +1,5 @@
 """Run the command line as ``python -m estimator``."""
 
-from estimator.cli import main
+from estimator.cli import run
 
-main()
+run()
