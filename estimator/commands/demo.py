@@ -113,10 +113,9 @@ def run_demo(out_dir, seed=1, emit=None):
         flights.append({"file": csv_path, "fault": fault, "samples": result["samples"],
                         "alarms": result["alarms"], "kinds": kinds, "first_event_t_s": first})
         text.append("$ liftcal replay %s --params %s" % (csv_path, path("params.json")))
-        text.append("  %-44s %5d samples  %s" % (
-            meaning, result["samples"],
-            "no alarm" if not result["events"] else
-            "%s first at %.1f s" % (", ".join(kinds), first)))
+        text.append("  -> %s: %s (%d samples)" % (
+            meaning, "no alarm" if not result["events"] else
+            "%s first at %.1f s" % (", ".join(kinds), first), result["samples"]))
     text += ["",
              "Props off while configuring; bench runs on a clamped stand behind a guard, nobody in",
              "the plane of the rotors. Packs charged and stored by the maker's rules. Local aviation",
