@@ -30,37 +30,11 @@ import numpy as np
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 sys.path.insert(0, ROOT)
 
-from estimator.benchsim import SUPPLY_VOLTAGES_V, bench_density_kg_m3, true_point  # noqa: E402
+from estimator.ramp_sweep import ramp_sweep_rows, write_ramp_csv  # noqa: E402
 
 
 def write_big_csv(path, rows, seed=1):
-    rng = np.random.default_rng(seed)
-    rho = bench_density_kg_m3()
-    grid = np.linspace(0.0, 1.0, 201)
-    tables = []
-    for vs in SUPPLY_VOLTAGES_V:
-        pts = [true_point(u, vs, rho) for u in grid]
-        tables.append(np.array([[p["bus_V"], p["bus_current_A"], p["thrust_N"]] for p in pts]))
-    u = rng.uniform(0.0, 1.0, rows)
-    which = rng.integers(0, len(SUPPLY_VOLTAGES_V), rows)
-    out = np.empty((rows, 5))
-    out[:, 0] = np.arange(rows) * 0.001
-    out[:, 1] = u
-    for k, table in enumerate(tables):
-        sel = which == k
-        for col in range(3):
-            out[sel, 2 + col] = np.interp(u[sel], grid, table[:, col])
-    out[:, 2] += rng.normal(0.0, 0.005, rows)
-    out[:, 3] += rng.normal(0.0, 0.03, rows) + 0.005 * out[:, 3] * rng.normal(0.0, 1.0, rows)
-    out[:, 4] += rng.normal(0.0, 0.02, rows) + 0.004 * out[:, 4] * rng.normal(0.0, 1.0, rows)
-    spikes = rng.integers(0, rows, rows // 10000)
-    out[spikes, 4] += 3.0
-    with open(path, "w") as fh:
-        fh.write("# invented demo sweep for the benchmark (simulated, not measured)\n"
-                 "# altitude: 300\n# temperature: 21\n# diameter: 10in\n"
-                 "time[s],command[-],voltage[V],current[A],thrust[N]\n")
-        np.savetxt(fh, out, fmt=["%.3f", "%.5f", "%.4f", "%.4f", "%.4f"], delimiter=",")
-    return out.nbytes
+    return write_ramp_csv(path, ramp_sweep_rows(rows, seed=seed), "invented demo sweep for the benchmark")
 
 
 def alternate_best(fns, rounds):

@@ -21,8 +21,9 @@ import numpy as np
 import pytest
 
 from estimator.bench import _row_checks, read_bench
-from estimator.benchsim import SUPPLY_VOLTAGES_V, bench_density_kg_m3, true_point
+from estimator.benchsim import SUPPLY_VOLTAGES_V
 from estimator.demo_data import DEMO_VEHICLE
+from estimator.ramp_sweep import ramp_sweep_rows, write_ramp_csv
 from estimator.fit_curve import exact_median, voltage_spread_at_equal_command
 from estimator.fit_sweep import fit_bench
 from estimator.vehicle import check_vehicle
@@ -35,29 +36,8 @@ def _ramp_sweep(path, rows=20000, seed=3):
     """A continuous sweep (commands spread evenly over 0..1, as a slow ramp logs them) at the
     simulator's three supply voltages: the simulator's noise-free physics interpolated on a
     fine grid, sensor noise and a few gross spikes."""
-    rng = np.random.default_rng(seed)
-    rho = bench_density_kg_m3()
-    grid = np.linspace(0.0, 1.0, 201)
-    tables = [np.array([[p["bus_V"], p["bus_current_A"], p["thrust_N"]]
-                        for p in (true_point(u, vs, rho) for u in grid)]) for vs in SUPPLY_VOLTAGES_V]
-    u = rng.uniform(0.0, 1.0, rows)
-    which = rng.integers(0, len(SUPPLY_VOLTAGES_V), rows)
-    out = np.empty((rows, 5))
-    out[:, 0] = np.arange(rows) * 0.01
-    out[:, 1] = u
-    for k, table in enumerate(tables):
-        sel = which == k
-        for col in range(3):
-            out[sel, 2 + col] = np.interp(u[sel], grid, table[:, col])
-    out[:, 2] += rng.normal(0.0, 0.005, rows)
-    out[:, 3] += rng.normal(0.0, 0.03, rows) + 0.005 * out[:, 3] * rng.normal(0.0, 1.0, rows)
-    out[:, 4] += rng.normal(0.0, 0.02, rows) + 0.004 * out[:, 4] * rng.normal(0.0, 1.0, rows)
-    out[rng.integers(0, rows, 12), 4] += 3.0   # load-cell spikes
-    out[rng.integers(0, rows, 12), 3] += 8.0   # current-sensor spikes
-    with open(path, "w") as fh:
-        fh.write("# invented test sweep (simulated, not measured)\n# altitude: 300\n"
-                 "# temperature: 21\n# diameter: 10in\ntime[s],command[-],voltage[V],current[A],thrust[N]\n")
-        np.savetxt(fh, out, fmt=["%.2f", "%.5f", "%.4f", "%.4f", "%.4f"], delimiter=",")
+    out = ramp_sweep_rows(rows, seed=seed, sample_s=0.01, thrust_spikes=12, current_spikes=12)
+    write_ramp_csv(path, out, "invented test sweep", time_format="%.2f")
 
 
 @pytest.fixture(scope="module")
