@@ -19,6 +19,7 @@ import math
 import re
 
 from estimator.errors import InputError
+from estimator.jsonio import open_input
 from estimator.units import STANDARD_GRAVITY_M_S2, parse_quantity
 
 REQUIRED = ("command", "voltage", "current", "thrust")
@@ -91,14 +92,7 @@ def bench_digest(data):
 def _read_head(path):
     """Return (comment dict, header cells, number of lines before the data)."""
     comments = {}
-    try:
-        fh = open(path, "rb")
-    except FileNotFoundError:
-        raise InputError("%s: no such file" % path) from None
-    except IsADirectoryError:
-        raise InputError("%s: is a directory, expected a bench CSV" % path) from None
-    except OSError as exc:
-        raise InputError("%s: cannot read (%s)" % (path, exc.strerror)) from None
+    fh = open_input(path, "a bench CSV", binary=True)
     with fh:
         line_no = 0
         for raw in fh:

@@ -12,15 +12,27 @@ if not os.path.isdir(SCHEMA_DIR):  # a non-editable install: the copy under <pre
     SCHEMA_DIR = os.path.join(sys.prefix, "share", "liftcal", "schemas")
 
 
-def load_json(path):
-    """Read a JSON file; raise InputError with the file, line and column on failure."""
+def open_input(path, expected, binary=False):
+    """Open an input file for reading; raise InputError naming the file and the cause.
+
+    expected: what the file should be, for the message ("a JSON file", "a bench CSV").
+    Text mode reads UTF-8; decoding errors are the caller's to report (with a line).
+    """
     try:
-        with open(path, "r", encoding="utf-8") as fh:
-            return json.load(fh)
+        return open(path, "rb") if binary else open(path, "r", encoding="utf-8")
     except FileNotFoundError:
         raise InputError("%s: no such file" % path) from None
     except IsADirectoryError:
-        raise InputError("%s: is a directory, expected a JSON file" % path) from None
+        raise InputError("%s: is a directory, expected %s" % (path, expected)) from None
+    except OSError as exc:
+        raise InputError("%s: cannot read (%s)" % (path, exc.strerror)) from None
+
+
+def load_json(path):
+    """Read a JSON file; raise InputError with the file, line and column on failure."""
+    try:
+        with open_input(path, "a JSON file") as fh:
+            return json.load(fh)
     except UnicodeDecodeError as exc:
         raise InputError("%s: not UTF-8 text (byte %d)" % (path, exc.start)) from None
     except json.JSONDecodeError as exc:

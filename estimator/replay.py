@@ -11,6 +11,7 @@ the kernel, which flags them (sensor_fault) - a log with a glitch is still a log
 import sys
 
 from estimator.errors import InputError
+from estimator.jsonio import open_input
 from estimator.watch_config import make_config, new_watch
 
 KINDS = ((1, "power_high"), (2, "power_low"), (4, "sensor_fault"), (8, "baseline_off"), (16, "mass_high"))
@@ -50,10 +51,8 @@ def _header(path, line, line_no):
 def read_flight(path):
     """Read a flight CSV; returns dict time_s, command_permille, bus_mV, bus_mA (lists)."""
     try:
-        with open(path, "r", encoding="utf-8") as fh:
+        with open_input(path, "a flight CSV") as fh:
             text = fh.read()
-    except FileNotFoundError:
-        raise InputError("%s: no such file" % path) from None
     except UnicodeDecodeError:
         raise InputError("%s: not UTF-8 text; expected a flight CSV" % path) from None
     except OSError as exc:

@@ -157,18 +157,24 @@ def _iterate(model, theta, y, index, c, max_iter, tol):
         w = huber_weights(r, scale, c)
         jw = jac * w[:, None]
         step = _solve(_cross(jw, jac), _cross(jw, r))
-        base = huber_loss(r, scale, c)
-        lam = 1.0
-        for _ in range(30):
-            ft, _ = model(theta + lam * step, index)
-            if huber_loss(yy - ft, scale, c) <= base * (1 + 1e-12):
-                break
-            lam *= 0.5
+        lam = _halving(model, theta, step, yy, index, huber_loss(r, scale, c), scale, c)
         theta = theta + lam * step
         if np.all(np.abs(lam * step) <= tol * (np.abs(theta) + 1e-9)):
             break
     f, _ = model(theta, index)
     return theta, _scale_floor(yy - f, yy)
+
+
+def _halving(model, theta, step, yy, index, base, scale, c):
+    """Step length 1, 1/2, 1/4 ... (at most 30 halvings) at which Huber's loss on the rows
+    ``index`` does not rise above ``base``; returns the length."""
+    lam = 1.0
+    for _ in range(30):
+        ft, _ = model(theta + lam * step, index)
+        if huber_loss(yy - ft, scale, c) <= base * (1 + 1e-12):
+            break
+        lam *= 0.5
+    return lam
 
 
 def _newton(model, theta, y, index, c, max_iter, tol):
@@ -193,13 +199,7 @@ def _newton(model, theta, y, index, c, max_iter, tol):
         hess = np.einsum("ij,i,ik->jk", jac, inside, jac)
         step = _solve(hess, _cross(jac, psi))
         se_rows = scale * np.sqrt(np.maximum(np.diag(np.linalg.pinv(hess)), 0.0))
-        base = huber_loss(r, scale, c)
-        lam = 1.0
-        for _ in range(30):
-            ft, _ = model(theta + lam * step, index)
-            if huber_loss(yy - ft, scale, c) <= base * (1 + 1e-12):
-                break
-            lam *= 0.5
+        lam = _halving(model, theta, step, yy, index, huber_loss(r, scale, c), scale, c)
         theta = theta + lam * step
         moved = np.abs(lam * step)
         if np.all((moved <= tol * (np.abs(theta) + 1e-9)) | (moved <= 1e-3 * se_rows)):

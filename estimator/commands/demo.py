@@ -54,7 +54,7 @@ def run_demo(out_dir, seed=1, emit=None):
     from estimator.firmware import write_bundle
     from estimator.fit_sweep import fit_bench_file
     from estimator.flightsim import simulate_flight
-    from estimator.params import check_params, write_params
+    from estimator.params import write_params
     from estimator.preflight import format_sheet, hover_report
     from estimator.replay import replay_file
 
@@ -76,8 +76,7 @@ def run_demo(out_dir, seed=1, emit=None):
     # 2. after a bench sweep: fit -> parameter set -> hover sheet -> export
     write_atomic(path("bench.csv"), simulate_sweep(seed=seed))
     params = fit_bench_file(path("bench.csv"), vehicle=vehicle)
-    write_params(path("params.json"), params)
-    check_params(params, path("params.json"))
+    write_params(path("params.json"), params)  # validates against the schema before writing
     fitted = hover_report(vehicle, params)
     map_file = EXAMPLE_MAP
     settings = export_settings(params, load_map(map_file), map_file)

@@ -50,15 +50,29 @@ def _air(altitude_m, temperature_C, pressure_Pa, humidity_pct):
         raise InputError("--%s: %s" % (exc.quantity, exc)) from None
 
 
+def site_options(note):
+    """The four options that describe the air at a site, shared by ``air`` and ``static``."""
+    options = [
+        click.option("--altitude", type=Bounded("altitude", "altitude"), default="0m", show_default=True,
+                     help="Geometric altitude of the site above sea level (m, km, ft)" + note + "."),
+        click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
+                     help="Outside air temperature (C, K, F); default: standard atmosphere" + note + "."),
+        click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
+                     help="Station pressure (Pa, hPa, kPa, mbar), not sea-level QNH; default: "
+                          "standard" + note + "."),
+        click.option("--humidity", type=Bounded("percent", "humidity"), default="0%", show_default=True,
+                     help="Relative humidity (%)" + note + "."),
+    ]
+
+    def apply(func):
+        for option in reversed(options):
+            func = option(func)
+        return func
+    return apply
+
+
 @click.command()
-@click.option("--altitude", type=Bounded("altitude", "altitude"), default="0m", show_default=True,
-              help="Geometric altitude of the site above sea level (m, km, ft).")
-@click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
-              help="Outside air temperature (C, K, F); default: standard atmosphere.")
-@click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
-              help="Station pressure (Pa, hPa, kPa, mbar), not sea-level QNH; default: standard.")
-@click.option("--humidity", type=Bounded("percent", "humidity"), default="0%", show_default=True,
-              help="Relative humidity (%).")
+@site_options("")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def air(altitude, temperature, pressure, humidity, as_json):
     """Air at a site: density, temperature, pressure and density altitude.
@@ -95,14 +109,7 @@ def air(altitude, temperature, pressure, humidity, as_json):
                    "good small sets reach 0.5..0.7).")
 @click.option("--density", type=Bounded("density", "density", positive=True), default=None,
               help="Air density (kg/m3); default: from --altitude etc.")
-@click.option("--altitude", type=Bounded("altitude", "altitude"), default="0m", show_default=True,
-              help="Site altitude when --density is not given.")
-@click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
-              help="Outside air temperature when --density is not given.")
-@click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
-              help="Station pressure when --density is not given.")
-@click.option("--humidity", type=Bounded("percent", "humidity"), default="0%",
-              help="Relative humidity when --density is not given.")
+@site_options(" (used when --density is not given)")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def static(diameter, power, thrust, factor, density, altitude, temperature, pressure, humidity,
            as_json):
