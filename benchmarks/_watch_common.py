@@ -12,7 +12,7 @@ from watch_helpers import demo_fit_params  # noqa: E402
 
 
 def bundle_dir():
-    from estimator.firmware import write_bundle
+    from estimator.watch.bundle import write_bundle
 
     out = os.path.join(tempfile.mkdtemp(prefix="liftwatch-bench-"), "bundle")
     write_bundle(demo_fit_params(), out)

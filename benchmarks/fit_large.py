@@ -30,7 +30,7 @@ import numpy as np
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 sys.path.insert(0, ROOT)
 
-from estimator.ramp_sweep import ramp_sweep_rows, write_ramp_csv  # noqa: E402
+from estimator.demo.ramp_sweep import ramp_sweep_rows, write_ramp_csv  # noqa: E402
 
 
 def write_big_csv(path, rows, seed=1):
@@ -103,7 +103,7 @@ def main():
         del argv[k:k + 2]
     args = [a for a in argv if not a.startswith("--")]
     rows = int(args[0]) if args else 1_000_000
-    from estimator.fit_sweep import fit_bench_file
+    from estimator.bench.sweep import fit_bench_file
 
     with tempfile.TemporaryDirectory() as folder:
         csv = os.path.join(folder, "big.csv")

@@ -10,8 +10,8 @@ import sys
 import time
 
 from _watch_common import demo_fit_params
-from estimator.flightsim import flight_arrays
-from estimator.watch_config import make_config, siegmund_arl_two_sided
+from estimator.demo.flight_sim import flight_arrays
+from estimator.watch.config import make_config, siegmund_arl_two_sided
 from watch_helpers import run_flight
 
 

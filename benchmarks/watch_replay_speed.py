@@ -7,8 +7,8 @@ import tempfile
 import time
 
 from _watch_common import demo_fit_params
-from estimator.flightsim import flight_arrays, to_csv
-from estimator.replay import replay_file
+from estimator.demo.flight_sim import flight_arrays, to_csv
+from estimator.watch.replay import replay_file
 
 
 def main():

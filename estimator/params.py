@@ -29,7 +29,7 @@ def _r(x, digits=6):
 
 
 def build_params(data, fit, source, vehicle=None, hover=None):
-    """Assemble the parameter-set dict from estimator.bench data and the fit results."""
+    """Assemble the parameter-set dict from estimator.bench.reader data and the fit results."""
     curve, power, sf = fit["curve"], fit["power"], fit["static"]
     rho = data["bench_air"]["density_kg_m3"]
     se = dict(curve["standard_errors"])

@@ -14,7 +14,7 @@ import tempfile
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
-from estimator.benchsim import simulate_sweep
+from estimator.demo.bench_sim import simulate_sweep
 from estimator.cli import main
 from estimator.params import load_params
 

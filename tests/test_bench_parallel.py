@@ -15,8 +15,8 @@ import threading
 import numpy as np
 import pytest
 
-from estimator import bench
-from estimator.bench import read_bench
+from estimator.bench import reader as bench
+from estimator.bench.reader import read_bench
 from estimator.errors import InputError
 
 pytestmark = pytest.mark.skipif(not (hasattr(os, "fork") and hasattr(os, "memfd_create")),

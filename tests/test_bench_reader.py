@@ -11,11 +11,11 @@ import ambiance
 import numpy as np
 import pytest
 
-from estimator.bench import read_bench, read_bench_text
-from estimator.benchsim import simulate_sweep
+from estimator.bench.reader import read_bench, read_bench_text
+from estimator.demo.bench_sim import simulate_sweep
 from estimator.cli import main
 from estimator.errors import InputError
-from estimator.fit_sweep import fit_bench_file
+from estimator.bench.sweep import fit_bench_file
 
 HEADER = "command[{cu}],voltage[V],current[A],thrust[{tu}]\n"
 

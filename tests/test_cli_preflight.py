@@ -8,7 +8,7 @@ import sys
 import pytest
 
 from estimator.core.atmosphere import site_air
-from estimator.demo_data import DEMO_VEHICLE
+from estimator.demo.scenario import DEMO_VEHICLE
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 DEMO_FILE = os.path.join(ROOT, "schemas", "examples", "valid", "vehicle-demo-quad.json")
@@ -152,7 +152,7 @@ def test_importtime_of_air_lists_no_numpy():
 
 
 def test_hover_with_params_uses_the_fitted_flow():
-    # --params hands the parameter set to estimator.fitted_hover (the bench flow); its
+    # --params hands the parameter set to estimator.preflight.measured_rotor (the bench flow); its
     # report carries the hover-command interval, which the physics-only report does not.
     params = os.path.join(ROOT, "schemas", "examples", "valid", "params-demo-with-hover.json")
     res = run_json("hover", DEMO_FILE, "--params", params)

@@ -211,7 +211,7 @@ def test_core_gives_the_same_numbers_on_micropython(tmp_path):
     import sys
     sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
     from mpy_harness import run_micropython
-    from estimator.demo_data import DEMO_VEHICLE
+    from estimator.demo.scenario import DEMO_VEHICLE
 
     vehicle_json = json.dumps(DEMO_VEHICLE)
     writes = ["import os", "for d in ('/lib/estimator', '/lib/estimator/core'):",

@@ -12,7 +12,7 @@ import pytest
 
 from estimator.cli import main
 from estimator.errors import InputError
-from estimator.export import EXAMPLE_MAP, export_settings, format_lines, load_map
+from estimator.bench.export import EXAMPLE_MAP, export_settings, format_lines, load_map
 from estimator.params import load_params
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))

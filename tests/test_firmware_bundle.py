@@ -7,11 +7,11 @@ import subprocess
 
 import pytest
 
-from estimator import firmware
+from estimator.watch import bundle as firmware
 from estimator.cli import main
 from estimator.errors import InputError
-from estimator.firmware import write_bundle
-from estimator.watch_config import CONFIG_KEYS, CONFIG_LENGTH, SCALAR_AT, TABLE_AT, TABLES
+from estimator.watch.bundle import write_bundle
+from estimator.watch.config import CONFIG_KEYS, CONFIG_LENGTH, SCALAR_AT, TABLE_AT, TABLES
 from watch_helpers import demo_fit_params
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
@@ -54,7 +54,7 @@ def test_config_is_integers_only_with_comments(tmp_path):
 
 def test_config_file_matches_the_desktop_tuple(tmp_path):
     # The bundle's CONFIG is the same flat tuple the desktop replay feeds the kernel (as_tuple).
-    from estimator.watch_config import as_tuple, make_config
+    from estimator.watch.config import as_tuple, make_config
 
     write_bundle(demo_fit_params(), str(tmp_path / "b"))
     text = (tmp_path / "b" / "liftwatch_config.py").read_text()
@@ -64,7 +64,7 @@ def test_config_file_matches_the_desktop_tuple(tmp_path):
 
 def test_the_integer_check_can_fail():
     # check_config refuses a CONFIG with a non-int value (here a bytes table, the old layout).
-    from estimator.watch_config import check_config, make_config
+    from estimator.watch.config import check_config, make_config
 
     cfg = dict(make_config(demo_fit_params())[0])
     cfg["power_table"] = bytes(98)
@@ -137,7 +137,7 @@ def test_cli_firmware_without_vehicle_is_one_error_line(tmp_path, capsys):
 
 
 def test_cli_firmware_with_vehicle_file(tmp_path, capsys):
-    from estimator.demo_data import DEMO_VEHICLE
+    from estimator.demo.scenario import DEMO_VEHICLE
 
     params = dict(demo_fit_params())
     params.pop("vehicle")

@@ -14,12 +14,12 @@ import sys
 import pytest
 from scipy.optimize import brentq
 
-from estimator.benchsim import DEAD_BAND, bench_density_kg_m3, simulate_sweep, true_point
+from estimator.demo.bench_sim import DEAD_BAND, bench_density_kg_m3, simulate_sweep, true_point
 from estimator.cli import main
 from estimator.core.momentum import disk_area_m2, ideal_power_W
-from estimator.demo_data import DEMO_VEHICLE
-from estimator.fit_sweep import fit_bench_file
-from estimator.fitted_hover import hover_from_params, rotor_power_W, sagged_bus_V
+from estimator.demo.scenario import DEMO_VEHICLE
+from estimator.bench.sweep import fit_bench_file
+from estimator.preflight.measured_rotor import hover_from_params, rotor_power_W, sagged_bus_V
 from estimator.units import STANDARD_GRAVITY_M_S2
 from estimator.vehicle import check_vehicle
 
@@ -80,7 +80,7 @@ def test_hover_power_is_above_the_momentum_theory_bound_and_consistent(fitted):
 
 
 def test_fitted_hover_agrees_with_the_datasheet_model(fitted):
-    from estimator.preflight import hover_report
+    from estimator.preflight.report import hover_report
 
     vehicle, params, _ = fitted
     fitted_report = hover_from_params(vehicle, params)
@@ -194,7 +194,7 @@ def test_fitted_hover_motor_current_errs_high_against_the_physics(fitted):
     # hover bus voltage. Taking the curve's x as the duty (the dead band of the fit, 0.14,
     # sits above the simulator's 0.06) and ignoring the ESC's 5 % loss both err high, never
     # low; here x = 0.47 against duty 0.51 and 5 % loss give about +15 %, bounded by 25 %
-    from estimator.benchsim import DEAD_BAND, ESC_EFFICIENCY, demo_rotor
+    from estimator.demo.bench_sim import DEAD_BAND, ESC_EFFICIENCY, demo_rotor
     from estimator.core.motor import rotor_operating_point
     vehicle, params, _ = fitted
     bench_vehicle = dict(vehicle, site={"pressure_Pa": 97800.0, "temperature_C": 21.0})
@@ -206,7 +206,7 @@ def test_fitted_hover_motor_current_errs_high_against_the_physics(fitted):
 
 
 def test_voltage_range_warning_uses_the_sweep_range_when_recorded(fitted):
-    from estimator.fitted_hover import voltage_range_warning
+    from estimator.preflight.measured_rotor import voltage_range_warning
     _, params, _ = fitted
     # the demo pack on its own bench fit: 4S hover voltages within 12 % of V_ref, no warning
     demo = hover_from_params(check_vehicle(DEMO_VEHICLE, "demo"), params)
@@ -228,7 +228,7 @@ def test_vehicle_without_site_warns_in_the_fitted_sheet_too(fitted):
 
 
 def test_fitted_sheet_interval_is_short_and_says_what_it_holds(fitted):
-    from estimator.preflight import format_sheet
+    from estimator.preflight.report import format_sheet
     vehicle, params, _ = fitted
     sheet = format_sheet(dict(hover_from_params(vehicle, params), cautions=None))
     line = [l for l in sheet.splitlines() if "95 % interval" in l][0]
@@ -252,7 +252,7 @@ def test_fit_with_a_vehicle_that_cannot_hover_names_the_file(fitted, tmp_path):
 
 
 def test_pack_limited_vehicle_on_the_fitted_model(fitted):
-    from estimator.fitted_hover import hover_block
+    from estimator.preflight.measured_rotor import hover_block
     from estimator.errors import InputError
     _, params, _ = fitted
     doc = json.loads(json.dumps(DEMO_VEHICLE))

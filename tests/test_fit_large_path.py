@@ -1,7 +1,7 @@
 """The very large sweep path of the fits agrees with the reference path that iterates on every row.
 
 A sweep of more than twice ``work_rows`` rows is fitted on a working subsample and finished
-by one full-data Newton step (estimator.robust, Bickel 1975 "One-step Huber estimates in the
+by one full-data Newton step (estimator.bench.robust, Bickel 1975 "One-step Huber estimates in the
 linear model", from memory: the one-step estimate from a consistent start is asymptotically
 the fully iterated M-estimate). Here a 20,000-row sweep is fitted both ways: with
 work_rows = 5000 (the large path, working set every 4th row) and with work_rows so large
@@ -20,12 +20,12 @@ static-factor check against a full sort.
 import numpy as np
 import pytest
 
-from estimator.bench import _row_checks, read_bench
-from estimator.benchsim import SUPPLY_VOLTAGES_V
-from estimator.demo_data import DEMO_VEHICLE
-from estimator.ramp_sweep import ramp_sweep_rows, write_ramp_csv
-from estimator.fit_curve import exact_median, voltage_spread_at_equal_command
-from estimator.fit_sweep import fit_bench
+from estimator.bench.reader import _row_checks, read_bench
+from estimator.demo.bench_sim import SUPPLY_VOLTAGES_V
+from estimator.demo.scenario import DEMO_VEHICLE
+from estimator.demo.ramp_sweep import ramp_sweep_rows, write_ramp_csv
+from estimator.bench.curve_fit import exact_median, voltage_spread_at_equal_command
+from estimator.bench.sweep import fit_bench
 from estimator.vehicle import check_vehicle
 
 FAST_WORK_ROWS = 5000      # 20,000 rows // 5000: the working set is every 4th row
@@ -141,7 +141,7 @@ def test_voltage_spread_equals_bin_by_bin_selection():
 
 
 def test_static_factor_bins_equal_a_full_sort(tmp_path):
-    from estimator.fit_power import K_MIN_THRUST_SHARE, check_static_factor, static_factors
+    from estimator.bench.power_fit import K_MIN_THRUST_SHARE, check_static_factor, static_factors
 
     rng = np.random.default_rng(6)
     t = rng.uniform(0.0, 20.0, 3000)
@@ -164,7 +164,7 @@ def test_static_factor_bins_equal_a_full_sort(tmp_path):
 
 @pytest.mark.parametrize("share", [0.0, 0.001, 0.05, 0.5])
 def test_working_rows_are_every_kth_kept_row(share):
-    from estimator.robust import working_rows
+    from estimator.bench.robust import working_rows
 
     rng = np.random.default_rng(7)
     exclude = rng.uniform(size=123457) < share

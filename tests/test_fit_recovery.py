@@ -12,15 +12,15 @@ import numpy as np
 import pytest
 from scipy.optimize import brentq, least_squares
 
-from estimator.bench import read_bench_text
-from estimator.benchsim import (SUPPLY_VOLTAGES_V, bench_density_kg_m3, demo_rotor,
+from estimator.bench.reader import read_bench_text
+from estimator.demo.bench_sim import (SUPPLY_VOLTAGES_V, bench_density_kg_m3, demo_rotor,
                                 simulate_sweep, true_point)
 from estimator.core.motor import rotor_operating_point
 from estimator.core.thrust_curve import hover_command
-from estimator.fit_curve import fit_thrust_curve
-from estimator.fit_power import fit_power_model
-from estimator.fit_sweep import fit_bench
-from estimator.robust import HUBER_C, huber_lstsq
+from estimator.bench.curve_fit import fit_thrust_curve
+from estimator.bench.power_fit import fit_power_model
+from estimator.bench.sweep import fit_bench
+from estimator.bench.robust import HUBER_C, huber_lstsq
 
 
 @pytest.fixture(scope="module")
@@ -211,7 +211,7 @@ def test_power_fit_equals_scipy_huber_least_squares():
 
 def test_static_factor_matches_momentum_theory_row_by_row(demo_fit):
     from estimator.core.momentum import disk_area_m2, static_factor
-    from estimator.fit_power import static_factors
+    from estimator.bench.power_fit import static_factors
 
     data, params = demo_fit
     rho, area = data["bench_air"]["density_kg_m3"], disk_area_m2(data["diameter_m"])
@@ -269,8 +269,8 @@ def test_one_step_finish_of_a_large_fit_matches_the_fully_iterated_fit():
     # Bickel (1975): one full-data Newton step from a consistent start is asymptotically the
     # fully iterated M-estimate. 100,000 rows: the working set (20,000 rows) plus one step
     # must land within 0.1 standard error of iterating on every row.
-    from estimator.fit_curve import _model_factory, command_groups
-    from estimator.robust import huber_fit
+    from estimator.bench.curve_fit import _model_factory, command_groups
+    from estimator.bench.robust import huber_fit
 
     rng = np.random.default_rng(9)
     n = 100000

@@ -1,4 +1,4 @@
-"""Hover of a whole vehicle (estimator.core.hover) and the pre-flight report (estimator.preflight)."""
+"""Hover of a whole vehicle (estimator.core.hover) and the pre-flight report (estimator.preflight.report)."""
 
 import copy
 import json
@@ -10,8 +10,8 @@ from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.hover import hover_estimate
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
 from estimator.core.propulsion import shared_operating_point
-from estimator.demo_data import DEMO_VEHICLE
-from estimator.preflight import CAUTIONS, format_sheet, hover_report
+from estimator.demo.scenario import DEMO_VEHICLE
+from estimator.preflight.report import CAUTIONS, format_sheet, hover_report
 from estimator.vehicle import check_vehicle
 
 REQUIRED_KEYS = ("hover_command", "hover_command_full", "hover_command_empty", "hover_thrust_fraction",
@@ -112,7 +112,7 @@ def test_coaxial_layout_costs_power_on_a_power_basis():
 
 
 def test_warnings_for_margin_current_and_thin_air():
-    # Thresholds are common practice (estimator.preflight): hover above 0.6, T/W below 2,
+    # Thresholds are common practice (estimator.preflight.report): hover above 0.6, T/W below 2,
     # motor current above its limit, pack current above C-rating x capacity, thin air.
     r = hover_report(vehicle(mass_kg=3.0, motor__max_current_A=15, battery__max_discharge_C=10))
     text = " | ".join(r["warnings"])
@@ -149,9 +149,9 @@ def test_params_are_delegated_to_the_fitted_flow(monkeypatch):
     import sys
     import types
     calls = []
-    fake = types.ModuleType("estimator.fitted_hover")
+    fake = types.ModuleType("estimator.preflight.measured_rotor")
     fake.hover_from_params = lambda v, p: calls.append((v, p)) or {"hover_command": 0.5, "warnings": []}
-    monkeypatch.setitem(sys.modules, "estimator.fitted_hover", fake)
+    monkeypatch.setitem(sys.modules, "estimator.preflight.measured_rotor", fake)
     r = hover_report(vehicle(), {"model": "liftcal.rotor/1"})
     assert calls and calls[0][1] == {"model": "liftcal.rotor/1"}
     assert r["hover_command"] == 0.5 and r["cautions"] == CAUTIONS

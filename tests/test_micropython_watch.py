@@ -10,7 +10,7 @@ Without Node.js these tests fail with a clear message; they are never skipped.
 
 import pytest
 
-from estimator.firmware import write_bundle
+from estimator.watch.bundle import write_bundle
 from mpy_harness import run_micropython
 from watch_helpers import demo_fit_params
 
@@ -99,7 +99,7 @@ def bundle(tmp_path_factory):
 
 def _cpython_stream(n, seed):
     from estimator.core.watch import Watch
-    from estimator.watch_config import as_tuple, make_config
+    from estimator.watch.config import as_tuple, make_config
 
     ns = {}
     exec(STREAM, ns)

@@ -30,7 +30,7 @@ def test_mypy_against_micropython_stubs(tmp_path):
     # the stub files themselves are not ours to fix: their own errors are silenced
     ini.write_text("[mypy]\n[mypy-%s,_mpy_shed,_mpy_shed.*]\nignore_errors = True\n" % ",".join(sorted(names)))
     # board_loop imports liftwatch / liftwatch_config: check it against a generated bundle
-    from estimator.firmware import write_bundle
+    from estimator.watch.bundle import write_bundle
     from watch_helpers import demo_fit_params
     write_bundle(demo_fit_params(), str(tmp_path / "bundle"))
     bundle_mods = tmp_path / "bundle_mods"

@@ -13,7 +13,7 @@ import pytest
 
 from estimator.cli import main
 from estimator.errors import InputError
-from estimator.export import load_map
+from estimator.bench.export import load_map
 from estimator.params import load_params, write_params
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))

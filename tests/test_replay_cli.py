@@ -5,8 +5,8 @@ import json
 import pytest
 
 from estimator.cli import main
-from estimator.flightsim import simulate_flight
-from estimator.replay import replay_file
+from estimator.demo.flight_sim import simulate_flight
+from estimator.watch.replay import replay_file
 from watch_helpers import demo_fit_params
 
 
@@ -96,7 +96,7 @@ def test_progress_bar_on_request(tmp_path, capsys):
 def test_a_bench_sweep_given_as_a_flight_log_is_refused(tmp_path, capsys):
     # a bench CSV carries thrust (design notes sec. 4) and no flight log does: replaying one
     # would give meaningless alarms, so it is one error line naming the likely mix-up
-    from estimator.benchsim import simulate_sweep
+    from estimator.demo.bench_sim import simulate_sweep
     from estimator.cli import main
     bench = tmp_path / "bench.csv"
     bench.write_text(simulate_sweep(seed=2))

@@ -6,7 +6,7 @@ import os
 
 import pytest
 
-from estimator.demo_data import DEMO_VEHICLE
+from estimator.demo.scenario import DEMO_VEHICLE
 from estimator.errors import InputError
 from estimator.vehicle import check_vehicle, load_vehicle
 

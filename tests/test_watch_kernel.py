@@ -10,7 +10,7 @@ from hypothesis import given, settings, strategies as st
 from estimator.core import momentum, thrust_curve
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.watch import Watch
-from estimator.watch_config import CONFIG_LENGTH, SCALAR_AT, as_tuple, make_config
+from estimator.watch.config import CONFIG_LENGTH, SCALAR_AT, as_tuple, make_config
 from watch_helpers import demo_fit_params, motor_model_params, state_names
 
 LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports (design notes sec. 3)

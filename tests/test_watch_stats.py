@@ -15,8 +15,8 @@ import numpy as np
 from scipy.stats import norm
 
 from estimator.core.watch import Watch
-from estimator.flightsim import flight_arrays
-from estimator.watch_config import as_tuple, make_config, siegmund_arl, siegmund_arl_two_sided, threshold_for_arl
+from estimator.demo.flight_sim import flight_arrays
+from estimator.watch.config import as_tuple, make_config, siegmund_arl, siegmund_arl_two_sided, threshold_for_arl
 from watch_helpers import demo_fit_params, run_flight, set_state
 
 

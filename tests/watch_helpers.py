@@ -11,7 +11,7 @@ import numpy as np
 
 from estimator.core import momentum
 from estimator.core.motor import rotor_operating_point
-from estimator.demo_data import DEMO_VEHICLE
+from estimator.demo.scenario import DEMO_VEHICLE
 from estimator.params import vehicle_block
 from estimator.vehicle import check_vehicle
 
@@ -76,8 +76,8 @@ def demo_fit_params():
         import os
         import tempfile
 
-        from estimator.benchsim import simulate_sweep
-        from estimator.fit_sweep import fit_bench_file
+        from estimator.demo.bench_sim import simulate_sweep
+        from estimator.bench.sweep import fit_bench_file
         folder = tempfile.mkdtemp(prefix="liftwatch-fit-")
         path = os.path.join(folder, "bench.csv")
         with open(path, "w", encoding="utf-8") as fh:
@@ -122,7 +122,7 @@ def flight_ints(flight):
 
 def run_flight(config, flight, dt_ms=100):
     """Run the kernel over a simulated flight; returns (watch, list of (t_s, new_bits), mass samples)."""
-    from estimator.watch_config import new_watch
+    from estimator.watch.config import new_watch
 
     w = new_watch(config)
     learning = state_names().index("learning")

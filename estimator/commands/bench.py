@@ -5,7 +5,7 @@ numpy, jsonschema and matplotlib are imported inside the commands, never at modu
 
 import click
 
-from estimator.clitypes import Quantity
+from estimator.commands.options import Quantity
 from estimator.jsonio import dumps
 
 BENCH_CAUTIONS = [
@@ -93,7 +93,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     thrust[N|g|gf|kgf|lbf]; '# altitude:', '# temperature:' or '# density:' comments give
     the bench air and '# diameter:' the propeller.
     """
-    from estimator.fit_sweep import fit_bench_file, summary
+    from estimator.bench.sweep import fit_bench_file, summary
     from estimator.params import check_params, write_params
 
     vehicle = None
@@ -109,7 +109,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     arrays = params.pop("_arrays", None)
     check_params(params, out_file)
     if plot_file is not None:
-        from estimator.bench_plots import plot_fit
+        from estimator.bench.plots import plot_fit
         plot_fit(plot_file, params, arrays)
     write_params(out_file, params)
     if as_json:
@@ -155,7 +155,7 @@ def export(params_file, map_file, out_file, as_json):
     Each setting is round(value * scale + offset, decimals); a value outside the map's
     bounds is refused, never clipped. Props off while you load settings into a controller.
     """
-    from estimator.export import EXAMPLE_MAP, export_settings, format_lines, load_map
+    from estimator.bench.export import EXAMPLE_MAP, export_settings, format_lines, load_map
     from estimator.jsonio import write_atomic
     from estimator.params import load_params
 

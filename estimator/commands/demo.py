@@ -48,15 +48,15 @@ def run_demo(out_dir, seed=1, emit=None):
     ``emit``, when given, is called with each piece of text as soon as its step is done.
     """
     from estimator.errors import InputError
-    from estimator.benchsim import simulate_sweep
-    from estimator.demo_data import DEMO_VEHICLE
-    from estimator.export import EXAMPLE_MAP, export_settings, format_lines, load_map
-    from estimator.firmware import write_bundle
-    from estimator.fit_sweep import fit_bench_file
-    from estimator.flightsim import simulate_flight
+    from estimator.demo.bench_sim import simulate_sweep
+    from estimator.demo.scenario import DEMO_VEHICLE
+    from estimator.bench.export import EXAMPLE_MAP, export_settings, format_lines, load_map
+    from estimator.watch.bundle import write_bundle
+    from estimator.bench.sweep import fit_bench_file
+    from estimator.demo.flight_sim import simulate_flight
     from estimator.params import write_params
-    from estimator.preflight import format_sheet, hover_report
-    from estimator.replay import replay_file
+    from estimator.preflight.report import format_sheet, hover_report
+    from estimator.watch.replay import replay_file
 
     if os.path.exists(out_dir) and not os.path.isdir(out_dir):
         raise InputError("--out %s: is a file; give a folder for the demo's files" % out_dir)

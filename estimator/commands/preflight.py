@@ -1,12 +1,12 @@
 """Pre-flight commands: ``liftcal air``, ``liftcal static`` and ``liftcal hover``.
 
-Thin click layers over estimator.core (air, momentum theory) and estimator.preflight (the
+Thin click layers over estimator.core (air, momentum theory) and estimator.preflight.report (the
 hover sheet). Imports stay light: no numpy, no matplotlib.
 """
 
 import click
 
-from estimator.clitypes import Quantity
+from estimator.commands.options import Quantity
 from estimator.errors import InputError
 from estimator.jsonio import dumps
 
@@ -216,7 +216,7 @@ def hover(vehicle_file, params_file, as_json):
     Hover command at full / nominal / empty pack, thrust-to-weight, hover current
     and power, endurance from the usable capacity, and warnings.
     """
-    from estimator.preflight import format_sheet, hover_report
+    from estimator.preflight.report import format_sheet, hover_report
     from estimator.vehicle import load_vehicle
 
     vehicle = load_vehicle(vehicle_file)

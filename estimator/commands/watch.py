@@ -53,7 +53,7 @@ def firmware(params_file, out_dir, vehicle_file, as_json):
     DIR gets liftwatch.py (the kernel), liftwatch_config.py (CONFIG, integers only),
     board_loop.py (example loop), README.md, package.json for mip and mpy/*.mpy.
     """
-    from estimator.firmware import write_bundle
+    from estimator.watch.bundle import write_bundle
 
     params, vehicle = _load(params_file, vehicle_file)
     out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file)
@@ -86,13 +86,13 @@ def replay(flight_file, params_file, vehicle_file, plot_file, as_json):
     FLIGHT.csv has time[s], command[-] (or [%], [us]), voltage[V] and current[A] columns
     (bus totals). The same integer kernel as on the board runs on every row.
     """
-    from estimator.replay import replay_file
+    from estimator.watch.replay import replay_file
 
     params, vehicle = _load(params_file, vehicle_file)
     out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None)
     arrays = out.pop("_arrays", None)
     if plot_file is not None:
-        from estimator.replay_plots import plot_replay
+        from estimator.watch.plots import plot_replay
         plot_replay(plot_file, arrays, out["events"], title=flight_file)
         out["plot"] = plot_file
     if as_json:

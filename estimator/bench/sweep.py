@@ -1,8 +1,8 @@
 """From a bench CSV to a parameter set (model ``liftcal.rotor/1``): the whole fit pipeline.
 
-read (estimator.bench) -> static-factor plausibility (k <= 1) -> thrust curve
-(estimator.fit_curve) -> power model and k(T) (estimator.fit_power) -> optional hover
-values for a vehicle (estimator.fitted_hover) -> parameter set (estimator.params.build).
+read (estimator.bench.reader) -> static-factor plausibility (k <= 1) -> thrust curve
+(estimator.bench.curve_fit) -> power model and k(T) (estimator.bench.power_fit) -> optional hover
+values for a vehicle (estimator.preflight.measured_rotor) -> parameter set (estimator.params.build).
 """
 
 import os
@@ -11,10 +11,10 @@ import numpy as np
 
 from estimator.errors import InputError
 from estimator.core.momentum import disk_area_m2
-from estimator.fit_curve import command_groups, fit_thrust_curve, thrust_model_N
-from estimator.fit_power import (MAD_ROWS, check_static_factor, fit_power_model, fit_static_factor,
+from estimator.bench.curve_fit import command_groups, fit_thrust_curve, thrust_model_N
+from estimator.bench.power_fit import (MAD_ROWS, check_static_factor, fit_power_model, fit_static_factor,
                                  power_model_W, static_factor_at, watch_residual_rel_std)
-from estimator.robust import WORK_ROWS
+from estimator.bench.robust import WORK_ROWS
 
 
 def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, altitude_m=None,
@@ -33,7 +33,7 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
     once while the file is parsed (estimator.bench.read_bench). Raises InputError on bad or
     impossible data.
     """
-    from estimator.bench import read_bench
+    from estimator.bench.reader import read_bench
 
     data = read_bench(path, diameter_m=diameter_m, density_kg_m3=density_kg_m3,
                       altitude_m=altitude_m, temperature_C=temperature_C,
@@ -87,7 +87,7 @@ def _check_finite(node, source, path="$"):
 
 
 def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, work_rows=WORK_ROWS):
-    from estimator.bench import bench_digest
+    from estimator.bench.reader import bench_digest
     from estimator.params import build_params
 
     rho = data["bench_air"]["density_kg_m3"]
@@ -132,7 +132,7 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, work_rows=W
     bench_digest(data)  # the file's SHA-256 (provenance), hashed while the fits ran
     hover = None
     if vehicle is not None:
-        from estimator.fitted_hover import hover_block
+        from estimator.preflight.measured_rotor import hover_block
         params_draft = build_params(data, fit, source, None, None)
         hover = hover_block(vehicle, params_draft)
         value, value_se = static_factor_at(sf, hover["thrust_per_rotor_N"])

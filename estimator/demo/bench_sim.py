@@ -38,7 +38,7 @@ THRUST_SCALE = {"N": 1.0, "g": 1000.0 / STANDARD_GRAVITY_M_S2, "gf": 1000.0 / ST
 
 def demo_rotor():
     """Motor and propeller dicts of the demo vehicle."""
-    from estimator.demo_data import DEMO_VEHICLE
+    from estimator.demo.scenario import DEMO_VEHICLE
 
     return DEMO_VEHICLE["motor"], DEMO_VEHICLE["propeller"]
 

@@ -12,7 +12,7 @@ import sys
 
 from estimator.errors import InputError
 from estimator.jsonio import open_input
-from estimator.watch_config import make_config, new_watch
+from estimator.watch.config import make_config, new_watch
 
 KINDS = ((1, "power_high"), (2, "power_low"), (4, "sensor_fault"), (8, "baseline_off"), (16, "mass_high"))
 ALARM_BITS = 1 | 2 | 8 | 16

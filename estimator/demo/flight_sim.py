@@ -21,7 +21,7 @@ import math
 
 import numpy as np
 
-from estimator.benchsim import DEAD_BAND, duty_from_command
+from estimator.demo.bench_sim import DEAD_BAND, duty_from_command
 from estimator.core.atmosphere import site_air
 from estimator.core.battery import cell_open_circuit_V
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
@@ -43,7 +43,7 @@ _cache = {}
 
 def _vehicle(vehicle):
     if vehicle is None:
-        from estimator.demo_data import DEMO_VEHICLE
+        from estimator.demo.scenario import DEMO_VEHICLE
         from estimator.vehicle import check_vehicle
         return check_vehicle(DEMO_VEHICLE, "demo")
     return vehicle

@@ -42,7 +42,7 @@ def hover_report(vehicle, params=None):
     delegated to estimator.fitted_hover.hover_from_params, which returns the same keys.
     """
     if params is not None:
-        from estimator.fitted_hover import hover_from_params  # written by the bench flow
+        from estimator.preflight.measured_rotor import hover_from_params  # written by the bench flow
         report = hover_from_params(vehicle, params)
         report.setdefault("cautions", list(CAUTIONS))
         return report

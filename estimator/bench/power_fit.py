@@ -5,7 +5,7 @@ T in N. The T^1.5 term has the shape of momentum-theory induced power
 P_ideal = T^1.5 / sqrt(2 rho A) (Leishman 2006, eq. 2.14, from memory), the T^2 term the
 shape of copper loss (I^2 R with I roughly proportional to torque, i.e. to T), P_idle the
 no-load draw. At the bench rho = rho_ref, so the fit is linear in the three coefficients
-and done by Huber IRLS (estimator.robust).
+and done by Huber IRLS (estimator.bench.robust).
 
 Static factor (design notes sec. 3): k = T / (2 rho A P^2)^(1/3) per row; k <= 1 always.
 k(T) = k0 + slope T is a Huber line through the rows above 10 % of T_max.
@@ -16,7 +16,7 @@ import math
 import numpy as np
 
 from estimator.errors import InputError
-from estimator.robust import WORK_ROWS, _cross, fast_median, huber_fit, huber_lstsq, mad_scale, working_rows
+from estimator.bench.robust import WORK_ROWS, _cross, fast_median, huber_fit, huber_lstsq, mad_scale, working_rows
 
 # rows below this share of T_max are left out of k and of the watch residual: there the
 # power is mostly idle draw and k means little [-]
@@ -44,7 +44,7 @@ def static_factors(thrust_N, power_W, density_kg_m3, area_m2):
 
 def _unit_slips(k_value, thrust_unit, current_unit):
     """Unit slips that would bring a too-high k back into 0.1..1, as readable phrases."""
-    from estimator.bench import UNITS
+    from estimator.bench.reader import UNITS
 
     out = []
     scales = UNITS["thrust"]

@@ -7,7 +7,7 @@ gross spikes. numpy, so a million rows take well under a second to make.
 
 import numpy as np
 
-from estimator.benchsim import SUPPLY_VOLTAGES_V, bench_density_kg_m3, true_point
+from estimator.demo.bench_sim import SUPPLY_VOLTAGES_V, bench_density_kg_m3, true_point
 
 HEADER = "time[s],command[-],voltage[V],current[A],thrust[N]\n"
 

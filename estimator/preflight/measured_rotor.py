@@ -160,7 +160,7 @@ def hover_interval(params, thrust_N, voltage_V, density_kg_m3):
 
 
 def _site(vehicle):
-    from estimator.preflight import vehicle_site_air
+    from estimator.preflight.report import vehicle_site_air
     return vehicle_site_air(vehicle)
 
 
@@ -204,7 +204,7 @@ def hover_from_params(vehicle, params):
     thrust_to_weight [-], hover_current_A [A], hover_power_W [W], flight_time_min [min],
     warnings, and the keys the pre-flight sheet shows.
     """
-    from estimator.preflight import CAUTIONS, margin_warnings
+    from estimator.preflight.report import CAUTIONS, margin_warnings
     from estimator.vehicle import assumed_warnings
 
     air = _site(vehicle)

@@ -19,11 +19,11 @@ import tempfile
 
 from estimator import __version__
 from estimator.errors import InputError
-from estimator.watch_config import CONFIG_KEYS, SCALAR_AT, TABLE_AT, TABLES, make_config
+from estimator.watch.config import CONFIG_KEYS, SCALAR_AT, TABLE_AT, TABLES, make_config
 
-HERE = os.path.dirname(os.path.abspath(__file__))
-KERNEL_SOURCE = os.path.join(HERE, "core", "watch.py")
-PORT_DIR = os.path.join(os.path.dirname(HERE), "firmware_port")
+PACKAGE_DIR = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))  # estimator/
+KERNEL_SOURCE = os.path.join(PACKAGE_DIR, "core", "watch.py")
+PORT_DIR = os.path.join(os.path.dirname(PACKAGE_DIR), "firmware_port")
 MODULES = ("liftwatch", "liftwatch_config", "board_loop")
 
 CAUTION = ("Props off while configuring; a clamped stand and a guard for bench runs, nobody in "

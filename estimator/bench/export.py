@@ -12,7 +12,7 @@ from estimator.errors import InputError
 from estimator.jsonio import load_json, validate
 
 MAP_SCHEMA = "map.schema.json"
-EXAMPLE_MAP = os.path.join(os.path.dirname(os.path.abspath(__file__)), "data", "example-map.json")
+EXAMPLE_MAP = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "data", "example-map.json")
 
 
 def load_map(path):

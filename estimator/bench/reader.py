@@ -447,7 +447,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     clean = all(math.isfinite(x) for x in extremes)
     v_med = None
     if clean:
-        from estimator.robust import fast_median  # one selection; the same value as np.median
+        from estimator.bench.robust import fast_median  # one selection; the same value as np.median
 
         v_med = fast_median(v[:: max(1, v.size // 200000)])
     _check_units(path, data, v_med, extremes if clean else None)

@@ -2,7 +2,7 @@
 
 x = (u - u_min) / (1 - u_min) clipped at 0, t(x) = (1 - a) x + a x^2 (design notes sec. 3,
 the form of estimator.core.thrust_curve). The four parameters theta = (T_max [N], a [-],
-u_min [-], n [-]) are fitted together by Huber Gauss-Newton IRLS (estimator.robust): rows
+u_min [-], n [-]) are fitted together by Huber Gauss-Newton IRLS (estimator.bench.robust): rows
 below u_min stay in the fit with model thrust 0, so the spin-up command is located by the
 data on both sides. An up/down sweep with hysteresis is fitted through its middle, since
 the lag has opposite signs on the two legs. The start comes from a coarse profile over
@@ -14,8 +14,8 @@ one bench sweep holds one air density, so the data cannot say otherwise.
 import numpy as np
 
 from estimator.errors import InputError
-from estimator.robust import HUBER_C, WORK_ROWS, huber_fit, working_rows
-from estimator.robust import fast_median as exact_median  # O(n), equal to np.median
+from estimator.bench.robust import HUBER_C, WORK_ROWS, huber_fit, working_rows
+from estimator.bench.robust import fast_median as exact_median  # O(n), equal to np.median
 
 # Voltage exponent used when the sweep holds no voltage spread: the DC motor model with a
 # resistive drop of 1/8 of the back-EMF, n = 2 (1 + r) / (1 + 2 r) = 1.8 at r = 0.125
@@ -247,5 +247,5 @@ def thrust_model_N(curve, command, voltage_V):
 
 def fit_bench_file(path, **options):
     """Alias of estimator.fit_sweep.fit_bench_file (kept here for callers that expect it)."""
-    from estimator.fit_sweep import fit_bench_file as run
+    from estimator.bench.sweep import fit_bench_file as run
     return run(path, **options)

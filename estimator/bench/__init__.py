@@ -1,0 +1,1 @@
+"""FLOW 2: bench CSV -> fits -> parameter set -> export | plots."""

@@ -1,0 +1,1 @@
+"""FLOW 1: vehicle file (+ parameter set) -> hover report -> sheet."""
