@@ -244,8 +244,3 @@ def thrust_model_N(curve, command, voltage_V):
     np.exp(s, out=s)  # (V / V_ref)^n
     return curve["thrust_max_N"] * ((1.0 - a) * x + a * x * x) * s
 
-
-def fit_bench_file(path, **options):
-    """Alias of estimator.fit_sweep.fit_bench_file (kept here for callers that expect it)."""
-    from estimator.bench.sweep import fit_bench_file as run
-    return run(path, **options)

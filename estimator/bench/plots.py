@@ -13,6 +13,7 @@ import os
 
 import numpy as np
 
+from estimator.cautions import SHORT
 from estimator.core.momentum import disk_area_m2
 from estimator.errors import InputError
 from estimator.jsonio import save_figure_atomic
@@ -106,8 +107,7 @@ def plot_fit(path, params, arrays):
         params["static_factor"]["value"], params["static_factor"].get("value_at", "median thrust")))
     axp.legend(loc="upper left", fontsize=8)
     axp.grid(alpha=0.3)
-    fig.suptitle("liftcal bench fit: %s (estimates; confirm with a tethered hover test)"
-                 % params["provenance"]["input_file"], fontsize=10)
+    fig.suptitle("liftcal bench fit: %s (%s)" % (params["provenance"]["input_file"], SHORT), fontsize=9)
 
     try:
         save_figure_atomic(fig, path)

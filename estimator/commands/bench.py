@@ -5,16 +5,11 @@ numpy, jsonschema and matplotlib are imported inside the commands, never at modu
 
 import click
 
+from estimator.cautions import SHORT, cautions
 from estimator.commands.options import Quantity
 from estimator.jsonio import dumps
 
-BENCH_CAUTIONS = [
-    "Props off while configuring the flight controller; on the bench a clamped stand and a guard, "
-    "nobody in the plane of the rotor.",
-    "Charge and store lithium packs by the maker's rules; local aviation rules and the makers' "
-    "limits come first.",
-    "These settings are estimates from one bench sweep: confirm them with a tethered or low hover test.",
-]
+BENCH_CAUTIONS = cautions("settings")
 
 
 def _pm(value, se, fmt):
@@ -167,4 +162,4 @@ def export(params_file, map_file, out_file, as_json):
         write_atomic(out_file, text)
     click.echo(text, nl=False)
     if not as_json:
-        click.echo("# props off while loading these; confirm with a tethered or low hover test", err=True)
+        click.echo("# " + SHORT, err=True)

@@ -115,10 +115,9 @@ def run_demo(out_dir, seed=1, emit=None):
         text.append("  -> %s: %s (%d samples)" % (
             meaning, "no alarm" if not result["events"] else
             "%s first at %.1f s" % (", ".join(kinds), first), result["samples"]))
-    text += ["",
-             "Props off while configuring; bench runs on a clamped stand behind a guard, nobody in",
-             "the plane of the rotors. Packs charged and stored by the maker's rules. Local aviation",
-             "rules and the makers' limits come first; confirm with a tethered or low hover test."]
+    from estimator.cautions import cautions
+
+    text += [""] + ["- " + c for c in cautions("demo")]
     report = {
         "out_dir": out_dir,
         "preflight": datasheet,

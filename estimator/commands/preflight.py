@@ -175,7 +175,10 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
                                                            out["power_W_at_k_" + _tag(hi)]))
     click.echo("  induced velocity %.1f m/s, slipstream %.1f m/s, disk loading %.0f N/m^2"
                % (out["induced_velocity_m_s"], out["slipstream_velocity_m_s"], out["disk_loading_N_m2"]))
-    click.echo("  estimate only: confirm on a clamped, guarded stand, nobody in the plane of the rotor")
+    from estimator.cautions import cautions
+
+    for line in cautions("rotor"):
+        click.echo("  " + line)
 
 
 def _tag(k):

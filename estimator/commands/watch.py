@@ -5,15 +5,10 @@ numpy and matplotlib are imported inside the commands (replay --plot only), neve
 
 import click
 
+from estimator.cautions import cautions
 from estimator.jsonio import dumps
 
-WATCH_CAUTIONS = [
-    "Props off while flashing and configuring the board; bench runs on a clamped stand behind a guard, "
-    "nobody in the plane of the rotors.",
-    "Charge and store lithium packs by the maker's rules; local aviation rules and the makers' limits come first.",
-    "The watch's alarms are estimates from a bench fit: confirm its behaviour with a tethered or low "
-    "hover test, and do not read silence as proof that the propulsion is healthy.",
-]
+WATCH_CAUTIONS = cautions("board")
 
 
 def _load(params_file, vehicle_file):
@@ -109,5 +104,5 @@ def replay(flight_file, params_file, vehicle_file, plot_file, as_json):
                                                                          EVENT_MEANING.get(e["kind"], ""))))
     if plot_file:
         lines.append("plot: %s" % plot_file)
-    lines.append("- " + WATCH_CAUTIONS[2])
+    lines.append("- " + WATCH_CAUTIONS[0])
     click.echo("\n".join(lines))

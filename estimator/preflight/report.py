@@ -13,6 +13,7 @@ from estimator.core.battery import max_pack_current_A
 from estimator.core.hover import hover_estimate, rotor_propeller
 from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_merit,
                                      induced_velocity_m_s, static_factor)
+from estimator.cautions import cautions
 from estimator.errors import InputError
 from estimator.vehicle import assumed_warnings, vehicle_source
 
@@ -26,13 +27,7 @@ MODEL = "liftcal.dc-motor-momentum/1"
 # dead band, so a bench fit reports a higher hover command for the same set
 DUTY_NOTE = "command = ESC duty; a real ESC's start-up dead band adds to it: fit a bench sweep"
 
-CAUTIONS = [
-    "These numbers are estimates: confirm them with a tethered or low hover test before the real flight.",
-    "Props off while configuring or flashing; on the bench use a clamped stand and a guard, and keep "
-    "everyone out of the plane of the rotors.",
-    "Charge, carry and store lithium packs by the maker's rules; never leave them charging unattended.",
-    "Local aviation rules and the makers' limits for the airframe, motors, ESCs and pack come first.",
-]
+CAUTIONS = cautions("sheet")
 
 
 def hover_report(vehicle, params=None):

@@ -18,6 +18,7 @@ import subprocess
 import tempfile
 
 from estimator import __version__
+from estimator.cautions import cautions
 from estimator.errors import InputError
 from estimator.watch.config import CONFIG_KEYS, SCALAR_AT, TABLE_AT, TABLES, make_config
 
@@ -26,10 +27,7 @@ KERNEL_SOURCE = os.path.join(PACKAGE_DIR, "core", "watch.py")
 PORT_DIR = os.path.join(os.path.dirname(PACKAGE_DIR), "firmware_port")
 MODULES = ("liftwatch", "liftwatch_config", "board_loop")
 
-CAUTION = ("Props off while configuring; a clamped stand and a guard for bench runs, nobody in "
-           "the plane of the rotors; charge and store packs by the maker's rules; local aviation "
-           "rules and the aircraft maker's limits first. The watch's numbers are estimates: "
-           "confirm them with a tethered or low hover test.")
+CAUTION = " ".join(cautions("board"))
 
 
 def kernel_text():

@@ -1,5 +1,6 @@
 """Replay plot: measured against expected bus power, alarms shaded (matplotlib imported inside)."""
 
+from estimator.cautions import SHORT
 from estimator.jsonio import save_figure_atomic
 
 
@@ -28,7 +29,7 @@ def plot_replay(path, arrays, events, title="flight"):
                             step="post", label=name)
     ax.set_xlabel("time [s]")
     ax.set_ylabel("bus power [W]")
-    ax.set_title("%s: %d events (estimates; confirm with a tethered or low hover test)" % (os.path.basename(str(title)), len(events)))
+    ax.set_title("%s: %d events (%s)" % (os.path.basename(str(title)), len(events), SHORT))
     ax.legend(loc="upper right", fontsize=8)
     fig.tight_layout()
     try:

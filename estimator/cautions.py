@@ -1,0 +1,40 @@
+"""Every safety sentence liftcal prints, written once.
+
+Spinning propellers cut and lithium packs burn (design notes sec. 6). Each output that leads
+a person to the bench or the field carries the sentences of its context, in this order:
+what the numbers are, how to handle the hardware, the packs, and whose rules come first.
+Nothing here computes anything; the modules that print call :func:`cautions`.
+"""
+
+ESTIMATE = ("These numbers are estimates: confirm them with a tethered or low hover test "
+            "before the real flight.")
+SETTINGS = ("These settings are estimates from one bench sweep: confirm them with a tethered or "
+            "low hover test.")
+WATCH = ("The watch's alarms are estimates from a bench fit: confirm its behaviour with a tethered "
+         "or low hover test, and never read its silence as proof that the propulsion is healthy.")
+PROPS_OFF = ("Props off while wiring, flashing or configuring; bench runs on a clamped stand "
+             "behind a guard, with nobody in the plane of the rotors.")
+PACKS = ("Charge, carry and store lithium packs by the maker's rules; never leave them charging "
+         "unattended.")
+RULES = ("Local aviation rules and the makers' limits for the airframe, motors, ESCs and pack "
+         "come first.")
+
+# one short line for plot titles and one-line outputs
+SHORT = "estimates: confirm with a tethered or low hover test; props off while configuring"
+
+_BY_CONTEXT = {
+    "sheet": (ESTIMATE, PROPS_OFF, PACKS, RULES),      # pre-flight sheet, compare, payload
+    "rotor": (ESTIMATE, PROPS_OFF),                     # one rotor: static, air on the bench
+    "settings": (SETTINGS, PROPS_OFF, PACKS, RULES),   # fit, export
+    "board": (WATCH, PROPS_OFF, PACKS, RULES),         # firmware, replay, board README
+    "demo": (ESTIMATE, PROPS_OFF, PACKS, RULES),
+}
+
+
+def cautions(context):
+    """The list of caution sentences for one kind of output.
+
+    context : one of "sheet", "rotor", "settings", "board", "demo".
+    Raises KeyError for any other name (a programming error, not a user error).
+    """
+    return list(_BY_CONTEXT[context])
