@@ -70,8 +70,8 @@ AWKWARD = [
     # at \n and \r, on both sides
     HEAD + "\n".join(_sweep_rows(12)[:5] + ["# vt\x0bff\x0cfs\x1cnel\x85ls\u2028ps\u2029"] * 3
                       + _sweep_rows(12)[5:]) + "\n",
-    # NaN, infinities, signs, exponents, spaces around cells
-    HEAD + "\n".join(["nan,15,1,2", "-0.0,15,inf,-inf", " 0.5 , 1.5e1 ,2E0,+3"] + _sweep_rows(9)) + "\n",
+    # signs, exponents, spaces around cells (NaN and infinity are refused: test_bench_reader)
+    HEAD + "\n".join(["-0.0,15,1,2", "-0.0,15,+1e0,-2", " 0.5 , 1.5e1 ,2E0,+3"] + _sweep_rows(9)) + "\n",
 ]
 
 

@@ -54,11 +54,11 @@ def test_cli_replay_json_and_plot(tmp_path, params_file, capsys):
 
 
 @pytest.mark.parametrize("text,needle", [
-    ("time[s],command[-],voltage[V]\n0,0.5,15\n", "missing column current"),
-    ("time[s],command[-],voltage[V],current[kA]\n0,0.5,15,1\n", "current has unit [kA]"),
-    ("time[s],command[-],voltage[V],current[A]\n0,0.5,15,abc\n", "row 2"),
-    ("time[s],command[-],voltage[V],current[A]\nnan,0.5,15,1\n", "row 2"),
-    ("time[s],command[-],voltage[V],current[A]\n0,0.5,15\n", "row 2: 3 cells"),
+    ("time[s],command[-],voltage[V]\n0,0.5,15\n", "header lacks current"),
+    ("time[s],command[-],voltage[V],current[kA]\n0,0.5,15,1\n", "unit 'kA' of column 'current'"),
+    ("time[s],command[-],voltage[V],current[A]\n0,0.5,15,abc\n", "line 2 column 4: cannot read 'abc'"),
+    ("time[s],command[-],voltage[V],current[A]\nnan,0.5,15,1\n", "line 2 column 1: 'nan' is not a finite"),
+    ("time[s],command[-],voltage[V],current[A]\n0,0.5,15\n", "line 2: 3 cells"),
     ("# only a comment\n", "no header row"),
     ("time[s],command[-],voltage[V],current[A]\n", "no data rows"),
 ])

@@ -16,10 +16,9 @@ likely mislabelled (voltage in mV labelled V, command in % labelled [-]) are ref
 import hashlib
 import io
 import math
-import re
 
 from estimator.errors import InputError
-from estimator.jsonio import open_input
+from estimator import csvtable
 from estimator.units import STANDARD_GRAVITY_M_S2, parse_quantity
 
 REQUIRED = ("command", "voltage", "current", "thrust")
@@ -33,7 +32,6 @@ UNITS = {
                "gf": (1e-3 * STANDARD_GRAVITY_M_S2, 0.0), "kgf": (STANDARD_GRAVITY_M_S2, 0.0),
                "lbf": (0.45359237 * STANDARD_GRAVITY_M_S2, 0.0)},
 }
-_HEADER_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*(?:\[([^\]]*)\])?\s*$")
 _COMMENT_KEYS = {"density": "density", "altitude": "altitude", "temperature": "temperature",
                  "pressure": "pressure", "humidity": "percent", "diameter": "length"}
 # a bench bus outside these is almost surely a unit slip (mV labelled V, or V labelled mV)
@@ -89,102 +87,35 @@ def bench_digest(data):
     return data["input_sha256"]
 
 
+EXAMPLE_HEADER = "command[-],voltage[V],current[A],thrust[N]"
+
+
 def _read_head(path):
     """Return (comment dict, header cells, number of lines before the data)."""
+    head = csvtable.read_head(path, "a bench CSV", EXAMPLE_HEADER)
     comments = {}
-    fh = open_input(path, "a bench CSV", binary=True)
-    with fh:
-        line_no = 0
-        for raw in fh:
-            line_no += 1
-            try:
-                line = raw.decode("utf-8-sig" if line_no == 1 else "utf-8").strip()
-            except UnicodeDecodeError:
-                raise InputError("%s: line %d: not UTF-8 text; expected a CSV with a "
-                                 "name[unit] header" % (path, line_no)) from None
-            if not line:
-                continue
-            if line.startswith("#"):
-                body = line[1:].strip()
-                if ":" in body:
-                    key, _, value = body.partition(":")
-                    key = key.strip().lower()
-                    if key in _COMMENT_KEYS:
-                        comments[key] = parse_quantity(value.strip(), _COMMENT_KEYS[key],
-                                                       "%s: line %d: # %s" % (path, line_no, key))
-                continue
-            if "," not in line and (";" in line or "\t" in line):
-                raise InputError("%s: line %d: the header is separated by %s; liftcal reads "
-                                 "comma-separated files (command[-],voltage[V],...)"
-                                 % (path, line_no, "semicolons" if ";" in line else "tabs"))
-            return comments, [c for c in line.split(",")], line_no
-    raise InputError("%s: no header row found; expected e.g. "
-                     "command[-],voltage[V],current[A],thrust[N]" % path)
+    for key, (value, line_no) in head.comments.items():
+        if key in _COMMENT_KEYS:
+            comments[key] = parse_quantity(value, _COMMENT_KEYS[key], "%s: line %d: # %s" % (path, line_no, key))
+    return comments, head, head.line
 
 
-def _parse_header(path, cells, line_no):
+def _parse_header(path, head, line_no=None):
     """Map required column names to (index, unit); warn about unknown columns."""
-    columns, warnings = {}, []
-    for index, cell in enumerate(cells):
-        m = _HEADER_CELL.match(cell)
-        if not m:
-            raise InputError("%s: line %d column %d: header cell %r is not name[unit]"
-                             % (path, line_no, index + 1, cell[:40]))
-        name, unit = m.group(1).strip().lower(), m.group(2)
-        if name in REQUIRED:
-            if name in columns:
-                raise InputError("%s: line %d: column %r appears twice" % (path, line_no, name))
-            if unit is None:
-                raise InputError("%s: line %d: column %r has no unit; write %s[%s]"
-                                 % (path, line_no, name, name, "|".join(UNITS[name])))
-            unit = unit.strip()
-            if unit not in UNITS[name]:
-                raise InputError("%s: line %d: unit %r of column %r is not one of %s"
-                                 % (path, line_no, unit, name, ", ".join(UNITS[name])))
-            columns[name] = (index, unit)
-        elif name not in OPTIONAL:
-            warnings.append("column %r is not used" % cell.strip()[:40])
-    missing = [n for n in REQUIRED if n not in columns]
-    if missing:
-        raise InputError("%s: line %d: header lacks %s; need command[-|%%|us], voltage[V], "
-                         "current[A], thrust[N|g|gf|kgf|lbf]" % (path, line_no, ", ".join(missing)))
-    return columns, warnings
+    return csvtable.parse_header(path, head, UNITS, OPTIONAL)
 
 
 def _slow_parse(path, skip, ncols):
-    """Line-by-line parse that names the first broken row; empty cells become NaN."""
+    """Line-by-line parse (estimator.csvtable) that names the first broken row; empty
+    cells become NaN (rows dropped and counted later), NaN or infinity written in a cell
+    is refused with its line."""
     import numpy as np
 
-    rows = []
-    with open(path, "rb") as fh:
-        for line_no, raw in enumerate(fh, start=1):
-            if line_no <= skip:
-                continue
-            try:
-                text = raw.decode("utf-8").strip()
-            except UnicodeDecodeError:
-                raise InputError("%s: line %d: not UTF-8 text" % (path, line_no)) from None
-            if not text or text.startswith("#"):
-                continue
-            cells = text.split("#", 1)[0].split(",")
-            if len(cells) != ncols:
-                raise InputError("%s: line %d: %d cells where the header has %d (truncated or "
-                                 "merged row?)" % (path, line_no, len(cells), ncols))
-            row = []
-            for i, cell in enumerate(cells):
-                cell = cell.strip()
-                if not cell:
-                    row.append(float("nan"))
-                    continue
-                try:
-                    row.append(float(cell))
-                except ValueError:
-                    raise InputError("%s: line %d column %d: cannot read %r as a number"
-                                     % (path, line_no, i + 1, cell[:40])) from None
-            rows.append(row)
-    if not rows:
+    head = csvtable.Head({}, [""] * ncols, skip)
+    columns = csvtable.read_columns(path, head, range(ncols), empty_ok=True, what="a bench CSV")
+    if not columns or not columns[0]:
         return np.empty((0, ncols))
-    return np.array(rows, dtype=float)
+    return np.array(columns, dtype=float).T.copy()
 
 
 _LOADTXT = {"delimiter": ",", "comments": "#", "ndmin": 2, "dtype": float, "encoding": "utf-8"}
@@ -226,7 +157,7 @@ def _load_single(path, skip, ncols):
         with warnings.catch_warnings():
             warnings.simplefilter("error")
             table = np.loadtxt(path, skiprows=skip, **_LOADTXT)
-        if table.shape[1] == ncols:
+        if table.shape[1] == ncols and _finite(table):
             return table
     except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
         pass
@@ -330,7 +261,15 @@ def _part(path, skip, ncols):
             table = np.loadtxt(path, skiprows=skip, **_LOADTXT)
     except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
         return None
-    return table if table.shape[1] == ncols else None
+    return table if table.shape[1] == ncols and _finite(table) else None
+
+
+def _finite(table):
+    """True when every number is finite: NaN or infinity written in a cell (which
+    numpy.loadtxt reads) sends the file to the slow parse, which refuses it with its line."""
+    import numpy as np
+
+    return bool(np.isfinite(table).all())
 
 
 def _helper_part(path, skip, lines, ncols, fd):
@@ -349,8 +288,8 @@ def _helper_part(path, skip, lines, ncols, fd):
         with warnings.catch_warnings():
             warnings.simplefilter("error")
             table = np.loadtxt(itertools.islice(fh, skip, skip + lines), **_LOADTXT)
-    if table.shape[1] != ncols:
-        raise ValueError("column count")
+    if table.shape[1] != ncols or not _finite(table):
+        raise ValueError("column count or a number that is not finite")
     os.ftruncate(fd, _PART_HEADER + table.nbytes)
     with mmap.mmap(fd, _PART_HEADER + table.nbytes) as mm:
         out = np.frombuffer(mm, dtype=np.float64, count=table.size, offset=_PART_HEADER)
@@ -417,9 +356,9 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     """
     import numpy as np
 
-    comments, cells, header_line = _read_head(path)
-    columns, warnings = _parse_header(path, cells, header_line)
-    ncols = len(cells)
+    comments, head, header_line = _read_head(path)
+    columns, warnings = _parse_header(path, head)
+    ncols = len(head.cells)
     tables = _load_numbers(path, header_line, ncols, parallel_min_bytes, beside)
     digest = _Digest(path) if hash_in_background else _sha256(path)  # threads after the parse
     data = {}

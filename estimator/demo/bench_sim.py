@@ -127,7 +127,7 @@ def simulate_sweep(seed=1, thrust_unit="g", command_unit="us", supply_voltages_V
         n = len(rows)
         for k in range(4):                       # load-cell knocks
             rows[rng.randrange(n // 4, n)][4] += rng.choice((-1.0, 1.0)) * rng.uniform(2.0, 4.0)
-        rows[rng.randrange(n)][4] = float("nan")  # a dropped sample
+        rows[rng.randrange(n)][4] = float("nan")  # a dropped sample (an empty cell)
         rows[rng.randrange(n)][3] = -5.0          # a current-sensor glitch
     for row in rows:
         lines.append(_format_row(row, thrust_unit, command_unit))
@@ -143,5 +143,5 @@ def _format_row(row, thrust_unit, command_unit):
     else:
         cmd = "%.4f" % command
     thrust = t * THRUST_SCALE[thrust_unit]
-    tx = "nan" if math.isnan(thrust) else "%.7g" % thrust
+    tx = "" if math.isnan(thrust) else "%.7g" % thrust
     return "%.2f,%s,%.4f,%.4f,%s" % (time_s, cmd, v, i, tx)

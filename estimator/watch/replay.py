@@ -11,85 +11,51 @@ the kernel, which flags them (sensor_fault) - a log with a glitch is still a log
 import sys
 
 from estimator.errors import InputError
-from estimator.jsonio import open_input
 from estimator.watch.config import make_config, new_watch
 
 KINDS = ((1, "power_high"), (2, "power_low"), (4, "sensor_fault"), (8, "baseline_off"), (16, "mass_high"))
 ALARM_BITS = 1 | 2 | 8 | 16
 PROGRESS_ROWS = 100000  # logs longer than this get a progress bar (stderr, terminals only)
 
+# unit -> (scale, offset): permille = (value + offset) * scale
 _COMMAND_UNITS = {"-": (1000.0, 0.0), "%": (10.0, 0.0), "us": (1.0, -1000.0)}
 _VOLT_UNITS = {"V": 1000.0, "mV": 1.0}
 _AMP_UNITS = {"A": 1000.0, "mA": 1.0}
 
 
-def _header(path, line, line_no):
-    cols = {}
-    for idx, cell in enumerate(line.split(",")):
-        cell = cell.strip()
-        name, _, unit = cell.partition("[")
-        cols[name.strip()] = (idx, unit.rstrip("]").strip())
-    if "thrust" in cols:
-        raise InputError("%s: row %d: this file has a thrust column, so it looks like a bench sweep, "
-                         "not a flight log; fit it with 'liftcal fit', replay flight logs "
-                         "(time[s], command[-], voltage[V], current[A])" % (path, line_no))
-    need = {"time": ("s",), "command": tuple(_COMMAND_UNITS), "voltage": tuple(_VOLT_UNITS),
-            "current": tuple(_AMP_UNITS)}
-    out = {}
-    for name, units in need.items():
-        if name not in cols:
-            raise InputError("%s: row %d: missing column %s[...] (need time[s], command[-], voltage[V], "
-                             "current[A])" % (path, line_no, name))
-        idx, unit = cols[name]
-        if unit not in units:
-            raise InputError("%s: row %d: column %s has unit [%s]; use one of %s"
-                             % (path, line_no, name, unit, ", ".join("[%s]" % u for u in units)))
-        out[name] = (idx, unit)
-    return out
+EXAMPLE_HEADER = "time[s],command[-],voltage[V],current[A]"
+COLUMNS = {"time": {"s": (1.0, 0.0)}, "command": _COMMAND_UNITS, "voltage": _VOLT_UNITS,
+           "current": _AMP_UNITS}
+
+
+def _bench_sweep_given(names):
+    """csvtable's refuse hook: a thrust column means a bench sweep, not a flight log."""
+    if "thrust" in names:
+        return ("this file has a thrust column, so it looks like a bench sweep, not a flight log; "
+                "fit it with 'liftcal fit', replay flight logs (%s)" % EXAMPLE_HEADER)
+    return None
 
 
 def read_flight(path):
-    """Read a flight CSV; returns dict time_s, command_permille, bus_mV, bus_mA (lists)."""
-    try:
-        with open_input(path, "a flight CSV") as fh:
-            text = fh.read()
-    except UnicodeDecodeError:
-        raise InputError("%s: not UTF-8 text; expected a flight CSV" % path) from None
-    except OSError as exc:
-        raise InputError("%s: cannot read (%s)" % (path, exc.strerror)) from None
-    lines = text.split("\n")
-    cols = None
-    t, u, v, a = [], [], [], []
-    for no, line in enumerate(lines, 1):
-        s = line.strip()
-        if not s or s[0] == "#":
-            continue
-        if cols is None:
-            cols = _header(path, s, no)
-            it, _ = cols["time"]
-            iu, uu = cols["command"]
-            iv, uv = cols["voltage"]
-            ia, ua = cols["current"]
-            cs, co = _COMMAND_UNITS[uu]
-            vs, as_ = _VOLT_UNITS[uv], _AMP_UNITS[ua]
-            width = max(it, iu, iv, ia) + 1
-            continue
-        cells = s.split(",")
-        if len(cells) < width:
-            raise InputError("%s: row %d: %d cells, the header has at least %d" % (path, no, len(cells), width))
-        try:
-            t.append(float(cells[it]))
-            int(round(t[-1]))  # refuses nan and inf times
-            u.append(int(round((float(cells[iu]) + co) * cs)))
-            v.append(int(round(float(cells[iv]) * vs)))
-            a.append(int(round(float(cells[ia]) * as_)))
-        except (ValueError, OverflowError):
-            raise InputError("%s: row %d: a value is not a finite number: %r" % (path, no, s[:80])) from None
-    if cols is None:
-        raise InputError("%s: no header row; expected time[s],command[-],voltage[V],current[A]" % path)
-    if not t:
-        raise InputError("%s: no data rows after the header" % path)
-    return {"time_s": t, "command_permille": u, "bus_mV": v, "bus_mA": a}
+    """Read a flight CSV; returns dict time_s, command_permille, bus_mV, bus_mA (lists).
+
+    The header and rows are read by estimator.csvtable (the bench CSV's reader): extra
+    columns are allowed, every row has the header's width, no empty cell, no NaN or infinity.
+    """
+    from estimator import csvtable
+
+    table = csvtable.read_table(path, "a flight CSV", EXAMPLE_HEADER, COLUMNS,
+                                refuse=_bench_sweep_given)
+    if not table.rows:
+        raise InputError("%s: no data rows after the header (line %d)" % (path, table.head.line))
+    cs, co = _COMMAND_UNITS[table.columns["command"][1]]
+    vs = _VOLT_UNITS[table.columns["voltage"][1]]
+    as_ = _AMP_UNITS[table.columns["current"][1]]
+    values = table.values
+    return {"time_s": values["time"],
+            "command_permille": [int(round((x + co) * cs)) for x in values["command"]],
+            "bus_mV": [int(round(x * vs)) for x in values["voltage"]],
+            "bus_mA": [int(round(x * as_)) for x in values["current"]]}
 
 
 def run_kernel(flight, config, keep_arrays=False, progress=None):

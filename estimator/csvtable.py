@@ -1,0 +1,234 @@
+"""The one reader of liftcal's CSV files: a ``name[unit]`` header, then rows of numbers.
+
+Bench sweeps (estimator.bench.reader) and flight logs (estimator.watch.replay) both read
+through here, passing their column spec, so both accept and refuse the same things with
+the same words (design notes sec. 2, sec. 4).
+
+Layout accepted: UTF-8 text with or without a byte-order mark, LF or CRLF line ends;
+blank lines and lines starting with ``#`` anywhere (``# key: value`` comments before the
+header are collected for the caller); one header row of comma-separated ``name[unit]``
+cells (``command[-]``, ``Time [s]``, ``"thrust[g]"``: names case-insensitive, spaces and
+double quotes around a cell allowed); then comma-separated numbers, as many cells as the
+header has; a ``#`` after the cells starts a comment. Refused with the line (and column)
+and the likely cause: a file separated by semicolons or tabs, lines ended by CR alone,
+text that is not UTF-8, a cell that is not a number, NaN or infinity (a missing reading is
+an empty cell, where the caller allows one), a row of the wrong width.
+
+API: read_head(path, what, example) -> Head; parse_header(path, head, columns, optional,
+refuse) -> ({name: (index, unit)}, warnings); read_columns(path, head, indices,
+empty_ok) -> one list of floats per index; read_table(path, what, example, columns, ...)
+-> Table (all three in one call). ``columns`` maps a required name to its units
+{unit: (scale, offset)} (SI = value * scale + offset); the caller converts.
+"""
+
+import math
+import re
+
+from estimator.errors import InputError, shorten
+from estimator.safepath import MiB, open_checked, size_text
+
+# the largest CSV read [bytes]: some ten million rows of a bench sweep or a flight log
+MAX_BYTES = 512 * MiB
+# the longest line before the header [bytes]: a header of some thousands of columns
+MAX_HEAD_LINE = 1 * MiB
+# lines before the header are comments or blank; a file without a header within these
+# many lines is no liftcal CSV [lines]
+MAX_HEAD_LINES = 10000
+
+_HEADER_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*(?:\[([^\]]*)\])?\s*$")
+
+
+class Head:
+    """What precedes the data: ``comments`` {key: (value text, line number)} from
+    ``# key: value`` lines (key lower case), the header ``cells`` (text as written, quotes
+    removed) and ``line`` (the header's line number, counted from 1; data follow it)."""
+
+    def __init__(self, comments, cells, line):
+        self.comments, self.cells, self.line = comments, cells, line
+
+
+def _decode(path, raw, line_no):
+    try:
+        return raw.decode("utf-8-sig" if line_no == 1 else "utf-8")
+    except UnicodeDecodeError:
+        raise InputError("%s: line %d: not UTF-8 text; expected a CSV with a name[unit] header "
+                         "(saved as UTF-8 or plain ASCII)" % (path, line_no)) from None
+
+
+def _check_separator(path, line, line_no, example):
+    if "," not in line and (";" in line or "\t" in line):
+        raise InputError("%s: line %d: the header is separated by %s; liftcal reads comma-separated "
+                         "files with a point as the decimal mark (%s)"
+                         % (path, line_no, "semicolons" if ";" in line else "tabs", example))
+
+
+def read_head(path, what, example):
+    """Read the comment lines and the header row of a CSV; returns a Head.
+
+    what: the kind of file for messages ("a bench CSV"); example: a header to show when
+    none is found ("command[-],voltage[V],current[A],thrust[N]"). Raises InputError.
+    """
+    comments = {}
+    with open_checked(path, what, MAX_BYTES) as fh:
+        line_no = 0
+        while line_no < MAX_HEAD_LINES:
+            raw = fh.readline(MAX_HEAD_LINE + 1)
+            if not raw:
+                break
+            line_no += 1
+            if len(raw) > MAX_HEAD_LINE:
+                raise InputError("%s: line %d is longer than %s before any header; expected %s "
+                                 "starting with a header such as %s"
+                                 % (path, line_no, size_text(MAX_HEAD_LINE), what, example))
+            line = _decode(path, raw, line_no).strip()
+            if not line:
+                continue
+            if "\r" in line:
+                raise InputError("%s: line %d: lines end with a carriage return alone (old Mac line "
+                                 "ends); save the file with LF or CRLF line ends" % (path, line_no))
+            if line.startswith("#"):
+                body = line[1:].strip()
+                if ":" in body:
+                    key, _, value = body.partition(":")
+                    comments[key.strip().lower()] = (value.strip(), line_no)
+                continue
+            _check_separator(path, line, line_no, example)
+            cells = [c.strip().strip('"').strip() for c in line.split("#", 1)[0].split(",")]
+            return Head(comments, cells, line_no)
+    raise InputError("%s: no header row found; expected %s with a header such as %s"
+                     % (path, what, example))
+
+
+def parse_header(path, head, columns, optional=(), refuse=None):
+    """Find the required columns in the header; returns ({name: (index, unit)}, warnings).
+
+    columns: {name: {unit: (scale, offset)}} of the required columns; optional: names read
+    past without a warning; refuse: optional callable(names) returning a message when the
+    header shows the wrong kind of file (a bench sweep given as a flight log), else None.
+    Other columns get a warning "column 'x' is not used". Raises InputError naming the
+    line and the cell on a cell that is not name[unit], a required column missing,
+    without a unit, with a unit not in its table, or given twice.
+    """
+    found, warnings, names = {}, [], []
+    line = head.line
+    for index, cell in enumerate(head.cells):
+        m = _HEADER_CELL.match(cell)
+        if not m:
+            raise InputError("%s: line %d column %d: header cell %s is not name[unit]"
+                             % (path, line, index + 1, shorten(cell)))
+        name, unit = m.group(1).strip().lower(), m.group(2)
+        names.append(name)
+        if name in columns:
+            if name in found:
+                raise InputError("%s: line %d: column %r appears twice" % (path, line, name))
+            if unit is None:
+                raise InputError("%s: line %d: column %r has no unit; write %s[%s]"
+                                 % (path, line, name, name, "|".join(columns[name])))
+            unit = unit.strip()
+            if unit not in columns[name]:
+                raise InputError("%s: line %d: unit %s of column %r is not one of %s"
+                                 % (path, line, shorten(unit), name,
+                                    ", ".join("[%s]" % u for u in columns[name])))
+            found[name] = (index, unit)
+        elif name not in optional:
+            warnings.append("column %s is not used" % shorten(cell.strip()))
+    if refuse is not None:
+        message = refuse(names)
+        if message:
+            raise InputError("%s: line %d: %s" % (path, line, message))
+    missing = [n for n in columns if n not in found]
+    if missing:
+        raise InputError("%s: line %d: header lacks %s; need %s"
+                         % (path, line, ", ".join(missing),
+                            ", ".join("%s[%s]" % (n, "|".join(u)) for n, u in columns.items())))
+    return found, warnings
+
+
+def _number(path, line_no, col, cell, empty_ok):
+    """One cell as a float: NaN for an empty cell when allowed, else InputError."""
+    cell = cell.strip()
+    if cell[:1] == '"':
+        cell = cell.strip('"').strip()
+    if not cell:
+        if empty_ok:
+            return math.nan
+        raise InputError("%s: line %d column %d: empty cell (a missing reading?); every cell of "
+                         "these columns needs a number" % (path, line_no, col + 1))
+    try:
+        value = float(cell)
+    except ValueError:
+        raise InputError("%s: line %d column %d: cannot read %s as a number"
+                         % (path, line_no, col + 1, shorten(cell))) from None
+    if not math.isfinite(value):
+        raise InputError("%s: line %d column %d: %s is not a finite number (NaN and infinity are "
+                         "refused%s)" % (path, line_no, col + 1, shorten(cell),
+                                         "; leave a missing reading empty" if empty_ok else ""))
+    return value
+
+
+def read_columns(path, head, indices, empty_ok=False, what="a CSV"):
+    """The numbers of the data rows in the columns ``indices``: one list of floats each.
+
+    Every data row must have as many cells as the header; only the cells at ``indices`` are
+    read as numbers (others may hold text). empty_ok: an empty cell becomes NaN (the caller
+    drops or counts the row) instead of an error. Raises InputError naming the line.
+    """
+    ncols = len(head.cells)
+    out = [[] for _ in indices]
+    pairs = list(zip(indices, out))
+    with open_checked(path, what, MAX_BYTES) as fh:
+        for line_no, text in _data_lines(path, fh, head.line):
+            cells = text.split(",")
+            if len(cells) != ncols:
+                raise InputError("%s: line %d: %d cells where the header has %d (truncated or "
+                                 "merged row?)" % (path, line_no, len(cells), ncols))
+            for index, column in pairs:
+                cell = cells[index]
+                try:
+                    value = float(cell)
+                except ValueError:
+                    value = _number(path, line_no, index, cell, empty_ok)
+                else:
+                    if value - value != 0.0:  # NaN or infinity, refused by _number
+                        value = _number(path, line_no, index, cell, empty_ok)
+                column.append(value)
+    return out
+
+
+def _data_lines(path, fh, skip):
+    """(line number, text) of the data lines after ``skip`` lines: comments cut, blank lines
+    left out; a carriage return alone inside a line also ends a line (as numpy.loadtxt and
+    text-mode reading take it), counted within the same line number."""
+    for line_no, raw in enumerate(fh, start=1):
+        if line_no <= skip:
+            continue
+        try:
+            text = raw.decode("utf-8")
+        except UnicodeDecodeError:
+            raise InputError("%s: line %d: not UTF-8 text" % (path, line_no)) from None
+        pieces = text.split("\r") if "\r" in text.rstrip("\r\n") else (text,)
+        for piece in pieces:
+            if "#" in piece:
+                piece = piece.split("#", 1)[0]
+            piece = piece.strip()
+            if piece:
+                yield line_no, piece
+
+
+class Table:
+    """A CSV read by read_table: ``head`` (Head), ``columns`` {name: (index, unit)},
+    ``values`` {name: list of floats as written, not converted}, ``rows`` (number of data
+    rows) and ``warnings`` (list of str)."""
+
+    def __init__(self, head, columns, values, warnings):
+        self.head, self.columns, self.values, self.warnings = head, columns, values, warnings
+        self.rows = len(next(iter(values.values()))) if values else 0
+
+
+def read_table(path, what, example, columns, optional=(), refuse=None, empty_ok=False):
+    """read_head, parse_header and read_columns of the required columns in one call."""
+    head = read_head(path, what, example)
+    found, warnings = parse_header(path, head, columns, optional, refuse)
+    names = list(columns)
+    lists = read_columns(path, head, [found[n][0] for n in names], empty_ok, what)
+    return Table(head, found, dict(zip(names, lists)), warnings)
