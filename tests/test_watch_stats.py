@@ -144,3 +144,32 @@ def test_implied_mass_in_steady_hover_and_mass_alarm():
                     errs.append(abs(w.mass_g / 1000.0 - fl["mass_kg"]) / fl["mass_kg"])
             assert errs and max(errs) < 0.05, (fault, seed, max(errs) if errs else None)
             assert raised == (fault == "heavy"), (fault, seed)
+
+
+def test_threshold_solver_cannot_overflow_for_any_noise():
+    # A very clean bench (noise 1 % .. 1e-6) makes k large in sigma units; exp(2 k b) once overflowed
+    # (OverflowError in liftcal firmware / replay). The log-domain solver must return a finite
+    # threshold that still inverts Siegmund's formula (checked in logs), for any k and target.
+    import math
+    from estimator.watch.config import log_arl_two_sided
+    for k in (0.0, 0.5, 5.0, 50.0, 5e3):
+        for arl in (10.0, 3.6e7, 1e300):
+            h = threshold_for_arl(k, arl)
+            assert math.isfinite(h) and h >= 0.0
+            if h > 0.0:
+                assert abs(log_arl_two_sided(k, h) - math.log(arl)) < 1e-6 * math.log(arl), (k, arl, h)
+    for noise in (0.014, 0.01, 1e-3, 1e-6):
+        make_config(demo_fit_params(), options={"noise_rel_std": noise})
+
+
+def test_cli_firmware_with_a_very_clean_bench(tmp_path):
+    # residual_rel_std of 0.5 % (a clean bench): the bundle is written, no traceback.
+    import json
+    from click.testing import CliRunner
+    from estimator.cli import cli
+    params = dict(demo_fit_params())
+    params["power_model"] = dict(params["power_model"], residual_rel_std=0.005)
+    p = tmp_path / "params.json"
+    p.write_text(json.dumps(params))
+    res = CliRunner().invoke(cli, ["firmware", str(p), "--out", str(tmp_path / "b")])
+    assert res.exit_code == 0, res.output
