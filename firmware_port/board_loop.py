@@ -12,11 +12,12 @@ safe in an interrupt). Anything that allocates (printing, logging, radio) is han
 """
 
 import micropython
+import time
 
 from liftwatch import Watch
 from liftwatch_config import CONFIG
 
-SAMPLE_MS = 100  # keep equal to the sample period the CONFIG was made for (sample_ms)
+SAMPLE_MS = 100  # timer period [ms]; the watch takes the real period from ticks_ms, so late ticks are seen
 
 
 class SensorAdapter:
@@ -67,16 +68,23 @@ def report(flags):
 class Monitor:
     """Timer-driven sampling: tick() is the interrupt handler, it never allocates."""
 
-    def __init__(self, adapter, config=CONFIG, sample_ms=SAMPLE_MS):
+    def __init__(self, adapter, config=CONFIG, clock=time):
         self.adapter = adapter
         self.watch = Watch(config)
-        self.sample_ms = sample_ms
+        self.clock = clock          # anything with ticks_ms() and ticks_diff() (time, or a test clock)
+        self.last_ms = clock.ticks_ms()
         self.reported = 0
         self.report_ref = report  # bound once, so tick() creates no new objects
 
     def tick(self, timer):
+        """Timer handler: dt is the real time since the last tick (ticks_diff: wrap-safe), so a
+        late or missed timer shows up as a long dt (the watch's gap check) instead of being hidden."""
         a = self.adapter
-        flags = self.watch.update(self.sample_ms, a.command_permille(), a.bus_mV(), a.bus_mA())
+        c = self.clock
+        now = c.ticks_ms()
+        dt = c.ticks_diff(now, self.last_ms)
+        self.last_ms = now
+        flags = self.watch.update(dt, a.command_permille(), a.bus_mV(), a.bus_mA())
         new = flags & ~self.reported
         self.reported = flags
         if new:

@@ -240,3 +240,53 @@ def test_missing_node_fails_clearly(monkeypatch):
     monkeypatch.setattr(mpy_harness.shutil, "which", lambda name: None)
     with pytest.raises(mpy_harness.MicroPythonUnavailable, match="Node.js is not installed"):
         mpy_harness.run_micropython("print(1)")
+
+
+def test_board_loop_takes_dt_from_ticks_diff(bundle, tmp_path):
+    # The board loop measures dt with ticks_diff (wrap-safe) instead of assuming the timer period:
+    # a tick 5 s late (the timer starved) must raise sensor_fault through the watch's gap check, and
+    # regular ticks across the ticks_ms wrap must not. The clock counts from just before the wrap.
+    mods = [bundle / "mpy" / (m + ".mpy") for m in ("liftwatch", "liftwatch_config", "board_loop")]
+    script = r'''
+import time
+import board_loop
+
+class Src:
+    def __init__(self):
+        self.v = 0
+    def read_u16(self):
+        self.v = (self.v * 75 + 74) % 65537
+        return 30000 + self.v % 50
+
+class Clock:
+    def __init__(self):
+        self.t = time.ticks_add(0, -3000)     # 3 s before ticks_ms wraps
+    def ticks_ms(self):
+        return self.t
+    def ticks_diff(self, a, b):
+        return time.ticks_diff(a, b)
+    def step(self, ms):
+        self.t = time.ticks_add(self.t, ms)
+
+def cmd():
+    return 520
+
+def quiet(flags):
+    pass
+
+clk = Clock()
+m = board_loop.Monitor(board_loop.SensorAdapter(cmd, Src(), Src(), 1, 2, 2, 3), clock=clk)
+m.report_ref = quiet
+worst = 0
+for i in range(100):
+    clk.step(100)
+    m.tick(None)
+    worst |= m.reported & 4
+late = 0
+clk.step(5000)
+m.tick(None)
+late = m.reported & 4
+print("GAP", worst, late)
+'''
+    out = run_micropython(script, mods, tmp_path)
+    assert "GAP 0 4" in out, out

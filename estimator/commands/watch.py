@@ -74,8 +74,10 @@ def firmware(params_file, out_dir, vehicle_file, as_json):
               help="Vehicle file; default: the parameter set's vehicle block.")
 @click.option("--plot", "plot_file", default=None, metavar="PNG",
               help="Draw measured against expected power with alarms shaded.")
+@click.option("--drop-bad-time", is_flag=True,
+              help="Drop rows whose time goes back or repeats (counted in dropped_rows) instead of refusing the log.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
-def replay(flight_file, params_file, vehicle_file, plot_file, as_json):
+def replay(flight_file, params_file, vehicle_file, plot_file, drop_bad_time, as_json):
     """Run a logged flight through the power watch and list its events.
 
     FLIGHT.csv has time[s], command[-] (or [%], [us]), voltage[V] and current[A] columns
@@ -84,7 +86,8 @@ def replay(flight_file, params_file, vehicle_file, plot_file, as_json):
     from estimator.watch.replay import replay_file
 
     params, vehicle = _load(params_file, vehicle_file)
-    out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None)
+    out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None,
+                      drop_bad_time=drop_bad_time)
     arrays = out.pop("_arrays", None)
     if plot_file is not None:
         from estimator.watch.plots import plot_replay
@@ -95,7 +98,11 @@ def replay(flight_file, params_file, vehicle_file, plot_file, as_json):
         return
     lines = ["%s: %d samples, %s, %s" % (flight_file, out["samples"], _count(out["alarms"], "alarm"),
                                            _count(len(out["events"]), "event"))]
-    if not out["events"]:
+    if out.get("dropped_rows"):
+        lines.append("  dropped %s whose time went back or repeated" % _count(out["dropped_rows"], "row"))
+    if not out["learned"]:
+        lines.append("  " + out["note"])
+    elif not out["events"]:
         lines.append("  no event: power stayed within what the parameter set expects")
     for e in out["events"]:
         lines.append("  %9.1f s  %-13s %s" % (e["t_s"], e["kind"], EVENT_MEANING.get(e["kind"], "")

@@ -12,6 +12,7 @@ import sys
 
 from estimator.errors import InputError
 from estimator.watch.config import make_config, new_watch
+from estimator.watch.log_checks import check_plausible, check_time, flying_ms
 
 KINDS = ((1, "power_high"), (2, "power_low"), (4, "sensor_fault"), (8, "baseline_off"), (16, "mass_high"))
 ALARM_BITS = 1 | 2 | 8 | 16
@@ -37,7 +38,8 @@ def _bench_sweep_given(names):
 
 
 def read_flight(path):
-    """Read a flight CSV; returns dict time_s, command_permille, bus_mV, bus_mA (lists).
+    """Read a flight CSV; returns dict time_s, command_permille, bus_mV, bus_mA (lists), units
+    (column -> unit as written) and header_line (the header's line number).
 
     The header and rows are read by estimator.csvtable (the bench CSV's reader): extra
     columns are allowed, every row has the header's width, no empty cell, no NaN or infinity.
@@ -55,7 +57,8 @@ def read_flight(path):
     return {"time_s": values["time"],
             "command_permille": [int(round((x + co) * cs)) for x in values["command"]],
             "bus_mV": [int(round(x * vs)) for x in values["voltage"]],
-            "bus_mA": [int(round(x * as_)) for x in values["current"]]}
+            "bus_mA": [int(round(x * as_)) for x in values["current"]],
+            "units": {name: table.columns[name][1] for name in COLUMNS}, "header_line": table.head.line}
 
 
 def run_kernel(flight, config, keep_arrays=False, progress=None):
@@ -109,17 +112,36 @@ def _bar(i, n):
     sys.stderr.flush()
 
 
-def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, progress=None):
+def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, progress=None, drop_bad_time=False):
     """Replay a flight CSV through the watch configured from ``params`` (+ ``vehicle``).
 
     Returns dict samples, alarms (events other than sensor_fault), events
     [{t_s, kind, residual}] (kinds power_high, power_low, sensor_fault, baseline_off,
     mass_high; residual [-] = residual_permille / 1000 at the event). A progress bar goes
     to stderr on logs above PROGRESS_ROWS rows when stderr is a terminal (progress=None),
-    always (True) or never (False). Raises InputError on a bad file.
+    always (True) or never (False). Raises InputError on a bad file: time that goes back or
+    repeats (unless ``drop_bad_time``: those rows are dropped and counted in ``dropped_rows``),
+    values implausible for the parameter set (the likely unit slip is named). A log with too
+    little flight to learn the baseline gets ``learned`` False and a ``note``.
     """
     config, _ = make_config(params, vehicle, options)
     flight = read_flight(path)
+    dropped = check_time(path, flight, go_on=drop_bad_time)
+    check_plausible(path, flight, flight["units"], config)
     if progress is None:
         progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
-    return run_kernel(flight, config, keep_arrays=keep_arrays, progress=_bar if progress else None)
+    out = run_kernel(flight, config, keep_arrays=keep_arrays, progress=_bar if progress else None)
+    need_ms = learn_needed_ms(config)
+    flown = flying_ms(flight, config)
+    out["learned"] = flown >= need_ms
+    if not out["learned"]:
+        out["note"] = ("too short to learn: %.1f s of flight above the spin command, the watch needs at least "
+                       "%.0f s to learn the power baseline - no verdict on this log" % (flown / 1000.0, need_ms / 1000.0))
+    if dropped:
+        out["dropped_rows"] = dropped
+    return out
+
+
+def learn_needed_ms(config):
+    """Flight time the watch needs before it can judge power [ms] (CONFIG learning window)."""
+    return config["learn_ms"]

@@ -1,0 +1,127 @@
+"""Checks of a flight log before the watch replays it (design notes sec. 4, Flight CSV).
+
+- time must rise: rows that go back or repeat are named (file, row numbers) in one error, or,
+  when the user asks to go on, dropped and counted;
+- values implausible for the parameter set are refused with the likely unit slip: a 0..1
+  command in a column labelled %, millivolts labelled V (or volts labelled mV), a current
+  sensor reading negative while the rotors turn, milliamps labelled A;
+- a log with too little settled flight to learn the baseline says so (no verdict), so that
+  silence is never read as health.
+
+All limits come from the watch CONFIG (dict from estimator.watch.config.make_config).
+"""
+
+from estimator.errors import InputError
+
+SHOWN_ROWS = 5  # row numbers named in one error line
+
+
+def _median(values):
+    s = sorted(values)
+    return s[len(s) // 2] if s else 0
+
+
+def check_time(path, flight, go_on=False):
+    """Refuse (InputError) a log whose time goes back or repeats, naming the rows.
+
+    flight: dict from replay.read_flight. With ``go_on`` the offending rows are dropped
+    instead; returns the number dropped.
+    """
+    t = flight["time_s"]
+    bad = []          # (index, time of the last good row before it)
+    keep = []
+    last = None
+    for i, ti in enumerate(t):
+        if last is not None and ti <= last:
+            bad.append((i, last))
+            continue
+        keep.append(i)
+        last = ti
+    if not bad:
+        return 0
+    if not go_on:
+        i, before = bad[0]
+        line_of = data_line_numbers(path, flight["header_line"])
+        rows = ", ".join(str(line_of[j]) for j, _ in bad[:SHOWN_ROWS])
+        more = "" if len(bad) <= SHOWN_ROWS else " and %d more" % (len(bad) - SHOWN_ROWS)
+        raise InputError("%s: row %d: time %.6g s %s (after %.6g s); %d row%s where time does not rise "
+                         "(rows %s%s) - a merged or restarted log? Fix the log, or pass --drop-bad-time "
+                         "to drop those rows" % (path, line_of[i], t[i],
+                                                 "repeats" if t[i] == before else "goes back", before,
+                                                 len(bad), "" if len(bad) == 1 else "s", rows, more))
+    for key in ("time_s", "command_permille", "bus_mV", "bus_mA"):
+        flight[key] = [flight[key][j] for j in keep]
+    return len(bad)
+
+
+def data_line_numbers(path, header_line):
+    """Line numbers (from 1) of the data rows after the header: lines that hold something
+    besides blanks and a ``#`` comment (as estimator.csvtable counts them). Read only when an
+    error needs to name a row."""
+    out = []
+    with open(path, "rb") as fh:
+        for no, raw in enumerate(fh, start=1):
+            if no <= header_line:
+                continue
+            for piece in raw.decode("utf-8", "replace").rstrip("\r\n").split("\r"):
+                if piece.split("#", 1)[0].strip():
+                    out.append(no)
+    return out
+
+
+def check_plausible(path, flight, units, cfg):
+    """Refuse a log whose values cannot come from this vehicle, naming the likely unit slip.
+
+    units: dict column -> unit as written in the header; cfg: the watch CONFIG dict.
+    """
+    u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
+    v_full = cfg["v_max_mV"] / 1.2          # CONFIG: v_max = 1.2 x full pack
+    v_empty = cfg["v_min_mV"] * 2.0         # CONFIG: v_min = half the empty pack
+    med_v = _median(mv)
+    if med_v > 50.0 * v_full:
+        raise InputError("%s: column voltage[%s]: median %.4g %s is %.0f times the full pack (%.1f V): "
+                         "likely millivolts in a column labelled [V]; label it voltage[mV]"
+                         % (path, units["voltage"], med_v / (1000.0 if units["voltage"] == "V" else 1.0),
+                            units["voltage"], med_v / v_full, v_full / 1000.0))
+    if 0 < med_v < v_empty / 50.0:
+        raise InputError("%s: column voltage[%s]: median %.4g %s is far below the empty pack (%.1f V): "
+                         "likely volts in a column labelled [mV]; label it voltage[V]"
+                         % (path, units["voltage"], med_v, units["voltage"], v_empty / 1000.0))
+    spin = cfg["spin_permille"]
+    flying = [i for i in range(len(u)) if u[i] >= spin]
+    if units["command"] == "%" and max(u) <= 10 and max(ma) > 0 and _median(ma) > 0:
+        # all commands in 0..1 % while current flows: a 0..1 command labelled %
+        if _median([abs(x) for x in ma]) > 1000:
+            raise InputError("%s: column command[%%]: every value is between 0 and 1 while %.1f A flows: "
+                             "likely a 0..1 command labelled %%; label it command[-]"
+                             % (path, _median(ma) / 1000.0))
+    if units["command"] == "-" and len(u) and max(u) > 1000:
+        share = sum(1 for x in u if x > 1000) / len(u)
+        if share > 0.05:
+            raise InputError("%s: column command[-]: %.0f %% of the values are above 1 (largest %.4g): "
+                             "likely percent or microseconds labelled [-]; label it command[%%] or command[us]"
+                             % (path, 100.0 * share, max(u) / 1000.0))
+    if flying:
+        cur = [ma[i] for i in flying]
+        med_a = _median(cur)
+        neg = sum(1 for x in cur if x < 0) / len(cur)
+        if neg > 0.5 and med_a < -1000:
+            raise InputError("%s: column current[%s]: the current is negative in %.0f %% of the rows where the "
+                             "rotors turn (median %.2f A): the current sensor reads reversed; flip its sign"
+                             % (path, units["current"], 100.0 * neg, med_a / 1000.0))
+        if med_a > 20.0 * cfg["i_max_mA"]:
+            raise InputError("%s: column current[%s]: median %.4g A while flying is %.0f times the vehicle's "
+                             "current limit (%.0f A): likely milliamps in a column labelled [A]; label it "
+                             "current[mA]" % (path, units["current"], med_a / 1000.0,
+                                             med_a / cfg["i_max_mA"], cfg["i_max_mA"] / 1000.0))
+
+
+def flying_ms(flight, cfg):
+    """Flight time above the spin command [ms] (sum of the sample periods while flying)."""
+    t, u = flight["time_s"], flight["command_permille"]
+    spin = cfg["spin_permille"]
+    total = 0.0
+    for i in range(1, len(t)):
+        if u[i] >= spin:
+            total += min(t[i] - t[i - 1], cfg["dt_max_ms"] / 1000.0)
+    return 1000.0 * total
