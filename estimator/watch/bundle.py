@@ -17,6 +17,7 @@ import shutil
 import subprocess
 import tempfile
 
+import firmware_port
 from estimator import __version__
 from estimator.cautions import cautions
 from estimator.errors import InputError
@@ -24,7 +25,7 @@ from estimator.watch.config import CONFIG_KEYS, SCALAR_AT, TABLE_AT, TABLES, mak
 
 PACKAGE_DIR = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))  # estimator/
 KERNEL_SOURCE = os.path.join(PACKAGE_DIR, "core", "watch.py")
-PORT_DIR = os.path.join(os.path.dirname(PACKAGE_DIR), "firmware_port")
+PORT_DIR = os.path.dirname(os.path.abspath(firmware_port.__file__))  # shipped in the wheel
 MODULES = ("liftwatch", "liftwatch_config", "board_loop")
 
 CAUTION = " ".join(cautions("board"))
