@@ -12,34 +12,13 @@ if not os.path.isdir(SCHEMA_DIR):  # a non-editable install: the copy under <pre
     SCHEMA_DIR = os.path.join(sys.prefix, "share", "liftcal", "schemas")
 
 
-def open_input(path, expected, binary=False):
-    """Open an input file for reading; raise InputError naming the file and the cause.
-
-    expected: what the file should be, for the message ("a JSON file", "a bench CSV").
-    Text mode reads UTF-8; decoding errors are the caller's to report (with a line).
-    """
-    try:
-        return open(path, "rb") if binary else open(path, "r", encoding="utf-8")
-    except FileNotFoundError:
-        raise InputError("%s: no such file" % path) from None
-    except IsADirectoryError:
-        raise InputError("%s: is a directory, expected %s" % (path, expected)) from None
-    except OSError as exc:
-        raise InputError("%s: cannot read (%s)" % (path, exc.strerror)) from None
-
-
 def load_json(path):
-    """Read a JSON file; raise InputError with the file, line and column on failure."""
-    try:
-        with open_input(path, "a JSON file") as fh:
-            return json.load(fh)
-    except UnicodeDecodeError as exc:
-        raise InputError("%s: not UTF-8 text (byte %d)" % (path, exc.start)) from None
-    except json.JSONDecodeError as exc:
-        raise InputError("%s: line %d column %d: malformed JSON (%s)"
-                         % (path, exc.lineno, exc.colno, exc.msg)) from None
-    except OSError as exc:
-        raise InputError("%s: cannot read (%s)" % (path, exc.strerror)) from None
+    """Read a JSON file strictly (estimator.jsonread: BOM accepted; size, depth, NaN,
+    Infinity and duplicate keys refused); raise InputError with the line and column or the
+    JSON path on failure."""
+    from estimator.jsonread import load
+
+    return load(path)
 
 
 def load_schema(name):
@@ -75,7 +54,44 @@ def validate(document, schema_name, source):
         other = _other_kind(document, schema_name, schema) if not list(err.absolute_path) else None
         if other:
             raise InputError("%s: $: this is %s, not %s: wrong file for this place?" % (source, other[0], other[1]))
-        raise InputError("%s: %s: %s%s" % (source, json_path(err.absolute_path), err.message, _likely_cause(err)))
+        raise InputError("%s: %s: %s%s" % (source, json_path(err.absolute_path), _message(err), _likely_cause(err)))
+
+
+def _message(err):
+    """jsonschema's message in plain words, echoing at most a short piece of the value."""
+    from estimator.errors import shorten
+
+    value = err.instance
+    if err.validator == "type":
+        expected = err.validator_value
+        expected = " or ".join(expected) if isinstance(expected, list) else str(expected)
+        expected = {"object": "an object {...}", "array": "a list [...]", "number": "a number",
+                    "integer": "a whole number", "string": "a text in quotes",
+                    "boolean": "true or false"}.get(expected, expected)
+        if value is None:
+            return "null (no value) where %s is expected" % expected
+        return "%s is %s, expected %s" % (shorten(value), _json_kind(value), expected)
+    text = str(err.message)
+    whole = repr(value)[:10001] if isinstance(value, (str, int, float)) or value is None else None
+    if whole is not None and len(whole) > 60 and whole in text:
+        text = text.replace(whole, shorten(value))
+    if len(text) > 300:
+        text = "%s (%s)" % (err.validator, shorten(value))
+    return text
+
+
+def _json_kind(value):
+    if isinstance(value, bool):
+        return "true/false"
+    if isinstance(value, (int, float)):
+        return "a number"
+    if isinstance(value, str):
+        return "a text"
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, dict):
+        return "an object"
+    return type(value).__name__
 
 
 def _other_kind(document, schema_name, schema):

@@ -122,10 +122,20 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
 @click.argument("params_file", metavar="PARAMS.json")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def check(params_file, as_json):
-    """Validate a parameter set against its schema (exit 0 when valid, 2 with the JSON path)."""
+    """Validate a parameter set against its schema (exit 0 when valid, 2 with the JSON path).
+
+    With --json, an invalid file also prints one JSON object ({"valid": false, "error": ...})
+    besides the error line on stderr.
+    """
+    from estimator.errors import InputError
     from estimator.params import load_params
 
-    params = load_params(params_file)
+    try:
+        params = load_params(params_file)
+    except InputError as exc:
+        if as_json:
+            click.echo(dumps({"valid": False, "file": params_file, "error": str(exc)}))
+        raise
     if as_json:
         click.echo(dumps({"valid": True, "file": params_file, "model": params["model"],
                           "schema_version": params["schema_version"],
