@@ -12,7 +12,7 @@ import pytest
 
 from estimator.cli import main
 from estimator.errors import InputError
-from estimator.bench.export import EXAMPLE_MAP, export_settings, format_lines, load_map
+from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, format_lines, load_map
 from estimator.params import load_params
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
@@ -33,7 +33,7 @@ def test_scale_offset_and_rounding(tmp_path):
         {"name": "B_QUAD", "source": "thrust_curve.quadratic_share", "decimals": 2},
         {"name": "C_LOW", "source": "hover.hover_command_interval_95.0", "decimals": 4},
     ]))
-    out = dict(export_settings(params, mapping))
+    out = as_mapping(export_settings(params, mapping))
     c, h = params["thrust_curve"], params["hover"]
     # hand arithmetic: 1000 + 1000 u_min rounded to an integer pulse, a to two decimals
     assert out["A_PULSE"] == int(round(1000 + 1000 * c["command_min"])) and isinstance(out["A_PULSE"], int)
@@ -79,14 +79,21 @@ def test_cli_lines_and_json(tmp_path, capsys):
     assert exc.value.code == 0
     params = load_params(WITH_HOVER)
     expected = export_settings(params, load_map(EXAMPLE_MAP))
-    assert out == format_lines(expected)
-    assert out.splitlines()[0] == "hoverpoint.command_permille %d" % int(round(1000 * params["hover"]["hover_command"]))
+    lines = out.splitlines()
+    assert lines[0].startswith("# liftcal settings from ") and lines[1:] == format_lines(expected).splitlines()
+    # our own layout: value with its unit, then the key it came from with its value and the arithmetic
+    hover = params["hover"]["hover_command"]
+    assert re.fullmatch(r"hoverpoint\.command_permille +%d permille  <- hover\.hover_command = %s - x 1000"
+                        % (int(round(1000 * hover)), re.escape("%.6g" % hover)), lines[1]), lines[1]
+    top = [l for l in lines if l.startswith("liftcurve.top_grams")][0]
+    assert re.search(r"gf +<- thrust_curve\.thrust_max_N = ", top) and top.endswith(" N x 101.972")
+    assert not any(re.fullmatch(r"\S+ \S+", l) for l in lines)  # never the bare "NAME value" layout
     target = tmp_path / "settings.json"
     with pytest.raises(SystemExit) as exc:
         main(["export", WITH_HOVER, "--json", "--out", str(target)])
     out, _ = capsys.readouterr()
-    assert exc.value.code == 0 and json.loads(out) == dict(expected)
-    assert json.loads(target.read_text()) == dict(expected)
+    assert exc.value.code == 0 and json.loads(out) == as_mapping(expected)
+    assert json.loads(target.read_text()) == as_mapping(expected)
 
 
 def test_cli_refusal_is_one_error_line_and_no_file(tmp_path, capsys):
@@ -97,3 +104,13 @@ def test_cli_refusal_is_one_error_line_and_no_file(tmp_path, capsys):
     out, err = capsys.readouterr()
     assert exc.value.code == 2 and out == "" and err.startswith("error: ") and err.count("\n") == 1
     assert not target.exists()
+
+
+def test_source_units_come_from_key_suffixes():
+    # the naming rule (DEVELOPERS.md glossary): a key's suffix is its unit
+    from estimator.bench.export import source_unit
+    assert source_unit("thrust_curve.thrust_max_N") == "N"
+    assert source_unit("thrust_curve.reference_voltage_V") == "V"
+    assert source_unit("bench_air.density_kg_m3") == "kg/m^3"
+    assert source_unit("hover.hover_command_interval_95.0") == "-"
+    assert source_unit("thrust_curve.quadratic_share") == "-"

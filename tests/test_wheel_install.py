@@ -45,7 +45,9 @@ def test_wheel_installs_and_runs_the_demo(tmp_path):
     ours = sysconfig.get_paths()["purelib"]
     with open(os.path.join(site, "borrowed-deps.pth"), "w", encoding="utf-8") as fh:
         fh.write(ours + "\n")
-    _run([sys.executable, "-m", "pip", "install", "--no-deps", "-q", "--disable-pip-version-check",
+    # --ignore-installed: never uninstall the test environment's own (editable) liftcal
+    _run([sys.executable, "-m", "pip", "install", "--no-deps", "--ignore-installed", "-q",
+          "--disable-pip-version-check",
           "--prefix", str(env_dir), wheel[0]], cwd=str(tmp_path))
 
     work = tmp_path / "work"

@@ -3,10 +3,15 @@
 Each mapped setting is round(value * scale + offset, decimals) for a number found at a
 dotted path of the parameter set. A value outside the setting's [min, max] is refused,
 never clipped: a clipped hover command or curve would fly differently from the fit.
+
+The text layout is liftcal's own: one line per setting with its value and unit, then an
+arrow back to the parameter-set key it came from, that key's value and unit, and the
+arithmetic applied, so a reader can check every number by hand.
 """
 
 import math
 import os
+import re
 
 from estimator.errors import InputError
 from estimator.jsonio import load_json, validate
@@ -43,8 +48,24 @@ def lookup(params, source):
     return node
 
 
+# unit of a parameter-set key from its suffix (the project's naming rule: names carry units)
+_SUFFIX_UNITS = (("_kg_m3", "kg/m^3"), ("_N", "N"), ("_V", "V"), ("_W", "W"), ("_A", "A"),
+                 ("_m", "m"), ("_Pa", "Pa"), ("_s", "s"), ("_per_N", "1/N"))
+
+
+def source_unit(source):
+    """Unit of the number at a dotted parameter-set path, read from its key's suffix ("-" if none)."""
+    key = [part for part in source.split(".") if not part.isdigit()][-1]
+    for suffix, unit in _SUFFIX_UNITS:
+        if key.endswith(suffix):
+            return unit
+    m = re.search(r"_W_per_N(\d*)$", key)
+    return "W/N^" + m.group(1) if m and m.group(1) else ("W/N" if m else "-")
+
+
 def export_settings(params, mapping, source_name="map"):
-    """Mapped settings as a list of (name, value) with value an int (decimals 0) or a float.
+    """Mapped settings, in map order, as dicts: name, value (int when decimals is 0, else
+    float), unit, source, source_value, source_unit, scale, offset.
 
     params: validated parameter set; mapping: validated map dict. Raises InputError naming
     the map entry when a source is missing, not a number, or the result is out of bounds.
@@ -68,10 +89,33 @@ def export_settings(params, mapping, source_name="map"):
                              "the parameter set" % (where, result, entry["source"], value,
                                                     "-inf" if lo is None else "%g" % lo,
                                                     "inf" if hi is None else "%g" % hi))
-        out.append((entry["name"], result))
+        scale, offset = entry.get("scale", 1.0), entry.get("offset", 0.0)
+        unit = entry.get("unit") or (source_unit(entry["source"]) if (scale, offset) == (1.0, 0.0)
+                                     else "(unit not in map)")
+        out.append({"name": entry["name"], "value": result, "unit": unit, "source": entry["source"],
+                    "source_value": value, "source_unit": source_unit(entry["source"]),
+                    "scale": scale, "offset": offset})
     return out
 
 
-def format_lines(settings):
-    """``name value`` lines, one per setting, newline-terminated."""
-    return "".join("%s %s\n" % (name, value) for name, value in settings)
+def format_lines(settings, header=None):
+    """liftcal's settings layout, newline-terminated: an optional ``#`` header line, then per
+    setting ``name  value unit  <- source = source_value source_unit [x scale] [+ offset]``."""
+    lines = ["# " + header] if header else []
+    width = max([len(s["name"]) for s in settings] + [0])
+    shown = ["%s %s" % (s["value"], s["unit"]) for s in settings]
+    vwidth = max([len(v) for v in shown] + [0])
+    for s, value in zip(settings, shown):
+        how = ""
+        if s["scale"] != 1.0:
+            how += " x %g" % s["scale"]
+        if s["offset"] != 0.0:
+            how += " %s %g" % ("+" if s["offset"] > 0 else "-", abs(s["offset"]))
+        lines.append("%-*s  %-*s  <- %s = %.6g %s%s" % (width, s["name"], vwidth, value, s["source"],
+                                                      s["source_value"], s["source_unit"], how))
+    return "\n".join(lines) + "\n"
+
+
+def as_mapping(settings):
+    """The ``--json`` object: setting name -> exported value."""
+    return {s["name"]: s["value"] for s in settings}

@@ -160,16 +160,18 @@ def export(params_file, map_file, out_file, as_json):
     Each setting is round(value * scale + offset, decimals); a value outside the map's
     bounds is refused, never clipped. Props off while you load settings into a controller.
     """
-    from estimator.bench.export import EXAMPLE_MAP, export_settings, format_lines, load_map
+    import os
+
+    from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, format_lines, load_map
     from estimator.jsonio import write_atomic
     from estimator.params import load_params
 
     params = load_params(params_file)
     path = map_file or EXAMPLE_MAP
     settings = export_settings(params, load_map(path), path)
-    text = dumps(dict(settings)) + "\n" if as_json else format_lines(settings)
+    header = "liftcal settings from %s through %s (%d); %s" % (
+        os.path.basename(params_file), os.path.basename(path), len(settings), SHORT)
+    text = dumps(as_mapping(settings)) + "\n" if as_json else format_lines(settings, header)
     if out_file is not None:
         write_atomic(out_file, text)
     click.echo(text, nl=False)
-    if not as_json:
-        click.echo("# " + SHORT, err=True)

@@ -50,7 +50,7 @@ def run_demo(out_dir, seed=1, emit=None):
     from estimator.errors import InputError
     from estimator.demo.bench_sim import simulate_sweep
     from estimator.demo.scenario import DEMO_VEHICLE
-    from estimator.bench.export import EXAMPLE_MAP, export_settings, format_lines, load_map
+    from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, format_lines, load_map
     from estimator.watch.bundle import write_bundle
     from estimator.bench.sweep import fit_bench_file
     from estimator.demo.flight_sim import simulate_flight
@@ -80,7 +80,8 @@ def run_demo(out_dir, seed=1, emit=None):
     fitted = hover_report(vehicle, params)
     map_file = EXAMPLE_MAP
     settings = export_settings(params, load_map(map_file), map_file)
-    write_atomic(path("settings.txt"), format_lines(settings))
+    write_atomic(path("settings.txt"), format_lines(
+        settings, "liftcal settings from params.json through the example map (invented names)"))
     c, k = params["thrust_curve"], params["static_factor"]
     text += [_rule("2. bench sweep -> parameter set -> settings"),
              "$ liftcal fit %s --vehicle %s --out %s" % (path("bench.csv"), path("vehicle.json"),
@@ -125,7 +126,7 @@ def run_demo(out_dir, seed=1, emit=None):
                                         "reference_voltage_V", "voltage_exponent", "density_exponent")},
         "static_factor": k["value"],
         "fitted_hover": fitted,
-        "settings": dict(settings),
+        "settings": as_mapping(settings),
         "bundle_files": bundle["files"],
         "flights": flights,
     }
