@@ -14,17 +14,17 @@ import click
 from estimator import __version__
 from estimator.errors import InputError
 
-# name -> (module, function, one-line help shown by `liftcal --help`)
+# name -> (module, function); each command's help is its docstring
 COMMANDS = {
-    "air": ("estimator.commands.preflight", "air", "Air at a site: density, temperature, pressure, density altitude."),
-    "static": ("estimator.commands.preflight", "static", "Momentum-theory static thrust from power, or power from thrust, for one rotor."),
-    "hover": ("estimator.commands.preflight", "hover", "Pre-flight sheet for a vehicle file: will it hover, margin, endurance."),
-    "fit": ("estimator.commands.bench", "fit", "Fit a bench sweep CSV into a validated parameter set."),
-    "check": ("estimator.commands.bench", "check", "Validate a parameter set against its schema."),
-    "export": ("estimator.commands.bench", "export", "Map a parameter set to your flight controller's setting names."),
-    "firmware": ("estimator.commands.watch", "firmware", "Write the MicroPython power-watch bundle for a board."),
-    "replay": ("estimator.commands.watch", "replay", "Run a logged flight through the power watch and list its events."),
-    "demo": ("estimator.commands.demo", "demo", "Run all three flows on the built-in (invented) demo scenario."),
+    "air": ("estimator.commands.preflight", "air"),
+    "static": ("estimator.commands.preflight", "static"),
+    "hover": ("estimator.commands.preflight", "hover"),
+    "fit": ("estimator.commands.bench", "fit"),
+    "check": ("estimator.commands.bench", "check"),
+    "export": ("estimator.commands.bench", "export"),
+    "firmware": ("estimator.commands.watch", "firmware"),
+    "replay": ("estimator.commands.watch", "replay"),
+    "demo": ("estimator.commands.demo", "demo"),
 }
 
 
@@ -37,13 +37,23 @@ class LazyGroup(click.Group):
     def get_command(self, ctx, name):
         if name not in COMMANDS:
             return None
-        module_name, attr, _ = COMMANDS[name]
+        module_name, attr = COMMANDS[name]
         return getattr(importlib.import_module(module_name), attr)
 
     def format_commands(self, ctx, formatter):
-        rows = [(name, COMMANDS[name][2]) for name in COMMANDS]
+        """One line per command: the first sentence of its docstring, not cut short."""
+        rows = [(name, self.get_command(ctx, name).get_short_help_str(limit=200)) for name in COMMANDS]
         with formatter.section("Commands"):
             formatter.write_dl(rows)
+
+    def invoke(self, ctx):
+        """Run the command; a user error (InputError) becomes one ``error:`` line and exit 2,
+        also under click's test runner, which calls the group without main()."""
+        try:
+            return super().invoke(ctx)
+        except InputError as exc:
+            click.echo("error: %s" % exc, err=True)
+            ctx.exit(2)
 
 
 @click.group(cls=LazyGroup, context_settings={"help_option_names": ["-h", "--help"]})

@@ -10,11 +10,6 @@ from estimator.commands.options import Quantity
 from estimator.errors import InputError
 from estimator.jsonio import dumps
 
-# common practice rule of thumb for small electric propeller sets (design notes sec. 3a):
-# conservative, not a value to expect
-DEFAULT_STATIC_FACTOR = 0.3
-# what good small sets reach (design notes sec. 3a): shown beside the rule of thumb
-GOOD_SET_FACTORS = (0.5, 0.7)
 
 
 class Bounded(Quantity):
@@ -118,72 +113,22 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
     T = k (2 rho A P^2)^(1/3) with k the static thrust factor (k = 1 is the ideal
     actuator disk; efficiency eta = k^1.5).
     """
-    from estimator.core import momentum
+    from estimator.core.momentum import disk_area_m2
+    from estimator.preflight.static_rotor import format_static, static_rotor
 
-    diameter_m, power_W, thrust_N, density_kg_m3 = diameter, power, thrust, density
-    altitude_m, temperature_C, pressure_Pa, humidity_pct = altitude, temperature, pressure, humidity
-    if (power_W is None) == (thrust_N is None):
+    if (power is None) == (thrust is None):
         raise InputError("static: give exactly one of --power or --thrust")
-    density_given = density_kg_m3 is not None
-    if density_given and (temperature_C is not None or pressure_Pa is not None or altitude_m != 0.0):
+    if density is not None and (temperature is not None or pressure is not None or altitude != 0.0):
         raise InputError("--density: give either --density or --altitude/--temperature/--pressure, not both")
-    if not density_given:
-        density_kg_m3 = _air(altitude_m, temperature_C, pressure_Pa, humidity_pct)["density_kg_m3"]
-    k = DEFAULT_STATIC_FACTOR if factor is None else factor
-    area = momentum.disk_area_m2(diameter_m)
-    if thrust_N is not None:
-        _check_disk_loading(thrust_N, area, diameter_m)
-    out = {"diameter_m": diameter_m, "disk_area_m2": area, "density_kg_m3": density_kg_m3,
-           "static_factor": k, "static_factor_source": "default rule of thumb (common practice)"
-           if factor is None else "given", "efficiency": k ** 1.5}
-    if power_W is not None:
-        out["power_W"] = power_W
-        out["ideal_thrust_N"] = momentum.ideal_thrust_N(power_W, density_kg_m3, area)
-        out["thrust_N"] = momentum.thrust_from_power_N(power_W, k, density_kg_m3, area)
-        for good in GOOD_SET_FACTORS:  # design notes sec. 3a: what good small sets reach
-            out["thrust_N_at_k_%s" % _tag(good)] = momentum.thrust_from_power_N(power_W, good, density_kg_m3, area)
-        thrust = out["thrust_N"]
-    else:
-        out["thrust_N"] = thrust_N
-        out["ideal_power_W"] = momentum.ideal_power_W(thrust_N, density_kg_m3, area)
-        out["power_W"] = momentum.power_from_thrust_W(thrust_N, k, density_kg_m3, area)
-        for good in GOOD_SET_FACTORS:
-            out["power_W_at_k_%s" % _tag(good)] = momentum.power_from_thrust_W(thrust_N, good, density_kg_m3, area)
-        thrust = thrust_N
-    out["induced_velocity_m_s"] = momentum.induced_velocity_m_s(thrust, density_kg_m3, area)
-    out["slipstream_velocity_m_s"] = 2.0 * out["induced_velocity_m_s"]
-    out["disk_loading_N_m2"] = momentum.disk_loading_N_m2(thrust, area)
+    if density is None:
+        density = _air(altitude, temperature, pressure, humidity)["density_kg_m3"]
+    if thrust is not None:
+        _check_disk_loading(thrust, disk_area_m2(diameter), diameter)
+    out = static_rotor(diameter, density, factor, power_W=power, thrust_N=thrust)
     if as_json:
         click.echo(dumps(out))
-        return
-    click.echo("one rotor, D = %.3f m (disk %.4f m^2), air %.3f kg/m^3, k = %.2f%s"
-               % (diameter_m, area, density_kg_m3, k, " (rule of thumb)" if factor is None else ""))
-    lo, hi = GOOD_SET_FACTORS
-    if power_W is not None:
-        click.echo("  %.0f W in -> %.2f N of thrust (ideal actuator disk: %.2f N)"
-                   % (power_W, out["thrust_N"], out["ideal_thrust_N"]))
-        if factor is None:
-            click.echo("  good small sets reach k %.1f..%.1f: %.2f..%.2f N (k = 0.3 is a conservative "
-                       "rule of thumb, common practice)" % (lo, hi, out["thrust_N_at_k_" + _tag(lo)],
-                                                           out["thrust_N_at_k_" + _tag(hi)]))
     else:
-        click.echo("  %.2f N of thrust needs %.0f W in (ideal actuator disk: %.0f W)"
-                   % (thrust_N, out["power_W"], out["ideal_power_W"]))
-        if factor is None:
-            click.echo("  good small sets reach k %.1f..%.1f: %.0f..%.0f W (k = 0.3 is a conservative "
-                       "rule of thumb, common practice)" % (lo, hi, out["power_W_at_k_" + _tag(lo)],
-                                                           out["power_W_at_k_" + _tag(hi)]))
-    click.echo("  induced velocity %.1f m/s, slipstream %.1f m/s, disk loading %.0f N/m^2"
-               % (out["induced_velocity_m_s"], out["slipstream_velocity_m_s"], out["disk_loading_N_m2"]))
-    from estimator.cautions import cautions
-
-    for line in cautions("rotor"):
-        click.echo("  " + line)
-
-
-def _tag(k):
-    """JSON key tag of a factor: 0.5 -> "0_5"."""
-    return ("%g" % k).replace(".", "_")
+        click.echo("\n".join(format_static(out, power is not None)))
 
 
 def _check_disk_loading(thrust_N, area_m2, diameter_m):

@@ -1,0 +1,80 @@
+"""One rotor in static air by momentum theory: thrust from power or power from thrust.
+
+The numbers of ``liftcal static``: T = k (2 rho A P^2)^(1/3) (estimator.core.momentum) with a
+static thrust factor k, shown beside what good small sets reach, plus the induced velocity,
+slipstream and disk loading. The command only reads options and prints.
+"""
+
+from estimator.cautions import cautions
+from estimator.core import momentum
+
+# common practice rule of thumb for small electric propeller sets (design notes sec. 3a):
+# conservative, not a value to expect
+DEFAULT_STATIC_FACTOR = 0.3
+# what good small sets reach (design notes sec. 3a, common practice): shown beside the rule of thumb
+GOOD_SET_FACTORS = (0.5, 0.7)
+
+
+def factor_tag(k):
+    """JSON key tag of a factor: 0.5 -> "0_5"."""
+    return ("%g" % k).replace(".", "_")
+
+
+def static_rotor(diameter_m, density_kg_m3, factor=None, power_W=None, thrust_N=None):
+    """The ``liftcal static --json`` dict for one rotor; exactly one of power_W, thrust_N.
+
+    diameter_m [m], density_kg_m3 [kg/m^3], factor k [-] (None: the rule of thumb 0.3),
+    power_W [W] electrical input, thrust_N [N]. Momentum theory (Glauert; Leishman, Principles
+    of Helicopter Aerodynamics ch. 2, from memory): T = k (2 rho A P^2)^(1/3), P = (T/k)^1.5 /
+    sqrt(2 rho A), v_i = sqrt(T / (2 rho A)), slipstream 2 v_i, disk loading T / A.
+    """
+    k = DEFAULT_STATIC_FACTOR if factor is None else factor
+    area = momentum.disk_area_m2(diameter_m)
+    out = {"diameter_m": diameter_m, "disk_area_m2": area, "density_kg_m3": density_kg_m3,
+           "static_factor": k, "static_factor_source": "default rule of thumb (common practice)"
+           if factor is None else "given", "efficiency": k ** 1.5}
+    if power_W is not None:
+        out["power_W"] = power_W
+        out["ideal_thrust_N"] = momentum.ideal_thrust_N(power_W, density_kg_m3, area)
+        out["thrust_N"] = momentum.thrust_from_power_N(power_W, k, density_kg_m3, area)
+        for good in GOOD_SET_FACTORS:
+            out["thrust_N_at_k_" + factor_tag(good)] = momentum.thrust_from_power_N(
+                power_W, good, density_kg_m3, area)
+    else:
+        out["thrust_N"] = thrust_N
+        out["ideal_power_W"] = momentum.ideal_power_W(thrust_N, density_kg_m3, area)
+        out["power_W"] = momentum.power_from_thrust_W(thrust_N, k, density_kg_m3, area)
+        for good in GOOD_SET_FACTORS:
+            out["power_W_at_k_" + factor_tag(good)] = momentum.power_from_thrust_W(
+                thrust_N, good, density_kg_m3, area)
+    thrust = out["thrust_N"]
+    out["induced_velocity_m_s"] = momentum.induced_velocity_m_s(thrust, density_kg_m3, area)
+    out["slipstream_velocity_m_s"] = 2.0 * out["induced_velocity_m_s"]
+    out["disk_loading_N_m2"] = momentum.disk_loading_N_m2(thrust, area)
+    return out
+
+
+def format_static(out, power_given):
+    """Text lines for ``liftcal static``; ranges always read low..high."""
+    default = out["static_factor_source"] != "given"
+    lines = ["one rotor, D = %.3f m (disk %.4f m^2), air %.3f kg/m^3, k = %.2f%s"
+             % (out["diameter_m"], out["disk_area_m2"], out["density_kg_m3"], out["static_factor"],
+                " (rule of thumb)" if default else "")]
+    lo, hi = GOOD_SET_FACTORS
+    if power_given:
+        lines.append("  %.0f W in -> %.2f N of thrust (ideal actuator disk: %.2f N)"
+                     % (out["power_W"], out["thrust_N"], out["ideal_thrust_N"]))
+        key, fmt, unit = "thrust_N_at_k_", "%.2f", "N"
+    else:
+        lines.append("  %.2f N of thrust needs %.0f W in (ideal actuator disk: %.0f W)"
+                     % (out["thrust_N"], out["power_W"], out["ideal_power_W"]))
+        key, fmt, unit = "power_W_at_k_", "%.0f", "W"
+    if default:
+        # low..high values, each k beside the value it gives (power falls as k rises)
+        (a, ka), (b, kb) = sorted((out[key + factor_tag(k)], k) for k in (lo, hi))
+        lines.append(("  good small sets reach k %.1f..%.1f: " + fmt + ".." + fmt + " %s (k = 0.3 is a "
+                      "conservative rule of thumb, common practice)") % (ka, kb, a, b, unit))
+    lines.append("  induced velocity %.1f m/s, slipstream %.1f m/s, disk loading %.0f N/m^2"
+                 % (out["induced_velocity_m_s"], out["slipstream_velocity_m_s"], out["disk_loading_N_m2"]))
+    lines += ["  " + c for c in cautions("rotor")]
+    return lines
