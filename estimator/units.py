@@ -4,6 +4,7 @@ Units are converted here, at the edge, and nowhere else. Conversion factors are
 exact by definition (NIST SP 811, Appendix B) unless noted.
 """
 
+import math
 import re
 
 from estimator.errors import InputError
@@ -29,12 +30,15 @@ _UNITS = {
     "current": {"A": (1.0, 0.0), "mA": (1e-3, 0.0)},
     "capacity": {"Ah": (1.0, 0.0), "mAh": (1e-3, 0.0)},
     "ratio": {"": (1.0, 0.0)},
+    "fraction": {"": (1.0, 0.0), "%": (0.01, 0.0)},
+    "resistance": {"ohm": (1.0, 0.0), "mohm": (1e-3, 0.0), "mOhm": (1e-3, 0.0)},
+    "time": {"s": (1.0, 0.0), "min": (60.0, 0.0), "h": (3600.0, 0.0)},
 }
 # the unit assumed when a person types a bare number
 DEFAULT_UNIT = {
     "mass": "kg", "length": "m", "altitude": "m", "force": "N", "power": "W", "temperature": "C",
     "pressure": "Pa", "density": "kg/m3", "percent": "%", "voltage": "V", "current": "A",
-    "capacity": "Ah", "ratio": "",
+    "capacity": "Ah", "ratio": "", "fraction": "", "resistance": "ohm", "time": "s",
 }
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*([A-Za-z%/^0-9]*)\s*$")
 
@@ -52,12 +56,14 @@ def parse_quantity(text, kind, what="value"):
     table = _UNITS[kind]
     if not m:
         raise InputError("%s: cannot read %r as a number with a unit (e.g. 1%s)"
-                         % (what, text, DEFAULT_UNIT[kind]))
+                         % (what, _short(text), DEFAULT_UNIT[kind]))
     value, suffix = float(m.group(1)), m.group(2) or DEFAULT_UNIT[kind]
     if suffix not in table:
         raise InputError("%s: unknown unit %r in %r; use one of %s"
-                         % (what, suffix, text, ", ".join(repr(u) for u in table if u)))
+                         % (what, suffix, _short(text), ", ".join(repr(u) for u in table if u)))
     scale, offset = table[suffix]
+    if not math.isfinite(value):
+        raise InputError("%s: %r is not a finite number" % (what, _short(text)))
     return value * scale + offset
 
 
@@ -67,3 +73,32 @@ def unit_scale(kind, suffix):
     if suffix not in table:
         raise KeyError(suffix)
     return table[suffix][0]
+
+
+_SIZE = re.compile(r"^\s*((?:\d+\.?\d*|\.\d+))\s*[xX*]\s*((?:\d+\.?\d*|\.\d+))\s*([A-Za-z]*)\s*$")
+# a propeller size without a unit is in inches: the trade lists propellers that way (10x4.5)
+SIZE_DEFAULT_UNIT = "in"
+
+
+def parse_propeller_size(text, what="size"):
+    """Parse a propeller size ``DIAMETERxPITCH[unit]`` (``10x4.5in``, ``254x114mm``) to metres.
+
+    Returns (diameter [m], pitch [m]). Without a unit both numbers are inches, as propellers
+    are listed in the trade. Raises InputError naming ``what`` on anything else.
+    """
+    m = _SIZE.match(str(text)) if isinstance(text, str) else None
+    if not m:
+        raise InputError("%s: cannot read %r as a propeller size DIAMETERxPITCH with a unit, e.g. "
+                         "\"10x4.5in\" or \"254x114mm\"" % (what, _short(text)))
+    unit = m.group(3) or SIZE_DEFAULT_UNIT
+    if unit not in _UNITS["length"]:
+        raise InputError("%s: unknown unit %r in %r; use one of %s"
+                         % (what, unit, _short(text), ", ".join(repr(u) for u in _UNITS["length"])))
+    scale = _UNITS["length"][unit][0]
+    return float(m.group(1)) * scale, float(m.group(2)) * scale
+
+
+def _short(text, limit=40):
+    """``text`` as shown in an error line: at most ``limit`` characters."""
+    text = str(text)
+    return text if len(text) <= limit else text[:limit] + "..."

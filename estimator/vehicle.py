@@ -1,7 +1,9 @@
 """Vehicle files: load, validate against schemas/vehicle.schema.json, check physics, fill defaults.
 
-The file is already in SI (every key names its unit), so no conversion happens here beyond
-filling documented defaults. Checks that JSON Schema cannot express (cell voltages in order,
+Numbers may be written as text with a unit suffix (``"mass_kg": "650g"``, ``"capacity":
+"5000mAh"``, ``"propeller": {"size": "10x4.5in", "blades": 2}``): normalise() turns them into
+the SI keys of the schema with estimator.units, the one parser the command line uses too. A
+bare number keeps the unit its key names; a key without a unit (``mass``) needs a suffix. Checks that JSON Schema cannot express (cell voltages in order,
 figure of merit at most 1) are done here and reported with the JSON path and the reason.
 
 The same schema keeps the sensible bounds of the quantities typed on the command line
@@ -24,6 +26,13 @@ DEFAULT_USABLE_FRACTION = 0.8  # common practice: keep a 20 % reserve on lithium
 DEFAULT_ESC_EFFICIENCY = 1.0  # ideal ESC
 DEFAULT_ALTITUDE_M = 0.0
 DEFAULT_HUMIDITY_PCT = 0.0
+DEFAULT_BLADES = 2
+# pitch / diameter of propellers that the blade-element estimate covers (multirotor and sport
+# propellers run from about 0.3 to 1.0; common practice)
+PITCH_RATIO_MIN, PITCH_RATIO_MAX = 0.2, 1.5
+# the flight ends at this loaded cell voltage below the usable-empty open-circuit voltage [V]
+# (3.5 V -> 3.3 V on a lithium-polymer cell; common practice)
+CUTOFF_BELOW_EMPTY_V = 0.2
 
 NO_SITE_WARNING = ("the vehicle file has no site: sea level, standard atmosphere (15 C, 1013.25 hPa, "
                    "1.225 kg/m^3) and dry air assumed; add \"site\": {\"altitude_m\": ..., "
@@ -129,7 +138,11 @@ def check_vehicle(document, source):
     should know about (no site: sea level).
     """
     _not_another_file(document, source)
-    validate(document, SCHEMA, source)
+    document, given = normalise(document, source)
+    try:
+        validate(document, SCHEMA, source)
+    except InputError as exc:  # name the key as the file wrote it
+        raise InputError(_as_written(str(exc), given)) from None
     vehicle = copy.deepcopy(document)
     _check_physics(vehicle, source)
     assumed = []
@@ -137,9 +150,14 @@ def check_vehicle(document, source):
         assumed.append(NO_SITE_WARNING)
     elif "altitude_m" not in document["site"]:
         assumed.append(NO_ALTITUDE_WARNING)
-    vehicle["checked"] = {"source": source, "assumed": assumed}
+    vehicle["checked"] = {"source": source, "assumed": assumed,
+                          "given": {path: text for path, (_, text) in given.items()}}
     vehicle["rotors"].setdefault("layout", DEFAULT_LAYOUT)
     vehicle["battery"].setdefault("usable_fraction", DEFAULT_USABLE_FRACTION)
+    empty = vehicle["battery"]["empty_cell_V"]
+    vehicle["battery"].setdefault("cutoff_cell_V", max(empty - CUTOFF_BELOW_EMPTY_V, 0.8 * empty))
+    if "pitch_m" in vehicle["propeller"]:
+        vehicle["propeller"].setdefault("blades", DEFAULT_BLADES)
     vehicle.setdefault("esc", {}).setdefault("efficiency", DEFAULT_ESC_EFFICIENCY)
     site = vehicle.setdefault("site", {})
     site.setdefault("altitude_m", DEFAULT_ALTITUDE_M)
@@ -178,9 +196,123 @@ def _check_physics(vehicle, source):
         raise InputError("%s: $.battery: cell voltages must satisfy empty_cell_V <= nominal_cell_V <= "
                          "full_cell_V, got %g, %g, %g V (swapped values?)"
                          % (source, bat["empty_cell_V"], bat["nominal_cell_V"], bat["full_cell_V"]))
+    if "cutoff_cell_V" in bat and not bat["cutoff_cell_V"] < bat["full_cell_V"]:
+        raise InputError("%s: $.battery.cutoff_cell_V: the loaded cutoff %g V must be below the full cell "
+                         "voltage %g V (a loaded cell sits below its open-circuit voltage)"
+                         % (source, bat["cutoff_cell_V"], bat["full_cell_V"]))
     prop = vehicle["propeller"]
+    if "ct" not in prop or "cp" not in prop:
+        pitch, diameter = prop["pitch_m"], prop["diameter_m"]
+        if pitch > PITCH_RATIO_MAX * diameter:
+            inches = pitch * 0.0254  # 1 in = 0.0254 m (NIST SP 811)
+            hint = ("inches meant? (%g in = %.4g m)" % (pitch, inches)
+                    if PITCH_RATIO_MIN <= inches / diameter <= PITCH_RATIO_MAX
+                    else "diameter and pitch swapped?")
+            raise InputError("%s: $.propeller.pitch_m: %.4g m is %.1f times the diameter %.4g m; "
+                             "propellers have pitch/diameter %.1f..%.1f: %s"
+                             % (source, pitch, pitch / diameter, diameter, PITCH_RATIO_MIN,
+                                PITCH_RATIO_MAX, hint))
+        return
     fm = math.sqrt(2.0 / math.pi) * prop["ct"] ** 1.5 / prop["cp"]
     if fm > 1.0:
         raise InputError("%s: $.propeller.cp: ct = %g and cp = %g give a figure of merit of %.2f, above the "
                          "momentum-theory limit of 1 (cp too small, or coefficients on a rad/s basis "
                          "instead of rev/s?)" % (source, prop["ct"], prop["cp"], fm))
+
+
+# where a key may be written without its unit, and the unit kind of every unit-bearing key:
+# block -> {short key: (SI key, estimator.units kind)}; "" is the top level
+_UNIT_KEYS = {
+    "": {"mass": ("mass_kg", "mass")},
+    "propeller": {"diameter": ("diameter_m", "length"), "pitch": ("pitch_m", "length")},
+    "motor": {"resistance": ("resistance_ohm", "resistance"),
+              "no_load_current": ("no_load_current_A", "current"),
+              "max_current": ("max_current_A", "current")},
+    "battery": {"capacity": ("capacity_Ah", "capacity"), "resistance": ("resistance_ohm", "resistance"),
+                "full_cell": ("full_cell_V", "voltage"), "nominal_cell": ("nominal_cell_V", "voltage"),
+                "empty_cell": ("empty_cell_V", "voltage"), "cutoff_cell": ("cutoff_cell_V", "voltage"),
+                "usable": ("usable_fraction", "fraction"),
+                "temperature": ("temperature_C", "temperature")},
+    "site": {"altitude": ("altitude_m", "altitude"), "temperature": ("temperature_C", "temperature"),
+             "pressure": ("pressure_Pa", "pressure"), "humidity": ("humidity_pct", "percent")},
+}
+
+
+def _json_path(block, key):
+    return "$." + (block + "." if block else "") + key
+
+
+def normalise(document, source):
+    """Turn quantities written with units into the schema's SI keys; return (document, given).
+
+    document: the loaded JSON (left unchanged; a converted copy is returned). A string on an
+    SI key ("mass_kg": "650g") or on its short key ("mass": "650g") is parsed by
+    estimator.units.parse_quantity; a bare number on an SI key stays as it is (the key names
+    its unit); a bare number on a short key is refused (no unit to read it in). The propeller
+    "size" ("10x4.5in") gives diameter_m and pitch_m. given: {JSON path of the SI key:
+    (JSON path as written, text as written)} for each converted value. Raises InputError
+    naming the file and the JSON path.
+    """
+    from estimator.units import parse_propeller_size, parse_quantity
+
+    if not isinstance(document, dict):
+        return document, {}
+    out = dict(document)
+    given = {}
+    for block, table in _UNIT_KEYS.items():
+        node = out if block == "" else out.get(block)
+        if not isinstance(node, dict):
+            continue
+        if block:
+            node = out[block] = dict(node)
+        if block == "propeller" and "size" in node:
+            path = _json_path(block, "size")
+            for key in ("diameter_m", "pitch_m", "diameter", "pitch"):
+                if key in node:
+                    raise InputError("%s: %s: give either the size or %s, not both"
+                                     % (source, path, _json_path(block, key)))
+            text = node.pop("size")
+            diameter, pitch = parse_propeller_size(text, "%s: %s" % (source, path))
+            node["diameter_m"], node["pitch_m"] = diameter, pitch
+            given[_json_path(block, "diameter_m")] = (path, text)
+            given[_json_path(block, "pitch_m")] = (path, text)
+        for short, (key, kind) in table.items():
+            if short in node and key in node:
+                raise InputError("%s: %s: given twice, also as %s: keep one"
+                                 % (source, _json_path(block, short), _json_path(block, key)))
+            name = short if short in node else key
+            if name not in node:
+                continue
+            value = node[name]
+            path = _json_path(block, name)
+            if isinstance(value, str):
+                node[key] = parse_quantity(value, kind, "%s: %s" % (source, path))
+                given[_json_path(block, key)] = (path, value)
+            elif name == short:
+                if isinstance(value, (int, float)) and not isinstance(value, bool):
+                    raise InputError("%s: %s: %s has no unit: write it as text with its unit (e.g. "
+                                     "\"%s%s\"), or did you mean %r for %r? (that key names its unit)"
+                                     % (source, path, value, value, _example_unit(kind), key, short))
+                node[key] = value  # the schema names the wrong type at the SI key's path
+                given[_json_path(block, key)] = (path, value)
+            if name == short:
+                del node[short]
+    return out, given
+
+
+def _example_unit(kind):
+    from estimator.units import DEFAULT_UNIT
+    return DEFAULT_UNIT[kind]
+
+
+def _as_written(message, given):
+    """A schema message about an SI key, with the key's path as the file wrote it."""
+    for si_path, (written, _) in sorted(given.items(), key=lambda item: -len(item[0])):
+        if written != si_path and (si_path + ":") in message:
+            return message.replace(si_path + ":", written + ":", 1)
+    return message
+
+
+def given_text(vehicle, path):
+    """What the file wrote for an SI key (``"650g"``), or None when it wrote a bare number."""
+    return ((vehicle.get("checked") or {}).get("given") or {}).get(path)

@@ -66,7 +66,7 @@ def test_hover_point_holds_the_weight_exactly():
 def test_endurance_is_usable_charge_over_hover_current():
     # Definition of capacity: t = 60 * C * f_use / I (constant current). Exact.
     r = hover_report(vehicle())
-    assert r["flight_time_min"] == pytest.approx(60.0 * 5.0 * 0.8 / r["hover_current_A"], rel=1e-12)
+    assert r["flight_time_usable_share_min"] == pytest.approx(60.0 * 5.0 * 0.8 / r["hover_current_A"], rel=1e-12)
     # and the hover power is what the pack delivers at the loaded bus voltage
     assert r["hover_power_W"] == pytest.approx(r["hover_current_A"] * r["hover_bus_V"], rel=1e-9)
 
@@ -161,8 +161,11 @@ def test_hover_only_on_a_full_pack_is_said_plainly():
     # 5.5 kg on the demo set: the full pack (16.8 V) holds it, the nominal pack does not.
     r = hover_report(vehicle(mass_kg=5.5))
     assert r["hover_command"] is None and r["hover_command_full"] is not None
-    assert any(w.startswith("only a freshly charged pack") for w in r["warnings"])
-    assert "no usable margin" in format_sheet(r)
+    # one diagnosis, once, naming the real cause and the full-pack hover (issue 9: right causes)
+    causes = [w for w in r["warnings"] if "cannot hover" in w or "freshly charged" in w]
+    assert len(causes) == 1 and "freshly charged pack would just hold it" in causes[0]
+    sheet = format_sheet(r)
+    assert "not flyable" in sheet and sheet.count("freshly charged") == 1
 
 
 def test_losing_hover_near_empty_is_warned():
@@ -177,7 +180,8 @@ def test_sheet_says_per_motor_and_pack_total():
     r = hover_report(vehicle())
     sheet = format_sheet(r)
     # the per-motor line and the pack-total line must not be mistaken for each other
-    assert ("current per motor  %.1f A at hover" % r["hover_motor_current_A"]) in sheet
+    assert ("motor current      %.1f A at hover" % r["hover_motor_current_A"]) in sheet
+    assert ("ESC input current  %.1f A at hover" % r["hover_esc_input_current_A"]) in sheet
     assert ("pack current       %.1f A at hover" % r["hover_current_A"]) in sheet
     assert "all 4 motors" in sheet and "from the pack (all motors)" in sheet
     # the two are tied by the ESC power balance V_bus I_bus eta = d V_bus I_motor (design
@@ -185,6 +189,8 @@ def test_sheet_says_per_motor_and_pack_total():
     # 1e-9: the core computes the same relation, rounding only
     n, d, eta = r["rotor_count"], r["hover_command"], r["esc_efficiency"]
     assert r["hover_current_A"] == pytest.approx(n * d * r["hover_motor_current_A"] / eta, rel=1e-9)
+    assert r["hover_esc_input_current_A"] == pytest.approx(d * r["hover_motor_current_A"] / eta, rel=1e-9)
+    assert r["full_esc_input_current_A"] == pytest.approx(r["full_motor_current_A"] / eta, rel=1e-9)
 
 
 def test_datasheet_sheet_says_command_is_duty():
@@ -210,3 +216,60 @@ def test_no_site_is_warned_first():
     del doc["site"]
     r = hover_report(check_vehicle(doc, "x.json"))
     assert "no site" in r["warnings"][0] and "sea level" in r["warnings"][0]
+
+
+# Issue 9 item 6, "right causes": each of these failed before.
+
+def test_far_too_heavy_names_the_thrust_not_the_pack_and_says_it_once():
+    # 12 kg on the demo set: full-command thrust is under half the weight while the pack gives
+    # a third of its 50 C x 5 Ah = 250 A rating (definition of the C-rate)
+    r = hover_report(vehicle(mass_kg=12.0, battery__max_discharge_C=50))
+    causes = [w for w in r["warnings"] if "cannot hover" in w]
+    assert len(causes) == 1
+    assert "below the weight" in causes[0] and "not the pack" in causes[0] and "% of the pack's 250 A" in causes[0]
+    assert "pack cannot deliver" not in causes[0]
+    sheet = format_sheet(r)
+    assert sheet.count("below the weight") == 1 and "no hover at hover" not in sheet
+
+
+def test_a_pack_that_sags_away_the_thrust_is_named():
+    # 1 ohm on a 4-cell pack: at full command the bus collapses, so the pack is the cause
+    r = hover_report(vehicle(battery__resistance_ohm=1.0))
+    causes = [w for w in r["warnings"] if "cannot hover" in w]
+    assert len(causes) == 1 and "pack cannot deliver the power" in causes[0] and "sags from" in causes[0]
+
+
+def test_endurance_says_which_pack_state_it_assumes():
+    r = hover_report(vehicle())
+    assert "full pack" in r["flight_time_basis"] and "nominal-pack" in r["flight_time_usable_share_basis"]
+    sheet = format_sheet(r)
+    assert "from a full pack, ended by the landing reserve" in sheet
+    assert "at the nominal-pack hover current" in sheet
+
+
+def test_a_vehicle_that_loses_hover_on_the_way_down_gets_no_endurance_from_the_whole_pack():
+    # 4.85 kg: hovers on a nominal pack, not on an empty one (test_losing_hover_near_empty)
+    r = hover_report(vehicle(mass_kg=4.85))
+    assert r["flight_ended_by"] in ("thrust", "cutoff")  # whichever comes first, not the reserve
+    assert r["discharge"]["charge_used_Ah"] < 0.9 * r["usable_Ah"]
+    assert r["flight_time_min"] < 0.9 * r["flight_time_usable_share_min"]
+    assert "ended by the l" in format_sheet(r)
+
+
+def test_cold_pack_raises_resistance_and_shortens_the_flight():
+    warm = hover_report(vehicle(site__temperature_C=25.0))
+    cold = hover_report(vehicle(site__temperature_C=-10.0))
+    assert cold["pack_resistance_ohm"] > 2.0 * warm["pack_resistance_ohm"]  # from memory: exp(0.03 * 35)
+    assert cold["hover_bus_V"] < warm["hover_bus_V"]
+    assert "cold factor from memory" in format_sheet(cold)
+
+
+def test_a_parameter_set_of_another_propeller_is_warned_in_the_report():
+    import os
+    from estimator.params import load_params
+    root = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+    params = load_params(os.path.join(root, "schemas", "examples", "valid", "params-demo-with-hover.json"))
+    same = hover_report(vehicle(), params)
+    assert not any("fitted on a" in w for w in same["warnings"])
+    other = hover_report(vehicle(propeller__diameter_m=0.2286), params)  # a 9-inch propeller
+    assert sum("fitted on a 0.254 m" in w for w in other["warnings"]) == 1

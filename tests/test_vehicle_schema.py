@@ -27,16 +27,17 @@ EXPECTED_PATH = {
     "vehicle-typo-key.json": "$.motor",
     "vehicle-humidity-over-100.json": "$.site.humidity_pct",
     "vehicle-cells-not-integer.json": "$.battery.cells",
-    "vehicle-mass-as-text.json": "$.mass_kg",
+    "vehicle-mass-not-a-quantity.json": "$.mass_kg",
     "vehicle-cell-voltages-swapped.json": "$.battery",
     "vehicle-figure-of-merit-above-1.json": "$.propeller.cp",
     "vehicle-mass-in-grams.json": "$.mass_kg",
-    "vehicle-site-key-without-unit.json": "$.site",
+    "vehicle-site-key-without-unit.json": "$.site.altitude",
 }
 # invalid example -> words of the likely cause the message must carry
 EXPECTED_CAUSE = {
     "vehicle-mass-in-grams.json": "given in g instead of kg? 2050 g = 2.05 kg",  # 1 g = 1e-3 kg
-    "vehicle-site-key-without-unit.json": "did you mean 'altitude_m' for 'altitude'?",
+    "vehicle-site-key-without-unit.json": "has no unit: write it as text with its unit (e.g. \"1400m\"), or did you mean 'altitude_m' for 'altitude'?",
+    "vehicle-mass-not-a-quantity.json": "cannot read 'heavy' as a number with a unit",
     "vehicle-typo-key.json": "'kv_rpm' repeats 'kv_rpm_per_V', which is already given",
 }
 
@@ -183,7 +184,7 @@ def test_a_parameter_set_or_map_is_not_taken_for_a_vehicle():
 
 def test_checked_vehicle_records_its_source_and_the_sea_level_assumption():
     doc = json.loads(DESIGN_NOTES_EXAMPLE)
-    assert check_vehicle(doc, "x.json")["checked"] == {"source": "x.json", "assumed": []}
+    assert check_vehicle(doc, "x.json")["checked"] == {"source": "x.json", "assumed": [], "given": {}}
     del doc["site"]
     assumed = check_vehicle(doc, "x.json")["checked"]["assumed"]
     assert len(assumed) == 1 and "no site" in assumed[0] and "sea level" in assumed[0]

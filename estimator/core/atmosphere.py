@@ -101,6 +101,20 @@ def density_altitude_m(density_kg_m3):
     return geometric_m(h_geo)
 
 
+# Sutherland's law constants of the 1976 standard (eq. 51): beta [kg/(s m K^0.5)], S [K]
+SUTHERLAND_BETA = 1.458e-6
+SUTHERLAND_S_K = 110.4
+
+
+def dynamic_viscosity_Pa_s(temperature_K):
+    """Dynamic viscosity of air, Sutherland's law mu = beta T^1.5 / (T + S).
+
+    temperature_K: air temperature T [K], > 0. Returns mu [Pa s] (1.7894e-5 at 288.15 K).
+    Source: US Standard Atmosphere 1976, eq. 51 (humidity neglected: under 1 % change).
+    """
+    return SUTHERLAND_BETA * temperature_K ** 1.5 / (temperature_K + SUTHERLAND_S_K)
+
+
 def site_air(altitude_m, temperature_C=None, pressure_Pa=None, humidity_pct=0.0):
     """Air at a flying site: density, temperature, pressure and density altitude.
 
@@ -112,7 +126,8 @@ def site_air(altitude_m, temperature_C=None, pressure_Pa=None, humidity_pct=0.0)
     temperature [C] or None; pressure_Pa: station pressure (not sea-level QNH) [Pa]
     or None; humidity_pct: relative humidity [%], 0..100.
     Returns a dict: density_kg_m3 [kg/m^3], temperature_K [K], pressure_Pa [Pa],
-    density_altitude_m [m], vapour_pressure_Pa [Pa], density_ratio [-] (rho / 1.225).
+    density_altitude_m [m], vapour_pressure_Pa [Pa], density_ratio [-] (rho / 1.225),
+    viscosity_Pa_s [Pa s] (dynamic_viscosity_Pa_s).
     Raises AirInputError (a ValueError naming the input at fault in ``quantity``) for
     values outside the models' ranges.
     Source: US Standard Atmosphere 1976; Buck (1981).
@@ -145,4 +160,5 @@ def site_air(altitude_m, temperature_C=None, pressure_Pa=None, humidity_pct=0.0)
         "density_altitude_m": density_altitude_m(rho),
         "vapour_pressure_Pa": e,
         "density_ratio": rho / SEA_LEVEL_DENSITY_KG_M3,
+        "viscosity_Pa_s": dynamic_viscosity_Pa_s(t),
     }

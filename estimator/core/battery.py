@@ -5,6 +5,8 @@ state of charge, minus the drop over the pack's internal resistance: V_bus = V_o
 (design notes sec. 3). SI units: V, A, ohm, Ah, min.
 """
 
+import math
+
 
 def pack_open_circuit_V(cells, cell_V):
     """Open-circuit voltage of a series pack, V_oc = N_s * V_cell.
@@ -70,3 +72,21 @@ def max_pack_current_A(capacity_Ah, max_discharge_C):
     if max_discharge_C is None:
         return None
     return max_discharge_C * capacity_Ah
+
+
+# Growth of a lithium pack's internal resistance in the cold, R(T) = R_25 exp(k (25 C - T)) below
+# 25 C: k = 0.03 per kelvin, so the resistance about doubles from 25 C to 0 C and roughly
+# quadruples at -20 C (from memory of lithium-polymer and lithium-ion cell data; cells differ).
+COLD_RESISTANCE_PER_K = 0.03
+COLD_REFERENCE_C = 25.0
+
+
+def cold_resistance_factor(temperature_C):
+    """Factor on the pack resistance at a cell temperature, exp(0.03 (25 - T)) below 25 C, else 1.
+
+    temperature_C: pack temperature T [C]. Returns R(T) / R(25 C) [-], >= 1 (a warm pack is
+    not credited with a lower resistance). Source: from memory (COLD_RESISTANCE_PER_K).
+    """
+    if temperature_C >= COLD_REFERENCE_C:
+        return 1.0
+    return math.exp(COLD_RESISTANCE_PER_K * (COLD_REFERENCE_C - temperature_C))

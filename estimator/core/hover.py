@@ -3,14 +3,16 @@
 Each of N rotors carries W / N with W = m g0. For each pack state (open-circuit voltage
 from the cell voltage) the hover duty comes from propulsion.shared_point_for_thrust and the
 full-command thrust from propulsion.shared_operating_point (d = 1, same pack state, with
-sag). Endurance is the usable charge over the hover current at nominal pack voltage
-(constant-current estimate). Coaxial layouts use propulsion.coaxial_propeller
+sag). Endurance comes from discharging the pack (core.discharge: the hover current rises as
+the pack drains, the flight ends at the loaded-voltage cutoff, the landing reserve or the loss
+of hover); the usable charge over the nominal-pack hover current is given beside it. Coaxial layouts use propulsion.coaxial_propeller
 (power basis, kappa = momentum.COAXIAL_INDUCED_POWER_FACTOR). SI units.
 Sources: design notes sec. 3; the modules named above.
 """
 
 from estimator.core.battery import endurance_min, pack_open_circuit_V, usable_capacity_Ah
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.core.discharge import discharge_to_cutoff
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
 from estimator.core.motor import rotor_operating_point
 from estimator.core.propulsion import coaxial_propeller, shared_operating_point, shared_point_for_thrust
@@ -70,6 +72,29 @@ def hover_at_pack(mass_kg, rotor_count, open_circuit_V, pack_resistance_ohm, den
     }
 
 
+def hover_load(mass_kg, rotor_count, density_kg_m3, motor, propeller, pack_resistance_ohm,
+               esc_efficiency=1.0):
+    """The hover load of a vehicle as core.discharge wants it: V_oc -> (I_pack, V_bus) or None.
+
+    mass_kg: all-up mass [kg]; rotor_count: N [-]; density_kg_m3: rho [kg/m^3];
+    motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
+    propeller: dict diameter_m [m], ct [-], cp [-] (already adjusted for the layout);
+    pack_resistance_ohm: R_pack [ohm]; esc_efficiency: eta_esc [-]. The returned
+    function gives the pack current [A] and bus voltage [V] of the hover point at a pack
+    open-circuit voltage [V], or None where the vehicle cannot hover (duty above 1, or the
+    pack cannot deliver the power). Source: propulsion.shared_point_for_thrust.
+    """
+    per_rotor = mass_kg * STANDARD_GRAVITY_M_S2 / rotor_count
+
+    def load(open_circuit_V):
+        point = shared_point_for_thrust(per_rotor, open_circuit_V, pack_resistance_ohm, rotor_count,
+                                        density_kg_m3, motor, propeller, esc_efficiency)
+        if point["limited_by"] is not None:
+            return None
+        return point["pack_current_A"], point["bus_V"]
+    return load
+
+
 def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller, battery,
                    esc_efficiency=1.0):
     """Hover at full, nominal and empty pack and the endurance of a vehicle.
@@ -79,13 +104,16 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
     motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
     propeller: dict diameter_m [m], ct [-], cp [-]; battery: dict cells [-],
     capacity_Ah [Ah], resistance_ohm [ohm], full_cell_V / nominal_cell_V / empty_cell_V [V],
-    usable_fraction [-]; esc_efficiency: eta_esc [-].
+    usable_fraction [-], cutoff_cell_V [V] (loaded; default empty_cell_V - 0.2 V);
+    esc_efficiency: eta_esc [-].
     Returns a dict: states {full, nominal, empty} -> hover_at_pack result (plus
     open_circuit_V [V]); hover_command, hover_command_full, hover_command_empty [-] or None;
     thrust_to_weight [-] and hover_thrust_fraction [-] at nominal pack; hover_current_A [A]
     and hover_power_W [W] (whole vehicle, nominal pack) or None; flight_time_min [min] or
-    None; usable_Ah [Ah]; coaxial_induced_power_factor [-] (1 for flat, power basis).
-    Source: design notes sec. 3; endurance = 60 C_use / I_hover (constant current).
+    None (by discharge to the cutoff, core.discharge); discharge (its result dict);
+    flight_time_usable_share_min [min] or None (60 C_use / I_hover at nominal pack);
+    usable_Ah [Ah]; coaxial_induced_power_factor [-] (1 for flat, power basis).
+    Source: design notes sec. 3; core.discharge.
     """
     prop = rotor_propeller(propeller, layout)
     states = {}
@@ -99,6 +127,12 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
     usable = usable_capacity_Ah(battery["capacity_Ah"], battery.get("usable_fraction", 0.8))
     hovering = nominal["command"] is not None
     current = nominal["hover"]["pack_current_A"] if hovering else None
+    load = hover_load(mass_kg, rotor_count, density_kg_m3, motor, prop, battery["resistance_ohm"],
+                      esc_efficiency)
+    discharge = discharge_to_cutoff(battery["cells"], battery["capacity_Ah"],
+                                    battery.get("usable_fraction", 0.8), battery["full_cell_V"],
+                                    battery["nominal_cell_V"], battery["empty_cell_V"],
+                                    battery.get("cutoff_cell_V", battery["empty_cell_V"] - 0.2), load)
     return {
         "states": states,
         "hover_command": nominal["command"],
@@ -108,7 +142,9 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
         "hover_thrust_fraction": nominal["thrust_fraction"],
         "hover_current_A": current,
         "hover_power_W": nominal["hover"]["total_power_W"] if hovering else None,
-        "flight_time_min": endurance_min(usable, current) if hovering else None,
+        "flight_time_min": discharge["minutes"] if hovering else None,
+        "flight_time_usable_share_min": endurance_min(usable, current) if hovering else None,
+        "discharge": discharge,
         "usable_Ah": usable,
         "coaxial_induced_power_factor": COAXIAL_INDUCED_POWER_FACTOR if layout == "coaxial" else 1.0,
     }

@@ -9,12 +9,14 @@ flight: will it hover, with what margin, for how long, what to watch out for.
 import math
 
 from estimator.core.atmosphere import site_air
-from estimator.core.battery import max_pack_current_A
+from estimator.core.battery import cold_resistance_factor, max_pack_current_A
 from estimator.core.hover import hover_estimate, rotor_propeller
 from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_merit,
                                      induced_velocity_m_s, static_factor)
 from estimator.cautions import cautions
 from estimator.errors import InputError
+from estimator.preflight.propeller_estimate import estimated_propeller
+from estimator.preflight.unit_checks import params_propeller_warning, suspicious_values
 from estimator.vehicle import assumed_warnings, vehicle_source
 
 # Warning thresholds (common practice for multirotors, not a standard):
@@ -34,12 +36,19 @@ def hover_report(vehicle, params=None):
     """The pre-flight report dict for a checked vehicle (see estimator.vehicle.check_vehicle).
 
     With ``params`` (a fitted parameter set), the thrust and power come from the bench fit:
-    delegated to estimator.fitted_hover.hover_from_params, which returns the same keys.
+    delegated to estimator.preflight.measured_rotor.hover_from_params, which returns the same
+    keys; the parameter set's propeller is checked against the vehicle's.
     """
+    checks = suspicious_values(vehicle)
     if params is not None:
         from estimator.preflight.measured_rotor import hover_from_params  # written by the bench flow
         report = hover_from_params(vehicle, params)
+        other = params_propeller_warning(vehicle, params)
+        report["warnings"] = checks + ([other] if other else []) + [
+            w for w in report.get("warnings", []) if w not in checks]
         report.setdefault("cautions", list(CAUTIONS))
+        report.setdefault("flight_time_basis", "usable share of the capacity at the nominal-pack "
+                                               "hover current")
         return report
 
     site = vehicle.get("site", {})
@@ -49,15 +58,20 @@ def hover_report(vehicle, params=None):
     layout = rotors.get("layout", "flat")
     count = rotors["count"]
     esc_eff = vehicle.get("esc", {}).get("efficiency", 1.0)
+    propeller, estimate = vehicle["propeller"], None
+    if "ct" not in propeller or "cp" not in propeller:
+        propeller, estimate = estimated_propeller(propeller, vehicle["mass_kg"], count, air)
+    battery, pack_temperature = pack_in_the_air(vehicle)
     est = hover_estimate(vehicle["mass_kg"], count, layout, rho, vehicle["motor"],
-                         vehicle["propeller"], vehicle["battery"], esc_eff)
+                         propeller, battery, esc_eff)
     nominal = est["states"]["nominal"]
     hov, full = nominal["hover"], nominal["full"]
-    area = disk_area_m2(vehicle["propeller"]["diameter_m"])
+    area = disk_area_m2(propeller["diameter_m"])
     per_rotor = nominal["weight_N"] / count
-    prop = rotor_propeller(vehicle["propeller"], layout)
+    prop = rotor_propeller(propeller, layout)
     hovering = est["hover_command"] is not None
     per_rotor_power = est["hover_power_W"] / count if hovering else None
+    discharge = est["discharge"]
     report = {
         "model": MODEL,
         "name": vehicle.get("name", "unnamed vehicle"),
@@ -70,6 +84,12 @@ def hover_report(vehicle, params=None):
         "hover_current_A": est["hover_current_A"],
         "hover_power_W": est["hover_power_W"],
         "flight_time_min": est["flight_time_min"],
+        "flight_time_basis": ("discharge from a full pack, hover current rising as the pack drains, "
+                              "to the first of: loaded cutoff, landing reserve, loss of hover"),
+        "flight_ended_by": discharge["ended_by"] if hovering else None,
+        "flight_time_usable_share_min": est["flight_time_usable_share_min"],
+        "flight_time_usable_share_basis": "usable share of the capacity at the nominal-pack hover current",
+        "discharge": discharge if hovering else None,
         "hover_limited_by": None if hovering else (hov["limited_by"] or "command"),
         "mass_kg": vehicle["mass_kg"],
         "weight_N": nominal["weight_N"],
@@ -80,13 +100,20 @@ def hover_report(vehicle, params=None):
         "hover_rpm": hov["rpm"] if hovering else None,
         "hover_bus_V": hov["bus_V"] if hovering else None,
         "hover_motor_current_A": hov["motor_current_A"] if hovering else None,
+        "hover_esc_input_current_A": hov["bus_current_A"] if hovering else None,
         "full_motor_current_A": full["motor_current_A"],
+        "full_esc_input_current_A": full["bus_current_A"],
         "full_pack_current_A": full["pack_current_A"],
         "full_bus_V": full["bus_V"],
         "motor_current_limit_A": vehicle["motor"].get("max_current_A"),
         "pack_current_limit_A": max_pack_current_A(vehicle["battery"]["capacity_Ah"],
                                                    vehicle["battery"].get("max_discharge_C")),
         "pack_voltage_V": {k: est["states"][k]["open_circuit_V"] for k in ("full", "nominal", "empty")},
+        "pack_resistance_ohm": battery["resistance_ohm"],
+        "pack_temperature_C": pack_temperature,
+        "pack_cold_factor": battery["resistance_ohm"] / vehicle["battery"]["resistance_ohm"]
+        if vehicle["battery"]["resistance_ohm"] > 0.0 else 1.0,
+        "cutoff_cell_V": battery["cutoff_cell_V"],
         "usable_Ah": est["usable_Ah"],
         "density_kg_m3": rho,
         "density_ratio": air["density_ratio"],
@@ -94,6 +121,10 @@ def hover_report(vehicle, params=None):
         "temperature_K": air["temperature_K"],
         "pressure_Pa": air["pressure_Pa"],
         "site_altitude_m": site.get("altitude_m", 0.0),
+        "propeller_ct": propeller["ct"],
+        "propeller_cp": propeller["cp"],
+        "propeller_source": "estimated" if estimate else "given",
+        "propeller_estimate": estimate,
         "figure_of_merit": figure_of_merit(prop["ct"], prop["cp"]),
         "static_factor": (static_factor(per_rotor, per_rotor_power, rho, area)
                           if per_rotor_power else None),
@@ -103,9 +134,25 @@ def hover_report(vehicle, params=None):
         "coaxial_factor_basis": "power",
         "esc_efficiency": esc_eff,
     }
-    report["warnings"] = assumed_warnings(vehicle) + margin_warnings(report)
+    report["warnings"] = (checks + assumed_warnings(vehicle) + ([estimate["note"]] if estimate else [])
+                          + margin_warnings(report))
     report["cautions"] = list(CAUTIONS)
     return report
+
+
+def pack_in_the_air(vehicle):
+    """The vehicle's battery dict with the resistance of a cold pack, and the pack temperature.
+
+    The pack is taken at battery.temperature_C, else at the site's temperature_C; when the file
+    gives neither, at 25 C (no cold factor). Returns (battery dict [resistance_ohm raised by
+    core.battery.cold_resistance_factor, cutoff_cell_V filled], temperature [C] or None).
+    """
+    battery = dict(vehicle["battery"])
+    temperature = battery.get("temperature_C", (vehicle.get("site") or {}).get("temperature_C"))
+    if temperature is not None:
+        battery["resistance_ohm"] = battery["resistance_ohm"] * cold_resistance_factor(temperature)
+    battery.setdefault("cutoff_cell_V", battery["empty_cell_V"] - 0.2)
+    return battery, temperature
 
 
 _SITE_KEYS = {"altitude": "altitude_m", "temperature": "temperature_C", "pressure": "pressure_Pa",
@@ -124,21 +171,53 @@ def vehicle_site_air(vehicle):
         raise InputError("%s: $.site.%s: %s" % (vehicle_source(vehicle), _SITE_KEYS[exc.quantity], exc)) from None
 
 
+# a sag of more than this share of the open-circuit voltage at full command is named as a cause
+SAG_CAUSE_SHARE = 0.2
+ENDED_BY_WORDS = {"cutoff": "the loaded-voltage cutoff", "reserve": "the landing reserve",
+                  "thrust": "the loss of hover (the drained pack can no longer hold it)"}
+
+
+def cannot_hover_cause(report):
+    """One warning that names the real limiting factor of a vehicle that cannot hover."""
+    weight = report.get("weight_N") or 0.0
+    full = report.get("full_thrust_N")
+    tw = report.get("thrust_to_weight")
+    if full is not None and full < weight:
+        text = ("cannot hover: full-command thrust %.1f N is below the weight %.1f N (thrust-to-weight "
+                "%.2f)" % (full, weight, tw or 0.0))
+        v_oc = (report.get("pack_voltage_V") or {}).get("nominal")
+        bus, pack_i, rating = (report.get("full_bus_V"), report.get("full_pack_current_A"),
+                               report.get("pack_current_limit_A"))
+        if v_oc and bus is not None and 1.0 - bus / v_oc > SAG_CAUSE_SHARE:
+            r_pack = report.get("pack_resistance_ohm")
+            text += ("; the pack cannot deliver the power: it sags from %.1f V to %.1f V at full "
+                     "command%s, which costs much of the thrust: a pack with less resistance, or more "
+                     "cells" % (v_oc, bus, "" if r_pack is None else " (resistance %.3g ohm)" % r_pack))
+        else:
+            text += ": the propulsion is too weak for this mass, not the pack"
+            if pack_i is not None and rating:
+                text += " (full command draws %.0f A, %.0f %% of the pack's %.0f A rating)" % (
+                    pack_i, 100.0 * pack_i / rating, rating)
+            text += "; lighten it, or fit a larger or higher-pitch propeller, a higher Kv or more cells"
+    elif report.get("hover_limited_by") == "pack":
+        text = ("cannot hover: the pack cannot deliver the hover power through its resistance (%s ohm) "
+                "at any voltage: a pack with less resistance or more cells"
+                % _num(report.get("pack_resistance_ohm"), "%.3g"))
+    else:
+        text = ("cannot hover at nominal pack: the command needed exceeds full command (thrust-to-weight "
+                "%.2f)" % (tw or 0.0))
+    if report.get("hover_command_full") is not None:
+        text += ("; a freshly charged pack would just hold it (command %.2f at full pack): not flyable"
+                 % report["hover_command_full"])
+    return text
+
+
 def margin_warnings(report):
     """Warnings for a report dict with the keys of hover_report (also usable on fitted reports)."""
     out = []
     tw = report.get("thrust_to_weight")
     if report.get("hover_command") is None:
-        if report.get("hover_limited_by") == "pack":
-            out.append("cannot hover: the pack cannot deliver the hover power at any voltage "
-                       "(pack resistance too high or pack too small)")
-        else:
-            out.append("cannot hover: full-command thrust %.1f N is below the weight %.1f N "
-                       "(thrust-to-weight %.2f)" % (report.get("full_thrust_N") or 0.0,
-                                                    report.get("weight_N") or 0.0, tw or 0.0))
-    if report.get("hover_command") is None and report.get("hover_command_full") is not None:
-        out.append("only a freshly charged pack holds it (command %.2f at full pack): not flyable"
-                   % report["hover_command_full"])
+        out.append(cannot_hover_cause(report))
     worst = None
     for key, label in (("hover_command_empty", "empty"), ("hover_command", "nominal"),
                        ("hover_command_full", "full")):
@@ -188,6 +267,10 @@ def _num(value, fmt, unit="", none="n/a"):
     return (fmt % value) + (" " + unit if unit else "")
 
 
+def _at_hover(current_A):
+    return "" if current_A is None else "%.1f A at hover, " % current_A
+
+
 def format_sheet(report):
     """The human pre-flight sheet for a report dict, grouped by the builder's questions."""
     lines = []
@@ -216,12 +299,8 @@ def format_sheet(report):
         if report.get("model") == MODEL:
             lines.append("         " + DUTY_NOTE)
     else:
-        lines.append("   NO - it cannot hover: full-command thrust %s against a weight of %s." % (
-            _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("weight_N"), "%.1f", "N")))
-        if report.get("hover_command_full") is not None:
-            lines.append("        A freshly charged pack would just hold it at command %.2f: no usable margin."
-                         % report["hover_command_full"])
-        lines.append("        Lighten it, or fit more thrust (propeller, motor Kv, cells).")
+        cause = cannot_hover_cause(report)
+        lines.append("   NO - it " + cause)
     lines.append("")
 
     lines.append("2. With what margin?")
@@ -229,21 +308,49 @@ def format_sheet(report):
                  % _num(report.get("thrust_to_weight"), "%.2f"))
     lines.append("   full-command thrust %s total, each rotor must make %s" % (
         _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("thrust_per_rotor_N"), "%.2f", "N")))
+    count = report.get("rotor_count") or 0
+    esc_hover = report.get("hover_esc_input_current_A", report.get("per_rotor_bus_current_A"))
+    esc_full = report.get("full_esc_input_current_A")
+    if esc_full is None and report.get("full_pack_current_A") is not None and count:
+        esc_full = report["full_pack_current_A"] / count
     if report.get("hover_motor_current_A") is not None or report.get("full_motor_current_A") is not None:
-        lines.append("   current per motor  %s at hover, %s at full command (motor limit %s)" % (
-            _num(report.get("hover_motor_current_A"), "%.1f", "A"),
-            _num(report.get("full_motor_current_A"), "%.1f", "A"),
-            _num(report.get("motor_current_limit_A"), "%.0f", "A", none="not given")))
-    lines.append("   pack current       %s at hover, %s at full command, all %d motors (rating %s)" % (
-        _num(report.get("hover_current_A"), "%.1f", "A", none="no hover"),
-        _num(report.get("full_pack_current_A"), "%.0f", "A"), report.get("rotor_count", 0),
-        _num(report.get("pack_current_limit_A"), "%.0f", "A", none="not given")))
+        lines.append("   motor current      %s%s at full command, each motor (ESC output; "
+                     "motor limit %s)" % (
+                         _at_hover(report.get("hover_motor_current_A")),
+                         _num(report.get("full_motor_current_A"), "%.1f", "A"),
+                         _num(report.get("motor_current_limit_A"), "%.0f", "A", none="not given")))
+    lines.append("   ESC input current  %s%s at full command, each ESC from the pack (what "
+                 "ESC telemetry reports)" % (_at_hover(esc_hover), _num(esc_full, "%.1f", "A")))
+    if report.get("can_hover"):
+        lines.append("   pack current       %s at hover, %s at full command, all %d motors (rating %s)" % (
+            _num(report.get("hover_current_A"), "%.1f", "A"),
+            _num(report.get("full_pack_current_A"), "%.0f", "A"), count,
+            _num(report.get("pack_current_limit_A"), "%.0f", "A", none="not given")))
+    else:
+        lines.append("   pack current       %s at full command, all %d motors (rating %s)" % (
+            _num(report.get("full_pack_current_A"), "%.0f", "A"), count,
+            _num(report.get("pack_current_limit_A"), "%.0f", "A", none="not given")))
     lines.append("")
 
     lines.append("3. For how long?")
     if report.get("can_hover"):
-        lines.append("   about %s of hover on %s usable" % (
-            _num(report.get("flight_time_min"), "%.1f", "min"), _num(report.get("usable_Ah"), "%.2f", "Ah")))
+        ended = report.get("flight_ended_by")
+        if ended:
+            lines.append("   about %s of hover from a full pack, ended by %s" % (
+                _num(report.get("flight_time_min"), "%.1f", "min"), ENDED_BY_WORDS.get(ended, ended)))
+            lines.append("   (the usable share alone, %s at the nominal-pack hover current, gives %s)" % (
+                _num(report.get("usable_Ah"), "%.2f", "Ah"),
+                _num(report.get("flight_time_usable_share_min"), "%.1f", "min")))
+        else:
+            lines.append("   about %s of hover on %s usable (%s)" % (
+                _num(report.get("flight_time_min"), "%.1f", "min"), _num(report.get("usable_Ah"), "%.2f", "Ah"),
+                report.get("flight_time_basis", "usable share at the nominal-pack hover current")))
+        if report.get("cutoff_cell_V") is not None:
+            cold = report.get("pack_cold_factor") or 1.0
+            lines.append("   cutoff %.2f V per cell under load; pack resistance %s%s" % (
+                report["cutoff_cell_V"], _num(report.get("pack_resistance_ohm"), "%.3g", "ohm"),
+                (" (x%.2f for a pack at %.0f C, cold factor from memory)"
+                 % (cold, report.get("pack_temperature_C"))) if cold > 1.0 else ""))
         lines.append("   hover draws %s from the pack (all motors), %s (nominal pack, bus at %s)" % (
             _num(report.get("hover_current_A"), "%.1f", "A"), _num(report.get("hover_power_W"), "%.0f", "W"),
             _num(report.get("hover_bus_V"), "%.2f", "V")))
@@ -261,7 +368,8 @@ def format_sheet(report):
     lines.append("")
 
     lines.append("4. What to watch out for")
-    warnings = report.get("warnings") or []
+    warnings = [w for w in report.get("warnings") or []
+                if report.get("can_hover") or not w.startswith("cannot hover")]
     if warnings:
         for w in warnings:
             lines.append("   ! " + w)
