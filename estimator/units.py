@@ -9,7 +9,7 @@ import re
 
 from estimator.errors import InputError
 
-STANDARD_GRAVITY_M_S2 = 9.80665  # exact, CGPM 1901 / NIST SP 811
+from estimator.core.constants import STANDARD_GRAVITY_M_S2  # one home: the core
 
 # kind -> {suffix: (scale, offset)} so that SI = value * scale + offset
 _UNITS = {
