@@ -13,12 +13,17 @@ import os
 
 from estimator import __version__
 from estimator.errors import InputError
+from estimator.core.power_model import KEYS as POWER_KEYS
 from estimator.jsonio import load_json, validate, write_json_atomic
 
 MODEL = "liftcal.rotor/1"
+POWER_FORM = "p0+p_h*T^0.5+p_1*T+p_15*T^1.5+p_2*T^2"
+MOTOR_FORM = "dc-motor+propeller/back-emf"
 SCHEMA = "params.schema.json"
-FIT_METHOD = ("Huber M-estimation (c = 1.345) by Gauss-Newton IRLS, robust scale 1.4826 MAD, "
-              "sandwich covariance; rows beyond 6 robust sigmas counted as spikes and left out")
+FIT_METHOD = ("rows averaged per command level and supply (rows beyond 6 robust sigmas of their level "
+              "left out as spikes); DC motor + propeller model and thrust curve by scipy.optimize."
+              "least_squares (trust region reflective, bounds, soft_l1 loss); power model by "
+              "non-negative least squares (scipy.optimize.nnls)")
 
 
 def _r(x, digits=6):
@@ -44,7 +49,7 @@ def build_params(data, fit, source, vehicle=None, hover=None):
         "rotor": {"diameter_m": _r(data["diameter_m"])},
         "bench_air": {"density_kg_m3": _r(rho), "source": data["bench_air"]["source"]},
         "thrust_curve": {
-            "command_min": _r(curve["command_min"]), "command_max": 1.0,
+            "command_min": _r(curve["command_min"]), "command_max": _r(curve["command_max"]),
             "quadratic_share": _r(curve["quadratic_share"]), "thrust_max_N": _r(curve["thrust_max_N"]),
             "reference_voltage_V": _r(curve["reference_voltage_V"]),
             "voltage_min_V": _r(curve["voltage_min_V"]),
@@ -52,14 +57,15 @@ def build_params(data, fit, source, vehicle=None, hover=None):
             "voltage_exponent": _r(curve["voltage_exponent"]),
             "density_exponent": _r(curve["density_exponent"]),
             "reference_density_kg_m3": _r(rho),
-            "voltage_exponent_source": "fitted" if curve["voltage_exponent_fitted"] else "default",
-            "density_exponent_source": "derived: m = n - 1 (DC motor model)",
+            "voltage_exponent_source": curve["voltage_exponent_source"],
+            "density_exponent_source": "motor model: d ln T / d ln rho at full command",
+            "command_swept_min": _r(curve["command_swept_min"]),
+            "command_swept_max": _r(curve["command_swept_max"]),
         },
+        "motor_model": motor_block(fit["motor"]),
         "power_model": {
-            "form": "idle+induced+copper",
-            "idle_power_W": _r(power["idle_power_W"]),
-            "induced_W_per_N1_5": _r(power["induced_W_per_N1_5"]),
-            "copper_W_per_N2": _r(power["copper_W_per_N2"]),
+            "form": POWER_FORM,
+            **{k: _r(power[k]) for k in POWER_KEYS},
             "reference_density_kg_m3": _r(rho),
             "residual_rel_std": _r(power["residual_rel_std"]),
             "residual_basis": "command and voltage -> thrust curve -> power model, rows above 10 % of thrust_max_N",
@@ -77,7 +83,7 @@ def build_params(data, fit, source, vehicle=None, hover=None):
         },
         "fit_quality": {
             "rms_residual_N": _r(curve["rms_residual_N"]),
-            "residual_scale_N": _r(curve["robust_scale_N"]),
+            "residual_scale_N": _r(curve["residual_scale_N"]),
             "power_rms_residual_W": _r(power["power_rms_residual_W"]),
             "rows_used": fit["rows_used"], "rows_rejected": fit["rows_rejected"],
             "rejected": dict(fit["rejected"]),
@@ -88,6 +94,7 @@ def build_params(data, fit, source, vehicle=None, hover=None):
             "rows_used": fit["rows_used"], "rows_rejected": fit["rows_rejected"],
             "tool_version": __version__, "created_utc": created.strftime("%Y-%m-%dT%H:%M:%SZ"),
             "bench_air": {"density_kg_m3": _r(rho), "source": data["bench_air"]["source"]},
+            "units": {"thrust": data.get("thrust_unit", "N"), "command": data.get("command_unit", "-")},
         },
         "warnings": list(fit["warnings"]),
     }
@@ -96,6 +103,13 @@ def build_params(data, fit, source, vehicle=None, hover=None):
     if hover is not None:
         params["hover"] = {k: (_r(v) if isinstance(v, float) else v) for k, v in hover.items()}
     return params
+
+
+def motor_block(motor):
+    """The ``motor_model`` block: the fitted DC motor + propeller model (bench.motor_fit)."""
+    out = {k: (_r(v) if isinstance(v, float) else v) for k, v in motor.items()}
+    out["form"] = MOTOR_FORM
+    return out
 
 
 def vehicle_block(vehicle):

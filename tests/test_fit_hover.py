@@ -70,9 +70,11 @@ def test_hover_power_is_above_the_momentum_theory_bound_and_consistent(fitted):
     ideal = vehicle["rotors"]["count"] * ideal_power_W(per_rotor, rho, area)
     # momentum theory: no real rotor hovers on less than the ideal power (k <= 1)
     assert report["hover_power_W"] > ideal
-    # the power model scales the induced term by sqrt(rho_ref / rho) (DEVELOPERS.md)
+    # the hover power comes from the fitted motor model; the power model (estimator.core.
+    # power_model, fitted to the same sweep, T^0.5 and T^1.5 terms scaled by sqrt(rho_ref / rho))
+    # must tell the same within 2 % (two fits of one sweep, extrapolated to the site air)
     expected = vehicle["rotors"]["count"] * rotor_power_W(params["power_model"], per_rotor, rho)
-    assert report["hover_power_W"] == pytest.approx(expected, rel=1e-12)
+    assert report["hover_power_W"] == pytest.approx(expected, rel=0.02)
     # I = P / V and endurance = 60 C_use / I (definition of capacity)
     assert report["hover_current_A"] == pytest.approx(report["hover_power_W"] / report["hover_bus_V"], rel=1e-12)
     usable = vehicle["battery"]["capacity_Ah"] * vehicle["battery"]["usable_fraction"]
@@ -104,7 +106,7 @@ def test_parameter_set_carries_the_vehicle_and_hover(fitted):
     assert params["vehicle"]["rotor_count"] == 4 and params["static_factor"]["value_at"] == "hover"
     h = params["hover"]
     lo, hi = h["hover_command_interval_95"]
-    assert lo <= h["hover_command"] <= hi and "linearised" in h["interval_method"]
+    assert lo <= h["hover_command"] <= hi and "model-form error" in h["interval_method"]
     # k at hover from the line k0 + slope T (DEVELOPERS.md)
     k = params["static_factor"]
     assert k["value"] == pytest.approx(k["k0"] + k["slope_per_N"] * h["thrust_per_rotor_N"], rel=1e-4)
@@ -170,13 +172,15 @@ def test_fitted_sheet_keeps_the_motor_and_pack_current_checks(fitted):
     vehicle, params, _ = fitted
     report = hover_from_params(_six_cell(vehicle, max_discharge_C=20), params)  # 6S on the 4S fit
     count = vehicle["rotors"]["count"]
-    # ideal ESC (fitted_hover docstring): at full command duty 1, motor current = rotor bus
-    # current = pack current / N; exact by construction
-    assert report["full_motor_current_A"] == pytest.approx(report["full_pack_current_A"] / count, rel=1e-12)
-    # in hover I_motor = I_bus,rotor / x with x = (u - u_min) / (u_max - u_min)
-    c = params["thrust_curve"]
-    x = (report["hover_command"] - c["command_min"]) / (c["command_max"] - c["command_min"])
-    assert report["hover_motor_current_A"] == pytest.approx(report["hover_current_A"] / count / x, rel=1e-12)
+    # ideal ESC (measured_rotor docstring): at full command duty 1, motor current = rotor bus
+    # current less the ESC's own draw; exact by construction
+    mm = params["motor_model"]
+    iq = mm["esc_idle_current_A"]
+    assert report["full_motor_current_A"] == pytest.approx(report["full_pack_current_A"] / count - iq, rel=1e-9)
+    # in hover I_motor = (I_bus,rotor - I_q) / d with the motor model's duty at the hover
+    # command, d = ((u - u0) / (u1 - u0))^g; never the quadratic's intercept command_min
+    d = ((report["hover_command"] - mm["command_start"]) / (mm["command_top"] - mm["command_start"])) ** mm["duty_exponent"]
+    assert report["hover_motor_current_A"] == pytest.approx((report["hover_current_A"] / count - iq) / d, rel=1e-9)
     limit = vehicle["motor"]["max_current_A"]
     assert report["full_motor_current_A"] > limit  # the case the trial found (about 40 A on 30 A)
     # the datasheet sheet's own wording: one shared function (estimator.preflight.margin_warnings)
@@ -185,15 +189,16 @@ def test_fitted_sheet_keeps_the_motor_and_pack_current_checks(fitted):
     # 20 C x 5 Ah = 100 A (definition of C-rate) is below the full-command pack current
     assert report["full_pack_current_A"] > 100.0
     assert any("above its rating of 100 A" in w for w in report["warnings"])
-    assert any(w.startswith("pack voltage beyond the bench sweep") for w in report["warnings"])
+    assert any(w.startswith("bus voltage beyond the bench sweep") for w in report["warnings"])
     assert not any("per rotor from the bus" in w for w in report["warnings"])  # no second copy
 
 
-def test_fitted_hover_motor_current_errs_high_against_the_physics(fitted):
+def test_fitted_hover_motor_current_follows_the_physics(fitted):
     # reference: the simulator's DC motor + ESC (benchsim) at the fitted hover command and
-    # hover bus voltage. Taking the curve's x as the duty (the dead band of the fit, 0.14,
-    # sits above the simulator's 0.06) and ignoring the ESC's 5 % loss both err high, never
-    # low; here x = 0.47 against duty 0.51 and 5 % loss give about +15 %, bounded by 25 %
+    # hover bus voltage. Before, the quadratic's intercept (0.14, above the simulator's 0.06
+    # dead band) was taken as a duty offset: +15 % here, up to +49 % elsewhere. The motor
+    # model's own spin-up and duty leave the ESC's 5 % loss (folded into the fitted I0, c):
+    # within 6 %
     from estimator.demo.bench_sim import DEAD_BAND, ESC_EFFICIENCY, demo_rotor
     from estimator.core.motor import rotor_operating_point
     vehicle, params, _ = fitted
@@ -202,7 +207,7 @@ def test_fitted_hover_motor_current_errs_high_against_the_physics(fitted):
     motor, prop = demo_rotor()
     duty = (report["hover_command"] - DEAD_BAND) / (1.0 - DEAD_BAND)
     true = rotor_operating_point(duty, report["hover_bus_V"], report["density_kg_m3"], motor, prop, ESC_EFFICIENCY)
-    assert true["motor_current_A"] <= report["hover_motor_current_A"] <= 1.25 * true["motor_current_A"]
+    assert report["hover_motor_current_A"] == pytest.approx(true["motor_current_A"], rel=0.06)
 
 
 def test_voltage_range_warning_uses_the_sweep_range_when_recorded(fitted):
@@ -232,7 +237,7 @@ def test_fitted_sheet_interval_is_short_and_says_what_it_holds(fitted):
     vehicle, params, _ = fitted
     sheet = format_sheet(dict(hover_from_params(vehicle, params), cautions=None))
     line = [l for l in sheet.splitlines() if "95 % interval" in l][0]
-    assert line.strip().endswith("(bench-fit uncertainty only; not site, pack or prop-to-prop spread)")
+    assert line.strip().endswith("(bench-fit and model-form uncertainty; not site, pack or prop-to-prop spread)")
     assert "delta method" not in sheet
     assert "start-up dead band" not in sheet  # that note belongs to the datasheet sheet
 
@@ -259,7 +264,8 @@ def test_pack_limited_vehicle_on_the_fitted_model(fitted):
     doc["battery"]["resistance_ohm"] = 1.0  # V_oc^2 = 219 V^2 < 4 R P = 1120 V^2: no bus voltage delivers it
     report = hover_from_params(check_vehicle(doc, "weak.json"), params)
     assert report["hover_command"] is None and report["hover_limited_by"] == "pack"
-    assert report["full_motor_current_A"] == pytest.approx(report["full_pack_current_A"] / 4, rel=1e-12)
+    iq = params["motor_model"]["esc_idle_current_A"]
+    assert report["full_motor_current_A"] == pytest.approx(report["full_pack_current_A"] / 4 - iq, rel=1e-9)
     with pytest.raises(InputError) as info:
         hover_block(check_vehicle(doc, "weak.json"), params)
     assert str(info.value).startswith("weak.json: ") and "pack cannot deliver" in str(info.value)

@@ -207,6 +207,8 @@ def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
 
 
 def test_expected_power_matches_float_power_model():
+    from estimator.core.power_model import rotor_power_W
+
     # DEVELOPERS.md power model at the thrust-curve thrust, times rotor count, density-corrected.
     # Tolerance 1 %: Q12 fractions (0.05 %), 1/32 table steps in f (below 0.2 % at hover), 0.1 W units.
     params = demo_fit_params()
@@ -219,8 +221,7 @@ def test_expected_power_matches_float_power_model():
             w = Watch(as_tuple(cfg))
             w.update(100, int(round(1000 * u)), int(volts * 1000), 20000)
             t = thrust_curve.thrust_N(u, volts, rho, params["thrust_curve"])
-            ref = n * (pm["idle_power_W"] + pm["induced_W_per_N1_5"] * t ** 1.5
-                       * math.sqrt(pm["reference_density_kg_m3"] / rho) + pm["copper_W_per_N2"] * t * t)
+            ref = n * rotor_power_W(pm, t, rho)  # the one power model (estimator.core.power_model)
             assert abs(w.expected_dW / 10.0 - ref) / ref < 0.01, (u, volts, w.expected_dW, ref)
 
 

@@ -34,8 +34,9 @@ UNITS = {
 }
 _COMMENT_KEYS = {"density": "density", "altitude": "altitude", "temperature": "temperature",
                  "pressure": "pressure", "humidity": "percent", "diameter": "length"}
-# a bench bus outside these is almost surely a unit slip (mV labelled V, or V labelled mV)
-BUS_VOLTAGE_RANGE_V = (1.0, 100.0)
+# a bench bus outside these is almost surely a unit slip (mV labelled V, or V labelled mV);
+# the top allows 40 lithium cells in series (4.35 V each, high-voltage cells) [V]
+BUS_VOLTAGE_RANGE_V = (1.0, 200.0)
 # idle current-sensor noise tolerated below zero: the larger of this and 1 % of the largest
 # current [A] (common practice for hall-effect bench sensors, not a standard)
 NEGATIVE_CURRENT_TOLERANCE_A = 0.25
@@ -54,37 +55,6 @@ def _sha256(path):
         for block in iter(lambda: fh.read(1 << 22), b""):
             h.update(block)
     return h.hexdigest()
-
-
-class _Digest:
-    """SHA-256 of a file computed on a helper thread (hashlib releases the GIL on large
-    blocks, so it runs beside the numpy work of the fit); value() waits for it."""
-
-    def __init__(self, path):
-        import threading
-
-        self._path, self._value, self._error = path, None, None
-        self._thread = threading.Thread(target=self._run, daemon=True)
-        self._thread.start()
-
-    def _run(self):
-        try:
-            self._value = _sha256(self._path)
-        except OSError as exc:
-            self._error = exc
-
-    def value(self):
-        self._thread.join()
-        if self._error is not None:
-            raise InputError("%s: cannot read (%s)" % (self._path, self._error.strerror))
-        return self._value
-
-
-def bench_digest(data):
-    """The input_sha256 of read_bench data, waiting for a background hash if one runs."""
-    if data.get("input_sha256") is None and "_digest" in data:
-        data["input_sha256"] = data.pop("_digest").value()
-    return data["input_sha256"]
 
 
 EXAMPLE_HEADER = "command[-],voltage[V],current[A],thrust[N]"
@@ -119,36 +89,12 @@ def _slow_parse(path, skip, ncols):
 
 
 _LOADTXT = {"delimiter": ",", "comments": "#", "ndmin": 2, "dtype": float, "encoding": "utf-8"}
-# files at least this large are parsed by two processes when the system can fork [bytes]
-PARALLEL_MIN_BYTES = 8 << 20
-# share of the data lines the helper process parses: it reads them through a line iterator,
-# a little slower per line than the parent's own numpy.loadtxt of the rest, which first
-# skips the helper's lines (measured on 1,000,000-row sweeps; any share gives the same table)
-HELPER_SHARE = 0.45
-# the same when this process first runs other work beside the parse (read_bench's beside=),
-# such as the roughly 40 ms import of the schema validator before writing a parameter set
-HELPER_SHARE_BESIDE = 0.55
-_PART_MAGIC = 0x6C69667463616C31  # marks a complete part written by the helper
-_PART_HEADER = 64                 # bytes before the helper's numbers (magic, rows, columns)
 
 
-def _load_numbers(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES, beside=None):
-    """The numbers of the data rows as a list of row-major tables (read in this order, they
-    are numpy.loadtxt's table of the whole file). Fast path: numpy.loadtxt (checks that
-    every row has the header's width), split over two processes for large files; on any
-    trouble, the single-process loadtxt and then the slow parse that names the row or turns
-    empty cells into NaN. beside: optional callable run once in this process, while the
-    helper parses when there is one, else before the parse."""
-    pending = [beside] if beside is not None else []
-    parts = _parallel_load(path, skip, ncols, parallel_min_bytes, beside=pending)
-    if parts is not None:
-        return parts
-    while pending:
-        pending.pop()()
-    return [_load_single(path, skip, ncols)]
-
-
-def _load_single(path, skip, ncols):
+def _load_numbers(path, skip, ncols):
+    """The numbers of the data rows: one numpy.loadtxt of the file (it checks that every row
+    has the header's width); on any trouble (also NaN or infinity written in a cell) the slow
+    parse, which names the broken row or turns empty cells into NaN."""
     import warnings
 
     import numpy as np
@@ -157,213 +103,33 @@ def _load_single(path, skip, ncols):
         with warnings.catch_warnings():
             warnings.simplefilter("error")
             table = np.loadtxt(path, skiprows=skip, **_LOADTXT)
-        if table.shape[1] == ncols and _finite(table):
+        if table.shape[1] == ncols and bool(np.isfinite(table).all()):
             return table
     except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
         pass
     return _slow_parse(path, skip, ncols)
 
 
-def _estimated_lines(path, size):
-    """Lines of the file estimated from a 64 KiB sample at its middle [-]."""
-    with open(path, "rb") as fh:
-        fh.seek(max(0, size // 2 - (1 << 15)))
-        sample = fh.read(1 << 16)
-    newlines = sample.count(b"\n")
-    return size * newlines // len(sample) if newlines and sample else 0
-
-
-def _parallel_load(path, skip, ncols, parallel_min_bytes=PARALLEL_MIN_BYTES, helper_lines=None,
-                   beside=()):
-    """numpy.loadtxt's table of a large file as two parts read by two processes, or None when
-    the file is small, the system cannot fork, or anything at all goes wrong (the caller
-    then reads the file in one process, which also reports any error as usual).
-
-    A forked helper parses the ``helper_lines`` text lines after the ``skip`` lines before
-    the data (default: HELPER_SHARE of the estimated lines) and writes its table into an
-    anonymous shared-memory file; this process parses the rest with skiprows. Lines are
-    text-mode lines on both sides (the same universal-newline reading numpy.loadtxt does),
-    and comment and blank lines are skipped on both sides as in one loadtxt, so the two
-    parts in order are that table bit for bit. beside: a list of callables, taken out and
-    run in this process after the fork, before its own part (the helper then takes the
-    larger share, HELPER_SHARE_BESIDE). numpy.loadtxt holds the GIL, hence a
-    process, not a thread. Forking while another Python thread runs is unsafe, so this
-    needs the calling process to run one (the file hash starts after the parse); numpy's
-    BLAS worker threads idle on their own locks and the helper never calls BLAS.
-    """
-    import os
-    import threading
-    import warnings
-
-    if not (hasattr(os, "fork") and hasattr(os, "memfd_create") and hasattr(os, "waitpid")):
-        return None
-    if threading.active_count() != 1:
-        return None
-    try:
-        size = os.path.getsize(path)
-        if size < parallel_min_bytes:
-            return None
-        if helper_lines is None:
-            share = HELPER_SHARE_BESIDE if beside else HELPER_SHARE
-            helper_lines = int(share * max(0, _estimated_lines(path, size) - skip))
-        if helper_lines < 1:
-            return None
-        fd = os.memfd_create("liftcal-bench-part", getattr(os, "MFD_CLOEXEC", 0))
-    except (OSError, ValueError):
-        return None
-    pid = None
-    try:
-        with warnings.catch_warnings():
-            # Python 3.12+ warns of any OS thread at a fork, the idle BLAS workers included
-            warnings.simplefilter("ignore", DeprecationWarning)
-            pid = os.fork()
-        if pid == 0:  # the helper: never returns, never runs the caller's code
-            code = 1
-            try:
-                _helper_part(path, skip, helper_lines, ncols, fd)
-                code = 0
-            except BaseException:
-                pass
-            finally:
-                os._exit(code)
-        while beside:
-            beside.pop()()
-        rest = _part(path, skip + helper_lines, ncols)
-        _, status = os.waitpid(pid, 0)
-        pid = None
-        if rest is None or not (os.WIFEXITED(status) and os.WEXITSTATUS(status) == 0):
-            return None
-        first = _read_part(fd, ncols)
-        return None if first is None else [first, rest]
-    except (OSError, ValueError):
-        return None
-    finally:
-        if pid is not None:  # this process failed or was interrupted while the helper ran
-            import signal
-
-            try:
-                os.kill(pid, signal.SIGKILL)
-                os.waitpid(pid, 0)
-            except OSError:
-                pass
-        os.close(fd)
-
-
-def _part(path, skip, ncols):
-    """numpy.loadtxt's table of the file after ``skip`` lines, or None on any trouble."""
-    import warnings
-
-    import numpy as np
-
-    try:
-        with warnings.catch_warnings():
-            warnings.simplefilter("error")
-            table = np.loadtxt(path, skiprows=skip, **_LOADTXT)
-    except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
-        return None
-    return table if table.shape[1] == ncols and _finite(table) else None
-
-
-def _finite(table):
-    """True when every number is finite: NaN or infinity written in a cell (which
-    numpy.loadtxt reads) sends the file to the slow parse, which refuses it with its line."""
-    import numpy as np
-
-    return bool(np.isfinite(table).all())
-
-
-def _helper_part(path, skip, lines, ncols, fd):
-    """In the helper process: parse ``lines`` text lines after ``skip`` lines and write the
-    table to the shared-memory file ``fd`` (numbers first, then the header that marks the
-    part complete). Raises on any trouble; the helper then exits with status 1."""
-    import itertools
-    import mmap
-    import os
-    import struct
-    import warnings
-
-    import numpy as np
-
-    with open(path, "r", encoding="utf-8") as fh:  # as numpy.loadtxt opens a path
-        with warnings.catch_warnings():
-            warnings.simplefilter("error")
-            table = np.loadtxt(itertools.islice(fh, skip, skip + lines), **_LOADTXT)
-    if table.shape[1] != ncols or not _finite(table):
-        raise ValueError("column count or a number that is not finite")
-    os.ftruncate(fd, _PART_HEADER + table.nbytes)
-    with mmap.mmap(fd, _PART_HEADER + table.nbytes) as mm:
-        out = np.frombuffer(mm, dtype=np.float64, count=table.size, offset=_PART_HEADER)
-        out[:] = table.reshape(-1)
-        del out
-        struct.pack_into("<qqq", mm, 0, _PART_MAGIC, table.shape[0], table.shape[1])
-
-
-def _read_part(fd, ncols):
-    """The helper's table from the shared-memory file (a read-only view), or None when the
-    part is incomplete or not of the expected shape."""
-    import mmap
-    import os
-    import struct
-
-    import numpy as np
-
-    size = os.fstat(fd).st_size
-    if size < _PART_HEADER:
-        return None
-    mm = mmap.mmap(fd, size, access=mmap.ACCESS_READ)
-    magic, rows, cols = struct.unpack_from("<qqq", mm, 0)
-    if magic != _PART_MAGIC or cols != ncols or rows < 1 or _PART_HEADER + rows * cols * 8 != size:
-        mm.close()
-        return None
-    return np.frombuffer(mm, dtype=np.float64, count=rows * cols,
-                         offset=_PART_HEADER).reshape(rows, cols)
-
-
-def _columns(tables, indices, block_rows=8192):
-    """Contiguous copies of the columns ``indices`` of the row-major tables stacked in
-    order, copied block by block so each block is read from the cache once for all of them."""
-    import numpy as np
-
-    n = sum(table.shape[0] for table in tables)
-    out = [np.empty(n) for _ in indices]
-    start = 0
-    for table in tables:
-        for b0 in range(0, table.shape[0], block_rows):
-            block = table[b0:b0 + block_rows]
-            rows = slice(start + b0, start + b0 + block.shape[0])
-            for col, index in zip(out, indices):
-                col[rows] = block[:, index]
-        start += table.shape[0]
-    return out
-
-
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
-               pressure_Pa=None, humidity_pct=None, hash_in_background=False,
-               parallel_min_bytes=PARALLEL_MIN_BYTES, beside=None):
+               pressure_Pa=None, humidity_pct=None):
     """Read a bench CSV into SI arrays and apply the row checks.
 
     Options override the file's comment header. Returns a dict: command, voltage_V,
     thrust_N, power_W (numpy arrays of the rows kept), rows_total, rows_rejected,
     rejected (reason -> count), bench_air {density_kg_m3, source}, diameter_m (or None),
     input_sha256, warnings (list of str). Raises InputError on broken files and on units
-    that are very likely mislabelled. hash_in_background=True leaves input_sha256 None
-    and hashes the file on a helper thread after the parse, while the caller fits (the
-    parse itself runs faster alone); bench_digest(data) then waits for the value.
-    Files of at least parallel_min_bytes bytes are parsed by two processes where the system
-    can fork (_parallel_load); the result is the same. beside: optional callable without
-    arguments run once during the parse, in this process while the helper parses its part
-    (work the caller needs later anyway, e.g. imports); errors it raises propagate.
+    that are very likely mislabelled.
     """
     import numpy as np
 
     comments, head, header_line = _read_head(path)
     columns, warnings = _parse_header(path, head)
     ncols = len(head.cells)
-    tables = _load_numbers(path, header_line, ncols, parallel_min_bytes, beside)
-    digest = _Digest(path) if hash_in_background else _sha256(path)  # threads after the parse
+    table = _load_numbers(path, header_line, ncols)
+    digest = _sha256(path)
     data = {}
-    cols = _columns(tables, [columns[name][0] for name in REQUIRED])
-    del tables
+    cols = [np.ascontiguousarray(table[:, columns[name][0]]) for name in REQUIRED]
+    del table
     for name, col in zip(REQUIRED, cols):
         unit = columns[name][1]
         scale, offset = UNITS[name][unit]
@@ -386,9 +152,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     clean = all(math.isfinite(x) for x in extremes)
     v_med = None
     if clean:
-        from estimator.bench.robust import fast_median  # one selection; the same value as np.median
-
-        v_med = fast_median(v[:: max(1, v.size // 200000)])
+        v_med = float(np.median(v[:: max(1, v.size // 200000)]))
     _check_units(path, data, v_med, extremes if clean else None)
     units = {name: data[name + "_unit"] for name in REQUIRED}
     if clean:
@@ -420,11 +184,9 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
         "rows_total": rows_total, "rows_rejected": rows_total - n_keep,
         "rejected": {k: c for k, c in rejected.items() if c},
         "bench_air": air, "diameter_m": diameter_m,
-        "input_sha256": None if hash_in_background else digest,
+        "input_sha256": digest,
         "warnings": warnings,
     }
-    if hash_in_background:
-        out["_digest"] = digest
     return out
 
 

@@ -1,25 +1,33 @@
 """From a bench CSV to a parameter set (model ``liftcal.rotor/1``): the whole fit pipeline.
 
-read (estimator.bench.reader) -> static-factor plausibility (k <= 1) -> thrust curve
-(estimator.bench.curve_fit) -> power model and k(T) (estimator.bench.power_fit) -> optional hover
-values for a vehicle (estimator.preflight.measured_rotor) -> parameter set (estimator.params.build).
+read (estimator.bench.reader) -> static-factor plausibility (k <= 1, unit slips) -> command
+levels (estimator.bench.levels) -> DC motor + propeller model (estimator.bench.motor_fit,
+liftcal's own predictions) -> the controller's quadratic (estimator.bench.curve_fit) ->
+power model and k(T) (estimator.bench.power_fit) -> optional hover values for a vehicle
+(estimator.preflight.measured_rotor) -> parameter set (estimator.params.build_params).
 """
 
+import math
 import os
 
 import numpy as np
 
 from estimator.errors import InputError
 from estimator.core.momentum import disk_area_m2
-from estimator.bench.curve_fit import command_groups, fit_thrust_curve, thrust_model_N
+from estimator.bench.curve_fit import check_rising, fit_quadratic, thrust_model_N
+from estimator.bench.levels import command_levels
+from estimator.bench.motor_fit import fit_motor, params_dict, rotor_arrays
 from estimator.bench.power_fit import (MAD_ROWS, check_static_factor, fit_power_model, fit_static_factor,
-                                 power_model_W, static_factor_at, watch_residual_rel_std)
-from estimator.bench.robust import WORK_ROWS
+                                       power_model_W, static_factor_at, watch_residual_rel_std)
+
+# the sweep shows the ESC's top end point when the motor fit puts it this far below the
+# highest command swept [-]
+TOP_END_MARGIN = 0.01
 
 
 def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, altitude_m=None,
                    temperature_C=None, pressure_Pa=None, humidity_pct=None,
-                   voltage_exponent=None, keep_arrays=False, work_rows=WORK_ROWS, beside=None):
+                   voltage_exponent=None, keep_arrays=False):
     """Fit a bench CSV and return the parameter-set dict (not yet written; see params.write_params).
 
     path: bench CSV; diameter_m: propeller diameter [m] (else ``# diameter:`` or the
@@ -27,19 +35,13 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
     blocks); density_kg_m3 [kg/m^3] / altitude_m [m] / temperature_C [C] / pressure_Pa [Pa]
     / humidity_pct [%]: bench air overriding the file; voltage_exponent: fix n [-].
     keep_arrays=True adds a private ``_arrays`` entry (rows and fits) for plots; it is
-    removed by params.write_params. work_rows: sweeps of more than twice this many rows
-    take the very large path of the fits (estimator.robust.huber_fit); a huge value forces
-    every fit to iterate on all rows (the reference path). beside: optional callable run
-    once while the file is parsed (estimator.bench.read_bench). Raises InputError on bad or
-    impossible data.
+    removed by params.write_params. Raises InputError on bad or impossible data.
     """
     from estimator.bench.reader import read_bench
 
     data = read_bench(path, diameter_m=diameter_m, density_kg_m3=density_kg_m3,
                       altitude_m=altitude_m, temperature_C=temperature_C,
-                      pressure_Pa=pressure_Pa, humidity_pct=humidity_pct,
-                      hash_in_background=True,  # the hash runs beside the fit
-                      beside=beside)
+                      pressure_Pa=pressure_Pa, humidity_pct=humidity_pct)
     if vehicle is not None:
         d_vehicle = vehicle["propeller"]["diameter_m"]
         if data["diameter_m"] is None:
@@ -51,11 +53,10 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
         raise InputError("%s: the propeller diameter is needed for the static thrust factor; "
                          "add '# diameter: 10in' to the CSV, or pass --diameter or --vehicle" % path)
     return fit_bench(data, path, vehicle=vehicle, voltage_exponent=voltage_exponent,
-                     keep_arrays=keep_arrays, work_rows=work_rows)
+                     keep_arrays=keep_arrays)
 
 
-def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=False,
-              work_rows=WORK_ROWS):
+def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=False):
     """Fit the arrays returned by estimator.bench.read_bench; see fit_bench_file.
 
     Floating-point trouble on pathological data (overflow, a singular system) becomes an
@@ -63,7 +64,7 @@ def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=Fal
     """
     try:
         with np.errstate(all="ignore"):
-            params = _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, work_rows)
+            params = _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays)
     except (np.linalg.LinAlgError, FloatingPointError, OverflowError, ZeroDivisionError,
             ValueError) as exc:
         raise InputError("%s: the sweep cannot be fitted (%s); check that command, voltage, "
@@ -86,56 +87,81 @@ def _check_finite(node, source, path="$"):
         raise InputError("%s: the fit gave a non-finite %s; the sweep cannot be fitted" % (source, path))
 
 
-def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, work_rows=WORK_ROWS):
-    from estimator.bench.reader import bench_digest
+def motor_exponents(theta, v_ref):
+    """Voltage and density exponents of the fitted motor model at full command and v_ref [V]:
+    n = d ln T / d ln V, m = d ln T / d ln rho by central differences of +-1 % [-]."""
+    h = 0.01
+    one = np.array([1.0])
+    t_up = rotor_arrays(theta, one, v_ref * (1.0 + h))[0][0]
+    t_dn = rotor_arrays(theta, one, v_ref * (1.0 - h))[0][0]
+    r_up = rotor_arrays(theta, one, v_ref, 1.0 + h)[0][0]
+    r_dn = rotor_arrays(theta, one, v_ref, 1.0 - h)[0][0]
+    scale = math.log((1.0 + h) / (1.0 - h))
+    return math.log(t_up / t_dn) / scale, math.log(r_up / r_dn) / scale
+
+
+def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     from estimator.params import build_params
 
     rho = data["bench_air"]["density_kg_m3"]
     area = disk_area_m2(data["diameter_m"])
     u, v, t, p = data["command"], data["voltage_V"], data["thrust_N"], data["power_W"]
+    warnings = list(data["warnings"])
     check_static_factor(source, t, p, rho, area, data.get("thrust_unit", "N"),
-                        data.get("current_unit", "A"))
-    groups = command_groups(u)
-    try:
-        curve = fit_thrust_curve(u, v, t, voltage_exponent=voltage_exponent, groups=groups,
-                                 work_rows=work_rows, keep_residuals=False)
-    except InputError as exc:
-        raise InputError("%s: %s" % (source, exc)) from None
-    curve["reference_density_kg_m3"] = rho
-    spikes_t = curve["spikes"]
-    n_spike_t = int(np.count_nonzero(spikes_t))
-    power = fit_power_model(t, p, groups, exclude=spikes_t if n_spike_t else None, work_rows=work_rows)
-    power["reference_density_kg_m3"] = rho
-    spikes_p = power["spikes"]
-    used = ~spikes_t
-    used &= ~spikes_p
-    step = max(1, u.size // MAD_ROWS)  # a systematic subsample is plenty for a median
-    # the fitted curve at the subsample's command and voltage
-    t_sub, used_sub = thrust_model_N(curve, u[::step], v[::step]), used[::step]
-    expected = power_model_W(power, t_sub[used_sub])
-    power["residual_rel_std"] = watch_residual_rel_std(p[::step][used_sub], expected,
-                                                       t_sub[used_sub] / curve["thrust_max_N"])
-    sf = fit_static_factor(t, p, rho, area, curve["thrust_max_N"], groups, exclude=~used,
-                           work_rows=work_rows)
+                        data.get("current_unit", "A"), warnings)
+    lv = command_levels(u, v, t, p)
+    lv["current_A"] = lv["power_W"] / lv["voltage_V"]
+    check_rising(lv, source)
+    u_hi = float(np.max(lv["command"]))
+    motor = fit_motor(lv, top_end=True)
+    top_found = motor["theta"][5] < u_hi - TOP_END_MARGIN
+    if not top_found:
+        motor = fit_motor(lv, top_end=False)
+    theta = motor["theta"]
+    v_ref = float(round(float(np.median(v[:: max(1, v.size // MAD_ROWS)])), 2))
+    n_motor, m_motor = motor_exponents(theta, v_ref)
+    curve = fit_quadratic(lv, v_ref, float(theta[5]) if top_found else 1.0, n_motor, voltage_exponent)
+    curve.update({"reference_voltage_V": v_ref, "reference_density_kg_m3": rho,
+                  "voltage_min_V": float(np.min(v)), "voltage_max_V": float(np.max(v)),
+                  "density_exponent": m_motor, "command_swept_max": u_hi,
+                  "command_swept_min": float(np.min(lv["command"]))})
+    if curve["voltage_exponent_source"] == "motor model":
+        curve["warnings"].append(
+            "the sweep's voltage spread at equal command is only %.1f %%: voltage exponent n = %.2f taken "
+            "from the motor model fitted to thrust and current; sweep at two or three supply voltages to "
+            "measure it" % (100.0 * curve["voltage_spread"], n_motor))
+    power = fit_power_model(lv, rho)
+    spikes = lv["thrust_spike"] | lv["power_spike"]
+    step = max(1, u.size // MAD_ROWS)
+    t_sub = thrust_model_N(curve, u[::step], v[::step])
+    ok = ~spikes[::step]
+    power["residual_rel_std"] = watch_residual_rel_std(p[::step][ok], power_model_W(power, t_sub[ok]),
+                                                       t_sub[ok] / curve["thrust_max_N"])
+    sf = fit_static_factor(lv, rho, area, curve["thrust_max_N"], power)
     rejected = dict(data["rejected"])
-    n_spike_p = int(np.count_nonzero(spikes_p))
-    if n_spike_t:
-        rejected["thrust_spike"] = n_spike_t
-    if n_spike_p:
-        rejected["power_spike"] = n_spike_p
-    rows_used = int(np.count_nonzero(used))
+    counts = {"thrust_spike": int(np.count_nonzero(lv["thrust_spike"])),
+              "power_spike": int(np.count_nonzero(lv["power_spike"] & ~lv["thrust_spike"]))}
+    rejected.update({k: c for k, c in counts.items() if c})
+    rows_used = int(u.size - np.count_nonzero(spikes))
+    r_levels = rotor_arrays(theta, lv["command"], lv["voltage_V"])[0] - lv["thrust_N"]
+    motor_block = params_dict(theta)
+    motor_block.update({"reference_density_kg_m3": rho, "rms_thrust_residual_N": motor["rms_thrust_N"],
+                        "thrust_residual_scale_N": motor["scale_thrust_N"],
+                        "current_residual_scale_A": motor["scale_current_A"],
+                        "top_end_found": bool(top_found)})
     fit = {
-        "curve": curve, "power": power, "static": sf, "rejected": rejected,
+        "curve": curve, "power": power, "static": sf, "rejected": rejected, "motor": motor_block,
         "rows_used": rows_used, "rows_rejected": int(data["rows_total"] - rows_used),
-        "warnings": list(data["warnings"]) + curve["warnings"],
+        "warnings": warnings + curve["warnings"] + _range_warnings(curve, theta, v_ref, top_found),
+        "levels": {"command": lv["command"], "thrust_residual_N": r_levels, "thrust_N": lv["thrust_N"]},
     }
-    bench_digest(data)  # the file's SHA-256 (provenance), hashed while the fits ran
     hover = None
     if vehicle is not None:
         from estimator.preflight.measured_rotor import hover_block
         params_draft = build_params(data, fit, source, None, None)
         hover = hover_block(vehicle, params_draft)
         value, value_se = static_factor_at(sf, hover["thrust_per_rotor_N"])
+        fit["warnings"] = params_draft["warnings"]
     else:
         value, value_se = static_factor_at(sf, sf["median_thrust_N"])
     sf["value"], sf["value_se"] = float(value), value_se
@@ -144,10 +170,31 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, work_rows=W
                          "check the thrust and current units and the load-cell calibration"
                          % (source, value, "hover" if vehicle else "the median thrust"))
     params = build_params(data, fit, source, vehicle, hover)
+    if hover is not None:
+        params["warnings"] = list(dict.fromkeys(params["warnings"] + hover.pop("_warnings", [])))
+        params["hover"].pop("_warnings", None)
     if keep_arrays:
         params["_arrays"] = {"command": u, "voltage_V": v, "thrust_N": t, "power_W": p,
-                             "used": used, "thrust_model_N": thrust_model_N(curve, u, v)}
+                             "used": ~spikes, "thrust_model_N": thrust_model_N(curve, u, v),
+                             "command_unit": data.get("command_unit", "-"),
+                             "thrust_unit": data.get("thrust_unit", "N")}
     return params
+
+
+def _range_warnings(curve, theta, v_ref, top_found):
+    """Warnings with numbers when the parameter set's full command lies beyond the sweep."""
+    out = []
+    u_hi = curve["command_swept_max"]
+    if top_found:
+        out.append("thrust levels off above command %.3f: the ESC's top end point; thrust_max_N is the "
+                   "thrust there (command_max %.3f), commands above it add nothing"
+                   % (theta[5], theta[5]))
+    elif u_hi < 0.98:
+        one = rotor_arrays(theta, np.array([1.0, u_hi]), v_ref)[0]
+        out.append("the sweep stops at command %.3f; full-command thrust %.4g N is extrapolated %.0f %% "
+                   "above the thrust there by the motor model (sweep to full command, or set the ESC's "
+                   "end points to the swept range)" % (u_hi, one[0], 100.0 * (one[0] / one[1] - 1.0)))
+    return out
 
 
 def summary(params):

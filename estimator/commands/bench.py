@@ -24,18 +24,24 @@ def _human_fit(params, out_file):
         "fitted %d rows (%d dropped: %s) -> %s" % (
             q["rows_used"], q["rows_rejected"],
             ", ".join("%s %d" % kv for kv in sorted(q["rejected"].items())) or "none", out_file),
-        "thrust curve (at %.2f V, %.3f kg/m^3; +- one standard error)" % (
+        "thrust curve for the controller (at %.2f V, %.3f kg/m^3; +- one standard error incl. curve-form error)" % (
             c["reference_voltage_V"], c["reference_density_kg_m3"]),
         "  full-command thrust  %s N" % _pm(c["thrust_max_N"], se["thrust_max_N"], "%.3f"),
         "  quadratic share      %s" % _pm(c["quadratic_share"], se["quadratic_share"], "%.3f"),
-        "  spin-up command      %s" % _pm(c["command_min"], se["command_min"], "%.3f"),
+        "  curve intercept      %s (command_min: the quadratic's zero, not a duty offset)" % _pm(
+            c["command_min"], se["command_min"], "%.3f"),
+        "  rotor starts at      %.3f (motor model)%s" % (
+            params["motor_model"]["command_start"],
+            "; ESC top end point %.3f" % c["command_max"] if c["command_max"] < 1.0 else ""),
         "  voltage exponent     %s (%s)" % (_pm(c["voltage_exponent"], se["voltage_exponent"], "%.3f"),
                                            c.get("voltage_exponent_source", "fitted")),
-        "  density exponent     %s (m = n - 1 from the DC motor model)" % _pm(
-            c["density_exponent"], se["density_exponent"], "%.3f"),
+        "  density exponent     %s (from the fitted motor model)" % _pm(
+            c["density_exponent"], se.get("density_exponent", 0.0), "%.3f"),
         "  thrust residual      %.3f N rms" % q["rms_residual_N"],
-        "power per rotor  P = %.2f W + %.3f W/N^1.5 T^1.5 + %.4f W/N^2 T^2 (rms %.2f W)" % (
-            p["idle_power_W"], p["induced_W_per_N1_5"], p["copper_W_per_N2"], q["power_rms_residual_W"]),
+        "power per rotor  P = %.4g W + %.4g W/N^0.5 T^0.5 + %.4g W/N T + %.4g W/N^1.5 T^1.5 + %.4g W/N^2 T^2 "
+        "(all >= 0; rms %.3g W)" % (
+            p["idle_power_W"], p["sqrt_W_per_N0_5"], p["linear_W_per_N"], p["induced_W_per_N1_5"],
+            p["copper_W_per_N2"], q["power_rms_residual_W"]),
         "  power noise for the watch  %.1f %% (robust, through the thrust curve)" % (100.0 * p["residual_rel_std"]),
         "static thrust factor k = %.3f at %s (%.2f N); efficiency k^1.5 = %.0f %% of ideal" % (
             k["value"], k.get("value_at", "median thrust"), k.get("thrust_at_value_N", 0.0),
@@ -51,14 +57,6 @@ def _human_fit(params, out_file):
         lines.append("! " + w)
     lines += ["- " + c for c in BENCH_CAUTIONS]
     return "\n".join(lines)
-
-
-def _import_validator():
-    """Import the schema validator the parameter set is checked with before it is written;
-    fit runs this while a large bench file is parsed in a second process."""
-    import importlib
-
-    importlib.import_module("jsonschema")  # kept in sys.modules for estimator.jsonio
 
 
 @click.command()
@@ -98,7 +96,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     params = fit_bench_file(bench_file, diameter_m=diameter, vehicle=vehicle, density_kg_m3=density,
                             altitude_m=altitude, temperature_C=temperature, pressure_Pa=pressure,
                             humidity_pct=humidity, voltage_exponent=voltage_exponent,
-                            keep_arrays=plot_file is not None, beside=_import_validator)
+                            keep_arrays=plot_file is not None)
     if voltage_exponent is not None:
         params["thrust_curve"]["voltage_exponent_source"] = "given"
     arrays = params.pop("_arrays", None)

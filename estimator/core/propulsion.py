@@ -12,6 +12,7 @@ import math
 
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
 from estimator.core.motor import motor_input_for_thrust, rotor_operating_point
+from estimator.core.power_model import coaxial_shaft_ratio
 
 # 60 halvings of a bracket of at most a few hundred volts leave under 1e-15 V.
 BISECTION_STEPS = 60
@@ -33,7 +34,8 @@ def coaxial_propeller(propeller, induced_power_factor=COAXIAL_INDUCED_POWER_FACT
     """
     out = dict(propeller)
     ideal_cp = math.sqrt(2.0 / math.pi) * propeller["ct"] ** 1.5
-    out["cp"] = propeller["cp"] + (induced_power_factor - 1.0) * ideal_cp
+    # the one coaxial rule (power_model.coaxial_shaft_ratio): CP_coax = CP e
+    out["cp"] = propeller["cp"] * coaxial_shaft_ratio(ideal_cp / propeller["cp"], induced_power_factor)
     return out
 
 

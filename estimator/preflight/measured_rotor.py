@@ -1,61 +1,46 @@
 """Hover values of a vehicle from a fitted parameter set (instead of the datasheet model).
 
-Per rotor the weight share T_r = m g / N must be held. The power model gives the bus power
-P = N P_r(T_r, rho_site) (coaxial: induced term times the momentum-theory coaxial factor,
-power basis); the pack sags as V_bus = V_oc - I R with I = P / V_bus, so
-V_bus = (V_oc + sqrt(V_oc^2 - 4 R P)) / 2 (Thevenin pack, design notes sec. 3); the
-thrust curve inverted at (V_bus, rho_site) gives the hover command.
-The 95 % interval of the hover command is linearised propagation (delta method) of the
-thrust-curve covariance, +-1.96 standard errors, clipped to the command range 0..1: it
-holds the bench-fit uncertainty only, not the spread of sites, packs or propellers.
+liftcal's own predictions come from the DC motor + propeller model fitted to the sweep (the
+parameter set's motor_model block, estimator.bench.motor_fit), in back-EMF form:
+T = a s^2, I = I0 + c s^2, Vm = s + R I, duty d = Vm / V_bus, command
+u = u0 + (u1 - u0) d^(1/g), bus current I_q + d I per rotor; a and c grow as the air
+density. Each of N rotors holds T_r = m g / N; the pack sags as V_bus = V_oc - R_pack I_pack
+(Thevenin pack, design notes sec. 3), solved in closed form for hover and by bisection at
+full command. The command where the rotor starts turning is u0, reported separately; the
+controller quadratic's intercept command_min is never used as a duty offset. Coaxial pairs:
+the torque current is raised by power_model.coaxial_shaft_ratio, the same rule the datasheet
+route applies to CP (only the ideal induced power is multiplied by the coaxial factor).
 
-Motor current (per motor, against the maker's limit): with an ideal ESC (no loss) the motor
-current is the rotor's bus current over the ESC duty, I_motor = I_bus,rotor / d (power
-balance V_bus I_bus = d V_bus I_motor). The fitted curve does not know the duty itself; its
-own variable x = (u - u_min) / (u_max - u_min), the command above the start-up dead band, is
-taken as the duty (a real ESC with losses draws less motor current for the same bus current,
-so this errs high). At full command d = 1 and the motor current equals the rotor's bus
-current. Rotor bus current = pack current / N.
-
-The bench sweep holds the curve only over its own bus voltages; a pack whose hover voltage
-lies beyond them (e.g. a 6S vehicle on a 4S fit) is warned as an extrapolation.
+The 95 % interval of the hover command: +-1.96 standard errors, the standard error made of
+the model-form error (the motor fit's robust thrust residual scale, times FORM_INFLATION,
+through dT/du at hover) and of the extrapolation beyond the sweep's bus voltages (the share
+of the voltage outside the sweep times EXTRAPOLATION_N_ERROR in the voltage exponent).
+Beyond the sweep's voltage or command range the sheet says by how much it extrapolates.
 """
 
 import math
 
 from estimator.core.battery import endurance_min, max_pack_current_A, usable_capacity_Ah
-from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
-from estimator.core.thrust_curve import hover_command, scale_factor
+from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
+from estimator.core.power_model import coaxial_shaft_ratio, rotor_power_W  # noqa: F401 (re-exported)
 from estimator.errors import InputError
 from estimator.units import STANDARD_GRAVITY_M_S2
 
-INTERVAL_METHOD = ("linearised propagation (delta method) of the thrust-curve covariance, "
-                   "+-1.96 standard errors, clipped to 0..1")
-# what the interval holds, in words for the sheet
-INTERVAL_SCOPE = "bench-fit uncertainty only; not site, pack or prop-to-prop spread"
-# bus voltages this far beyond the sweep's range count as extrapolation [-]; within it the
-# voltage exponent n ~ 1.8 moves thrust by under 4 %, about the fit's own power residual
+INTERVAL_METHOD = ("+-1.96 standard errors of the motor model's hover command: model-form error (robust "
+                   "thrust residual scale of the command levels x %.1f, through dT/du at hover) and "
+                   "voltage extrapolation beyond the sweep, in quadrature; clipped to 0..1")
+INTERVAL_SCOPE = "bench-fit and model-form uncertainty; not site, pack or prop-to-prop spread"
+# measured on independent truths (benchmarks/fit_study.py): level residuals of neighbouring
+# commands are correlated, and the hover point sits between levels [-]
+FORM_INFLATION = 2.0
+# uncertainty of the voltage exponent when the hover voltage lies beyond the sweep's [-]
+EXTRAPOLATION_N_ERROR = 0.15
+# smallest standard error of a hover command: a tenth of a percent step of the command [-]
+MIN_COMMAND_SE = 0.002
 VOLTAGE_RANGE_TOLERANCE = 0.02
-# when the parameter set does not record the sweep's voltage range: a sweep on one pack type
-# spans about 3.5..4.2 V per cell, i.e. +-9 % around its middle; beyond +-12 % of the
-# reference voltage the pack is most likely another cell count [-]
 REFERENCE_VOLTAGE_BAND = 0.12
 Z_95 = 1.959964  # two-sided 95 % point of the standard normal [-]
-_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
-
-
-def rotor_power_W(power, thrust_N, density_kg_m3, coaxial=False):
-    """P_r = P_idle + c_i T^1.5 sqrt(rho_ref / rho) f_coax + c_c T^2 [W] for one rotor.
-
-    power: power_model block; thrust_N: T [N]; density_kg_m3: rho [kg/m^3];
-    coaxial: multiply the induced term by 1.2808 (momentum theory, power basis,
-    estimator.core.momentum). Source: DEVELOPERS.md power model.
-    """
-    t = max(thrust_N, 0.0)
-    induced = power["induced_W_per_N1_5"] * t ** 1.5 * math.sqrt(power["reference_density_kg_m3"] / density_kg_m3)
-    if coaxial:
-        induced *= COAXIAL_INDUCED_POWER_FACTOR
-    return power["idle_power_W"] + induced + power["copper_W_per_N2"] * t * t
+BISECTION_STEPS = 60
 
 
 def sagged_bus_V(open_circuit_V, resistance_ohm, power_W):
@@ -70,98 +55,146 @@ def sagged_bus_V(open_circuit_V, resistance_ohm, power_W):
     return 0.5 * (open_circuit_V + math.sqrt(disc))
 
 
+class FittedRotor:
+    """The motor_model block at one air density (and layout): thrust, current, command."""
+
+    def __init__(self, params, density_kg_m3, coaxial=False):
+        mm = params["motor_model"]
+        ratio = density_kg_m3 / mm["reference_density_kg_m3"]
+        self.a = mm["thrust_per_V2_N"] * ratio
+        self.c = mm["current_per_V2_A"] * ratio
+        self.r, self.i0 = mm["resistance_ohm"], mm["no_load_current_A"]
+        self.u0, self.u1, self.g = mm["command_start"], mm["command_top"], mm["duty_exponent"]
+        self.iq = mm["esc_idle_current_A"]
+        if coaxial:
+            area = disk_area_m2(params["rotor"]["diameter_m"])
+            # shaft power c s^3 against ideal T^1.5 / sqrt(2 rho A) = a^1.5 s^3 / sqrt(2 rho A)
+            ideal_over_shaft = self.a ** 1.5 / (math.sqrt(2.0 * density_kg_m3 * area) * self.c)
+            self.c *= coaxial_shaft_ratio(ideal_over_shaft, COAXIAL_INDUCED_POWER_FACTOR)
+
+    def for_thrust(self, thrust_N):
+        """(motor voltage Vm [V], motor current I [A]) that hold thrust_N [N]."""
+        s = math.sqrt(max(thrust_N, 0.0) / self.a)
+        i = self.i0 + self.c * s * s
+        return s + self.r * i, i
+
+    def at_motor_V(self, motor_V):
+        """(thrust [N], motor current [A]) at motor voltage Vm [V]."""
+        drive = motor_V - self.r * self.i0
+        if drive <= 0.0:
+            return 0.0, motor_V / self.r if self.r > 0.0 else 0.0
+        s = 2.0 * drive / (1.0 + math.sqrt(1.0 + 4.0 * self.r * self.c * drive))
+        return self.a * s * s, self.i0 + self.c * s * s
+
+    def command(self, duty):
+        """Command [-] that gives duty [-] (above the spin-up u0)."""
+        return self.u0 + (self.u1 - self.u0) * max(duty, 0.0) ** (1.0 / self.g)
+
+    def hover(self, thrust_N, rotors, open_circuit_V, pack_ohm):
+        """Hover of N rotors on a pack: dict bus_V, duty, command, pack_current_A, power_W,
+        motor_current_A; bus_V None when the pack cannot deliver the power."""
+        vm, i = self.for_thrust(thrust_N)
+        v_eff = open_circuit_V - pack_ohm * rotors * self.iq
+        disc = v_eff * v_eff - 4.0 * pack_ohm * rotors * vm * i
+        if disc < 0.0 or v_eff <= 0.0:
+            return {"bus_V": None, "duty": None, "command": None, "pack_current_A": None,
+                    "power_W": rotors * vm * i, "motor_current_A": i}
+        v = 0.5 * (v_eff + math.sqrt(disc))
+        duty = vm / v
+        current = rotors * (self.iq + vm * i / v)
+        return {"bus_V": v, "duty": duty, "command": self.command(duty) if duty <= 1.0 else None,
+                "pack_current_A": current, "power_W": current * v, "motor_current_A": i}
+
+    def full(self, rotors, open_circuit_V, pack_ohm):
+        """Full duty of N rotors on a sagging pack (bisection on V_bus): dict bus_V,
+        thrust_N (per rotor), pack_current_A, motor_current_A."""
+        lo, hi = 0.0, open_circuit_V
+        for _ in range(BISECTION_STEPS):
+            mid = 0.5 * (lo + hi)
+            _, i = self.at_motor_V(mid)
+            if mid + pack_ohm * rotors * (self.iq + i) > open_circuit_V:
+                hi = mid
+            else:
+                lo = mid
+        v = 0.5 * (lo + hi)
+        t, i = self.at_motor_V(v)
+        return {"bus_V": v, "thrust_N": t, "pack_current_A": rotors * (self.iq + i), "motor_current_A": i}
+
+
 def _state(params, vehicle, rho, open_circuit_V):
     """Hover and full-command values at one pack voltage."""
-    curve, power = params["thrust_curve"], params["power_model"]
     count = vehicle["rotors"]["count"]
-    coax = vehicle["rotors"].get("layout", "flat") == "coaxial"
+    rotor = FittedRotor(params, rho, vehicle["rotors"].get("layout", "flat") == "coaxial")
     weight = vehicle["mass_kg"] * STANDARD_GRAVITY_M_S2
     t_r = weight / count
     r_pack = vehicle["battery"]["resistance_ohm"]
-    p_total = count * rotor_power_W(power, t_r, rho, coax)
-    v_bus = sagged_bus_V(open_circuit_V, r_pack, p_total)
+    h = rotor.hover(t_r, count, open_circuit_V, r_pack)
+    f = rotor.full(count, open_circuit_V, r_pack)
     out = {"weight_N": weight, "thrust_per_rotor_N": t_r, "open_circuit_V": open_circuit_V,
-           "power_W": p_total, "bus_V": v_bus, "command": None, "fraction": None,
-           "current_A": None, "limited_by": None}
-    # full command: thrust depends on the sagged voltage, power on the thrust (bounded iteration)
-    v_full = open_circuit_V
-    t_full = 0.0
-    p_full = 0.0
-    for _ in range(40):
-        t_full = curve["thrust_max_N"] * scale_factor(
-            v_full, curve["reference_voltage_V"], curve["voltage_exponent"], rho,
-            curve["reference_density_kg_m3"], curve["density_exponent"])
-        p_full = count * rotor_power_W(power, t_full, rho, coax)
-        v_new = sagged_bus_V(open_circuit_V, r_pack, p_full)
-        v_new = 0.5 * open_circuit_V if v_new is None else v_new
-        if abs(v_new - v_full) < 1e-9:
-            break
-        v_full = 0.5 * (v_full + v_new)
-    out.update({"full_thrust_N": count * t_full, "full_power_W": p_full, "full_bus_V": v_full,
-                "full_pack_current_A": p_full / v_full})
-    # full command: duty 1, so each motor carries its rotor's bus current (module docstring)
-    out["full_motor_current_A"] = out["full_pack_current_A"] / count
-    if v_bus is None:
+           "power_W": h["power_W"], "bus_V": h["bus_V"], "command": h["command"], "fraction": None,
+           "current_A": h["pack_current_A"], "limited_by": None, "duty": h["duty"],
+           "motor_current_A": h["motor_current_A"],
+           "full_thrust_N": count * f["thrust_N"], "full_power_W": f["pack_current_A"] * f["bus_V"],
+           "full_bus_V": f["bus_V"], "full_pack_current_A": f["pack_current_A"],
+           "full_motor_current_A": f["motor_current_A"], "rotor": rotor}
+    if h["bus_V"] is None:
         out["limited_by"] = "pack"
         return out
-    cmd, fraction = hover_command(t_r, v_bus, rho, curve)
-    out.update({"command": cmd, "fraction": fraction, "current_A": p_total / v_bus})
-    if cmd is None:
+    t_at_bus, _ = rotor.at_motor_V(h["bus_V"])
+    out["fraction"] = t_r / t_at_bus if t_at_bus > 0.0 else None
+    if h["command"] is None:
         out["limited_by"] = "command"
-    else:
-        out["motor_current_A"] = motor_current_A(p_total / v_bus / count, cmd, curve)
     return out
 
 
-def motor_current_A(rotor_bus_current_A, command, curve):
-    """Motor current of one rotor from its bus current with an ideal ESC, I_m = I_bus / d.
+def hover_interval(params, state):
+    """95 % interval [lo, hi] of the hover command [-] and its standard error (module docstring).
 
-    rotor_bus_current_A: the rotor's share of the pack current [A]; command: u [-];
-    curve: thrust_curve block. The duty d is the command above the start-up dead band,
-    x = (u - u_min) / (u_max - u_min) (module docstring; errs high for a lossy ESC).
-    Returns I_m [A], or None at or below the dead band. Source: power balance of an ideal ESC.
+    state: a _state result with a hover command. Returns (interval, standard error [-]).
     """
-    duty = (command - curve["command_min"]) / (curve["command_max"] - curve["command_min"])
-    if not duty > 0.0:
-        return None
-    return rotor_bus_current_A / min(duty, 1.0)
-
-
-def hover_interval(params, thrust_N, voltage_V, density_kg_m3):
-    """95 % interval [lo, hi] of the hover command [-] by the delta method (module docstring).
-
-    Returns (interval, standard error [-]) or (None, None) when it cannot hover.
-    """
-    curve = dict(params["thrust_curve"])
-    cov_block = params.get("thrust_curve_covariance")
-    base, _ = hover_command(thrust_N, voltage_V, density_kg_m3, curve)
-    if base is None:
-        return None, None
-    if not cov_block:
-        return [base, base], 0.0
-    cov = cov_block["matrix"]
-    derived_m = str(curve.get("density_exponent_source", "")).startswith("derived")
-    grad = []
-    for i, name in enumerate(_NAMES):
-        h = max(1e-6, 1e-3 * math.sqrt(max(cov[i][i], 0.0)))
-        vals = []
-        for sign in (1.0, -1.0):
-            c = dict(curve)
-            c[name] = curve[name] + sign * h
-            if name == "voltage_exponent" and derived_m:
-                c["density_exponent"] = c["voltage_exponent"] - 1.0
-            u, _ = hover_command(thrust_N, voltage_V, density_kg_m3, c)
-            vals.append(base if u is None else u)
-        grad.append((vals[0] - vals[1]) / (2.0 * h))
-    var = sum(grad[i] * cov[i][j] * grad[j] for i in range(4) for j in range(4))
-    se = math.sqrt(max(var, 0.0))
-    lo, hi = max(0.0, base - Z_95 * se), min(1.0, base + Z_95 * se)
-    return [lo, hi], se
+    rotor, u_h, v_h = state["rotor"], state["command"], state["bus_V"]
+    mm = params["motor_model"]
+    # dT/du at hover from the model at the hover bus voltage (central difference of 0.01)
+    def thrust_at(u):
+        x = min(max((u - rotor.u0) / (rotor.u1 - rotor.u0), 0.0), 1.0)
+        return rotor.at_motor_V(x ** rotor.g * v_h)[0]
+    du = 0.01
+    slope = (thrust_at(min(u_h + du, rotor.u1)) - thrust_at(max(u_h - du, rotor.u0))) / (
+        min(u_h + du, rotor.u1) - max(u_h - du, rotor.u0))
+    ratio = rotor.a / mm["thrust_per_V2_N"]  # site over bench density
+    sigma_t = FORM_INFLATION * mm.get("thrust_residual_scale_N", 0.0) * ratio
+    se_form = sigma_t / slope if slope > 0.0 else 0.0
+    curve = params["thrust_curve"]
+    lo_v, hi_v = curve.get("voltage_min_V", v_h), curve.get("voltage_max_V", v_h)
+    beyond = max(0.0, math.log(lo_v / v_h), math.log(v_h / hi_v))
+    t_h = state["thrust_per_rotor_N"]
+    se_extra = EXTRAPOLATION_N_ERROR * beyond * t_h / slope if slope > 0.0 else 0.0
+    se = math.sqrt(se_form ** 2 + se_extra ** 2 + MIN_COMMAND_SE ** 2)
+    return [max(0.0, u_h - Z_95 * se), min(1.0, u_h + Z_95 * se)], se
 
 
 def _site(vehicle):
     from estimator.preflight.report import vehicle_site_air
     return vehicle_site_air(vehicle)
+
+
+def command_range_warnings(params, states):
+    """Warnings, with numbers, when a hover command lies beyond the commands the sweep measured."""
+    curve = params["thrust_curve"]
+    top = curve.get("command_swept_max")
+    out = []
+    if top is None:
+        return out
+    for name in ("full", "nominal", "empty"):
+        u = states[name]["command"]
+        if u is not None and u > top + 0.005:
+            out.append("hover command %.3f at %s pack lies above the highest command swept (%.3f): "
+                       "extrapolated by the motor model" % (u, name, top))
+    mm = params["motor_model"]
+    if top < mm["command_top"] - 0.02:
+        out.append("full-command thrust and thrust-to-weight are extrapolated from command %.3f (the "
+                   "sweep's top) to %.3f by the motor model" % (top, mm["command_top"]))
+    return out
 
 
 def voltage_range_warning(params, voltages):
@@ -189,10 +222,11 @@ def voltage_range_warning(params, voltages):
     else:
         swept = ("against its reference voltage %.1f V; the parameter set does not record the "
                  "sweep's range" % v_ref)
-    return ("pack voltage beyond the bench sweep: %s, %s; thrust and power are extrapolated with "
-            "the voltage exponent %.2f, so hover command, currents and margins may be well off "
-            "(another cell count?): sweep the rotor at this pack's voltage"
-            % (", ".join(outside), swept, curve["voltage_exponent"]))
+    worst = max((max(lo_ok / v, v / hi_ok) for _, v in voltages if v is not None), default=1.0)
+    return ("bus voltage beyond the bench sweep: %s, %s (up to %.0f %% beyond); thrust, current and "
+            "margins there are extrapolated by the fitted motor model (voltage exponent %.2f at the "
+            "reference): sweep the rotor at this pack's voltage to confirm"
+            % (", ".join(outside), swept, 100.0 * (worst - 1.0), curve["voltage_exponent"]))
 
 
 def hover_from_params(vehicle, params):
@@ -216,7 +250,7 @@ def hover_from_params(vehicle, params):
     count = vehicle["rotors"]["count"]
     interval, se = (None, None)
     if nom["command"] is not None:
-        interval, se = hover_interval(params, nom["thrust_per_rotor_N"], nom["bus_V"], rho)
+        interval, se = hover_interval(params, nom)
     usable = usable_capacity_Ah(b["capacity_Ah"], b.get("usable_fraction", 0.8))
     hovering = nom["command"] is not None
     k_at = params["static_factor"]
@@ -229,8 +263,9 @@ def hover_from_params(vehicle, params):
         "hover_command_empty": states["empty"]["command"],
         "hover_command_interval_95": interval,
         "hover_command_standard_error": se,
-        "interval_method": INTERVAL_METHOD,
+        "interval_method": INTERVAL_METHOD % FORM_INFLATION,
         "interval_scope": INTERVAL_SCOPE,
+        "hover_command_start": params["motor_model"]["command_start"],
         "hover_thrust_fraction": nom["fraction"],
         "thrust_to_weight": nom["full_thrust_N"] / nom["weight_N"],
         "hover_current_A": nom["current_A"],
@@ -258,18 +293,20 @@ def hover_from_params(vehicle, params):
                else "open circuit, %s pack" % name,
               states[name]["bus_V"] if states[name]["command"] is not None else states[name]["open_circuit_V"])
              for name in ("full", "nominal", "empty")]
+    volts.append(("full command, nominal pack", nom["full_bus_V"]))
     extrapolated = voltage_range_warning(params, volts)
     if extrapolated:
         warnings.append(extrapolated)
+    warnings += command_range_warnings(params, states)
     bench_rho = params["thrust_curve"]["reference_density_kg_m3"]
     if abs(rho / bench_rho - 1.0) > 0.15:
         warnings.append("the site air (%.3f kg/m^3) differs from the bench air (%.3f kg/m^3) by more "
                         "than 15 %%: the density exponent %.2f is extrapolated"
                         % (rho, bench_rho, params["thrust_curve"]["density_exponent"]))
     if report["layout"] == "coaxial":
-        warnings.append("the thrust curve was measured on an isolated rotor; lower rotors of a "
-                        "coaxial pair make less thrust at the same command, so the hover command "
-                        "is underestimated (power includes the 1.28 induced-power factor)")
+        warnings.append("the sweep was made on an isolated rotor; for the coaxial pair the ideal induced "
+                        "power is multiplied by %.2f (momentum theory, power basis), as in the datasheet "
+                        "route; the lower rotor's own thrust loss is not modelled" % COAXIAL_INDUCED_POWER_FACTOR)
     report["warnings"] = warnings + list(params.get("warnings", []))
     report["cautions"] = list(CAUTIONS)
     return report
@@ -295,7 +332,11 @@ def hover_block(vehicle, params):
     return {
         "hover_command": r["hover_command"],
         "hover_command_interval_95": r["hover_command_interval_95"],
-        "interval_method": INTERVAL_METHOD,
+        "interval_method": r["interval_method"],
+        "hover_command_standard_error": r["hover_command_standard_error"],
+        "hover_command_start": r["hover_command_start"],
+        "full_bus_V": r["full_bus_V"],
+        "motor_current_A": r["hover_motor_current_A"],
         "hover_thrust_fraction": r["hover_thrust_fraction"],
         "thrust_per_rotor_N": r["thrust_per_rotor_N"],
         "power_W": r["hover_power_W"], "current_A": r["hover_current_A"],

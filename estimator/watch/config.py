@@ -192,12 +192,9 @@ def vehicle_facts(params, vehicle=None):
 
 
 def _rotor_power_W(power_model, thrust_N, density_kg_m3):
-    """P = idle + c_i T^1.5 sqrt(rho_ref / rho) + c_cu T^2 [W] (DEVELOPERS.md power model)."""
-    t = max(thrust_N, 0.0)
-    return (power_model["idle_power_W"]
-            + power_model["induced_W_per_N1_5"] * t ** 1.5
-            * math.sqrt(power_model["reference_density_kg_m3"] / density_kg_m3)
-            + power_model["copper_W_per_N2"] * t * t)
+    """P(T, rho) of one rotor [W]: the one power model, estimator.core.power_model.rotor_power_W."""
+    from estimator.core.power_model import rotor_power_W
+    return rotor_power_W(power_model, thrust_N, density_kg_m3)
 
 
 def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3):

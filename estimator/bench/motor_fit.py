@@ -1,0 +1,142 @@
+"""The DC motor + propeller model fitted to a bench sweep: liftcal's own predictions.
+
+Model (design notes sec. 3, the equations of estimator.core.motor written for arrays; a
+test checks that the two agree). Only combinations of Kv, CT and CP show without a speed
+sensor, so the model is written in the back-EMF s = omega / Kv [V]:
+  ESC:       x = clip((u - u0) / (u1 - u0), 0, 1), duty d = x^g, Vm = d V_bus
+  motor:     Vm = s + R I,  I = I0 + c s^2   (c s^2 = Kv Q, the torque current)
+  propeller: T = a s^2
+  bus:       I_bus = I_q + d I   (I_q: the ESC's own draw)
+s is the positive root R c s^2 + s - (Vm - R I0) = 0 (0 when Vm <= R I0). Eight parameters:
+a [N/V^2], c [A/V^2], R [ohm], I0 [A], u0 (where the rotor starts [-]), u1 (the ESC's top
+end point [-]), g (duty exponent [-], 1 for a linear ESC), I_q [A]. a and c grow as the air
+density at fixed speed. The fit is scipy.optimize.least_squares (trust region reflective,
+bounds, soft_l1 loss) on the command levels (estimator.bench.levels), thrust and bus
+current residuals each scaled by its own robust residual scale, from a start read off
+the levels; a second pass takes the scales from the first.
+Sources: DC motor equivalent model (Drela 2007, from memory); scipy.optimize.least_squares.
+"""
+
+import math
+
+import numpy as np
+
+NAMES = ("thrust_per_V2_N", "current_per_V2_A", "resistance_ohm", "no_load_current_A",
+         "command_start", "command_top", "duty_exponent", "esc_idle_current_A")
+# residuals beyond this many robust scales count less and less (soft_l1's f_scale) [-]
+LOSS_SCALE = 2.5
+
+
+def rotor_arrays(theta, command, voltage_V, density_ratio=1.0):
+    """Thrust [N], bus current [A], motor voltage [V], motor current [A] and duty [-] per row.
+
+    theta: the eight parameters in NAMES order (linear values); command: u [-]; voltage_V:
+    bus voltage [V]; density_ratio: rho / rho_ref [-] (a and c scale with it).
+    """
+    a, c, r, i0, u0, u1, g, iq = theta
+    a, c = a * density_ratio, c * density_ratio
+    x = np.clip((np.asarray(command, dtype=float) - u0) / max(u1 - u0, 1e-6), 0.0, 1.0)
+    d = x ** g
+    vm = d * voltage_V
+    drive = vm - r * i0
+    root = np.sqrt(1.0 + 4.0 * r * c * np.maximum(drive, 0.0))
+    s = np.where(drive > 0.0, 2.0 * drive / (1.0 + root), 0.0)
+    im = np.where(drive > 0.0, i0 + c * s * s, vm / r)
+    return a * s * s, iq + d * im, vm, im, d
+
+
+def _unpack(p):
+    a, c, r, i0, u0, u1, g, iq = p
+    return (math.exp(a), math.exp(c), math.exp(r), math.exp(i0), u0, u1, g, math.exp(iq))
+
+
+def _start(lv):
+    """Start values from the levels: spin-up from a line through sqrt(T), I0 and c from a
+    line of motor current against T, R from a 15 % resistive drop at the top."""
+    u, v, t, i = lv["command"], lv["voltage_V"], lv["thrust_N"], lv["current_A"]
+    t_top = float(np.max(t))
+    mid = (t > 0.05 * t_top) & (t < 0.7 * t_top)
+    if np.count_nonzero(mid) >= 2 and np.ptp(u[mid]) > 0:
+        slope, icpt = np.polyfit(u[mid], np.sqrt(np.maximum(t[mid], 0.0)), 1)
+        u0 = -icpt / slope if slope > 0 else 0.05
+    else:
+        u0 = float(np.min(u[t > 0.05 * t_top])) - 0.02
+    u0 = min(max(u0, 0.0), 0.45)
+    u1 = 1.0
+    d = np.clip((u - u0) / (u1 - u0), 0.0, 1.0)
+    off = d <= 0.0
+    iq = float(np.median(i[off])) if np.any(off) else 0.01 * float(np.max(i))
+    iq = max(iq, 1e-4 * float(np.max(i)))
+    on = d > 0.3
+    if np.count_nonzero(on) < 2:
+        on = d > 0.0
+    im = np.maximum(i[on] - iq, 1e-6) / d[on]
+    top = int(np.argmax(t))
+    v_top = float(d[top] * v[top]) or float(np.max(v))
+    s_top = 0.85 * v_top
+    a = t_top / (s_top * s_top)
+    if np.count_nonzero(on) >= 2 and np.ptp(t[on]) > 0:
+        k, i0 = np.polyfit(t[on], im, 1)
+    else:
+        k, i0 = float(np.max(im)) / t_top, 0.0
+    k = max(k, 0.2 * float(np.max(im)) / t_top)
+    i0 = min(max(i0, 0.01 * float(np.max(im))), 0.5 * float(np.max(im)))
+    c = k * a
+    r = max(0.15 * v_top / float(np.max(im)), 1e-4)
+    return np.array([math.log(a), math.log(c), math.log(r), math.log(i0), u0, u1, 1.0, math.log(iq)])
+
+
+def _bounds(lv):
+    i_top = float(np.max(lv["current_A"]))
+    lo = [-60.0, -60.0, math.log(1e-5), math.log(1e-6 * i_top), 0.0, 0.5, 0.5, math.log(1e-7 * i_top + 1e-12)]
+    hi = [60.0, 60.0, math.log(1e3), math.log(2.0 * i_top), 0.5, 1.0, 2.5, math.log(0.5 * i_top + 1e-12)]
+    return np.array(lo), np.array(hi)
+
+
+def fit_motor(lv, top_end=False):
+    """Fit the model (module docstring) to levels: dict command [-], voltage_V [V],
+    thrust_N [N], current_A [A] (bus), count [-].
+
+    top_end: fit the ESC's top end point u1 (the sweep shows thrust levelling off below its
+    highest command); else u1 = 1. Returns dict: theta (NAMES order, linear), cov (8 x 8,
+    in the log/linear fit coordinates), scale_thrust_N, scale_current_A (robust residual
+    scales of the levels), rms_thrust_N, success (bool), message.
+    """
+    from scipy.optimize import least_squares
+
+    u, v, t, i = lv["command"], lv["voltage_V"], lv["thrust_N"], lv["current_A"]
+    x0 = _start(lv)
+    lo, hi = _bounds(lv)
+    x0 = np.clip(x0, lo + 1e-9, hi - 1e-9)
+    if not top_end:
+        lo[5], hi[5], x0[5] = 1.0 - 1e-9, 1.0, 1.0 - 5e-10
+    s_t = 0.01 * float(np.max(np.abs(t)))
+    s_i = 0.01 * float(np.max(np.abs(i)))
+    res = None
+    for _ in range(2):
+        def residuals(p, s_t=s_t, s_i=s_i):
+            tm, im, _, _, _ = rotor_arrays(_unpack(p), u, v)
+            return np.concatenate([(tm - t) / s_t, (im - i) / s_i])
+
+        res = least_squares(residuals, x0, bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE,
+                            x_scale="jac", max_nfev=400, method="trf")
+        x0 = np.clip(res.x, lo + 1e-12, hi - 1e-12)
+        tm, im, _, _, _ = rotor_arrays(_unpack(res.x), u, v)
+        floor_t, floor_i = 1e-4 * float(np.max(np.abs(t))), 1e-4 * float(np.max(np.abs(i)))
+        s_t = max(_scale(tm - t), floor_t)
+        s_i = max(_scale(im - i), floor_i)
+    theta = np.array(_unpack(res.x))
+    tm, _, _, _, _ = rotor_arrays(theta, u, v)
+    return {"theta": theta, "x": res.x, "jac": res.jac, "scale_thrust_N": s_t, "scale_current_A": s_i,
+            "rms_thrust_N": float(np.sqrt(np.mean((tm - t) ** 2))), "success": bool(res.success),
+            "message": res.message, "active": res.active_mask.copy()}
+
+
+def _scale(r):
+    from estimator.bench.levels import robust_scale
+    return robust_scale(r) if r.size > 3 else float(np.sqrt(np.mean(r * r)))
+
+
+def params_dict(theta):
+    """The parameter-set block of a fitted theta (NAMES keys, linear values)."""
+    return {k: float(x) for k, x in zip(NAMES, theta)}
