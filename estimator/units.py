@@ -7,7 +7,7 @@ exact by definition (NIST SP 811, Appendix B) unless noted.
 import math
 import re
 
-from estimator.errors import InputError
+from estimator.errors import InputError, shorten
 
 from estimator.core.constants import STANDARD_GRAVITY_M_S2  # one home: the core
 
@@ -55,15 +55,15 @@ def parse_quantity(text, kind, what="value"):
     m = _NUMBER.match(str(text))
     table = _UNITS[kind]
     if not m:
-        raise InputError("%s: cannot read %r as a number with a unit (e.g. 1%s)"
-                         % (what, _short(text), DEFAULT_UNIT[kind]))
+        raise InputError("%s: cannot read %s as a number with a unit (e.g. 1%s)"
+                         % (what, shorten(str(text)), DEFAULT_UNIT[kind]))
     value, suffix = float(m.group(1)), m.group(2) or DEFAULT_UNIT[kind]
     if suffix not in table:
-        raise InputError("%s: unknown unit %r in %r; use one of %s"
-                         % (what, suffix, _short(text), ", ".join(repr(u) for u in table if u)))
+        raise InputError("%s: unknown unit %s in %s; use one of %s"
+                         % (what, shorten(suffix), shorten(text), ", ".join(repr(u) for u in table if u)))
     scale, offset = table[suffix]
     if not math.isfinite(value):
-        raise InputError("%s: %r is not a finite number" % (what, _short(text)))
+        raise InputError("%s: %s is not a finite number" % (what, shorten(text)))
     return value * scale + offset
 
 
@@ -88,17 +88,12 @@ def parse_propeller_size(text, what="size"):
     """
     m = _SIZE.match(str(text)) if isinstance(text, str) else None
     if not m:
-        raise InputError("%s: cannot read %r as a propeller size DIAMETERxPITCH with a unit, e.g. "
-                         "\"10x4.5in\" or \"254x114mm\"" % (what, _short(text)))
+        raise InputError("%s: cannot read %s as a propeller size DIAMETERxPITCH with a unit, e.g. "
+                         "\"10x4.5in\" or \"254x114mm\"" % (what, shorten(str(text))))
     unit = m.group(3) or SIZE_DEFAULT_UNIT
     if unit not in _UNITS["length"]:
-        raise InputError("%s: unknown unit %r in %r; use one of %s"
-                         % (what, unit, _short(text), ", ".join(repr(u) for u in _UNITS["length"])))
+        raise InputError("%s: unknown unit %s in %s; use one of %s"
+                         % (what, shorten(unit), shorten(text), ", ".join(repr(u) for u in _UNITS["length"])))
     scale = _UNITS["length"][unit][0]
     return float(m.group(1)) * scale, float(m.group(2)) * scale
 
-
-def _short(text, limit=40):
-    """``text`` as shown in an error line: at most ``limit`` characters."""
-    text = str(text)
-    return text if len(text) <= limit else text[:limit] + "..."
