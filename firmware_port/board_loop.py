@@ -14,8 +14,7 @@ safe in an interrupt). Anything that allocates (printing, logging, radio) is han
 import micropython
 import time
 
-from liftwatch import Watch
-from liftwatch_config import CONFIG
+from liftwatch_load import load
 
 SAMPLE_MS = 100  # timer period [ms]; the watch takes the real period from ticks_ms, so late ticks are seen
 
@@ -68,9 +67,9 @@ def report(flags):
 class Monitor:
     """Timer-driven sampling: tick() is the interrupt handler, it never allocates."""
 
-    def __init__(self, adapter, config=CONFIG, clock=time):
+    def __init__(self, adapter, config=None, clock=time):
         self.adapter = adapter
-        self.watch = Watch(config)
+        self.watch = load(config)   # checks CONFIG first; ConfigProblem says what is wrong
         self.clock = clock          # anything with ticks_ms() and ticks_diff() (time, or a test clock)
         self.last_ms = clock.ticks_ms()
         self.reported = 0

@@ -10,7 +10,7 @@ Without Node.js these tests fail with a clear message; they are never skipped.
 
 import pytest
 
-from estimator.watch.bundle import write_bundle
+from estimator.watch.bundle import MODULES, write_bundle
 from mpy_harness import run_micropython
 from watch_helpers import demo_fit_params
 
@@ -88,6 +88,11 @@ def run_stream(w, n, seed, stats):
     stats[6] = spot
     stats[7] = w.residual_permille
 '''
+
+
+def firmware_modules():
+    """Every module of the bundle (kernel, CONFIG, layout, loader, board loop)."""
+    return MODULES
 
 
 @pytest.fixture(scope="module")
@@ -183,7 +188,7 @@ print("LOCKED", locked())
 def test_compiled_bundle_and_board_loop_run(bundle, tmp_path):
     # The .mpy files from mpy-cross import in MicroPython 1.27, and the board loop's Monitor.tick
     # (the timer handler) runs with a fake adapter without allocating.
-    mods = [bundle / "mpy" / (m + ".mpy") for m in ("liftwatch", "liftwatch_config", "board_loop")]
+    mods = [bundle / "mpy" / (m + ".mpy") for m in firmware_modules()]
     script = r'''
 import gc, micropython
 import board_loop
@@ -198,8 +203,17 @@ class Src:
 def cmd():
     return 520
 
+class Clock:            # a timer firing every 100 ms (the loop below runs faster than that)
+    def __init__(self):
+        self.t = 0
+    def ticks_ms(self):
+        self.t += 100
+        return self.t
+    def ticks_diff(self, a, b):
+        return a - b
+
 a = board_loop.SensorAdapter(cmd, Src(), Src(), 1, 2, 2, 3)
-m = board_loop.Monitor(a)
+m = board_loop.Monitor(a, clock=Clock())
 for i in range(200):
     m.tick(None)
 
@@ -246,7 +260,7 @@ def test_board_loop_takes_dt_from_ticks_diff(bundle, tmp_path):
     # The board loop measures dt with ticks_diff (wrap-safe) instead of assuming the timer period:
     # a tick 5 s late (the timer starved) must raise sensor_fault through the watch's gap check, and
     # regular ticks across the ticks_ms wrap must not. The clock counts from just before the wrap.
-    mods = [bundle / "mpy" / (m + ".mpy") for m in ("liftwatch", "liftwatch_config", "board_loop")]
+    mods = [bundle / "mpy" / (m + ".mpy") for m in firmware_modules()]
     script = r'''
 import time
 import board_loop
@@ -290,3 +304,52 @@ print("GAP", worst, late)
 '''
     out = run_micropython(script, mods, tmp_path)
     assert "GAP 0 4" in out, out
+
+
+def test_board_loader_checks_config_in_words(bundle, tmp_path):
+    # firmware_port's loader applies watch_layout.check on the board: a CONFIG from another
+    # version (wrong length), a value beyond its bound, a float and a wrong format number are each
+    # refused with a ConfigProblem naming the value - not an assert, not a bare ValueError - and
+    # the bundle's own CONFIG loads. The same refusals as the desktop's check_config (one function).
+    mods = [bundle / "mpy" / (m + ".mpy") for m in ("liftwatch", "liftwatch_config", "liftwatch_layout",
+                                                     "liftwatch_load")]
+    script = r'''
+import liftwatch_load
+from liftwatch_config import CONFIG
+from liftwatch_layout import INDEX, SCALAR_AT
+
+def try_load(cfg):
+    try:
+        liftwatch_load.load(cfg)
+        return "OK"
+    except liftwatch_load.ConfigProblem as e:
+        return "PROBLEM " + str(e)
+    except Exception as e:
+        return "OTHER %s %s" % (type(e).__name__, e)
+
+w = liftwatch_load.load()
+print("GOOD", w.update(100, 520, 15000, 19000) >= 0)
+print("A", try_load(CONFIG[:-1]))
+bad = list(CONFIG)
+bad[INDEX["block_ms"]] = 5000
+print("B", try_load(bad))
+bad = list(CONFIG)
+bad[3] = 1.5
+print("C", try_load(bad))
+bad = list(CONFIG)
+bad[SCALAR_AT] = 2
+print("D", try_load(bad))
+'''
+    out = run_micropython(script, mods, tmp_path)
+    lines = dict(l.split(" ", 1) for l in out.strip().splitlines())
+    assert lines["GOOD"] == "True", out
+    assert lines["A"].startswith("PROBLEM liftwatch: CONFIG has 142 values"), out
+    assert lines["B"].startswith("PROBLEM") and "block_ms is 5000, outside 100..1000" in lines["B"], out
+    assert lines["C"].startswith("PROBLEM") and "CONFIG[3] is not an integer" in lines["C"], out
+    assert lines["D"].startswith("PROBLEM") and "format 2" in lines["D"], out
+    # the desktop refuses the same CONFIG with the same words
+    from estimator.core import watch_layout
+    from estimator.watch.config import as_tuple, make_config
+    cfg = list(as_tuple(make_config(demo_fit_params())[0]))
+    cfg[watch_layout.INDEX["block_ms"]] = 5000
+    assert "block_ms is 5000, outside 100..1000" in watch_layout.check(cfg)

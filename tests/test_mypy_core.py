@@ -29,13 +29,13 @@ def test_mypy_against_micropython_stubs(tmp_path):
     ini = tmp_path / "mypy.ini"
     # the stub files themselves are not ours to fix: their own errors are silenced
     ini.write_text("[mypy]\n[mypy-%s,_mpy_shed,_mpy_shed.*]\nignore_errors = True\n" % ",".join(sorted(names)))
-    # board_loop imports liftwatch / liftwatch_config: check it against a generated bundle
+    # board_loop and the loader import liftwatch, liftwatch_config, liftwatch_layout: check them against a generated bundle
     from estimator.watch.bundle import write_bundle
     from watch_helpers import demo_fit_params
     write_bundle(demo_fit_params(), str(tmp_path / "bundle"))
     bundle_mods = tmp_path / "bundle_mods"
     bundle_mods.mkdir()
-    for name in ("liftwatch.py", "liftwatch_config.py"):
+    for name in ("liftwatch.py", "liftwatch_config.py", "liftwatch_layout.py"):
         os.symlink(tmp_path / "bundle" / name, bundle_mods / name)
     env = dict(os.environ, MYPYPATH=os.pathsep.join([str(stubs), str(bundle_mods)]))
     proc = subprocess.run(

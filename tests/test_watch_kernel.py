@@ -65,7 +65,7 @@ def instrumented_watch_class():
     for node in ast.walk(tree):
         if isinstance(node, ast.ClassDef):
             for fn in node.body:
-                if isinstance(fn, ast.FunctionDef) and fn.name == "update":
+                if isinstance(fn, ast.FunctionDef) and fn.name in ("update", "_block", "_reset"):
                     _Checker().visit(fn)
     ast.fix_missing_locations(tree)
     ns = {"_chk": _chk}
@@ -82,6 +82,8 @@ def _state_ok(w):
             assert -LIMIT < value < LIMIT, name
     for i, value in enumerate(w.st[1:]):   # the state list after the CONFIG reference
         assert type(value) is int and -LIMIT < value < LIMIT, (i + 1, value)
+    for i, value in enumerate(w.sb):
+        assert type(value) is int and -LIMIT < value < LIMIT, ("sb", i, value)
 
 
 def _extremes(c):
@@ -105,8 +107,11 @@ def test_every_intermediate_below_2_30_on_the_extremes():
                         for ma in mas:
                             w.update(dt, u, mv, ma)
                             _state_ok(w)
-            for _ in range(400):  # long steady stretch at full power: learning ends, CUSUM saturates
-                w.update(100, 1000, cfg["v_max_mV"], cfg["i_max_mA"] - phase)
+            for i in range(2000):  # long steady stretch at full power: learning ends, CUSUM saturates
+                w.update(100, 1000, cfg["v_max_mV"], cfg["i_max_mA"] - phase - (i & 1))
+                _state_ok(w)
+            for i in range(1500):  # then hover-like power with a low and a high mass reading
+                w.update(100 + 400 * (i & 1), 600, cfg["v_min_mV"] + 10, 1000 + 900 * (i & 3) + phase)
                 _state_ok(w)
 
 
@@ -164,9 +169,15 @@ def test_stuck_current_reading_is_a_sensor_fault():
     cfg = demo_config()
     w = Watch(as_tuple(cfg))
     _healthy(w)
-    flags = [w.update(100, 520 + (i % 3), 15000, 19000) for i in range(cfg["stuck_samples"] + 5)]
-    assert all(f & 4 == 0 for f in flags[:cfg["stuck_samples"] - 1])
+    n = cfg["stuck_ms"] // 100              # samples of 100 ms in the stuck time
+    flags = [w.update(100, 520 + (i % 3), 15000, 19000) for i in range(n + 5)]
+    assert all(f & 4 == 0 for f in flags[:n - 1])
     assert flags[-1] & 4
+    # the limit is time, not samples: at 10 ms per sample it takes as long
+    w = Watch(as_tuple(cfg))
+    _healthy(w)
+    flags = [w.update(10, 520 + (i % 3), 15000, 19000) for i in range(10 * n + 5)]
+    assert all(f & 4 == 0 for f in flags[:10 * n - 1]) and flags[-1] & 4
     # on the ground (command below spin) a constant reading is normal
     w = Watch(as_tuple(cfg))
     assert all(w.update(100, 0, 16000, 120) & 4 == 0 for _ in range(200))
@@ -198,7 +209,7 @@ def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
         p_W = frac * top_W * 0.999
         ma = int(round(p_W / (mv / 1000.0) * 1000.0))
         w = Watch(as_tuple(cfg))
-        for _ in range(4):   # slow outputs are refreshed every 4th sample
+        for _ in range(5):   # thrust comes from the block's mean measured power (500 ms blocks)
             w.update(100, 500, mv, ma)
         p_meas = (mv // 20) * ma // 5000 / 10.0  # the kernel's own integer power, in W
         ref_mN = 1000.0 * _float_thrust_total_N(p_meas, params, n, rho)
@@ -219,10 +230,12 @@ def test_expected_power_matches_float_power_model():
     for u in (0.35, 0.45, 0.55, 0.65, 0.8):
         for volts in (14.2, 15.2, 16.4):
             w = Watch(as_tuple(cfg))
-            w.update(100, int(round(1000 * u)), int(volts * 1000), 20000)
+            for _ in range(30):   # 3 s at 100 ms: the 60 ms lag has settled (e^-50)
+                w.update(100, int(round(1000 * u)), int(volts * 1000), 20000 + _ % 2)
             t = thrust_curve.thrust_N(u, volts, rho, params["thrust_curve"])
             ref = n * rotor_power_W(pm, t, rho)  # the one power model (estimator.core.power_model)
-            assert abs(w.expected_dW / 10.0 - ref) / ref < 0.01, (u, volts, w.expected_dW, ref)
+            expected_dW = w.st[2] >> 2     # the lagged expected power (state slot 2, in 0.1 W / 4)
+            assert abs(expected_dW / 10.0 - ref) / ref < 0.01, (u, volts, expected_dW, ref)
 
 
 def test_hover_command_matches_float_inversion():
@@ -234,7 +247,7 @@ def test_hover_command_matches_float_inversion():
     weight = v["mass_kg"] * STANDARD_GRAVITY_M_S2 / v["rotor_count"]
     for volts in (14.0, 14.7, 15.5, 16.3):
         w = Watch(as_tuple(cfg))
-        for _ in range(4):   # slow outputs are refreshed every 4th sample
+        for _ in range(5):   # slow outputs are refreshed once per block (500 ms)
             w.update(100, 500, int(volts * 1000), 20000)
         ref, _ = thrust_curve.hover_command(weight, volts, v["site_density_kg_m3"], params["thrust_curve"])
         assert abs(w.hover_permille - 1000 * ref) <= 3, (volts, w.hover_permille, ref)
@@ -244,10 +257,11 @@ def test_update_source_has_no_loops_and_no_allocating_nodes():
     # No data-dependent loops and nothing that builds objects inside update (design notes sec. 3).
     with open(WATCH_SRC, "r", encoding="utf-8") as fh:
         tree = ast.parse(fh.read())
-    update = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name == "update"][0]
+    funcs = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name in ("update", "_block", "_reset")]
+    assert len(funcs) == 3
     banned = (ast.For, ast.While, ast.List, ast.Dict, ast.Set, ast.ListComp, ast.GeneratorExp,
               ast.Lambda, ast.JoinedStr, ast.Try, ast.Raise)
-    for node in ast.walk(update):
+    for node in (n for f in funcs for n in ast.walk(f)):
         assert not isinstance(node, banned), ast.dump(node)[:80]
         if isinstance(node, ast.Tuple):   # only as an unpacking target (pushes items, builds nothing)
             assert isinstance(node.ctx, ast.Store), ast.dump(node)[:80]
@@ -277,23 +291,26 @@ def test_config_tuple_is_plain_ints_below_2_30():
 
 
 def test_state_stores_go_back_to_their_own_slots():
-    # update() unpacks st into names and writes changed values back as st[i] = name: each such
-    # store must use the slot the name was unpacked from (a wrong index would corrupt the state).
-    names = state_names()
-    state = names[1:names.index("m_n") + 1]   # after the CONFIG reference, up to the last state value
+    # update() and _block() unpack st / sb into names and write changed values back as
+    # st[i] = name: each such store must use the slot the name was unpacked from (a wrong index
+    # would corrupt the state).
+    from watch_helpers import block_state_names
     with open(WATCH_SRC, "r", encoding="utf-8") as fh:
         tree = ast.parse(fh.read())
-    update = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name == "update"][0]
-    checked = 0
-    for node in ast.walk(update):
-        if isinstance(node, ast.Assign) and isinstance(node.targets[0], ast.Subscript):
-            tgt = node.targets[0]
-            if isinstance(tgt.value, ast.Name) and tgt.value.id == "st" and isinstance(node.value, ast.Name):
-                name = node.value.id
-                if name in state:
-                    assert names[tgt.slice.value] == name, (tgt.slice.value, name)
-                    checked += 1
-    assert checked >= 10
+    for func, lst, names, first, last, least in (("update", "st", state_names(), 1, "low", 10),
+                                                 ("_block", "sb", block_state_names(), 0, "m_run", 12)):
+        state = names[first:names.index(last) + 1]
+        fn = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name == func][0]
+        checked = 0
+        for node in ast.walk(fn):
+            if isinstance(node, ast.Assign) and isinstance(node.targets[0], ast.Subscript):
+                tgt = node.targets[0]
+                if isinstance(tgt.value, ast.Name) and tgt.value.id == lst and isinstance(node.value, ast.Name):
+                    name = node.value.id
+                    if name in state:
+                        assert names[tgt.slice.value] == name, (func, tgt.slice.value, name)
+                        checked += 1
+        assert checked >= least, (func, checked)
 
 
 def test_watch_refuses_a_config_of_another_format():

@@ -20,12 +20,16 @@ from estimator.watch.config import as_tuple, make_config, siegmund_arl, siegmund
 from watch_helpers import demo_fit_params, run_flight, set_state
 
 
-def markov_arl(k, h, mu=0.0, m=400):
-    """One-sided CUSUM ARL by the Brook-Evans Markov chain with m states (N(mu, 1) increments)."""
+def markov_arl(k, h, mu=0.0, m=400, clip=None):
+    """One-sided CUSUM ARL by the Brook-Evans Markov chain with m states (N(mu, 1) increments,
+    each clipped to +-clip before k is taken off when clip is given)."""
     w = 2.0 * h / (2 * m - 1)
     c = np.arange(m) * w
     upper = (np.arange(m) + 0.5) * w
-    cdf = norm.cdf(upper[None, :] - c[:, None] + k - mu)
+    x = upper[None, :] - c[:, None] + k      # the clipped variable's value at the state edges
+    cdf = norm.cdf(x - mu)
+    if clip is not None:
+        cdf = np.where(x < -clip, 0.0, np.where(x >= clip, 1.0, cdf))
     r = np.diff(np.concatenate([np.zeros((m, 1)), cdf], axis=1), axis=1)
     arl = np.linalg.solve(np.eye(m) - r, np.ones(m))
     return float(arl[0])
@@ -61,12 +65,17 @@ def test_threshold_solver_inverts_siegmund():
 
 
 def _kernel_run_length(cfg, sigma_pm, rng, cap=20000):
-    """Samples until the kernel's first power alarm when P_meas = P_exp (1 + sigma z), z ~ N(0, 1)."""
+    """Blocks until the kernel's first power alarm when each block's measured power is
+    P_exp (1 + sigma z), z ~ N(0, 1): one 100 ms sample per 100 ms block, no lag, the learning
+    window done (scale 1, noise sigma), takeoff skip 0, so every block is a CUSUM step."""
     w = Watch(as_tuple(cfg))
     mv, u = 15000, 520
-    w.update(100, u, mv, 20000)
-    pe = w.expected_dW
-    set_state(w, learning=0, scale=1000, rest=0, s_hi=0, s_lo=0, flags=0)   # learned, steady, no alarm
+    for _ in range(3):
+        w.update(100, u, mv, 20000 + _)
+    pe = w.st[2] >> 2                 # the lagged expected power [0.1 W] (settled: no lag)
+    k = cfg["cusum_k_q8"] * sigma_pm >> 8
+    h = cfg["cusum_h_q8"] * sigma_pm >> 8
+    set_state(w, learning=0, scale=1000, sig=sigma_pm << 6, k=k, h=h, s_hi=0, s_lo=0, drift=0, flags=0)
     for n in range(1, cap):
         target_dW = pe * (1.0 + sigma_pm / 1000.0 * rng.gauss(0.0, 1.0))
         ma = int(round(target_dW * 1e5 / mv / 10.0)) * 10 + 5
@@ -76,17 +85,22 @@ def _kernel_run_length(cfg, sigma_pm, rng, cap=20000):
 
 
 def test_kernel_cusum_run_length_matches_siegmund():
-    # The integer kernel's two-sided CUSUM with k = 0.5 sigma, h = 4 sigma (sigma = 10 %) on
-    # Gaussian noise: mean run length over 500 runs vs Siegmund's 169. Standard error of the mean
-    # is about ARL / sqrt(500) = 4.5 %; tolerance 12 % (about 2.7 standard errors plus the
-    # integer rounding of power and residual, below 1 %).
-    cfg = make_config(demo_fit_params())[0]
+    # The integer kernel's two-sided block CUSUM with k = 0.5 sigma, h = 4 sigma (sigma = 10 %,
+    # also the noise floor, so the in-flight noise estimate stays at sigma) on Gaussian noise:
+    # mean run length over 500 runs vs the Brook-Evans Markov chain of the same scheme with each
+    # increment clipped at k + h/2 + 0.01 (the kernel's clip, so one block cannot alarm alone:
+    # it lengthens the ARL from Siegmund's 169 to about 194). Two-sided from one-sided by
+    # 1/ARL2 = 2/ARL1 (Siegmund 1985; symmetric scheme). Standard error of the mean is about
+    # ARL / sqrt(500) = 4.5 %; tolerance 12 % (about 2.7 standard errors plus integer rounding).
+    cfg = make_config(demo_fit_params(), options={"block_s": 0.1, "lag_ms": 0.0, "takeoff_s": 0.0,
+                                                  "drift_tol": 0.0})[0]
     sigma_pm = 100
-    cfg.update(cusum_k_permille=50, cusum_h_permille=400, clip_permille=1000)
+    cfg.update(cusum_k_q8=128, cusum_h_q8=1024, noise_floor_permille=sigma_pm, noise_shift=12)
     rng = random.Random(4)
     runs = [_kernel_run_length(cfg, sigma_pm, rng) for _ in range(500)]
-    expected = siegmund_arl_two_sided(0.5, 4.0)
+    expected = markov_arl(0.5, 4.0, clip=2.51) / 2.0
     assert abs(statistics.mean(runs) - expected) / expected < 0.12, (statistics.mean(runs), expected)
+    assert abs(markov_arl(0.5, 4.0, clip=50.0) / 2.0 - siegmund_arl_two_sided(0.5, 4.0)) < 2.0  # chain sanity
 
 
 def _sigma():

@@ -88,28 +88,40 @@ def demo_fit_params():
     return _DEMO_FIT["p"]
 
 
-def state_names():
-    """Names of the kernel's state list ``Watch.st`` in order: the targets of the one unpacking
-    ``(...) = st`` in estimator/core/watch.py's update() (read from the source, so they cannot drift)."""
+def _unpacked_names(func_name, list_name):
     import ast
     import os
 
     path = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "estimator", "core", "watch.py")
     with open(path, "r", encoding="utf-8") as fh:
         tree = ast.parse(fh.read())
-    update = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name == "update"][0]
-    for node in ast.walk(update):
+    fn = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name == func_name][0]
+    for node in ast.walk(fn):
         if (isinstance(node, ast.Assign) and isinstance(node.targets[0], ast.Tuple)
-                and isinstance(node.value, ast.Name) and node.value.id == "st"):
+                and isinstance(node.value, ast.Name) and node.value.id == list_name):
             return [t.id for t in node.targets[0].elts]
-    raise AssertionError("no (...) = st unpacking in update()")
+    raise AssertionError("no (...) = %s unpacking in %s()" % (list_name, func_name))
+
+
+def state_names():
+    """Names of the kernel's per-sample state list ``Watch.st`` in order: the targets of the one
+    unpacking ``(...) = st`` in update() (read from the source, so they cannot drift)."""
+    return _unpacked_names("update", "st")
+
+
+def block_state_names():
+    """Names of the kernel's block state list ``Watch.sb`` (the unpacking in _block())."""
+    return _unpacked_names("_block", "sb")
 
 
 def set_state(w, **values):
-    """Set named entries of a Watch's state list (tests only), e.g. set_state(w, learning=0)."""
-    names = state_names()
+    """Set named entries of a Watch's state lists (tests only), e.g. set_state(w, learning=0)."""
+    names, bnames = state_names(), block_state_names()
     for name, value in values.items():
-        w.st[names.index(name)] = value
+        if name in bnames:
+            w.sb[bnames.index(name)] = value
+        else:
+            w.st[names.index(name)] = value
 
 
 def flight_ints(flight):
@@ -125,7 +137,6 @@ def run_flight(config, flight, dt_ms=100):
     from estimator.watch.config import new_watch
 
     w = new_watch(config)
-    learning = state_names().index("learning")
     u, mv, ma = flight_ints(flight)
     prev = 0
     events = []
@@ -136,6 +147,6 @@ def run_flight(config, flight, dt_ms=100):
         prev = f
         if new:
             events.append((float(flight["time_s"][i]), new))
-        if w.mass_g and w.st[learning] == 0 and u[i] > 100:
+        if w.mass_g and w.sb[0] == 0 and u[i] > 100:
             masses.append(w.mass_g)
     return w, events, masses

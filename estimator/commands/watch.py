@@ -22,6 +22,11 @@ def _load(params_file, vehicle_file):
     return params, vehicle
 
 
+def _options(lag_ms):
+    """watch CONFIG option overrides from the command line (estimator.watch.config.DEFAULTS)."""
+    return {} if lag_ms is None else {"lag_ms": lag_ms}
+
+
 EVENT_MEANING = {
     "power_high": "more power than expected (bearing, winding, prop strike?)",
     "power_low": "less power than expected (chipped or loose blade?)",
@@ -41,8 +46,11 @@ def _count(n, word):
               help="Folder for the bundle (new, empty, or an earlier bundle; replaced atomically).")
 @click.option("--vehicle", "vehicle_file", default=None, metavar="VEHICLE.json",
               help="Vehicle file (mass, rotors, pack, site); default: the parameter set's vehicle block.")
+@click.option("--lag-ms", "lag_ms", type=click.FloatRange(0, 10000), default=None, metavar="MS",
+              help="Time constant of the rotor and current-sensor response the expected power is lagged by "
+                   "(default 60 ms).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
-def firmware(params_file, out_dir, vehicle_file, as_json):
+def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
     """Write the MicroPython power-watch bundle for a board.
 
     DIR gets liftwatch.py (the kernel), liftwatch_config.py (CONFIG, integers only),
@@ -51,18 +59,22 @@ def firmware(params_file, out_dir, vehicle_file, as_json):
     from estimator.watch.bundle import write_bundle
 
     params, vehicle = _load(params_file, vehicle_file)
-    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file)
+    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=_options(lag_ms))
     cfg = out["config"]
+    mass_limit_g = cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) // 1000
     summary = {"out_dir": out["out_dir"], "files": out["files"], "mpy_bytes": out["mpy_bytes"],
-               "cusum_k_permille": cfg["cusum_k_permille"], "cusum_h_permille": cfg["cusum_h_permille"],
-               "mass_limit_g": cfg["mass_limit_g"], "cautions": list(WATCH_CAUTIONS)}
+               "cusum_k_sigma": cfg["cusum_k_q8"] / 256.0, "cusum_h_sigma": cfg["cusum_h_q8"] / 256.0,
+               "noise_floor": cfg["noise_floor_permille"] / 1000.0, "lag_ms": cfg["lag_ms"],
+               "mass_limit_g": mass_limit_g, "cautions": list(WATCH_CAUTIONS)}
     if as_json:
         click.echo(dumps(summary))
         return
     lines = ["wrote the power-watch bundle to %s (%d files, .mpy total %d bytes)"
              % (out["out_dir"], len(out["files"]), out["mpy_bytes"]),
-             "  CUSUM reference %d permille, threshold %d permille; mass alarm above %d g"
-             % (cfg["cusum_k_permille"], cfg["cusum_h_permille"], cfg["mass_limit_g"])]
+             "  CUSUM per %d ms block: reference %.2f, threshold %.2f x the block noise (learned in flight, "
+             "at least %.1f %%); expected power lagged %d ms; mass alarm above %d g"
+             % (cfg["block_ms"], summary["cusum_k_sigma"], summary["cusum_h_sigma"],
+                100.0 * summary["noise_floor"], cfg["lag_ms"], mass_limit_g)]
     lines += ["- " + c for c in WATCH_CAUTIONS]
     click.echo("\n".join(lines))
 
@@ -74,10 +86,12 @@ def firmware(params_file, out_dir, vehicle_file, as_json):
               help="Vehicle file; default: the parameter set's vehicle block.")
 @click.option("--plot", "plot_file", default=None, metavar="PNG",
               help="Draw measured against expected power with alarms shaded.")
+@click.option("--lag-ms", "lag_ms", type=click.FloatRange(0, 10000), default=None, metavar="MS",
+              help="Time constant of the rotor and current-sensor response (default 60 ms).")
 @click.option("--drop-bad-time", is_flag=True,
               help="Drop rows whose time goes back or repeats (counted in dropped_rows) instead of refusing the log.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
-def replay(flight_file, params_file, vehicle_file, plot_file, drop_bad_time, as_json):
+def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_time, as_json):
     """Run a logged flight through the power watch and list its events.
 
     FLIGHT.csv has time[s], command[-] (or [%], [us]), voltage[V] and current[A] columns
@@ -87,7 +101,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, drop_bad_time, as_
 
     params, vehicle = _load(params_file, vehicle_file)
     out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None,
-                      drop_bad_time=drop_bad_time)
+                      drop_bad_time=drop_bad_time, options=_options(lag_ms))
     arrays = out.pop("_arrays", None)
     if plot_file is not None:
         from estimator.watch.plots import plot_replay

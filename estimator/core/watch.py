@@ -1,98 +1,109 @@
 """Onboard power watch: integer-only, heap-free kernel (runs unchanged on MicroPython).
 
 ``w = Watch(CONFIG)``; ``flags = w.update(dt_ms, command_permille, bus_mV, bus_mA)``.
-Flag bits: 1 power_high, 2 power_low, 4 sensor_fault, 8 baseline_off, 16 mass_high.
-Readable after each update: ``residual_permille`` r = (P_meas - s P_exp) / (s P_exp) [1/1000],
-``power_dW`` measured and ``expected_dW`` expected bus power [0.1 W], ``thrust_mN`` thrust
-from the measured power [mN], ``hover_permille`` hover command expected at this voltage
-[1/1000], ``mass_g`` all-up mass implied in steady hover [g] (0 until known) and ``scale``
-the learned power scale s [1/1000] (1000 while the learning window runs).
+Flag bits (estimator/core/watch_layout.py): 1 power_high, 2 power_low, 4 sensor_fault,
+8 baseline_off, 16 mass_high. Readable after each block: ``residual_permille``
+r = (E_meas - s E_exp) / (s E_exp) of the last block [1/1000], ``thrust_mN`` thrust from the
+block's measured power [mN], ``hover_permille`` hover command expected at this voltage [1/1000],
+``mass_g`` all-up mass implied by the last mass window [g] (0 until one is complete), ``scale``
+the learned power scale s [1/1000] and ``sigma_permille`` the block-residual noise (0 while the
+learning window runs).
 
-Models (design notes sec. 3):
-- expected power: the parameter set's power model P(T) = idle + c_i T^1.5 sqrt(rho_ref/rho)
-  + c_cu T^2 per rotor, times the rotor count, at the thrust T(u, V, rho) of the thrust
-  curve; CONFIG carries it as a table over f = (V/V_ref)^n t(x), the voltage factor as a
-  table over the bus voltage;
-- thrust from measured power: momentum theory T = k(T) (2 rho A P^2)^(1/3) per rotor with
-  the calibrated static factor k(T) = k0 + k1 T and the site density, solved in closed form
-  and tabulated over the measured power; the roots are taken by table;
-- detector: two-sided CUSUM on r (Page 1954), reference k and threshold h from Siegmund's
-  average-run-length approximation (estimator/watch_config.py), increments down-weighted
-  while the command changes fast; a learning window at each flight start learns a power
-  scale s and raises baseline_off when |s - 1| exceeds a tolerance; afterwards a slow,
-  bounded (+-drift_tol) tracking of the residual's mean follows the hover point as the pack
-  drains, frozen whenever a CUSUM sum is above h / 2.
+Models (design notes sec. 3, Watch). Every statistic lives in flight time, not in samples:
+- expected power: the parameter set's power model P(T) per rotor times the rotor count at the
+  thrust T(u, V, rho) of the thrust curve (tables over f = (V/V_ref)^n t(x) and over V),
+  passed through a first-order lag of time constant lag_ms (rotor spin-up and current-sensor
+  response; backward-Euler step alpha = dt / (lag + dt)), so manoeuvres are modelled;
+- measured and lagged expected energy are summed over blocks of block_ms of flight time (a
+  sample longer than a block counts as one block); one residual per block;
+- a block is "steady" when its mean expected power is within steady_permille of a slow mean
+  (EMA over 8 blocks) and above the power floor; other blocks are not judged;
+- learning window: after takeoff_ms of flight, learn_ms of steady blocks (or whatever there is
+  at learn_timeout_ms) give the power scale s (baseline_off when |s - 1| > tolerance) and the
+  block noise sigma (mean absolute deviation x sqrt(pi/2), at least the bench noise floor);
+- in flight: a two-sided CUSUM per steady block (Page 1954) on z = r - d, with reference k and
+  threshold h in units of sigma (a self-starting scheme in the sense of Hawkins, J. Roy. Stat.
+  Soc. C 36 (1987): the in-control mean and noise come from the flight itself); h from
+  Siegmund's approximation for the target false alarms per flight hour (estimator/watch/
+  config.py). While neither sum is above h/2 the noise keeps being learned (EMA of |z|, clipped
+  at 5 sigma, floor kept) and a bounded slow drift d follows the baseline as the pack drains;
+  both freeze while a fault is suspected. One block adds at most k + h/2 + 1: an alarm takes two;
+- implied mass: thrust from measured power (momentum theory with the calibrated static factor,
+  tabulated) over windows of mass_window_ms of steady blocks: mean and variance of the block
+  deviations from the planned mass; a window counts when its mean exceeds the limit by a margin
+  of z standard errors (z^2 and a correlation factor in mass_z2_q8); mass_high after
+  mass_windows such windows in a row (latched until landing). Not while a fault is suspected;
+- sensor faults: out-of-range readings, a gap over dt_max_ms, the current identical for
+  stuck_ms while the rotors turn.
 
-CONFIG (estimator/watch_config.py) is a flat tuple of ints: first the tables, voltage factor
-(Q12) at [0..12] and hover command (permille) at [13..25], both over the 13 voltages
-v_min + i volt_step (they span the whole accepted voltage range); expected power [0.1 W] at
-[26..74] over f = 0..1.5 in steps of 1/32 (Q12 128); thrust [2^thrust_unit_shift mN] at
-[75..107] over the measured power 0..32 x 2^thrust_shift [0.1 W]; then 27 scalars at
-[108..134] (CONFIG_KEYS order: [108] the format number 2, [109..127] those used on every
-sample, [128..134] the rare ones). The voltage table comes first
-so that its index needs no offset.
-
-Speed (MicroPython): all state and constants live in one list ``st`` that update() unpacks
-into locals in one step (a local costs almost nothing, an attribute is a map lookup); state
-goes back with one indexed store per changed value; the public outputs are plain attributes.
-A comparison costs about two arithmetic operations, so the common path avoids them: clamps
-that cannot bind are not written (the voltage tables span the accepted range, the residual's
-clamps are skipped when it is well inside them), trust is a count-down tested for zero.
-
-Integer contract: every intermediate stays below 2^30 in magnitude for every input that
-passes the range checks (the checks themselves only compare); the bound for each line
-is the comment beside it, with CONFIG limits guaranteed by watch_config.check_config.
-update() has no data-dependent loops, builds no tuples/lists/floats and never raises for
-int inputs. This file is copied verbatim into the board bundle as ``liftwatch.py``.
+Integer contract: every intermediate stays below 2^30 in magnitude for every input (range
+checks only compare; the bound for each product is the comment beside it, with the CONFIG
+bounds of watch_layout.check). update() and _block() have no loops, build no tuples, lists
+or floats and never raise for int inputs. This file is copied verbatim into the board bundle
+as ``liftwatch.py``; CONFIG indices are literal numbers here (watch_layout.INDEX).
 """
-
-# Flag bits (plain numbers, no module constants: each global costs board heap):
-# 1 power_high, 2 power_low, 4 sensor_fault, 8 baseline_off, 16 mass_high.
 
 
 class Watch:
-    """Power watch state for one vehicle; CONFIG is the tuple written by liftcal firmware
-    (on the desktop: estimator.watch_config.as_tuple(make_config(...)[0]))."""
+    """Power watch state for one vehicle; CONFIG is the list written by liftcal firmware
+    (on the desktop: estimator.watch.config.as_tuple(make_config(...)[0]))."""
 
     def __init__(self, config):
-        """config: CONFIG of liftwatch_config, a tuple (or list) of ints (see the module notes).
+        """config: CONFIG of liftwatch_config, a tuple or list of 143 ints (watch_layout).
 
-        Raises ValueError when CONFIG was made for another kernel format (here, not in update).
+        Raises ValueError naming the cause when CONFIG was made for another kernel format (the
+        board loader liftwatch_load checks every bound first and says what is wrong).
         """
-        if len(config) != 135 or config[108] != 2:
-            raise ValueError("CONFIG")
+        if len(config) != 143 or config[108] != 3:
+            raise ValueError("CONFIG: run liftcal firmware again")
         c = config
-        # CONFIG[108 + i]: [109..127] the scalars used on every sample, [128..134] the rare ones
-        # (stuck_samples, landed_ms, learn_ms, baseline_tol, mass_samples, mass_limit_g, drift_tol)
-        h = c[124]
-        rb = c[125] - c[134]              # residual needs no clamp when |r| < rb (rb <= 1000)
-        if rb > 1000:
-            rb = 1000
-        i_pos = c[112]                    # currents below this: negative (power 0) or a fault
-        if i_pos < 0:
-            i_pos = 0
-        sh = c[126]
-        span = c[119]
+        span = c[116]
         # thrust fraction t = 4096 ((1 - a) d/S + a (d/S)^2) = d (ta + (tq d >> 10)) >> 14 with
-        # d = u - u_min, S = command span (>= 100, check_config): ta <= 6.7e5, tq <= 6.9e6
-        ta = ((4096 - c[120]) << 14) // span
-        tq = (((c[120] << 12) // span) << 12) // span   # in two steps: every value below 2^30
-        # st: [0] CONFIG itself (tables and rare scalars are read there), [1..17] the state,
-        # [18..36] CONFIG[109..127], [37..49] values derived from them: update() unpacks them
-        st = [c, 0, 0, 0, 0, c[117], 0, 0, -1, 0, 0, 1, 0, 0, 0, 1000, 0, 0,
-              0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
-              ta, tq, c[118] + span, i_pos, h + h, h >> 1, rb, -rb, -c[125],
-              c[134] * 256, -256 * c[134], (32 << sh) - 1, (1 << sh) - 1]
-        for i in range(19):
-            st[18 + i] = c[109 + i]
-        self.st = st
+        # d = u - u_min, S = command span (>= 100): ta <= 6.7e5, tq <= 6.9e6
+        ta = ((4096 - c[117]) << 14) // span
+        tq = (((c[117] << 12) // span) << 12) // span
+        i_pos = c[112] if c[112] > 0 else 0   # currents below this: negative (power 0) or a fault
+        # st: [0] CONFIG, [1..12] per-sample state ([2] the lagged expected power [0.1 W / 4]),
+        # [13..25] CONFIG scalars, [26..29] derived
+        self.st = [c, 0, 0, 0, 0, -1, 0, 0, 0, 0, 0, 0, 0,
+                   c[109], c[110], c[111], c[112], c[113], c[114], c[115], c[118], c[119], c[120],
+                   c[121], c[125], c[126],
+                   ta, tq, c[115] + span, i_pos]
+        # sb: block state (learning, l_sum, l_n, l_ms, l_dev, scale, sig_q6, k, h, s_hi, s_lo,
+        # drift_q8, slow power q4, m_sum, m_sq, m_n, m_ms, m_run)
+        self.sb = [1, 0, 0, 0, 0, 1000, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0]
         self.residual_permille = 0
-        self.power_dW = 0
-        self.expected_dW = 0
         self.thrust_mN = 0
         self.hover_permille = 0
         self.mass_g = 0
         self.scale = 1000
+        self.sigma_permille = 0
+
+    def _reset(self):
+        """A new flight: forget the learned scale, noise, CUSUM sums, drift and mass."""
+        sb = self.sb
+        sb[0] = 1
+        sb[1] = 0
+        sb[2] = 0
+        sb[3] = 0
+        sb[4] = 0
+        sb[5] = 1000
+        sb[6] = 0
+        sb[7] = 0
+        sb[8] = 0
+        sb[9] = 0
+        sb[10] = 0
+        sb[11] = 0
+        sb[12] = 0
+        sb[13] = 0
+        sb[14] = 0
+        sb[15] = 0
+        sb[16] = 0
+        sb[17] = 0
+        self.mass_g = 0
+        self.scale = 1000
+        self.sigma_permille = 0
+        self.residual_permille = 0
 
     def update(self, dt_ms, command_permille, bus_mV, bus_mA):
         """One sample: dt_ms [ms] since the last, command [1/1000], bus voltage [mV], current [mA].
@@ -101,240 +112,292 @@ class Watch:
         """
         u = command_permille
         st = self.st
-        (tb, flags, s_hi, s_lo, drift, rest, acc, last_u, last_mA, stuck, quiet, learning, l_sum, l_n, l_ms,
-         scale, m_filt, m_n,
-         dt_max, v_min, v_max, i_min, i_max, spin, rate_fast, settle, steady, cmd_min, cmd_span, quad, vstep,
-         pfloor, k, h, clip, sh, tu,
-         ta, tq, u_top, i_pos, hh, half_h, rb, nrb, nclip, dlim, ndlim, pm_top, sh_mask) = st
-        # range checks: comparisons only, so any int is safe here. The command's and the
-        # current's checks share their comparisons with the thrust curve's clamps and the
-        # power's sign (u_top = cmd_min + cmd_span; i_pos = max(i_min, 0)).
+        (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw, low,
+         dt_max, v_min, v_max, i_min, i_max, spin, cmd_min, vstep, pfloor, lag, blk, stuck_lim, landed,
+         ta, tq, u_top, i_pos) = st
+        # range checks: comparisons only, so any int is safe here
         if dt_ms <= 0 or dt_ms > dt_max or bus_mV < v_min or bus_mV > v_max:
-            flags = (flags & 27) | 4
+            flags |= 4
             st[1] = flags
             return flags
         if u < cmd_min:
             if u < 0:
-                flags = (flags & 27) | 4
+                flags |= 4
                 st[1] = flags
                 return flags
             t = 0
         elif u > u_top:
             if u > 1000:
-                flags = (flags & 27) | 4
+                flags |= 4
                 st[1] = flags
                 return flags
             t = 4096
         else:
-            # thrust fraction t(x) = (1 - a) x + a x^2 in Q12 at x = d / span, d = u - cmd_min
             d = u - cmd_min                               # 0..span
-            t = d * (ta + (tq * d >> 10)) >> 14           # tq*d <= 4096 2^24 / span <= 6.9e8 ; d*(..) <= 2^26
+            t = d * (ta + (tq * d >> 10)) >> 14           # tq*d <= 6.9e8 ; d*(..) <= 2^26
         ma = bus_mA
         if bus_mA < i_pos:
             if bus_mA < i_min:
-                flags = (flags & 27) | 4
+                flags |= 4
                 st[1] = flags
                 return flags
             ma = 0                                        # negative current: measured power 0
         elif bus_mA > i_max:
-            flags = (flags & 27) | 4
+            flags |= 4
             st[1] = flags
             return flags
-        # now 0 < dt <= dt_max (<= 60000), 0 <= u <= 1000, 0 <= v_min <= mV <= v_max <= 60000,
-        # 0 <= ma <= 300000
+        # now 0 < dt <= 60000, 0 <= u <= 1000, 0 <= mV <= 60000, 0 <= ma <= 300000
         if bus_mA == last_mA and u >= spin:
-            stuck += 1                                    # <= stuck_samples (<= 1000)
-            if stuck >= tb[128]:                           # stuck_samples
-                st[9] = tb[128]
-                flags = (flags & 27) | 4
+            stuck += dt_ms                                # <= stuck_lim + dt_max < 7e5
+            if stuck >= stuck_lim:
+                st[6] = stuck_lim
+                flags |= 4
                 st[1] = flags
                 return flags
-            st[9] = stuck
+            st[6] = stuck
         elif stuck:
-            st[9] = 0
-        st[8] = bus_mA
+            st[6] = 0
+        st[5] = bus_mA
+        flags &= 27                                       # a good sample clears sensor_fault
 
-        # trust w = 16 - wp: 0..16, ramps up over settle_ms after the command last moved fast;
-        # rest is steady_ms minus the calm time (capped there): 0 = steady, full trust
-        # (settle <= steady); wp = 0 is full trust
-        du = u - last_u                                   # |du| <= 1000
-        st[7] = u
-        if du < 0:
-            du = -du
-        if du * 1000 > rate_fast * dt_ms:                 # <= 1e6 ; rate_fast*dt <= 1e4*6e4 = 6e8
-            st[5] = steady
-            rest = steady
-            wp = 16
-        elif rest:
-            rest -= dt_ms                                 # |.| <= 1.2e5
-            if rest < 0:
-                rest = 0
-            st[5] = rest
-            wp = steady - rest                            # the calm time, <= steady
-            wp = 0 if wp >= settle else 16 - wp * 16 // settle   # <= 16 * 6e4
-        else:
-            wp = 0
-
-        # expected power: thrust fraction t (above), voltage factor by table, power by table
-        dv = bus_mV - v_min                               # 0 .. v_max - v_min < 12 vstep
-        i = dv // vstep                                   # voltage factor knot, CONFIG[0..11]
-        fr = dv % vstep                                   # 0..vstep-1
+        # expected power: voltage factor by table, power by table over f = factor x t
+        dv = bus_mV - v_min                               # 0 .. < 12 vstep
+        i = dv // vstep
         a = tb[i]                                         # Q12, 0..6143
-        f = (a + (tb[i + 1] - a) * fr // vstep) * t >> 12  # 6143 * 5001 = 3.1e7 ; 6143 * 4096 = 2.5e7 ; f <= 6143
-        j = (f >> 7) + 26                                 # power knot, CONFIG[26..73]
+        f = (a + (tb[i + 1] - a) * (dv % vstep) // vstep) * t >> 12  # 6143 * 5001 ; 6143 * 4096 ; f <= 6143
+        j = (f >> 7) + 26
         a = tb[j]                                         # [0.1 W], < 2^18
-        pe = a + ((tb[j + 1] - a) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7 ; pe < 2^18
-        self.expected_dW = pe
+        pe = a + ((tb[j + 1] - a) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7
+        # first-order lag, alpha = dt / (lag + dt) in Q8 (recomputed only when dt changes)
+        if dt_ms != dt_last:
+            alpha = (dt_ms << 8) // (lag + dt_ms)         # 60000 * 256 = 1.5e7
+            st[3] = dt_ms
+            st[4] = alpha
+        pl4 += ((pe << 2) - pl4) * alpha >> 8             # 2^20 * 256 = 2^28 ; pl4 < 2^20
+        st[2] = pl4
+        pm = (bus_mV // 20) * ma // 5000                  # 3000 * 300000 = 9e8 ; pm <= 180000
 
-        # measured power [dW] = mV * mA / 1e5 with the voltage in 20 mV steps (0.13 % at 15 V)
-        pm = (bus_mV // 20) * ma // 5000                  # <= 3000 * 300000 = 9e8
-        self.power_dW = pm                                # <= 180000 < 2^18
-
-        # slow outputs every 4th sample: hover command by table over V, thrust by table over the
-        # mean measured power of the last 4 samples. acc = 2^20 x samples + power sum (< 2^20)
-        acc += pm + 1048576                               # < 4 * 2^20 + 4 * 180000 < 2^23
-        if acc >= 4194304:
-            pm4 = (acc & 1048575) >> 2                    # mean of the 4 samples
-            acc = 0
-            slow = 1
-            a = tb[i + 13]                                # hover knot, CONFIG[13..24]: permille
-            self.hover_permille = a + (tb[i + 14] - a) * fr // vstep   # 1000 * 5001 = 5e6
-            if pm4 > pm_top:
-                pm4 = pm_top                              # table covers 0..32 x 2^sh - 1
-            j = (pm4 >> sh) + 75                          # thrust knot, CONFIG[75..106]
-            a = tb[j]                                     # units of 2^thrust_unit_shift mN, < 2^13
-            self.thrust_mN = (a + ((tb[j + 1] - a) * (pm4 & sh_mask) >> sh)) << tu  # 2^13 * 2^13 = 2^26 ; <= 1e6
-        else:
-            slow = 0
-        st[6] = acc
-
-        flags &= 24                                       # keep baseline_off, mass_high
-        # flight phase: a new flight starts after landed_ms below the spin command
-        if u < spin:
+        if u < spin:                                      # on the ground (or rotors stopped)
             quiet += dt_ms                                # <= landed + dt_max <= 120000
-            if quiet >= tb[129]:                           # landed_ms
-                quiet = tb[129]
-                if learning == 0 or l_n > 0:              # a new flight: forget the learned
-                    flags = 0                             # scale, the CUSUM sums, the mass
-                    st[2] = 0       # s_hi
-                    st[3] = 0       # s_lo
-                    st[4] = 0       # drift
-                    st[11] = 1      # learning
-                    st[12] = 0      # l_sum
-                    st[13] = 0      # l_n
-                    st[14] = 0      # l_ms
-                    st[15] = 1000   # scale
-                    st[16] = 0      # m_filt
-                    st[17] = 0      # m_n
-                    self.mass_g = 0
-                    self.scale = 1000
-            st[10] = quiet
-            self.residual_permille = 0
+            if quiet >= landed:
+                quiet = landed
+                if fl_ms:                                 # landed after a flight: a new one next
+                    self._reset()
+                    flags = 0
+                    st[8] = 0
+            st[7] = quiet
+            if bw:
+                st[9] = 0
+                st[10] = 0
+                st[11] = 0
+                st[12] = 0
             st[1] = flags
             return flags
         if quiet:
-            st[10] = 0
+            st[7] = 0
+        if fl_ms < 536870912:
+            fl_ms += dt_ms                                # < 2^29 + 60000
+            st[8] = fl_ms
+        w = dt_ms if dt_ms < blk else blk                 # one sample counts at most one block
+        em += pm * w                                      # 180000 * 2000 = 3.6e8
+        ee += (pl4 >> 2) * w                              # 2^18 * 2000 = 5.2e8
+        bw += w                                           # < 2 blk
         if pe < pfloor:
-            self.residual_permille = 0
-            st[1] = flags
-            return flags
-        sp = pe * scale // 1000                           # <= 2^18 * 1300 = 3.4e8 ; sp <= 3.4e5, >= 1
-        r = (pm - sp) * 1000 // sp                        # |pm - sp| * 1000 <= 3.4e8
-        if nrb < r < rb:
-            big = 0                                       # |r| < 1000 and |r - drift| < clip
+            low = 1
+        if bw >= blk:
+            flags = self._block(flags, em, ee, bw, bus_mV, low, fl_ms)
+            st[9] = 0
+            st[10] = 0
+            st[11] = 0
+            st[12] = 0
         else:
-            big = 1
-            if r > 1000:
-                r = 1000
-            elif r < -1000:
-                r = -1000                                 # |r| <= 1000
+            st[9] = em
+            st[10] = ee
+            st[11] = bw
+            st[12] = low
+        st[1] = flags
+        return flags
+
+    def _block(self, flags, em, ee, bw, mv, low, fl_ms):
+        """One block of flight time: residual, learning, CUSUM, noise, drift, implied mass.
+
+        em, ee: measured and lagged expected energy [0.1 W ms]; bw: block length [ms]; mv: last
+        voltage [mV]; low: expected power fell below the floor; fl_ms: flight time [ms].
+        Returns the flags. No loops, no allocation.
+        """
+        c = self.st[0]
+        sb = self.sb
+        (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, ps,
+         m_sum, m_sq, m_n, m_ms, m_run) = sb
+        pb = ee // bw                                     # mean expected power [0.1 W] < 2^18
+        pmb = em // bw                                    # mean measured power [0.1 W] <= 180000
+        # slow outputs: thrust from the block's measured power (table over power), hover command
+        sh = c[123]
+        top = (32 << sh) - 1
+        if pmb > top:
+            pmb = top
+        j = (pmb >> sh) + 75
+        a = c[j]                                          # < 2^13
+        th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[124]  # 2^13 * 2^13 ; <= 1e6
+        self.thrust_mN = th
+        dv = mv - c[110]
+        vs = c[118]
+        j = dv // vs
+        a = c[j + 13]
+        self.hover_permille = a + (c[j + 14] - a) * (dv % vs) // vs   # 1000 * 5001
+        # steady: block expected power near the slow mean (EMA over 8 blocks, [0.1 W / 16])
+        if ps == 0:
+            ps = pb << 4                                  # < 2^22
+        psd = ps >> 4
+        dp = pb - psd
+        if dp < 0:
+            dp = -dp
+        steady = low == 0 and dp * 1000 <= c[135] * psd   # 2^18 * 1000 = 2.6e8
+        sb[12] = ps + (((pb << 4) - ps) >> 3)
+        e0 = ee >> c[122]                                 # < 2^19 (energy_shift, watch_layout)
+        e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
+        if e0s <= 0:
+            return flags
+        d = (em >> c[122]) - e0s
+        if d >= e0s:
+            r = 1000
+        elif -d >= e0s:
+            r = -1000
+        else:
+            r = d * 1000 // e0s                           # 6.8e5 * 1000
         self.residual_permille = r
+        if fl_ms < c[127]:                                # take-off: not judged, not learned
+            return flags
 
         if learning:
-            if not wp:
-                l_sum += r                                # <= 1000 * 65535 = 6.6e7
-                l_n += 1                                  # <= 65535
-                l_ms += dt_ms                             # <= learn_ms + dt_max
-                st[12] = l_sum
-                st[13] = l_n
-                st[14] = l_ms
-            if l_n > 0 and (l_ms >= tb[130] or l_n >= 65535):  # learn_ms
-                m = l_sum // l_n                          # l_n >= 1 here (l_ms > 0 needs a sample)
-                if m > tb[131]:                           # baseline_tol_permille
-                    m = tb[131]
+            if steady:
+                l_n += 1                                  # <= 18000 (timeout / block)
+                l_sum += r                                # <= 1.8e7
+                dz = r - l_sum // l_n
+                if dz < 0:
+                    dz = -dz                              # <= 2000
+                l_dev += dz                               # <= 3.6e7
+                l_ms += bw
+                sb[1] = l_sum
+                sb[2] = l_n
+                sb[3] = l_ms
+                sb[4] = l_dev
+            if l_ms >= c[128] or fl_ms >= c[129]:
+                floor = c[131]
+                if l_n >= 4:
+                    m = l_sum // l_n
+                    s = (l_dev // (l_n - 1)) * 321 >> 8   # mean |dev| x 1.2539 (sqrt(pi/2))
+                else:
+                    m = 0
+                    s = floor + floor
+                tol = c[130]
+                if m > tol:
+                    m = tol
                     flags |= 8
-                elif m < -tb[131]:
-                    m = -tb[131]
+                elif m < -tol:
+                    m = -tol
                     flags |= 8
-                scale = 1000 + m                          # 1000 +- tol (tol <= 300)
-                st[15] = scale
+                if s < floor:
+                    s = floor
+                if s > 1000:
+                    s = 1000
+                scale = 1000 + m
+                sb[0] = 0
+                sb[5] = scale
+                sb[6] = s << 6                            # Q6, <= 64000
+                sb[7] = s * c[133] >> 8                   # 1000 * 2560
+                sb[8] = s * c[134] >> 8                   # 1000 * 12800
                 self.scale = scale
-                st[11] = 0                                # learning done
-            st[1] = flags
-            return flags
+                self.sigma_permille = s
+        elif steady:
+            z = r - (drift >> 8)                          # |.| <= 1100
+            quiet = s_hi + s_lo < (h >> 1)
+            cl = k + (h >> 1) + 1                         # one block adds at most this
+            zc = z
+            if zc > cl:
+                zc = cl
+            elif zc < -cl:
+                zc = -cl
+            s_hi += zc - k                                # <= 2h + 2 cl < 1e5
+            s_lo -= zc + k
+            if s_hi < 0:
+                s_hi = 0
+            elif s_hi > h + h:
+                s_hi = h + h
+            if s_lo < 0:
+                s_lo = 0
+            elif s_lo > h + h:
+                s_lo = h + h
+            sb[9] = s_hi
+            sb[10] = s_lo
+            if quiet:
+                # noise: EMA of |z| x sqrt(pi/2) (Q6: 80 = 64 x 1.2533), |z| clipped at 5 sigma
+                s = sig >> 6
+                floor = c[131]
+                if s < floor:
+                    s = floor
+                if z < 0:
+                    z = -z
+                if z > 5 * s:
+                    z = 5 * s
+                sig += (z * 80 - sig) >> c[132]           # 5000 * 80 = 4e5
+                sb[6] = sig
+                s = sig >> 6
+                if s < floor:
+                    s = floor
+                sb[7] = s * c[133] >> 8
+                sb[8] = s * c[134] >> 8
+                self.sigma_permille = s
+                # slow bounded drift of the baseline [1/256 permille]
+                drift += ((r << 8) - drift) >> c[136]     # 1000 * 256
+                lim = c[137] << 8
+                if drift > lim:
+                    drift = lim
+                elif drift < -lim:
+                    drift = -lim
+                sb[11] = drift
+            flags &= 28
+            if s_hi >= h:
+                flags |= 1
+            if s_lo >= h:
+                flags |= 2
 
-        # slow drift of the baseline (pack drain moves the hover point along the fitted curves):
-        # EMA of r over 512 trusted samples, bounded to +-drift_tol, frozen while either CUSUM
-        # sum is above h / 2 so that a fault is never absorbed. Kept in 1/256 permille.
-        if not wp:
-            if s_hi + s_lo < half_h:
-                drift += (r * 256 - drift) >> 9           # |r * 256| <= 256000
-                if drift > dlim:                          # dlim = drift_tol * 256 <= 25600
-                    drift = dlim
-                elif drift < ndlim:
-                    drift = ndlim
-                st[4] = drift
-            r -= drift >> 8
-            # two-sided CUSUM on r clipped to +-(h + k - 1); full trust: whole increments
-            if big:
-                if r > clip:
-                    r = clip
-                elif r < nclip:
-                    r = nclip
-            s_hi += r - k                                 # |.| <= 2000 + 2000
-            s_lo -= r + k
-        else:
-            r -= drift >> 8
-            # increments weighted by trust w/16
-            if big:
-                if r > clip:
-                    r = clip
-                elif r < nclip:
-                    r = nclip
-            w = 16 - wp
-            s_hi += w * (r - k) >> 4                      # |w (r - k)| <= 16 * 2000
-            s_lo += w * (-r - k) >> 4
-        # each sum: clamp to 0..2h, alarm at h (one comparison when the sum is at 0)
-        if s_hi < 0:
-            s_hi = 0
-        elif s_hi >= h:
-            flags |= 1
-            if s_hi > hh:
-                s_hi = hh                                 # <= 2 h <= 2000
-        st[2] = s_hi
-        if s_lo < 0:
-            s_lo = 0
-        elif s_lo >= h:
-            flags |= 2
-            if s_lo > hh:
-                s_lo = hh
-        st[3] = s_lo
-
-        # implied mass in steady hover: filtered thrust / g (not while power is abnormal),
-        # every 4th sample (EMA 1/4 per update: about 1.6 s at 10 Hz)
-        if slow and not rest and flags & 3 == 0:
-            th = self.thrust_mN
-            if m_n == 0:
-                m_filt = th
+        # implied mass over windows of steady flight (not while a power fault is suspected)
+        if steady:
+            if s_hi + s_lo < (h >> 1) or learning:
+                plan = c[140]
+                dm = (th * 1000 // 9807 - plan) * 1000 // plan   # 1e6 * 1000 ; (1e5 + 5e5) * 1000
+                if dm > 500:
+                    dm = 500
+                elif dm < -500:
+                    dm = -500
+                m_sum += dm                               # <= 500 x 1200 blocks
+                m_sq += dm * dm                           # <= 250000 x 1200 = 3e8
+                m_n += 1
+                m_ms += bw
+                if m_ms >= c[138]:
+                    mu = m_sum // m_n
+                    var = m_sq // m_n - mu * mu           # <= 250000
+                    self.mass_g = plan + plan * mu // 1000   # 5e5 * 500
+                    ex = mu - c[141]
+                    if ex > 0 and ex * ex * m_n > ((var >> 4) * c[142] >> 4):   # 2.5e5 * 1200 ; 15625 * 65535
+                        m_run += 1
+                        if m_run >= c[139]:
+                            flags |= 16
+                    else:
+                        m_run = 0
+                    m_sum = 0
+                    m_sq = 0
+                    m_n = 0
+                    m_ms = 0
+                sb[17] = m_run
             else:
-                m_filt += (th - m_filt) >> 2              # |.| <= 1e6
-            st[16] = m_filt
-            if m_n < tb[132]:                             # mass_samples
-                st[17] = m_n + 1
-            else:
-                m = m_filt * 1000 // 9807                 # <= 1e9 ; 9807 = 1000 g_n [m/s^2]
-                self.mass_g = m
-                if m > tb[133]:                           # mass_limit_g
-                    flags |= 16
-        st[1] = flags
+                m_sum = 0
+                m_sq = 0
+                m_n = 0
+                m_ms = 0
+            sb[13] = m_sum
+            sb[14] = m_sq
+            sb[15] = m_n
+            sb[16] = m_ms
         return flags

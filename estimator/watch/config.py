@@ -1,9 +1,12 @@
 """Parameter set (+ vehicle) -> the integer CONFIG of the onboard power watch.
 
 Desktop side: floats here, integers out. Every CONFIG value comes with a note of the float
-values it was made from (the bundle writes them as comments). The CUSUM reference value k
-and threshold h come from the bench residual noise (power_model.residual_rel_std) and a
-target false-alarm rate through Siegmund's approximation of the average run length:
+values it was made from (the bundle writes them as comments); the layout, bounds and flag
+bits live in estimator/core/watch_layout.py. The kernel's CUSUM runs once per block of flight
+time on the block residual in units of its noise (learned in flight, the bench noise
+power_model.residual_rel_std as a floor); its reference k and threshold h [noise sigma] come
+from a target false-alarm rate per flight hour through Siegmund's approximation of the
+average run length:
 
     ARL(k, h, mu) = (exp(-2 D b) + 2 D b - 1) / (2 D^2),  D = mu - k,  b = h + 1.166
     (ARL = b^2 when D = 0), in units of the noise sigma, for one-sided CUSUM on N(mu, 1);
@@ -17,79 +20,50 @@ and 168 two-sided, the published table values (design notes sec. 3a).
 import math
 
 from estimator.core import momentum, thrust_curve
+from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.errors import InputError
 
 LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports; every kernel value stays below
 
 DEFAULTS = {
-    "sample_ms": 100,               # nominal sampling period of the board loop [ms]
-    "false_alarms_per_100h": 0.01,  # target in-control false-alarm rate [1 / 100 flight hours]
-    "design_shift": 0.10,           # relative power shift the CUSUM is tuned for [-]
+    "false_alarms_per_hour": 0.001,  # target in-control false power alarms per flight hour [1/h]
     "noise_rel_std": None,          # override of power_model.residual_rel_std [-]
-    "learn_s": 10.0,                # learning window at each flight start [s]
+    "noise_floor_share": 0.5,       # block-noise floor = this x bench residual_rel_std [-] (a block
+                                    # averages several readings; the model-form error stays)
+    "noise_floor_min": 0.004,       # and never below this [-] (integer and sensor resolution)
+    "cusum_k_sigma": 1.0,           # CUSUM reference value [noise sigma]
+    "lag_ms": 60.0,                 # expected-power lag: rotor spin-up + current-sensor response [ms]
+    "block_s": 0.5,                 # energy block length [s]
+    "takeoff_s": 5.0,               # flight time after spin-up not judged (take-off) [s]
+    "learn_s": 15.0,                # steady flight time the learning window needs [s]
+    "learn_timeout_s": 60.0,        # the learning window ends by this flight time anyway [s]
     "baseline_tol": 0.10,           # learned scale further than this from 1 -> baseline_off [-]
-    "mass_share": 0.08,             # implied mass above planned by this share -> mass_high [-]
-    "rate_fast_per_s": 0.3,         # command rate above which samples are not trusted [1/s]
-    "settle_s": 1.0,                # trust ramps back to full over this time [s]
-    "steady_s": 2.0,                # command calm this long = steady (hover) [s]
+    "noise_s": 60.0,                # in-flight noise estimate: EMA time constant [s]
+    "steady_share": 0.25,           # block expected power within this share of its slow mean: judged [-]
+    "drift_s": 60.0,                # slow baseline tracking: EMA time constant [s]
+    "drift_tol": 0.03,              # bound of the slow in-flight baseline tracking [-]
+    "mass_share": 0.08,             # implied mass above planned by this share (+ margin) -> mass_high [-]
+    "mass_window_s": 15.0,          # steady flight time per implied-mass window [s]
+    "mass_windows": 2,              # windows in a row above limit + margin -> mass_high
+    "mass_z": 2.0,                  # margin in standard errors of the window mean [-]
+    "mass_corr_blocks": 6.0,        # blocks per independent stretch (thrust swings last seconds) [-]
     "landed_s": 3.0,                # command below spin this long = landed, next spin-up a new flight [s]
     "dt_max_s": 2.0,                # a sample gap above this is a sensor fault [s]
-    "stuck_samples": 30,            # identical current readings in a row while spinning -> sensor_fault
+    "stuck_s": 3.0,                 # current identical this long while spinning -> sensor_fault [s]
     "spin_command": None,           # command above which the rotors make thrust [-] (default u_min + 0.05)
     "current_min_A": -0.2,          # below this the current sensor is faulty [A]
     "current_max_A": None,          # above this [A] (default 1.5 x motors' max, at most 300 A)
-    "drift_tol": 0.03,              # bound of the slow in-flight baseline tracking [-]
-    "mass_samples": 20,             # steady mass-filter updates (every 4th sample) before mass_g is reported
 }
 
-# CONFIG is one flat tuple of plain ints (each below 2^30 in magnitude): the four tables in
-# TABLES order, knot after knot, at the offsets in TABLE_AT (the kernel uses these offsets as
-# literal numbers), then the scalars in CONFIG_KEYS order from SCALAR_AT ("format", the
-# kernel's CONFIG format number, first). The kernel copies the scalars it needs on every
-# sample into its state list in __init__ (estimator/core/watch.py).
-CONFIG_FORMAT = 2
-CONFIG_KEYS = (
-    "format",
-    # used on every sample (the kernel copies these into its state list)
-    "dt_max_ms",
-    "v_min_mV",
-    "v_max_mV",
-    "i_min_mA",
-    "i_max_mA",
-    "spin_permille",
-    "rate_fast_permille_s",
-    "settle_ms",
-    "steady_ms",
-    "command_min_permille",
-    "command_span_permille",
-    "quadratic_q12",
-    "volt_step_mV",
-    "power_floor_dW",
-    "cusum_k_permille",
-    "cusum_h_permille",
-    "clip_permille",
-    "thrust_shift",
-    "thrust_unit_shift",
-    # used rarely (read from CONFIG where needed)
-    "stuck_samples",
-    "landed_ms",
-    "learn_ms",
-    "baseline_tol_permille",
-    "mass_samples",
-    "mass_limit_g",
-    "drift_tol_permille",
-)
-
-TABLES = (("volt_q12", 13), ("hover_table_permille", 13), ("power_table", 49), ("thrust_table", 33))
-TABLE_AT = {}
-_at = 0
-for _name, _n in TABLES:
-    TABLE_AT[_name] = _at
-    _at += _n
-SCALAR_AT = _at  # 108
-CONFIG_LENGTH = _at + len(CONFIG_KEYS)  # 135
-del _at, _name, _n
+# CONFIG is one flat tuple of plain ints (layout in estimator/core/watch_layout.py): the tables
+# in TABLES order, knot after knot, at TABLE_AT, then the scalars in CONFIG_KEYS order.
+CONFIG_FORMAT = layout.FORMAT
+CONFIG_KEYS = tuple(name for name, _, _ in layout.SCALARS)
+TABLES = tuple((name, n) for name, n, _, _ in layout.TABLES)
+TABLE_AT = layout.TABLE_AT
+SCALAR_AT = layout.SCALAR_AT
+CONFIG_LENGTH = layout.CONFIG_LENGTH
 
 SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
 
@@ -239,20 +213,27 @@ def make_config(params, vehicle=None, options=None):
     put("format", CONFIG_FORMAT, "CONFIG format of this kernel")
 
     sigma = o["noise_rel_std"] if o["noise_rel_std"] is not None else pm["residual_rel_std"]
-    if not 0.0 < sigma < 0.5:
+    if not 0.0 <= sigma < 0.5:
         raise InputError("parameter set: $.power_model.residual_rel_std: %g is not a usable noise "
-                         "level for the watch (expected 0 < sigma < 0.5)" % sigma)
-    rate_hz = 1000.0 / o["sample_ms"]
-    arl_target = 100.0 * 3600.0 * rate_hz / o["false_alarms_per_100h"]
-    k_sigma = max(0.5, 0.5 * o["design_shift"] / sigma)
+                         "level for the watch (expected 0 <= sigma < 0.5)" % sigma)
+    block_ms = int(round(1000.0 * o["block_s"]))
+    if not 100 <= block_ms <= 1000:
+        raise InputError("watch option block: %g s is outside 0.1..1 s" % o["block_s"])
+    blocks_per_hour = 3600000.0 / block_ms
+    arl_target = blocks_per_hour / o["false_alarms_per_hour"]
+    k_sigma = float(o["cusum_k_sigma"])
     h_sigma = threshold_for_arl(k_sigma, arl_target)
-    k_pm = int(round(k_sigma * sigma * 1000.0))
-    h_pm = max(1, int(round(h_sigma * sigma * 1000.0)))
-    put("cusum_k_permille", k_pm, "k = %.3f sigma, sigma = residual_rel_std %.4f, design shift %.3f"
-        % (k_sigma, sigma, o["design_shift"]))
-    put("cusum_h_permille", h_pm, "h = %.3f sigma: two-sided in-control ARL %.3g samples = %g false "
-        "alarms per 100 h at %g Hz (Siegmund 1985)" % (h_sigma, arl_target, o["false_alarms_per_100h"], rate_hz))
-    put("clip_permille", h_pm + k_pm - 1, "one sample can add at most h - 1: alarms need two samples")
+    floor = max(o["noise_floor_min"], o["noise_floor_share"] * sigma)
+    put("noise_floor_permille", min(300, max(1, int(round(1000.0 * floor)))),
+        "block noise floor %.4f = max(%.4f, %.2f x bench residual_rel_std %.4f)"
+        % (floor, o["noise_floor_min"], o["noise_floor_share"], sigma))
+    put("cusum_k_q8", int(round(256.0 * k_sigma)), "k = %.3f sigma (block residual noise)" % k_sigma)
+    put("cusum_h_q8", max(1, int(round(256.0 * h_sigma))),
+        "h = %.3f sigma: two-sided in-control ARL %.3g blocks of %d ms = %g false alarms per flight hour "
+        "(Siegmund 1985)" % (h_sigma, arl_target, block_ms, o["false_alarms_per_hour"]))
+    put("block_ms", block_ms, "energy block %d ms of flight time" % block_ms)
+    put("lag_ms", int(round(o["lag_ms"])), "expected power through a first-order lag of %.0f ms "
+        "(rotor spin-up + current sensor)" % o["lag_ms"])
 
     v_full = float(v.get("full_voltage_V") or curve["reference_voltage_V"] * 1.15)
     v_empty = float(v.get("empty_voltage_V") or curve["reference_voltage_V"] * 0.85)
@@ -325,19 +306,34 @@ def make_config(params, vehicle=None, options=None):
         "D %.4f m; in mN: %s" % (tu, sh, params["static_factor"]["k0"], params["static_factor"]["slope_per_N"],
                                  params["rotor"]["diameter_m"], " ".join(str(x) for x in t_tab)))
 
-    put("learn_ms", max(1, int(round(1000.0 * o["learn_s"]))), "learning window %.1f s" % o["learn_s"])
-    put("baseline_tol_permille", int(round(1000.0 * o["baseline_tol"])), "|scale - 1| above %.3f -> baseline_off" % o["baseline_tol"])
-    put("rate_fast_permille_s", int(round(1000.0 * o["rate_fast_per_s"])), "command rate %.2f /s" % o["rate_fast_per_s"])
-    put("settle_ms", max(1, int(round(1000.0 * o["settle_s"]))), "trust ramp %.1f s" % o["settle_s"])
-    put("steady_ms", max(1, int(round(1000.0 * o["steady_s"]))), "steady hover after %.1f s calm" % o["steady_s"])
+    put("takeoff_ms", int(round(1000.0 * o["takeoff_s"])), "first %.1f s of each flight not judged" % o["takeoff_s"])
+    put("learn_ms", int(round(1000.0 * o["learn_s"])), "learning window: %.1f s of steady flight" % o["learn_s"])
+    put("learn_timeout_ms", int(round(1000.0 * max(o["learn_timeout_s"], o["learn_s"]))),
+        "learning ends by %.0f s of flight in any case" % max(o["learn_timeout_s"], o["learn_s"]))
+    put("baseline_tol_permille", int(round(1000.0 * o["baseline_tol"])),
+        "|scale - 1| above %.3f -> baseline_off" % o["baseline_tol"])
+    put("noise_shift", _shift(o["noise_s"] * 1000.0 / block_ms), "noise EMA over about %.0f s" % o["noise_s"])
+    put("steady_permille", int(round(1000.0 * o["steady_share"])),
+        "blocks whose expected power is within %.2f of the slow mean are judged" % o["steady_share"])
+    put("drift_shift", _shift(o["drift_s"] * 1000.0 / block_ms), "baseline tracking EMA over about %.0f s" % o["drift_s"])
+    put("drift_tol_permille", int(round(1000.0 * o["drift_tol"])), "baseline tracking bounded to +-%.3f" % o["drift_tol"])
+    put("mass_window_ms", int(round(1000.0 * o["mass_window_s"])), "implied mass averaged over %.0f s of steady flight"
+        % o["mass_window_s"])
+    put("mass_windows", int(o["mass_windows"]), "windows in a row above the limit for mass_high")
+    put("mass_plan_g", int(round(1000.0 * mass_kg)), "planned all-up mass %.3f kg" % mass_kg)
+    put("mass_limit_permille", int(round(1000.0 * o["mass_share"])), "mass_high above plan + %.0f %% ..." % (100.0 * o["mass_share"]))
+    put("mass_z2_q8", min(65535, int(round(256.0 * o["mass_z"] ** 2 * o["mass_corr_blocks"]))),
+        "... + %.1f standard errors of the window mean (blocks correlated over %.0f blocks)"
+        % (o["mass_z"], o["mass_corr_blocks"]))
     put("landed_ms", max(1, int(round(1000.0 * o["landed_s"]))), "landed after %.1f s below spin" % o["landed_s"])
     put("dt_max_ms", int(round(1000.0 * o["dt_max_s"])), "sample gap limit %.1f s" % o["dt_max_s"])
-    put("stuck_samples", int(o["stuck_samples"]), "identical current readings in a row -> sensor_fault")
-    put("mass_samples", int(o["mass_samples"]), "steady mass-filter updates (every 4th sample) before mass_g is reported")
-    put("mass_limit_g", int(round(1000.0 * mass_kg * (1.0 + o["mass_share"]))),
-        "planned %.3f kg + %.0f %%" % (mass_kg, 100.0 * o["mass_share"]))
-    put("drift_tol_permille", int(round(1000.0 * o["drift_tol"])),
-        "slow baseline tracking bounded to +-%.3f (EMA over 512 trusted samples)" % o["drift_tol"])
+    put("stuck_ms", max(1, int(round(1000.0 * o["stuck_s"]))), "current identical for %.1f s while spinning -> "
+        "sensor_fault" % o["stuck_s"])
+    p_top = max(cfg["power_table"])
+    esh = 0
+    while (p_top * 2 * block_ms) >> esh >= 1 << 19:
+        esh += 1
+    put("energy_shift", esh, "block energies [0.1 W ms] >> %d stay below 2^19" % esh)
     check_config(cfg)
     return cfg, notes
 
@@ -357,41 +353,21 @@ def new_watch(cfg):
     return Watch(as_tuple(cfg))
 
 
+def _shift(blocks):
+    """log2 of an EMA length in blocks, rounded, within 0..12."""
+    return int(min(12, max(0, round(math.log2(max(blocks, 1.0))))))
+
+
 def check_config(cfg):
     """Refuse a CONFIG whose values would let a kernel intermediate reach 2^30 (InputError).
 
-    The bounds are those in the comments of estimator/core/watch.py.
+    The bounds are watch_layout.check's, the same the board loader applies.
     """
-    def need(ok, what):
-        if not ok:
-            raise InputError("watch CONFIG: %s" % what)
-    need(set(cfg) == set(CONFIG_KEYS) | set(name for name, _ in TABLES) and cfg["format"] == CONFIG_FORMAT,
-         "keys differ from CONFIG_KEYS and TABLES")
-    need(all(type(cfg[k]) is int for k in CONFIG_KEYS), "scalars must be ints")
+    if set(cfg) != set(CONFIG_KEYS) | set(name for name, _ in TABLES):
+        raise InputError("watch CONFIG: keys differ from CONFIG_KEYS and TABLES")
     for name, n in TABLES:
-        need(isinstance(cfg[name], tuple) and len(cfg[name]) == n and all(type(x) is int for x in cfg[name]),
-             "%s must be a tuple of %d ints" % (name, n))
-    need(0 < cfg["dt_max_ms"] <= 60000, "dt_max_ms must be in 1..60000")
-    need(0 <= cfg["v_min_mV"] < cfg["v_max_mV"] <= 60000, "voltage limits outside 0..60 V")
-    need(1 <= cfg["volt_step_mV"] <= 5001 and cfg["v_min_mV"] + 12 * cfg["volt_step_mV"] > cfg["v_max_mV"],
-         "voltage tables must span v_min_mV..v_max_mV in 12 steps")
-    need(-300000 <= cfg["i_min_mA"] <= cfg["i_max_mA"] <= 300000, "current limits outside -300..300 A")
-    need(0 <= cfg["command_min_permille"] <= 1000 and 100 <= cfg["command_span_permille"] <= 1000
-         and 0 <= cfg["quadratic_q12"] <= 4096, "thrust curve")
-    need(all(0 <= x <= 6143 for x in cfg["volt_q12"]), "volt_q12 table (0..1.5 in Q12)")
-    need(all(0 <= x <= 1000 for x in cfg["hover_table_permille"]), "hover table")
-    need(all(0 <= x < 1 << 18 for x in cfg["power_table"]), "power table (< 2^18 x 0.1 W)")
-    need(0 <= cfg["thrust_shift"] <= 13, "thrust table step (power above 26 kW)")
-    need(0 <= cfg["thrust_unit_shift"] <= 7 and all(0 <= x < 1 << 13 and (x << cfg["thrust_unit_shift"]) <= 1000000
-                                                      for x in cfg["thrust_table"]), "thrust table (above 1000 N)")
-    need(0 <= cfg["rate_fast_permille_s"] <= 10000, "rate limit")
-    need(1 <= cfg["settle_ms"] <= 60000 and 1 <= cfg["steady_ms"] <= 60000 and 1 <= cfg["landed_ms"] <= 60000,
-         "time constants must be 1..60000 ms")
-    need(cfg["settle_ms"] <= cfg["steady_ms"], "settle_ms above steady_ms (full trust would never be reached)")
-    need(1 <= cfg["learn_ms"] <= 600000, "learning window")
-    need(0 <= cfg["baseline_tol_permille"] <= 300, "baseline tolerance")
-    need(1 <= cfg["cusum_h_permille"] <= 1000 and 0 <= cfg["cusum_k_permille"] <= 1000
-         and 0 <= cfg["clip_permille"] <= 1000, "CUSUM values")
-    need(0 <= cfg["drift_tol_permille"] <= 100, "drift tolerance")
-    need(1 <= cfg["stuck_samples"] <= 1000 and 1 <= cfg["mass_samples"] <= 1000, "sample counts")
-    need(abs(cfg["power_floor_dW"]) <= 1 << 18 and 0 <= cfg["mass_limit_g"] <= 1 << 29, "power floor, mass limit")
+        if not isinstance(cfg[name], tuple) or len(cfg[name]) != n:
+            raise InputError("watch CONFIG: %s must be a tuple of %d ints" % (name, n))
+    problem = layout.check(as_tuple(cfg))
+    if problem:
+        raise InputError("watch " + problem)

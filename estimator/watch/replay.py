@@ -10,11 +10,12 @@ the kernel, which flags them (sensor_fault) - a log with a glitch is still a log
 
 import sys
 
+from estimator.core.watch_layout import FLAG_BITS
 from estimator.errors import InputError
 from estimator.watch.config import make_config, new_watch
 from estimator.watch.log_checks import check_plausible, check_time, flying_ms
 
-KINDS = ((1, "power_high"), (2, "power_low"), (4, "sensor_fault"), (8, "baseline_off"), (16, "mass_high"))
+KINDS = FLAG_BITS
 ALARM_BITS = 1 | 2 | 8 | 16
 PROGRESS_ROWS = 100000  # logs longer than this get a progress bar (stderr, terminals only)
 
@@ -71,6 +72,7 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
     w = new_watch(config)
     update = w.update
     events = []
+    learned = False
     prev = 0
     t_prev = None
     arrays = {"time_s": t, "power_W": [], "expected_W": [], "flags": [], "residual": []} if keep_arrays else None
@@ -80,6 +82,8 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
         dt = first_ms if t_prev is None else int(round((ti - t_prev) * 1000.0))
         t_prev = ti
         flags = update(dt, u[i], mv[i], ma[i])
+        if not learned and w.sigma_permille:
+            learned = True
         if flags != prev:
             new = flags & ~prev
             if new:
@@ -89,15 +93,15 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
                                        "residual": w.residual_permille / 1000.0})
             prev = flags
         if keep_arrays:
-            arrays["power_W"].append(w.power_dW / 10.0)
-            arrays["expected_W"].append(w.expected_dW * w.scale / 10000.0)
+            arrays["power_W"].append(mv[i] * max(ma[i], 0) / 1e6)
+            arrays["expected_W"].append((w.st[2] >> 2) * w.scale / 10000.0)   # the kernel's lagged expected power
             arrays["flags"].append(flags)
             arrays["residual"].append(w.residual_permille / 1000.0)
         if progress is not None and i % step == 0:
             progress(i, n)
     if progress is not None:
         progress(n, n)
-    out = {"samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events}
+    out = {"learned": learned, "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events}
     if keep_arrays:
         out["_arrays"] = arrays
     return out
@@ -131,17 +135,13 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
     if progress is None:
         progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
     out = run_kernel(flight, config, keep_arrays=keep_arrays, progress=_bar if progress else None)
-    need_ms = learn_needed_ms(config)
-    flown = flying_ms(flight, config)
-    out["learned"] = flown >= need_ms
     if not out["learned"]:
-        out["note"] = ("too short to learn: %.1f s of flight above the spin command, the watch needs at least "
-                       "%.0f s to learn the power baseline - no verdict on this log" % (flown / 1000.0, need_ms / 1000.0))
+        need_ms = config["takeoff_ms"] + config["learn_ms"]
+        flown = flying_ms(flight, config)
+        out["note"] = ("too short to learn: %.1f s of flight above the spin command; the watch needs about "
+                       "%.0f s (take-off, then %.0f s of steady flight) to learn the power baseline - no verdict "
+                       "on this log" % (flown / 1000.0, need_ms / 1000.0, config["learn_ms"] / 1000.0))
     if dropped:
         out["dropped_rows"] = dropped
     return out
 
-
-def learn_needed_ms(config):
-    """Flight time the watch needs before it can judge power [ms] (CONFIG learning window)."""
-    return config["learn_ms"]

@@ -1,0 +1,33 @@
+"""Board-side loader for the liftcal power watch (MicroPython): check CONFIG, then make a Watch.
+
+``watch = load()`` checks ``liftwatch_config.CONFIG`` with the same bounds the desktop applies
+before it writes a bundle (liftwatch_layout.check, a copy of estimator/core/watch_layout.py)
+and raises ConfigProblem with a sentence saying what is wrong and what to do - a CONFIG edited
+by hand, copied from another vehicle's bundle or left over from an older liftcal version is
+refused before the first flight, not in the air. Python ``assert`` is not used: compiled .mpy
+files may drop it.
+"""
+
+import liftwatch_layout
+from liftwatch import Watch
+
+
+class ConfigProblem(Exception):
+    """CONFIG cannot be used; the message names the value and the remedy."""
+
+
+def load(config=None):
+    """Check CONFIG (default: liftwatch_config.CONFIG) and return ``Watch(config)``.
+
+    Raises ConfigProblem("liftwatch: ...") naming the index, the value and its bounds.
+    """
+    if config is None:
+        from liftwatch_config import CONFIG
+        config = CONFIG
+    try:
+        problem = liftwatch_layout.check(config)
+    except TypeError:
+        problem = "CONFIG is not a list of integers"
+    if problem:
+        raise ConfigProblem("liftwatch: " + problem + " (regenerate it with liftcal firmware)")
+    return Watch(config)
