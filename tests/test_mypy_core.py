@@ -35,7 +35,7 @@ def test_mypy_against_micropython_stubs(tmp_path):
     write_bundle(demo_fit_params(), str(tmp_path / "bundle"))
     bundle_mods = tmp_path / "bundle_mods"
     bundle_mods.mkdir()
-    for name in ("liftwatch.py", "liftwatch_config.py", "liftwatch_layout.py"):
+    for name in ("liftwatch.py", "liftwatch_config.py", "liftwatch_layout.py", "liftwatch_load.py"):
         os.symlink(tmp_path / "bundle" / name, bundle_mods / name)
     env = dict(os.environ, MYPYPATH=os.pathsep.join([str(stubs), str(bundle_mods)]))
     proc = subprocess.run(
