@@ -68,11 +68,32 @@ def cli():
 
 
 def main(argv=None):
-    """Console-script entry point: run the CLI, turning user errors into ``error:`` lines."""
+    """Console-script entry point: run the CLI, turning user errors into ``error:`` lines.
+
+    Besides InputError, an OSError that escaped the readers and writers (a file vanishing or
+    a disk failing in mid-run), MemoryError and RecursionError become one ``error:`` line
+    (exit 2) too: they come from what was given or where, not from a wrong answer.
+    """
+    import logging
+
+    # matplotlib's own warnings (a font cache it cannot save on a full disk) stay off stderr
+    logging.getLogger("matplotlib").setLevel(logging.ERROR)
     try:
         rv = cli.main(args=argv, prog_name="liftcal", standalone_mode=False)
     except InputError as exc:
-        click.echo("error: %s" % exc, err=True)
+        click.echo("error: %s" % _one_line(str(exc)), err=True)
+        sys.exit(2)
+    except OSError as exc:
+        if isinstance(exc, BrokenPipeError):
+            sys.exit(0)
+        where = exc.filename if exc.filename is not None else "liftcal"
+        click.echo("error: %s: %s" % (where, _one_line(exc.strerror or str(exc))), err=True)
+        sys.exit(2)
+    except MemoryError:
+        click.echo("error: out of memory; the input is too large for this machine", err=True)
+        sys.exit(2)
+    except RecursionError:
+        click.echo("error: the input is nested too deeply to read", err=True)
         sys.exit(2)
     except click.exceptions.Abort:
         click.echo("error: aborted", err=True)
@@ -89,6 +110,12 @@ def main(argv=None):
         sys.exit(0)
     code = rv if isinstance(rv, int) else 0
     sys.exit(code)
+
+
+def _one_line(text):
+    """An error message on one line (a tool's multi-line output folded), at most ~600 characters."""
+    text = " ".join(str(text).split())
+    return text if len(text) <= 600 else text[:600] + "..."
 
 
 def run():

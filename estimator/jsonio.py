@@ -3,7 +3,6 @@
 import json
 import os
 import sys
-import tempfile
 
 from estimator.errors import InputError
 
@@ -260,50 +259,28 @@ def unit_slip(value, kind, slips, schema):
     return None if best is None else (best[1], best[2])
 
 
-def write_atomic(path, text):
+def write_atomic(path, text, kind=None):
     """Write ``text`` to ``path`` through a temporary file and a rename: never a partial file.
 
-    The file gets the usual permissions for a new file (0666 less the umask). Raises
-    InputError when the folder is missing or ``path`` is a folder.
+    kind: what is written ("params", "settings"; estimator.outputs), so that only a file
+    liftcal wrote of that kind is replaced; None: ``path`` must not exist yet (a file in a
+    folder being built). Raises InputError on a refused path or a failed write.
     """
-    def write(fd, tmp):
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
-            fh.write(text)
+    from estimator.outputs import write_text
 
-    _replace_atomic(path, write)
+    write_text(path, text, kind)
 
 
 def save_figure_atomic(fig, path, dpi=110):
-    """Save a matplotlib figure as PNG at ``path`` atomically (as write_atomic)."""
-    def write(fd, tmp):
-        os.close(fd)
-        fig.savefig(tmp, dpi=dpi, format="png")
+    """Save a matplotlib figure as PNG at ``path`` atomically (estimator.outputs.save_figure)."""
+    from estimator.outputs import save_figure
 
-    _replace_atomic(path, write)
+    save_figure(fig, path, dpi)
 
 
-def _replace_atomic(path, write):
-    directory = os.path.dirname(os.path.abspath(path)) or "."
-    if not os.path.isdir(directory):
-        raise InputError("%s: folder %s does not exist" % (path, directory))
-    if os.path.isdir(path):
-        raise InputError("%s: is a folder; give a file name for the output" % path)
-    fd, tmp = tempfile.mkstemp(prefix=".tmp-", dir=directory)
-    try:
-        umask = os.umask(0)
-        os.umask(umask)
-        os.fchmod(fd, 0o666 & ~umask)
-        write(fd, tmp)
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-
-
-def write_json_atomic(path, document):
-    """Write a JSON document atomically with a stable, readable layout."""
-    write_atomic(path, json.dumps(document, indent=2, sort_keys=False) + "\n")
+def write_json_atomic(path, document, kind=None):
+    """Write a JSON document atomically with a stable, readable layout (as write_atomic)."""
+    write_atomic(path, json.dumps(document, indent=2, sort_keys=False, allow_nan=False) + "\n", kind)
 
 
 def dumps(document):

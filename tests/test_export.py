@@ -93,7 +93,9 @@ def test_cli_lines_and_json(tmp_path, capsys):
         main(["export", WITH_HOVER, "--json", "--out", str(target)])
     out, _ = capsys.readouterr()
     assert exc.value.code == 0 and json.loads(out) == as_mapping(expected)
-    assert json.loads(target.read_text()) == as_mapping(expected)
+    # the file carries its model (liftcal knows it as its own later; outputs.py)
+    kept = json.loads(target.read_text())
+    assert kept["model"] == "liftcal.settings/1" and kept["settings"] == as_mapping(expected)
 
 
 def test_cli_refusal_is_one_error_line_and_no_file(tmp_path, capsys):

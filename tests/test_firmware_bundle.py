@@ -105,13 +105,16 @@ def test_refuses_a_folder_that_is_not_a_bundle_and_replaces_an_old_bundle(tmp_pa
     other = tmp_path / "docs"
     other.mkdir()
     (other / "notes.txt").write_text("mine")
-    with pytest.raises(InputError, match="not an earlier liftwatch bundle"):
+    with pytest.raises(InputError, match="holds files liftcal did not write"):
         write_bundle(demo_fit_params(), str(other))
     assert (other / "notes.txt").read_text() == "mine"
     write_bundle(demo_fit_params(), str(tmp_path / "b"))
-    (tmp_path / "b" / "stale.txt").write_text("x")
-    write_bundle(demo_fit_params(), str(tmp_path / "b"))
-    assert not (tmp_path / "b" / "stale.txt").exists()
+    write_bundle(demo_fit_params(), str(tmp_path / "b"))  # an unchanged earlier bundle is replaced
+    # a file the person added (or edited) makes the folder theirs: never replaced
+    (tmp_path / "b" / "notes.txt").write_text("x")
+    with pytest.raises(InputError, match=r"holds files liftcal did not write .*notes\.txt"):
+        write_bundle(demo_fit_params(), str(tmp_path / "b"))
+    assert (tmp_path / "b" / "notes.txt").read_text() == "x"
     assert sorted(os.listdir(tmp_path)) == ["b", "docs"]
 
 

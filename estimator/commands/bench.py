@@ -3,6 +3,8 @@
 numpy, jsonschema and matplotlib are imported inside the commands, never at module top.
 """
 
+import os
+
 import click
 
 from estimator.cautions import SHORT, cautions
@@ -89,6 +91,10 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     from estimator.bench.sweep import fit_bench_file, summary
     from estimator.params import check_params, write_params
 
+    from estimator.outputs import check_outputs
+
+    check_outputs([(out_file, "params", "--out"), (plot_file, "png", "--plot")],
+                  inputs=(bench_file, vehicle_file))
     vehicle = None
     if vehicle_file is not None:
         from estimator.vehicle import load_vehicle
@@ -101,10 +107,16 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
         params["thrust_curve"]["voltage_exponent_source"] = "given"
     arrays = params.pop("_arrays", None)
     check_params(params, out_file)
+    plot_existed = plot_file is not None and os.path.lexists(plot_file)
     if plot_file is not None:
         from estimator.bench.plots import plot_fit
         plot_fit(plot_file, params, arrays)
-    write_params(out_file, params)
+    try:
+        write_params(out_file, params)
+    except Exception:
+        if plot_file is not None and not plot_existed:  # no half output: the new plot goes too
+            os.unlink(plot_file)
+        raise
     if as_json:
         out = summary(params)
         out["out"] = out_file
@@ -150,7 +162,9 @@ def check(params_file, as_json):
               help="Your mapping of our keys to your controller's names (default: the shipped "
                    "example with invented names).")
 @click.option("--out", "out_file", default=None, metavar="FILE",
-              help="Also write the settings to FILE (atomically), lines or JSON as printed.")
+              help="Also write the settings to FILE (atomically): the lines as printed after a "
+                   "'# liftcal settings' line, or with --json a JSON document (model "
+                   "liftcal.settings/1) holding them. Replaces only a settings file liftcal wrote.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object {name: value}.")
 def export(params_file, map_file, out_file, as_json):
     """Map a parameter set to your flight controller's setting names.
@@ -158,12 +172,12 @@ def export(params_file, map_file, out_file, as_json):
     Each setting is round(value * scale + offset, decimals); a value outside the map's
     bounds is refused, never clipped. Props off while you load settings into a controller.
     """
-    import os
-
     from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, format_lines, load_map
-    from estimator.jsonio import write_atomic
+    from estimator.outputs import SETTINGS_MARK, check_output, write_text
     from estimator.params import load_params
 
+    if out_file is not None:
+        check_output(out_file, "settings", inputs=(params_file, map_file))
     params = load_params(params_file)
     path = map_file or EXAMPLE_MAP
     settings = export_settings(params, load_map(path), path)
@@ -171,5 +185,11 @@ def export(params_file, map_file, out_file, as_json):
         os.path.basename(params_file), os.path.basename(path), len(settings), SHORT)
     text = dumps(as_mapping(settings)) + "\n" if as_json else format_lines(settings, header)
     if out_file is not None:
-        write_atomic(out_file, text)
+        # a file carries its mark, so liftcal knows it as its own later (outputs.py): the
+        # lines start with the '# liftcal settings' header, a JSON file names its model
+        kept = text if text.startswith(SETTINGS_MARK) else dumps({
+            "schema_version": 1, "model": "liftcal.settings/1",
+            "parameter_set": os.path.basename(params_file), "map": os.path.basename(path),
+            "settings": as_mapping(settings)}) + "\n"
+        write_text(out_file, kept, "settings")
     click.echo(text, nl=False)

@@ -7,6 +7,7 @@ each step by hand with the commands printed beside it.
 """
 
 import os
+import shutil
 
 import click
 
@@ -47,7 +48,27 @@ def run_demo(out_dir, seed=1, emit=None):
 
     ``emit``, when given, is called with each piece of text as soon as its step is done.
     """
-    from estimator.errors import InputError
+    from estimator.outputs import check_folder, replace_folder, staging_folder, write_error, write_manifest
+
+    # a new or empty folder, or one an earlier demo wrote and nobody changed (outputs.py); the
+    # files are made in a folder beside it and renamed into place at the end: never half a demo
+    check_folder(out_dir, "demo")
+    work = staging_folder(out_dir)
+    try:
+        report, text = _run(out_dir, work, seed, emit)
+        try:
+            write_manifest(work, "demo")
+        except OSError as exc:
+            raise write_error(out_dir, exc) from None
+        replace_folder(work, out_dir)
+    except BaseException:
+        shutil.rmtree(work, ignore_errors=True)
+        raise
+    return report, text
+
+
+def _run(out_dir, work, seed, emit):
+    """run_demo's steps, writing into ``work`` and naming the files as they will be in ``out_dir``."""
     from estimator.demo.bench_sim import simulate_sweep
     from estimator.demo.scenario import DEMO_VEHICLE
     from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, format_lines, load_map
@@ -58,10 +79,8 @@ def run_demo(out_dir, seed=1, emit=None):
     from estimator.preflight.report import format_sheet, hover_report
     from estimator.watch.replay import replay_file
 
-    if os.path.exists(out_dir) and not os.path.isdir(out_dir):
-        raise InputError("--out %s: is a file; give a folder for the demo's files" % out_dir)
-    os.makedirs(out_dir, exist_ok=True)
-    path = lambda name: os.path.join(out_dir, name)  # noqa: E731
+    path = lambda name: os.path.join(work, name)  # noqa: E731  where it is written
+    show = lambda name: os.path.join(out_dir, name)  # noqa: E731  where the person finds it
     text = _Text(emit)
     text += ["liftcal demo - an INVENTED scenario: a 2.05 kg survey quad at a 1400 m, 28 C site;",
             "its bench sweep and flights are simulated. Files go to %s" % out_dir]
@@ -71,7 +90,7 @@ def run_demo(out_dir, seed=1, emit=None):
     write_json_atomic(path("vehicle.json"), vehicle)
     datasheet = hover_report(vehicle)
     text += [_rule("1. pre-flight estimate from the datasheet model"),
-             "$ liftcal hover %s" % path("vehicle.json"), format_sheet(datasheet)]
+             "$ liftcal hover %s" % show("vehicle.json"), format_sheet(datasheet)]
 
     # 2. after a bench sweep: fit -> parameter set -> hover sheet -> export
     write_atomic(path("bench.csv"), simulate_sweep(seed=seed))
@@ -84,24 +103,24 @@ def run_demo(out_dir, seed=1, emit=None):
         settings, "liftcal settings from params.json through the example map (invented names)"))
     c, k = params["thrust_curve"], params["static_factor"]
     text += [_rule("2. bench sweep -> parameter set -> settings"),
-             "$ liftcal fit %s --vehicle %s --out %s" % (path("bench.csv"), path("vehicle.json"),
-                                                         path("params.json")),
+             "$ liftcal fit %s --vehicle %s --out %s" % (show("bench.csv"), show("vehicle.json"),
+                                                         show("params.json")),
              "fitted %d rows (%d dropped): full-command thrust %.2f N at %.2f V, quadratic share %.3f,"
              % (params["fit_quality"]["rows_used"], params["fit_quality"]["rows_rejected"],
                 c["thrust_max_N"], c["reference_voltage_V"], c["quadratic_share"]),
              "spin-up command %.3f, voltage exponent %.2f, static factor k %.3f"
              % (c["command_min"], c["voltage_exponent"], k["value"]),
-             "$ liftcal hover %s --params %s" % (path("vehicle.json"), path("params.json")),
+             "$ liftcal hover %s --params %s" % (show("vehicle.json"), show("params.json")),
              format_sheet(fitted),
              "$ liftcal export %s --map %s   (example map, invented setting names)"
-             % (path("params.json"), map_file),
+             % (show("params.json"), map_file),
              format_lines(settings).rstrip()]
 
     # 3. in the air: board bundle + replay of simulated flights
     bundle = write_bundle(params, path("board"), vehicle=vehicle)
     text += [_rule("3. onboard power watch"),
-             "$ liftcal firmware %s --vehicle %s --out %s" % (path("params.json"), path("vehicle.json"),
-                                                              path("board")),
+             "$ liftcal firmware %s --vehicle %s --out %s" % (show("params.json"), show("vehicle.json"),
+                                                              show("board")),
              "bundle: %d files, .mpy total %d bytes" % (len(bundle["files"]), bundle["mpy_bytes"])]
     flights = []
     for stem, fault, meaning in FLIGHTS:
@@ -110,9 +129,9 @@ def run_demo(out_dir, seed=1, emit=None):
         result = replay_file(csv_path, params, vehicle=vehicle, progress=False)
         kinds = sorted({e["kind"] for e in result["events"]})
         first = result["events"][0]["t_s"] if result["events"] else None
-        flights.append({"file": csv_path, "fault": fault, "samples": result["samples"],
+        flights.append({"file": show(stem + ".csv"), "fault": fault, "samples": result["samples"],
                         "alarms": result["alarms"], "kinds": kinds, "first_event_t_s": first})
-        text.append("$ liftcal replay %s --params %s" % (csv_path, path("params.json")))
+        text.append("$ liftcal replay %s --params %s" % (show(stem + ".csv"), show("params.json")))
         text.append("  -> %s: %s (%d samples)" % (
             meaning, "no alarm" if not result["events"] else
             "%s first at %.1f s" % (", ".join(kinds), first), result["samples"]))

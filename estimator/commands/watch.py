@@ -58,6 +58,9 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
     """
     from estimator.watch.bundle import write_bundle
 
+    from estimator.outputs import check_folder
+
+    check_folder(out_dir, "bundle", inputs=(params_file, vehicle_file))
     params, vehicle = _load(params_file, vehicle_file)
     out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=_options(lag_ms))
     cfg = out["config"]
@@ -99,6 +102,10 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     """
     from estimator.watch.replay import replay_file
 
+    if plot_file is not None:
+        from estimator.outputs import check_output
+
+        check_output(plot_file, "png", inputs=(flight_file, params_file, vehicle_file), option="--plot")
     params, vehicle = _load(params_file, vehicle_file)
     out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None,
                       drop_bad_time=drop_bad_time, options=_options(lag_ms))

@@ -10,14 +10,14 @@ DIR/package.json          for mip (installs the .mpy files)
 DIR/mpy/*.mpy             the five modules compiled by mpy-cross (bytecode, any port)
 
 The bundle is built in a temporary folder beside DIR and renamed into place: never a
-half-written bundle. An existing DIR is replaced only when it is empty or an earlier bundle.
+half-written bundle. DIR/.liftcal-folder.json lists every file with its SHA-256; an existing
+DIR is replaced only when it is empty or an earlier bundle left unchanged (estimator.outputs).
 """
 
 import json
 import os
 import shutil
 import subprocess
-import tempfile
 
 import firmware_port
 from estimator import __version__
@@ -98,15 +98,6 @@ def compile_mpy(py_path, mpy_path):
         raise InputError("%s: mpy-cross failed: %s" % (py_path, proc.stderr.strip() or proc.stdout.strip()))
 
 
-def _is_replaceable(out_dir):
-    if not os.path.exists(out_dir):
-        return True
-    if not os.path.isdir(out_dir):
-        return False
-    names = os.listdir(out_dir)
-    return not names or "liftwatch.py" in names
-
-
 def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter set"):
     """Write the board bundle into ``out_dir``; returns a summary dict.
 
@@ -115,16 +106,12 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
     Summary: out_dir, files (relative), mpy_bytes (total size of the .mpy files), config.
     Raises InputError (nothing written) on bad input or an occupied out_dir.
     """
+    from estimator.outputs import check_folder, replace_folder, staging_folder, write_error, write_manifest
+
     config, notes = make_config(params, vehicle, options)
+    check_folder(out_dir, "bundle")  # new, empty or an unchanged earlier bundle (outputs.py)
     out_dir = os.path.abspath(out_dir)
-    parent = os.path.dirname(out_dir)
-    if not os.path.isdir(parent):
-        raise InputError("%s: folder %s does not exist" % (out_dir, parent))
-    if not _is_replaceable(out_dir):
-        raise InputError("%s: exists and is not an earlier liftwatch bundle; choose an empty or new folder"
-                         % out_dir)
-    tmp = tempfile.mkdtemp(prefix=".liftwatch-", dir=parent)
-    os.chmod(tmp, 0o755)
+    tmp = staging_folder(out_dir)
     try:
         texts = {
             "liftwatch.py": kernel_text(),
@@ -135,22 +122,23 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
         for name in ("board_loop.py", "liftwatch_load.py", "README.md"):
             with open(os.path.join(PORT_DIR, name), "r", encoding="utf-8") as fh:
                 texts[name] = fh.read()
-        for name, text in texts.items():
-            with open(os.path.join(tmp, name), "w", encoding="utf-8") as fh:
-                fh.write(text)
-        os.mkdir(os.path.join(tmp, "mpy"))
+        try:
+            for name, text in texts.items():
+                with open(os.path.join(tmp, name), "w", encoding="utf-8") as fh:
+                    fh.write(text)
+            os.mkdir(os.path.join(tmp, "mpy"))
+        except OSError as exc:
+            raise write_error(out_dir, exc) from None
         mpy_bytes = 0
         for mod in MODULES:
             target = os.path.join(tmp, "mpy", mod + ".mpy")
             compile_mpy(os.path.join(tmp, mod + ".py"), target)
             mpy_bytes += os.path.getsize(target)
-        old = None
-        if os.path.exists(out_dir):
-            old = out_dir + ".old-" + os.path.basename(tmp)
-            os.rename(out_dir, old)
-        os.rename(tmp, out_dir)
-        if old:
-            shutil.rmtree(old, ignore_errors=True)
+        try:
+            write_manifest(tmp, "bundle")
+        except OSError as exc:
+            raise write_error(out_dir, exc) from None
+        replace_folder(tmp, out_dir)
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise
