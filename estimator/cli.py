@@ -52,7 +52,7 @@ class LazyGroup(click.Group):
         try:
             return super().invoke(ctx)
         except InputError as exc:
-            click.echo("error: %s" % exc, err=True)
+            click.echo("error: %s" % _one_line(str(exc)), err=True)
             ctx.exit(2)
 
 

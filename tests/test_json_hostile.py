@@ -113,7 +113,7 @@ def test_a_pipe_is_refused_not_waited_on(tmp_path):
 def test_huge_string_is_shortened_in_the_error(tmp_path):
     doc = _vehicle()
     doc["mass_kg"] = "x" * (5 << 20)
-    line = refused(["hover", _write(tmp_path, json.dumps(doc))], "$.mass_kg", "(5242880 characters)")
+    line = refused(["hover", _write(tmp_path, json.dumps(doc))], "$.mass_kg", "xxx...")
     assert len(line) < 400
     doc = _vehicle()
     doc["mass_kg"] = list(range(1000000))

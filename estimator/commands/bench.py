@@ -8,7 +8,7 @@ import os
 import click
 
 from estimator.cautions import SHORT, cautions
-from estimator.commands.options import Quantity
+from estimator.commands.options import Number, Quantity
 from estimator.jsonio import dumps
 
 BENCH_CAUTIONS = cautions("settings")
@@ -75,7 +75,8 @@ def _human_fit(params, out_file):
 @click.option("--temperature", type=Quantity("temperature"), default=None, help="Bench air temperature (e.g. 21C).")
 @click.option("--pressure", type=Quantity("pressure", positive=True), default=None, help="Bench station pressure.")
 @click.option("--humidity", type=Quantity("percent"), default=None, help="Bench relative humidity (e.g. 40%).")
-@click.option("--voltage-exponent", type=float, default=None,
+@click.option("--voltage-exponent", type=Number((0.5, 3.0, "the parameter set's bounds, "
+                                                 "schemas/params.schema.json")), default=None,
               help="Fix the voltage exponent n instead of fitting it.")
 @click.option("--plot", "plot_file", default=None, metavar="PNG",
               help="Also draw the fit, its interval and residuals, and power against the ideal bound.")
@@ -162,9 +163,9 @@ def check(params_file, as_json):
               help="Your mapping of our keys to your controller's names (default: the shipped "
                    "example with invented names).")
 @click.option("--out", "out_file", default=None, metavar="FILE",
-              help="Also write the settings to FILE (atomically): the lines as printed after a "
-                   "'# liftcal settings' line, or with --json a JSON document (model "
-                   "liftcal.settings/1) holding them. Replaces only a settings file liftcal wrote.")
+              help="Also write the settings to FILE (atomically): the lines as printed, or with "
+                   "--json a JSON document (model liftcal.settings/1) holding them. Replaces only "
+                   "a settings file liftcal wrote.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object {name: value}.")
 def export(params_file, map_file, out_file, as_json):
     """Map a parameter set to your flight controller's setting names.

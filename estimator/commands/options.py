@@ -25,6 +25,43 @@ class Quantity(click.ParamType):
             si = parse_quantity(value, self.kind, "")
         except InputError as exc:
             self.fail(str(exc).lstrip(": "), param, ctx)
+        if si - si != 0.0:  # 1e999 reads as infinity
+            self.fail("%r is not a finite number" % (value,), param, ctx)
         if self.positive and not si > 0:
             self.fail("must be above zero, got %r" % (value,), param, ctx)
         return si
+
+
+class Number(click.ParamType):
+    """A plain finite number, optionally within bounds; the error names the option.
+
+    NaN, infinity and text are refused by click's "Invalid value for '--option'" line, so
+    the person sees which option was wrong (not a later complaint about a file).
+    ``bounds``: (low, high, where the bounds come from) or None.
+    """
+
+    name = "number"
+
+    def __init__(self, bounds=None):
+        self.bounds = bounds
+
+    def convert(self, value, param, ctx):
+        import math
+
+        from estimator.errors import shorten
+
+        if isinstance(value, float) and math.isfinite(value):
+            number = value
+        else:
+            try:
+                number = float(str(value).strip())
+            except ValueError:
+                self.fail("%s is not a number" % shorten(str(value)), param, ctx)
+            if not math.isfinite(number):
+                self.fail("%s is not a finite number (NaN and infinity are refused)" % shorten(str(value)),
+                          param, ctx)
+        if self.bounds is not None:
+            lo, hi, source = self.bounds
+            if not lo <= number <= hi:
+                self.fail("%g is outside %g..%g (%s)" % (number, lo, hi, source), param, ctx)
+        return number
