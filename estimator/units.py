@@ -67,14 +67,6 @@ def parse_quantity(text, kind, what="value"):
     return value * scale + offset
 
 
-def unit_scale(kind, suffix):
-    """Return the factor that converts ``suffix`` of ``kind`` to SI (no offset units)."""
-    table = _UNITS[kind]
-    if suffix not in table:
-        raise KeyError(suffix)
-    return table[suffix][0]
-
-
 _SIZE = re.compile(r"^\s*((?:\d+\.?\d*|\.\d+))\s*[xX*]\s*((?:\d+\.?\d*|\.\d+))\s*([A-Za-z]*)\s*$")
 # a propeller size without a unit is in inches: the trade lists propellers that way (10x4.5)
 SIZE_DEFAULT_UNIT = "in"
