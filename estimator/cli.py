@@ -6,7 +6,6 @@ no matplotlib). Every user error becomes one ``error:`` line on stderr, exit 2.
 """
 
 import importlib
-import os
 import sys
 
 import click
@@ -119,22 +118,5 @@ def _one_line(text):
 
 
 def run():
-    """Console-script and ``python -m estimator`` entry: main(), then a fast exit.
-
-    Once main() has finished and stdout/stderr are flushed, the process leaves with
-    os._exit, skipping the interpreter's teardown (freeing every array of a large fit costs
-    tens of milliseconds). Every file we write is closed and renamed before main returns.
-    In-process callers (tests) use main(), which raises SystemExit as usual.
-    """
-    try:
-        main()
-    except SystemExit as exc:
-        code = exc.code
-        if code is not None and not isinstance(code, int):
-            raise
-        try:
-            sys.stdout.flush()
-            sys.stderr.flush()
-        except (BrokenPipeError, OSError):
-            pass
-        os._exit(code or 0)
+    """Console-script and ``python -m estimator`` entry (the same as main())."""
+    main()
