@@ -48,6 +48,9 @@ class Head:
 
 
 def _decode(path, raw, line_no):
+    if line_no == 1 and raw[:2] in (b"\xff\xfe", b"\xfe\xff"):
+        raise InputError("%s: line 1: UTF-16 text (a spreadsheet's 'Unicode text'); save it as "
+                         "'CSV UTF-8' (comma-separated)" % path)
     try:
         return raw.decode("utf-8-sig" if line_no == 1 else "utf-8")
     except UnicodeDecodeError:

@@ -69,7 +69,16 @@ def _message(err):
                     "boolean": "true or false"}.get(expected, expected)
         if value is None:
             return "null (no value) where %s is expected" % expected
-        return "%s is %s, expected %s" % (shorten(value), _json_kind(value), expected)
+        return "%s is %s, expected %s" % (_shown(value), _json_kind(value), expected)
+    if err.validator == "const":
+        return "%s is given where %s belongs" % (_shown(value), _shown(err.validator_value))
+    if err.validator == "enum":
+        return "%s is not one of %s" % (_shown(value), ", ".join(_shown(v) for v in err.validator_value[:12]))
+    if err.validator == "additionalProperties" and isinstance(value, dict):
+        allowed = list(err.schema.get("properties", {})) if isinstance(err.schema, dict) else []
+        unknown = [k for k in value if k not in allowed]
+        return "unknown key%s %s%s" % ("s" if len(unknown) > 1 else "", ", ".join(shorten(k) for k in unknown[:3]),
+                                        " (and %d more)" % (len(unknown) - 3) if len(unknown) > 3 else "")
     text = str(err.message)
     whole = repr(value)[:10001] if isinstance(value, (str, int, float)) or value is None else None
     if whole is not None and len(whole) > 60 and whole in text:
@@ -77,6 +86,15 @@ def _message(err):
     if len(text) > 300:
         text = "%s (%s)" % (err.validator, shorten(value))
     return text
+
+
+def _shown(value):
+    """A value as it is written in JSON (true, null, 1.5, "text"), shortened."""
+    from estimator.errors import shorten
+
+    if value is None or isinstance(value, (bool, int, float)):
+        return shorten(json.dumps(value))
+    return shorten(value)
 
 
 def _json_kind(value):

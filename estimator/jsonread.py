@@ -55,6 +55,9 @@ def decode_text(data, path):
         if data.startswith(bom):
             encoding = name
             break
+    if encoding == "utf-8" and b"\x00" in data[:64]:
+        raise InputError("%s: looks like UTF-16 or UTF-32 text without a byte-order mark; save the "
+                         "file as UTF-8" % path)
     try:
         return data.decode(encoding)
     except UnicodeDecodeError as exc:
@@ -76,8 +79,8 @@ def loads(text, path):
     except RecursionError:
         raise InputError("%s: nested deeper than the %d levels liftcal reads (arrays or objects "
                          "inside one another); is it the right file?" % (path, MAX_DEPTH)) from None
-    except ValueError as exc:  # an integer of more than 4300 digits
-        raise InputError("%s: a number too long to read (%s)" % (path, shorten(str(exc), 60))) from None
+    except ValueError:  # an integer of more than 4300 digits
+        raise InputError("%s: a number of thousands of digits; is it the right file?" % path) from None
     check_values(document, path)
     return document
 
@@ -96,6 +99,8 @@ def _near(text, pos):
 
 def _where(parts):
     out = "$"
+    if len(parts) > 12:  # a deep path: its start and its depth
+        return _where(parts[:8]) + "...(%d levels)" % len(parts)
     for part in parts:
         out += "[%d]" % part if isinstance(part, int) else "." + str(part)
     return out
@@ -111,7 +116,7 @@ def check_values(document, path):
         node, where = stack.pop()
         if len(where) > MAX_DEPTH:
             raise InputError("%s: %s: nested deeper than the %d levels liftcal reads; is it the "
-                             "right file?" % (path, _where(where[:MAX_DEPTH]) + "...", MAX_DEPTH))
+                             "right file?" % (path, _where(where), MAX_DEPTH))
         if isinstance(node, dict):
             for key, value in node.items():
                 _text(key, where, path)
@@ -129,8 +134,10 @@ def check_values(document, path):
             raise InputError("%s: %s: a number too large for liftcal to read (beyond 1e308); "
                              "write a number of a sensible size" % (path, _where(where)))
         elif isinstance(node, int) and not isinstance(node, bool) and abs(node) > MAX_INT:
-            raise InputError("%s: %s: %s is larger than any quantity liftcal reads (%g)"
-                             % (path, _where(where), shorten(str(node), 20), MAX_INT))
+            digits = str(abs(node))
+            raise InputError("%s: %s: a whole number of %d digits (%s...) is larger than any "
+                             "quantity liftcal reads (%g)" % (path, _where(where), len(digits),
+                                                              digits[:8], MAX_INT))
         elif isinstance(node, str):
             _text(node, where, path)
 

@@ -144,8 +144,6 @@ def check_output(path, kind, inputs=(), option="--out"):
     where = "%s %s" % (option, path)
     if path.endswith(os.sep) or os.path.basename(path) in ("", ".", ".."):
         raise InputError("%s: is a folder; give a file name for the output" % where)
-    if kind == "png" and not path.lower().endswith(".png"):
-        raise InputError("%s: liftcal draws figures as PNG only; name a file ending in .png" % where)
     directory = os.path.dirname(os.path.abspath(path))
     st_dir = _lstat(directory, where)
     if st_dir is None:
@@ -153,7 +151,10 @@ def check_output(path, kind, inputs=(), option="--out"):
     if not os.path.isdir(directory):
         raise InputError("%s: %s is a file, not a folder: %s" % (where, directory, _ANOTHER))
     st = _lstat(path, where)
+    png_only = kind == "png" and not path.lower().endswith(".png")
     if st is None:
+        if png_only:
+            raise InputError("%s: liftcal draws figures as PNG only; name a file ending in .png" % where)
         return os.path.abspath(path)
     same = _same_as_input(path, inputs)
     if same is not None:
@@ -167,6 +168,8 @@ def check_output(path, kind, inputs=(), option="--out"):
     if not stat.S_ISREG(st.st_mode):
         raise InputError("%s: is %s, not a file liftcal may replace: %s"
                          % (where, special_kind(st.st_mode), _ANOTHER))
+    if png_only:
+        raise InputError("%s: liftcal draws figures as PNG only; name a file ending in .png" % where)
     found = file_kind(path) if kind is not None else None
     if found is None:
         raise InputError("%s: a file liftcal did not write is already there; liftcal never "

@@ -169,7 +169,8 @@ def test_head_of_a_csv_with_comments(tmp_path):
 @pytest.mark.parametrize("content,words", [
     (b"", "no header row found"),
     (b"# only a comment\n", "no header row found"),
-    (b"\xff\xfe t\x00i\x00", "not UTF-8 text"),
+    (b"\xff\xfe t\x00i\x00", "UTF-16 text"),
+    (b"time[s]\xff\xfe\n", "not UTF-8 text"),
     (b"x" * (csvtable.MAX_HEAD_LINE + 10), "longer than 1 MiB"),
 ])
 def test_files_without_a_header(tmp_path, content, words):

@@ -142,7 +142,7 @@ def test_null_where_an_object_is_expected_in_plain_words(tmp_path):
     (b"", "malformed JSON"),
     (b"\xff\xfe\xfd", "not"),
     (b"{\"a\": \"\\ud800\"}", "unpaired surrogate"),
-    (b"{\"mass_kg\": 1" + b"0" * 5000 + b"}", "too long"),
+    (b"{\"mass_kg\": 1" + b"0" * 5000 + b"}", "thousands of digits"),
     (b"{\"mass_kg\": 1" + b"0" * 30 + b"}", "larger than any quantity"),
     (b"{,}", "line 1 column 2"),
 ])

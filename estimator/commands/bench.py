@@ -180,7 +180,7 @@ def export(params_file, map_file, out_file, as_json):
     if out_file is not None:
         check_output(out_file, "settings", inputs=(params_file, map_file))
     params = load_params(params_file)
-    path = map_file or EXAMPLE_MAP
+    path = EXAMPLE_MAP if map_file is None else map_file
     settings = export_settings(params, load_map(path), path)
     header = "liftcal settings from %s through %s (%d); %s" % (
         os.path.basename(params_file), os.path.basename(path), len(settings), SHORT)
