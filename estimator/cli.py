@@ -18,6 +18,7 @@ COMMANDS = {
     "air": ("estimator.commands.preflight", "air"),
     "static": ("estimator.commands.preflight", "static"),
     "hover": ("estimator.commands.preflight", "hover"),
+    "compare": ("estimator.commands.preflight", "compare"),
     "fit": ("estimator.commands.bench", "fit"),
     "check": ("estimator.commands.bench", "check"),
     "export": ("estimator.commands.bench", "export"),

@@ -316,3 +316,34 @@ def _as_written(message, given):
 def given_text(vehicle, path):
     """What the file wrote for an SI key (``"650g"``), or None when it wrote a bare number."""
     return ((vehicle.get("checked") or {}).get("given") or {}).get(path)
+
+
+def vehicle_keys():
+    """Every key path a vehicle file may hold, as tuples (("battery", "capacity_Ah"), ...).
+
+    The schema's keys (top level and one block deep), the keys without a unit that take text
+    with a unit (("battery", "capacity")), and ("propeller", "size").
+    """
+    schema = load_schema(SCHEMA)
+    keys = set()
+    for key, sub in schema["properties"].items():
+        if sub.get("type") == "object":
+            keys.update((key, leaf) for leaf in sub.get("properties", {}))
+        else:
+            keys.add((key,))
+    for block, table in _UNIT_KEYS.items():
+        keys.update(((block, short) if block else (short,)) for short in table)
+    keys.add(("propeller", "size"))
+    return keys
+
+
+def unit_key_aliases(path):
+    """The other names of the quantity at ``path`` in its block (("mass",) -> ["mass_kg"])."""
+    block, leaf = (path[0], path[-1]) if len(path) > 1 else ("", path[0])
+    out = []
+    for short, (key, _) in _UNIT_KEYS.get(block, {}).items():
+        if leaf == short:
+            out.append(key)
+        elif leaf == key:
+            out.append(short)
+    return out

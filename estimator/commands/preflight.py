@@ -157,23 +157,116 @@ def _check_disk_loading(thrust_N, area_m2, diameter_m):
 @click.argument("vehicle_file", metavar="VEHICLE.json")
 @click.option("--params", "params_file", default=None, metavar="PARAMS.json",
               help="A fitted parameter set from `liftcal fit`: thrust and power from the bench.")
+@click.option("--payload", "payload_text", default=None, metavar="RANGE|LIST",
+              help="Payloads to add to the mass, a range 0..2kg (9 points) or a list 0,500g,1kg: "
+                   "endurance and margins per payload and the largest payload that keeps them.")
+@click.option("--job-time", "job_time", type=Quantity("time", positive=True), default=None,
+              help="With --payload: the hover time the job needs (15min, 900s); a payload must reach it.")
+@click.option("--plot", "plot_file", default=None, metavar="PNG",
+              help="With --payload: draw endurance and hover command against payload.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of the sheet.")
-def hover(vehicle_file, params_file, as_json):
+def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json):
     """Pre-flight sheet for a vehicle file: will it hover, margin, endurance.
 
-    Hover command at full / nominal / empty pack, thrust-to-weight, hover current
-    and power, endurance from the usable capacity, and warnings.
+    Hover command at full / nominal / empty pack, thrust-to-weight, motor, ESC and
+    pack currents, endurance by discharging the pack to its cutoff or landing reserve,
+    and warnings. The propeller may be given by size and pitch (estimated) or by its
+    coefficients. With --payload: a table of payloads and the largest that keeps the margins.
     """
     from estimator.preflight.report import format_sheet, hover_report
     from estimator.vehicle import load_vehicle
 
+    if (job_time is not None or plot_file is not None) and payload_text is None:
+        raise InputError("--%s: goes with --payload (e.g. --payload 0..2kg)"
+                         % ("job-time" if job_time is not None else "plot"))
+    if payload_text is not None and params_file is not None:
+        raise InputError("--payload: works on the vehicle file's own model; leave out --params")
+    if plot_file is not None:
+        from estimator.outputs import check_output
+        check_output(plot_file, "png", inputs=(vehicle_file,), option="--plot")
     vehicle = load_vehicle(vehicle_file)
     params = None
     if params_file is not None:
         from estimator.params import load_params  # the bench flow's loader
         params = load_params(params_file)
     report = hover_report(vehicle, params)
+    payload, unit = None, "kg"
+    if payload_text is not None:
+        from estimator.preflight.payload import parse_payloads, payload_table
+        payloads, unit = parse_payloads(payload_text)
+        payload = payload_table(vehicle, payloads, None if job_time is None else job_time / 60.0)
+        report["payload"] = payload
+        report["payload_unit"] = unit
+        if plot_file is not None:
+            from estimator.preflight.plots import plot_payload
+            plot_payload(plot_file, payload, report["name"], unit)
+            report["plot"] = plot_file
     if as_json:
         click.echo(dumps(report))
-    else:
-        click.echo(format_sheet(report), nl=False)
+        return
+    click.echo(format_sheet(report), nl=False)
+    if payload is not None:
+        from estimator.preflight.payload import format_payload_table
+        click.echo("")
+        click.echo(format_payload_table(payload, unit), nl=False)
+        if plot_file is not None:
+            click.echo("   plot: %s" % plot_file)
+
+
+@click.command()
+@click.argument("vehicle_file", metavar="VEHICLE.json")
+@click.option("--vary", "varies", multiple=True, required=True, metavar="KEY=V1,V2,...",
+              help="A key of the vehicle file and the values to try, e.g. battery.capacity=4000mAh,5000mAh "
+                   "or propeller.size=10x4.5in,11x5in; several --vary give every combination.")
+@click.option("--plot", "plot_file", default=None, metavar="PNG",
+              help="Draw endurance against hover command, one point per combination.")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of the table.")
+def compare(vehicle_file, varies, plot_file, as_json):
+    """Compare candidate builds: every combination of the --vary values, ranked.
+
+    One row per combination with hover command, thrust-to-weight, motor and pack
+    current at hover, endurance and the margins it keeps; ranked by endurance among
+    the combinations that keep every margin, then the rest.
+    """
+    import sys
+
+    from estimator.jsonio import load_json
+    from estimator.preflight.compare import compare_rows, format_table, parse_vary
+
+    variations = [parse_vary(text) for text in varies]
+    keys = [".".join(p) for p, _ in variations]
+    for key in keys:
+        if keys.count(key) > 1:
+            raise InputError("--vary %s: the key is given twice; list all its values in one --vary" % key)
+    if plot_file is not None:
+        from estimator.outputs import check_output
+        check_output(plot_file, "png", inputs=(vehicle_file,), option="--plot")
+    document = load_json(vehicle_file)
+    from estimator.vehicle import check_vehicle
+    name = check_vehicle(document, vehicle_file).get("name", "vehicle")
+    progress = None
+    if not as_json and sys.stderr.isatty():
+        def progress(done, total):
+            if total >= 20:
+                sys.stderr.write("\rcompare: %d of %d combinations" % (done, total))
+                if done == total:
+                    sys.stderr.write("\r" + " " * 40 + "\r")
+                sys.stderr.flush()
+    result = compare_rows(document, vehicle_file, variations, progress)
+    result["name"] = name
+    if plot_file is not None:
+        from estimator.preflight.plots import plot_compare
+        plot_compare(plot_file, result, name)
+        result["plot"] = plot_file
+    if as_json:
+        from estimator.preflight.report import CAUTIONS
+        result["cautions"] = list(CAUTIONS)
+        click.echo(dumps(result))
+        return
+    click.echo(format_table(result, name), nl=False)
+    if plot_file is not None:
+        click.echo("plot: %s" % plot_file)
+    from estimator.preflight.report import CAUTIONS
+    click.echo("")
+    for caution in CAUTIONS:
+        click.echo("- " + caution)

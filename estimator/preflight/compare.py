@@ -1,0 +1,186 @@
+"""Compare candidate builds: vary keys of a vehicle file, one pre-flight report per combination.
+
+``--vary battery.capacity=4000mAh,5000mAh --vary propeller.size=10x4.5in,11x5in`` gives the
+product of the variations (here 4 rows). Each combination is the vehicle file with those keys
+replaced, checked as a file would be (units, schema, physics), then run through hover_report.
+Rows are ranked by endurance among the combinations that keep every margin
+(estimator.preflight.margins), then the others by endurance.
+"""
+
+import copy
+import itertools
+
+from estimator.errors import InputError, shorten
+from estimator.preflight.margins import MARGINS, broken, keeps_margins, margins
+from estimator.preflight.report import hover_report
+from estimator.vehicle import check_vehicle, vehicle_keys
+
+MAX_COMBINATIONS = 10000  # a product larger than this is refused (say so) [-]
+# propeller keys that a new propeller description replaces
+_PROPELLER_SETS = {"size": ("diameter_m", "pitch_m", "diameter", "pitch", "ct", "cp"),
+                   "pitch_m": ("ct", "cp", "pitch"), "pitch": ("ct", "cp", "pitch_m"),
+                   "ct": ("pitch_m", "pitch", "size", "blades"), "cp": ("pitch_m", "pitch", "size", "blades")}
+
+
+def _shown(text, limit=80):
+    """What the person typed, as typed when short, shortened (errors.shorten) when long."""
+    return text if len(text) <= limit else shorten(text)
+
+
+def parse_vary(text):
+    """``KEY=V1,V2,...`` -> (key path tuple, [values]); values stay text (units allowed).
+
+    Raises InputError naming the option, the key or the value at fault.
+    """
+    if "=" not in text:
+        raise InputError("--vary %s: write KEY=V1,V2,... (e.g. battery.capacity=4000mAh,5000mAh)"
+                         % _shown(text))
+    key, _, values = text.partition("=")
+    key = key.strip()
+    path = tuple(part for part in key.split("."))
+    if not key or any(not part for part in path):
+        raise InputError("--vary %s: the key before '=' is empty or has an empty part" % _shown(text))
+    known = vehicle_keys()
+    if path not in known:
+        import difflib
+        near = difflib.get_close_matches(key, sorted(".".join(k) for k in known), 3, 0.6)
+        raise InputError("--vary %s: %s is not a key of a vehicle file; %s" % (
+            _shown(text), _shown(key), ("did you mean %s?" % " or ".join(near)) if near else
+            "e.g. mass_kg, battery.capacity, motor.kv_rpm_per_V, propeller.size, site.temperature_C"))
+    items = [v.strip() for v in values.split(",")]
+    if not values.strip() or any(not v for v in items):
+        raise InputError("--vary %s: give at least one value after '=', separated by commas, none empty"
+                         % _shown(text))
+    return path, [_typed(v) for v in items]
+
+
+def _typed(text):
+    """A bare number as a JSON number (the key's unit), anything else as text (with its unit)."""
+    try:
+        value = int(text)
+    except ValueError:
+        try:
+            value = float(text)
+        except ValueError:
+            return text
+    return value
+
+
+def _with(document, path, value):
+    doc = copy.deepcopy(document)
+    node = doc
+    for part in path[:-1]:
+        child = node.get(part)
+        if not isinstance(child, dict):
+            child = node[part] = {}
+        node = child
+    leaf = path[-1]
+    for sibling in vehicle_keys_aliases(path):
+        node.pop(sibling, None)
+    if path[:1] == ("propeller",):
+        for other in _PROPELLER_SETS.get(leaf, ()):
+            node.pop(other, None)
+    node[leaf] = value
+    return doc
+
+
+def vehicle_keys_aliases(path):
+    """Keys that name the same quantity as ``path``'s leaf in its block (mass <-> mass_kg)."""
+    from estimator.vehicle import unit_key_aliases
+    return unit_key_aliases(path)
+
+
+def combinations(variations):
+    """Product of [(path, values)] as a list of [(path, value), ...]; refuses huge products."""
+    total = 1
+    for _, values in variations:
+        total *= len(values)
+    if total > MAX_COMBINATIONS:
+        raise InputError("--vary: %d combinations is more than %d; vary fewer keys or values"
+                         % (total, MAX_COMBINATIONS))
+    paths = [p for p, _ in variations]
+    return [list(zip(paths, combo)) for combo in itertools.product(*[v for _, v in variations])]
+
+
+def compare_rows(document, source, variations, progress=None):
+    """One row per combination of the variations, ranked (module docstring).
+
+    document: the vehicle file as loaded (JSON); source: its name for messages; variations:
+    [(path tuple, [values])] from parse_vary; progress: None or a function (done, total)
+    called after each row. Returns a dict: rows (list of row dicts: rank, values {key: value
+    as given}, hover_command, hover_command_empty, thrust_to_weight, hover_motor_current_A,
+    hover_esc_input_current_A, hover_pack_current_A, full_pack_current_A [A],
+    flight_time_min, flight_ended_by, margins {name: bool|None}, keeps_margins, broken
+    [names]), margins (MARGINS), best (the first row that keeps every margin, or None).
+    Raises InputError naming the --vary value when a combination is not a valid vehicle.
+    """
+    combos = combinations(variations)
+    rows = []
+    for i, combo in enumerate(combos):
+        doc = document
+        for path, value in combo:
+            doc = _with(doc, path, value)
+        label = ", ".join("%s=%s" % (".".join(p), v) for p, v in combo)
+        try:
+            vehicle = check_vehicle(doc, source)
+        except InputError as exc:
+            raise InputError("--vary %s: %s" % (label, exc)) from None
+        report = hover_report(vehicle)
+        marks = margins(report)
+        rows.append({
+            "values": {".".join(p): v for p, v in combo},
+            "label": label,
+            "hover_command": report["hover_command"],
+            "hover_command_empty": report["hover_command_empty"],
+            "thrust_to_weight": report["thrust_to_weight"],
+            "hover_motor_current_A": report.get("hover_motor_current_A"),
+            "hover_esc_input_current_A": report.get("hover_esc_input_current_A"),
+            "hover_pack_current_A": report["hover_current_A"],
+            "full_pack_current_A": report.get("full_pack_current_A"),
+            "mass_kg": report["mass_kg"],
+            "flight_time_min": report["flight_time_min"],
+            "flight_ended_by": report.get("flight_ended_by"),
+            "propeller_source": report.get("propeller_source"),
+            "margins": marks,
+            "keeps_margins": keeps_margins(marks),
+            "broken": broken(marks),
+        })
+        if progress is not None:
+            progress(i + 1, len(combos))
+    rows.sort(key=lambda r: (not r["keeps_margins"], -(r["flight_time_min"] or 0.0)))
+    for rank, row in enumerate(rows, 1):
+        row["rank"] = rank
+    best = rows[0] if rows and rows[0]["keeps_margins"] else None
+    return {"rows": rows, "margins": dict(MARGINS), "best": best,
+            "varied": [".".join(p) for p, _ in variations], "combinations": len(rows)}
+
+
+def format_table(result, name):
+    """The text table of compare_rows: ranked rows, the margins each breaks, the best choice."""
+    rows = result["rows"]
+    head = "COMPARE: %s, %d combinations" % (name, len(rows))
+    lines = [head, "=" * len(head)]
+    keys = result["varied"]
+    widths = [max(len(k), max(len(str(r["values"][k])) for r in rows)) for k in keys]
+    header = "rank  " + "  ".join(k.ljust(w) for k, w in zip(keys, widths))
+    header += "  command  T/W   motor A  pack A  endurance           margins"
+    lines.append(header)
+    for r in rows:
+        cells = "  ".join(str(r["values"][k]).ljust(w) for k, w in zip(keys, widths))
+        cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
+        motor = "%.1f" % r["hover_motor_current_A"] if r["hover_motor_current_A"] is not None else "-"
+        pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
+        time = ("%.1f min (%s)" % (r["flight_time_min"], r["flight_ended_by"])
+                if r["flight_time_min"] is not None else "no hover")
+        marks = "all kept" if r["keeps_margins"] else "breaks " + ", ".join(r["broken"])
+        lines.append("%4d  %s  %-7s  %-4.2f  %-7s  %-6s  %-18s  %s" % (
+            r["rank"], cells, cmd, r["thrust_to_weight"], motor, pack, time, marks))
+    lines.append("")
+    if result["best"]:
+        lines.append("longest hover that keeps every margin: %s (%.1f min)"
+                     % (result["best"]["label"], result["best"]["flight_time_min"]))
+    else:
+        lines.append("no combination keeps every margin")
+    lines.append("margins: " + "; ".join("%s = %s" % (k, v) for k, v in result["margins"].items()))
+    lines.append("motor A = each motor's current at hover (ESC output); pack A = all motors from the pack")
+    return "\n".join(lines) + "\n"

@@ -1,0 +1,87 @@
+"""Plots of the pre-flight choices (``compare --plot``, ``hover --payload ... --plot``).
+
+matplotlib is imported only in here, inside the functions. Figures are written atomically
+(estimator.outputs.save_figure).
+"""
+
+from estimator.cautions import SHORT
+from estimator.outputs import save_figure
+from estimator.preflight.report import HOVER_COMMAND_LIMIT
+from estimator.units import unit_scale
+
+
+def _pyplot():
+    import matplotlib
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    return plt
+
+
+def plot_compare(path, result, name):
+    """Endurance against hover command, one point per combination, kept margins in green.
+
+    The trade-off at a glance: up and to the left is a longer hover at a lower command. The
+    best combination that keeps every margin is labelled; so are up to five others.
+    """
+    plt = _pyplot()
+    fig, ax = plt.subplots(figsize=(8.0, 5.5))
+    rows = [r for r in result["rows"] if r["hover_command"] is not None]
+    for keeps, colour, label in ((True, "tab:green", "keeps every margin"),
+                                 (False, "tab:red", "breaks a margin")):
+        pts = [r for r in rows if r["keeps_margins"] == keeps]
+        if pts:
+            ax.scatter([r["hover_command"] for r in pts], [r["flight_time_min"] for r in pts],
+                       c=colour, label=label, s=30, alpha=0.8)
+    for r in rows[:4]:
+        short = ", ".join(str(v) for v in r["values"].values())
+        ax.annotate("#%d %s" % (r["rank"], short), (r["hover_command"], r["flight_time_min"]), fontsize=7,
+                    xytext=(4, 4), textcoords="offset points")
+    ax.margins(x=0.25, y=0.1)
+    ax.axvline(HOVER_COMMAND_LIMIT, color="grey", ls="--", lw=1)
+    ax.text(HOVER_COMMAND_LIMIT, ax.get_ylim()[0], " command limit %.1f" % HOVER_COMMAND_LIMIT,
+            fontsize=8, color="grey", va="bottom")
+    ax.set_xlabel("hover command, nominal pack [-]")
+    ax.set_ylabel("hover endurance to cutoff or reserve [min]")
+    ax.set_title("%s: %d combinations\nvaried: %s" % (name, len(result["rows"]), ", ".join(result["varied"])),
+                 fontsize=9)
+    ax.grid(True, alpha=0.3)
+    ax.legend(fontsize=8)
+    fig.text(0.01, 0.01, SHORT, fontsize=7, color="grey")
+    fig.tight_layout()
+    save_figure(fig, path)
+    plt.close(fig)
+
+
+def plot_payload(path, result, name, unit="kg"):
+    """Endurance and hover command against payload, the largest payload that keeps the margins marked."""
+    plt = _pyplot()
+    scale = unit_scale("mass", unit)
+    rows = result["rows"]
+    fig, ax = plt.subplots(figsize=(8.0, 5.0))
+    xs = [r["payload_kg"] / scale for r in rows if r["flight_time_min"] is not None]
+    ys = [r["flight_time_min"] for r in rows if r["flight_time_min"] is not None]
+    ax.plot(xs, ys, "-", color="tab:blue", lw=1.5, label="endurance")
+    for r in rows:
+        if r["flight_time_min"] is not None:
+            ax.plot(r["payload_kg"] / scale, r["flight_time_min"], "o",
+                    color="tab:green" if r["keeps"] else "tab:red", ms=5)
+    if result["max_payload_kg"] is not None:
+        ax.axvline(result["max_payload_kg"] / scale, color="tab:green", ls="--", lw=1,
+                   label="largest payload keeping the margins: %.3g %s" % (result["max_payload_kg"] / scale, unit))
+    if result["job_min"] is not None:
+        ax.axhline(result["job_min"], color="grey", ls=":", lw=1, label="job %.0f min" % result["job_min"])
+    ax.set_xlabel("payload [%s]" % unit)
+    ax.set_ylabel("hover endurance [min]")
+    ax2 = ax.twinx()
+    cx = [r["payload_kg"] / scale for r in rows if r["hover_command"] is not None]
+    cy = [r["hover_command"] for r in rows if r["hover_command"] is not None]
+    ax2.plot(cx, cy, "-", color="tab:orange", lw=1, alpha=0.7)
+    ax2.axhline(HOVER_COMMAND_LIMIT, color="tab:orange", ls="--", lw=0.8, alpha=0.6)
+    ax2.set_ylabel("hover command, nominal pack [-] (orange)")
+    ax.set_title("%s: payload (green point = keeps every margin)" % name, fontsize=10)
+    ax.grid(True, alpha=0.3)
+    ax.legend(fontsize=8, loc="upper right")
+    fig.text(0.01, 0.01, SHORT, fontsize=7, color="grey")
+    fig.tight_layout()
+    save_figure(fig, path)
+    plt.close(fig)
