@@ -14,7 +14,7 @@ import re
 from estimator.errors import InputError, shorten
 from estimator.preflight.margins import broken, margins
 from estimator.preflight.report import hover_report
-from estimator.units import parse_quantity, unit_scale
+from estimator.units import parse_quantity
 
 RANGE_POINTS = 9  # payloads in a range A..B, ends included [-]
 BISECTION_STEPS = 30  # halvings between a payload that keeps and one that does not [-]
@@ -104,7 +104,7 @@ def payload_table(vehicle, payloads_kg, job_min=None):
 
 def format_payload_table(result, unit="kg"):
     """The payload table for the sheet, masses in the unit the person typed (g, kg, lb, oz)."""
-    scale = unit_scale("mass", unit) if unit else 1.0
+    scale = parse_quantity("1" + unit, "mass") if unit else 1.0
     lines = ["5. How much can it carry?",
              "   payload     all-up      command  cmd empty  T/W   pack A  endurance           keeps margins"]
     for r in result["rows"]:

@@ -7,7 +7,7 @@ matplotlib is imported only in here, inside the functions. Figures are written a
 from estimator.cautions import SHORT
 from estimator.outputs import save_figure
 from estimator.preflight.report import HOVER_COMMAND_LIMIT
-from estimator.units import unit_scale
+from estimator.units import parse_quantity
 
 
 def _pyplot():
@@ -55,7 +55,7 @@ def plot_compare(path, result, name):
 def plot_payload(path, result, name, unit="kg"):
     """Endurance and hover command against payload, the largest payload that keeps the margins marked."""
     plt = _pyplot()
-    scale = unit_scale("mass", unit)
+    scale = parse_quantity("1" + unit, "mass")
     rows = result["rows"]
     fig, ax = plt.subplots(figsize=(8.0, 5.0))
     xs = [r["payload_kg"] / scale for r in rows if r["flight_time_min"] is not None]
