@@ -51,3 +51,13 @@ def tree_digest(folder):
         for name in dirs:
             out[os.path.relpath(os.path.join(base, name), folder) + "/"] = "dir"
     return out
+
+
+def bad_inputs_module():
+    """benchmarks/bad_inputs.py as a module (its cases, folder set-up and runners)."""
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("bad_inputs", os.path.join(ROOT, "benchmarks", "bad_inputs.py"))
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module
