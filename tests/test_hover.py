@@ -151,6 +151,7 @@ def test_params_are_delegated_to_the_fitted_flow(monkeypatch):
     calls = []
     fake = types.ModuleType("estimator.preflight.measured_rotor")
     fake.hover_from_params = lambda v, p: calls.append((v, p)) or {"hover_command": 0.5, "warnings": []}
+    fake.fitted_hover_load = lambda v, p: (lambda v_oc: None)
     monkeypatch.setitem(sys.modules, "estimator.preflight.measured_rotor", fake)
     r = hover_report(vehicle(), {"model": "liftcal.rotor/1"})
     assert calls and calls[0][1] == {"model": "liftcal.rotor/1"}
@@ -273,3 +274,18 @@ def test_a_parameter_set_of_another_propeller_is_warned_in_the_report():
     assert not any("fitted on a" in w for w in same["warnings"])
     other = hover_report(vehicle(propeller__diameter_m=0.2286), params)  # a 9-inch propeller
     assert sum("fitted on a 0.254 m" in w for w in other["warnings"]) == 1
+
+
+def test_discharge_endurance_lies_between_the_full_and_empty_pack_currents_on_both_routes():
+    # the hover current rises monotonically as the pack drains, so t = int dq / I(q) over the
+    # usable charge lies between C_use / I(empty) and C_use / I(full) (definition of charge)
+    import os
+    from estimator.params import load_params
+    root = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+    params = load_params(os.path.join(root, "schemas", "examples", "valid", "params-demo-with-hover.json"))
+    for r in (hover_report(vehicle()), hover_report(vehicle(), params)):
+        d = r["discharge"]
+        assert r["flight_ended_by"] == "reserve" and d["charge_used_Ah"] == pytest.approx(r["usable_Ah"])
+        lo, hi = 60.0 * r["usable_Ah"] / d["end_current_A"], 60.0 * r["usable_Ah"] / d["start_current_A"]
+        assert lo < r["flight_time_min"] < hi
+        assert "full pack" in r["flight_time_basis"]

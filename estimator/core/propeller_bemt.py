@@ -40,7 +40,7 @@ CL_MAX, CL_MIN = 1.3, -0.6  # stall limits [-]
 CD_MIN, CD_REYNOLDS_REF, CD_REYNOLDS_EXPONENT = 0.02, 1e5, -0.5
 CD_LIFT_FACTOR, CL_MIN_DRAG = 0.03, 0.5
 STATIONS = 40  # annuli (midpoint rule) [-]
-BISECTION_STEPS = 60  # halvings of the inflow bracket [-]: below 1e-18 of it
+BISECTION_STEPS = 40  # halvings of the inflow bracket [-]: below 1e-12 of it
 BLADES_MIN, BLADES_MAX = 2, 6
 
 

@@ -346,3 +346,20 @@ def hover_block(vehicle, params):
         "thrust_to_weight": r["thrust_to_weight"],
         "flight_time_min": r["flight_time_min"],
     }
+
+
+def fitted_hover_load(vehicle, params):
+    """The hover load of the fitted model as core.discharge.discharge_to_cutoff takes it.
+
+    vehicle: checked vehicle; params: validated parameter set. Returns a function of the pack
+    open-circuit voltage [V] giving (pack current [A], bus voltage [V]) at hover, or None
+    where the vehicle cannot hover (same model as hover_from_params, one state per call).
+    """
+    rho = _site(vehicle)["density_kg_m3"]
+
+    def load(open_circuit_V):
+        state = _state(params, vehicle, rho, open_circuit_V)
+        if state["command"] is None:
+            return None
+        return state["current_A"], state["bus_V"]
+    return load

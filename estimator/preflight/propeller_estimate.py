@@ -19,6 +19,10 @@ ESTIMATE_NOTE = ("propeller coefficients estimated from size and pitch (blade el
                  "measured propeller: a bench sweep (liftcal fit, then hover --params) replaces them")
 
 
+_CACHE = {}  # (diameter, pitch, blades, thrust, rho, mu) -> (ct, cp, estimate); compare repeats them
+_CACHE_SIZE = 512
+
+
 def estimated_propeller(propeller, mass_kg, rotor_count, air):
     """A propeller dict with ct and cp estimated for the hover speed, and what was assumed.
 
@@ -31,6 +35,12 @@ def estimated_propeller(propeller, mass_kg, rotor_count, air):
     rho, mu = air["density_kg_m3"], air["viscosity_Pa_s"]
     d = propeller["diameter_m"]
     thrust = mass_kg * STANDARD_GRAVITY_M_S2 / rotor_count
+    key = (d, propeller["pitch_m"], propeller.get("blades", 2), thrust, rho, mu)
+    if key in _CACHE:
+        ct, cp, estimate = _CACHE[key]
+        out = dict(propeller)
+        out["ct"], out["cp"] = ct, cp
+        return out, dict(estimate)
     ct = FIRST_GUESS_CT
     result = None
     for _ in range(PASSES):
@@ -46,4 +56,7 @@ def estimated_propeller(propeller, mass_kg, rotor_count, air):
                      "method": "blade element momentum theory with Prandtl tip loss, generic blade "
                                "(estimator/core/propeller_bemt.py)",
                      "typical_error": "10-20 %", "note": ESTIMATE_NOTE})
+    if len(_CACHE) >= _CACHE_SIZE:
+        _CACHE.clear()
+    _CACHE[key] = (out["ct"], out["cp"], dict(estimate))
     return out, estimate

@@ -10,6 +10,7 @@ import math
 
 from estimator.core.atmosphere import site_air
 from estimator.core.battery import cold_resistance_factor, max_pack_current_A
+from estimator.core.discharge import discharge_to_cutoff
 from estimator.core.hover import hover_estimate, rotor_propeller
 from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_merit,
                                      induced_velocity_m_s, static_factor)
@@ -41,15 +42,7 @@ def hover_report(vehicle, params=None):
     """
     checks = suspicious_values(vehicle)
     if params is not None:
-        from estimator.preflight.measured_rotor import hover_from_params  # written by the bench flow
-        report = hover_from_params(vehicle, params)
-        other = params_propeller_warning(vehicle, params)
-        report["warnings"] = checks + ([other] if other else []) + [
-            w for w in report.get("warnings", []) if w not in checks]
-        report.setdefault("cautions", list(CAUTIONS))
-        report.setdefault("flight_time_basis", "usable share of the capacity at the nominal-pack "
-                                               "hover current")
-        return report
+        return _fitted_report(vehicle, params, checks)
 
     site = vehicle.get("site", {})
     air = vehicle_site_air(vehicle)
@@ -137,6 +130,34 @@ def hover_report(vehicle, params=None):
     report["warnings"] = (checks + assumed_warnings(vehicle) + ([estimate["note"]] if estimate else [])
                           + margin_warnings(report))
     report["cautions"] = list(CAUTIONS)
+    return report
+
+
+def _fitted_report(vehicle, params, checks):
+    """hover_report for a fitted parameter set: the bench flow's report, with the cold pack,
+    the discharge to the cutoff and the propeller check of the datasheet route added."""
+    from estimator.preflight.measured_rotor import fitted_hover_load, hover_from_params  # the bench flow
+
+    battery, pack_temperature = pack_in_the_air(vehicle)
+    in_air = dict(vehicle, battery=battery)
+    report = hover_from_params(in_air, params)
+    other = params_propeller_warning(vehicle, params)
+    report["warnings"] = checks + ([other] if other else []) + [
+        w for w in report.get("warnings", []) if w not in checks]
+    report.setdefault("cautions", list(CAUTIONS))
+    report["flight_time_usable_share_min"] = report.get("flight_time_min")
+    report["flight_time_usable_share_basis"] = "usable share of the capacity at the nominal-pack hover current"
+    report.update({"pack_resistance_ohm": battery["resistance_ohm"], "pack_temperature_C": pack_temperature,
+                   "pack_cold_factor": (battery["resistance_ohm"] / vehicle["battery"]["resistance_ohm"]
+                                        if vehicle["battery"]["resistance_ohm"] > 0.0 else 1.0),
+                   "cutoff_cell_V": battery["cutoff_cell_V"], "flight_ended_by": None, "discharge": None})
+    if report.get("can_hover"):
+        d = discharge_to_cutoff(battery["cells"], battery["capacity_Ah"], battery.get("usable_fraction", 0.8),
+                                battery["full_cell_V"], battery["nominal_cell_V"], battery["empty_cell_V"],
+                                battery["cutoff_cell_V"], fitted_hover_load(in_air, params))
+        report.update({"flight_time_min": d["minutes"], "flight_ended_by": d["ended_by"], "discharge": d})
+    report["flight_time_basis"] = ("discharge from a full pack, hover current rising as the pack drains, "
+                                   "to the first of: loaded cutoff, landing reserve, loss of hover")
     return report
 
 
