@@ -86,8 +86,10 @@ def main(argv=None):
     except OSError as exc:
         if isinstance(exc, BrokenPipeError):
             sys.exit(0)
-        where = exc.filename if exc.filename is not None else "liftcal"
-        click.echo("error: %s: %s" % (where, _one_line(exc.strerror or str(exc))), err=True)
+        if exc.filename is not None:
+            click.echo("error: %s: %s" % (exc.filename, _one_line(exc.strerror or str(exc))), err=True)
+        else:
+            click.echo("error: cannot write the output (%s)" % _one_line(exc.strerror or str(exc)), err=True)
         sys.exit(2)
     except MemoryError:
         click.echo("error: out of memory; the input is too large for this machine", err=True)

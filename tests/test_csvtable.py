@@ -178,3 +178,16 @@ def test_files_without_a_header(tmp_path, content, words):
     f.write_bytes(content)
     with pytest.raises(InputError, match=words):
         csvtable.read_head(str(f), "a CSV", "time[s]")
+
+
+def test_text_or_nan_in_a_column_not_used_is_read_past_by_both(tmp_path, params_file, capsys):
+    # a notes column (text, even 'nan') beside the numbers: both readers read past it alike
+    def add_note(rows):
+        return [r + ",%s" % ("nan" if k == 3 else "motor A") for k, r in enumerate(rows)]
+    b, f = _files(tmp_path, "command[-],voltage[V],current[A],thrust[N],note",
+                  "time[s],command[-],voltage[V],current[A],note", add_note)
+    code, out, err = _run(["fit", b, "--out", str(tmp_path / "p.json"), "--json"], capsys)
+    assert code == 0, err
+    assert json.loads(out)["rows_used"] == 20
+    code, out, err = _run(["replay", f, "--params", params_file, "--json"], capsys)
+    assert code == 0, err

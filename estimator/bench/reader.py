@@ -75,23 +75,27 @@ def _parse_header(path, head, line_no=None):
     return csvtable.parse_header(path, head, UNITS, OPTIONAL)
 
 
-def _slow_parse(path, skip, ncols):
+def _slow_parse(path, skip, ncols, wanted=None):
     """Line-by-line parse (estimator.csvtable) that names the first broken row; empty
     cells become NaN (rows dropped and counted later), NaN or infinity written in a cell
-    is refused with its line."""
+    is refused with its line. wanted: the column indices read as numbers (default all);
+    the others (text, notes, a NaN in a column not used) are left NaN, as a flight log's."""
     import numpy as np
 
+    wanted = list(range(ncols)) if wanted is None else list(wanted)
     head = csvtable.Head({}, [""] * ncols, skip)
-    columns = csvtable.read_columns(path, head, range(ncols), empty_ok=True, what="a bench CSV")
-    if not columns or not columns[0]:
-        return np.empty((0, ncols))
-    return np.array(columns, dtype=float).T.copy()
+    columns = csvtable.read_columns(path, head, wanted, empty_ok=True, what="a bench CSV")
+    rows = len(columns[0]) if columns else 0
+    table = np.full((rows, ncols), np.nan)
+    for index, column in zip(wanted, columns):
+        table[:, index] = column
+    return table
 
 
 _LOADTXT = {"delimiter": ",", "comments": "#", "ndmin": 2, "dtype": float, "encoding": "utf-8"}
 
 
-def _load_numbers(path, skip, ncols):
+def _load_numbers(path, skip, ncols, wanted=None):
     """The numbers of the data rows: one numpy.loadtxt of the file (it checks that every row
     has the header's width); on any trouble (also NaN or infinity written in a cell) the slow
     parse, which names the broken row or turns empty cells into NaN."""
@@ -107,7 +111,7 @@ def _load_numbers(path, skip, ncols):
             return table
     except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
         pass
-    return _slow_parse(path, skip, ncols)
+    return _slow_parse(path, skip, ncols, wanted)
 
 
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
@@ -125,7 +129,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     comments, head, header_line = _read_head(path)
     columns, warnings = _parse_header(path, head)
     ncols = len(head.cells)
-    table = _load_numbers(path, header_line, ncols)
+    table = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED])
     digest = _sha256(path)
     data = {}
     cols = [np.ascontiguousarray(table[:, columns[name][0]]) for name in REQUIRED]
