@@ -61,6 +61,7 @@ def random_truth(rng, rows=None):
         "r_source": rng.uniform(0.0, 0.06) * v_supply / (i_load + i0),
         "rows": int(rows if rows is not None else math.exp(rng.uniform(math.log(20), math.log(100000)))),
         "steps": int(rng.integers(10, 41)), "both_legs": rng.random() < 0.5,
+        "hysteresis": rng.uniform(0.0, 0.006),
         "thrust_noise": rng.uniform(0.001, 0.008), "current_noise": rng.uniform(0.001, 0.008),
         "outliers": rng.uniform(0.0, 0.02) if rng.random() < 0.6 else 0.0,
         "thrust_unit": str(rng.choice(list(THRUST_UNITS))),
@@ -68,16 +69,16 @@ def random_truth(rng, rows=None):
     }
     if calibrated:
         truth["command_unit"] = "us"
-    # vehicle: N rotors hovering at 18..55 % of the full thrust on a pack of the bench's cells
+    # vehicle: N rotors hovering at 7..55 % of the full thrust on a pack of the bench's cells
     n_rot = int(rng.choice([4, 6, 8]))
-    share = rng.uniform(0.18, 0.55)
+    share = rng.uniform(0.07, 0.55) if rng.random() < 0.2 else rng.uniform(0.18, 0.55)
     t_h = share * t_full
     i_full = i_load + i0
     truth["vehicle"] = {
         "rotors": n_rot, "mass_kg": n_rot * t_h / G0, "cells": cells,
         "full_cell_V": 4.2, "nominal_cell_V": v_supply / cells, "empty_cell_V": 3.5,
-        "capacity_Ah": max(0.1, n_rot * i_full * share ** 1.5 * rng.uniform(0.1, 0.4)),
-        "r_pack": rng.uniform(0.01, 0.08) * v_supply / (n_rot * i_full),
+        "capacity_Ah": min(max(0.1, n_rot * i_full * share ** 1.5 * rng.uniform(0.1, 0.4)), 150.0),
+        "r_pack": min(rng.uniform(0.01, 0.08) * v_supply / (n_rot * i_full), 4.9),
     }
     return truth
 
@@ -153,13 +154,15 @@ def at_supply(truth, d, supply_V, r_source, rho, rotors=1):
 def sweep_rows(truth, rng):
     """Bench rows (command [-], bus voltage [V], current [A], thrust [N]) with noise/outliers."""
     steps = truth["steps"]
-    levels = np.linspace(0.0, 1.0, steps + 1)
+    levels = np.linspace(0.0, truth.get("sweep_top", 1.0), steps + 1)
+    seen = levels - truth.get("hysteresis", 0.0)  # the rotor lags on the way up ...
     if truth["both_legs"]:
         levels = np.concatenate([levels, levels[::-1][1:]])
+        seen = np.concatenate([seen, levels[steps + 1:] + truth.get("hysteresis", 0.0)])  # ... leads down
     per = max(1, int(round(truth["rows"] / (levels.size * len(truth["supplies"])))))
     blocks = []
     for vs in truth["supplies"]:
-        t, v, i = at_supply(truth, duty(truth, levels), vs, truth["r_source"], truth["rho"])
+        t, v, i = at_supply(truth, duty(truth, seen), vs, truth["r_source"], truth["rho"])
         blocks.append(np.column_stack([np.repeat(levels, per), np.repeat(v, per), np.repeat(i, per),
                                        np.repeat(t, per)]))
     rows = np.concatenate(blocks)
@@ -216,10 +219,11 @@ def truth_values(truth, v_ref):
     n_rot = vh["rotors"]
     t_need = vh["mass_kg"] * G0 / n_rot
     lo, hi = 0.0, 1.0
-    for _ in range(50):
-        mid = 0.5 * (lo + hi)
-        t, _, _ = at_supply(truth, np.array([mid]), v_oc, vh["r_pack"], rho, n_rot)
-        lo, hi = (mid, hi) if t[0] < t_need else (lo, mid)
+    for _ in range(3):  # three vectorised grids of 257 duties narrow the root to 1e-7
+        grid = np.linspace(lo, hi, 257)
+        t, _, _ = at_supply(truth, grid, v_oc, vh["r_pack"], rho, n_rot)
+        k = int(np.searchsorted(t, t_need))  # thrust rises with duty
+        lo, hi = grid[max(k - 1, 0)], grid[min(k, grid.size - 1)]
     d_h = 0.5 * (lo + hi)
     _, _, i_h = at_supply(truth, np.array([d_h]), v_oc, vh["r_pack"], rho, n_rot)
     t_f, _, _ = at_supply(truth, np.array([1.0]), v_oc, vh["r_pack"], rho, n_rot)

@@ -35,6 +35,27 @@ def _means(key, n_keys, weights, columns):
                                minlength=n_keys) / safe for c in columns]
 
 
+def _against_median(key, n_keys, flagged, x, ref, limit):
+    """Flags recomputed as |x - level median| / ref > limit within the levels holding a flag."""
+    if not np.any(flagged):
+        return flagged
+    suspect = np.zeros(n_keys, dtype=bool)
+    suspect[key[flagged]] = True
+    rows = np.flatnonzero(suspect[key])
+    k, xs = key[rows], x[rows]
+    order = np.lexsort((xs, k))
+    k_sorted = k[order]
+    starts = np.flatnonzero(np.r_[True, k_sorted[1:] != k_sorted[:-1]])
+    ends = np.r_[starts[1:], k_sorted.size]
+    xs_sorted = xs[order]
+    med = np.empty(n_keys)
+    med[k_sorted[starts]] = 0.5 * (xs_sorted[(starts + ends - 1) // 2] + xs_sorted[(starts + ends) // 2])
+    ref_rows = ref[k] if np.ndim(ref) else ref
+    out = flagged.copy()
+    out[rows] = np.abs(xs - med[k]) / ref_rows > limit
+    return out
+
+
 def command_levels(command, voltage_V, thrust_N, power_W):
     """Gather rows (SI arrays of equal length) into levels (module docstring).
 
@@ -69,6 +90,11 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     spinning = (np.abs(t_mean) > 0.02 * t_top)[key]
     thrust_spike = big & (np.abs(dev_t) > SPIKE_SIGMAS * max(s_t, 1e-6 * t_top))
     power_spike = big & spinning & (np.abs(dev_p) > SPIKE_SIGMAS * max(s_p, 1e-6))
+    # a spike pulls its level's mean, so its neighbours look off too: in the levels that hold a
+    # flagged row, judge again against the level's median (a sort of those rows only)
+    thrust_spike = _against_median(key, n_keys, thrust_spike, thrust_N, 1.0, SPIKE_SIGMAS * max(s_t, 1e-6 * t_top))
+    power_spike = _against_median(key, n_keys, power_spike, power_W, ref_p,
+                                  SPIKE_SIGMAS * max(s_p, 1e-6)) & spinning
     keep = ~(thrust_spike | power_spike)
     if not np.all(keep):
         w = keep.astype(float)

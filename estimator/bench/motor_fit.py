@@ -4,12 +4,13 @@ Model (design notes sec. 3, the equations of estimator.core.motor written for ar
 test checks that the two agree). Only combinations of Kv, CT and CP show without a speed
 sensor, so the model is written in the back-EMF s = omega / Kv [V]:
   ESC:       x = clip((u - u0) / (u1 - u0), 0, 1), duty d = x^g, Vm = d V_bus
-  motor:     Vm = s + R I,  I = I0 + c s^2   (c s^2 = Kv Q, the torque current)
+  motor:     Vm = s + R I,  I = I0 + b s + c s^2   (c s^2 = Kv Q, the torque current; b s the
+             current of losses that grow with speed: iron and bearing losses)
   propeller: T = a s^2
   bus:       I_bus = I_q + d I   (I_q: the ESC's own draw)
-s is the positive root R c s^2 + s - (Vm - R I0) = 0 (0 when Vm <= R I0). Eight parameters:
-a [N/V^2], c [A/V^2], R [ohm], I0 [A], u0 (where the rotor starts [-]), u1 (the ESC's top
-end point [-]), g (duty exponent [-], 1 for a linear ESC), I_q [A]. a and c grow as the air
+s is the positive root R c s^2 + (1 + R b) s - (Vm - R I0) = 0 (0 when Vm <= R I0). Nine
+parameters: a [N/V^2], c [A/V^2], R [ohm], I0 [A], u0 (where the rotor starts [-]), u1 (the
+ESC's top end point [-]), g (duty exponent [-], 1 for a linear ESC), I_q [A], b [A/V]. a and c grow as the air
 density at fixed speed. The fit is scipy.optimize.least_squares (trust region reflective,
 bounds, soft_l1 loss) on the command levels (estimator.bench.levels), thrust and bus
 current residuals each scaled by its own robust residual scale, from a start read off
@@ -22,7 +23,7 @@ import math
 import numpy as np
 
 NAMES = ("thrust_per_V2_N", "current_per_V2_A", "resistance_ohm", "no_load_current_A",
-         "command_start", "command_top", "duty_exponent", "esc_idle_current_A")
+         "command_start", "command_top", "duty_exponent", "esc_idle_current_A", "speed_current_A_per_V")
 # residuals beyond this many robust scales count less and less (soft_l1's f_scale) [-]
 LOSS_SCALE = 2.5
 
@@ -30,24 +31,25 @@ LOSS_SCALE = 2.5
 def rotor_arrays(theta, command, voltage_V, density_ratio=1.0):
     """Thrust [N], bus current [A], motor voltage [V], motor current [A] and duty [-] per row.
 
-    theta: the eight parameters in NAMES order (linear values); command: u [-]; voltage_V:
+    theta: the nine parameters in NAMES order (linear values); command: u [-]; voltage_V:
     bus voltage [V]; density_ratio: rho / rho_ref [-] (a and c scale with it).
     """
-    a, c, r, i0, u0, u1, g, iq = theta
+    a, c, r, i0, u0, u1, g, iq, b = theta
     a, c = a * density_ratio, c * density_ratio
     x = np.clip((np.asarray(command, dtype=float) - u0) / max(u1 - u0, 1e-6), 0.0, 1.0)
     d = x ** g
     vm = d * voltage_V
     drive = vm - r * i0
-    root = np.sqrt(1.0 + 4.0 * r * c * np.maximum(drive, 0.0))
-    s = np.where(drive > 0.0, 2.0 * drive / (1.0 + root), 0.0)
-    im = np.where(drive > 0.0, i0 + c * s * s, vm / r)
+    lin = 1.0 + r * b
+    root = np.sqrt(lin * lin + 4.0 * r * c * np.maximum(drive, 0.0))
+    s = np.where(drive > 0.0, 2.0 * drive / (lin + root), 0.0)
+    im = np.where(drive > 0.0, i0 + b * s + c * s * s, vm / r)
     return a * s * s, iq + d * im, vm, im, d
 
 
 def _unpack(p):
-    a, c, r, i0, u0, u1, g, iq = p
-    return (math.exp(a), math.exp(c), math.exp(r), math.exp(i0), u0, u1, g, math.exp(iq))
+    a, c, r, i0, u0, u1, g, iq, b = p
+    return (math.exp(a), math.exp(c), math.exp(r), math.exp(i0), u0, u1, g, math.exp(iq), math.exp(b))
 
 
 def _start(lv):
@@ -83,23 +85,26 @@ def _start(lv):
     i0 = min(max(i0, 0.01 * float(np.max(im))), 0.5 * float(np.max(im)))
     c = k * a
     r = max(0.15 * v_top / float(np.max(im)), 1e-4)
-    return np.array([math.log(a), math.log(c), math.log(r), math.log(i0), u0, u1, 1.0, math.log(iq)])
+    b = 0.1 * i0 / s_top
+    return np.array([math.log(a), math.log(c), math.log(r), math.log(i0), u0, u1, 1.0, math.log(iq), math.log(b)])
 
 
 def _bounds(lv):
     i_top = float(np.max(lv["current_A"]))
-    lo = [-60.0, -60.0, math.log(1e-5), math.log(1e-6 * i_top), 0.0, 0.5, 0.5, math.log(1e-7 * i_top + 1e-12)]
-    hi = [60.0, 60.0, math.log(1e3), math.log(2.0 * i_top), 0.5, 1.0, 2.5, math.log(0.5 * i_top + 1e-12)]
+    v_top = float(np.max(lv["voltage_V"]))
+    lo = [-60.0, -60.0, math.log(1e-5), math.log(1e-6 * i_top), 0.0, 0.5, 0.5, math.log(1e-7 * i_top + 1e-12),
+          math.log(1e-6 * i_top / v_top)]
+    hi = [60.0, 60.0, math.log(1e3), math.log(2.0 * i_top), 0.5, 1.0, 2.5, math.log(0.5 * i_top + 1e-12),
+          math.log(2.0 * i_top / v_top)]
     return np.array(lo), np.array(hi)
 
 
-def fit_motor(lv, top_end=False):
+def fit_motor(lv, top_end=False, top=1.0):
     """Fit the model (module docstring) to levels: dict command [-], voltage_V [V],
     thrust_N [N], current_A [A] (bus), count [-].
 
     top_end: fit the ESC's top end point u1 (the sweep shows thrust levelling off below its
-    highest command); else u1 = 1. Returns dict: theta (NAMES order, linear), cov (8 x 8,
-    in the log/linear fit coordinates), scale_thrust_N, scale_current_A (robust residual
+    highest command); else u1 = top [-]. Returns dict: theta (NAMES order, linear), scale_thrust_N, scale_current_A (robust residual
     scales of the levels), rms_thrust_N, success (bool), message.
     """
     from scipy.optimize import least_squares
@@ -109,7 +114,7 @@ def fit_motor(lv, top_end=False):
     lo, hi = _bounds(lv)
     x0 = np.clip(x0, lo + 1e-9, hi - 1e-9)
     if not top_end:
-        lo[5], hi[5], x0[5] = 1.0 - 1e-9, 1.0, 1.0 - 5e-10
+        lo[5], hi[5], x0[5] = top - 1e-9, top, top - 5e-10
     s_t = 0.01 * float(np.max(np.abs(t)))
     s_i = 0.01 * float(np.max(np.abs(i)))
     res = None

@@ -26,7 +26,7 @@ K_MIN_THRUST_SHARE = 0.1
 K_IMPLAUSIBLY_LOW = 0.1
 # k of working rotors, micro rotors at low Reynolds number to the best large sets (design
 # notes sec. 3a; common practice): below the lower end a unit slip is named in a warning [-]
-K_PLAUSIBLE = (0.2, 1.0)
+K_PLAUSIBLE = (0.25, 1.0)
 # medians of a very large sweep are taken over a systematic subsample of this many rows [-]
 MAD_ROWS = 20000
 # relative power residuals beyond this many robust sigmas are counted as spikes, left out [-]

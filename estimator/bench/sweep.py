@@ -23,6 +23,8 @@ from estimator.bench.power_fit import (MAD_ROWS, check_static_factor, fit_power_
 # the sweep shows the ESC's top end point when the motor fit puts it this far below the
 # highest command swept [-]
 TOP_END_MARGIN = 0.01
+# a sweep whose highest command is at least this reaches full command [-]
+FULL_COMMAND_SWEPT = 0.98
 
 
 def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, altitude_m=None,
@@ -87,6 +89,24 @@ def _check_finite(node, source, path="$"):
         raise InputError("%s: the fit gave a non-finite %s; the sweep cannot be fitted" % (source, path))
 
 
+def _model_spikes(lv, theta, u, v, t):
+    """Rows of small levels (one or two rows, where levels.command_levels cannot judge) far
+    from the fitted motor model: residual beyond SPIKE_SIGMAS robust scales of the level
+    residuals. Marks them in lv["thrust_spike"] (counted and left out of rows_used)."""
+    from estimator.bench.levels import SPIKE_SIGMAS, robust_scale
+
+    r_lv = rotor_arrays(theta, lv["command"], lv["voltage_V"])[0] - lv["thrust_N"]
+    scale = robust_scale(r_lv)
+    if not scale > 0.0:
+        return
+    bad = (np.abs(r_lv) > SPIKE_SIGMAS * scale) & (lv["count"] <= 2)
+    if not np.any(bad):
+        return
+    rows = np.flatnonzero(bad[lv["row_level"]])
+    r_rows = rotor_arrays(theta, u[rows], v[rows])[0] - t[rows]
+    lv["thrust_spike"][rows[np.abs(r_rows) > SPIKE_SIGMAS * scale]] = True
+
+
 def motor_exponents(theta, v_ref):
     """Voltage and density exponents of the fitted motor model at full command and v_ref [V]:
     n = d ln T / d ln V, m = d ln T / d ln rho by central differences of +-1 % [-]."""
@@ -116,11 +136,14 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     motor = fit_motor(lv, top_end=True)
     top_found = motor["theta"][5] < u_hi - TOP_END_MARGIN
     if not top_found:
-        motor = fit_motor(lv, top_end=False)
+        # full command at 1, or at the sweep's top when it stops short (an ESC calibrated to
+        # a narrower pulse range, or a sweep cut short): never extrapolated beyond it
+        motor = fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi)
     theta = motor["theta"]
+    _model_spikes(lv, theta, u, v, t)
     v_ref = float(round(float(np.median(v[:: max(1, v.size // MAD_ROWS)])), 2))
     n_motor, m_motor = motor_exponents(theta, v_ref)
-    curve = fit_quadratic(lv, v_ref, float(theta[5]) if top_found else 1.0, n_motor, voltage_exponent)
+    curve = fit_quadratic(lv, v_ref, float(theta[5]), n_motor, voltage_exponent)
     curve.update({"reference_voltage_V": v_ref, "reference_density_kg_m3": rho,
                   "voltage_min_V": float(np.min(v)), "voltage_max_V": float(np.max(v)),
                   "density_exponent": m_motor, "command_swept_max": u_hi,
@@ -152,7 +175,8 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     fit = {
         "curve": curve, "power": power, "static": sf, "rejected": rejected, "motor": motor_block,
         "rows_used": rows_used, "rows_rejected": int(data["rows_total"] - rows_used),
-        "warnings": warnings + curve["warnings"] + _range_warnings(curve, theta, v_ref, top_found),
+        "warnings": warnings + curve["warnings"] + _range_warnings(curve, theta, v_ref, top_found,
+                                                                          data.get("command_unit", "-")),
         "levels": {"command": lv["command"], "thrust_residual_N": r_levels, "thrust_N": lv["thrust_N"]},
     }
     hover = None
@@ -181,19 +205,27 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     return params
 
 
-def _range_warnings(curve, theta, v_ref, top_found):
+def command_text(u, unit):
+    """A command [-] written in the unit of the CSV's command column (us, % or -)."""
+    if unit == "us":
+        return "%.0f us" % (1000.0 + 1000.0 * u)
+    if unit == "%":
+        return "%.1f %%" % (100.0 * u)
+    return "%.3f" % u
+
+
+def _range_warnings(curve, theta, v_ref, top_found, unit="-"):
     """Warnings with numbers when the parameter set's full command lies beyond the sweep."""
     out = []
     u_hi = curve["command_swept_max"]
     if top_found:
-        out.append("thrust levels off above command %.3f: the ESC's top end point; thrust_max_N is the "
-                   "thrust there (command_max %.3f), commands above it add nothing"
-                   % (theta[5], theta[5]))
-    elif u_hi < 0.98:
-        one = rotor_arrays(theta, np.array([1.0, u_hi]), v_ref)[0]
-        out.append("the sweep stops at command %.3f; full-command thrust %.4g N is extrapolated %.0f %% "
-                   "above the thrust there by the motor model (sweep to full command, or set the ESC's "
-                   "end points to the swept range)" % (u_hi, one[0], 100.0 * (one[0] / one[1] - 1.0)))
+        out.append("thrust levels off above command %s: the ESC's top end point; thrust_max_N is the "
+                   "thrust there (command_max), commands above it add nothing" % command_text(theta[5], unit))
+    elif u_hi < FULL_COMMAND_SWEPT:
+        out.append("the sweep stops at command %s: taken as full command (thrust_max_N and command_max "
+                   "there); if the ESC runs on to %s, thrust-to-weight is higher than stated. "
+                   "Sweep to full command, or set the ESC's end points to the swept range"
+                   % (command_text(u_hi, unit), command_text(1.0, unit)))
     return out
 
 

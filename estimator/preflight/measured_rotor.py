@@ -2,7 +2,7 @@
 
 liftcal's own predictions come from the DC motor + propeller model fitted to the sweep (the
 parameter set's motor_model block, estimator.bench.motor_fit), in back-EMF form:
-T = a s^2, I = I0 + c s^2, Vm = s + R I, duty d = Vm / V_bus, command
+T = a s^2, I = I0 + b s + c s^2, Vm = s + R I, duty d = Vm / V_bus, command
 u = u0 + (u1 - u0) d^(1/g), bus current I_q + d I per rotor; a and c grow as the air
 density. Each of N rotors holds T_r = m g / N; the pack sags as V_bus = V_oc - R_pack I_pack
 (Thevenin pack, design notes sec. 3), solved in closed form for hover and by bisection at
@@ -66,6 +66,7 @@ class FittedRotor:
         self.r, self.i0 = mm["resistance_ohm"], mm["no_load_current_A"]
         self.u0, self.u1, self.g = mm["command_start"], mm["command_top"], mm["duty_exponent"]
         self.iq = mm["esc_idle_current_A"]
+        self.b = mm.get("speed_current_A_per_V", 0.0)
         if coaxial:
             area = disk_area_m2(params["rotor"]["diameter_m"])
             # shaft power c s^3 against ideal T^1.5 / sqrt(2 rho A) = a^1.5 s^3 / sqrt(2 rho A)
@@ -75,7 +76,7 @@ class FittedRotor:
     def for_thrust(self, thrust_N):
         """(motor voltage Vm [V], motor current I [A]) that hold thrust_N [N]."""
         s = math.sqrt(max(thrust_N, 0.0) / self.a)
-        i = self.i0 + self.c * s * s
+        i = self.i0 + self.b * s + self.c * s * s
         return s + self.r * i, i
 
     def at_motor_V(self, motor_V):
@@ -83,8 +84,9 @@ class FittedRotor:
         drive = motor_V - self.r * self.i0
         if drive <= 0.0:
             return 0.0, motor_V / self.r if self.r > 0.0 else 0.0
-        s = 2.0 * drive / (1.0 + math.sqrt(1.0 + 4.0 * self.r * self.c * drive))
-        return self.a * s * s, self.i0 + self.c * s * s
+        lin = 1.0 + self.r * self.b
+        s = 2.0 * drive / (lin + math.sqrt(lin * lin + 4.0 * self.r * self.c * drive))
+        return self.a * s * s, self.i0 + self.b * s + self.c * s * s
 
     def command(self, duty):
         """Command [-] that gives duty [-] (above the spin-up u0)."""
@@ -330,6 +332,7 @@ def hover_block(vehicle, params):
                          % (vehicle_source(vehicle, "the vehicle"), bench or "the bench sweep",
                             cause[0][len("cannot hover: "):] if cause else "no hover command"))
     return {
+        "_warnings": [w for w in r["warnings"] if "beyond the bench sweep" in w or "extrapolated" in w],
         "hover_command": r["hover_command"],
         "hover_command_interval_95": r["hover_command_interval_95"],
         "interval_method": r["interval_method"],

@@ -1,0 +1,20 @@
+"""A modest randomised study of the bench fit on independent truths (tests/truth_rotor.py);
+benchmarks/fit_study.py runs the same on 200 and more. Bounds and the model behind each
+check: tests/truth_study.py. The study is seeded (deterministic) and prints its worst cases.
+"""
+
+from truth_study import BOUNDS, report_lines, run_one, summarise
+
+SEEDS = range(900, 924)
+
+
+def test_every_ordinary_sweep_fits_within_the_bounds_and_the_interval_covers(capsys):
+    results = [run_one(seed, rows=None if seed % 4 else 3000) for seed in SEEDS]
+    summary = summarise(results)
+    with capsys.disabled():
+        print("\n" + "\n".join(report_lines(summary)))
+    assert summary["fitted"] == summary["truths"], [f["failed"] for f in summary["failed"]]
+    for key, bound in BOUNDS.items():
+        assert summary[key]["worst"] <= bound, (key, summary[key])
+    # the 95 % interval holds the truth's hover command in at least 90 % of the truths
+    assert summary["coverage"] >= 0.9
