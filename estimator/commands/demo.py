@@ -91,6 +91,19 @@ def _run(out_dir, work, seed, emit):
     datasheet = hover_report(vehicle)
     text += [_rule("1. pre-flight estimate from the datasheet model"),
              "$ liftcal hover %s" % show("vehicle.json"), format_sheet(datasheet)]
+    # 1b. choices: candidate propellers and motors, and how much it can carry
+    from estimator.preflight.compare import compare_rows, format_table, parse_vary
+    from estimator.preflight.payload import format_payload_table, payload_table
+    from estimator.vehicle import check_vehicle
+
+    varies = ["propeller.size=10x4.5in,11x5in,12x5in", "motor.kv_rpm_per_V=700,880"]
+    choices = compare_rows(vehicle, show("vehicle.json"), [parse_vary(v) for v in varies])
+    payload = payload_table(check_vehicle(vehicle, show("vehicle.json")), [0.25 * i for i in range(5)], 10.0)
+    text += [_rule("1b. choosing: candidate propellers and motors, and the payload"),
+             "$ liftcal compare %s %s" % (show("vehicle.json"), " ".join("--vary " + v for v in varies)),
+             format_table(choices, vehicle.get("name", "vehicle")),
+             "$ liftcal hover %s --payload 0..1kg --job-time 10min" % show("vehicle.json"),
+             format_payload_table(payload, "kg")]
 
     # 2. after a bench sweep: fit -> parameter set -> hover sheet -> export
     write_atomic(path("bench.csv"), simulate_sweep(seed=seed))
@@ -141,6 +154,8 @@ def _run(out_dir, work, seed, emit):
     report = {
         "out_dir": out_dir,
         "preflight": datasheet,
+        "compare": choices,
+        "payload": payload,
         "fit": {key: c[key] for key in ("quadratic_share", "command_min", "thrust_max_N",
                                         "reference_voltage_V", "voltage_exponent", "density_exponent")},
         "static_factor": k["value"],

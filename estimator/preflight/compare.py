@@ -183,4 +183,7 @@ def format_table(result, name):
         lines.append("no combination keeps every margin")
     lines.append("margins: " + "; ".join("%s = %s" % (k, v) for k, v in result["margins"].items()))
     lines.append("motor A = each motor's current at hover (ESC output); pack A = all motors from the pack")
+    if any(r.get("propeller_source") == "estimated" for r in rows):
+        from estimator.preflight.propeller_estimate import ESTIMATE_NOTE
+        lines.append(ESTIMATE_NOTE)
     return "\n".join(lines) + "\n"
