@@ -6,6 +6,7 @@ numpy and matplotlib are imported inside the commands (replay --plot only), neve
 import click
 
 from estimator.cautions import cautions
+from estimator.commands.options import Number
 from estimator.jsonio import dumps
 
 WATCH_CAUTIONS = cautions("board")
@@ -46,7 +47,7 @@ def _count(n, word):
               help="Folder for the bundle (new, empty, or an earlier bundle; replaced atomically).")
 @click.option("--vehicle", "vehicle_file", default=None, metavar="VEHICLE.json",
               help="Vehicle file (mass, rotors, pack, site); default: the parameter set's vehicle block.")
-@click.option("--lag-ms", "lag_ms", type=click.FloatRange(0, 10000), default=None, metavar="MS",
+@click.option("--lag-ms", "lag_ms", type=Number((0.0, 10000.0, "0..10 s of lag")), default=None, metavar="MS",
               help="Time constant of the rotor and current-sensor response the expected power is lagged by "
                    "(default 60 ms).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
@@ -89,7 +90,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
               help="Vehicle file; default: the parameter set's vehicle block.")
 @click.option("--plot", "plot_file", default=None, metavar="PNG",
               help="Draw measured against expected power with alarms shaded.")
-@click.option("--lag-ms", "lag_ms", type=click.FloatRange(0, 10000), default=None, metavar="MS",
+@click.option("--lag-ms", "lag_ms", type=Number((0.0, 10000.0, "0..10 s of lag")), default=None, metavar="MS",
               help="Time constant of the rotor and current-sensor response (default 60 ms).")
 @click.option("--drop-bad-time", is_flag=True,
               help="Drop rows whose time goes back or repeats (counted in dropped_rows) instead of refusing the log.")
