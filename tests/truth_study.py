@@ -72,6 +72,8 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
         "hover_current": abs(h["current_A"] / tv["hover_current_A"] - 1.0),
         "endurance": abs(h["flight_time_min"] / tv["flight_time_min"] - 1.0),
         "covered": bool(lo <= tv["hover_command"] <= hi),
+        "thrust_max_covered": bool(abs(c["thrust_max_N"] - tv["thrust_max_N"])
+                                   <= 1.959964 * params["standard_errors"]["thrust_max_N"]),
         "half_width": 0.5 * (hi - lo),
         "warnings": len(params.get("warnings", [])),
     })
@@ -91,6 +93,7 @@ def summarise(results):
                         "worst_seed": worst["seed"] if worst else None,
                         "within": sum(v <= bound for v in values) / max(len(values), 1), "bound": bound}
     summary["coverage"] = sum(r["covered"] for r in ok) / max(len(ok), 1)
+    summary["thrust_max_coverage"] = sum(r["thrust_max_covered"] for r in ok) / max(len(ok), 1)
     summary["median_half_width"] = float(np.median([r["half_width"] for r in ok])) if ok else math.nan
     return summary
 
@@ -107,4 +110,6 @@ def report_lines(summary):
             key, scale * s["worst"], unit, s["worst_seed"], scale * bound, unit, 100.0 * s["within"], MODELS[key]))
     lines.append("  95 %% hover-command interval coverage %.1f %% (median half-width %.4f)"
                  % (100.0 * summary["coverage"], summary["median_half_width"]))
+    lines.append("  T_max +-1.96 standard errors (incl. curve-form error) holds the truth in %.1f %%"
+                 % (100.0 * summary["thrust_max_coverage"]))
     return lines

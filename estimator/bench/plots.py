@@ -25,16 +25,31 @@ def curve_band_N(curve, cov, command):
     """Fitted thrust [N] at V_ref and its 95 % half-width [N] at each command (array)."""
     u = np.asarray(command, dtype=float)
     t_max, a, u_min = curve["thrust_max_N"], curve["quadratic_share"], curve["command_min"]
-    span = 1.0 - u_min
+    u_max = curve.get("command_max", 1.0)
+    span = u_max - u_min
     x = np.clip((u - u_min) / span, 0.0, 1.0)
-    active = (u - u_min) > 0.0
+    active = ((u - u_min) > 0.0) & (u < u_max)
     t = (1.0 - a) * x + a * x * x
     g = np.column_stack([t, t_max * (x * x - x),
-                         np.where(active, t_max * ((1.0 - a) + 2.0 * a * x) * (u - 1.0) / (span * span), 0.0),
+                         np.where(active, t_max * ((1.0 - a) + 2.0 * a * x) * (u - u_max) / (span * span), 0.0),
                          np.zeros_like(u)])
     c = np.asarray(cov, dtype=float)
     var = np.einsum("ij,jk,ik->i", g, c, g)
     return t_max * t, 1.959964 * np.sqrt(np.maximum(var, 0.0))
+
+
+def user_units(params):
+    """(thrust factor [unit per N], thrust unit, command function u -> shown, command label)
+    in the units of the bench CSV (grams in, grams out; microseconds logged, shown)."""
+    from estimator.bench.reader import UNITS
+
+    units = params.get("provenance", {}).get("units", {})
+    t_unit = units.get("thrust", "N")
+    factor = 1.0 / UNITS["thrust"].get(t_unit, (1.0, 0.0))[0]
+    c_unit = units.get("command", "-")
+    shown = {"us": lambda u: 1000.0 + 1000.0 * np.asarray(u), "%": lambda u: 100.0 * np.asarray(u)}.get(
+        c_unit, lambda u: np.asarray(u))
+    return factor, t_unit, shown, {"us": "command [us]", "%": "command [%]"}.get(c_unit, "command u [-]")
 
 
 def plot_fit(path, params, arrays):
@@ -56,6 +71,7 @@ def plot_fit(path, params, arrays):
     sl = slice(None, None, step)
     u, v, t, p, used, t_model = u[sl], v[sl], t[sl], p[sl], used[sl], arrays["thrust_model_N"][sl]
     to_ref = (curve["reference_voltage_V"] / v) ** curve["voltage_exponent"]
+    tf, t_unit, cu, c_label = user_units(params)
 
     fig = plt.figure(figsize=(12, 6.5))
     grid = fig.add_gridspec(2, 2, height_ratios=[3, 1], hspace=0.08, wspace=0.22)
@@ -63,45 +79,56 @@ def plot_fit(path, params, arrays):
     axr = fig.add_subplot(grid[1, 0], sharex=ax)
     axp = fig.add_subplot(grid[:, 1])
 
-    ax.plot(u[used], t[used] * to_ref[used], ".", ms=3, color="0.45", label="rows used (scaled to V_ref)")
+    ax.plot(cu(u[used]), tf * t[used] * to_ref[used], ".", ms=3, color="0.45", label="rows used (scaled to V_ref)")
     if np.any(~used):
-        ax.plot(u[~used], t[~used] * to_ref[~used], "x", ms=6, color="tab:red", label="rows dropped")
+        ax.plot(cu(u[~used]), tf * t[~used] * to_ref[~used], "x", ms=6, color="tab:red", label="rows dropped")
     grid_u = np.linspace(0.0, 1.0, 301)
     fit_t, half = curve_band_N(curve, params["thrust_curve_covariance"]["matrix"], grid_u)
-    ax.fill_between(grid_u, fit_t - half, fit_t + half, color="tab:blue", alpha=0.25, lw=0,
+    ax.fill_between(cu(grid_u), tf * (fit_t - half), tf * (fit_t + half), color="tab:blue", alpha=0.25, lw=0,
                     label="95 % band of the fit")
-    ax.plot(grid_u, fit_t, "-", color="tab:blue", lw=1.8,
-            label="fit: T_max %.2f N, a %.3f, u_min %.3f, n %.2f" % (
-                curve["thrust_max_N"], curve["quadratic_share"], curve["command_min"], curve["voltage_exponent"]))
+    ax.plot(cu(grid_u), tf * fit_t, "-", color="tab:blue", lw=1.8,
+            label="controller curve: T_max %.4g %s, a %.3f, intercept %.4g, n %.2f" % (
+                tf * curve["thrust_max_N"], t_unit, curve["quadratic_share"], float(cu(curve["command_min"])),
+                curve["voltage_exponent"]))
     h = params.get("hover")
     if h:
-        ax.axvline(h["hover_command"], color="tab:green", lw=1, ls="--",
-                   label="hover command %.3f (%s)" % (h["hover_command"], params["vehicle"].get("name", "vehicle")))
-    ax.set_ylabel("thrust at %.2f V [N]" % curve["reference_voltage_V"])
+        # the curve at the hover bus voltage and the thrust each rotor needs (at bench air, through
+        # the density exponent): the hover command sits where they meet
+        v_h = h["voltage_V"]
+        at_v = (v_h / curve["reference_voltage_V"]) ** curve["voltage_exponent"]
+        rho_site = params["vehicle"]["site_density_kg_m3"]
+        need = h["thrust_per_rotor_N"] * (rho / rho_site) ** curve["density_exponent"]
+        ax.plot(cu(grid_u), tf * fit_t * at_v, "--", color="tab:green", lw=1.2,
+                label="curve at the hover bus voltage %.2f V" % v_h)
+        ax.axhline(tf * need, color="tab:green", lw=0.8, ls=":")
+        ax.axvline(float(cu(h["hover_command"])), color="tab:green", lw=1, ls="--",
+                   label="hover command %.4g (%s)" % (float(cu(h["hover_command"])),
+                                                     params["vehicle"].get("name", "vehicle")))
+    ax.set_ylabel("thrust at %.2f V [%s]" % (curve["reference_voltage_V"], t_unit))
     ax.set_title("Thrust curve (bench air %.3f kg/m^3)" % rho)
     ax.legend(loc="upper left", fontsize=8)
     ax.grid(alpha=0.3)
     plt.setp(ax.get_xticklabels(), visible=False)
-    axr.plot(u[used], (t - t_model)[used], ".", ms=2, color="0.35")
+    axr.plot(cu(u[used]), tf * (t - t_model)[used], ".", ms=2, color="0.35")
     axr.axhline(0.0, color="tab:blue", lw=1)
-    axr.set_xlabel("command u [-]")
-    axr.set_ylabel("residual [N]")
+    axr.set_xlabel(c_label)
+    axr.set_ylabel("residual [%s]" % t_unit)
     axr.grid(alpha=0.3)
 
     t_grid = np.linspace(0.0, max(float(np.max(t[used])), 1e-3) * 1.05, 200)
     root = math.sqrt(2.0 * rho * area)
-    axp.plot(t[used], p[used], ".", ms=3, color="0.45", label="rows used")
-    axp.plot(t_grid, t_grid ** 1.5 / root, "-", color="k", lw=2,
+    axp.plot(tf * t[used], p[used], ".", ms=3, color="0.45", label="rows used")
+    axp.plot(tf * t_grid, t_grid ** 1.5 / root, "-", color="k", lw=2,
              label="ideal, momentum theory (k = 1): physical bound")
     for k, colour in zip(K_LINES, ("tab:red", "tab:purple", "tab:green")):
-        axp.plot(t_grid, (t_grid / k) ** 1.5 / root, ":", lw=1.4, color=colour,
+        axp.plot(tf * t_grid, (t_grid / k) ** 1.5 / root, ":", lw=1.4, color=colour,
                  label="constant k = %.1f" % k)
-    fitted = (power["idle_power_W"] + power["induced_W_per_N1_5"] * t_grid ** 1.5
-              + power["copper_W_per_N2"] * t_grid ** 2)
-    axp.plot(t_grid, fitted, "-", color="tab:orange", lw=1.8,
+    from estimator.bench.power_fit import power_model_W
+    fitted = power_model_W(power, t_grid)  # the one power model (estimator.core.power_model)
+    axp.plot(tf * t_grid, fitted, "-", color="tab:orange", lw=1.8,
              label="power model (rel. noise %.1f %%)" % (100.0 * power["residual_rel_std"]))
     axp.set_ylim(0.0, max(float(np.max(p[used])), 1.0) * 1.1)
-    axp.set_xlabel("thrust T [N]")
+    axp.set_xlabel("thrust T [%s]" % t_unit)
     axp.set_ylabel("electrical power P [W]")
     axp.set_title("Power against thrust; k = %.2f at %s" % (
         params["static_factor"]["value"], params["static_factor"].get("value_at", "median thrust")))

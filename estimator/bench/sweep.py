@@ -205,13 +205,21 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     return params
 
 
-def command_text(u, unit):
-    """A command [-] written in the unit of the CSV's command column (us, % or -)."""
+def command_text(u, unit, span=False):
+    """A command [-] written in the unit of the CSV's command column (us, % or -); span=True
+    for a difference of commands (no 1000 us offset)."""
     if unit == "us":
-        return "%.0f us" % (1000.0 + 1000.0 * u)
+        return "%.0f us" % ((0.0 if span else 1000.0) + 1000.0 * u)
     if unit == "%":
         return "%.1f %%" % (100.0 * u)
     return "%.3f" % u
+
+
+def thrust_text(thrust_N, unit):
+    """A thrust [N] written in the unit of the CSV's thrust column (grams in, grams out)."""
+    from estimator.bench.reader import UNITS
+
+    return "%.4g %s" % (thrust_N / UNITS["thrust"].get(unit, (1.0, 0.0))[0], unit)
 
 
 def _range_warnings(curve, theta, v_ref, top_found, unit="-"):

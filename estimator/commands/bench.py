@@ -19,42 +19,51 @@ def _pm(value, se, fmt):
 
 
 def _human_fit(params, out_file):
+    from estimator.bench.sweep import command_text, thrust_text
+
     c, p, k, q = (params["thrust_curve"], params["power_model"], params["static_factor"],
                   params["fit_quality"])
     se = params["standard_errors"]
+    units = params["provenance"].get("units", {})
+    tu, cu = units.get("thrust", "N"), units.get("command", "-")
+    cmd = lambda u, span=False: command_text(u, cu, span)  # noqa: E731
+    thr = lambda t_N: thrust_text(t_N, tu)  # noqa: E731
     lines = [
         "fitted %d rows (%d dropped: %s) -> %s" % (
             q["rows_used"], q["rows_rejected"],
             ", ".join("%s %d" % kv for kv in sorted(q["rejected"].items())) or "none", out_file),
         "thrust curve for the controller (at %.2f V, %.3f kg/m^3; +- one standard error incl. curve-form error)" % (
             c["reference_voltage_V"], c["reference_density_kg_m3"]),
-        "  full-command thrust  %s N" % _pm(c["thrust_max_N"], se["thrust_max_N"], "%.3f"),
+        "  full-command thrust  %s +- %s%s" % (thr(c["thrust_max_N"]), thr(se["thrust_max_N"]),
+                                               "" if tu == "N" else " (%.4g N)" % c["thrust_max_N"]),
         "  quadratic share      %s" % _pm(c["quadratic_share"], se["quadratic_share"], "%.3f"),
-        "  curve intercept      %s (command_min: the quadratic's zero, not a duty offset)" % _pm(
-            c["command_min"], se["command_min"], "%.3f"),
-        "  rotor starts at      %.3f (motor model)%s" % (
-            params["motor_model"]["command_start"],
-            "; ESC top end point %.3f" % c["command_max"] if c["command_max"] < 1.0 else ""),
+        "  curve intercept      %s +- %s (command_min: the quadratic's zero, not a duty offset)" % (
+            cmd(c["command_min"]), cmd(se["command_min"], span=True)),
+        "  rotor starts at      %s (motor model)%s" % (
+            cmd(params["motor_model"]["command_start"]),
+            "; full command at %s" % cmd(c["command_max"]) if c["command_max"] < 1.0 else ""),
         "  voltage exponent     %s (%s)" % (_pm(c["voltage_exponent"], se["voltage_exponent"], "%.3f"),
                                            c.get("voltage_exponent_source", "fitted")),
         "  density exponent     %s (from the fitted motor model)" % _pm(
             c["density_exponent"], se.get("density_exponent", 0.0), "%.3f"),
-        "  thrust residual      %.3f N rms" % q["rms_residual_N"],
+        "  thrust residual      %s rms" % thr(q["rms_residual_N"]),
         "power per rotor  P = %.4g W + %.4g W/N^0.5 T^0.5 + %.4g W/N T + %.4g W/N^1.5 T^1.5 + %.4g W/N^2 T^2 "
         "(all >= 0; rms %.3g W)" % (
             p["idle_power_W"], p["sqrt_W_per_N0_5"], p["linear_W_per_N"], p["induced_W_per_N1_5"],
             p["copper_W_per_N2"], q["power_rms_residual_W"]),
         "  power noise for the watch  %.1f %% (robust, through the thrust curve)" % (100.0 * p["residual_rel_std"]),
-        "static thrust factor k = %.3f at %s (%.2f N); efficiency k^1.5 = %.0f %% of ideal" % (
-            k["value"], k.get("value_at", "median thrust"), k.get("thrust_at_value_N", 0.0),
+        "static thrust factor k = %.3f at %s (%s); efficiency k^1.5 = %.0f %% of ideal" % (
+            k["value"], k.get("value_at", "median thrust"), thr(k.get("thrust_at_value_N", 0.0)),
             100.0 * k["value"] ** 1.5),
     ]
     h = params.get("hover")
     if h:
         lo, hi = h["hover_command_interval_95"]
-        lines += ["hover for %s: command %.3f (95 %% interval %.3f..%.3f), thrust fraction %.3f, "
-                  "%.0f W, %.1f A" % (params["vehicle"].get("name", "vehicle"), h["hover_command"],
-                                      lo, hi, h["hover_thrust_fraction"], h["power_W"], h["current_A"])]
+        lines += ["hover for %s: command %s (95 %% interval %s..%s), thrust fraction %.3f, "
+                  "%.4g W, %.3g A, thrust-to-weight %.2f (motor model at the sagged bus %.2f V)" % (
+                      params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),
+                      h["hover_thrust_fraction"], h["power_W"], h["current_A"], h.get("thrust_to_weight", 0.0),
+                      h["voltage_V"])]
     for w in params.get("warnings", []):
         lines.append("! " + w)
     lines += ["- " + c for c in BENCH_CAUTIONS]
