@@ -397,6 +397,8 @@ def judge(case, base, runner, scratch, lines_seen=None):
             return "exit %s: %s" % (code, (lines or [out[:200]])[-1][:300])
         if len(lines) != 1 or not lines[0].startswith("error: "):
             return "stderr is not one error line: %r" % err[:300]
+        if "cannot compute with these inputs" in lines[0]:
+            return "only the last net caught it: %s" % lines[0][:300]
         if len(lines[0]) > 700:
             return "error line of %d characters" % len(lines[0])
         if before != after:

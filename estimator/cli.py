@@ -6,6 +6,7 @@ no matplotlib). Every user error becomes one ``error:`` line on stderr, exit 2.
 """
 
 import importlib
+import os
 import sys
 
 import click
@@ -94,6 +95,14 @@ def main(argv=None):
     except MemoryError:
         click.echo("error: out of memory; the input is too large for this machine", err=True)
         sys.exit(2)
+    except (ArithmeticError, ValueError) as exc:
+        # the last net under values the checks let through but the models cannot take (a
+        # cell voltage of 1e-300 V): one line that says so, never a traceback. Every hit is
+        # a gap in the checks: LIFTCAL_DEBUG=1 shows the traceback to find it.
+        if os.environ.get("LIFTCAL_DEBUG"):
+            raise
+        click.echo("error: %s" % _one_line(cannot_compute(exc)), err=True)
+        sys.exit(2)
     except RecursionError:
         click.echo("error: the input is nested too deeply to read", err=True)
         sys.exit(2)
@@ -112,6 +121,23 @@ def main(argv=None):
         sys.exit(0)
     code = rv if isinstance(rv, int) else 0
     sys.exit(code)
+
+
+CANNOT_COMPUTE = "cannot compute with these inputs"
+
+
+def cannot_compute(exc):
+    """The error line's text for an arithmetic failure deep in a model, naming where it happened."""
+    import traceback
+
+    where = "liftcal"
+    for frame in reversed(traceback.extract_tb(exc.__traceback__)):
+        if "estimator" in frame.filename:
+            where = "%s line %d" % (frame.filename[frame.filename.rfind("estimator"):], frame.lineno)
+            break
+    return ("%s (%s: %s, in %s): a value is likely far outside what the models take (a unit "
+            "slip?); check the files and options given; if they are right, please report it"
+            % (CANNOT_COMPUTE, type(exc).__name__, str(exc)[:80], where))
 
 
 def _one_line(text):
