@@ -71,9 +71,28 @@ def _start(u, log_v, t, n, u_max):
     return np.array([max(t_max, 1e-9 * max(float(np.max(t)), 1e-12)), min(max(a, 0.0), 1.0), u_min, n])
 
 
-def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None):
+def project(command, thrust_N, u_max, n):
+    """The quadratic closest (least squares) to a smooth thrust curve at V_ref: the projection
+    of the fitted motor model over the flying range. command [-], thrust_N [N]: the model on a
+    grid from its spin-up to u_max [-]; n: voltage exponent carried along [-]. Returns theta."""
+    from scipy.optimize import least_squares
+
+    zero = np.zeros_like(command)
+    theta0 = _start(command, zero, thrust_N, n, u_max)
+    t_top = float(np.max(thrust_N))
+    lo, hi = np.array([1e-12 * t_top, 0.0, 0.0]), np.array([10.0 * t_top, 1.0, 0.6])
+    res = least_squares(lambda p: curve_thrust((p[0], p[1], p[2], n), command, zero, u_max) - thrust_N,
+                        np.clip(theta0[:3], lo + 1e-12, hi - 1e-12), bounds=(lo, hi), x_scale="jac",
+                        method="trf", max_nfev=300)
+    return np.append(res.x, n)
+
+
+def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projection=None):
     """Fit the curve to levels (dict command [-], voltage_V [V], thrust_N [N]).
 
+    projection: optional (command grid [-], thrust [N] at v_ref) of the fitted motor model;
+    without a voltage spread the exported curve is its projection (project), with one the
+    levels fit starts there.
     v_ref: reference voltage [V]; u_max: top end point [-]; motor_n: the motor model's
     voltage exponent [-], used when the sweep has no voltage spread; voltage_exponent: fix
     n [-]. Returns dict (thrust_max_N, quadratic_share, command_min, command_max,
@@ -94,7 +113,7 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None):
     else:
         n0, source = min(max(motor_n, 0.5), 3.0), "motor model"
     fixed = source != "fitted"
-    theta0 = _start(u, log_v, t, n0, u_max)
+    theta0 = _start(u, log_v, t, n0, u_max) if projection is None else project(*projection, u_max, n0)
     t_top = float(np.max(t))
     lo = np.array([1e-12 * t_top, 0.0, 0.0, 0.5])
     hi = np.array([10.0 * t_top, 1.0, 0.6, 3.0])
@@ -102,7 +121,7 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None):
         lo[3], hi[3] = n0 - 1e-9, n0 + 1e-9
     theta0 = np.clip(theta0, lo + 1e-12, hi - 1e-12)
     scale = max(0.01 * t_top, 1e-12)
-    for _ in range(2):
+    for _ in range(0 if fixed and projection is not None else 2):
         res = least_squares(lambda p, s=scale: (curve_thrust(p, u, log_v, u_max) - t) / s, theta0,
                             bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE, x_scale="jac",
                             method="trf", max_nfev=300)
@@ -110,10 +129,16 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None):
         r = curve_thrust(res.x, u, log_v, u_max) - t
         from estimator.bench.levels import robust_scale
         scale = max(robust_scale(r) if r.size > 4 else float(np.sqrt(np.mean(r * r))), 1e-5 * t_top)
-    theta = res.x
-    r = curve_thrust(theta, u, log_v, u_max) - t
+    if fixed and projection is not None:
+        from estimator.bench.levels import robust_scale
+        theta = theta0
+        r = curve_thrust(theta, u, log_v, u_max) - t
+        scale = max(robust_scale(r) if r.size > 4 else float(np.sqrt(np.mean(r * r))), 1e-5 * t_top)
+    else:
+        theta = res.x
+        r = curve_thrust(theta, u, log_v, u_max) - t
     p_free = 3 if fixed else 4
-    jac = res.jac[:, :p_free] * scale  # d r / d theta in N per unit of each parameter
+    jac = _jacobian(theta, u, log_v, u_max, p_free)  # d r / d theta [N per unit of each parameter]
     dof = max(r.size - p_free, 1)
     s2 = float(np.sum(np.minimum(r * r, (4.0 * scale) ** 2))) / dof
     cov = np.zeros((4, 4))
@@ -131,6 +156,18 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None):
             "covariance": {"names": list(PARAM_NAMES), "matrix": cov.tolist()},
             "rms_residual_N": float(np.sqrt(np.mean(r * r))), "residual_scale_N": float(scale),
             "voltage_spread": spread, "warnings": warnings}
+
+
+def _jacobian(theta, u, log_v, u_max, p_free):
+    """d T / d theta on the levels by central differences [N per unit of each parameter]."""
+    cols = []
+    for j in range(p_free):
+        h = 1e-6 * max(abs(theta[j]), 1e-3)
+        up, dn = np.array(theta, dtype=float), np.array(theta, dtype=float)
+        up[j] += h
+        dn[j] -= h
+        cols.append((curve_thrust(up, u, log_v, u_max) - curve_thrust(dn, u, log_v, u_max)) / (2.0 * h))
+    return np.column_stack(cols)
 
 
 def check_rising(levels, source):

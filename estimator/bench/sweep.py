@@ -107,6 +107,30 @@ def _model_spikes(lv, theta, u, v, t):
     lv["thrust_spike"][rows[np.abs(r_rows) > SPIKE_SIGMAS * scale]] = True
 
 
+def _add_lag(curve):
+    """Widen the curve's covariance for a one-way sweep by the rotor's unknown lag behind the
+    command (core.constants.ONE_WAY_LAG_COMMAND_SE): on u_min and, through dT/du at full
+    command, on T_max."""
+    from estimator.core.constants import ONE_WAY_LAG_COMMAND_SE as ONE_WAY_LAG_SE
+
+    m = np.array(curve["covariance"]["matrix"])
+    slope = curve["thrust_max_N"] * (1.0 + curve["quadratic_share"]) / (curve["command_max"] - curve["command_min"])
+    m[0, 0] += (slope * ONE_WAY_LAG_SE) ** 2
+    m[2, 2] += ONE_WAY_LAG_SE ** 2
+    curve["covariance"]["matrix"] = m.tolist()
+    curve["standard_errors"]["thrust_max_N"] = float(np.sqrt(m[0, 0]))
+    curve["standard_errors"]["command_min"] = float(np.sqrt(m[2, 2]))
+
+
+def swept_both_ways(command):
+    """True when the rows step the command up and down alike (at least a quarter as many
+    steps one way as the other, and three or more each way): then the rotor's lag behind the
+    command cancels between the two legs; a one-way sweep carries it into the curve."""
+    steps = np.diff(np.asarray(command, dtype=float))
+    up, down = int(np.count_nonzero(steps > 0.0)), int(np.count_nonzero(steps < 0.0))
+    return bool(min(up, down) >= 3 and min(up, down) >= 0.25 * max(up, down))
+
+
 def motor_exponents(theta, v_ref):
     """Voltage and density exponents of the fitted motor model at full command and v_ref [V]:
     n = d ln T / d ln V, m = d ln T / d ln rho by central differences of +-1 % [-]."""
@@ -143,7 +167,11 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     _model_spikes(lv, theta, u, v, t)
     v_ref = float(round(float(np.median(v[:: max(1, v.size // MAD_ROWS)])), 2))
     n_motor, m_motor = motor_exponents(theta, v_ref)
-    curve = fit_quadratic(lv, v_ref, float(theta[5]), n_motor, voltage_exponent)
+    grid = np.linspace(float(theta[4]), float(theta[5]), 161)
+    curve = fit_quadratic(lv, v_ref, float(theta[5]), n_motor, voltage_exponent,
+                          projection=(grid, rotor_arrays(theta, grid, v_ref)[0]))
+    if not swept_both_ways(u):
+        _add_lag(curve)
     curve.update({"reference_voltage_V": v_ref, "reference_density_kg_m3": rho,
                   "voltage_min_V": float(np.min(v)), "voltage_max_V": float(np.max(v)),
                   "density_exponent": m_motor, "command_swept_max": u_hi,
@@ -171,7 +199,7 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     motor_block.update({"reference_density_kg_m3": rho, "rms_thrust_residual_N": motor["rms_thrust_N"],
                         "thrust_residual_scale_N": motor["scale_thrust_N"],
                         "current_residual_scale_A": motor["scale_current_A"],
-                        "top_end_found": bool(top_found)})
+                        "top_end_found": bool(top_found), "sweep_both_ways": swept_both_ways(u)})
     fit = {
         "curve": curve, "power": power, "static": sf, "rejected": rejected, "motor": motor_block,
         "rows_used": rows_used, "rows_rejected": int(data["rows_total"] - rows_used),

@@ -40,3 +40,8 @@ CELSIUS_ZERO_K = 273.15
 
 # Angular speed of one rpm [rad/s]: 2 pi / 60.
 RAD_S_PER_RPM = 0.10471975511965977
+
+# Standard error of a fitted command from the rotor's lag behind the command on a sweep that
+# steps one way only [-]: a stepped sweep of about a second per step lags a few thousandths
+# of the command range (common practice, from memory); up-and-down sweeps cancel it.
+ONE_WAY_LAG_COMMAND_SE = 0.003

@@ -13,13 +13,15 @@ route applies to CP (only the ideal induced power is multiplied by the coaxial f
 
 The 95 % interval of the hover command: +-1.96 standard errors, the standard error made of
 the model-form error (the motor fit's robust thrust residual scale, times FORM_INFLATION,
-through dT/du at hover) and of the extrapolation beyond the sweep's bus voltages (the share
-of the voltage outside the sweep times EXTRAPOLATION_N_ERROR in the voltage exponent).
+through dT/du at hover), of the extrapolation beyond the sweep's bus voltages (the share
+of the voltage outside the sweep times EXTRAPOLATION_N_ERROR in the voltage exponent) and,
+when the sweep stepped the command one way only, of the rotor's lag (ONE_WAY_LAG_SE).
 Beyond the sweep's voltage or command range the sheet says by how much it extrapolates.
 """
 
 import math
 
+from estimator.core.constants import ONE_WAY_LAG_COMMAND_SE
 from estimator.core.battery import endurance_min, max_pack_current_A, usable_capacity_Ah
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
 from estimator.core.power_model import coaxial_shaft_ratio, rotor_power_W  # noqa: F401 (re-exported)
@@ -27,14 +29,18 @@ from estimator.errors import InputError
 from estimator.units import STANDARD_GRAVITY_M_S2
 
 INTERVAL_METHOD = ("+-1.96 standard errors of the motor model's hover command: model-form error (robust "
-                   "thrust residual scale of the command levels x %.1f, through dT/du at hover) and "
-                   "voltage extrapolation beyond the sweep, in quadrature; clipped to 0..1")
+                   "thrust residual scale of the command levels x %.1f, through dT/du at hover), voltage "
+                   "extrapolation beyond the sweep and, for a one-way sweep, the rotor's lag, in "
+                   "quadrature; clipped to 0..1")
 INTERVAL_SCOPE = "bench-fit and model-form uncertainty; not site, pack or prop-to-prop spread"
 # measured on independent truths (benchmarks/fit_study.py): level residuals of neighbouring
 # commands are correlated, and the hover point sits between levels [-]
 FORM_INFLATION = 2.0
 # uncertainty of the voltage exponent when the hover voltage lies beyond the sweep's [-]
 EXTRAPOLATION_N_ERROR = 0.15
+# a sweep that steps the command one way only cannot tell the rotor's lag behind the command
+# from the curve itself (core.constants); up-and-down sweeps cancel it
+ONE_WAY_LAG_SE = ONE_WAY_LAG_COMMAND_SE
 # smallest standard error of a hover command: a tenth of a percent step of the command [-]
 MIN_COMMAND_SE = 0.002
 VOLTAGE_RANGE_TOLERANCE = 0.02
@@ -171,7 +177,8 @@ def hover_interval(params, state):
     beyond = max(0.0, math.log(lo_v / v_h), math.log(v_h / hi_v))
     t_h = state["thrust_per_rotor_N"]
     se_extra = EXTRAPOLATION_N_ERROR * beyond * t_h / slope if slope > 0.0 else 0.0
-    se = math.sqrt(se_form ** 2 + se_extra ** 2 + MIN_COMMAND_SE ** 2)
+    se_lag = 0.0 if mm.get("sweep_both_ways", True) else ONE_WAY_LAG_SE
+    se = math.sqrt(se_form ** 2 + se_extra ** 2 + se_lag ** 2 + MIN_COMMAND_SE ** 2)
     return [max(0.0, u_h - Z_95 * se), min(1.0, u_h + Z_95 * se)], se
 
 
