@@ -178,6 +178,7 @@ from estimator.core.atmosphere import site_air, standard_atmosphere
 from estimator.core.hover import hover_estimate
 from estimator.core.motor import rotor_operating_point
 from estimator.core.propulsion import shared_operating_point
+from estimator.core.propeller_bemt import propeller_coefficients
 V = json.loads(VEHICLE_JSON)
 air = site_air(1400.0, 28.0, None, 40.0)
 est = hover_estimate(V["mass_kg"], 4, "flat", air["density_kg_m3"], V["motor"], V["propeller"],
@@ -189,6 +190,8 @@ sh = shared_operating_point(1.0, 16.8, 0.02, 4, 1.1, V["motor"], V["propeller"],
 out = [standard_atmosphere(5000.0)[2], air["density_kg_m3"], air["density_altitude_m"],
        est["hover_command"], est["hover_command_empty"], est["thrust_to_weight"], est["flight_time_min"],
        coax["hover_power_W"], op["thrust_N"], op["bus_current_A"], sh["bus_V"], sh["total_thrust_N"]]
+bemt = propeller_coefficients(0.254, 0.1143, 3, 6000.0, 1.1, 1.8e-5)
+out += [bemt["ct"], bemt["cp"], est["discharge"]["charge_used_Ah"]]
 print("RESULT " + " ".join(repr(x) for x in out))
 """
 
@@ -226,6 +229,6 @@ def test_core_gives_the_same_numbers_on_micropython(tmp_path):
     here = _run_case_here(vehicle_json)
     mpy_vals = [float(x) for x in [l for l in mpy_out.splitlines() if l.startswith("RESULT")][0].split()[1:]]
     cpy_vals = [float(x) for x in [l for l in here.splitlines() if l.startswith("RESULT")][0].split()[1:]]
-    assert len(mpy_vals) == len(cpy_vals) == 12
+    assert len(mpy_vals) == len(cpy_vals) == 15
     for a, b in zip(mpy_vals, cpy_vals):
         assert a == pytest.approx(b, rel=1e-12)

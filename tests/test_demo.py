@@ -54,3 +54,14 @@ def test_demo_cli_json_is_one_object(tmp_path):
     assert out.returncode == 0, out.stderr
     doc = json.loads(out.stdout)
     assert {"preflight", "fit", "fitted_hover", "settings", "flights"} <= set(doc)
+
+
+def test_demo_shows_the_choosing_step(demo_run):
+    # issue 11: the demo shows compare and the payload question, each answered in one run
+    _, report, text = demo_run
+    assert len(report["compare"]["rows"]) == 6 and report["compare"]["best"] is not None
+    assert report["payload"]["job_min"] == 10.0 and len(report["payload"]["rows"]) == 5
+    assert "liftcal compare" in text and "--payload 0..1kg" in text
+    assert "longest hover that keeps every margin" in text and "largest payload" in text
+    # the demo's own sheet shows the discharge endurance beside the usable-share one
+    assert "from a full pack, ended by" in text and "the usable share alone" in text

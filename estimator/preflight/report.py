@@ -18,7 +18,7 @@ from estimator.cautions import cautions
 from estimator.errors import InputError
 from estimator.preflight.propeller_estimate import estimated_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, suspicious_values
-from estimator.vehicle import assumed_warnings, vehicle_source
+from estimator.vehicle import assumed_warnings, given_text, vehicle_source
 
 # Warning thresholds (common practice for multirotors, not a standard):
 HOVER_COMMAND_LIMIT = 0.6  # hover above 0.6 of full command leaves little for control
@@ -85,6 +85,7 @@ def hover_report(vehicle, params=None):
         "discharge": discharge if hovering else None,
         "hover_limited_by": None if hovering else (hov["limited_by"] or "command"),
         "mass_kg": vehicle["mass_kg"],
+        "mass_as_given": given_text(vehicle, "$.mass_kg"),
         "weight_N": nominal["weight_N"],
         "rotor_count": count,
         "layout": layout,
@@ -115,6 +116,7 @@ def hover_report(vehicle, params=None):
         "pressure_Pa": air["pressure_Pa"],
         "site_altitude_m": site.get("altitude_m", 0.0),
         "propeller_ct": propeller["ct"],
+        "propeller_diameter_m": propeller["diameter_m"],
         "propeller_cp": propeller["cp"],
         "propeller_source": "estimated" if estimate else "given",
         "propeller_estimate": estimate,
@@ -301,7 +303,9 @@ def format_sheet(report):
         _num(report.get("density_kg_m3"), "%.3f", "kg/m^3"),
         _num(100.0 * report["density_ratio"] if report.get("density_ratio") else None, "%.0f", "%"),
         _num(report.get("density_altitude_m"), "%.0f", "m"))
-    setup = "%s, %d rotors (%s)" % (_num(report.get("mass_kg"), "%.2f", "kg"),
+    as_given = report.get("mass_as_given")
+    setup = "%s%s, %d rotors (%s)" % (_num(report.get("mass_kg"), "%.2f", "kg"),
+                                     " (%s as written)" % as_given if as_given else "",
                                    report.get("rotor_count", 0), report.get("layout", "flat"))
     lines += ["vehicle  " + setup, "site     " + air, ""]
 
@@ -380,6 +384,12 @@ def format_sheet(report):
             extras.append("rotors at %.0f rpm" % report["hover_rpm"])
         if report.get("figure_of_merit") is not None:
             extras.append("figure of merit %.2f" % report["figure_of_merit"])
+        estimate = report.get("propeller_estimate")
+        if estimate:
+            lines.append("   propeller CT %.3f, CP %.4f ESTIMATED from %.3g m x %.3g m pitch, %d blades "
+                         "(blade element momentum theory at %.0f rpm; typically 10-20 %% off)"
+                         % (report["propeller_ct"], report["propeller_cp"], report.get("propeller_diameter_m") or 0.0,
+                            estimate["pitch_m"], estimate["blades"], estimate["rpm"]))
         if report.get("static_factor") is not None:
             extras.append("static factor k %.2f" % report["static_factor"])
         if extras:
