@@ -22,6 +22,10 @@ MAX_BYTES = 16 * MiB
 MAX_DEPTH = 64
 # integers beyond this are no quantity of a multirotor (and no longer exact as floats) [-]
 MAX_INT = 10 ** 15
+# numbers of a magnitude outside these (other than 0) are no quantity liftcal reads in any
+# unit: 5e-324 or 1e300 is a typo or a test of the reader, and would reach the models as a
+# division by almost zero [-]
+MAGNITUDE = (1e-100, 1e100)
 
 _BOMS = ((codecs.BOM_UTF32_LE, "utf-32"), (codecs.BOM_UTF32_BE, "utf-32"),
          (codecs.BOM_UTF8, "utf-8-sig"), (codecs.BOM_UTF16_LE, "utf-16"),
@@ -133,6 +137,10 @@ def check_values(document, path):
         elif isinstance(node, float) and not math.isfinite(node):
             raise InputError("%s: %s: a number too large for liftcal to read (beyond 1e308); "
                              "write a number of a sensible size" % (path, _where(where)))
+        elif isinstance(node, float) and node != 0.0 and not MAGNITUDE[0] <= abs(node) <= MAGNITUDE[1]:
+            raise InputError("%s: %s: %g is far outside any quantity liftcal reads (magnitudes "
+                             "%g..%g, or 0); a typo?" % (path, _where(where), node, MAGNITUDE[0],
+                                                         MAGNITUDE[1]))
         elif isinstance(node, int) and not isinstance(node, bool) and abs(node) > MAX_INT:
             digits = str(abs(node))
             raise InputError("%s: %s: a whole number of %d digits (%s...) is larger than any "

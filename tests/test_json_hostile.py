@@ -159,3 +159,12 @@ def test_check_json_prints_one_object_for_an_invalid_file_too(tmp_path):
     assert doc["valid"] is False and doc["file"] == path and doc["error"] in err
     code, out, err = run(["check", PARAMS, "--json"])
     assert code == 0 and json.loads(out)["valid"] is True
+
+
+@pytest.mark.parametrize("value", ["5e-324", "1e-300", "-1e-150", "1e300", "-1e101"])
+def test_numbers_of_absurd_magnitude_are_refused_with_the_path(tmp_path, value):
+    # a subnormal or astronomically large number is no quantity in any unit; it would reach
+    # the models as a division by almost zero (found by benchmarks/numeric_extremes.py)
+    text = json.dumps(_vehicle()).replace('"empty_cell_V": 3.5', '"empty_cell_V": %s' % value)
+    assert value in text
+    refused(["hover", _write(tmp_path, text)], "$.battery.empty_cell_V", "far outside any quantity")
