@@ -209,7 +209,7 @@ def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
         p_W = frac * top_W * 0.999
         ma = int(round(p_W / (mv / 1000.0) * 1000.0))
         w = Watch(as_tuple(cfg))
-        for _ in range(5):   # thrust comes from the block's mean measured power (500 ms blocks)
+        for _ in range(10):   # thrust comes from the block's mean measured power (1 s blocks)
             w.update(100, 500, mv, ma)
         p_meas = (mv // 20) * ma // 5000 / 10.0  # the kernel's own integer power, in W
         ref_mN = 1000.0 * _float_thrust_total_N(p_meas, params, n, rho)
@@ -247,7 +247,7 @@ def test_hover_command_matches_float_inversion():
     weight = v["mass_kg"] * STANDARD_GRAVITY_M_S2 / v["rotor_count"]
     for volts in (14.0, 14.7, 15.5, 16.3):
         w = Watch(as_tuple(cfg))
-        for _ in range(5):   # slow outputs are refreshed once per block (500 ms)
+        for _ in range(10):   # slow outputs are refreshed once per block (1 s)
             w.update(100, 500, int(volts * 1000), 20000)
         ref, _ = thrust_curve.hover_command(weight, volts, v["site_density_kg_m3"], params["thrust_curve"])
         assert abs(w.hover_permille - 1000 * ref) <= 3, (volts, w.hover_permille, ref)
@@ -298,7 +298,7 @@ def test_state_stores_go_back_to_their_own_slots():
     with open(WATCH_SRC, "r", encoding="utf-8") as fh:
         tree = ast.parse(fh.read())
     for func, lst, names, first, last, least in (("update", "st", state_names(), 1, "low", 10),
-                                                 ("_block", "sb", block_state_names(), 0, "m_run", 12)):
+                                                 ("_block", "sb", block_state_names(), 0, "n_p", 12)):
         state = names[first:names.index(last) + 1]
         fn = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name == func][0]
         checked = 0

@@ -17,7 +17,8 @@ Models (design notes sec. 3, Watch). Every statistic lives in flight time, not i
 - measured and lagged expected energy are summed over blocks of block_ms of flight time (a
   sample longer than a block counts as one block); one residual per block;
 - a block is "steady" when its mean expected power is within steady_permille of a slow mean
-  (EMA over 8 blocks) and above the power floor; other blocks are not judged;
+  (EMA over 16 blocks) and above the power floor; other blocks (climbs, descents, manoeuvres:
+  the power of axial flight differs from the static model) are not judged;
 - learning window: after takeoff_ms of flight, learn_ms of steady blocks (or whatever there is
   at learn_timeout_ms) give the power scale s (baseline_off when |s - 1| > tolerance) and the
   block noise sigma (mean absolute deviation x sqrt(pi/2), at least the bench noise floor);
@@ -29,10 +30,11 @@ Models (design notes sec. 3, Watch). Every statistic lives in flight time, not i
   at 5 sigma, floor kept) and a bounded slow drift d follows the baseline as the pack drains;
   both freeze while a fault is suspected. One block adds at most k + h/2 + 1: an alarm takes two;
 - implied mass: thrust from measured power (momentum theory with the calibrated static factor,
-  tabulated) over windows of mass_window_ms of steady blocks: mean and variance of the block
-  deviations from the planned mass; a window counts when its mean exceeds the limit by a margin
-  of z standard errors (z^2 and a correlation factor in mass_z2_q8); mass_high after
-  mass_windows such windows in a row (latched until landing). Not while a fault is suspected;
+  tabulated; the axial-flight part of the power taken out) over windows of mass_window_ms of
+  steady blocks: mean and variance of the block deviations from the planned mass, pooled with
+  the previous window; a window counts when the pooled mean exceeds the limit by a margin of z
+  standard errors (z^2 and a correlation factor in mass_z2_q8); mass_high after mass_windows
+  such windows in a row (latched until landing). Not while a fault is suspected;
 - sensor faults: out-of-range readings, a gap over dt_max_ms, the current identical for
   stuck_ms while the rotors turn.
 
@@ -64,14 +66,16 @@ class Watch:
         tq = (((c[117] << 12) // span) << 12) // span
         i_pos = c[112] if c[112] > 0 else 0   # currents below this: negative (power 0) or a fault
         # st: [0] CONFIG, [1..12] per-sample state ([2] the lagged expected power [0.1 W / 4]),
-        # [13..25] CONFIG scalars, [26..29] derived
+        # [13..25] CONFIG scalars, [26..29] derived, [30] the block's thrust-factor sum
         self.st = [c, 0, 0, 0, 0, -1, 0, 0, 0, 0, 0, 0, 0,
                    c[109], c[110], c[111], c[112], c[113], c[114], c[115], c[118], c[119], c[120],
                    c[121], c[125], c[126],
-                   ta, tq, c[115] + span, i_pos]
+                   ta, tq, c[115] + span, i_pos, 0]
         # sb: block state (learning, l_sum, l_n, l_ms, l_dev, scale, sig_q6, k, h, s_hi, s_lo,
-        # drift_q8, slow power q4, m_sum, m_sq, m_n, m_ms, m_run)
-        self.sb = [1, 0, 0, 0, 0, 1000, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0]
+        # drift_q8, slow thrust factor q4, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, and the
+        # previous mass window's mean, variance and count)
+        # (the inflow slope starts at 0.5, momentum theory's ideal-power share of a small set)
+        self.sb = [1, 0, 0, 0, 0, 1000, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 400, 200, 500, 0, 0, 0]
         self.residual_permille = 0
         self.thrust_mN = 0
         self.hover_permille = 0
@@ -100,6 +104,12 @@ class Watch:
         sb[15] = 0
         sb[16] = 0
         sb[17] = 0
+        sb[18] = 400
+        sb[19] = 200
+        sb[20] = 500
+        sb[21] = 0
+        sb[22] = 0
+        sb[23] = 0
         self.mass_g = 0
         self.scale = 1000
         self.sigma_permille = 0
@@ -114,7 +124,7 @@ class Watch:
         st = self.st
         (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw, low,
          dt_max, v_min, v_max, i_min, i_max, spin, cmd_min, vstep, pfloor, lag, blk, stuck_lim, landed,
-         ta, tq, u_top, i_pos) = st
+         ta, tq, u_top, i_pos, fsum) = st
         # range checks: comparisons only, so any int is safe here
         if dt_ms <= 0 or dt_ms > dt_max or bus_mV < v_min or bus_mV > v_max:
             flags |= 4
@@ -191,6 +201,7 @@ class Watch:
                 st[10] = 0
                 st[11] = 0
                 st[12] = 0
+                st[30] = 0
             st[1] = flags
             return flags
         if quiet:
@@ -202,34 +213,37 @@ class Watch:
         em += pm * w                                      # 180000 * 2000 = 3.6e8
         ee += (pl4 >> 2) * w                              # 2^18 * 2000 = 5.2e8
         bw += w                                           # < 2 blk
+        fsum += f * w                                     # 6143 * 2000 = 1.2e7
         if pe < pfloor:
             low = 1
         if bw >= blk:
-            flags = self._block(flags, em, ee, bw, bus_mV, low, fl_ms)
+            flags = self._block(flags, em, ee, bw, bus_mV, low, fl_ms, fsum)
             st[9] = 0
             st[10] = 0
             st[11] = 0
             st[12] = 0
+            st[30] = 0
         else:
             st[9] = em
             st[10] = ee
             st[11] = bw
             st[12] = low
+            st[30] = fsum
         st[1] = flags
         return flags
 
-    def _block(self, flags, em, ee, bw, mv, low, fl_ms):
+    def _block(self, flags, em, ee, bw, mv, low, fl_ms, fsum):
         """One block of flight time: residual, learning, CUSUM, noise, drift, implied mass.
 
         em, ee: measured and lagged expected energy [0.1 W ms]; bw: block length [ms]; mv: last
-        voltage [mV]; low: expected power fell below the floor; fl_ms: flight time [ms].
+        voltage [mV]; low: expected power fell below the floor; fl_ms: flight time [ms]; fsum:
+        the thrust factor f (thrust / full thrust at the reference voltage, Q12) summed [Q12 ms].
         Returns the flags. No loops, no allocation.
         """
         c = self.st[0]
         sb = self.sb
-        (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, ps,
-         m_sum, m_sq, m_n, m_ms, m_run) = sb
-        pb = ee // bw                                     # mean expected power [0.1 W] < 2^18
+        (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
+         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p) = sb
         pmb = em // bw                                    # mean measured power [0.1 W] <= 180000
         # slow outputs: thrust from the block's measured power (table over power), hover command
         sh = c[123]
@@ -245,15 +259,19 @@ class Watch:
         j = dv // vs
         a = c[j + 13]
         self.hover_permille = a + (c[j + 14] - a) * (dv % vs) // vs   # 1000 * 5001
-        # steady: block expected power near the slow mean (EMA over 8 blocks, [0.1 W / 16])
-        if ps == 0:
-            ps = pb << 4                                  # < 2^22
-        psd = ps >> 4
-        dp = pb - psd
-        if dp < 0:
-            dp = -dp
-        steady = low == 0 and dp * 1000 <= c[135] * psd   # 2^18 * 1000 = 2.6e8
-        sb[12] = ps + (((pb << 4) - ps) >> 3)
+        # thrust deviation x = (f - f_slow) / f_slow of the block from the slow mean (EMA over 16
+        # blocks) [permille]; steady: |x| within steady_permille and power above the floor
+        fb = fsum // bw                                   # Q12, <= 6143
+        if fsl == 0:
+            fsl = fb << 4                                 # Q4 of Q12, < 2^17
+        fsd = (fsl >> 4) + 1
+        x = (fb - fsd) * 1000 // fsd                      # 6143 * 1000
+        if x > 500:
+            x = 500
+        elif x < -500:
+            x = -500
+        steady = low == 0 and -c[135] <= x <= c[135]
+        sb[12] = fsl + (((fb << 4) - fsl) >> 4)
         e0 = ee >> c[122]                                 # < 2^19 (energy_shift, watch_layout)
         e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
         if e0s <= 0:
@@ -269,13 +287,30 @@ class Watch:
         if fl_ms < c[127]:                                # take-off: not judged, not learned
             return flags
 
+        if steady and (learning or s_hi + s_lo < (h >> 1)):
+            # the power of axial flight (climb, descent, gusts) is not the static model's: the
+            # residual follows the thrust deviation x (momentum theory: dP = (T_static - W) v_h);
+            # its slope cx = cov(r, x) / var(x) is learned by EMA (faster while learning)
+            sh = 4 if learning else c[132]
+            sxx += (x * x - sxx) >> sh                    # 250000
+            srx += (r * x - srx) >> sh                    # 1000 * 500
+            sb[18] = sxx
+            sb[19] = srx
+            if sxx > 0:
+                cx = srx * 1000 // sxx                    # 5e5 * 1000
+                if cx < 0:
+                    cx = 0
+                elif cx > 1000:
+                    cx = 1000
+                sb[20] = cx
         if learning:
             if steady:
+                r -= cx * x // 1000                       # |.| <= 1500: take the inflow part out
                 l_n += 1                                  # <= 18000 (timeout / block)
-                l_sum += r                                # <= 1.8e7
+                l_sum += r                                # <= 2.7e7
                 dz = r - l_sum // l_n
                 if dz < 0:
-                    dz = -dz                              # <= 2000
+                    dz = -dz                              # <= 3000
                 l_dev += dz                               # <= 3.6e7
                 l_ms += bw
                 sb[1] = l_sum
@@ -310,7 +345,7 @@ class Watch:
                 self.scale = scale
                 self.sigma_permille = s
         elif steady:
-            z = r - (drift >> 8)                          # |.| <= 1100
+            z = r - (drift >> 8) - cx * x // 1000         # |.| <= 1600
             quiet = s_hi + s_lo < (h >> 1)
             cl = k + (h >> 1) + 1                         # one block adds at most this
             zc = z
@@ -366,6 +401,9 @@ class Watch:
         if steady:
             if s_hi + s_lo < (h >> 1) or learning:
                 plan = c[140]
+                # thrust from power, less the axial-flight part of the power (cx x, as above;
+                # T ~ P^(2/3) in momentum theory)
+                th -= (th // 1000) * (cx * x // 1000) * 2 // 3   # 1000 * 500 * 2
                 dm = (th * 1000 // 9807 - plan) * 1000 // plan   # 1e6 * 1000 ; (1e5 + 5e5) * 1000
                 if dm > 500:
                     dm = 500
@@ -378,14 +416,30 @@ class Watch:
                 if m_ms >= c[138]:
                     mu = m_sum // m_n
                     var = m_sq // m_n - mu * mu           # <= 250000
-                    self.mass_g = plan + plan * mu // 1000   # 5e5 * 500
-                    ex = mu - c[141]
-                    if ex > 0 and ex * ex * m_n > ((var >> 4) * c[142] >> 4):   # 2.5e5 * 1200 ; 15625 * 65535
+                    if n_p:
+                        # pooled with the previous window: mean, variance, count
+                        d = (mu - mu_p) // 2
+                        pmu = (mu + mu_p) // 2
+                        pvar = (var + var_p) // 2 + d * d    # <= 250000 + 250000
+                        pn = n_p + m_n
+                    else:
+                        pmu = mu
+                        pvar = var
+                        pn = m_n
+                    self.mass_g = plan + plan * pmu // 1000   # 5e5 * 500
+                    ex = pmu - c[141]
+                    if ex > 0 and ex * ex * pn > ((pvar >> 4) * c[142] >> 4):   # 2.5e5 * 2400 ; 31250 * 32767
                         m_run += 1
                         if m_run >= c[139]:
                             flags |= 16
                     else:
                         m_run = 0
+                    mu_p = mu
+                    var_p = var
+                    n_p = m_n
+                    sb[21] = mu_p
+                    sb[22] = var_p
+                    sb[23] = n_p
                     m_sum = 0
                     m_sq = 0
                     m_n = 0
@@ -396,6 +450,8 @@ class Watch:
                 m_sq = 0
                 m_n = 0
                 m_ms = 0
+                n_p = 0
+                sb[23] = n_p
             sb[13] = m_sum
             sb[14] = m_sq
             sb[15] = m_n

@@ -69,7 +69,7 @@ SCALARS = (
     ("mass_windows", 1, 100),               # windows in a row above the limit for mass_high
     ("mass_plan_g", 1, 500000),             # planned all-up mass
     ("mass_limit_permille", 0, 1000),       # mass_high above plan by this share ...
-    ("mass_z2_q8", 0, 65535),               # ... plus a margin: z^2 x correlation factor x 256
+    ("mass_z2_q8", 0, 32767),               # ... plus a margin: z^2 x correlation factor x 256
 )
 
 TABLE_AT = {}

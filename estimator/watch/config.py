@@ -27,16 +27,17 @@ from estimator.errors import InputError
 LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports; every kernel value stays below
 
 DEFAULTS = {
-    "false_alarms_per_hour": 0.001,  # target in-control false power alarms per flight hour [1/h]
+    "false_alarms_per_hour": 0.0001,  # target false power alarms per flight hour for independent
+                                    # blocks [1/h] (block residuals are correlated in gusts: margin)
     "noise_rel_std": None,          # override of power_model.residual_rel_std [-]
     "noise_floor_share": 0.5,       # block-noise floor = this x bench residual_rel_std [-] (a block
                                     # averages several readings; the model-form error stays)
     "noise_floor_min": 0.004,       # and never below this [-] (integer and sensor resolution)
-    "cusum_k_sigma": 1.0,           # CUSUM reference value [noise sigma]
+    "cusum_k_sigma": 1.5,           # CUSUM reference value [noise sigma]
     "lag_ms": 60.0,                 # expected-power lag: rotor spin-up + current-sensor response [ms]
-    "block_s": 0.5,                 # energy block length [s]
-    "takeoff_s": 5.0,               # flight time after spin-up not judged (take-off) [s]
-    "learn_s": 15.0,                # steady flight time the learning window needs [s]
+    "block_s": 1.0,                 # energy block length [s]
+    "takeoff_s": 10.0,              # flight time after spin-up not judged (take-off) [s]
+    "learn_s": 20.0,                # steady flight time the learning window needs [s]
     "learn_timeout_s": 60.0,        # the learning window ends by this flight time anyway [s]
     "baseline_tol": 0.10,           # learned scale further than this from 1 -> baseline_off [-]
     "noise_s": 60.0,                # in-flight noise estimate: EMA time constant [s]
@@ -44,7 +45,7 @@ DEFAULTS = {
     "drift_s": 60.0,                # slow baseline tracking: EMA time constant [s]
     "drift_tol": 0.03,              # bound of the slow in-flight baseline tracking [-]
     "mass_share": 0.08,             # implied mass above planned by this share (+ margin) -> mass_high [-]
-    "mass_window_s": 15.0,          # steady flight time per implied-mass window [s]
+    "mass_window_s": 10.0,          # steady flight time per implied-mass window (pooled with the last) [s]
     "mass_windows": 2,              # windows in a row above limit + margin -> mass_high
     "mass_z": 2.0,                  # margin in standard errors of the window mean [-]
     "mass_corr_blocks": 6.0,        # blocks per independent stretch (thrust swings last seconds) [-]
@@ -281,16 +282,17 @@ def make_config(params, vehicle=None, options=None):
     for j in range(49):
         f = j * 128 / 4096.0
         p_tab.append(int(round(10.0 * n_rot * _rotor_power_W(pm, t_site * f, rho))))
-    if max(p_tab) >= 1 << 18:
-        raise InputError("parameter set: expected power %.0f W at 1.5 x full thrust exceeds the watch's "
-                         "range (26 kW)" % (max(p_tab) / 10.0))
+    f_top = min((1.05 * v_full / v_ref) ** n_exp, 1.5)  # full command at 1.05 x full pack voltage
+    # knots beyond 26 kW are capped: the sensor range (60 V x 300 A = 18 kW) ends before them,
+    # so such power is out of range (a sensor fault) and never judged against the table
+    p_tab = [min(p, (1 << 18) - 1) for p in p_tab]
     put("power_table", table(p_tab, "power table", (1 << 18) - 1), "N x P(T) [0.1 W] at T = %.3f N x f, "
-        "f = 0..1.5 step 1/32 (power model at rho %.4f)" % (t_site, rho))
+        "f = 0..1.5 step 1/32 (power model at rho %.4f; capped at 26 kW beyond full command)" % (t_site, rho))
     p_hover = n_rot * _rotor_power_W(pm, weight_N / n_rot, rho)
     put("power_floor_dW", max(2, int(round(10.0 * 0.2 * p_hover))), "20 %% of hover power %.1f W" % p_hover)
 
-    f_top = min((1.05 * v_full / v_ref) ** n_exp, 1.5)  # full command at 1.05 x full pack voltage
-    p_top_dW = 1.1 * 10.0 * n_rot * _rotor_power_W(pm, t_site * f_top, rho)
+    p_top_dW = min(1.1 * 10.0 * n_rot * _rotor_power_W(pm, t_site * f_top, rho),
+                   (cfg["v_max_mV"] // 20) * cfg["i_max_mA"] // 5000)   # no more than the sensors can read
     sh = 0
     while (32 << sh) < p_top_dW:
         sh += 1
@@ -322,7 +324,7 @@ def make_config(params, vehicle=None, options=None):
     put("mass_windows", int(o["mass_windows"]), "windows in a row above the limit for mass_high")
     put("mass_plan_g", int(round(1000.0 * mass_kg)), "planned all-up mass %.3f kg" % mass_kg)
     put("mass_limit_permille", int(round(1000.0 * o["mass_share"])), "mass_high above plan + %.0f %% ..." % (100.0 * o["mass_share"]))
-    put("mass_z2_q8", min(65535, int(round(256.0 * o["mass_z"] ** 2 * o["mass_corr_blocks"]))),
+    put("mass_z2_q8", min(32767, int(round(256.0 * o["mass_z"] ** 2 * o["mass_corr_blocks"]))),
         "... + %.1f standard errors of the window mean (blocks correlated over %.0f blocks)"
         % (o["mass_z"], o["mass_corr_blocks"]))
     put("landed_ms", max(1, int(round(1000.0 * o["landed_s"]))), "landed after %.1f s below spin" % o["landed_s"])
