@@ -8,16 +8,25 @@ judged only in levels of at least three rows (two rows cannot say which one is w
 grouping is two bincounts over integer keys: linear in the rows, no sort.
 """
 
+import math
+
 import numpy as np
 
 # command step of a level [-]: 0.001 is a 1 us step of a 1000..2000 us pulse
 LEVEL_STEP = 0.001
 # width of a supply band in ln(V) [-]: 1 % of the bus voltage
 LOG_VOLTAGE_STEP = 0.01
+# more levels than this (a ramp logged at every command) are merged by widening the command
+# step, up to MAX_LEVEL_STEP: the fits' cost follows the levels, not the rows [-]
+MAX_LEVELS = 400
+MAX_LEVEL_STEP = 0.02
 # rows this many robust sigmas from their level's mean are spikes [-]
 SPIKE_SIGMAS = 6.0
+# levels with fewer rows are judged against their median, larger ones against the mean of
+# their unflagged rows [-]
+SMALL_LEVEL = 20
 # rows of the systematic subsample that fixes the robust scale of deviations [-]
-SCALE_ROWS = 100000
+SCALE_ROWS = 20000
 
 
 def robust_scale(x):
@@ -28,32 +37,62 @@ def robust_scale(x):
     return float(1.4826 * np.median(np.abs(x - np.median(x))))
 
 
-def _means(key, n_keys, weights, columns):
-    count = np.bincount(key, weights=weights, minlength=n_keys)
-    safe = np.where(count > 0, count, 1.0)
-    return count, [np.bincount(key, weights=c * weights if weights is not None else c,
-                               minlength=n_keys) / safe for c in columns]
+def _level_keys(u, v):
+    """Dense level numbers (in command order) of every row and their count. The command step
+    is widened (never the supply band, which would merge supplies) when a ramp would give
+    more than MAX_LEVELS levels, up to MAX_LEVEL_STEP; the widening is chosen on a
+    subsample, so the rows are binned once."""
+    step = max(1, u.size // SCALE_ROWS)
+    vi = np.rint(np.log(v[::step]) / LOG_VOLTAGE_STEP)
+    width = LEVEL_STEP
+    for _ in range(6):
+        n_levels = np.unique(np.rint(u[::step] / width) * 1e6 + vi).size
+        if n_levels <= MAX_LEVELS or width >= MAX_LEVEL_STEP:
+            break
+        width = min(MAX_LEVEL_STEP, width * max(2.0, n_levels / MAX_LEVELS))
+    ci = np.rint(u * (1.0 / width)).astype(np.int64)
+    vi = np.log(v)
+    vi *= 1.0 / LOG_VOLTAGE_STEP
+    vi = np.rint(vi).astype(np.int64)
+    vi -= int(vi.min())
+    ci *= int(vi.max()) + 1
+    ci += vi
+    present = np.bincount(ci)
+    index = np.cumsum(present > 0) - 1
+    return index[ci], int(index[-1]) + 1
 
 
-def _against_median(key, n_keys, flagged, x, ref, limit):
-    """Flags recomputed as |x - level median| / ref > limit within the levels holding a flag."""
-    if not np.any(flagged):
-        return flagged
-    suspect = np.zeros(n_keys, dtype=bool)
-    suspect[key[flagged]] = True
-    rows = np.flatnonzero(suspect[key])
+def _median_recheck(key, rows, x, limit, ref):
+    """For the rows ``rows`` (all rows of some levels): |x - level median| / ref > limit."""
     k, xs = key[rows], x[rows]
     order = np.lexsort((xs, k))
-    k_sorted = k[order]
+    k_sorted, xs_sorted = k[order], xs[order]
     starts = np.flatnonzero(np.r_[True, k_sorted[1:] != k_sorted[:-1]])
     ends = np.r_[starts[1:], k_sorted.size]
-    xs_sorted = xs[order]
-    med = np.empty(n_keys)
+    med = np.zeros(int(k.max()) + 1)
     med[k_sorted[starts]] = 0.5 * (xs_sorted[(starts + ends - 1) // 2] + xs_sorted[(starts + ends) // 2])
-    ref_rows = ref[k] if np.ndim(ref) else ref
-    out = flagged.copy()
-    out[rows] = np.abs(xs - med[k]) / ref_rows > limit
-    return out
+    return np.abs(xs - med[k]) / ref[k] > limit
+
+
+def _screen(key, n_keys, count, x, centre, ref, limit, allowed):
+    """Rows far from their level: |x - centre| / ref > limit (centre: per row, the level's
+    mean and in-level trend), then in small levels (one spike moves the mean as far as its
+    neighbours) judged again against the level's median. Returns the bool mask."""
+    dev = x - centre
+    dev /= ref[key]
+    np.abs(dev, out=dev)
+    flagged = dev > limit
+    flagged &= allowed[key]
+    hits = np.flatnonzero(flagged)
+    if hits.size == 0:
+        return flagged
+    k = key[hits]
+    small_levels = np.zeros(n_keys, dtype=bool)
+    small_levels[k[count[k] < SMALL_LEVEL]] = True
+    if np.any(small_levels):
+        rows = np.flatnonzero(small_levels[key])
+        flagged[rows] = _median_recheck(key, rows, x, limit, ref) & allowed[key[rows]]
+    return flagged
 
 
 def command_levels(command, voltage_V, thrust_N, power_W):
@@ -61,47 +100,56 @@ def command_levels(command, voltage_V, thrust_N, power_W):
 
     Returns dict: command, voltage_V, thrust_N, power_W (level means of the rows kept),
     count (rows kept per level), row_level (level index of every row), thrust_spike,
-    power_spike (bool per row: far from its level's mean; power judged relative to the
-    level's power and only where the rotor turns, i.e. the level's thrust is above 2 % of
-    the largest level thrust).
+    power_spike (bool per row: far from its level; power judged relative to the level's
+    power and only where the rotor turns, i.e. the level's thrust is above 2 % of the
+    largest level thrust; only in levels of three rows or more).
     """
     u = np.asarray(command, dtype=float)
     v = np.asarray(voltage_V, dtype=float)
-    ci = np.rint(u / LEVEL_STEP).astype(np.int64)
-    vi = np.rint(np.log(v) / LOG_VOLTAGE_STEP).astype(np.int64)
-    vi -= int(vi.min())
-    width = int(vi.max()) + 1
-    raw = ci * width + vi
-    present = np.bincount(raw)
-    index = np.cumsum(present > 0) - 1  # dense level numbers in command order
-    key = index[raw]
-    n_keys = int(index[-1]) + 1
-    count, (t_mean, p_mean) = _means(key, n_keys, None, [thrust_N, power_W])
-    # spikes: deviation from the level's mean against the robust scale of such deviations
-    big = count[key] >= 3
-    dev_t = thrust_N - t_mean[key]
-    ref_p = np.maximum(np.abs(p_mean), 1e-9)
-    dev_p = (power_W - p_mean[key]) / ref_p[key]
+    t = np.asarray(thrust_N, dtype=float)
+    p = np.asarray(power_W, dtype=float)
+    key, n_keys = _level_keys(u, v)
+    count = np.bincount(key, minlength=n_keys).astype(float)
+    safe = np.maximum(count, 1.0)
+    sums = [np.bincount(key, weights=c, minlength=n_keys) for c in (u, v, t, p)]
+    u_m, v_m, t_m, p_m = (x / safe for x in sums)
+    big = count >= 3
+    t_top = float(np.max(np.abs(t_m))) if t_m.size else 0.0
+    ref_p = np.maximum(np.abs(p_m), 1e-9)
+    # each level's mean and its trend in the command (levels of a ramp span a little command)
+    du = u - u_m[key]
+    suu = np.bincount(key, weights=du * du, minlength=n_keys)
+    suu[suu <= 0.0] = np.inf
+    t_c = t_m[key] + (np.bincount(key, weights=du * t, minlength=n_keys) / suu)[key] * du
+    p_c = p_m[key] + (np.bincount(key, weights=du * p, minlength=n_keys) / suu)[key] * du
+    # robust scales of the deviations, on a systematic subsample
     step = max(1, u.size // SCALE_ROWS)
-    sel = big[::step]
-    s_t = robust_scale(dev_t[::step][sel]) if np.any(sel) else 0.0
-    s_p = robust_scale(dev_p[::step][sel]) if np.any(sel) else 0.0
-    t_top = float(np.max(np.abs(t_mean))) if t_mean.size else 0.0
-    spinning = (np.abs(t_mean) > 0.02 * t_top)[key]
-    thrust_spike = big & (np.abs(dev_t) > SPIKE_SIGMAS * max(s_t, 1e-6 * t_top))
-    power_spike = big & spinning & (np.abs(dev_p) > SPIKE_SIGMAS * max(s_p, 1e-6))
-    # a spike pulls its level's mean, so its neighbours look off too: in the levels that hold a
-    # flagged row, judge again against the level's median (a sort of those rows only)
-    thrust_spike = _against_median(key, n_keys, thrust_spike, thrust_N, 1.0, SPIKE_SIGMAS * max(s_t, 1e-6 * t_top))
-    power_spike = _against_median(key, n_keys, power_spike, power_W, ref_p,
-                                  SPIKE_SIGMAS * max(s_p, 1e-6)) & spinning
-    keep = ~(thrust_spike | power_spike)
-    if not np.all(keep):
-        w = keep.astype(float)
-        count, (u_m, v_m, t_mean, p_mean) = _means(key, n_keys, w, [u, v, thrust_N, power_W])
-    else:
-        _, (u_m, v_m) = _means(key, n_keys, None, [u, v])
+    ks = key[::step]
+    sel = big[ks]
+    s_t = robust_scale((t[::step] - t_c[::step])[sel]) if np.any(sel) else 0.0
+    s_p = robust_scale(((p[::step] - p_c[::step]) / ref_p[ks])[sel]) if np.any(sel) else 0.0
+    # noise grows with thrust and power: levels of SMALL_LEVEL rows or more carry their own
+    # scale (rms about the level's trend), smaller ones the subsample's robust scale
+    own = count >= SMALL_LEVEL
+    scale_t = np.full(n_keys, max(s_t, 1e-6 * t_top))
+    scale_p = ref_p * max(s_p, 1e-6)
+    if np.any(own):
+        dt, dp = t - t_c, p - p_c
+        ms_t = np.bincount(key, weights=dt * dt, minlength=n_keys) / np.maximum(count, 1.0)
+        ms_p = np.bincount(key, weights=dp * dp, minlength=n_keys) / np.maximum(count, 1.0)
+        scale_t[own] = np.maximum(np.sqrt(ms_t[own]), 1e-6 * t_top)
+        scale_p[own] = np.maximum(np.sqrt(ms_p[own]), 1e-6 * ref_p[own])
+    thrust_spike = _screen(key, n_keys, count, t, t_c, scale_t, SPIKE_SIGMAS, big)
+    spinning = big & (np.abs(t_m) > 0.02 * t_top)
+    power_spike = _screen(key, n_keys, count, p, p_c, scale_p, SPIKE_SIGMAS, spinning)
+    out = np.flatnonzero(thrust_spike | power_spike)
+    if out.size:
+        k = key[out]
+        count = count - np.bincount(k, minlength=n_keys)
+        safe = np.maximum(count, 1.0)
+        u_m, v_m, t_m, p_m = ((total - np.bincount(k, weights=c[out], minlength=n_keys)) / safe
+                              for total, c in zip(sums, (u, v, t, p)))
     has = count > 0
-    return {"command": u_m[has], "voltage_V": v_m[has], "thrust_N": t_mean[has], "power_W": p_mean[has],
+    return {"command": u_m[has], "voltage_V": v_m[has], "thrust_N": t_m[has], "power_W": p_m[has],
             "count": count[has], "row_level": (np.cumsum(has) - 1)[key],
             "thrust_spike": thrust_spike, "power_spike": power_spike}

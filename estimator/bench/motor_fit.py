@@ -99,26 +99,26 @@ def _bounds(lv):
     return np.array(lo), np.array(hi)
 
 
-def fit_motor(lv, top_end=False, top=1.0):
+def fit_motor(lv, top_end=False, top=1.0, start=None):
     """Fit the model (module docstring) to levels: dict command [-], voltage_V [V],
     thrust_N [N], current_A [A] (bus), count [-].
 
     top_end: fit the ESC's top end point u1 (the sweep shows thrust levelling off below its
-    highest command); else u1 = top [-]. Returns dict: theta (NAMES order, linear), scale_thrust_N, scale_current_A (robust residual
+    highest command); else u1 = top [-]. start: a previous fit's result to start from. Returns dict: theta (NAMES order, linear), scale_thrust_N, scale_current_A (robust residual
     scales of the levels), rms_thrust_N, success (bool), message.
     """
     from scipy.optimize import least_squares
 
     u, v, t, i = lv["command"], lv["voltage_V"], lv["thrust_N"], lv["current_A"]
-    x0 = _start(lv)
+    x0 = _start(lv) if start is None else np.array(start["x"], dtype=float)
     lo, hi = _bounds(lv)
     x0 = np.clip(x0, lo + 1e-9, hi - 1e-9)
     if not top_end:
         lo[5], hi[5], x0[5] = top - 1e-9, top, top - 5e-10
-    s_t = 0.01 * float(np.max(np.abs(t)))
-    s_i = 0.01 * float(np.max(np.abs(i)))
+    s_t = 0.01 * float(np.max(np.abs(t))) if start is None else start["scale_thrust_N"]
+    s_i = 0.01 * float(np.max(np.abs(i))) if start is None else start["scale_current_A"]
     res = None
-    for _ in range(2):
+    for _ in range(2 if start is None else 1):
         def residuals(p, s_t=s_t, s_i=s_i):
             tm, im, _, _, _ = rotor_arrays(_unpack(p), u, v)
             return np.concatenate([(tm - t) / s_t, (im - i) / s_i])

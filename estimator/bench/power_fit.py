@@ -28,7 +28,7 @@ K_IMPLAUSIBLY_LOW = 0.1
 # notes sec. 3a; common practice): below the lower end a unit slip is named in a warning [-]
 K_PLAUSIBLE = (0.25, 1.0)
 # medians of a very large sweep are taken over a systematic subsample of this many rows [-]
-MAD_ROWS = 20000
+MAD_ROWS = 5000
 # relative power residuals beyond this many robust sigmas are counted as spikes, left out [-]
 SPIKE_SIGMAS = 6.0
 

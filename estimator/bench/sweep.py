@@ -162,7 +162,7 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     if not top_found:
         # full command at 1, or at the sweep's top when it stops short (an ESC calibrated to
         # a narrower pulse range, or a sweep cut short): never extrapolated beyond it
-        motor = fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi)
+        motor = fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi, start=motor)
     theta = motor["theta"]
     _model_spikes(lv, theta, u, v, t)
     v_ref = float(round(float(np.median(v[:: max(1, v.size // MAD_ROWS)])), 2))
