@@ -201,6 +201,10 @@ def _check_physics(vehicle, source):
                          "voltage %g V (a loaded cell sits below its open-circuit voltage)"
                          % (source, bat["cutoff_cell_V"], bat["full_cell_V"]))
     prop = vehicle["propeller"]
+    if "blades" in prop and "pitch_m" not in prop:
+        raise InputError("%s: $.propeller.blades: the blade count is used with the pitch (pitch_m or "
+                         "size); coefficients ct and cp already hold it: give the size and blades "
+                         "instead of ct and cp, or leave blades out" % source)
     if "ct" not in prop or "cp" not in prop:
         pitch, diameter = prop["pitch_m"], prop["diameter_m"]
         if pitch > PITCH_RATIO_MAX * diameter:

@@ -71,6 +71,9 @@ def test_ranking_puts_kept_margins_first_by_endurance():
     ("battery.capacity=", ("at least one value",)),
     ("rotors.count=4,5.5", ("rotors.count=5.5", "$.rotors.count")),
     ("mass_kg=2,500", ("mass_kg=500", "$.mass_kg")),
+    ("mass_kg=2,nan", ("mass_kg=nan", "$.mass_kg", "cannot read")),
+    ("mass_kg=inf", ("mass_kg=inf", "$.mass_kg")),
+    ("propeller.blades=2,3", ("propeller.blades=2", "$.propeller.blades", "ct and cp")),
 ])
 def test_bad_keys_and_values_are_named(demo_file, vary, needles):
     out = run("compare", demo_file, "--vary", vary)

@@ -56,6 +56,8 @@ def parse_vary(text):
 
 def _typed(text):
     """A bare number as a JSON number (the key's unit), anything else as text (with its unit)."""
+    import math
+
     try:
         value = int(text)
     except ValueError:
@@ -63,6 +65,8 @@ def _typed(text):
             value = float(text)
         except ValueError:
             return text
+        if not math.isfinite(value):
+            return text  # the unit parser refuses it, naming the key
     return value
 
 

@@ -11,6 +11,7 @@ import math
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.propeller_bemt import propeller_coefficients
 
+CHECKED_PITCH_RATIOS = (0.3, 0.8)  # pitch / diameter range of tests/test_propeller_bemt.py [-]
 PASSES = 3  # hover-speed passes; the Reynolds effect on CT is a few per cent, so 3 settle it
 FIRST_GUESS_CT = 0.1  # a typical static CT of a small propeller (from memory)
 # what the sheet says about an estimate (design notes sec. 3, "What a builder knows")
@@ -56,6 +57,10 @@ def estimated_propeller(propeller, mass_kg, rotor_count, air):
                      "method": "blade element momentum theory with Prandtl tip loss, generic blade "
                                "(estimator/core/propeller_bemt.py)",
                      "typical_error": "10-20 %", "note": ESTIMATE_NOTE})
+    ratio = propeller["pitch_m"] / d
+    if not CHECKED_PITCH_RATIOS[0] <= ratio <= CHECKED_PITCH_RATIOS[1]:
+        estimate["note"] += ("; pitch/diameter %.2f is outside the %.1f..%.1f over which the estimate was "
+                             "checked, so expect larger errors" % ((ratio,) + CHECKED_PITCH_RATIOS))
     if len(_CACHE) >= _CACHE_SIZE:
         _CACHE.clear()
     _CACHE[key] = (out["ct"], out["cp"], dict(estimate))
