@@ -267,6 +267,36 @@ def cases(base):
             add(("%s: %s" % (label, what), [a.replace("{o}", path) for a in argv], extra))
     add(("firmware --out: the folder of its input", ["firmware", "inside/params.json", "--out", "inside"],
          {"inside/params.json": "COPY:params.json"}))
+    # compare and hover --payload: their own options and outputs
+    for args in (["hover", "vehicle.json", "--payload", "nan"], ["hover", "vehicle.json", "--payload", "0..1e999kg"],
+                 ["hover", "vehicle.json", "--payload", "-1..2kg"], ["hover", "vehicle.json", "--payload", "2..0kg"],
+                 ["hover", "vehicle.json", "--payload", "abc"], ["hover", "vehicle.json", "--payload", ",,,"],
+                 ["hover", "vehicle.json", "--payload", "0..2kg", "--job-time", "nan"],
+                 ["hover", "vehicle.json", "--payload", "0..2kg", "--job-time", "-5min"],
+                 ["hover", "vehicle.json", "--payload", "0..2kg", "--plot", "x.txt"],
+                 ["hover", "vehicle.json", "--payload", "0..2kg", "--plot", "notes.txt"],
+                 ["hover", "vehicle.json", "--payload", "0..2kg", "--plot", "photo.png"],
+                 ["hover", "vehicle.json", "--payload", "0..2kg", "--plot", "vehicle.json"],
+                 ["hover", "vehicle.json", "--payload", "0..2kg", "--plot", "/dev/null"],
+                 ["hover", "vehicle.json", "--payload", "0..2kg", "--plot", "/sys/p.png"],
+                 ["hover", "vehicle.json", "--payload", "0..2parsec"], ["hover", "vehicle.json", "--payload", "0..2kg", "--plot", ""],
+                 ["hover", "vehicle.json", "--payload", "0..2kg..3kg"], ["hover", "vehicle.json", "--job-time", "5min"],
+                 ["compare", "vehicle.json"], ["compare", "vehicle.json", "--vary", "nonsense"],
+                 ["compare", "vehicle.json", "--vary", "battery.capacity=nan"],
+                 ["compare", "vehicle.json", "--vary", "battery.capacity=1e999mAh"],
+                 ["compare", "vehicle.json", "--vary", "battery.capacity="],
+                 ["compare", "vehicle.json", "--vary", "no.such.key=1,2"],
+                 ["compare", "vehicle.json", "--vary", "mass_kg=1,2", "--vary", "mass_kg=3"],
+                 ["compare", "vehicle.json", "--vary", "mass_kg=-1,2"],
+                 ["compare", "vehicle.json", "--vary", "mass_kg=1,2", "--plot", "fifo"],
+                 ["compare", "vehicle.json", "--vary", "battery.cells=2.5"],
+                 ["compare", "vehicle.json", "--vary", "mass_kg=1,2", "--plot", "notes.txt"],
+                 ["compare", "vehicle.json", "--vary", "mass_kg=1,2", "--plot", "vehicle.json"],
+                 ["compare", "vehicle.json", "--vary", "mass_kg=1,2", "--plot", "c.svg"],
+                 ["compare", "vehicle.json", "--vary", "mass_kg=1,2", "--plot", "/proc/c.png"],
+                 ["compare", "/dev/zero", "--vary", "mass_kg=1,2"], ["compare", "missing.json", "--vary", "mass_kg=1,2"]):
+        add(("%s: %s" % (args[0] if args[0] == "compare" else "hover --payload",
+                         " ".join(a if len(a) < 30 else a[:12] + "..." for a in args[2:])), args, {}))
     # options
     for args in (["air", "--altitude", "nan"], ["air", "--altitude", "1e999m"], ["air", "--altitude", "high"],
                  ["air", "--altitude", "99km"], ["air", "--temperature", "500C"], ["air", "--humidity", "140%"],

@@ -42,6 +42,8 @@ READERS = [
     (["replay", "{f}", "--params", "params.json"], "flight.csv"),
     (["replay", "flight.csv", "--params", "{f}", "--json"], "params.json"),
     (["replay", "flight.csv", "--params", "params.json", "--vehicle", "{f}"], "vehicle.json"),
+    (["hover", "{f}", "--payload", "0..1kg", "--json"], "vehicle.json"),
+    (["compare", "{f}", "--vary", "mass_kg=1.9,2.1"], "vehicle.json"),
 ]
 NUMBER = re.compile(rb"(?<![\w.])-?\d+(?:\.\d+)?(?:[eE][-+]?\d+)?")
 NON_FINITE = [b"NaN", b"Infinity", b"-Infinity", b"1e999", b"-1e999", b"nan", b"inf", b"-inf"]
@@ -162,6 +164,8 @@ WRITERS = [
     ["export", "params.json", "--json", "--out", "{o}"],
     ["replay", "flight.csv", "--params", "params.json", "--plot", "{o}"],
     ["firmware", "params.json", "--out", "{o}"],
+    ["hover", "vehicle.json", "--payload", "0..1kg", "--plot", "{o}"],
+    ["compare", "vehicle.json", "--vary", "mass_kg=1.9,2.1", "--plot", "{o}"],
 ]
 
 

@@ -183,7 +183,7 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
         raise InputError("--payload: works on the vehicle file's own model; leave out --params")
     if plot_file is not None:
         from estimator.outputs import check_output
-        check_output(plot_file, "png", inputs=(vehicle_file,), option="--plot")
+        check_output(plot_file, "png", inputs=(vehicle_file, params_file), option="--plot")
     vehicle = load_vehicle(vehicle_file)
     params = None
     if params_file is not None:
