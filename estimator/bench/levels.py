@@ -18,7 +18,10 @@ LEVEL_STEP = 0.001
 LOG_VOLTAGE_STEP = 0.01
 # more levels than this (a ramp logged at every command) are merged by widening the command
 # step, up to MAX_LEVEL_STEP: the fits' cost follows the levels, not the rows [-]
-MAX_LEVELS = 400
+MAX_LEVELS = 200
+# a sweep with more distinct commands (at LEVEL_STEP) than this is a ramp; a stepped sweep
+# keeps its own steps whatever their number [-]
+RAMP_COMMANDS = 300
 MAX_LEVEL_STEP = 0.02
 # rows this many robust sigmas from their level's mean are spikes [-]
 SPIKE_SIGMAS = 6.0
@@ -38,14 +41,16 @@ def robust_scale(x):
 
 
 def _level_keys(u, v):
-    """Dense level numbers (in command order) of every row and their count. The command step
+    """Dense level numbers (in command order) of every row, their count and whether the
+    command step was widened. The command step
     is widened (never the supply band, which would merge supplies) when a ramp would give
     more than MAX_LEVELS levels, up to MAX_LEVEL_STEP; the widening is chosen on a
     subsample, so the rows are binned once."""
     step = max(1, u.size // SCALE_ROWS)
     vi = np.rint(np.log(v[::step]) / LOG_VOLTAGE_STEP)
     width = LEVEL_STEP
-    for _ in range(6):
+    ramp = np.unique(np.rint(u[::step] / width)).size > RAMP_COMMANDS  # else a stepped sweep
+    for _ in range(6 if ramp else 0):
         n_levels = np.unique(np.rint(u[::step] / width) * 1e6 + vi).size
         if n_levels <= MAX_LEVELS or width >= MAX_LEVEL_STEP:
             break
@@ -59,7 +64,7 @@ def _level_keys(u, v):
     ci += vi
     present = np.bincount(ci)
     index = np.cumsum(present > 0) - 1
-    return index[ci], int(index[-1]) + 1
+    return index[ci], int(index[-1]) + 1, width > LEVEL_STEP
 
 
 def _median_recheck(key, rows, x, limit, ref):
@@ -108,7 +113,7 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     v = np.asarray(voltage_V, dtype=float)
     t = np.asarray(thrust_N, dtype=float)
     p = np.asarray(power_W, dtype=float)
-    key, n_keys = _level_keys(u, v)
+    key, n_keys, widened = _level_keys(u, v)
     count = np.bincount(key, minlength=n_keys).astype(float)
     safe = np.maximum(count, 1.0)
     sums = [np.bincount(key, weights=c, minlength=n_keys) for c in (u, v, t, p)]
@@ -117,11 +122,13 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     t_top = float(np.max(np.abs(t_m))) if t_m.size else 0.0
     ref_p = np.maximum(np.abs(p_m), 1e-9)
     # each level's mean and its trend in the command (levels of a ramp span a little command)
-    du = u - u_m[key]
-    suu = np.bincount(key, weights=du * du, minlength=n_keys)
-    suu[suu <= 0.0] = np.inf
-    t_c = t_m[key] + (np.bincount(key, weights=du * t, minlength=n_keys) / suu)[key] * du
-    p_c = p_m[key] + (np.bincount(key, weights=du * p, minlength=n_keys) / suu)[key] * du
+    t_c, p_c = t_m[key], p_m[key]
+    if widened:
+        du = u - u_m[key]
+        suu = np.bincount(key, weights=du * du, minlength=n_keys)
+        suu[suu <= 0.0] = np.inf
+        t_c += (np.bincount(key, weights=du * t, minlength=n_keys) / suu)[key] * du
+        p_c += (np.bincount(key, weights=du * p, minlength=n_keys) / suu)[key] * du
     # robust scales of the deviations, on a systematic subsample
     step = max(1, u.size // SCALE_ROWS)
     ks = key[::step]

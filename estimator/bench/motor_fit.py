@@ -124,7 +124,7 @@ def fit_motor(lv, top_end=False, top=1.0, start=None):
             return np.concatenate([(tm - t) / s_t, (im - i) / s_i])
 
         res = least_squares(residuals, x0, bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE,
-                            x_scale="jac", max_nfev=400, method="trf")
+                            x_scale="jac", max_nfev=400, method="trf", ftol=1e-7, xtol=1e-7)
         x0 = np.clip(res.x, lo + 1e-12, hi - 1e-12)
         tm, im, _, _, _ = rotor_arrays(_unpack(res.x), u, v)
         floor_t, floor_i = 1e-4 * float(np.max(np.abs(t))), 1e-4 * float(np.max(np.abs(i)))

@@ -121,8 +121,8 @@ def _run(out_dir, work, seed, emit):
              "fitted %d rows (%d dropped): full-command thrust %.2f N at %.2f V, quadratic share %.3f,"
              % (params["fit_quality"]["rows_used"], params["fit_quality"]["rows_rejected"],
                 c["thrust_max_N"], c["reference_voltage_V"], c["quadratic_share"]),
-             "spin-up command %.3f, voltage exponent %.2f, static factor k %.3f"
-             % (c["command_min"], c["voltage_exponent"], k["value"]),
+             "curve intercept %.3f (rotor starts at %.3f), voltage exponent %.2f, static factor k %.3f"
+             % (c["command_min"], params["motor_model"]["command_start"], c["voltage_exponent"], k["value"]),
              "$ liftcal hover %s --params %s" % (show("vehicle.json"), show("params.json")),
              format_sheet(fitted),
              "$ liftcal export %s --map %s   (example map, invented setting names)"
