@@ -49,7 +49,7 @@ def _count(n, word):
               help="Vehicle file (mass, rotors, pack, site); default: the parameter set's vehicle block.")
 @click.option("--lag-ms", "lag_ms", type=Number((0.0, 10000.0, "0..10 s of lag")), default=None, metavar="MS",
               help="Time constant of the rotor and current-sensor response the expected power is lagged by "
-                   "(default 60 ms).")
+                   "(default: 0.25 s per metre of propeller diameter + 20 ms).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
     """Write the MicroPython power-watch bundle for a board.
@@ -91,7 +91,8 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
 @click.option("--plot", "plot_file", default=None, metavar="PNG",
               help="Draw measured against expected power with alarms shaded.")
 @click.option("--lag-ms", "lag_ms", type=Number((0.0, 10000.0, "0..10 s of lag")), default=None, metavar="MS",
-              help="Time constant of the rotor and current-sensor response (default 60 ms).")
+              help="Time constant of the rotor and current-sensor response (default: 0.25 s per metre of "
+                   "propeller diameter + 20 ms).")
 @click.option("--drop-bad-time", is_flag=True,
               help="Drop rows whose time goes back or repeats (counted in dropped_rows) instead of refusing the log.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")

@@ -27,7 +27,8 @@ Models (design notes sec. 3, Watch). Every statistic lives in flight time, not i
   Soc. C 36 (1987): the in-control mean and noise come from the flight itself); h from
   Siegmund's approximation for the target false alarms per flight hour (estimator/watch/
   config.py). While neither sum is above h/2 the noise keeps being learned (EMA of |z|, clipped
-  at 5 sigma, floor kept) and a bounded slow drift d follows the baseline as the pack drains;
+  at 5 sigma, floor kept, at most twice the learning window's) and a bounded slow drift d
+  follows the baseline as the pack drains;
   both freeze while a fault is suspected. One block adds at most k + h/2 + 1: an alarm takes two;
 - implied mass: thrust from measured power (momentum theory with the calibrated static factor,
   tabulated; the axial-flight part of the power taken out) over windows of mass_window_ms of
@@ -336,6 +337,8 @@ class Watch:
                     s = floor
                 if s > 1000:
                     s = 1000
+                l_dev = s << 6                            # kept: in flight the noise stays below 2x this
+                sb[4] = l_dev
                 scale = 1000 + m
                 sb[0] = 0
                 sb[5] = scale
@@ -376,6 +379,8 @@ class Watch:
                 if z > 5 * s:
                     z = 5 * s
                 sig += (z * 80 - sig) >> c[132]           # 5000 * 80 = 4e5
+                if sig > l_dev + l_dev:
+                    sig = l_dev + l_dev                   # a slow ramp must not hide in the noise
                 sb[6] = sig
                 s = sig >> 6
                 if s < floor:

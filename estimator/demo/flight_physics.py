@@ -13,7 +13,8 @@ run at once. Published models (sources from memory unless a number is given):
   changes thrust by the heave damping rho A v_h (v - w) and shaft power by T (v - w) / 2
   (momentum theory in axial flight: P = T (v_h + V_c / 2) for small V_c; Leishman,
   Principles of Helicopter Aerodynamics, ch. 2; Padfield, Helicopter Flight Dynamics, ch. 4).
-- ESC: duty = (u - dead band) / (1 - dead band); bus current = duty x motor current / efficiency.
+- ESC: duty = (u - dead band) / (1 - dead band); bus current = duty x motor current / efficiency
+  (the simulator limits the motor current to the motor's rating, as ESCs do).
 - pack: open-circuit voltage per cell against state of charge (a typical LiPo curve, common
   practice), series resistance and one RC polarisation branch (Thevenin model, e.g. Chen &
   Rincon-Mora, IEEE Trans. Energy Conv. 21 (2006)), coulomb counting.

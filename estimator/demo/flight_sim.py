@@ -113,6 +113,7 @@ def simulate(name, n, seed, duration_s=600.0, jitter=0.0, sensor_lag_s=0.0, faul
     i_sens = zeros.copy()
     v_sens = pack.bus_voltage(soc, 0.0, 0.0)
     k_rot = 1.0 - math.exp(-PHYSICS_DT / rotor.tau)
+    i_limit = float(v["motor"].get("max_current_A", 1e9))
     k_sens = 1.0 - math.exp(-PHYSICS_DT / sensor_lag_s) if sensor_lag_s > 0 else 1.0
     k_vsens = 1.0 - math.exp(-PHYSICS_DT / min(sensor_lag_s, 0.02)) if sensor_lag_s > 0 else 1.0
     k_baro = math.exp(-CONTROL_DT / 1.0)
@@ -150,7 +151,9 @@ def simulate(name, n, seed, duration_s=600.0, jitter=0.0, sensor_lag_s=0.0, faul
         v_h = np.sqrt(thrust_s / (2.0 * rho * area))
         thrust = np.maximum(thrust_s - rho * area * v_h * inflow, 0.0)
         share = np.where(t >= fault_at, np.where(ramp > 0, np.clip((t - fault_at) / np.maximum(ramp, 1e-9), 0, 1), 1.0), 0.0)
-        prop_a = count * duty * rotor.motor_current(duty, bus, omega) / rotor.eff * (1.0 + fault_size * share)
+        # the ESC limits the motor current to the motor's rating (spin-up and punches)
+        i_m = np.minimum(rotor.motor_current(duty, bus, omega), i_limit)
+        prop_a = count * duty * i_m / rotor.eff * (1.0 + fault_size * share)
         amp = prop_a + s["avionics_A"]
         soc = soc - amp * PHYSICS_DT / pack.capacity_As
         v1 = v1 + (amp * pack.r1 - v1) * PHYSICS_DT / pack.tau1

@@ -34,7 +34,8 @@ DEFAULTS = {
                                     # averages several readings; the model-form error stays)
     "noise_floor_min": 0.004,       # and never below this [-] (integer and sensor resolution)
     "cusum_k_sigma": 1.5,           # CUSUM reference value [noise sigma]
-    "lag_ms": 60.0,                 # expected-power lag: rotor spin-up + current-sensor response [ms]
+    "lag_ms": None,                 # expected-power lag: rotor spin-up + current-sensor response [ms]
+                                    # (default: ROTOR_LAG_S_PER_M x diameter + SENSOR_LAG_MS)
     "block_s": 1.0,                 # energy block length [s]
     "takeoff_s": 10.0,              # flight time after spin-up not judged (take-off) [s]
     "learn_s": 20.0,                # steady flight time the learning window needs [s]
@@ -65,6 +66,12 @@ TABLES = tuple((name, n) for name, n, _, _ in layout.TABLES)
 TABLE_AT = layout.TABLE_AT
 SCALAR_AT = layout.SCALAR_AT
 CONFIG_LENGTH = layout.CONFIG_LENGTH
+
+# default lag: a rotor's speed time constant grows with its size, from a few tens of ms on
+# 3-5 in propellers to about 0.15 s on 20+ in (common practice, from memory), plus a typical
+# current-sensor filter; liftcal firmware/replay --lag-ms sets the real chain
+ROTOR_LAG_S_PER_M = 0.25    # [s/m] of propeller diameter
+SENSOR_LAG_MS = 20.0        # [ms]
 
 SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
 
@@ -233,8 +240,12 @@ def make_config(params, vehicle=None, options=None):
         "h = %.3f sigma: two-sided in-control ARL %.3g blocks of %d ms = %g false alarms per flight hour "
         "(Siegmund 1985)" % (h_sigma, arl_target, block_ms, o["false_alarms_per_hour"]))
     put("block_ms", block_ms, "energy block %d ms of flight time" % block_ms)
-    put("lag_ms", int(round(o["lag_ms"])), "expected power through a first-order lag of %.0f ms "
-        "(rotor spin-up + current sensor)" % o["lag_ms"])
+    lag_ms = o["lag_ms"]
+    if lag_ms is None:
+        lag_ms = 1000.0 * ROTOR_LAG_S_PER_M * params["rotor"]["diameter_m"] + SENSOR_LAG_MS
+    put("lag_ms", int(round(lag_ms)), "expected power through a first-order lag of %.0f ms "
+        "(rotor spin-up + current sensor%s)" % (lag_ms, "" if o["lag_ms"] is not None else
+                                                ": default from the propeller diameter"))
 
     v_full = float(v.get("full_voltage_V") or curve["reference_voltage_V"] * 1.15)
     v_empty = float(v.get("empty_voltage_V") or curve["reference_voltage_V"] * 0.85)
