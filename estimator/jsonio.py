@@ -297,7 +297,11 @@ def save_figure_atomic(fig, path, dpi=110):
 
 
 def write_json_atomic(path, document, kind=None):
-    """Write a JSON document atomically with a stable, readable layout (as write_atomic)."""
+    """Write a JSON document atomically with a stable, readable layout (as write_atomic);
+    one liftcal would refuse to read back (jsonread.check_values) is refused instead."""
+    from estimator.jsonread import check_values
+
+    check_values(document, path)
     write_atomic(path, json.dumps(document, indent=2, sort_keys=False, allow_nan=False) + "\n", kind)
 
 

@@ -244,15 +244,19 @@ def _foreign(folder, kind):
         return others[0] if others else FOLDER_MANIFEST
     listed = manifest["files"]
     vouched = _own_subfolders(folder, tree)
+    foreign = []
     for rel, digest in sorted(tree.items()):
-        if rel == FOLDER_MANIFEST or any(rel.startswith(sub + "/") for sub in vouched):
-            continue
+        if rel == FOLDER_MANIFEST or rel.endswith("/" + FOLDER_MANIFEST) \
+                or any(rel.startswith(sub + "/") for sub in vouched):
+            continue  # manifests are liftcal's; a vouched subfolder's files too
         if rel in listed and digest is not None and listed[rel] == digest:
             continue
         if digest is not None and file_kind(os.path.join(folder, rel)) is not None:
             continue  # rewritten by a liftcal command since (fit --out, --plot, export --out)
-        return rel
-    return None
+        foreign.append(rel)
+    # name a file liftcal never listed before one it listed and that changed
+    unknown = [rel for rel in foreign if rel not in listed]
+    return (unknown or foreign or [None])[0]
 
 
 def _own_subfolders(folder, tree):
@@ -353,7 +357,11 @@ def write_text(path, text, kind):
 
 
 def write_json(path, document, kind):
-    """Write a JSON document atomically (indented, NaN refused) after check_output."""
+    """Write a JSON document atomically (indented) after check_output; a document liftcal
+    would refuse to read back (NaN, a number of absurd magnitude) is refused instead."""
+    from estimator.jsonread import check_values
+
+    check_values(document, path)
     write_text(path, json.dumps(document, indent=2, allow_nan=False) + "\n", kind)
 
 

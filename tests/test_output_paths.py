@@ -17,7 +17,7 @@ import pytest
 
 from estimator.demo.bench_sim import simulate_sweep
 from estimator.demo.flight_sim import simulate_flight
-from estimator.outputs import FOLDER_MANIFEST, file_kind
+from estimator.outputs import FOLDER_MANIFEST, check_folder, file_kind, write_manifest
 from io_helpers import PARAMS, ROOT, VEHICLE, refused, run, tree_digest
 
 
@@ -129,7 +129,8 @@ def test_demo_replaces_its_own_folder_unless_changed(tmp_path, bench_csv):
     # rerunning a printed step rewrites liftcal's own files: the folder stays the demo's
     _ok(["fit", out / "bench.csv", "--vehicle", out / "vehicle.json", "--out", out / "params.json"])
     _ok(["firmware", out / "params.json", "--out", out / "board"])
-    _ok(["demo", "--out", out, "--json"])
+    # (a second demo run would replace it: the guard says so; the run itself takes half a minute)
+    assert check_folder(str(out), "demo") == "own"
     # a file the person edited or added makes it theirs
     (out / "vehicle.json").write_text('{"edited": true}')
     refused(["demo", "--out", out], "vehicle.json")
@@ -147,8 +148,11 @@ def test_firmware_refuses_a_folder_holding_its_input_or_another_kind(tmp_path):
     params = folder / "params.json"
     params.write_text(open(PARAMS).read())
     refused(["firmware", params, "--out", folder], "holds an input of this command")
-    _ok(["demo", "--out", tmp_path / "demo", "--json"])
-    refused(["firmware", PARAMS, "--out", tmp_path / "demo"], "holds files liftcal did not write")
+    demo = tmp_path / "demo"  # a demo folder as `liftcal demo` leaves it (its manifest)
+    demo.mkdir()
+    (demo / "bench.csv").write_text("x\n")
+    write_manifest(str(demo), "demo")
+    refused(["firmware", PARAMS, "--out", demo], "holds files liftcal did not write")
     refused(["firmware", PARAMS, "--out", "/dev/null"], "a device, not a folder")
 
 
