@@ -79,15 +79,13 @@ def _median_recheck(key, rows, x, limit, ref):
     return np.abs(xs - med[k]) / ref[k] > limit
 
 
-def _screen(key, n_keys, count, x, centre, ref, limit, allowed):
-    """Rows far from their level: |x - centre| / ref > limit (centre: per row, the level's
-    mean and in-level trend), then in small levels (one spike moves the mean as far as its
-    neighbours) judged again against the level's median. Returns the bool mask."""
-    dev = x - centre
-    dev /= ref[key]
+def _screen(key, n_keys, count, x, dev, ref, limit, allowed):
+    """Rows far from their level: |dev| > limit * ref (dev: per row, x minus the level's
+    mean and in-level trend; ref: per level), then in small levels (one spike moves the mean
+    as far as its neighbours) judged again against the level's median. Returns the bool mask."""
+    bound = np.where(allowed, limit * ref, np.inf)
     np.abs(dev, out=dev)
-    flagged = dev > limit
-    flagged &= allowed[key]
+    flagged = dev > bound[key]
     hits = np.flatnonzero(flagged)
     if hits.size == 0:
         return flagged
@@ -121,34 +119,40 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     big = count >= 3
     t_top = float(np.max(np.abs(t_m))) if t_m.size else 0.0
     ref_p = np.maximum(np.abs(p_m), 1e-9)
-    # each level's mean and its trend in the command (levels of a ramp span a little command)
-    t_c, p_c = t_m[key], p_m[key]
+    # each row's deviation from its level's mean and trend in the command (levels of a ramp
+    # span a little command); one full-size temporary per column, reused by the screen
+    dt = t - t_m[key]
+    dp = p - p_m[key]
     if widened:
         du = u - u_m[key]
         suu = np.bincount(key, weights=du * du, minlength=n_keys)
         suu[suu <= 0.0] = np.inf
-        t_c += (np.bincount(key, weights=du * t, minlength=n_keys) / suu)[key] * du
-        p_c += (np.bincount(key, weights=du * p, minlength=n_keys) / suu)[key] * du
+        bt = np.bincount(key, weights=du * dt, minlength=n_keys) / suu
+        bp = np.bincount(key, weights=du * dp, minlength=n_keys) / suu
+        dt -= bt[key] * du
+        dp -= bp[key] * du
+        del du
     # robust scales of the deviations, on a systematic subsample
     step = max(1, u.size // SCALE_ROWS)
     ks = key[::step]
     sel = big[ks]
-    s_t = robust_scale((t[::step] - t_c[::step])[sel]) if np.any(sel) else 0.0
-    s_p = robust_scale(((p[::step] - p_c[::step]) / ref_p[ks])[sel]) if np.any(sel) else 0.0
+    s_t = robust_scale(dt[::step][sel]) if np.any(sel) else 0.0
+    s_p = robust_scale((dp[::step] / ref_p[ks])[sel]) if np.any(sel) else 0.0
     # noise grows with thrust and power: levels of SMALL_LEVEL rows or more carry their own
     # scale (rms about the level's trend), smaller ones the subsample's robust scale
     own = count >= SMALL_LEVEL
     scale_t = np.full(n_keys, max(s_t, 1e-6 * t_top))
     scale_p = ref_p * max(s_p, 1e-6)
     if np.any(own):
-        dt, dp = t - t_c, p - p_c
-        ms_t = np.bincount(key, weights=dt * dt, minlength=n_keys) / np.maximum(count, 1.0)
-        ms_p = np.bincount(key, weights=dp * dp, minlength=n_keys) / np.maximum(count, 1.0)
+        ms_t = np.bincount(key, weights=np.square(dt), minlength=n_keys) / safe
+        ms_p = np.bincount(key, weights=np.square(dp), minlength=n_keys) / safe
         scale_t[own] = np.maximum(np.sqrt(ms_t[own]), 1e-6 * t_top)
         scale_p[own] = np.maximum(np.sqrt(ms_p[own]), 1e-6 * ref_p[own])
-    thrust_spike = _screen(key, n_keys, count, t, t_c, scale_t, SPIKE_SIGMAS, big)
+    thrust_spike = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
+    del dt
     spinning = big & (np.abs(t_m) > 0.02 * t_top)
-    power_spike = _screen(key, n_keys, count, p, p_c, scale_p, SPIKE_SIGMAS, spinning)
+    power_spike = _screen(key, n_keys, count, p, dp, scale_p, SPIKE_SIGMAS, spinning)
+    del dp
     out = np.flatnonzero(thrust_spike | power_spike)
     if out.size:
         k = key[out]
