@@ -38,6 +38,7 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
     the drawn truth before its rows are made; keep=True adds the truth, params and truth values."""
     from estimator.bench.curve_fit import thrust_model_N
     from estimator.bench.sweep import fit_bench_file
+    from estimator.preflight.measured_rotor import hover_block
     from estimator.errors import InputError
     from estimator.vehicle import check_vehicle
 
@@ -53,7 +54,7 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
     out = {"seed": seed, "rows": int(table.shape[0]), "diameter_m": truth["diameter_m"],
            "cells": truth["cells"], "thrust_unit": truth["thrust_unit"], "command_unit": truth["command_unit"]}
     try:
-        params = fit_bench_file(path, vehicle=vehicle)
+        params = fit_bench_file(path, vehicle=vehicle, hover_block=hover_block)
     except InputError as exc:
         out["failed"] = str(exc)
         return out

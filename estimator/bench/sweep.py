@@ -3,8 +3,9 @@
 read (estimator.bench.reader) -> static-factor plausibility (k <= 1, unit slips) -> command
 levels (estimator.bench.levels) -> DC motor + propeller model (estimator.bench.motor_fit,
 liftcal's own predictions) -> the controller's quadratic (estimator.bench.curve_fit) ->
-power model and k(T) (estimator.bench.power_fit) -> optional hover values for a vehicle
-(estimator.preflight.measured_rotor) -> parameter set (estimator.params.build_params).
+power model and k(T) (estimator.bench.power_fit) -> optional hover values for a vehicle (a ``hover_block``
+function handed in by the caller, e.g. estimator.preflight.measured_rotor.hover_block: the
+bench flow never imports the pre-flight flow) -> parameter set (estimator.params.build_params).
 """
 
 import math
@@ -29,12 +30,13 @@ FULL_COMMAND_SWEPT = 0.98
 
 def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, altitude_m=None,
                    temperature_C=None, pressure_Pa=None, humidity_pct=None,
-                   voltage_exponent=None, keep_arrays=False):
+                   voltage_exponent=None, keep_arrays=False, hover_block=None):
     """Fit a bench CSV and return the parameter-set dict (not yet written; see params.write_params).
 
     path: bench CSV; diameter_m: propeller diameter [m] (else ``# diameter:`` or the
     vehicle's propeller); vehicle: validated vehicle dict (adds the vehicle and hover
-    blocks); density_kg_m3 [kg/m^3] / altitude_m [m] / temperature_C [C] / pressure_Pa [Pa]
+    blocks; needs hover_block(vehicle, draft parameter set) -> hover block dict, which the
+    command that chains the flows passes); density_kg_m3 [kg/m^3] / altitude_m [m] / temperature_C [C] / pressure_Pa [Pa]
     / humidity_pct [%]: bench air overriding the file; voltage_exponent: fix n [-].
     keep_arrays=True adds a private ``_arrays`` entry (rows and fits) for plots; it is
     removed by params.write_params. Raises InputError on bad or impossible data.
@@ -55,18 +57,20 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
         raise InputError("%s: the propeller diameter is needed for the static thrust factor; "
                          "add '# diameter: 10in' to the CSV, or pass --diameter or --vehicle" % path)
     return fit_bench(data, path, vehicle=vehicle, voltage_exponent=voltage_exponent,
-                     keep_arrays=keep_arrays)
+                     keep_arrays=keep_arrays, hover_block=hover_block)
 
 
-def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=False):
+def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=False, hover_block=None):
     """Fit the arrays returned by estimator.bench.read_bench; see fit_bench_file.
 
     Floating-point trouble on pathological data (overflow, a singular system) becomes an
     InputError: the sweep cannot be fitted, and nothing is written.
     """
+    if vehicle is not None and hover_block is None:
+        raise TypeError("fit_bench: a vehicle needs hover_block (the pre-flight flow's function)")
     try:
         with np.errstate(all="ignore"):
-            params = _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays)
+            params = _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block)
     except (np.linalg.LinAlgError, FloatingPointError, OverflowError, ZeroDivisionError,
             ValueError) as exc:
         raise InputError("%s: the sweep cannot be fitted (%s); check that command, voltage, "
@@ -145,7 +149,7 @@ def motor_exponents(theta, v_ref):
     return math.log(t_up / t_dn) / scale, math.log(r_up / r_dn) / scale
 
 
-def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
+def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block):
     from estimator.params import build_params
 
     rho = data["bench_air"]["density_kg_m3"]
@@ -210,7 +214,6 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays):
     }
     hover = None
     if vehicle is not None:
-        from estimator.preflight.measured_rotor import hover_block
         params_draft = build_params(data, fit, source, None, None)
         hover = hover_block(vehicle, params_draft)
         value, value_se = static_factor_at(sf, hover["thrust_per_rotor_N"])

@@ -99,6 +99,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     the bench air and '# diameter:' the propeller.
     """
     from estimator.bench.sweep import fit_bench_file, summary
+    from estimator.preflight.measured_rotor import hover_block
     from estimator.params import check_params, write_params
 
     from estimator.outputs import check_outputs
@@ -109,7 +110,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     if vehicle_file is not None:
         from estimator.vehicle import load_vehicle
         vehicle = load_vehicle(vehicle_file)
-    params = fit_bench_file(bench_file, diameter_m=diameter, vehicle=vehicle, density_kg_m3=density,
+    params = fit_bench_file(bench_file, diameter_m=diameter, vehicle=vehicle, hover_block=hover_block, density_kg_m3=density,
                             altitude_m=altitude, temperature_C=temperature, pressure_Pa=pressure,
                             humidity_pct=humidity, voltage_exponent=voltage_exponent,
                             keep_arrays=plot_file is not None)
