@@ -260,3 +260,14 @@ def test_three_supplies_on_a_short_sweep_have_their_voltage_spread(tmp_path):
     assert c["voltage_exponent_source"] == "fitted"
     # the sweep was made with T ~ V^1.8 (written above)
     assert c["voltage_exponent"] == pytest.approx(1.8, abs=0.1)
+
+
+def test_fit_plot_names_the_file_it_wrote(tmp_path):
+    # new-user trial finding 8: `fit --plot` wrote a picture without saying where
+    rng = np.random.default_rng(3)
+    csv = _write(tmp_path / "s.csv", "command[-],voltage[V],current[A],thrust[N]", _square_sweep(rng, bad_row=False))
+    png = tmp_path / "fit.png"
+    res = subprocess.run([sys.executable, "-m", "estimator", "fit", csv, "--out", str(tmp_path / "p.json"),
+                          "--plot", str(png)], capture_output=True, text=True)
+    assert res.returncode == 0, res.stderr
+    assert png.exists() and ("plot written to %s" % png) in res.stdout

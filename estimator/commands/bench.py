@@ -137,6 +137,8 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
         click.echo(dumps(out))
     else:
         click.echo(_human_fit(params, out_file))
+        if plot_file:
+            click.echo("plot written to %s" % plot_file)
 
 
 @click.command()
