@@ -76,41 +76,21 @@ class Watch:
         # drift_q8, slow thrust factor q4, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, and the
         # previous mass window's mean, variance and count)
         # (the inflow slope starts at 0.5, momentum theory's ideal-power share of a small set)
-        self.sb = [1, 0, 0, 0, 0, 1000, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 400, 200, 500, 0, 0, 0]
-        self.residual_permille = 0
         self.thrust_mN = 0
         self.hover_permille = 0
-        self.mass_g = 0
-        self.scale = 1000
-        self.sigma_permille = 0
+        self.sb = [0] * 24
+        self._reset()
 
     def _reset(self):
         """A new flight: forget the learned scale, noise, CUSUM sums, drift and mass."""
         sb = self.sb
+        for i in range(24):                               # a counted loop: no allocation
+            sb[i] = 0
         sb[0] = 1
-        sb[1] = 0
-        sb[2] = 0
-        sb[3] = 0
-        sb[4] = 0
         sb[5] = 1000
-        sb[6] = 0
-        sb[7] = 0
-        sb[8] = 0
-        sb[9] = 0
-        sb[10] = 0
-        sb[11] = 0
-        sb[12] = 0
-        sb[13] = 0
-        sb[14] = 0
-        sb[15] = 0
-        sb[16] = 0
-        sb[17] = 0
         sb[18] = 400
         sb[19] = 200
         sb[20] = 500
-        sb[21] = 0
-        sb[22] = 0
-        sb[23] = 0
         self.mass_g = 0
         self.scale = 1000
         self.sigma_permille = 0
