@@ -132,3 +132,34 @@ def test_lag_option_refuses_non_finite_and_negative(tmp_path, capsys, command, b
     out, err = capsys.readouterr()
     assert exc.value.code == 2 and out == "" and "--lag-ms" in err
     assert err.startswith("error: ") and err.count("\n") == 1
+
+
+def _vehicle_with(tmp_path, name, **changes):
+    doc = json.loads(json.dumps(EXAMPLE_VEHICLE))
+    for dotted, value in changes.items():
+        node = doc
+        keys = dotted.split("__")
+        for key in keys[:-1]:
+            node = node[key]
+        node[keys[-1]] = value
+    path = tmp_path / name
+    path.write_text(json.dumps(doc))
+    return str(path)
+
+
+def test_a_vehicle_that_barely_holds_its_weight_is_not_called_flyable(tmp_path):
+    # found by a new-user trial: thrust-to-weight 1.05 at command 0.95 was printed "YES"
+    heavy = _vehicle_with(tmp_path, "heavy.json", mass_kg=4.6)
+    out = one_json(invoke(tmp_path, "hover", heavy, "--json"))
+    assert out["hover_command"] is not None and out["thrust_to_weight"] < 1.3, out["thrust_to_weight"]
+    assert out["flyable"] is False and out["not_flyable_because"]
+    text = invoke(tmp_path, "hover", heavy).stdout
+    assert "ONLY JUST" in text and "YES" not in text
+    fine = one_json(invoke(tmp_path, "hover", _vehicle_with(tmp_path, "fine.json"), "--json"))
+    assert fine["flyable"] is True and fine["not_flyable_because"] == []
+
+
+def test_a_vehicle_that_cannot_hover_gets_its_cause_not_control_margin_advice(tmp_path):
+    out = one_json(invoke(tmp_path, "hover", _vehicle_with(tmp_path, "brick.json", mass_kg=6.5), "--json"))
+    assert out["hover_command"] is None and out["flyable"] is False
+    assert not any("little left for control" in w for w in out["warnings"]), out["warnings"]

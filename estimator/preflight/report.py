@@ -23,6 +23,10 @@ from estimator.vehicle import assumed_warnings, given_text, vehicle_source
 # Warning thresholds (common practice for multirotors, not a standard):
 HOVER_COMMAND_LIMIT = 0.6  # hover above 0.6 of full command leaves little for control
 THRUST_TO_WEIGHT_MIN = 2.0  # T/W of 2 puts hover near 0.67 command (thrust ~ command^1.8)
+# below these a vehicle that holds its weight is called not flyable on the sheet (our own floors,
+# far below the margins above: no control authority left to climb, steer or reject a gust)
+FLYABLE_THRUST_TO_WEIGHT = 1.3
+FLYABLE_HOVER_COMMAND = 0.8
 THIN_AIR_DENSITY_RATIO = 0.9  # below 90 % of 1.225 kg/m^3 thrust margins shrink noticeably
 
 MODEL = "liftcal.dc-motor-momentum/1"
@@ -34,6 +38,15 @@ CAUTIONS = cautions("sheet")
 
 
 def hover_report(vehicle, params=None):
+    """The pre-flight report dict, with ``flyable`` and ``not_flyable_because`` (see _report)."""
+    report = _report(vehicle, params)
+    reasons = not_flyable_reasons(report) if report.get("can_hover") else ["it cannot hover"]
+    report["flyable"] = not reasons
+    report["not_flyable_because"] = reasons
+    return report
+
+
+def _report(vehicle, params=None):
     """The pre-flight report dict for a checked vehicle (see estimator.vehicle.check_vehicle).
 
     With ``params`` (a fitted parameter set), the thrust and power come from the bench fit:
@@ -235,6 +248,25 @@ def cannot_hover_cause(report):
     return text
 
 
+def not_flyable_reasons(report):
+    """Why a vehicle that holds its weight on a nominal pack is still not flyable ([] when it is).
+
+    Floors (our own, well below the common-practice margins the warnings use): thrust-to-weight
+    FLYABLE_THRUST_TO_WEIGHT, hover command FLYABLE_HOVER_COMMAND, and hover to the end of the pack.
+    """
+    out = []
+    tw = report.get("thrust_to_weight")
+    if tw is not None and tw < FLYABLE_THRUST_TO_WEIGHT:
+        out.append("thrust-to-weight %.2f leaves almost nothing to climb or steer with (below %.1f)"
+                   % (tw, FLYABLE_THRUST_TO_WEIGHT))
+    command = report.get("hover_command")
+    if command is not None and command > FLYABLE_HOVER_COMMAND:
+        out.append("hover command %.2f is above %.1f of full command" % (command, FLYABLE_HOVER_COMMAND))
+    if command is not None and report.get("hover_command_empty") is None:
+        out.append("it cannot hover near the end of the pack")
+    return out
+
+
 def margin_warnings(report):
     """Warnings for a report dict with the keys of hover_report (also usable on fitted reports)."""
     out = []
@@ -248,18 +280,19 @@ def margin_warnings(report):
         if value is not None and value > HOVER_COMMAND_LIMIT:
             worst = (value, label)
             break
-    if worst:
+    if worst and report.get("hover_command") is not None:  # a vehicle that cannot hover got its cause
         out.append("hover command %.2f at %s pack is above %.1f of full command: little left for "
-                   "control and gusts (thrust-to-weight %.2f; hovering near 0.5 needs about 3)"
+                   "control and gusts (thrust-to-weight %.2f)"
                    % (worst[0], worst[1], HOVER_COMMAND_LIMIT, tw or 0.0))
     if report.get("hover_command") is not None and report.get("hover_command_empty") is None:
         out.append("near the end of the pack it cannot hover (command would exceed full at %s V open "
                    "circuit): land well before the pack is empty"
                    % _num((report.get("pack_voltage_V") or {}).get("empty"), "%.1f"))
     if tw is not None and 1.0 <= tw < THRUST_TO_WEIGHT_MIN:
-        out.append("thrust-to-weight %.2f is below %.0f (hover command %s on a nominal pack): sluggish "
-                   "climbs and little control margin (common practice: 2 or more, which puts hover "
-                   "near 0.67)" % (tw, THRUST_TO_WEIGHT_MIN, _num(report.get("hover_command"), "%.2f")))
+        out.append("thrust-to-weight %.2f is below %.0f (this set hovers at command %s on a nominal "
+                   "pack): sluggish climbs and little control margin (common practice: 2 or more; where "
+                   "thrust grows about as command^1.8 that puts hover near 0.67, and hovering near 0.5 "
+                   "needs about 3)" % (tw, THRUST_TO_WEIGHT_MIN, _num(report.get("hover_command"), "%.2f")))
     limit = report.get("motor_current_limit_A")
     if limit is not None:
         full_i = report.get("full_motor_current_A")
@@ -311,11 +344,17 @@ def format_sheet(report):
 
     lines.append("1. Will it hover?")
     if report.get("can_hover"):
-        lines.append("   YES - command %s on a nominal pack" % _num(report.get("hover_command"), "%.2f"))
+        why_not = not_flyable_reasons(report)
+        if why_not:
+            lines.append("   ONLY JUST - it holds its weight at command %s on a nominal pack, but it is not "
+                         "flyable: %s" % (_num(report.get("hover_command"), "%.2f"), "; ".join(why_not)))
+        else:
+            lines.append("   YES - command %s on a nominal pack" % _num(report.get("hover_command"), "%.2f"))
         lines.append("         %s on a full pack, %s near empty" % (
             _num(report.get("hover_command_full"), "%.2f"),
             _num(report.get("hover_command_empty"), "%.2f", none="cannot hover")))
-        lines.append("         thrust fraction %s of full-command thrust at the hover bus voltage" %
+        lines.append("         thrust fraction %s of full-command thrust at the hover bus voltage "
+                     "(not 1/(T/W): T/W is taken at full command, where the pack sags further)" %
                      _num(report.get("hover_thrust_fraction"), "%.2f"))
         interval = report.get("hover_command_interval_95")
         if interval:
