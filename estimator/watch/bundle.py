@@ -7,6 +7,7 @@ DIR/liftwatch_load.py     loader: checks CONFIG with those bounds, says what is 
 DIR/board_loop.py         example board loop: sensor adapter, timer calling update, flags
 DIR/README.md             for the builder, with safety cautions
 DIR/package.json          for mip (installs the .mpy files)
+DIR/manifest.py           for freezing the watch into a firmware build
 DIR/mpy/*.mpy             the five modules compiled by mpy-cross (bytecode, any port)
 
 The bundle is built in a temporary folder beside DIR and renamed into place: never a
@@ -119,7 +120,7 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
             "liftwatch_config.py": config_text(config, notes, source),
             "package.json": package_text(),
         }
-        for name in ("board_loop.py", "liftwatch_load.py", "README.md"):
+        for name in ("board_loop.py", "liftwatch_load.py", "manifest.py", "README.md"):
             with open(os.path.join(PORT_DIR, name), "r", encoding="utf-8") as fh:
                 texts[name] = fh.read()
         try:
