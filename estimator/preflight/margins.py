@@ -4,7 +4,7 @@ A margin is kept (True), broken (False), or cannot be judged (None: the file giv
 The thresholds are the report's warning thresholds (estimator.preflight.report, common practice).
 """
 
-from estimator.preflight.report import HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN
+from estimator.preflight.warnings import HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN
 
 # margin -> what it means, for tables and the JSON
 MARGINS = {

@@ -183,7 +183,7 @@ def hover_interval(params, state):
 
 
 def _site(vehicle):
-    from estimator.preflight.report import vehicle_site_air
+    from estimator.preflight.warnings import vehicle_site_air
     return vehicle_site_air(vehicle)
 
 
@@ -247,7 +247,10 @@ def hover_from_params(vehicle, params):
     thrust_to_weight [-], hover_current_A [A], hover_power_W [W], flight_time_min [min],
     warnings, and the keys the pre-flight sheet shows.
     """
-    from estimator.preflight.report import CAUTIONS, margin_warnings
+    from estimator.cautions import cautions
+    from estimator.preflight.warnings import margin_warnings
+
+    CAUTIONS = cautions("sheet")
     from estimator.vehicle import assumed_warnings
 
     air = _site(vehicle)

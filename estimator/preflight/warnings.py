@@ -1,0 +1,152 @@
+"""What a pre-flight report warns about: margins, the cause when it cannot hover, flyability.
+
+Shared by the datasheet report (report.py) and the fitted route (measured_rotor.py), so
+neither imports the other. Thresholds are common practice for multirotors, not a standard.
+"""
+
+import math
+
+from estimator.core.atmosphere import site_air
+from estimator.errors import InputError
+from estimator.vehicle import vehicle_source
+
+# Warning thresholds (common practice for multirotors, not a standard):
+HOVER_COMMAND_LIMIT = 0.6  # hover above 0.6 of full command leaves little for control
+THRUST_TO_WEIGHT_MIN = 2.0  # T/W of 2 puts hover near 0.67 command (thrust ~ command^1.8)
+# below these a vehicle that holds its weight is called not flyable on the sheet (our own floors,
+# far below the margins above: no control authority left to climb, steer or reject a gust)
+FLYABLE_THRUST_TO_WEIGHT = 1.3
+FLYABLE_HOVER_COMMAND = 0.8
+THIN_AIR_DENSITY_RATIO = 0.9  # below 90 % of 1.225 kg/m^3 thrust margins shrink noticeably
+
+
+_SITE_KEYS = {"altitude": "altitude_m", "temperature": "temperature_C", "pressure": "pressure_Pa",
+              "humidity": "humidity_pct"}
+
+
+def vehicle_site_air(vehicle):
+    """Site air of a vehicle (core.atmosphere.site_air); InputError naming file and JSON key."""
+    from estimator.core.atmosphere import AirInputError
+
+    site = vehicle.get("site", {})
+    try:
+        return site_air(site.get("altitude_m", 0.0), site.get("temperature_C"),
+                        site.get("pressure_Pa"), site.get("humidity_pct", 0.0))
+    except AirInputError as exc:
+        raise InputError("%s: $.site.%s: %s" % (vehicle_source(vehicle), _SITE_KEYS[exc.quantity], exc)) from None
+
+
+# a sag of more than this share of the open-circuit voltage at full command is named as a cause
+SAG_CAUSE_SHARE = 0.2
+ENDED_BY_WORDS = {"cutoff": "the loaded-voltage cutoff", "reserve": "the landing reserve",
+                  "thrust": "the loss of hover (the drained pack can no longer hold it)"}
+
+
+def cannot_hover_cause(report):
+    """One warning that names the real limiting factor of a vehicle that cannot hover."""
+    weight = report.get("weight_N") or 0.0
+    full = report.get("full_thrust_N")
+    tw = report.get("thrust_to_weight")
+    if full is not None and full < weight:
+        text = ("cannot hover: full-command thrust %.1f N is below the weight %.1f N (thrust-to-weight "
+                "%.2f)" % (full, weight, tw or 0.0))
+        v_oc = (report.get("pack_voltage_V") or {}).get("nominal")
+        bus, pack_i, rating = (report.get("full_bus_V"), report.get("full_pack_current_A"),
+                               report.get("pack_current_limit_A"))
+        if v_oc and bus is not None and 1.0 - bus / v_oc > SAG_CAUSE_SHARE:
+            r_pack = report.get("pack_resistance_ohm")
+            text += ("; the pack cannot deliver the power: it sags from %.1f V to %.1f V at full "
+                     "command%s, which costs much of the thrust: a pack with less resistance, or more "
+                     "cells" % (v_oc, bus, "" if r_pack is None else " (resistance %.3g ohm)" % r_pack))
+        else:
+            text += ": the propulsion is too weak for this mass, not the pack"
+            if pack_i is not None and rating:
+                text += " (full command draws %.0f A, %.0f %% of the pack's %.0f A rating)" % (
+                    pack_i, 100.0 * pack_i / rating, rating)
+            text += "; lighten it, or fit a larger or higher-pitch propeller, a higher Kv or more cells"
+    elif report.get("hover_limited_by") == "pack":
+        text = ("cannot hover: the pack cannot deliver the hover power through its resistance (%s ohm) "
+                "at any voltage: a pack with less resistance or more cells"
+                % _num(report.get("pack_resistance_ohm"), "%.3g"))
+    else:
+        text = ("cannot hover at nominal pack: the command needed exceeds full command (thrust-to-weight "
+                "%.2f)" % (tw or 0.0))
+    if report.get("hover_command_full") is not None:
+        text += ("; a freshly charged pack would just hold it (command %.2f at full pack): not flyable"
+                 % report["hover_command_full"])
+    return text
+
+
+def not_flyable_reasons(report):
+    """Why a vehicle that holds its weight on a nominal pack is still not flyable ([] when it is).
+
+    Floors (our own, well below the common-practice margins the warnings use): thrust-to-weight
+    FLYABLE_THRUST_TO_WEIGHT, hover command FLYABLE_HOVER_COMMAND, and hover to the end of the pack.
+    """
+    out = []
+    tw = report.get("thrust_to_weight")
+    if tw is not None and tw < FLYABLE_THRUST_TO_WEIGHT:
+        out.append("thrust-to-weight %.2f leaves almost nothing to climb or steer with (below %.1f)"
+                   % (tw, FLYABLE_THRUST_TO_WEIGHT))
+    command = report.get("hover_command")
+    if command is not None and command > FLYABLE_HOVER_COMMAND:
+        out.append("hover command %.2f is above %.1f of full command" % (command, FLYABLE_HOVER_COMMAND))
+    if command is not None and report.get("hover_command_empty") is None:
+        out.append("it cannot hover near the end of the pack")
+    return out
+
+
+def margin_warnings(report):
+    """Warnings for a report dict with the keys of hover_report (also usable on fitted reports)."""
+    out = []
+    tw = report.get("thrust_to_weight")
+    if report.get("hover_command") is None:
+        out.append(cannot_hover_cause(report))
+    worst = None
+    for key, label in (("hover_command_empty", "empty"), ("hover_command", "nominal"),
+                       ("hover_command_full", "full")):
+        value = report.get(key)
+        if value is not None and value > HOVER_COMMAND_LIMIT:
+            worst = (value, label)
+            break
+    if worst and report.get("hover_command") is not None:  # a vehicle that cannot hover got its cause
+        out.append("hover command %.2f at %s pack is above %.1f of full command: little left for "
+                   "control and gusts (thrust-to-weight %.2f)"
+                   % (worst[0], worst[1], HOVER_COMMAND_LIMIT, tw or 0.0))
+    if report.get("hover_command") is not None and report.get("hover_command_empty") is None:
+        out.append("near the end of the pack it cannot hover (command would exceed full at %s V open "
+                   "circuit): land well before the pack is empty"
+                   % _num((report.get("pack_voltage_V") or {}).get("empty"), "%.1f"))
+    if tw is not None and 1.0 <= tw < THRUST_TO_WEIGHT_MIN:
+        out.append("thrust-to-weight %.2f is below %.0f (this set hovers at command %s on a nominal "
+                   "pack): sluggish climbs and little control margin (common practice: 2 or more; where "
+                   "thrust grows about as command^1.8 that puts hover near 0.67, and hovering near 0.5 "
+                   "needs about 3)" % (tw, THRUST_TO_WEIGHT_MIN, _num(report.get("hover_command"), "%.2f")))
+    limit = report.get("motor_current_limit_A")
+    if limit is not None:
+        full_i = report.get("full_motor_current_A")
+        hov_i = report.get("hover_motor_current_A")
+        if hov_i is not None and hov_i > limit:
+            out.append("hover draws %.1f A per motor, above the motor limit %.0f A: it will overheat"
+                       % (hov_i, limit))
+        elif full_i is not None and full_i > limit:
+            out.append("full command draws %.1f A per motor, above the motor limit %.0f A: limit the "
+                       "command or use a smaller propeller" % (full_i, limit))
+    pack_limit = report.get("pack_current_limit_A")
+    if pack_limit is not None:
+        full_pack = report.get("full_pack_current_A")
+        if full_pack is not None and full_pack > pack_limit:
+            out.append("full command draws %.0f A from the pack, above its rating of %.0f A "
+                       "(C-rating x capacity): the pack will sag and heat" % (full_pack, pack_limit))
+    ratio = report.get("density_ratio")
+    if ratio is not None and ratio < THIN_AIR_DENSITY_RATIO:
+        out.append("thin air: %.3f kg/m^3 is %.0f %% of sea-level standard (density altitude %.0f m): "
+                   "less thrust at full command and a higher hover command"
+                   % (report["density_kg_m3"], 100.0 * ratio, report.get("density_altitude_m", 0.0)))
+    return out
+
+
+def _num(value, fmt, unit="", none="n/a"):
+    if value is None or (isinstance(value, float) and not math.isfinite(value)):
+        return none
+    return (fmt % value) + (" " + unit if unit else "")
