@@ -194,6 +194,21 @@ def check_outputs(outputs, inputs=()):
         seen[full] = option
 
 
+def file_sha256(path):
+    """SHA-256 of a file's bytes (hex), read in blocks; the one file hash of liftcal."""
+    return _digest(path)
+
+
+def publish_folder(staged, target, kind):
+    """Write the manifest into a staged folder and rename it into place; a failed write is one
+    InputError naming the target (the caller removes the staged folder on any failure)."""
+    try:
+        write_manifest(staged, kind)
+    except OSError as exc:
+        raise write_error(target, exc) from None
+    replace_folder(staged, target)
+
+
 def _digest(path):
     h = hashlib.sha256()
     with open(path, "rb") as fh:

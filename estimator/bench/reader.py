@@ -13,7 +13,6 @@ cells, text where a number belongs) are refused with the row number. Units that 
 likely mislabelled (voltage in mV labelled V, command in % labelled [-]) are refused.
 """
 
-import hashlib
 import io
 import math
 
@@ -50,11 +49,9 @@ COMMAND_OUTSIDE_SHARE = 0.05
 
 
 def _sha256(path):
-    h = hashlib.sha256()
-    with open(path, "rb") as fh:
-        for block in iter(lambda: fh.read(1 << 22), b""):
-            h.update(block)
-    return h.hexdigest()
+    from estimator.outputs import file_sha256
+
+    return file_sha256(path)
 
 
 EXAMPLE_HEADER = "command[-],voltage[V],current[A],thrust[N]"

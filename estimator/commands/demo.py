@@ -48,7 +48,7 @@ def run_demo(out_dir, seed=1, emit=None):
 
     ``emit``, when given, is called with each piece of text as soon as its step is done.
     """
-    from estimator.outputs import check_folder, replace_folder, staging_folder, write_error, write_manifest
+    from estimator.outputs import check_folder, publish_folder, staging_folder
 
     # a new or empty folder, or one an earlier demo wrote and nobody changed (outputs.py); the
     # files are made in a folder beside it and renamed into place at the end: never half a demo
@@ -56,11 +56,7 @@ def run_demo(out_dir, seed=1, emit=None):
     work = staging_folder(out_dir)
     try:
         report, text = _run(out_dir, work, seed, emit)
-        try:
-            write_manifest(work, "demo")
-        except OSError as exc:
-            raise write_error(out_dir, exc) from None
-        replace_folder(work, out_dir)
+        publish_folder(work, out_dir, "demo")
     except BaseException:
         shutil.rmtree(work, ignore_errors=True)
         raise

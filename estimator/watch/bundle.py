@@ -107,7 +107,7 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
     Summary: out_dir, files (relative), mpy_bytes (total size of the .mpy files), config.
     Raises InputError (nothing written) on bad input or an occupied out_dir.
     """
-    from estimator.outputs import check_folder, replace_folder, staging_folder, write_error, write_manifest
+    from estimator.outputs import check_folder, publish_folder, staging_folder, write_error
 
     config, notes = make_config(params, vehicle, options)
     check_folder(out_dir, "bundle")  # new, empty or an unchanged earlier bundle (outputs.py)
@@ -135,11 +135,7 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
             target = os.path.join(tmp, "mpy", mod + ".mpy")
             compile_mpy(os.path.join(tmp, mod + ".py"), target)
             mpy_bytes += os.path.getsize(target)
-        try:
-            write_manifest(tmp, "bundle")
-        except OSError as exc:
-            raise write_error(out_dir, exc) from None
-        replace_folder(tmp, out_dir)
+        publish_folder(tmp, out_dir, "bundle")
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise
