@@ -130,6 +130,70 @@ def vehicle_block(vehicle):
     }
 
 
+# A parameter set is used on a vehicle only within these bounds (check_vehicle_match).
+# Propeller diameter: makers' nominal sizes are rounded to about 1 % and the same model from
+# two makers differs by a few percent; beyond 5 % it is another propeller: at equal speed
+# thrust grows as D^4 and power as D^5 (T = CT rho n^2 D^4, P = CP rho n^3 D^5; propeller
+# similarity, e.g. McCormick, Aerodynamics, Aeronautics and Flight Mechanics, from memory),
+# so 5 % is already 22 % thrust and 28 % power, far beyond the fit's own error [-].
+DIAMETER_MATCH_TOLERANCE = 0.05
+# Pack voltage against the sweep's bus voltages: the fitted motor model extrapolates by
+# physics, but a pack whose full voltage is 1.5 x the sweep's highest drives the rotor to
+# about 1.5 x the highest speed measured (back-EMF ~ speed), 2.2 x the thrust and 3.4 x the
+# power, where the fitted constants (thrust and torque coefficients, no-load current,
+# resistance) were never measured (tip speed, iron losses, winding heat; a motor wound for
+# that pack is another motor). A 3-cell sweep on 4 cells (1.33 x) or a 12 V bench supply on
+# a full 4-cell pack (1.4 x) stay inside and are warned about by the hover sheet [-].
+VOLTAGE_ABOVE_SWEEP_MAX = 1.5
+# Below the sweep the operating points lie among the speeds measured (the model is on firm
+# ground), but an empty pack below half the sweep's lowest voltage uses at most a quarter of
+# the swept thrust: a pack of another vehicle, not a sagging one [-].
+VOLTAGE_BELOW_SWEEP_MIN = 0.5
+
+
+def check_vehicle_match(params, vehicle, params_source, vehicle_source=None, json_paths=True):
+    """Refuse a parameter set used on a vehicle it was not fitted for (InputError, exit 2).
+
+    params: validated parameter set (or a draft from the fit); vehicle: checked vehicle dict
+    (estimator.vehicle.check_vehicle); params_source / vehicle_source: file names for the
+    message; json_paths=False leaves the parameter set's JSON paths out (the fit names its CSV).
+    Refused: a propeller diameter more than DIAMETER_MATCH_TOLERANCE from the fitted one,
+    a full pack above VOLTAGE_ABOVE_SWEEP_MAX x the sweep's highest bus voltage, an empty
+    pack below VOLTAGE_BELOW_SWEEP_MIN x its lowest (module constants say why). Smaller
+    mismatches are left to the warnings of the hover sheet. Returns None.
+    """
+    vsrc = vehicle_source or (vehicle.get("checked") or {}).get("source") or "the vehicle file"
+    fitted = (params.get("rotor") or {}).get("diameter_m")
+    mine = vehicle["propeller"]["diameter_m"]
+    if fitted and abs(mine / fitted - 1.0) > DIAMETER_MATCH_TOLERANCE:
+        raise InputError(
+            "%s%s: swept with a %.3g m (%.1f in) propeller, but %s has %.3g m "
+            "(%.1f in), %.0f %% apart; beyond %.0f %% it is another propeller (thrust at equal speed "
+            "grows as D^4: 5 %% is 22 %%), so this fit says nothing about it: sweep the vehicle's "
+            "propeller, or use the parameter set fitted on it"
+            % (params_source, json_paths and ": $.rotor.diameter_m" or "", fitted, fitted / 0.0254, vsrc, mine, mine / 0.0254,
+               100.0 * abs(mine / fitted - 1.0), 100.0 * DIAMETER_MATCH_TOLERANCE))
+    curve = params["thrust_curve"]
+    lo = curve.get("voltage_min_V") or curve["reference_voltage_V"]
+    hi = curve.get("voltage_max_V") or curve["reference_voltage_V"]
+    b = vehicle["battery"]
+    full, empty = b["cells"] * b["full_cell_V"], b["cells"] * b["empty_cell_V"]
+    pack = "%s's %d-cell pack spans %.1f..%.1f V" % (vsrc, b["cells"], empty, full)
+    if full > VOLTAGE_ABOVE_SWEEP_MAX * hi:
+        raise InputError(
+            "%s%s: the sweep ran at %.1f..%.1f V but %s, %.1f x the "
+            "sweep's top; beyond %.1f x the rotor would turn faster than anything measured "
+            "(1.5 x the speed is 2.2 x the thrust and 3.4 x the power), where the fitted motor "
+            "and propeller constants no longer apply: sweep the rotor at this pack's voltage"
+            % (params_source, json_paths and ": $.thrust_curve.voltage_max_V" or "", lo, hi, pack, full / hi, VOLTAGE_ABOVE_SWEEP_MAX))
+    if empty < VOLTAGE_BELOW_SWEEP_MIN * lo:
+        raise InputError(
+            "%s%s: the sweep ran at %.1f..%.1f V but %s, %.2f x the "
+            "sweep's lowest; below %.1f x the pack leaves under a quarter of the swept thrust: "
+            "a parameter set of another vehicle? sweep the rotor at this pack's voltage"
+            % (params_source, json_paths and ": $.thrust_curve.voltage_min_V" or "", lo, hi, pack, empty / lo, VOLTAGE_BELOW_SWEEP_MIN))
+
+
 def check_params(document, source):
     """Validate against the schema, then the cross-key rules a schema cannot state.
 

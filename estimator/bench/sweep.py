@@ -150,7 +150,7 @@ def motor_exponents(theta, v_ref):
 
 
 def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block):
-    from estimator.params import build_params
+    from estimator.params import build_params, check_vehicle_match
 
     rho = data["bench_air"]["density_kg_m3"]
     area = disk_area_m2(data["diameter_m"])
@@ -215,6 +215,7 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     hover = None
     if vehicle is not None:
         params_draft = build_params(data, fit, source, None, None)
+        check_vehicle_match(params_draft, vehicle, source, json_paths=False)
         hover = hover_block(vehicle, params_draft)
         value, value_se = static_factor_at(sf, hover["thrust_per_rotor_N"])
         fit["warnings"] = params_draft["warnings"]

@@ -187,8 +187,9 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
     vehicle = load_vehicle(vehicle_file)
     params = None
     if params_file is not None:
-        from estimator.params import load_params  # the bench flow's loader
+        from estimator.params import check_vehicle_match, load_params  # the bench flow's loader
         params = load_params(params_file)
+        check_vehicle_match(params, vehicle, params_file, vehicle_file)
     report = hover_report(vehicle, params)
     payload, unit = None, "kg"
     if payload_text is not None:

@@ -13,13 +13,14 @@ WATCH_CAUTIONS = cautions("board")
 
 
 def _load(params_file, vehicle_file):
-    from estimator.params import load_params
+    from estimator.params import check_vehicle_match, load_params
 
     params = load_params(params_file)
     vehicle = None
     if vehicle_file is not None:
         from estimator.vehicle import load_vehicle
         vehicle = load_vehicle(vehicle_file)
+        check_vehicle_match(params, vehicle, params_file, vehicle_file)
     return params, vehicle
 
 
