@@ -4,7 +4,7 @@ Layout: DEVELOPERS.md "Parameter set" and ``schemas/params.schema.json`` (draft 
 Keys added beyond the DEVELOPERS.md layout (none renamed): thrust_curve_covariance,
 warnings, bench_air.source text, fit_quality.residual_scale_N, fit_quality.fit_method,
 provenance.bench_air, static_factor.value_at, hover.interval_method, power_model.
-residual_basis.
+residual_basis, thrust_curve.quadratic_share_error.
 """
 
 import datetime
@@ -20,6 +20,8 @@ MODEL = "liftcal.rotor/1"
 POWER_FORM = "p0+p_h*T^0.5+p_1*T+p_15*T^1.5+p_2*T^2"
 MOTOR_FORM = "dc-motor+propeller/back-emf"
 SCHEMA = "params.schema.json"
+SHARE_HELD = ("held at %.3f for the standard errors: this sweep cannot tell the quadratic share from "
+              "the intercept (at a = 1 both move the curve alike); its error is carried by command_min")
 FIT_METHOD = ("rows averaged per command level and supply (rows beyond 6 robust sigmas of their level "
               "left out as spikes); DC motor + propeller model and thrust curve by scipy.optimize."
               "least_squares (trust region reflective, bounds, soft_l1 loss); power model by "
@@ -42,6 +44,10 @@ def build_params(data, fit, source, vehicle=None, hover=None):
     se.update({"k0": sf["standard_errors"]["k0"], "slope_per_N": sf["standard_errors"]["slope_per_N"]})
     if "value_se" in sf:
         se["static_factor"] = sf["value_se"]
+    if curve.get("quadratic_share_held"):
+        share_note = {"quadratic_share_error": SHARE_HELD % curve["quadratic_share"]}
+    else:
+        share_note = {}
     created = datetime.datetime.now(datetime.timezone.utc).replace(microsecond=0)
     params = {
         "schema_version": 1,
@@ -61,6 +67,7 @@ def build_params(data, fit, source, vehicle=None, hover=None):
             "density_exponent_source": "motor model: d ln T / d ln rho at full command",
             "command_swept_min": _r(curve["command_swept_min"]),
             "command_swept_max": _r(curve["command_swept_max"]),
+            **share_note,
         },
         "motor_model": motor_block(fit["motor"]),
         "power_model": {

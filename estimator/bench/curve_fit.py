@@ -25,6 +25,8 @@ LOSS_SCALE = 2.5
 # the curve form's error is smooth in u, so neighbouring levels' residuals are correlated;
 # about 4 levels per independent error is what the study measures (benchmarks/fit_study.py) [-]
 FORM_INFLATION = 2.0
+# a quadratic share this close to 0 or 1 is at its bound: held there for the covariance [-]
+SHARE_AT_BOUND = 0.005
 
 
 def voltage_spread(levels):
@@ -97,7 +99,8 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
     voltage exponent [-], used when the sweep has no voltage spread; voltage_exponent: fix
     n [-]. Returns dict (thrust_max_N, quadratic_share, command_min, command_max,
     voltage_exponent, voltage_exponent_source, standard_errors, covariance, rms_residual_N,
-    residual_scale_N, voltage_spread, warnings). Raises InputError when the levels do not
+    residual_scale_N, voltage_spread, warnings, quadratic_share_held: the share could not be
+    told from the intercept and was held for the covariance, its standard error 0). Raises InputError when the levels do not
     rise with command.
     """
     from scipy.optimize import least_squares
@@ -141,8 +144,13 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
     jac = _jacobian(theta, u, log_v, u_max, p_free)  # d r / d theta [N per unit of each parameter]
     dof = max(r.size - p_free, 1)
     s2 = float(np.sum(np.minimum(r * r, (4.0 * scale) ** 2))) / dof
+    free = list(range(p_free))
+    share_held = _share_not_separable(theta[1], jac, s2)
+    if share_held:
+        free.remove(1)
     cov = np.zeros((4, 4))
-    cov[:p_free, :p_free] = np.linalg.pinv(jac.T @ jac) * s2 * FORM_INFLATION ** 2
+    sub = jac[:, free]
+    cov[np.ix_(free, free)] = np.linalg.pinv(sub.T @ sub) * s2 * FORM_INFLATION ** 2
     se = np.sqrt(np.maximum(np.diag(cov), 0.0))
     if fixed:
         se[3] = 0.0
@@ -150,12 +158,30 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
         warnings.append("voltage exponent %.2f is poorly determined (standard error %.2f); sweep at "
                         "supply voltages further apart" % (theta[3], se[3]))
     return {"thrust_max_N": float(theta[0]), "quadratic_share": float(theta[1]),
+            "quadratic_share_held": share_held,
             "command_min": float(theta[2]), "command_max": float(u_max),
             "voltage_exponent": float(theta[3]), "voltage_exponent_source": source,
             "standard_errors": {k: float(x) for k, x in zip(PARAM_NAMES, se)},
             "covariance": {"names": list(PARAM_NAMES), "matrix": cov.tolist()},
             "rms_residual_N": float(np.sqrt(np.mean(r * r))), "residual_scale_N": float(scale),
             "voltage_spread": spread, "warnings": warnings}
+
+
+def _share_not_separable(share, jac, s2):
+    """True when the quadratic share cannot be told from the intercept on these levels.
+
+    At a = 1 the curve's derivatives by a and by u_min are proportional (dt/da = x^2 - x,
+    dt/du_min = 2 T_max (x^2 - x) / (u_max - u_min)), so J^T J is singular there and its
+    inverse gives a meaningless standard error of thousands. Then (a within SHARE_AT_BOUND
+    of 0 or 1, or a standard error beyond the whole 0..1 range) the share is held at its
+    fitted value for the covariance and its error is carried by u_min: the curve's own
+    band is unchanged to first order.
+    """
+    if share <= SHARE_AT_BOUND or share >= 1.0 - SHARE_AT_BOUND:
+        return True
+    with np.errstate(all="ignore"):
+        var = np.linalg.pinv(jac.T @ jac)[1, 1] * s2 * FORM_INFLATION ** 2
+    return not (np.isfinite(var) and var <= 1.0)
 
 
 def _jacobian(theta, u, log_v, u_max, p_free):

@@ -12,14 +12,28 @@ from estimator.commands.options import Number, Quantity
 from estimator.jsonio import dumps
 
 BENCH_CAUTIONS = cautions("settings")
+# why a voltage exponent carries no error bar, by its source (thrust_curve.voltage_exponent_source)
+VOLTAGE_EXPONENT_WHY = {
+    "motor model": "from the fitted motor model, d ln T / d ln V at full command: one supply "
+                   "voltage cannot measure it, no error bar",
+    "given": "given with --voltage-exponent, not fitted",
+    "default": "a default, not fitted",
+}
 
 
-def _pm(value, se, fmt):
-    return (fmt % value) + " +- " + (fmt % se)
+def _pm(value, se, why_none):
+    """'value +- error' with matching digits, or 'value (why_none)' for a value without a
+    fitted error (held, taken from the motor model, or given): never a false '+- 0'."""
+    from estimator.bench.sweep import value_and_error
+
+    text, error = value_and_error(value, se, 3)
+    if error:
+        return "%s +- %s" % (text, error)
+    return "%.3f (%s)" % (value, why_none)
 
 
 def _human_fit(params, out_file):
-    from estimator.bench.sweep import command_text, thrust_text
+    from estimator.bench.sweep import command_text, command_with_error, plain_number, thrust_text
 
     c, p, k, q = (params["thrust_curve"], params["power_model"], params["static_factor"],
                   params["fit_quality"])
@@ -34,18 +48,24 @@ def _human_fit(params, out_file):
             ", ".join("%s %d" % kv for kv in sorted(q["rejected"].items())) or "none", out_file),
         "thrust curve for the controller (at %.2f V, %.3f kg/m^3; +- one standard error incl. curve-form error)" % (
             c["reference_voltage_V"], c["reference_density_kg_m3"]),
-        "  full-command thrust  %s +- %s%s" % (thr(c["thrust_max_N"]), thr(se["thrust_max_N"]),
-                                               "" if tu == "N" else " (%.4g N)" % c["thrust_max_N"]),
-        "  quadratic share      %s" % _pm(c["quadratic_share"], se["quadratic_share"], "%.3f"),
-        "  curve intercept      %s +- %s (command_min: the quadratic's zero, not a duty offset)" % (
-            cmd(c["command_min"]), cmd(se["command_min"], span=True)),
+        "  full-command thrust  %s%s" % (thrust_text(c["thrust_max_N"], tu, se["thrust_max_N"]),
+                                         "" if tu == "N" else " (%s N)" % plain_number(c["thrust_max_N"])),
+        "  quadratic share      %s" % _pm(c["quadratic_share"], se["quadratic_share"],
+                                          "not fitted" if "quadratic_share_error" not in c else
+                                          "not separable from the intercept on this sweep (at a = 1 both "
+                                          "shift the curve alike): no error bar of its own, the "
+                                          "intercept's carries it"),
+        "  curve intercept      %s (command_min: the quadratic's zero, not a duty offset)" % (
+            command_with_error(c["command_min"], se["command_min"], cu)),
         "  rotor starts at      %s (motor model)%s" % (
             cmd(params["motor_model"]["command_start"]),
             "; full command at %s" % cmd(c["command_max"]) if c["command_max"] < 1.0 else ""),
-        "  voltage exponent     %s (%s)" % (_pm(c["voltage_exponent"], se["voltage_exponent"], "%.3f"),
-                                           c.get("voltage_exponent_source", "fitted")),
-        "  density exponent     %s (from the fitted motor model)" % _pm(
-            c["density_exponent"], se.get("density_exponent", 0.0), "%.3f"),
+        "  voltage exponent     %s" % _pm(c["voltage_exponent"], se["voltage_exponent"],
+                                          VOLTAGE_EXPONENT_WHY.get(c.get("voltage_exponent_source"), "not fitted"))
+        + (" (fitted)" if se["voltage_exponent"] > 0.0 else ""),
+        "  density exponent     %s" % _pm(c["density_exponent"], se.get("density_exponent", 0.0),
+                                          "from the fitted motor model, d ln T / d ln rho at full "
+                                          "command; not fitted by itself, no error bar"),
         "  thrust residual      %s rms" % thr(q["rms_residual_N"]),
         "power per rotor  P = %.4g W + %.4g W/N^0.5 T^0.5 + %.4g W/N T + %.4g W/N^1.5 T^1.5 + %.4g W/N^2 T^2 "
         "(all >= 0; rms %.3g W)" % (
