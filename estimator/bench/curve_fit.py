@@ -56,18 +56,41 @@ def curve_thrust(theta, u, log_v, u_max):
     return t_max * ((1.0 - a) * x + a * x * x) * np.exp(n * log_v)
 
 
+def curve_jacobian(theta, u, log_v, u_max):
+    """d T / d theta [N per unit of each parameter] of curve_thrust, rows x 4:
+    dT/dT_max = t(x) e, dT/da = T_max (x^2 - x) e, dT/du_min = -T_max e t'(x) / (u_max - u_min)
+    (inside 0 < x < 1), dT/dn = T ln(V / V_ref), with e = (V / V_ref)^n."""
+    t_max, a, u_min, n = theta
+    span = u_max - u_min
+    x = (u - u_min) / span
+    inside = (x > 0.0) & (x < 1.0)
+    x = np.clip(x, 0.0, 1.0)
+    e = np.exp(n * log_v)
+    shape = (1.0 - a) * x + a * x * x
+    slope = np.where(inside, (1.0 - a) + 2.0 * a * x, 0.0)
+    return np.column_stack([shape * e, t_max * (x * x - x) * e, t_max * e * slope * (x - 1.0) / span,
+                            t_max * shape * e * log_v])
+
+
 def _start(u, log_v, t, n, u_max):
-    best = None
+    """Start values: u_min profiled on a grid (0.05 apart over 0..0.55, then 0.01 apart
+    around the best), the curve linear in T_max (1 - a) and T_max a at each."""
     s = np.exp(n * log_v)
-    for u_min in np.arange(0.0, 0.6, 0.01):
-        x = np.clip((u - u_min) / (u_max - u_min), 0.0, 1.0)
-        design = np.column_stack([s * x, s * x * x])
-        coef, *_ = np.linalg.lstsq(design, t, rcond=None)
-        r = t - design @ coef
-        score = float(np.sum(np.minimum(r * r, 9.0 * np.median(r * r) + 1e-30)))
-        if best is None or score < best[0]:
-            best = (score, u_min, coef)
-    _, u_min, (b1, b2) = best
+
+    def profile(grid, best=None):
+        for u_min in grid:
+            x = np.clip((u - u_min) / (u_max - u_min), 0.0, 1.0)
+            design = np.column_stack([s * x, s * x * x])
+            coef, *_ = np.linalg.lstsq(design, t, rcond=None)
+            r = t - design @ coef
+            score = float(np.sum(np.minimum(r * r, 9.0 * np.median(r * r) + 1e-30)))
+            if best is None or score < best[0]:
+                best = (score, float(u_min), coef)
+        return best
+
+    coarse = profile(np.arange(0.0, 0.6, 0.05))
+    fine = np.arange(max(coarse[1] - 0.04, 0.0), min(coarse[1] + 0.045, 0.595), 0.01)
+    _, u_min, (b1, b2) = profile(fine, coarse)
     t_max = b1 + b2
     a = b2 / t_max if t_max > 0 else 0.5
     return np.array([max(t_max, 1e-9 * max(float(np.max(t)), 1e-12)), min(max(a, 0.0), 1.0), u_min, n])
@@ -85,6 +108,7 @@ def project(command, thrust_N, u_max, n):
     lo, hi = np.array([1e-12 * t_top, 0.0, 0.0]), np.array([10.0 * t_top, 1.0, 0.6])
     res = least_squares(lambda p: curve_thrust((p[0], p[1], p[2], n), command, zero, u_max) - thrust_N,
                         np.clip(theta0[:3], lo + 1e-12, hi - 1e-12), bounds=(lo, hi), x_scale="jac",
+                        jac=lambda p: curve_jacobian((p[0], p[1], p[2], n), command, zero, u_max)[:, :3],
                         method="trf", max_nfev=300)
     return np.append(res.x, n)
 
@@ -126,6 +150,7 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
     scale = max(0.01 * t_top, 1e-12)
     for _ in range(0 if fixed and projection is not None else 2):
         res = least_squares(lambda p, s=scale: (curve_thrust(p, u, log_v, u_max) - t) / s, theta0,
+                            jac=lambda p, s=scale: curve_jacobian(p, u, log_v, u_max) / s,
                             bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE, x_scale="jac",
                             method="trf", max_nfev=300)
         theta0 = np.clip(res.x, lo + 1e-12, hi - 1e-12)
@@ -141,7 +166,7 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
         theta = res.x
         r = curve_thrust(theta, u, log_v, u_max) - t
     p_free = 3 if fixed else 4
-    jac = _jacobian(theta, u, log_v, u_max, p_free)  # d r / d theta [N per unit of each parameter]
+    jac = curve_jacobian(theta, u, log_v, u_max)[:, :p_free]  # d r / d theta [N per unit of each]
     dof = max(r.size - p_free, 1)
     s2 = float(np.sum(np.minimum(r * r, (4.0 * scale) ** 2))) / dof
     free = list(range(p_free))
@@ -182,18 +207,6 @@ def _share_not_separable(share, jac, s2):
     with np.errstate(all="ignore"):
         var = np.linalg.pinv(jac.T @ jac)[1, 1] * s2 * FORM_INFLATION ** 2
     return not (np.isfinite(var) and var <= 1.0)
-
-
-def _jacobian(theta, u, log_v, u_max, p_free):
-    """d T / d theta on the levels by central differences [N per unit of each parameter]."""
-    cols = []
-    for j in range(p_free):
-        h = 1e-6 * max(abs(theta[j]), 1e-3)
-        up, dn = np.array(theta, dtype=float), np.array(theta, dtype=float)
-        up[j] += h
-        dn[j] -= h
-        cols.append((curve_thrust(up, u, log_v, u_max) - curve_thrust(dn, u, log_v, u_max)) / (2.0 * h))
-    return np.column_stack(cols)
 
 
 def check_rising(levels, source):

@@ -47,6 +47,49 @@ def rotor_arrays(theta, command, voltage_V, density_ratio=1.0):
     return a * s * s, iq + d * im, vm, im, d
 
 
+def rotor_jacobian(p, command, voltage_V):
+    """Thrust [N], bus current [A] and their derivatives with respect to the packed fit
+    parameters p (NAMES order; logarithms of the positive ones, as fit_motor varies them).
+
+    Returns (T, I_bus, dT/dp, dI_bus/dp), the derivative arrays rows x 9. Implicit
+    differentiation of the speed equation F(s) = R c s^2 + (1 + R b) s - (Vm - R I0) = 0:
+    ds/dq = -(dF/dq) / (2 R c s + 1 + R b), the denominator being the square root of
+    rotor_arrays; below spin-up (Vm <= R I0) s = 0 and the motor current is Vm / R.
+    """
+    theta = _unpack(p)
+    a, c, r, i0, u0, u1, g, iq, b = theta
+    u = np.asarray(command, dtype=float)
+    t, i_bus, vm, im, d = rotor_arrays(theta, u, voltage_V)
+    span = max(u1 - u0, 1e-6)
+    x = (u - u0) / span
+    inside = (x > 0.0) & (x < 1.0)
+    x = np.clip(x, 0.0, 1.0)
+    safe_x = np.where(x > 0.0, x, 1.0)
+    dd_dx = np.where(inside, g * d / safe_x, 0.0)
+    dd = {4: dd_dx * (x - 1.0) / span, 5: -dd_dx * x / span,
+          6: np.where(x > 0.0, d * np.log(safe_x), 0.0)}
+    on = vm - r * i0 > 0.0
+    s = np.where(on, np.sqrt(np.maximum(t, 0.0) / a), 0.0)
+    root = 2.0 * r * c * s + 1.0 + r * b
+    q = b + 2.0 * c * s                       # d im / d s on the running branch
+    # d s / d q and the explicit d im / d q (running branch), for the motor's own parameters
+    ds = {1: -r * s * s / root, 2: -(c * s * s + b * s + i0) / root, 3: -r / root, 8: -r * s / root}
+    dim = {1: s * s + q * ds[1], 2: np.where(on, q * ds[2], -vm / (r * r)), 3: np.where(on, 1.0 + q * ds[3], 0.0),
+           8: s + q * ds[8]}
+    jt, ji = np.zeros((u.size, 9)), np.zeros((u.size, 9))
+    jt[:, 0] = t
+    for k, scale in ((1, c), (2, r), (3, i0), (8, b)):
+        jt[:, k] = 2.0 * a * s * ds[k] * scale
+        ji[:, k] = d * dim[k] * scale
+    for k, dd_k in dd.items():
+        dvm = dd_k * voltage_V
+        ds_k = np.where(on, dvm / root, 0.0)
+        jt[:, k] = 2.0 * a * s * ds_k
+        ji[:, k] = im * dd_k + d * np.where(on, q * ds_k, dvm / r)
+    ji[:, 7] = iq
+    return t, i_bus, jt, ji
+
+
 def _unpack(p):
     a, c, r, i0, u0, u1, g, iq, b = p
     return (math.exp(a), math.exp(c), math.exp(r), math.exp(i0), u0, u1, g, math.exp(iq), math.exp(b))
@@ -99,13 +142,16 @@ def _bounds(lv):
     return np.array(lo), np.array(hi)
 
 
-def fit_motor(lv, top_end=False, top=1.0, start=None):
+def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None):
     """Fit the model (module docstring) to levels: dict command [-], voltage_V [V],
     thrust_N [N], current_A [A] (bus), count [-].
 
     top_end: fit the ESC's top end point u1 (the sweep shows thrust levelling off below its
-    highest command); else u1 = top [-]. start: a previous fit's result to start from. Returns dict: theta (NAMES order, linear), scale_thrust_N, scale_current_A (robust residual
-    scales of the levels), rms_thrust_N, success (bool), message.
+    highest command); else u1 = top [-]. start: a previous fit's result to start from (and
+    its residual scales). passes: least-squares passes, each weighting the residuals by the
+    robust scales of the previous one (default 2 from the start values, 1 from a previous fit).
+    Returns dict: theta (NAMES order, linear), scale_thrust_N, scale_current_A (robust
+    residual scales of the levels after the last pass), rms_thrust_N, success (bool), message.
     """
     from scipy.optimize import least_squares
 
@@ -118,12 +164,16 @@ def fit_motor(lv, top_end=False, top=1.0, start=None):
     s_t = 0.01 * float(np.max(np.abs(t))) if start is None else start["scale_thrust_N"]
     s_i = 0.01 * float(np.max(np.abs(i))) if start is None else start["scale_current_A"]
     res = None
-    for _ in range(2 if start is None else 1):
+    for _ in range(passes or (2 if start is None else 1)):
         def residuals(p, s_t=s_t, s_i=s_i):
             tm, im, _, _, _ = rotor_arrays(_unpack(p), u, v)
             return np.concatenate([(tm - t) / s_t, (im - i) / s_i])
 
-        res = least_squares(residuals, x0, bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE,
+        def jacobian(p, s_t=s_t, s_i=s_i):
+            _, _, jt, ji = rotor_jacobian(p, u, v)
+            return np.concatenate([jt / s_t, ji / s_i])
+
+        res = least_squares(residuals, x0, jac=jacobian, bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE,
                             x_scale="jac", max_nfev=400, method="trf", ftol=1e-7, xtol=1e-7)
         x0 = np.clip(res.x, lo + 1e-12, hi - 1e-12)
         tm, im, _, _, _ = rotor_arrays(_unpack(res.x), u, v)

@@ -174,13 +174,12 @@ def fit_power_model(levels, density_kg_m3):
 
 
 def power_model_W(power, thrust_N, density_kg_m3=None):
-    """P(T, rho) [W] for arrays: estimator.core.power_model.rotor_power_W applied element-wise."""
+    """P(T, rho) [W] for arrays: estimator.core.power_model.rotor_power_W (operators only)."""
     from estimator.core.power_model import rotor_power_W
 
     rho = power["reference_density_kg_m3"] if density_kg_m3 is None else density_kg_m3
     t = np.asarray(thrust_N, dtype=float)
-    return np.vectorize(lambda x: rotor_power_W(power, float(x), rho), otypes=[float])(t) if t.ndim else \
-        rotor_power_W(power, float(t), rho)
+    return rotor_power_W(power, t, rho) if t.ndim else rotor_power_W(power, float(t), rho)
 
 
 def watch_residual_rel_std(power_W, expected_W, thrust_share):

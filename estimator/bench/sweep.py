@@ -162,9 +162,13 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     lv["current_A"] = lv["power_W"] / lv["voltage_V"]
     check_rising(lv, source)
     u_hi = float(np.max(lv["command"]))
-    motor = fit_motor(lv, top_end=True)
+    # one pass to see whether the sweep levels off below its highest command (the ESC's top
+    # end point), then one more pass weighted by that pass's residual scales
+    motor = fit_motor(lv, top_end=True, passes=1)
     top_found = motor["theta"][5] < u_hi - TOP_END_MARGIN
-    if not top_found:
+    if top_found:
+        motor = fit_motor(lv, top_end=True, start=motor)
+    else:
         # full command at 1, or at the sweep's top when it stops short (an ESC calibrated to
         # a narrower pulse range, or a sweep cut short): never extrapolated beyond it
         motor = fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi, start=motor)

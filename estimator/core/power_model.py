@@ -83,11 +83,12 @@ def rotor_power_W(power, thrust_N, density_kg_m3):
 
     power: dict with KEYS ([W], [W/N^0.5], [W/N], [W/N^1.5], [W/N^2]; a missing T^0.5 or T
     key counts as 0) and reference_density_kg_m3 rho_ref [kg/m^3]; thrust_N: T [N];
-    density_kg_m3: rho [kg/m^3]. Returns P [W]. Source: module docstring.
+    density_kg_m3: rho [kg/m^3]. Returns P [W]. Source: module docstring. Written with
+    operators only on T, so T may also be a numpy array (the desktop fit passes its rows).
     """
-    t = thrust_N if thrust_N > 0.0 else 0.0
+    t = 0.5 * (thrust_N + abs(thrust_N))   # T, or 0 where T < 0
     r = math.sqrt(power["reference_density_kg_m3"] / density_kg_m3)
-    root = math.sqrt(t)
+    root = t ** 0.5
     return (power["idle_power_W"] + power.get("sqrt_W_per_N0_5", 0.0) * root * r
             + power.get("linear_W_per_N", 0.0) * t + power["induced_W_per_N1_5"] * t * root * r
             + power["copper_W_per_N2"] * t * t)
