@@ -15,6 +15,8 @@ baseline_off; mass_high on the lighter flight. Delays: from the onset (steps, ra
 the take-off (payloads, which are there from the start).
 """
 
+import os
+
 import numpy as np
 from scipy.stats import chi2
 
@@ -118,8 +120,7 @@ def run_cell(args):
         options = {"lag_ms": 1000.0 * (ROTOR_LAG_S_PER_M * d + lag)}
     rng = np.random.default_rng(seed)
     kinds, size, at, ramp, payload = cell_plan(rng, n_clean, duration_s)
-    sim = flight_sim.simulate(name, len(kinds), seed, duration_s, jitter=jitter, sensor_lag_s=lag,
-                              fault_size=size, fault_at_s=at, fault_ramp_s=ramp, payload=payload)
+    sim = _simulate_cached(name, len(kinds), seed, duration_s, jitter, lag, size, at, ramp, payload)
     cfg = as_tuple(make_config(sim_vehicles.fitted_params(name), sim_vehicles.checked_vehicle(name),
                                  options)[0])
     out = {"vehicle": name, "jitter": jitter, "lag_s": lag, "clean_hours": n_clean * duration_s / 3600.0,
@@ -144,6 +145,28 @@ def run_cell(args):
                 r["delays"].setdefault(key, []).append(delay)
         out["rates"][rate_name(rate)] = r
     return out
+
+
+def _simulate_cached(name, n, seed, duration_s, jitter, lag, size, at, ramp, payload):
+    """flight_sim.simulate, kept in $LIFTCAL_SIM_CACHE (a folder) when that is set: the simulator
+    does not depend on the kernel, so repeated benchmark runs while tuning replay the same flights."""
+    kw = dict(jitter=jitter, sensor_lag_s=lag, fault_size=size, fault_at_s=at, fault_ramp_s=ramp, payload=payload)
+    folder = os.environ.get("LIFTCAL_SIM_CACHE")
+    if not folder:
+        return flight_sim.simulate(name, n, seed, duration_s, **kw)
+    path = os.path.join(folder, "%s-%d-%d-%g-%g-%g.npz" % (name.replace(" ", "_"), n, seed, duration_s, jitter, lag))
+    if os.path.exists(path):
+        with np.load(path) as z:
+            sim = {k: z[k] for k in z.files}
+        for k in ("sensor_range_A", "full_V"):
+            sim[k] = float(sim[k])
+        sim["name"] = name
+        return sim
+    sim = flight_sim.simulate(name, n, seed, duration_s, **kw)
+    os.makedirs(folder, exist_ok=True)
+    np.savez(path + ".tmp.npz", **{k: v for k, v in sim.items() if k != "name"})
+    os.replace(path + ".tmp.npz", path)
+    return sim
 
 
 def poisson_upper(k, hours):
