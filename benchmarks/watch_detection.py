@@ -12,7 +12,8 @@ case over the matrix against the goals of issue 7.
 
 Usage: python benchmarks/watch_detection.py [CLEAN_FLIGHTS_PER_CELL] [--quick | --reduced]
 --reduced: only the worst cells (REDUCED: the tiny quad at 0.4 and 1 % jitter, 50 and 150 ms lag, the
-demo quad and the hexa at 1 % and 150 ms) logged at 5, 25, 100 Hz and irregularly: a few minutes.
+demo quad and the hexa at 1 % and 150 ms, the hexa at 0.4 % and no lag, the octo without jitter or lag and
+at 1 % and 150 ms) logged at 5, 25, 100 Hz and irregularly: a few minutes.
 Set LIFTCAL_SIM_CACHE=/some/folder to keep the simulated flights between runs (the simulator does
 not depend on the kernel).
 (default 17 ten-minute fault-free flights per cell: 36 cells x 17 x 10 min = 102 h of simulated
@@ -46,7 +47,8 @@ def fmt(values):
 
 # the cells with the most false alarms and the longest delays in the full matrix: (vehicle, jitter, lag index)
 REDUCED = (("tiny 3S quad", 2, 2), ("tiny 3S quad", 2, 1), ("tiny 3S quad", 1, 2), ("tiny 3S quad", 1, 1),
-           ("demo quad", 2, 2), ("demo quad", 1, 1), ("hexa 6S", 2, 2))
+           ("demo quad", 2, 2), ("demo quad", 1, 1), ("hexa 6S", 2, 2), ("hexa 6S", 1, 0), ("octo 12S", 0, 0),
+           ("octo 12S", 2, 2))
 REDUCED_RATES = (5, 25, 100, None)
 
 

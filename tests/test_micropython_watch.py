@@ -10,6 +10,7 @@ Without Node.js these tests fail with a clear message; they are never skipped.
 
 import pytest
 
+from estimator.core.watch_layout import CONFIG_LENGTH
 from estimator.watch.bundle import MODULES, write_bundle
 from mpy_harness import run_micropython
 from watch_helpers import demo_fit_params
@@ -344,7 +345,7 @@ print("D", try_load(bad))
     out = run_micropython(script, mods, tmp_path)
     lines = dict(l.split(" ", 1) for l in out.strip().splitlines())
     assert lines["GOOD"] == "True", out
-    assert lines["A"].startswith("PROBLEM liftwatch: CONFIG has 142 values"), out
+    assert lines["A"].startswith("PROBLEM liftwatch: CONFIG has %d values" % (CONFIG_LENGTH - 1)), out
     assert lines["B"].startswith("PROBLEM") and "block_ms is 5000, outside 100..1000" in lines["B"], out
     assert lines["C"].startswith("PROBLEM") and "CONFIG[3] is not an integer" in lines["C"], out
     assert lines["D"].startswith("PROBLEM") and "format 2" in lines["D"], out

@@ -264,7 +264,7 @@ def test_update_source_has_no_loops_and_no_allocating_nodes():
     for f in funcs:
         if f.name == "_reset":   # one counted loop over the state list (range(constant): no allocation)
             loops = [n for n in f.body if isinstance(n, ast.For)]
-            assert len(loops) == 1 and ast.unparse(loops[0].iter) == "range(24)"
+            assert len(loops) == 1 and ast.unparse(loops[0].iter) == "range(29)"
             f.body = [n for n in f.body if not isinstance(n, ast.For)] + loops[0].body
     for node in (n for f in funcs for n in ast.walk(f)):
         assert not isinstance(node, banned), ast.dump(node)[:80]

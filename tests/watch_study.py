@@ -118,6 +118,9 @@ def run_cell(args):
         from estimator.watch.config import ROTOR_LAG_S_PER_M
         d = sim_vehicles.spec(name)["vehicle"]["propeller"]["diameter_m"]
         options = {"lag_ms": 1000.0 * (ROTOR_LAG_S_PER_M * d + lag)}
+    if os.environ.get("LIFTCAL_WATCH_OPTIONS"):        # CONFIG options to try (JSON), for tuning runs
+        import json
+        options = dict(options, **json.loads(os.environ["LIFTCAL_WATCH_OPTIONS"]))
     rng = np.random.default_rng(seed)
     kinds, size, at, ramp, payload = cell_plan(rng, n_clean, duration_s)
     sim = _simulate_cached(name, len(kinds), seed, duration_s, jitter, lag, size, at, ramp, payload)

@@ -16,17 +16,24 @@ Models (design notes sec. 3, Watch). Every statistic lives in flight time, not i
   response; backward-Euler step alpha = dt / (lag + dt)), so manoeuvres are modelled;
 - measured and lagged expected energy are summed over blocks of block_ms of flight time (a
   sample longer than a block counts as one block); one residual per block;
-- a block is "steady" when its mean expected power is within steady_permille of a slow mean
-  (EMA over 16 blocks) and above the power floor; other blocks (climbs, descents, manoeuvres:
-  the power of axial flight differs from the static model) are not judged;
+- a block is "steady" when its thrust is within steady_permille of a slow mean (EMA over 16
+  blocks), its power above the floor, and no block was outside that band for settle_ms (climbs,
+  descents, manoeuvres: the power of axial flight differs from the static model);
+- the residual's known parts are taken out: cx x (thrust deviation x, axial flight) and cd g
+  (lead g: the static power at the present command less its lagged value, over the block: a DC
+  motor draws more than its static power while the rotor spins up); cx and cd are learned by
+  EMA regressions (centred, with a small ridge) while nothing is suspected;
 - learning window: after takeoff_ms of flight, learn_ms of steady blocks (or whatever there is
   at learn_timeout_ms) give the power scale s (baseline_off when |s - 1| > tolerance) and the
-  block noise sigma (mean absolute deviation x sqrt(pi/2), at least the bench noise floor);
+  block noise sigma, at least the bench noise floor. Block residuals are correlated over
+  seconds (gusts, altitude moves, pack sag), so sigma is the long-run one: from the residual
+  smoothed over about 7 blocks (EMA 1/4), y, as mean |y| x sqrt(7) x sqrt(pi/2) (for independent
+  blocks this is the plain sigma; for correlated ones it grows with the sum's variance);
 - in flight: a two-sided CUSUM per steady block (Page 1954) on z = r - d, with reference k and
   threshold h in units of sigma (a self-starting scheme in the sense of Hawkins, J. Roy. Stat.
   Soc. C 36 (1987): the in-control mean and noise come from the flight itself); h from
   Siegmund's approximation for the target false alarms per flight hour (estimator/watch/
-  config.py). While neither sum is above h/2 the noise keeps being learned (EMA of |z|, clipped
+  config.py). While neither sum is above h/2 the noise keeps being learned (EMA of |y|, z clipped
   at 5 sigma, floor kept, at most twice the learning window's) and a bounded slow drift d
   follows the baseline as the pack drains;
   both freeze while a fault is suspected. One block adds at most k + h/2 + 1: an alarm takes two;
@@ -52,12 +59,12 @@ class Watch:
     (on the desktop: estimator.watch.config.as_tuple(make_config(...)[0]))."""
 
     def __init__(self, config):
-        """config: CONFIG of liftwatch_config, a tuple or list of 143 ints (watch_layout).
+        """config: CONFIG of liftwatch_config, a tuple or list of 144 ints (watch_layout).
 
         Raises ValueError naming the cause when CONFIG was made for another kernel format (the
         board loader liftwatch_load checks every bound first and says what is wrong).
         """
-        if len(config) != 143 or config[108] != 3:
+        if len(config) != 144 or config[108] != 4:
             raise ValueError("CONFIG: run liftcal firmware again")
         c = config
         span = c[116]
@@ -71,26 +78,27 @@ class Watch:
         self.st = [c, 0, 0, 0, 0, -1, 0, 0, 0, 0, 0, 0, 0,
                    c[109], c[110], c[111], c[112], c[113], c[114], c[115], c[118], c[119], c[120],
                    c[121], c[125], c[126],
-                   ta, tq, c[115] + span, i_pos, 0]
+                   ta, tq, c[115] + span, i_pos, 0, 0]
         # sb: block state (learning, l_sum, l_n, l_ms, l_dev, scale, sig_q6, k, h, s_hi, s_lo,
         # drift_q8, slow thrust factor q4, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, and the
         # previous mass window's mean, variance and count)
         # (the inflow slope starts at 0.5, momentum theory's ideal-power share of a small set)
         self.thrust_mN = 0
         self.hover_permille = 0
-        self.sb = [0] * 24
+        self.sb = [0] * 29
         self._reset()
 
     def _reset(self):
         """A new flight: forget the learned scale, noise, CUSUM sums, drift and mass."""
         sb = self.sb
-        for i in range(24):                               # a counted loop: no allocation
+        for i in range(29):                               # a counted loop: no allocation
             sb[i] = 0
         sb[0] = 1
         sb[5] = 1000
         sb[18] = 400
         sb[19] = 200
         sb[20] = 500
+        sb[26] = 400
         self.mass_g = 0
         self.scale = 1000
         self.sigma_permille = 0
@@ -105,7 +113,7 @@ class Watch:
         st = self.st
         (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw, low,
          dt_max, v_min, v_max, i_min, i_max, spin, cmd_min, vstep, pfloor, lag, blk, stuck_lim, landed,
-         ta, tq, u_top, i_pos, fsum) = st
+         ta, tq, u_top, i_pos, fsum, edsum) = st
         # range checks: comparisons only, so any int is safe here
         if dt_ms <= 0 or dt_ms > dt_max or bus_mV < v_min or bus_mV > v_max:
             flags |= 4
@@ -198,7 +206,8 @@ class Watch:
         if pe < pfloor:
             low = 1
         if bw >= blk:
-            flags = self._block(flags, em, ee, bw, bus_mV, low, fl_ms, fsum)
+            st[31] = 0
+            flags = self._block(flags, em, ee, bw, bus_mV, low, fl_ms, fsum, edsum + (pe - (pl4 >> 2)) * w)
             st[9] = 0
             st[10] = 0
             st[11] = 0
@@ -210,10 +219,11 @@ class Watch:
             st[11] = bw
             st[12] = low
             st[30] = fsum
+            st[31] = edsum + (pe - (pl4 >> 2)) * w         # 2^18 * 2000 = 5.2e8
         st[1] = flags
         return flags
 
-    def _block(self, flags, em, ee, bw, mv, low, fl_ms, fsum):
+    def _block(self, flags, em, ee, bw, mv, low, fl_ms, fsum, ed):
         """One block of flight time: residual, learning, CUSUM, noise, drift, implied mass.
 
         em, ee: measured and lagged expected energy [0.1 W ms]; bw: block length [ms]; mv: last
@@ -224,7 +234,7 @@ class Watch:
         c = self.st[0]
         sb = self.sb
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
-         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p) = sb
+         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd) = sb
         pmb = em // bw                                    # mean measured power [0.1 W] <= 180000
         # slow outputs: thrust from the block's measured power (table over power), hover command
         sh = c[123]
@@ -251,7 +261,12 @@ class Watch:
             x = 500
         elif x < -500:
             x = -500
-        steady = low == 0 and -c[135] <= x <= c[135]
+        if low or x < -c[135] or x > c[135]:
+            hold = c[143]                                 # a manoeuvre: not judged for settle_ms after it
+        elif hold > 0:
+            hold -= bw
+        sb[25] = hold
+        steady = hold <= 0
         sb[12] = fsl + (((fb << 4) - fsl) >> 4)
         e0 = ee >> c[122]                                 # < 2^19 (energy_shift, watch_layout)
         e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
@@ -268,31 +283,66 @@ class Watch:
         if fl_ms < c[127]:                                # take-off: not judged, not learned
             return flags
 
-        if steady and (learning or s_hi + s_lo < (h >> 1)):
+        # lead g: static power at the present command less its lagged value over the block, in
+        # permille of the expected energy (a DC motor draws more than the static power while its
+        # rotor spins up, and less while it slows down)
+        g = (ed >> c[122]) * 1000 // (e0 + 1)             # 2^19 * 1000
+        if g > 500:
+            g = 500
+        elif g < -500:
+            g = -500
+        if low == 0 and -250 <= x <= 250 and (learning or s_hi + s_lo < (h >> 1)):
             # the power of axial flight (climb, descent, gusts) is not the static model's: the
-            # residual follows the thrust deviation x (momentum theory: dP = (T_static - W) v_h);
-            # its slope cx = cov(r, x) / var(x) is learned by EMA (faster while learning)
-            sh = 4 if learning else c[132]
+            # residual follows the thrust deviation x (momentum theory: dP = (T_static - W) v_h)
+            # and the lead g; slopes cx = cov(r, x) / var(x), cd = cov(r, g) / var(g), each
+            # on the residual less the other's part, learned by EMA (faster while learning)
+            sh = c[132]
+            m = drift >> 8                                # the baseline: the residual's mean
+            if learning:
+                sh = 4
+                m = l_sum // l_n if l_n else 0
+            r -= m                                        # |.| <= 2000
+            rr = r - cd * g // 64                         # |.| <= 2000 + 8000
+            if rr > 1000:
+                rr = 1000
+            elif rr < -1000:
+                rr = -1000
             sxx += (x * x - sxx) >> sh                    # 250000
-            srx += (r * x - srx) >> sh                    # 1000 * 500
+            srx += (rr * x - srx) >> sh                   # 1000 * 500
+            rr = r - cx * x // 1000                       # |.| <= 2500
+            r += m
+            sdd += (g * g - sdd) >> sh                    # 250000
+            srd += (rr * g - srd) >> sh                   # 2500 * 500
             sb[18] = sxx
             sb[19] = srx
-            if sxx > 0:
-                cx = srx * 1000 // sxx                    # 5e5 * 1000
-                if cx < 0:
-                    cx = 0
-                elif cx > 1000:
-                    cx = 1000
-                sb[20] = cx
+            sb[26] = sdd
+            sb[27] = srd
+            cx = srx * 1000 // (sxx + 100)                # 5e5 * 1000 (a ridge of 10 permille^2)
+            if cx < 0:
+                cx = 0
+            elif cx > 1000:
+                cx = 1000
+            sb[20] = cx
+            cd = srd * 64 // (sdd + 100)                  # 1.25e6 * 64 ; cd: Q6
+            if cd < 0:
+                cd = 0
+            elif cd > 1023:
+                cd = 1023
+            sb[28] = cd
+        x = cx * x // 1000 + cd * g // 64                 # the modelled part of r, |.| <= 8500
+        if x > 500:
+            x = 500
+        elif x < -500:
+            x = -500
         if learning:
             if steady:
-                r -= cx * x // 1000                       # |.| <= 1500: take the inflow part out
+                r -= x                                    # |.| <= 1500: take the modelled part out
                 l_n += 1                                  # <= 18000 (timeout / block)
                 l_sum += r                                # <= 2.7e7
-                dz = r - l_sum // l_n
-                if dz < 0:
-                    dz = -dz                              # <= 3000
-                l_dev += dz                               # <= 3.6e7
+                dz = r - l_sum // l_n                     # |.| <= 3000
+                y16 += ((dz << 4) - y16) >> 2             # smoothed deviation x 16, |.| <= 48000
+                sb[24] = y16
+                l_dev += y16 if y16 > 0 else -y16         # <= 48000 x 18000 = 8.7e8
                 l_ms += bw
                 sb[1] = l_sum
                 sb[2] = l_n
@@ -302,7 +352,7 @@ class Watch:
                 floor = c[131]
                 if l_n >= 4:
                     m = l_sum // l_n
-                    s = (l_dev // (l_n - 1)) * 321 >> 8   # mean |dev| x 1.2539 (sqrt(pi/2))
+                    s = (l_dev // l_n) * 53 >> 8          # mean |y16| / 16 x sqrt(7) x sqrt(pi/2)
                 else:
                     m = 0
                     s = floor + floor
@@ -328,7 +378,7 @@ class Watch:
                 self.scale = scale
                 self.sigma_permille = s
         elif steady:
-            z = r - (drift >> 8) - cx * x // 1000         # |.| <= 1600
+            z = r - (drift >> 8) - x                      # |.| <= 1600
             quiet = s_hi + s_lo < (h >> 1)
             cl = k + (h >> 1) + 1                         # one block adds at most this
             zc = z
@@ -354,11 +404,13 @@ class Watch:
                 floor = c[131]
                 if s < floor:
                     s = floor
-                if z < 0:
-                    z = -z
                 if z > 5 * s:
                     z = 5 * s
-                sig += (z * 80 - sig) >> c[132]           # 5000 * 80 = 4e5
+                elif z < -5 * s:
+                    z = -5 * s
+                y16 += ((z << 4) - y16) >> 2              # |.| <= 16 x 5000
+                sb[24] = y16
+                sig += ((y16 if y16 > 0 else -y16) * 53 - (sig << 2)) >> (c[132] + 2)   # 8e4 * 53 = 4.2e6
                 if sig > l_dev + l_dev:
                     sig = l_dev + l_dev                   # a slow ramp must not hide in the noise
                 sb[6] = sig
@@ -368,7 +420,8 @@ class Watch:
                 sb[7] = s * c[133] >> 8
                 sb[8] = s * c[134] >> 8
                 self.sigma_permille = s
-                # slow bounded drift of the baseline [1/256 permille]
+            if s_hi + s_lo < (h >> 1):
+                # slow bounded drift of the baseline [1/256 permille], not from a block that raised a suspicion
                 drift += ((r << 8) - drift) >> c[136]     # 1000 * 256
                 lim = c[137] << 8
                 if drift > lim:
@@ -388,7 +441,7 @@ class Watch:
                 plan = c[140]
                 # thrust from power, less the axial-flight part of the power (cx x, as above;
                 # T ~ P^(2/3) in momentum theory)
-                th -= (th // 1000) * (cx * x // 1000) * 2 // 3   # 1000 * 500 * 2
+                th -= (th // 1000) * x * 2 // 3           # 1000 * 500 * 2
                 dm = (th * 1000 // 9807 - plan) * 1000 // plan   # 1e6 * 1000 ; (1e5 + 5e5) * 1000
                 if dm > 500:
                     dm = 500

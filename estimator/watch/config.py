@@ -37,12 +37,13 @@ DEFAULTS = {
     "lag_ms": None,                 # expected-power lag: rotor spin-up + current-sensor response [ms]
                                     # (default: ROTOR_LAG_S_PER_M x diameter + SENSOR_LAG_MS)
     "block_s": 1.0,                 # energy block length [s]
-    "takeoff_s": 10.0,              # flight time after spin-up not judged (take-off) [s]
+    "takeoff_s": 20.0,              # flight time after spin-up not judged (take-off, climb-out) [s]
     "learn_s": 20.0,                # steady flight time the learning window needs [s]
     "learn_timeout_s": 60.0,        # the learning window ends by this flight time anyway [s]
     "baseline_tol": 0.10,           # learned scale further than this from 1 -> baseline_off [-]
     "noise_s": 60.0,                # in-flight noise estimate: EMA time constant [s]
-    "steady_share": 0.25,           # block expected power within this share of its slow mean: judged [-]
+    "steady_share": 0.10,           # block thrust within this share of its slow mean: judged [-]
+    "settle_s": 4.0,                # after a block beyond steady_share (a manoeuvre) not judged this long [s]
     "drift_s": 60.0,                # slow baseline tracking: EMA time constant [s]
     "drift_tol": 0.03,              # bound of the slow in-flight baseline tracking [-]
     "mass_share": 0.08,             # implied mass above planned by this share (+ margin) -> mass_high [-]
@@ -328,6 +329,8 @@ def make_config(params, vehicle=None, options=None):
     put("noise_shift", _shift(o["noise_s"] * 1000.0 / block_ms), "noise EMA over about %.0f s" % o["noise_s"])
     put("steady_permille", int(round(1000.0 * o["steady_share"])),
         "blocks whose expected power is within %.2f of the slow mean are judged" % o["steady_share"])
+    put("settle_ms", int(round(1000.0 * o["settle_s"])), "after a manoeuvre (a block beyond steady_permille) "
+        "%.1f s not judged: climbs and descents change the power at a given thrust" % o["settle_s"])
     put("drift_shift", _shift(o["drift_s"] * 1000.0 / block_ms), "baseline tracking EMA over about %.0f s" % o["drift_s"])
     put("drift_tol_permille", int(round(1000.0 * o["drift_tol"])), "baseline tracking bounded to +-%.3f" % o["drift_tol"])
     put("mass_window_ms", int(round(1000.0 * o["mass_window_s"])), "implied mass averaged over %.0f s of steady flight"
