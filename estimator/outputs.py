@@ -56,6 +56,8 @@ def write_error(path, exc):
            errno.EPERM: "not permitted", errno.ENOENT: "the folder does not exist",
            errno.ENOTDIR: "a part of the path is a file, not a folder"}.get(
         getattr(exc, "errno", None), getattr(exc, "strerror", None) or str(exc))
+    if getattr(exc, "errno", None) == errno.ENOENT and os.path.isdir(os.path.dirname(os.path.abspath(path))):
+        why = "the folder exists but takes no new files: a system folder such as /proc or /sys?"
     return InputError("%s: cannot write (%s); nothing was written: %s" % (path, why, _ANOTHER))
 
 

@@ -58,6 +58,10 @@ def parse_quantity(text, kind, what="value"):
         raise InputError("%s: cannot read %s as a number with a unit (e.g. 1%s)"
                          % (what, shorten(str(text)), DEFAULT_UNIT[kind]))
     value, suffix = float(m.group(1)), m.group(2) or DEFAULT_UNIT[kind]
+    if suffix not in table and not any(table):  # a plain number (a ratio): no unit at all
+        hint = " (%s%% is %g)" % (m.group(1), value / 100.0) if suffix in ("%", "pct") else ""
+        raise InputError("%s: %s: takes a plain number without a unit%s"
+                         % (what, shorten(str(text)), hint))
     if suffix not in table:
         raise InputError("%s: unknown unit %s in %s; use one of %s"
                          % (what, shorten(suffix), shorten(text), ", ".join(repr(u) for u in table if u)))
@@ -70,6 +74,10 @@ def parse_quantity(text, kind, what="value"):
 _SIZE = re.compile(r"^\s*((?:\d+\.?\d*|\.\d+))\s*[xX*]\s*((?:\d+\.?\d*|\.\d+))\s*([A-Za-z]*)\s*$")
 # a propeller size without a unit is in inches: the trade lists propellers that way (10x4.5)
 SIZE_DEFAULT_UNIT = "in"
+# a size without a unit above this many inches (1 m) is no multirotor propeller: most often
+# millimetres (254x114 is a 10x4.5 in propeller in mm); the largest agricultural rotors are
+# about 30-40 in (common practice)
+SIZE_BARE_MAX_IN = 40.0
 
 
 def parse_propeller_size(text, what="size"):
@@ -83,6 +91,12 @@ def parse_propeller_size(text, what="size"):
         raise InputError("%s: cannot read %s as a propeller size DIAMETERxPITCH with a unit, e.g. "
                          "\"10x4.5in\" or \"254x114mm\"" % (what, shorten(str(text))))
     unit = m.group(3) or SIZE_DEFAULT_UNIT
+    if not m.group(3) and float(m.group(1)) > SIZE_BARE_MAX_IN:
+        mm = float(m.group(1)) * 1e-3
+        raise InputError("%s: %s has no unit, so it reads as inches (%s in = %.3g m), larger than any "
+                         "multirotor propeller; did you mean %smm (%.3g m)? write the unit: \"%smm\" "
+                         "or \"%sin\"" % (what, shorten(str(text)), m.group(1), float(m.group(1)) * 0.0254,
+                                          str(text).strip(), mm, str(text).strip(), str(text).strip()))
     if unit not in _UNITS["length"]:
         raise InputError("%s: unknown unit %s in %s; use one of %s"
                          % (what, shorten(unit), shorten(text), ", ".join(repr(u) for u in _UNITS["length"])))

@@ -13,8 +13,10 @@ cells, text where a number belongs) are refused with the row number. Units that 
 likely mislabelled (voltage in mV labelled V, command in % labelled [-]) are refused.
 """
 
+import difflib
 import io
 import math
+import re
 
 from estimator.errors import InputError
 from estimator import csvtable
@@ -33,6 +35,16 @@ UNITS = {
 }
 _COMMENT_KEYS = {"density": "density", "altitude": "altitude", "temperature": "temperature",
                  "pressure": "pressure", "humidity": "percent", "diameter": "length"}
+# comment key -> estimator.vehicle.QUANTITIES name: the sensible bounds `liftcal air` applies
+_COMMENT_BOUNDS = {"density": "density", "altitude": "altitude", "temperature": "temperature",
+                   "pressure": "pressure", "humidity": "humidity", "diameter": "diameter"}
+# an unknown comment key this close to a known one (difflib ratio) is taken for a typo [-]
+TYPO_SIMILARITY = 0.75
+# a comment value that reads as one number with an optional unit ("1.19", "35C", "300 m")
+_QUANTITY_TEXT = re.compile(r"^\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*[A-Za-z%/^0-9]*\s*$")
+# the bench air from the comments and from the density comment differ by more than this:
+# the file contradicts itself [-]
+AIR_DISAGREEMENT = 0.03
 # a bench bus outside these is almost surely a unit slip (mV labelled V, or V labelled mV);
 # the top allows 40 lithium cells in series (4.35 V each, high-voltage cells) [V]
 BUS_VOLTAGE_RANGE_V = (1.0, 200.0)
@@ -57,13 +69,35 @@ def _sha256(path):
 EXAMPLE_HEADER = "command[-],voltage[V],current[A],thrust[N]"
 
 
-def _read_head(path):
-    """Return (comment dict, header cells, number of lines before the data)."""
+def _read_head(path, warnings=None):
+    """Return (comment dict, header cells, number of lines before the data).
+
+    The comment dict maps each known key to (value in SI, where: 'FILE: line N: # key');
+    values outside the sensible bounds `liftcal air` applies are refused (vehicle.
+    check_quantity), an unknown key close to a known one is refused as a typo, and any
+    other unknown key whose value reads as a quantity is named in ``warnings``.
+    """
+    from estimator.vehicle import check_quantity
+
     head = csvtable.read_head(path, "a bench CSV", EXAMPLE_HEADER)
-    comments = {}
+    comments, unread = {}, []
+    known = ", ".join(sorted(_COMMENT_KEYS))
     for key, (value, line_no) in head.comments.items():
+        where = "%s: line %d: # %s" % (path, line_no, key)
         if key in _COMMENT_KEYS:
-            comments[key] = parse_quantity(value, _COMMENT_KEYS[key], "%s: line %d: # %s" % (path, line_no, key))
+            si = parse_quantity(value, _COMMENT_KEYS[key], where)
+            check_quantity(_COMMENT_BOUNDS[key], si, value, where)
+            comments[key] = (si, where)
+            continue
+        typo = difflib.get_close_matches(key, list(_COMMENT_KEYS), n=1, cutoff=TYPO_SIMILARITY)
+        if typo:
+            raise InputError("%s: unknown comment key; did you mean '# %s'? (the keys a bench CSV's "
+                             "comments may give: %s)" % (where, typo[0], known))
+        if _QUANTITY_TEXT.match(value) and " " not in key:
+            unread.append("'# %s' (line %d)" % (key, line_no))
+    if unread and warnings is not None:
+        warnings.append("%s: comment %s not read: the keys liftcal reads are %s"
+                        % (path, ", ".join(unread), known))
     return comments, head, head.line
 
 
@@ -123,8 +157,10 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     """
     import numpy as np
 
-    comments, head, header_line = _read_head(path)
+    comment_warnings = []
+    comments, head, header_line = _read_head(path, comment_warnings)
     columns, warnings = _parse_header(path, head)
+    warnings = comment_warnings + list(warnings)
     ncols = len(head.cells)
     table = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED])
     digest = _sha256(path)
@@ -173,8 +209,8 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
 
     air = _bench_air(path, comments, density_kg_m3, altitude_m, temperature_C, pressure_Pa,
                      humidity_pct, warnings)
-    if diameter_m is None:
-        diameter_m = comments.get("diameter")
+    if diameter_m is None and "diameter" in comments:
+        diameter_m = comments["diameter"][0]
     if diameter_m is not None and not (0.01 <= diameter_m <= 3.0):
         raise InputError("%s: propeller diameter %.4g m is outside 0.01..3 m; give it as e.g. "
                          "'# diameter: 10in' or '--diameter 0.254'" % (path, diameter_m))
@@ -281,29 +317,59 @@ def _check_units(path, data, v_med=None, extremes=None):
 
 
 def _bench_air(path, comments, density, altitude, temperature, pressure, humidity, warnings):
-    """Bench air density from options, then the comment header, else ISA sea level with a warning."""
-    from estimator.core.atmosphere import site_air
+    """Bench air density from the options, else the comment header, else ISA sea level.
 
-    def air_from(altitude_m, temperature_C, pressure_Pa, humidity):
-        try:
-            return site_air(altitude_m, temperature_C, pressure_Pa, humidity)["density_kg_m3"]
-        except ValueError as exc:
-            raise InputError("%s: bench air: %s" % (path, exc)) from None
+    Options (already range-checked by the command's types) override the comments key by
+    key; --density together with --altitude/--temperature/--pressure/--humidity is refused
+    (which one would be meant?), as is a '# density' comment that contradicts the file's
+    own altitude/temperature/pressure comments by more than AIR_DISAGREEMENT. Any one of
+    altitude, temperature, pressure or humidity is enough: the others come from the standard
+    atmosphere, and the warning says which were assumed. Returns {density_kg_m3, source}.
+    """
+    from estimator.core.atmosphere import AirInputError, site_air
+    from estimator.vehicle import check_quantity
 
+    options = {"altitude": altitude, "temperature": temperature, "pressure": pressure,
+               "humidity": humidity}
+    given = {k: v for k, v in options.items() if v is not None}
+    if density is not None and given:
+        raise InputError("--density: give either --density or --%s, not both (the density "
+                         "already holds the bench air)" % "/--".join(sorted(given)))
     if density is not None:
-        rho, source = density, "option --density"
-    elif altitude is not None or pressure is not None or temperature is not None:
-        rho = air_from(altitude if altitude is not None else comments.get("altitude", 0.0),
-                       temperature if temperature is not None else comments.get("temperature"),
-                       pressure if pressure is not None else comments.get("pressure"),
-                       humidity if humidity is not None else comments.get("humidity", 0.0))
-        source = "options (altitude/temperature/pressure), file comments for the rest"
+        return {"density_kg_m3": float(check_quantity("density", density)), "source": "option --density"}
+    where = {k: "--" + k for k in given}
+    for key in options:
+        if key not in given and key in comments:
+            given[key], where[key] = comments[key]
+    if given:
+        try:
+            rho = site_air(given.get("altitude", 0.0), given.get("temperature"), given.get("pressure"),
+                           given.get("humidity", 0.0))["density_kg_m3"]
+        except AirInputError as exc:
+            at = where.get(exc.quantity) or ", ".join(where[k] for k in sorted(where))
+            raise InputError("%s: bench air: %s" % (at, exc)) from None
+        opts = ["--" + k for k in sorted(given) if where[k].startswith("--")]
+        notes = ["# " + k for k in sorted(given) if not where[k].startswith("--")]
+        named = " and ".join(x for x in ("options (%s)" % ", ".join(opts) if opts else "",
+                                          "file comments (%s)" % ", ".join(notes) if notes else "") if x)
+        source = named + ", standard atmosphere for the rest"
+        if "altitude" not in given and "pressure" not in given:
+            warnings.append("bench air: no altitude or pressure given, so sea-level standard pressure "
+                            "is assumed with the %s given by the %s; add '# altitude: M' to the CSV"
+                            % (" and ".join(sorted(given)), named))
+        if "density" in comments and any(w.startswith("--") for w in where.values()):
+            warnings.append("%s: not used: the bench air options (%s) describe the air instead"
+                            % (comments["density"][1], ", ".join(w for w in where.values() if w.startswith("--"))))
+        elif "density" in comments:
+            stated, at = comments["density"]
+            if abs(stated / rho - 1.0) > AIR_DISAGREEMENT:
+                raise InputError("%s: %.4g kg/m^3, but the file's own comments (%s) give %.4g kg/m^3 "
+                                 "(%.0f %% apart): keep the one that describes the bench"
+                                 % (at, stated, ", ".join("# " + k for k in sorted(given)), rho,
+                                    100.0 * abs(stated / rho - 1.0)))
+            rho, source = stated, "file comment '# density' (agrees with the file's %s)" % ", ".join(sorted(given))
     elif "density" in comments:
-        rho, source = comments["density"], "file comment '# density'"
-    elif "altitude" in comments or "pressure" in comments:
-        rho = air_from(comments.get("altitude", 0.0), comments.get("temperature"),
-                       comments.get("pressure"), comments.get("humidity", 0.0))
-        source = "file comments (altitude/temperature/pressure)"
+        rho, source = comments["density"][0], "file comment '# density'"
     else:
         rho, source = 1.225, "assumed: ISA sea level (no bench air given)"
         warnings.append("no bench air in the file or options; assumed ISA sea level 1.225 kg/m^3 "

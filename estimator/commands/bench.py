@@ -8,7 +8,7 @@ import os
 import click
 
 from estimator.cautions import SHORT, cautions
-from estimator.commands.options import Number, Quantity
+from estimator.commands.options import Bounded, Number
 from estimator.jsonio import dumps
 
 BENCH_CAUTIONS = cautions("settings")
@@ -96,14 +96,17 @@ def _human_fit(params, out_file):
               help="Where to write the parameter set (written atomically).")
 @click.option("--vehicle", "vehicle_file", default=None, metavar="VEHICLE.json",
               help="Add hover values and rotor count for this vehicle at its site.")
-@click.option("--diameter", type=Quantity("length", positive=True), default=None,
+@click.option("--diameter", type=Bounded("length", "diameter", positive=True), default=None,
               help="Propeller diameter (e.g. 10in, 0.254); else '# diameter:' in the CSV or the vehicle.")
-@click.option("--density", type=Quantity("density", positive=True), default=None,
-              help="Bench air density [kg/m^3]; overrides the CSV comments.")
-@click.option("--altitude", type=Quantity("altitude"), default=None, help="Bench altitude (e.g. 300m).")
-@click.option("--temperature", type=Quantity("temperature"), default=None, help="Bench air temperature (e.g. 21C).")
-@click.option("--pressure", type=Quantity("pressure", positive=True), default=None, help="Bench station pressure.")
-@click.option("--humidity", type=Quantity("percent"), default=None, help="Bench relative humidity (e.g. 40%).")
+@click.option("--density", type=Bounded("density", "density", positive=True), default=None,
+              help="Bench air density [kg/m^3]; overrides the CSV comments (not with --altitude etc.).")
+@click.option("--altitude", type=Bounded("altitude", "altitude"), default=None, help="Bench altitude (e.g. 300m).")
+@click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
+              help="Bench air temperature (e.g. 21C).")
+@click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
+              help="Bench station pressure (e.g. 1013hPa), not sea-level QNH.")
+@click.option("--humidity", type=Bounded("percent", "humidity"), default=None,
+              help="Bench relative humidity (e.g. 40%).")
 @click.option("--voltage-exponent", type=Number((0.5, 3.0, "the parameter set's bounds, "
                                                  "schemas/params.schema.json")), default=None,
               help="Fix the voltage exponent n instead of fitting it.")

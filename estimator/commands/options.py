@@ -32,6 +32,14 @@ class Quantity(click.ParamType):
         return si
 
 
+def _unit_in_name(param):
+    """The unit an option's name ends with (--lag-ms -> 'ms'), or None."""
+    opts = getattr(param, "opts", None) or []
+    name = opts[0] if opts else ""
+    tail = name.rsplit("-", 1)[-1] if name.count("-") > 2 else ""
+    return tail if tail in ("ms", "s", "us", "V", "A", "W", "N", "m", "Hz") else None
+
+
 class Number(click.ParamType):
     """A plain finite number, optionally within bounds; the error names the option.
 
@@ -53,10 +61,16 @@ class Number(click.ParamType):
         if isinstance(value, float) and math.isfinite(value):
             number = value
         else:
+            text = str(value).strip()
+            unit = _unit_in_name(param)
+            if unit and text.endswith(unit) and text[: -len(unit)].strip():
+                text = text[: -len(unit)].strip()  # "60ms" for --lag-ms: the unit its name says
             try:
-                number = float(str(value).strip())
+                number = float(text)
             except ValueError:
-                self.fail("%s is not a number" % shorten(str(value)), param, ctx)
+                self.fail("%s is not a number%s" % (shorten(str(value)),
+                                                    "; this option takes a plain number in %s (its name "
+                                                    "gives the unit)" % unit if unit else ""), param, ctx)
             if not math.isfinite(number):
                 self.fail("%s is not a finite number (NaN and infinity are refused)" % shorten(str(value)),
                           param, ctx)
@@ -65,3 +79,27 @@ class Number(click.ParamType):
             if not lo <= number <= hi:
                 self.fail("%g is outside %g..%g (%s)" % (number, lo, hi, source), param, ctx)
         return number
+
+
+class Bounded(Quantity):
+    """A Quantity that also refuses values outside the sensible bounds of ``quantity``.
+
+    The bounds live in schemas/vehicle.schema.json (estimator.vehicle.QUANTITIES); a bare
+    number outside them gets the likely unit slip named ("10 m: did you mean 10in?").
+    """
+
+    def __init__(self, kind, quantity, positive=False):
+        Quantity.__init__(self, kind, positive)
+        self.quantity = quantity
+
+    def convert(self, value, param, ctx):
+        si = Quantity.convert(self, value, param, ctx)
+        if si is not None:
+            from estimator.vehicle import check_quantity
+
+            what = param.opts[0] if param is not None and param.opts else None
+            typed = value if isinstance(value, str) else None
+            check_quantity(self.quantity, si, typed, what)
+            if ctx is not None:  # what was typed, for checks across options (disk loading)
+                ctx.meta["liftcal.typed." + self.quantity] = typed
+        return si

@@ -6,34 +6,10 @@ hover sheet). Imports stay light: no numpy, no matplotlib.
 
 import click
 
-from estimator.commands.options import Quantity
+from estimator.commands.options import Bounded, Quantity
 from estimator.errors import InputError
 from estimator.jsonio import dumps
 
-
-
-class Bounded(Quantity):
-    """A Quantity that also refuses values outside the sensible bounds of ``quantity``.
-
-    The bounds live in schemas/vehicle.schema.json (estimator.vehicle.QUANTITIES); a bare
-    number outside them gets the likely unit slip named ("10 m: did you mean 10in?").
-    """
-
-    def __init__(self, kind, quantity, positive=False):
-        Quantity.__init__(self, kind, positive)
-        self.quantity = quantity
-
-    def convert(self, value, param, ctx):
-        si = Quantity.convert(self, value, param, ctx)
-        if si is not None:
-            from estimator.vehicle import check_quantity
-
-            what = param.opts[0] if param is not None and param.opts else None
-            typed = value if isinstance(value, str) else None
-            check_quantity(self.quantity, si, typed, what)
-            if ctx is not None:  # what was typed, for checks across options (disk loading)
-                ctx.meta["liftcal.typed." + self.quantity] = typed
-        return si
 
 
 def _air(altitude_m, temperature_C, pressure_Pa, humidity_pct):
