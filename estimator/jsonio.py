@@ -299,10 +299,9 @@ def save_figure_atomic(fig, path, dpi=110):
 def write_json_atomic(path, document, kind=None):
     """Write a JSON document atomically with a stable, readable layout (as write_atomic);
     one liftcal would refuse to read back (jsonread.check_values) is refused instead."""
-    from estimator.jsonread import check_values
+    from estimator.outputs import write_json
 
-    check_values(document, path)
-    write_atomic(path, json.dumps(document, indent=2, sort_keys=False, allow_nan=False) + "\n", kind)
+    write_json(path, document, kind)
 
 
 def dumps(document):

@@ -9,6 +9,8 @@ How liftcal knows its own files (marks written into every file it writes):
   kind "params"    JSON parameter set: "model": "liftcal.rotor/..." and provenance.tool_version
   kind "settings"  export file: first line "# liftcal settings ..." or JSON with
                    "model": "liftcal.settings/..."
+                   (both kinds also carry a content seal, estimator.seal: a file edited after
+                   liftcal wrote it, or one without a seal, is treated as the person's)
   kind "png"       PNG figure whose tEXt "Software" chunk starts with "liftcal"
   folders          (board bundle, demo) hold a manifest FOLDER_MANIFEST listing every file
                    with its SHA-256; a folder is liftcal's own only when every file in it is
@@ -42,6 +44,8 @@ SETTINGS_MARK = "# liftcal settings"
 KIND_NAMES = {"params": "a liftcal parameter set", "settings": "a liftcal settings file",
               "png": "a liftcal figure (PNG)", "bundle": "a liftcal board bundle",
               "demo": "a liftcal demo folder"}
+# kinds whose files carry a content seal (estimator.seal): an edited one is never replaced
+SEALED_KINDS = ("params", "settings")
 _PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 _ANOTHER = "name another path"
 
@@ -179,7 +183,29 @@ def check_output(path, kind, inputs=(), option="--out"):
     if found != kind:
         raise InputError("%s: is %s, and this would write %s over it: %s"
                          % (where, KIND_NAMES[found], KIND_NAMES[kind].replace("liftcal ", ""), _ANOTHER))
+    if kind in SEALED_KINDS:
+        _check_seal(path, where)
     return os.path.abspath(path)
+
+
+def _check_seal(path, where):
+    """Refuse a liftcal file whose content seal (estimator.seal) is missing or broken."""
+    from estimator.seal import seal_state
+
+    try:
+        with open(path, "rb") as fh:
+            state = seal_state(fh.read().decode("utf-8"))[0]
+    except (OSError, UnicodeDecodeError):
+        state = "broken"
+    if state == "broken":
+        raise InputError("%s: liftcal wrote this file but it was changed since (its content seal "
+                         "no longer matches); liftcal never replaces a file that holds a person's "
+                         "edits: %s (or move that file away)" % (where, _ANOTHER))
+    if state is None:
+        raise InputError("%s: this liftcal file carries no content seal (an older liftcal wrote it, "
+                         "or it was copied or made by hand), so liftcal cannot tell whether it holds "
+                         "a person's edits and does not replace it: %s (or move that file away)"
+                         % (where, _ANOTHER))
 
 
 def check_outputs(outputs, inputs=()):
@@ -363,7 +389,13 @@ def _replace_atomic(path, kind, write):
 
 
 def write_text(path, text, kind):
-    """Write ``text`` (UTF-8) to ``path`` atomically after check_output(path, kind)."""
+    """Write ``text`` (UTF-8) to ``path`` atomically after check_output(path, kind); files of
+    the SEALED_KINDS get their content seal (estimator.seal)."""
+    if kind in SEALED_KINDS:
+        from estimator.seal import seal_text
+
+        text = seal_text(text)
+
     def write(fd, tmp):
         with os.fdopen(fd, "w", encoding="utf-8") as fh:
             fh.write(text)
@@ -377,8 +409,10 @@ def write_json(path, document, kind):
     """Write a JSON document atomically (indented) after check_output; a document liftcal
     would refuse to read back (NaN, a number of absurd magnitude) is refused instead."""
     from estimator.jsonread import check_values
+    from estimator.seal import SEAL_KEY
 
     check_values(document, path)
+    document = {k: v for k, v in document.items() if k != SEAL_KEY}  # a set read back: sealed anew
     write_text(path, json.dumps(document, indent=2, allow_nan=False) + "\n", kind)
 
 

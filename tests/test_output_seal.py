@@ -1,0 +1,87 @@
+"""A file liftcal wrote and a person then edited is never replaced (design notes sec. 4).
+
+Parameter sets and settings files carry a content seal (estimator.seal): SHA-256 of the file's
+own text with the seal digits zeroed. The seal is checked here against hashlib's SHA-256
+(FIPS 180-4) recomputed in the test, and through the commands: a second `fit --out` or
+`export --out` over an untouched file replaces it; over an edited one, or one without a seal,
+it stops with one error line, exit 2, and the file's bytes are unchanged.
+"""
+
+import hashlib
+import json
+import os
+import shutil
+
+from click.testing import CliRunner
+
+from estimator.cli import cli
+from estimator.demo.ramp_sweep import ramp_sweep_rows, write_ramp_csv
+from estimator.jsonread import load as load_strict_json
+from estimator.seal import seal_state, seal_text
+
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+EXAMPLE = os.path.join(ROOT, "schemas", "examples", "valid", "params-demo-with-hover.json")
+
+
+def run(*args):
+    return CliRunner().invoke(cli, [str(a) for a in args], catch_exceptions=False)
+
+
+def _sweep(tmp_path):
+    path = tmp_path / "sweep.csv"
+    write_ramp_csv(str(path), ramp_sweep_rows(3000, seed=5), "invented sweep for the seal test")
+    return path
+
+
+def test_seal_is_the_sha256_of_the_text_with_its_digits_zeroed():
+    for text in ('{\n  "a": 1,\n  "b": [1, 2]\n}\n', "# liftcal settings x\nthrust  1.0 N\n"):
+        sealed = seal_text(text)
+        hexes = [w.strip('",') for w in sealed.split() if len(w.strip('",')) == 64]
+        assert len(hexes) == 1
+        zeroed = sealed.replace(hexes[0], "0" * 64)
+        assert hexes[0] == hashlib.sha256(zeroed.encode("utf-8")).hexdigest()
+        assert seal_state(sealed)[0] == "intact"
+        assert seal_state(sealed.replace("1", "2", 1))[0] == "broken"
+        assert seal_state(text)[0] is None
+    assert json.loads(seal_text('{"a": 1}'))["a"] == 1
+
+
+def test_fit_replaces_its_own_untouched_set_and_refuses_an_edited_one(tmp_path):
+    sweep, out = _sweep(tmp_path), tmp_path / "p.json"
+    first = run("fit", sweep, "--diameter", "10in", "--out", out)
+    assert first.exit_code == 0, first.stderr
+    doc = load_strict_json(str(out))
+    assert len(doc["content_sha256"]) == 64
+    assert run("check", out).exit_code == 0                       # the schema knows the seal
+    again = run("fit", sweep, "--diameter", "10in", "--out", out)  # untouched: replaced
+    assert again.exit_code == 0, again.stderr
+    text = out.read_text()
+    edited = text.replace('"thrust_max_N": ', '"thrust_max_N": 1', 1)  # a person's edit
+    assert edited != text
+    out.write_text(edited)
+    res = run("fit", sweep, "--diameter", "10in", "--out", out)
+    assert res.exit_code == 2
+    assert res.stderr.startswith("error: ") and res.stderr.count("\n") == 1
+    assert "changed since" in res.stderr
+    assert out.read_text() == edited
+
+
+def test_a_set_without_a_seal_is_not_replaced(tmp_path):
+    sweep, out = _sweep(tmp_path), tmp_path / "p.json"
+    shutil.copy(EXAMPLE, out)
+    before = out.read_bytes()
+    res = run("fit", sweep, "--diameter", "10in", "--out", out)
+    assert res.exit_code == 2 and "no content seal" in res.stderr
+    assert out.read_bytes() == before
+
+
+def test_export_settings_lines_are_sealed_too(tmp_path):
+    out = tmp_path / "settings.txt"
+    assert run("export", EXAMPLE, "--out", out).exit_code == 0
+    assert out.read_text().splitlines()[-1].startswith("# content sha256: ")
+    assert run("export", EXAMPLE, "--out", out).exit_code == 0
+    out.write_text(out.read_text().replace("\n", "\r\n"))       # an editor changed line endings
+    before = out.read_bytes()
+    res = run("export", EXAMPLE, "--out", out)
+    assert res.exit_code == 2 and "changed since" in res.stderr
+    assert out.read_bytes() == before
