@@ -226,8 +226,13 @@ def check_params(document, source):
 
 
 def load_params(path):
-    """Read and validate a parameter-set file; returns the dict or raises InputError."""
-    return check_params(load_json(path), path)
+    """Read and validate a parameter-set file; returns the dict (without the file's content
+    seal, estimator.seal: a property of the file, not of the set) or raises InputError."""
+    from estimator.seal import SEAL_KEY
+
+    params = check_params(load_json(path), path)
+    params.pop(SEAL_KEY, None)
+    return params
 
 
 def write_params(path, params):
