@@ -12,25 +12,21 @@ How liftcal knows its own files (marks written into every file it writes):
                    (both kinds also carry a content seal, estimator.seal: a file edited after
                    liftcal wrote it, or one without a seal, is treated as the person's)
   kind "png"       PNG figure whose tEXt "Software" chunk starts with "liftcal"
-  folders          (board bundle, demo) hold a manifest FOLDER_MANIFEST listing every file
-                   with its SHA-256; a folder is liftcal's own only when every file in it is
-                   listed and unchanged (a file the person edited or added keeps it theirs)
+  folders          (board bundle, demo): estimator.folders
 
 Writes go to a temporary file in the target folder, then os.replace: never a partial file;
 any failure (permission, full disk, missing folder) is one InputError and the temporary file
 is removed.
 
 API: check_output(path, kind, inputs, option) -> absolute path; check_outputs(list of
-(path, kind, option), inputs); check_folder(path, kind, inputs, option) -> "new" | "empty" |
-"own"; write_text(path, text, kind), write_json(path, document, kind),
-save_figure(fig, path); write_manifest(folder, kind); replace_folder(staged, target);
+(path, kind, option), inputs); write_text(path, text, kind), write_json(path, document, kind),
+save_figure(fig, path); own_file(path); file_sha256(path);
 write_error(path, exc) -> InputError for an OSError met while writing.
 """
 
 import hashlib
 import json
 import os
-import shutil
 import stat
 import tempfile
 
@@ -38,7 +34,6 @@ from estimator import __version__
 from estimator.errors import InputError
 from estimator.safepath import special_kind
 
-FOLDER_MANIFEST = ".liftcal-folder.json"
 SOFTWARE = "liftcal %s" % __version__
 SETTINGS_MARK = "# liftcal settings"
 KIND_NAMES = {"params": "a liftcal parameter set", "settings": "a liftcal settings file",
@@ -188,15 +183,26 @@ def check_output(path, kind, inputs=(), option="--out"):
     return os.path.abspath(path)
 
 
-def _check_seal(path, where):
-    """Refuse a liftcal file whose content seal (estimator.seal) is missing or broken."""
+def seal_of(path):
+    """"intact", "broken" or None (no seal) for the file at ``path`` (estimator.seal)."""
     from estimator.seal import seal_state
 
     try:
         with open(path, "rb") as fh:
-            state = seal_state(fh.read().decode("utf-8"))[0]
+            return seal_state(fh.read().decode("utf-8"))[0]
     except (OSError, UnicodeDecodeError):
-        state = "broken"
+        return "broken"
+
+
+def own_file(path):
+    """True when liftcal's mark is on the file and, for SEALED_KINDS, its seal is intact."""
+    kind = file_kind(path)
+    return kind is not None and (kind not in SEALED_KINDS or seal_of(path) == "intact")
+
+
+def _check_seal(path, where):
+    """Refuse a liftcal file whose content seal (estimator.seal) is missing or broken."""
+    state = seal_of(path)
     if state == "broken":
         raise InputError("%s: liftcal wrote this file but it was changed since (its content seal "
                          "no longer matches); liftcal never replaces a file that holds a person's "
@@ -227,142 +233,12 @@ def file_sha256(path):
     return _digest(path)
 
 
-def publish_folder(staged, target, kind):
-    """Write the manifest into a staged folder and rename it into place; a failed write is one
-    InputError naming the target (the caller removes the staged folder on any failure)."""
-    try:
-        write_manifest(staged, kind)
-    except OSError as exc:
-        raise write_error(target, exc) from None
-    replace_folder(staged, target)
-
-
 def _digest(path):
     h = hashlib.sha256()
     with open(path, "rb") as fh:
         for block in iter(lambda: fh.read(1 << 20), b""):
             h.update(block)
     return h.hexdigest()
-
-
-def _tree(folder):
-    """{relative path: sha256, or None for what is no regular file} of everything in folder."""
-    out = {}
-    for base, dirs, files in os.walk(folder):
-        for name in dirs + files:
-            full = os.path.join(base, name)
-            rel = os.path.relpath(full, folder).replace(os.sep, "/")
-            st = os.lstat(full)
-            if stat.S_ISDIR(st.st_mode):
-                continue
-            out[rel] = _digest(full) if stat.S_ISREG(st.st_mode) else None
-    return out
-
-
-def folder_files(folder):
-    """{relative path: sha256} of the files in a folder liftcal writes (manifest excluded)."""
-    return {rel: digest for rel, digest in _tree(folder).items() if rel != FOLDER_MANIFEST}
-
-
-def write_manifest(folder, kind):
-    """Write FOLDER_MANIFEST into ``folder`` listing every file now in it (call it last)."""
-    doc = {"written_by": SOFTWARE, "kind": kind,
-           "note": "liftcal replaces this folder only while every file is listed here unchanged",
-           "files": folder_files(folder)}
-    with open(os.path.join(folder, FOLDER_MANIFEST), "w", encoding="utf-8") as fh:
-        fh.write(json.dumps(doc, indent=1, sort_keys=True) + "\n")
-
-
-def _foreign(folder, kind):
-    """The first entry of ``folder`` that makes it not liftcal's own of ``kind``, or None."""
-    try:
-        with open(os.path.join(folder, FOLDER_MANIFEST), "r", encoding="utf-8") as fh:
-            manifest = json.load(fh)
-    except (OSError, ValueError):
-        manifest = None
-    tree = _tree(folder)
-    if not isinstance(manifest, dict) or manifest.get("kind") != kind \
-            or not isinstance(manifest.get("files"), dict):
-        others = sorted(rel for rel in tree if rel != FOLDER_MANIFEST)
-        return others[0] if others else FOLDER_MANIFEST
-    listed = manifest["files"]
-    vouched = _own_subfolders(folder, tree)
-    foreign = []
-    for rel, digest in sorted(tree.items()):
-        if rel == FOLDER_MANIFEST or rel.endswith("/" + FOLDER_MANIFEST) \
-                or any(rel.startswith(sub + "/") for sub in vouched):
-            continue  # manifests are liftcal's; a vouched subfolder's files too
-        if rel in listed and digest is not None and listed[rel] == digest:
-            continue
-        if digest is not None and file_kind(os.path.join(folder, rel)) is not None:
-            continue  # rewritten by a liftcal command since (fit --out, --plot, export --out)
-        foreign.append(rel)
-    # name a file liftcal never listed before one it listed and that changed
-    unknown = [rel for rel in foreign if rel not in listed]
-    return (unknown or foreign or [None])[0]
-
-
-def _own_subfolders(folder, tree):
-    """Subfolders holding a manifest that vouches for all their files (a bundle rewritten by
-    ``liftcal firmware`` inside a demo folder)."""
-    subs = []
-    for rel in tree:
-        if rel.endswith("/" + FOLDER_MANIFEST):
-            sub = rel[: -len(FOLDER_MANIFEST) - 1]
-            try:
-                with open(os.path.join(folder, rel), "r", encoding="utf-8") as fh:
-                    kind = json.load(fh).get("kind")
-            except (OSError, ValueError, AttributeError):
-                continue
-            if kind in KIND_NAMES and _foreign(os.path.join(folder, sub), kind) is None:
-                subs.append(sub)
-    return subs
-
-
-def check_folder(path, kind, inputs=(), option="--out"):
-    """Refuse an output folder liftcal must not replace; returns "new", "empty" or "own".
-
-    A new folder needs its parent to exist; an existing one must be empty or liftcal's own
-    of this ``kind`` ("bundle", "demo"), with every file listed unchanged in its manifest,
-    and hold none of the command's inputs.
-    """
-    if path is None or str(path) == "":
-        raise InputError("%s: an empty path was given; name a folder to write" % option)
-    path = os.fspath(path)
-    where = "%s %s" % (option, path)
-    full = os.path.abspath(path)
-    st = _lstat(full, where)
-    if st is None:
-        parent = os.path.dirname(full)
-        if not os.path.lexists(parent):
-            raise InputError("%s: folder %s does not exist; create it first or %s"
-                             % (where, parent, _ANOTHER))
-        if not os.path.isdir(parent):
-            raise InputError("%s: %s is a file, not a folder: %s" % (where, parent, _ANOTHER))
-        return "new"
-    if stat.S_ISLNK(st.st_mode):
-        raise InputError("%s: is a symbolic link; name the folder itself or another path" % where)
-    if not stat.S_ISDIR(st.st_mode):
-        what = "a file" if stat.S_ISREG(st.st_mode) else special_kind(st.st_mode)
-        raise InputError("%s: is %s, not a folder; liftcal writes %s into a new or empty folder: "
-                         "name another path" % (where, what, KIND_NAMES[kind].replace("liftcal ", "")))
-    if full == os.path.abspath(os.sep):
-        raise InputError("%s: is the root folder: name a new folder" % where)
-    for given in inputs:
-        if given is not None and os.path.realpath(str(given)).startswith(os.path.realpath(full) + os.sep):
-            raise InputError("%s: holds an input of this command (%s); name another folder" % (where, given))
-    try:
-        if not os.listdir(full):
-            return "empty"
-        foreign = _foreign(full, kind)
-    except OSError as exc:
-        raise InputError("%s: cannot look into this folder (%s): name another path"
-                         % (where, exc.strerror)) from None
-    if foreign is None:
-        return "own"
-    raise InputError("%s: holds files liftcal did not write or that were changed since (%s); "
-                     "liftcal writes %s into a new or empty folder, or replaces one it wrote: "
-                     "name another folder" % (where, foreign[:60], KIND_NAMES[kind].replace("liftcal ", "")))
 
 
 def _replace_atomic(path, kind, write):
@@ -425,31 +301,3 @@ def save_figure(fig, path, dpi=110):
             os.fsync(fh.fileno())
 
     _replace_atomic(path, "png", write)
-
-
-def replace_folder(staged, target):
-    """Put the finished folder ``staged`` at ``target`` (new, empty or liftcal's own, checked
-    by the caller): rename the old one aside, rename the new one in, remove the old one."""
-    old = None
-    try:
-        if os.path.lexists(target):
-            old = target + ".old-" + os.path.basename(staged)
-            os.rename(target, old)
-        os.rename(staged, target)
-    except OSError as exc:
-        if old is not None and not os.path.exists(target):
-            os.rename(old, target)
-        raise write_error(target, exc) from None
-    if old is not None:
-        shutil.rmtree(old, ignore_errors=True)
-
-
-def staging_folder(target):
-    """A new temporary folder beside ``target`` to build it in (InputError when impossible)."""
-    parent = os.path.dirname(os.path.abspath(target))
-    try:
-        tmp = tempfile.mkdtemp(prefix=".liftcal-", dir=parent)
-        os.chmod(tmp, 0o755)
-    except OSError as exc:
-        raise write_error(target, exc) from None
-    return tmp

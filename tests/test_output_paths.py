@@ -17,7 +17,8 @@ import pytest
 
 from estimator.demo.bench_sim import simulate_sweep
 from estimator.demo.flight_sim import simulate_flight
-from estimator.outputs import FOLDER_MANIFEST, check_folder, file_kind, write_manifest
+from estimator.folders import FOLDER_MANIFEST, check_folder, write_manifest
+from estimator.outputs import file_kind
 from io_helpers import PARAMS, ROOT, VEHICLE, refused, run, tree_digest
 
 
@@ -130,6 +131,13 @@ def test_demo_replaces_its_own_folder_unless_changed(tmp_path, bench_csv):
     _ok(["fit", out / "bench.csv", "--vehicle", out / "vehicle.json", "--out", out / "params.json"])
     _ok(["firmware", out / "params.json", "--out", out / "board"])
     # (a second demo run would replace it: the guard says so; the run itself takes half a minute)
+    assert check_folder(str(out), "demo") == "own"
+    # a parameter set rewritten by fit and then edited by hand is the person's (its content
+    # seal no longer matches, estimator/seal.py), though it still carries liftcal's mark
+    kept = (out / "params.json").read_text()
+    (out / "params.json").write_text(kept.replace('"thrust_max_N": ', '"thrust_max_N": 1', 1))
+    refused(["demo", "--out", out], "params.json")
+    (out / "params.json").write_text(kept)
     assert check_folder(str(out), "demo") == "own"
     # a file the person edited or added makes it theirs
     (out / "vehicle.json").write_text('{"edited": true}')

@@ -48,9 +48,9 @@ def run_demo(out_dir, seed=1, emit=None):
 
     ``emit``, when given, is called with each piece of text as soon as its step is done.
     """
-    from estimator.outputs import check_folder, publish_folder, staging_folder
+    from estimator.folders import check_folder, publish_folder, staging_folder
 
-    # a new or empty folder, or one an earlier demo wrote and nobody changed (outputs.py); the
+    # a new or empty folder, or one an earlier demo wrote and nobody changed (folders.py); the
     # files are made in a folder beside it and renamed into place at the end: never half a demo
     check_folder(out_dir, "demo")
     work = staging_folder(out_dir)

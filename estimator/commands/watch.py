@@ -60,7 +60,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
     """
     from estimator.watch.bundle import write_bundle
 
-    from estimator.outputs import check_folder
+    from estimator.folders import check_folder
 
     check_folder(out_dir, "bundle", inputs=(params_file, vehicle_file))
     params, vehicle = _load(params_file, vehicle_file)

@@ -107,10 +107,11 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
     Summary: out_dir, files (relative), mpy_bytes (total size of the .mpy files), config.
     Raises InputError (nothing written) on bad input or an occupied out_dir.
     """
-    from estimator.outputs import check_folder, publish_folder, staging_folder, write_error
+    from estimator.folders import check_folder, publish_folder, staging_folder
+    from estimator.outputs import write_error
 
     config, notes = make_config(params, vehicle, options)
-    check_folder(out_dir, "bundle")  # new, empty or an unchanged earlier bundle (outputs.py)
+    check_folder(out_dir, "bundle")  # new, empty or an unchanged earlier bundle (folders.py)
     out_dir = os.path.abspath(out_dir)
     tmp = staging_folder(out_dir)
     try:
