@@ -183,6 +183,18 @@ def test_stuck_current_reading_is_a_sensor_fault():
     assert all(w.update(100, 0, 16000, 120) & 4 == 0 for _ in range(200))
 
 
+def test_current_noise_near_zero_on_a_large_sensor_is_not_a_fault():
+    # A 12-bit converter over a 400 A range steps 400 / 4096 = 98 mA; at rest its reading
+    # scatters by a few steps around zero (the sensor's offset and noise). The old fixed -0.2 A
+    # limit called 3 steps below zero a sensor fault on a healthy large vehicle at power-up.
+    # The default limit is 1 % of the current range (at least 0.2 A); a reversed or broken
+    # sensor (amperes negative) is still a fault.
+    cfg = big_config()
+    w = Watch(as_tuple(cfg))
+    assert all(w.update(100, 0, 48000, -3 * 98) & 4 == 0 for _ in range(20))
+    assert w.update(100, 0, 48000, -20000) & 4
+
+
 def _float_thrust_total_N(power_W, params, n, rho):
     """Reference: solve T = k(T) (2 rho A (P/N)^2)^(1/3), k(T) = k0 + k1 T, by fixed-point iteration
     on the core's float momentum function (momentum.thrust_from_power_N)."""

@@ -55,7 +55,9 @@ DEFAULTS = {
     "dt_max_s": 2.0,                # a sample gap above this is a sensor fault [s]
     "stuck_s": 3.0,                 # current identical this long while spinning -> sensor_fault [s]
     "spin_command": None,           # command above which the rotors make thrust [-] (default u_min + 0.05)
-    "current_min_A": -0.2,          # below this the current sensor is faulty [A]
+    "current_min_A": None,          # below this the current sensor is faulty [A] (default: -max(0.2 A,
+                                    # 1 % of current_max_A): a sensor's zero offset and noise near zero
+                                    # current are a few ADC steps, a fraction of a percent of its range)
     "current_max_A": None,          # above this [A] (default 1.5 x motors' max, at most 300 A)
 }
 
@@ -260,7 +262,10 @@ def make_config(params, vehicle=None, options=None):
     v_step = (v_max_mV - v_min_mV) // 12 + 1
     put("volt_step_mV", v_step, "voltage tables: 12 steps from v_min_mV, to %.3f V" % ((v_min_mV + 12 * v_step) / 1000.0))
     i_max = o["current_max_A"] or min(300.0, 1.5 * (v.get("max_current_A") or 200.0))
-    put("i_min_mA", int(round(o["current_min_A"] * 1000.0)), "current below this is a sensor fault [mA]")
+    i_min = o["current_min_A"] if o["current_min_A"] is not None else -max(0.2, 0.01 * min(i_max, 300.0))
+    put("i_min_mA", int(round(i_min * 1000.0)), "current below %.2f A is a sensor fault%s" % (
+        i_min, "" if o["current_min_A"] is not None else " (1 %% of the %.0f A range, at least 0.2 A: zero "
+        "offset and noise of the sensor)" % min(i_max, 300.0)))
     put("i_max_mA", int(round(min(i_max, 300.0) * 1000.0)), "current above this is a sensor fault [mA]")
 
     n_exp, v_ref = curve["voltage_exponent"], curve["reference_voltage_V"]
