@@ -45,9 +45,10 @@ DEFAULTS = {
     "steady_share": 0.10,           # block thrust within this share of its slow mean: judged [-]
     "settle_s": 4.0,                # after a block beyond steady_share (a manoeuvre) not judged this long [s]
     "drift_s": 60.0,                # slow baseline tracking: EMA time constant [s]
-    "drift_tol": 0.03,              # bound of the slow in-flight baseline tracking [-]
+    "drift_tol": 0.015,             # bound of the slow in-flight baseline tracking [-] (a slow fault ramp
+                                    # hides in it: 3 % let a 0 -> 15 % ramp reach 8.6 % before the alarm)
     "mass_share": 0.08,             # implied mass above planned by this share (+ margin) -> mass_high [-]
-    "mass_window_s": 10.0,          # steady flight time per implied-mass window (pooled with the last) [s]
+    "mass_window_s": 6.0,           # steady flight time per implied-mass window (pooled with the last) [s]
     "mass_windows": 2,              # windows in a row above limit + margin -> mass_high
     "mass_z": 2.0,                  # margin in standard errors of the window mean [-]
     "mass_corr_blocks": 6.0,        # blocks per independent stretch (thrust swings last seconds) [-]
