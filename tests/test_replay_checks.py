@@ -60,7 +60,8 @@ def test_time_that_goes_back_or_repeats_is_named_by_row(tmp_path, params_file, c
     f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", bad)
     code, _, err = _run(["replay", str(f), "--params", str(params_file)], capsys)
     line = _one_error(code, err)
-    assert "row 102" in line and "repeats" in line and "502" in line and "2 rows" in line, line
+    # named by the file's line number, in the CSV reader's words ("line N")
+    assert "line 102" in line and "repeats" in line and "502" in line and "2 rows" in line, line
     code, out, err = _run(["replay", str(f), "--params", str(params_file), "--drop-bad-time", "--json"], capsys)
     assert code == 0 and err == ""
     doc = json.loads(out)

@@ -107,3 +107,65 @@ def test_a_bench_sweep_given_as_a_flight_log_is_refused(tmp_path, capsys):
     assert exc.value.code == 2
     err = capsys.readouterr().err
     assert err.startswith("error:") and "bench sweep" in err and err.count("\n") == 1
+
+
+def _rewrite_time(src, dst, fn, unit="s"):
+    """Copy a flight CSV with its time column passed through fn and the time unit set."""
+    out = []
+    for line in src.read_text().splitlines():
+        if line.startswith("#") or not line:
+            out.append(line)
+        elif line.startswith("time["):
+            out.append(line.replace("time[s]", "time[%s]" % unit))
+        else:
+            cells = line.split(",")
+            cells[0] = fn(float(cells[0]))
+            out.append(",".join(cells))
+    dst.write_text("\n".join(out) + "\n")
+    return dst
+
+
+def test_event_times_count_from_the_log_start_and_time_in_ms_is_read(tmp_path):
+    # a logger whose clock counts Unix seconds, and one that logs milliseconds: the same events at
+    # the same times from the log's first row as the plain log (the first row is at 0 s there)
+    f = _flight(tmp_path, "power_high")
+    plain = replay_file(str(f), demo_fit_params())["events"]
+    epoch = _rewrite_time(f, tmp_path / "epoch.csv", lambda t: "%.3f" % (1733000000.0 + t))
+    millis = _rewrite_time(f, tmp_path / "ms.csv", lambda t: "%d" % round(1000.0 * t), unit="ms")
+    for g in (epoch, millis):
+        events = replay_file(str(g), demo_fit_params())["events"]
+        assert [e["kind"] for e in events] == [e["kind"] for e in plain]
+        for a, b in zip(events, plain):
+            assert abs(a["t_s"] - b["t_s"]) <= 0.01, (g, a, b)
+        assert 100.0 < events[0]["t_s"] < 200.0
+
+
+def test_mass_event_shows_implied_against_planned_mass(tmp_path, params_file, capsys):
+    # a mass_high event says how heavy the vehicle seems against the plan and the alarm limit
+    # (the planned mass is the parameter set's vehicle mass; the limit 8 % above it by default)
+    f = _flight(tmp_path, "heavy")
+    out = replay_file(str(f), demo_fit_params())
+    ev = [e for e in out["events"] if e["kind"] == "mass_high"][0]
+    plan = demo_fit_params()["vehicle"]["mass_kg"]
+    assert ev["planned_kg"] == pytest.approx(plan, abs=1e-3)
+    assert ev["limit_kg"] == pytest.approx(1.08 * plan, abs=2e-3)
+    assert ev["mass_kg"] > ev["limit_kg"]          # the flown vehicle is 15 % heavier than planned
+    assert ev["mass_kg"] < 1.3 * plan
+    with pytest.raises(SystemExit):
+        main(["replay", str(f), "--params", str(params_file)])
+    text = capsys.readouterr().out
+    assert "implied mass %.3f kg against %.3f kg planned" % (ev["mass_kg"], ev["planned_kg"]) in text, text
+    assert "times in s from the log's first row" in text
+
+
+def test_plot_title_counts_events_in_words_and_marks_learning(tmp_path):
+    from estimator.watch.plots import plot_replay
+    f = _flight(tmp_path, "power_high")
+    out = replay_file(str(f), demo_fit_params(), keep_arrays=True)
+    arrays = out.pop("_arrays")
+    assert arrays["learn_span"][0] is not None and arrays["learn_span"][1] > arrays["learn_span"][0]
+    assert out["learned_at_s"] == pytest.approx(arrays["learn_span"][1], abs=1e-3)
+    title = plot_replay(str(tmp_path / "one.png"), arrays, out["events"][:1], title="f.csv")
+    assert title.startswith("f.csv: 1 event (")
+    title = plot_replay(str(tmp_path / "two.png"), arrays, out["events"][:1] * 2, title="f.csv")
+    assert title.startswith("f.csv: 2 events (")

@@ -128,11 +128,17 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         lines.append("  " + out["note"])
     elif not out["events"]:
         lines.append("  no event: power stayed within what the parameter set expects")
+    if out["events"]:
+        lines.append("  (times in s from the log's first row)")
     for e in out["events"]:
-        lines.append("  %9.1f s  %-13s %s" % (e["t_s"], e["kind"], EVENT_MEANING.get(e["kind"], "")
-                                              if e["kind"] == "sensor_fault" else
-                                              "residual %+.1f %%  %s" % (100.0 * e["residual"],
-                                                                         EVENT_MEANING.get(e["kind"], ""))))
+        if e["kind"] == "sensor_fault":
+            what = EVENT_MEANING.get(e["kind"], "")
+        elif e["kind"] == "mass_high":
+            what = ("implied mass %.3f kg against %.3f kg planned (alarm above %.3f kg plus the estimate's "
+                    "margin)  %s" % (e["mass_kg"], e["planned_kg"], e["limit_kg"], EVENT_MEANING.get(e["kind"], "")))
+        else:
+            what = "residual %+.1f %%  %s" % (100.0 * e["residual"], EVENT_MEANING.get(e["kind"], ""))
+        lines.append("  %9.1f s  %-13s %s" % (e["t_s"], e["kind"], what))
     if plot_file:
         lines.append("plot: %s" % plot_file)
     lines.append("- " + WATCH_CAUTIONS[0])

@@ -44,8 +44,8 @@ def check_time(path, flight, go_on=False):
         line_of = data_line_numbers(path, flight["header_line"])
         rows = ", ".join(str(line_of[j]) for j, _ in bad[:SHOWN_ROWS])
         more = "" if len(bad) <= SHOWN_ROWS else " and %d more" % (len(bad) - SHOWN_ROWS)
-        raise InputError("%s: row %d: time %.6g s %s (after %.6g s); %d row%s where time does not rise "
-                         "(rows %s%s) - a merged or restarted log? Fix the log, or pass --drop-bad-time "
+        raise InputError("%s: line %d: time %.6g s %s (after %.6g s); %d row%s where time does not rise "
+                         "(lines %s%s) - a merged or restarted log? Fix the log, or pass --drop-bad-time "
                          "to drop those rows" % (path, line_of[i], t[i],
                                                  "repeats" if t[i] == before else "goes back", before,
                                                  len(bad), "" if len(bad) == 1 else "s", rows, more))

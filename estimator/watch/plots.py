@@ -1,4 +1,5 @@
-"""Replay plot: measured against expected bus power, alarms shaded (matplotlib imported inside)."""
+"""Replay plot: measured against expected bus power, alarms shaded, the learning window marked
+(matplotlib imported inside)."""
 
 from estimator.cautions import SHORT
 from estimator.jsonio import save_figure_atomic
@@ -9,7 +10,8 @@ SHADES = ((1, "power_high", "tab:red"), (2, "power_low", "tab:blue"), (4, "senso
 
 
 def plot_replay(path, arrays, events, title="flight"):
-    """Write a PNG of measured and expected power [W] against time [s] with flag spans shaded."""
+    """Write a PNG of measured and expected power [W] against time [s] from the log's first row,
+    flag spans shaded and the learning window marked; returns the plot's title."""
     import os
 
     import matplotlib
@@ -27,12 +29,18 @@ def plot_replay(path, arrays, events, title="flight"):
         if on.any():
             ax.fill_between(t, 0, 1, where=on, transform=ax.get_xaxis_transform(), color=color, alpha=0.2,
                             step="post", label=name)
-    ax.set_xlabel("time [s]")
+    span = arrays.get("learn_span") or (None, None)
+    if span[0] is not None and span[1] is not None:
+        ax.axvspan(span[0], span[1], color="tab:cyan", alpha=0.12, lw=0, label="take-off and learning window")
+    ax.set_xlabel("time from the log's first row [s]")
     ax.set_ylabel("bus power [W]")
-    ax.set_title("%s: %d events (%s)" % (os.path.basename(str(title)), len(events), SHORT))
-    ax.legend(loc="upper right", fontsize=8)
+    heading = "%s: %d event%s (%s)" % (os.path.basename(str(title)), len(events), "" if len(events) == 1 else "s", SHORT)
+    ax.set_title(heading, fontsize=9)
+    # the legend sits below the axes, never over the data
+    ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=3, fontsize=8, frameon=False)
     fig.tight_layout()
     try:
         save_figure_atomic(fig, path)
     finally:
         plt.close(fig)
+    return heading

@@ -1,11 +1,12 @@
 """Desktop replay: run a logged flight through the same integer watch kernel as the board.
 
-Flight CSV (design notes sec. 4): header ``time[s]``, ``command[-]`` (also ``command[%]`` or
+Flight CSV (design notes sec. 4): header ``time[s]`` (or ``time[ms]``), ``command[-]`` (also ``command[%]`` or
 ``command[us]`` 1000..2000), ``voltage[V]`` (or ``[mV]``), ``current[A]`` (or ``[mA]``); more
 columns are ignored; lines starting with ``#`` are comments. Each row becomes one
 ``Watch.update(dt_ms, command_permille, bus_mV, bus_mA)`` call with the values rounded to
 integers; the first row's dt is the median sample period. Out-of-range values are passed to
-the kernel, which flags them (sensor_fault) - a log with a glitch is still a log.
+the kernel, which flags them (sensor_fault) - a log with a glitch is still a log. Event times
+are seconds from the log's first row (a logger's clock may count from 1970).
 """
 
 import sys
@@ -26,7 +27,8 @@ _AMP_UNITS = {"A": 1000.0, "mA": 1.0}
 
 
 EXAMPLE_HEADER = "time[s],command[-],voltage[V],current[A]"
-COLUMNS = {"time": {"s": (1.0, 0.0)}, "command": _COMMAND_UNITS, "voltage": _VOLT_UNITS,
+_TIME_UNITS = {"s": 1.0, "ms": 0.001}
+COLUMNS = {"time": {"s": (1.0, 0.0), "ms": (0.001, 0.0)}, "command": _COMMAND_UNITS, "voltage": _VOLT_UNITS,
            "current": _AMP_UNITS}
 
 
@@ -55,7 +57,8 @@ def read_flight(path):
     vs = _VOLT_UNITS[table.columns["voltage"][1]]
     as_ = _AMP_UNITS[table.columns["current"][1]]
     values = table.values
-    return {"time_s": values["time"],
+    ts = _TIME_UNITS[table.columns["time"][1]]
+    return {"time_s": [x * ts for x in values["time"]] if ts != 1.0 else values["time"],
             "command_permille": [int(round((x + co) * cs)) for x in values["command"]],
             "bus_mV": [int(round(x * vs)) for x in values["voltage"]],
             "bus_mA": [int(round(x * as_)) for x in values["current"]],
@@ -75,22 +78,32 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
     learned = False
     prev = 0
     t_prev = None
-    arrays = {"time_s": t, "power_W": [], "expected_W": [], "flags": [], "residual": []} if keep_arrays else None
+    t0 = t[0] if n else 0.0
+    plan_kg = config["mass_plan_g"] / 1000.0
+    limit_kg = plan_kg * (1000 + config["mass_limit_permille"]) / 1000.0
+    learn_span = [None, None]      # flight time of the learning window: first spin-up .. learned
+    arrays = {"time_s": [x - t0 for x in t], "power_W": [], "expected_W": [], "flags": [], "residual": [],
+              "learn_span": learn_span} if keep_arrays else None
     step = max(1, n // 50)
     for i in range(n):
         ti = t[i]
         dt = first_ms if t_prev is None else int(round((ti - t_prev) * 1000.0))
         t_prev = ti
         flags = update(dt, u[i], mv[i], ma[i])
+        if learn_span[0] is None and u[i] >= config["spin_permille"]:
+            learn_span[0] = ti - t0
         if not learned and w.sigma_permille:
             learned = True
+            learn_span[1] = ti - t0
         if flags != prev:
             new = flags & ~prev
             if new:
                 for bit, kind in KINDS:
                     if new & bit:
-                        events.append({"t_s": round(ti, 3), "kind": kind,
-                                       "residual": w.residual_permille / 1000.0})
+                        e = {"t_s": round(ti - t0, 3), "kind": kind, "residual": w.residual_permille / 1000.0}
+                        if bit == 16:    # the implied mass against the plan and the alarm limit
+                            e.update(mass_kg=w.mass_g / 1000.0, planned_kg=plan_kg, limit_kg=round(limit_kg, 4))
+                        events.append(e)
             prev = flags
         if keep_arrays:
             arrays["power_W"].append(mv[i] * max(ma[i], 0) / 1e6)
@@ -101,7 +114,8 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
             progress(i, n)
     if progress is not None:
         progress(n, n)
-    out = {"learned": learned, "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events}
+    out = {"learned": learned, "learned_at_s": None if learn_span[1] is None else round(learn_span[1], 3),
+           "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events}
     if keep_arrays:
         out["_arrays"] = arrays
     return out
@@ -121,7 +135,10 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
 
     Returns dict samples, alarms (events other than sensor_fault), events
     [{t_s, kind, residual}] (kinds power_high, power_low, sensor_fault, baseline_off,
-    mass_high; residual [-] = residual_permille / 1000 at the event). A progress bar goes
+    mass_high; t_s [s] from the log's first row; residual [-] = residual_permille / 1000 at the
+    event; a mass_high event also has mass_kg, the implied all-up mass, planned_kg and
+    limit_kg, the mass above which the alarm may fire once the estimate's margin is passed),
+    learned_at_s (end of the learning window, None when it never ended). A progress bar goes
     to stderr on logs above PROGRESS_ROWS rows when stderr is a terminal (progress=None),
     always (True) or never (False). Raises InputError on a bad file: time that goes back or
     repeats (unless ``drop_bad_time``: those rows are dropped and counted in ``dropped_rows``),
