@@ -74,15 +74,16 @@ class Watch:
         tq = (((c[117] << 12) // span) << 12) // span
         i_pos = c[112] if c[112] > 0 else 0   # currents below this: negative (power 0) or a fault
         # st: [0] CONFIG, [1..12] per-sample state ([2] the lagged expected power [0.1 W / 4]),
-        # [13..25] CONFIG scalars, [26..29] derived, [30] the block's thrust-factor sum
+        # [13..25] CONFIG scalars, [26..29] derived, [30] the block's thrust-factor sum, [31] its
+        # lead sum (static less lagged expected power) [0.1 W ms]
         self.st = [c, 0, 0, 0, 0, -1, 0, 0, 0, 0, 0, 0, 0,
                    c[109], c[110], c[111], c[112], c[113], c[114], c[115], c[118], c[119], c[120],
                    c[121], c[125], c[126],
                    ta, tq, c[115] + span, i_pos, 0, 0]
         # sb: block state (learning, l_sum, l_n, l_ms, l_dev, scale, sig_q6, k, h, s_hi, s_lo,
-        # drift_q8, slow thrust factor q4, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, and the
-        # previous mass window's mean, variance and count)
-        # (the inflow slope starts at 0.5, momentum theory's ideal-power share of a small set)
+        # drift_q8, slow thrust factor q4, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, the previous
+        # mass window's mean, variance and count, y16 the smoothed residual, hold the settle time
+        # left, sdd, srd, cd); the inflow slope starts at 0.5, momentum theory's ideal-power share
         self.thrust_mN = 0
         self.hover_permille = 0
         self.sb = [0] * 29
@@ -257,10 +258,7 @@ class Watch:
             fsl = fb << 4                                 # Q4 of Q12, < 2^17
         fsd = (fsl >> 4) + 1
         x = (fb - fsd) * 1000 // fsd                      # 6143 * 1000
-        if x > 500:
-            x = 500
-        elif x < -500:
-            x = -500
+        x = 500 if x > 500 else (-500 if x < -500 else x)
         if low or x < -c[135] or x > c[135]:
             hold = c[143]                                 # a manoeuvre: not judged for settle_ms after it
         elif hold > 0:
@@ -287,10 +285,7 @@ class Watch:
         # permille of the expected energy (a DC motor draws more than the static power while its
         # rotor spins up, and less while it slows down)
         g = (ed >> c[122]) * 1000 // (e0 + 1)             # 2^19 * 1000
-        if g > 500:
-            g = 500
-        elif g < -500:
-            g = -500
+        g = 500 if g > 500 else (-500 if g < -500 else g)
         if low == 0 and -250 <= x <= 250 and (learning or s_hi + s_lo < (h >> 1)):
             # the power of axial flight (climb, descent, gusts) is not the static model's: the
             # residual follows the thrust deviation x (momentum theory: dP = (T_static - W) v_h)
@@ -303,10 +298,7 @@ class Watch:
                 m = l_sum // l_n if l_n else 0
             r -= m                                        # |.| <= 2000
             rr = r - cd * g // 64                         # |.| <= 2000 + 8000
-            if rr > 1000:
-                rr = 1000
-            elif rr < -1000:
-                rr = -1000
+            rr = 1000 if rr > 1000 else (-1000 if rr < -1000 else rr)
             sxx += (x * x - sxx) >> sh                    # 250000
             srx += (rr * x - srx) >> sh                   # 1000 * 500
             rr = r - cx * x // 1000                       # |.| <= 2500
@@ -318,22 +310,13 @@ class Watch:
             sb[26] = sdd
             sb[27] = srd
             cx = srx * 1000 // (sxx + 100)                # 5e5 * 1000 (a ridge of 10 permille^2)
-            if cx < 0:
-                cx = 0
-            elif cx > 1000:
-                cx = 1000
+            cx = 0 if cx < 0 else (1000 if cx > 1000 else cx)
             sb[20] = cx
             cd = srd * 64 // (sdd + 100)                  # 1.25e6 * 64 ; cd: Q6
-            if cd < 0:
-                cd = 0
-            elif cd > 1023:
-                cd = 1023
+            cd = 0 if cd < 0 else (1023 if cd > 1023 else cd)
             sb[28] = cd
         x = cx * x // 1000 + cd * g // 64                 # the modelled part of r, |.| <= 8500
-        if x > 500:
-            x = 500
-        elif x < -500:
-            x = -500
+        x = 500 if x > 500 else (-500 if x < -500 else x)
         if learning:
             if steady:
                 r -= x                                    # |.| <= 1500: take the modelled part out
@@ -382,20 +365,11 @@ class Watch:
             quiet = s_hi + s_lo < (h >> 1)
             cl = k + (h >> 1) + 1                         # one block adds at most this
             zc = z
-            if zc > cl:
-                zc = cl
-            elif zc < -cl:
-                zc = -cl
+            zc = cl if zc > cl else (-cl if zc < -cl else zc)
             s_hi += zc - k                                # <= 2h + 2 cl < 1e5
             s_lo -= zc + k
-            if s_hi < 0:
-                s_hi = 0
-            elif s_hi > h + h:
-                s_hi = h + h
-            if s_lo < 0:
-                s_lo = 0
-            elif s_lo > h + h:
-                s_lo = h + h
+            s_hi = 0 if s_hi < 0 else (h + h if s_hi > h + h else s_hi)
+            s_lo = 0 if s_lo < 0 else (h + h if s_lo > h + h else s_lo)
             sb[9] = s_hi
             sb[10] = s_lo
             if quiet:
@@ -404,10 +378,7 @@ class Watch:
                 floor = c[131]
                 if s < floor:
                     s = floor
-                if z > 5 * s:
-                    z = 5 * s
-                elif z < -5 * s:
-                    z = -5 * s
+                z = 5 * s if z > 5 * s else (-5 * s if z < -5 * s else z)
                 y16 += ((z << 4) - y16) >> 2              # |.| <= 16 x 5000
                 sb[24] = y16
                 sig += ((y16 if y16 > 0 else -y16) * 53 - (sig << 2)) >> (c[132] + 2)   # 8e4 * 53 = 4.2e6
@@ -424,10 +395,7 @@ class Watch:
                 # slow bounded drift of the baseline [1/256 permille], not from a block that raised a suspicion
                 drift += ((r << 8) - drift) >> c[136]     # 1000 * 256
                 lim = c[137] << 8
-                if drift > lim:
-                    drift = lim
-                elif drift < -lim:
-                    drift = -lim
+                drift = lim if drift > lim else (-lim if drift < -lim else drift)
                 sb[11] = drift
             flags &= 28
             if s_hi >= h:
@@ -443,10 +411,7 @@ class Watch:
                 # T ~ P^(2/3) in momentum theory)
                 th -= (th // 1000) * x * 2 // 3           # 1000 * 500 * 2
                 dm = (th * 1000 // 9807 - plan) * 1000 // plan   # 1e6 * 1000 ; (1e5 + 5e5) * 1000
-                if dm > 500:
-                    dm = 500
-                elif dm < -500:
-                    dm = -500
+                dm = 500 if dm > 500 else (-500 if dm < -500 else dm)
                 m_sum += dm                               # <= 500 x 1200 blocks
                 m_sq += dm * dm                           # <= 250000 x 1200 = 3e8
                 m_n += 1
