@@ -79,7 +79,7 @@ def test_hover_power_is_above_the_momentum_theory_bound_and_consistent(fitted):
     # I = P / V and endurance = 60 C_use / I (definition of capacity)
     assert report["hover_current_A"] == pytest.approx(report["hover_power_W"] / report["hover_bus_V"], rel=1e-12)
     usable = vehicle["battery"]["capacity_Ah"] * vehicle["battery"]["usable_fraction"]
-    assert report["flight_time_min"] == pytest.approx(60.0 * usable / report["hover_current_A"], rel=1e-12)
+    assert report["flight_time_usable_share_min"] == pytest.approx(60.0 * usable / report["hover_current_A"], rel=1e-12)
 
 
 def test_fitted_hover_agrees_with_the_datasheet_model(fitted):

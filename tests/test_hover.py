@@ -151,7 +151,6 @@ def test_params_are_delegated_to_the_fitted_flow(monkeypatch):
     calls = []
     fake = types.ModuleType("estimator.preflight.measured_rotor")
     fake.hover_from_params = lambda v, p: calls.append((v, p)) or {"hover_command": 0.5, "warnings": []}
-    fake.fitted_hover_load = lambda v, p: (lambda v_oc: None)
     monkeypatch.setitem(sys.modules, "estimator.preflight.measured_rotor", fake)
     r = hover_report(vehicle(), {"model": "liftcal.rotor/1"})
     assert calls and calls[0][1] == {"model": "liftcal.rotor/1"}

@@ -23,6 +23,7 @@ import math
 
 from estimator.core.constants import ONE_WAY_LAG_COMMAND_SE
 from estimator.core.battery import endurance_min, max_pack_current_A, usable_capacity_Ah
+from estimator.core.discharge import discharge_to_cutoff
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
 from estimator.core.power_model import coaxial_shaft_ratio, rotor_power_W  # noqa: F401 (re-exported)
 from estimator.errors import InputError
@@ -253,9 +254,12 @@ def hover_from_params(vehicle, params):
     CAUTIONS = cautions("sheet")
     from estimator.vehicle import assumed_warnings
 
+    from estimator.preflight.pack import pack_in_the_air, pack_keys
+
     air = _site(vehicle)
     rho = air["density_kg_m3"]
-    b = vehicle["battery"]
+    b, pack_temperature, pack_basis = pack_in_the_air(vehicle, air)
+    raw_vehicle, vehicle = vehicle, dict(vehicle, battery=b)
     states = {name: _state(params, vehicle, rho, b["cells"] * b[name + "_cell_V"])
               for name in ("full", "nominal", "empty")}
     nom = states["nominal"]
@@ -299,7 +303,18 @@ def hover_from_params(vehicle, params):
         "pressure_Pa": air["pressure_Pa"],
         "static_factor": k_at["k0"] + k_at["slope_per_N"] * nom["thrust_per_rotor_N"],
         "per_rotor_bus_current_A": (nom["current_A"] / count) if hovering else None,
+        "flight_time_usable_share_min": endurance_min(usable, nom["current_A"]) if hovering else None,
+        "flight_time_usable_share_basis": "usable share of the capacity at the nominal-pack hover current",
+        "flight_time_basis": ("discharge from a full pack, hover current rising as the pack drains, "
+                              "to the first of: loaded cutoff, landing reserve, loss of hover"),
+        "flight_ended_by": None, "discharge": None,
     }
+    report.update(pack_keys(raw_vehicle, b, pack_temperature, pack_basis))
+    if hovering:
+        d = discharge_to_cutoff(b["cells"], b["capacity_Ah"], b.get("usable_fraction", 0.8),
+                                b["full_cell_V"], b["nominal_cell_V"], b["empty_cell_V"],
+                                b["cutoff_cell_V"], _hover_load(params, vehicle, rho))
+        report.update({"flight_time_min": d["minutes"], "flight_ended_by": d["ended_by"], "discharge": d})
     warnings = assumed_warnings(vehicle) + margin_warnings(report)
     volts = [("hover bus, %s pack" % name if states[name]["command"] is not None
                else "open circuit, %s pack" % name,
@@ -361,15 +376,14 @@ def hover_block(vehicle, params):
     }
 
 
-def fitted_hover_load(vehicle, params):
+def _hover_load(params, vehicle, rho):
     """The hover load of the fitted model as core.discharge.discharge_to_cutoff takes it.
 
-    vehicle: checked vehicle; params: validated parameter set. Returns a function of the pack
-    open-circuit voltage [V] giving (pack current [A], bus voltage [V]) at hover, or None
+    vehicle: checked vehicle whose battery is already the pack in the air (preflight.pack);
+    params: validated parameter set; rho: site air density [kg/m^3]. Returns a function of the
+    pack open-circuit voltage [V] giving (pack current [A], bus voltage [V]) at hover, or None
     where the vehicle cannot hover (same model as hover_from_params, one state per call).
     """
-    rho = _site(vehicle)["density_kg_m3"]
-
     def load(open_circuit_V):
         state = _state(params, vehicle, rho, open_circuit_V)
         if state["command"] is None:

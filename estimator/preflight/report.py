@@ -6,12 +6,12 @@ format_sheet(report) lays the result out by the questions a builder asks before 
 flight: will it hover, with what margin, for how long, what to watch out for.
 """
 
-from estimator.core.battery import cold_resistance_factor, max_pack_current_A
-from estimator.core.discharge import discharge_to_cutoff
+from estimator.core.battery import max_pack_current_A
 from estimator.core.hover import hover_estimate, rotor_propeller
 from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_merit,
                                      induced_velocity_m_s, static_factor)
 from estimator.cautions import cautions
+from estimator.preflight.pack import pack_in_the_air, pack_keys
 from estimator.preflight.propeller_estimate import estimated_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
@@ -55,7 +55,7 @@ def _report(vehicle, params=None):
     propeller, estimate = vehicle["propeller"], None
     if "ct" not in propeller or "cp" not in propeller:
         propeller, estimate = estimated_propeller(propeller, vehicle["mass_kg"], count, air)
-    battery, pack_temperature = pack_in_the_air(vehicle)
+    battery, pack_temperature, pack_basis = pack_in_the_air(vehicle, air)
     est = hover_estimate(vehicle["mass_kg"], count, layout, rho, vehicle["motor"],
                          propeller, battery, esc_eff)
     nominal = est["states"]["nominal"]
@@ -104,11 +104,6 @@ def _report(vehicle, params=None):
         "pack_current_limit_A": max_pack_current_A(vehicle["battery"]["capacity_Ah"],
                                                    vehicle["battery"].get("max_discharge_C")),
         "pack_voltage_V": {k: est["states"][k]["open_circuit_V"] for k in ("full", "nominal", "empty")},
-        "pack_resistance_ohm": battery["resistance_ohm"],
-        "pack_temperature_C": pack_temperature,
-        "pack_cold_factor": battery["resistance_ohm"] / vehicle["battery"]["resistance_ohm"]
-        if vehicle["battery"]["resistance_ohm"] > 0.0 else 1.0,
-        "cutoff_cell_V": battery["cutoff_cell_V"],
         "usable_Ah": est["usable_Ah"],
         "density_kg_m3": rho,
         "density_ratio": air["density_ratio"],
@@ -130,6 +125,7 @@ def _report(vehicle, params=None):
         "coaxial_factor_basis": "power",
         "esc_efficiency": esc_eff,
     }
+    report.update(pack_keys(vehicle, battery, pack_temperature, pack_basis))
     report["warnings"] = (checks + assumed_warnings(vehicle) + ([estimate["note"]] if estimate else [])
                           + margin_warnings(report))
     report["cautions"] = list(CAUTIONS)
@@ -137,46 +133,17 @@ def _report(vehicle, params=None):
 
 
 def _fitted_report(vehicle, params, checks):
-    """hover_report for a fitted parameter set: the bench flow's report, with the cold pack,
-    the discharge to the cutoff and the propeller check of the datasheet route added."""
-    from estimator.preflight.measured_rotor import fitted_hover_load, hover_from_params  # the bench flow
+    """hover_report for a fitted parameter set: the bench flow's report (the same
+    measured_rotor.hover_from_params that makes the hover block of ``fit --vehicle``: pack in
+    the air and discharge included), with the propeller check of the datasheet route added."""
+    from estimator.preflight.measured_rotor import hover_from_params  # the bench flow
 
-    battery, pack_temperature = pack_in_the_air(vehicle)
-    in_air = dict(vehicle, battery=battery)
-    report = hover_from_params(in_air, params)
+    report = hover_from_params(vehicle, params)
     other = params_propeller_warning(vehicle, params)
     report["warnings"] = checks + ([other] if other else []) + [
         w for w in report.get("warnings", []) if w not in checks]
     report.setdefault("cautions", list(CAUTIONS))
-    report["flight_time_usable_share_min"] = report.get("flight_time_min")
-    report["flight_time_usable_share_basis"] = "usable share of the capacity at the nominal-pack hover current"
-    report.update({"pack_resistance_ohm": battery["resistance_ohm"], "pack_temperature_C": pack_temperature,
-                   "pack_cold_factor": (battery["resistance_ohm"] / vehicle["battery"]["resistance_ohm"]
-                                        if vehicle["battery"]["resistance_ohm"] > 0.0 else 1.0),
-                   "cutoff_cell_V": battery["cutoff_cell_V"], "flight_ended_by": None, "discharge": None})
-    if report.get("can_hover"):
-        d = discharge_to_cutoff(battery["cells"], battery["capacity_Ah"], battery.get("usable_fraction", 0.8),
-                                battery["full_cell_V"], battery["nominal_cell_V"], battery["empty_cell_V"],
-                                battery["cutoff_cell_V"], fitted_hover_load(in_air, params))
-        report.update({"flight_time_min": d["minutes"], "flight_ended_by": d["ended_by"], "discharge": d})
-    report["flight_time_basis"] = ("discharge from a full pack, hover current rising as the pack drains, "
-                                   "to the first of: loaded cutoff, landing reserve, loss of hover")
     return report
-
-
-def pack_in_the_air(vehicle):
-    """The vehicle's battery dict with the resistance of a cold pack, and the pack temperature.
-
-    The pack is taken at battery.temperature_C, else at the site's temperature_C; when the file
-    gives neither, at 25 C (no cold factor). Returns (battery dict [resistance_ohm raised by
-    core.battery.cold_resistance_factor, cutoff_cell_V filled], temperature [C] or None).
-    """
-    battery = dict(vehicle["battery"])
-    temperature = battery.get("temperature_C", (vehicle.get("site") or {}).get("temperature_C"))
-    if temperature is not None:
-        battery["resistance_ohm"] = battery["resistance_ohm"] * cold_resistance_factor(temperature)
-    battery.setdefault("cutoff_cell_V", battery["empty_cell_V"] - 0.2)
-    return battery, temperature
 
 
 def _at_hover(current_A):

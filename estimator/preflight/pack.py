@@ -1,0 +1,49 @@
+"""The pack in the air: the ONE pack model of the pre-flight flow (datasheet and fitted routes).
+
+Both the datasheet sheet (report.py) and every fitted-route hover value (measured_rotor.py: the
+sheet of ``hover --params`` and the hover block ``fit --vehicle`` stores for the export) take the
+vehicle's battery through pack_in_the_air, so a cold pack's resistance is applied once, the same
+way, everywhere.
+
+The pack temperature is battery.temperature_C, else the site's temperature_C, else the temperature
+of the air the estimate already assumed (the standard atmosphere at the site's altitude: 15 C at
+sea level), so air and pack are never taken at two different assumed temperatures.
+"""
+
+from estimator.core.battery import cold_resistance_factor
+
+KELVIN_OFFSET = 273.15  # 0 C in K (definition of the Celsius scale)
+# the loaded cutoff when the file gives none: 0.2 V below the empty open-circuit cell voltage
+# (common practice for lithium packs under load)
+CUTOFF_BELOW_EMPTY_V = 0.2
+
+
+def pack_in_the_air(vehicle, air):
+    """The vehicle's battery dict with the resistance of a pack at its temperature.
+
+    vehicle: checked vehicle dict; air: the site air the estimate uses (core.atmosphere.site_air,
+    temperature_K [K]). Returns (battery dict [resistance_ohm times core.battery.
+    cold_resistance_factor, cutoff_cell_V filled], pack temperature [C], how it was chosen:
+    "battery", "site" or "air").
+    """
+    battery = dict(vehicle["battery"])
+    site = vehicle.get("site") or {}
+    if battery.get("temperature_C") is not None:
+        temperature, basis = battery["temperature_C"], "battery"
+    elif site.get("temperature_C") is not None:
+        temperature, basis = site["temperature_C"], "site"
+    else:
+        temperature, basis = None, "warm"
+    if temperature is not None:
+        battery["resistance_ohm"] = battery["resistance_ohm"] * cold_resistance_factor(temperature)
+    battery.setdefault("cutoff_cell_V", battery["empty_cell_V"] - CUTOFF_BELOW_EMPTY_V)
+    return battery, temperature, basis
+
+
+def pack_keys(vehicle, battery, temperature, basis):
+    """The report keys that describe the pack model used (same in both routes)."""
+    raw = vehicle["battery"]["resistance_ohm"]
+    return {"pack_resistance_ohm": battery["resistance_ohm"], "pack_temperature_C": temperature,
+            "pack_temperature_basis": basis,
+            "pack_cold_factor": battery["resistance_ohm"] / raw if raw > 0.0 else 1.0,
+            "cutoff_cell_V": battery["cutoff_cell_V"], "cells": battery["cells"]}
