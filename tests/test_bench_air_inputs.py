@@ -93,3 +93,11 @@ def test_a_density_comment_contradicting_the_altitude_comment_is_refused(tmp_pat
 def test_bare_pressure_option_suggests_hectopascal(tmp_path):
     refused(["fit", _sweep(tmp_path, ""), "--out", tmp_path / "p.json", "--pressure", "1013"],
             "--pressure", "1013hPa")
+
+
+def test_pressure_without_temperature_says_the_temperature_was_assumed(tmp_path):
+    # station pressure 970 hPa at the standard sea-level 15 C (US Standard Atmosphere 1976),
+    # dry air: rho = p / (R_d T)
+    summary, params = _fit_json(tmp_path, _sweep(tmp_path, "# pressure: 970hPa\n"))
+    assert params["bench_air"]["density_kg_m3"] == pytest.approx(97000.0 / (R_D * 288.15), rel=1e-3)
+    assert any("no temperature given" in w for w in summary["warnings"])

@@ -353,6 +353,10 @@ def _bench_air(path, comments, density, altitude, temperature, pressure, humidit
         named = " and ".join(x for x in ("options (%s)" % ", ".join(opts) if opts else "",
                                           "file comments (%s)" % ", ".join(notes) if notes else "") if x)
         source = named + ", standard atmosphere for the rest"
+        if "temperature" not in given:
+            warnings.append("bench air: no temperature given, so the standard atmosphere's temperature "
+                            "at %g m is assumed with the %s given by the %s; add '# temperature: C' to "
+                            "the CSV" % (given.get("altitude", 0.0), " and ".join(sorted(given)), named))
         if "altitude" not in given and "pressure" not in given:
             warnings.append("bench air: no altitude or pressure given, so sea-level standard pressure "
                             "is assumed with the %s given by the %s; add '# altitude: M' to the CSV"

@@ -118,8 +118,8 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     """Fit a bench sweep CSV into a validated parameter set.
 
     The CSV has a name[unit] header: command[-|%|us], voltage[V], current[A],
-    thrust[N|g|gf|kgf|lbf]; '# altitude:', '# temperature:' or '# density:' comments give
-    the bench air and '# diameter:' the propeller.
+    thrust[N|g|gf|kgf|lbf]; '# altitude:', '# temperature:', '# pressure:', '# humidity:'
+    or '# density:' comments give the bench air and '# diameter:' the propeller.
     """
     from estimator.bench.sweep import fit_bench_file, summary
     from estimator.preflight.measured_rotor import hover_block
