@@ -170,8 +170,9 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
 def check(params_file, as_json):
     """Validate a parameter set against its schema (exit 0 when valid, 2 with the JSON path).
 
-    With --json, an invalid file also prints one JSON object ({"valid": false, "error": ...})
-    besides the error line on stderr.
+    Also says whether the set has hover values and whether it was edited after liftcal wrote
+    it (its content seal). With --json, an invalid file also prints one JSON object
+    ({"valid": false, "error": ...}) besides the error line on stderr.
     """
     from estimator.errors import InputError
     from estimator.params import load_params
@@ -182,14 +183,24 @@ def check(params_file, as_json):
         if as_json:
             click.echo(dumps({"valid": False, "file": params_file, "error": str(exc)}))
         raise
+    from estimator.outputs import seal_of
+
+    seal = seal_of(params_file) or "none"
+    seal_text = {"intact": "unchanged since liftcal wrote it",
+                 "broken": "EDITED since liftcal wrote it (its content seal no longer matches): "
+                           "liftcal reads the edited values",
+                 "none": "no content seal (an older liftcal, or made by hand): liftcal cannot tell "
+                         "whether it was edited"}[seal]
     if as_json:
         click.echo(dumps({"valid": True, "file": params_file, "model": params["model"],
                           "schema_version": params["schema_version"],
-                          "has_hover": "hover" in params}))
+                          "has_hover": "hover" in params, "content_seal": seal}))
     else:
-        click.echo("%s: valid parameter set (%s, schema version %d)%s"
+        click.echo("%s: valid parameter set (%s, schema version %d), %s; %s"
                    % (params_file, params["model"], params["schema_version"],
-                      ", with hover values" if "hover" in params else ""))
+                      "with hover values" if "hover" in params
+                      else "no hover values (fit with --vehicle to add them; export needs them)",
+                      seal_text))
 
 
 @click.command()
