@@ -160,8 +160,10 @@ def _number(path, line_no, col, cell, empty_ok):
     try:
         value = float(cell)
     except ValueError:
-        raise InputError("%s: line %d column %d: cannot read %s as a number"
-                         % (path, line_no, col + 1, shorten(cell))) from None
+        raise InputError("%s: line %d column %d: cannot read %s as a number%s"
+                         % (path, line_no, col + 1, shorten(cell),
+                            "; leave a missing reading empty (that row is then counted and left "
+                            "out)" if empty_ok else "")) from None
     if not math.isfinite(value):
         raise InputError("%s: line %d column %d: %s is not a finite number (NaN and infinity are "
                          "refused%s)" % (path, line_no, col + 1, shorten(cell),

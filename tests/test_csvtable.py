@@ -191,3 +191,12 @@ def test_text_or_nan_in_a_column_not_used_is_read_past_by_both(tmp_path, params_
     assert json.loads(out)["rows_used"] == 20
     code, out, err = _run(["replay", f, "--params", params_file, "--json"], capsys)
     assert code == 0, err
+
+
+def test_text_in_a_bench_cell_says_an_empty_cell_would_be_left_out(tmp_path, capsys):
+    # a bench sweep drops rows with an empty reading (counted as not_a_number); text in the
+    # cell stops the fit, so the error says what to do instead
+    b, _ = _files(tmp_path, "command[-],voltage[V],current[A],thrust[N]",
+                  "time[s],command[-],voltage[V],current[A]", _set_cell(2, "abc"))
+    code, _, err = _run(["fit", b, "--out", str(tmp_path / "p.json")], capsys)
+    assert code == 2 and "cannot read 'abc' as a number; leave a missing reading empty" in err
