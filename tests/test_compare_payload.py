@@ -149,3 +149,15 @@ def test_payload_on_the_command_line(demo_file, tmp_path):
 def test_payload_options_go_together(demo_file):
     out = run("hover", demo_file, "--job-time", "10min")
     assert out.exit_code == 2 and "--payload" in out.stderr
+
+
+def test_a_job_time_without_a_unit_is_refused_not_read_as_seconds(demo_file, capsys):
+    # "--job-time 10" was taken as 10 s and printed as "0 min" (new-user trial 2 item 14);
+    # through main, as the console script runs it: one error line
+    from estimator.cli import main
+
+    with pytest.raises(SystemExit) as exc:
+        main(["hover", demo_file, "--payload", "0..1kg", "--job-time", "10"])
+    err = capsys.readouterr().err
+    assert exc.value.code == 2 and "'10' has no unit" in err and "15min" in err
+    assert err.count("\n") == 1 and err.startswith("error: ")

@@ -9,17 +9,28 @@ from estimator.units import parse_quantity
 class Quantity(click.ParamType):
     """A number with an optional unit suffix of one kind, converted to SI.
 
-    ``positive=True`` refuses zero and negative values with the option's name.
+    ``positive=True`` refuses zero and negative values with the option's name;
+    ``unit_example``: the unit is required (a bare number is refused, the example shown), for
+    kinds where a bare number is easily meant in another unit (a job time in minutes).
     """
 
-    def __init__(self, kind, positive=False):
+    def __init__(self, kind, positive=False, unit_example=None):
         self.kind = kind
         self.positive = positive
+        self.unit_example = unit_example
         self.name = kind
 
     def convert(self, value, param, ctx):
         if isinstance(value, float):
             return value
+        if self.unit_example is not None:
+            try:
+                float(str(value))
+            except ValueError:
+                pass
+            else:
+                self.fail("%r has no unit; write it with one, e.g. %s" % (value, self.unit_example),
+                          param, ctx)
         # click's message already names the option: "Invalid value for '--diameter': ..."
         try:
             si = parse_quantity(value, self.kind, "")

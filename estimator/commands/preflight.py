@@ -136,8 +136,10 @@ def _check_disk_loading(thrust_N, area_m2, diameter_m):
 @click.option("--payload", "payload_text", default=None, metavar="RANGE|LIST",
               help="Payloads to add to the mass, a range 0..2kg (9 points) or a list 0,500g,1kg: "
                    "endurance and margins per payload and the largest payload that keeps them.")
-@click.option("--job-time", "job_time", type=Quantity("time", positive=True), default=None,
-              help="With --payload: the hover time the job needs (15min, 900s); a payload must reach it.")
+@click.option("--job-time", "job_time", type=Quantity("time", positive=True, unit_example="15min or 900s"),
+              default=None,
+              help="With --payload: the hover time the job needs, with its unit (15min, 900s); "
+                   "a payload must reach it.")
 @click.option("--plot", "plot_file", default=None, metavar="PNG",
               help="With --payload: draw endurance and hover command against payload.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of the sheet.")
