@@ -112,17 +112,27 @@ def _json_kind(value):
 
 
 def _other_kind(document, schema_name, schema):
-    """(what the document is, what was expected) when it is valid under another of our schemas."""
+    """(what the document is, what was expected) when it is valid under another of our schemas,
+    or has that schema's top-level keys (all required ones, no others): e.g. a vehicle file
+    with its values still in text units, given where a parameter set belongs."""
     import glob
 
     import jsonschema
 
+    if not isinstance(document, dict):
+        return None
+    def bases(names):  # mass_kg and mass alike: a vehicle file may give "mass": "1050g"
+        return {str(k).split("_")[0] for k in names}
+
+    keys = bases(document)
     for path in sorted(glob.glob(os.path.join(SCHEMA_DIR, "*.schema.json"))):
         if os.path.basename(path) == schema_name:
             continue
         with open(path, "r", encoding="utf-8") as fh:
             other = json.load(fh)
-        if jsonschema.Draft202012Validator(other).is_valid(document):
+        required, allowed = bases(other.get("required", ())), bases(other.get("properties", {}))
+        same_shape = bool(required) and required <= keys and keys <= allowed
+        if same_shape or jsonschema.Draft202012Validator(other).is_valid(document):
             return ("%s (schemas/%s)" % (_kind_name(other), os.path.basename(path)), _kind_name(schema))
     return None
 

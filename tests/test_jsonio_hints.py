@@ -92,3 +92,18 @@ def test_a_number_written_as_text_with_a_unit_gets_the_plain_number(key_path, te
     node[key_path[-1]] = text
     msg = _message(doc, "vehicle.schema.json")
     assert "is a text, expected a number" in msg and expected in msg
+
+
+def test_a_vehicle_file_in_text_units_is_still_named_a_vehicle_file():
+    # vehicle files may give "mass": "1050g" (read by estimator.vehicle); given where a
+    # parameter set or a map belongs it is named as what it is, not as a key typo
+    vehicle = {"name": "x", "mass": "1050g", "rotors": {"count": 4}, "propeller": {"size": "7x3.5in"},
+               "motor": {"kv_rpm_per_V": 1300}, "battery": {"cells": 6, "capacity": "4000mAh"},
+               "site": {"altitude": "2100m"}}
+    for schema, not_a in (("params.schema.json", "not a parameter set"), ("map.schema.json", "not an export mapping")):
+        message = _message(vehicle, schema)
+        assert message.startswith("f.json: $: this is a vehicle description") and not_a in message
+    # a parameter set with a misspelt top-level key is still told the typo
+    params = _load("params-demo-with-hover.json")
+    params["thrust_curv"] = params.pop("thrust_curve")
+    assert "typo" in _message(params, "params.schema.json")
