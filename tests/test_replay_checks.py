@@ -75,6 +75,12 @@ def test_time_that_goes_back_or_repeats_is_named_by_row(tmp_path, params_file, c
     ("time[s],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, u, v, -a), "reversed"),
     ("time[s],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, u, v, 1000 * a), "milliamps"),
     ("time[s],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, 100 * u, v, a), "percent"),
+    # milliseconds labelled [s] (new-user trial 2 item 4: replay said "too short to learn:
+    # 5942 s of flight", exit 0), and seconds labelled [ms]
+    ("time[s],command[-],voltage[V],current[A]", lambda t, u, v, a: (1000 * t, u, v, a),
+     "likely milliseconds in a column labelled [s]; label it time[ms]"),
+    ("time[ms],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, u, v, a),
+     "likely seconds in a column labelled [ms]; label it time[s]"),
 ])
 def test_unit_slips_are_refused_with_the_likely_cause(tmp_path, params_file, capsys, rows, header, fn, needle):
     f = _write(tmp_path, header, _map(rows, fn))

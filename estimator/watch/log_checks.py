@@ -75,6 +75,7 @@ def check_plausible(path, flight, units, cfg):
     units: dict column -> unit as written in the header; cfg: the watch CONFIG dict.
     """
     u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
+    _check_time_unit(path, flight["time_s"], units.get("time"), cfg["dt_max_ms"] / 1000.0)
     v_full = cfg["v_max_mV"] / 1.2          # CONFIG: v_max = 1.2 x full pack
     v_empty = cfg["v_min_mV"] * 2.0         # CONFIG: v_min = half the empty pack
     med_v = _median(mv)
@@ -114,6 +115,24 @@ def check_plausible(path, flight, units, cfg):
                              "current limit (%.0f A): likely milliamps in a column labelled [A]; label it "
                              "current[mA]" % (path, units["current"], med_a / 1000.0,
                                              med_a / cfg["i_max_mA"], cfg["i_max_mA"] / 1000.0))
+
+
+def _check_time_unit(path, time_s, unit, gap_s):
+    """Refuse a time column whose median step only makes sense in the other unit: steps far
+    beyond the watch's sample gap limit gap_s [s] that would be ordinary logging periods in
+    ms (milliseconds labelled [s]), or steps below 2 ms that would be ordinary in s."""
+    steps = [b - a for a, b in zip(time_s, time_s[1:]) if b > a]
+    if len(steps) < 3:
+        return
+    step = _median(steps)
+    if unit == "s" and step > 20.0 * gap_s and step / 1000.0 <= gap_s:
+        raise InputError("%s: column time[s]: the median step between rows is %.4g s, %.0f times the "
+                         "watch's sample gap limit (%.1f s): likely milliseconds in a column labelled "
+                         "[s]; label it time[ms]" % (path, step, step / gap_s, gap_s))
+    if unit == "ms" and step < 0.002 and step * 1000.0 <= gap_s:
+        raise InputError("%s: column time[ms]: the median step between rows is %.3g ms, a logging rate "
+                         "above 500 Hz: likely seconds in a column labelled [ms]; label it time[s]"
+                         % (path, step * 1000.0))
 
 
 def flying_ms(flight, cfg):
