@@ -20,29 +20,17 @@ import numpy as np
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 sys.path.insert(0, ROOT)
 
+sys.path.insert(0, os.path.join(ROOT, "tests"))
+
 from estimator.bench.levels import command_levels  # noqa: E402
+from test_spike_screen import _sweep  # noqa: E402
 
 
 def sweep(rng, spikes=0, reps=None):
-    """(command, voltage, thrust, power, spike mask, clear-spike mask) of one invented sweep."""
-    steps = int(rng.integers(11, 42))
-    reps = reps or int(rng.choice([2, 3, 3, 3, 4, 6]))
-    t_max = float(np.exp(rng.uniform(np.log(0.3), np.log(300.0))))
-    dead, p = rng.uniform(0.02, 0.12), rng.uniform(1.5, 2.2)
-    u = np.repeat(np.linspace(0.0, 1.0, steps), reps)
-    x = np.clip((u - dead) / (1.0 - dead), 0.0, 1.0)
-    t = t_max * x ** p
-    power = 0.5 + 4.0 * t_max * (t / t_max) ** 1.5
-    sigma = rng.uniform(0.0, 0.004) * t_max + rng.uniform(0.002, 0.02) * t
-    noisy = t + rng.normal(0.0, 1.0, u.size) * sigma
-    power = power * (1.0 + rng.normal(0.0, rng.uniform(0.002, 0.02), u.size))
-    v = 15.0 * (1.0 + rng.normal(0.0, 5e-4, u.size))
-    bad = np.zeros(u.size, dtype=bool)
-    if spikes:
-        idx = rng.choice(np.flatnonzero(x > 0.2), size=spikes, replace=False)
-        noisy[idx] += rng.choice([-1.0, 1.0], spikes) * rng.uniform(0.08, 0.3, spikes) * t_max
-        bad[idx] = True
-    step = np.repeat(np.arange(steps), reps)
+    """(command, voltage, thrust, power, spike mask, clear-spike mask) of one invented sweep
+    (tests/test_spike_screen.py makes it)."""
+    u, v, noisy, power, bad, sigma, t = _sweep(rng, spikes, reps)
+    step = np.unique(u, return_inverse=True)[1]
     alone = np.array([np.count_nonzero(bad & (step == step[i])) == 1 for i in range(u.size)])
     clear = bad & alone & (np.abs(noisy - t) > 10.0 * sigma)
     return u, v, noisy, power, bad, clear

@@ -30,6 +30,11 @@ SPIKE_SIGMAS = 6.0
 SMALL_LEVEL = 20
 # rows of the systematic subsample that fixes the robust scale of deviations [-]
 SCALE_ROWS = 20000
+# the thrust noise profile: at most this many thrust bins, each of at least NOISE_BIN_ROWS
+# rows of turning levels; 12 rows let two spikes in one bin (six spoiled deviations) mask
+# each other, 24 coarsen the profile: measured by benchmarks/spike_screen.py [-]
+NOISE_BINS = 6
+NOISE_BIN_ROWS = 18
 
 
 def robust_scale(x):
@@ -38,6 +43,35 @@ def robust_scale(x):
     if x.size == 0:
         return 0.0
     return float(1.4826 * np.median(np.abs(x - np.median(x))))
+
+
+def _noise_profile(level_thrust, dev):
+    """Thrust noise against thrust: (thrust knots [N], scale [N]) for numpy.interp, or None
+    when there are too few rows.
+
+    Load-cell noise has a floor and grows with the load, so one pooled scale in newtons
+    calls honest full-thrust rows spikes. The rows (deviation from their level's mean, that
+    level's |thrust|) are cut into NOISE_BINS groups of equal row count by thrust; each
+    group's normalised MAD is its scale, at the group's median thrust, never falling with
+    thrust.
+    """
+    top = float(np.max(level_thrust)) if level_thrust.size else 0.0
+    turning = level_thrust > 0.02 * top  # a rotor standing still shows only the floor
+    level_thrust, dev = level_thrust[turning], dev[turning]
+    n_bins = int(min(NOISE_BINS, dev.size // NOISE_BIN_ROWS))
+    if n_bins < 1:
+        return None
+    order = np.argsort(level_thrust, kind="stable")
+    knots, scales = [], []
+    for part in np.array_split(order, n_bins):
+        knots.append(float(np.median(level_thrust[part])))
+        scales.append(robust_scale(dev[part]))
+    knots, scales = np.array(knots), np.array(scales)
+    keep = np.r_[True, np.diff(knots) > 0.0]
+    knots, scales = knots[keep], np.maximum.accumulate(scales[keep])
+    if top > knots[-1] > 0.0:  # above the last bin's middle the noise keeps growing with the load
+        knots, scales = np.r_[knots, top], np.r_[scales, scales[-1] * top / knots[-1]]
+    return knots, scales
 
 
 def _level_keys(u, v):
@@ -137,11 +171,18 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     ks = key[::step]
     sel = big[ks]
     s_t = robust_scale(dt[::step][sel]) if np.any(sel) else 0.0
+    # levels of SMALL_LEVEL rows or more carry their own scale (below); the others take the
+    # scale of the noise at their thrust, from the profile (none needed when every level is big)
+    needs_profile = bool(np.any(sel)) and bool(np.any(count[big] < SMALL_LEVEL))
+    sub = (np.abs(t_m)[ks][sel], dt[::step][sel]) if needs_profile else None
+    profile_t = _noise_profile(*sub) if sub is not None else None
     s_p = robust_scale((dp[::step] / ref_p[ks])[sel]) if np.any(sel) else 0.0
     # noise grows with thrust and power: levels of SMALL_LEVEL rows or more carry their own
     # scale (rms about the level's trend), smaller ones the subsample's robust scale
     own = count >= SMALL_LEVEL
     scale_t = np.full(n_keys, max(s_t, 1e-6 * t_top))
+    if profile_t is not None:  # load-cell noise grows with thrust: the scale at each level's thrust
+        scale_t = np.maximum(np.interp(np.abs(t_m), *profile_t), 1e-6 * t_top)
     scale_p = ref_p * max(s_p, 1e-6)
     if np.any(own):
         ms_t = np.bincount(key, weights=np.square(dt), minlength=n_keys) / safe
@@ -149,6 +190,16 @@ def command_levels(command, voltage_V, thrust_N, power_W):
         scale_t[own] = np.maximum(np.sqrt(ms_t[own]), 1e-6 * t_top)
         scale_p[own] = np.maximum(np.sqrt(ms_p[own]), 1e-6 * ref_p[own])
     thrust_spike = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
+    if profile_t is not None and thrust_spike.any():
+        # a spike moves its whole level's deviations: judge again with a profile made only
+        # of levels without a flagged row (dt is |deviation| now; the screen needs no sign)
+        spoiled = np.zeros(n_keys, dtype=bool)
+        spoiled[key[thrust_spike]] = True
+        clean = ~spoiled[ks[sel]]
+        again = _noise_profile(*(x[clean] for x in sub))
+        if again is not None:
+            scale_t = np.maximum(np.interp(np.abs(t_m), *again), 1e-6 * t_top)
+            thrust_spike = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
     del dt
     spinning = big & (np.abs(t_m) > 0.02 * t_top)
     power_spike = _screen(key, n_keys, count, p, dp, scale_p, SPIKE_SIGMAS, spinning)
