@@ -118,6 +118,14 @@ def test_voltage_in_millivolts_labelled_volts_is_refused(tmp_path):
         read_bench(_csv(tmp_path, body))
 
 
+def test_current_in_milliamps_labelled_amps_is_refused_with_the_cause(tmp_path):
+    # new-user trial 2 item 13: was "only 2 of 10 rows are usable (...)"
+    body = "".join("%.3f,15.0,%.1f,%.3f\n" % (u, 25000.0 * u ** 3 + 300.0, 10.0 * u * u)
+                   for u in np.linspace(0.1, 1.0, 12))
+    with pytest.raises(InputError, match=r"mA but labelled \[A\]\? label it current\[mA\]"):
+        read_bench(_csv(tmp_path, body))
+
+
 def test_percent_command_labelled_dimensionless_is_refused(tmp_path):
     body = "".join("%d,15,5,2\n" % (10 + 5 * k) for k in range(12))
     with pytest.raises(InputError, match=r"command\[%\]"):
@@ -166,7 +174,8 @@ def test_current_in_milliamps_labelled_amps_is_refused(tmp_path):
             cells[3] = "%.1f" % (float(cells[3]) * 1000.0)
             line = ",".join(cells)
         out.append(line)
-    with pytest.raises(InputError, match="far below any working rotor"):
+    # the median current (thousands of "A") names the slip before the static factor would
+    with pytest.raises(InputError, match=r"mA but labelled \[A\]"):
         _fit_text(tmp_path, "\n".join(out) + "\n")
 
 

@@ -179,7 +179,9 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     del cols
     rows_total = data["command"].shape[0]
     if rows_total < 10:
-        raise InputError("%s: only %d data rows; a sweep needs at least 10" % (path, rows_total))
+        raise InputError("%s: only %d data rows; a sweep needs at least 10 (the fit has 9 motor and "
+                         "propeller parameters): log two readings at each step, or more steps from idle "
+                         "to full command" % (path, rows_total))
 
     u, v, i, t = data["command"], data["voltage"], data["current"], data["thrust"]
     # one min and max per column decide the common case: every value finite and inside
@@ -314,6 +316,13 @@ def _check_units(path, data, v_med=None, extremes=None):
                                                 data["command_unit"], hint))
         if data["command_unit"] == "%" and u_max <= 0.0101:
             raise InputError("%s: command[%%] never exceeds 1 %%; is it command[-] (0..1)?" % path)
+        i = data["current"]
+        i = i[:: max(1, i.size // 200000)]
+        i_med = float(np.nanmedian(i)) if np.any(np.isfinite(i)) else float("nan")
+        if data["current_unit"] == "A" and i_med > MAX_CURRENT_A:
+            raise InputError("%s: current median %.4g A is above %g A for one rotor's supply; is the "
+                             "column in mA but labelled [A]? label it current[mA]"
+                             % (path, i_med, MAX_CURRENT_A))
 
 
 def _bench_air(path, comments, density, altitude, temperature, pressure, humidity, warnings):
