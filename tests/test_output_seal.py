@@ -77,7 +77,8 @@ def test_a_set_without_a_seal_is_not_replaced(tmp_path):
 
 def test_export_settings_lines_are_sealed_too(tmp_path):
     out = tmp_path / "settings.txt"
-    assert run("export", EXAMPLE, "--out", out).exit_code == 0
+    first = run("export", EXAMPLE, "--out", out)
+    assert first.exit_code == 0 and first.stdout.endswith("settings written to %s\n" % out)
     assert out.read_text().splitlines()[-1].startswith("# content sha256: ")
     assert run("export", EXAMPLE, "--out", out).exit_code == 0
     out.write_text(out.read_text().replace("\n", "\r\n"))       # an editor changed line endings

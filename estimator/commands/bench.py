@@ -240,3 +240,5 @@ def export(params_file, map_file, out_file, as_json):
             "settings": as_mapping(settings)}) + "\n"
         write_text(out_file, kept, "settings")
     click.echo(text, nl=False)
+    if out_file is not None and not as_json:
+        click.echo("settings written to %s" % out_file)
