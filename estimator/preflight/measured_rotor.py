@@ -239,6 +239,13 @@ def voltage_range_warning(params, voltages):
             % (", ".join(outside), swept, 100.0 * (worst - 1.0), curve["voltage_exponent"]))
 
 
+def about_the_vehicle(warning):
+    """True for a warning hover_from_params derives from a vehicle (its pack voltages, site air or
+    hover command beyond the sweep): hover_block stores these in the parameter set for the fit's
+    vehicle, and hover_from_params leaves the stored ones out and computes them afresh."""
+    return "beyond the bench sweep" in warning or "extrapolated" in warning
+
+
 def hover_from_params(vehicle, params):
     """The ``liftcal hover --json`` report for a vehicle, from a fitted parameter set.
 
@@ -334,7 +341,10 @@ def hover_from_params(vehicle, params):
         warnings.append("the sweep was made on an isolated rotor; for the coaxial pair the ideal induced "
                         "power is multiplied by %.2f (momentum theory, power basis), as in the datasheet "
                         "route; the lower rotor's own thrust loss is not modelled" % COAXIAL_INDUCED_POWER_FACTOR)
-    report["warnings"] = warnings + list(params.get("warnings", []))
+    # the set's own warnings, less those it stored about the vehicle it was fitted with (this
+    # vehicle's are computed above); each warning once
+    stored = [w for w in params.get("warnings", []) if not about_the_vehicle(w)]
+    report["warnings"] = list(dict.fromkeys(warnings + stored))
     report["cautions"] = list(CAUTIONS)
     return report
 
@@ -357,7 +367,7 @@ def hover_block(vehicle, params):
                          % (vehicle_source(vehicle, "the vehicle"), bench or "the bench sweep",
                             cause[0][len("cannot hover: "):] if cause else "no hover command"))
     return {
-        "_warnings": [w for w in r["warnings"] if "beyond the bench sweep" in w or "extrapolated" in w],
+        "_warnings": [w for w in r["warnings"] if about_the_vehicle(w)],
         "hover_command": r["hover_command"],
         "hover_command_interval_95": r["hover_command_interval_95"],
         "interval_method": r["interval_method"],

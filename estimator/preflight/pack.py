@@ -24,7 +24,7 @@ def pack_in_the_air(vehicle, air):
     vehicle: checked vehicle dict; air: the site air the estimate uses (core.atmosphere.site_air,
     temperature_K [K]). Returns (battery dict [resistance_ohm times core.battery.
     cold_resistance_factor, cutoff_cell_V filled], pack temperature [C], how it was chosen:
-    "battery", "site" or "air").
+    "battery", "site" or "air" [the assumed air's temperature]).
     """
     battery = dict(vehicle["battery"])
     site = vehicle.get("site") or {}
@@ -33,11 +33,14 @@ def pack_in_the_air(vehicle, air):
     elif site.get("temperature_C") is not None:
         temperature, basis = site["temperature_C"], "site"
     else:
-        temperature, basis = None, "warm"
-    if temperature is not None:
-        battery["resistance_ohm"] = battery["resistance_ohm"] * cold_resistance_factor(temperature)
+        temperature, basis = air["temperature_K"] - KELVIN_OFFSET, "air"
+    battery["resistance_ohm"] = battery["resistance_ohm"] * cold_resistance_factor(temperature)
     battery.setdefault("cutoff_cell_V", battery["empty_cell_V"] - CUTOFF_BELOW_EMPTY_V)
     return battery, temperature, basis
+
+
+BASIS_WORDS = {"battery": "the battery's temperature", "site": "the site temperature",
+               "air": "the temperature assumed for the air"}
 
 
 def pack_keys(vehicle, battery, temperature, basis):
@@ -47,3 +50,17 @@ def pack_keys(vehicle, battery, temperature, basis):
             "pack_temperature_basis": basis,
             "pack_cold_factor": battery["resistance_ohm"] / raw if raw > 0.0 else 1.0,
             "cutoff_cell_V": battery["cutoff_cell_V"], "cells": battery["cells"]}
+
+
+def pack_temperature_text(report):
+    """The sheet's words on the pack temperature behind the pack resistance ('' when unknown)."""
+    temperature = report.get("pack_temperature_C")
+    if temperature is None:
+        return ""
+    cold = report.get("pack_cold_factor") or 1.0
+    basis = BASIS_WORDS.get(report.get("pack_temperature_basis"), "")
+    text = " (pack at %.0f C, %s" % (temperature, basis) if basis else " (pack at %.0f C" % temperature
+    if cold >= 1.005:  # shown as x1.01 or more
+        text += ("; resistance x%.2f, cold factor from memory: a colder pack sags more, which can cost "
+                 "more thrust-to-weight than the denser air gives" % cold)
+    return text + ")"

@@ -11,7 +11,7 @@ from estimator.core.hover import hover_estimate, rotor_propeller
 from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_merit,
                                      induced_velocity_m_s, static_factor)
 from estimator.cautions import cautions
-from estimator.preflight.pack import pack_in_the_air, pack_keys
+from estimator.preflight.pack import pack_in_the_air, pack_keys, pack_temperature_text
 from estimator.preflight.propeller_estimate import estimated_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
@@ -233,11 +233,9 @@ def format_sheet(report):
                 _num(report.get("flight_time_min"), "%.1f", "min"), _num(report.get("usable_Ah"), "%.2f", "Ah"),
                 report.get("flight_time_basis", "usable share at the nominal-pack hover current")))
         if report.get("cutoff_cell_V") is not None:
-            cold = report.get("pack_cold_factor") or 1.0
             lines.append("   cutoff %.2f V per cell under load; pack resistance %s%s" % (
                 report["cutoff_cell_V"], _num(report.get("pack_resistance_ohm"), "%.3g", "ohm"),
-                (" (x%.2f for a pack at %.0f C, cold factor from memory)"
-                 % (cold, report.get("pack_temperature_C"))) if cold > 1.0 else ""))
+                pack_temperature_text(report)))
         lines.append("   hover draws %s from the pack (all motors), %s (nominal pack, bus at %s)" % (
             _num(report.get("hover_current_A"), "%.1f", "A"), _num(report.get("hover_power_W"), "%.0f", "W"),
             _num(report.get("hover_bus_V"), "%.2f", "V")))
@@ -261,7 +259,7 @@ def format_sheet(report):
     lines.append("")
 
     lines.append("4. What to watch out for")
-    warnings = [w for w in report.get("warnings") or []
+    warnings = [w for w in dict.fromkeys(report.get("warnings") or [])
                 if report.get("can_hover") or not w.startswith("cannot hover")]
     if warnings:
         for w in warnings:
