@@ -200,7 +200,9 @@ def vehicle_file(truth):
                   "resistance_ohm": min(truth["r_m"], 9.9), "no_load_current_A": min(truth["i0"], 9.9)},
         "battery": {"cells": vh["cells"], "capacity_Ah": vh["capacity_Ah"], "resistance_ohm": vh["r_pack"],
                     "full_cell_V": vh["full_cell_V"], "nominal_cell_V": vh["nominal_cell_V"],
-                    "empty_cell_V": vh["empty_cell_V"], "usable_fraction": 0.8},
+                    "empty_cell_V": vh["empty_cell_V"], "usable_fraction": 0.8,
+                    # r_pack is the truth's resistance in flight: a pack at 25 C (no cold factor)
+                    "temperature_C": 25.0},
         "site": {"altitude_m": truth["altitude_m"]},
     }
 
