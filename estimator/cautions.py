@@ -19,6 +19,10 @@ PACKS = ("Charge, carry and store lithium packs by the maker's rules; never leav
 RULES = ("Local aviation rules and the makers' limits for the airframe, motors, ESCs and pack "
          "come first.")
 
+# the consequence of full command pulling the pack below its loaded cutoff (sheet warning)
+SAG_BELOW_CUTOFF = ("expect a low-voltage cut-out or a brownout on a punch-out: keep full command short, "
+                    "or use a pack with less resistance or more capacity")
+
 # one short line for plot titles and one-line outputs
 SHORT = "estimates: confirm with a tethered or low hover test; props off while configuring"
 

@@ -173,15 +173,16 @@ def test_fitted_sheet_keeps_the_motor_and_pack_current_checks(fitted):
     vehicle, params, _ = fitted
     report = hover_from_params(_six_cell(vehicle, max_discharge_C=20), params)  # 6S on the 4S fit
     count = vehicle["rotors"]["count"]
-    # ideal ESC (measured_rotor docstring): at full command duty 1, motor current = rotor bus
-    # current less the ESC's own draw; exact by construction
+    # ESC of efficiency eta (measured_rotor docstring): at full command duty 1, motor current =
+    # eta x (rotor bus current less the ESC's own draw); exact by construction
     mm = params["motor_model"]
     iq = mm["esc_idle_current_A"]
-    assert report["full_motor_current_A"] == pytest.approx(report["full_pack_current_A"] / count - iq, rel=1e-9)
+    eta = vehicle["esc"]["efficiency"]
+    assert report["full_motor_current_A"] == pytest.approx(eta * (report["full_pack_current_A"] / count - iq), rel=1e-9)
     # in hover I_motor = (I_bus,rotor - I_q) / d with the motor model's duty at the hover
     # command, d = ((u - u0) / (u1 - u0))^g; never the quadratic's intercept command_min
     d = ((report["hover_command"] - mm["command_start"]) / (mm["command_top"] - mm["command_start"])) ** mm["duty_exponent"]
-    assert report["hover_motor_current_A"] == pytest.approx((report["hover_current_A"] / count - iq) / d, rel=1e-9)
+    assert report["hover_motor_current_A"] == pytest.approx(eta * (report["hover_current_A"] / count - iq) / d, rel=1e-9)
     limit = vehicle["motor"]["max_current_A"]
     assert report["full_motor_current_A"] > limit  # the case the trial found (about 40 A on 30 A)
     # the datasheet sheet's own wording: one shared function (estimator.preflight.margin_warnings)
@@ -266,7 +267,8 @@ def test_pack_limited_vehicle_on_the_fitted_model(fitted):
     report = hover_from_params(check_vehicle(doc, "weak.json"), params)
     assert report["hover_command"] is None and report["hover_limited_by"] == "pack"
     iq = params["motor_model"]["esc_idle_current_A"]
-    assert report["full_motor_current_A"] == pytest.approx(report["full_pack_current_A"] / 4 - iq, rel=1e-9)
+    eta = doc["esc"]["efficiency"]  # motor current = eta x ESC input less its own draw, at duty 1
+    assert report["full_motor_current_A"] == pytest.approx(eta * (report["full_pack_current_A"] / 4 - iq), rel=1e-9)
     with pytest.raises(InputError) as info:
         hover_block(check_vehicle(doc, "weak.json"), params)
     assert str(info.value).startswith("weak.json: ") and "pack cannot deliver" in str(info.value)

@@ -6,7 +6,11 @@ T = a s^2, I = I0 + b s + c s^2, Vm = s + R I, duty d = Vm / V_bus, command
 u = u0 + (u1 - u0) d^(1/g), bus current I_q + d I per rotor; a and c grow as the air
 density. Each of N rotors holds T_r = m g / N; the pack sags as V_bus = V_oc - R_pack I_pack
 (Thevenin pack, design notes sec. 3), solved in closed form for hover and by bisection at
-full command. The command where the rotor starts turning is u0, reported separately; the
+full command. The bench measures the supply current, so the fitted I carries the ESC's loss
+(it is the ESC input power over Vm); the motor's own current on the sheet is eta_esc I with the
+vehicle's ESC efficiency, the relation the datasheet route uses (P_bus = Vm I_motor / eta_esc),
+so the motor-limit warning compares motor current with the motor limit in both routes.
+The command where the rotor starts turning is u0, reported separately; the
 controller quadratic's intercept command_min is never used as a duty offset. Coaxial pairs:
 the torque current is raised by power_model.coaxial_shaft_ratio, the same rule the datasheet
 route applies to CP (only the ideal induced power is multiplied by the coaxial factor).
@@ -27,6 +31,8 @@ from estimator.core.discharge import discharge_to_cutoff
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
 from estimator.core.power_model import coaxial_shaft_ratio, rotor_power_W  # noqa: F401 (re-exported)
 from estimator.errors import InputError
+from estimator.preflight.range_warnings import (about_the_vehicle, command_range_warnings,  # noqa: F401
+                                                voltage_range_warning)
 from estimator.units import STANDARD_GRAVITY_M_S2
 
 INTERVAL_METHOD = ("+-1.96 standard errors of the motor model's hover command: model-form error (robust "
@@ -44,8 +50,6 @@ EXTRAPOLATION_N_ERROR = 0.15
 ONE_WAY_LAG_SE = ONE_WAY_LAG_COMMAND_SE
 # smallest standard error of a hover command: a tenth of a percent step of the command [-]
 MIN_COMMAND_SE = 0.002
-VOLTAGE_RANGE_TOLERANCE = 0.02
-REFERENCE_VOLTAGE_BAND = 0.12
 Z_95 = 1.959964  # two-sided 95 % point of the standard normal [-]
 BISECTION_STEPS = 60
 
@@ -188,64 +192,6 @@ def _site(vehicle):
     return vehicle_site_air(vehicle)
 
 
-def command_range_warnings(params, states):
-    """Warnings, with numbers, when a hover command lies beyond the commands the sweep measured."""
-    curve = params["thrust_curve"]
-    top = curve.get("command_swept_max")
-    out = []
-    if top is None:
-        return out
-    for name in ("full", "nominal", "empty"):
-        u = states[name]["command"]
-        if u is not None and u > top + 0.005:
-            out.append("hover command %.3f at %s pack lies above the highest command swept (%.3f): "
-                       "extrapolated by the motor model" % (u, name, top))
-    mm = params["motor_model"]
-    if top < mm["command_top"] - 0.02:
-        out.append("full-command thrust and thrust-to-weight are extrapolated from command %.3f (the "
-                   "sweep's top) to %.3f by the motor model" % (top, mm["command_top"]))
-    return out
-
-
-def voltage_range_warning(params, voltages):
-    """A warning when bus voltages lie beyond the bench sweep's, or None.
-
-    params: parameter set; voltages: list of (label, bus voltage [V]) where the model
-    evaluates the thrust curve. Uses thrust_curve.voltage_min_V / voltage_max_V (the sweep's
-    range) when the parameter set has them, else a band of +-REFERENCE_VOLTAGE_BAND around
-    reference_voltage_V (module constants).
-    """
-    curve = params["thrust_curve"]
-    v_ref = curve["reference_voltage_V"]
-    lo, hi = curve.get("voltage_min_V"), curve.get("voltage_max_V")
-    recorded = lo is not None and hi is not None
-    if recorded:
-        lo_ok, hi_ok = lo * (1.0 - VOLTAGE_RANGE_TOLERANCE), hi * (1.0 + VOLTAGE_RANGE_TOLERANCE)
-    else:
-        lo_ok, hi_ok = v_ref * (1.0 - REFERENCE_VOLTAGE_BAND), v_ref * (1.0 + REFERENCE_VOLTAGE_BAND)
-    outside = ["%.1f V (%s)" % (v, label) for label, v in voltages
-               if v is not None and not lo_ok <= v <= hi_ok]
-    if not outside:
-        return None
-    if recorded:
-        swept = "the bench sweep ran at %.1f..%.1f V" % (lo, hi)
-    else:
-        swept = ("against its reference voltage %.1f V; the parameter set does not record the "
-                 "sweep's range" % v_ref)
-    worst = max((max(lo_ok / v, v / hi_ok) for _, v in voltages if v is not None), default=1.0)
-    return ("bus voltage beyond the bench sweep: %s, %s (up to %.0f %% beyond); thrust, current and "
-            "margins there are extrapolated by the fitted motor model (voltage exponent %.2f at the "
-            "reference): sweep the rotor at this pack's voltage to confirm"
-            % (", ".join(outside), swept, 100.0 * (worst - 1.0), curve["voltage_exponent"]))
-
-
-def about_the_vehicle(warning):
-    """True for a warning hover_from_params derives from a vehicle (its pack voltages, site air or
-    hover command beyond the sweep): hover_block stores these in the parameter set for the fit's
-    vehicle, and hover_from_params leaves the stored ones out and computes them afresh."""
-    return "beyond the bench sweep" in warning or "extrapolated" in warning
-
-
 def hover_from_params(vehicle, params):
     """The ``liftcal hover --json`` report for a vehicle, from a fitted parameter set.
 
@@ -256,7 +202,7 @@ def hover_from_params(vehicle, params):
     warnings, and the keys the pre-flight sheet shows.
     """
     from estimator.cautions import cautions
-    from estimator.preflight.warnings import margin_warnings
+    from estimator.preflight.warnings import full_command_sag, margin_warnings
 
     CAUTIONS = cautions("sheet")
     from estimator.vehicle import assumed_warnings
@@ -271,6 +217,7 @@ def hover_from_params(vehicle, params):
               for name in ("full", "nominal", "empty")}
     nom = states["nominal"]
     count = vehicle["rotors"]["count"]
+    esc_eff = vehicle.get("esc", {}).get("efficiency", 1.0)
     interval, se = (None, None)
     if nom["command"] is not None:
         interval, se = hover_interval(params, nom)
@@ -300,8 +247,13 @@ def hover_from_params(vehicle, params):
         "thrust_per_rotor_N": nom["thrust_per_rotor_N"], "full_thrust_N": nom["full_thrust_N"],
         "hover_bus_V": nom["bus_V"] if hovering else None,
         "full_bus_V": nom["full_bus_V"], "full_pack_current_A": nom["full_pack_current_A"],
-        "full_motor_current_A": nom["full_motor_current_A"],
-        "hover_motor_current_A": nom.get("motor_current_A") if hovering else None,
+        # the fitted current is referred to the ESC input (module docstring): the motor's own
+        # current is eta_esc times it, as in the datasheet route (P_bus = Vm I / eta_esc)
+        "full_motor_current_A": esc_eff * nom["full_motor_current_A"],
+        "full_esc_input_current_A": nom["full_pack_current_A"] / count,
+        "hover_motor_current_A": esc_eff * nom["motor_current_A"] if hovering else None,
+        "hover_esc_input_current_A": nom["current_A"] / count if hovering else None,
+        "esc_efficiency": esc_eff,
         "motor_current_limit_A": vehicle["motor"].get("max_current_A"),
         "pack_current_limit_A": max_pack_current_A(b["capacity_Ah"], b.get("max_discharge_C")),
         "pack_voltage_V": {k: states[k]["open_circuit_V"] for k in states},
@@ -317,6 +269,7 @@ def hover_from_params(vehicle, params):
         "flight_ended_by": None, "discharge": None,
     }
     report.update(pack_keys(raw_vehicle, b, pack_temperature, pack_basis))
+    report.update(full_command_sag(report))
     if hovering:
         d = discharge_to_cutoff(b["cells"], b["capacity_Ah"], b.get("usable_fraction", 0.8),
                                 b["full_cell_V"], b["nominal_cell_V"], b["empty_cell_V"],

@@ -15,7 +15,7 @@ from estimator.preflight.pack import pack_in_the_air, pack_keys, pack_temperatur
 from estimator.preflight.propeller_estimate import estimated_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
-from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num)
+from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, beside, full_command_sag, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num)
 
 MODEL = "liftcal.dc-motor-momentum/1"
 # the datasheet model takes command = ESC duty; a real ESC only starts the motor above a
@@ -126,6 +126,7 @@ def _report(vehicle, params=None):
         "esc_efficiency": esc_eff,
     }
     report.update(pack_keys(vehicle, battery, pack_temperature, pack_basis))
+    report.update(full_command_sag(report))
     report["warnings"] = (checks + assumed_warnings(vehicle) + ([estimate["note"]] if estimate else [])
                           + margin_warnings(report))
     report["cautions"] = list(CAUTIONS)
@@ -191,10 +192,17 @@ def format_sheet(report):
     lines.append("")
 
     lines.append("2. With what margin?")
-    lines.append("   thrust-to-weight   %s   (full command, nominal pack; 2 is the usual floor)"
-                 % _num(report.get("thrust_to_weight"), "%.2f"))
-    lines.append("   full-command thrust %s total, each rotor must make %s" % (
+    reachable = report.get("thrust_to_weight_reachable")
+    lines.append("   thrust-to-weight   %s   (full command, nominal pack; %s2 is the usual floor)"
+                 % (thrust_to_weight_text(report.get("thrust_to_weight")),
+                    "NOT REACHABLE on this pack, see below; " if reachable is False else ""))
+    lines.append("   full-command thrust %s total (hover needs %s per rotor)" % (
         _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("thrust_per_rotor_N"), "%.2f", "N")))
+    if report.get("full_command_cell_V") is not None:
+        lines.append("   full command sags the pack to %s (%s per cell; loaded cutoff %s per cell)" % (
+            _num(report.get("full_bus_V"), "%.1f", "V"),
+            beside(report["full_command_cell_V"], report["cutoff_cell_V"]) + " V" if reachable is False
+            else _num(report["full_command_cell_V"], "%.2f", "V"), _num(report.get("cutoff_cell_V"), "%.2f", "V")))
     count = report.get("rotor_count") or 0
     esc_hover = report.get("hover_esc_input_current_A", report.get("per_rotor_bus_current_A"))
     esc_full = report.get("full_esc_input_current_A")

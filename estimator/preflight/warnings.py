@@ -42,6 +42,37 @@ ENDED_BY_WORDS = {"cutoff": "the loaded-voltage cutoff", "reserve": "the landing
                   "thrust": "the loss of hover (the drained pack can no longer hold it)"}
 
 
+def beside(value, threshold, below=True, digits=2):
+    """value written with `digits` decimals, or with more where fewer would round it onto or past
+    the threshold it is compared with ("2.00 is below 2" is never printed): below=True for a value
+    reported as below the threshold, False for one above it."""
+    for places in range(digits, 10):
+        text = "%.*f" % (places, value)
+        if (float(text) < threshold) if below else (float(text) > threshold):
+            return text
+    return repr(value)
+
+
+def thrust_to_weight_text(tw):
+    """The thrust-to-weight as the sheet and its warnings print it (same digits everywhere)."""
+    if tw is None:
+        return "n/a"
+    return beside(tw, THRUST_TO_WEIGHT_MIN) if tw < THRUST_TO_WEIGHT_MIN else "%.2f" % tw
+
+
+def full_command_sag(report):
+    """The bus voltage per cell at full command on a nominal pack against the loaded cutoff.
+
+    Reads full_bus_V [V], cells [-], cutoff_cell_V [V]. Returns the report keys
+    full_command_cell_V [V] and thrust_to_weight_reachable (False when full command pulls the
+    pack below its cutoff, so the thrust-to-weight there is not reachable; None when unknown).
+    """
+    cells, bus, cutoff = report.get("cells"), report.get("full_bus_V"), report.get("cutoff_cell_V")
+    if not cells or bus is None or cutoff is None:
+        return {"full_command_cell_V": None, "thrust_to_weight_reachable": None}
+    return {"full_command_cell_V": bus / cells, "thrust_to_weight_reachable": bus / cells >= cutoff}
+
+
 def cannot_hover_cause(report):
     """One warning that names the real limiting factor of a vehicle that cannot hover."""
     weight = report.get("weight_N") or 0.0
@@ -86,11 +117,12 @@ def not_flyable_reasons(report):
     out = []
     tw = report.get("thrust_to_weight")
     if tw is not None and tw < FLYABLE_THRUST_TO_WEIGHT:
-        out.append("thrust-to-weight %.2f leaves almost nothing to climb or steer with (below %.1f)"
-                   % (tw, FLYABLE_THRUST_TO_WEIGHT))
+        out.append("thrust-to-weight %s leaves almost nothing to climb or steer with (below %.1f)"
+                   % (beside(tw, FLYABLE_THRUST_TO_WEIGHT), FLYABLE_THRUST_TO_WEIGHT))
     command = report.get("hover_command")
     if command is not None and command > FLYABLE_HOVER_COMMAND:
-        out.append("hover command %.2f is above %.1f of full command" % (command, FLYABLE_HOVER_COMMAND))
+        out.append("hover command %s is above %.1f of full command"
+                   % (beside(command, FLYABLE_HOVER_COMMAND, below=False), FLYABLE_HOVER_COMMAND))
     if command is not None and report.get("hover_command_empty") is None:
         out.append("it cannot hover near the end of the pack")
     return out
@@ -110,18 +142,25 @@ def margin_warnings(report):
             worst = (value, label)
             break
     if worst and report.get("hover_command") is not None:  # a vehicle that cannot hover got its cause
-        out.append("hover command %.2f at %s pack is above %.1f of full command: little left for "
-                   "control and gusts (thrust-to-weight %.2f)"
-                   % (worst[0], worst[1], HOVER_COMMAND_LIMIT, tw or 0.0))
+        out.append("hover command %s at %s pack is above %.1f of full command: little left for "
+                   "control and gusts (thrust-to-weight %s)"
+                   % (beside(worst[0], HOVER_COMMAND_LIMIT, below=False), worst[1], HOVER_COMMAND_LIMIT,
+                      thrust_to_weight_text(tw)))
     if report.get("hover_command") is not None and report.get("hover_command_empty") is None:
         out.append("near the end of the pack it cannot hover (command would exceed full at %s V open "
                    "circuit): land well before the pack is empty"
                    % _num((report.get("pack_voltage_V") or {}).get("empty"), "%.1f"))
     if tw is not None and 1.0 <= tw < THRUST_TO_WEIGHT_MIN:
-        out.append("thrust-to-weight %.2f is below %.0f (this set hovers at command %s on a nominal "
-                   "pack): sluggish climbs and little control margin (common practice: 2 or more; where "
-                   "thrust grows about as command^1.8 that puts hover near 0.67, and hovering near 0.5 "
-                   "needs about 3)" % (tw, THRUST_TO_WEIGHT_MIN, _num(report.get("hover_command"), "%.2f")))
+        out.append("thrust-to-weight %s is below %.0f: sluggish climbs and little control margin "
+                   "(common practice: 2 or more, about 3 for brisk flying)"
+                   % (thrust_to_weight_text(tw), THRUST_TO_WEIGHT_MIN))
+    sag = full_command_sag(report)
+    if sag["thrust_to_weight_reachable"] is False:
+        from estimator.cautions import SAG_BELOW_CUTOFF
+        out.append("full command sags the pack to %s V per cell (%.1f V on %d cells), below its %.2f V "
+                   "cutoff: %s; the thrust-to-weight %s at full command is not reachable on this pack"
+                   % (beside(sag["full_command_cell_V"], report["cutoff_cell_V"]), report["full_bus_V"],
+                      report["cells"], report["cutoff_cell_V"], SAG_BELOW_CUTOFF, thrust_to_weight_text(tw)))
     limit = report.get("motor_current_limit_A")
     if limit is not None:
         full_i = report.get("full_motor_current_A")
