@@ -77,6 +77,7 @@ def test_fit_command_prints_what_hover_params_says(sweep, tmp_path, capsys):
         main(["hover", str(vehicle_file), "--params", str(out), "--json"])
     assert exc.value.code == 0
     sheet = json.loads(capsys.readouterr().out)
-    assert "thrust-to-weight %.2f " % sheet["thrust_to_weight"] in fit_text
+    from estimator.preflight.warnings import thrust_to_weight_text
+    assert "thrust-to-weight %s " % thrust_to_weight_text(sheet["thrust_to_weight"]) in fit_text
     stored = json.loads(out.read_text())["hover"]
     assert stored["hover_command"] == pytest.approx(sheet["hover_command"], rel=1e-5)

@@ -78,12 +78,14 @@ def _human_fit(params, out_file):
     ]
     h = params.get("hover")
     if h:
+        from estimator.preflight.warnings import thrust_to_weight_text  # printed as the sheet does
+
         lo, hi = h["hover_command_interval_95"]
         lines += ["hover for %s: command %s (95 %% interval %s..%s), thrust fraction %.3f, "
-                  "%.4g W, %.3g A, thrust-to-weight %.2f (motor model at the sagged bus %.2f V)" % (
+                  "%.4g W, %.3g A, thrust-to-weight %s (motor model at the sagged bus %.2f V)" % (
                       params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),
-                      h["hover_thrust_fraction"], h["power_W"], h["current_A"], h.get("thrust_to_weight", 0.0),
-                      h["voltage_V"])]
+                      h["hover_thrust_fraction"], h["power_W"], h["current_A"],
+                      thrust_to_weight_text(h.get("thrust_to_weight", 0.0)), h["voltage_V"])]
     for w in params.get("warnings", []):
         lines.append("! " + w)
     lines += ["- " + c for c in BENCH_CAUTIONS]
