@@ -61,19 +61,20 @@ def format_static(out, power_given):
              % (out["diameter_m"], out["disk_area_m2"], out["density_kg_m3"], out["static_factor"],
                 " (rule of thumb)" if default else "")]
     lo, hi = GOOD_SET_FACTORS
+    # three significant digits: a micro rotor's watts and a heavy lifter's newtons alike
     if power_given:
-        lines.append("  %.0f W in -> %.2f N of thrust (ideal actuator disk: %.2f N)"
+        lines.append("  %.3g W in -> %.3g N of thrust (ideal actuator disk: %.3g N)"
                      % (out["power_W"], out["thrust_N"], out["ideal_thrust_N"]))
-        key, fmt, unit = "thrust_N_at_k_", "%.2f", "N"
+        key, unit = "thrust_N_at_k_", "N"
     else:
-        lines.append("  %.2f N of thrust needs %.0f W in (ideal actuator disk: %.0f W)"
+        lines.append("  %.3g N of thrust needs %.3g W in (ideal actuator disk: %.3g W)"
                      % (out["thrust_N"], out["power_W"], out["ideal_power_W"]))
-        key, fmt, unit = "power_W_at_k_", "%.0f", "W"
+        key, unit = "power_W_at_k_", "W"
     if default:
-        # low..high values, each k beside the value it gives (power falls as k rises)
+        # low..high values, each with the k that gives it (power falls as k rises)
         (a, ka), (b, kb) = sorted((out[key + factor_tag(k)], k) for k in (lo, hi))
-        lines.append(("  good small sets reach k %.1f..%.1f: " + fmt + ".." + fmt + " %s (k = 0.3 is a "
-                      "conservative rule of thumb, common practice)") % (ka, kb, a, b, unit))
+        lines.append("  good small sets reach k %.1f..%.1f: %.3g %s (k %.1f) .. %.3g %s (k %.1f); k = 0.3 "
+                     "is a conservative rule of thumb, common practice" % (lo, hi, a, unit, ka, b, unit, kb))
     lines.append("  induced velocity %.1f m/s, slipstream %.1f m/s, disk loading %.0f N/m^2"
                  % (out["induced_velocity_m_s"], out["slipstream_velocity_m_s"], out["disk_loading_N_m2"]))
     lines += ["  " + c for c in cautions("rotor")]
