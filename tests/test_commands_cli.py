@@ -57,9 +57,9 @@ def test_static_json_is_momentum_theory_and_text_ranges_read_low_to_high(tmp_pat
     assert out["ideal_thrust_N"] == pytest.approx((2 * 1.2 * area * 100.0 ** 2) ** (1 / 3), rel=1e-12)
     text = invoke(tmp_path, "static", "--diameter", "10in", "--thrust", "5N").stdout
     line = [l for l in text.splitlines() if "good small sets" in l][0]
-    lo, hi = line.split(": ")[1].split(" W")[0].split("..")
+    lo, hi = (part.split(" W")[0] for part in line.split(": ")[1].split(" .. "))
     assert float(lo) < float(hi), line  # issue 9: was printed "31..19 W"
-    assert "k 0.7..0.5" in line  # each factor beside the power it needs
+    assert "W (k 0.7) .. " in line and "W (k 0.5)" in line  # each factor beside the power it needs
 
 
 def test_hover_on_the_design_notes_example(tmp_path):
