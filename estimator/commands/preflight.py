@@ -149,7 +149,9 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
     Hover command at full / nominal / empty pack, thrust-to-weight, motor, ESC and
     pack currents, endurance by discharging the pack to its cutoff or landing reserve,
     and warnings. The propeller may be given by size and pitch (estimated) or by its
-    coefficients. With --payload: a table of payloads and the largest that keeps the margins.
+    coefficients. With --params the bench fit replaces the datasheet model. With
+    --payload: a table of payloads and the largest that keeps the margins (from the bench
+    fit when --params is given).
     """
     from estimator.preflight.report import format_sheet, hover_report
     from estimator.vehicle import load_vehicle
@@ -157,8 +159,6 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
     if (job_time is not None or plot_file is not None) and payload_text is None:
         raise InputError("--%s: goes with --payload (e.g. --payload 0..2kg)"
                          % ("job-time" if job_time is not None else "plot"))
-    if payload_text is not None and params_file is not None:
-        raise InputError("--payload: works on the vehicle file's own model; leave out --params")
     if plot_file is not None:
         from estimator.outputs import check_output
         check_output(plot_file, "png", inputs=(vehicle_file, params_file), option="--plot")
@@ -173,7 +173,7 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
     if payload_text is not None:
         from estimator.preflight.payload import parse_payloads, payload_table
         payloads, unit = parse_payloads(payload_text)
-        payload = payload_table(vehicle, payloads, None if job_time is None else job_time / 60.0)
+        payload = payload_table(vehicle, payloads, None if job_time is None else job_time / 60.0, params)
         report["payload"] = payload
         report["payload_unit"] = unit
         if plot_file is not None:

@@ -17,6 +17,11 @@ MARGINS = {
     "landing_reserve": "the flight ends on the landing reserve, not on the cutoff or the loss of hover",
 }
 
+# margins judged at full command: the full-command current does not depend on the mass carried
+# (only through an estimated propeller's Reynolds number at the hover speed, a fraction of a percent),
+# so no payload (and no payload less) mends them
+PAYLOAD_BLIND = ("motor_current", "pack_current")
+
 
 def margins(report):
     """{margin name: True | False | None} for a report dict of hover_report (see MARGINS)."""

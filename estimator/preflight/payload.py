@@ -5,14 +5,17 @@ The payload is added to the vehicle's all-up mass; each payload gets a full pre-
 margin holds, the landing-reserve margin included (the flight ends on the reserve, not on the
 cutoff or the loss of hover), and, with a job time, when the endurance reaches it. The largest
 such payload is found between the last payload that keeps and the first that does not, by
-bisection (BISECTION_STEPS halvings).
+bisection (BISECTION_STEPS halvings). The vehicle's own (datasheet) model or a fitted parameter
+set (hover_report's bench route: the fitted motor model at the heavier mass) gives the rows.
+A margin judged at full command (motor or pack current) does not change with the payload:
+when it breaks, the verdict names it once and gives the largest payload on the other margins.
 """
 
 import copy
 import re
 
 from estimator.errors import InputError, shorten
-from estimator.preflight.margins import broken, margins
+from estimator.preflight.margins import PAYLOAD_BLIND, broken, margins
 from estimator.preflight.report import hover_report
 from estimator.units import parse_quantity
 
@@ -50,14 +53,14 @@ def parse_payloads(text):
     return sorted(set(values)), unit
 
 
-def _row(vehicle, payload_kg, job_min):
+def _row(vehicle, payload_kg, job_min, params=None):
     v = copy.deepcopy(vehicle)
     v["mass_kg"] = vehicle["mass_kg"] + payload_kg
-    report = hover_report(v)
+    report = hover_report(v, params)
     marks = margins(report)
     if job_min is not None:
         marks["job_time"] = report["flight_time_min"] is not None and report["flight_time_min"] >= job_min
-    return {
+    row = {
         "payload_kg": payload_kg, "mass_kg": v["mass_kg"],
         "hover_command": report["hover_command"], "hover_command_empty": report["hover_command_empty"],
         "thrust_to_weight": report["thrust_to_weight"], "hover_pack_current_A": report["hover_current_A"],
@@ -66,40 +69,103 @@ def _row(vehicle, payload_kg, job_min):
         "margins": marks, "keeps": all(m is not False for m in marks.values()),
         "broken": broken(marks) + (["job_time"] if marks.get("job_time") is False else []),
     }
+    if report.get("hover_command_interval_95") is not None:  # the fitted route's interval
+        row["hover_command_interval_95"] = report["hover_command_interval_95"]
+    return row
 
 
-def payload_table(vehicle, payloads_kg, job_min=None):
+def _keeps(row, ignored):
+    return all(v is not False for k, v in row["margins"].items() if k not in ignored)
+
+
+def _largest(vehicle, params, job_min, rows, ignored):
+    """(largest payload [kg] keeping every margin but ``ignored``, how, what breaks beyond it).
+
+    how: "beyond_list" (every listed payload keeps: the limit lies beyond the last), "none"
+    (the smallest listed payload already breaks) or "bisection" (between the last listed
+    payload that keeps and the first that does not, BISECTION_STEPS halvings).
+    """
+    first_bad = next((i for i, r in enumerate(rows) if not _keeps(r, ignored)), None)
+    if first_bad is None:
+        return rows[-1]["payload_kg"], "beyond_list", []
+    if first_bad == 0:
+        return None, "none", [m for m in rows[0]["broken"] if m not in ignored]
+    lo, hi = rows[first_bad - 1]["payload_kg"], rows[first_bad]["payload_kg"]
+    beyond = rows[first_bad]
+    for _ in range(BISECTION_STEPS):
+        mid = 0.5 * (lo + hi)
+        row = _row(vehicle, mid, job_min, params)
+        if _keeps(row, ignored):
+            lo = mid
+        else:
+            hi, beyond = mid, row
+    return lo, "bisection", [m for m in beyond["broken"] if m not in ignored]
+
+
+def payload_table(vehicle, payloads_kg, job_min=None, params=None):
     """Rows per payload and the largest payload that keeps every margin (module docstring).
 
     vehicle: checked vehicle dict; payloads_kg: payloads [kg], >= 0; job_min: required
-    endurance [min] or None. Returns a dict: rows (payload_kg [kg], mass_kg [kg],
-    hover_command [-], hover_command_empty [-], thrust_to_weight [-], hover_pack_current_A [A],
-    hover_motor_current_A [A], flight_time_min [min], flight_ended_by, margins, keeps, broken),
-    max_payload_kg [kg] or None (none keeps), max_payload_note (text: how it was found and
-    what breaks beyond it), job_min.
+    endurance [min] or None; params: a fitted parameter set (the bench route of hover_report)
+    or None (the vehicle file's datasheet model). Returns a dict: rows (payload_kg [kg],
+    mass_kg [kg], hover_command [-], hover_command_empty [-], thrust_to_weight [-],
+    hover_pack_current_A [A], hover_motor_current_A [A], flight_time_min [min],
+    flight_ended_by, margins, keeps, broken, and with params hover_command_interval_95 [-]),
+    max_payload_kg [kg] or None (none keeps), max_payload_found ("beyond_list", "bisection",
+    "none"), broken_beyond (margins broken just beyond it), broken_at_every_payload (margins
+    judged at full command, PAYLOAD_BLIND, that the smallest payload already breaks: no payload
+    mends them), max_payload_kg_payload_margins [kg] or None (the largest payload keeping the
+    margins a payload does affect, when broken_at_every_payload is not empty), max_payload_note
+    (the verdict in words, masses in kg), job_min [min], route ("datasheet" or "bench fit").
     """
-    rows = [_row(vehicle, p, job_min) for p in payloads_kg]
-    best, note = None, None
-    first_bad = next((i for i, r in enumerate(rows) if not r["keeps"]), None)
-    if first_bad is None:
-        best = rows[-1]["payload_kg"]
-        note = "every payload listed keeps the margins; the limit lies beyond %.3g kg" % best
-    elif first_bad == 0:
-        note = ("even the smallest payload (%.3g kg) breaks: %s" % (rows[0]["payload_kg"],
-                                                                   ", ".join(rows[0]["broken"])))
+    rows = [_row(vehicle, p, job_min, params) for p in payloads_kg]
+    best, how, beyond = _largest(vehicle, params, job_min, rows, ())
+    blind = [m for m in PAYLOAD_BLIND if rows[0]["margins"].get(m) is False]
+    result = {"rows": rows, "max_payload_kg": best, "max_payload_found": how, "broken_beyond": beyond,
+              "broken_at_every_payload": blind, "max_payload_kg_payload_margins": None,
+              "job_min": job_min, "route": "datasheet" if params is None else "bench fit"}
+    if blind:
+        other, other_how, other_beyond = _largest(vehicle, params, job_min, rows, blind)
+        result.update(max_payload_kg_payload_margins=other, payload_margins_found=other_how,
+                      payload_margins_broken_beyond=other_beyond)
+    result["max_payload_note"] = "; ".join(verdict_lines(result, "kg"))
+    return result
+
+
+def _mass(value_kg, unit):
+    return "%.3g %s" % (value_kg / parse_quantity("1" + unit, "mass"), unit)
+
+
+def _how(best_kg, how, beyond, unit):
+    if how == "beyond_list":
+        return "every payload listed keeps them; the limit lies beyond %s" % _mass(best_kg, unit)
+    return "found by bisection between the listed payloads; beyond it breaks: %s" % ", ".join(beyond)
+
+
+def verdict_lines(result, unit="kg"):
+    """The payload verdict in words, one idea per line, masses in ``unit`` (the table's)."""
+    rows = result["rows"]
+    job = " and %.0f min of hover" % result["job_min"] if result["job_min"] is not None else ""
+    blind = result.get("broken_at_every_payload") or []
+    if result["max_payload_kg"] is not None:
+        return ["largest payload that keeps the margins and the landing reserve%s: %s (%s)" % (
+            job, _mass(result["max_payload_kg"], unit),
+            _how(result["max_payload_kg"], result["max_payload_found"], result["broken_beyond"], unit))]
+    if not blind:
+        return ["no payload keeps the margins and the landing reserve%s: even the smallest payload (%s) "
+                "breaks: %s" % (job, _mass(rows[0]["payload_kg"], unit), ", ".join(result["broken_beyond"]))]
+    lines = ["no payload keeps every margin: %s breaks at every payload (judged at full command, where the "
+             "current does not depend on the payload; see the warnings above)" % ", ".join(blind)]
+    other = result.get("max_payload_kg_payload_margins")
+    if other is None:
+        lines.append("on the margins a payload affects%s, even the smallest payload (%s) breaks: %s" % (
+            job, _mass(rows[0]["payload_kg"], unit), ", ".join(result["payload_margins_broken_beyond"])))
     else:
-        lo, hi = rows[first_bad - 1]["payload_kg"], rows[first_bad]["payload_kg"]
-        beyond = rows[first_bad]
-        for _ in range(BISECTION_STEPS):
-            mid = 0.5 * (lo + hi)
-            row = _row(vehicle, mid, job_min)
-            if row["keeps"]:
-                lo = mid
-            else:
-                hi, beyond = mid, row
-        best = lo
-        note = "found by bisection between the listed payloads; beyond it breaks: %s" % ", ".join(beyond["broken"])
-    return {"rows": rows, "max_payload_kg": best, "max_payload_note": note, "job_min": job_min}
+        lines.append("on the margins a payload affects (hover, thrust-to-weight, hover command, landing "
+                     "reserve%s): largest payload %s (%s)" % (
+                         job, _mass(other, unit), _how(other, result["payload_margins_found"],
+                                                        result["payload_margins_broken_beyond"], unit)))
+    return lines
 
 
 def format_payload_table(result, unit="kg"):
@@ -117,11 +183,5 @@ def format_payload_table(result, unit="kg"):
             "%.4g %s" % (r["payload_kg"] / scale, unit), "%.4g %s" % (r["mass_kg"] / scale, unit), cmd,
             empty, r["thrust_to_weight"], pack, time,
             "yes" if r["keeps"] else "no: " + ", ".join(r["broken"])))
-    best = result["max_payload_kg"]
-    job = " and %.0f min of hover" % result["job_min"] if result["job_min"] is not None else ""
-    if best is None:
-        lines.append("   no payload keeps the margins and the landing reserve%s: %s" % (job, result["max_payload_note"]))
-    else:
-        lines.append("   largest payload that keeps the margins and the landing reserve%s: %.3g %s (%s)"
-                     % (job, best / scale, unit, result["max_payload_note"]))
+    lines += ["   " + line for line in verdict_lines(result, unit)]
     return "\n".join(lines) + "\n"
