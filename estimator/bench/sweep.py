@@ -213,7 +213,8 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
         "curve": curve, "power": power, "static": sf, "rejected": rejected, "motor": motor_block,
         "rows_used": rows_used, "rows_rejected": int(data["rows_total"] - rows_used),
         "warnings": warnings + curve["warnings"] + _range_warnings(curve, theta, v_ref, top_found,
-                                                                          data.get("command_unit", "-")),
+                                                                          data.get("command_unit", "-"))
+        + _reference_warning(curve, lv, data.get("command_unit", "-"), data.get("thrust_unit", "N")),
         "levels": {"command": lv["command"], "thrust_residual_N": r_levels, "thrust_N": lv["thrust_N"]},
     }
     hover = None
@@ -308,6 +309,27 @@ def _range_warnings(curve, theta, v_ref, top_found, unit="-"):
                    "Sweep to full command, or set the ESC's end points to the swept range"
                    % (command_text(u_hi, unit), command_text(1.0, unit)))
     return out
+
+
+def _reference_warning(curve, lv, command_unit="-", thrust_unit="N"):
+    """A warning when the full-command thrust, quoted at the reference voltage (the sweep's
+    median bus voltage), lies above every thrust level measured by more than its standard
+    error: the rows at full command ran at a lower bus voltage (a supply sagging under load),
+    and the curve there gives less. [] otherwise."""
+    t_max, se = curve["thrust_max_N"], curve["standard_errors"]["thrust_max_N"]
+    t_seen = float(np.max(lv["thrust_N"]))
+    if not t_max > t_seen + se:
+        return []
+    top = lv["command"] >= curve["command_max"] - 0.005
+    if not np.any(top):
+        top = lv["command"] >= float(np.max(lv["command"])) - 0.005
+    v_top = float(np.median(lv["voltage_V"][top]))
+    t_there = float(thrust_model_N(curve, np.array([curve["command_max"]]), np.array([v_top]))[0])
+    return ["full-command thrust %s is the curve at the reference voltage %.2f V (the sweep's median bus "
+            "voltage), above the highest thrust measured (%s): the full-command rows ran at %.2f V, where "
+            "the curve gives %s; on a pack, full command gives the thrust at the pack's own sagged voltage"
+            % (thrust_text(t_max, thrust_unit), curve["reference_voltage_V"], thrust_text(t_seen, thrust_unit),
+               v_top, thrust_text(t_there, thrust_unit))]
 
 
 def summary(params):

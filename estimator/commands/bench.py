@@ -32,7 +32,7 @@ def _pm(value, se, why_none):
     return "%.3f (%s)" % (value, why_none)
 
 
-def _human_fit(params, out_file):
+def _human_fit(params, out_file, warnings=None):
     from estimator.bench.sweep import command_text, command_with_error, plain_number, thrust_text
 
     c, p, k, q = (params["thrust_curve"], params["power_model"], params["static_factor"],
@@ -86,7 +86,7 @@ def _human_fit(params, out_file):
                       params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),
                       h["hover_thrust_fraction"], h["power_W"], h["current_A"],
                       thrust_to_weight_text(h.get("thrust_to_weight", 0.0)), h["voltage_V"])]
-    for w in params.get("warnings", []):
+    for w in params.get("warnings", []) if warnings is None else warnings:
         lines.append("! " + w)
     lines += ["- " + c for c in BENCH_CAUTIONS]
     return "\n".join(lines)
@@ -143,6 +143,13 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
         params["thrust_curve"]["voltage_exponent_source"] = "given"
     arrays = params.pop("_arrays", None)
     check_params(params, out_file)
+    # the vehicle's margins (full-command pack sag, motor and pack current, thin air...) as the
+    # hover sheet gives them from this parameter set: printed, not stored (they belong to the
+    # vehicle, and `hover --params` computes them afresh for the vehicle asked about)
+    shown = list(params.get("warnings", []))
+    if vehicle is not None:
+        from estimator.preflight.measured_rotor import hover_from_params
+        shown = list(dict.fromkeys(shown + hover_from_params(vehicle, params)["warnings"]))
     plot_existed = plot_file is not None and os.path.lexists(plot_file)
     if plot_file is not None:
         from estimator.bench.plots import plot_fit
@@ -155,13 +162,14 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
         raise
     if as_json:
         out = summary(params)
+        out["warnings"] = shown
         out["out"] = out_file
         if plot_file:
             out["plot"] = plot_file
         out["cautions"] = list(BENCH_CAUTIONS)
         click.echo(dumps(out))
     else:
-        click.echo(_human_fit(params, out_file))
+        click.echo(_human_fit(params, out_file, shown))
         if plot_file:
             click.echo("plot written to %s" % plot_file)
 
