@@ -77,10 +77,16 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
                                    <= 1.959964 * params["standard_errors"]["thrust_max_N"]),
         "half_width": 0.5 * (hi - lo),
         "warnings": len(params.get("warnings", [])),
+        "spin_up": params["motor_model"]["command_start"] - spin_up_command(truth),
     })
     if keep:
         out.update({"truth": truth, "params": params, "truth_values": tv})
     return out
+
+
+def spin_up_command(truth):
+    """The truth's command where its ESC's duty starts (the end of its dead zone) [-]."""
+    return truth["e_lo"] + truth["dead"] * (truth["e_hi"] - truth["e_lo"])
 
 
 def summarise(results):
@@ -95,6 +101,9 @@ def summarise(results):
                         "within": sum(v <= bound for v in values) / max(len(values), 1), "bound": bound}
     summary["coverage"] = sum(r["covered"] for r in ok) / max(len(ok), 1)
     summary["thrust_max_coverage"] = sum(r["thrust_max_covered"] for r in ok) / max(len(ok), 1)
+    spin = [r["spin_up"] for r in ok]
+    summary["spin_up"] = {"worst": max(spin, key=abs) if spin else math.nan,
+                          "worst_seed": max(ok, key=lambda r: abs(r["spin_up"]))["seed"] if ok else None}
     summary["median_half_width"] = float(np.median([r["half_width"] for r in ok])) if ok else math.nan
     return summary
 
@@ -109,6 +118,8 @@ def report_lines(summary):
         scale = 1.0 if key == "hover_command" else 100.0
         lines.append("  %-16s worst %7.3f%s (seed %s), within %g%s: %5.1f %%   [%s]" % (
             key, scale * s["worst"], unit, s["worst_seed"], scale * bound, unit, 100.0 * s["within"], MODELS[key]))
+    lines.append("  spin-up command  worst %+7.3f (seed %s)   [the truth's end of the ESC dead zone]"
+                 % (summary["spin_up"]["worst"], summary["spin_up"]["worst_seed"]))
     lines.append("  95 %% hover-command interval coverage %.1f %% (median half-width %.4f)"
                  % (100.0 * summary["coverage"], summary["median_half_width"]))
     lines.append("  T_max +-1.96 standard errors (incl. curve-form error) holds the truth in %.1f %%"
