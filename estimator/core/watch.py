@@ -29,11 +29,14 @@ Models (design notes sec. 3, Watch). Every statistic lives in flight time, not i
   seconds (gusts, altitude moves, pack sag), so sigma is the long-run one: from the residual
   smoothed over about 7 blocks (EMA 1/4), y, as mean |y| x sqrt(7) x sqrt(pi/2) (for independent
   blocks this is the plain sigma; for correlated ones it grows with the sum's variance);
-- in flight: a two-sided CUSUM per steady block (Page 1954) on z = r - d, with reference k and
+- in flight: a two-sided CUSUM per block (Page 1954) on z = r - d, with reference k and
   threshold h in units of sigma (a self-starting scheme in the sense of Hawkins, J. Roy. Stat.
   Soc. C 36 (1987): the in-control mean and noise come from the flight itself); h from
   Siegmund's approximation for the target false alarms per flight hour (estimator/watch/
-  config.py). While neither sum is above h/2 the noise keeps being learned (EMA of |y|, z clipped
+  config.py). A block within 25 % of the slow mean but not steady (a manoeuvre or its settle
+  time) adds z/2: its residual noise is about 1.5x a steady block's, so a fault that comes during
+  a climb is not left waiting, and a suspicion raised before one drains. While neither sum is
+  above h/2 in a steady block the noise keeps being learned (EMA of |y|, z clipped
   at 5 sigma, floor kept, at most twice the learning window's) and a bounded slow drift d
   follows the baseline as the pack drains;
   both freeze while a fault is suspected. One block adds at most k + h/2 + 1: an alarm takes two;
@@ -265,6 +268,7 @@ class Watch:
             hold -= bw
         sb[25] = hold
         steady = hold <= 0
+        near = low == 0 and -250 <= x <= 250              # judged (at half weight unless steady)
         sb[12] = fsl + (((fb << 4) - fsl) >> 4)
         e0 = ee >> c[122]                                 # < 2^19 (energy_shift, watch_layout)
         e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
@@ -360,8 +364,10 @@ class Watch:
                 sb[8] = s * c[134] >> 8                   # 1000 * 12800
                 self.scale = scale
                 self.sigma_permille = s
-        elif steady:
+        elif near:
             z = r - (drift >> 8) - x                      # |.| <= 1600
+            if not steady:
+                z = z // 2                                # manoeuvre blocks: about 1.5x the noise
             quiet = s_hi + s_lo < (h >> 1)
             cl = k + (h >> 1) + 1                         # one block adds at most this
             zc = z
@@ -372,7 +378,7 @@ class Watch:
             s_lo = 0 if s_lo < 0 else (h + h if s_lo > h + h else s_lo)
             sb[9] = s_hi
             sb[10] = s_lo
-            if quiet:
+            if quiet and steady:
                 # noise: EMA of |z| x sqrt(pi/2) (Q6: 80 = 64 x 1.2533), |z| clipped at 5 sigma
                 s = sig >> 6
                 floor = c[131]
@@ -391,7 +397,7 @@ class Watch:
                 sb[7] = s * c[133] >> 8
                 sb[8] = s * c[134] >> 8
                 self.sigma_permille = s
-            if s_hi + s_lo < (h >> 1):
+            if steady and s_hi + s_lo < (h >> 1):
                 # slow bounded drift of the baseline [1/256 permille], not from a block that raised a suspicion
                 drift += ((r << 8) - drift) >> c[136]     # 1000 * 256
                 lim = c[137] << 8

@@ -70,7 +70,7 @@ SCALARS = (
     ("mass_plan_g", 1, 500000),             # planned all-up mass
     ("mass_limit_permille", 0, 1000),       # mass_high above plan by this share ...
     ("mass_z2_q8", 0, 32767),               # ... plus a margin: z^2 x correlation factor x 256
-    ("settle_ms", 0, 60000),                # after a block outside steady_permille: not judged this long
+    ("settle_ms", 0, 60000),                # after a block outside steady_permille: half weight this long
 )
 
 TABLE_AT = {}

@@ -45,7 +45,7 @@ DEFAULTS = {
     "baseline_tol": 0.10,           # learned scale further than this from 1 -> baseline_off [-]
     "noise_s": 60.0,                # in-flight noise estimate: EMA time constant [s]
     "steady_share": 0.10,           # block thrust within this share of its slow mean: judged [-]
-    "settle_s": 4.0,                # after a block beyond steady_share (a manoeuvre) not judged this long [s]
+    "settle_s": 4.0,                # after a block beyond steady_share (a manoeuvre) judged at half weight this long [s]
     "drift_s": 60.0,                # slow baseline tracking: EMA time constant [s]
     "drift_tol": 0.015,             # bound of the slow in-flight baseline tracking [-] (a slow fault ramp
                                     # hides in it: 3 % let a 0 -> 15 % ramp reach 8.6 % before the alarm)
@@ -338,7 +338,8 @@ def make_config(params, vehicle=None, options=None):
     put("steady_permille", int(round(1000.0 * o["steady_share"])),
         "blocks whose expected power is within %.2f of the slow mean are judged" % o["steady_share"])
     put("settle_ms", int(round(1000.0 * o["settle_s"])), "after a manoeuvre (a block beyond steady_permille) "
-        "%.1f s not judged: climbs and descents change the power at a given thrust" % o["settle_s"])
+        "%.1f s judged at half weight (no noise, drift or mass learning): climbs and descents change the power "
+        "at a given thrust" % o["settle_s"])
     put("drift_shift", _shift(o["drift_s"] * 1000.0 / block_ms), "baseline tracking EMA over about %.0f s" % o["drift_s"])
     put("drift_tol_permille", int(round(1000.0 * o["drift_tol"])), "baseline tracking bounded to +-%.3f" % o["drift_tol"])
     put("mass_window_ms", int(round(1000.0 * o["mass_window_s"])), "implied mass averaged over %.0f s of steady flight"
