@@ -19,7 +19,7 @@ import stat
 import tempfile
 
 from estimator.errors import InputError
-from estimator.outputs import KIND_NAMES, SOFTWARE, _ANOTHER, _digest, _lstat, own_file, write_error
+from estimator.outputs import KIND_NAMES, SOFTWARE, _ANOTHER, _lstat, file_sha256, own_file, write_error
 from estimator.safepath import special_kind
 
 FOLDER_MANIFEST = ".liftcal-folder.json"
@@ -45,7 +45,7 @@ def _tree(folder):
             st = os.lstat(full)
             if stat.S_ISDIR(st.st_mode):
                 continue
-            out[rel] = _digest(full) if stat.S_ISREG(st.st_mode) else None
+            out[rel] = file_sha256(full) if stat.S_ISREG(st.st_mode) else None
     return out
 
 

@@ -230,15 +230,27 @@ def check_outputs(outputs, inputs=()):
 
 def file_sha256(path):
     """SHA-256 of a file's bytes (hex), read in blocks; the one file hash of liftcal."""
-    return _digest(path)
+    return _digest(path)[0]
 
 
-def _digest(path):
+def file_sha256_counting(path, byte):
+    """(SHA-256 of a file's bytes (hex), how many times the byte ``byte`` (an int 0..255)
+    occurs in the file): one read of the file serves both (a bench CSV's commas check the
+    width of every row)."""
+    return _digest(path, byte)
+
+
+def _digest(path, byte=None):
     h = hashlib.sha256()
+    count = 0
     with open(path, "rb") as fh:
         for block in iter(lambda: fh.read(1 << 20), b""):
             h.update(block)
-    return h.hexdigest()
+            if byte is not None:
+                import numpy as np
+
+                count += int(np.count_nonzero(np.frombuffer(block, np.uint8) == byte))
+    return h.hexdigest(), count
 
 
 def _replace_atomic(path, kind, write):

@@ -99,6 +99,24 @@ def test_broken_files_name_the_row(tmp_path, body, fragment):
         read_bench(_csv(tmp_path, body))
 
 
+def test_a_row_wider_than_the_header_is_refused_even_in_a_column_not_read(tmp_path):
+    # the reader parses only the four columns it needs; a row with one cell too many (a
+    # trailing comma, a note in a fifth cell) must still be named, as the header promises
+    # one value per column (RFC 4180 sec. 2: each record holds the same number of fields)
+    path = tmp_path / "wide.csv"
+    rows = ["%.3f,0.5,15,5,2" % (0.1 * k) for k in range(12)]
+    rows[7] += ",note"
+    path.write_text("time[s],command[-],voltage[V],current[A],thrust[N]\n" + "\n".join(rows) + "\n")
+    with pytest.raises(InputError, match=r"line 9: 6 cells where the header has 5"):
+        read_bench(str(path))
+    rows[7] = rows[7][:-len(",note")]
+    rows[3] += ","
+    path.write_text("# rig: stand A, load cell B\ntime[s],command[-],voltage[V],current[A],thrust[N]\n"
+                    + "\n".join(rows) + "\n")
+    with pytest.raises(InputError, match=r"line 6: 6 cells where the header has 5"):
+        read_bench(str(path))
+
+
 @pytest.mark.parametrize("header,fragment", [
     ("command[-],voltage[V],current[A]\n", "lacks thrust"),
     ("command[-],voltage[V],current[A],thrust\n", "has no unit"),

@@ -1,7 +1,7 @@
 """Bench rows gathered per command level and supply: the fits iterate over levels, not rows.
 
 A level is the rows logged at one command step (command rounded to LEVEL_STEP) and one
-supply (bus voltage in a LOG_VOLTAGE_STEP band of ln V). Each level keeps its mean
+supply (bus voltage in a band VOLTAGE_BAND x the sweep's lowest voltage wide). Each level keeps its mean
 command, voltage, thrust and power and its row count; rows far from their own level's mean
 (a load-cell knock, a current glitch) are counted as spikes and left out of the mean,
 judged only in levels of at least three rows (two rows cannot say which one is wrong). The
@@ -14,11 +14,17 @@ import numpy as np
 
 # command step of a level [-]: 0.001 is a 1 us step of a 1000..2000 us pulse
 LEVEL_STEP = 0.001
-# width of a supply band in ln(V) [-]: 1 % of the bus voltage
-LOG_VOLTAGE_STEP = 0.01
+# width of a supply band as a share of the sweep's lowest bus voltage [-]: 1 %
+VOLTAGE_BAND = 0.01
 # more levels than this (a ramp logged at every command) are merged by widening the command
 # step, up to MAX_LEVEL_STEP: the fits' cost follows the levels, not the rows [-]
 MAX_LEVELS = 200
+# a ramp whose levels at LEVEL_STEP hold this many rows on average is screened at that step
+# and merged for the fits afterwards: at 1 us a level's own thrust trend spreads its rows by
+# about 0.06 % of full thrust (uniform over 0.2 %), far below load-cell noise; and a level
+# of n rows judged by its own rms still catches a lone spike of k sigmas when
+# k^2 (1 - SPIKE_SIGMAS^2 / n) > SPIKE_SIGMAS^2, i.e. from 6.6 sigmas at n = 200 [-]
+ROWS_PER_LEVEL = 200
 # a sweep with more distinct commands (at LEVEL_STEP) than this is a ramp; a stepped sweep
 # keeps its own steps whatever their number [-]
 RAMP_COMMANDS = 300
@@ -47,7 +53,8 @@ def robust_scale(x):
 
 def _noise_profile(level_thrust, dev):
     """Thrust noise against thrust: (thrust knots [N], scale [N]) for numpy.interp, or None
-    when there are too few rows.
+    when there are too few rows. The same for power noise against power ([W]), whose
+    current sensor has a floor too.
 
     Load-cell noise has a floor and grows with the load, so one pooled scale in newtons
     calls honest full-thrust rows spikes. The rows (deviation from their level's mean, that
@@ -74,31 +81,63 @@ def _noise_profile(level_thrust, dev):
     return knots, scales
 
 
-def _level_keys(u, v):
-    """Dense level numbers (in command order) of every row, their count and whether the
-    command step was widened. The command step
-    is widened (never the supply band, which would merge supplies) when a ramp would give
-    more than MAX_LEVELS levels, up to MAX_LEVEL_STEP; the widening is chosen on a
-    subsample, so the rows are binned once."""
-    step = max(1, u.size // SCALE_ROWS)
-    vi = np.rint(np.log(v[::step]) / LOG_VOLTAGE_STEP)
-    width = LEVEL_STEP
-    ramp = np.unique(np.rint(u[::step] / width)).size > RAMP_COMMANDS  # else a stepped sweep
-    for _ in range(6 if ramp else 0):
-        n_levels = np.unique(np.rint(u[::step] / width) * 1e6 + vi).size
-        if n_levels <= MAX_LEVELS or width >= MAX_LEVEL_STEP:
-            break
-        width = min(MAX_LEVEL_STEP, width * max(2.0, n_levels / MAX_LEVELS))
+def _bands(v, v_lo, v_hi):
+    """(supply band number of each voltage v [V], number of bands) for a sweep whose bus
+    voltage spans v_lo..v_hi [V] (v_lo > 0)."""
+    per_volt = 1.0 / (VOLTAGE_BAND * v_lo)  # band k holds the voltages nearest (k + 100) % of v_lo
+    bands = v * per_volt
+    bands -= 1.0 / VOLTAGE_BAND - 0.5
+    return bands.astype(np.int64), int(v_hi * per_volt - 1.0 / VOLTAGE_BAND + 0.5) + 1
+
+
+def _keys(u, v, width):
+    """Level of every row at command step ``width`` [-]: (dense level number of each row, in
+    command order; rows per level; command step index of each level; supply band of each
+    level; number of bands)."""
     ci = np.rint(u * (1.0 / width)).astype(np.int64)
-    vi = np.log(v)
-    vi *= 1.0 / LOG_VOLTAGE_STEP
-    vi = np.rint(vi).astype(np.int64)
-    vi -= int(vi.min())
-    ci *= int(vi.max()) + 1
+    vi, n_bands = _bands(v, float(np.min(v)), float(np.max(v)))
+    ci *= n_bands
     ci += vi
     present = np.bincount(ci)
+    raw = np.flatnonzero(present)
     index = np.cumsum(present > 0) - 1
-    return index[ci], int(index[-1]) + 1, width > LEVEL_STEP
+    return index[ci], present[raw].astype(float), raw // n_bands, raw % n_bands
+
+
+def _screen_width(u, v):
+    """Command step [-] of the levels the spike screen judges, and whether the sweep is a ramp.
+
+    A stepped sweep keeps its own steps. A ramp (more than RAMP_COMMANDS distinct commands)
+    gets steps widened until it has at most MAX_LEVELS levels, up to MAX_LEVEL_STEP, unless
+    its levels already hold ROWS_PER_LEVEL rows on average: a long ramp is screened at
+    LEVEL_STEP, where a level's own thrust trend is far below the noise, and its levels are
+    merged for the fits afterwards (_merge). Chosen on a systematic subsample."""
+    step = max(1, u.size // SCALE_ROWS)
+    vi = _bands(v[::step], float(np.min(v)), 0.0)[0]
+    width = LEVEL_STEP
+    ramp = np.unique(np.rint(u[::step] / width)).size > RAMP_COMMANDS
+    for _ in range(6 if ramp else 0):
+        n_levels = np.unique(np.rint(u[::step] / width) * 1e6 + vi).size
+        if n_levels <= MAX_LEVELS or width >= MAX_LEVEL_STEP or u.size >= ROWS_PER_LEVEL * n_levels:
+            break
+        width = min(MAX_LEVEL_STEP, width * max(2.0, n_levels / MAX_LEVELS))
+    return width, ramp
+
+
+def _merge(cmd_index, band, width, count):
+    """Level numbers after merging the levels of a long ramp (command step index and supply
+    band of each level, at step ``width``) into at most MAX_LEVELS by widening the command
+    step, up to MAX_LEVEL_STEP; None when no merge is needed."""
+    if count.size <= MAX_LEVELS:
+        return None
+    top = int(MAX_LEVEL_STEP / width + 1e-9)
+    inverse = None
+    for factor in [f for f in (2, 4, 8, 16, 32, 64) if f < top] + [top]:
+        merged = np.rint(cmd_index / factor).astype(np.int64) * (int(band.max()) + 1) + band
+        keys, inverse = np.unique(merged, return_inverse=True)
+        if keys.size <= MAX_LEVELS:
+            break
+    return inverse
 
 
 def _median_recheck(key, rows, x, limit, ref):
@@ -113,13 +152,13 @@ def _median_recheck(key, rows, x, limit, ref):
     return np.abs(xs - med[k]) / ref[k] > limit
 
 
-def _screen(key, n_keys, count, x, dev, ref, limit, allowed):
-    """Rows far from their level: |dev| > limit * ref (dev: per row, x minus the level's
-    mean and in-level trend; ref: per level), then in small levels (one spike moves the mean
-    as far as its neighbours) judged again against the level's median. Returns the bool mask."""
+def _screen(key, n_keys, count, x, dev2, ref, limit, allowed):
+    """Rows far from their level: dev2 > (limit * ref)^2 (dev2: per row, the square of x
+    minus the level's mean and in-level trend; ref: per level), then in small levels (one
+    spike moves the mean as far as its neighbours) judged again against the level's median.
+    Returns the bool mask."""
     bound = np.where(allowed, limit * ref, np.inf)
-    np.abs(dev, out=dev)
-    flagged = dev > bound[key]
+    flagged = dev2 > np.square(bound)[key]
     hits = np.flatnonzero(flagged)
     if hits.size == 0:
         return flagged
@@ -145,8 +184,10 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     v = np.asarray(voltage_V, dtype=float)
     t = np.asarray(thrust_N, dtype=float)
     p = np.asarray(power_W, dtype=float)
-    key, n_keys, widened = _level_keys(u, v)
-    count = np.bincount(key, minlength=n_keys).astype(float)
+    width, ramp = _screen_width(u, v)
+    widened = width > LEVEL_STEP
+    key, count, cmd_index, band = _keys(u, v, width)
+    n_keys = count.size
     safe = np.maximum(count, 1.0)
     sums = [np.bincount(key, weights=c, minlength=n_keys) for c in (u, v, t, p)]
     u_m, v_m, t_m, p_m = (x / safe for x in sums)
@@ -177,6 +218,9 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     sub = (np.abs(t_m)[ks][sel], dt[::step][sel]) if needs_profile else None
     profile_t = _noise_profile(*sub) if sub is not None else None
     s_p = robust_scale((dp[::step] / ref_p[ks])[sel]) if np.any(sel) else 0.0
+    # power noise has a floor too (the current sensor's): small levels take the larger of the
+    # pooled relative scale and the power noise at their power, from its own profile
+    profile_p = _noise_profile(np.abs(p_m)[ks][sel], dp[::step][sel]) if needs_profile else None
     # noise grows with thrust and power: levels of SMALL_LEVEL rows or more carry their own
     # scale (rms about the level's trend), smaller ones the subsample's robust scale
     own = count >= SMALL_LEVEL
@@ -184,15 +228,20 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     if profile_t is not None:  # load-cell noise grows with thrust: the scale at each level's thrust
         scale_t = np.maximum(np.interp(np.abs(t_m), *profile_t), 1e-6 * t_top)
     scale_p = ref_p * max(s_p, 1e-6)
+    if profile_p is not None:
+        scale_p = np.maximum(np.interp(np.abs(p_m), *profile_p), scale_p)
+    # from here on the screens need only squared deviations
+    np.square(dt, out=dt)
+    np.square(dp, out=dp)
     if np.any(own):
-        ms_t = np.bincount(key, weights=np.square(dt), minlength=n_keys) / safe
-        ms_p = np.bincount(key, weights=np.square(dp), minlength=n_keys) / safe
+        ms_t = np.bincount(key, weights=dt, minlength=n_keys) / safe
+        ms_p = np.bincount(key, weights=dp, minlength=n_keys) / safe
         scale_t[own] = np.maximum(np.sqrt(ms_t[own]), 1e-6 * t_top)
         scale_p[own] = np.maximum(np.sqrt(ms_p[own]), 1e-6 * ref_p[own])
     thrust_spike = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
     if profile_t is not None and thrust_spike.any():
         # a spike moves its whole level's deviations: judge again with a profile made only
-        # of levels without a flagged row (dt is |deviation| now; the screen needs no sign)
+        # of levels without a flagged row (dt holds squared deviations now)
         spoiled = np.zeros(n_keys, dtype=bool)
         spoiled[key[thrust_spike]] = True
         clean = ~spoiled[ks[sel]]
@@ -211,6 +260,13 @@ def command_levels(command, voltage_V, thrust_N, power_W):
         safe = np.maximum(count, 1.0)
         u_m, v_m, t_m, p_m = ((total - np.bincount(k, weights=c[out], minlength=n_keys)) / safe
                               for total, c in zip(sums, (u, v, t, p)))
+    sums = [m * count for m in (u_m, v_m, t_m, p_m)]
+    merged = _merge(cmd_index, band, width, count) if ramp else None
+    if merged is not None:
+        count = np.bincount(merged, weights=count)
+        safe = np.maximum(count, 1.0)
+        u_m, v_m, t_m, p_m = (np.bincount(merged, weights=x) / safe for x in sums)
+        key = merged[key]
     has = count > 0
     return {"command": u_m[has], "voltage_V": v_m[has], "thrust_N": t_m[has], "power_W": p_m[has],
             "count": count[has], "row_level": (np.cumsum(has) - 1)[key],

@@ -60,10 +60,17 @@ MAX_THRUST_N = 5000.0
 COMMAND_OUTSIDE_SHARE = 0.05
 
 
-def _sha256(path):
-    from estimator.outputs import file_sha256
+def _sha256_and_commas(path):
+    """(SHA-256 of the file (hex), number of commas in it): one read of the file."""
+    from estimator.outputs import file_sha256_counting
 
-    return file_sha256(path)
+    return file_sha256_counting(path, ord(","))
+
+
+def _head_commas(path, skip):
+    """Commas in the first ``skip`` lines of the file (comments and the header)."""
+    with open(path, "rb") as fh:
+        return sum(fh.readline().count(b",") for _ in range(skip))
 
 
 EXAMPLE_HEADER = "command[-],voltage[V],current[A],thrust[N]"
@@ -126,23 +133,33 @@ def _slow_parse(path, skip, ncols, wanted=None):
 _LOADTXT = {"delimiter": ",", "comments": "#", "ndmin": 2, "dtype": float, "encoding": "utf-8"}
 
 
-def _load_numbers(path, skip, ncols, wanted=None):
-    """The numbers of the data rows: one numpy.loadtxt of the file (it checks that every row
-    has the header's width); on any trouble (also NaN or infinity written in a cell) the slow
-    parse, which names the broken row or turns empty cells into NaN."""
+def _load_numbers(path, skip, ncols, wanted):
+    """(the numbers of the columns ``wanted``, in that order, as an array of rows x
+    len(wanted); the file's SHA-256).
+
+    One numpy.loadtxt of those columns only. It does not look at the cells of other columns,
+    so the file's commas (counted while hashing) prove that every data row has the header's
+    width. On any trouble (a row of another width, text where a number belongs, NaN or
+    infinity written in a cell) the slow parse, which names the broken row or turns empty
+    cells into NaN.
+    """
     import warnings
 
     import numpy as np
 
+    digest, commas = _sha256_and_commas(path)
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("error")
-            table = np.loadtxt(path, skiprows=skip, **_LOADTXT)
-        if table.shape[1] == ncols and bool(np.isfinite(table).all()):
-            return table
+            table = np.loadtxt(path, skiprows=skip, usecols=wanted, **_LOADTXT)
+        # two reductions decide finiteness (a NaN or infinity makes the min or max non-finite)
+        if (table.shape[1] == len(wanted)
+                and commas - _head_commas(path, skip) == table.shape[0] * (ncols - 1)
+                and math.isfinite(float(table.min())) and math.isfinite(float(table.max()))):
+            return table, digest
     except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
         pass
-    return _slow_parse(path, skip, ncols, wanted)
+    return _slow_parse(path, skip, ncols, wanted)[:, list(wanted)], digest
 
 
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
@@ -162,10 +179,9 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     columns, warnings = _parse_header(path, head)
     warnings = comment_warnings + list(warnings)
     ncols = len(head.cells)
-    table = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED])
-    digest = _sha256(path)
+    table, digest = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED])
     data = {}
-    cols = [np.ascontiguousarray(table[:, columns[name][0]]) for name in REQUIRED]
+    cols = [np.ascontiguousarray(table[:, k]) for k in range(len(REQUIRED))]
     del table
     for name, col in zip(REQUIRED, cols):
         unit = columns[name][1]
