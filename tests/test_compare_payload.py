@@ -95,7 +95,7 @@ def test_compare_json_rows_and_plot(demo_file, tmp_path):
     with open(png, "rb") as fh:
         assert fh.read(8) == b"\x89PNG\r\n\x1a\n"
     text = run("compare", demo_file, "--vary", "mass_kg=2,2.4")
-    assert text.exit_code == 0 and "rank" in text.output and "Props off" in text.output
+    assert text.exit_code == 0 and " #  mass_kg  command" in text.output and "Props off" in text.output
 
 
 @pytest.mark.parametrize("text, kg, unit", [

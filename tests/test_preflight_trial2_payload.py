@@ -99,12 +99,12 @@ def test_payload_verdict_in_the_table_units(tmp_path):
     path.write_text(json.dumps(DEMO_VEHICLE))
     out = run("hover", str(path), "--payload", "0,20g,40g")
     assert out.exit_code == 0 and out.stderr == ""
-    verdict = out.stdout[out.stdout.index("How much can it carry?"):]
+    verdict = " ".join(out.stdout[out.stdout.index("How much can it carry?"):].split())  # wrapped at 80
     assert "the limit lies beyond 40 g" in verdict  # 40 g = 0.04 kg (NIST SP 811)
     assert " kg" not in verdict.replace("all-up", "")
     # a bisected limit too: the demo keeps 20 g, not 200 g
     out = run("hover", str(path), "--payload", "0,200g")
-    verdict = out.stdout[out.stdout.index("How much can it carry?"):]
+    verdict = " ".join(out.stdout[out.stdout.index("How much can it carry?"):].split())
     assert "largest payload" in verdict and " g (found by bisection" in verdict and " kg" not in verdict
 
 
@@ -130,6 +130,6 @@ def test_a_full_command_margin_broken_at_every_payload_still_gives_a_payload_fig
     assert not _keeps(report(other + 2e-3), 11.0, ("motor_current",))
     text = run("hover", str(path), "--payload", "0..400g", "--job-time", "11min")
     assert text.exit_code == 0 and text.stderr == ""
-    verdict = text.stdout[text.stdout.index("How much can it carry?"):]
+    verdict = " ".join(text.stdout[text.stdout.index("How much can it carry?"):].split())
     assert "motor_current breaks at every payload" in verdict
     assert "largest payload %.3g g" % (1000.0 * other) in verdict  # 1 kg = 1000 g (NIST SP 811)

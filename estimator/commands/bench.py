@@ -89,7 +89,8 @@ def _human_fit(params, out_file, warnings=None):
     for w in params.get("warnings", []) if warnings is None else warnings:
         lines.append("! " + w)
     lines += ["- " + c for c in BENCH_CAUTIONS]
-    return "\n".join(lines)
+    from estimator.textwidth import fit_width  # an 80-column terminal
+    return fit_width("\n".join(lines))
 
 
 @click.command()

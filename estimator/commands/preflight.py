@@ -246,6 +246,7 @@ def compare(vehicle_file, varies, plot_file, as_json):
     if plot_file is not None:
         click.echo("plot: %s" % plot_file)
     from estimator.preflight.report import CAUTIONS
+    from estimator.textwidth import wrap_line
     click.echo("")
     for caution in CAUTIONS:
-        click.echo("- " + caution)
+        click.echo("\n".join(wrap_line("- " + caution)))

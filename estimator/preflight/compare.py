@@ -13,6 +13,8 @@ import itertools
 from estimator.errors import InputError, shorten
 from estimator.preflight.margins import MARGINS, broken, keeps_margins, margins
 from estimator.preflight.report import hover_report
+from estimator.preflight.warnings import ENDED_BY_WORDS
+from estimator.textwidth import fit_width, wrap_line
 from estimator.vehicle import check_vehicle, vehicle_keys
 
 MAX_COMBINATIONS = 10000  # a product larger than this is refused (say so) [-]
@@ -160,34 +162,43 @@ def compare_rows(document, source, variations, progress=None):
 
 
 def format_table(result, name):
-    """The text table of compare_rows: ranked rows, the margins each breaks, the best choice."""
+    """The text table of compare_rows: ranked rows (#: rank; what ended the flight and the
+    margins each breaks on a line under the row), the best choice, then one line per margin;
+    lines below the table wrapped to an 80-column terminal (estimator.textwidth). A row with
+    many varied keys may be wider: it is never cut."""
     rows = result["rows"]
     head = "COMPARE: %s, %d combinations" % (name, len(rows))
     lines = [head, "=" * len(head)]
     keys = result["varied"]
     widths = [max(len(k), max(len(str(r["values"][k])) for r in rows)) for k in keys]
-    header = "rank  " + "  ".join(k.ljust(w) for k, w in zip(keys, widths))
-    header += "  command  T/W   motor A  pack A  endurance           margins"
+    rank_w = max(2, len(str(len(rows))))
+    header = "#".rjust(rank_w) + "  " + "  ".join(k.ljust(w) for k, w in zip(keys, widths))
+    header += "  command  T/W   motor A  pack A  endurance"
     lines.append(header)
     for r in rows:
         cells = "  ".join(str(r["values"][k]).ljust(w) for k, w in zip(keys, widths))
         cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
         motor = "%.1f" % r["hover_motor_current_A"] if r["hover_motor_current_A"] is not None else "-"
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
-        time = ("%.1f min (%s)" % (r["flight_time_min"], r["flight_ended_by"])
-                if r["flight_time_min"] is not None else "no hover")
-        marks = "all kept" if r["keeps_margins"] else "breaks " + ", ".join(r["broken"])
-        lines.append("%4d  %s  %-7s  %-4.2f  %-7s  %-6s  %-18s  %s" % (
-            r["rank"], cells, cmd, r["thrust_to_weight"], motor, pack, time, marks))
-    lines.append("")
+        time = "%.1f min" % r["flight_time_min"] if r["flight_time_min"] is not None else "no hover"
+        lines.append("%*d  %s  %-7s  %-4.2f  %-7s  %-6s  %s" % (
+            rank_w, r["rank"], cells, cmd, r["thrust_to_weight"], motor, pack, time))
+        ended = ("ended by %s; " % ENDED_BY_WORDS.get(r["flight_ended_by"], r["flight_ended_by"])
+                 if r.get("flight_ended_by") else "")
+        marks = "keeps every margin" if r["keeps_margins"] else "breaks " + ", ".join(r["broken"])
+        lines += wrap_line(" " * (rank_w + 2) + ended + marks, indent=rank_w + 4)  # words under the row
+    table, lines = lines, [""]
     if result["best"]:
         lines.append("longest hover that keeps every margin: %s (%.1f min)"
                      % (result["best"]["label"], result["best"]["flight_time_min"]))
     else:
         lines.append("no combination keeps every margin")
-    lines.append("margins: " + "; ".join("%s = %s" % (k, v) for k, v in result["margins"].items()))
-    lines.append("motor A = each motor's current at hover (ESC output); pack A = all motors from the pack")
+    lines.append("margins:")
+    width = max(len(k) for k in result["margins"])
+    lines += ["  %s  %s" % (k.ljust(width), v) for k, v in result["margins"].items()]
+    lines.append("motor A  each motor's current at hover (ESC output)")
+    lines.append("pack A   all motors from the pack")
     if any(r.get("propeller_source") == "estimated" for r in rows):
         from estimator.preflight.propeller_estimate import ESTIMATE_NOTE
-        lines.append(ESTIMATE_NOTE)
-    return "\n".join(lines) + "\n"
+        lines.append("- " + ESTIMATE_NOTE)
+    return "\n".join(table) + "\n" + fit_width("\n".join(lines) + "\n")  # rows are never cut

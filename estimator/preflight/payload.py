@@ -17,6 +17,7 @@ import re
 from estimator.errors import InputError, shorten
 from estimator.preflight.margins import PAYLOAD_BLIND, broken, margins
 from estimator.preflight.report import hover_report
+from estimator.textwidth import wrap_line
 from estimator.units import parse_quantity
 
 RANGE_POINTS = 9  # payloads in a range A..B, ends included [-]
@@ -155,7 +156,7 @@ def verdict_lines(result, unit="kg"):
         return ["no payload keeps the margins and the landing reserve%s: even the smallest payload (%s) "
                 "breaks: %s" % (job, _mass(rows[0]["payload_kg"], unit), ", ".join(result["broken_beyond"]))]
     lines = ["no payload keeps every margin: %s breaks at every payload (judged at full command, where the "
-             "current does not depend on the payload; see the warnings above)" % ", ".join(blind)]
+             "current hardly depends on the payload; see the warnings above)" % ", ".join(blind)]
     other = result.get("max_payload_kg_payload_margins")
     if other is None:
         lines.append("on the margins a payload affects%s, even the smallest payload (%s) breaks: %s" % (
@@ -169,19 +170,24 @@ def verdict_lines(result, unit="kg"):
 
 
 def format_payload_table(result, unit="kg"):
-    """The payload table for the sheet, masses in the unit the person typed (g, kg, lb, oz)."""
+    """The payload table for the sheet, masses in the unit the person typed (g, kg, lb, oz);
+    cmd is the hover command on a nominal pack, empty the one near empty; a payload that breaks a
+    margin gets the names on a line under its row, so the table fits an 80-column terminal.
+    The verdict is wrapped to that width too (estimator.textwidth)."""
     scale = parse_quantity("1" + unit, "mass") if unit else 1.0
-    lines = ["5. How much can it carry?",
-             "   payload     all-up      command  cmd empty  T/W   pack A  endurance           keeps margins"]
+    header = "   payload    all-up     cmd   empty  T/W   pack A  endurance           keeps"
+    lines = ["5. How much can it carry?", header]
     for r in result["rows"]:
         cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
         empty = "%.2f" % r["hover_command_empty"] if r["hover_command_empty"] is not None else "none"
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
         time = ("%.1f min (%s)" % (r["flight_time_min"], r["flight_ended_by"])
                 if r["flight_time_min"] is not None else "no hover")
-        lines.append("   %-10s  %-10s  %-7s  %-9s  %-4.2f  %-6s  %-18s  %s" % (
+        lines.append("   %-9s  %-9s  %-4s  %-5s  %-4.2f  %-6s  %-18s  %s" % (
             "%.4g %s" % (r["payload_kg"] / scale, unit), "%.4g %s" % (r["mass_kg"] / scale, unit), cmd,
-            empty, r["thrust_to_weight"], pack, time,
-            "yes" if r["keeps"] else "no: " + ", ".join(r["broken"])))
-    lines += ["   " + line for line in verdict_lines(result, unit)]
+            empty, r["thrust_to_weight"], pack, time, "yes" if r["keeps"] else "no"))
+        if not r["keeps"]:  # the margins it breaks, on a line of their own under the row
+            lines += wrap_line("       breaks " + ", ".join(r["broken"]), indent=14)
+    for line in verdict_lines(result, unit):
+        lines += wrap_line("   " + line, indent=5)
     return "\n".join(lines) + "\n"

@@ -11,6 +11,7 @@ from estimator.core.hover import hover_estimate, rotor_propeller
 from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_merit,
                                      induced_velocity_m_s, static_factor)
 from estimator.cautions import cautions
+from estimator.textwidth import fit_width
 from estimator.preflight.pack import pack_in_the_air, pack_keys, pack_temperature_text
 from estimator.preflight.propeller_estimate import estimated_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, suspicious_values
@@ -152,7 +153,8 @@ def _at_hover(current_A):
 
 
 def format_sheet(report):
-    """The human pre-flight sheet for a report dict, grouped by the builder's questions."""
+    """The human pre-flight sheet for a report dict, grouped by the builder's questions
+    (lines wrapped to an 80-column terminal, estimator.textwidth)."""
     lines = []
     title = "PRE-FLIGHT ESTIMATE: %s" % report.get("name", "vehicle")
     lines += [title, "=" * len(title)]
@@ -196,8 +198,10 @@ def format_sheet(report):
     lines.append("   thrust-to-weight   %s   (full command, nominal pack; %s2 is the usual floor)"
                  % (thrust_to_weight_text(report.get("thrust_to_weight")),
                     "NOT REACHABLE on this pack, see below; " if reachable is False else ""))
-    lines.append("   full-command thrust %s total (hover needs %s per rotor)" % (
-        _num(report.get("full_thrust_N"), "%.1f", "N"), _num(report.get("thrust_per_rotor_N"), "%.2f", "N")))
+    full_total, rotors = report.get("full_thrust_N"), report.get("rotor_count") or 0
+    lines.append("   full-command thrust %s per rotor, %s total (hover needs %s per rotor)" % (
+        _num(full_total / rotors if full_total is not None and rotors else None, "%.3g", "N"),
+        _num(full_total, "%.1f", "N"), _num(report.get("thrust_per_rotor_N"), "%.3g", "N")))
     if report.get("full_command_cell_V") is not None:
         lines.append("   full command sags the pack to %s (%s per cell; loaded cutoff %s per cell)" % (
             _num(report.get("full_bus_V"), "%.1f", "V"),
@@ -278,4 +282,4 @@ def format_sheet(report):
     lines.append("Before you go to the field")
     for c in report.get("cautions") or CAUTIONS:
         lines.append("   - " + c)
-    return "\n".join(lines) + "\n"
+    return fit_width("\n".join(lines) + "\n")
