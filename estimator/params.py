@@ -121,11 +121,9 @@ def motor_block(motor):
 
 def vehicle_block(vehicle):
     """The ``vehicle`` block: name, mass, rotors, site density and pack voltages."""
-    from estimator.core.atmosphere import site_air
+    from estimator.vehicle import vehicle_air
 
-    site = vehicle.get("site", {})
-    air = site_air(site.get("altitude_m", 0.0), site.get("temperature_C"), site.get("pressure_Pa"),
-                   site.get("humidity_pct", 0.0))
+    air = vehicle_air(vehicle)
     b = vehicle["battery"]
     return {
         "name": vehicle.get("name", "unnamed vehicle"), "mass_kg": vehicle["mass_kg"],

@@ -185,6 +185,27 @@ def vehicle_source(vehicle, default="vehicle"):
     return (vehicle.get("checked") or {}).get("source") or default
 
 
+_SITE_KEYS = {"altitude": "altitude_m", "temperature": "temperature_C", "pressure": "pressure_Pa",
+              "humidity": "humidity_pct"}
+
+
+def vehicle_air(vehicle):
+    """Site air of a checked vehicle (core.atmosphere.site_air, keys and units there).
+
+    Raises InputError naming the file and the site's JSON key when the
+    air model refuses an input (e.g. a sea-level QNH given as the station pressure).
+    """
+    from estimator.core.atmosphere import AirInputError, site_air
+
+    site = vehicle.get("site", {})
+    try:
+        return site_air(site.get("altitude_m", 0.0), site.get("temperature_C"),
+                        site.get("pressure_Pa"), site.get("humidity_pct", 0.0))
+    except AirInputError as exc:
+        raise InputError("%s: $.site.%s: %s" % (vehicle_source(vehicle), _SITE_KEYS[exc.quantity],
+                                                 exc)) from None
+
+
 def assumed_warnings(vehicle):
     """Warnings about defaults check_vehicle filled that change the answer (no site...)."""
     return list((vehicle.get("checked") or {}).get("assumed") or [])

@@ -12,7 +12,8 @@ import math
 from estimator.core.constants import (ATMOSPHERE_BOTTOM_GEOPOTENTIAL_M, CELSIUS_ZERO_K,
                                       DRY_AIR_GAS_CONSTANT_J_KG_K, EARTH_RADIUS_M,
                                       ISOTHERMAL_TOP_GEOPOTENTIAL_M, SEA_LEVEL_DENSITY_KG_M3,
-                                      SEA_LEVEL_PRESSURE_PA,
+                                      SEA_LEVEL_PRESSURE_PA, QNH_RANGE_PA,
+                                      STATION_PRESSURE_ABOVE_STANDARD_MAX,
                                       SEA_LEVEL_TEMPERATURE_K, STANDARD_GRAVITY_M_S2,
                                       TROPOPAUSE_GEOPOTENTIAL_M, TROPOSPHERE_LAPSE_K_M)
 from estimator.core.humid_air import humid_air_density_kg_m3, vapour_pressure_Pa
@@ -115,6 +116,32 @@ def dynamic_viscosity_Pa_s(temperature_K):
     return SUTHERLAND_BETA * temperature_K ** 1.5 / (temperature_K + SUTHERLAND_S_K)
 
 
+def station_pressure_problem(altitude_m, pressure_Pa):
+    """Why a station pressure cannot be right at this altitude, or None when it can be.
+
+    A station pressure more than STATION_PRESSURE_ABOVE_STANDARD_MAX (8 %, weather and a hot
+    air column; see core.constants) above the standard atmosphere's pressure at the geometric
+    altitude is refused; the usual slip is the sea-level pressure (QNH) of a weather report.
+    A pressure below the standard errs on the safe side (thinner air) and is also what a site
+    with a measured pressure but no altitude gives, so it is not questioned.
+    altitude_m: geometric altitude h [m]; pressure_Pa: the station pressure given [Pa].
+    Returns a message (str) or None. Source: US Standard Atmosphere 1976 (standard_atmosphere).
+    """
+    p_std = standard_atmosphere(altitude_m)[1]
+    excess = pressure_Pa / p_std - 1.0
+    if excess <= STATION_PRESSURE_ABOVE_STANDARD_MAX:
+        return None
+    head = ("%.1f hPa at %.0f m is %.0f %% above the standard atmosphere's %.0f hPa there, more "
+            "than weather gives (about %.0f %%)" % (pressure_Pa / 100.0, altitude_m, 100.0 * excess,
+                                                   p_std / 100.0, 100.0 * STATION_PRESSURE_ABOVE_STANDARD_MAX))
+    if QNH_RANGE_PA[0] <= pressure_Pa <= QNH_RANGE_PA[1]:
+        return (head + ": that looks like sea-level pressure (QNH, what weather reports give); give the "
+                "station pressure, about %.0f hPa at this altitude, or leave the pressure out to use "
+                "the standard atmosphere" % (p_std / 100.0))
+    return (head + ": check the altitude and the pressure (the station pressure at the site, about "
+            "%.0f hPa in the standard atmosphere), or leave the pressure out" % (p_std / 100.0))
+
+
 def site_air(altitude_m, temperature_C=None, pressure_Pa=None, humidity_pct=0.0):
     """Air at a flying site: density, temperature, pressure and density altitude.
 
@@ -129,7 +156,8 @@ def site_air(altitude_m, temperature_C=None, pressure_Pa=None, humidity_pct=0.0)
     density_altitude_m [m], vapour_pressure_Pa [Pa], density_ratio [-] (rho / 1.225),
     viscosity_Pa_s [Pa s] (dynamic_viscosity_Pa_s).
     Raises AirInputError (a ValueError naming the input at fault in ``quantity``) for
-    values outside the models' ranges.
+    values outside the models' ranges, and for a station pressure far above the standard
+    pressure at the altitude (station_pressure_problem: sea-level QNH given by mistake).
     Source: US Standard Atmosphere 1976; Buck (1981).
     """
     try:
@@ -143,6 +171,10 @@ def site_air(altitude_m, temperature_C=None, pressure_Pa=None, humidity_pct=0.0)
                             % (t - CELSIUS_ZERO_K))
     if not p > 0.0:
         raise AirInputError("pressure", "pressure must be above zero [Pa]")
+    if pressure_Pa is not None:
+        problem = station_pressure_problem(altitude_m, pressure_Pa)
+        if problem is not None:
+            raise AirInputError("pressure", problem)
     if not 0.0 <= humidity_pct <= 100.0:
         raise AirInputError("humidity", "relative humidity %.1f %% is outside 0..100 %%" % humidity_pct)
     try:

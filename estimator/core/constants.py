@@ -35,6 +35,16 @@ ISOTHERMAL_TOP_GEOPOTENTIAL_M = 20000.0
 # Lowest tabulated altitude of the 1976 standard [m geopotential].
 ATMOSPHERE_BOTTOM_GEOPOTENTIAL_M = -5000.0
 
+# Largest share by which a station pressure may exceed the standard atmosphere's pressure at the
+# site's altitude [-]. Weather moves sea-level pressure within about 970..1050 hPa outside
+# tropical cyclones (records 870 and 1084 hPa), i.e. up to about +3.5 % of 1013.25 hPa, and a
+# hot air column raises the station pressure at 2-4 km by another 2-4 % (hypsometric equation):
+# 8 % covers both (common practice, from memory). A sea-level pressure (QNH) entered at 1000 m
+# is 13 % above the standard station pressure there, at 2000 m 27 %.
+STATION_PRESSURE_ABOVE_STANDARD_MAX = 0.08
+# Sea-level pressures (QNH) weather reports give [Pa]: the range above, widened (from memory).
+QNH_RANGE_PA = (94000.0, 106000.0)
+
 # Zero of the Celsius scale [K], exact by definition.
 CELSIUS_ZERO_K = 273.15
 

@@ -6,9 +6,6 @@ neither imports the other. Thresholds are common practice for multirotors, not a
 
 import math
 
-from estimator.core.atmosphere import site_air
-from estimator.errors import InputError
-from estimator.vehicle import vehicle_source
 
 # Warning thresholds (common practice for multirotors, not a standard):
 HOVER_COMMAND_LIMIT = 0.6  # hover above 0.6 of full command leaves little for control
@@ -20,20 +17,11 @@ FLYABLE_HOVER_COMMAND = 0.8
 THIN_AIR_DENSITY_RATIO = 0.9  # below 90 % of 1.225 kg/m^3 thrust margins shrink noticeably
 
 
-_SITE_KEYS = {"altitude": "altitude_m", "temperature": "temperature_C", "pressure": "pressure_Pa",
-              "humidity": "humidity_pct"}
-
-
 def vehicle_site_air(vehicle):
-    """Site air of a vehicle (core.atmosphere.site_air); InputError naming file and JSON key."""
-    from estimator.core.atmosphere import AirInputError
+    """Site air of a vehicle (estimator.vehicle.vehicle_air); InputError naming file and JSON key."""
+    from estimator.vehicle import vehicle_air
 
-    site = vehicle.get("site", {})
-    try:
-        return site_air(site.get("altitude_m", 0.0), site.get("temperature_C"),
-                        site.get("pressure_Pa"), site.get("humidity_pct", 0.0))
-    except AirInputError as exc:
-        raise InputError("%s: $.site.%s: %s" % (vehicle_source(vehicle), _SITE_KEYS[exc.quantity], exc)) from None
+    return vehicle_air(vehicle)
 
 
 # a sag of more than this share of the open-circuit voltage at full command is named as a cause
