@@ -78,6 +78,10 @@ def main(n_clean=17, quick=False, reduced=False):
           % (" (REDUCED: worst cells only)" if reduced else "", len(cells), len(names), len(jitters), len(lags),
              n_clean, DURATION_S / 60, hours, len(rates), hours * len(rates), wall))
     keys = ["step%+d%%" % (100 * s) for s in ws.STEPS] + ["ramp"] + ["payload%+d%%" % (100 * p) for p in ws.PAYLOADS]
+    print("flights end at the pack's cutoff (loaded voltage below cells x empty cell voltage, 1 s mean): %d of %d "
+          "flights cut short; %d fault flights not judged (their fault starts < 30 s before the cutoff, a ramp ends "
+          "after it)" % (sum(c["cut_short"] for c in cells), len(cells) * len(ws.cell_plan(
+              __import__("numpy").random.default_rng(0), n_clean, DURATION_S)[0]), sum(c["unjudged"] for c in cells)))
     print("per cell and rate: false alarms/h on fault-free flights (95 %% upper bound), sensor faults, false "
           "mass_high, then delay median/worst [s] for %s" % ", ".join(keys))
     worst = {"false": 0, "false_sensor": 0, "false_mass": 0}

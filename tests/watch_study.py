@@ -107,6 +107,19 @@ def judge(kind, value, onset, events):
     return false, None
 
 
+def pack_cutoff_s(sim, k, name):
+    """Time [s] at which flight k's loaded pack voltage (mean over 1 s) first falls below the pack's
+    cutoff (cells x empty cell voltage), inf when it never does. A builder lands there (or the
+    controller's low-voltage failsafe does); the simulated pack beyond it is off its discharge
+    curve, so the study judges a flight only up to this time (common practice: land at the cutoff)."""
+    b = sim_vehicles.spec(name)["vehicle"]["battery"]
+    n = int(round(1.0 / flight_sim.PHYSICS_DT))
+    mean = np.convolve(sim["bus_V"][k].astype(float), np.ones(n) / n, mode="valid")
+    t = sim["t_s"][n - 1:]
+    below = np.nonzero((mean < b["cells"] * b["empty_cell_V"]) & (t > 10.0))[0]
+    return float(t[below[0]]) if len(below) else float("inf")
+
+
 def run_cell(args):
     """One cell: (vehicle, jitter, lag_s, n_clean, duration_s, seed, rates[, CONFIG options]) -> dict."""
     name, jitter, lag, n_clean, duration_s, seed, rates = args[:7]
@@ -126,12 +139,24 @@ def run_cell(args):
     sim = _simulate_cached(name, len(kinds), seed, duration_s, jitter, lag, size, at, ramp, payload)
     cfg = as_tuple(make_config(sim_vehicles.fitted_params(name), sim_vehicles.checked_vehicle(name),
                                  options)[0])
-    out = {"vehicle": name, "jitter": jitter, "lag_s": lag, "clean_hours": n_clean * duration_s / 3600.0,
-           "rates": {}}
+    # flights end at the pack's cutoff; a fault that starts less than 30 s before it (a ramp: that
+    # does not reach its end before it) is not judged, and counted apart
+    ends = [min(pack_cutoff_s(sim, k, name), duration_s) for k in range(len(kinds))]
+    flown = [kind == "clean" or (kind == "payload" and ends[k] > 90.0) or
+             (kind == "step" and ends[k] > at[k] + 30.0) or (kind == "ramp" and ends[k] > at[k] + ramp[k])
+             for k, (kind, _) in enumerate(kinds)]
+    out = {"vehicle": name, "jitter": jitter, "lag_s": lag, "rates": {}, "cut_short": sum(e < duration_s for e in ends),
+           "clean_hours": sum(ends[k] for k, (kind, _) in enumerate(kinds) if kind == "clean") / 3600.0,
+           "unjudged": sum(not f for f in flown)}
     for rate in rates:
         r = {"false": 0, "false_clean": 0, "false_sensor": 0, "false_mass": 0, "delays": {}}
         for k, (kind, value) in enumerate(kinds):
+            if not flown[k]:
+                continue
             fl = flight_sim.logged(sim, k, np.random.default_rng(seed * 1000 + k), rate)
+            if ends[k] < duration_s:
+                keep = fl["time_s"] < ends[k]
+                fl = {key: v[keep] for key, v in fl.items()}
             events = replay(cfg, fl)
             r["false_sensor"] += sum(1 for _, b in events if b & 4)
             events = [(t, b & ~4) for t, b in events if b & ~4]
