@@ -16,9 +16,12 @@ Models (design notes sec. 3, Watch). Every statistic lives in flight time, not i
   response; backward-Euler step alpha = dt / (lag + dt)), so manoeuvres are modelled;
 - measured and lagged expected energy are summed over blocks of block_ms of flight time (a
   sample longer than a block counts as one block); one residual per block;
-- a block is "steady" when its thrust is within steady_permille of a slow mean (EMA over 16
-  blocks), its power above the floor, and no block was outside that band for settle_ms (climbs,
-  descents, manoeuvres: the power of axial flight differs from the static model);
+- the thrust deviation x of a block is from the hover thrust, the weight carried (EMA of the
+  block thrust over 16 blocks while learning, 128 after): in steady axial flight at speed v,
+  momentum theory gives T_static - W = rho A v_h v, so x measures the climb or descent for its
+  whole length (an EMA over a few blocks would forget a descent while it lasts). A block is
+  "steady" when |x| is within steady_permille, its power above the floor, and no block was
+  outside that band for settle_ms (the power of axial flight differs from the static model);
 - the residual's known parts are taken out: cx x (thrust deviation x, axial flight) and cd g
   (lead g: the static power at the present command less its lagged value, over the block: a DC
   motor draws more than its static power while the rotor spins up); cx and cd are learned by
@@ -33,7 +36,7 @@ Models (design notes sec. 3, Watch). Every statistic lives in flight time, not i
   threshold h in units of sigma (a self-starting scheme in the sense of Hawkins, J. Roy. Stat.
   Soc. C 36 (1987): the in-control mean and noise come from the flight itself); h from
   Siegmund's approximation for the target false alarms per flight hour (estimator/watch/
-  config.py). A block within 25 % of the slow mean but not steady (a manoeuvre or its settle
+  config.py). A block within 25 % of the hover thrust but not steady (a manoeuvre or its settle
   time) adds z/2: its residual noise is about 1.5x a steady block's, so a fault that comes during
   a climb is not left waiting, and a suspicion raised before one drains. While neither sum is
   above h/2 in a steady block the noise keeps being learned (EMA of |y|, z clipped
@@ -84,7 +87,7 @@ class Watch:
                    c[121], c[125], c[126],
                    ta, tq, c[115] + span, i_pos, 0, 0]
         # sb: block state (learning, l_sum, l_n, l_ms, l_dev, scale, sig_q6, k, h, s_hi, s_lo,
-        # drift_q8, slow thrust factor q4, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, the previous
+        # drift_q8, hover thrust factor q7, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, the previous
         # mass window's mean, variance and count, y16 the smoothed residual, hold the settle time
         # left, sdd, srd, cd); the inflow slope starts at 0.5, momentum theory's ideal-power share
         self.thrust_mN = 0
@@ -254,12 +257,12 @@ class Watch:
         j = dv // vs
         a = c[j + 13]
         self.hover_permille = a + (c[j + 14] - a) * (dv % vs) // vs   # 1000 * 5001
-        # thrust deviation x = (f - f_slow) / f_slow of the block from the slow mean (EMA over 16
-        # blocks) [permille]; steady: |x| within steady_permille and power above the floor
+        # thrust deviation x = (f - f_hover) / f_hover of the block from the hover thrust (EMA over
+        # 16 blocks while learning, 128 after) [permille]; steady: |x| within steady_permille
         fb = fsum // bw                                   # Q12, <= 6143
         if fsl == 0:
-            fsl = fb << 4                                 # Q4 of Q12, < 2^17
-        fsd = (fsl >> 4) + 1
+            fsl = fb << 7                                 # Q7 of Q12, < 2^20
+        fsd = (fsl >> 7) + 1
         x = (fb - fsd) * 1000 // fsd                      # 6143 * 1000
         x = 500 if x > 500 else (-500 if x < -500 else x)
         if low or x < -c[135] or x > c[135]:
@@ -269,7 +272,7 @@ class Watch:
         sb[25] = hold
         steady = hold <= 0
         near = low == 0 and -250 <= x <= 250              # judged (at half weight unless steady)
-        sb[12] = fsl + (((fb << 4) - fsl) >> 4)
+        sb[12] = fsl + (((fb << 7) - fsl) >> (4 if learning else 7))   # 2^20
         e0 = ee >> c[122]                                 # < 2^19 (energy_shift, watch_layout)
         e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
         if e0s <= 0:

@@ -62,7 +62,7 @@ SCALARS = (
     ("noise_shift", 0, 12),                 # in-flight noise estimate: EMA over 2^shift blocks
     ("cusum_k_q8", 0, 2560),                # CUSUM reference value [noise sigma x 256]
     ("cusum_h_q8", 1, 12800),               # CUSUM threshold [noise sigma x 256]
-    ("steady_permille", 1, 1000),           # block power within this of the slow mean: steady
+    ("steady_permille", 1, 1000),           # block thrust within this of the hover thrust: steady
     ("drift_shift", 0, 12),                 # slow baseline tracking: EMA over 2^shift blocks
     ("drift_tol_permille", 0, 100),         # bound of that tracking
     ("mass_window_ms", 1000, 120000),       # steady flight time per implied-mass window

@@ -44,7 +44,7 @@ DEFAULTS = {
     "learn_timeout_s": 60.0,        # the learning window ends by this flight time anyway [s]
     "baseline_tol": 0.10,           # learned scale further than this from 1 -> baseline_off [-]
     "noise_s": 60.0,                # in-flight noise estimate: EMA time constant [s]
-    "steady_share": 0.10,           # block thrust within this share of its slow mean: judged [-]
+    "steady_share": 0.10,           # block thrust within this share of the hover thrust: steady [-]
     "settle_s": 4.0,                # after a block beyond steady_share (a manoeuvre) judged at half weight this long [s]
     "drift_s": 60.0,                # slow baseline tracking: EMA time constant [s]
     "drift_tol": 0.015,             # bound of the slow in-flight baseline tracking [-] (a slow fault ramp
@@ -336,7 +336,7 @@ def make_config(params, vehicle=None, options=None):
         "|scale - 1| above %.3f -> baseline_off" % o["baseline_tol"])
     put("noise_shift", _shift(o["noise_s"] * 1000.0 / block_ms), "noise EMA over about %.0f s" % o["noise_s"])
     put("steady_permille", int(round(1000.0 * o["steady_share"])),
-        "blocks whose expected power is within %.2f of the slow mean are judged" % o["steady_share"])
+        "blocks whose thrust is within %.2f of the hover thrust are steady" % o["steady_share"])
     put("settle_ms", int(round(1000.0 * o["settle_s"])), "after a manoeuvre (a block beyond steady_permille) "
         "%.1f s judged at half weight (no noise, drift or mass learning): climbs and descents change the power "
         "at a given thrust" % o["settle_s"])
