@@ -51,7 +51,7 @@ def robust_scale(x):
     return float(1.4826 * np.median(np.abs(x - np.median(x))))
 
 
-def _noise_profile(level_thrust, dev):
+def noise_profile(level_thrust, dev):
     """Thrust noise against thrust: (thrust knots [N], scale [N]) for numpy.interp, or None
     when there are too few rows. The same for power noise against power ([W]), whose
     current sensor has a floor too.
@@ -216,11 +216,11 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     # scale of the noise at their thrust, from the profile (none needed when every level is big)
     needs_profile = bool(np.any(sel)) and bool(np.any(count[big] < SMALL_LEVEL))
     sub = (np.abs(t_m)[ks][sel], dt[::step][sel]) if needs_profile else None
-    profile_t = _noise_profile(*sub) if sub is not None else None
+    profile_t = noise_profile(*sub) if sub is not None else None
     s_p = robust_scale((dp[::step] / ref_p[ks])[sel]) if np.any(sel) else 0.0
     # power noise has a floor too (the current sensor's): small levels take the larger of the
     # pooled relative scale and the power noise at their power, from its own profile
-    profile_p = _noise_profile(np.abs(p_m)[ks][sel], dp[::step][sel]) if needs_profile else None
+    profile_p = noise_profile(np.abs(p_m)[ks][sel], dp[::step][sel]) if needs_profile else None
     # noise grows with thrust and power: levels of SMALL_LEVEL rows or more carry their own
     # scale (rms about the level's trend), smaller ones the subsample's robust scale
     own = count >= SMALL_LEVEL
@@ -245,7 +245,7 @@ def command_levels(command, voltage_V, thrust_N, power_W):
         spoiled = np.zeros(n_keys, dtype=bool)
         spoiled[key[thrust_spike]] = True
         clean = ~spoiled[ks[sel]]
-        again = _noise_profile(*(x[clean] for x in sub))
+        again = noise_profile(*(x[clean] for x in sub))
         if again is not None:
             scale_t = np.maximum(np.interp(np.abs(t_m), *again), 1e-6 * t_top)
             thrust_spike = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)

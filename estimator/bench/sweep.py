@@ -93,22 +93,45 @@ def _check_finite(node, source, path="$"):
         raise InputError("%s: the fit gave a non-finite %s; the sweep cannot be fitted" % (source, path))
 
 
-def _model_spikes(lv, theta, u, v, t):
+def _model_spikes(lv, theta, u, v, t, p):
     """Rows of small levels (one or two rows, where levels.command_levels cannot judge) far
-    from the fitted motor model: residual beyond SPIKE_SIGMAS robust scales of the level
-    residuals. Marks them in lv["thrust_spike"] (counted and left out of rows_used)."""
-    from estimator.bench.levels import SPIKE_SIGMAS, robust_scale
+    from the fitted motor model. A row is a spike when its residual exceeds SPIKE_SIGMAS
+    times the spread of the level residuals at its thrust (levels.noise_profile of the
+    level residuals scaled to one row: load-cell noise grows with the load, and the model's
+    own misfit is part of that spread). Spikes are marked in lv["thrust_spike"] (counted and
+    left out of rows_used) and taken out of their levels' means; a level left empty is
+    dropped. Returns True when a level changed (the fits must run again)."""
+    from estimator.bench.levels import SPIKE_SIGMAS, noise_profile, robust_scale
 
+    n = lv["count"]
+    t_lv = np.abs(lv["thrust_N"])
     r_lv = rotor_arrays(theta, lv["command"], lv["voltage_V"])[0] - lv["thrust_N"]
-    scale = robust_scale(r_lv)
-    if not scale > 0.0:
-        return
-    bad = (np.abs(r_lv) > SPIKE_SIGMAS * scale) & (lv["count"] <= 2)
+    r_row = r_lv * np.sqrt(n)  # a level mean's residual scaled to one row's
+    profile = noise_profile(t_lv, r_row)
+    row_scale = np.interp(t_lv, *profile) if profile is not None else np.full(n.size, robust_scale(r_row))
+    if not np.all(row_scale > 0.0):
+        return False
+    bad = (np.abs(r_row) > SPIKE_SIGMAS * row_scale) & (n <= 2)
     if not np.any(bad):
-        return
+        return False
     rows = np.flatnonzero(bad[lv["row_level"]])
     r_rows = rotor_arrays(theta, u[rows], v[rows])[0] - t[rows]
-    lv["thrust_spike"][rows[np.abs(r_rows) > SPIKE_SIGMAS * scale]] = True
+    rows = rows[np.abs(r_rows) > SPIKE_SIGMAS * row_scale[lv["row_level"][rows]]]
+    rows = rows[~lv["thrust_spike"][rows]]
+    if rows.size == 0:
+        return False
+    lv["thrust_spike"][rows] = True
+    k = lv["row_level"][rows]
+    count = n - np.bincount(k, minlength=n.size)
+    for name, x in (("command", u), ("voltage_V", v), ("thrust_N", t), ("power_W", p)):
+        lv[name] = (lv[name] * n - np.bincount(k, weights=x[rows], minlength=n.size)) / np.maximum(count, 1.0)
+    keep = count > 0
+    for name in ("command", "voltage_V", "thrust_N", "power_W"):
+        lv[name] = lv[name][keep]
+    lv["count"] = count[keep]
+    lv["row_level"] = (np.cumsum(keep) - 1)[lv["row_level"]]
+    lv["current_A"] = lv["power_W"] / lv["voltage_V"]
+    return True
 
 
 def _add_lag(curve):
@@ -166,14 +189,18 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     # end point), then one more pass weighted by that pass's residual scales
     motor = fit_motor(lv, top_end=True, passes=1)
     top_found = motor["theta"][5] < u_hi - TOP_END_MARGIN
-    if top_found:
-        motor = fit_motor(lv, top_end=True, start=motor)
-    else:
+
+    def final_motor(start):
+        if top_found:
+            return fit_motor(lv, top_end=True, start=start)
         # full command at 1, or at the sweep's top when it stops short (an ESC calibrated to
         # a narrower pulse range, or a sweep cut short): never extrapolated beyond it
-        motor = fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi, start=motor)
+        return fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi, start=start)
+
+    motor = final_motor(motor)
+    if _model_spikes(lv, motor["theta"], u, v, t, p):
+        motor = final_motor(motor)
     theta = motor["theta"]
-    _model_spikes(lv, theta, u, v, t)
     v_ref = float(round(float(np.median(v[:: max(1, v.size // MAD_ROWS)])), 2))
     n_motor, m_motor = motor_exponents(theta, v_ref)
     grid = np.linspace(float(theta[4]), float(theta[5]), 161)
