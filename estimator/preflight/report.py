@@ -13,7 +13,8 @@ from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_
 from estimator.cautions import cautions
 from estimator.textwidth import fit_width
 from estimator.preflight.pack import pack_in_the_air, pack_keys, pack_temperature_text
-from estimator.preflight.propeller_estimate import estimated_propeller
+from estimator.preflight.propeller_estimate import (LOW_REYNOLDS_FIGURE_OF_MERIT, estimated_propeller, low_reynolds_propeller,
+                                                    low_reynolds_warning)
 from estimator.preflight.unit_checks import params_propeller_warning, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
 from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, beside, full_command_sag, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num)
@@ -128,10 +129,31 @@ def _report(vehicle, params=None):
     }
     report.update(pack_keys(vehicle, battery, pack_temperature, pack_basis))
     report.update(full_command_sag(report))
+    low_re = _low_reynolds_check(vehicle, propeller, estimate, est, count, layout, rho, battery, esc_eff)
+    report["low_reynolds_check"] = low_re
     report["warnings"] = (checks + assumed_warnings(vehicle) + ([estimate["note"]] if estimate else [])
-                          + margin_warnings(report))
+                          + ([low_reynolds_warning(low_re)] if low_re and est["hover_command"] is not None
+                             else []) + margin_warnings(report))
     report["cautions"] = list(CAUTIONS)
     return report
+
+
+def _low_reynolds_check(vehicle, propeller, estimate, est, count, layout, rho, battery, esc_eff):
+    """The hover at LOW_REYNOLDS_FIGURE_OF_MERIT for an estimated propeller at a low Reynolds
+    number (propeller_estimate.low_reynolds_propeller), or None: reynolds_75 [-],
+    figure_of_merit_estimated / _assumed [-], cp [-], hover_command [-], hover_power_W [W],
+    hover_current_A [A], flight_time_min [min] (None when it cannot hover), thrust_to_weight [-],
+    estimate_hover_power_W [W], estimate_flight_time_min [min]."""
+    lower = low_reynolds_propeller(propeller, estimate)
+    if lower is None:
+        return None
+    low = hover_estimate(vehicle["mass_kg"], count, layout, rho, vehicle["motor"], lower, battery, esc_eff)
+    return {"reynolds_75": estimate["reynolds_75"], "figure_of_merit_estimated": estimate["figure_of_merit"],
+            "figure_of_merit_assumed": LOW_REYNOLDS_FIGURE_OF_MERIT, "cp": lower["cp"],
+            "hover_command": low["hover_command"], "hover_power_W": low["hover_power_W"],
+            "hover_current_A": low["hover_current_A"], "flight_time_min": low["flight_time_min"],
+            "thrust_to_weight": low["thrust_to_weight"], "estimate_hover_power_W": est["hover_power_W"],
+            "estimate_flight_time_min": est["flight_time_min"]}
 
 
 def _fitted_report(vehicle, params, checks):
@@ -259,9 +281,11 @@ def format_sheet(report):
         estimate = report.get("propeller_estimate")
         if estimate:
             lines.append("   propeller CT %.3f, CP %.4f ESTIMATED from %.3g m x %.3g m pitch, %d blades "
-                         "(blade element momentum theory at %.0f rpm; typically 10-20 %% off)"
+                         "(blade element momentum theory at %.0f rpm; typically 10-20 %% off%s)"
                          % (report["propeller_ct"], report["propeller_cp"], report.get("propeller_diameter_m") or 0.0,
-                            estimate["pitch_m"], estimate["blades"], estimate["rpm"]))
+                            estimate["pitch_m"], estimate["blades"], estimate["rpm"],
+                            "; likely optimistic at this small size, see below" if report.get("low_reynolds_check")
+                            else ""))
         if report.get("static_factor") is not None:
             extras.append("static factor k %.2f" % report["static_factor"])
         if extras:
