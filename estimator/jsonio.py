@@ -154,7 +154,7 @@ _KEY_UNITS = {
     "kg": ("mass", ("g", "lb")), "m": ("length", ("mm", "cm", "in")), "Ah": ("capacity", ("mAh",)),
     "V": ("voltage", ("mV",)), "A": ("current", ("mA",)), "W": ("power", ("mW", "kW")),
     "N": ("force", ("g", "kgf", "lbf")), "Pa": ("pressure", ("hPa", "kPa", "bar")),
-    "C": ("temperature", ("K", "F")),
+    "C": ("temperature", ("K", "F")), "ohm": ("resistance", ("mohm",)),
 }
 _CLOSE = 0.6  # difflib similarity above which two keys count as the same word misspelt
 
@@ -178,6 +178,9 @@ def _likely_cause(err):
                 close = difflib.get_close_matches(key, unknown, 1, _CLOSE)
                 if close:
                     return "; the file has %r where %r is expected: a typo?" % (close[0], key)
+                short = [k for k in unknown if isinstance(k, str) and key.lower().startswith(k.lower() + "_")]
+                if short:  # "kv" for "kv_rpm_per_V": the key's name without its unit
+                    return "; the file has %r: did you mean %r? (the key names its unit)" % (short[0], key)
         return ""
     if err.validator == "additionalProperties":
         props = list(err.schema.get("properties", {}))
@@ -209,6 +212,12 @@ def _likely_cause(err):
                                                                 slip[1], unit)
     if err.validator == "type" and isinstance(err.instance, str) and "number" in str(err.validator_value):
         return _text_for_number(err)
+    if err.validator == "type" and isinstance(err.instance, str) and "integer" in str(err.validator_value):
+        import re
+
+        whole = re.match(r"^\s*(\d+)\s*[A-Za-z]?\s*$", err.instance)  # "6S", "4 s", "6"
+        if whole:
+            return "; write %d (a plain whole number, without quotes)" % int(whole.group(1))
     return ""
 
 
