@@ -79,8 +79,10 @@ def test_no_false_zero_error_bar_and_sensible_digits(tmp_path, seed):
         m = re.search(r"([\d.]+) (?:\S+ )?\+- ([\d.]+)", line)
         if m:
             value, error = m.groups()
-            digits = error.lstrip("0.").replace(".", "") if "." in error else error.rstrip("0")
-            assert len(digits) == 2, line  # two significant digits in the error
+            if "." in error:
+                assert len(error.lstrip("0.").replace(".", "")) == 2, line  # two significant digits
+            else:  # a whole number: two digits, rounded to two significant ones ("10", "120")
+                assert len(error) >= 2 and float("%.2g" % float(error)) == float(error), line
             decimals = lambda s: len(s.split(".")[1]) if "." in s else 0  # noqa: E731
             assert decimals(value) == decimals(error), line  # value to the error's place
     assert "density exponent" in text and "not fitted by itself" in text

@@ -18,3 +18,6 @@ def test_every_ordinary_sweep_fits_within_the_bounds_and_the_interval_covers(cap
         assert summary[key]["worst"] <= bound, (key, summary[key])
     # the 95 % interval holds the truth's hover command in at least 90 % of the truths
     assert summary["coverage"] >= 0.9
+    # and so do T_max +- 1.96 standard errors and the spin-up command +- 1.96 standard errors
+    assert summary["thrust_max_coverage"] >= 0.9
+    assert summary["spin_up_coverage"] >= 0.9

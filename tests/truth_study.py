@@ -78,6 +78,7 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
         "half_width": 0.5 * (hi - lo),
         "warnings": len(params.get("warnings", [])),
         "spin_up": params["motor_model"]["command_start"] - spin_up_command(truth),
+        "spin_up_se": params["motor_model"].get("command_start_standard_error", 0.0),
     })
     if keep:
         out.update({"truth": truth, "params": params, "truth_values": tv})
@@ -104,6 +105,7 @@ def summarise(results):
     spin = [r["spin_up"] for r in ok]
     summary["spin_up"] = {"worst": max(spin, key=abs) if spin else math.nan,
                           "worst_seed": max(ok, key=lambda r: abs(r["spin_up"]))["seed"] if ok else None}
+    summary["spin_up_coverage"] = sum(abs(r["spin_up"]) <= 1.959964 * r["spin_up_se"] for r in ok) / max(len(ok), 1)
     summary["median_half_width"] = float(np.median([r["half_width"] for r in ok])) if ok else math.nan
     return summary
 
@@ -120,6 +122,7 @@ def report_lines(summary):
             key, scale * s["worst"], unit, s["worst_seed"], scale * bound, unit, 100.0 * s["within"], MODELS[key]))
     lines.append("  spin-up command  worst %+7.3f (seed %s)   [the truth's end of the ESC dead zone]"
                  % (summary["spin_up"]["worst"], summary["spin_up"]["worst_seed"]))
+    lines.append("  spin-up +-1.96 standard errors holds the truth in %.1f %%" % (100.0 * summary["spin_up_coverage"]))
     lines.append("  95 %% hover-command interval coverage %.1f %% (median half-width %.4f)"
                  % (100.0 * summary["coverage"], summary["median_half_width"]))
     lines.append("  T_max +-1.96 standard errors (incl. curve-form error) holds the truth in %.1f %%"

@@ -182,9 +182,32 @@ def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None):
         s_i = max(_scale(im - i), floor_i)
     theta = np.array(_unpack(res.x))
     tm, _, _, _, _ = rotor_arrays(theta, u, v)
+    held = [k for k in range(9) if res.active_mask[k] != 0 and k != 4] + ([] if top_end else [5])
     return {"theta": theta, "x": res.x, "jac": res.jac, "scale_thrust_N": s_t, "scale_current_A": s_i,
             "rms_thrust_N": float(np.sqrt(np.mean((tm - t) ** 2))), "success": bool(res.success),
-            "message": res.message, "active": res.active_mask.copy()}
+            "message": res.message, "active": res.active_mask.copy(),
+            "covariance": _covariance(res.jac, res.fun, held)}
+
+
+def _covariance(jac, scaled_residuals, held):
+    """Covariance of the packed parameters (NAMES order; logarithms of the positive ones, u0,
+    u1 and g linear): s^2 (J^T J)^-1 FORM_INFLATION^2 over the parameters not held (held:
+    indices at an active bound or fixed; their rows and columns are 0). J is least_squares'
+    Jacobian of the residuals scaled by their robust scales (modified by the soft_l1 loss,
+    so outliers weigh little), s^2 their mean square clipped at 4 scales, and FORM_INFLATION
+    the curve fit's allowance for the curve form's error being correlated between
+    neighbouring levels (estimator.bench.curve_fit). Gauss-Newton covariance of nonlinear
+    least squares (e.g. Seber and Wild, Nonlinear Regression, ch. 2, from memory)."""
+    from estimator.bench.curve_fit import FORM_INFLATION
+
+    free = [k for k in range(jac.shape[1]) if k not in held]
+    r = np.asarray(scaled_residuals, dtype=float)
+    s2 = float(np.sum(np.minimum(r * r, 16.0))) / max(r.size - len(free), 1)
+    sub = np.asarray(jac)[:, free]
+    cov = np.zeros((jac.shape[1], jac.shape[1]))
+    with np.errstate(all="ignore"):
+        cov[np.ix_(free, free)] = np.linalg.pinv(sub.T @ sub) * s2 * FORM_INFLATION ** 2
+    return cov
 
 
 def _scale(r):

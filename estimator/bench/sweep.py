@@ -26,6 +26,10 @@ from estimator.bench.power_fit import (MAD_ROWS, check_static_factor, fit_power_
 TOP_END_MARGIN = 0.01
 # a sweep whose highest command is at least this reaches full command [-]
 FULL_COMMAND_SWEPT = 0.98
+# a spin-up command whose standard error exceeds this (a 95 % interval wider than +-0.05) is
+# called poorly determined: the sweep cannot tell where the ESC's duty starts from the shape
+# of its duty curve (the duty exponent) [-]
+START_POORLY_DETERMINED = 0.025
 
 
 def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, altitude_m=None,
@@ -149,6 +153,25 @@ def _add_lag(curve):
     curve["standard_errors"]["command_min"] = float(np.sqrt(m[2, 2]))
 
 
+def _add_form_gap(curve, motor_thrust_N):
+    """Add the curve form's own error at full command to the variance of T_max: the gap
+    between the quadratic's T_max and the fitted motor model's thrust at the same command
+    and voltage (motor_thrust_N [N]), in quadrature.
+
+    The level residuals measure the form's misfit on average, but the standard error made
+    from them shrinks as levels are added (more supplies, both legs, more steps) while the
+    quadratic's error at its end point does not; the motor model, which follows real motors
+    and extrapolates by physics, shows that error directly. The difference between two
+    fitted models at the point of interest as the model-form term is common practice
+    (model discrepancy); on the randomised truths (benchmarks/fit_study.py) it raises the
+    coverage of T_max +- 1.96 standard errors from 86 % to about 98 %.
+    """
+    m = np.array(curve["covariance"]["matrix"])
+    m[0, 0] += (curve["thrust_max_N"] - motor_thrust_N) ** 2
+    curve["covariance"]["matrix"] = m.tolist()
+    curve["standard_errors"]["thrust_max_N"] = float(np.sqrt(m[0, 0]))
+
+
 def swept_both_ways(command):
     """True when the rows step the command up and down alike (at least a quarter as many
     steps one way as the other, and three or more each way): then the rotor's lag behind the
@@ -157,6 +180,30 @@ def swept_both_ways(command):
     steps = np.diff(command[:: max(1, command.size // 50000)])  # every k-th row keeps the order
     up, down = int(np.count_nonzero(steps > 0.0)), int(np.count_nonzero(steps < 0.0))
     return bool(min(up, down) >= 3 and min(up, down) >= 0.25 * max(up, down))
+
+
+def start_standard_error(motor, command, both_ways):
+    """Standard error of the fitted spin-up command u0 [-], three parts in quadrature:
+    - the motor fit's covariance (estimator.bench.motor_fit._covariance): noise and the
+      residual misfit, through u0's trade-off with the duty exponent and the rest;
+    - the sweep's command resolution: the rotor starts somewhere between two command steps,
+      and where between them rests on the model's shape near idle, which real rotors do not
+      follow exactly (thrust and torque coefficients drift at low speed): a rectangular
+      distribution over one step h, standard uncertainty h / sqrt(12) (GUM, JCGM 100:2008
+      sec. 4.3.7, from memory); h is the median step between the distinct command levels;
+    - for a one-way sweep, the rotor's lag behind the command (core.constants).
+    On the randomised truths (benchmarks/fit_study.py) u0 +- 1.96 of these holds the truth's
+    start in about 99 % of cases; the covariance alone held it in 80 %.
+    command: the level commands [-]; both_ways: the sweep stepped up and down."""
+    from estimator.core.constants import ONE_WAY_LAG_COMMAND_SE
+
+    var = float(motor["covariance"][4, 4])
+    steps = np.unique(np.round(np.asarray(command, dtype=float), 4))
+    h = float(np.median(np.diff(steps))) if steps.size > 1 else 1.0
+    lag = 0.0 if both_ways else ONE_WAY_LAG_COMMAND_SE
+    if not math.isfinite(var):
+        return 1.0
+    return math.sqrt(max(var, 0.0) + h * h / 12.0 + lag * lag)
 
 
 def motor_exponents(theta, v_ref):
@@ -208,6 +255,7 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
                           projection=(grid, rotor_arrays(theta, grid, v_ref)[0]))
     if not swept_both_ways(u):
         _add_lag(curve)
+    _add_form_gap(curve, float(rotor_arrays(theta, np.array([theta[5]]), v_ref)[0][0]))
     curve.update({"reference_voltage_V": v_ref, "reference_density_kg_m3": rho,
                   "voltage_min_V": float(np.min(v)), "voltage_max_V": float(np.max(v)),
                   "density_exponent": m_motor, "command_swept_max": u_hi,
@@ -235,13 +283,16 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     motor_block.update({"reference_density_kg_m3": rho, "rms_thrust_residual_N": motor["rms_thrust_N"],
                         "thrust_residual_scale_N": motor["scale_thrust_N"],
                         "current_residual_scale_A": motor["scale_current_A"],
-                        "top_end_found": bool(top_found), "sweep_both_ways": swept_both_ways(u)})
+                        "top_end_found": bool(top_found), "sweep_both_ways": swept_both_ways(u),
+                        "command_start_standard_error": start_standard_error(motor, lv["command"],
+                                                                             swept_both_ways(u))})
     fit = {
         "curve": curve, "power": power, "static": sf, "rejected": rejected, "motor": motor_block,
         "rows_used": rows_used, "rows_rejected": int(data["rows_total"] - rows_used),
         "warnings": warnings + curve["warnings"] + _range_warnings(curve, theta, v_ref, top_found,
                                                                           data.get("command_unit", "-"))
-        + _reference_warning(curve, lv, data.get("command_unit", "-"), data.get("thrust_unit", "N")),
+        + _reference_warning(curve, lv, data.get("command_unit", "-"), data.get("thrust_unit", "N"))
+        + _start_warning(motor_block, data.get("command_unit", "-")),
         "levels": {"command": lv["command"], "thrust_residual_N": r_levels, "thrust_N": lv["thrust_N"]},
     }
     hover = None
@@ -350,13 +401,30 @@ def _reference_warning(curve, lv, command_unit="-", thrust_unit="N"):
     top = lv["command"] >= curve["command_max"] - 0.005
     if not np.any(top):
         top = lv["command"] >= float(np.max(lv["command"])) - 0.005
-    v_top = float(np.median(lv["voltage_V"][top]))
+    v_all = lv["voltage_V"][top]
+    v_top = float(np.median(v_all))
     t_there = float(thrust_model_N(curve, np.array([curve["command_max"]]), np.array([v_top]))[0])
+    ran = "%.2f V" % v_top
+    if float(np.ptp(v_all)) > 0.01 * v_top:  # several supplies
+        ran = "%.2f..%.2f V (median %.2f V)" % (float(np.min(v_all)), float(np.max(v_all)), v_top)
     return ["full-command thrust %s is the curve at the reference voltage %.2f V (the sweep's median bus "
-            "voltage), above the highest thrust measured (%s): the full-command rows ran at %.2f V, where "
+            "voltage), above the highest thrust measured (%s): the full-command rows ran at %s, where "
             "the curve gives %s; on a pack, full command gives the thrust at the pack's own sagged voltage"
             % (thrust_text(t_max, thrust_unit), curve["reference_voltage_V"], thrust_text(t_seen, thrust_unit),
-               v_top, thrust_text(t_there, thrust_unit))]
+               ran, thrust_text(t_there, thrust_unit))]
+
+
+def _start_warning(motor_block, unit="-"):
+    """A warning when the spin-up command is poorly determined (standard error beyond
+    START_POORLY_DETERMINED); [] otherwise."""
+    se = motor_block["command_start_standard_error"]
+    if not se > START_POORLY_DETERMINED:
+        return []
+    return ["the rotor's start command %s is poorly determined by this sweep: it trades off against the "
+            "ESC's duty curve (duty exponent %.2f fitted); log more command steps just above idle to pin "
+            "it. The hover command and current come from the fitted duty curve as a whole and do not "
+            "rest on it" % (command_with_error(motor_block["command_start"], se, unit),
+                            motor_block["duty_exponent"])]
 
 
 def summary(params):

@@ -32,6 +32,17 @@ def _pm(value, se, why_none):
     return "%.3f (%s)" % (value, why_none)
 
 
+def _start_text(mm, unit):
+    """The spin-up command with its standard error, and a word when the sweep cannot tell it."""
+    from estimator.bench.sweep import START_POORLY_DETERMINED, command_with_error
+
+    se = mm.get("command_start_standard_error")
+    text = command_with_error(mm["command_start"], se or 0.0, unit) + " (motor model: where the ESC's duty starts)"
+    if se is not None and se > START_POORLY_DETERMINED:
+        text += "; poorly determined by this sweep"
+    return text
+
+
 def _human_fit(params, out_file, warnings=None):
     from estimator.bench.sweep import command_text, command_with_error, plain_number, thrust_text
 
@@ -57,9 +68,8 @@ def _human_fit(params, out_file, warnings=None):
                                           "intercept's carries it"),
         "  curve intercept      %s (command_min: the quadratic's zero, not a duty offset)" % (
             command_with_error(c["command_min"], se["command_min"], cu)),
-        "  rotor starts at      %s (motor model)%s" % (
-            cmd(params["motor_model"]["command_start"]),
-            "; full command at %s" % cmd(c["command_max"]) if c["command_max"] < 1.0 else ""),
+        "  rotor starts at      %s%s" % (_start_text(params["motor_model"], cu),
+                                        "; full command at %s" % cmd(c["command_max"]) if c["command_max"] < 1.0 else ""),
         "  voltage exponent     %s" % _pm(c["voltage_exponent"], se["voltage_exponent"],
                                           VOLTAGE_EXPONENT_WHY.get(c.get("voltage_exponent_source"), "not fitted"))
         + (" (fitted)" if se["voltage_exponent"] > 0.0 else ""),
