@@ -59,6 +59,10 @@ def test_a_coarse_one_way_sweep_says_its_spin_up_is_poorly_determined(tmp_path):
     line = [x for x in text.splitlines() if "rotor starts at" in x][0]
     assert "+-" in line and "poorly determined" in line, line
     assert any(x.startswith("! the rotor's start command") for x in text.splitlines()), text
+    code, js, err = run(["fit", csv, "--out", tmp_path / "q.json", "--json"])
+    out = json.loads(js)
+    assert out["command_start_standard_error"] == pytest.approx(se) and out["command_start"] == mm["command_start"]
+    assert any("start command" in w and "poorly determined" in w for w in out["warnings"])
 
 
 @pytest.mark.parametrize("seed", [41, 42])

@@ -437,6 +437,8 @@ def summary(params):
                 "rms_residual_N": q["rms_residual_N"],
                 "power_residual_rel_std": params["power_model"]["residual_rel_std"],
                 "standard_errors": params["standard_errors"],
+                "command_start": params["motor_model"]["command_start"],
+                "command_start_standard_error": params["motor_model"].get("command_start_standard_error"),
                 "warnings": params.get("warnings", [])})
     if "hover" in params:
         out["hover_command"] = params["hover"]["hover_command"]
