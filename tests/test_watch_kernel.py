@@ -338,3 +338,29 @@ def test_watch_refuses_a_config_of_another_format():
         Watch(t[:SCALAR_AT] + (1,) + t[SCALAR_AT + 1:])   # format 1 (the earlier bytes-table layout)
     with pytest.raises(ValueError):
         Watch(as_tuple(demo_config())[:-1])
+
+
+def test_a_sustained_descent_stays_a_manoeuvre_for_its_whole_length():
+    # Momentum theory in steady axial flight at speed v: T_static - W = rho A v_h v (Leishman,
+    # Principles of Helicopter Aerodynamics, ch. 2, from memory), so the thrust stays below the
+    # hover thrust for as long as the descent lasts, and so does the power of axial flight. The
+    # thrust deviation must be taken from the hover thrust, not from a mean of the last few blocks
+    # that follows the descent: after 6 s at about 10 % less command (0.1 s blocks) the block is still
+    # outside the steady band (a 16-block mean had forgotten the descent by then).
+    cfg = make_config(demo_fit_params(), options={"block_s": 0.1, "lag_ms": 0.0, "takeoff_s": 0.0,
+                                                  "learn_s": 2.0})[0]
+    mv = 15000
+
+    def matching_mA(u):   # the current at which the measured power is the expected one
+        w = Watch(as_tuple(cfg))
+        w.update(100, u, mv, 20000)
+        return int(round((w.st[2] >> 2) * 1e5 / mv / 10.0)) * 10 + 5
+
+    w = Watch(as_tuple(cfg))
+    for u, blocks in ((520, 40), (470, 60)):
+        ma = matching_mA(u)
+        for i in range(blocks):
+            flags = w.update(100, u, mv, ma + (i % 2) * 10)
+        if u == 520:
+            assert w.sb[0] == 0 and w.sb[25] <= 0, "learning done, hover steady"
+    assert w.sb[25] > 0 and flags == 0, (w.sb[25], flags)
