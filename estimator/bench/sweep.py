@@ -17,6 +17,7 @@ from estimator.errors import InputError
 from estimator.core.momentum import disk_area_m2
 from estimator.bench.curve_fit import check_rising, fit_quadratic, thrust_model_N
 from estimator.bench.levels import command_levels
+from estimator.bench.load_cell import check_thrust_sign, tare_warning
 from estimator.bench.motor_fit import fit_motor, params_dict, rotor_arrays
 from estimator.bench.power_fit import (MAD_ROWS, check_static_factor, fit_power_model, fit_static_factor,
                                        power_model_W, static_factor_at, watch_residual_rel_std)
@@ -226,9 +227,13 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     area = disk_area_m2(data["diameter_m"])
     u, v, t, p = data["command"], data["voltage_V"], data["thrust_N"], data["power_W"]
     warnings = list(data["warnings"])
+    check_thrust_sign(source, t, p, data.get("thrust_unit", "N"))
     check_static_factor(source, t, p, rho, area, data.get("thrust_unit", "N"),
                         data.get("current_unit", "A"), warnings)
     lv = command_levels(u, v, t, p)
+    tare = tare_warning(lv, data.get("thrust_unit", "N"))
+    if tare:
+        warnings.append(tare)
     lv["current_A"] = lv["power_W"] / lv["voltage_V"]
     check_rising(lv, source)
     u_hi = float(np.max(lv["command"]))
