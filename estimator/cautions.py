@@ -23,6 +23,12 @@ RULES = ("Local aviation rules and the makers' limits for the airframe, motors, 
 SAG_BELOW_CUTOFF = ("expect a low-voltage cut-out or a brownout on a punch-out: keep full command short, "
                     "or use a pack with less resistance or more capacity")
 
+# a pack below about 10 C (sheet warning; the pack temperature [C] and the share of its rated
+# capacity it still gives [%] are filled in)
+COLD_PACK = ("cold pack (%.0f C): warm it to room temperature before take-off and keep it warm until "
+             "then; a cold lithium pack gives less capacity (about %.0f %% here) and sags more under "
+             "load, so land early and watch the voltage")
+
 # one short line for plot titles and one-line outputs
 SHORT = "estimates: confirm with a tethered or low hover test; props off while configuring"
 

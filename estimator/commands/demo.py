@@ -93,7 +93,7 @@ def _run(out_dir, work, seed, emit):
     from estimator.preflight.payload import format_payload_table, payload_table
     from estimator.vehicle import check_vehicle
 
-    varies = ["propeller.size=10x4.5in,11x5in,12x5in", "motor.kv_rpm_per_V=700,880"]
+    varies = ["propeller.size=10x4.5in,11x5in,12x5in", "motor.kv_rpm_per_V=680,880"]
     choices = compare_rows(vehicle, show("vehicle.json"), [parse_vary(v) for v in varies])
     payload = payload_table(check_vehicle(vehicle, show("vehicle.json")), [0.25 * i for i in range(5)], 10.0)
     text += [_rule("1b. choosing: candidate propellers and motors, and the payload"),

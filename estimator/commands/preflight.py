@@ -171,8 +171,9 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
     report = hover_report(vehicle, params)
     payload, unit = None, "kg"
     if payload_text is not None:
-        from estimator.preflight.payload import parse_payloads, payload_table
+        from estimator.preflight.payload import check_bare_payload, parse_payloads, payload_table
         payloads, unit = parse_payloads(payload_text)
+        check_bare_payload(payload_text, payloads, vehicle["mass_kg"])
         payload = payload_table(vehicle, payloads, None if job_time is None else job_time / 60.0, params)
         report["payload"] = payload
         report["payload_unit"] = unit

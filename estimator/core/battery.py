@@ -90,3 +90,30 @@ def cold_resistance_factor(temperature_C):
     if temperature_C >= COLD_REFERENCE_C:
         return 1.0
     return math.exp(COLD_RESISTANCE_PER_K * (COLD_REFERENCE_C - temperature_C))
+
+
+# Share of the rated (room-temperature) capacity a lithium pack delivers at a cell temperature,
+# at moderate discharge rates: (temperature [C], share [-]) points, straight lines between them,
+# flat beyond the ends. From memory of makers' discharge-at-temperature curves for
+# lithium-polymer and lithium-ion cells (about 95 % at 10 C, 85-90 % at 0 C, 75-80 % at -10 C,
+# 60-70 % at -20 C against 25 C); cells differ, and a pack warmed by its own current recovers
+# part of it.
+COLD_CAPACITY_POINTS = ((-20.0, 0.65), (-10.0, 0.78), (0.0, 0.88), (10.0, 0.95), (20.0, 1.0))
+
+
+def cold_capacity_factor(temperature_C):
+    """Share of the rated capacity a lithium pack delivers at a cell temperature, <= 1.
+
+    temperature_C: pack temperature T [C]. Returns C(T) / C_rated [-]: 1 at 20 C and above,
+    linear between the COLD_CAPACITY_POINTS below, 0.65 at -20 C and colder (a warm pack is
+    not credited with more than its rating). Source: from memory (COLD_CAPACITY_POINTS).
+    """
+    points = COLD_CAPACITY_POINTS
+    if temperature_C >= points[-1][0]:
+        return points[-1][1]
+    if temperature_C <= points[0][0]:
+        return points[0][1]
+    for (t0, f0), (t1, f1) in zip(points, points[1:]):
+        if temperature_C <= t1:
+            return f0 + (f1 - f0) * (temperature_C - t0) / (t1 - t0)
+    return points[-1][1]

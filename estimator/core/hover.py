@@ -112,7 +112,10 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
     and hover_power_W [W] (whole vehicle, nominal pack) or None; flight_time_min [min] or
     None (by discharge to the cutoff, core.discharge); discharge (its result dict);
     flight_time_usable_share_min [min] or None (60 C_use / I_hover at nominal pack);
-    usable_Ah [Ah]; coaxial_induced_power_factor [-] (1 for flat, power basis).
+    usable_Ah [Ah]; coaxial_induced_power_factor [-] (1 for flat, power basis);
+    reachable_command [-] and reachable_thrust_to_weight [-]: the highest command that keeps
+    the nominal pack at its loaded cutoff and the thrust-to-weight there (reachable_at_cutoff;
+    1 and thrust_to_weight when full command keeps it).
     Source: design notes sec. 3; core.discharge.
     """
     prop = rotor_propeller(propeller, layout)
@@ -133,8 +136,14 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
                                     battery.get("usable_fraction", 0.8), battery["full_cell_V"],
                                     battery["nominal_cell_V"], battery["empty_cell_V"],
                                     battery.get("cutoff_cell_V", battery["empty_cell_V"] - 0.2), load)
+    cutoff_cell_V = battery.get("cutoff_cell_V", battery["empty_cell_V"] - 0.2)
+    reachable = reachable_at_cutoff(battery["cells"] * cutoff_cell_V, nominal["open_circuit_V"],
+                                    battery["resistance_ohm"], rotor_count, density_kg_m3, motor, prop,
+                                    esc_efficiency, nominal["weight_N"])
     return {
         "states": states,
+        "reachable_command": reachable["command"],
+        "reachable_thrust_to_weight": reachable["thrust_to_weight"],
         "hover_command": nominal["command"],
         "hover_command_full": states["full"]["command"],
         "hover_command_empty": states["empty"]["command"],
@@ -148,3 +157,39 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
         "usable_Ah": usable,
         "coaxial_induced_power_factor": COAXIAL_INDUCED_POWER_FACTOR if layout == "coaxial" else 1.0,
     }
+
+
+REACHABLE_BISECTION_STEPS = 30  # halvings of the duty range for the cutoff-limited duty [-]
+
+
+def reachable_at_cutoff(cutoff_bus_V, open_circuit_V, pack_resistance_ohm, rotor_count, density_kg_m3,
+                        motor, propeller, esc_efficiency, weight_N):
+    """The highest command whose loaded bus voltage stays at the cutoff, and its thrust-to-weight.
+
+    The bus voltage falls as the duty rises (more current through the pack resistance), so the
+    duty where V_bus(d) = V_cut is found by bisection on d in [0, 1] (REACHABLE_BISECTION_STEPS
+    halvings, bounded). cutoff_bus_V: loaded cutoff of the whole pack [V]; open_circuit_V:
+    V_oc [V]; pack_resistance_ohm: R_pack [ohm]; rotor_count: N [-]; density_kg_m3: rho
+    [kg/m^3]; motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
+    propeller: dict diameter_m [m], ct [-], cp [-] (already adjusted for the layout);
+    esc_efficiency: eta_esc [-]; weight_N: W [N].
+    Returns {"command": d [-] (1 when full command keeps the cutoff), "thrust_to_weight": thrust
+    at d over W [-]}; command 0 and thrust_to_weight 0 when even an idle pack is below the cutoff.
+    Source: propulsion.shared_operating_point (shared sag), bisection.
+    """
+    def point(duty):
+        return shared_operating_point(duty, open_circuit_V, pack_resistance_ohm, rotor_count,
+                                      density_kg_m3, motor, propeller, esc_efficiency)
+    full = point(1.0)
+    if full["bus_V"] >= cutoff_bus_V:
+        return {"command": 1.0, "thrust_to_weight": full["total_thrust_N"] / weight_N}
+    if open_circuit_V < cutoff_bus_V:
+        return {"command": 0.0, "thrust_to_weight": 0.0}
+    lo, hi = 0.0, 1.0
+    for _ in range(REACHABLE_BISECTION_STEPS):
+        mid = 0.5 * (lo + hi)
+        if point(mid)["bus_V"] >= cutoff_bus_V:
+            lo = mid
+        else:
+            hi = mid
+    return {"command": lo, "thrust_to_weight": point(lo)["total_thrust_N"] / weight_N}

@@ -115,6 +115,8 @@ def compare_rows(document, source, variations, progress=None):
     [(path tuple, [values])] from parse_vary; progress: None or a function (done, total)
     called after each row. Returns a dict: rows (list of row dicts: rank, values {key: value
     as given}, hover_command, hover_command_empty, thrust_to_weight, hover_motor_current_A,
+    thrust_to_weight_reachable (False when full command sags the pack below its cutoff),
+    reachable_thrust_to_weight [-] (at the cutoff-limited command),
     hover_esc_input_current_A, hover_pack_current_A, full_pack_current_A [A],
     flight_time_min, flight_ended_by, margins {name: bool|None}, keeps_margins, broken
     [names]), margins (MARGINS), best (the first row that keeps every margin, or None).
@@ -139,6 +141,8 @@ def compare_rows(document, source, variations, progress=None):
             "hover_command": report["hover_command"],
             "hover_command_empty": report["hover_command_empty"],
             "thrust_to_weight": report["thrust_to_weight"],
+            "thrust_to_weight_reachable": report.get("thrust_to_weight_reachable"),
+            "reachable_thrust_to_weight": report.get("reachable_thrust_to_weight"),
             "hover_motor_current_A": report.get("hover_motor_current_A"),
             "hover_esc_input_current_A": report.get("hover_esc_input_current_A"),
             "hover_pack_current_A": report["hover_current_A"],
@@ -161,6 +165,13 @@ def compare_rows(document, source, variations, progress=None):
             "varied": [".".join(p) for p, _ in variations], "combinations": len(rows)}
 
 
+def _tw_cell(row):
+    """The T/W a row can reach: at full command, or (marked *) at the pack's loaded cutoff."""
+    if row.get("thrust_to_weight_reachable") is False and row.get("reachable_thrust_to_weight") is not None:
+        return "%.2f*" % row["reachable_thrust_to_weight"]
+    return "%.2f" % row["thrust_to_weight"]
+
+
 def format_table(result, name):
     """The text table of compare_rows: ranked rows (#: rank; what ended the flight and the
     margins each breaks on a line under the row), the best choice, then one line per margin;
@@ -181,8 +192,8 @@ def format_table(result, name):
         motor = "%.1f" % r["hover_motor_current_A"] if r["hover_motor_current_A"] is not None else "-"
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
         time = "%.1f min" % r["flight_time_min"] if r["flight_time_min"] is not None else "no hover"
-        lines.append("%*d  %s  %-7s  %-4.2f  %-7s  %-6s  %s" % (
-            rank_w, r["rank"], cells, cmd, r["thrust_to_weight"], motor, pack, time))
+        lines.append("%*d  %s  %-7s  %-5s %-7s  %-6s  %s" % (
+            rank_w, r["rank"], cells, cmd, _tw_cell(r), motor, pack, time))
         ended = ("ended by %s; " % ENDED_BY_WORDS.get(r["flight_ended_by"], r["flight_ended_by"])
                  if r.get("flight_ended_by") else "")
         marks = "keeps every margin" if r["keeps_margins"] else "breaks " + ", ".join(r["broken"])
@@ -198,6 +209,9 @@ def format_table(result, name):
     lines += ["  %s  %s" % (k.ljust(width), v) for k, v in result["margins"].items()]
     lines.append("motor A  each motor's current at hover (ESC output)")
     lines.append("pack A   all motors from the pack")
+    if any(r.get("thrust_to_weight_reachable") is False for r in rows):
+        lines.append("T/W*     full command sags the pack below its loaded cutoff: the T/W shown is "
+                     "the one reachable at the cutoff")
     if any(r.get("propeller_source") == "estimated" for r in rows):
         from estimator.preflight.propeller_estimate import ESTIMATE_NOTE
         lines.append("- " + ESTIMATE_NOTE)

@@ -9,24 +9,29 @@ from estimator.preflight.warnings import HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_M
 # margin -> what it means, for tables and the JSON
 MARGINS = {
     "hovers": "hovers on a nominal pack",
-    "thrust_to_weight": "thrust-to-weight at least %g (common practice)" % THRUST_TO_WEIGHT_MIN,
+    "thrust_to_weight": ("thrust-to-weight at least %g (common practice), as far as the pack reaches "
+                         "before its loaded cutoff" % THRUST_TO_WEIGHT_MIN),
     "hover_command": "hover command at most %g of full, down to an empty pack (common practice)"
                      % HOVER_COMMAND_LIMIT,
     "motor_current": "full command within the motor's current limit (when given)",
     "pack_current": "full command within the pack's C-rating (when given)",
+    "full_command_sag": "full command keeps the nominal pack above its loaded cutoff",
     "landing_reserve": "the flight ends on the landing reserve, not on the cutoff or the loss of hover",
 }
 
-# margins judged at full command: the full-command current does not depend on the mass carried
+# margins judged at full command: the full-command current (and the pack sag it causes) does not
+# depend on the mass carried
 # (only through an estimated propeller's Reynolds number at the hover speed, a fraction of a percent),
 # so no payload (and no payload less) mends them
-PAYLOAD_BLIND = ("motor_current", "pack_current")
+PAYLOAD_BLIND = ("motor_current", "pack_current", "full_command_sag")
 
 
 def margins(report):
     """{margin name: True | False | None} for a report dict of hover_report (see MARGINS)."""
     hovering = bool(report.get("can_hover"))
     tw = report.get("thrust_to_weight")
+    if report.get("thrust_to_weight_reachable") is False and report.get("reachable_thrust_to_weight") is not None:
+        tw = report["reachable_thrust_to_weight"]  # what the pack reaches before its cutoff
     worst_cmd = report.get("hover_command_empty")
     if worst_cmd is None and hovering:
         worst_cmd = float("inf")  # cannot hover near empty: the command margin is broken
@@ -37,6 +42,7 @@ def margins(report):
         "motor_current": None,
         "pack_current": None,
         "landing_reserve": hovering and report.get("flight_ended_by") == "reserve",
+        "full_command_sag": report.get("thrust_to_weight_reachable"),
     }
     limit, full_i = report.get("motor_current_limit_A"), report.get("full_motor_current_A")
     if limit is not None and full_i is not None:

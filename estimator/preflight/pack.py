@@ -3,19 +3,25 @@
 Both the datasheet sheet (report.py) and every fitted-route hover value (measured_rotor.py: the
 sheet of ``hover --params`` and the hover block ``fit --vehicle`` stores for the export) take the
 vehicle's battery through pack_in_the_air, so a cold pack's resistance is applied once, the same
-way, everywhere.
+way, everywhere. A cold pack also delivers less of its rated capacity
+(core.battery.cold_capacity_factor): that share scales the usable fraction, so the endurance
+shrinks while the C-rating current limit stays on the rating.
 
 The pack temperature is battery.temperature_C, else the site's temperature_C, else the temperature
 of the air the estimate already assumed (the standard atmosphere at the site's altitude: 15 C at
 sea level), so air and pack are never taken at two different assumed temperatures.
 """
 
-from estimator.core.battery import cold_resistance_factor
+from estimator.core.battery import cold_capacity_factor, cold_resistance_factor
 
 KELVIN_OFFSET = 273.15  # 0 C in K (definition of the Celsius scale)
 # the loaded cutoff when the file gives none: 0.2 V below the empty open-circuit cell voltage
 # (common practice for lithium packs under load)
 CUTOFF_BELOW_EMPTY_V = 0.2
+# below this pack temperature the sheet cautions about a cold pack [C]: lithium packs lose
+# capacity and sag more below about 10 C (common practice, from memory)
+COLD_PACK_BELOW_C = 10.0
+DEFAULT_USABLE_FRACTION = 0.8  # as estimator.vehicle (common practice)
 
 
 def pack_in_the_air(vehicle, air):
@@ -23,8 +29,9 @@ def pack_in_the_air(vehicle, air):
 
     vehicle: checked vehicle dict; air: the site air the estimate uses (core.atmosphere.site_air,
     temperature_K [K]). Returns (battery dict [resistance_ohm times core.battery.
-    cold_resistance_factor, cutoff_cell_V filled], pack temperature [C], how it was chosen:
-    "battery", "site" or "air" [the assumed air's temperature]).
+    cold_resistance_factor, usable_fraction times core.battery.cold_capacity_factor, cutoff_cell_V
+    filled], pack temperature [C], how it was chosen: "battery", "site" or "air" [the assumed
+    air's temperature]).
     """
     battery = dict(vehicle["battery"])
     site = vehicle.get("site") or {}
@@ -35,6 +42,8 @@ def pack_in_the_air(vehicle, air):
     else:
         temperature, basis = air["temperature_K"] - KELVIN_OFFSET, "air"
     battery["resistance_ohm"] = battery["resistance_ohm"] * cold_resistance_factor(temperature)
+    battery["usable_fraction"] = (battery.get("usable_fraction", DEFAULT_USABLE_FRACTION)
+                                  * cold_capacity_factor(temperature))
     battery.setdefault("cutoff_cell_V", battery["empty_cell_V"] - CUTOFF_BELOW_EMPTY_V)
     return battery, temperature, basis
 
@@ -49,6 +58,7 @@ def pack_keys(vehicle, battery, temperature, basis):
     return {"pack_resistance_ohm": battery["resistance_ohm"], "pack_temperature_C": temperature,
             "pack_temperature_basis": basis,
             "pack_cold_factor": battery["resistance_ohm"] / raw if raw > 0.0 else 1.0,
+            "pack_capacity_factor": cold_capacity_factor(temperature),
             "cutoff_cell_V": battery["cutoff_cell_V"], "cells": battery["cells"]}
 
 
@@ -63,4 +73,17 @@ def pack_temperature_text(report):
     if cold >= 1.005:  # shown as x1.01 or more
         text += ("; resistance x%.2f, cold factor from memory: a colder pack sags more, which can cost "
                  "more thrust-to-weight than the denser air gives" % cold)
+    capacity = report.get("pack_capacity_factor") or 1.0
+    if capacity <= 0.995:  # shown as x0.99 or less
+        text += "; capacity x%.2f, from memory: a cold pack gives less of its charge" % capacity
     return text + ")"
+
+
+def cold_pack_warning(report):
+    """The sheet's cold-pack caution (estimator.cautions.COLD_PACK) or None above COLD_PACK_BELOW_C."""
+    from estimator.cautions import COLD_PACK
+
+    temperature = report.get("pack_temperature_C")
+    if temperature is None or temperature >= COLD_PACK_BELOW_C:
+        return None
+    return COLD_PACK % (temperature, 100.0 * (report.get("pack_capacity_factor") or 1.0))

@@ -24,6 +24,10 @@ RANGE_POINTS = 9  # payloads in a range A..B, ends included [-]
 BISECTION_STEPS = 30  # halvings between a payload that keeps and one that does not [-]
 _RANGE = re.compile(r"^\s*([^.][^,]*?)\s*\.\.\s*([^,]+?)\s*$")
 _UNIT = re.compile(r"[A-Za-z]+\s*$")
+# A payload above this multiple of the vehicle's own all-up mass is beyond any multirotor:
+# heavy-lift and agricultural machines carry about their own mass at most (common practice,
+# from memory); a bare number that large was most likely meant in grams.
+PAYLOAD_MASS_RATIO_MAX = 3.0
 
 
 def parse_payloads(text):
@@ -191,3 +195,25 @@ def format_payload_table(result, unit="kg"):
     for line in verdict_lines(result, unit):
         lines += wrap_line("   " + line, indent=5)
     return "\n".join(lines) + "\n"
+
+
+def check_bare_payload(text, payloads_kg, vehicle_mass_kg):
+    """Refuse a --payload written without a unit that is implausible in kilograms.
+
+    text: the --payload text; payloads_kg: parse_payloads's values [kg]; vehicle_mass_kg: the
+    vehicle's all-up mass [kg]. A bare number is read in kilograms; when the largest payload is
+    above PAYLOAD_MASS_RATIO_MAX times the vehicle's mass the reading is refused, naming grams
+    when they make it plausible (1 g = 1e-3 kg, NIST SP 811). Raises InputError.
+    """
+    text = str(text)
+    if _UNIT.search(text.split("..")[-1]) or any(_UNIT.search(p) for p in text.split(",")):
+        return
+    top = max(payloads_kg) if payloads_kg else 0.0
+    if top <= PAYLOAD_MASS_RATIO_MAX * vehicle_mass_kg:
+        return
+    hint = ("did you mean grams (%sg)?" % ("g,".join(p.strip() for p in text.split(",")) if ".." not in text
+                                          else text.strip())
+            if top * 1e-3 <= PAYLOAD_MASS_RATIO_MAX * vehicle_mass_kg else "write the unit")
+    raise InputError("--payload %s: a bare number is read in kilograms: %.4g kg is more than %g times the "
+                     "vehicle's %.3g kg, which no multirotor carries; %s"
+                     % (shorten(text), top, PAYLOAD_MASS_RATIO_MAX, vehicle_mass_kg, hint))

@@ -53,7 +53,11 @@ def plot_compare(path, result, name):
 
 
 def plot_payload(path, result, name, unit="kg"):
-    """Endurance and hover command against payload, the largest payload that keeps the margins marked."""
+    """Endurance and hover command against payload, the largest payload that keeps the margins marked.
+
+    The hover command is drawn near an empty pack (the command the margin judges) and on a nominal
+    pack, with the command limit; every line is in the legend.
+    """
     plt = _pyplot()
     scale = parse_quantity("1" + unit, "mass")
     rows = result["rows"]
@@ -73,14 +77,22 @@ def plot_payload(path, result, name, unit="kg"):
     ax.set_xlabel("payload [%s]" % unit)
     ax.set_ylabel("hover endurance [min]")
     ax2 = ax.twinx()
-    cx = [r["payload_kg"] / scale for r in rows if r["hover_command"] is not None]
-    cy = [r["hover_command"] for r in rows if r["hover_command"] is not None]
-    ax2.plot(cx, cy, "-", color="tab:orange", lw=1, alpha=0.7)
-    ax2.axhline(HOVER_COMMAND_LIMIT, color="tab:orange", ls="--", lw=0.8, alpha=0.6)
-    ax2.set_ylabel("hover command, nominal pack [-] (orange)")
+    # the command margin is judged near an empty pack (margins.hover_command): draw that command
+    # against the limit, the nominal-pack command thinner beside it
+    for key, style, label in (("hover_command_empty", "-", "hover command near empty pack (the margin's)"),
+                              ("hover_command", ":", "hover command, nominal pack")):
+        cx = [r["payload_kg"] / scale for r in rows if r[key] is not None]
+        cy = [r[key] for r in rows if r[key] is not None]
+        if cx:
+            ax2.plot(cx, cy, style, color="tab:orange", lw=1.5 if style == "-" else 1, alpha=0.8, label=label)
+    ax2.axhline(HOVER_COMMAND_LIMIT, color="tab:orange", ls="--", lw=0.8, alpha=0.6,
+                label="command limit %.1f (common practice)" % HOVER_COMMAND_LIMIT)
+    ax2.set_ylabel("hover command [-] (orange)")
     ax.set_title("%s: payload (green point = keeps every margin)" % name, fontsize=10)
     ax.grid(True, alpha=0.3)
-    ax.legend(fontsize=8, loc="upper right")
+    handles, labels = ax.get_legend_handles_labels()
+    more, more_labels = ax2.get_legend_handles_labels()
+    ax.legend(handles + more, labels + more_labels, fontsize=8, loc="upper right")
     fig.text(0.01, 0.01, SHORT, fontsize=7, color="grey")
     fig.tight_layout()
     save_figure(fig, path)

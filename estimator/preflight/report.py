@@ -15,7 +15,7 @@ from estimator.textwidth import fit_width
 from estimator.preflight.pack import pack_in_the_air, pack_keys, pack_temperature_text
 from estimator.preflight.propeller_estimate import (LOW_REYNOLDS_FIGURE_OF_MERIT, estimated_propeller, low_reynolds_propeller,
                                                     low_reynolds_warning)
-from estimator.preflight.unit_checks import params_propeller_warning, suspicious_values
+from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
 from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, beside, full_command_sag, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num)
 
@@ -77,6 +77,8 @@ def _report(vehicle, params=None):
         "hover_command_empty": est["hover_command_empty"],
         "hover_thrust_fraction": est["hover_thrust_fraction"],
         "thrust_to_weight": est["thrust_to_weight"],
+        "reachable_command": est["reachable_command"],
+        "reachable_thrust_to_weight": est["reachable_thrust_to_weight"],
         "hover_current_A": est["hover_current_A"],
         "hover_power_W": est["hover_power_W"],
         "flight_time_min": est["flight_time_min"],
@@ -131,6 +133,7 @@ def _report(vehicle, params=None):
     report.update(full_command_sag(report))
     low_re = _low_reynolds_check(vehicle, propeller, estimate, est, count, layout, rho, battery, esc_eff)
     report["low_reynolds_check"] = low_re
+    report["suspect_keys"] = slip_keys(checks)
     report["warnings"] = (checks + assumed_warnings(vehicle) + ([estimate["note"]] if estimate else [])
                           + ([low_reynolds_warning(low_re)] if low_re and est["hover_command"] is not None
                              else []) + margin_warnings(report))
@@ -163,6 +166,7 @@ def _fitted_report(vehicle, params, checks):
     from estimator.preflight.measured_rotor import hover_from_params  # the bench flow
 
     report = hover_from_params(vehicle, params)
+    report["suspect_keys"] = slip_keys(checks)
     other = params_propeller_warning(vehicle, params)
     report["warnings"] = checks + ([other] if other else []) + [
         w for w in report.get("warnings", []) if w not in checks]
@@ -220,6 +224,10 @@ def format_sheet(report):
     lines.append("   thrust-to-weight   %s   (full command, nominal pack; %s2 is the usual floor)"
                  % (thrust_to_weight_text(report.get("thrust_to_weight")),
                     "NOT REACHABLE on this pack, see below; " if reachable is False else ""))
+    if reachable is False and report.get("reachable_thrust_to_weight") is not None:
+        lines.append("   reachable T/W      %s at command %s, where the pack reaches its loaded cutoff"
+                     % (thrust_to_weight_text(report["reachable_thrust_to_weight"]),
+                        _num(report.get("reachable_command"), "%.2f")))
     full_total, rotors = report.get("full_thrust_N"), report.get("rotor_count") or 0
     lines.append("   full-command thrust %s per rotor, %s total (hover needs %s per rotor)" % (
         _num(full_total / rotors if full_total is not None and rotors else None, "%.3g", "N"),

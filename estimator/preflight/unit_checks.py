@@ -4,8 +4,9 @@ fitted on another propeller.
 The schema refuses what no vehicle can have (a 300 kg quad); these checks warn about numbers
 that are possible on their own but not together: a 150 kg vehicle on four 10-inch propellers
 (grams meant), a 150 Ah pack on a 0.65 kg frame (mAh meant), a 1.3 m propeller on a 0.65 kg
-quad. Each warning names the JSON key, the value and the likely unit. Values the file wrote
-with a unit ("650g") are taken as meant and not questioned.
+quad. Each warning names the JSON key, the value and the likely unit. A value written with a
+unit ("150kg", "11Ah") gets the same physics check as a bare number: the slip is then in the
+unit prefix or the decimal point, and the warning names the values that would make it ordinary.
 """
 
 import math
@@ -27,6 +28,13 @@ CELL_SPECIFIC_ENERGY_MAX_WH_KG = 260.0
 # any size (a 5 Ah cell near 5 milliohm, a 0.3 Ah cell near 80 milliohm; from memory); 0.5
 # is ten times the worst of them.
 CELL_RESISTANCE_CAPACITY_MAX_OHM_AH = 0.5
+# Flight packs weigh about 10 to 50 % of a multirotor's all-up mass, at about 150 Wh/kg for
+# lithium-polymer packs (common practice, from memory); the capacity a slip hint suggests must
+# fall in the band a little wider than that (3 to 60 %).
+PACK_SPECIFIC_ENERGY_WH_KG = 150.0
+PACK_MASS_SHARE_USUAL = (0.03, 0.6)
+# slips of a value written with its unit: the prefix (g for kg, mAh for Ah) or the decimal point
+WRITTEN_SLIPS = ((1e-3, "the unit prefix"), (0.1, "a misplaced decimal point"))
 
 
 def _disk_loading(mass_kg, count, diameter_m):
@@ -38,11 +46,25 @@ def _typical(loading):
     return lo <= loading <= hi
 
 
+def _as_written(vehicle, path):
+    """' (written "150kg")' when the file gave the value at ``path`` with a unit, else ''."""
+    text = given_text(vehicle, path)
+    return "" if text is None else ' (written "%s")' % text
+
+
+def _written_hint(value, unit, plausible, fmt="%.3g"):
+    """The slips of WRITTEN_SLIPS that make a value written with its unit plausible, as text."""
+    out = [("%s %s meant (%s)?" % (fmt % (value * scale), unit, why))
+           for scale, why in WRITTEN_SLIPS if plausible(value * scale)]
+    return " or ".join(out)
+
+
 def suspicious_values(vehicle):
     """Warnings (strings) for values of a checked vehicle that usually mean a unit slip.
 
-    vehicle: dict from estimator.vehicle.check_vehicle (SI keys). Each warning names the
-    JSON path, the value as read, why it is odd, and the unit that would make it ordinary.
+    vehicle: dict from estimator.vehicle.check_vehicle (SI keys). Each warning starts with the
+    JSON path and names the value as read (and as written, when the file gave a unit), why it
+    is odd, and the unit or value that would make it ordinary.
     """
     out = []
     mass = vehicle["mass_kg"]
@@ -54,43 +76,68 @@ def suspicious_values(vehicle):
     mass_bare = given_text(vehicle, "$.mass_kg") is None
     diameter_bare = given_text(vehicle, "$.propeller.diameter_m") is None
     lo, hi = DISK_LOADING_TYPICAL_N_M2
-    if loading > hi and mass_bare:
+    if loading > hi:
         # 1 g = 1e-3 kg (NIST SP 811)
-        hint = ("grams meant? (%g g = %g kg)" % (mass, mass * 1e-3)
-                if _disk_loading(mass * 1e-3, count, diameter) <= hi
-                else "check the mass (kilograms) and the diameter (metres)")
-        out.append("$.mass_kg: %g kg puts %.0f N/m^2 on each propeller disk at hover, far above "
-                   "the %g..%g N/m^2 of small multirotors: %s" % (mass, loading, lo, hi, hint))
-    elif loading < DISK_LOADING_FLOOR_N_M2 and diameter_bare:
+        if mass_bare:
+            hint = ("grams meant? (%g g = %g kg)" % (mass, mass * 1e-3)
+                    if _disk_loading(mass * 1e-3, count, diameter) <= hi
+                    else "check the mass (kilograms) and the diameter (metres)")
+        else:
+            hint = _written_hint(mass, "kg", lambda m: _typical(_disk_loading(m, count, diameter)))
+            hint = ("a unit or decimal slip? %s" % hint if hint
+                    else "a unit or decimal slip? check the mass and the propeller diameter")
+        out.append("$.mass_kg: %g kg%s puts %.0f N/m^2 on each propeller disk at hover, far above "
+                   "the %g..%g N/m^2 of small multirotors: %s"
+                   % (mass, _as_written(vehicle, "$.mass_kg"), loading, lo, hi, hint))
+    elif loading < DISK_LOADING_FLOOR_N_M2:
         hint = ""
         for unit, scale in (("in", 0.0254), ("cm", 0.01)):  # NIST SP 811, exact
-            if _typical(_disk_loading(mass, count, diameter * scale)):
+            if diameter_bare and _typical(_disk_loading(mass, count, diameter * scale)):
                 hint = ": %s meant? (%g %s = %.3g m)" % ({"in": "inches", "cm": "centimetres"}[unit],
                                                           diameter, unit, diameter * scale)
                 break
-        out.append("$.propeller.diameter_m: %g m propellers carry only %.1f N/m^2 each for a %g kg "
+        out.append("$.propeller.diameter_m: %g m%s propellers carry only %.1f N/m^2 each for a %g kg "
                    "vehicle on %d rotors, far below the %g..%g N/m^2 of small multirotors%s"
-                   % (diameter, loading, mass, count, lo, hi,
-                      hint or ": check the diameter (metres) and the mass (kilograms)"))
-    energy_Wh = bat["cells"] * bat["nominal_cell_V"] * bat["capacity_Ah"]
+                   % (diameter, _as_written(vehicle, "$.propeller.diameter_m"), loading,
+                      mass, count, lo, hi,
+                      hint or ": a unit or decimal slip? check the diameter (metres) and the mass "
+                      "(kilograms)"))
+    pack_V = bat["cells"] * bat["nominal_cell_V"]
+    energy_Wh = pack_V * bat["capacity_Ah"]
     least_pack_kg = energy_Wh / CELL_SPECIFIC_ENERGY_MAX_WH_KG
     capacity_odd = least_pack_kg > mass
-    if capacity_odd and given_text(vehicle, "$.battery.capacity_Ah") is None:
-        out.append("$.battery.capacity_Ah: %g Ah on %d cells is %.0f Wh, which weighs at least %.2g kg "
-                   "even at %.0f Wh/kg (the best lithium cells, from memory), more than the whole "
-                   "%g kg vehicle: mAh meant? (%g mAh = %g Ah)"
-                   % (bat["capacity_Ah"], bat["cells"], energy_Wh, least_pack_kg,
-                      CELL_SPECIFIC_ENERGY_MAX_WH_KG, mass, bat["capacity_Ah"], bat["capacity_Ah"] * 1e-3))
+    if capacity_odd:
+        head = ("$.battery.capacity_Ah: %g Ah%s on %d cells is %.0f Wh, which weighs at least %.2g kg "
+                "even at %.0f Wh/kg (the best lithium cells, from memory), more than the whole "
+                "%g kg vehicle" % (bat["capacity_Ah"], _as_written(vehicle, "$.battery.capacity_Ah"),
+                                   bat["cells"], energy_Wh, least_pack_kg,
+                                   CELL_SPECIFIC_ENERGY_MAX_WH_KG, mass))
+        if given_text(vehicle, "$.battery.capacity_Ah") is None:
+            out.append(head + ": mAh meant? (%g mAh = %g Ah)" % (bat["capacity_Ah"], bat["capacity_Ah"] * 1e-3))
+        else:
+            share_lo, share_hi = PACK_MASS_SHARE_USUAL
+            usual = [mass * share * PACK_SPECIFIC_ENERGY_WH_KG / pack_V for share in (share_lo, share_hi)]
+            hint = _written_hint(bat["capacity_Ah"], "Ah", lambda c: usual[0] <= c <= usual[1])
+            out.append(head + ": a unit or decimal slip? %s (packs of %.0f..%.0f %% of the all-up mass at about %.0f "
+                       "Wh/kg hold %.2g..%.2g Ah on %d cells; common practice, from memory)"
+                       % (hint or "check the capacity",
+                          100 * share_lo, 100 * share_hi, PACK_SPECIFIC_ENERGY_WH_KG, usual[0], usual[1],
+                          bat["cells"]))
     r_cell_ah = bat["resistance_ohm"] / bat["cells"] * bat["capacity_Ah"]
-    if (not capacity_odd and r_cell_ah > CELL_RESISTANCE_CAPACITY_MAX_OHM_AH
-            and given_text(vehicle, "$.battery.resistance_ohm") is None):
-        out.append("$.battery.resistance_ohm: %g ohm for a %d-cell %g Ah pack is %.0f times the "
+    if not capacity_odd and r_cell_ah > CELL_RESISTANCE_CAPACITY_MAX_OHM_AH:
+        out.append("$.battery.resistance_ohm: %g ohm%s for a %d-cell %g Ah pack is %.0f times the "
                    "usual resistance of such a pack (about %.2g ohm, from memory): milliohm meant? "
                    "(%g mohm = %g ohm)"
-                   % (bat["resistance_ohm"], bat["cells"], bat["capacity_Ah"],
+                   % (bat["resistance_ohm"], _as_written(vehicle, "$.battery.resistance_ohm"),
+                      bat["cells"], bat["capacity_Ah"],
                       r_cell_ah / 0.025, 0.025 * bat["cells"] / bat["capacity_Ah"],
                       bat["resistance_ohm"], bat["resistance_ohm"] * 1e-3))
     return out
+
+
+def slip_keys(warnings):
+    """The JSON paths that suspicious_values warnings name (the text before the first ': ')."""
+    return [w.split(": ", 1)[0] for w in warnings if w.startswith("$.")]
 
 
 # diameters within this share count as the same propeller [-]: makers' nominal sizes are

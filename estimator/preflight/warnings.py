@@ -62,7 +62,22 @@ def full_command_sag(report):
 
 
 def cannot_hover_cause(report):
-    """One warning that names the real limiting factor of a vehicle that cannot hover."""
+    """One warning that names the real limiting factor of a vehicle that cannot hover.
+
+    When the vehicle file holds values that look like a unit slip (report key suspect_keys,
+    the JSON paths of preflight.unit_checks warnings), the cause names them first: the
+    physics below is then that of the values as read.
+    """
+    text = _cannot_hover_cause(report)
+    keys = report.get("suspect_keys") or []
+    if keys:
+        text = text.replace("cannot hover", "cannot hover with the values as read (first check %s: %s "
+                            "like a unit or decimal slip, see below)"
+                            % (", ".join(keys), "it looks" if len(keys) == 1 else "they look"), 1)
+    return text
+
+
+def _cannot_hover_cause(report):
     weight = report.get("weight_N") or 0.0
     full = report.get("full_thrust_N")
     tw = report.get("thrust_to_weight")
@@ -165,6 +180,10 @@ def margin_warnings(report):
         if full_pack is not None and full_pack > pack_limit:
             out.append("full command draws %.0f A from the pack, above its rating of %.0f A "
                        "(C-rating x capacity): the pack will sag and heat" % (full_pack, pack_limit))
+    from estimator.preflight.pack import cold_pack_warning
+    cold = cold_pack_warning(report)
+    if cold is not None:
+        out.append(cold)
     ratio = report.get("density_ratio")
     if ratio is not None and ratio < THIN_AIR_DENSITY_RATIO:
         out.append("thin air: %.3f kg/m^3 is %.0f %% of sea-level standard (density altitude %.0f m): "
