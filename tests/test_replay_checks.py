@@ -73,6 +73,10 @@ def test_time_that_goes_back_or_repeats_is_named_by_row(tmp_path, params_file, c
     ("time[s],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, u, 1000 * v, a), "millivolts"),
     ("time[s],command[-],voltage[mV],current[A]", lambda t, u, v, a: (t, u, v, a), "volts in a column labelled [mV]"),
     ("time[s],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, u, v, -a), "reversed"),
+    # one cell's voltage logged instead of the pack's (new-user trial 3 item 8: replay said
+    # "too short to learn", exit 0); the demo pack has 4 cells
+    ("time[s],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, u, v / 4.0, a),
+     "likely one cell's voltage on this 4-cell pack"),
     ("time[s],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, u, v, 1000 * a), "milliamps"),
     ("time[s],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, 100 * u, v, a), "percent"),
     # milliseconds labelled [s] (new-user trial 2 item 4: replay said "too short to learn:

@@ -88,6 +88,13 @@ def check_plausible(path, flight, units, cfg):
         raise InputError("%s: column voltage[%s]: median %.4g %s is far below the empty pack (%.1f V): "
                          "likely volts in a column labelled [mV]; label it voltage[V]"
                          % (path, units["voltage"], med_v, units["voltage"], v_empty / 1000.0))
+    cells = int(round(v_full / 4200.0))  # full lithium cell about 4.2 V (common practice)
+    if cells >= 2 and 0 < med_v < 0.6 * v_empty:
+        per_cell = 0.8 * v_empty / cells <= med_v <= 1.2 * v_full / cells
+        raise InputError("%s: column voltage[%s]: median %.3g V is far below the empty pack (%.1f V)%s"
+                         % (path, units["voltage"], med_v / 1000.0, v_empty / 1000.0,
+                            ": likely one cell's voltage on this %d-cell pack; log the pack (bus) voltage"
+                            % cells if per_cell else "; is the column the pack's bus voltage?"))
     spin = cfg["spin_permille"]
     flying = [i for i in range(len(u)) if u[i] >= spin]
     if units["command"] == "%" and max(u) <= 10 and max(ma) > 0 and _median(ma) > 0:
