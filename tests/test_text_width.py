@@ -67,6 +67,7 @@ def test_sheets_tables_and_fit_summary_fit_80_columns(files):
     params = files["folder"] / "params.json"
     _narrow(run("fit", files["sweep"], "--vehicle", files["demo"], "--out", params))
     _narrow(run("hover", files["demo"], "--params", params, "--payload", "0..1kg"))
+    _narrow(run("static", "--diameter", "3in", "--thrust", "0.24N"))
 
 
 def test_json_output_keeps_every_string_whole(files):

@@ -104,7 +104,8 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
     if as_json:
         click.echo(dumps(out))
     else:
-        click.echo("\n".join(format_static(out, power is not None)))
+        from estimator.textwidth import fit_width
+        click.echo(fit_width("\n".join(format_static(out, power is not None))))
 
 
 def _check_disk_loading(thrust_N, area_m2, diameter_m):
