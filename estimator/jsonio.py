@@ -2,6 +2,7 @@
 
 import json
 import os
+import re
 import sys
 
 from estimator.errors import InputError
@@ -227,6 +228,13 @@ def _text_for_number(err):
 
     path = list(err.absolute_path)
     key = path[-1] if path and isinstance(path[-1], str) else ""
+    parts = key.split("_")
+    if "per" in parts[1:-1]:  # a compound unit in the key: kv_rpm_per_V is in rpm/V
+        at = parts.index("per", 1)
+        unit = "%s/%s" % (parts[at - 1], "_".join(parts[at + 1:]))
+        number = re.match(r"\s*([-+]?(?:\d+\.?\d*|\.\d+))", str(err.instance))
+        return "; write %s a plain number in %s, without quotes (the key name gives the unit)" % (
+            "%s," % number.group(1) if number else "", unit)
     unit = key.rsplit("_", 1)[-1] if "_" in key else ""
     if unit not in _KEY_UNITS:
         return "; write a plain number, without quotes"

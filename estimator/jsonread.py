@@ -52,8 +52,25 @@ def _no_duplicates(pairs):
     return dict(pairs)
 
 
+# the first bytes of files a person may pass by mistake (the formats' own signatures)
+_NOT_TEXT = ((b"\x89PNG\r\n\x1a\n", "a PNG image"), (b"\xff\xd8\xff", "a JPEG image"),
+             (b"%PDF-", "a PDF document"), (b"PK\x03\x04", "a ZIP archive (or a spreadsheet)"),
+             (b"\x1f\x8b", "a gzip archive"), (b"SQLite format 3\x00", "an SQLite database"))
+
+
+def _looks_like_csv(text):
+    """True when the text's first lines read as a CSV (a comment line, or cells with commas
+    and no JSON brace) rather than JSON."""
+    head = [line.strip() for line in text.splitlines()[:5] if line.strip()]
+    return bool(head) and not head[0].startswith(("{", "[")) and (
+        head[0].startswith("#") or "," in head[0])
+
+
 def decode_text(data, path):
     """The text of a JSON file's bytes (BOM-aware); InputError on bytes that are not text."""
+    for magic, kind in _NOT_TEXT:
+        if data.startswith(magic):
+            raise InputError("%s: is %s, not a JSON file; is it the right file?" % (path, kind))
     encoding = "utf-8"
     for bom, name in _BOMS:
         if data.startswith(bom):
@@ -76,6 +93,9 @@ def loads(text, path):
     try:
         document = json.loads(text, parse_constant=_Constant, object_pairs_hook=_no_duplicates)
     except json.JSONDecodeError as exc:
+        if _looks_like_csv(text):
+            raise InputError("%s: looks like a CSV file (a bench sweep or a flight log?), not a JSON "
+                             "file; is it the right file?" % path) from None
         raise InputError("%s: line %d column %d: malformed JSON (%s)%s"
                          % (path, exc.lineno, exc.colno, exc.msg, _near(text, exc.pos))) from None
     except _Duplicate as exc:

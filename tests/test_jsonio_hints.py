@@ -83,6 +83,8 @@ def test_unit_slip_picks_the_slip_that_lands_inside(value, kind, slips, schema, 
     (("mass_kg",), "850g", "write 0.85"),
     (("propeller", "diameter_m"), "10in", "write 0.254"),
     (("battery", "capacity_Ah"), "5000mAh", "write 5"),
+    # a compound unit in the key (new-user trial 3 item 14: "write a plain number in V" for Kv)
+    (("motor", "kv_rpm_per_V"), "120kv", "write 120, a plain number in rpm/V"),
 ])
 def test_a_number_written_as_text_with_a_unit_gets_the_plain_number(key_path, text, expected):
     doc = _load("vehicle-demo-quad.json")
