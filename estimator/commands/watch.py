@@ -38,6 +38,19 @@ EVENT_MEANING = {
 }
 
 
+def _note_mass_after_baseline(events):
+    """Add a "note" to a mass_high event that follows a baseline_off event with more power than
+    the bench fit expects: a power fault present from the start (a dragging bearing, a damaged
+    propeller) raises the implied mass just as a heavier payload does."""
+    first_high = next((e for e in events if e["kind"] == "baseline_off" and e.get("residual", 0.0) > 0.0), None)
+    for e in events:
+        if e["kind"] == "mass_high" and first_high is not None and first_high["t_s"] <= e["t_s"]:
+            e["note"] = ("the power was already %+.1f %% off the bench fit at %.1f s: more power from the "
+                         "start (a dragging bearing, a damaged propeller) reads as extra mass too; weigh the "
+                         "aircraft, and if it is as planned look for a power fault"
+                         % (100.0 * first_high["residual"], first_high["t_s"]))
+
+
 def _count(n, word):
     return "%d %s%s" % (n, word, "" if n == 1 else "s")
 
@@ -113,6 +126,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None,
                       drop_bad_time=drop_bad_time, options=_options(lag_ms))
     arrays = out.pop("_arrays", None)
+    _note_mass_after_baseline(out["events"])
     if plot_file is not None:
         from estimator.watch.plots import plot_replay
         plot_replay(plot_file, arrays, out["events"], title=flight_file)
@@ -139,6 +153,8 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         else:
             what = "residual %+.1f %%  %s" % (100.0 * e["residual"], EVENT_MEANING.get(e["kind"], ""))
         lines.append("  %9.1f s  %-13s %s" % (e["t_s"], e["kind"], what))
+        if e.get("note"):
+            lines.append("  %11s  %-13s (%s)" % ("", "", e["note"]))
     if plot_file:
         lines.append("plot: %s" % plot_file)
     lines.append("- " + WATCH_CAUTIONS[0])
