@@ -23,6 +23,7 @@ from estimator.core import propeller_bemt as bemt
 from estimator.preflight.propeller_estimate import LOW_REYNOLDS_75, LOW_REYNOLDS_FIGURE_OF_MERIT
 from estimator.preflight.report import hover_report
 from estimator.vehicle import check_vehicle
+from airfoil_reference import naca4412_section
 
 WHOOP = {"name": "invented 3-inch whoop", "mass": "98g", "rotors": {"count": 4},
          "propeller": {"size": "3x1.8in", "blades": 3},
@@ -75,25 +76,7 @@ def test_a_large_rotor_gets_no_low_reynolds_check():
 @pytest.fixture(scope="module")
 def computed_section():
     """NeuralFoil's NACA 4412 polars on a grid reaching Re 5e3, interpolated (alpha deg, log Re)."""
-    pytest.importorskip("neuralfoil")
-    np = pytest.importorskip("numpy")
-    asb = pytest.importorskip("aerosandbox")
-    interp = pytest.importorskip("scipy.interpolate")
-    import neuralfoil
-
-    alphas = np.linspace(-15.0, 35.0, 101)
-    res = np.geomspace(5e3, 6e5, 15)
-    aa, rr = np.meshgrid(alphas, res, indexing="ij")
-    out = neuralfoil.get_aero_from_airfoil(asb.Airfoil("naca4412"), alpha=aa.ravel(), Re=rr.ravel(),
-                                           model_size="large")
-    cl = interp.RegularGridInterpolator((alphas, np.log(res)), np.asarray(out["CL"]).reshape(aa.shape))
-    cd = interp.RegularGridInterpolator((alphas, np.log(res)), np.asarray(out["CD"]).reshape(aa.shape))
-
-    def section(alpha, reynolds):
-        a = min(max(math.degrees(alpha), alphas[0]), alphas[-1])
-        lr = min(max(math.log(reynolds), math.log(res[0])), math.log(res[-1]))
-        return float(cl((a, lr))), float(cd((a, lr)))
-    return section
+    return naca4412_section(5e3, n_re=15)
 
 
 def test_the_generic_blade_is_optimistic_at_low_reynolds_numbers_only(computed_section):

@@ -22,6 +22,7 @@ import pytest
 
 from estimator.core import propeller_bemt as bemt
 from estimator.core.atmosphere import dynamic_viscosity_Pa_s
+from airfoil_reference import naca4412_section
 
 RHO, MU = 1.225, 1.7894e-5  # sea-level standard air (US Standard Atmosphere 1976)
 # typical hover conditions of small propellers: (diameter [m], rpm)
@@ -132,25 +133,7 @@ def test_trends_with_pitch_and_blades():
 @pytest.fixture(scope="module")
 def reference_section():
     """NeuralFoil's NACA 4412 polars on a grid, interpolated (alpha in degrees, log Re)."""
-    pytest.importorskip("neuralfoil")
-    np = pytest.importorskip("numpy")
-    asb = pytest.importorskip("aerosandbox")
-    interp = pytest.importorskip("scipy.interpolate")
-    import neuralfoil
-
-    alphas = np.linspace(-15.0, 35.0, 101)
-    res = np.geomspace(3e4, 6e5, 11)
-    aa, rr = np.meshgrid(alphas, res, indexing="ij")
-    out = neuralfoil.get_aero_from_airfoil(asb.Airfoil("naca4412"), alpha=aa.ravel(), Re=rr.ravel(),
-                                           model_size="large")
-    cl = interp.RegularGridInterpolator((alphas, np.log(res)), np.asarray(out["CL"]).reshape(aa.shape))
-    cd = interp.RegularGridInterpolator((alphas, np.log(res)), np.asarray(out["CD"]).reshape(aa.shape))
-
-    def section(alpha, reynolds):
-        a = min(max(math.degrees(alpha), alphas[0]), alphas[-1])
-        lr = min(max(math.log(reynolds), math.log(res[0])), math.log(res[-1]))
-        return float(cl((a, lr))), float(cd((a, lr)))
-    return section
+    return naca4412_section(3e4)
 
 
 @pytest.mark.parametrize("reynolds", [1e5, 2e5, 4e5])

@@ -1,6 +1,6 @@
 """Text output fits an 80-column terminal (second new-user trial, item 17), --json stays whole.
 
-Reference: 80 columns, the width of the classic video terminal that terminal emulators still
+Reference: 80 columns, the width of the classic text terminal that terminal emulators still
 open by default (common practice); lines of at most 79 characters fit without the terminal's own
 wrap at the last column. The vehicles are invented (a 3-inch whoop on 2S, a 15-inch hexa on
 12S) beside the demo scenario's quad and its simulated bench sweep.
