@@ -243,12 +243,12 @@ def file_sha256_counting(path, byte):
 def _digest(path, byte=None):
     h = hashlib.sha256()
     count = 0
+    if byte is not None:
+        import numpy as np
     with open(path, "rb") as fh:
         for block in iter(lambda: fh.read(1 << 20), b""):
             h.update(block)
             if byte is not None:
-                import numpy as np
-
                 count += int(np.count_nonzero(np.frombuffer(block, np.uint8) == byte))
     return h.hexdigest(), count
 
