@@ -20,6 +20,7 @@ import re
 
 from estimator.errors import InputError
 from estimator import csvtable
+from estimator.bench.bench_air import bench_air
 from estimator.units import STANDARD_GRAVITY_M_S2, parse_quantity
 
 REQUIRED = ("command", "voltage", "current", "thrust")
@@ -42,9 +43,6 @@ _COMMENT_BOUNDS = {"density": "density", "altitude": "altitude", "temperature": 
 TYPO_SIMILARITY = 0.75
 # a comment value that reads as one number with an optional unit ("1.19", "35C", "300 m")
 _QUANTITY_TEXT = re.compile(r"^\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*[A-Za-z%/^0-9]*\s*$")
-# the bench air from the comments and from the density comment differ by more than this:
-# the file contradicts itself [-]
-AIR_DISAGREEMENT = 0.03
 # a bench bus outside these is almost surely a unit slip (mV labelled V, or V labelled mV);
 # the top allows 40 lithium cells in series (4.35 V each, high-voltage cells) [V]
 BUS_VOLTAGE_RANGE_V = (1.0, 200.0)
@@ -225,7 +223,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
         u, v, t, power, rejected, n_keep = _row_checks(path, data, rows_total)
         del data
 
-    air = _bench_air(path, comments, density_kg_m3, altitude_m, temperature_C, pressure_Pa,
+    air = bench_air(path, comments, density_kg_m3, altitude_m, temperature_C, pressure_Pa,
                      humidity_pct, warnings)
     if diameter_m is None and "diameter" in comments:
         diameter_m = comments["diameter"][0]
@@ -341,73 +339,6 @@ def _check_units(path, data, v_med=None, extremes=None):
             raise InputError("%s: current median %.4g A is above %g A for one rotor's supply; is the "
                              "column in mA but labelled [A]? label it current[mA]"
                              % (path, i_med, MAX_CURRENT_A))
-
-
-def _bench_air(path, comments, density, altitude, temperature, pressure, humidity, warnings):
-    """Bench air density from the options, else the comment header, else ISA sea level.
-
-    Options (already range-checked by the command's types) override the comments key by
-    key; --density together with --altitude/--temperature/--pressure/--humidity is refused
-    (which one would be meant?), as is a '# density' comment that contradicts the file's
-    own altitude/temperature/pressure comments by more than AIR_DISAGREEMENT. Any one of
-    altitude, temperature, pressure or humidity is enough: the others come from the standard
-    atmosphere, and the warning says which were assumed. Returns {density_kg_m3, source}.
-    """
-    from estimator.core.atmosphere import AirInputError, site_air
-    from estimator.vehicle import check_quantity
-
-    options = {"altitude": altitude, "temperature": temperature, "pressure": pressure,
-               "humidity": humidity}
-    given = {k: v for k, v in options.items() if v is not None}
-    if density is not None and given:
-        raise InputError("--density: give either --density or --%s, not both (the density "
-                         "already holds the bench air)" % "/--".join(sorted(given)))
-    if density is not None:
-        return {"density_kg_m3": float(check_quantity("density", density)), "source": "option --density"}
-    where = {k: "--" + k for k in given}
-    for key in options:
-        if key not in given and key in comments:
-            given[key], where[key] = comments[key]
-    if given:
-        try:
-            rho = site_air(given.get("altitude", 0.0), given.get("temperature"), given.get("pressure"),
-                           given.get("humidity", 0.0))["density_kg_m3"]
-        except AirInputError as exc:
-            at = where.get(exc.quantity) or ", ".join(where[k] for k in sorted(where))
-            raise InputError("%s: bench air: %s" % (at, exc)) from None
-        opts = ["--" + k for k in sorted(given) if where[k].startswith("--")]
-        notes = ["# " + k for k in sorted(given) if not where[k].startswith("--")]
-        named = " and ".join(x for x in ("options (%s)" % ", ".join(opts) if opts else "",
-                                          "file comments (%s)" % ", ".join(notes) if notes else "") if x)
-        source = named + ", standard atmosphere for the rest"
-        if "temperature" not in given:
-            warnings.append("bench air: no temperature given, so the standard atmosphere's temperature "
-                            "at %g m is assumed with the %s given by the %s; add '# temperature: C' to "
-                            "the CSV" % (given.get("altitude", 0.0), " and ".join(sorted(given)), named))
-        if "altitude" not in given and "pressure" not in given:
-            warnings.append("bench air: no altitude or pressure given, so sea-level standard pressure "
-                            "is assumed with the %s given by the %s; add '# altitude: M' to the CSV"
-                            % (" and ".join(sorted(given)), named))
-        if "density" in comments and any(w.startswith("--") for w in where.values()):
-            warnings.append("%s: not used: the bench air options (%s) describe the air instead"
-                            % (comments["density"][1], ", ".join(w for w in where.values() if w.startswith("--"))))
-        elif "density" in comments:
-            stated, at = comments["density"]
-            if abs(stated / rho - 1.0) > AIR_DISAGREEMENT:
-                raise InputError("%s: %.4g kg/m^3, but the file's own comments (%s) give %.4g kg/m^3 "
-                                 "(%.0f %% apart): keep the one that describes the bench"
-                                 % (at, stated, ", ".join("# " + k for k in sorted(given)), rho,
-                                    100.0 * abs(stated / rho - 1.0)))
-            rho, source = stated, "file comment '# density' (agrees with the file's %s)" % ", ".join(sorted(given))
-    elif "density" in comments:
-        rho, source = comments["density"][0], "file comment '# density'"
-    else:
-        rho, source = 1.225, "assumed: ISA sea level (no bench air given)"
-        warnings.append("no bench air in the file or options; assumed ISA sea level 1.225 kg/m^3 "
-                        "(add '# altitude: M' and '# temperature: C' to the CSV)")
-    if not (0.3 <= rho <= 1.6):
-        raise InputError("%s: bench air density %.4g kg/m^3 is outside 0.3..1.6" % (path, rho))
-    return {"density_kg_m3": float(rho), "source": source}
 
 
 def read_bench_text(text, name="<text>", **options):

@@ -9,7 +9,6 @@ bench flow never imports the pre-flight flow) -> parameter set (estimator.params
 """
 
 import math
-import os
 
 import numpy as np
 
@@ -18,6 +17,7 @@ from estimator.core.momentum import disk_area_m2
 from estimator.bench.curve_fit import check_rising, fit_quadratic, thrust_model_N
 from estimator.bench.levels import command_levels
 from estimator.bench.load_cell import check_thrust_sign, tare_warning
+from estimator.bench.wording import command_text, command_with_error, thrust_text
 from estimator.bench.motor_fit import fit_motor, params_dict, rotor_arrays
 from estimator.bench.power_fit import (MAD_ROWS, check_static_factor, fit_power_model, fit_static_factor,
                                        power_model_W, static_factor_at, watch_residual_rel_std)
@@ -326,59 +326,6 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     return params
 
 
-def command_text(u, unit, span=False):
-    """A command [-] written in the unit of the CSV's command column (us, % or -); span=True
-    for a difference of commands (no 1000 us offset)."""
-    if unit == "us":
-        return "%.0f us" % ((0.0 if span else 1000.0) + 1000.0 * u)
-    if unit == "%":
-        return "%.1f %%" % (100.0 * u)
-    return "%.3f" % u
-
-
-def command_with_error(u, se, unit):
-    """A command [-] and its standard error [-] in the CSV's command unit, in matching digits
-    (value_and_error): '1200.0 us +- 2.3 us', '18.6 % +- 1.3 %', '0.186 +- 0.013'."""
-    scale, offset, tail = {"us": (1000.0, 1000.0, " us"), "%": (100.0, 0.0, " %")}.get(unit, (1.0, 0.0, ""))
-    value, error = value_and_error(offset + scale * u, scale * se)
-    if not error:
-        return command_text(u, unit)
-    return "%s%s +- %s%s" % (value, tail, error, tail)
-
-
-def plain_number(x, digits=4):
-    """x with ``digits`` significant digits in plain decimal notation (15410, 7.076, 0.01241),
-    never the exponent form a person misreads (1.541e+04)."""
-    if x == 0 or not math.isfinite(x):
-        return "%g" % x
-    decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
-    return "%.*f" % (decimals, round(x, decimals))
-
-
-def value_and_error(value, se, digits=4):
-    """(value text, error text): the error to two significant digits and the value rounded to
-    the same decimal place (1873 +- 7.0, 15410 +- 120), the usual way of quoting a result
-    with its standard error (e.g. NIST Technical Note 1297, sec. 7, from memory); without an
-    error (se 0), the value to ``digits`` significant digits and an empty error text."""
-    if not se > 0.0 or not math.isfinite(se):
-        return plain_number(value, digits), ""
-    place = int(math.floor(math.log10(se))) - 1  # the error's second significant digit
-    decimals = max(0, -place)
-    return ("%.*f" % (decimals, round(value, -place)), "%.*f" % (decimals, round(se, -place)))
-
-
-def thrust_text(thrust_N, unit, se_N=None):
-    """A thrust [N] written in the unit of the CSV's thrust column (grams in, grams out);
-    with se_N [N], 'value unit +- error unit' in matching digits (value_and_error)."""
-    from estimator.bench.reader import UNITS
-
-    scale = UNITS["thrust"].get(unit, (1.0, 0.0))[0]
-    if se_N is None:
-        return "%s %s" % (plain_number(thrust_N / scale), unit)
-    value, error = value_and_error(thrust_N / scale, se_N / scale)
-    return "%s %s +- %s %s" % (value, unit, error, unit) if error else "%s %s" % (value, unit)
-
-
 def _range_warnings(curve, theta, v_ref, top_found, unit="-"):
     """Warnings with numbers when the parameter set's full command lies beyond the sweep."""
     out = []
@@ -450,7 +397,3 @@ def summary(params):
         out["hover_command_interval_95"] = params["hover"]["hover_command_interval_95"]
     return out
 
-
-def source_name(path):
-    """The file name recorded in provenance (no folders: parameter sets travel)."""
-    return os.path.basename(path)

@@ -24,7 +24,7 @@ VOLTAGE_EXPONENT_WHY = {
 def _pm(value, se, why_none):
     """'value +- error' with matching digits, or 'value (why_none)' for a value without a
     fitted error (held, taken from the motor model, or given): never a false '+- 0'."""
-    from estimator.bench.sweep import value_and_error
+    from estimator.bench.wording import value_and_error
 
     text, error = value_and_error(value, se, 3)
     if error:
@@ -34,7 +34,8 @@ def _pm(value, se, why_none):
 
 def _start_text(mm, unit):
     """The spin-up command with its standard error, and a word when the sweep cannot tell it."""
-    from estimator.bench.sweep import START_POORLY_DETERMINED, command_with_error
+    from estimator.bench.sweep import START_POORLY_DETERMINED
+    from estimator.bench.wording import command_with_error
 
     se = mm.get("command_start_standard_error")
     text = command_with_error(mm["command_start"], se or 0.0, unit) + " (motor model: where the ESC's duty starts)"
@@ -44,7 +45,7 @@ def _start_text(mm, unit):
 
 
 def _human_fit(params, out_file, warnings=None):
-    from estimator.bench.sweep import command_text, command_with_error, plain_number, thrust_text
+    from estimator.bench.wording import command_text, command_with_error, plain_number, thrust_text
 
     c, p, k, q = (params["thrust_curve"], params["power_model"], params["static_factor"],
                   params["fit_quality"])

@@ -1,0 +1,58 @@
+"""How the bench fit speaks: commands and thrusts in the units of the user's CSV (grams in,
+grams out; microseconds logged, microseconds shown), values with their standard errors in
+matching digits, plain decimals rather than exponent forms."""
+
+import math
+
+
+def command_text(u, unit, span=False):
+    """A command [-] written in the unit of the CSV's command column (us, % or -); span=True
+    for a difference of commands (no 1000 us offset)."""
+    if unit == "us":
+        return "%.0f us" % ((0.0 if span else 1000.0) + 1000.0 * u)
+    if unit == "%":
+        return "%.1f %%" % (100.0 * u)
+    return "%.3f" % u
+
+
+def command_with_error(u, se, unit):
+    """A command [-] and its standard error [-] in the CSV's command unit, in matching digits
+    (value_and_error): '1200.0 us +- 2.3 us', '18.6 % +- 1.3 %', '0.186 +- 0.013'."""
+    scale, offset, tail = {"us": (1000.0, 1000.0, " us"), "%": (100.0, 0.0, " %")}.get(unit, (1.0, 0.0, ""))
+    value, error = value_and_error(offset + scale * u, scale * se)
+    if not error:
+        return command_text(u, unit)
+    return "%s%s +- %s%s" % (value, tail, error, tail)
+
+
+def plain_number(x, digits=4):
+    """x with ``digits`` significant digits in plain decimal notation (15410, 7.076, 0.01241),
+    never the exponent form a person misreads (1.541e+04)."""
+    if x == 0 or not math.isfinite(x):
+        return "%g" % x
+    decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
+    return "%.*f" % (decimals, round(x, decimals))
+
+
+def value_and_error(value, se, digits=4):
+    """(value text, error text): the error to two significant digits and the value rounded to
+    the same decimal place (1873 +- 7.0, 15410 +- 120), the usual way of quoting a result
+    with its standard error (e.g. NIST Technical Note 1297, sec. 7, from memory); without an
+    error (se 0), the value to ``digits`` significant digits and an empty error text."""
+    if not se > 0.0 or not math.isfinite(se):
+        return plain_number(value, digits), ""
+    place = int(math.floor(math.log10(se))) - 1  # the error's second significant digit
+    decimals = max(0, -place)
+    return ("%.*f" % (decimals, round(value, -place)), "%.*f" % (decimals, round(se, -place)))
+
+
+def thrust_text(thrust_N, unit, se_N=None):
+    """A thrust [N] written in the unit of the CSV's thrust column (grams in, grams out);
+    with se_N [N], 'value unit +- error unit' in matching digits (value_and_error)."""
+    from estimator.bench.reader import UNITS
+
+    scale = UNITS["thrust"].get(unit, (1.0, 0.0))[0]
+    if se_N is None:
+        return "%s %s" % (plain_number(thrust_N / scale), unit)
+    value, error = value_and_error(thrust_N / scale, se_N / scale)
+    return "%s %s +- %s %s" % (value, unit, error, unit) if error else "%s %s" % (value, unit)
