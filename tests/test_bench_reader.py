@@ -115,6 +115,12 @@ def test_a_row_wider_than_the_header_is_refused_even_in_a_column_not_read(tmp_pa
                     + "\n".join(rows) + "\n")
     with pytest.raises(InputError, match=r"line 6: 6 cells where the header has 5"):
         read_bench(str(path))
+    # and when every column is one the reader needs (the whole row is parsed)
+    rows = ["0.5,15,5,2"] * 12
+    rows[4] += ",1"
+    path.write_text("command[-],voltage[V],current[A],thrust[N]\n" + "\n".join(rows) + "\n")
+    with pytest.raises(InputError, match=r"line 6: 5 cells where the header has 4"):
+        read_bench(str(path))
 
 
 @pytest.mark.parametrize("header,fragment", [

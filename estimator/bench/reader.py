@@ -58,11 +58,12 @@ MAX_THRUST_N = 5000.0
 COMMAND_OUTSIDE_SHARE = 0.05
 
 
-def _sha256_and_commas(path):
-    """(SHA-256 of the file (hex), number of commas in it): one read of the file."""
-    from estimator.outputs import file_sha256_counting
+def _sha256_and_commas(path, count=True):
+    """(SHA-256 of the file (hex), number of commas in it): one read of the file; with
+    count=False only the hash."""
+    from estimator.outputs import file_sha256, file_sha256_counting
 
-    return file_sha256_counting(path, ord(","))
+    return file_sha256_counting(path, ord(",")) if count else file_sha256(path)
 
 
 def _head_commas(path, skip):
@@ -132,32 +133,35 @@ _LOADTXT = {"delimiter": ",", "comments": "#", "ndmin": 2, "dtype": float, "enco
 
 
 def _load_numbers(path, skip, ncols, wanted):
-    """(the numbers of the columns ``wanted``, in that order, as an array of rows x
-    len(wanted); the file's SHA-256).
+    """(an array of rows x columns, the table column of each of ``wanted``, the file's SHA-256).
 
-    One numpy.loadtxt of those columns only. It does not look at the cells of other columns,
-    so the file's commas (counted while hashing) prove that every data row has the header's
-    width. On any trouble (a row of another width, text where a number belongs, NaN or
-    infinity written in a cell) the slow parse, which names the broken row or turns empty
-    cells into NaN.
+    One numpy.loadtxt. When the file holds other columns too, it parses only ``wanted``; it
+    then does not look at the other cells, so the file's commas (counted while hashing) prove
+    that every data row has the header's width (a full read checks that by itself). On any
+    trouble (a row of another width, text where a number belongs, NaN or infinity written in
+    a cell) the slow parse, which names the broken row or turns empty cells into NaN.
     """
     import warnings
 
     import numpy as np
 
-    digest, commas = _sha256_and_commas(path)
+    every = sorted(wanted) == list(range(ncols))
+    if every:
+        digest, commas = _sha256_and_commas(path, count=False), None
+    else:
+        digest, commas = _sha256_and_commas(path)
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("error")
-            table = np.loadtxt(path, skiprows=skip, usecols=wanted, **_LOADTXT)
+            table = np.loadtxt(path, skiprows=skip, usecols=None if every else wanted, **_LOADTXT)
         # two reductions decide finiteness (a NaN or infinity makes the min or max non-finite)
-        if (table.shape[1] == len(wanted)
-                and commas - _head_commas(path, skip) == table.shape[0] * (ncols - 1)
+        if (table.shape[1] == (ncols if every else len(wanted))
+                and (every or commas - _head_commas(path, skip) == table.shape[0] * (ncols - 1))
                 and math.isfinite(float(table.min())) and math.isfinite(float(table.max()))):
-            return table, digest
+            return table, (list(wanted) if every else list(range(len(wanted)))), digest
     except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
         pass
-    return _slow_parse(path, skip, ncols, wanted)[:, list(wanted)], digest
+    return _slow_parse(path, skip, ncols, wanted), list(wanted), digest
 
 
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
@@ -177,9 +181,9 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     columns, warnings = _parse_header(path, head)
     warnings = comment_warnings + list(warnings)
     ncols = len(head.cells)
-    table, digest = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED])
+    table, at, digest = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED])
     data = {}
-    cols = [np.ascontiguousarray(table[:, k]) for k in range(len(REQUIRED))]
+    cols = [np.ascontiguousarray(table[:, k]) for k in at]
     del table
     for name, col in zip(REQUIRED, cols):
         unit = columns[name][1]
