@@ -90,12 +90,12 @@ def _bands(v, v_lo, v_hi):
     return bands.astype(np.int64), int(v_hi * per_volt - 1.0 / VOLTAGE_BAND + 0.5) + 1
 
 
-def _keys(u, v, width):
-    """Level of every row at command step ``width`` [-]: (dense level number of each row, in
-    command order; rows per level; command step index of each level; supply band of each
-    level; number of bands)."""
+def _keys(u, v, width, v_lo, v_hi):
+    """Level of every row at command step ``width`` [-] (v_lo..v_hi: the voltage span [V]):
+    (dense level number of each row, in command order; rows per level; command step index
+    of each level; supply band of each level)."""
     ci = np.rint(u * (1.0 / width)).astype(np.int64)
-    vi, n_bands = _bands(v, float(np.min(v)), float(np.max(v)))
+    vi, n_bands = _bands(v, v_lo, v_hi)
     ci *= n_bands
     ci += vi
     present = np.bincount(ci)
@@ -104,7 +104,7 @@ def _keys(u, v, width):
     return index[ci], present[raw].astype(float), raw // n_bands, raw % n_bands
 
 
-def _screen_width(u, v):
+def _screen_width(u, v, v_lo):
     """Command step [-] of the levels the spike screen judges, and whether the sweep is a ramp.
 
     A stepped sweep keeps its own steps. A ramp (more than RAMP_COMMANDS distinct commands)
@@ -113,7 +113,7 @@ def _screen_width(u, v):
     LEVEL_STEP, where a level's own thrust trend is far below the noise, and its levels are
     merged for the fits afterwards (_merge). Chosen on a systematic subsample."""
     step = max(1, u.size // SCALE_ROWS)
-    vi = _bands(v[::step], float(np.min(v)), 0.0)[0]
+    vi = _bands(v[::step], v_lo, 0.0)[0]
     width = LEVEL_STEP
     ramp = np.unique(np.rint(u[::step] / width)).size > RAMP_COMMANDS
     for _ in range(6 if ramp else 0):
@@ -184,9 +184,10 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     v = np.asarray(voltage_V, dtype=float)
     t = np.asarray(thrust_N, dtype=float)
     p = np.asarray(power_W, dtype=float)
-    width, ramp = _screen_width(u, v)
+    v_lo, v_hi = float(np.min(v)), float(np.max(v))  # bus voltage span [V]
+    width, ramp = _screen_width(u, v, v_lo)
     widened = width > LEVEL_STEP
-    key, count, cmd_index, band = _keys(u, v, width)
+    key, count, cmd_index, band = _keys(u, v, width, v_lo, v_hi)
     n_keys = count.size
     safe = np.maximum(count, 1.0)
     sums = [np.bincount(key, weights=c, minlength=n_keys) for c in (u, v, t, p)]
