@@ -103,3 +103,11 @@ def parse_propeller_size(text, what="size"):
     scale = _UNITS["length"][unit][0]
     return float(m.group(1)) * scale, float(m.group(2)) * scale
 
+
+def plain_number(x, digits=4):
+    """x with ``digits`` significant digits in plain decimal notation (15410, 7.076, 0.01241),
+    never the exponent form a person misreads (1.541e+04)."""
+    if x == 0 or not math.isfinite(x):
+        return "%g" % x
+    decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
+    return "%.*f" % (decimals, round(x, decimals))

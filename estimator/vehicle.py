@@ -267,6 +267,9 @@ def _json_path(block, key):
     return "$." + (block + "." if block else "") + key
 
 
+_CELLS_WRITTEN = re.compile(r"\s*([0-9]{1,3})\s*[sS]\s*$")
+
+
 def normalise(document, source):
     """Turn quantities written with units into the schema's SI keys; return (document, given).
 
@@ -290,6 +293,11 @@ def normalise(document, source):
             continue
         if block:
             node = out[block] = dict(node)
+        cells = node.get("cells") if block == "battery" else None
+        if isinstance(cells, str) and _CELLS_WRITTEN.match(cells):
+            # the trade writes a pack's series cell count as "6S" (common practice)
+            node["cells"] = int(_CELLS_WRITTEN.match(cells).group(1))
+            given[_json_path(block, "cells")] = (_json_path(block, "cells"), cells)
         if block == "propeller" and "size" in node:
             path = _json_path(block, "size")
             for key in ("diameter_m", "pitch_m", "diameter", "pitch"):

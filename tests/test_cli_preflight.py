@@ -9,6 +9,7 @@ import pytest
 
 from estimator.core.atmosphere import site_air
 from estimator.demo.scenario import DEMO_VEHICLE
+from estimator.units import plain_number
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 DEMO_FILE = os.path.join(ROOT, "schemas", "examples", "valid", "vehicle-demo-quad.json")
@@ -240,12 +241,13 @@ def test_static_shows_what_good_sets_reach_beside_the_rule_of_thumb():
     assert res["thrust_N_at_k_0_5"] == pytest.approx(res["thrust_N"] * 0.5 / 0.3, rel=1e-12)
     assert res["thrust_N_at_k_0_7"] == pytest.approx(res["thrust_N"] * 0.7 / 0.3, rel=1e-12)
     text = " ".join(run("static", "--diameter", "10in", "--power", "70").stdout.split())  # wrapped at 80
-    assert "good small sets reach k 0.5..0.7: %.3g N (k 0.5) .. %.3g N (k 0.7)" % (
-        res["thrust_N_at_k_0_5"], res["thrust_N_at_k_0_7"]) in text
+    assert "good small sets reach k 0.5..0.7: %s N (k 0.5) .. %s N (k 0.7)" % (
+        plain_number(res["thrust_N_at_k_0_5"], 3), plain_number(res["thrust_N_at_k_0_7"], 3)) in text
     # power falls as k rises: low..high values, each with its own k (new-user trial 2 item 19)
     small = " ".join(run("static", "--diameter", "3in", "--thrust", "0.24N").stdout.split())
     back_small = run_json("static", "--diameter", "3in", "--thrust", "0.24N")
-    assert "%.3g W (k 0.7) .. %.3g W (k 0.5)" % (back_small["power_W_at_k_0_7"], back_small["power_W_at_k_0_5"]) in small
+    assert "%s W (k 0.7) .. %s W (k 0.5)" % (plain_number(back_small["power_W_at_k_0_7"], 3),
+                                             plain_number(back_small["power_W_at_k_0_5"], 3)) in small
     assert "clamped stand" in text and "plane of the rotors" in text  # the bench caution stays
     back = run_json("static", "--diameter", "10in", "--thrust", "5N")
     # P = (T / k)^1.5 / sqrt(2 rho A): P scales as k^-1.5 (same formula solved for P)

@@ -92,7 +92,8 @@ def test_no_false_zero_error_bar_and_sensible_digits(tmp_path, seed):
 
 def test_value_and_error_rounding_examples():
     # NIST TN 1297 sec. 7 style (from memory): two significant digits in the uncertainty
-    from estimator.bench.wording import plain_number, value_and_error
+    from estimator.bench.wording import value_and_error
+    from estimator.units import plain_number
     assert value_and_error(1873.3, 7.019) == ("1873.3", "7.0")
     assert value_and_error(15412.0, 121.2) == ("15410", "120")
     assert value_and_error(0.6234, 0.0381) == ("0.623", "0.038")

@@ -6,12 +6,11 @@ judged from the data alone: thrust must grow with the power the motor takes, and
 that stands still (the power at its idle value) makes no thrust.
 """
 
-import math
-
 import numpy as np
 
 from estimator.errors import InputError
 from estimator.bench.reader import UNITS
+from estimator.units import plain_number
 
 # rows judged for the sign: a systematic subsample of at most this many [-]
 SIGN_ROWS = 20000
@@ -25,9 +24,7 @@ TARE_SHARE = 0.015
 
 def _in_unit(thrust_N, unit):
     """A thrust [N] in the CSV's unit, three significant digits, never in exponent form."""
-    x = thrust_N / UNITS["thrust"][unit][0]
-    decimals = max(0, 2 - int(math.floor(math.log10(abs(x))))) if x else 0
-    return "%.*f %s" % (decimals, x, unit)
+    return "%s %s" % (plain_number(thrust_N / UNITS["thrust"][unit][0], 3), unit)
 
 
 def check_thrust_sign(source, thrust_N, power_W, thrust_unit="N"):

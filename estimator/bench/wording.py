@@ -4,6 +4,8 @@ matching digits, plain decimals rather than exponent forms."""
 
 import math
 
+from estimator.units import plain_number
+
 
 def command_text(u, unit, span=False):
     """A command [-] written in the unit of the CSV's command column (us, % or -); span=True
@@ -23,15 +25,6 @@ def command_with_error(u, se, unit):
     if not error:
         return command_text(u, unit)
     return "%s%s +- %s%s" % (value, tail, error, tail)
-
-
-def plain_number(x, digits=4):
-    """x with ``digits`` significant digits in plain decimal notation (15410, 7.076, 0.01241),
-    never the exponent form a person misreads (1.541e+04)."""
-    if x == 0 or not math.isfinite(x):
-        return "%g" % x
-    decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
-    return "%.*f" % (decimals, round(x, decimals))
 
 
 def value_and_error(value, se, digits=4):

@@ -45,7 +45,8 @@ def _start_text(mm, unit):
 
 
 def _human_fit(params, out_file, warnings=None):
-    from estimator.bench.wording import command_text, command_with_error, plain_number, thrust_text
+    from estimator.bench.wording import command_text, command_with_error, thrust_text
+    from estimator.units import plain_number
 
     c, p, k, q = (params["thrust_curve"], params["power_model"], params["static_factor"],
                   params["fit_quality"])

@@ -91,6 +91,7 @@ def _report(vehicle, params=None):
         "hover_limited_by": None if hovering else (hov["limited_by"] or "command"),
         "mass_kg": vehicle["mass_kg"],
         "mass_as_given": given_text(vehicle, "$.mass_kg"),
+        "propeller_as_given": given_text(vehicle, "$.propeller.diameter_m"),
         "weight_N": nominal["weight_N"],
         "rotor_count": count,
         "layout": layout,
@@ -189,9 +190,13 @@ def format_sheet(report):
         _num(100.0 * report["density_ratio"] if report.get("density_ratio") else None, "%.0f", "%"),
         _num(report.get("density_altitude_m"), "%.0f", "m"))
     as_given = report.get("mass_as_given")
-    setup = "%s%s, %d rotors (%s)" % (_num(report.get("mass_kg"), "%.2f", "kg"),
-                                     " (%s as written)" % as_given if as_given else "",
-                                   report.get("rotor_count", 0), report.get("layout", "flat"))
+    size_given = report.get("propeller_as_given")
+    diameter = report.get("propeller_diameter_m")
+    setup = "%s%s, %d rotors (%s)%s" % (
+        _num(report.get("mass_kg"), "%.2f", "kg"), " (%s as written)" % as_given if as_given else "",
+        report.get("rotor_count", 0), report.get("layout", "flat"),
+        ", propellers %.3g m%s" % (diameter, " (%s as written)" % size_given if size_given else "")
+        if diameter else "")
     lines += ["vehicle  " + setup, "site     " + air, ""]
 
     lines.append("1. Will it hover?")

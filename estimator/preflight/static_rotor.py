@@ -7,6 +7,7 @@ slipstream and disk loading. The command only reads options and prints.
 
 from estimator.cautions import cautions
 from estimator.core import momentum
+from estimator.units import plain_number
 
 # common practice rule of thumb for small electric propeller sets (design notes sec. 3a):
 # conservative, not a value to expect
@@ -63,18 +64,19 @@ def format_static(out, power_given):
     lo, hi = GOOD_SET_FACTORS
     # three significant digits: a micro rotor's watts and a heavy lifter's newtons alike
     if power_given:
-        lines.append("  %.3g W in -> %.3g N of thrust (ideal actuator disk: %.3g N)"
-                     % (out["power_W"], out["thrust_N"], out["ideal_thrust_N"]))
+        lines.append("  %s W in -> %s N of thrust (ideal actuator disk: %s N)"
+                     % tuple(plain_number(out[k], 3) for k in ("power_W", "thrust_N", "ideal_thrust_N")))
         key, unit = "thrust_N_at_k_", "N"
     else:
-        lines.append("  %.3g N of thrust needs %.3g W in (ideal actuator disk: %.3g W)"
-                     % (out["thrust_N"], out["power_W"], out["ideal_power_W"]))
+        lines.append("  %s N of thrust needs %s W in (ideal actuator disk: %s W)"
+                     % tuple(plain_number(out[k], 3) for k in ("thrust_N", "power_W", "ideal_power_W")))
         key, unit = "power_W_at_k_", "W"
     if default:
         # low..high values, each with the k that gives it (power falls as k rises)
         (a, ka), (b, kb) = sorted((out[key + factor_tag(k)], k) for k in (lo, hi))
-        lines.append("  good small sets reach k %.1f..%.1f: %.3g %s (k %.1f) .. %.3g %s (k %.1f); k = 0.3 "
-                     "is a conservative rule of thumb, common practice" % (lo, hi, a, unit, ka, b, unit, kb))
+        lines.append("  good small sets reach k %.1f..%.1f: %s %s (k %.1f) .. %s %s (k %.1f); k = 0.3 "
+                     "is a conservative rule of thumb, common practice"
+                     % (lo, hi, plain_number(a, 3), unit, ka, plain_number(b, 3), unit, kb))
     lines.append("  induced velocity %.1f m/s, slipstream %.1f m/s, disk loading %.0f N/m^2"
                  % (out["induced_velocity_m_s"], out["slipstream_velocity_m_s"], out["disk_loading_N_m2"]))
     lines += ["  " + c for c in cautions("rotor")]

@@ -10,6 +10,7 @@ unit prefix or the decimal point, and the warning names the values that would ma
 """
 
 import math
+import re
 
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2
@@ -59,6 +60,30 @@ def _written_hint(value, unit, plausible, fmt="%.3g"):
     return " or ".join(out)
 
 
+# the length units a propeller size is written in, to metres (NIST SP 811, exact)
+SIZE_UNITS_M = (("in", 0.0254), ("cm", 0.01), ("mm", 0.001))
+
+
+def _size_slip(vehicle, mass, count):
+    """'inches meant? (5.1 in = 0.13 m)' when a propeller size written with a unit
+    ("5.1x4.6cm") gives an ordinary disk loading in another length unit, else ''."""
+    text = given_text(vehicle, "$.propeller.diameter_m")
+    if not isinstance(text, str):
+        return ""
+    diameter = vehicle["propeller"]["diameter_m"]
+    found = re.match(r"\s*([0-9]*\.?[0-9]+)", text)
+    if not found:
+        return ""
+    number = float(found.group(1))
+    for unit, scale in SIZE_UNITS_M:
+        if abs(number * scale - diameter) <= 1e-9 * diameter:
+            continue                                   # the unit as written
+        if _typical(_disk_loading(mass, count, number * scale)):
+            return "%s meant? (%g %s = %.3g m)" % (
+                {"in": "inches", "cm": "centimetres", "mm": "millimetres"}[unit], number, unit, number * scale)
+    return ""
+
+
 def suspicious_values(vehicle):
     """Warnings (strings) for values of a checked vehicle that usually mean a unit slip.
 
@@ -76,11 +101,17 @@ def suspicious_values(vehicle):
     mass_bare = given_text(vehicle, "$.mass_kg") is None
     diameter_bare = given_text(vehicle, "$.propeller.diameter_m") is None
     lo, hi = DISK_LOADING_TYPICAL_N_M2
-    if loading > hi:
+    size_hint = _size_slip(vehicle, mass, count) if loading > hi else ""
+    if size_hint:
+        written = given_text(vehicle, "$.propeller.diameter_m")
+        out.append("$.propeller.size: \"%s\" reads as a %.3g m propeller; %g kg on %d of them puts "
+                   "%.0f N/m^2 on each disk at hover, far above the %g..%g N/m^2 of small "
+                   "multirotors: %s" % (written, diameter, mass, count, loading, lo, hi, size_hint))
+    elif loading > hi:
         # 1 g = 1e-3 kg (NIST SP 811)
         if mass_bare:
             hint = ("grams meant? (%g g = %g kg)" % (mass, mass * 1e-3)
-                    if _disk_loading(mass * 1e-3, count, diameter) <= hi
+                    if DISK_LOADING_FLOOR_N_M2 <= _disk_loading(mass * 1e-3, count, diameter) <= hi
                     else "check the mass (kilograms) and the diameter (metres)")
         else:
             hint = _written_hint(mass, "kg", lambda m: _typical(_disk_loading(m, count, diameter)))
