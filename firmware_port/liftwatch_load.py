@@ -6,9 +6,14 @@ and raises ConfigProblem with a sentence saying what is wrong and what to do - a
 by hand, copied from another vehicle's bundle or left over from an older liftcal version is
 refused before the first flight, not in the air. Python ``assert`` is not used: compiled .mpy
 files may drop it.
+
+The layout module (names, bounds and messages: several KB of heap once imported) is needed
+only for this one check, so load() imports it and lets it go again (sys.modules); the watch
+itself keeps only the kernel, CONFIG and its own state (benchmarks/watch_memory.py).
 """
 
-import liftwatch_layout
+import sys
+
 from liftwatch import Watch
 
 
@@ -24,10 +29,14 @@ def load(config=None):
     if config is None:
         from liftwatch_config import CONFIG
         config = CONFIG
+    import liftwatch_layout
     try:
         problem = liftwatch_layout.check(config)
     except TypeError:
         problem = "CONFIG is not a list of integers"
+    finally:
+        del liftwatch_layout
+        sys.modules.pop("liftwatch_layout", None)   # needed once: its heap is freed at the next collection
     if problem:
         raise ConfigProblem("liftwatch: " + problem + " (regenerate it with liftcal firmware)")
     return Watch(config)

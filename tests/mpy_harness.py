@@ -50,3 +50,29 @@ def run_micropython(script_text, modules=(), tmp_path=None, timeout=300, heap_by
         raise AssertionError("MicroPython script failed (exit %d):\n%s\n%s"
                              % (proc.returncode, proc.stdout[-2000:], proc.stderr[-4000:]))
     return proc.stdout
+
+
+NEXT_CALL = "#@next-call"   # run_mpy.mjs runs each part of a script in its own runPython call
+
+
+def heap_script(steps):
+    """MicroPython script text: run each step (code text) and record the heap it keeps.
+
+    Heap = gc.mem_alloc() after gc.collect(), taken two runPython calls after the step: the
+    step's garbage (e.g. the module-level bytecode of an imported .mpy, freed once the import
+    is done) is otherwise still reachable from dead slots of the calling frame's stack or the
+    pending call, and a collection inside the same call would count it as kept. Prints
+    "HEAP d1 d2 ..." (bytes kept by each step).
+    """
+    parts = ["import gc\nHEAP = [0] * %d\n" % (len(steps) + 1), "gc.collect()\n",
+             "gc.collect()\nHEAP[0] = gc.mem_alloc()\n"]
+    for i, step in enumerate(steps):
+        parts += [step + "\n", "gc.collect()\n", "gc.collect()\nHEAP[%d] = gc.mem_alloc()\n" % (i + 1)]
+    parts.append("print('HEAP', ' '.join(str(HEAP[i + 1] - HEAP[i]) for i in range(%d)))\n" % len(steps))
+    return ("\n" + NEXT_CALL + "\n").join(parts)
+
+
+def heap_kept(steps, modules=(), tmp_path=None):
+    """Bytes of MicroPython heap kept by each step (list of code texts), see heap_script."""
+    out = run_micropython(heap_script(steps), modules, tmp_path)
+    return [int(x) for x in out.split("HEAP", 1)[1].split()]

@@ -355,3 +355,34 @@ print("D", try_load(bad))
     cfg = list(as_tuple(make_config(demo_fit_params())[0]))
     cfg[watch_layout.INDEX["block_ms"]] = 5000
     assert "block_ms is 5000, outside 100..1000" in watch_layout.check(cfg)
+
+
+def test_heap_reading_counts_what_is_kept_not_garbage(tmp_path):
+    # The heap reading (mpy_harness.heap_script) can fail both ways: a kept 2000-byte bytearray
+    # is counted, a deleted one is not; the older reading (gc.collect() inside the same
+    # interpreter call) still counts the deleted one - it also counted garbage.
+    from mpy_harness import heap_kept
+
+    kept = heap_kept(["B = 0", "B = bytearray(2000)", "B = 0"], (), tmp_path)
+    assert 2000 <= kept[1] <= 2048 and kept[1] + kept[2] == 0, kept
+    out = run_micropython("import gc\ngc.collect()\na = gc.mem_alloc()\nB = bytearray(2000)\ndel B\n"
+                          "gc.collect()\nprint('OLD', gc.mem_alloc() - a)\n", (), tmp_path)
+    assert int(out.split("OLD")[1]) >= 2000, out
+
+
+def test_board_loader_lets_the_layout_go(bundle, tmp_path):
+    # load() needs liftwatch_layout once (the CONFIG check): afterwards it is out of sys.modules
+    # and its heap (names, bounds, messages: about 6 KB) is freed; what the board path keeps
+    # beyond the kernel, CONFIG and the Watch is the loader and the layout's interned names.
+    from mpy_harness import heap_kept
+
+    mods = [bundle / "mpy" / (m + ".mpy") for m in MODULES]
+    out = run_micropython("import sys, liftwatch_load\nw = liftwatch_load.load()\n"
+                          "print('LAYOUT', 'liftwatch_layout' in sys.modules)\n", mods, tmp_path)
+    assert "LAYOUT False" in out, out
+    contract = sum(heap_kept(["import liftwatch_config", "import liftwatch",
+                              "w = liftwatch.Watch(liftwatch_config.CONFIG)"], mods, tmp_path))
+    layout = sum(heap_kept(["import liftwatch_layout"], mods, tmp_path))
+    board = sum(heap_kept(["import liftwatch_load", "w = liftwatch_load.load()"], mods, tmp_path))
+    assert layout > 4000, layout                      # what is let go
+    assert board < contract + 1600, (board, contract)  # was contract + 7300 while the layout stayed

@@ -5,6 +5,10 @@
 // Every MODULE_FILE (.py or .mpy) is written into the interpreter's file system under
 // /lib with FS.writeFile, so the script can import it; then the script runs with
 // runPython and its output goes to stdout. Exit code 1 when the script raises.
+// A line "#@next-call" splits the script: each part runs in its own runPython call, so
+// objects the previous part left on the interpreter's stack are no longer roots for the
+// next part's gc.collect() (within one call the top-level frame's dead stack slots and the
+// pending call's C stack keep garbage alive; benchmarks/watch_memory.py measures heap this way).
 // Note: micropython.heap_lock() must be called inside a function in the script; at
 // module level it hangs this port.
 import { readFileSync } from "node:fs";
@@ -29,7 +33,9 @@ for (const path of modules) {
 }
 try {
   mp.runPython("import sys\nif '/lib' not in sys.path: sys.path.append('/lib')\n");
-  mp.runPython(readFileSync(script, "utf8"));
+  for (const part of readFileSync(script, "utf8").split(/^#@next-call$/m)) {
+    mp.runPython(part);
+  }
 } catch (e) {
   process.stderr.write(String(e && e.message ? e.message : e) + "\n");
   process.exit(1);
