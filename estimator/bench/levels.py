@@ -68,7 +68,7 @@ def noise_profile(level_thrust, dev):
     n_bins = int(min(NOISE_BINS, dev.size // NOISE_BIN_ROWS))
     if n_bins < 1:
         return None
-    order = np.argsort(level_thrust, kind="stable")
+    order = _stable_order(level_thrust)
     knots, scales = [], []
     for part in np.array_split(order, n_bins):
         knots.append(float(np.median(level_thrust[part])))
@@ -81,27 +81,40 @@ def noise_profile(level_thrust, dev):
     return knots, scales
 
 
+def _stable_order(x):
+    """numpy.argsort(x, kind="stable") for finite x, in a fraction of its time: the rank of
+    each value among the distinct values, then row order within equal values, make keys that
+    are all different, so any sort of them gives the stable order."""
+    ranks = np.unique(x, return_inverse=True)[1].reshape(-1).astype(np.int64)
+    ranks *= x.size
+    ranks += np.arange(x.size)
+    return np.argsort(ranks)
+
+
 def _bands(v, v_lo, v_hi):
-    """(supply band number of each voltage v [V], number of bands) for a sweep whose bus
-    voltage spans v_lo..v_hi [V] (v_lo > 0)."""
+    """(supply band number of each voltage v [V] (whole numbers as floats), number of
+    bands) for a sweep whose bus voltage spans v_lo..v_hi [V] (v_lo > 0)."""
     per_volt = 1.0 / (VOLTAGE_BAND * v_lo)  # band k holds the voltages nearest (k + 100) % of v_lo
     bands = v * per_volt
     bands -= 1.0 / VOLTAGE_BAND - 0.5
-    return bands.astype(np.int64), int(v_hi * per_volt - 1.0 / VOLTAGE_BAND + 0.5) + 1
+    np.trunc(bands, out=bands)
+    return bands, int(v_hi * per_volt - 1.0 / VOLTAGE_BAND + 0.5) + 1
 
 
 def _keys(u, v, width, v_lo, v_hi):
     """Level of every row at command step ``width`` [-] (v_lo..v_hi: the voltage span [V]):
     (dense level number of each row, in command order; rows per level; command step index
     of each level; supply band of each level)."""
-    ci = np.rint(u * (1.0 / width)).astype(np.int64)
-    vi, n_bands = _bands(v, v_lo, v_hi)
-    ci *= n_bands
-    ci += vi
-    present = np.bincount(ci)
+    key = u * (1.0 / width)
+    np.rint(key, out=key)
+    bands, n_bands = _bands(v, v_lo, v_hi)
+    key *= n_bands
+    key += bands
+    key = key.astype(np.intp)  # command step index x number of bands + supply band
+    present = np.bincount(key)
     raw = np.flatnonzero(present)
     index = np.cumsum(present > 0) - 1
-    return index[ci], present[raw].astype(float), raw // n_bands, raw % n_bands
+    return np.take(index, key), present[raw].astype(float), raw // n_bands, raw % n_bands
 
 
 def _screen_width(u, v, v_lo):
@@ -140,9 +153,8 @@ def _merge(cmd_index, band, width, count):
     return inverse
 
 
-def _median_recheck(key, rows, x, limit, ref):
-    """For the rows ``rows`` (all rows of some levels): |x - level median| / ref > limit."""
-    k, xs = key[rows], x[rows]
+def _median_recheck(k, xs, limit, ref):
+    """For rows (values xs, level numbers k; all rows of some levels): |x - level median| / ref > limit."""
     order = np.lexsort((xs, k))
     k_sorted, xs_sorted = k[order], xs[order]
     starts = np.flatnonzero(np.r_[True, k_sorted[1:] != k_sorted[:-1]])
@@ -158,7 +170,7 @@ def _screen(key, n_keys, count, x, dev2, ref, limit, allowed):
     spike moves the mean as far as its neighbours) judged again against the level's median.
     Returns the bool mask."""
     bound = np.where(allowed, limit * ref, np.inf)
-    flagged = dev2 > np.square(bound)[key]
+    flagged = dev2 > np.take(np.square(bound), key)
     hits = np.flatnonzero(flagged)
     if hits.size == 0:
         return flagged
@@ -166,14 +178,16 @@ def _screen(key, n_keys, count, x, dev2, ref, limit, allowed):
     small_levels = np.zeros(n_keys, dtype=bool)
     small_levels[k[count[k] < SMALL_LEVEL]] = True
     if np.any(small_levels):
-        rows = np.flatnonzero(small_levels[key])
-        flagged[rows] = _median_recheck(key, rows, x, limit, ref) & allowed[key[rows]]
+        rows = np.flatnonzero(np.take(small_levels, key))
+        k = key[rows]
+        flagged[rows] = _median_recheck(k, x[rows], limit, ref) & allowed[k]
     return flagged
 
 
-def command_levels(command, voltage_V, thrust_N, power_W):
+def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     """Gather rows (SI arrays of equal length) into levels (module docstring).
 
+    voltage_span_V: (lowest, highest) bus voltage of the rows [V] when the caller knows it.
     Returns dict: command, voltage_V, thrust_N, power_W (level means of the rows kept),
     count (rows kept per level), row_level (level index of every row), thrust_spike,
     power_spike (bool per row: far from its level; power judged relative to the level's
@@ -184,29 +198,40 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     v = np.asarray(voltage_V, dtype=float)
     t = np.asarray(thrust_N, dtype=float)
     p = np.asarray(power_W, dtype=float)
-    v_lo, v_hi = float(np.min(v)), float(np.max(v))  # bus voltage span [V]
+    if voltage_span_V is None:
+        voltage_span_V = (float(np.min(v)), float(np.max(v)))
+    v_lo, v_hi = voltage_span_V  # bus voltage span [V]
     width, ramp = _screen_width(u, v, v_lo)
     widened = width > LEVEL_STEP
     key, count, cmd_index, band = _keys(u, v, width, v_lo, v_hi)
     n_keys = count.size
+
+    def level_sums(x):
+        return np.bincount(key, weights=x, minlength=n_keys)
+
+    def to_rows(x):  # a value per level, gathered to every row
+        return np.take(x, key)
+
     safe = np.maximum(count, 1.0)
-    sums = [np.bincount(key, weights=c, minlength=n_keys) for c in (u, v, t, p)]
+    sums = [level_sums(c) for c in (u, v, t, p)]
     u_m, v_m, t_m, p_m = (x / safe for x in sums)
     big = count >= 3
     t_top = float(np.max(np.abs(t_m))) if t_m.size else 0.0
     ref_p = np.maximum(np.abs(p_m), 1e-9)
     # each row's deviation from its level's mean and trend in the command (levels of a ramp
     # span a little command); one full-size temporary per column, reused by the screen
-    dt = t - t_m[key]
-    dp = p - p_m[key]
+    dt = to_rows(t_m)
+    np.subtract(t, dt, out=dt)
+    dp = to_rows(p_m)
+    np.subtract(p, dp, out=dp)
     if widened:
-        du = u - u_m[key]
-        suu = np.bincount(key, weights=du * du, minlength=n_keys)
+        du = u - to_rows(u_m)
+        suu = level_sums(du * du)
         suu[suu <= 0.0] = np.inf
-        bt = np.bincount(key, weights=du * dt, minlength=n_keys) / suu
-        bp = np.bincount(key, weights=du * dp, minlength=n_keys) / suu
-        dt -= bt[key] * du
-        dp -= bp[key] * du
+        bt = level_sums(du * dt) / suu
+        bp = level_sums(du * dp) / suu
+        dt -= to_rows(bt) * du
+        dp -= to_rows(bp) * du
         del du
     # robust scales of the deviations, on a systematic subsample
     step = max(1, u.size // SCALE_ROWS)
@@ -235,8 +260,8 @@ def command_levels(command, voltage_V, thrust_N, power_W):
     np.square(dt, out=dt)
     np.square(dp, out=dp)
     if np.any(own):
-        ms_t = np.bincount(key, weights=dt, minlength=n_keys) / safe
-        ms_p = np.bincount(key, weights=dp, minlength=n_keys) / safe
+        ms_t = level_sums(dt) / safe
+        ms_p = level_sums(dp) / safe
         scale_t[own] = np.maximum(np.sqrt(ms_t[own]), 1e-6 * t_top)
         scale_p[own] = np.maximum(np.sqrt(ms_p[own]), 1e-6 * ref_p[own])
     thrust_spike = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
@@ -267,8 +292,10 @@ def command_levels(command, voltage_V, thrust_N, power_W):
         count = np.bincount(merged, weights=count)
         safe = np.maximum(count, 1.0)
         u_m, v_m, t_m, p_m = (np.bincount(merged, weights=x) / safe for x in sums)
-        key = merged[key]
     has = count > 0
+    out_level = np.cumsum(has) - 1  # level number in the output of each (merged) level
+    if merged is not None:
+        out_level = out_level[merged]
     return {"command": u_m[has], "voltage_V": v_m[has], "thrust_N": t_m[has], "power_W": p_m[has],
-            "count": count[has], "row_level": (np.cumsum(has) - 1)[key],
+            "count": count[has], "row_level": to_rows(out_level),
             "thrust_spike": thrust_spike, "power_spike": power_spike}

@@ -56,6 +56,10 @@ MAX_CURRENT_A = 1000.0
 MAX_THRUST_N = 5000.0
 # share of rows allowed outside 0..1 before the command unit itself is suspect
 COMMAND_OUTSIDE_SHARE = 0.05
+# the medians of the range checks (bus voltage, current) are taken over a systematic subsample
+# of at most about this many rows: they judge factors of 2 and 1000, far coarser than its
+# sampling error [-]
+MEDIAN_ROWS = 20000
 
 
 def _sha256_and_commas(path, count=True):
@@ -133,13 +137,16 @@ _LOADTXT = {"delimiter": ",", "comments": "#", "ndmin": 2, "dtype": float, "enco
 
 
 def _load_numbers(path, skip, ncols, wanted):
-    """(an array of rows x columns, the table column of each of ``wanted``, the file's SHA-256).
+    """(one contiguous array per column of ``wanted``, in that order; the (min, max) of each
+    when every value is finite (_extremes), else None; the file's SHA-256).
 
     One numpy.loadtxt. When the file holds other columns too, it parses only ``wanted``; it
     then does not look at the other cells, so the file's commas (counted while hashing) prove
-    that every data row has the header's width (a full read checks that by itself). On any
-    trouble (a row of another width, text where a number belongs, NaN or infinity written in
-    a cell) the slow parse, which names the broken row or turns empty cells into NaN.
+    that every data row has the header's width (a full read checks that by itself). Each
+    column is copied out of the table once; its min and max (NaN or infinity makes one of
+    them non-finite) then decide finiteness and serve the row checks. On any trouble (a row
+    of another width, text where a number belongs, NaN or infinity written in a cell) the
+    slow parse, which names the broken row or turns empty cells into NaN.
     """
     import warnings
 
@@ -154,14 +161,30 @@ def _load_numbers(path, skip, ncols, wanted):
         with warnings.catch_warnings():
             warnings.simplefilter("error")
             table = np.loadtxt(path, skiprows=skip, usecols=None if every else wanted, **_LOADTXT)
-        # two reductions decide finiteness (a NaN or infinity makes the min or max non-finite)
         if (table.shape[1] == (ncols if every else len(wanted))
-                and (every or commas - _head_commas(path, skip) == table.shape[0] * (ncols - 1))
-                and math.isfinite(float(table.min())) and math.isfinite(float(table.max()))):
-            return table, (list(wanted) if every else list(range(len(wanted)))), digest
+                and (every or commas - _head_commas(path, skip) == table.shape[0] * (ncols - 1))):
+            cols = [np.ascontiguousarray(table[:, k]) for k in (wanted if every else range(len(wanted)))]
+            del table
+            extremes = _extremes(cols)
+            if extremes is not None:
+                return cols, extremes, digest
     except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
         pass
-    return _slow_parse(path, skip, ncols, wanted), list(wanted), digest
+    table = _slow_parse(path, skip, ncols, wanted)
+    cols = [np.ascontiguousarray(table[:, k]) for k in wanted]
+    return cols, _extremes(cols), digest
+
+
+def _extremes(cols):
+    """[(min, max) of each column], or None when a column is empty or holds a NaN or an
+    infinity (then its min or max is not finite)."""
+    import numpy as np
+
+    if not cols[0].size:
+        return None
+    with np.errstate(invalid="ignore"):
+        out = [(float(np.min(c)), float(np.max(c))) for c in cols]
+    return out if all(math.isfinite(lo) and math.isfinite(hi) for lo, hi in out) else None
 
 
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
@@ -169,7 +192,8 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     """Read a bench CSV into SI arrays and apply the row checks.
 
     Options override the file's comment header. Returns a dict: command, voltage_V,
-    thrust_N, power_W (numpy arrays of the rows kept), rows_total, rows_rejected,
+    thrust_N, power_W (numpy arrays of the rows kept), voltage_span_V (their lowest and
+    highest bus voltage [V]), rows_total, rows_rejected,
     rejected (reason -> count), bench_air {density_kg_m3, source}, diameter_m (or None),
     input_sha256, warnings (list of str). Raises InputError on broken files and on units
     that are very likely mislabelled.
@@ -181,17 +205,20 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     columns, warnings = _parse_header(path, head)
     warnings = comment_warnings + list(warnings)
     ncols = len(head.cells)
-    table, at, digest = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED])
+    cols, raw_extremes, digest = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED])
     data = {}
-    cols = [np.ascontiguousarray(table[:, k]) for k in at]
-    del table
-    for name, col in zip(REQUIRED, cols):
+    # one min and max per column decide the common case: every value finite and inside
+    # every row check, so no row is dropped and no mask is needed (scaling keeps the order)
+    extremes = None if raw_extremes is None else []
+    for k, (name, col) in enumerate(zip(REQUIRED, cols)):
         unit = columns[name][1]
         scale, offset = UNITS[name][unit]
         if scale != 1.0:
             col *= scale
         if offset != 0.0:
             col += offset
+        if extremes is not None:
+            extremes.extend(x * scale + offset for x in raw_extremes[k])
         data[name] = col
         data[name + "_unit"] = unit
     del cols
@@ -202,14 +229,10 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
                          "to full command" % (path, rows_total))
 
     u, v, i, t = data["command"], data["voltage"], data["current"], data["thrust"]
-    # one min and max per column decide the common case: every value finite and inside
-    # every row check, so no row is dropped and no mask is needed
-    with np.errstate(invalid="ignore"):
-        extremes = [float(f(x)) for x in (u, v, i, t) for f in (np.min, np.max)]
-    clean = all(math.isfinite(x) for x in extremes)
+    clean = extremes is not None
     v_med = None
     if clean:
-        v_med = float(np.median(v[:: max(1, v.size // 200000)]))
+        v_med = float(np.median(v[:: max(1, v.size // MEDIAN_ROWS)]))
     _check_units(path, data, v_med, extremes if clean else None)
     units = {name: data[name + "_unit"] for name in REQUIRED}
     if clean:
@@ -222,9 +245,11 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
         rejected = {}
         n_keep = rows_total
         power = v * i  # electrical (bus) power [W]; the current column itself is not kept
+        v_span = (v_lo, v_hi)
         del i, data
     else:
         u, v, t, power, rejected, n_keep = _row_checks(path, data, rows_total)
+        v_span = (float(np.min(v)), float(np.max(v)))
         del data
 
     air = bench_air(path, comments, density_kg_m3, altitude_m, temperature_C, pressure_Pa,
@@ -235,7 +260,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
         raise InputError("%s: propeller diameter %.4g m is outside 0.01..3 m; give it as e.g. "
                          "'# diameter: 10in' or '--diameter 0.254'" % (path, diameter_m))
     out = {
-        "command": u, "voltage_V": v, "thrust_N": t, "power_W": power,
+        "command": u, "voltage_V": v, "thrust_N": t, "power_W": power, "voltage_span_V": v_span,
         "thrust_unit": units["thrust"], "command_unit": units["command"],
         "current_unit": units["current"],
         "rows_total": rows_total, "rows_rejected": rows_total - n_keep,
@@ -263,7 +288,7 @@ def _row_checks(path, data, rows_total):
         neg_i = finite & (i < -tol_i)
         bad_v = finite & (v <= 0.0)
         out_u = finite & ((u < 0.0) | (u > 1.0))
-        step = max(1, rows_total // 200000)
+        step = max(1, rows_total // MEDIAN_ROWS)
         v_fin = v[::step][finite[::step]]
         v_med = float(np.median(v_fin)) if v_fin.size else float(np.median(v[finite]))
         odd_v = finite & ~bad_v & ((v > 2.0 * v_med) | (v < 0.5 * v_med))
@@ -300,7 +325,7 @@ def _check_units(path, data, v_med=None, extremes=None):
     with np.errstate(invalid="ignore"):
         if v_med is None:
             v = data["voltage"]
-            v = v[:: max(1, v.size // 200000)]
+            v = v[:: max(1, v.size // MEDIAN_ROWS)]
             v_med = float(np.nanmedian(v)) if np.any(np.isfinite(v)) else float("nan")
         if not np.isfinite(v_med):
             raise InputError("%s: column voltage holds no numbers" % path)
@@ -337,7 +362,7 @@ def _check_units(path, data, v_med=None, extremes=None):
         # the median can only exceed the limit when the largest value does (the clean case
         # knows it already: no pass over the column then)
         i_big = data["current_unit"] == "A" and (extremes is None or extremes[5] > MAX_CURRENT_A)
-        i = data["current"][:: max(1, data["current"].size // 200000)] if i_big else None
+        i = data["current"][:: max(1, data["current"].size // MEDIAN_ROWS)] if i_big else None
         i_med = float(np.nanmedian(i)) if i_big and np.any(np.isfinite(i)) else float("nan")
         if i_med > MAX_CURRENT_A:
             raise InputError("%s: current median %.4g A is above %g A for one rotor's supply; is the "

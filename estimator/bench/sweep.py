@@ -230,7 +230,8 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     check_thrust_sign(source, t, p, data.get("thrust_unit", "N"))
     check_static_factor(source, t, p, rho, area, data.get("thrust_unit", "N"),
                         data.get("current_unit", "A"), warnings)
-    lv = command_levels(u, v, t, p)
+    v_span = data.get("voltage_span_V") or (float(np.min(v)), float(np.max(v)))
+    lv = command_levels(u, v, t, p, v_span)
     tare = tare_warning(lv, data.get("thrust_unit", "N"))
     if tare:
         warnings.append(tare)
@@ -258,11 +259,12 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     grid = np.linspace(float(theta[4]), float(theta[5]), 161)
     curve = fit_quadratic(lv, v_ref, float(theta[5]), n_motor, voltage_exponent,
                           projection=(grid, rotor_arrays(theta, grid, v_ref)[0]))
-    if not swept_both_ways(u):
+    both_ways = swept_both_ways(u)
+    if not both_ways:
         _add_lag(curve)
     _add_form_gap(curve, float(rotor_arrays(theta, np.array([theta[5]]), v_ref)[0][0]))
     curve.update({"reference_voltage_V": v_ref, "reference_density_kg_m3": rho,
-                  "voltage_min_V": float(np.min(v)), "voltage_max_V": float(np.max(v)),
+                  "voltage_min_V": v_span[0], "voltage_max_V": v_span[1],
                   "density_exponent": m_motor, "command_swept_max": u_hi,
                   "command_swept_min": float(np.min(lv["command"]))})
     if curve["voltage_exponent_source"] == "motor model":
@@ -288,9 +290,8 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     motor_block.update({"reference_density_kg_m3": rho, "rms_thrust_residual_N": motor["rms_thrust_N"],
                         "thrust_residual_scale_N": motor["scale_thrust_N"],
                         "current_residual_scale_A": motor["scale_current_A"],
-                        "top_end_found": bool(top_found), "sweep_both_ways": swept_both_ways(u),
-                        "command_start_standard_error": start_standard_error(motor, lv["command"],
-                                                                             swept_both_ways(u))})
+                        "top_end_found": bool(top_found), "sweep_both_ways": both_ways,
+                        "command_start_standard_error": start_standard_error(motor, lv["command"], both_ways)})
     fit = {
         "curve": curve, "power": power, "static": sf, "rejected": rejected, "motor": motor_block,
         "rows_used": rows_used, "rows_rejected": int(data["rows_total"] - rows_used),
