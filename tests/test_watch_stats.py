@@ -8,6 +8,7 @@ value ARL = 336 one-sided / 168 two-sided for k = 0.5, h = 4 (Montgomery, Introd
 Statistical Quality Control, CUSUM chapter, from memory; design notes sec. 3a).
 """
 
+import math
 import random
 import statistics
 
@@ -129,3 +130,59 @@ def test_cli_firmware_with_a_very_clean_bench(tmp_path):
     p.write_text(json.dumps(params))
     res = CliRunner().invoke(cli, ["firmware", str(p), "--out", str(tmp_path / "b")])
     assert res.exit_code == 0, res.output
+
+
+def test_capped_reference_keeps_the_false_alarm_rate():
+    # Noisy logs (a slow logger on an unfiltered current sensor: block noise 10-30 %) once set
+    # k = 1.5 sigma, above a 10 % power step, which then could never be caught. The kernel caps
+    # k at cusum_k_max and raises h so that h k stays: Siegmund's approximation (in logs,
+    # estimator.watch.config) must then still give at least the target in-control ARL, and a
+    # 10 % step must be caught within a finite, bounded mean delay.
+    from estimator.watch.config import log_arl_two_sided
+    cfg = make_config(demo_fit_params())[0]
+    w = Watch(as_tuple(cfg))
+    target = math.log(3600000.0 / cfg["block_ms"] / 1e-6)     # DEFAULTS false_alarms_per_hour 1e-6
+    k_max = cfg["cusum_k_max_permille"]
+    for s in (8, 20, 34, 60, 130, 300, 1000):
+        w._kh(s)
+        k, h = w.sb[7], w.sb[8]
+        assert k <= k_max
+        ks, hs = k / s, h / s
+        # integer rounding of k and h moves ln ARL by at most about 2 (k + h) / s
+        assert log_arl_two_sided(ks, hs) >= target - 2.0 * (ks + hs) / s - 0.05, (s, k, h)
+        if s <= 300:   # h not needlessly high (at 100 % noise, k = 0.05 sigma, h k constant is 30x safer)
+            assert log_arl_two_sided(ks, hs) <= target + 1.5, (s, k, h)
+        if 60 <= s <= 300:
+            # a 10 % shift: finite one-sided ARL, below 200 blocks up to 13 % noise and 400 at 30 %
+            # (at k = 1.5 sigma it was beyond 1e6 blocks from 8 % noise on)
+            bound = 200.0 if s <= 130 else 400.0
+            assert siegmund_arl(ks, hs, mu=100.0 / s) < bound, (s, siegmund_arl(ks, hs, mu=100.0 / s))
+
+
+def _learn_baseline(sigma_rel, offset_rel, seed):
+    """Flags after a learning window on blocks whose measured power is P_exp (1 + offset +
+    sigma z), z ~ N(0, 1) per 1 s block (steady hover command, take-off skip 0)."""
+    cfg = make_config(demo_fit_params(), options={"takeoff_s": 0.0, "lag_ms": 0.0})[0]
+    w = Watch(as_tuple(cfg))
+    rng = random.Random(seed)
+    mv, u = 15000, 520
+    w.update(100, u, mv, 20000)
+    pe = w.st[2] >> 2
+    flags = 0
+    for _ in range(60):
+        target_dW = pe * (1.0 + offset_rel + sigma_rel * rng.gauss(0.0, 1.0))
+        ma = int(round(target_dW * 1e5 / mv))
+        for i in range(10):
+            flags |= w.update(100, u, mv, ma + i)
+    return flags
+
+
+def test_baseline_off_only_beyond_the_learned_mean_error():
+    # A +13 % power offset learned over 20 s: baseline_off (tolerance 10 %) when the blocks are
+    # clean (1 % noise), but not when each block carries 30 % noise: the window's mean then has a
+    # standard error of about 30 % / sqrt(20) = 6.7 %, and 13 % is within 2 of them of the
+    # tolerance. A +40 % offset is flagged at either noise.
+    assert _learn_baseline(0.01, 0.13, 1) & 8
+    for seed in (1, 2, 3):
+        assert not _learn_baseline(0.30, 0.13, seed) & 8, seed
+        assert _learn_baseline(0.30, 0.40, seed) & 8, seed

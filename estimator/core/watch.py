@@ -9,48 +9,13 @@ block's measured power [mN], ``hover_permille`` hover command expected at this v
 the learned power scale s [1/1000] and ``sigma_permille`` the block-residual noise (0 while the
 learning window runs).
 
-Models (design notes sec. 3, Watch). Every statistic lives in flight time, not in samples:
-- expected power: the parameter set's power model P(T) per rotor times the rotor count at the
-  thrust T(u, V, rho) of the thrust curve (tables over f = (V/V_ref)^n t(x) and over V),
-  passed through a first-order lag of time constant lag_ms (rotor spin-up and current-sensor
-  response; backward-Euler step alpha = dt / (lag + dt)), so manoeuvres are modelled;
-- measured and lagged expected energy are summed over blocks of block_ms of flight time (a
-  sample longer than a block counts as one block); one residual per block;
-- the thrust deviation x of a block is from the hover thrust, the weight carried (EMA of the
-  block thrust over 16 blocks while learning, 128 after): in steady axial flight at speed v,
-  momentum theory gives T_static - W = rho A v_h v, so x measures the climb or descent for its
-  whole length (an EMA over a few blocks would forget a descent while it lasts). A block is
-  "steady" when |x| is within steady_permille, its power above the floor, and no block was
-  outside that band for settle_ms (the power of axial flight differs from the static model);
-- the residual's known parts are taken out: cx x (thrust deviation x, axial flight) and cd g
-  (lead g: the static power at the present command less its lagged value, over the block: a DC
-  motor draws more than its static power while the rotor spins up); cx and cd are learned by
-  EMA regressions (centred, with a small ridge) while nothing is suspected;
-- learning window: after takeoff_ms of flight, learn_ms of steady blocks (or whatever there is
-  at learn_timeout_ms) give the power scale s (baseline_off when |s - 1| > tolerance) and the
-  block noise sigma, at least the bench noise floor. Block residuals are correlated over
-  seconds (gusts, altitude moves, pack sag), so sigma is the long-run one: from the residual
-  smoothed over about 7 blocks (EMA 1/4), y, as mean |y| x sqrt(7) x sqrt(pi/2) (for independent
-  blocks this is the plain sigma; for correlated ones it grows with the sum's variance);
-- in flight: a two-sided CUSUM per block (Page 1954) on z = r - d, with reference k and
-  threshold h in units of sigma (a self-starting scheme in the sense of Hawkins, J. Roy. Stat.
-  Soc. C 36 (1987): the in-control mean and noise come from the flight itself); h from
-  Siegmund's approximation for the target false alarms per flight hour (estimator/watch/
-  config.py). A block within 25 % of the hover thrust but not steady (a manoeuvre or its settle
-  time) adds z/2: its residual noise is about 1.5x a steady block's, so a fault that comes during
-  a climb is not left waiting, and a suspicion raised before one drains. While neither sum is
-  above h/2 in a steady block the noise keeps being learned (EMA of |y|, z clipped
-  at 5 sigma, floor kept, at most twice the learning window's) and a bounded slow drift d
-  follows the baseline as the pack drains;
-  both freeze while a fault is suspected. One block adds at most k + h/2 + 1: an alarm takes two;
-- implied mass: thrust from measured power (momentum theory with the calibrated static factor,
-  tabulated; the axial-flight part of the power taken out) over windows of mass_window_ms of
-  steady blocks: mean and variance of the block deviations from the planned mass, pooled with
-  the previous window; a window counts when the pooled mean exceeds the limit by a margin of z
-  standard errors (z^2 and a correlation factor in mass_z2_q8); mass_high after mass_windows
-  such windows in a row (latched until landing). Not while a fault is suspected;
-- sensor faults: out-of-range readings, a gap over dt_max_ms, the current identical for
-  stuck_ms while the rotors turn.
+Models (design notes sec. 3, Watch; the full description is in DEVELOPERS.md, "The onboard
+watch kernel"): expected power from the thrust curve and power model through a first-order
+lag; measured and expected energy over blocks of flight time, one residual per block, less its
+modelled parts (axial flight, spin-up lead); a learning window for the power scale and the
+block noise; a two-sided CUSUM per block in units of that noise (Page 1954, self-starting in
+the sense of Hawkins 1987, threshold from Siegmund's approximation); implied mass over windows
+of steady flight with its standard error; sensor-fault limits in milliseconds.
 
 Integer contract: every intermediate stays below 2^30 in magnitude for every input (range
 checks only compare; the bound for each product is the comment beside it, with the CONFIG
@@ -65,12 +30,12 @@ class Watch:
     (on the desktop: estimator.watch.config.as_tuple(make_config(...)[0]))."""
 
     def __init__(self, config):
-        """config: CONFIG of liftwatch_config, a tuple or list of 144 ints (watch_layout).
+        """config: CONFIG of liftwatch_config, a tuple or list of 145 ints (watch_layout).
 
         Raises ValueError naming the cause when CONFIG was made for another kernel format (the
         board loader liftwatch_load checks every bound first and says what is wrong).
         """
-        if len(config) != 144 or config[108] != 4:
+        if len(config) != 145 or config[108] != 5:
             raise ValueError("CONFIG: run liftcal firmware again")
         c = config
         span = c[116]
@@ -230,6 +195,26 @@ class Watch:
         st[1] = flags
         return flags
 
+    def _kh(self, s):
+        """CUSUM reference k and threshold h [permille] for the block noise s [permille].
+
+        k = k_sigma s and h = h_sigma s (CONFIG, from Siegmund's ARL); k at most k_max [permille]
+        (half the smallest shift the watch must catch soon, whatever the noise), and then h
+        = h_sigma s x (k_sigma s / k_max): for a large in-control ARL Siegmund's approximation
+        gives ln ARL ~ 2 k h (k, h in noise sigma), so h k constant keeps the false-alarm rate
+        (slightly below the target: h k grows a little with k). Writes sb[7], sb[8].
+        """
+        c = self.st[0]
+        k = s * c[133] >> 8                           # 1000 * 2560
+        h = s * c[134] >> 8                           # 1000 * 12800
+        km = c[144]
+        if k > km:
+            h = h * k // km                           # 50000 * 10000 = 5e8
+            h = 1048576 if h > 1048576 else h
+            k = km
+        self.sb[7] = k
+        self.sb[8] = h
+
     def _block(self, flags, em, ee, bw, mv, low, fl_ms, fsum, ed):
         """One block of flight time: residual, learning, CUSUM, noise, drift, implied mass.
 
@@ -346,25 +331,29 @@ class Watch:
                 else:
                     m = 0
                     s = floor + floor
-                tol = c[130]
-                if m > tol:
-                    m = tol
-                    flags |= 8
-                elif m < -tol:
-                    m = -tol
-                    flags |= 8
                 if s < floor:
                     s = floor
                 if s > 1000:
                     s = 1000
+                # baseline_off when |m| exceeds the tolerance by 2 standard errors of the mean
+                # (s / sqrt(l_n): s is the long-run noise of one block); m is clipped to +-tol
+                tol = c[130]
+                d = (m if m > 0 else -m) - tol            # |.| <= 2000
+                if d > 0:
+                    m = tol if m > 0 else -tol
+                    if l_n and d * d > (s * s << 2) // l_n:   # 2000^2 ; 1000^2 x 4
+                        flags |= 8
                 l_dev = s << 6                            # kept: in flight the noise stays below 2x this
                 sb[4] = l_dev
                 scale = 1000 + m
                 sb[0] = 0
                 sb[5] = scale
-                sb[6] = s << 6                            # Q6, <= 64000
-                sb[7] = s * c[133] >> 8                   # 1000 * 2560
-                sb[8] = s * c[134] >> 8                   # 1000 * 12800
+                # a window of ~20 s holds only a few independent stretches of the correlated
+                # residual: the in-flight estimate starts at twice it (about its 95 % upper
+                # confidence bound) and comes down as flight blocks are learned
+                s += s
+                sb[6] = s << 6                            # Q6, <= 128000
+                self._kh(s)
                 self.scale = scale
                 self.sigma_permille = s
         elif near:
@@ -397,8 +386,7 @@ class Watch:
                 s = sig >> 6
                 if s < floor:
                     s = floor
-                sb[7] = s * c[133] >> 8
-                sb[8] = s * c[134] >> 8
+                self._kh(s)
                 self.sigma_permille = s
             if steady and s_hi + s_lo < (h >> 1):
                 # slow bounded drift of the baseline [1/256 permille], not from a block that raised a suspicion

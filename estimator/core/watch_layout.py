@@ -12,7 +12,7 @@ makes a Watch. The bounds are those under which every kernel intermediate stays 
 Runs unchanged on MicroPython: no imports, no floats.
 """
 
-FORMAT = 4  # CONFIG format of this kernel
+FORMAT = 5  # CONFIG format of this kernel
 
 # flag bits returned by Watch.update (design notes sec. 4)
 POWER_HIGH = 1
@@ -71,6 +71,7 @@ SCALARS = (
     ("mass_limit_permille", 0, 1000),       # mass_high above plan by this share ...
     ("mass_z2_q8", 0, 32767),               # ... plus a margin: z^2 x correlation factor x 256
     ("settle_ms", 0, 60000),                # after a block outside steady_permille: half weight this long
+    ("cusum_k_max_permille", 1, 1000),      # CUSUM reference value at most this (h grows so that h k stays)
 )
 
 TABLE_AT = {}

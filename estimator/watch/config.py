@@ -36,6 +36,9 @@ DEFAULTS = {
                                     # averages several readings; the model-form error stays)
     "noise_floor_min": 0.004,       # and never below this [-] (integer and sensor resolution)
     "cusum_k_sigma": 1.5,           # CUSUM reference value [noise sigma]
+    "cusum_k_max": 0.05,            # ... but at most this [-]: half the smallest power step the watch must
+                                    # catch within seconds (10 %), so that a noisy log (a slow logger on an
+                                    # unfiltered current sensor) still catches it, later (h grows, h k fixed)
     "lag_ms": None,                 # expected-power lag: rotor spin-up + current-sensor response [ms]
                                     # (default: ROTOR_LAG_S_PER_M x diameter + SENSOR_LAG_MS)
     "block_s": 1.0,                 # energy block length [s]
@@ -245,6 +248,10 @@ def make_config(params, vehicle=None, options=None):
     put("cusum_h_q8", max(1, int(round(256.0 * h_sigma))),
         "h = %.3f sigma: two-sided in-control ARL %.3g blocks of %d ms = %g false alarms per flight hour "
         "(Siegmund 1985)" % (h_sigma, arl_target, block_ms, o["false_alarms_per_hour"]))
+    k_max = float(o["cusum_k_max"])
+    put("cusum_k_max_permille", min(1000, max(1, int(round(1000.0 * k_max)))),
+        "k at most %.3f (half the smallest step to catch soon); above it h = h_sigma sigma x k_sigma sigma / "
+        "k_max (Siegmund: ln ARL ~ 2 k h for a large ARL)" % k_max)
     put("block_ms", block_ms, "energy block %d ms of flight time" % block_ms)
     lag_ms = o["lag_ms"]
     if lag_ms is None:
