@@ -10,9 +10,17 @@ reachable (shown by a 2000-byte bytearray that stays counted after ``del``).
 
 Also printed: the board path (board_loop's way: ``liftwatch_load.load()`` checks CONFIG with the
 layout module, lets the layout go and makes the Watch), and the qstrs each step interns.
+
+``--by-statement [N]``: where the kernel's bytecode goes - the N statements of
+estimator/core/watch.py (at any depth to 3) whose replacement by ``pass`` shrinks liftwatch.mpy
+the most (bytes of .mpy, which is loaded to the heap; a nested statement is also inside its
+parent's figure). mpy-cross only, no interpreter.
 """
 
+import ast
 import os
+import sys
+import tempfile
 
 from _watch_common import bundle_dir
 from mpy_harness import heap_kept, run_micropython
@@ -52,7 +60,51 @@ micropython.qstr_info()
 '''
 
 
+def by_statement(top):
+    """Print the ``top`` kernel statements whose removal shrinks the compiled kernel the most."""
+    from estimator.watch.bundle import KERNEL_SOURCE, compile_mpy
+
+    with open(KERNEL_SOURCE, "r", encoding="utf-8") as fh:
+        src = fh.read()
+    lines = src.splitlines(True)
+    folder = tempfile.mkdtemp(prefix="liftwatch-stmt-")
+
+    def size(text):
+        py = os.path.join(folder, "liftwatch.py")
+        with open(py, "w", encoding="utf-8") as fh:
+            fh.write(text)
+        compile_mpy(py, py[:-3] + ".mpy")
+        return os.path.getsize(py[:-3] + ".mpy")
+
+    base = size(src)
+    rows = []
+
+    def visit(fn, stmts, depth):
+        for st in stmts:
+            if isinstance(st, ast.Expr) and isinstance(st.value, ast.Constant):
+                continue   # docstrings are not compiled into the .mpy
+            out = list(lines)
+            for i in range(st.lineno - 1, st.end_lineno):
+                out[i] = ""
+            out[st.lineno - 1] = " " * st.col_offset + "pass\n"
+            rows.append((base - size("".join(out)), fn, st.lineno, lines[st.lineno - 1].strip()[:72]))
+            for field in ("body", "orelse"):
+                if getattr(st, field, None) and depth < 3:
+                    visit(fn, getattr(st, field), depth + 1)
+
+    for node in ast.walk(ast.parse(src)):
+        if isinstance(node, ast.FunctionDef):
+            visit(node.name, node.body, 0)
+    print("liftwatch.mpy %d B; statements by .mpy bytes they cost (nested ones inside their parent's):" % base)
+    for cost, fn, line, text in sorted(rows, reverse=True)[:top]:
+        print("%5d B  %-9s line %4d  %s" % (cost, fn, line, text))
+
+
 def main():
+    if "--by-statement" in sys.argv:
+        rest = sys.argv[sys.argv.index("--by-statement") + 1:]
+        by_statement(int(rest[0]) if rest else 30)
+        return
     d = bundle_dir()
     mpy = [os.path.join(d, "mpy", f) for f in sorted(os.listdir(os.path.join(d, "mpy")))]
     sizes = {os.path.basename(p): os.path.getsize(p) for p in mpy}
