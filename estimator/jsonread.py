@@ -15,6 +15,7 @@ import math
 
 from estimator.errors import InputError, shorten
 from estimator.safepath import MiB, read_limited, size_text
+from estimator.seal import SETTINGS_MARK
 
 # the largest JSON file read [bytes]: a parameter set is some kilobytes
 MAX_BYTES = 16 * MiB
@@ -93,6 +94,10 @@ def loads(text, path):
     try:
         document = json.loads(text, parse_constant=_Constant, object_pairs_hook=_no_duplicates)
     except json.JSONDecodeError as exc:
+        if text.lstrip("\ufeff").startswith(SETTINGS_MARK):
+            raise InputError("%s: is a settings file that liftcal export wrote (lines for the flight "
+                             "controller), not a JSON file; is it the right file? (the parameter set it "
+                             "came from is the JSON that liftcal fit wrote)" % path) from None
         if _looks_like_csv(text):
             raise InputError("%s: looks like a CSV file (a bench sweep or a flight log?), not a JSON "
                              "file; is it the right file?" % path) from None

@@ -33,9 +33,9 @@ import tempfile
 from estimator import __version__
 from estimator.errors import InputError
 from estimator.safepath import special_kind
+from estimator.seal import SETTINGS_MARK  # noqa: F401 (used here and by the export command)
 
 SOFTWARE = "liftcal %s" % __version__
-SETTINGS_MARK = "# liftcal settings"
 KIND_NAMES = {"params": "a liftcal parameter set", "settings": "a liftcal settings file",
               "png": "a liftcal figure (PNG)", "bundle": "a liftcal board bundle",
               "demo": "a liftcal demo folder"}

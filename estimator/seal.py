@@ -13,9 +13,11 @@ import hashlib
 import re
 
 SEAL_KEY = "content_sha256"
+SETTINGS_MARK = "# liftcal settings"  # the first line of the settings lines liftcal export writes
 _ZERO = "0" * 64
 _JSON_SEAL = re.compile(r'\A\{\s*"content_sha256": "([0-9a-f]{64})"')
 _LINE_SEAL = re.compile(r'\n# content sha256: ([0-9a-f]{64})\s*\Z')
+_ANY_LINE_SEAL = re.compile(r'(?m)^# content sha256: [0-9a-f]{64}\s*$')
 
 
 def _digest(text):
@@ -41,6 +43,8 @@ def seal_state(text):
     with the seal filled in (for a text carrying a zero seal: how seal_text fills it)."""
     match = _JSON_SEAL.match(text) or _LINE_SEAL.search(text)
     if match is None:
+        if _ANY_LINE_SEAL.search(text):
+            return "broken", text                 # lines added after the seal line
         return None, text
     start, end = match.span(1)
     digest = _digest(text[:start] + _ZERO + text[end:])

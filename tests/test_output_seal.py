@@ -99,3 +99,42 @@ def test_check_says_whether_a_set_was_edited(tmp_path):
     assert json.loads(run("check", out, "--json").stdout)["content_seal"] == "broken"
     assert json.loads(run("check", EXAMPLE, "--json").stdout)["content_seal"] == "none"
     assert "no hover values" in run("check", out).stdout  # fitted without --vehicle
+
+
+def test_lines_added_after_the_seal_line_count_as_an_edit(tmp_path):
+    # new-user trial 3, item 14: a settings file with a line added after its seal was called
+    # "no content seal (an older liftcal wrote it...)"; liftcal wrote it, a person edited it
+    out = tmp_path / "settings.txt"
+    assert run("export", EXAMPLE, "--out", out).exit_code == 0
+    out.write_text(out.read_text() + "my.extra.setting 5\n")
+    before = out.read_bytes()
+    res = run("export", EXAMPLE, "--out", out)
+    assert res.exit_code == 2 and "changed since" in res.stderr and "no content seal" not in res.stderr
+    assert out.read_bytes() == before
+    assert seal_state(before.decode())[0] == "broken"
+
+
+def test_a_settings_file_given_where_json_is_read_is_named(tmp_path):
+    out = tmp_path / "settings.txt"
+    assert run("export", EXAMPLE, "--out", out).exit_code == 0
+    for command in ("check", "hover"):
+        res = run(command, out)
+        lines = res.stderr.strip().splitlines()
+        assert res.exit_code == 2 and res.stdout == "" and len(lines) == 1
+        assert "is a settings file that liftcal export wrote" in lines[0] and "CSV" not in lines[0]
+
+
+def test_hover_with_an_edited_parameter_set_says_so(tmp_path):
+    # new-user trial 3, item 14: a hand-edited set gave a sheet with no note at all
+    from estimator.demo.scenario import DEMO_VEHICLE
+
+    sweep, out = _sweep(tmp_path), tmp_path / "p.json"
+    vehicle = tmp_path / "v.json"
+    vehicle.write_text(json.dumps(DEMO_VEHICLE))
+    assert run("fit", sweep, "--diameter", "10in", "--vehicle", vehicle, "--out", out).exit_code == 0
+    clean = run("hover", vehicle, "--params", out)
+    assert clean.exit_code == 0 and "was edited since liftcal wrote it" not in clean.stdout
+    out.write_text(out.read_text().replace('"thrust_max_N": ', '"thrust_max_N": 1', 1))
+    edited = run("hover", vehicle, "--params", out)
+    assert edited.exit_code == 0
+    assert "%s was edited since liftcal wrote it" % out in " ".join(edited.stdout.split())

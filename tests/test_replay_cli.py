@@ -169,3 +169,26 @@ def test_plot_title_counts_events_in_words_and_marks_learning(tmp_path):
     assert title.startswith("f.csv: 1 event (")
     title = plot_replay(str(tmp_path / "two.png"), arrays, out["events"][:1] * 2, title="f.csv")
     assert title.startswith("f.csv: 2 events (")
+
+
+def test_a_parameter_set_without_a_vehicle_is_named_by_its_file(tmp_path):
+    # new-user trial 3, item 14: "error: parameter set: $.vehicle" did not say which file
+    from click.testing import CliRunner
+
+    from estimator.cli import cli
+    from estimator.demo.ramp_sweep import ramp_sweep_rows, write_ramp_csv
+
+    sweep = tmp_path / "sweep.csv"
+    write_ramp_csv(str(sweep), ramp_sweep_rows(3000, seed=5), "invented sweep")
+    params = tmp_path / "alone.json"
+    fitted = CliRunner().invoke(cli, ["fit", str(sweep), "--diameter", "10in", "--out", str(params)])
+    assert fitted.exit_code == 0, fitted.stderr
+    log = tmp_path / "log.csv"
+    log.write_text("time[s],command[-],voltage[V],current[A]\n0,0.5,15,20\n0.1,0.5,15,20\n")
+    for args in (["firmware", str(params), "--out", str(tmp_path / "board")],
+                 ["replay", str(log), "--params", str(params)]):
+        res = CliRunner().invoke(cli, args)
+        lines = res.stderr.strip().splitlines()
+        assert res.exit_code == 2 and len(lines) == 1, (args, res.stderr)
+        assert lines[0].startswith("error: %s: $.vehicle: missing" % params), lines[0]
+    assert not (tmp_path / "board").exists()

@@ -170,6 +170,13 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
         params = load_params(params_file)
         check_vehicle_match(params, vehicle, params_file, vehicle_file)
     report = hover_report(vehicle, params)
+    if params_file is not None:
+        from estimator.outputs import seal_of
+        if seal_of(params_file) == "broken":
+            report["warnings"].append(
+                "%s was edited since liftcal wrote it (its content seal no longer matches): this sheet "
+                "comes from its motor and power models, so an edit of its thrust_curve or hover "
+                "values may not show here; fit the sweep again rather than editing the set" % params_file)
     payload, unit = None, "kg"
     if payload_text is not None:
         from estimator.preflight.payload import check_bare_payload, parse_payloads, payload_table
