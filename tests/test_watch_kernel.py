@@ -7,7 +7,7 @@ import os
 
 from hypothesis import given, settings, strategies as st
 
-from estimator.core import momentum, thrust_curve
+from estimator.core import thrust_curve
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.watch import Watch
 from estimator.watch.config import CONFIG_LENGTH, SCALAR_AT, as_tuple, make_config
@@ -196,19 +196,25 @@ def test_current_noise_near_zero_on_a_large_sensor_is_not_a_fault():
 
 
 def _float_thrust_total_N(power_W, params, n, rho):
-    """Reference: solve T = k(T) (2 rho A (P/N)^2)^(1/3), k(T) = k0 + k1 T, by fixed-point iteration
-    on the core's float momentum function (momentum.thrust_from_power_N)."""
-    sf = params["static_factor"]
-    area = momentum.disk_area_m2(params["rotor"]["diameter_m"])
-    t = 0.0
-    for _ in range(60):
-        t = momentum.thrust_from_power_N(power_W / n, min(1.0, sf["k0"] + sf["slope_per_N"] * t), rho, area)
-    return n * t
+    """Reference: solve P(T) = P / N for T with scipy's brentq on the float power model
+    (estimator.core.power_model.rotor_power_W), independent of the core's own bisection."""
+    from scipy.optimize import brentq
+
+    from estimator.core.power_model import rotor_power_W
+    pm = params["power_model"]
+    target = power_W / n
+    if target <= rotor_power_W(pm, 0.0, rho):
+        return 0.0
+    hi = 1.0
+    while rotor_power_W(pm, hi, rho) < target:
+        hi *= 2.0
+    return n * brentq(lambda t: rotor_power_W(pm, t, rho) - target, 0.0, hi, xtol=1e-12)
 
 
 def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
-    # Issue 4: the kernel's thrust_mN against the core's float momentum-theory function on the
-    # same inputs within 1 %. Source of the formula: Leishman (2006) ch. 2 (from memory). The
+    # Issue 4: the kernel's thrust_mN against the float power model inverted by scipy (brentq) on
+    # the same inputs within 1 % (the model: DC motor + momentum theory, Leishman 2006 ch. 2,
+    # from memory). The
     # table's linear-interpolation error is (h/P)^2 / 36 of T: below 0.2 % from 1/8 of the
     # table's range, and the integer rounding of mV, mA and the table is below 0.1 %.
     params = demo_fit_params()

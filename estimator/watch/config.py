@@ -19,7 +19,7 @@ and 168 two-sided, the published table values (design notes sec. 3a).
 
 import math
 
-from estimator.core import momentum, thrust_curve
+from estimator.core import thrust_curve
 from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.errors import InputError
@@ -189,19 +189,17 @@ def _rotor_power_W(power_model, thrust_N, density_kg_m3):
 
 
 def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3):
-    """Total thrust from total bus power by momentum theory with k(T) = k0 + k1 T [N].
+    """Total thrust [N] from total bus power [W]: the parameter set's power model inverted.
 
-    Per rotor g = (2 rho A (P / N)^2)^(1/3) (ideal thrust) and T = k(T) g, solved in closed
-    form T = k0 g / (1 - k1 g), with k capped at 1 (k > 1 is impossible).
-    power_W: total bus power [W]; rotor_count N [-]; density_kg_m3: site rho [kg/m^3].
-    Source: momentum theory (estimator.core.momentum, Leishman 2006 ch. 2, from memory).
+    Per rotor T = P^-1(P_total / N) with P(T, rho) the one power model
+    (estimator.core.power_model.thrust_from_power_N: the same P(T) the expected-power table
+    uses, so the implied mass and the expected power never disagree). power_W: total bus power
+    [W]; rotor_count N [-]; density_kg_m3: site rho [kg/m^3].
+    Source: DC motor + momentum theory power model (estimator.core.power_model docstring).
     """
-    sf = params["static_factor"]
-    area = momentum.disk_area_m2(params["rotor"]["diameter_m"])
-    g = momentum.ideal_thrust_N(max(power_W, 0.0) / rotor_count, density_kg_m3, area)
-    den = 1.0 - sf["slope_per_N"] * g
-    t = sf["k0"] * g / den if den > 0.05 else g
-    return rotor_count * min(max(t, 0.0), g)
+    from estimator.core.power_model import thrust_from_power_N
+    return rotor_count * thrust_from_power_N(params["power_model"], max(power_W, 0.0) / rotor_count,
+                                             density_kg_m3)
 
 
 def make_config(params, vehicle=None, options=None):
@@ -331,9 +329,8 @@ def make_config(params, vehicle=None, options=None):
     put("thrust_shift", sh, "thrust table step 2^%d x 0.1 W, up to %.0f W" % (sh, 32 * (1 << sh) / 10.0))
     put("thrust_unit_shift", tu, "thrust table unit 2^%d mN" % tu)
     put("thrust_table", table([x >> tu for x in t_tab], "thrust table", (1 << 13) - 1),
-        "k(T) (2 rho A (P/N)^2)^(1/3) x N [2^%d mN] at P = 0.1 W x 2^%d x 0..32; k0 %.4f, k1 %.5f 1/N, "
-        "D %.4f m; in mN: %s" % (tu, sh, params["static_factor"]["k0"], params["static_factor"]["slope_per_N"],
-                                 params["rotor"]["diameter_m"], " ".join(str(x) for x in t_tab)))
+        "N x T(P/N), the power model inverted, [2^%d mN] at P = 0.1 W x 2^%d x 0..32, rho %.4f kg/m^3; "
+        "in mN: %s" % (tu, sh, rho, " ".join(str(x) for x in t_tab)))
 
     put("takeoff_ms", int(round(1000.0 * o["takeoff_s"])), "first %.1f s of each flight not judged" % o["takeoff_s"])
     put("learn_ms", int(round(1000.0 * o["learn_s"])), "learning window: %.1f s of steady flight" % o["learn_s"])
