@@ -111,7 +111,14 @@ def test_parameter_set_carries_the_vehicle_and_hover(fitted):
     assert lo <= h["hover_command"] <= hi and "model-form error" in h["interval_method"]
     # k at hover from the line k0 + slope T (DEVELOPERS.md)
     k = params["static_factor"]
-    assert k["value"] == pytest.approx(k["k0"] + k["slope_per_N"] * h["thrust_per_rotor_N"], rel=1e-4)
+    # k at hover from the set's own power model, k = T / (2 rho A P(T)^2)^(1/3) (momentum theory,
+    # Leishman ch. 2), P written out from the DEVELOPERS.md form at the bench density (r = 1)
+    pm, t = params["power_model"], h["thrust_per_rotor_N"]
+    p_w = (pm["idle_power_W"] + pm["sqrt_W_per_N0_5"] * t ** 0.5 + pm["linear_W_per_N"] * t
+           + pm["induced_W_per_N1_5"] * t ** 1.5 + pm["copper_W_per_N2"] * t ** 2)
+    area = math.pi * params["rotor"]["diameter_m"] ** 2 / 4.0
+    rho = pm["reference_density_kg_m3"]
+    assert k["value"] == pytest.approx(t / (2.0 * rho * area * p_w * p_w) ** (1.0 / 3.0), rel=1e-4)
 
 
 def test_cli_fit_json_keys_plot_and_files(fitted, capsys):
