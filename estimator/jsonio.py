@@ -54,6 +54,9 @@ def validate(document, schema_name, source):
         other = _other_kind(document, schema_name, schema) if not list(err.absolute_path) else None
         if other:
             raise InputError("%s: $: this is %s, not %s: wrong file for this place?" % (source, other[0], other[1]))
+        foreign = _not_ours(document, schema) if not list(err.absolute_path) else None
+        if foreign:
+            raise InputError("%s: $: %s" % (source, foreign))
         raise InputError("%s: %s: %s%s" % (source, json_path(err.absolute_path), _message(err), _likely_cause(err)))
 
 
@@ -138,6 +141,24 @@ def _other_kind(document, schema_name, schema):
     return None
 
 
+def _not_ours(document, schema):
+    """'not a liftcal parameter set (no "model": ...)' for an object without the schema's model
+    key that holds at most half of the schema's required keys (someone's own notes, another
+    program's file), else None."""
+    const = ((schema.get("properties") or {}).get("model") or {}).get("const")
+    required = schema.get("required") or []
+    if not isinstance(document, dict) or const is None or "model" in document or not required:
+        return None
+    if sum(1 for key in required if key in document) * 2 > len(required):
+        return None
+    return ("not %s: it has no \"model\": \"%s\" and none of its blocks; wrong file for this place?"
+            % (_kind_name(schema).replace("a ", "a liftcal ", 1).replace("an ", "a liftcal ", 1), const)
+            if not any(key in document for key in required) else
+            "not %s: it has no \"model\": \"%s\" and lacks %s; wrong file for this place?"
+            % (_kind_name(schema).replace("a ", "a liftcal ", 1).replace("an ", "a liftcal ", 1), const,
+               ", ".join(key for key in required if key not in document)[:200]))
+
+
 def _kind_name(schema):
     """'a parameter set' from the title 'liftcal parameter set (model liftcal.rotor/1)'."""
     name = str(schema.get("title", "document")).replace("liftcal ", "", 1).split(" (")[0]
@@ -201,8 +222,8 @@ def _likely_cause(err):
         path = list(err.absolute_path)
         key = path[-1] if path and isinstance(path[-1], str) else ""
         unit = key.rsplit("_", 1)[-1] if "_" in key else ""
-        if unit not in _KEY_UNITS or isinstance(err.instance, bool):
-            return ""
+        if unit not in _KEY_UNITS or isinstance(err.instance, bool) or "per" in key.split("_")[1:-1]:
+            return ""  # kv_rpm_per_V is in rpm/V: a voltage's mV slip means nothing there
         kind, slips = _KEY_UNITS[unit]
         if key.startswith("altitude"):
             kind, slips = "altitude", ("ft", "km")
@@ -229,6 +250,12 @@ def _text_for_number(err):
     path = list(err.absolute_path)
     key = path[-1] if path and isinstance(path[-1], str) else ""
     parts = key.split("_")
+    comma = re.match(r"^\s*([-+]?\d+),(\d+)\s*$", str(err.instance))
+    if comma and len(comma.group(2)) == 3:  # "3,800": a thousands separator or a decimal comma
+        return "; write %s%s (a thousands separator) or %s.%s (a decimal comma), a plain number without " \
+            "quotes" % (comma.group(1), comma.group(2), comma.group(1), comma.group(2))
+    if comma:  # "3800,5": a decimal comma (common in many locales); JSON numbers take a point
+        return "; write %s.%s, a plain number with a decimal point, without quotes" % comma.groups()
     if "per" in parts[1:-1]:  # a compound unit in the key: kv_rpm_per_V is in rpm/V
         at = parts.index("per", 1)
         unit = "%s/%s" % (parts[at - 1], "_".join(parts[at + 1:]))

@@ -89,6 +89,17 @@ def decode_text(data, path):
                             exc.start)) from None
 
 
+def _trailing_comma(text, pos):
+    """'; a trailing comma ...' when the error sits at a } or ] right after a comma (JSON, unlike
+    JavaScript and Python, allows none: RFC 8259 sec. 4 and 5), else ''."""
+    before = text[:pos].rstrip()
+    if before.endswith(",") and text[pos:pos + 1] in ("}", "]"):
+        line = text.count("\n", 0, len(before) - 1) + 1
+        return ("; a trailing comma before the closing %s (line %d): remove that comma, JSON "
+                "allows none" % (text[pos], line))
+    return ""
+
+
 def loads(text, path):
     """Parse JSON text strictly (module docstring); returns the document or raises InputError."""
     try:
@@ -101,8 +112,9 @@ def loads(text, path):
         if _looks_like_csv(text):
             raise InputError("%s: looks like a CSV file (a bench sweep or a flight log?), not a JSON "
                              "file; is it the right file?" % path) from None
-        raise InputError("%s: line %d column %d: malformed JSON (%s)%s"
-                         % (path, exc.lineno, exc.colno, exc.msg, _near(text, exc.pos))) from None
+        raise InputError("%s: line %d column %d: malformed JSON (%s)%s%s"
+                         % (path, exc.lineno, exc.colno, exc.msg, _near(text, exc.pos),
+                            _trailing_comma(text, exc.pos))) from None
     except _Duplicate as exc:
         raise InputError(_duplicate_message(text, path, exc.args[0])) from None
     except RecursionError:

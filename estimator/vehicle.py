@@ -17,6 +17,8 @@ import re
 
 from estimator.errors import InputError
 from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
+from estimator.vehicle_units import BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS
+from estimator.vehicle_units import normalise  # noqa: F401 (also part of this module's API)
 
 SCHEMA = "vehicle.schema.json"
 
@@ -64,7 +66,6 @@ QUANTITIES = {
     "factor": (("$defs", "limits", "properties", "static_factor"), "ratio", "", (),
                "the static thrust factor k"),
 }
-_BARE_NUMBER = re.compile(r"^\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*$")
 _LEADING_NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)")
 _SCHEMA_CACHE = []
 
@@ -245,103 +246,19 @@ def _check_physics(vehicle, source):
                          "instead of rev/s?)" % (source, prop["ct"], prop["cp"], fm))
 
 
-# where a key may be written without its unit, and the unit kind of every unit-bearing key:
-# block -> {short key: (SI key, estimator.units kind)}; "" is the top level
-_UNIT_KEYS = {
-    "": {"mass": ("mass_kg", "mass")},
-    "propeller": {"diameter": ("diameter_m", "length"), "pitch": ("pitch_m", "length")},
-    "motor": {"resistance": ("resistance_ohm", "resistance"),
-              "no_load_current": ("no_load_current_A", "current"),
-              "max_current": ("max_current_A", "current")},
-    "battery": {"capacity": ("capacity_Ah", "capacity"), "resistance": ("resistance_ohm", "resistance"),
-                "full_cell": ("full_cell_V", "voltage"), "nominal_cell": ("nominal_cell_V", "voltage"),
-                "empty_cell": ("empty_cell_V", "voltage"), "cutoff_cell": ("cutoff_cell_V", "voltage"),
-                "usable": ("usable_fraction", "fraction"),
-                "temperature": ("temperature_C", "temperature")},
-    "site": {"altitude": ("altitude_m", "altitude"), "temperature": ("temperature_C", "temperature"),
-             "pressure": ("pressure_Pa", "pressure"), "humidity": ("humidity_pct", "percent")},
-}
-
-
-def _json_path(block, key):
-    return "$." + (block + "." if block else "") + key
-
-
-_CELLS_WRITTEN = re.compile(r"\s*([0-9]{1,3})\s*[sS]\s*$")
-
-
-def normalise(document, source):
-    """Turn quantities written with units into the schema's SI keys; return (document, given).
-
-    document: the loaded JSON (left unchanged; a converted copy is returned). A string on an
-    SI key ("mass_kg": "650g") or on its short key ("mass": "650g") is parsed by
-    estimator.units.parse_quantity; a bare number on an SI key stays as it is (the key names
-    its unit); a bare number on a short key is refused (no unit to read it in). The propeller
-    "size" ("10x4.5in") gives diameter_m and pitch_m. given: {JSON path of the SI key:
-    (JSON path as written, text as written)} for each converted value. Raises InputError
-    naming the file and the JSON path.
-    """
-    from estimator.units import parse_propeller_size, parse_quantity
-
-    if not isinstance(document, dict):
-        return document, {}
-    out = dict(document)
-    given = {}
-    for block, table in _UNIT_KEYS.items():
-        node = out if block == "" else out.get(block)
-        if not isinstance(node, dict):
-            continue
-        if block:
-            node = out[block] = dict(node)
-        cells = node.get("cells") if block == "battery" else None
-        if isinstance(cells, str) and _CELLS_WRITTEN.match(cells):
-            # the trade writes a pack's series cell count as "6S" (common practice)
-            node["cells"] = int(_CELLS_WRITTEN.match(cells).group(1))
-            given[_json_path(block, "cells")] = (_json_path(block, "cells"), cells)
-        if block == "propeller" and "size" in node:
-            path = _json_path(block, "size")
-            for key in ("diameter_m", "pitch_m", "diameter", "pitch"):
-                if key in node:
-                    raise InputError("%s: %s: give either the size or %s, not both"
-                                     % (source, path, _json_path(block, key)))
-            text = node.pop("size")
-            diameter, pitch = parse_propeller_size(text, "%s: %s" % (source, path))
-            node["diameter_m"], node["pitch_m"] = diameter, pitch
-            given[_json_path(block, "diameter_m")] = (path, text)
-            given[_json_path(block, "pitch_m")] = (path, text)
-        for short, (key, kind) in table.items():
-            if short in node and key in node:
-                raise InputError("%s: %s: given twice, also as %s: keep one"
-                                 % (source, _json_path(block, short), _json_path(block, key)))
-            name = short if short in node else key
-            if name not in node:
-                continue
-            value = node[name]
-            path = _json_path(block, name)
-            if isinstance(value, str):
-                node[key] = parse_quantity(value, kind, "%s: %s" % (source, path))
-                given[_json_path(block, key)] = (path, value)
-            elif name == short:
-                if isinstance(value, (int, float)) and not isinstance(value, bool):
-                    raise InputError("%s: %s: %s has no unit: write it as text with its unit (e.g. "
-                                     "\"%s%s\"), or did you mean %r for %r? (that key names its unit)"
-                                     % (source, path, value, value, _example_unit(kind), key, short))
-                node[key] = value  # the schema names the wrong type at the SI key's path
-                given[_json_path(block, key)] = (path, value)
-            if name == short:
-                del node[short]
-    return out, given
-
-
-def _example_unit(kind):
-    from estimator.units import DEFAULT_UNIT
-    return DEFAULT_UNIT[kind]
-
-
 def _as_written(message, given):
-    """A schema message about an SI key, with the key's path as the file wrote it."""
-    for si_path, (written, _) in sorted(given.items(), key=lambda item: -len(item[0])):
-        if written != si_path and (si_path + ":") in message:
+    """A schema message about an SI key, with the key's path and value as the file wrote them:
+    ``$.mass: "-320g" = -0.32 kg is less than ...`` (the unit the person used stays in sight)."""
+    for si_path, (written, text) in sorted(given.items(), key=lambda item: -len(item[0])):
+        if (si_path + ":") not in message:
+            continue
+        head, tail = message.split(si_path + ": ", 1) if (si_path + ": ") in message else (None, None)
+        unit = si_path.rsplit("_", 1)[-1] if "_" in si_path.rsplit(".", 1)[-1] else ""
+        value = tail.split(" ", 1) if tail else None
+        if isinstance(text, str) and value and len(value) == 2 and _LEADING_NUMBER.match(value[0]) \
+                and written in (si_path, si_path.replace("_" + unit, "")) and unit:
+            return "%s%s: \"%s\" = %s %s %s" % (head, written, text, value[0], unit, value[1])
+        if written != si_path:
             return message.replace(si_path + ":", written + ":", 1)
     return message
 

@@ -49,7 +49,9 @@ def test_a_resistance_in_milliohms_without_its_unit_gets_the_unit_hint(tmp_path)
         doc["battery"]["resistance"] = "90"
     line = _refused(tmp_path, edit)
     assert "$.battery.resistance" in line
-    assert "given in mohm instead of ohm? 90 mohm = 0.09 ohm" in line  # 1 mohm = 1e-3 ohm
+    # trial 4: a text without a unit is refused like a bare number, its example in milliohm
+    # (90 ohm is far above any pack's resistance; 90 mohm = 0.09 ohm, NIST SP 811)
+    assert "has no unit" in line and '"90mohm"' in line
 
 
 @pytest.mark.parametrize("cells, whole", [("12", 12), (" 8 ", 8)])

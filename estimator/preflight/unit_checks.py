@@ -15,10 +15,9 @@ import re
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2
 from estimator.vehicle import given_text
+# the typical ranges live with the vehicle file's unit reading (one home)
+from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, PACK_SPECIFIC_ENERGY_WH_KG
 
-# Hover disk loading of small multirotor propellers [N/m^2]: about 20 to 1500 (the schema's
-# disk_loading_N_m2 description; a 2 kg quad on 10-inch propellers is near 100). Common practice.
-DISK_LOADING_TYPICAL_N_M2 = (20.0, 1500.0)
 # below this a propeller is far too large for the mass (a 0.25 kg frame on 10-inch propellers
 # still has 12 N/m^2) [N/m^2]
 DISK_LOADING_FLOOR_N_M2 = 5.0
@@ -29,11 +28,6 @@ CELL_SPECIFIC_ENERGY_MAX_WH_KG = 260.0
 # any size (a 5 Ah cell near 5 milliohm, a 0.3 Ah cell near 80 milliohm; from memory); 0.5
 # is ten times the worst of them.
 CELL_RESISTANCE_CAPACITY_MAX_OHM_AH = 0.5
-# Flight packs weigh about 10 to 50 % of a multirotor's all-up mass, at about 150 Wh/kg for
-# lithium-polymer packs (common practice, from memory); the capacity a slip hint suggests must
-# fall in the band a little wider than that (3 to 60 %).
-PACK_SPECIFIC_ENERGY_WH_KG = 150.0
-PACK_MASS_SHARE_USUAL = (0.03, 0.6)
 # slips of a value written with its unit: the prefix (g for kg, mAh for Ah) or the decimal point
 WRITTEN_SLIPS = ((1e-3, "the unit prefix"), (0.1, "a misplaced decimal point"))
 

@@ -1,0 +1,201 @@
+"""Vehicle-file quantities written with units: the short keys ("mass": "650g"), the propeller
+size ("10x4.5in") and the pack's "6S", turned into the SI keys of schemas/vehicle.schema.json.
+
+A number without a unit on a key that does not name one (``"mass": 320`` or ``"mass": "320"``)
+is refused, never read in SI: a builder who meant 1500 ft or 60 milliohm would get a wrong
+answer without a word. The refusal's example is written in the unit the number most likely
+meant for this vehicle (320 on a 3-inch quad: grams), from the same typical ranges the
+pre-flight unit checks use (estimator/preflight/unit_checks.py imports them from here).
+"""
+
+import re
+
+from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.core.momentum import disk_area_m2
+from estimator.errors import InputError
+
+# Hover disk loading of small multirotor propellers [N/m^2]: about 20 to 1500 (the schema's
+# disk_loading_N_m2 description; a 2 kg quad on 10-inch propellers is near 100). Common practice.
+DISK_LOADING_TYPICAL_N_M2 = (20.0, 1500.0)
+# Flight packs weigh about 10 to 50 % of a multirotor's all-up mass, at about 150 Wh/kg for
+# lithium-polymer packs (common practice, from memory); the capacity a slip hint suggests must
+# fall in the band a little wider than that (3 to 60 %).
+PACK_SPECIFIC_ENERGY_WH_KG = 150.0
+PACK_MASS_SHARE_USUAL = (0.03, 0.6)
+# a lithium cell's nominal voltage [V] for the pack-energy guess of a bare capacity (common practice)
+_CELL_NOMINAL_V = 3.7
+# the units a bare number on a short key was most likely written in, default unit first:
+# the ones builders write for each quantity (common practice)
+_EXAMPLE_UNITS = {
+    "mass": ("kg", "g"), "capacity": ("Ah", "mAh"), "resistance": ("ohm", "mohm"),
+    "length": ("m", "mm", "in"), "altitude": ("m", "ft"), "temperature": ("C", "F"),
+    "pressure": ("Pa", "hPa"), "current": ("A", "mA"), "voltage": ("V", "mV"), "percent": ("%",),
+}
+
+BARE_NUMBER = re.compile(r"^\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*$")
+
+# where a key may be written without its unit, and the unit kind of every unit-bearing key:
+# block -> {short key: (SI key, estimator.units kind)}; "" is the top level
+UNIT_KEYS = {
+    "": {"mass": ("mass_kg", "mass")},
+    "propeller": {"diameter": ("diameter_m", "length"), "pitch": ("pitch_m", "length")},
+    "motor": {"resistance": ("resistance_ohm", "resistance"),
+              "no_load_current": ("no_load_current_A", "current"),
+              "max_current": ("max_current_A", "current")},
+    "battery": {"capacity": ("capacity_Ah", "capacity"), "resistance": ("resistance_ohm", "resistance"),
+                "full_cell": ("full_cell_V", "voltage"), "nominal_cell": ("nominal_cell_V", "voltage"),
+                "empty_cell": ("empty_cell_V", "voltage"), "cutoff_cell": ("cutoff_cell_V", "voltage"),
+                "usable": ("usable_fraction", "fraction"),
+                "temperature": ("temperature_C", "temperature")},
+    "site": {"altitude": ("altitude_m", "altitude"), "temperature": ("temperature_C", "temperature"),
+             "pressure": ("pressure_Pa", "pressure"), "humidity": ("humidity_pct", "percent")},
+}
+
+
+def _json_path(block, key):
+    return "$." + (block + "." if block else "") + key
+
+
+_CELLS_WRITTEN = re.compile(r"\s*([0-9]{1,3})\s*[sS]\s*$")
+
+
+def normalise(document, source):
+    """Turn quantities written with units into the schema's SI keys; return (document, given).
+
+    document: the loaded JSON (left unchanged; a converted copy is returned). A string on an
+    SI key ("mass_kg": "650g") or on its short key ("mass": "650g") is parsed by
+    estimator.units.parse_quantity; a bare number on an SI key stays as it is (the key names
+    its unit); a bare number on a short key is refused (no unit to read it in). The propeller
+    "size" ("10x4.5in") gives diameter_m and pitch_m. given: {JSON path of the SI key:
+    (JSON path as written, text as written)} for each converted value. Raises InputError
+    naming the file and the JSON path.
+    """
+    from estimator.units import parse_propeller_size, parse_quantity
+
+    if not isinstance(document, dict):
+        return document, {}
+    out = dict(document)
+    given = {}
+    for block, table in UNIT_KEYS.items():
+        node = out if block == "" else out.get(block)
+        if not isinstance(node, dict):
+            continue
+        if block:
+            node = out[block] = dict(node)
+        cells = node.get("cells") if block == "battery" else None
+        if isinstance(cells, str) and _CELLS_WRITTEN.match(cells):
+            # the trade writes a pack's series cell count as "6S" (common practice)
+            node["cells"] = int(_CELLS_WRITTEN.match(cells).group(1))
+            given[_json_path(block, "cells")] = (_json_path(block, "cells"), cells)
+        if block == "propeller" and "size" in node:
+            path = _json_path(block, "size")
+            for key in ("diameter_m", "pitch_m", "diameter", "pitch"):
+                if key in node:
+                    raise InputError("%s: %s: give either the size or %s, not both"
+                                     % (source, path, _json_path(block, key)))
+            text = node.pop("size")
+            diameter, pitch = parse_propeller_size(text, "%s: %s" % (source, path))
+            node["diameter_m"], node["pitch_m"] = diameter, pitch
+            given[_json_path(block, "diameter_m")] = (path, text)
+            given[_json_path(block, "pitch_m")] = (path, text)
+        for short, (key, kind) in table.items():
+            if short in node and key in node:
+                raise InputError("%s: %s: given twice, also as %s: keep one"
+                                 % (source, _json_path(block, short), _json_path(block, key)))
+            name = short if short in node else key
+            if name not in node:
+                continue
+            value = node[name]
+            path = _json_path(block, name)
+            number = isinstance(value, (int, float)) and not isinstance(value, bool)
+            bare_text = isinstance(value, str) and BARE_NUMBER.match(value) is not None
+            if name == short and (number or bare_text) and kind in _EXAMPLE_UNITS:
+                shown = '"%s" (a text)' % value.strip() if bare_text else "%r" % value
+                raise InputError("%s: %s: %s has no unit: write it as text with its unit (e.g. "
+                                 "\"%s%s\"), or did you mean %r for %r? (that key names its unit)"
+                                 % (source, path, shown, _plain(value),
+                                    likely_unit(kind, float(value), block, key, document), key, short))
+            if isinstance(value, str):
+                node[key] = parse_quantity(value, kind, "%s: %s" % (source, path))
+                given[_json_path(block, key)] = (path, value)
+            elif name == short:
+                node[key] = value  # the schema names the wrong type at the SI key's path
+                given[_json_path(block, key)] = (path, value)
+            if name == short:
+                del node[short]
+    return out, given
+
+
+def _plain(value):
+    """A number as the person wrote it (320, 0.06), without a trailing .0."""
+    text = str(value).strip()
+    return text if isinstance(value, str) else "%g" % value
+
+
+def _si(document, block, short, key, kind):
+    """The SI value of a quantity of ``document`` written with its unit or on its SI key, or None."""
+    from estimator.units import parse_propeller_size, parse_quantity
+
+    node = document if block == "" else document.get(block)
+    if not isinstance(node, dict):
+        return None
+    try:
+        if block == "propeller" and short == "diameter" and isinstance(node.get("size"), str):
+            return parse_propeller_size(node["size"])[0]
+        if isinstance(node.get(short), str) and not BARE_NUMBER.match(node[short]):
+            return parse_quantity(node[short], kind)
+        value = node.get(key)
+        if isinstance(value, str):
+            return parse_quantity(value, kind)
+        return float(value) if isinstance(value, (int, float)) and not isinstance(value, bool) else None
+    except (InputError, ValueError, TypeError):
+        return None
+
+
+def _in_schema(kind, value_si, block, key):
+    from estimator.jsonio import load_schema, within
+
+    node = load_schema("vehicle.schema.json")["properties"]
+    node = node.get(key) if block == "" else node.get(block, {}).get("properties", {}).get(key)
+    return node is None or within(value_si, node)
+
+
+def likely_unit(kind, value, block, key, document):
+    """The unit a bare ``value`` on a short key most likely meant in this vehicle file.
+
+    kind: estimator.units kind; block: the vehicle block ("" for the top level); key: the SI
+    key (its schema bounds); document:
+    the loaded vehicle file (for the sizes the guess needs). A mass is read in the unit that
+    gives an ordinary hover disk loading on the file's propellers (DISK_LOADING_TYPICAL_N_M2),
+    a capacity in the unit that gives a pack of an ordinary share of the all-up mass
+    (PACK_MASS_SHARE_USUAL at PACK_SPECIFIC_ENERGY_WH_KG); otherwise, and when the sizes are
+    missing, the first of the quantity's usual units that puts the value inside the schema.
+    """
+    from estimator.units import parse_quantity
+
+    units = _EXAMPLE_UNITS[kind]
+    mass = _si(document, "", "mass", "mass_kg", "mass")
+    for unit in units:
+        si = parse_quantity("%r%s" % (value, unit), kind)
+        if kind == "mass":
+            diameter = _si(document, "propeller", "diameter", "diameter_m", "length")
+            count = (document.get("rotors") or {}).get("count") if isinstance(document.get("rotors"), dict) else None
+            if diameter and isinstance(count, int) and count > 0 and si > 0:
+                loading = si * STANDARD_GRAVITY_M_S2 / (count * disk_area_m2(diameter))  # hover: T = m g
+                if DISK_LOADING_TYPICAL_N_M2[0] <= loading <= DISK_LOADING_TYPICAL_N_M2[1]:
+                    return unit
+                continue
+        if kind == "capacity" and block == "battery" and mass:
+            cells = document["battery"].get("cells")
+            cells = int(re.sub(r"[^0-9]", "", cells) or 0) if isinstance(cells, str) else cells
+            if isinstance(cells, int) and cells > 0 and si > 0:
+                share = cells * _CELL_NOMINAL_V * si / PACK_SPECIFIC_ENERGY_WH_KG / mass
+                if PACK_MASS_SHARE_USUAL[0] <= share <= PACK_MASS_SHARE_USUAL[1]:
+                    return unit
+                continue
+        if _in_schema(kind, si, block, key):
+            return unit
+    return next((u for u in units if _in_schema(kind, parse_quantity("%r%s" % (value, u), kind), block, key)),
+                units[0])
+
+
