@@ -274,3 +274,19 @@ def test_bench_air_options_combine_with_the_file_comments(tmp_path):
     assert data["bench_air"]["source"].startswith("options")
     with pytest.raises(InputError, match="bench air"):
         read_bench(path, altitude_m=90000.0)
+
+
+def test_a_short_row_and_a_wide_row_that_balance_the_commas_are_refused(tmp_path):
+    # the reader parses only the columns it needs and checks the other rows' widths by the
+    # file's comma count; a row one cell short (a dropped reading in a column it does not
+    # read) beside a row one cell too many leaves that count right, so the read must still
+    # see the short row (RFC 4180 sec. 2: each record holds the same number of fields)
+    path = tmp_path / "balanced.csv"
+    rows = ["%.3f,0.5,15,5,2,9000,25" % (0.1 * k) for k in range(12)]
+    rows[2] += ",note"
+    rows[8] = rows[8].rsplit(",", 1)[0]
+    path.write_text("time[s],command[-],voltage[V],current[A],thrust[N],rpm[rpm],temperature[C]\n"
+                    + "\n".join(rows) + "\n")
+    assert sum(r.count(",") for r in rows) == 12 * 6  # the commas alone cannot tell
+    with pytest.raises(InputError, match=r"line 4: 8 cells where the header has 7"):
+        read_bench(str(path))

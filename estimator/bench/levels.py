@@ -34,8 +34,13 @@ SPIKE_SIGMAS = 6.0
 # levels with fewer rows are judged against their median, larger ones against the mean of
 # their unflagged rows [-]
 SMALL_LEVEL = 20
-# rows of the systematic subsample that fixes the robust scale of deviations [-]
-SCALE_ROWS = 20000
+# rows of the systematic subsample that fixes the robust scales and noise profiles of the
+# deviations: each of the NOISE_BINS thrust bins then holds up to about 1,600 rows, whose normalised
+# MAD is good to about 3 % (its asymptotic relative standard error is about 1.17 / sqrt(n),
+# e.g. Rousseeuw and Croux 1993, from memory) [-]
+SCALE_ROWS = 10000
+# rows of the systematic subsample that tells a ramp from a stepped sweep and sizes its levels [-]
+WIDTH_ROWS = 20000
 # the thrust noise profile: at most this many thrust bins, each of at least NOISE_BIN_ROWS
 # rows of turning levels; 12 rows let two spikes in one bin (six spoiled deviations) mask
 # each other, 24 coarsen the profile: measured by benchmarks/spike_screen.py [-]
@@ -69,10 +74,13 @@ def noise_profile(level_thrust, dev):
     if n_bins < 1:
         return None
     order = _stable_order(level_thrust)
-    knots, scales = [], []
+    sorted_thrust = level_thrust[order]
+    knots, scales, start = [], [], 0
     for part in np.array_split(order, n_bins):
-        knots.append(float(np.median(level_thrust[part])))
+        lo, hi = start + (part.size - 1) // 2, start + part.size // 2
+        knots.append(float((sorted_thrust[lo] + sorted_thrust[hi]) / 2.0))  # the part's median
         scales.append(robust_scale(dev[part]))
+        start += part.size
     knots, scales = np.array(knots), np.array(scales)
     keep = np.r_[True, np.diff(knots) > 0.0]
     knots, scales = knots[keep], np.maximum.accumulate(scales[keep])
@@ -125,7 +133,7 @@ def _screen_width(u, v, v_lo):
     its levels already hold ROWS_PER_LEVEL rows on average: a long ramp is screened at
     LEVEL_STEP, where a level's own thrust trend is far below the noise, and its levels are
     merged for the fits afterwards (_merge). Chosen on a systematic subsample."""
-    step = max(1, u.size // SCALE_ROWS)
+    step = max(1, u.size // WIDTH_ROWS)
     vi = _bands(v[::step], v_lo, 0.0)[0]
     width = LEVEL_STEP
     ramp = np.unique(np.rint(u[::step] / width)).size > RAMP_COMMANDS
@@ -237,7 +245,6 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     step = max(1, u.size // SCALE_ROWS)
     ks = key[::step]
     sel = big[ks]
-    s_t = robust_scale(dt[::step][sel]) if np.any(sel) else 0.0
     # levels of SMALL_LEVEL rows or more carry their own scale (below); the others take the
     # scale of the noise at their thrust, from the profile (none needed when every level is big)
     needs_profile = bool(np.any(sel)) and bool(np.any(count[big] < SMALL_LEVEL))
@@ -250,9 +257,11 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     # noise grows with thrust and power: levels of SMALL_LEVEL rows or more carry their own
     # scale (rms about the level's trend), smaller ones the subsample's robust scale
     own = count >= SMALL_LEVEL
-    scale_t = np.full(n_keys, max(s_t, 1e-6 * t_top))
     if profile_t is not None:  # load-cell noise grows with thrust: the scale at each level's thrust
         scale_t = np.maximum(np.interp(np.abs(t_m), *profile_t), 1e-6 * t_top)
+    else:
+        s_t = robust_scale(dt[::step][sel]) if np.any(sel) else 0.0
+        scale_t = np.full(n_keys, max(s_t, 1e-6 * t_top))
     scale_p = ref_p * max(s_p, 1e-6)
     if profile_p is not None:
         scale_p = np.maximum(np.interp(np.abs(p_m), *profile_p), scale_p)

@@ -136,14 +136,16 @@ def _slow_parse(path, skip, ncols, wanted=None):
 _LOADTXT = {"delimiter": ",", "comments": "#", "ndmin": 2, "dtype": float, "encoding": "utf-8"}
 
 
-def _load_numbers(path, skip, ncols, wanted):
-    """(one contiguous array per column of ``wanted``, in that order; the (min, max) of each
-    when every value is finite (_extremes), else None; the file's SHA-256).
+def _load_numbers(path, skip, ncols, wanted, to_si):
+    """(one contiguous array per column of ``wanted``, in that order and in SI units; the
+    (min, max) of each when every value is finite (_extremes), else None; the file's SHA-256).
 
-    One numpy.loadtxt. When the file holds other columns too, it parses only ``wanted``; it
-    then does not look at the other cells, so the file's commas (counted while hashing) prove
-    that every data row has the header's width (a full read checks that by itself). Each
-    column is copied out of the table once; its min and max (NaN or infinity makes one of
+    to_si: (scale, offset) of each wanted column (UNITS). One numpy.loadtxt. When the file
+    holds other columns too, it parses only ``wanted`` and the last column: a row short of a
+    cell then lacks the last one and fails the read, so no row is narrower than the header,
+    and the file's commas (counted while hashing) prove that none is wider either (a full
+    read checks every row's width by itself). Each column is copied out of the
+    table once, converted to SI on the way; its min and max (NaN or infinity makes one of
     them non-finite) then decide finiteness and serve the row checks. On any trouble (a row
     of another width, text where a number belongs, NaN or infinity written in a cell) the
     slow parse, which names the broken row or turns empty cells into NaN.
@@ -160,19 +162,33 @@ def _load_numbers(path, skip, ncols, wanted):
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("error")
-            table = np.loadtxt(path, skiprows=skip, usecols=None if every else wanted, **_LOADTXT)
-        if (table.shape[1] == (ncols if every else len(wanted))
+            read = None if every else list(wanted) + ([] if ncols - 1 in wanted else [ncols - 1])
+            table = np.loadtxt(path, skiprows=skip, usecols=read, **_LOADTXT)
+        if (table.shape[1] == (ncols if every else len(read))
                 and (every or commas - _head_commas(path, skip) == table.shape[0] * (ncols - 1))):
-            cols = [np.ascontiguousarray(table[:, k]) for k in (wanted if every else range(len(wanted)))]
+            cols = _si_columns(table, wanted if every else range(len(wanted)), to_si)
             del table
             extremes = _extremes(cols)
             if extremes is not None:
                 return cols, extremes, digest
     except (ValueError, UserWarning, UnicodeDecodeError, OverflowError):
         pass
-    table = _slow_parse(path, skip, ncols, wanted)
-    cols = [np.ascontiguousarray(table[:, k]) for k in wanted]
+    cols = _si_columns(_slow_parse(path, skip, ncols, wanted), wanted, to_si)
     return cols, _extremes(cols), digest
+
+
+def _si_columns(table, at, to_si):
+    """The table's columns ``at`` as contiguous arrays in SI: value * scale + offset, the
+    scaling done by the one copy."""
+    import numpy as np
+
+    cols = []
+    for k, (scale, offset) in zip(at, to_si):
+        col = np.multiply(table[:, k], scale) if scale != 1.0 else np.ascontiguousarray(table[:, k])
+        if offset != 0.0:
+            col += offset
+        cols.append(col)
+    return cols
 
 
 def _extremes(cols):
@@ -205,22 +221,11 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     columns, warnings = _parse_header(path, head)
     warnings = comment_warnings + list(warnings)
     ncols = len(head.cells)
-    cols, raw_extremes, digest = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED])
-    data = {}
-    # one min and max per column decide the common case: every value finite and inside
-    # every row check, so no row is dropped and no mask is needed (scaling keeps the order)
-    extremes = None if raw_extremes is None else []
-    for k, (name, col) in enumerate(zip(REQUIRED, cols)):
-        unit = columns[name][1]
-        scale, offset = UNITS[name][unit]
-        if scale != 1.0:
-            col *= scale
-        if offset != 0.0:
-            col += offset
-        if extremes is not None:
-            extremes.extend(x * scale + offset for x in raw_extremes[k])
-        data[name] = col
-        data[name + "_unit"] = unit
+    units = {name: columns[name][1] for name in REQUIRED}
+    cols, extremes, digest = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED],
+                                           [UNITS[name][units[name]] for name in REQUIRED])
+    data = {name: col for name, col in zip(REQUIRED, cols)}
+    data.update({name + "_unit": units[name] for name in REQUIRED})
     del cols
     rows_total = data["command"].shape[0]
     if rows_total < 10:
@@ -229,12 +234,14 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
                          "to full command" % (path, rows_total))
 
     u, v, i, t = data["command"], data["voltage"], data["current"], data["thrust"]
+    # one min and max per column decide the common case: every value finite and inside
+    # every row check, so no row is dropped and no mask is needed
     clean = extremes is not None
+    extremes = [x for pair in extremes for x in pair] if clean else None  # u, v, i, t: (min, max)
     v_med = None
     if clean:
         v_med = float(np.median(v[:: max(1, v.size // MEDIAN_ROWS)]))
     _check_units(path, data, v_med, extremes if clean else None)
-    units = {name: data[name + "_unit"] for name in REQUIRED}
     if clean:
         u_lo, u_hi, v_lo, v_hi, i_lo, i_hi, t_lo, t_hi = extremes
         tol_i = max(NEGATIVE_CURRENT_TOLERANCE_A, 0.01 * max(abs(i_lo), abs(i_hi)))
