@@ -35,6 +35,11 @@ MAX_HEAD_LINE = 1 * MiB
 # many lines is no liftcal CSV [lines]
 MAX_HEAD_LINES = 10000
 
+# the command column's units, one table for bench sweeps and flight logs: unit -> (scale,
+# offset) so that the command [-] (0..1) = value * scale + offset. ``permille`` is the unit
+# liftcal itself speaks on the board (Watch.update, the exported hover command).
+COMMAND_UNITS = {"-": (1.0, 0.0), "%": (0.01, 0.0), "permille": (0.001, 0.0), "us": (0.001, -1.0)}
+
 _HEADER_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*(?:\[([^\]]*)\])?\s*$")
 
 

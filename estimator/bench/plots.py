@@ -47,9 +47,10 @@ def user_units(params):
     t_unit = units.get("thrust", "N")
     factor = 1.0 / UNITS["thrust"].get(t_unit, (1.0, 0.0))[0]
     c_unit = units.get("command", "-")
-    shown = {"us": lambda u: 1000.0 + 1000.0 * np.asarray(u), "%": lambda u: 100.0 * np.asarray(u)}.get(
-        c_unit, lambda u: np.asarray(u))
-    return factor, t_unit, shown, {"us": "command [us]", "%": "command [%]"}.get(c_unit, "command u [-]")
+    shown = {"us": lambda u: 1000.0 + 1000.0 * np.asarray(u), "%": lambda u: 100.0 * np.asarray(u),
+             "permille": lambda u: 1000.0 * np.asarray(u)}.get(c_unit, lambda u: np.asarray(u))
+    return factor, t_unit, shown, {"us": "command [us]", "%": "command [%]",
+                                   "permille": "command [permille]"}.get(c_unit, "command u [-]")
 
 
 def plot_fit(path, params, arrays):

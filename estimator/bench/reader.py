@@ -3,7 +3,7 @@
 File layout: lines starting with ``#`` are comments (``# density: 1.19``, ``# altitude: 300``,
 ``# temperature: 21``, ``# pressure: 97000``, ``# humidity: 40``, ``# diameter: 10in``);
 then one header row of ``name[unit]`` cells; then comma-separated numbers. Required columns:
-``command[-|%|us]``, ``voltage[V|mV]``, ``current[A|mA]``, ``thrust[N|g|gf|kgf|lbf|mN]``.
+``command[-|%|permille|us]``, ``voltage[V|mV]``, ``current[A|mA]``, ``thrust[N|g|gf|kgf|lbf|mN]``.
 Optional columns (``time[s]``, ``rpm[rpm]``, ``torque[N*m]``, ``temperature[C]``) are read
 past; unknown ones too, with a warning.
 
@@ -27,7 +27,7 @@ REQUIRED = ("command", "voltage", "current", "thrust")
 OPTIONAL = ("time", "rpm", "torque", "temperature")
 # column -> {unit as written: (scale, offset)} so that SI = value * scale + offset
 UNITS = {
-    "command": {"-": (1.0, 0.0), "%": (0.01, 0.0), "us": (0.001, -1.0)},
+    "command": csvtable.COMMAND_UNITS,
     "voltage": {"V": (1.0, 0.0), "mV": (1e-3, 0.0)},
     "current": {"A": (1.0, 0.0), "mA": (1e-3, 0.0)},
     "thrust": {"N": (1.0, 0.0), "mN": (1e-3, 0.0), "g": (1e-3 * STANDARD_GRAVITY_M_S2, 0.0),
@@ -360,12 +360,14 @@ def _check_units(path, data, v_med=None, extremes=None):
         if outside > COMMAND_OUTSIDE_SHARE * finite_u.size:
             hint = {"-": "is it command[%] (0..100) or command[us] (1000..2000)?",
                     "%": "is it command[us] (1000..2000) or command[-] (0..1)?",
+                    "permille": "is it command[us] (1000..2000)?",
                     "us": "is it command[%] or command[-]?"}[data["command_unit"]]
             raise InputError("%s: %d of %d command values fall outside 0..1 after converting "
                              "from [%s]; %s" % (path, outside, finite_u.size,
                                                 data["command_unit"], hint))
-        if data["command_unit"] == "%" and u_max <= 0.0101:
-            raise InputError("%s: command[%%] never exceeds 1 %%; is it command[-] (0..1)?" % path)
+        if data["command_unit"] in ("%", "permille") and u_max <= 1.01 * UNITS["command"][data["command_unit"]][0]:
+            raise InputError("%s: command[%s] never exceeds 1 %s; is it command[-] (0..1)?"
+                             % (path, data["command_unit"], data["command_unit"]))
         # the median can only exceed the limit when the largest value does (the clean case
         # knows it already: no pass over the column then)
         i_big = data["current_unit"] == "A" and (extremes is None or extremes[5] > MAX_CURRENT_A)

@@ -8,10 +8,12 @@ from estimator.units import plain_number
 
 
 def command_text(u, unit, span=False):
-    """A command [-] written in the unit of the CSV's command column (us, % or -); span=True
-    for a difference of commands (no 1000 us offset)."""
+    """A command [-] written in the unit of the CSV's command column (us, %, permille or -);
+    span=True for a difference of commands (no 1000 us offset)."""
     if unit == "us":
         return "%.0f us" % ((0.0 if span else 1000.0) + 1000.0 * u)
+    if unit == "permille":
+        return "%.0f permille" % (1000.0 * u)
     if unit == "%":
         return "%.1f %%" % (100.0 * u)
     return "%.3f" % u
@@ -20,7 +22,8 @@ def command_text(u, unit, span=False):
 def command_with_error(u, se, unit):
     """A command [-] and its standard error [-] in the CSV's command unit, in matching digits
     (value_and_error): '1200.0 us +- 2.3 us', '18.6 % +- 1.3 %', '0.186 +- 0.013'."""
-    scale, offset, tail = {"us": (1000.0, 1000.0, " us"), "%": (100.0, 0.0, " %")}.get(unit, (1.0, 0.0, ""))
+    scale, offset, tail = {"us": (1000.0, 1000.0, " us"), "%": (100.0, 0.0, " %"),
+                           "permille": (1000.0, 0.0, " permille")}.get(unit, (1.0, 0.0, ""))
     value, error = value_and_error(offset + scale * u, scale * se)
     if not error:
         return command_text(u, unit)

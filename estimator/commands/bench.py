@@ -132,8 +132,8 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
         humidity, voltage_exponent, plot_file, as_json):
     """Fit a bench sweep CSV into a validated parameter set.
 
-    The CSV has a name[unit] header: command[-|%|us], voltage[V], current[A],
-    thrust[N|g|gf|kgf|lbf]; '# altitude:', '# temperature:', '# pressure:', '# humidity:'
+    The CSV has a name[unit] header: command[-|%|permille|us], voltage[V|mV], current[A|mA],
+    thrust[N|mN|g|gf|kgf|lbf]; '# altitude:', '# temperature:', '# pressure:', '# humidity:'
     or '# density:' comments give the bench air and '# diameter:' the propeller.
     """
     from estimator.bench.sweep import fit_bench_file, summary

@@ -129,7 +129,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
 def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_time, as_json):
     """Run a logged flight through the power watch and list its events.
 
-    FLIGHT.csv has time[s], command[-] (or [%], [us]), voltage[V] and current[A] columns
+    FLIGHT.csv has time[s], command[-] (or [%], [permille], [us]), voltage[V] and current[A] columns
     (bus totals). The same integer kernel as on the board runs on every row.
     """
     from estimator.watch.replay import replay_file

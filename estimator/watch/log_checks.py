@@ -97,12 +97,13 @@ def check_plausible(path, flight, units, cfg):
                             % cells if per_cell else "; is the column the pack's bus voltage?"))
     spin = cfg["spin_permille"]
     flying = [i for i in range(len(u)) if u[i] >= spin]
-    if units["command"] == "%" and max(u) <= 10 and max(ma) > 0 and _median(ma) > 0:
-        # all commands in 0..1 % while current flows: a 0..1 command labelled %
+    one = {"%": 10, "permille": 1}.get(units["command"])     # 1 % or 1 permille, in permille
+    if one is not None and max(u) <= one and max(ma) > 0 and _median(ma) > 0:
+        # all commands in 0..1 (% or permille) while current flows: a 0..1 command mislabelled
         if _median([abs(x) for x in ma]) > 1000:
-            raise InputError("%s: column command[%%]: every value is between 0 and 1 while %.1f A flows: "
-                             "likely a 0..1 command labelled %%; label it command[-]"
-                             % (path, _median(ma) / 1000.0))
+            raise InputError("%s: column command[%s]: every value is between 0 and 1 while %.1f A flows: "
+                             "likely a 0..1 command labelled %s; label it command[-]"
+                             % (path, units["command"], _median(ma) / 1000.0, units["command"]))
     if units["command"] == "-" and len(u) and max(u) > 1000:
         share = sum(1 for x in u if x > 1000) / len(u)
         if share > 0.05:

@@ -1,7 +1,7 @@
 """Desktop replay: run a logged flight through the same integer watch kernel as the board.
 
-Flight CSV (design notes sec. 4): header ``time[s]`` (or ``time[ms]``), ``command[-]`` (also ``command[%]`` or
-``command[us]`` 1000..2000), ``voltage[V]`` (or ``[mV]``), ``current[A]`` (or ``[mA]``); more
+Flight CSV (design notes sec. 4): header ``time[s]`` (or ``time[ms]``), ``command[-]`` (also ``command[%]``,
+``command[permille]`` or ``command[us]`` 1000..2000), ``voltage[V]`` (or ``[mV]``), ``current[A]`` (or ``[mA]``); more
 columns are ignored; lines starting with ``#`` are comments. Each row becomes one
 ``Watch.update(dt_ms, command_permille, bus_mV, bus_mA)`` call with the values rounded to
 integers; the first row's dt is the median sample period. Out-of-range values are passed to
@@ -12,6 +12,7 @@ are seconds from the log's first row (a logger's clock may count from 1970).
 import sys
 
 from estimator.core.watch_layout import FLAG_BITS
+from estimator.csvtable import COMMAND_UNITS
 from estimator.errors import InputError
 from estimator.watch.config import make_config, new_watch
 from estimator.watch.log_checks import check_plausible, check_time, flying_ms
@@ -20,8 +21,9 @@ KINDS = FLAG_BITS
 ALARM_BITS = 1 | 2 | 8 | 16
 PROGRESS_ROWS = 100000  # logs longer than this get a progress bar (stderr, terminals only)
 
-# unit -> (scale, offset): permille = (value + offset) * scale
-_COMMAND_UNITS = {"-": (1000.0, 0.0), "%": (10.0, 0.0), "us": (1.0, -1000.0)}
+# unit -> (scale, offset): permille = (value + offset) * scale, from the one command unit
+# table (estimator.csvtable.COMMAND_UNITS: command [-] = value * s + o); exact in floats
+_COMMAND_UNITS = {unit: (1000.0 * s, o / s) for unit, (s, o) in COMMAND_UNITS.items()}
 _VOLT_UNITS = {"V": 1000.0, "mV": 1.0}
 _AMP_UNITS = {"A": 1000.0, "mA": 1.0}
 
