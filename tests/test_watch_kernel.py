@@ -227,7 +227,7 @@ def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
         p_W = frac * top_W * 0.999
         ma = int(round(p_W / (mv / 1000.0) * 1000.0))
         w = Watch(as_tuple(cfg))
-        for _ in range(10):   # thrust comes from the block's mean measured power (1 s blocks)
+        for _ in range(10):   # thrust comes from the block's mean measured power (0.5 s blocks)
             w.update(100, 500, mv, ma)
         p_meas = (mv // 20) * ma // 5000 / 10.0  # the kernel's own integer power, in W
         ref_mN = 1000.0 * _float_thrust_total_N(p_meas, params, n, rho)
