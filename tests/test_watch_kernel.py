@@ -115,6 +115,22 @@ def test_every_intermediate_below_2_30_on_the_extremes():
                 _state_ok(w)
 
 
+def test_every_intermediate_below_2_30_at_the_largest_noise():
+    # The in-flight noise may reach twice the learning window's 100 % (sig at 2 x 1000 x 64 in
+    # Q6); with the largest CONFIG k and h (in noise sigma) and the smallest k cap, the capped
+    # reference's h = h_sigma s x k_sigma s / k_max must still stay below 2^30 (it once reached
+    # 2e9 at 200 % noise).
+    from watch_helpers import set_state
+    cfg = dict(demo_config(), cusum_k_q8=2560, cusum_h_q8=12800, cusum_k_max_permille=1, takeoff_ms=0)
+    w = CHECKED(as_tuple(cfg))
+    for i in range(30):
+        w.update(100, 520, 15000, 20000 + 7000 * (i & 1))
+    set_state(w, learning=0, sig=2 * 1000 * 64, l_dev=1000 * 64)
+    for i in range(300):
+        w.update(100, 520, 15000, 20000 + 15000 * (i & 1) + 3 * i)
+        _state_ok(w)
+
+
 @settings(max_examples=150, deadline=None)
 @given(st.lists(st.tuples(st.integers(1, 60000), st.integers(0, 1000), st.integers(0, 60000),
                           st.integers(-300000, 300000)), min_size=1, max_size=60))

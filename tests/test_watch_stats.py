@@ -140,12 +140,15 @@ def test_capped_reference_keeps_the_false_alarm_rate():
     # 10 % step must be caught within a finite, bounded mean delay.
     from estimator.watch.config import log_arl_two_sided
     cfg = make_config(demo_fit_params())[0]
-    w = Watch(as_tuple(cfg))
     target = math.log(3600000.0 / cfg["block_ms"] / 1e-6)     # DEFAULTS false_alarms_per_hour 1e-6
     k_max = cfg["cusum_k_max_permille"]
     for s in (8, 20, 34, 60, 130, 300, 1000):
-        w._kh(s)
+        w = Watch(as_tuple(cfg))
+        set_state(w, learning=0, sig=s << 6)
+        for _ in range(cfg["block_ms"] // 100):               # one block: k and h from the noise
+            w.update(100, 520, 15000, 20000)
         k, h = w.sb[7], w.sb[8]
+        s = max(s, cfg["noise_floor_permille"])               # the kernel's noise is never below its floor
         assert k <= k_max
         ks, hs = k / s, h / s
         # integer rounding of k and h moves ln ARL by at most about 2 (k + h) / s

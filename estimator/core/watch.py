@@ -195,26 +195,6 @@ class Watch:
         st[1] = flags
         return flags
 
-    def _kh(self, s):
-        """CUSUM reference k and threshold h [permille] for the block noise s [permille].
-
-        k = k_sigma s and h = h_sigma s (CONFIG, from Siegmund's ARL); k at most k_max [permille]
-        (half the smallest shift the watch must catch soon, whatever the noise), and then h
-        = h_sigma s x (k_sigma s / k_max): for a large in-control ARL Siegmund's approximation
-        gives ln ARL ~ 2 k h (k, h in noise sigma), so h k constant keeps the false-alarm rate
-        (slightly below the target: h k grows a little with k). Writes sb[7], sb[8].
-        """
-        c = self.st[0]
-        k = s * c[133] >> 8                           # 1000 * 2560
-        h = s * c[134] >> 8                           # 1000 * 12800
-        km = c[144]
-        if k > km:
-            h = h * k // km                           # 50000 * 10000 = 5e8
-            h = 1048576 if h > 1048576 else h
-            k = km
-        self.sb[7] = k
-        self.sb[8] = h
-
     def _block(self, flags, em, ee, bw, mv, low, fl_ms, fsum, ed):
         """One block of flight time: residual, learning, CUSUM, noise, drift, implied mass.
 
@@ -227,6 +207,21 @@ class Watch:
         sb = self.sb
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
          m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd) = sb
+        # CUSUM reference k and threshold h [permille] from the block noise: k_sigma and h_sigma
+        # (Siegmund) times the noise; k at most k_max (half the smallest step to catch soon,
+        # whatever the noise), then h = h_sigma s x k_sigma s / k_max: for a large in-control ARL
+        # Siegmund's approximation gives ln ARL ~ 2 k h (k, h in noise sigma), so h k constant
+        # keeps the false-alarm rate (a little below the target: h k grows slightly with k)
+        k = sig >> 6
+        k = c[131] if k < c[131] else (1000 if k > 1000 else k)   # the noise, within floor..100 %
+        h = k * c[134] >> 8                               # 1000 * 12800
+        k = k * c[133] >> 8                               # 1000 * 2560
+        if k > c[144]:
+            h = h * k // c[144]                           # 50000 * 10000 = 5e8
+            h = 1048576 if h > 1048576 else h
+            k = c[144]
+        sb[7] = k
+        sb[8] = h
         pmb = em // bw                                    # mean measured power [0.1 W] <= 180000
         # slow outputs: thrust from the block's measured power (table over power), hover command
         sh = c[123]
@@ -353,7 +348,6 @@ class Watch:
                 # confidence bound) and comes down as flight blocks are learned
                 s += s
                 sb[6] = s << 6                            # Q6, <= 128000
-                self._kh(s)
                 self.scale = scale
                 self.sigma_permille = s
         elif near:
@@ -384,10 +378,7 @@ class Watch:
                     sig = l_dev + l_dev                   # a slow ramp must not hide in the noise
                 sb[6] = sig
                 s = sig >> 6
-                if s < floor:
-                    s = floor
-                self._kh(s)
-                self.sigma_permille = s
+                self.sigma_permille = s if s > floor else floor
             if steady and s_hi + s_lo < (h >> 1):
                 # slow bounded drift of the baseline [1/256 permille], not from a block that raised a suspicion
                 drift += ((r << 8) - drift) >> c[136]     # 1000 * 256
