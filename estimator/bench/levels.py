@@ -176,20 +176,22 @@ def _screen(key, n_keys, count, x, dev2, ref, limit, allowed):
     """Rows far from their level: dev2 > (limit * ref)^2 (dev2: per row, the square of x
     minus the level's mean and in-level trend; ref: per level), then in small levels (one
     spike moves the mean as far as its neighbours) judged again against the level's median.
-    Returns the bool mask."""
+    Returns (the bool mask, the flagged rows' indices in order)."""
     bound = np.where(allowed, limit * ref, np.inf)
     flagged = dev2 > np.take(np.square(bound), key)
     hits = np.flatnonzero(flagged)
     if hits.size == 0:
-        return flagged
+        return flagged, hits
     k = key[hits]
     small_levels = np.zeros(n_keys, dtype=bool)
     small_levels[k[count[k] < SMALL_LEVEL]] = True
     if np.any(small_levels):
         rows = np.flatnonzero(np.take(small_levels, key))
         k = key[rows]
-        flagged[rows] = _median_recheck(k, x[rows], limit, ref) & allowed[k]
-    return flagged
+        again = _median_recheck(k, x[rows], limit, ref) & allowed[k]
+        flagged[rows] = again
+        hits = np.union1d(hits[~small_levels[key[hits]]], rows[again])
+    return flagged, hits
 
 
 def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
@@ -273,22 +275,22 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
         ms_p = level_sums(dp) / safe
         scale_t[own] = np.maximum(np.sqrt(ms_t[own]), 1e-6 * t_top)
         scale_p[own] = np.maximum(np.sqrt(ms_p[own]), 1e-6 * ref_p[own])
-    thrust_spike = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
-    if profile_t is not None and thrust_spike.any():
+    thrust_spike, t_hits = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
+    if profile_t is not None and t_hits.size:
         # a spike moves its whole level's deviations: judge again with a profile made only
         # of levels without a flagged row (dt holds squared deviations now)
         spoiled = np.zeros(n_keys, dtype=bool)
-        spoiled[key[thrust_spike]] = True
+        spoiled[key[t_hits]] = True
         clean = ~spoiled[ks[sel]]
         again = noise_profile(*(x[clean] for x in sub))
         if again is not None:
             scale_t = np.maximum(np.interp(np.abs(t_m), *again), 1e-6 * t_top)
-            thrust_spike = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
+            thrust_spike, t_hits = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
     del dt
     spinning = big & (np.abs(t_m) > 0.02 * t_top)
-    power_spike = _screen(key, n_keys, count, p, dp, scale_p, SPIKE_SIGMAS, spinning)
+    power_spike, p_hits = _screen(key, n_keys, count, p, dp, scale_p, SPIKE_SIGMAS, spinning)
     del dp
-    out = np.flatnonzero(thrust_spike | power_spike)
+    out = np.union1d(t_hits, p_hits)  # the rows of either kind of spike
     if out.size:
         k = key[out]
         count = count - np.bincount(k, minlength=n_keys)
