@@ -12,7 +12,6 @@ import pytest
 
 from estimator.cli import main
 from estimator.demo.bench_sim import simulate_sweep
-from estimator.demo.flight_sim import simulate_flight
 
 
 def _run(args, capsys):
@@ -40,6 +39,14 @@ def _recolumn(text, old, new, scale):
             cells[i] = "%.6f" % (float(cells[i]) * scale)
         out.append(",".join(cells))
     return "\n".join(out) + "\n"
+
+
+def _flight_text():
+    """The simulated demo flight (cached in watch_helpers) as CSV text with command[-]."""
+    from watch_helpers import demo_flight_rows
+
+    return "time[s],command[-],voltage[V],current[A]\n" + "".join(
+        "%.3f,%.4f,%.4f,%.4f\n" % tuple(r) for r in demo_flight_rows(7))
 
 
 @pytest.fixture(scope="module")
@@ -99,7 +106,7 @@ def test_a_flight_log_in_permille_replays_like_the_fraction_log(tmp_path, capsys
 
     params = tmp_path / "params.json"
     params.write_text(json.dumps(demo_fit_params()))
-    text = simulate_flight(seed=5, duration_s=120.0)
+    text = _flight_text()
     frac = tmp_path / "fl_fraction.csv"
     frac.write_text(text)
     perm = tmp_path / "fl_permille.csv"
@@ -119,7 +126,7 @@ def test_a_fraction_flight_log_labelled_permille_is_refused(tmp_path, capsys):
     params = tmp_path / "params.json"
     params.write_text(json.dumps(demo_fit_params()))
     f = tmp_path / "fl_slip.csv"
-    f.write_text(_recolumn(simulate_flight(seed=5, duration_s=60.0), "-", "permille", 1.0))
+    f.write_text(_recolumn(_flight_text(), "-", "permille", 1.0))
     code, _, err = _run(["replay", str(f), "--params", str(params)], capsys)
     lines = err.strip().splitlines()
     assert code == 2 and len(lines) == 1, err

@@ -8,8 +8,7 @@ import json
 import pytest
 
 from estimator.cli import main
-from estimator.demo.flight_sim import simulate_flight
-from watch_helpers import demo_fit_params
+from watch_helpers import demo_fit_params, demo_flight_rows
 
 
 @pytest.fixture(scope="module")
@@ -21,8 +20,7 @@ def params_file(tmp_path_factory):
 
 @pytest.fixture(scope="module")
 def rows():
-    text = simulate_flight(fault=None, seed=7)
-    return [l for l in text.splitlines() if l and not l.startswith("#")][1:]
+    return [",".join("%.6g" % x for x in r) for r in demo_flight_rows(7)]
 
 
 def _write(tmp_path, header, rows, name="log.csv"):

@@ -151,3 +151,18 @@ def run_flight(config, flight, dt_ms=100):
         if w.mass_g and w.sb[0] == 0 and u[i] > 100:
             masses.append(w.mass_g)
     return w, events, masses
+
+
+_DEMO_FLIGHT = {}
+
+
+def demo_flight_rows(seed=7):
+    """The simulated clean demo flight (estimator.demo.flight_sim, 300 s at 10 Hz) as rows of
+    [time s, command -, voltage V, current A]; simulated once per seed and test run (about 4 s)."""
+    if seed not in _DEMO_FLIGHT:
+        from estimator.demo.flight_sim import simulate_flight
+
+        text = simulate_flight(fault=None, seed=seed)
+        _DEMO_FLIGHT[seed] = [[float(x) for x in line.split(",")] for line in text.splitlines()
+                              if line and not line.startswith(("#", "time"))]
+    return [list(r) for r in _DEMO_FLIGHT[seed]]

@@ -163,7 +163,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         lines.append("  (times in s from the log's first row)")
     for e in out["events"]:
         if e["kind"] == "sensor_fault":
-            what = EVENT_MEANING.get(e["kind"], "")
+            what = e.get("detail") or EVENT_MEANING.get(e["kind"], "")
         elif e["kind"] == "mass_high":
             what = ("implied mass %.3f kg against %.3f kg planned (alarm above %.3f kg plus the estimate's "
                     "margin)  %s" % (e["mass_kg"], e["planned_kg"], e["limit_kg"], EVENT_MEANING.get(e["kind"], "")))

@@ -5,6 +5,10 @@
 - values implausible for the parameter set are refused with the likely unit slip: a 0..1
   command in a column labelled %, millivolts labelled V (or volts labelled mV), a current
   sensor reading negative while the rotors turn, milliamps labelled A;
+- a log from another vehicle or pack than the parameter set's is refused before the watch
+  runs (the watch would learn a power scale and read the difference as a propulsion fault):
+  the bus voltage in flight against the set's pack, and the mass the log's power implies
+  through the set's power model against the planned mass;
 - a log with too little settled flight to learn the baseline says so (no verdict), so that
   silence is never read as health.
 
@@ -12,8 +16,32 @@ All limits come from the watch CONFIG (dict from estimator.watch.config.make_con
 """
 
 from estimator.errors import InputError
+from estimator.units import STANDARD_GRAVITY_M_S2
 
 SHOWN_ROWS = 5  # row numbers named in one error line
+
+# Bounds of check_vehicle, for gross mismatches only (what the watch is not there to judge):
+# - median bus voltage in flight above the full pack: under load a pack sits below its
+#   full-charge voltage; 5 % covers high-voltage cells (4.35 V against 4.2 V a cell, +3.6 %,
+#   common practice) and a voltage sensor's calibration (about 1 %, from memory). One cell
+#   more on a 6-cell pack is +17 %; a 6-cell log on a 4-cell set about +45 %.
+LOG_ABOVE_FULL = 1.05
+# - ... below the empty pack: a flight ends at the empty (loaded) voltage, so most of it is
+#   flown above; 10 % below covers a cold pack's extra sag and a cautious empty voltage in
+#   the vehicle file (from memory). One cell fewer on a 4-cell pack is -25 %.
+LOG_BELOW_EMPTY = 0.90
+# - the mass implied by the log (thrust from its median bus power in flight through the set's
+#   power model, over g) against the planned mass. Lighter: a payload left at home (a quarter
+#   of the all-up mass, common practice for camera craft) times forward flight near the
+#   best-endurance speed (about 65 % of the hover power, momentum theory for forward flight,
+#   from memory; read as static power, 0.65^(2/3) = 0.75 of the thrust) gives 0.56: 0.5 is
+#   below. Heavier: hard flying (median power 1.5 x hover reads as 1.5^(2/3) = 1.31 x the mass)
+#   with a payload of half the plan (more drops a typical thrust-to-weight of 3 at plan below
+#   the 2 a controllable multirotor needs, common practice) gives 1.97: 2.0. The watch's own
+#   mass alarm (plan + 8 %) judges everything in between.
+IMPLIED_MASS_RANGE = (0.5, 2.0)
+# the implied mass is judged on at least this much flight above the spin command [s]
+IMPLIED_MASS_MIN_FLIGHT_S = 10.0
 
 
 def _median(values):
@@ -93,8 +121,9 @@ def check_plausible(path, flight, units, cfg):
         per_cell = 0.8 * v_empty / cells <= med_v <= 1.2 * v_full / cells
         raise InputError("%s: column voltage[%s]: median %.3g V is far below the empty pack (%.1f V)%s"
                          % (path, units["voltage"], med_v / 1000.0, v_empty / 1000.0,
-                            ": likely one cell's voltage on this %d-cell pack; log the pack (bus) voltage"
-                            % cells if per_cell else "; is the column the pack's bus voltage?"))
+                            ": likely one cell's voltage on this %d-cell pack; log the pack (bus) voltage "
+                            "(or is the log from another vehicle?)" % cells if per_cell else
+                            "; is the column the pack's bus voltage, or the log from another vehicle?"))
     spin = cfg["spin_permille"]
     flying = [i for i in range(len(u)) if u[i] >= spin]
     one = {"%": 10, "permille": 1}.get(units["command"])     # 1 % or 1 permille, in permille
@@ -119,10 +148,77 @@ def check_plausible(path, flight, units, cfg):
                              "rotors turn (median %.2f A): the current sensor reads reversed; flip its sign"
                              % (path, units["current"], 100.0 * neg, med_a / 1000.0))
         if med_a > 20.0 * cfg["i_max_mA"]:
-            raise InputError("%s: column current[%s]: median %.4g A while flying is %.0f times the vehicle's "
-                             "current limit (%.0f A): likely milliamps in a column labelled [A]; label it "
-                             "current[mA]" % (path, units["current"], med_a / 1000.0,
-                                             med_a / cfg["i_max_mA"], cfg["i_max_mA"] / 1000.0))
+            raise InputError("%s: column current[%s]: median %.4g A while flying is %.0f times the watch's "
+                             "current-sensor range (%.0f A): likely milliamps in a column labelled [A]; label "
+                             "it current[mA]" % (path, units["current"], med_a / 1000.0,
+                                                med_a / cfg["i_max_mA"], cfg["i_max_mA"] / 1000.0))
+
+
+def _flight_medians(flight, cfg):
+    """(bus voltage [mV], bus power [W], flight time [s]): time-weighted medians over the rows at
+    or above the spin command (each row weighs its sample period, at most the gap limit), so
+    that the logging rate changes nothing (design notes sec. 3, Watch)."""
+    t, u, mv, ma = flight["time_s"], flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
+    spin, cap = cfg["spin_permille"], cfg["dt_max_ms"] / 1000.0
+    rows = []
+    for i in range(1, len(t)):
+        w = min(t[i] - t[i - 1], cap)
+        if u[i] >= spin and w > 0:
+            rows.append((w, mv[i], mv[i] * max(ma[i], 0) / 1e6))
+    total = sum(r[0] for r in rows)
+    if not rows:
+        return None, None, 0.0
+
+    def median(k):
+        acc = 0.0
+        for r in sorted(rows, key=lambda r: r[k]):
+            acc += r[0]
+            if acc >= 0.5 * total:
+                return r[k]
+        return rows[-1][k]
+
+    return median(1), median(2), total
+
+
+def check_vehicle(path, flight, params, facts, cfg):
+    """Refuse a log that looks like another vehicle or pack than the parameter set's (InputError
+    with the figures): its median bus voltage in flight above LOG_ABOVE_FULL x the full pack or
+    below LOG_BELOW_EMPTY x the empty pack, or the mass its median bus power in flight implies
+    (through the set's power model, estimator.watch.config.thrust_from_power_total_N) outside
+    IMPLIED_MASS_RANGE x the planned mass.
+
+    facts: estimator.watch.config.vehicle_facts (mass_kg, rotor_count, site_density_kg_m3, cells,
+    full_voltage_V, empty_voltage_V, name); cfg: the watch CONFIG (without pack voltages in facts,
+    its v_max_mV / v_min_mV: 1.2 x full and 0.5 x empty pack).
+    """
+    from estimator.watch.config import thrust_from_power_total_N
+
+    med_mV, med_W, flown_s = _flight_medians(flight, cfg)
+    if med_mV is None:
+        return
+    v_full = float(facts.get("full_voltage_V") or cfg["v_max_mV"] / 1200.0)   # as make_config took them
+    v_empty = float(facts.get("empty_voltage_V") or cfg["v_min_mV"] / 500.0)
+    v = med_mV / 1000.0
+    cells = facts.get("cells")
+    pack = "%d cell%s" % (cells, "" if cells == 1 else "s") if cells else "its pack"
+    found = []
+    if v > LOG_ABOVE_FULL * v_full:
+        found.append("median bus voltage in flight %.1f V, above its full pack (%.1f V on %s)" % (v, v_full, pack))
+    elif v < LOG_BELOW_EMPTY * v_empty:
+        found.append("median bus voltage in flight %.1f V, below its empty pack (%.1f V on %s)" % (v, v_empty, pack))
+    if flown_s >= IMPLIED_MASS_MIN_FLIGHT_S:
+        plan = float(facts["mass_kg"])
+        mass = thrust_from_power_total_N(med_W, params, int(facts["rotor_count"]),
+                                         float(facts["site_density_kg_m3"])) / STANDARD_GRAVITY_M_S2
+        off = not IMPLIED_MASS_RANGE[0] <= mass / plan <= IMPLIED_MASS_RANGE[1]
+        if off or found:
+            found.append("implied mass %.3g kg (%.4g W in flight through its power model) against %.3g kg "
+                         "planned%s" % (mass, med_W, plan, ", outside the %g..%g x a payload or the flying "
+                                        "explains" % IMPLIED_MASS_RANGE if off else ""))
+    if found:
+        raise InputError("%s: this log looks like another vehicle or pack than the parameter set's: %s; replay it "
+                         "with that vehicle's parameter set (or give --vehicle with the mass and pack it flew)"
+                         % (path, "; ".join(found)))
 
 
 def _check_time_unit(path, time_s, unit, gap_s):
@@ -141,14 +237,3 @@ def _check_time_unit(path, time_s, unit, gap_s):
         raise InputError("%s: column time[ms]: the median step between rows is %.3g ms, a logging rate "
                          "above 500 Hz: likely seconds in a column labelled [ms]; label it time[s]"
                          % (path, step * 1000.0))
-
-
-def flying_ms(flight, cfg):
-    """Flight time above the spin command [ms] (sum of the sample periods while flying)."""
-    t, u = flight["time_s"], flight["command_permille"]
-    spin = cfg["spin_permille"]
-    total = 0.0
-    for i in range(1, len(t)):
-        if u[i] >= spin:
-            total += min(t[i] - t[i - 1], cfg["dt_max_ms"] / 1000.0)
-    return 1000.0 * total

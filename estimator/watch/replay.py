@@ -14,8 +14,9 @@ import sys
 from estimator.core.watch_layout import FLAG_BITS
 from estimator.csvtable import COMMAND_UNITS
 from estimator.errors import InputError
-from estimator.watch.config import make_config, new_watch
-from estimator.watch.log_checks import check_plausible, check_time, flying_ms
+from estimator.watch.config import make_config, new_watch, vehicle_facts
+from estimator.watch.fault_causes import StuckTimer, fault_cause, in_range
+from estimator.watch.log_checks import check_plausible, check_time, check_vehicle
 
 KINDS = FLAG_BITS
 ALARM_BITS = 1 | 2 | 8 | 16
@@ -87,12 +88,33 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
     arrays = {"time_s": [x - t0 for x in t], "power_W": [], "expected_W": [], "flags": [], "residual": [],
               "learn_span": learn_span} if keep_arrays else None
     step = max(1, n // 50)
+    spin = config["spin_permille"]
+    stuck = StuckTimer(config)
+    stuck_event = None             # the open stuck-current event: its detail gets the whole stuck time
+    # flight time as the kernel counts it: samples that pass the sensor checks, above spin; a
+    # landing (landed_ms below spin) starts a new flight [ms]
+    flights, flight_ms, quiet_ms, fault_ms = [], 0, 0, 0
     for i in range(n):
         ti = t[i]
         dt = first_ms if t_prev is None else int(round((ti - t_prev) * 1000.0))
         t_prev = ti
         flags = update(dt, u[i], mv[i], ma[i])
-        if learn_span[0] is None and u[i] >= config["spin_permille"]:
+        stuck.step(dt, u[i], ma[i], in_range(dt, u[i], mv[i], ma[i], config))
+        if flags & 4:
+            fault_ms += dt if u[i] >= spin else 0
+            if stuck_event is not None:
+                stuck_event["detail"] = fault_cause(dt, u[i], mv[i], ma[i], stuck.ms, config)[1]
+        elif u[i] >= spin:
+            flight_ms += dt
+            quiet_ms = 0
+        else:
+            quiet_ms += dt
+            if quiet_ms >= config["landed_ms"] and flight_ms:
+                flights.append(flight_ms)
+                flight_ms = 0
+        if not flags & 4:
+            stuck_event = None
+        if learn_span[0] is None and u[i] >= spin:
             learn_span[0] = ti - t0
         if not learned and w.sigma_permille:
             learned = True
@@ -105,6 +127,9 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
                         e = {"t_s": round(ti - t0, 3), "kind": kind, "residual": w.residual_permille / 1000.0}
                         if bit == 16:    # the implied mass against the plan and the alarm limit
                             e.update(mass_kg=w.mass_g / 1000.0, planned_kg=plan_kg, limit_kg=round(limit_kg, 4))
+                        if bit == 4:     # which sensor check it was, with the value and the limit
+                            e["cause"], e["detail"] = fault_cause(dt, u[i], mv[i], ma[i], stuck.ms, config)
+                            stuck_event = e if e["cause"] == "stuck_current" else None
                         events.append(e)
             prev = flags
         if keep_arrays:
@@ -116,8 +141,11 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
             progress(i, n)
     if progress is not None:
         progress(n, n)
+    if flight_ms:
+        flights.append(flight_ms)
     out = {"learned": learned, "learned_at_s": None if learn_span[1] is None else round(learn_span[1], 3),
-           "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events}
+           "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events,
+           "flights_s": [round(x / 1000.0, 3) for x in flights], "sensor_fault_s": round(fault_ms / 1000.0, 3)}
     if keep_arrays:
         out["_arrays"] = arrays
     return out
@@ -139,28 +167,52 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
     [{t_s, kind, residual}] (kinds power_high, power_low, sensor_fault, baseline_off,
     mass_high; t_s [s] from the log's first row; residual [-] = residual_permille / 1000 at the
     event; a mass_high event also has mass_kg, the implied all-up mass, planned_kg and
-    limit_kg, the mass above which the alarm may fire once the estimate's margin is passed),
-    learned_at_s (end of the learning window, None when it never ended). A progress bar goes
+    limit_kg, the mass above which the alarm may fire once the estimate's margin is passed; a
+    sensor_fault event has cause (gap, time, voltage, command, current or stuck_current) and
+    detail, a text with the value and the watch's limit), learned_at_s (end of the learning
+    window, None when it never ended), flights_s (flight time above the spin command of each
+    flight between landings, as the kernel counts it [s]) and sensor_fault_s (flight time of
+    the samples set aside as sensor faults [s]). A progress bar goes
     to stderr on logs above PROGRESS_ROWS rows when stderr is a terminal (progress=None),
     always (True) or never (False). Raises InputError on a bad file: time that goes back or
     repeats (unless ``drop_bad_time``: those rows are dropped and counted in ``dropped_rows``),
-    values implausible for the parameter set (the likely unit slip is named). A log with too
-    little flight to learn the baseline gets ``learned`` False and a ``note``.
+    values implausible for the parameter set (the likely unit slip is named), a log from another
+    vehicle or pack (log_checks.check_vehicle). A log on which the watch did not finish learning
+    the baseline gets ``learned`` False and a ``note`` saying why (learning_note).
     """
     config, _ = make_config(params, vehicle, options)
     flight = read_flight(path)
     dropped = check_time(path, flight, go_on=drop_bad_time)
     check_plausible(path, flight, flight["units"], config)
+    check_vehicle(path, flight, params, vehicle_facts(params, vehicle), config)
     if progress is None:
         progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
     out = run_kernel(flight, config, keep_arrays=keep_arrays, progress=_bar if progress else None)
     if not out["learned"]:
-        need_ms = config["takeoff_ms"] + config["learn_ms"]
-        flown = flying_ms(flight, config)
-        out["note"] = ("too short to learn: %.1f s of flight above the spin command; the watch needs about "
-                       "%.0f s (take-off, then %.0f s of steady flight) to learn the power baseline - no verdict "
-                       "on this log" % (flown / 1000.0, need_ms / 1000.0, config["learn_ms"] / 1000.0))
+        out["note"] = learning_note(out, config)
     if dropped:
         out["dropped_rows"] = dropped
     return out
+
+
+def learning_note(out, cfg):
+    """Why the watch gave no verdict (out: run_kernel's dict, learned False): most of the flight
+    set aside as sensor faults, no flight long enough for the learning window, or too little
+    steady flight in a long enough one. Never "too short" for a long flight."""
+    flights, fault_s = out["flights_s"], out["sensor_fault_s"]
+    flown, longest = sum(flights), max(flights, default=0.0)
+    need_s, learn_s = (cfg["takeoff_ms"] + cfg["learn_ms"]) / 1000.0, cfg["learn_ms"] / 1000.0
+    tail = " - no verdict on this log"
+    if fault_s > flown:
+        first = next((e for e in out["events"] if e["kind"] == "sensor_fault"), None)
+        return ("learning did not complete: %.1f s of the %.1f s above the spin command were sensor faults the "
+                "watch set aside (first at %.1f s: %s)%s" % (fault_s, fault_s + flown, first["t_s"] if first else 0.0,
+                                                             first["detail"] if first else "no event", tail))
+    if longest < need_s:
+        return ("too short to learn: %s %.1f s of flight above the spin command; the watch needs about %.0f s in "
+                "one flight (take-off, then %.0f s of steady flight) to learn the power baseline%s"
+                % ("the longest of %d flights (landings between them) had" % len(flights) if len(flights) > 1
+                   else "the log has", longest, need_s, learn_s, tail))
+    return ("learning did not complete: the longest flight had %.1f s above the spin command, but too little "
+            "steady flight near hover in it for the %.0f s learning window%s" % (longest, learn_s, tail))
 
