@@ -397,8 +397,10 @@ class Watch:
                 plan = c[140]
                 # thrust from power, less the axial-flight part of the power (cx x, as above;
                 # T ~ P^(2/3) in momentum theory)
-                th -= (th // 1000) * x * 2 // 3           # 1000 * 500 * 2
-                dm = (th * 1000 // 9807 - plan) * 1000 // plan   # 1e6 * 1000 ; (1e5 + 5e5) * 1000
+                th -= th * x // 1500                      # 1e6 * 500
+                # in thrust units, not whole grams (a gram is 5 % of a 21 g whoop); the plan's
+                # weight plan x 9.807 mN/g (standard gravity) <= 4.9e6
+                dm = th * 1000 // (plan * 9 + plan * 807 // 1000) - 1000   # 1e6 * 1000 ; 5e5 * 807
                 dm = 500 if dm > 500 else (-500 if dm < -500 else dm)
                 m_sum += dm                               # <= 500 x 1200 blocks
                 m_sq += dm * dm                           # <= 250000 x 1200 = 3e8
@@ -417,7 +419,7 @@ class Watch:
                         pmu = mu
                         pvar = var
                         pn = m_n
-                    self.mass_g = plan + plan * pmu // 1000   # 5e5 * 500
+                    self.mass_g = plan + (plan * pmu + 500) // 1000   # 5e5 * 500 (rounded, not floored)
                     ex = pmu - c[141]
                     if ex > 0 and ex * ex * pn > ((pvar >> 4) * c[142] >> 4):   # 2.5e5 * 2400 ; 31250 * 32767
                         m_run += 1
