@@ -338,15 +338,15 @@ class Watch:
                     m = tol if m > 0 else -tol
                     if l_n and d * d > (s * s << 2) // l_n:   # 2000^2 ; 1000^2 x 4
                         flags |= 8
-                l_dev = s << 6                            # kept: in flight the noise stays below 2x this
+                l_dev = s << 6                            # kept: in flight the noise stays below 1.5x this
                 sb[4] = l_dev
                 scale = 1000 + m
                 sb[0] = 0
                 sb[5] = scale
                 # a window of ~20 s holds only a few independent stretches of the correlated
-                # residual: the in-flight estimate starts at twice it (about its 95 % upper
-                # confidence bound) and comes down as flight blocks are learned
-                s += s
+                # residual: the in-flight estimate starts at 1.5x it (an upper confidence bound)
+                # and may only come down from there as flight blocks are learned
+                s += s >> 1
                 sb[6] = s << 6                            # Q6, <= 128000
                 self.scale = scale
                 self.sigma_permille = s
@@ -374,8 +374,8 @@ class Watch:
                 y16 += ((z << 4) - y16) >> 2              # |.| <= 16 x 5000
                 sb[24] = y16
                 sig += ((y16 if y16 > 0 else -y16) * 53 - (sig << 2)) >> (c[132] + 2)   # 8e4 * 53 = 4.2e6
-                if sig > l_dev + l_dev:
-                    sig = l_dev + l_dev                   # a slow ramp must not hide in the noise
+                if sig > l_dev + (l_dev >> 1):
+                    sig = l_dev + (l_dev >> 1)            # a slow ramp must not hide in the noise
                 sb[6] = sig
                 s = sig >> 6
                 self.sigma_permille = s if s > floor else floor
