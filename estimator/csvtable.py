@@ -122,8 +122,8 @@ def parse_header(path, head, columns, optional=(), refuse=None):
     for index, cell in enumerate(head.cells):
         m = _HEADER_CELL.match(cell)
         if not m:
-            raise InputError("%s: line %d column %d: header cell %s is not name[unit]"
-                             % (path, line, index + 1, shorten(cell)))
+            raise InputError("%s: line %d column %d: header cell %s is not name[unit]%s"
+                             % (path, line, index + 1, shorten(cell), _bracket_hint(cell)))
         name, unit = m.group(1).strip().lower(), m.group(2)
         names.append(name)
         if name in columns:
@@ -146,10 +146,50 @@ def parse_header(path, head, columns, optional=(), refuse=None):
             raise InputError("%s: line %d: %s" % (path, line, message))
     missing = [n for n in columns if n not in found]
     if missing:
-        raise InputError("%s: line %d: header lacks %s; need %s"
+        raise InputError("%s: line %d: header lacks %s; need %s%s"
                          % (path, line, ", ".join(missing),
-                            ", ".join("%s[%s]" % (n, "|".join(u)) for n, u in columns.items())))
+                            ", ".join("%s[%s]" % (n, "|".join(u)) for n, u in columns.items()),
+                            _other_name_hint(head.cells, missing, columns)))
     return found, warnings
+
+
+# names people give a column for the quantity liftcal calls by another name (common practice
+# in bench and logging tools' exports; liftcal's own names stay its own)
+COLUMN_SYNONYMS = {"throttle": "command", "thr": "command", "input": "command", "pwm": "command",
+                   "volts": "voltage", "volt": "voltage", "vbat": "voltage", "amps": "current",
+                   "amp": "current", "ibat": "current", "force": "thrust", "load": "thrust",
+                   "lift": "thrust", "t": "time", "seconds": "time"}
+_SPREADSHEET_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*\(([^)]*)\)\s*$")
+
+
+def _bracket_hint(cell):
+    """'; write time[s]' for a spreadsheet-style header cell 'Time (s)', else ''."""
+    m = _SPREADSHEET_CELL.match(cell)
+    if not m:
+        return ""
+    return "; write %s[%s] (the unit in square brackets)" % (m.group(1).strip().lower(), m.group(2).strip())
+
+
+def _other_name_hint(cells, missing, columns):
+    """'; did you mean command[%] for throttle[%]?' for a header cell that names a missing
+    column by another usual name (COLUMN_SYNONYMS) or a misspelling of it, else ''."""
+    import difflib
+
+    hints = []
+    for cell in cells:
+        m = _HEADER_CELL.match(cell)
+        if not m:
+            continue
+        name, unit = m.group(1).strip().lower(), (m.group(2) or "").strip()
+        target = COLUMN_SYNONYMS.get(name)
+        if target not in missing:
+            close = difflib.get_close_matches(name, missing, 1, 0.75)
+            target = close[0] if close else None
+        if target is None:
+            continue
+        shown = unit if unit in columns[target] else "|".join(columns[target])
+        hints.append("did you mean %s[%s] for %s?" % (target, shown, shorten(cell.strip())))
+    return ("; " + "; ".join(hints[:3])) if hints else ""
 
 
 def _number(path, line_no, col, cell, empty_ok):

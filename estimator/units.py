@@ -104,10 +104,14 @@ def parse_propeller_size(text, what="size"):
     return float(m.group(1)) * scale, float(m.group(2)) * scale
 
 
-def plain_number(x, digits=4):
+def plain_number(x, digits=4, trim=False):
     """x with ``digits`` significant digits in plain decimal notation (15410, 7.076, 0.01241),
-    never the exponent form a person misreads (1.541e+04)."""
+    never the exponent form a person misreads (1.541e+04); trim: drop trailing zeros after
+    the decimal point (0.0210 -> 0.021, 9.50 -> 9.5, 3.00 -> 3)."""
     if x == 0 or not math.isfinite(x):
         return "%g" % x
     decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
-    return "%.*f" % (decimals, round(x, decimals))
+    text = "%.*f" % (decimals, round(x, decimals))
+    if decimals and trim:
+        text = text.rstrip("0").rstrip(".")
+    return text

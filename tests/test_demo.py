@@ -61,7 +61,11 @@ def test_demo_shows_the_choosing_step(demo_run):
     _, report, text = demo_run
     assert len(report["compare"]["rows"]) == 6 and report["compare"]["best"] is not None
     assert report["payload"]["job_min"] == 10.0 and len(report["payload"]["rows"]) == 5
-    assert "liftcal compare" in text and "--payload 0..1kg" in text
+    # trial 4: the printed payload command gives the rows shown (the parser of `hover --payload`)
+    from estimator.commands.demo import DEMO_PAYLOAD
+    from estimator.preflight.payload import parse_payloads
+    assert "liftcal compare" in text and "--payload %s " % DEMO_PAYLOAD in text
+    assert parse_payloads(DEMO_PAYLOAD)[0] == [r["payload_kg"] for r in report["payload"]["rows"]]
     assert "longest hover that keeps every margin" in text and "largest payload" in text
     # the demo's own sheet shows the discharge endurance beside the usable-share one
     assert "from a full pack, ended by" in text and "the usable share alone" in text

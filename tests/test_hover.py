@@ -182,9 +182,10 @@ def test_sheet_says_per_motor_and_pack_total():
     r = hover_report(vehicle())
     sheet = format_sheet(r)
     # the per-motor line and the pack-total line must not be mistaken for each other
-    assert ("motor current      %.1f A at hover" % r["hover_motor_current_A"]) in sheet
-    assert ("ESC input current  %.1f A at hover" % r["hover_esc_input_current_A"]) in sheet
-    assert ("pack current       %.1f A at hover" % r["hover_current_A"]) in sheet
+    from estimator.units import plain_number  # three significant digits (trial 4, item 8)
+    assert ("motor current      %s A at hover" % plain_number(r["hover_motor_current_A"], 3, True)) in sheet
+    assert ("ESC input current  %s A at hover" % plain_number(r["hover_esc_input_current_A"], 3, True)) in sheet
+    assert ("pack current       %s A at hover" % plain_number(r["hover_current_A"], 3, True)) in sheet
     assert "all 4 motors" in sheet and "from the pack (all motors)" in sheet
     # the two are tied by the ESC power balance V_bus I_bus eta = d V_bus I_motor (design
     # notes sec. 3), per rotor I_bus = d I_motor / eta and the pack carries N of them;

@@ -51,7 +51,8 @@ def test_full_command_sag_below_the_cutoff_is_said_with_numbers(params, fitted):
     assert len(sag) == 1
     assert "%.2f V per cell" % per_cell in sag[0] and "3.30 V cutoff" in sag[0] and "not reachable" in sag[0]
     sheet = format_sheet(r)
-    assert "NOT REACHABLE" in sheet and "full command sags the pack to %.1f V" % r["full_bus_V"] in sheet
+    from estimator.units import plain_number  # three significant digits (trial 4, item 8)
+    assert "NOT REACHABLE" in sheet and "full command sags the pack to %s V" % plain_number(r["full_bus_V"], 3, True) in sheet
 
 
 @pytest.mark.parametrize("fitted", [False, True])

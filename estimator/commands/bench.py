@@ -132,8 +132,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
         humidity, voltage_exponent, plot_file, as_json):
     """Fit a bench sweep CSV into a validated parameter set.
 
-    The CSV has a name[unit] header: command[-|%|permille|us], voltage[V|mV], current[A|mA],
-    thrust[N|mN|g|gf|kgf|lbf]; '# altitude:', '# temperature:', '# pressure:', '# humidity:'
+    The CSV has a name[unit] header: {header}; '# altitude:', '# temperature:', '# pressure:', '# humidity:'
     or '# density:' comments give the bench air and '# diameter:' the propeller.
     """
     from estimator.bench.sweep import fit_bench_file, summary
@@ -187,6 +186,16 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
             click.echo("plot written to %s" % plot_file)
 
 
+def _header_units():
+    """The bench header's columns and units as the reader takes them (its UNITS: one source)."""
+    from estimator.bench.reader import UNITS
+
+    return ", ".join("%s[%s]" % (name, "|".join(units)) for name, units in UNITS.items())
+
+
+fit.help = fit.help.replace("{header}", _header_units())
+
+
 @click.command()
 @click.argument("params_file", metavar="PARAMS.json")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
@@ -219,11 +228,41 @@ def check(params_file, as_json):
                           "schema_version": params["schema_version"],
                           "has_hover": "hover" in params, "content_seal": seal}))
     else:
-        click.echo("%s: valid parameter set (%s, schema version %d), %s; %s"
-                   % (params_file, params["model"], params["schema_version"],
-                      "with hover values" if "hover" in params
-                      else "no hover values (fit with --vehicle to add them; export needs them)",
-                      seal_text))
+        from estimator.textwidth import fit_width
+
+        click.echo(fit_width("%s: valid parameter set (%s, schema version %d), %s; %s"
+                             % (params_file, params["model"], params["schema_version"],
+                                "with hover values" if "hover" in params
+                                else "no hover values (fit with --vehicle to add them; export needs them)",
+                                seal_text)))
+
+
+def in_map_decimals(settings, mapping):
+    """The settings with each value as text in the decimals its map entry asks for (0.280 for
+    3 decimals, not 0.28); an entry without ``decimals`` keeps the value as it is."""
+    out = []
+    for setting, entry in zip(settings, mapping["settings"]):
+        decimals = entry.get("decimals")
+        value = setting["value"]
+        if decimals is not None and not isinstance(value, bool):
+            value = "%d" % value if decimals == 0 else "%.*f" % (decimals, value)
+        out.append(dict(setting, value=value))
+    return out
+
+
+def _fold_arrows(text):
+    """Settings lines for an 80-column terminal: a line too long continues at its arrow
+    (``<- source = ...``) on the next line, indented (estimator.textwidth for the rest)."""
+    from estimator.textwidth import WIDTH, fit_width, wrap_line
+
+    out = []
+    for line in text.rstrip("\n").split("\n"):
+        if len(line) > WIDTH and "  <- " in line:
+            head, tail = line.split("  <- ", 1)
+            out += [head.rstrip()] + wrap_line("    <- " + tail, indent=7)
+        else:
+            out.append(line)
+    return fit_width("\n".join(out) + "\n")
 
 
 @click.command()
@@ -243,6 +282,7 @@ def export(params_file, map_file, out_file, as_json):
     bounds is refused, never clipped. Props off while you load settings into a controller.
     """
     from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, format_lines, load_map
+    from estimator.cautions import cautions
     from estimator.outputs import SETTINGS_MARK, check_output, write_text
     from estimator.params import load_params
 
@@ -250,18 +290,21 @@ def export(params_file, map_file, out_file, as_json):
         check_output(out_file, "settings", inputs=(params_file, map_file))
     params = load_params(params_file)
     path = EXAMPLE_MAP if map_file is None else map_file
-    settings = export_settings(params, load_map(path), path)
+    mapping = load_map(path)
+    settings = export_settings(params, mapping, path)
     header = "liftcal settings from %s through %s (%d); %s" % (
         os.path.basename(params_file), os.path.basename(path), len(settings), SHORT)
-    text = dumps(as_mapping(settings)) + "\n" if as_json else format_lines(settings, header)
+    text = dumps(as_mapping(settings)) + "\n" if as_json else format_lines(in_map_decimals(settings, mapping),
+                                                                             header)
     if out_file is not None:
         # a file carries its mark, so liftcal knows it as its own later (outputs.py): the
-        # lines start with the '# liftcal settings' header, a JSON file names its model
+        # lines start with the '# liftcal settings' header, a JSON file names its model; the
+        # JSON file is what a person loads into a controller, so it carries the cautions too
         kept = text if text.startswith(SETTINGS_MARK) else dumps({
             "schema_version": 1, "model": "liftcal.settings/1",
             "parameter_set": os.path.basename(params_file), "map": os.path.basename(path),
-            "settings": as_mapping(settings)}) + "\n"
+            "settings": as_mapping(settings), "cautions": cautions("settings")}) + "\n"
         write_text(out_file, kept, "settings")
-    click.echo(text, nl=False)
+    click.echo(text if as_json else _fold_arrows(text), nl=False)
     if out_file is not None and not as_json:
         click.echo("settings written to %s" % out_file)

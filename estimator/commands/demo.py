@@ -63,6 +63,11 @@ def run_demo(out_dir, seed=1, emit=None):
     return report, text
 
 
+# the payloads and job time of the demo's payload table, as typed on its printed command line
+DEMO_PAYLOAD = "0,0.25,0.5,0.75,1kg"
+DEMO_JOB_MIN = 10.0
+
+
 def _run(out_dir, work, seed, emit):
     """run_demo's steps, writing into ``work`` and naming the files as they will be in ``out_dir``."""
     from estimator.demo.bench_sim import simulate_sweep
@@ -90,16 +95,17 @@ def _run(out_dir, work, seed, emit):
              "$ liftcal hover %s" % show("vehicle.json"), format_sheet(datasheet)]
     # 1b. choices: candidate propellers and motors, and how much it can carry
     from estimator.preflight.compare import compare_rows, format_table, parse_vary
-    from estimator.preflight.payload import format_payload_table, payload_table
+    from estimator.preflight.payload import format_payload_table, parse_payloads, payload_table
     from estimator.vehicle import check_vehicle
 
     varies = ["propeller.size=10x4.5in,11x5in,12x5in", "motor.kv_rpm_per_V=680,880"]
     choices = compare_rows(vehicle, show("vehicle.json"), [parse_vary(v) for v in varies])
-    payload = payload_table(check_vehicle(vehicle, show("vehicle.json")), [0.25 * i for i in range(5)], 10.0)
+    payloads, _ = parse_payloads(DEMO_PAYLOAD)  # the parser of `hover --payload`: the rows match the command
+    payload = payload_table(check_vehicle(vehicle, show("vehicle.json")), payloads, DEMO_JOB_MIN)
     text += [_rule("1b. choosing: candidate propellers and motors, and the payload"),
              "$ liftcal compare %s %s" % (show("vehicle.json"), " ".join("--vary " + v for v in varies)),
              format_table(choices, vehicle.get("name", "vehicle")),
-             "$ liftcal hover %s --payload 0..1kg --job-time 10min" % show("vehicle.json"),
+             "$ liftcal hover %s --payload %s --job-time %gmin" % (show("vehicle.json"), DEMO_PAYLOAD, DEMO_JOB_MIN),
              format_payload_table(payload, "kg")]
 
     # 2. after a bench sweep: fit -> parameter set -> hover sheet -> export

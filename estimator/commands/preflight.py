@@ -90,7 +90,7 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
     actuator disk; efficiency eta = k^1.5).
     """
     from estimator.core.momentum import disk_area_m2
-    from estimator.preflight.static_rotor import format_static, static_rotor
+    from estimator.preflight.static_rotor import diameter_slip_warning, format_static, static_rotor
 
     if (power is None) == (thrust is None):
         raise InputError("static: give exactly one of --power or --thrust")
@@ -101,6 +101,9 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
     if thrust is not None:
         _check_disk_loading(thrust, disk_area_m2(diameter), diameter)
     out = static_rotor(diameter, density, factor, power_W=power, thrust_N=thrust)
+    slip = diameter_slip_warning(out, click.get_current_context().meta.get("liftcal.typed.diameter"),
+                                 power is not None)
+    out["warnings"] = [slip] if slip else []
     if as_json:
         click.echo(dumps(out))
     else:

@@ -11,6 +11,7 @@ from estimator.cautions import cautions
 from estimator.commands.options import Number
 from estimator.errors import InputError
 from estimator.jsonio import dumps
+from estimator.textwidth import fit_width
 
 WATCH_CAUTIONS = cautions("board")
 
@@ -110,7 +111,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
              % (cfg["block_ms"], summary["cusum_k_sigma"], summary["cusum_h_sigma"],
                 100.0 * summary["noise_floor"], cfg["lag_ms"], mass_limit_g)]
     lines += ["- " + c for c in WATCH_CAUTIONS]
-    click.echo("\n".join(lines))
+    click.echo(fit_width("\n".join(lines)))
 
 
 @click.command()
@@ -149,7 +150,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         plot_replay(plot_file, arrays, out["events"], title=flight_file)
         out["plot"] = plot_file
     if as_json:
-        click.echo(dumps(out))
+        click.echo(dumps(dict(out, cautions=list(WATCH_CAUTIONS))))
         return
     lines = ["%s: %d samples, %s, %s" % (flight_file, out["samples"], _count(out["alarms"], "alarm"),
                                            _count(len(out["events"]), "event"))]
@@ -175,4 +176,4 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     if plot_file:
         lines.append("plot: %s" % plot_file)
     lines.append("- " + WATCH_CAUTIONS[0])
-    click.echo("\n".join(lines))
+    click.echo(fit_width("\n".join(lines)))

@@ -14,7 +14,7 @@ from estimator.errors import InputError, shorten
 from estimator.preflight.margins import MARGINS, broken, keeps_margins, margins
 from estimator.preflight.report import hover_report
 from estimator.preflight.warnings import ENDED_BY_WORDS
-from estimator.textwidth import fit_width, wrap_line
+from estimator.textwidth import WIDTH, fit_width, wrap_line
 from estimator.vehicle import check_vehicle, vehicle_keys
 
 MAX_COMBINATIONS = 10000  # a product larger than this is refused (say so) [-]
@@ -178,12 +178,17 @@ def format_table(result, name):
     lines below the table wrapped to an 80-column terminal (estimator.textwidth). A row with
     many varied keys may be wider: it is never cut."""
     rows = result["rows"]
-    head = "COMPARE: %s, %d combinations" % (name, len(rows))
-    lines = [head, "=" * len(head)]
+    head = fit_width("COMPARE: %s, %d combinations" % (name, len(rows)))
+    lines = [head, "=" * min(WIDTH, max(len(line) for line in head.split("\n")))]
     keys = result["varied"]
-    widths = [max(len(k), max(len(str(r["values"][k])) for r in rows)) for k in keys]
+    # a column is headed by its key's last part (motor.kv_rpm_per_V -> kv_rpm_per_V) so that the
+    # table fits 80 columns; the full keys are named under the table when that shortened them
+    labels = [k.split(".")[-1] for k in keys]
+    if len(set(labels)) < len(labels):
+        labels = list(keys)
+    widths = [max(len(lab), max(len(str(r["values"][k])) for r in rows)) for k, lab in zip(keys, labels)]
     rank_w = max(2, len(str(len(rows))))
-    header = "#".rjust(rank_w) + "  " + "  ".join(k.ljust(w) for k, w in zip(keys, widths))
+    header = "#".rjust(rank_w) + "  " + "  ".join(lab.ljust(w) for lab, w in zip(labels, widths))
     header += "  command  T/W   motor A  pack A  endurance"
     lines.append(header)
     for r in rows:
@@ -204,6 +209,8 @@ def format_table(result, name):
                      % (result["best"]["label"], result["best"]["flight_time_min"]))
     else:
         lines.append("no combination keeps every margin")
+    if labels != list(keys):
+        lines.append("columns: " + "; ".join("%s = %s" % (lab, k) for lab, k in zip(labels, keys) if lab != k))
     lines.append("margins:")
     width = max(len(k) for k in result["margins"])
     lines += ["  %s  %s" % (k.ljust(width), v) for k, v in result["margins"].items()]

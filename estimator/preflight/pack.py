@@ -12,7 +12,7 @@ of the air the estimate already assumed (the standard atmosphere at the site's a
 sea level), so air and pack are never taken at two different assumed temperatures.
 """
 
-from estimator.core.battery import cold_capacity_factor, cold_resistance_factor
+from estimator.core.battery import COLD_REFERENCE_C, cold_capacity_factor, cold_resistance_factor
 
 KELVIN_OFFSET = 273.15  # 0 C in K (definition of the Celsius scale)
 # the loaded cutoff when the file gives none: 0.2 V below the empty open-circuit cell voltage
@@ -70,9 +70,11 @@ def pack_temperature_text(report):
     cold = report.get("pack_cold_factor") or 1.0
     basis = BASIS_WORDS.get(report.get("pack_temperature_basis"), "")
     text = " (pack at %.0f C, %s" % (temperature, basis) if basis else " (pack at %.0f C" % temperature
-    if cold >= 1.005:  # shown as x1.01 or more
-        text += ("; resistance x%.2f, cold factor from memory: a colder pack sags more, which can cost "
+    if cold >= 1.005 and temperature < COLD_PACK_BELOW_C:  # shown as x1.01 or more
+        text += ("; resistance x%.2f, cold factor from memory: a cold pack sags more, which can cost "
                  "more thrust-to-weight than the denser air gives" % cold)
+    elif cold >= 1.005:  # a room-temperature pack: the model's small step from its 25 C reference
+        text += "; resistance x%.2f against a pack at %.0f C, factor from memory" % (cold, COLD_REFERENCE_C)
     capacity = report.get("pack_capacity_factor") or 1.0
     if capacity <= 0.995:  # shown as x0.99 or less
         text += "; capacity x%.2f, from memory: a cold pack gives less of its charge" % capacity

@@ -173,6 +173,15 @@ def verdict_lines(result, unit="kg"):
     return lines
 
 
+def _shared_decimals(values, most=3):
+    """The fewest decimals (at most ``most``) that show every value of a column exactly, so that
+    10.625 is not printed 10.62 beside 9.875 (trial 4, item 8); one count for the whole column."""
+    for decimals in range(most + 1):
+        if all(abs(round(v, decimals) - v) <= 1e-9 * max(1.0, abs(v)) for v in values):
+            return decimals
+    return most
+
+
 def format_payload_table(result, unit="kg"):
     """The payload table for the sheet, masses in the unit the person typed (g, kg, lb, oz);
     cmd is the hover command on a nominal pack, empty the one near empty; a payload that breaks a
@@ -181,6 +190,7 @@ def format_payload_table(result, unit="kg"):
     scale = parse_quantity("1" + unit, "mass") if unit else 1.0
     header = "   payload    all-up     cmd   empty  T/W   pack A  endurance           keeps"
     lines = ["5. How much can it carry?", header]
+    shown = _shared_decimals([v / scale for r in result["rows"] for v in (r["payload_kg"], r["mass_kg"])])
     for r in result["rows"]:
         cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
         empty = "%.2f" % r["hover_command_empty"] if r["hover_command_empty"] is not None else "none"
@@ -188,7 +198,7 @@ def format_payload_table(result, unit="kg"):
         time = ("%.1f min (%s)" % (r["flight_time_min"], r["flight_ended_by"])
                 if r["flight_time_min"] is not None else "no hover")
         lines.append("   %-9s  %-9s  %-4s  %-5s  %-4.2f  %-6s  %-18s  %s" % (
-            "%.4g %s" % (r["payload_kg"] / scale, unit), "%.4g %s" % (r["mass_kg"] / scale, unit), cmd,
+            "%.*f %s" % (shown, r["payload_kg"] / scale, unit), "%.*f %s" % (shown, r["mass_kg"] / scale, unit), cmd,
             empty, r["thrust_to_weight"], pack, time, "yes" if r["keeps"] else "no"))
         if not r["keeps"]:  # the margins it breaks, on a line of their own under the row
             lines += wrap_line("       breaks " + ", ".join(r["broken"]), indent=14)

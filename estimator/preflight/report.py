@@ -17,7 +17,7 @@ from estimator.preflight.propeller_estimate import (LOW_REYNOLDS_FIGURE_OF_MERIT
                                                     low_reynolds_warning)
 from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
-from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, beside, full_command_sag, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num)
+from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, beside, full_command_sag, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num, SIG3)
 
 MODEL = "liftcal.dc-motor-momentum/1"
 # the datasheet model takes command = ESC duty; a real ESC only starts the motor above a
@@ -176,7 +176,7 @@ def _fitted_report(vehicle, params, checks):
 
 
 def _at_hover(current_A):
-    return "" if current_A is None else "%.1f A at hover, " % current_A
+    return "" if current_A is None else "%s at hover, " % _num(current_A, SIG3, "A")
 
 
 def format_sheet(report):
@@ -193,7 +193,7 @@ def format_sheet(report):
     size_given = report.get("propeller_as_given")
     diameter = report.get("propeller_diameter_m")
     setup = "%s%s, %d rotors (%s)%s" % (
-        _num(report.get("mass_kg"), "%.2f", "kg"), " (%s as written)" % as_given if as_given else "",
+        _num(report.get("mass_kg"), SIG3, "kg"), " (%s as written)" % as_given if as_given else "",
         report.get("rotor_count", 0), report.get("layout", "flat"),
         ", propellers %.3g m%s" % (diameter, " (%s as written)" % size_given if size_given else "")
         if diameter else "")
@@ -235,11 +235,11 @@ def format_sheet(report):
                         _num(report.get("reachable_command"), "%.2f")))
     full_total, rotors = report.get("full_thrust_N"), report.get("rotor_count") or 0
     lines.append("   full-command thrust %s per rotor, %s total (hover needs %s per rotor)" % (
-        _num(full_total / rotors if full_total is not None and rotors else None, "%.3g", "N"),
-        _num(full_total, "%.1f", "N"), _num(report.get("thrust_per_rotor_N"), "%.3g", "N")))
+        _num(full_total / rotors if full_total is not None and rotors else None, SIG3, "N"),
+        _num(full_total, SIG3, "N"), _num(report.get("thrust_per_rotor_N"), SIG3, "N")))
     if report.get("full_command_cell_V") is not None:
         lines.append("   full command sags the pack to %s (%s per cell; loaded cutoff %s per cell)" % (
-            _num(report.get("full_bus_V"), "%.1f", "V"),
+            _num(report.get("full_bus_V"), SIG3, "V"),
             beside(report["full_command_cell_V"], report["cutoff_cell_V"]) + " V" if reachable is False
             else _num(report["full_command_cell_V"], "%.2f", "V"), _num(report.get("cutoff_cell_V"), "%.2f", "V")))
     count = report.get("rotor_count") or 0
@@ -251,19 +251,19 @@ def format_sheet(report):
         lines.append("   motor current      %s%s at full command, each motor (ESC output; "
                      "motor limit %s)" % (
                          _at_hover(report.get("hover_motor_current_A")),
-                         _num(report.get("full_motor_current_A"), "%.1f", "A"),
-                         _num(report.get("motor_current_limit_A"), "%.0f", "A", none="not given")))
+                         _num(report.get("full_motor_current_A"), SIG3, "A"),
+                         _num(report.get("motor_current_limit_A"), SIG3, "A", none="not given")))
     lines.append("   ESC input current  %s%s at full command, each ESC from the pack (what "
-                 "ESC telemetry reports)" % (_at_hover(esc_hover), _num(esc_full, "%.1f", "A")))
+                 "ESC telemetry reports)" % (_at_hover(esc_hover), _num(esc_full, SIG3, "A")))
     if report.get("can_hover"):
         lines.append("   pack current       %s at hover, %s at full command, all %d motors (rating %s)" % (
-            _num(report.get("hover_current_A"), "%.1f", "A"),
-            _num(report.get("full_pack_current_A"), "%.0f", "A"), count,
-            _num(report.get("pack_current_limit_A"), "%.0f", "A", none="not given")))
+            _num(report.get("hover_current_A"), SIG3, "A"),
+            _num(report.get("full_pack_current_A"), SIG3, "A"), count,
+            _num(report.get("pack_current_limit_A"), SIG3, "A", none="not given")))
     else:
         lines.append("   pack current       %s at full command, all %d motors (rating %s)" % (
-            _num(report.get("full_pack_current_A"), "%.0f", "A"), count,
-            _num(report.get("pack_current_limit_A"), "%.0f", "A", none="not given")))
+            _num(report.get("full_pack_current_A"), SIG3, "A"), count,
+            _num(report.get("pack_current_limit_A"), SIG3, "A", none="not given")))
     lines.append("")
 
     lines.append("3. For how long?")
@@ -284,7 +284,7 @@ def format_sheet(report):
                 report["cutoff_cell_V"], _num(report.get("pack_resistance_ohm"), "%.3g", "ohm"),
                 pack_temperature_text(report)))
         lines.append("   hover draws %s from the pack (all motors), %s (nominal pack, bus at %s)" % (
-            _num(report.get("hover_current_A"), "%.1f", "A"), _num(report.get("hover_power_W"), "%.0f", "W"),
+            _num(report.get("hover_current_A"), SIG3, "A"), _num(report.get("hover_power_W"), SIG3, "W"),
             _num(report.get("hover_bus_V"), "%.2f", "V")))
         extras = []
         if report.get("hover_rpm") is not None:

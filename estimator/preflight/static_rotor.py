@@ -55,12 +55,49 @@ def static_rotor(diameter_m, density_kg_m3, factor=None, power_W=None, thrust_N=
     return out
 
 
+# a bare --diameter is metres; these length units are tried when it gives a disk loading no
+# small multirotor has (1 in = 0.0254 m, 1 cm = 0.01 m; NIST SP 811, exact)
+DIAMETER_SLIPS = (("in", 0.0254, "inches"), ("cm", 0.01, "centimetres"), ("mm", 0.001, "millimetres"))
+
+
+def diameter_slip_warning(out, typed, power_given):
+    """A warning when a bare --diameter (metres) gives a disk loading far outside that of small
+    multirotors while the same number in inches, centimetres or millimetres gives an ordinary
+    one (the vehicle file's check, estimator.preflight.unit_checks); else None.
+
+    out: the static_rotor dict; typed: what the person typed (None or a text with a unit: no
+    warning, the unit was written); power_given: True when thrust came from --power.
+    """
+    from estimator.preflight.unit_checks import DISK_LOADING_FLOOR_N_M2, DISK_LOADING_TYPICAL_N_M2
+    from estimator.vehicle_units import BARE_NUMBER
+
+    if typed is None or not BARE_NUMBER.match(str(typed)):
+        return None
+    lo, hi = DISK_LOADING_TYPICAL_N_M2
+    loading = out["disk_loading_N_m2"]
+    if DISK_LOADING_FLOOR_N_M2 <= loading:
+        return None
+    number = float(typed)
+    for unit, scale, word in DIAMETER_SLIPS:
+        other = static_rotor(number * scale, out["density_kg_m3"],
+                             out["static_factor"] if out["static_factor_source"] == "given" else None,
+                             power_W=out["power_W"] if power_given else None,
+                             thrust_N=None if power_given else out["thrust_N"])
+        if lo <= other["disk_loading_N_m2"] <= hi:
+            return ("--diameter %s reads as a %s m rotor: disk loading %s N/m^2, far below the %g..%g "
+                    "N/m^2 of small multirotors (common practice); %s meant? %s %s = %s m: write the "
+                    "unit (--diameter %s%s)" % (typed.strip(), "%g" % number, plain_number(loading, 3),
+                                                lo, hi, word, "%g" % number, unit,
+                                                plain_number(number * scale, 3), typed.strip(), unit))
+    return None
+
+
 def format_static(out, power_given):
     """Text lines for ``liftcal static``; ranges always read low..high."""
     default = out["static_factor_source"] != "given"
-    lines = ["one rotor, D = %.3f m (disk %.4f m^2), air %.3f kg/m^3, k = %.2f%s"
-             % (out["diameter_m"], out["disk_area_m2"], out["density_kg_m3"], out["static_factor"],
-                " (rule of thumb)" if default else "")]
+    lines = ["one rotor, D = %s m (disk %s m^2), air %.3f kg/m^3, k = %.2f%s"
+             % (plain_number(out["diameter_m"], 3), plain_number(out["disk_area_m2"], 3),
+                out["density_kg_m3"], out["static_factor"], " (rule of thumb)" if default else "")]
     lo, hi = GOOD_SET_FACTORS
     # three significant digits: a micro rotor's watts and a heavy lifter's newtons alike
     if power_given:
@@ -77,7 +114,9 @@ def format_static(out, power_given):
         lines.append("  good small sets reach k %.1f..%.1f: %s %s (k %.1f) .. %s %s (k %.1f); k = 0.3 "
                      "is a conservative rule of thumb, common practice"
                      % (lo, hi, plain_number(a, 3), unit, ka, plain_number(b, 3), unit, kb))
-    lines.append("  induced velocity %.1f m/s, slipstream %.1f m/s, disk loading %.0f N/m^2"
-                 % (out["induced_velocity_m_s"], out["slipstream_velocity_m_s"], out["disk_loading_N_m2"]))
+    lines.append("  induced velocity %s m/s, slipstream %s m/s, disk loading %s N/m^2"
+                 % tuple(plain_number(out[k], 3) for k in ("induced_velocity_m_s", "slipstream_velocity_m_s",
+                                                          "disk_loading_N_m2")))
+    lines += ["  ! " + w for w in out.get("warnings") or []]
     lines += ["  " + c for c in cautions("rotor")]
     return lines

@@ -6,6 +6,8 @@ neither imports the other. Thresholds are common practice for multirotors, not a
 
 import math
 
+from estimator.units import plain_number
+
 
 # Warning thresholds (common practice for multirotors, not a standard):
 HOVER_COMMAND_LIMIT = 0.6  # hover above 0.6 of full command leaves little for control
@@ -82,21 +84,22 @@ def _cannot_hover_cause(report):
     full = report.get("full_thrust_N")
     tw = report.get("thrust_to_weight")
     if full is not None and full < weight:
-        text = ("cannot hover: full-command thrust %.1f N is below the weight %.1f N (thrust-to-weight "
-                "%.2f)" % (full, weight, tw or 0.0))
+        text = ("cannot hover: full-command thrust %s is below the weight %s (thrust-to-weight "
+                "%.2f)" % (_num(full, SIG3, "N"), _num(weight, SIG3, "N"), tw or 0.0))
         v_oc = (report.get("pack_voltage_V") or {}).get("nominal")
         bus, pack_i, rating = (report.get("full_bus_V"), report.get("full_pack_current_A"),
                                report.get("pack_current_limit_A"))
         if v_oc and bus is not None and 1.0 - bus / v_oc > SAG_CAUSE_SHARE:
             r_pack = report.get("pack_resistance_ohm")
-            text += ("; the pack cannot deliver the power: it sags from %.1f V to %.1f V at full "
+            text += ("; the pack cannot deliver the power: it sags from %s to %s at full "
                      "command%s, which costs much of the thrust: a pack with less resistance, or more "
-                     "cells" % (v_oc, bus, "" if r_pack is None else " (resistance %.3g ohm)" % r_pack))
+                     "cells" % (_num(v_oc, SIG3, "V"), _num(bus, SIG3, "V"),
+                                "" if r_pack is None else " (resistance %.3g ohm)" % r_pack))
         else:
             text += ": the propulsion is too weak for this mass, not the pack"
             if pack_i is not None and rating:
-                text += " (full command draws %.0f A, %.0f %% of the pack's %.0f A rating)" % (
-                    pack_i, 100.0 * pack_i / rating, rating)
+                text += " (full command draws %s, %.0f %% of the pack's %s rating)" % (
+                    _num(pack_i, SIG3, "A"), 100.0 * pack_i / rating, _num(rating, SIG3, "A"))
             text += "; lighten it, or fit a larger or higher-pitch propeller, a higher Kv or more cells"
     elif report.get("hover_limited_by") == "pack":
         text = ("cannot hover: the pack cannot deliver the hover power through its resistance (%s ohm) "
@@ -160,26 +163,27 @@ def margin_warnings(report):
     sag = full_command_sag(report)
     if sag["thrust_to_weight_reachable"] is False:
         from estimator.cautions import SAG_BELOW_CUTOFF
-        out.append("full command sags the pack to %s V per cell (%.1f V on %d cells), below its %.2f V "
+        out.append("full command sags the pack to %s V per cell (%s on %d cells), below its %.2f V "
                    "cutoff: %s; the thrust-to-weight %s at full command is not reachable on this pack"
-                   % (beside(sag["full_command_cell_V"], report["cutoff_cell_V"]), report["full_bus_V"],
+                   % (beside(sag["full_command_cell_V"], report["cutoff_cell_V"]), _num(report["full_bus_V"], SIG3, "V"),
                       report["cells"], report["cutoff_cell_V"], SAG_BELOW_CUTOFF, thrust_to_weight_text(tw)))
     limit = report.get("motor_current_limit_A")
     if limit is not None:
         full_i = report.get("full_motor_current_A")
         hov_i = report.get("hover_motor_current_A")
         if hov_i is not None and hov_i > limit:
-            out.append("hover draws %.1f A per motor, above the motor limit %.0f A: it will overheat"
-                       % (hov_i, limit))
+            out.append("hover draws %s per motor, above the motor limit %s: it will overheat"
+                       % (_num(hov_i, SIG3, "A"), _num(limit, SIG3, "A")))
         elif full_i is not None and full_i > limit:
-            out.append("full command draws %.1f A per motor, above the motor limit %.0f A: limit the "
-                       "command or use a smaller propeller" % (full_i, limit))
+            out.append("full command draws %s per motor, above the motor limit %s: limit the "
+                       "command or use a smaller propeller" % (_num(full_i, SIG3, "A"), _num(limit, SIG3, "A")))
     pack_limit = report.get("pack_current_limit_A")
     if pack_limit is not None:
         full_pack = report.get("full_pack_current_A")
         if full_pack is not None and full_pack > pack_limit:
-            out.append("full command draws %.0f A from the pack, above its rating of %.0f A "
-                       "(C-rating x capacity): the pack will sag and heat" % (full_pack, pack_limit))
+            out.append("full command draws %s from the pack, above its rating of %s "
+                       "(C-rating x capacity): the pack will sag and heat"
+                       % (_num(full_pack, SIG3, "A"), _num(pack_limit, SIG3, "A")))
     from estimator.preflight.pack import cold_pack_warning
     cold = cold_pack_warning(report)
     if cold is not None:
@@ -192,7 +196,13 @@ def margin_warnings(report):
     return out
 
 
+# the format of _num for a value shown with three significant digits (0.448 N, 21.3 A, 0.021 kg):
+# a total or a small craft's current is never rounded into another number (trial 4, item 8)
+SIG3 = "sig3"
+
+
 def _num(value, fmt, unit="", none="n/a"):
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
         return none
-    return (fmt % value) + (" " + unit if unit else "")
+    text = plain_number(value, 3, trim=True) if fmt == SIG3 else fmt % value
+    return text + (" " + unit if unit else "")
