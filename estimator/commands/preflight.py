@@ -70,7 +70,8 @@ def air(altitude, temperature, pressure, humidity, as_json):
 
 @click.command()
 @click.option("--diameter", type=Bounded("length", "diameter", positive=True), required=True,
-              help="Rotor diameter (m, cm, mm, in); a bare number is metres.")
+              help="Rotor diameter (m, cm, mm, in); a bare number is metres (warned when its disk "
+                   "loading says inches were meant).")
 @click.option("--power", type=Bounded("power", "power", positive=True), default=None,
               help="Electrical input power of one rotor (W, kW): gives thrust.")
 @click.option("--thrust", type=Bounded("force", "thrust", positive=True), default=None,

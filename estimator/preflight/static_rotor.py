@@ -102,11 +102,11 @@ def format_static(out, power_given):
     # three significant digits: a micro rotor's watts and a heavy lifter's newtons alike
     if power_given:
         lines.append("  %s W in -> %s N of thrust (ideal actuator disk: %s N)"
-                     % tuple(plain_number(out[k], 3) for k in ("power_W", "thrust_N", "ideal_thrust_N")))
+                     % tuple(plain_number(out[k], 3, trim=True) for k in ("power_W", "thrust_N", "ideal_thrust_N")))
         key, unit = "thrust_N_at_k_", "N"
     else:
         lines.append("  %s N of thrust needs %s W in (ideal actuator disk: %s W)"
-                     % tuple(plain_number(out[k], 3) for k in ("thrust_N", "power_W", "ideal_power_W")))
+                     % tuple(plain_number(out[k], 3, trim=True) for k in ("thrust_N", "power_W", "ideal_power_W")))
         key, unit = "power_W_at_k_", "W"
     if default:
         # low..high values, each with the k that gives it (power falls as k rises)
