@@ -4,14 +4,15 @@ gap"), and a log on which the watch did not finish learning says why: "too short
 when no flight was long enough (trial 4 item 3: "too short to learn: 359.6 s of flight").
 
 Each fault is put into the simulated demo flight by hand; the expected figures are read from the
-written log itself (the pause, the value), and the limits are the watch's defaults (2 s sample
-gap, 3 s stuck current; estimator/watch/config.py DEFAULTS)."""
+written log itself (the pause, the value), and the limits are the watch's defaults
+(estimator/watch/config.py DEFAULTS: sample gap limit, stuck-current time)."""
 
 import json
 
 import pytest
 
 from estimator.cli import main
+from estimator.watch.config import DEFAULTS
 from watch_helpers import demo_fit_params, demo_flight_rows
 
 HEADER = "time[s],command[-],voltage[V],current[A]"
@@ -56,7 +57,8 @@ def test_a_logging_pause_is_named_with_its_length_and_the_limit(tmp_path, params
     doc = _replay(tmp_path, params_file, capsys, pause)
     (e,) = _faults(doc)
     assert e["cause"] == "gap" and e["t_s"] == pytest.approx(pause[i][0] - pause[0][0], abs=1e-3)
-    assert "logging gap of %.1f s (the watch's limit 2.0 s)" % gap in e["detail"], e
+    assert gap > DEFAULTS["dt_max_s"]
+    assert "logging gap of %.1f s (the watch's limit %.1f s)" % (gap, DEFAULTS["dt_max_s"]) in e["detail"], e
     text = _replay(tmp_path, params_file, capsys, pause, as_json=False)
     assert "logging gap of %.1f s" % gap in text and "stuck current or a bad sample gap" not in text, text
 
@@ -82,7 +84,7 @@ def test_a_stuck_current_is_named_with_how_long_it_stuck(tmp_path, params_file, 
     (e,) = _faults(_replay(tmp_path, params_file, capsys, bad))
     assert e["cause"] == "stuck_current", e
     assert "current stuck at %.2f A for %.1f s" % (bad[i][3], stuck_s) in e["detail"], e
-    assert "limit 3.0 s" in e["detail"]
+    assert stuck_s > DEFAULTS["stuck_s"] and "limit %.1f s" % DEFAULTS["stuck_s"] in e["detail"]
 
 
 def test_a_long_flight_with_a_frozen_sensor_is_never_called_too_short(tmp_path, params_file, capsys, rows):
@@ -98,7 +100,8 @@ def test_a_long_flight_with_a_frozen_sensor_is_never_called_too_short(tmp_path, 
 
 def test_hops_too_short_to_learn_say_the_longest_flight(tmp_path, params_file, capsys, rows):
     # four hops of 25 s with 10 s on the ground between: 100 s of flight in all, but the watch
-    # learns anew after each landing and needs about 40 s in one flight
+    # learns anew after each landing and needs take-off plus the learning window in one flight
+    assert 25.0 < DEFAULTS["takeoff_s"] + DEFAULTS["learn_s"] and DEFAULTS["landed_s"] < 10.0
     i = _at(rows, 100.0)
     hop = rows[i:i + 250]                 # 25 s at 10 Hz, in flight
     hops, t = [], 0.0
