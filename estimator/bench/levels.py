@@ -278,7 +278,9 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     thrust_spike, t_hits = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
     if profile_t is not None and t_hits.size:
         # a spike moves its whole level's deviations: judge again with a profile made only
-        # of levels without a flagged row (dt holds squared deviations now)
+        # of levels without a flagged row (dt holds squared deviations now); every level takes
+        # that profile's scale here, also those that carried their own above (a spiked level's
+        # own rms carries its spike; a clean one's is near the profile anyway)
         spoiled = np.zeros(n_keys, dtype=bool)
         spoiled[key[t_hits]] = True
         clean = ~spoiled[ks[sel]]
