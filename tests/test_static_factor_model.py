@@ -50,7 +50,7 @@ def test_the_printed_static_factor_is_the_truths_within_1_percent(fitted):
 
 
 def test_the_watch_reads_the_hover_thrust_from_hover_power_within_1_percent(fitted):
-    from estimator.watch.config import thrust_from_power_total_N
+    from estimator.watch.thrust_table import thrust_from_power_total_N
 
     for r in fitted:
         truth, params = r["truth"], r["params"]

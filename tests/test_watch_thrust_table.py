@@ -13,7 +13,7 @@ import numpy as np
 import pytest
 from scipy.optimize import brentq
 
-from estimator.watch.config import thrust_knots_mN
+from estimator.watch.thrust_table import thrust_knots_mN
 
 G0 = 9.80665  # standard gravity [m/s^2] (CGPM 1901)
 

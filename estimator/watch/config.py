@@ -23,6 +23,7 @@ from estimator.core import thrust_curve
 from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.errors import InputError
+from estimator.watch.thrust_table import thrust_from_power_total_N, thrust_knots_mN
 
 LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports; every kernel value stays below
 
@@ -192,36 +193,6 @@ def _rotor_power_W(power_model, thrust_N, density_kg_m3):
     """P(T, rho) of one rotor [W]: the one power model, estimator.core.power_model.rotor_power_W."""
     from estimator.core.power_model import rotor_power_W
     return rotor_power_W(power_model, thrust_N, density_kg_m3)
-
-
-def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3):
-    """Total thrust [N] from total bus power [W]: the parameter set's power model inverted.
-
-    Per rotor T = P^-1(P_total / N) with P(T, rho) the one power model
-    (estimator.core.power_model.thrust_from_power_N: the same P(T) the expected-power table
-    uses, so the implied mass and the expected power never disagree). power_W: total bus power
-    [W]; rotor_count N [-]; density_kg_m3: site rho [kg/m^3].
-    Source: DC motor + momentum theory power model (estimator.core.power_model docstring).
-    """
-    from estimator.core.power_model import thrust_from_power_N
-    return rotor_count * thrust_from_power_N(params["power_model"], max(power_W, 0.0) / rotor_count,
-                                             density_kg_m3)
-
-
-def thrust_knots_mN(thrust_N, step_W):
-    """33 knots [mN] at P = 0, step_W, ..., 32 step_W [W] of the piecewise-linear table the kernel
-    interpolates, chosen by least squares over 16 points per interval (numpy.linalg.lstsq on
-    the hat functions of linear interpolation), not as the values at the knots: T(P) is concave
-    and steep just above the idle power, so knot values alone read low between knots (3 % at
-    a 21 g whoop's hover). thrust_N(P [W]) -> T [N]. Knots kept within 0..1e6 mN.
-    """
-    import numpy as np
-
-    x = np.linspace(0.0, 32.0, 32 * 16 + 1)
-    target = np.array([1000.0 * thrust_N(xi * step_W) for xi in x])
-    hat = np.maximum(0.0, 1.0 - np.abs(x[:, None] - np.arange(33)[None, :]))
-    knots = np.linalg.lstsq(hat, target, rcond=None)[0]
-    return [int(round(min(1e6, max(0.0, k)))) for k in knots]
 
 
 def make_config(params, vehicle=None, options=None):

@@ -184,14 +184,14 @@ def check_vehicle(path, flight, params, facts, cfg):
     """Refuse a log that looks like another vehicle or pack than the parameter set's (InputError
     with the figures): its median bus voltage in flight above LOG_ABOVE_FULL x the full pack or
     below LOG_BELOW_EMPTY x the empty pack, or the mass its median bus power in flight implies
-    (through the set's power model, estimator.watch.config.thrust_from_power_total_N) outside
+    (through the set's power model, estimator.watch.thrust_table.thrust_from_power_total_N) outside
     IMPLIED_MASS_RANGE x the planned mass.
 
     facts: estimator.watch.config.vehicle_facts (mass_kg, rotor_count, site_density_kg_m3, cells,
     full_voltage_V, empty_voltage_V, name); cfg: the watch CONFIG (without pack voltages in facts,
     its v_max_mV / v_min_mV: 1.2 x full and 0.5 x empty pack).
     """
-    from estimator.watch.config import thrust_from_power_total_N
+    from estimator.watch.thrust_table import thrust_from_power_total_N
 
     med_mV, med_W, flown_s = _flight_medians(flight, cfg)
     if med_mV is None:
