@@ -69,3 +69,25 @@ def test_demo_shows_the_choosing_step(demo_run):
     assert "longest hover that keeps every margin" in text and "largest payload" in text
     # the demo's own sheet shows the discharge endurance beside the usable-share one
     assert "from a full pack, ended by" in text and "the usable share alone" in text
+
+
+def test_the_demo_command_fits_80_columns(monkeypatch, tmp_path):
+    # the demo's text goes through estimator.textwidth like every other command (it printed
+    # 20 lines wider than 80 columns); run_demo itself is replaced by one that emits long lines
+    from click.testing import CliRunner
+
+    import estimator.commands.demo as demo_module
+    from estimator.cli import cli
+
+    def fake_run_demo(out_dir, emit=None):
+        emit("$ liftcal export %s/params.json --map /a/long/path/to/the/example-map.json   "
+             "(example map, invented setting names)" % out_dir)
+        emit("- Props off while wiring, flashing or configuring; bench runs on a clamped stand "
+             "behind a guard, with nobody in the plane of the rotors.")
+        return {}, ""
+    monkeypatch.setattr(demo_module, "run_demo", fake_run_demo)
+    res = CliRunner().invoke(cli, ["demo", "--out", str(tmp_path / "d")])
+    assert res.exit_code == 0, res.output
+    lines = res.stdout.splitlines()
+    assert len(lines) > 2 and max(len(line) for line in lines) <= 80
+    assert " ".join(res.stdout.split()).endswith("with nobody in the plane of the rotors.")

@@ -184,4 +184,5 @@ def demo(out_dir, as_json):
         report, _ = run_demo(out_dir)
         click.echo(dumps(report))
     else:
-        run_demo(out_dir, emit=click.echo)
+        from estimator.textwidth import fit_width
+        run_demo(out_dir, emit=lambda text: click.echo(fit_width(text)))
