@@ -5,11 +5,24 @@ verdict does not depend on the luck of the draw; locally they explore new exampl
 Set HYPOTHESIS_PROFILE=explore to get random exploration under CI too.
 """
 
+import json
 import os
 
+import pytest
 from hypothesis import settings
 
 settings.register_profile("ci", derandomize=True, print_blob=True)
 settings.register_profile("explore")
 if os.environ.get("CI") and os.environ.get("HYPOTHESIS_PROFILE") != "explore":
     settings.load_profile("ci")
+
+
+@pytest.fixture(scope="session")
+def params_file(tmp_path_factory):
+    """The demo vehicle's fitted parameter set as a file (tests/watch_helpers.demo_fit_params),
+    shared by the replay tests; a module may define its own params_file instead."""
+    from watch_helpers import demo_fit_params
+
+    p = tmp_path_factory.mktemp("params") / "params.json"
+    p.write_text(json.dumps(demo_fit_params()))
+    return p

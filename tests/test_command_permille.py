@@ -10,15 +10,8 @@ import json
 
 import pytest
 
-from estimator.cli import main
 from estimator.demo.bench_sim import simulate_sweep
-
-
-def _run(args, capsys):
-    with pytest.raises(SystemExit) as exc:
-        main(args)
-    cap = capsys.readouterr()
-    return exc.value.code, cap.out, cap.err
+from io_helpers import run
 
 
 def _recolumn(text, old, new, scale):
@@ -75,17 +68,17 @@ def test_a_permille_sweep_fits_like_the_fraction_sweep_and_speaks_permille(sweep
     fits = {}
     for f in (frac, perm):
         out = d / (f.stem + ".json")
-        code, text, err = _run(["fit", str(f), "--out", str(out), "--json"], capsys)
+        code, text, err = run(["fit", str(f), "--out", str(out), "--json"])
         assert code == 0, err
         fits[f.stem] = json.loads(text)
     a, b = fits["sweep_fraction"], fits["sweep_permille"]
     for key in ("quadratic_share", "command_min", "thrust_max_N"):
         assert b[key] == pytest.approx(a[key], rel=1e-6, abs=1e-9), key
     # the parameter set records the unit, and the schema accepts it
-    code, _, err = _run(["check", str(d / "sweep_permille.json")], capsys)
+    code, _, err = run(["check", str(d / "sweep_permille.json")])
     assert code == 0, err
     # the text gives commands in the unit of the CSV (design notes sec. 4)
-    code, text, err = _run(["fit", str(perm), "--out", str(d / "again.json")], capsys)
+    code, text, err = run(["fit", str(perm), "--out", str(d / "again.json")])
     assert code == 0, err
     assert "permille" in text
 
@@ -94,7 +87,7 @@ def test_a_fraction_labelled_permille_is_refused_with_the_likely_unit(tmp_path, 
     text = simulate_sweep(seed=3, command_unit="-")
     f = tmp_path / "slip.csv"
     f.write_text(_recolumn(text, "-", "permille", 1.0))     # 0..1 written under [permille]
-    code, _, err = _run(["fit", str(f), "--out", str(tmp_path / "p.json")], capsys)
+    code, _, err = run(["fit", str(f), "--out", str(tmp_path / "p.json")])
     lines = err.strip().splitlines()
     assert code == 2 and len(lines) == 1 and lines[0].startswith("error:"), err
     assert "command[permille]" in lines[0] and "command[-]" in lines[0], lines[0]
@@ -113,7 +106,7 @@ def test_a_flight_log_in_permille_replays_like_the_fraction_log(tmp_path, capsys
     perm.write_text(_recolumn(text, "-", "permille", 1000.0))
     docs = []
     for f in (frac, perm):
-        code, out, err = _run(["replay", str(f), "--params", str(params), "--json"], capsys)
+        code, out, err = run(["replay", str(f), "--params", str(params), "--json"])
         assert code == 0, err
         docs.append(json.loads(out))
     assert docs[0]["samples"] == docs[1]["samples"] > 100
@@ -127,7 +120,7 @@ def test_a_fraction_flight_log_labelled_permille_is_refused(tmp_path, capsys):
     params.write_text(json.dumps(demo_fit_params()))
     f = tmp_path / "fl_slip.csv"
     f.write_text(_recolumn(_flight_text(), "-", "permille", 1.0))
-    code, _, err = _run(["replay", str(f), "--params", str(params)], capsys)
+    code, _, err = run(["replay", str(f), "--params", str(params)])
     lines = err.strip().splitlines()
     assert code == 2 and len(lines) == 1, err
     assert "likely a 0..1 command labelled permille; label it command[-]" in lines[0], lines[0]

@@ -9,10 +9,10 @@ import json
 import pytest
 
 from estimator import csvtable
-from estimator.cli import main
 from estimator.errors import InputError
 from estimator.watch.replay import read_flight
 from watch_helpers import demo_fit_params
+from io_helpers import run
 
 BENCH_HEAD = "# density: 1.2\n# diameter: 0.254\n"
 
@@ -46,13 +46,6 @@ def _files(tmp_path, header_bench, header_flight, rows_edit=None, prefix="", sep
     return str(b), str(f)
 
 
-def _run(args, capsys):
-    with pytest.raises(SystemExit) as exc:
-        main(args)
-    cap = capsys.readouterr()
-    return exc.value.code, cap.out, cap.err
-
-
 @pytest.fixture(scope="module")
 def params_file(tmp_path_factory):
     p = tmp_path_factory.mktemp("params") / "params.json"
@@ -79,10 +72,10 @@ ACCEPTED = {
 def test_quirks_both_readers_accept(tmp_path, params_file, capsys, case):
     hb, hf, edit, prefix, sep = ACCEPTED[case]
     b, f = _files(tmp_path, hb, hf, edit, prefix, sep)
-    code, out, err = _run(["fit", b, "--out", str(tmp_path / "p.json"), "--json"], capsys)
+    code, out, err = run(["fit", b, "--out", str(tmp_path / "p.json"), "--json"])
     assert code == 0, err
     assert json.loads(out)["rows_used"] == 20
-    code, out, err = _run(["replay", f, "--params", params_file, "--json"], capsys)
+    code, out, err = run(["replay", f, "--params", params_file, "--json"])
     assert code == 0, err
     assert json.loads(out)["samples"] == 20
 
@@ -132,7 +125,7 @@ def test_quirks_both_readers_refuse_with_the_same_words(tmp_path, params_file, c
     b, f = _files(tmp_path, hb, hf, edit, prefix, sep)
     for args, name in ((["fit", b, "--out", str(tmp_path / "p.json")], b),
                        (["replay", f, "--params", params_file], f)):
-        code, out, err = _run(args, capsys)
+        code, out, err = run(args)
         lines = err.strip().splitlines()
         assert code == 2 and len(lines) == 1 and lines[0].startswith("error: " + name), err
         assert words in lines[0], lines[0]
@@ -186,10 +179,10 @@ def test_text_or_nan_in_a_column_not_used_is_read_past_by_both(tmp_path, params_
         return [r + ",%s" % ("nan" if k == 3 else "motor A") for k, r in enumerate(rows)]
     b, f = _files(tmp_path, "command[-],voltage[V],current[A],thrust[N],note",
                   "time[s],command[-],voltage[V],current[A],note", add_note)
-    code, out, err = _run(["fit", b, "--out", str(tmp_path / "p.json"), "--json"], capsys)
+    code, out, err = run(["fit", b, "--out", str(tmp_path / "p.json"), "--json"])
     assert code == 0, err
     assert json.loads(out)["rows_used"] == 20
-    code, out, err = _run(["replay", f, "--params", params_file, "--json"], capsys)
+    code, out, err = run(["replay", f, "--params", params_file, "--json"])
     assert code == 0, err
 
 
@@ -198,5 +191,5 @@ def test_text_in_a_bench_cell_says_an_empty_cell_would_be_left_out(tmp_path, cap
     # cell stops the fit, so the error says what to do instead
     b, _ = _files(tmp_path, "command[-],voltage[V],current[A],thrust[N]",
                   "time[s],command[-],voltage[V],current[A]", _set_cell(2, "abc"))
-    code, _, err = _run(["fit", b, "--out", str(tmp_path / "p.json")], capsys)
+    code, _, err = run(["fit", b, "--out", str(tmp_path / "p.json")])
     assert code == 2 and "cannot read 'abc' as a number; leave a missing reading empty" in err

@@ -7,15 +7,8 @@ import json
 
 import pytest
 
-from estimator.cli import main
-from watch_helpers import demo_fit_params, demo_flight_rows
-
-
-@pytest.fixture(scope="module")
-def params_file(tmp_path_factory):
-    p = tmp_path_factory.mktemp("params") / "params.json"
-    p.write_text(json.dumps(demo_fit_params()))
-    return p
+from watch_helpers import demo_flight_rows
+from io_helpers import run
 
 
 @pytest.fixture(scope="module")
@@ -27,13 +20,6 @@ def _write(tmp_path, header, rows, name="log.csv"):
     f = tmp_path / name
     f.write_text(header + "\n" + "\n".join(rows) + "\n")
     return f
-
-
-def _run(args, capsys):
-    with pytest.raises(SystemExit) as exc:
-        main(args)
-    cap = capsys.readouterr()
-    return exc.value.code, cap.out, cap.err
 
 
 def _one_error(code, err):
@@ -56,11 +42,11 @@ def test_time_that_goes_back_or_repeats_is_named_by_row(tmp_path, params_file, c
     t, rest = bad[500].split(",", 1)
     bad[500] = "%.2f,%s" % (float(t) - 30.0, rest)   # a jump back
     f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", bad)
-    code, _, err = _run(["replay", str(f), "--params", str(params_file)], capsys)
+    code, _, err = run(["replay", str(f), "--params", str(params_file)])
     line = _one_error(code, err)
     # named by the file's line number, in the CSV reader's words ("line N")
     assert "line 102" in line and "repeats" in line and "502" in line and "2 rows" in line, line
-    code, out, err = _run(["replay", str(f), "--params", str(params_file), "--drop-bad-time", "--json"], capsys)
+    code, out, err = run(["replay", str(f), "--params", str(params_file), "--drop-bad-time", "--json"])
     assert code == 0 and err == ""
     doc = json.loads(out)
     assert doc["dropped_rows"] == 2 and doc["samples"] == len(rows) - 2
@@ -86,14 +72,14 @@ def test_time_that_goes_back_or_repeats_is_named_by_row(tmp_path, params_file, c
 ])
 def test_unit_slips_are_refused_with_the_likely_cause(tmp_path, params_file, capsys, rows, header, fn, needle):
     f = _write(tmp_path, header, _map(rows, fn))
-    code, _, err = _run(["replay", str(f), "--params", str(params_file)], capsys)
+    code, _, err = run(["replay", str(f), "--params", str(params_file)])
     line = _one_error(code, err)
     assert needle in line and "log.csv" in line, line
 
 
 def test_the_unchanged_log_passes_the_checks(tmp_path, params_file, capsys, rows):
     f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows)
-    code, out, err = _run(["replay", str(f), "--params", str(params_file), "--json"], capsys)
+    code, out, err = run(["replay", str(f), "--params", str(params_file), "--json"])
     assert code == 0 and json.loads(out)["learned"] is True
 
 
@@ -101,8 +87,8 @@ def test_a_log_too_short_to_learn_says_so(tmp_path, params_file, capsys, rows):
     # three rows, and 9 s of a flight: no verdict, never "power stayed within"
     for n in (3, 90):
         f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows[300:300 + n], "short%d.csv" % n)
-        code, out, err = _run(["replay", str(f), "--params", str(params_file)], capsys)
+        code, out, err = run(["replay", str(f), "--params", str(params_file)])
         assert code == 0, err
         assert "too short to learn" in out and "stayed within" not in out, out
-        code, out, _ = _run(["replay", str(f), "--params", str(params_file), "--json"], capsys)
+        code, out, _ = run(["replay", str(f), "--params", str(params_file), "--json"])
         assert json.loads(out)["learned"] is False

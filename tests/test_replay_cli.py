@@ -10,13 +10,6 @@ from estimator.watch.replay import replay_file
 from watch_helpers import demo_fit_params
 
 
-@pytest.fixture(scope="module")
-def params_file(tmp_path_factory):
-    p = tmp_path_factory.mktemp("params") / "params.json"
-    p.write_text(json.dumps(demo_fit_params()))
-    return p
-
-
 def _flight(tmp_path, fault, seed=5):
     f = tmp_path / ("flight-%s.csv" % fault)
     f.write_text(simulate_flight(fault=fault, seed=seed))

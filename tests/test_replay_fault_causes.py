@@ -13,16 +13,9 @@ import pytest
 
 from estimator.cli import main
 from estimator.watch.config import DEFAULTS
-from watch_helpers import demo_fit_params, demo_flight_rows
+from watch_helpers import demo_flight_rows
 
 HEADER = "time[s],command[-],voltage[V],current[A]"
-
-
-@pytest.fixture(scope="module")
-def params_file(tmp_path_factory):
-    p = tmp_path_factory.mktemp("params") / "params.json"
-    p.write_text(json.dumps(demo_fit_params()))
-    return p
 
 
 @pytest.fixture(scope="module")

@@ -16,18 +16,11 @@ import re
 
 import pytest
 
-from estimator.cli import main
-from watch_helpers import demo_fit_params, demo_flight_rows
+from watch_helpers import demo_flight_rows
+from io_helpers import run
 
 HEADER = "time[s],command[-],voltage[V],current[A]"
 PLANNED_KG = 2.05     # the invented demo vehicle (estimator/demo/scenario.py)
-
-
-@pytest.fixture(scope="module")
-def params_file(tmp_path_factory):
-    p = tmp_path_factory.mktemp("params") / "params.json"
-    p.write_text(json.dumps(demo_fit_params()))
-    return p
 
 
 @pytest.fixture(scope="module")
@@ -42,15 +35,8 @@ def _write(tmp_path, rows, name="log.csv", volt=1.0, amp=1.0):
     return f
 
 
-def _run(args, capsys):
-    with pytest.raises(SystemExit) as exc:
-        main(args)
-    cap = capsys.readouterr()
-    return exc.value.code, cap.out, cap.err
-
-
 def _refused(tmp_path, params_file, capsys, f):
-    code, out, err = _run(["replay", str(f), "--params", str(params_file)], capsys)
+    code, out, err = run(["replay", str(f), "--params", str(params_file)])
     lines = err.strip().splitlines()
     assert code == 2 and out == "" and len(lines) == 1 and lines[0].startswith("error: %s: " % f), (code, err)
     assert "Traceback" not in err
@@ -89,7 +75,7 @@ def test_a_payload_or_the_flying_within_the_bounds_still_replays(tmp_path, param
     # c^(2/3) = 0.71 (no payload, cruising) and 1.69 (heavy and flown hard): the watch's own
     # alarms judge these, the log is not refused
     f = _write(tmp_path, rows, amp=c)
-    code, out, err = _run(["replay", str(f), "--params", str(params_file), "--json"], capsys)
+    code, out, err = run(["replay", str(f), "--params", str(params_file), "--json"])
     assert code == 0, err
     assert json.loads(out)["samples"] == len(rows)
 
