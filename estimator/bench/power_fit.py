@@ -230,16 +230,17 @@ def fit_static_factor(levels, density_kg_m3, area_m2, thrust_max_N, power):
     t_med = float(ts[order][np.searchsorted(cum, 0.5 * cum[-1])])
     return {"k0": float(coef[0]), "slope_per_N": float(coef[1]),
             "standard_errors": {"k0": float(se[0]), "slope_per_N": float(se[1])},
-            "cov": cov, "median_thrust_N": t_med,
-            "model_k": (power, density_kg_m3, area_m2)}
+            "cov": cov, "median_thrust_N": t_med}
 
 
-def static_factor_at(sf, thrust_N):
+def static_factor_at(sf, thrust_N, power, density_kg_m3, area_m2):
     """k [-] at thrust_N [N] and its standard error: k = T / (2 rho A P(T)^2)^(1/3) from the fitted
     power model itself (the line k0 + slope T is only its summary over 15..80 % of T_max and
     strays by several % where the idle terms bend k(T)); the error from the line's scatter.
-    sf: from fit_static_factor. Source: momentum theory, design notes sec. 3."""
-    power, rho, area = sf["model_k"]
-    k = float(static_factors(thrust_N, power_model_W(power, np.array([thrust_N]), rho), rho, area)[0])
+    sf: from fit_static_factor; power: the fitted power-model dict; density_kg_m3: bench rho
+    [kg/m^3]; area_m2: disk area [m^2]. Source: momentum theory, design notes sec. 3."""
+    from estimator.core.power_model import rotor_static_factor
+
+    k = rotor_static_factor(power, float(thrust_N), density_kg_m3, area_m2)
     g = np.array([1.0, thrust_N])
     return k, float(math.sqrt(max(g @ sf["cov"] @ g, 0.0)))

@@ -306,10 +306,10 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
         params_draft = build_params(data, fit, source, None, None)
         check_vehicle_match(params_draft, vehicle, source, json_paths=False)
         hover = hover_block(vehicle, params_draft)
-        value, value_se = static_factor_at(sf, hover["thrust_per_rotor_N"])
+        value, value_se = static_factor_at(sf, hover["thrust_per_rotor_N"], power, rho, area)
         fit["warnings"] = params_draft["warnings"]
     else:
-        value, value_se = static_factor_at(sf, sf["median_thrust_N"])
+        value, value_se = static_factor_at(sf, sf["median_thrust_N"], power, rho, area)
     sf["value"], sf["value_se"] = float(value), value_se
     if value > 1.0:
         raise InputError("%s: static thrust factor %.3g at %s is above 1, which is impossible; "

@@ -3,13 +3,10 @@
 numpy and matplotlib are imported inside the commands (replay --plot only), never at module top.
 """
 
-import contextlib
-
 import click
 
 from estimator.cautions import cautions
 from estimator.commands.options import Number
-from estimator.errors import InputError
 from estimator.jsonio import dumps
 from estimator.textwidth import fit_width
 
@@ -26,18 +23,6 @@ def _load(params_file, vehicle_file):
         vehicle = load_vehicle(vehicle_file)
         check_vehicle_match(params, vehicle, params_file, vehicle_file)
     return params, vehicle
-
-
-@contextlib.contextmanager
-def _naming(params_file):
-    """An error the watch's CONFIG builder words as "parameter set: $.key: ..." names the file."""
-    try:
-        yield
-    except InputError as exc:
-        text, word = str(exc), "parameter set:"
-        if not text.startswith(word):
-            raise
-        raise InputError("%s:%s" % (params_file, text[len(word):])) from None
 
 
 def _options(lag_ms):
@@ -93,8 +78,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
 
     check_folder(out_dir, "bundle", inputs=(params_file, vehicle_file))
     params, vehicle = _load(params_file, vehicle_file)
-    with _naming(params_file):
-        out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=_options(lag_ms))
+    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=_options(lag_ms))
     cfg = out["config"]
     mass_limit_g = cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) // 1000
     summary = {"out_dir": out["out_dir"], "files": out["files"], "mpy_bytes": out["mpy_bytes"],
@@ -140,9 +124,8 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
 
         check_output(plot_file, "png", inputs=(flight_file, params_file, vehicle_file), option="--plot")
     params, vehicle = _load(params_file, vehicle_file)
-    with _naming(params_file):
-        out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None,
-                          drop_bad_time=drop_bad_time, options=_options(lag_ms))
+    out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None,
+                      drop_bad_time=drop_bad_time, options=_options(lag_ms), params_source=params_file)
     arrays = out.pop("_arrays", None)
     _note_mass_after_baseline(out["events"])
     if plot_file is not None:

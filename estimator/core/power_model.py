@@ -118,3 +118,13 @@ def thrust_from_power_N(power, power_W, density_kg_m3):
         else:
             hi = mid
     return 0.5 * (lo + hi)
+
+
+def rotor_static_factor(power, thrust_N, density_kg_m3, area_m2):
+    """Static thrust factor k = T / (2 rho A P(T)^2)^(1/3) [-] of the rotor the power model
+    describes, at thrust_N [N]: momentum theory's k with P from rotor_power_W (not from a line
+    through k). power: dict as in rotor_power_W; density_kg_m3: rho [kg/m^3]; area_m2: disk
+    area A [m^2]. Source: momentum theory (Leishman ch. 2, from memory), design notes sec. 3.
+    """
+    p_W = rotor_power_W(power, thrust_N, density_kg_m3)
+    return thrust_N / (2.0 * density_kg_m3 * area_m2 * p_W * p_W) ** (1.0 / 3.0)

@@ -28,8 +28,9 @@ import math
 from estimator.core.constants import ONE_WAY_LAG_COMMAND_SE
 from estimator.core.battery import endurance_min, max_pack_current_A, usable_capacity_Ah
 from estimator.core.discharge import discharge_to_cutoff
-from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2, static_factor
-from estimator.core.power_model import coaxial_shaft_ratio, rotor_power_W  # noqa: F401 (re-exported)
+from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
+from estimator.core.power_model import (coaxial_shaft_ratio, rotor_power_W,  # noqa: F401 (re-exported)
+                                        rotor_static_factor)
 from estimator.errors import InputError
 from estimator.preflight.range_warnings import (about_the_vehicle, command_range_warnings,  # noqa: F401
                                                 voltage_range_warning)
@@ -187,15 +188,6 @@ def hover_interval(params, state):
     return [max(0.0, u_h - Z_95 * se), min(1.0, u_h + Z_95 * se)], se
 
 
-def _model_static_factor(params, thrust_N):
-    """k = T / (2 rho A P(T)^2)^(1/3) [-] of the bench rotor at thrust_N [N], P the fitted power
-    model at the bench density (momentum theory, design notes sec. 3)."""
-    pm = params["power_model"]
-    rho = pm["reference_density_kg_m3"]
-    return static_factor(thrust_N, rotor_power_W(pm, thrust_N, rho), rho,
-                         disk_area_m2(params["rotor"]["diameter_m"]))
-
-
 def _site(vehicle):
     from estimator.preflight.warnings import vehicle_site_air
     return vehicle_site_air(vehicle)
@@ -268,7 +260,9 @@ def hover_from_params(vehicle, params):
         "usable_Ah": usable, "density_kg_m3": rho, "density_ratio": air["density_ratio"],
         "density_altitude_m": air["density_altitude_m"], "temperature_K": air["temperature_K"],
         "pressure_Pa": air["pressure_Pa"],
-        "static_factor": _model_static_factor(params, nom["thrust_per_rotor_N"]),
+        "static_factor": rotor_static_factor(params["power_model"], nom["thrust_per_rotor_N"],
+                                             params["power_model"]["reference_density_kg_m3"],
+                                             disk_area_m2(params["rotor"]["diameter_m"])),
         "per_rotor_bus_current_A": (nom["current_A"] / count) if hovering else None,
         "flight_time_usable_share_min": endurance_min(usable, nom["current_A"]) if hovering else None,
         "flight_time_usable_share_basis": "usable share of the capacity at the nominal-pack hover current",

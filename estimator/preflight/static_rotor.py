@@ -55,11 +55,6 @@ def static_rotor(diameter_m, density_kg_m3, factor=None, power_W=None, thrust_N=
     return out
 
 
-# a bare --diameter is metres; these length units are tried when it gives a disk loading no
-# small multirotor has (1 in = 0.0254 m, 1 cm = 0.01 m; NIST SP 811, exact)
-DIAMETER_SLIPS = (("in", 0.0254, "inches"), ("cm", 0.01, "centimetres"), ("mm", 0.001, "millimetres"))
-
-
 def diameter_slip_warning(out, typed, power_given):
     """A warning when a bare --diameter (metres) gives a disk loading far outside that of small
     multirotors while the same number in inches, centimetres or millimetres gives an ordinary
@@ -68,7 +63,8 @@ def diameter_slip_warning(out, typed, power_given):
     out: the static_rotor dict; typed: what the person typed (None or a text with a unit: no
     warning, the unit was written); power_given: True when thrust came from --power.
     """
-    from estimator.preflight.unit_checks import DISK_LOADING_FLOOR_N_M2, DISK_LOADING_TYPICAL_N_M2
+    from estimator.preflight.unit_checks import (DISK_LOADING_FLOOR_N_M2, DISK_LOADING_TYPICAL_N_M2,
+                                                 LENGTH_SLIPS)
     from estimator.vehicle_units import BARE_NUMBER
 
     if typed is None or not BARE_NUMBER.match(str(typed)):
@@ -78,7 +74,7 @@ def diameter_slip_warning(out, typed, power_given):
     if DISK_LOADING_FLOOR_N_M2 <= loading:
         return None
     number = float(typed)
-    for unit, scale, word in DIAMETER_SLIPS:
+    for unit, scale, word in LENGTH_SLIPS:  # a bare --diameter is metres
         other = static_rotor(number * scale, out["density_kg_m3"],
                              out["static_factor"] if out["static_factor_source"] == "given" else None,
                              power_W=out["power_W"] if power_given else None,

@@ -54,8 +54,9 @@ def _written_hint(value, unit, plausible, fmt="%.3g"):
     return " or ".join(out)
 
 
-# the length units a propeller size is written in, to metres (NIST SP 811, exact)
-SIZE_UNITS_M = (("in", 0.0254), ("cm", 0.01), ("mm", 0.001))
+# length units tried when a diameter gives a disk loading no small multirotor has: (unit, metres
+# per unit, word), 1 in = 0.0254 m, 1 cm = 0.01 m, 1 mm = 0.001 m (NIST SP 811, exact)
+LENGTH_SLIPS = (("in", 0.0254, "inches"), ("cm", 0.01, "centimetres"), ("mm", 0.001, "millimetres"))
 
 
 def _size_slip(vehicle, mass, count):
@@ -69,12 +70,11 @@ def _size_slip(vehicle, mass, count):
     if not found:
         return ""
     number = float(found.group(1))
-    for unit, scale in SIZE_UNITS_M:
+    for unit, scale, word in LENGTH_SLIPS:
         if abs(number * scale - diameter) <= 1e-9 * diameter:
             continue                                   # the unit as written
         if _typical(_disk_loading(mass, count, number * scale)):
-            return "%s meant? (%g %s = %.3g m)" % (
-                {"in": "inches", "cm": "centimetres", "mm": "millimetres"}[unit], number, unit, number * scale)
+            return "%s meant? (%g %s = %.3g m)" % (word, number, unit, number * scale)
     return ""
 
 
@@ -116,10 +116,9 @@ def suspicious_values(vehicle):
                    % (mass, _as_written(vehicle, "$.mass_kg"), loading, lo, hi, hint))
     elif loading < DISK_LOADING_FLOOR_N_M2:
         hint = ""
-        for unit, scale in (("in", 0.0254), ("cm", 0.01)):  # NIST SP 811, exact
+        for unit, scale, word in LENGTH_SLIPS[:2]:       # a bare diameter in millimetres is beyond the schema
             if diameter_bare and _typical(_disk_loading(mass, count, diameter * scale)):
-                hint = ": %s meant? (%g %s = %.3g m)" % ({"in": "inches", "cm": "centimetres"}[unit],
-                                                          diameter, unit, diameter * scale)
+                hint = ": %s meant? (%g %s = %.3g m)" % (word, diameter, unit, diameter * scale)
                 break
         out.append("$.propeller.diameter_m: %g m%s propellers carry only %.1f N/m^2 each for a %g kg "
                    "vehicle on %d rotors, far below the %g..%g N/m^2 of small multirotors%s"

@@ -110,7 +110,7 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
     from estimator.folders import check_folder, publish_folder, staging_folder
     from estimator.outputs import write_error
 
-    config, notes = make_config(params, vehicle, options)
+    config, notes = make_config(params, vehicle, options, source)
     check_folder(out_dir, "bundle")  # new, empty or an unchanged earlier bundle (folders.py)
     out_dir = os.path.abspath(out_dir)
     tmp = staging_folder(out_dir)

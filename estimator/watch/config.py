@@ -168,7 +168,7 @@ def table(values, name, top):
     return out
 
 
-def vehicle_facts(params, vehicle=None):
+def vehicle_facts(params, vehicle=None, source="parameter set"):
     """Mass, rotor count, site density and pack voltages for the watch.
 
     From ``vehicle`` (a checked vehicle file dict) when given, else the parameter set's
@@ -182,8 +182,8 @@ def vehicle_facts(params, vehicle=None):
         return block
     block = params.get("vehicle")
     if not block:
-        raise InputError("parameter set: $.vehicle: missing; the watch needs the vehicle's mass, "
-                         "rotor count and site (give --vehicle VEHICLE.json, or fit with --vehicle)")
+        raise InputError("%s: $.vehicle: missing; the watch needs the vehicle's mass, rotor count and "
+                         "site (give --vehicle VEHICLE.json, or fit with --vehicle)" % source)
     block = dict(block)
     block.setdefault("max_current_A", None)
     return block
@@ -195,17 +195,18 @@ def _rotor_power_W(power_model, thrust_N, density_kg_m3):
     return rotor_power_W(power_model, thrust_N, density_kg_m3)
 
 
-def make_config(params, vehicle=None, options=None):
+def make_config(params, vehicle=None, options=None, source="parameter set"):
     """Build (CONFIG, notes): CONFIG is a dict of ints / tuples of ints for liftwatch.Watch,
     notes maps each key to the float values it was made from (for the bundle's comments).
 
     params: parameter-set dict (DEVELOPERS.md layout); vehicle: vehicle-file dict or None;
-    options: overrides of DEFAULTS. Raises InputError when the set cannot be represented
+    options: overrides of DEFAULTS; source: the parameter set's name in messages (its file).
+    Raises InputError when the set cannot be represented
     within the sensor range (0-60 V, 0-300 A) or misses the vehicle.
     """
     o = dict(DEFAULTS)
     o.update(options or {})
-    v = vehicle_facts(params, vehicle)
+    v = vehicle_facts(params, vehicle, source)
     curve = params["thrust_curve"]
     pm = params["power_model"]
     n_rot = int(v["rotor_count"])
@@ -222,8 +223,8 @@ def make_config(params, vehicle=None, options=None):
 
     sigma = o["noise_rel_std"] if o["noise_rel_std"] is not None else pm["residual_rel_std"]
     if not 0.0 <= sigma < 0.5:
-        raise InputError("parameter set: $.power_model.residual_rel_std: %g is not a usable noise "
-                         "level for the watch (expected 0 <= sigma < 0.5)" % sigma)
+        raise InputError("%s: $.power_model.residual_rel_std: %g is not a usable noise "
+                         "level for the watch (expected 0 <= sigma < 0.5)" % (source, sigma))
     block_ms = int(round(1000.0 * o["block_s"]))
     if not 100 <= block_ms <= 1000:
         raise InputError("watch option block: %g s is outside 0.1..1 s" % o["block_s"])
@@ -287,8 +288,8 @@ def make_config(params, vehicle=None, options=None):
     put("command_min_permille", int(round(1000.0 * u_min)), "u_min = %.4f" % u_min)
     span = int(round(1000.0 * (u_max - u_min)))
     if span < 100:
-        raise InputError("parameter set: $.thrust_curve: command range %.3f..%.3f is below 0.1 wide; the watch "
-                         "needs a thrust curve over a wider command range" % (u_min, u_max))
+        raise InputError("%s: $.thrust_curve: command range %.3f..%.3f is below 0.1 wide; the watch "
+                         "needs a thrust curve over a wider command range" % (source, u_min, u_max))
     put("command_span_permille", span, "u_max - u_min = %.4f" % (u_max - u_min))
     put("quadratic_q12", int(round(4096.0 * min(max(curve["quadratic_share"], 0.0), 1.0))),
         "a = %.4f" % curve["quadratic_share"])

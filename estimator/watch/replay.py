@@ -160,8 +160,10 @@ def _bar(i, n):
     sys.stderr.flush()
 
 
-def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, progress=None, drop_bad_time=False):
-    """Replay a flight CSV through the watch configured from ``params`` (+ ``vehicle``).
+def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, progress=None, drop_bad_time=False,
+                params_source="parameter set"):
+    """Replay a flight CSV through the watch configured from ``params`` (+ ``vehicle``);
+    params_source names the parameter set (its file) in error messages.
 
     Returns dict samples, alarms (events other than sensor_fault), events
     [{t_s, kind, residual}] (kinds power_high, power_low, sensor_fault, baseline_off,
@@ -180,11 +182,11 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
     vehicle or pack (log_checks.check_vehicle). A log on which the watch did not finish learning
     the baseline gets ``learned`` False and a ``note`` saying why (learning_note).
     """
-    config, _ = make_config(params, vehicle, options)
+    config, _ = make_config(params, vehicle, options, params_source)
     flight = read_flight(path)
     dropped = check_time(path, flight, go_on=drop_bad_time)
     check_plausible(path, flight, flight["units"], config)
-    check_vehicle(path, flight, params, vehicle_facts(params, vehicle), config)
+    check_vehicle(path, flight, params, vehicle_facts(params, vehicle, params_source), config)
     if progress is None:
         progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
     out = run_kernel(flight, config, keep_arrays=keep_arrays, progress=_bar if progress else None)
