@@ -281,3 +281,52 @@ def test_pack_limited_vehicle_on_the_fitted_model(fitted):
     with pytest.raises(InputError) as info:
         hover_block(check_vehicle(doc, "weak.json"), params)
     assert str(info.value).startswith("weak.json: ") and "pack cannot deliver" in str(info.value)
+
+
+def test_fitted_sheet_gives_the_thrust_to_weight_reachable_before_the_cutoff(fitted):
+    # a stiffer-sagging pack (0.05 ohm) so full command pulls the 4S pack below its cutoff
+    from estimator.preflight.report import hover_report
+
+    vehicle, params, _ = fitted
+    sagging = json.loads(json.dumps(vehicle))
+    sagging["battery"]["resistance_ohm"] = 0.05
+    fitted_report = hover_from_params(sagging, params)
+    model_report = hover_report(sagging)
+    assert fitted_report["thrust_to_weight_reachable"] is False
+    # reference: the datasheet route (core.hover.reachable_at_cutoff) on the DC motor physics the
+    # bench sweep was simulated with; its command is the duty, the ESC adds the dead band
+    # (command = u_dead + (1 - u_dead) duty): within 0.02 of command and 5 % of thrust-to-weight,
+    # the bounds of test_fitted_hover_agrees_with_the_datasheet_model
+    duty_as_command = DEAD_BAND + (1.0 - DEAD_BAND) * model_report["reachable_command"]
+    assert fitted_report["reachable_command"] == pytest.approx(duty_as_command, abs=0.02)
+    assert fitted_report["reachable_thrust_to_weight"] == pytest.approx(
+        model_report["reachable_thrust_to_weight"], rel=0.05)
+    assert fitted_report["reachable_thrust_to_weight"] < fitted_report["thrust_to_weight"]
+    assert fitted_report["reachable_command"] < 1.0
+    # Thevenin pack: at that command the bus sits at the loaded cutoff, V = V_oc - R I_pack
+    from estimator.preflight.measured_rotor import FittedRotor
+    b = sagging["battery"]
+    cutoff_V = b["cells"] * (b["empty_cell_V"] - 0.2)
+    rotor = FittedRotor(params, fitted_report["density_kg_m3"])
+    mm = params["motor_model"]
+    x = (fitted_report["reachable_command"] - mm["command_start"]) / (mm["command_top"] - mm["command_start"])
+    duty = x ** mm["duty_exponent"]
+    count = vehicle["rotors"]["count"]
+    pack_A = count * (rotor.iq + duty * rotor.at_motor_V(duty * cutoff_V)[1])
+    v_oc = fitted_report["pack_voltage_V"]["nominal"]
+    assert v_oc - b["resistance_ohm"] * pack_A == pytest.approx(cutoff_V, rel=1e-6)
+
+
+def test_fitted_sheet_echoes_the_mass_as_written_and_the_bench_rotor(fitted, tmp_path):
+    from io_helpers import run
+
+    vehicle, params, folder = fitted
+    raw = json.loads(json.dumps(DEMO_VEHICLE))
+    raw["mass_kg"] = "%dg" % round(1000 * vehicle["mass_kg"])
+    (tmp_path / "v.json").write_text(json.dumps(raw))
+    (tmp_path / "p.json").write_text(json.dumps(params))
+    code, out, err = run(["hover", tmp_path / "v.json", "--params", tmp_path / "p.json"])
+    assert code == 0, err
+    head = " ".join(" ".join(out.splitlines()[2:4]).split())
+    assert "(%s as written)" % raw["mass_kg"] in head
+    assert "propellers %.3g m (bench rotor)" % params["rotor"]["diameter_m"] in head

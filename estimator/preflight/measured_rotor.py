@@ -34,7 +34,11 @@ from estimator.core.power_model import (coaxial_shaft_ratio, rotor_power_W,  # n
 from estimator.errors import InputError
 from estimator.preflight.range_warnings import (about_the_vehicle, command_range_warnings,  # noqa: F401
                                                 voltage_range_warning)
+from estimator.cautions import cautions
+from estimator.preflight.pack import pack_in_the_air, pack_keys
+from estimator.preflight.warnings import full_command_sag, margin_warnings, vehicle_site_air
 from estimator.units import STANDARD_GRAVITY_M_S2
+from estimator.vehicle import assumed_warnings, given_text, vehicle_source
 
 INTERVAL_METHOD = ("+-1.96 standard errors of the motor model's hover command: model-form error (robust "
                    "thrust residual scale of the command levels x %.1f, through dT/du at hover), voltage "
@@ -134,6 +138,23 @@ class FittedRotor:
         t, i = self.at_motor_V(v)
         return {"bus_V": v, "thrust_N": t, "pack_current_A": rotors * (self.iq + i), "motor_current_A": i}
 
+    def at_bus_V(self, rotors, bus_V, pack_ohm, open_circuit_V):
+        """The duty that holds the bus at bus_V [V] on a pack V_oc [V], R [ohm] with N rotors.
+
+        The pack current is then (V_oc - V_bus) / R; each rotor draws I_q + d I(d V_bus), which
+        rises with the duty d, so d is found by bisection on [0, 1]. Returns dict duty [-],
+        command [-], thrust_N [N] per rotor. Source: Thevenin pack, the fitted motor model.
+        """
+        pack_A = (open_circuit_V - bus_V) / pack_ohm if pack_ohm > 0.0 else float("inf")
+        lo, hi = 0.0, 1.0
+        for _ in range(BISECTION_STEPS):
+            mid = 0.5 * (lo + hi)
+            if rotors * (self.iq + mid * self.at_motor_V(mid * bus_V)[1]) > pack_A:
+                hi = mid
+            else:
+                lo = mid
+        return {"duty": lo, "command": self.command(lo), "thrust_N": self.at_motor_V(lo * bus_V)[0]}
+
 
 def _state(params, vehicle, rho, open_circuit_V):
     """Hover and full-command values at one pack voltage."""
@@ -188,11 +209,6 @@ def hover_interval(params, state):
     return [max(0.0, u_h - Z_95 * se), min(1.0, u_h + Z_95 * se)], se
 
 
-def _site(vehicle):
-    from estimator.preflight.warnings import vehicle_site_air
-    return vehicle_site_air(vehicle)
-
-
 def hover_from_params(vehicle, params):
     """The ``liftcal hover --json`` report for a vehicle, from a fitted parameter set.
 
@@ -202,15 +218,7 @@ def hover_from_params(vehicle, params):
     thrust_to_weight [-], hover_current_A [A], hover_power_W [W], flight_time_min [min],
     warnings, and the keys the pre-flight sheet shows.
     """
-    from estimator.cautions import cautions
-    from estimator.preflight.warnings import full_command_sag, margin_warnings
-
-    CAUTIONS = cautions("sheet")
-    from estimator.vehicle import assumed_warnings
-
-    from estimator.preflight.pack import pack_in_the_air, pack_keys
-
-    air = _site(vehicle)
+    air = vehicle_site_air(vehicle)
     rho = air["density_kg_m3"]
     b, pack_temperature, pack_basis = pack_in_the_air(vehicle, air)
     raw_vehicle, vehicle = vehicle, dict(vehicle, battery=b)
@@ -242,7 +250,9 @@ def hover_from_params(vehicle, params):
         "hover_power_W": nom["power_W"] if hovering else None,
         "flight_time_min": endurance_min(usable, nom["current_A"]) if hovering else None,
         "hover_limited_by": nom["limited_by"],
-        "mass_kg": vehicle["mass_kg"], "weight_N": nom["weight_N"], "rotor_count": count,
+        "mass_kg": vehicle["mass_kg"], "mass_as_given": given_text(raw_vehicle, "$.mass_kg"),
+        "propeller_diameter_m": params["rotor"]["diameter_m"], "propeller_source": "bench sweep",
+        "weight_N": nom["weight_N"], "rotor_count": count,
         "layout": vehicle["rotors"].get("layout", "flat"),
         "thrust_per_rotor_N": nom["thrust_per_rotor_N"], "full_thrust_N": nom["full_thrust_N"],
         "hover_bus_V": nom["bus_V"] if hovering else None,
@@ -272,6 +282,7 @@ def hover_from_params(vehicle, params):
     }
     report.update(pack_keys(raw_vehicle, b, pack_temperature, pack_basis))
     report.update(full_command_sag(report))
+    report.update(_reachable(nom, b, count))
     if hovering:
         d = discharge_to_cutoff(b["cells"], b["capacity_Ah"], b.get("usable_fraction", 0.8),
                                 b["full_cell_V"], b["nominal_cell_V"], b["empty_cell_V"],
@@ -300,8 +311,20 @@ def hover_from_params(vehicle, params):
     # vehicle's are computed above); each warning once
     stored = [w for w in params.get("warnings", []) if not about_the_vehicle(w)]
     report["warnings"] = list(dict.fromkeys(warnings + stored))
-    report["cautions"] = list(CAUTIONS)
+    report["cautions"] = list(cautions("sheet"))
     return report
+
+
+def _reachable(state, battery, rotors):
+    """reachable_command [-] and reachable_thrust_to_weight [-] on the nominal pack: the command
+    that holds the bus at the loaded cutoff and the thrust-to-weight there (as the datasheet
+    route's core.hover.reachable_at_cutoff); None when full command keeps the cutoff."""
+    cutoff_V = battery["cells"] * battery["cutoff_cell_V"]
+    if state["full_bus_V"] >= cutoff_V or state["open_circuit_V"] <= cutoff_V:
+        return {"reachable_command": None, "reachable_thrust_to_weight": None}
+    at = state["rotor"].at_bus_V(rotors, cutoff_V, battery["resistance_ohm"], state["open_circuit_V"])
+    return {"reachable_command": at["command"],
+            "reachable_thrust_to_weight": rotors * at["thrust_N"] / state["weight_N"]}
 
 
 def hover_block(vehicle, params):
@@ -310,8 +333,6 @@ def hover_block(vehicle, params):
     Raises InputError when the vehicle cannot hover on this rotor (there is no hover command
     to store).
     """
-    from estimator.vehicle import vehicle_source
-
     r = hover_from_params(vehicle, params)
     if r["hover_command"] is None:
         cause = [w for w in r["warnings"] if w.startswith("cannot hover: ")][:1]

@@ -195,7 +195,8 @@ def format_sheet(report):
     setup = "%s%s, %d rotors (%s)%s" % (
         _num(report.get("mass_kg"), SIG3, "kg"), " (%s as written)" % as_given if as_given else "",
         report.get("rotor_count", 0), report.get("layout", "flat"),
-        ", propellers %.3g m%s" % (diameter, " (%s as written)" % size_given if size_given else "")
+        ", propellers %.3g m%s" % (diameter, " (%s as written)" % size_given if size_given else
+                                   " (bench rotor)" if report.get("propeller_source") == "bench sweep" else "")
         if diameter else "")
     lines += ["vehicle  " + setup, "site     " + air, ""]
 
