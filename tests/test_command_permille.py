@@ -63,7 +63,7 @@ def test_a_permille_sweep_reads_as_the_same_commands(sweeps):
     assert b["command_unit"] == "permille"
 
 
-def test_a_permille_sweep_fits_like_the_fraction_sweep_and_speaks_permille(sweeps, capsys):
+def test_a_permille_sweep_fits_like_the_fraction_sweep_and_speaks_permille(sweeps):
     d, frac, perm = sweeps
     fits = {}
     for f in (frac, perm):
@@ -83,7 +83,7 @@ def test_a_permille_sweep_fits_like_the_fraction_sweep_and_speaks_permille(sweep
     assert "permille" in text
 
 
-def test_a_fraction_labelled_permille_is_refused_with_the_likely_unit(tmp_path, capsys):
+def test_a_fraction_labelled_permille_is_refused_with_the_likely_unit(tmp_path):
     text = simulate_sweep(seed=3, command_unit="-")
     f = tmp_path / "slip.csv"
     f.write_text(_recolumn(text, "-", "permille", 1.0))     # 0..1 written under [permille]
@@ -94,7 +94,7 @@ def test_a_fraction_labelled_permille_is_refused_with_the_likely_unit(tmp_path, 
     assert not (tmp_path / "p.json").exists()
 
 
-def test_a_flight_log_in_permille_replays_like_the_fraction_log(tmp_path, capsys):
+def test_a_flight_log_in_permille_replays_like_the_fraction_log(tmp_path):
     from watch_helpers import demo_fit_params
 
     params = tmp_path / "params.json"
@@ -113,7 +113,7 @@ def test_a_flight_log_in_permille_replays_like_the_fraction_log(tmp_path, capsys
     assert docs[0]["events"] == docs[1]["events"] and docs[0]["learned"] == docs[1]["learned"]
 
 
-def test_a_fraction_flight_log_labelled_permille_is_refused(tmp_path, capsys):
+def test_a_fraction_flight_log_labelled_permille_is_refused(tmp_path):
     from watch_helpers import demo_fit_params
 
     params = tmp_path / "params.json"

@@ -69,7 +69,7 @@ ACCEPTED = {
 
 
 @pytest.mark.parametrize("case", sorted(ACCEPTED))
-def test_quirks_both_readers_accept(tmp_path, params_file, capsys, case):
+def test_quirks_both_readers_accept(tmp_path, params_file, case):
     hb, hf, edit, prefix, sep = ACCEPTED[case]
     b, f = _files(tmp_path, hb, hf, edit, prefix, sep)
     code, out, err = run(["fit", b, "--out", str(tmp_path / "p.json"), "--json"])
@@ -120,7 +120,7 @@ REFUSED = {
 
 
 @pytest.mark.parametrize("case", sorted(REFUSED))
-def test_quirks_both_readers_refuse_with_the_same_words(tmp_path, params_file, capsys, case):
+def test_quirks_both_readers_refuse_with_the_same_words(tmp_path, params_file, case):
     hb, hf, edit, prefix, sep, words = REFUSED[case]
     b, f = _files(tmp_path, hb, hf, edit, prefix, sep)
     for args, name in ((["fit", b, "--out", str(tmp_path / "p.json")], b),
@@ -173,7 +173,7 @@ def test_files_without_a_header(tmp_path, content, words):
         csvtable.read_head(str(f), "a CSV", "time[s]")
 
 
-def test_text_or_nan_in_a_column_not_used_is_read_past_by_both(tmp_path, params_file, capsys):
+def test_text_or_nan_in_a_column_not_used_is_read_past_by_both(tmp_path, params_file):
     # a notes column (text, even 'nan') beside the numbers: both readers read past it alike
     def add_note(rows):
         return [r + ",%s" % ("nan" if k == 3 else "motor A") for k, r in enumerate(rows)]
@@ -186,7 +186,7 @@ def test_text_or_nan_in_a_column_not_used_is_read_past_by_both(tmp_path, params_
     assert code == 0, err
 
 
-def test_text_in_a_bench_cell_says_an_empty_cell_would_be_left_out(tmp_path, capsys):
+def test_text_in_a_bench_cell_says_an_empty_cell_would_be_left_out(tmp_path):
     # a bench sweep drops rows with an empty reading (counted as not_a_number); text in the
     # cell stops the fit, so the error says what to do instead
     b, _ = _files(tmp_path, "command[-],voltage[V],current[A],thrust[N]",

@@ -57,7 +57,7 @@ def test_fit_over_its_own_input_is_refused(tmp_path, bench_csv):
 
 
 @pytest.mark.parametrize("device", ["/dev/null", "/dev/full", "/dev/zero"])
-def test_devices_are_never_written(tmp_path, bench_csv, device):
+def test_devices_are_never_written(bench_csv, device):
     refused(["fit", bench_csv, "--out", device], device, "a device")
     refused(["export", PARAMS, "--out", device], device, "a device")
 

@@ -50,7 +50,7 @@ def _vehicle_file(tmp_path, name="v.json", **changes):
 
 # --- item 1: sea-level pressure (QNH) entered as the station pressure -------------------------
 
-def test_qnh_at_altitude_is_refused_by_air_naming_the_station_pressure(tmp_path):
+def test_qnh_at_altitude_is_refused_by_air_naming_the_station_pressure():
     line = refused("air", "--altitude", "2000m", "--pressure", "1013hPa")
     assert "--pressure" in line and "QNH" in line
     # the station pressure it suggests is the standard one at 2000 m: 795.0 hPa (ICAO table)
@@ -234,7 +234,7 @@ def test_compare_breaks_a_build_whose_full_command_is_not_reachable(tmp_path):
     assert "reachable T/W      %.2f" % sheet["reachable_thrust_to_weight"] in sheet_text
 
 
-def test_the_reachable_thrust_to_weight_sits_on_the_cutoff_of_a_thevenin_pack(tmp_path):
+def test_the_reachable_thrust_to_weight_sits_on_the_cutoff_of_a_thevenin_pack():
     from estimator.core.motor import rotor_operating_point
     from estimator.preflight.report import hover_report
     from estimator.vehicle import check_vehicle

@@ -36,7 +36,7 @@ def _map(rows, fn):
     return out
 
 
-def test_time_that_goes_back_or_repeats_is_named_by_row(tmp_path, params_file, capsys, rows):
+def test_time_that_goes_back_or_repeats_is_named_by_row(tmp_path, params_file, rows):
     bad = list(rows)
     bad[100] = bad[99]                     # a repeated row (line 102 of the file: header is line 1)
     t, rest = bad[500].split(",", 1)
@@ -70,20 +70,20 @@ def test_time_that_goes_back_or_repeats_is_named_by_row(tmp_path, params_file, c
     ("time[ms],command[-],voltage[V],current[A]", lambda t, u, v, a: (t, u, v, a),
      "likely seconds in a column labelled [ms]; label it time[s]"),
 ])
-def test_unit_slips_are_refused_with_the_likely_cause(tmp_path, params_file, capsys, rows, header, fn, needle):
+def test_unit_slips_are_refused_with_the_likely_cause(tmp_path, params_file, rows, header, fn, needle):
     f = _write(tmp_path, header, _map(rows, fn))
     code, _, err = run(["replay", str(f), "--params", str(params_file)])
     line = _one_error(code, err)
     assert needle in line and "log.csv" in line, line
 
 
-def test_the_unchanged_log_passes_the_checks(tmp_path, params_file, capsys, rows):
+def test_the_unchanged_log_passes_the_checks(tmp_path, params_file, rows):
     f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows)
     code, out, err = run(["replay", str(f), "--params", str(params_file), "--json"])
     assert code == 0 and json.loads(out)["learned"] is True
 
 
-def test_a_log_too_short_to_learn_says_so(tmp_path, params_file, capsys, rows):
+def test_a_log_too_short_to_learn_says_so(tmp_path, params_file, rows):
     # three rows, and 9 s of a flight: no verdict, never "power stayed within"
     for n in (3, 90):
         f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows[300:300 + n], "short%d.csv" % n)

@@ -71,7 +71,7 @@ def test_a_log_from_another_vehicle_is_refused_by_its_implied_mass(tmp_path, par
 
 
 @pytest.mark.parametrize("c", [0.6, 2.2])
-def test_a_payload_or_the_flying_within_the_bounds_still_replays(tmp_path, params_file, capsys, rows, c):
+def test_a_payload_or_the_flying_within_the_bounds_still_replays(tmp_path, params_file, rows, c):
     # c^(2/3) = 0.71 (no payload, cruising) and 1.69 (heavy and flown hard): the watch's own
     # alarms judge these, the log is not refused
     f = _write(tmp_path, rows, amp=c)
