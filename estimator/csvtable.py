@@ -22,7 +22,6 @@ empty_ok) -> one list of floats per index; read_table(path, what, example, colum
 """
 
 import math
-import re
 
 from estimator.errors import InputError, shorten
 from estimator.safepath import MiB, open_checked, size_text
@@ -39,8 +38,6 @@ MAX_HEAD_LINES = 10000
 # offset) so that the command [-] (0..1) = value * scale + offset. ``permille`` is the unit
 # liftcal itself speaks on the board (Watch.update, the exported hover command).
 COMMAND_UNITS = {"-": (1.0, 0.0), "%": (0.01, 0.0), "permille": (0.001, 0.0), "us": (0.001, -1.0)}
-
-_HEADER_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*(?:\[([^\]]*)\])?\s*$")
 
 
 class Head:
@@ -108,88 +105,11 @@ def read_head(path, what, example):
 
 
 def parse_header(path, head, columns, optional=(), refuse=None):
-    """Find the required columns in the header; returns ({name: (index, unit)}, warnings).
+    """Find the columns in the header (estimator.csvheader.parse_header: every header
+    problem in one error, each named by its column)."""
+    from estimator.csvheader import parse_header as parse
 
-    columns: {name: {unit: (scale, offset)}} of the required columns; optional: names read
-    past without a warning; refuse: optional callable(names) returning a message when the
-    header shows the wrong kind of file (a bench sweep given as a flight log), else None.
-    Other columns get a warning "column 'x' is not used". Raises InputError naming the
-    line and the cell on a cell that is not name[unit], a required column missing,
-    without a unit, with a unit not in its table, or given twice.
-    """
-    found, warnings, names = {}, [], []
-    line = head.line
-    for index, cell in enumerate(head.cells):
-        m = _HEADER_CELL.match(cell)
-        if not m:
-            raise InputError("%s: line %d column %d: header cell %s is not name[unit]%s"
-                             % (path, line, index + 1, shorten(cell), _bracket_hint(cell)))
-        name, unit = m.group(1).strip().lower(), m.group(2)
-        names.append(name)
-        if name in columns:
-            if name in found:
-                raise InputError("%s: line %d: column %r appears twice" % (path, line, name))
-            if unit is None:
-                raise InputError("%s: line %d: column %r has no unit; write %s[%s]"
-                                 % (path, line, name, name, "|".join(columns[name])))
-            unit = unit.strip()
-            if unit not in columns[name]:
-                raise InputError("%s: line %d: unit %s of column %r is not one of %s"
-                                 % (path, line, shorten(unit), name,
-                                    ", ".join("[%s]" % u for u in columns[name])))
-            found[name] = (index, unit)
-        elif name not in optional:
-            warnings.append("column %s is not used" % shorten(cell.strip()))
-    if refuse is not None:
-        message = refuse(names)
-        if message:
-            raise InputError("%s: line %d: %s" % (path, line, message))
-    missing = [n for n in columns if n not in found]
-    if missing:
-        raise InputError("%s: line %d: header lacks %s; need %s%s"
-                         % (path, line, ", ".join(missing),
-                            ", ".join("%s[%s]" % (n, "|".join(u)) for n, u in columns.items()),
-                            _other_name_hint(head.cells, missing, columns)))
-    return found, warnings
-
-
-# names people give a column for the quantity liftcal calls by another name (common practice
-# in bench and logging tools' exports; liftcal's own names stay its own)
-COLUMN_SYNONYMS = {"throttle": "command", "thr": "command", "input": "command", "pwm": "command",
-                   "volts": "voltage", "volt": "voltage", "vbat": "voltage", "amps": "current",
-                   "amp": "current", "ibat": "current", "force": "thrust", "load": "thrust",
-                   "lift": "thrust", "t": "time", "seconds": "time"}
-_SPREADSHEET_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*\(([^)]*)\)\s*$")
-
-
-def _bracket_hint(cell):
-    """'; write time[s]' for a spreadsheet-style header cell 'Time (s)', else ''."""
-    m = _SPREADSHEET_CELL.match(cell)
-    if not m:
-        return ""
-    return "; write %s[%s] (the unit in square brackets)" % (m.group(1).strip().lower(), m.group(2).strip())
-
-
-def _other_name_hint(cells, missing, columns):
-    """'; did you mean command[%] for throttle[%]?' for a header cell that names a missing
-    column by another usual name (COLUMN_SYNONYMS) or a misspelling of it, else ''."""
-    import difflib
-
-    hints = []
-    for cell in cells:
-        m = _HEADER_CELL.match(cell)
-        if not m:
-            continue
-        name, unit = m.group(1).strip().lower(), (m.group(2) or "").strip()
-        target = COLUMN_SYNONYMS.get(name)
-        if target not in missing:
-            close = difflib.get_close_matches(name, missing, 1, 0.75)
-            target = close[0] if close else None
-        if target is None:
-            continue
-        shown = unit if unit in columns[target] else "|".join(columns[target])
-        hints.append("did you mean %s[%s] for %s?" % (target, shown, shorten(cell.strip())))
-    return ("; " + "; ".join(hints[:3])) if hints else ""
+    return parse(path, head, columns, optional, refuse)
 
 
 def _number(path, line_no, col, cell, empty_ok):

@@ -34,13 +34,31 @@ _UNITS = {
     "resistance": {"ohm": (1.0, 0.0), "mohm": (1e-3, 0.0), "mOhm": (1e-3, 0.0)},
     "time": {"s": (1.0, 0.0), "min": (60.0, 0.0), "h": (3600.0, 0.0)},
 }
+# other spellings of units people write, -> the spelling of the tables here and of the CSV
+# column tables: the micro sign (U+00B5) and the Greek small mu (U+03BC) both mean micro, the
+# per-mille sign, degree signs, the ohm sign (U+2126) and capital omega (U+03A9), a product
+# of units written with a middle dot, a space or nothing (torque in N*m)
+UNIT_SPELLINGS = {
+    "\u00b5s": "us", "\u03bcs": "us", "\u2030": "permille", "\u00b0C": "C", "\u2103": "C", "\u00b0F": "F",
+    "\u2126": "ohm", "\u03a9": "ohm", "m\u2126": "mohm", "m\u03a9": "mohm",
+    "N\u00b7m": "N*m", "N m": "N*m", "Nm": "N*m", "pct": "%",
+}
+
+
+def unit_spelling(text):
+    """A unit as written (``µs``, ``°C``, ``N·m``) in the spelling liftcal's tables use
+    (``us``, ``C``, ``N*m``); any other text comes back stripped, unchanged."""
+    text = text.strip()
+    return UNIT_SPELLINGS.get(text, text)
+
+
 # the unit assumed when a person types a bare number
 DEFAULT_UNIT = {
     "mass": "kg", "length": "m", "altitude": "m", "force": "N", "power": "W", "temperature": "C",
     "pressure": "Pa", "density": "kg/m3", "percent": "%", "voltage": "V", "current": "A",
     "capacity": "Ah", "ratio": "", "fraction": "", "resistance": "ohm", "time": "s",
 }
-_NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*([A-Za-z%/^0-9]*)\s*$")
+_NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*([A-Za-z%/^0-9\u00b5\u03bc\u00b0\u2030\u2103\u2126\u03a9]*)\s*$")
 
 
 def parse_quantity(text, kind, what="value"):
@@ -57,7 +75,7 @@ def parse_quantity(text, kind, what="value"):
     if not m:
         raise InputError("%s: cannot read %s as a number with a unit (e.g. 1%s)"
                          % (what, shorten(str(text)), DEFAULT_UNIT[kind]))
-    value, suffix = float(m.group(1)), m.group(2) or DEFAULT_UNIT[kind]
+    value, suffix = float(m.group(1)), unit_spelling(m.group(2)) or DEFAULT_UNIT[kind]
     if suffix not in table and not any(table):  # a plain number (a ratio): no unit at all
         hint = " (%s%% is %g)" % (m.group(1), value / 100.0) if suffix in ("%", "pct") else ""
         raise InputError("%s: %s: takes a plain number without a unit%s"

@@ -4,8 +4,10 @@ File layout: lines starting with ``#`` are comments (``# density: 1.19``, ``# al
 ``# temperature: 21``, ``# pressure: 97000``, ``# humidity: 40``, ``# diameter: 10in``);
 then one header row of ``name[unit]`` cells; then comma-separated numbers. Required columns:
 ``command[-|%|permille|us]``, ``voltage[V|mV]``, ``current[A|mA]``, ``thrust[N|g|gf|kgf|lbf|mN]``.
-Optional columns (``time[s]``, ``rpm[rpm]``, ``torque[N*m]``, ``temperature[C]``) are read
-past; unknown ones too, with a warning.
+Optional columns (OPTIONAL: ``time[s]``, ``rpm[rpm]``, ``torque[N*m]``, ``temperature[C]``)
+are read and checked like the others (text refused with its line and column, an empty cell
+drops the row, counted), but the fit does not use them (estimator.bench.wording.
+columns_note says so); unknown columns are read past with a warning.
 
 Rows that are merely bad (a NaN or empty cell, a negative current, a command outside 0..1)
 are dropped and counted. Files that are broken (no header, a row with the wrong number of
@@ -24,7 +26,14 @@ from estimator.bench.bench_air import bench_air
 from estimator.units import STANDARD_GRAVITY_M_S2, parse_quantity
 
 REQUIRED = ("command", "voltage", "current", "thrust")
-OPTIONAL = ("time", "rpm", "torque", "temperature")
+# optional columns: name -> {unit as written: (scale, offset)} to SI (rpm -> rad/s,
+# temperature in C as estimator.units takes it); checked as numbers, not used by the fit
+OPTIONAL = {
+    "time": {"s": (1.0, 0.0), "ms": (1e-3, 0.0)},
+    "rpm": {"rpm": (2.0 * math.pi / 60.0, 0.0)},
+    "torque": {"N*m": (1.0, 0.0), "mN*m": (1e-3, 0.0)},
+    "temperature": {"C": (1.0, 0.0), "K": (1.0, -273.15)},
+}
 # column -> {unit as written: (scale, offset)} so that SI = value * scale + offset
 UNITS = {
     "command": csvtable.COMMAND_UNITS,
@@ -114,6 +123,7 @@ def _read_head(path, warnings=None):
 def _parse_header(path, head, line_no=None):
     """Map required column names to (index, unit); warn about unknown columns."""
     return csvtable.parse_header(path, head, UNITS, OPTIONAL)
+
 
 
 def _slow_parse(path, skip, ncols, wanted=None):
@@ -222,9 +232,13 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     warnings = comment_warnings + list(warnings)
     ncols = len(head.cells)
     units = {name: columns[name][1] for name in REQUIRED}
-    cols, extremes, digest = _load_numbers(path, header_line, ncols, [columns[name][0] for name in REQUIRED],
-                                           [UNITS[name][units[name]] for name in REQUIRED])
+    extra = [name for name in OPTIONAL if name in columns]  # read and checked, not used
+    cols, extremes, digest = _load_numbers(
+        path, header_line, ncols, [columns[name][0] for name in REQUIRED + tuple(extra)],
+        [UNITS[name][units[name]] for name in REQUIRED] + [OPTIONAL[n][columns[n][1]] for n in extra])
     data = {name: col for name, col in zip(REQUIRED, cols)}
+    data["optional"] = cols[len(REQUIRED):]
+    extremes = extremes[:len(REQUIRED)] if extremes is not None else None
     data.update({name + "_unit": units[name] for name in REQUIRED})
     del cols
     rows_total = data["command"].shape[0]
@@ -287,6 +301,8 @@ def _row_checks(path, data, rows_total):
     u, v, i, t = data["command"], data["voltage"], data["current"], data["thrust"]
     rejected = {}
     finite = np.isfinite(u) & np.isfinite(v) & np.isfinite(i) & np.isfinite(t)
+    for column in data.get("optional", ()):  # an empty optional cell: the row goes, counted
+        finite &= np.isfinite(column)
     rejected["not_a_number"] = int(rows_total - np.count_nonzero(finite))
     with np.errstate(invalid="ignore"):
         # current sensors read a little below zero at idle; only clearly negative rows are bad

@@ -52,3 +52,34 @@ def thrust_text(thrust_N, unit, se_N=None):
         return "%s %s" % (plain_number(thrust_N / scale), unit)
     value, error = value_and_error(thrust_N / scale, se_N / scale)
     return "%s %s +- %s %s" % (value, unit, error, unit) if error else "%s %s" % (value, unit)
+
+
+# why the optional columns of a sweep are read (checked as numbers) but not used
+OPTIONAL_WHY = ("the fit takes each row's command, voltage, current and thrust; its motor model "
+                "needs neither rotor speed nor torque, and it does not correct for time or temperature")
+
+
+def column_use(path):
+    """Which columns of the bench CSV ``path`` the fit used: {"fitted": ["command[us]", ...],
+    "read_not_used": ["rpm[rpm]", ...] (the optional columns, estimator.bench.reader.OPTIONAL,
+    read and checked as numbers), "why_not_used": text}. The header is read again (a few lines)."""
+    from estimator import csvtable
+    from estimator.bench.reader import EXAMPLE_HEADER, OPTIONAL, REQUIRED, UNITS
+
+    head = csvtable.read_head(path, "a bench CSV", EXAMPLE_HEADER)
+    columns = csvtable.parse_header(path, head, UNITS, OPTIONAL)[0]
+    return {"fitted": ["%s[%s]" % (n, columns[n][1]) for n in REQUIRED],
+            "read_not_used": ["%s[%s]" % (n, columns[n][1]) for n in OPTIONAL if n in columns],
+            "why_not_used": OPTIONAL_WHY}
+
+
+def columns_note(use):
+    """The fit summary's one line from column_use(path)."""
+    from estimator.bench.reader import OPTIONAL
+
+    fitted = ", ".join(use["fitted"])
+    if not use["read_not_used"]:
+        return "columns fitted: %s; no optional column (%s: read and checked, not used)" % (
+            fitted, ", ".join("%s[%s]" % (n, next(iter(u))) for n, u in OPTIONAL.items()))
+    return "columns fitted: %s; read and checked, not used: %s (%s)" % (
+        fitted, ", ".join(use["read_not_used"]), use["why_not_used"])

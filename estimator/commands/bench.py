@@ -44,8 +44,8 @@ def _start_text(mm, unit):
     return text
 
 
-def _human_fit(params, out_file, warnings=None):
-    from estimator.bench.wording import command_text, command_with_error, thrust_text
+def _human_fit(params, out_file, warnings=None, columns=None):
+    from estimator.bench.wording import columns_note, command_text, command_with_error, thrust_text
     from estimator.units import plain_number
 
     c, p, k, q = (params["thrust_curve"], params["power_model"], params["static_factor"],
@@ -59,6 +59,7 @@ def _human_fit(params, out_file, warnings=None):
         "fitted %d rows (%d dropped: %s) -> %s" % (
             q["rows_used"], q["rows_rejected"],
             ", ".join("%s %d" % kv for kv in sorted(q["rejected"].items())) or "none", out_file),
+    ] + ([columns_note(columns)] if columns else []) + [
         "thrust curve for the controller (at %.2f V, %.3f kg/m^3; +- one standard error incl. curve-form error)" % (
             c["reference_voltage_V"], c["reference_density_kg_m3"]),
         "  full-command thrust  %s%s" % (thrust_text(c["thrust_max_N"], tu, se["thrust_max_N"]),
@@ -154,6 +155,8 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     if voltage_exponent is not None:
         params["thrust_curve"]["voltage_exponent_source"] = "given"
     arrays = params.pop("_arrays", None)
+    from estimator.bench.wording import column_use
+    columns = column_use(bench_file)
     check_params(params, out_file)
     # the vehicle's margins (full-command pack sag, motor and pack current, thin air...) as the
     # hover sheet gives them from this parameter set: printed, not stored (they belong to the
@@ -176,21 +179,26 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
         out = summary(params)
         out["warnings"] = shown
         out["out"] = out_file
+        out["columns"] = columns
         if plot_file:
             out["plot"] = plot_file
         out["cautions"] = list(BENCH_CAUTIONS)
         click.echo(dumps(out))
     else:
-        click.echo(_human_fit(params, out_file, shown))
+        click.echo(_human_fit(params, out_file, shown, columns))
         if plot_file:
             click.echo("plot written to %s" % plot_file)
 
 
 def _header_units():
-    """The bench header's columns and units as the reader takes them (its UNITS: one source)."""
-    from estimator.bench.reader import UNITS
+    """The bench header's columns and units as the reader takes them (its UNITS and OPTIONAL
+    tables: one source)."""
+    from estimator.bench.reader import OPTIONAL, UNITS
 
-    return ", ".join("%s[%s]" % (name, "|".join(units)) for name, units in UNITS.items())
+    def cells(table):
+        return ", ".join("%s[%s]" % (name, "|".join(units)) for name, units in table.items())
+
+    return "%s; optional (read and checked, not used by the fit) %s" % (cells(UNITS), cells(OPTIONAL))
 
 
 fit.help = fit.help.replace("{header}", _header_units())
