@@ -330,3 +330,26 @@ def test_fitted_sheet_echoes_the_mass_as_written_and_the_bench_rotor(fitted, tmp
     head = " ".join(" ".join(out.splitlines()[2:4]).split())
     assert "(%s as written)" % raw["mass_kg"] in head
     assert "propellers %.3g m (bench rotor)" % params["rotor"]["diameter_m"] in head
+
+
+def test_fit_plot_draws_dropped_rows_above_the_legend(fitted, monkeypatch):
+    # trial 5 item 11: a dropped row under the legend box was hidden by it
+    import estimator.bench.plots as bench_plots
+
+    captured = {}
+    monkeypatch.setattr(bench_plots, "save_figure_atomic", lambda fig, path: captured.setdefault("fig", fig))
+    _, _, folder = fitted
+    lines = (folder / "demo.csv").read_text().splitlines()
+    comments = [line for line in lines if line.startswith("#")]
+    header, *rows = [line for line in lines if not line.startswith("#")]
+    cells = rows[len(rows) // 3].split(",")
+    names = [c.split("[")[0] for c in header.split(",")]
+    cells[names.index("thrust")] = str(5.0 * float(cells[names.index("thrust")]))  # one spike
+    (folder / "spiked.csv").write_text("\n".join(comments + [header] + rows + [",".join(cells)]) + "\n")
+    with pytest.raises(SystemExit) as exc:
+        main(["fit", str(folder / "spiked.csv"), "--out", str(folder / "spiked.json"), "--plot",
+              str(folder / "spiked.png")])
+    assert exc.value.code == 0
+    ax = captured["fig"].axes[0]
+    dropped = next(line for line in ax.get_lines() if line.get_label() == "rows dropped")
+    assert dropped.get_zorder() > ax.get_legend().get_zorder()

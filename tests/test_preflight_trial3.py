@@ -302,3 +302,42 @@ def test_a_bare_payload_far_above_the_vehicle_mass_is_refused_with_grams_named(t
     assert code == 0 and err == "" and "500 g" in out
     code, out, err = run("hover", path, "--payload", "0..1")  # 1 kg on 0.72 kg: possible, read as kg
     assert code == 0 and "1 kg" in out
+
+
+# --- trial 5 item 11: every point of a small compare plot is labelled; the payload plot's
+# point colours are in its legend ---------------------------------------------------------------
+
+def _captured_figure(monkeypatch):
+    import estimator.preflight.plots as plots
+    captured = {}
+    monkeypatch.setattr(plots, "save_figure", lambda fig, path: captured.setdefault("fig", fig))
+    monkeypatch.setattr(plots._pyplot(), "close", lambda fig: None)
+    return plots, captured
+
+
+def test_compare_plot_labels_every_point_of_six(tmp_path, monkeypatch):
+    from estimator.preflight.compare import compare_rows, parse_vary
+
+    plots, captured = _captured_figure(monkeypatch)
+    variations = [parse_vary("propeller.size=9x4.5in,10x4.5in,11x5in"), parse_vary("battery.cells=4,6")]
+    result = compare_rows(json.loads(json.dumps(DEMO_VEHICLE)), "demo", variations)
+    drawn = [r for r in result["rows"] if r["hover_command"] is not None]
+    assert len(drawn) == 6
+    plots.plot_compare(str(tmp_path / "c.png"), result, "demo")
+    texts = [t.get_text() for t in captured["fig"].axes[0].texts]
+    assert sorted(int(t.split()[0][1:]) for t in texts if t.startswith("#")) == sorted(r["rank"] for r in drawn)
+
+
+def test_payload_plot_legend_says_what_green_and_red_points_mean(tmp_path, monkeypatch):
+    from estimator.preflight.payload import payload_table
+    from estimator.vehicle import check_vehicle
+
+    plots, captured = _captured_figure(monkeypatch)
+    document = json.loads(json.dumps(DEMO_VEHICLE))
+    document["battery"]["resistance_ohm"] = 0.008  # a stiffer pack: the bare vehicle keeps its margins
+    vehicle = check_vehicle(document, "demo")
+    result = payload_table(vehicle, [0.0, 0.5, 1.0, 1.5, 2.0])
+    assert {bool(r["keeps"]) for r in result["rows"]} == {True, False}
+    plots.plot_payload(str(tmp_path / "p.png"), result, "demo", "kg")
+    labels = [t.get_text() for ax in captured["fig"].axes if ax.get_legend() for t in ax.get_legend().get_texts()]
+    assert "keeps every margin" in labels and "breaks a margin" in labels

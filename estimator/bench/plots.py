@@ -82,7 +82,9 @@ def plot_fit(path, params, arrays):
 
     ax.plot(cu(u[used]), tf * t[used] * to_ref[used], ".", ms=3, color="0.45", label="rows used (scaled to V_ref)")
     if np.any(~used):
-        ax.plot(cu(u[~used]), tf * t[~used] * to_ref[~used], "x", ms=6, color="tab:red", label="rows dropped")
+        # above the legend (zorder 5), so a dropped row under it still shows
+        ax.plot(cu(u[~used]), tf * t[~used] * to_ref[~used], "x", ms=6, color="tab:red", label="rows dropped",
+                zorder=6)
     grid_u = np.linspace(0.0, 1.0, 301)
     fit_t, half = curve_band_N(curve, params["thrust_curve_covariance"]["matrix"], grid_u)
     ax.fill_between(cu(grid_u), tf * (fit_t - half), tf * (fit_t + half), color="tab:blue", alpha=0.25, lw=0,

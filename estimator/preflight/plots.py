@@ -10,6 +10,10 @@ from estimator.preflight.report import HOVER_COMMAND_LIMIT
 from estimator.units import parse_quantity
 
 
+# up to this many points of a compare plot carry their rank and values
+LABEL_ALL = 8
+
+
 def _pyplot():
     import matplotlib
     matplotlib.use("Agg")
@@ -21,7 +25,8 @@ def plot_compare(path, result, name):
     """Endurance against hover command, one point per combination, kept margins in green.
 
     The trade-off at a glance: up and to the left is a longer hover at a lower command. The
-    best combination that keeps every margin is labelled; so are up to five others.
+    best combination that keeps every margin is labelled; so are the next ones, every point
+    when there are at most LABEL_ALL of them, else the first LABEL_ALL by rank.
     """
     plt = _pyplot()
     fig, ax = plt.subplots(figsize=(8.0, 5.5))
@@ -32,7 +37,7 @@ def plot_compare(path, result, name):
         if pts:
             ax.scatter([r["hover_command"] for r in pts], [r["flight_time_min"] for r in pts],
                        c=colour, label=label, s=30, alpha=0.8)
-    for r in rows[:4]:
+    for r in sorted(rows, key=lambda r: r["rank"])[:LABEL_ALL]:
         short = ", ".join(str(v) for v in r["values"].values())
         ax.annotate("#%d %s" % (r["rank"], short), (r["hover_command"], r["flight_time_min"]), fontsize=7,
                     xytext=(4, 4), textcoords="offset points")
@@ -65,10 +70,12 @@ def plot_payload(path, result, name, unit="kg"):
     xs = [r["payload_kg"] / scale for r in rows if r["flight_time_min"] is not None]
     ys = [r["flight_time_min"] for r in rows if r["flight_time_min"] is not None]
     ax.plot(xs, ys, "-", color="tab:blue", lw=1.5, label="endurance")
-    for r in rows:
-        if r["flight_time_min"] is not None:
-            ax.plot(r["payload_kg"] / scale, r["flight_time_min"], "o",
-                    color="tab:green" if r["keeps"] else "tab:red", ms=5)
+    for keeps, colour, label in ((True, "tab:green", "keeps every margin"),
+                                 (False, "tab:red", "breaks a margin")):
+        pts = [r for r in rows if r["flight_time_min"] is not None and bool(r["keeps"]) == keeps]
+        if pts:
+            ax.plot([r["payload_kg"] / scale for r in pts], [r["flight_time_min"] for r in pts], "o",
+                    color=colour, ms=5, ls="none", label=label)
     if result["max_payload_kg"] is not None:
         ax.axvline(result["max_payload_kg"] / scale, color="tab:green", ls="--", lw=1,
                    label="largest payload keeping the margins: %.3g %s" % (result["max_payload_kg"] / scale, unit))
@@ -88,7 +95,7 @@ def plot_payload(path, result, name, unit="kg"):
     ax2.axhline(HOVER_COMMAND_LIMIT, color="tab:orange", ls="--", lw=0.8, alpha=0.6,
                 label="command limit %.1f (common practice)" % HOVER_COMMAND_LIMIT)
     ax2.set_ylabel("hover command [-] (orange)")
-    ax.set_title("%s: payload (green point = keeps every margin)" % name, fontsize=10)
+    ax.set_title("%s: endurance and hover command against payload" % name, fontsize=10)
     ax.grid(True, alpha=0.3)
     handles, labels = ax.get_legend_handles_labels()
     more, more_labels = ax2.get_legend_handles_labels()
