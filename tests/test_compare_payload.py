@@ -150,7 +150,7 @@ def test_payload_on_the_command_line(tmp_path):
     out = run("hover", demo_file, "--payload", "0..1kg", "--job-time", "10min", "--plot", png, "--json")
     assert out.exit_code == 0, out.output
     report = json.loads(out.output)
-    assert len(report["payload"]["rows"]) == 9 and report["payload"]["job_min"] == pytest.approx(10.0)
+    assert len(report["payload"]["rows"]) == 11 and report["payload"]["job_min"] == pytest.approx(10.0)
     assert report["payload"]["max_payload_kg"] is not None
     text = run("hover", demo_file, "--payload", "0,200g,400g")
     assert text.exit_code == 0 and "How much can it carry?" in text.output and "200 g" in text.output

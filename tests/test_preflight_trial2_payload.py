@@ -56,7 +56,7 @@ def test_payload_table_from_the_bench_fit(fitted):
     assert out.exit_code == 0, out.stderr
     assert out.stderr == ""
     payload = json.loads(out.stdout)["payload"]
-    assert payload["route"] == "bench fit" and len(payload["rows"]) == 9
+    assert payload["route"] == "bench fit" and len(payload["rows"]) == 11  # 0..1 kg on a 0.1 kg step
     vehicle = check_vehicle(copy.deepcopy(DEMO_VEHICLE), "demo")
     params = load_params(params_file)
     for row in payload["rows"]:

@@ -231,7 +231,7 @@ def test_compare_breaks_a_build_whose_full_command_is_not_reachable(tmp_path):
     text = run("compare", path, "--vary", "propeller.size=12x5in", "--vary", "motor.kv_rpm_per_V=880")[1]
     assert "no combination keeps every margin" in text and "breaks " in text and "%.2f*" % row["reachable_thrust_to_weight"] in text
     sheet_text = run("hover", edited)[1]
-    assert "reachable T/W      %.2f" % sheet["reachable_thrust_to_weight"] in sheet_text
+    assert "thrust-to-weight   %.2f*  (judged: reachable" % sheet["reachable_thrust_to_weight"] in sheet_text
 
 
 def test_the_reachable_thrust_to_weight_sits_on_the_cutoff_of_a_thevenin_pack():

@@ -13,7 +13,8 @@ import itertools
 from estimator.errors import InputError, shorten
 from estimator.preflight.margins import MARGINS, broken, keeps_margins, margins
 from estimator.preflight.report import hover_report
-from estimator.preflight.warnings import ENDED_BY_WORDS
+from estimator.preflight.warnings import (ENDED_BY_WORDS, REACHABLE_MARK, REACHABLE_MARK_NOTE,
+                                         judged_thrust_to_weight_text)
 from estimator.textwidth import WIDTH, fit_width, wrap_line
 from estimator.vehicle import check_vehicle, vehicle_keys
 
@@ -167,9 +168,7 @@ def compare_rows(document, source, variations, progress=None):
 
 def _tw_cell(row):
     """The T/W a row can reach: at full command, or (marked *) at the pack's loaded cutoff."""
-    if row.get("thrust_to_weight_reachable") is False and row.get("reachable_thrust_to_weight") is not None:
-        return "%.2f*" % row["reachable_thrust_to_weight"]
-    return "%.2f" % row["thrust_to_weight"]
+    return judged_thrust_to_weight_text(row)
 
 
 def format_table(result, name):
@@ -217,8 +216,7 @@ def format_table(result, name):
     lines.append("motor A  each motor's current at hover (ESC output)")
     lines.append("pack A   all motors from the pack")
     if any(r.get("thrust_to_weight_reachable") is False for r in rows):
-        lines.append("T/W*     full command sags the pack below its loaded cutoff: the T/W shown is "
-                     "the one reachable at the cutoff")
+        lines.append("T/W%s     %s" % (REACHABLE_MARK, REACHABLE_MARK_NOTE))
     if any(r.get("propeller_source") == "estimated" for r in rows):
         from estimator.preflight.propeller_estimate import ESTIMATE_NOTE
         lines.append("- " + ESTIMATE_NOTE)

@@ -4,7 +4,7 @@ A margin is kept (True), broken (False), or cannot be judged (None: the file giv
 The thresholds are the report's warning thresholds (estimator.preflight.report, common practice).
 """
 
-from estimator.preflight.warnings import HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN
+from estimator.preflight.warnings import HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, judged_thrust_to_weight
 
 # margin -> what it means, for tables and the JSON
 MARGINS = {
@@ -29,9 +29,7 @@ PAYLOAD_BLIND = ("motor_current", "pack_current", "full_command_sag")
 def margins(report):
     """{margin name: True | False | None} for a report dict of hover_report (see MARGINS)."""
     hovering = bool(report.get("can_hover"))
-    tw = report.get("thrust_to_weight")
-    if report.get("thrust_to_weight_reachable") is False and report.get("reachable_thrust_to_weight") is not None:
-        tw = report["reachable_thrust_to_weight"]  # what the pack reaches before its cutoff
+    tw = judged_thrust_to_weight(report)[0]  # what the pack reaches before its cutoff
     worst_cmd = report.get("hover_command_empty")
     if worst_cmd is None and hovering:
         worst_cmd = float("inf")  # cannot hover near empty: the command margin is broken

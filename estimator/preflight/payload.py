@@ -12,11 +12,13 @@ when it breaks, the verdict names it once and gives the largest payload on the o
 """
 
 import copy
+import math
 import re
 
 from estimator.errors import InputError, shorten
 from estimator.preflight.margins import PAYLOAD_BLIND, broken, margins
 from estimator.preflight.report import hover_report
+from estimator.preflight.warnings import REACHABLE_MARK, REACHABLE_MARK_NOTE, judged_thrust_to_weight, judged_thrust_to_weight_text
 from estimator.textwidth import wrap_line
 from estimator.units import parse_quantity
 
@@ -31,7 +33,7 @@ PAYLOAD_MASS_RATIO_MAX = 3.0
 
 
 def parse_payloads(text):
-    """``0..2kg`` (RANGE_POINTS evenly spaced, ends included) or ``0,500g,1.5kg`` -> (kg list, unit).
+    """``0..2kg`` (payload_grid: a round step, about RANGE_POINTS payloads, ends included) or ``0,500g,1.5kg`` -> (kg list, unit).
 
     A bare number takes the unit of the range's other end, else kilograms. unit: the unit the
     person typed (for the table and the plot). Raises InputError naming --payload.
@@ -54,8 +56,29 @@ def parse_payloads(text):
         lo, hi = values
         if not hi > lo:
             raise InputError("--payload %s: the range must rise (A..B with B above A)" % shorten(text))
-        values = [lo + (hi - lo) * i / (RANGE_POINTS - 1) for i in range(RANGE_POINTS)]
+        scale = parse_quantity("1" + unit, "mass")
+        values = [v * scale for v in payload_grid(lo / scale, hi / scale)]
     return sorted(set(values)), unit
+
+
+def payload_grid(lo, hi):
+    """The payloads of a range lo..hi (in the unit the person typed), ends included, on a round step.
+
+    The step is the 1-2-2.5-5 x 10^k number nearest (on a log scale) to (hi - lo) / (RANGE_POINTS - 1),
+    so 0..450 g gives 0, 50, ..., 450 g (not 56.25 g steps) and 0..2 kg 0.25 kg steps; every point is
+    lo + i x step rounded to the step's decimals, and hi is added when the steps miss it. One grid
+    for both routes (datasheet and bench fit): the rows differ only by the model.
+    """
+    raw = (hi - lo) / (RANGE_POINTS - 1)
+    exponent = math.floor(math.log10(raw))
+    steps = [f * 10.0 ** e for e in (exponent - 1, exponent, exponent + 1) for f in (1.0, 2.0, 2.5, 5.0)]
+    step = min(steps, key=lambda c: abs(math.log(c / raw)))
+    decimals = max(0, -math.floor(math.log10(step)) + 1)
+    grid, i = [], 0
+    while lo + i * step < hi - 1e-9 * step:
+        grid.append(round(lo + i * step, decimals))
+        i += 1
+    return grid + [hi]
 
 
 def _row(vehicle, payload_kg, job_min, params=None):
@@ -68,7 +91,10 @@ def _row(vehicle, payload_kg, job_min, params=None):
     row = {
         "payload_kg": payload_kg, "mass_kg": v["mass_kg"],
         "hover_command": report["hover_command"], "hover_command_empty": report["hover_command_empty"],
-        "thrust_to_weight": report["thrust_to_weight"], "hover_pack_current_A": report["hover_current_A"],
+        "thrust_to_weight": report["thrust_to_weight"],
+        "thrust_to_weight_reachable": report.get("thrust_to_weight_reachable"),
+        "reachable_thrust_to_weight": report.get("reachable_thrust_to_weight"),
+        "thrust_to_weight_judged": judged_thrust_to_weight(report)[0], "hover_pack_current_A": report["hover_current_A"],
         "hover_motor_current_A": report.get("hover_motor_current_A"),
         "flight_time_min": report["flight_time_min"], "flight_ended_by": report.get("flight_ended_by"),
         "margins": marks, "keeps": all(m is not False for m in marks.values()),
@@ -113,7 +139,9 @@ def payload_table(vehicle, payloads_kg, job_min=None, params=None):
     vehicle: checked vehicle dict; payloads_kg: payloads [kg], >= 0; job_min: required
     endurance [min] or None; params: a fitted parameter set (the bench route of hover_report)
     or None (the vehicle file's datasheet model). Returns a dict: rows (payload_kg [kg],
-    mass_kg [kg], hover_command [-], hover_command_empty [-], thrust_to_weight [-],
+    mass_kg [kg], hover_command [-], hover_command_empty [-], thrust_to_weight [-] (full command),
+    thrust_to_weight_reachable, reachable_thrust_to_weight [-], thrust_to_weight_judged [-] (the one
+    the margin judges, warnings.judged_thrust_to_weight),
     hover_pack_current_A [A], hover_motor_current_A [A], flight_time_min [min],
     flight_ended_by, margins, keeps, broken, and with params hover_command_interval_95 [-]),
     max_payload_kg [kg] or None (none keeps), max_payload_found ("beyond_list", "bisection",
@@ -197,11 +225,13 @@ def format_payload_table(result, unit="kg"):
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
         time = ("%.1f min (%s)" % (r["flight_time_min"], r["flight_ended_by"])
                 if r["flight_time_min"] is not None else "no hover")
-        lines.append("   %-9s  %-9s  %-4s  %-5s  %-4.2f  %-6s  %-18s  %s" % (
+        lines.append("   %-9s  %-9s  %-4s  %-5s  %-5s %-6s  %-18s  %s" % (
             "%.*f %s" % (shown, r["payload_kg"] / scale, unit), "%.*f %s" % (shown, r["mass_kg"] / scale, unit), cmd,
-            empty, r["thrust_to_weight"], pack, time, "yes" if r["keeps"] else "no"))
+            empty, judged_thrust_to_weight_text(r), pack, time, "yes" if r["keeps"] else "no"))
         if not r["keeps"]:  # the margins it breaks, on a line of their own under the row
             lines += wrap_line("       breaks " + ", ".join(r["broken"]), indent=14)
+    if any(judged_thrust_to_weight(r)[1] for r in result["rows"]):
+        lines += wrap_line("   T/W%s  %s" % (REACHABLE_MARK, REACHABLE_MARK_NOTE), indent=10)
     for line in verdict_lines(result, unit):
         lines += wrap_line("   " + line, indent=5)
     return "\n".join(lines) + "\n"

@@ -17,7 +17,7 @@ from estimator.preflight.propeller_estimate import (LOW_REYNOLDS_FIGURE_OF_MERIT
                                                     low_reynolds_warning)
 from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
-from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, beside, full_command_sag, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num, SIG3)
+from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, REACHABLE_MARK, beside, judged_thrust_to_weight, judged_thrust_to_weight_text, full_command_sag, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num, SIG3)
 
 MODEL = "liftcal.dc-motor-momentum/1"
 # the datasheet model takes command = ESC duty; a real ESC only starts the motor above a
@@ -28,8 +28,13 @@ CAUTIONS = cautions("sheet")
 
 
 def hover_report(vehicle, params=None):
-    """The pre-flight report dict, with ``flyable`` and ``not_flyable_because`` (see _report)."""
+    """The pre-flight report dict, with ``flyable``, ``not_flyable_because`` and the judged
+    thrust-to-weight (``thrust_to_weight_judged`` [-], ``thrust_to_weight_judged_at``: "full command"
+    or "loaded cutoff", warnings.judged_thrust_to_weight) (see _report)."""
     report = _report(vehicle, params)
+    judged, marked = judged_thrust_to_weight(report)
+    report["thrust_to_weight_judged"] = judged  # what the margins, warnings and tables judge
+    report["thrust_to_weight_judged_at"] = "loaded cutoff" if marked else "full command"
     reasons = not_flyable_reasons(report) if report.get("can_hover") else ["it cannot hover"]
     report["flyable"] = not reasons
     report["not_flyable_because"] = reasons
@@ -227,13 +232,17 @@ def format_sheet(report):
 
     lines.append("2. With what margin?")
     reachable = report.get("thrust_to_weight_reachable")
-    lines.append("   thrust-to-weight   %s   (full command, nominal pack; %s2 is the usual floor)"
-                 % (thrust_to_weight_text(report.get("thrust_to_weight")),
-                    "NOT REACHABLE on this pack, see below; " if reachable is False else ""))
-    if reachable is False and report.get("reachable_thrust_to_weight") is not None:
-        lines.append("   reachable T/W      %s at command %s, where the pack reaches its loaded cutoff"
-                     % (thrust_to_weight_text(report["reachable_thrust_to_weight"]),
-                        _num(report.get("reachable_command"), "%.2f")))
+    if judged_thrust_to_weight(report)[1]:
+        lines.append("   thrust-to-weight   %s  (judged: reachable at command %s, where the pack reaches "
+                     "its loaded cutoff; 2 is the usual floor)"
+                     % (judged_thrust_to_weight_text(report), _num(report.get("reachable_command"), "%.2f")))
+        lines.append("   %s marks the T/W reachable on this pack; full command would give %s but sags the "
+                     "pack below its loaded cutoff: NOT REACHABLE"
+                     % (REACHABLE_MARK, thrust_to_weight_text(report.get("thrust_to_weight"))))
+    else:
+        lines.append("   thrust-to-weight   %s   (full command, nominal pack; %s2 is the usual floor)"
+                     % (thrust_to_weight_text(report.get("thrust_to_weight")),
+                        "NOT REACHABLE on this pack, see below; " if reachable is False else ""))
     full_total, rotors = report.get("full_thrust_N"), report.get("rotor_count") or 0
     lines.append("   full-command thrust %s per rotor, %s total (hover needs %s per rotor)" % (
         _num(full_total / rotors if full_total is not None and rotors else None, SIG3, "N"),

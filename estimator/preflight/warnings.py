@@ -50,6 +50,33 @@ def thrust_to_weight_text(tw):
     return beside(tw, THRUST_TO_WEIGHT_MIN) if tw < THRUST_TO_WEIGHT_MIN else "%.2f" % tw
 
 
+# the mark of a thrust-to-weight judged at the pack's loaded cutoff instead of at full command
+# (every table and sheet: compare, payload, hover, hover --params) and what it means
+REACHABLE_MARK = "*"
+REACHABLE_MARK_NOTE = ("full command sags the pack below its loaded cutoff: the T/W shown and judged is the "
+                       "one reachable at the cutoff (the full-command value is not reachable on this pack)")
+
+
+def judged_thrust_to_weight(report):
+    """The thrust-to-weight every margin, warning and table judges, and whether it is marked.
+
+    Reads thrust_to_weight [-] (full command, nominal pack), thrust_to_weight_reachable (False
+    when full command sags the pack below its loaded cutoff) and reachable_thrust_to_weight [-]
+    (at the highest command that keeps the cutoff). Returns (T/W [-] or None, marked): the
+    reachable value, marked True, when full command is not reachable; else the full-command one.
+    One rule for the datasheet and the bench-fit routes, the sheet, compare and payload.
+    """
+    if report.get("thrust_to_weight_reachable") is False and report.get("reachable_thrust_to_weight") is not None:
+        return report["reachable_thrust_to_weight"], True
+    return report.get("thrust_to_weight"), False
+
+
+def judged_thrust_to_weight_text(report):
+    """The judged thrust-to-weight as printed: thrust_to_weight_text, REACHABLE_MARK when marked."""
+    tw, marked = judged_thrust_to_weight(report)
+    return thrust_to_weight_text(tw) + (REACHABLE_MARK if marked and tw is not None else "")
+
+
 def full_command_sag(report):
     """The bus voltage per cell at full command on a nominal pack against the loaded cutoff.
 
@@ -121,10 +148,11 @@ def not_flyable_reasons(report):
     FLYABLE_THRUST_TO_WEIGHT, hover command FLYABLE_HOVER_COMMAND, and hover to the end of the pack.
     """
     out = []
-    tw = report.get("thrust_to_weight")
+    tw, marked = judged_thrust_to_weight(report)
     if tw is not None and tw < FLYABLE_THRUST_TO_WEIGHT:
-        out.append("thrust-to-weight %s leaves almost nothing to climb or steer with (below %.1f)"
-                   % (beside(tw, FLYABLE_THRUST_TO_WEIGHT), FLYABLE_THRUST_TO_WEIGHT))
+        out.append("thrust-to-weight %s%s leaves almost nothing to climb or steer with (below %.1f)"
+                   % (beside(tw, FLYABLE_THRUST_TO_WEIGHT), " (reachable before the pack's cutoff)" if marked else "",
+                      FLYABLE_THRUST_TO_WEIGHT))
     command = report.get("hover_command")
     if command is not None and command > FLYABLE_HOVER_COMMAND:
         out.append("hover command %s is above %.1f of full command"
@@ -138,6 +166,7 @@ def margin_warnings(report):
     """Warnings for a report dict with the keys of hover_report (also usable on fitted reports)."""
     out = []
     tw = report.get("thrust_to_weight")
+    judged, marked = judged_thrust_to_weight(report)
     if report.get("hover_command") is None:
         out.append(cannot_hover_cause(report))
     worst = None
@@ -151,15 +180,17 @@ def margin_warnings(report):
         out.append("hover command %s at %s pack is above %.1f of full command: little left for "
                    "control and gusts (thrust-to-weight %s)"
                    % (beside(worst[0], HOVER_COMMAND_LIMIT, below=False), worst[1], HOVER_COMMAND_LIMIT,
-                      thrust_to_weight_text(tw)))
+                      judged_thrust_to_weight_text(report)))
     if report.get("hover_command") is not None and report.get("hover_command_empty") is None:
         out.append("near the end of the pack it cannot hover (command would exceed full at %s V open "
                    "circuit): land well before the pack is empty"
                    % _num((report.get("pack_voltage_V") or {}).get("empty"), "%.1f"))
-    if tw is not None and 1.0 <= tw < THRUST_TO_WEIGHT_MIN:
+    if judged is not None and report.get("hover_command") is not None and judged < THRUST_TO_WEIGHT_MIN:
         out.append("thrust-to-weight %s is below %.0f: sluggish climbs and little control margin "
-                   "(common practice: 2 or more, about 3 for brisk flying)"
-                   % (thrust_to_weight_text(tw), THRUST_TO_WEIGHT_MIN))
+                   "(common practice: 2 or more, about 3 for brisk flying)%s"
+                   % (judged_thrust_to_weight_text(report), THRUST_TO_WEIGHT_MIN,
+                      "; %s marks the T/W reachable before the pack's loaded cutoff: %s at full command is "
+                      "not reachable" % (REACHABLE_MARK, thrust_to_weight_text(tw)) if marked else ""))
     sag = full_command_sag(report)
     if sag["thrust_to_weight_reachable"] is False:
         from estimator.cautions import SAG_BELOW_CUTOFF
