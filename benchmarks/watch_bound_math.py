@@ -43,9 +43,9 @@ def long_run_factor(r, max_lag):
 
 def t_fisher_sigma(x):
     """sigma_J = J^-1/2 [units of x], J the Fisher information of location of a Student-t fitted
-    by maximum likelihood (scipy.stats.t.fit): J = (nu + 1) / ((nu + 3) s^2); for Gaussian
+    by maximum likelihood (scipy.stats.t.fit, location fixed at the median): J = (nu + 1) / ((nu + 3) s^2); for Gaussian
     data sigma_J -> the standard deviation."""
-    nu, _, s = stats.t.fit(x)
+    nu, _, s = stats.t.fit(x, floc=float(np.median(x)))
     return s * math.sqrt((nu + 3.0) / (nu + 1.0))
 
 

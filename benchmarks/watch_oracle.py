@@ -13,18 +13,29 @@ STEADY_SHARE = 0.05             # block command within this share of its slow me
 
 
 def _filters(t, g, taus, g_grid=None):
-    """First-order filters of the logged series g (time t [s]) read at each sample instant:
-    g interpolated linearly between samples on a GRID_S grid, scipy.signal.lfilter per time
-    constant; only samples up to the instant enter its value. g_grid: the series itself on the
-    GRID_S grid from t = 0 instead (the diagnostic with the simulator's full command)."""
+    """First-order filters (time constants taus [s]) of the logged series g (time t [s]) read at
+    each sample instant, with g linear between samples (first-order hold): only samples up to
+    the instant enter its value. A regular log: the exact discrete filter on the samples,
+    y_i = a y_(i-1) + (1 - c) g_i + (c - a) g_(i-1), a = exp(-h / tau), c = tau (1 - a) / h;
+    irregular: on a GRID_S grid (scipy.signal.lfilter either way). g_grid: the series itself
+    on the GRID_S grid from t = 0 instead (the diagnostic with the simulator's full command)."""
     from scipy.signal import lfilter
+    gaps = np.diff(t)
+    out = []
+    if g_grid is None and len(gaps) and np.ptp(gaps) < 0.0015:
+        h = float(np.mean(gaps))
+        for tau in taus:
+            a = math.exp(-h / tau)
+            c = tau * (1.0 - a) / h
+            y, _ = lfilter([1.0 - c, c - a], [1.0, -a], g, zi=[c * g[0]])
+            out.append(y)
+        return out
     if g_grid is None:
         t0 = t[0]
         gg = np.interp(np.arange(t0, t[-1] + GRID_S, GRID_S), t, g)
     else:
         t0, gg = 0.0, g_grid
     idx = np.minimum(np.floor((t - t0) / GRID_S + 1e-6).astype(int), len(gg) - 1)
-    out = []
     for tau in taus:
         a = 1.0 - math.exp(-GRID_S / tau)
         y, _ = lfilter([a], [1.0, a - 1.0], gg, zi=[(1.0 - a) * gg[0]])
@@ -33,7 +44,7 @@ def _filters(t, g, taus, g_grid=None):
 
 
 def features(t, u, v, v_ref, u_grid=None):
-    """Per-sample terms (n x p) of the oracle predictor from the logged t [s], u [-], V [V].
+    """Per-sample terms (list of p arrays) of the oracle predictor from the logged t [s], u [-], V [V].
     u_grid: the command on the GRID_S grid (diagnostic only: NOT in a log)."""
     v = v / v_ref
     uv = u * v
@@ -51,7 +62,7 @@ def features(t, u, v, v_ref, u_grid=None):
     for a, b in zip(fu, fuv):
         cols += [u - a, uv * b, v * b, uv * (u - a)]
     cols += [uv * (v - fv[0]), v - fv[1], uv * (v - fv[1])]
-    return np.column_stack(cols)
+    return cols
 
 
 def flight_blocks(fl, v_ref, block_s, end_s, u_grid=None):
@@ -64,10 +75,17 @@ def flight_blocks(fl, v_ref, block_s, end_s, u_grid=None):
     w = np.minimum(np.diff(t, prepend=t[0] - 0.1), block_s)
     b = np.floor(t / block_s).astype(int)
     nb = b[-1] + 1
-    wsum = np.bincount(b, w, nb)
-    e = np.bincount(b, v * i * w, nb)
-    x = np.stack([np.bincount(b, phi[:, j] * w, nb) for j in range(phi.shape[1])], axis=1)
-    ub = np.bincount(b, u * w, nb) / np.maximum(wsum, 1e-9)
+    starts = np.flatnonzero(np.diff(b, prepend=-1))      # t rises: each block's samples are contiguous
+
+    def bsum(values):
+        out = np.zeros(nb)
+        out[b[starts]] = np.add.reduceat(values * w, starts)
+        return out
+
+    wsum = bsum(np.ones_like(w))
+    e = bsum(v * i)
+    x = np.stack([bsum(col) for col in phi], axis=1)
+    ub = bsum(u) / np.maximum(wsum, 1e-9)
     # settled flight, from the log alone
     spin = u > 0.5 * np.median(u)
     t_on, t_off = t[spin][0], t[spin][-1]
@@ -84,15 +102,17 @@ def flight_blocks(fl, v_ref, block_s, end_s, u_grid=None):
         ref[k] = acc
     off = np.abs(ub - ref) > STEADY_SHARE * np.maximum(ref, 1e-6)
     last_off = np.maximum.accumulate(np.where(off, tb, -1e9))
-    steady = (~off) & (tb - last_off > SETTLE_S) & (tb > t_on + 25.0) & (tb < t_off - 35.0) & (wsum > 0)
-    return {"x": x, "e": e, "w": wsum, "steady": steady, "t": tb}
+    airborne = (tb > t_on + 25.0) & (tb < t_off - 35.0) & (wsum > 0)
+    steady = (~off) & (tb - last_off > SETTLE_S) & airborne
+    return {"x": x, "e": e, "w": wsum, "steady": steady, "airborne": airborne, "t": tb}
 
 
-def fit(blocks):
-    """Least squares of block mean power on block mean terms over settled blocks (rows
-    scaled by the block time: relative errors); columns standardised; tiny ridge."""
-    x = np.concatenate([bl["x"][bl["steady"]] / bl["w"][bl["steady"], None] for bl in blocks])
-    y = np.concatenate([bl["e"][bl["steady"]] / bl["w"][bl["steady"]] for bl in blocks])
+def fit(blocks, mask="steady"):
+    """Least squares of block mean power on block mean terms over settled blocks (mask
+    "airborne": every block of the flight's middle; rows scaled by the block time: relative
+    errors); columns standardised; tiny ridge."""
+    x = np.concatenate([bl["x"][bl[mask]] / bl["w"][bl[mask], None] for bl in blocks])
+    y = np.concatenate([bl["e"][bl[mask]] / bl["w"][bl[mask]] for bl in blocks])
     mu, sd = x.mean(0), x.std(0)
     sd[sd < 1e-12] = 1.0
     mu[0] = 0.0
@@ -102,7 +122,7 @@ def fit(blocks):
     return mu, sd, coef
 
 
-def residuals(blocks, model, per):
+def residuals(blocks, model, per, mask="steady"):
     """Relative residual of settled blocks of `per` base blocks each: (flights x blocks) array,
     NaN where a block is not settled."""
     mu, sd, coef = model
@@ -113,7 +133,7 @@ def residuals(blocks, model, per):
         m = len(bl["e"]) // per * per
         e = bl["e"][:m].reshape(-1, per).sum(1)
         p = pred[:m].reshape(-1, per).sum(1)
-        ok = bl["steady"][:m].reshape(-1, per).all(1)
+        ok = bl[mask][:m].reshape(-1, per).all(1)
         r = np.full(n, np.nan)
         r[:len(e)] = np.where(ok, (e - p) / p, np.nan)
         rows.append(r)
