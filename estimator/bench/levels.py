@@ -5,7 +5,10 @@ supply (bus voltage in a band VOLTAGE_BAND x the sweep's lowest voltage wide). E
 command, voltage, thrust and power and its row count; rows far from their own level's mean
 (a load-cell knock, a current glitch) are counted as spikes and left out of the mean,
 judged only in levels of at least three rows (two rows cannot say which one is wrong). The
-grouping is two bincounts over integer keys: linear in the rows, no sort.
+grouping works over integer keys (numpy.add.at, as a bincount): linear in the rows, no
+sort. The passes over the rows go BLOCK_ROWS rows at a time, so that each block's steps
+run while it stays in the processor's cache, and keep no full-length temporaries beyond
+the level number of each row.
 """
 
 import math
@@ -41,6 +44,9 @@ SMALL_LEVEL = 20
 SCALE_ROWS = 10000
 # rows of the systematic subsample that tells a ramp from a stepped sweep and sizes its levels [-]
 WIDTH_ROWS = 20000
+# rows per block of the passes over the rows: the arrays a block touches (a few columns of
+# 8 bytes, 32768 rows) stay inside a processor core's own (L2) cache between the steps [-]
+BLOCK_ROWS = 32768
 # the thrust noise profile: at most this many thrust bins, each of at least NOISE_BIN_ROWS
 # rows of turning levels; 12 rows let two spikes in one bin (six spoiled deviations) mask
 # each other, 24 coarsen the profile: measured by benchmarks/spike_screen.py [-]
@@ -99,30 +105,83 @@ def _stable_order(x):
     return np.argsort(ranks)
 
 
-def _bands(v, v_lo, v_hi):
+def _bands(v, v_lo, v_hi, out=None):
     """(supply band number of each voltage v [V] (whole numbers as floats), number of
-    bands) for a sweep whose bus voltage spans v_lo..v_hi [V] (v_lo > 0)."""
+    bands) for a sweep whose bus voltage spans v_lo..v_hi [V] (v_lo > 0); out: an array
+    for the band numbers (else a new one)."""
     per_volt = 1.0 / (VOLTAGE_BAND * v_lo)  # band k holds the voltages nearest (k + 100) % of v_lo
-    bands = v * per_volt
+    bands = np.multiply(v, per_volt, out=out)
     bands -= 1.0 / VOLTAGE_BAND - 0.5
     np.trunc(bands, out=bands)
     return bands, int(v_hi * per_volt - 1.0 / VOLTAGE_BAND + 0.5) + 1
 
 
-def _keys(u, v, width, v_lo, v_hi):
-    """Level of every row at command step ``width`` [-] (v_lo..v_hi: the voltage span [V]):
-    (dense level number of each row, in command order; rows per level; command step index
-    of each level; supply band of each level)."""
-    key = u * (1.0 / width)
-    np.rint(key, out=key)
-    bands, n_bands = _bands(v, v_lo, v_hi)
-    key *= n_bands
-    key += bands
-    key = key.astype(np.intp)  # command step index x number of bands + supply band
-    present = np.bincount(key)
-    raw = np.flatnonzero(present)
-    index = np.cumsum(present > 0) - 1
-    return np.take(index, key), present[raw].astype(float), raw // n_bands, raw % n_bands
+def _blocks(rows):
+    """(start, stop) of the blocks of BLOCK_ROWS rows that cover ``rows`` rows."""
+    return [(start, min(start + BLOCK_ROWS, rows)) for start in range(0, rows, BLOCK_ROWS)]
+
+
+def _level_sums(u, v, t, p, width, v_lo, v_hi):
+    """Level of every row at command step ``width`` [-] (v_lo..v_hi: the voltage span [V])
+    and the sums of the rows per level: (dense level number of each row, in command order;
+    rows per level; command step index of each level; supply band of each level; [sums of
+    u, v, t, p per level]).
+
+    A row's key is its command step index x the number of bands + its supply band. Two
+    passes over the rows, BLOCK_ROWS at a time: the keys and the rows per key, then the
+    dense level numbers and the sums. Each block's steps run while it stays in the
+    processor's cache, and numpy.add.at adds the rows in their order as numpy.bincount
+    does: the sums are the same to the last bit."""
+    n_bands = _bands(np.empty(0), v_lo, v_hi)[1]
+    size = (int(round(1.0 / width)) + 2) * n_bands  # commands 0..1 (grown for larger ones)
+    count = np.zeros(size)
+    key = np.empty(u.size, dtype=np.intp)
+    step, band = np.empty(min(BLOCK_ROWS, u.size)), np.empty(min(BLOCK_ROWS, u.size))
+    for start, stop in _blocks(u.size):
+        k, b = step[:stop - start], band[:stop - start]
+        np.multiply(u[start:stop], 1.0 / width, out=k)
+        np.rint(k, out=k)
+        _bands(v[start:stop], v_lo, v_hi, out=b)
+        k *= n_bands
+        k += b
+        lo, hi = float(np.min(k)), float(np.max(k))
+        if not lo >= 0.0:
+            raise ValueError("a command below 0, a voltage below the sweep's lowest, or a NaN reached "
+                             "the command levels")
+        if hi >= size:
+            count = np.r_[count, np.zeros(int(hi) + 1 - size)]
+            size = count.size
+        rows = key[start:stop]
+        np.copyto(rows, k, casting="unsafe")  # whole numbers: the float -> integer cast is exact
+        np.add.at(count, rows, 1.0)
+    raw = np.flatnonzero(count)
+    index = np.cumsum(count > 0) - 1
+    sums = [np.zeros(raw.size) for _ in range(4)]
+    dense = np.empty(u.size, dtype=np.intp)
+    for start, stop in _blocks(u.size):
+        rows = dense[start:stop]
+        np.take(index, key[start:stop], out=rows, mode="wrap")  # every key is in range
+        for total, x in zip(sums, (u, v, t, p)):
+            np.add.at(total, rows, x[start:stop])
+    return dense, count[raw], raw // n_bands, raw % n_bands, sums
+
+
+def _deviation_sums(key, n_keys, columns, means):
+    """For each column x (with its level means): the sum and the largest of the squared
+    deviations x - its level's mean, per level. One pass over the rows, BLOCK_ROWS at a
+    time (as _level_sums); the squared deviations of the rows are not kept (_screen
+    makes those of the few rows it needs again, by the same operations)."""
+    out = [(np.zeros(n_keys), np.zeros(n_keys)) for _ in columns]
+    d = np.empty(min(BLOCK_ROWS, key.size))
+    for start, stop in _blocks(key.size):
+        rows, dev = key[start:stop], d[:stop - start]
+        for x, mean, (total, largest) in zip(columns, means, out):
+            np.take(mean, rows, out=dev, mode="wrap")  # every level number is in range
+            np.subtract(x[start:stop], dev, out=dev)
+            np.square(dev, out=dev)
+            np.add.at(total, rows, dev)
+            np.maximum.at(largest, rows, dev)
+    return out
 
 
 def _screen_width(u, v, v_lo):
@@ -172,13 +231,20 @@ def _median_recheck(k, xs, limit, ref):
     return np.abs(xs - med[k]) / ref[k] > limit
 
 
-def _screen(key, n_keys, count, x, dev2, ref, limit, allowed):
-    """Rows far from their level: dev2 > (limit * ref)^2 (dev2: per row, the square of x
-    minus the level's mean and in-level trend; ref: per level), then in small levels (one
-    spike moves the mean as far as its neighbours) judged again against the level's median.
-    Returns (the bool mask, the flagged rows' indices in order)."""
-    bound = np.where(allowed, limit * ref, np.inf)
-    flagged = dev2 > np.take(np.square(bound), key)
+def _screen(key, n_keys, count, x, dev2_of, dev2_max, ref, limit, allowed):
+    """Rows far from their level: squared deviation > (limit * ref)^2 (the square of x minus
+    the level's mean and in-level trend: dev2_of(rows) gives it for the rows asked,
+    dev2_max its largest per level; ref: per level), then in small levels (one spike moves
+    the mean as far as its neighbours) judged again against the level's median. Only the
+    rows of levels whose largest squared deviation exceeds their bound are judged: no row
+    of another level can. Returns (the bool mask, the flagged rows' indices in order)."""
+    bound2 = np.square(np.where(allowed, limit * ref, np.inf))
+    flagged = np.zeros(key.size, dtype=bool)
+    beyond = dev2_max > bound2
+    if not np.any(beyond):
+        return flagged, np.flatnonzero(beyond)
+    rows = np.flatnonzero(np.take(beyond, key))
+    flagged[rows[dev2_of(rows) > bound2[key[rows]]]] = True
     hits = np.flatnonzero(flagged)
     if hits.size == 0:
         return flagged, hits
@@ -213,7 +279,7 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     v_lo, v_hi = voltage_span_V  # bus voltage span [V]
     width, ramp = _screen_width(u, v, v_lo)
     widened = width > LEVEL_STEP
-    key, count, cmd_index, band = _keys(u, v, width, v_lo, v_hi)
+    key, count, cmd_index, band, sums = _level_sums(u, v, t, p, width, v_lo, v_hi)
     n_keys = count.size
 
     def level_sums(x):
@@ -223,18 +289,20 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
         return np.take(x, key)
 
     safe = np.maximum(count, 1.0)
-    sums = [level_sums(c) for c in (u, v, t, p)]
     u_m, v_m, t_m, p_m = (x / safe for x in sums)
     big = count >= 3
     t_top = float(np.max(np.abs(t_m))) if t_m.size else 0.0
     ref_p = np.maximum(np.abs(p_m), 1e-9)
-    # each row's deviation from its level's mean and trend in the command (levels of a ramp
-    # span a little command); one full-size temporary per column, reused by the screen
-    dt = to_rows(t_m)
-    np.subtract(t, dt, out=dt)
-    dp = to_rows(p_m)
-    np.subtract(p, dp, out=dp)
+    # each row's deviation from its level's mean (and, in the widened levels of a ramp, from
+    # its trend in the command); the scales come from a systematic subsample of them, the
+    # screens need them squared, with their sums per level (the levels' own scales)
+    step = max(1, u.size // SCALE_ROWS)
+    ks = key[::step]
     if widened:
+        dt = to_rows(t_m)
+        np.subtract(t, dt, out=dt)
+        dp = to_rows(p_m)
+        np.subtract(p, dp, out=dp)
         du = u - to_rows(u_m)
         suu = level_sums(du * du)
         suu[suu <= 0.0] = np.inf
@@ -243,42 +311,57 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
         dt -= to_rows(bt) * du
         dp -= to_rows(bp) * du
         del du
-    # robust scales of the deviations, on a systematic subsample
-    step = max(1, u.size // SCALE_ROWS)
-    ks = key[::step]
+        dt_sub, dp_sub = dt[::step].copy(), dp[::step].copy()
+        np.square(dt, out=dt)
+        np.square(dp, out=dp)
+        (sq_t, max_t), (sq_p, max_p) = ((level_sums(d), np.zeros(n_keys)) for d in (dt, dp))
+        np.maximum.at(max_t, key, dt)
+        np.maximum.at(max_p, key, dp)
+
+        def dt2_of(rows):
+            return dt[rows]
+
+        def dp2_of(rows):
+            return dp[rows]
+    else:
+        dt_sub, dp_sub = t[::step] - t_m[ks], p[::step] - p_m[ks]
+        (sq_t, max_t), (sq_p, max_p) = _deviation_sums(key, n_keys, (t, p), (t_m, p_m))
+
+        def dt2_of(rows):
+            return np.square(t[rows] - t_m[key[rows]])
+
+        def dp2_of(rows):
+            return np.square(p[rows] - p_m[key[rows]])
     sel = big[ks]
     # levels of SMALL_LEVEL rows or more carry their own scale (below); the others take the
     # scale of the noise at their thrust, from the profile (none needed when every level is big)
     needs_profile = bool(np.any(sel)) and bool(np.any(count[big] < SMALL_LEVEL))
-    sub = (np.abs(t_m)[ks][sel], dt[::step][sel]) if needs_profile else None
+    sub = (np.abs(t_m)[ks][sel], dt_sub[sel]) if needs_profile else None
     profile_t = noise_profile(*sub) if sub is not None else None
-    s_p = robust_scale((dp[::step] / ref_p[ks])[sel]) if np.any(sel) else 0.0
+    s_p = robust_scale((dp_sub / ref_p[ks])[sel]) if np.any(sel) else 0.0
     # power noise has a floor too (the current sensor's): small levels take the larger of the
     # pooled relative scale and the power noise at their power, from its own profile
-    profile_p = noise_profile(np.abs(p_m)[ks][sel], dp[::step][sel]) if needs_profile else None
+    profile_p = noise_profile(np.abs(p_m)[ks][sel], dp_sub[sel]) if needs_profile else None
     # noise grows with thrust and power: levels of SMALL_LEVEL rows or more carry their own
     # scale (rms about the level's trend), smaller ones the subsample's robust scale
     own = count >= SMALL_LEVEL
     if profile_t is not None:  # load-cell noise grows with thrust: the scale at each level's thrust
         scale_t = np.maximum(np.interp(np.abs(t_m), *profile_t), 1e-6 * t_top)
     else:
-        s_t = robust_scale(dt[::step][sel]) if np.any(sel) else 0.0
+        s_t = robust_scale(dt_sub[sel]) if np.any(sel) else 0.0
         scale_t = np.full(n_keys, max(s_t, 1e-6 * t_top))
     scale_p = ref_p * max(s_p, 1e-6)
     if profile_p is not None:
         scale_p = np.maximum(np.interp(np.abs(p_m), *profile_p), scale_p)
-    # from here on the screens need only squared deviations
-    np.square(dt, out=dt)
-    np.square(dp, out=dp)
     if np.any(own):
-        ms_t = level_sums(dt) / safe
-        ms_p = level_sums(dp) / safe
+        ms_t = sq_t / safe
+        ms_p = sq_p / safe
         scale_t[own] = np.maximum(np.sqrt(ms_t[own]), 1e-6 * t_top)
         scale_p[own] = np.maximum(np.sqrt(ms_p[own]), 1e-6 * ref_p[own])
-    thrust_spike, t_hits = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
+    thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big)
     if profile_t is not None and t_hits.size:
         # a spike moves its whole level's deviations: judge again with a profile made only
-        # of levels without a flagged row (dt holds squared deviations now); every level takes
+        # of levels without a flagged row; every level takes
         # that profile's scale here, also those that carried their own above (a spiked level's
         # own rms carries its spike; a clean one's is near the profile anyway)
         spoiled = np.zeros(n_keys, dtype=bool)
@@ -287,11 +370,9 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
         again = noise_profile(*(x[clean] for x in sub))
         if again is not None:
             scale_t = np.maximum(np.interp(np.abs(t_m), *again), 1e-6 * t_top)
-            thrust_spike, t_hits = _screen(key, n_keys, count, t, dt, scale_t, SPIKE_SIGMAS, big)
-    del dt
+            thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big)
     spinning = big & (np.abs(t_m) > 0.02 * t_top)
-    power_spike, p_hits = _screen(key, n_keys, count, p, dp, scale_p, SPIKE_SIGMAS, spinning)
-    del dp
+    power_spike, p_hits = _screen(key, n_keys, count, p, dp2_of, max_p, scale_p, SPIKE_SIGMAS, spinning)
     out = np.union1d(t_hits, p_hits)  # the rows of either kind of spike
     if out.size:
         k = key[out]
