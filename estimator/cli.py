@@ -47,14 +47,42 @@ class LazyGroup(click.Group):
         with formatter.section("Commands"):
             formatter.write_dl(rows)
 
+    def parse_args(self, ctx, args):
+        ctx.meta["liftcal.json"] = wants_json(args)
+        return super().parse_args(ctx, args)
+
     def invoke(self, ctx):
-        """Run the command; a user error (InputError) becomes one ``error:`` line and exit 2,
-        also under click's test runner, which calls the group without main()."""
+        """Run the command; a user error (InputError) becomes one ``error:`` line and exit 2
+        (under --json also one JSON object on stdout: fail()), also under click's test runner,
+        which calls the group without main()."""
         try:
             return super().invoke(ctx)
         except InputError as exc:
-            click.echo("error: %s" % _one_line(str(exc)), err=True)
+            fail(str(exc), ctx.meta.get("liftcal.json", False), getattr(exc, "details", None))
             ctx.exit(2)
+
+
+def wants_json(args):
+    """True when a command line asks for --json (before a '--' that ends the options)."""
+    for arg in args:
+        if arg == "--":
+            return False
+        if arg == "--json":
+            return True
+    return False
+
+
+def fail(message, as_json=False, details=None):
+    """Report an error the one way: ``error: MESSAGE`` (one line) on stderr, and with --json
+    also one JSON object ``{"error": MESSAGE}`` (plus a command's ``details``, such as check's
+    ``valid``) on stdout, so a script reading stdout gets exactly one JSON object whatever
+    happened. The caller exits with code 2."""
+    message = _one_line(message)
+    if as_json:
+        from estimator.jsonio import dumps
+
+        click.echo(dumps(dict(details or {}, error=message)))
+    click.echo("error: %s" % message, err=True)
 
 
 @click.group(cls=LazyGroup, context_settings={"help_option_names": ["-h", "--help"]})
@@ -79,21 +107,22 @@ def main(argv=None):
 
     # matplotlib's own warnings (a font cache it cannot save on a full disk) stay off stderr
     logging.getLogger("matplotlib").setLevel(logging.ERROR)
+    as_json = wants_json(sys.argv[1:] if argv is None else argv)
     try:
         rv = cli.main(args=argv, prog_name="liftcal", standalone_mode=False)
     except InputError as exc:
-        click.echo("error: %s" % _one_line(str(exc)), err=True)
+        fail(str(exc), as_json, getattr(exc, "details", None))
         sys.exit(2)
     except OSError as exc:
         if isinstance(exc, BrokenPipeError):
             sys.exit(0)
         if exc.filename is not None:
-            click.echo("error: %s: %s" % (exc.filename, _one_line(exc.strerror or str(exc))), err=True)
+            fail("%s: %s" % (exc.filename, exc.strerror or str(exc)), as_json)
         else:
-            click.echo("error: cannot write the output (%s)" % _one_line(exc.strerror or str(exc)), err=True)
+            fail("cannot write the output (%s)" % (exc.strerror or str(exc)), as_json)
         sys.exit(2)
     except MemoryError:
-        click.echo("error: out of memory; the input is too large for this machine", err=True)
+        fail("out of memory; the input is too large for this machine", as_json)
         sys.exit(2)
     except (ArithmeticError, ValueError) as exc:
         # the last net under values the checks let through but the models cannot take (a
@@ -101,13 +130,13 @@ def main(argv=None):
         # a gap in the checks: LIFTCAL_DEBUG=1 shows the traceback to find it.
         if os.environ.get("LIFTCAL_DEBUG"):
             raise
-        click.echo("error: %s" % _one_line(cannot_compute(exc)), err=True)
+        fail(cannot_compute(exc), as_json)
         sys.exit(2)
     except RecursionError:
-        click.echo("error: the input is nested too deeply to read", err=True)
+        fail("the input is nested too deeply to read", as_json)
         sys.exit(2)
     except click.exceptions.Abort:
-        click.echo("error: aborted", err=True)
+        fail("aborted", as_json)
         sys.exit(2)
     except click.exceptions.NoArgsIsHelpError as exc:
         click.echo(exc.ctx.get_help() if exc.ctx is not None else cli.get_help(click.Context(cli)))
@@ -115,7 +144,7 @@ def main(argv=None):
     except click.ClickException as exc:
         msg = exc.format_message().replace("\n", " ")
         ctx_cmd = getattr(getattr(exc, "ctx", None), "command_path", "liftcal")
-        click.echo("error: %s: %s (see '%s --help')" % (ctx_cmd, msg, ctx_cmd), err=True)
+        fail("%s: %s (see '%s --help')" % (ctx_cmd, msg, ctx_cmd), as_json)
         sys.exit(2)
     except BrokenPipeError:
         sys.exit(0)

@@ -6,8 +6,8 @@ flight log) and the user's own files; one input of one command is replaced by ge
 bytes (random bytes, a truncated or mutated valid file, NaN/Infinity written anywhere, huge
 and deep documents, a random JSON value at a random place), or an output path of one kind
 (an input, the user's file, a device, a pipe, a link, a folder ...) is given. The command
-must exit 0 (when what it was given was fine) or 2 with exactly one `error:` line; when it
-exits 2, no file in the folder changed and none was added; when it exits 0, the files that
+must exit 0 (when what it was given was fine) or 2 with exactly one `error:` line (under
+--json also exactly one JSON object {"error": ...} on stdout); when it exits 2, no file in the folder changed and none was added; when it exits 0, the files that
 were there before are unchanged except liftcal's own outputs.
 Derandomized under CI (tests/conftest.py); about 30 s.
 """
@@ -64,6 +64,8 @@ def _check(argv, extra, allowed_outputs):
         assert "cannot compute with these inputs" not in lines[0], lines[0]  # a check, not the last net
         assert len(lines[0]) < 800, lines[0][:200]
         assert after == before, sorted(k for k in set(before) | set(after) if before.get(k) != after.get(k))[:5]
+        if "--json" in argv:  # stdout is still one JSON object: the same error
+            assert json.loads(out)["error"] == lines[0][len("error: "):], out[:500]
     else:
         changed = [k for k in before if before.get(k) != after.get(k) and k not in allowed_outputs]
         assert not changed, changed

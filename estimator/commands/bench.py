@@ -220,8 +220,7 @@ def check(params_file, as_json):
     try:
         params = load_params(params_file)
     except InputError as exc:
-        if as_json:
-            click.echo(dumps({"valid": False, "file": params_file, "error": str(exc)}))
+        exc.details = {"valid": False, "file": params_file}  # cli.fail prints them under --json
         raise
     from estimator.outputs import seal_of
 
