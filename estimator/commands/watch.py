@@ -75,8 +75,7 @@ def _count(n, word):
 def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
     """Write the MicroPython power-watch bundle for a board.
 
-    DIR gets liftwatch.py (the kernel), liftwatch_config.py (CONFIG, integers only),
-    board_loop.py (example loop), README.md, package.json for mip and mpy/*.mpy.
+    DIR gets {files} and mpy/*.mpy (the modules compiled).
     """
     from estimator.watch.bundle import write_bundle
 
@@ -86,7 +85,8 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
     params, vehicle = _load(params_file, vehicle_file)
     out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=_options(lag_ms))
     cfg = out["config"]
-    mass_limit_g = cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) // 1000
+    # the kernel's limit is plan x (1 + permille / 1000) exactly (it compares permille), not floored
+    mass_limit_g = round(cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) / 1000.0, 1)
     summary = {"out_dir": out["out_dir"], "files": out["files"], "mpy_bytes": out["mpy_bytes"],
                "cusum_k_sigma": cfg["cusum_k_q8"] / 256.0, "cusum_h_sigma": cfg["cusum_h_q8"] / 256.0,
                "noise_floor": cfg["noise_floor_permille"] / 1000.0, "lag_ms": cfg["lag_ms"],
@@ -97,11 +97,21 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
     lines = ["wrote the power-watch bundle to %s (%d files, .mpy total %d bytes)"
              % (out["out_dir"], len(out["files"]), out["mpy_bytes"]),
              "  CUSUM per %d ms block: reference %.2f, threshold %.2f x the block noise (learned in flight, "
-             "at least %.1f %%); expected power lagged %d ms; mass alarm above %d g"
+             "at least %.1f %%); expected power lagged %d ms; mass alarm above %.1f g"
              % (cfg["block_ms"], summary["cusum_k_sigma"], summary["cusum_h_sigma"],
                 100.0 * summary["noise_floor"], cfg["lag_ms"], mass_limit_g)]
     lines += ["- " + c for c in WATCH_CAUTIONS]
     click.echo(fit_width("\n".join(lines)))
+
+
+def _bundle_files():
+    """The bundle's files as the firmware help lists them (estimator.watch.bundle.FILES: one source)."""
+    from estimator.watch.bundle import FILES
+
+    return ", ".join("%s (%s)" % pair for pair in FILES)
+
+
+firmware.help = firmware.help.replace("{files}", _bundle_files())
 
 
 @click.command()

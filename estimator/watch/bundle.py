@@ -33,6 +33,25 @@ LAYOUT_SOURCE = os.path.join(PACKAGE_DIR, "core", "watch_layout.py")
 MODULES = ("liftwatch", "liftwatch_config", "liftwatch_layout", "liftwatch_load", "board_loop")
 
 CAUTION = " ".join(cautions("board"))
+# the bundle's files besides mpy/*.mpy, each with what it is (`liftcal firmware --help` lists them)
+FILES = (
+    ("liftwatch.py", "the kernel"), ("liftwatch_config.py", "CONFIG, integers only"),
+    ("liftwatch_layout.py", "CONFIG's indices and bounds"), ("liftwatch_load.py", "the loader that checks CONFIG"),
+    ("board_loop.py", "example loop"), ("README.md", "for the builder"), ("package.json", "for mip"),
+    ("manifest.py", "for freezing into a firmware build"),
+)
+
+
+def readme_text(template, config):
+    """README.md from the firmware_port template: its ``{name}`` fields filled from this
+    bundle's CONFIG (block_ms, lag_ms; takeoff_s, learn_s, learn_timeout_s from the *_ms
+    values), so the text says what the board runs."""
+    fields = {"block_ms": "%d" % config["block_ms"], "lag_ms": "%d" % config["lag_ms"]}
+    for name in ("takeoff", "learn", "learn_timeout"):
+        fields[name + "_s"] = "%g" % (config[name + "_ms"] / 1000.0)
+    for name, value in fields.items():
+        template = template.replace("{%s}" % name, value)
+    return template
 
 
 def kernel_text(source=KERNEL_SOURCE, name="liftwatch"):
@@ -124,6 +143,7 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
         for name in ("board_loop.py", "liftwatch_load.py", "manifest.py", "README.md"):
             with open(os.path.join(PORT_DIR, name), "r", encoding="utf-8") as fh:
                 texts[name] = fh.read()
+        texts["README.md"] = readme_text(texts["README.md"], config)
         try:
             for name, text in texts.items():
                 with open(os.path.join(tmp, name), "w", encoding="utf-8") as fh:
