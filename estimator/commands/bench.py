@@ -99,8 +99,10 @@ def _human_fit(params, out_file, warnings=None, columns=None):
                       params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),
                       h["hover_thrust_fraction"], h["power_W"], h["current_A"],
                       thrust_to_weight_text(h.get("thrust_to_weight", 0.0)), h["voltage_V"])]
+    from estimator.bench.wording import in_sweep_units
+
     for w in params.get("warnings", []) if warnings is None else warnings:
-        lines.append("! " + w)
+        lines.append("! " + in_sweep_units(w, cu))
     lines += ["- " + c for c in BENCH_CAUTIONS]
     from estimator.textwidth import fit_width  # an 80-column terminal
     return fit_width("\n".join(lines))

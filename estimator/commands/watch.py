@@ -165,8 +165,9 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         if e["kind"] == "sensor_fault":
             what = e.get("detail") or EVENT_MEANING.get(e["kind"], "")
         elif e["kind"] == "mass_high":
+            # one sentence that wraps cleanly: the numbers, then the likely cause
             what = ("implied mass %.3f kg against %.3f kg planned (alarm above %.3f kg plus the estimate's "
-                    "margin)  %s" % (e["mass_kg"], e["planned_kg"], e["limit_kg"], EVENT_MEANING.get(e["kind"], "")))
+                    "margin): payload heavier than planned?" % (e["mass_kg"], e["planned_kg"], e["limit_kg"]))
         else:
             what = "residual %+.1f %%  %s" % (100.0 * e["residual"], EVENT_MEANING.get(e["kind"], ""))
         lines.append("  %9.1f s  %-13s %s" % (e["t_s"], e["kind"], what))

@@ -194,10 +194,11 @@ def margin_warnings(report):
     sag = full_command_sag(report)
     if sag["thrust_to_weight_reachable"] is False:
         from estimator.cautions import SAG_BELOW_CUTOFF
-        out.append("full command sags the pack to %s V per cell (%s on %d cells), below its %.2f V "
+        out.append("full command sags the pack to %s V per cell (%s on %d cell%s), below its %.2f V "
                    "cutoff: %s; the thrust-to-weight %s at full command is not reachable on this pack"
                    % (beside(sag["full_command_cell_V"], report["cutoff_cell_V"]), _num(report["full_bus_V"], SIG3, "V"),
-                      report["cells"], report["cutoff_cell_V"], SAG_BELOW_CUTOFF, thrust_to_weight_text(tw)))
+                      report["cells"], "" if report["cells"] == 1 else "s", report["cutoff_cell_V"],
+                      SAG_BELOW_CUTOFF, thrust_to_weight_text(tw)))
     limit = report.get("motor_current_limit_A")
     if limit is not None:
         full_i = report.get("full_motor_current_A")

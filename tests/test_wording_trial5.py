@@ -1,0 +1,82 @@
+"""Wording within one output (trial 5, item 10), through the commands (io_helpers.run: exit
+code, stdout and stderr apart): the fit's warnings speak the sweep's command unit, a start
+command's error bar never reaches below zero, one cell is "1 cell", and the replay's mass
+event reads as one sentence. The sweep and vehicles are invented (see tests/test_csv_header_hints).
+"""
+
+import json
+import re
+
+import pytest
+
+from estimator.bench.wording import command_with_error, in_sweep_units
+from io_helpers import VEHICLE, run
+from test_csv_header_hints import AIR, _rows
+
+
+def _vehicle(tmp_path, name="v.json", **edits):
+    doc = json.loads(open(VEHICLE, encoding="utf-8").read())
+    for key, value in edits.items():
+        node = doc
+        *path, last = key.split("__")
+        for part in path:
+            node = node[part]
+        node[last] = value
+    path = tmp_path / name
+    path.write_text(json.dumps(doc))
+    return path
+
+
+def test_fit_warnings_speak_the_sweeps_command_unit(tmp_path):
+    sweep = tmp_path / "s.csv"
+    sweep.write_text(AIR + "command[us],voltage[V],current[A],thrust[gf]\n" + "\n".join(_rows(40)) + "\n")
+    # 2.0 kg on this invented rotor hovers near 0.8 of full command: the margin warnings fire
+    code, out, err = run(["fit", sweep, "--vehicle", _vehicle(tmp_path, mass_kg=2.0), "--out", tmp_path / "p.json"])
+    assert code == 0, err
+    warnings = " ".join(" ".join(out.split()).split(" ! ")[1:])
+    assert re.search(r"hover command 1\d\d\d us at (empty|nominal|full) pack is above 1600 us", warnings), warnings
+    assert not re.search(r"command \d?\.\d", warnings), warnings  # no fraction of full command left
+
+
+@pytest.mark.parametrize("unit,text", [
+    ("permille", "hover command 620 permille at empty pack is above 600 permille: little left"),
+    ("%", "hover command 62.0 % at empty pack is above 60.0 %: little left"),
+    ("us", "hover command 1620 us at empty pack is above 1600 us: little left"),
+    ("-", "hover command 0.62 at empty pack is above 0.6 of full command: little left"),
+])
+def test_in_sweep_units_rewrites_each_command_form(unit, text):
+    given = "hover command 0.62 at empty pack is above 0.6 of full command: little left"
+    assert in_sweep_units(given, unit) == text
+    swept = "hover command 0.970 at full pack lies above the highest command swept (0.950): extrapolated"
+    assert in_sweep_units(swept, "permille") == ("hover command 970 permille at full pack lies above the "
+                                                 "highest command swept (950 permille): extrapolated")
+
+
+def test_a_start_command_error_bar_is_bounded_at_zero():
+    # 0.070 +- 0.180 would reach -0.110: a command is never below zero, so the bound is shown
+    assert command_with_error(0.070, 0.180, "permille") == "70 permille (0..250 permille within one standard error)"
+    assert command_with_error(0.070, 0.180, "us") == "1070 us (1000..1250 us within one standard error)"
+    assert command_with_error(0.300, 0.012, "permille") == "300 permille +- 12 permille"
+
+
+def test_one_cell_is_a_cell(tmp_path):
+    path = _vehicle(tmp_path, mass_kg=0.1, battery__cells=1, battery__resistance_ohm=0.2,
+                    motor__kv_rpm_per_V=3000, propeller={"diameter_m": 0.1, "ct": 0.11, "cp": 0.045})
+    code, out, err = run(["hover", path])
+    assert code == 0, err
+    text = " ".join(out.split())
+    assert "V on 1 cell)" in text and "1 cells" not in text, text
+
+
+def test_replay_mass_event_is_one_sentence(tmp_path, params_file):
+    from estimator.demo.flight_sim import simulate_flight
+
+    flight = tmp_path / "heavy.csv"
+    flight.write_text(simulate_flight(fault="heavy", seed=1))
+    code, out, err = run(["replay", flight, "--params", params_file])
+    assert code == 0, err
+    text = " ".join(out.split())
+    assert re.search(r"mass_high implied mass \d\.\d{3} kg against 2\.050 kg planned \(alarm above 2\.214 kg "
+                     r"plus the estimate's margin\): payload heavier than planned\?", text), text
+    # was: "...margin)  implied" / "all-up mass above plan (payload heavier than planned?)"
+    assert "margin)  " not in out and "implied all-up" not in text, out
