@@ -18,7 +18,7 @@ import re
 from estimator.errors import InputError
 from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
 from estimator.vehicle_units import BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS
-from estimator.vehicle_units import normalise  # noqa: F401 (also part of this module's API)
+from estimator.vehicle_units import normalise, propeller_notes  # noqa: F401 (normalise: also this module's API)
 
 SCHEMA = "vehicle.schema.json"
 
@@ -143,14 +143,18 @@ def check_vehicle(document, source):
     try:
         validate(document, SCHEMA, source)
     except InputError as exc:  # name the key as the file wrote it
-        raise InputError(_as_written(str(exc), given)) from None
+        raise InputError(_schema_hint(_as_written(str(exc), given), document)) from None
     vehicle = copy.deepcopy(document)
     _check_physics(vehicle, source)
-    assumed = []
+    assumed = propeller_notes(document, given)
     if "site" not in document:
         assumed.append(NO_SITE_WARNING)
     elif "altitude_m" not in document["site"]:
         assumed.append(NO_ALTITUDE_WARNING)
+    site_note = site_temperature_warning((document.get("site") or {}).get("altitude_m", DEFAULT_ALTITUDE_M),
+                                         (document.get("site") or {}).get("temperature_C"))
+    if site_note:
+        assumed.append(site_note)
     vehicle["checked"] = {"source": source, "assumed": assumed,
                           "given": {path: text for path, (_, text) in given.items()}}
     vehicle["rotors"].setdefault("layout", DEFAULT_LAYOUT)
@@ -207,6 +211,44 @@ def vehicle_air(vehicle):
                                                  exc)) from None
 
 
+# How far a site's air temperature may sit from the standard atmosphere's at its altitude before
+# it is questioned [K]. The standard (ICAO Doc 7488 / ISO 2533, the US Standard Atmosphere 1976 in
+# the troposphere) falls 6.5 K per km; real surface air strays far from it, so the band is
+# generous: the hottest surface air on record, 56.7 C at -86 m (Death Valley, 1913), is about
+# 42 K above the standard, and the coldest, -89.2 C at 3488 m (Vostok, 1983), about 82 K below
+# it (WMO archive of weather extremes, from memory). Outside the band a typing slip (the
+# altitude in feet, the temperature at home) is likelier than the weather.
+SITE_TEMPERATURE_ABOVE_STANDARD_K = 45.0
+SITE_TEMPERATURE_BELOW_STANDARD_K = 85.0
+
+
+def site_temperature_warning(altitude_m, temperature_C):
+    """A warning when a site temperature is implausible for its altitude, else None.
+
+    altitude_m: geometric altitude [m]; temperature_C: outside air temperature [C] (None: none).
+    Compared with the standard atmosphere's temperature at the altitude
+    (core.atmosphere.standard_atmosphere: 288.15 K - 6.5 K/km x geopotential height, 216.65 K
+    above 11 km; ICAO Doc 7488, ISO 2533); the band SITE_TEMPERATURE_ABOVE/BELOW_STANDARD_K.
+    """
+    from estimator.core.atmosphere import standard_atmosphere
+
+    if temperature_C is None:
+        return None
+    try:
+        t_std = standard_atmosphere(altitude_m)[0] - 273.15
+    except ValueError:
+        return None  # the air model refuses the altitude itself, naming it
+    off = temperature_C - t_std
+    if -SITE_TEMPERATURE_BELOW_STANDARD_K <= off <= SITE_TEMPERATURE_ABOVE_STANDARD_K:
+        return None
+    return ("site temperature %.1f C at %.0f m is %.0f K %s the standard atmosphere's %.1f C there "
+            "(ICAO standard atmosphere, 6.5 K per km), beyond the %.0f K that surface air reaches (records: "
+            "about 42 K above, 82 K below; from memory): check the altitude (feet given as metres?) and "
+            "the temperature; the density uses them as given"
+            % (temperature_C, altitude_m, abs(off), "above" if off > 0 else "below", t_std,
+               SITE_TEMPERATURE_ABOVE_STANDARD_K if off > 0 else SITE_TEMPERATURE_BELOW_STANDARD_K))
+
+
 def assumed_warnings(vehicle):
     """Warnings about defaults check_vehicle filled that change the answer (no site...)."""
     return list((vehicle.get("checked") or {}).get("assumed") or [])
@@ -244,6 +286,34 @@ def _check_physics(vehicle, source):
         raise InputError("%s: $.propeller.cp: ct = %g and cp = %g give a figure of merit of %.2f, above the "
                          "momentum-theory limit of 1 (cp too small, or coefficients on a rad/s basis "
                          "instead of rev/s?)" % (source, prop["ct"], prop["cp"], fm))
+
+
+# fraction keys (0..1) a person may write in percent, and an example of each short key written with
+# its unit text, for a schema message that misses it (trial 5, item 9)
+_FRACTION_KEYS = ("$.esc.efficiency", "$.battery.usable_fraction")
+_SHORT_KEY_EXAMPLES = {"mass": "1.05kg", "capacity": "4200mAh", "resistance": "20mohm", "diameter": "254mm",
+                       "pitch": "4.5in", "no_load_current": "0.8A", "max_current": "30A", "full_cell": "4.2V",
+                       "nominal_cell": "3.7V", "empty_cell": "3.5V"}
+_REQUIRED = re.compile(r"^(.*?: (\$[.\w]*)): '(\w+)' is a required property")
+_ABOVE_ONE = re.compile(r"^.*?: (\$\.[.\w]+): ([-+0-9.eE]+) is greater than the maximum of 1\b")
+
+
+def _schema_hint(message, document):
+    """A schema message with the likely cause added: a fraction written in percent (``95`` for
+    0.95, 1 % = 0.01), a required SI key that the unit-text style names differently
+    (``capacity_Ah`` -> ``"capacity": "4200mAh"``)."""
+    m = _ABOVE_ONE.match(message)
+    if m and m.group(1) in _FRACTION_KEYS:
+        value = float(m.group(2))
+        if 1.0 < value <= 100.0:
+            return message + ": percent meant? %g %% is %g (a fraction of 1)" % (value, value / 100.0)
+    m = _REQUIRED.match(message)
+    if m:
+        block = m.group(2)[2:]
+        for short, (key, _kind) in _UNIT_KEYS.get(block, {}).items():
+            if key == m.group(3) and short in _SHORT_KEY_EXAMPLES:
+                return message + ' (or "%s": "%s", with its unit)' % (short, _SHORT_KEY_EXAMPLES[short])
+    return message
 
 
 def _as_written(message, given):

@@ -57,6 +57,47 @@ def _json_path(block, key):
 
 
 _CELLS_WRITTEN = re.compile(r"\s*([0-9]{1,3})\s*[sS]\s*$")
+# the two ways a vehicle file gives a propeller by its geometry (trial 5, item 7)
+SIZE_EXAMPLE = '"size": "31x16mm" (or "10x4.5in")'
+PARTS_EXAMPLE = '"diameter" and "pitch" with units, e.g. "31mm" and "16mm" (or ct and cp from a measurement)'
+_ONE_LENGTH = re.compile(r"^\s*[0-9]*\.?[0-9]+\s*[A-Za-z]+\s*$")
+_ONE_LENGTH_PARTS = re.compile(r"^\s*([0-9]*\.?[0-9]+)\s*([A-Za-z]+)\s*$")
+_BARE_SIZE = re.compile(r"^[\s0-9.xX*]+$")
+
+
+def _size_example(size, pitch):
+    """'"size": "31x16mm"' from a diameter and a pitch written in one unit, else SIZE_EXAMPLE."""
+    m_size = _ONE_LENGTH_PARTS.match(size) if isinstance(size, str) else None
+    m_pitch = _ONE_LENGTH_PARTS.match(pitch) if isinstance(pitch, str) else None
+    if m_size and m_pitch and m_size.group(2) == m_pitch.group(2):
+        return '"size": "%sx%s%s"' % (m_size.group(1), m_pitch.group(1), m_size.group(2))
+    if m_size:
+        return '"size": "%sxPITCH%s" (e.g. "31x16mm", "10x4.5in")' % (m_size.group(1), m_size.group(2))
+    return SIZE_EXAMPLE
+
+
+def propeller_notes(document, given):
+    """Notes on how the propeller keys of a vehicle file were read (for the sheet), [] when plain.
+
+    document: the normalised vehicle (SI keys); given: normalise's {SI path: (path, text)}.
+    A size without a unit is read in inches, as the trade lists propellers (7x4 = 7 in x 4 in,
+    1 in = 0.0254 m, NIST SP 811); with ct and cp given they are used and the pitch is not (it
+    only feeds the blade element estimate that measured coefficients replace).
+    """
+    prop = document.get("propeller") if isinstance(document, dict) else None
+    if not isinstance(prop, dict):
+        return []
+    out = []
+    written = given.get("$.propeller.diameter_m")
+    if written and written[0] == "$.propeller.size" and isinstance(written[1], str) \
+            and _BARE_SIZE.match(written[1]):
+        out.append('$.propeller.size: "%s" has no unit: read as inches ("%sin"), as propellers are listed'
+                   % (written[1].strip(), written[1].strip()))
+    if "ct" in prop and "cp" in prop and "pitch_m" in prop:
+        where = given.get("$.propeller.pitch_m", ("$.propeller.pitch_m",))[0]
+        out.append("$.propeller: ct and cp are given, so they are used; the pitch from %s is not (it "
+                   "only feeds the estimate that measured coefficients replace)" % where)
+    return out
 
 
 def normalise(document, source):
@@ -91,9 +132,15 @@ def normalise(document, source):
             path = _json_path(block, "size")
             for key in ("diameter_m", "pitch_m", "diameter", "pitch"):
                 if key in node:
-                    raise InputError("%s: %s: give either the size or %s, not both"
-                                     % (source, path, _json_path(block, key)))
+                    raise InputError("%s: %s: the size and %s are both given; write the propeller one "
+                                     "way: %s (diameter x pitch, one unit), or %s" % (
+                                         source, path, _json_path(block, key),
+                                         _size_example(node["size"], node.get("pitch")), PARTS_EXAMPLE))
             text = node.pop("size")
+            if isinstance(text, str) and _ONE_LENGTH.match(text):
+                raise InputError("%s: %s: \"%s\" is only a diameter; a size needs the pitch too: %s, or %s"
+                                 % (source, path, text.strip(), _size_example(text, node.get("pitch")),
+                                    PARTS_EXAMPLE))
             diameter, pitch = parse_propeller_size(text, "%s: %s" % (source, path))
             node["diameter_m"], node["pitch_m"] = diameter, pitch
             given[_json_path(block, "diameter_m")] = (path, text)

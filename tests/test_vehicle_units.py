@@ -86,7 +86,7 @@ def test_size_and_blades_replace_ct_and_cp():
     ({"mass_kg": "1e999kg"}, ("$.mass_kg", "not a finite number")),
     ({"mass": "2kg"}, ("$.mass", "given twice", "$.mass_kg")),
     ({"propeller": {"size": "ten by four"}}, ("$.propeller.size", "DIAMETERxPITCH")),
-    ({"propeller__size": "10x4.5in"}, ("$.propeller.size", "either the size or")),
+    ({"propeller__size": "10x4.5in"}, ("$.propeller.size", "are both given; write the propeller one way")),
     ({"battery__capacity_Ah": "-5Ah"}, ("$.battery.capacity_Ah",)),
     ({"propeller__ct": None, "propeller__cp": None, "propeller__pitch_m": 2.5},
      ("$.propeller.pitch_m", "inches meant? (2.5 in = 0.0635 m)")),

@@ -57,6 +57,10 @@ def air(altitude, temperature, pressure, humidity, as_json):
     out = dict(res)
     out["altitude_m"] = altitude_m
     out["humidity_pct"] = humidity_pct
+    from estimator.vehicle import site_temperature_warning
+
+    note = site_temperature_warning(altitude_m, temperature_C)
+    out["warnings"] = [note] if note else []
     if as_json:
         click.echo(dumps(out))
         return
@@ -66,6 +70,10 @@ def air(altitude, temperature, pressure, humidity, as_json):
     click.echo("  pressure         %.0f Pa (%.1f hPa)" % (res["pressure_Pa"], res["pressure_Pa"] / 100.0))
     click.echo("  humidity         %.0f %% (vapour %.0f Pa)" % (humidity_pct, res["vapour_pressure_Pa"]))
     click.echo("  density altitude %.0f m" % res["density_altitude_m"])
+    for w in out["warnings"]:
+        from estimator.textwidth import wrap_line
+        for line in wrap_line("  ! " + w, indent=4):
+            click.echo(line)
 
 
 @click.command()
