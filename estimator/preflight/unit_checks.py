@@ -14,6 +14,7 @@ import re
 
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2
+from estimator.preflight.slip_diagnosis import whole_vehicle_slip, whole_vehicle_warning
 from estimator.vehicle import given_text
 # the typical ranges live with the vehicle file's unit reading (one home)
 from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, PACK_SPECIFIC_ENERGY_WH_KG
@@ -81,6 +82,10 @@ def _size_slip(vehicle, mass, count):
 def suspicious_values(vehicle):
     """Warnings (strings) for values of a checked vehicle that usually mean a unit slip.
 
+    When one key, corrected by a common slip, makes the whole vehicle plausible
+    (slip_diagnosis.whole_vehicle_slip), its warning replaces the pairwise ones below (which cannot
+    tell which of two keys is wrong), so the sheet names that key first.
+
     vehicle: dict from estimator.vehicle.check_vehicle (SI keys). Each warning starts with the
     JSON path and names the value as read (and as written, when the file gave a unit), why it
     is odd, and the unit or value that would make it ordinary.
@@ -147,6 +152,10 @@ def suspicious_values(vehicle):
                        % (hint or "check the capacity",
                           100 * share_lo, 100 * share_hi, PACK_SPECIFIC_ENERGY_WH_KG, usual[0], usual[1],
                           bat["cells"]))
+    found = whole_vehicle_slip(vehicle)
+    if found is not None:  # one key explains the whole vehicle: it goes first, the pairwise checks go
+        out = [whole_vehicle_warning(vehicle, found)]
+        capacity_odd = found["key"] == "$.battery.capacity_Ah"
     r_cell_ah = bat["resistance_ohm"] / bat["cells"] * bat["capacity_Ah"]
     if not capacity_odd and r_cell_ah > CELL_RESISTANCE_CAPACITY_MAX_OHM_AH:
         out.append("$.battery.resistance_ohm: %g ohm%s for a %d-cell %g Ah pack is %.0f times the "

@@ -1,0 +1,183 @@
+"""Which single key, corrected by a common slip, makes a whole vehicle plausible.
+
+A unit or decimal slip in one key (22 kg for 22 g, 2.6 kg for 0.26 kg, 31 in for 31 mm,
+6500 mAh for 650 mAh) shows up in several checks at once, and a check that compares two keys
+cannot say which of the two is wrong. So the vehicle is judged as a whole: four checks, each a
+band of ordinary values, and each candidate key is corrected by each common slip (1000 for the
+unit prefix, 10 for the decimal point, another length unit for a diameter) and judged again.
+The key whose correction brings every check into its band is named first; when several do,
+the one whose corrected vehicle sits nearest the middle of the bands. Nothing is said when the
+vehicle as read is ordinary, or when no single correction makes it so.
+
+The checks (sea-level standard air, 1.225 kg/m^3: the slips are factors of 10 and more):
+- disk loading m g / (N A) within DISK_LOADING_TYPICAL_N_M2 (common practice);
+- pack energy: its mass at PACK_SPECIFIC_ENERGY_WH_KG within PACK_MASS_SHARE_USUAL of the
+  all-up mass (common practice, from memory);
+- motor power: the ideal hover power per rotor, T^1.5 / sqrt(2 rho A) (momentum theory,
+  design notes sec. 3), at a figure of merit of FIGURE_OF_MERIT, at most the most a DC motor of
+  winding resistance R gives on the nominal pack voltage V, V^2 / (4 R) (back-EMF V / 2, the
+  maximum power transfer theorem);
+- motor speed: the hover speed at a typical static CT (T = CT rho n^2 D^4) at most the motor's
+  no-load speed Kv V.
+"""
+
+import math
+import re
+
+from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.core.momentum import disk_area_m2
+from estimator.units import plain_number
+from estimator.vehicle import given_text
+from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, PACK_SPECIFIC_ENERGY_WH_KG
+
+RHO = 1.225  # sea-level standard density [kg/m^3], US Standard Atmosphere 1976
+FIGURE_OF_MERIT = 0.5  # a small rotor's hover figure of merit, generous for this check [-] (from memory)
+TYPICAL_CT = 0.1  # a small propeller's static CT, n in rev/s (from memory)
+# slips per key: (factor applied to the value as read, words); 1 g = 1e-3 kg, 1 mAh = 1e-3 Ah
+_SLIPS = {
+    "$.mass_kg": ((1e-3, "the unit prefix: g, not kg"), (1e3, "the unit prefix: kg, not g"),
+                  (0.1, "a misplaced decimal point"), (10.0, "a misplaced decimal point")),
+    "$.battery.capacity_Ah": ((1e-3, "the unit prefix: mAh, not Ah"), (1e3, "the unit prefix: Ah, not mAh"),
+                              (0.1, "a misplaced decimal point"), (10.0, "a misplaced decimal point")),
+    "$.motor.kv_rpm_per_V": ((0.1, "a digit too many"), (10.0, "a digit short")),
+}
+# 1 in = 0.0254 m, 1 cm = 0.01 m, 1 mm = 0.001 m (NIST SP 811, exact)
+_LENGTH_UNITS = (("in", 0.0254), ("cm", 0.01), ("mm", 0.001), ("m", 1.0))
+# the diameter and the unit of a written size or diameter ("5.1x4.6cm", "31mm", "7x4")
+_WRITTEN_LENGTH = re.compile(r"^\s*([0-9]*\.?[0-9]+)\s*(?:[xX*]\s*[0-9]*\.?[0-9]+)?\s*([A-Za-z]*)\s*$")
+
+
+def _n(x):
+    return plain_number(x, 3, trim=True)
+
+
+def _facts(mass, count, diameter, bat, motor):
+    """The vehicle's numbers the checks read: {check: (value, band lo, band hi)}."""
+    thrust = mass * STANDARD_GRAVITY_M_S2 / count
+    area = disk_area_m2(diameter)
+    volts = bat["cells"] * bat["nominal_cell_V"]
+    energy_Wh = volts * bat["capacity_Ah"]
+    ideal_W = thrust ** 1.5 / math.sqrt(2.0 * RHO * area)
+    most_W = volts ** 2 / (4.0 * motor["resistance_ohm"])
+    hover_rpm = 60.0 * math.sqrt(thrust / (TYPICAL_CT * RHO * diameter ** 4))
+    top_rpm = motor["kv_rpm_per_V"] * volts
+    lo, hi = DISK_LOADING_TYPICAL_N_M2
+    return {
+        "disk loading": (thrust / area, lo, hi, "disk loading %s N/m^2 (small multirotors: %g..%g)"
+                         % (_n(thrust / area), lo, hi)),
+        "pack energy": (energy_Wh / PACK_SPECIFIC_ENERGY_WH_KG / mass,) + PACK_MASS_SHARE_USUAL
+        + ("a %s Wh pack weighs %s %% of it at %.0f Wh/kg (usual %g..%g %%)" % (
+            _n(energy_Wh), _n(100.0 * energy_Wh / PACK_SPECIFIC_ENERGY_WH_KG / mass), PACK_SPECIFIC_ENERGY_WH_KG,
+            100 * PACK_MASS_SHARE_USUAL[0], 100 * PACK_MASS_SHARE_USUAL[1]),),
+        "motor power": (ideal_W / FIGURE_OF_MERIT / most_W, 0.0, 1.0,
+                        "hover needs about %s W per motor, a %g ohm motor on %s V gives at most %s W"
+                        % (_n(ideal_W / FIGURE_OF_MERIT), motor["resistance_ohm"], _n(volts), _n(most_W))),
+        "motor speed": (hover_rpm / top_rpm, 0.0, 1.0, "hover needs about %s rpm, %g Kv on %s V "
+                        "turns at most %s rpm" % (_n(hover_rpm), motor["kv_rpm_per_V"], _n(volts), _n(top_rpm))),
+    }
+
+
+def _penalty(facts):
+    """Sum of log10 distances outside each band (0 when every check is in its band)."""
+    out = 0.0
+    for value, lo, hi, _ in facts.values():
+        if value > hi:
+            out += math.log10(value / hi)
+        elif lo > 0.0 and value < lo:
+            out += math.log10(lo / value)
+    return out
+
+
+def _off_centre(facts):
+    """How far the two two-sided bands' values sit from their middles (log10): tie-break."""
+    out = 0.0
+    for name in ("disk loading", "pack energy"):
+        value, lo, hi, _ = facts[name]
+        out += abs(math.log10(value / math.sqrt(lo * hi)))
+    return out
+
+
+def _candidates(vehicle):
+    """(path as written, SI key path, corrected value, shown text, why) for each slip to try."""
+    out = []
+    values = {"$.mass_kg": vehicle["mass_kg"], "$.battery.capacity_Ah": vehicle["battery"]["capacity_Ah"],
+              "$.motor.kv_rpm_per_V": vehicle["motor"]["kv_rpm_per_V"]}
+    units = {"$.mass_kg": "kg", "$.battery.capacity_Ah": "Ah", "$.motor.kv_rpm_per_V": "Kv"}
+    for path, slips in _SLIPS.items():
+        for factor, why in slips:
+            value = values[path] * factor
+            out.append((path, path, value, "%.4g %s" % (value, units[path]), why))
+    diameter = vehicle["propeller"]["diameter_m"]
+    written = given_text(vehicle, "$.propeller.diameter_m")
+    shown_path = "$.propeller.size" if isinstance(written, str) and "x" in written.lower() else "$.propeller.diameter_m"
+    number, written_unit = diameter, "m"  # a bare number on diameter_m is metres
+    m = _WRITTEN_LENGTH.match(written) if isinstance(written, str) else None
+    if m:
+        number, written_unit = float(m.group(1)), (m.group(2) or "in")  # a bare size is inches
+    for unit, scale in _LENGTH_UNITS:
+        if unit != written_unit:
+            out.append((shown_path, "$.propeller.diameter_m", number * scale,
+                        "%s m (%g %s)" % (_n(number * scale), number, unit), "%s, not %s" % (unit, written_unit)))
+    for factor in (0.1, 10.0):
+        out.append((shown_path, "$.propeller.diameter_m", diameter * factor, "%s m" % _n(diameter * factor),
+                    "a misplaced decimal point"))
+    return out
+
+
+def _judge(vehicle, key=None, value=None):
+    mass = value if key == "$.mass_kg" else vehicle["mass_kg"]
+    diameter = value if key == "$.propeller.diameter_m" else vehicle["propeller"]["diameter_m"]
+    bat = dict(vehicle["battery"])
+    motor = dict(vehicle["motor"])
+    if key == "$.battery.capacity_Ah":
+        bat["capacity_Ah"] = value
+    if key == "$.motor.kv_rpm_per_V":
+        motor["kv_rpm_per_V"] = value
+    return _facts(mass, vehicle["rotors"]["count"], diameter, bat, motor)
+
+
+def whole_vehicle_slip(vehicle):
+    """The key whose slip correction makes the whole vehicle plausible, or None (module docstring).
+
+    vehicle: checked vehicle dict (SI keys). Returns a dict: path (as the file wrote it), key
+    (SI JSON path), value (corrected, SI), shown (text), why (the slip), failing ([text] of the
+    checks the vehicle as read fails), others ([(path, shown)] other corrections that also make
+    it plausible, less typical).
+    """
+    facts = _judge(vehicle)
+    if _penalty(facts) == 0.0:
+        return None
+    fits = []
+    for path, key, value, shown, why in _candidates(vehicle):
+        if value <= 0.0:
+            continue
+        corrected = _judge(vehicle, key, value)
+        if _penalty(corrected) == 0.0:
+            fits.append((_off_centre(corrected), path, key, value, shown, why))
+    if not fits:
+        return None
+    fits.sort(key=lambda f: f[0])
+    _, path, key, value, shown, why = fits[0]
+    failing = [text for value_, lo, hi, text in facts.values() if value_ > hi or (lo > 0.0 and value_ < lo)]
+    others = []
+    for f in fits[1:]:
+        if f[1] != path and (f[1], f[4]) not in others:
+            others.append((f[1], f[4]))
+    return {"path": path, "key": key, "value": value, "shown": shown, "why": why,
+            "failing": failing, "others": others}
+
+
+def whole_vehicle_warning(vehicle, found):
+    """The sheet's words for whole_vehicle_slip's result (starts with the JSON path)."""
+    written = given_text(vehicle, found["key"])
+    as_read = {"$.mass_kg": "%g kg" % vehicle["mass_kg"],
+               "$.battery.capacity_Ah": "%g Ah" % vehicle["battery"]["capacity_Ah"],
+               "$.motor.kv_rpm_per_V": "%g Kv" % vehicle["motor"]["kv_rpm_per_V"],
+               "$.propeller.diameter_m": "%.3g m" % vehicle["propeller"]["diameter_m"]}[found["key"]]
+    text = ("%s: %s%s does not fit the rest of the vehicle (%s): %s meant (%s)? with it the disk "
+            "loading, the pack energy, the motor power and the motor speed all fall in ordinary ranges: "
+            "check this key first" % (found["path"], as_read, ' (written "%s")' % written if written else "",
+                           "; ".join(found["failing"]), found["shown"], found["why"]))
+    if found["others"]:
+        text += "; less likely: " + ", ".join("%s %s" % o for o in found["others"][:2])
+    return text
