@@ -244,8 +244,10 @@ def test_static_shows_what_good_sets_reach_beside_the_rule_of_thumb():
     assert "good small sets reach k 0.5..0.7: %s N (k 0.5) .. %s N (k 0.7)" % (
         plain_number(res["thrust_N_at_k_0_5"], 3), plain_number(res["thrust_N_at_k_0_7"], 3)) in text
     # power falls as k rises: low..high values, each with its own k (new-user trial 2 item 19)
-    small = " ".join(run("static", "--diameter", "3in", "--thrust", "0.24N").stdout.split())
-    back_small = run_json("static", "--diameter", "3in", "--thrust", "0.24N")
+    # (a 3-inch rotor is below the low-Reynolds threshold since trial 5 and gets the measured band
+    # instead: tests/test_static_small_rotor_trial5.py)
+    small = " ".join(run("static", "--diameter", "10in", "--thrust", "5N").stdout.split())
+    back_small = run_json("static", "--diameter", "10in", "--thrust", "5N")
     assert "%s W (k 0.7) .. %s W (k 0.5)" % (plain_number(back_small["power_W_at_k_0_7"], 3),
                                              plain_number(back_small["power_W_at_k_0_5"], 3)) in small
     assert "clamped stand" in text and "plane of the rotors" in text  # the bench caution stays

@@ -85,7 +85,8 @@ def air(altitude, temperature, pressure, humidity, as_json):
 @click.option("--thrust", type=Bounded("force", "thrust", positive=True), default=None,
               help="Thrust of one rotor (N, g, gf, kgf, lbf): gives power.")
 @click.option("--factor", "factor", type=Bounded("ratio", "factor", positive=True), default=None,
-              help="Static thrust factor k, 0 < k <= 1 (default 0.3, a conservative rule of thumb; "
+              help="Static thrust factor k, 0 < k <= 1 (default 0.3, a conservative rule of thumb "
+                   "except for small rotors, where the output gives the measured band; "
                    "good small sets reach 0.5..0.7).")
 @click.option("--density", type=Bounded("density", "density", positive=True), default=None,
               help="Air density (kg/m3); default: from --altitude etc.")

@@ -10,15 +10,17 @@ from-memory drag polar) does not model laminar separation, so below LOW_REYNOLDS
 of merit is optimistic. Run on NeuralFoil's NACA 4412 polars (tests/test_low_reynolds.py), the
 same blade element calculation gives about 0.9-1.1 x our FM at 75 %-radius Reynolds numbers
 of 1.7e5..7e4, 0.74 x at 5e4 and 0.5 x at 1.1e4 (a thick section, pessimistic for a thin
-propeller blade); measured micro rotors at 1e4..3e4 seldom pass a figure of merit of about 0.5.
-low_reynolds_propeller gives the propeller with CP raised to that figure of merit, so the
-sheet can say what the vehicle does if the estimate is that optimistic.
+propeller blade). low_reynolds_propeller gives the propeller with CP raised to the figure of merit
+measured small rotors reach (estimator/preflight/low_reynolds.py, the one home of the threshold,
+the figure and the words), so the sheet can say what the vehicle does if the estimate is that
+optimistic.
 """
 
 import math
 
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.propeller_bemt import propeller_coefficients
+from estimator.preflight.low_reynolds import LOW_REYNOLDS_75, fallback_figure_of_merit  # noqa: F401 (API)
 
 CHECKED_PITCH_RATIOS = (0.3, 0.8)  # pitch / diameter range of tests/test_propeller_bemt.py [-]
 PASSES = 3  # hover-speed passes; the Reynolds effect on CT is a few per cent, so 3 settle it
@@ -29,21 +31,10 @@ ESTIMATE_NOTE = ("propeller coefficients estimated from size and pitch (blade el
                  "measured propeller: a bench sweep (liftcal fit, then hover --params) replaces them")
 
 
-# Below about 7e4 laminar separation costs a blade section much of its lift-to-drag ratio
-# (Lissaman 1983, Annu. Rev. Fluid Mech. 15: 223-239; Mueller and DeLaurier 2003, Annu. Rev.
-# Fluid Mech. 35: 89-111; from memory), and it grows as the Reynolds number falls. Hover tests of
-# micro rotors whose blades ran at chord Reynolds numbers of about 1e4..3e4 measured figures of
-# merit of about 0.4-0.55, the best optimised blades near 0.6 (Bohorquez and Pines 2003, AHS
-# Forum 59; Hein and Chopra 2007, J. AHS 52(3): 254-262; Ramasamy, Johnson and Leishman 2008,
-# J. AHS 53(4): 412-428; from memory). Below LOW_REYNOLDS_75 (75 % radius) the sheet says what
-# the vehicle does at LOW_REYNOLDS_FIGURE_OF_MERIT if the estimate's is higher [-]
-LOW_REYNOLDS_75 = 3e4
-LOW_REYNOLDS_FIGURE_OF_MERIT = 0.5
-
-
 def low_reynolds_propeller(propeller, estimate):
-    """The estimated propeller with CP raised to a figure of merit of LOW_REYNOLDS_FIGURE_OF_MERIT
-    (same CT), or None when the estimate ran at or above LOW_REYNOLDS_75 or already at or below it.
+    """The estimated propeller with CP raised to the figure of merit measured small rotors reach at
+    its Reynolds number (low_reynolds.fallback_figure_of_merit; same CT), or None when the estimate
+    ran at or above LOW_REYNOLDS_75 or already at or below that figure.
 
     propeller: dict with ct, cp [-] (propeller convention); estimate: estimated_propeller's
     estimate dict (reynolds_75 [-], figure_of_merit [-]). FM = sqrt(2 / pi) CT^1.5 / CP (design
@@ -52,32 +43,12 @@ def low_reynolds_propeller(propeller, estimate):
     """
     if not estimate or estimate["reynolds_75"] >= LOW_REYNOLDS_75:
         return None
-    fm = estimate["figure_of_merit"]
-    if fm <= LOW_REYNOLDS_FIGURE_OF_MERIT:
+    fm, fallback = estimate["figure_of_merit"], fallback_figure_of_merit(estimate["reynolds_75"])
+    if fm <= fallback:
         return None
     out = dict(propeller)
-    out["cp"] = propeller["cp"] * fm / LOW_REYNOLDS_FIGURE_OF_MERIT
+    out["cp"] = propeller["cp"] * fm / fallback
     return out
-
-
-def low_reynolds_warning(check):
-    """The sheet's words for report["low_reynolds_check"] (report.py): the estimate likely
-    optimistic, and the hover power and flight time at the lower figure of merit."""
-    flight = check.get("flight_time_min")
-    if check.get("hover_command") is None:
-        return ("small rotor at a blade Reynolds number of %.0f (below about %.0f): the estimate's figure of "
-                "merit %.2f is likely optimistic, measured rotors there seldom pass about %.1f (from memory); "
-                "at %.1f this vehicle could not hover" % (
-                    check["reynolds_75"], LOW_REYNOLDS_75, check["figure_of_merit_estimated"],
-                    check["figure_of_merit_assumed"], check["figure_of_merit_assumed"]))
-    return ("small rotor at a blade Reynolds number of %.0f (below about %.0f): the estimate's figure of "
-            "merit %.2f is likely optimistic, measured rotors there seldom pass about %.1f (from memory); "
-            "at %.1f this vehicle would need %.3g W in hover instead of %.3g W and fly %s instead of %.1f min"
-            % (check["reynolds_75"], LOW_REYNOLDS_75, check["figure_of_merit_estimated"],
-               check["figure_of_merit_assumed"], check["figure_of_merit_assumed"], check["hover_power_W"],
-               check["estimate_hover_power_W"],
-               "about %.1f min" % flight if flight is not None else "not at all (it could not hover)",
-               check["estimate_flight_time_min"]))
 
 
 _CACHE = {}  # (diameter, pitch, blades, thrust, rho, mu) -> (ct, cp, estimate); compare repeats them

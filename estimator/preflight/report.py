@@ -13,8 +13,8 @@ from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_
 from estimator.cautions import cautions
 from estimator.textwidth import fit_width
 from estimator.preflight.pack import pack_in_the_air, pack_keys, pack_temperature_text
-from estimator.preflight.propeller_estimate import (LOW_REYNOLDS_FIGURE_OF_MERIT, estimated_propeller, low_reynolds_propeller,
-                                                    low_reynolds_warning)
+from estimator.preflight.low_reynolds import fallback_figure_of_merit, hover_warning as low_reynolds_warning
+from estimator.preflight.propeller_estimate import estimated_propeller, low_reynolds_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
 from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, REACHABLE_MARK, beside, judged_thrust_to_weight, judged_thrust_to_weight_text, full_command_sag, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num, SIG3)
@@ -141,14 +141,16 @@ def _report(vehicle, params=None):
     report["low_reynolds_check"] = low_re
     report["suspect_keys"] = slip_keys(checks)
     report["warnings"] = (checks + assumed_warnings(vehicle) + ([estimate["note"]] if estimate else [])
-                          + ([low_reynolds_warning(low_re)] if low_re and est["hover_command"] is not None
+                          + ([low_reynolds_warning(low_re, propeller["diameter_m"])]
+                             if low_re and est["hover_command"] is not None
                              else []) + margin_warnings(report))
     report["cautions"] = list(CAUTIONS)
     return report
 
 
 def _low_reynolds_check(vehicle, propeller, estimate, est, count, layout, rho, battery, esc_eff):
-    """The hover at LOW_REYNOLDS_FIGURE_OF_MERIT for an estimated propeller at a low Reynolds
+    """The hover at the measured small-rotor figure of merit (low_reynolds.fallback_figure_of_merit)
+    for an estimated propeller at a low Reynolds
     number (propeller_estimate.low_reynolds_propeller), or None: reynolds_75 [-],
     figure_of_merit_estimated / _assumed [-], cp [-], hover_command [-], hover_power_W [W],
     hover_current_A [A], flight_time_min [min] (None when it cannot hover), thrust_to_weight [-],
@@ -158,7 +160,7 @@ def _low_reynolds_check(vehicle, propeller, estimate, est, count, layout, rho, b
         return None
     low = hover_estimate(vehicle["mass_kg"], count, layout, rho, vehicle["motor"], lower, battery, esc_eff)
     return {"reynolds_75": estimate["reynolds_75"], "figure_of_merit_estimated": estimate["figure_of_merit"],
-            "figure_of_merit_assumed": LOW_REYNOLDS_FIGURE_OF_MERIT, "cp": lower["cp"],
+            "figure_of_merit_assumed": fallback_figure_of_merit(estimate["reynolds_75"]), "cp": lower["cp"],
             "hover_command": low["hover_command"], "hover_power_W": low["hover_power_W"],
             "hover_current_A": low["hover_current_A"], "flight_time_min": low["flight_time_min"],
             "thrust_to_weight": low["thrust_to_weight"], "estimate_hover_power_W": est["hover_power_W"],
@@ -282,6 +284,11 @@ def format_sheet(report):
         if ended:
             lines.append("   about %s of hover from a full pack, ended by %s" % (
                 _num(report.get("flight_time_min"), "%.1f", "min"), ENDED_BY_WORDS.get(ended, ended)))
+            low = report.get("low_reynolds_check") or {}
+            if low.get("hover_command") is not None:
+                lines.append("   SMALL ROTOR: about %s at the figure of merit %.2f that measured rotors of "
+                             "this size reach (see below)" % (_num(low.get("flight_time_min"), "%.1f", "min",
+                                                                  none="no hover"), low["figure_of_merit_assumed"]))
             lines.append("   (the usable share alone, %s at the nominal-pack hover current, gives %s)" % (
                 _num(report.get("usable_Ah"), "%.2f", "Ah"),
                 _num(report.get("flight_time_usable_share_min"), "%.1f", "min")))

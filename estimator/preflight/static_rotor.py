@@ -7,10 +7,12 @@ slipstream and disk loading. The command only reads options and prints.
 
 from estimator.cautions import cautions
 from estimator.core import momentum
+from estimator.preflight.low_reynolds import static_note
 from estimator.units import plain_number
 
 # common practice rule of thumb for small electric propeller sets (design notes sec. 3a):
-# conservative, not a value to expect
+# conservative, not a value to expect, for rotors above the low-Reynolds range; for smaller ones
+# it is typical or optimistic (estimator/preflight/low_reynolds.py says so, with the band)
 DEFAULT_STATIC_FACTOR = 0.3
 # what good small sets reach (design notes sec. 3a, common practice): shown beside the rule of thumb
 GOOD_SET_FACTORS = (0.5, 0.7)
@@ -49,6 +51,7 @@ def static_rotor(diameter_m, density_kg_m3, factor=None, power_W=None, thrust_N=
             out["power_W_at_k_" + factor_tag(good)] = momentum.power_from_thrust_W(
                 thrust_N, good, density_kg_m3, area)
     thrust = out["thrust_N"]
+    out["low_reynolds"] = static_note(thrust, diameter_m, density_kg_m3)
     out["induced_velocity_m_s"] = momentum.induced_velocity_m_s(thrust, density_kg_m3, area)
     out["slipstream_velocity_m_s"] = 2.0 * out["induced_velocity_m_s"]
     out["disk_loading_N_m2"] = momentum.disk_loading_N_m2(thrust, area)
@@ -104,11 +107,22 @@ def format_static(out, power_given):
         lines.append("  %s N of thrust needs %s W in (ideal actuator disk: %s W)"
                      % tuple(plain_number(out[k], 3, trim=True) for k in ("thrust_N", "power_W", "ideal_power_W")))
         key, unit = "power_W_at_k_", "W"
-    if default:
+    small = out.get("low_reynolds")
+    if small:
+        # a small rotor: the band measured small sets reach, with what it gives (low_reynolds.py)
+        k_lo, k_hi = small["static_factor_band"]
+        power = not power_given
+        at = [momentum.power_from_thrust_W(out["thrust_N"], k, out["density_kg_m3"], out["disk_area_m2"]) if power
+              else momentum.thrust_from_power_N(out["power_W"], k, out["density_kg_m3"], out["disk_area_m2"])
+              for k in (k_lo, k_hi)]
+        lines.append("  ! " + small["text"])
+        lines.append("  at k %.2f: %s %s; at k %.2f: %s %s" % (k_lo, plain_number(at[0], 3, trim=True), unit, k_hi,
+                                                              plain_number(at[1], 3, trim=True), unit))
+    elif default:
         # low..high values, each with the k that gives it (power falls as k rises)
         (a, ka), (b, kb) = sorted((out[key + factor_tag(k)], k) for k in (lo, hi))
         lines.append("  good small sets reach k %.1f..%.1f: %s %s (k %.1f) .. %s %s (k %.1f); k = 0.3 "
-                     "is a conservative rule of thumb, common practice"
+                     "is a conservative rule of thumb above the low-Reynolds range, common practice"
                      % (lo, hi, plain_number(a, 3), unit, ka, plain_number(b, 3), unit, kb))
     lines.append("  induced velocity %s m/s, slipstream %s m/s, disk loading %s N/m^2"
                  % tuple(plain_number(out[k], 3) for k in ("induced_velocity_m_s", "slipstream_velocity_m_s",
