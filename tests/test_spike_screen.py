@@ -10,7 +10,7 @@ dropped once the scale follows the noise at each thrust.
 
 import numpy as np
 
-from estimator.bench.levels import command_levels
+from estimator.bench.levels import command_levels, row_levels
 
 
 def _sweep(rng, spikes=0, reps=None):
@@ -59,7 +59,7 @@ def test_randomised_honest_sweeps_lose_almost_no_rows_and_spikes_are_caught():
         u, v, t, p, bad, sigma, truth = _sweep(rng, spikes=2, reps=3)
         lv = command_levels(u, v, t, p)
         flagged = lv["thrust_spike"] | lv["power_spike"]
-        level = lv["row_level"]
+        level = row_levels(lv)
         # a spike can be judged when it is alone in its level (two in a level of three
         # outvote the honest row) and 10 noise sigmas from the truth
         alone = np.array([np.count_nonzero(bad & (level == level[i])) == 1 for i in range(u.size)])
@@ -112,7 +112,7 @@ def test_a_long_ramp_is_screened_row_by_row_and_merged_for_the_fits():
     assert lv["count"].sum() == honest.sum()
     # each merged level's mean thrust is the mean of the noiseless thrust of its rows (the
     # model is curved within a level, so compare with that, not with T(mean command))
-    level = lv["row_level"]
+    level = row_levels(lv)
     keep = ~(lv["thrust_spike"] | lv["power_spike"])
     expected = np.bincount(level[keep], weights=truth[keep]) / lv["count"]
     sigma = (0.01 + 0.005 * expected) / np.sqrt(lv["count"])

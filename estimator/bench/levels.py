@@ -1,24 +1,22 @@
 """Bench rows gathered per command level and supply: the fits iterate over levels, not rows.
 
 A level is the rows logged at one command step (command rounded to LEVEL_STEP) and one
-supply (bus voltage in a band VOLTAGE_BAND x the sweep's lowest voltage wide). Each level keeps its mean
-command, voltage, thrust and power and its row count; rows far from their own level's mean
-(a load-cell knock, a current glitch) are counted as spikes and left out of the mean,
-judged only in levels of at least three rows (two rows cannot say which one is wrong). The
-grouping works over integer keys (numpy.add.at, as a bincount): linear in the rows, no
-sort. The passes over the rows go BLOCK_ROWS rows at a time, so that each block's steps
-run while it stays in the processor's cache, and keep no full-length temporaries beyond
-the level number of each row.
+supply (bus voltage in a band row_sums.VOLTAGE_BAND x the sweep's lowest voltage wide). Each
+level keeps its mean command, voltage, thrust and power and its row count; rows far from
+their own level's mean (a load-cell knock, a current glitch) are counted as spikes and left
+out of the mean, judged only in levels of at least three rows (two rows cannot say which one
+is wrong). The grouping works over integer keys (estimator.bench.row_sums: sums in row
+order, in blocks that stay in cache): linear in the rows, no sort.
 """
 
 import math
 
 import numpy as np
 
+from estimator.bench import row_sums
+
 # command step of a level [-]: 0.001 is a 1 us step of a 1000..2000 us pulse
 LEVEL_STEP = 0.001
-# width of a supply band as a share of the sweep's lowest bus voltage [-]: 1 %
-VOLTAGE_BAND = 0.01
 # more levels than this (a ramp logged at every command) are merged by widening the command
 # step, up to MAX_LEVEL_STEP: the fits' cost follows the levels, not the rows [-]
 MAX_LEVELS = 200
@@ -44,9 +42,6 @@ SMALL_LEVEL = 20
 SCALE_ROWS = 10000
 # rows of the systematic subsample that tells a ramp from a stepped sweep and sizes its levels [-]
 WIDTH_ROWS = 20000
-# rows per block of the passes over the rows: the arrays a block touches (a few columns of
-# 8 bytes, 32768 rows) stay inside a processor core's own (L2) cache between the steps [-]
-BLOCK_ROWS = 32768
 # the thrust noise profile: at most this many thrust bins, each of at least NOISE_BIN_ROWS
 # rows of turning levels; 12 rows let two spikes in one bin (six spoiled deviations) mask
 # each other, 24 coarsen the profile: measured by benchmarks/spike_screen.py [-]
@@ -105,85 +100,6 @@ def _stable_order(x):
     return np.argsort(ranks)
 
 
-def _bands(v, v_lo, v_hi, out=None):
-    """(supply band number of each voltage v [V] (whole numbers as floats), number of
-    bands) for a sweep whose bus voltage spans v_lo..v_hi [V] (v_lo > 0); out: an array
-    for the band numbers (else a new one)."""
-    per_volt = 1.0 / (VOLTAGE_BAND * v_lo)  # band k holds the voltages nearest (k + 100) % of v_lo
-    bands = np.multiply(v, per_volt, out=out)
-    bands -= 1.0 / VOLTAGE_BAND - 0.5
-    np.trunc(bands, out=bands)
-    return bands, int(v_hi * per_volt - 1.0 / VOLTAGE_BAND + 0.5) + 1
-
-
-def _blocks(rows):
-    """(start, stop) of the blocks of BLOCK_ROWS rows that cover ``rows`` rows."""
-    return [(start, min(start + BLOCK_ROWS, rows)) for start in range(0, rows, BLOCK_ROWS)]
-
-
-def _level_sums(u, v, t, p, width, v_lo, v_hi):
-    """Level of every row at command step ``width`` [-] (v_lo..v_hi: the voltage span [V])
-    and the sums of the rows per level: (dense level number of each row, in command order;
-    rows per level; command step index of each level; supply band of each level; [sums of
-    u, v, t, p per level]).
-
-    A row's key is its command step index x the number of bands + its supply band. Two
-    passes over the rows, BLOCK_ROWS at a time: the keys and the rows per key, then the
-    dense level numbers and the sums. Each block's steps run while it stays in the
-    processor's cache, and numpy.add.at adds the rows in their order as numpy.bincount
-    does: the sums are the same to the last bit."""
-    n_bands = _bands(np.empty(0), v_lo, v_hi)[1]
-    size = (int(round(1.0 / width)) + 2) * n_bands  # commands 0..1 (grown for larger ones)
-    count = np.zeros(size)
-    key = np.empty(u.size, dtype=np.intp)
-    step, band = np.empty(min(BLOCK_ROWS, u.size)), np.empty(min(BLOCK_ROWS, u.size))
-    for start, stop in _blocks(u.size):
-        k, b = step[:stop - start], band[:stop - start]
-        np.multiply(u[start:stop], 1.0 / width, out=k)
-        np.rint(k, out=k)
-        _bands(v[start:stop], v_lo, v_hi, out=b)
-        k *= n_bands
-        k += b
-        lo, hi = float(np.min(k)), float(np.max(k))
-        if not lo >= 0.0:
-            raise ValueError("a command below 0, a voltage below the sweep's lowest, or a NaN reached "
-                             "the command levels")
-        if hi >= size:
-            count = np.r_[count, np.zeros(int(hi) + 1 - size)]
-            size = count.size
-        rows = key[start:stop]
-        np.copyto(rows, k, casting="unsafe")  # whole numbers: the float -> integer cast is exact
-        np.add.at(count, rows, 1.0)
-    raw = np.flatnonzero(count)
-    index = np.cumsum(count > 0) - 1
-    sums = [np.zeros(raw.size) for _ in range(4)]
-    dense = np.empty(u.size, dtype=np.intp)
-    for start, stop in _blocks(u.size):
-        rows = dense[start:stop]
-        np.take(index, key[start:stop], out=rows, mode="wrap")  # every key is in range
-        for total, x in zip(sums, (u, v, t, p)):
-            np.add.at(total, rows, x[start:stop])
-    return dense, count[raw], raw // n_bands, raw % n_bands, sums
-
-
-def _deviation_sums(key, n_keys, columns, means):
-    """For each column x (with its level means): the sum and the largest of the squared
-    deviations x - its level's mean, per level. One pass over the rows, BLOCK_ROWS at a
-    time (as _level_sums); the squared deviations of the rows are not kept (_screen
-    makes those of the few rows it needs again, by the same operations)."""
-    out = [(np.zeros(n_keys), np.zeros(n_keys)) for _ in columns]
-    d = np.empty(min(BLOCK_ROWS, key.size))
-    for start, stop in _blocks(key.size):
-        rows, dev = key[start:stop], d[:stop - start]
-        for x, mean, (total, largest) in zip(columns, means, out):
-            np.take(mean, rows, out=dev, mode="wrap")  # every level number is in range
-            np.subtract(x[start:stop], dev, out=dev)
-            np.square(dev, out=dev)
-            np.add.at(total, rows, dev)
-            np.maximum.at(largest, rows, dev)
-    return out
-
-
 def _screen_width(u, v, v_lo):
     """Command step [-] of the levels the spike screen judges, and whether the sweep is a ramp.
 
@@ -193,7 +109,7 @@ def _screen_width(u, v, v_lo):
     LEVEL_STEP, where a level's own thrust trend is far below the noise, and its levels are
     merged for the fits afterwards (_merge). Chosen on a systematic subsample."""
     step = max(1, u.size // WIDTH_ROWS)
-    vi = _bands(v[::step], v_lo, 0.0)[0]
+    vi = row_sums.bands(v[::step], v_lo, 0.0)[0]
     width = LEVEL_STEP
     ramp = np.unique(np.rint(u[::step] / width)).size > RAMP_COMMANDS
     for _ in range(6 if ramp else 0):
@@ -231,19 +147,25 @@ def _median_recheck(k, xs, limit, ref):
     return np.abs(xs - med[k]) / ref[k] > limit
 
 
-def _screen(key, n_keys, count, x, dev2_of, dev2_max, ref, limit, allowed):
+def _bound2(ref, limit, allowed):
+    """The squared bound of each level's squared deviations: (limit * ref)^2 where allowed."""
+    return np.square(np.where(allowed, limit * ref, np.inf))
+
+
+def _screen(key, n_keys, count, x, dev2_of, dev2_max, ref, limit, allowed, rows_of):
     """Rows far from their level: squared deviation > (limit * ref)^2 (the square of x minus
     the level's mean and in-level trend: dev2_of(rows) gives it for the rows asked,
     dev2_max its largest per level; ref: per level), then in small levels (one spike moves
     the mean as far as its neighbours) judged again against the level's median. Only the
-    rows of levels whose largest squared deviation exceeds their bound are judged: no row
-    of another level can. Returns (the bool mask, the flagged rows' indices in order)."""
-    bound2 = np.square(np.where(allowed, limit * ref, np.inf))
+    rows of levels whose largest squared deviation exceeds their bound are judged (no row
+    of another level can); rows_of(levels) gives the rows of the levels marked. Returns
+    (the bool mask, the flagged rows' indices in order)."""
+    bound2 = _bound2(ref, limit, allowed)
     flagged = np.zeros(key.size, dtype=bool)
     beyond = dev2_max > bound2
     if not np.any(beyond):
         return flagged, np.flatnonzero(beyond)
-    rows = np.flatnonzero(np.take(beyond, key))
+    rows = rows_of(beyond)
     flagged[rows[dev2_of(rows) > bound2[key[rows]]]] = True
     hits = np.flatnonzero(flagged)
     if hits.size == 0:
@@ -252,7 +174,7 @@ def _screen(key, n_keys, count, x, dev2_of, dev2_max, ref, limit, allowed):
     small_levels = np.zeros(n_keys, dtype=bool)
     small_levels[k[count[k] < SMALL_LEVEL]] = True
     if np.any(small_levels):
-        rows = np.flatnonzero(np.take(small_levels, key))
+        rows = rows_of(small_levels)
         k = key[rows]
         again = _median_recheck(k, x[rows], limit, ref) & allowed[k]
         flagged[rows] = again
@@ -260,12 +182,18 @@ def _screen(key, n_keys, count, x, dev2_of, dev2_max, ref, limit, allowed):
     return flagged, hits
 
 
+def row_levels(levels):
+    """The output level index of every row of a command_levels result."""
+    return np.take(levels["key_level"], levels["row_key"])
+
+
 def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     """Gather rows (SI arrays of equal length) into levels (module docstring).
 
     voltage_span_V: (lowest, highest) bus voltage of the rows [V] when the caller knows it.
     Returns dict: command, voltage_V, thrust_N, power_W (level means of the rows kept),
-    count (rows kept per level), row_level (level index of every row), thrust_spike,
+    count (rows kept per level), row_key and key_level (the level index of every row is
+    key_level[row_key]: row_levels(levels)), thrust_spike,
     power_spike (bool per row: far from its level; power judged relative to the level's
     power and only where the rotor turns, i.e. the level's thrust is above 2 % of the
     largest level thrust; only in levels of three rows or more).
@@ -279,7 +207,7 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     v_lo, v_hi = voltage_span_V  # bus voltage span [V]
     width, ramp = _screen_width(u, v, v_lo)
     widened = width > LEVEL_STEP
-    key, count, cmd_index, band, sums = _level_sums(u, v, t, p, width, v_lo, v_hi)
+    key, count, cmd_index, band, sums = row_sums.level_sums(u, v, t, p, width, v_lo, v_hi)
     n_keys = count.size
 
     def level_sums(x):
@@ -325,7 +253,7 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
             return dp[rows]
     else:
         dt_sub, dp_sub = t[::step] - t_m[ks], p[::step] - p_m[ks]
-        (sq_t, max_t), (sq_p, max_p) = _deviation_sums(key, n_keys, (t, p), (t_m, p_m))
+        (sq_t, max_t), (sq_p, max_p) = row_sums.deviation_sums(key, n_keys, (t, p), (t_m, p_m))
 
         def dt2_of(rows):
             return np.square(t[rows] - t_m[key[rows]])
@@ -358,7 +286,20 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
         ms_p = sq_p / safe
         scale_t[own] = np.maximum(np.sqrt(ms_t[own]), 1e-6 * t_top)
         scale_p[own] = np.maximum(np.sqrt(ms_p[own]), 1e-6 * ref_p[own])
-    thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big)
+    spinning = big & (np.abs(t_m) > 0.02 * t_top)
+    scanned = []  # the levels of the last look for their rows, and those rows
+
+    def rows_of(levels):  # the rows of the levels marked, in order: one pass serves the screens
+        if scanned and not np.any(levels & ~scanned[0]):
+            return scanned[1][np.take(levels, key[scanned[1]])]
+        rows = np.flatnonzero(np.take(levels, key))
+        scanned[:] = [levels, rows]
+        return rows
+
+    either = (max_t > _bound2(scale_t, SPIKE_SIGMAS, big)) | (max_p > _bound2(scale_p, SPIKE_SIGMAS, spinning))
+    if np.any(either):
+        rows_of(either)
+    thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big, rows_of)
     if profile_t is not None and t_hits.size:
         # a spike moves its whole level's deviations: judge again with a profile made only
         # of levels without a flagged row; every level takes
@@ -370,9 +311,21 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
         again = noise_profile(*(x[clean] for x in sub))
         if again is not None:
             scale_t = np.maximum(np.interp(np.abs(t_m), *again), 1e-6 * t_top)
-            thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big)
-    spinning = big & (np.abs(t_m) > 0.02 * t_top)
-    power_spike, p_hits = _screen(key, n_keys, count, p, dp2_of, max_p, scale_p, SPIKE_SIGMAS, spinning)
+            spinning = big & (np.abs(t_m) > 0.02 * t_top)
+    scanned = []  # the levels of the last look for their rows, and those rows
+
+    def rows_of(levels):  # the rows of the levels marked, in order: one pass serves the screens
+        if scanned and not np.any(levels & ~scanned[0]):
+            return scanned[1][np.take(levels, key[scanned[1]])]
+        rows = np.flatnonzero(np.take(levels, key))
+        scanned[:] = [levels, rows]
+        return rows
+
+    either = (max_t > _bound2(scale_t, SPIKE_SIGMAS, big)) | (max_p > _bound2(scale_p, SPIKE_SIGMAS, spinning))
+    if np.any(either):
+        rows_of(either)
+    thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big, rows_of)
+    power_spike, p_hits = _screen(key, n_keys, count, p, dp2_of, max_p, scale_p, SPIKE_SIGMAS, spinning, rows_of)
     out = np.union1d(t_hits, p_hits)  # the rows of either kind of spike
     if out.size:
         k = key[out]
@@ -391,5 +344,5 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     if merged is not None:
         out_level = out_level[merged]
     return {"command": u_m[has], "voltage_V": v_m[has], "thrust_N": t_m[has], "power_W": p_m[has],
-            "count": count[has], "row_level": to_rows(out_level),
+            "count": count[has], "row_key": key, "key_level": out_level,
             "thrust_spike": thrust_spike, "power_spike": power_spike}

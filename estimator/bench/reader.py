@@ -69,17 +69,6 @@ COMMAND_OUTSIDE_SHARE = 0.05
 # of at most about this many rows: they judge factors of 2 and 1000, far coarser than its
 # sampling error [-]
 MEDIAN_ROWS = 20000
-# rows per block of the copy out of the parsed table: 32768 rows of a few 8-byte columns,
-# about 1 MiB, stay in a processor core's own (L2) cache [-]
-BLOCK_ROWS = 32768
-
-
-def _sha256_and_commas(path, count=True):
-    """(SHA-256 of the file (hex), number of commas in it): one read of the file; with
-    count=False only the hash."""
-    from estimator.outputs import file_sha256, file_sha256_counting
-
-    return file_sha256_counting(path, ord(",")) if count else file_sha256(path)
 
 
 def _head_commas(path, skip):
@@ -143,9 +132,10 @@ def _slow_parse(path, skip, ncols, wanted=None):
 _LOADTXT = {"delimiter": ",", "comments": "#", "ndmin": 2, "dtype": float, "encoding": "utf-8"}
 
 
-def _load_numbers(path, skip, ncols, wanted, to_si):
-    """(one contiguous array per column of ``wanted``, in that order and in SI units; the
-    (min, max) of each when every value is finite, else None; the file's SHA-256).
+def _load_numbers(path, skip, ncols, wanted, to_si, kept=None):
+    """(one contiguous array per column of ``wanted`` in SI, in that order (only the first
+    ``kept`` when all are finite); the (min, max) of each if all are finite, else None; the
+    file's SHA-256).
 
     to_si: (scale, offset) of each wanted column (UNITS). One numpy.loadtxt. When the file
     holds other columns too, it parses only ``wanted`` and the last column: a row short of a
@@ -160,12 +150,10 @@ def _load_numbers(path, skip, ncols, wanted, to_si):
     import warnings
 
     import numpy as np
+    from estimator.outputs import file_sha256, file_sha256_counting
 
-    every = sorted(wanted) == list(range(ncols))
-    if every:
-        digest, commas = _sha256_and_commas(path, count=False), None
-    else:
-        digest, commas = _sha256_and_commas(path)
+    every = sorted(wanted) == list(range(ncols))  # one read hashes the file (and counts its commas)
+    digest, commas = (file_sha256(path), None) if every else file_sha256_counting(path, ord(","))
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("error")
@@ -173,7 +161,7 @@ def _load_numbers(path, skip, ncols, wanted, to_si):
             table = np.loadtxt(path, skiprows=skip, usecols=read, **_LOADTXT)
         if (table.shape[1] == (ncols if every else len(read))
                 and (every or commas - _head_commas(path, skip) == table.shape[0] * (ncols - 1))):
-            cols, extremes = _si_columns(table, wanted if every else range(len(wanted)), to_si)
+            cols, extremes = _si_columns(table, wanted if every else range(len(wanted)), to_si, kept)
             del table
             if extremes is not None:
                 return cols, extremes, digest
@@ -183,18 +171,19 @@ def _load_numbers(path, skip, ncols, wanted, to_si):
     return cols, extremes, digest
 
 
-def _si_columns(table, at, to_si):
-    """(the table's columns ``at`` in SI, value * scale + offset, each a contiguous array;
-    the (min, max) of each, or None when a column is empty or holds a NaN or an infinity).
-
-    One pass over the table, BLOCK_ROWS rows at a time: while a block stays in the
-    processor's cache its columns are scaled into their arrays and scanned for their
-    extremes (whole columns would cost a read of the table per column and of the column
-    per min and max). The same operations on the same values: identical results."""
+def _si_columns(table, at, to_si, kept=None):
+    """(the first ``kept`` (default all) of the table's columns ``at`` in SI, value * scale +
+    offset, each a contiguous array; the (min, max) of every one of ``at``, or None when one
+    is empty or holds a NaN or an infinity). One pass, BLOCK_ROWS rows at a time: while a
+    block is in cache its columns are scaled and scanned (whole columns would read the
+    table once per column and each column once per min and max); identical results."""
     import numpy as np
+    from estimator.bench.row_sums import BLOCK_ROWS
 
     rows = table.shape[0]
-    out = [np.empty(rows) for _ in at]  # not one 2-D array: mapped afresh on every read
+    kept = len(at) if kept is None else kept
+    out = [np.empty(rows) for _ in range(kept)]  # not one 2-D array: mapped afresh on every read
+    scratch = np.empty(min(rows, BLOCK_ROWS))  # a block of a column only checked
     if not rows:
         return out, None
     starts = range(0, rows, BLOCK_ROWS)
@@ -203,7 +192,7 @@ def _si_columns(table, at, to_si):
         for b, start in enumerate(starts):
             part = table[start:start + BLOCK_ROWS]
             for j, (k, (scale, offset)) in enumerate(zip(at, to_si)):
-                col = out[j][start:start + BLOCK_ROWS]
+                col = out[j][start:start + BLOCK_ROWS] if j < kept else scratch[:part.shape[0]]
                 if scale != 1.0:
                     np.multiply(part[:, k], scale, out=col)
                 else:
@@ -237,9 +226,10 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     extra = [name for name in OPTIONAL if name in columns]  # read and checked, not used
     cols, extremes, digest = _load_numbers(
         path, header_line, ncols, [columns[name][0] for name in REQUIRED + tuple(extra)],
-        [UNITS[name][units[name]] for name in REQUIRED] + [OPTIONAL[n][columns[n][1]] for n in extra])
+        [UNITS[name][units[name]] for name in REQUIRED] + [OPTIONAL[n][columns[n][1]] for n in extra],
+        kept=len(REQUIRED))
     data = {name: col for name, col in zip(REQUIRED, cols)}
-    data["optional"] = cols[len(REQUIRED):]
+    data["optional"] = cols[len(REQUIRED):]  # none when every value is finite: nothing to drop
     extremes = extremes[:len(REQUIRED)] if extremes is not None else None
     data.update({name + "_unit": units[name] for name in REQUIRED})
     del cols
@@ -254,9 +244,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     # every row check, so no row is dropped and no mask is needed
     clean = extremes is not None
     extremes = [x for pair in extremes for x in pair] if clean else None  # u, v, i, t: (min, max)
-    v_med = None
-    if clean:
-        v_med = float(np.median(v[:: max(1, v.size // MEDIAN_ROWS)]))
+    v_med = float(np.median(v[:: max(1, v.size // MEDIAN_ROWS)])) if clean else None
     _check_units(path, data, v_med, extremes if clean else None)
     if clean:
         u_lo, u_hi, v_lo, v_hi, i_lo, i_hi, t_lo, t_hi = extremes
@@ -265,8 +253,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
                  and v_lo >= 0.5 * v_med and i_lo >= -tol_i and i_hi <= MAX_CURRENT_A
                  and max(abs(t_lo), abs(t_hi)) <= MAX_THRUST_N)
     if clean:
-        rejected = {}
-        n_keep = rows_total
+        rejected, n_keep = {}, rows_total
         power = v * i  # electrical (bus) power [W]; the current column itself is not kept
         v_span = (v_lo, v_hi)
         del i, data

@@ -119,14 +119,14 @@ def _model_spikes(lv, theta, u, v, t, p):
     bad = (np.abs(r_row) > SPIKE_SIGMAS * row_scale) & (n <= 2)
     if not np.any(bad):
         return False
-    rows = np.flatnonzero(bad[lv["row_level"]])
+    rows = np.flatnonzero(np.take(bad[lv["key_level"]], lv["row_key"]))
     r_rows = rotor_arrays(theta, u[rows], v[rows])[0] - t[rows]
-    rows = rows[np.abs(r_rows) > SPIKE_SIGMAS * row_scale[lv["row_level"][rows]]]
+    rows = rows[np.abs(r_rows) > SPIKE_SIGMAS * row_scale[lv["key_level"][lv["row_key"][rows]]]]
     rows = rows[~lv["thrust_spike"][rows]]
     if rows.size == 0:
         return False
     lv["thrust_spike"][rows] = True
-    k = lv["row_level"][rows]
+    k = lv["key_level"][lv["row_key"][rows]]
     count = n - np.bincount(k, minlength=n.size)
     for name, x in (("command", u), ("voltage_V", v), ("thrust_N", t), ("power_W", p)):
         lv[name] = (lv[name] * n - np.bincount(k, weights=x[rows], minlength=n.size)) / np.maximum(count, 1.0)
@@ -134,7 +134,7 @@ def _model_spikes(lv, theta, u, v, t, p):
     for name in ("command", "voltage_V", "thrust_N", "power_W"):
         lv[name] = lv[name][keep]
     lv["count"] = count[keep]
-    lv["row_level"] = (np.cumsum(keep) - 1)[lv["row_level"]]
+    lv["key_level"] = (np.cumsum(keep) - 1)[lv["key_level"]]
     lv["current_A"] = lv["power_W"] / lv["voltage_V"]
     return True
 
