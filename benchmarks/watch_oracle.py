@@ -10,6 +10,7 @@ TAUS_S = (0.03, 0.06, 0.12, 0.25, 0.5, 1.0, 2.0, 5.0)   # command filters' time 
 GRID_S = 0.005                  # grid of the filters [s] (the simulator's physics step)
 SETTLE_S = 4.0                  # settled: this long after the last unsettled block [s]
 STEADY_SHARE = 0.05             # block command within this share of its slow mean [-]
+RICH = False                    # watch_bound --rich: about 60 more terms (a check that the class is not the limit)
 
 
 def _filters(t, g, taus, g_grid=None):
@@ -62,6 +63,15 @@ def features(t, u, v, v_ref, u_grid=None):
     for a, b in zip(fu, fuv):
         cols += [u - a, uv * b, v * b, uv * (u - a)]
     cols += [uv * (v - fv[0]), v - fv[1], uv * (v - fv[1])]
+    if RICH:
+        # five lagged samples, squares and products of the lead terms
+        for k in range(1, 6):
+            uk = np.roll(u, k)
+            uk[:k] = u[0]
+            cols += [uk, uk * u * v * v, uk * uk]
+        leads = [u - a for a in fu]
+        for j, a in enumerate(leads):
+            cols += [a * a, a * uv] + [a * b for b in leads[j + 1:]]
     return cols
 
 
