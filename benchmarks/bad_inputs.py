@@ -19,6 +19,7 @@ import hashlib
 import io
 import json
 import os
+import re
 import shutil
 import subprocess
 import sys
@@ -166,6 +167,8 @@ def _csv_variants(csv_bytes, flight):
         ("5 MB line", build(r=rows[:5] + ["1" * (5 << 20)] + rows[6:])),
         ("5 MB cell", cell(5, 2, "9" * (5 << 20))),
         ("a sparse 600 MB file", "SPARSE"),
+        ("spreadsheet-style header (a stand's export)",
+         build(h=re.sub(r"([A-Za-z ]+)\[([^\]]*)\]", r"\1 (\2)", header).replace("(us)", "(\u00b5s)"))),
     ]
     if flight:
         out += [
@@ -185,6 +188,8 @@ def _csv_variants(csv_bytes, flight):
             ("bad comment value", build(p=pre + ["# altitude: high"])),
             ("density comment out of range", build(p=pre + ["# density: 12"])),
             ("diameter comment absurd", build(p=[l for l in pre if "diameter" not in l] + ["# diameter: 30m"])),
+            ("text in an optional column", build(h=header + ",temperature[C]",
+                                                 r=[x + (",warm" if k == 7 else ",21") for k, x in enumerate(rows)])),
         ]
     return out
 
@@ -315,7 +320,11 @@ def cases(base):
                  ["fit", "bench.csv", "--out", "p.json", "--diameter", "-3in"],
                  ["fit", "bench.csv", "--out", "p.json", "--density", "inf"],
                  ["fit", "bench.csv"], ["fit"], ["export", "params.json", "--map"], ["nosuchcommand"],
-                 ["hover"], ["replay", "flight.csv"]):
+                 ["hover"], ["replay", "flight.csv"],
+                 ["firmware", "params.json", "--out", "board", "--lag-ms", "5000"],
+                 ["replay", "flight.csv", "--params", "params.json", "--lag-ms", "5s"],
+                 ["fit", "bench.csv", "--out", "p.json", "--voltage-exponent", "40", "--json"],
+                 ["hover", "missing.json", "--json"]):
         add(("option: liftcal %s" % " ".join(a if len(a) < 30 else a[:12] + "..." for a in args), args, {}))
     return out
 
@@ -431,6 +440,12 @@ def judge(case, base, runner, scratch, lines_seen=None):
             return "only the last net caught it: %s" % lines[0][:300]
         if len(lines[0]) > 700:
             return "error line of %d characters" % len(lines[0])
+        if "--json" in argv:  # stdout: one JSON object holding the same error
+            try:
+                if json.loads(out).get("error") != lines[0][len("error: "):]:
+                    return "--json: the JSON object's error is not the error line"
+            except ValueError:
+                return "--json: stdout is not one JSON object: %r" % out[:200]
         if before != after:
             changed = sorted(set(before) ^ set(after) | {k for k in before if before.get(k) != after.get(k)})
             return "files changed: %s" % changed[:5]

@@ -169,10 +169,16 @@ def cannot_compute(exc):
             % (CANNOT_COMPUTE, type(exc).__name__, str(exc)[:80], where))
 
 
+# the longest error message [characters] (700 with 'error: '): room for a stand export's header
+# problems, each named by its column (estimator.csvheader), while no document is echoed whole
+ERROR_LINE_MAX = 690
+
+
 def _one_line(text):
-    """An error message on one line (a tool's multi-line output folded), at most ~600 characters."""
+    """An error message on one line (a tool's multi-line output folded), at most ERROR_LINE_MAX
+    characters."""
     text = " ".join(str(text).split())
-    return text if len(text) <= 600 else text[:600] + "..."
+    return text if len(text) <= ERROR_LINE_MAX else text[:ERROR_LINE_MAX] + "..."
 
 
 def run():

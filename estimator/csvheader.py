@@ -20,6 +20,9 @@ _HEADER_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*(?:\[([^\]]*)\])?\s
 # a spreadsheet-style cell: 'Thrust (gf)', 'ESC signal (µs)'
 _SPREADSHEET_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*\(([^)]*)\)\s*$")
 
+# the most problems one error line lists (a header of thousands of columns stays one short line)
+MAX_LISTED = 12
+
 # plain words of the trade for the quantities liftcal's columns hold (a stand or logger
 # names its columns in these), mapped to liftcal's column name; used for hints only
 COLUMN_WORDS = {
@@ -103,28 +106,24 @@ def parse_header(path, head, columns, optional=(), refuse=None):
         cells.append((index + 1, cell, m.group(1).strip().lower() if m else None,
                       (m.group(2) if m else None)))
     present = {name for _, _, name, _ in cells if name is not None}
-    found, warnings, problems, hinted = {}, [], [], set()
+    found, warnings, problems, hinted, strangers = {}, [], [], set(), []
     for col, cell, name, unit in cells:
-        where = "column %d" % col
+        where = "column %d %s" % (col, shorten(cell.strip()))
         if name is None:
             m = _SPREADSHEET_CELL.match(cell)
             target = column_for(m.group(1).strip().lower(), tables) if m else None
-            if target is not None:
-                hinted.add(target)
-                hint = "; write %s" % _cell_hint(target, m.group(2).strip(), tables[target])
-            elif m:
-                hint = "; write %s[%s] (the unit in square brackets)" % (m.group(1).strip().lower(),
-                                                                          m.group(2).strip())
-            else:
-                hint = ""
-            problems.append("%s: header cell %s is not name[unit]%s" % (where, shorten(cell), hint))
+            if target is None:
+                strangers.append(where)
+                continue
+            hinted.add(target)
+            problems.append("%s: write %s" % (where, _cell_hint(target, m.group(2).strip(), tables[target])))
             continue
         if name not in tables:
             target = column_for(name, tables)
             if target in columns and target not in present and target not in hinted:
                 hinted.add(target)
-                problems.append("%s: did you mean %s for %s? (liftcal's name for the column)"
-                                % (where, _cell_hint(target, unit, columns[target]), shorten(cell.strip())))
+                problems.append("%s: did you mean %s? (liftcal's name for the column)"
+                                % (where, _cell_hint(target, unit, columns[target])))
             elif name not in plain:
                 warnings.append("column %s is not used" % shorten(cell.strip())
                                 + ("; liftcal reads it when named %s" % _cell_hint(target, unit, tables[target])
@@ -148,12 +147,19 @@ def parse_header(path, head, columns, optional=(), refuse=None):
         message = refuse([name for _, _, name, _ in cells if name is not None])
         if message:
             raise InputError("%s: line %d: %s" % (path, line, message))
+    if strangers:  # grouped: a stand's export has many columns liftcal does not use
+        shown = strangers if len(strangers) <= 3 else strangers[:2] + ["%d more" % (len(strangers) - 2)]
+        problems.append("%s: not name[unit], not used by liftcal: delete %s or write name[unit]"
+                        % (", ".join(shown[:-1]) + " and " + shown[-1] if len(shown) > 1 else shown[0],
+                           "them" if len(strangers) > 1 else "it"))
     missing = [n for n in columns if n not in found and n not in hinted]
     if missing:
         problems.append("header lacks %s; need %s" % (
             ", ".join(missing), ", ".join("%s[%s]" % (n, "|".join(u)) for n, u in columns.items())))
     if problems:
-        raise InputError("%s: line %d: %s%s" % (
-            path, line, "%d header problems, all listed: " % len(problems) if len(problems) > 1 else "",
-            "; ".join(problems)))
+        lead = "%d header problems" % len(problems) if len(problems) > 1 else "header problem"
+        if len(problems) > MAX_LISTED:
+            problems = problems[:MAX_LISTED - 1] + ["and %d more" % (len(problems) - MAX_LISTED + 1)]
+        raise InputError("%s: line %d: %s (liftcal reads name[unit] cells, renames nothing): %s" % (
+            path, line, lead, "; ".join(problems)))
     return found, warnings

@@ -112,26 +112,28 @@ def parse_header(path, head, columns, optional=(), refuse=None):
     return parse(path, head, columns, optional, refuse)
 
 
-def _number(path, line_no, col, cell, empty_ok):
-    """One cell as a float: NaN for an empty cell when allowed, else InputError."""
+def _number(path, line_no, col, cell, empty_ok, name=""):
+    """One cell as a float: NaN for an empty cell when allowed, else InputError (naming the
+    column's header cell ``name`` when given)."""
+    where = " in %s" % shorten(name) if name else ""
     cell = cell.strip()
     if cell[:1] == '"':
         cell = cell.strip('"').strip()
     if not cell:
         if empty_ok:
             return math.nan
-        raise InputError("%s: line %d column %d: empty cell (a missing reading?); every cell of "
-                         "these columns needs a number" % (path, line_no, col + 1))
+        raise InputError("%s: line %d column %d: empty cell%s (a missing reading?); every cell of "
+                         "these columns needs a number" % (path, line_no, col + 1, where))
     try:
         value = float(cell)
     except ValueError:
-        raise InputError("%s: line %d column %d: cannot read %s as a number%s"
-                         % (path, line_no, col + 1, shorten(cell),
+        raise InputError("%s: line %d column %d: cannot read %s as a number%s%s"
+                         % (path, line_no, col + 1, shorten(cell), where,
                             "; leave a missing reading empty (that row is then counted and left "
                             "out)" if empty_ok else "")) from None
     if not math.isfinite(value):
-        raise InputError("%s: line %d column %d: %s is not a finite number (NaN and infinity are "
-                         "refused%s)" % (path, line_no, col + 1, shorten(cell),
+        raise InputError("%s: line %d column %d: %s is not a finite number%s (NaN and infinity are "
+                         "refused%s)" % (path, line_no, col + 1, shorten(cell), where,
                                          "; leave a missing reading empty" if empty_ok else ""))
     return value
 
@@ -146,6 +148,7 @@ def read_columns(path, head, indices, empty_ok=False, what="a CSV"):
     ncols = len(head.cells)
     out = [[] for _ in indices]
     pairs = list(zip(indices, out))
+    names = list(head.cells) + [""] * (max(indices, default=0) + 1 - len(head.cells))
     with open_checked(path, what, MAX_BYTES) as fh:
         for line_no, text in _data_lines(path, fh, head.line):
             cells = text.split(",")
@@ -157,10 +160,10 @@ def read_columns(path, head, indices, empty_ok=False, what="a CSV"):
                 try:
                     value = float(cell)
                 except ValueError:
-                    value = _number(path, line_no, index, cell, empty_ok)
+                    value = _number(path, line_no, index, cell, empty_ok, names[index])
                 else:
                     if value - value != 0.0:  # NaN or infinity, refused by _number
-                        value = _number(path, line_no, index, cell, empty_ok)
+                        value = _number(path, line_no, index, cell, empty_ok, names[index])
                 column.append(value)
     return out
 

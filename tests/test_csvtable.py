@@ -115,7 +115,7 @@ REFUSED = {
                      None, "", "\n", "column 'voltage' appears twice"),
     "bad header cell": ("command[-],voltage[V],current[A],thrust[N],[x]",
                         "time[s],command[-],voltage[V],current[A],[x]",
-                        None, "", "\n", "column 5: header cell '[x]' is not name[unit]"),
+                        None, "", "\n", "column 5 '[x]': not name[unit], not used by liftcal"),
 }
 
 
@@ -192,4 +192,4 @@ def test_text_in_a_bench_cell_says_an_empty_cell_would_be_left_out(tmp_path):
     b, _ = _files(tmp_path, "command[-],voltage[V],current[A],thrust[N]",
                   "time[s],command[-],voltage[V],current[A]", _set_cell(2, "abc"))
     code, _, err = run(["fit", b, "--out", str(tmp_path / "p.json")])
-    assert code == 2 and "cannot read 'abc' as a number; leave a missing reading empty" in err
+    assert code == 2 and "cannot read 'abc' as a number in 'current[A]'; leave a missing reading empty" in err

@@ -151,7 +151,7 @@ def test_spreadsheet_header_cell_gets_the_bracket_form(tmp_path):
 
 def test_throttle_column_gets_the_command_name(tmp_path):
     refused(["fit", _bench(tmp_path, "time[s],throttle[%],voltage[V],current[A],thrust[g]"),
-             "--out", tmp_path / "p.json"], "did you mean command[%] for 'throttle[%]'")
+             "--out", tmp_path / "p.json"], "column 2 'throttle[%]': did you mean command[%]?")
 
 
 def test_fit_help_lists_the_units_the_reader_names(tmp_path):

@@ -120,7 +120,8 @@ def _slow_parse(path, skip, ncols, wanted=None):
     import numpy as np
 
     wanted = list(range(ncols)) if wanted is None else list(wanted)
-    head = csvtable.Head({}, [""] * ncols, skip)
+    cells = csvtable.read_head(path, "a bench CSV", EXAMPLE_HEADER).cells  # to name a column in errors
+    head = csvtable.Head({}, cells if len(cells) == ncols else [""] * ncols, skip)
     columns = csvtable.read_columns(path, head, wanted, empty_ok=True, what="a bench CSV")
     rows = len(columns[0]) if columns else 0
     table = np.full((rows, ncols), np.nan)
