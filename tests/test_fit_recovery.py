@@ -208,7 +208,9 @@ def test_sweep_without_voltage_spread_takes_n_from_the_motor_model_with_a_warnin
     assert c["voltage_exponent_source"] == "motor model"
     assert c["voltage_exponent"] == pytest.approx(n_true, abs=0.05)
     assert c["density_exponent"] == pytest.approx(m_true, abs=0.05)
-    assert params["standard_errors"]["voltage_exponent"] == 0.0
+    # not measured, yet not without an error bar: the duty law held near linear (prior 0.1 on
+    # the duty exponent, estimator.bench.motor_fit) is worth about 0.15 in n
+    assert 0.05 < params["standard_errors"]["voltage_exponent"] < 0.3
     assert any("taken from the motor model" in w for w in params["warnings"])
 
 

@@ -21,3 +21,13 @@ def test_every_ordinary_sweep_fits_within_the_bounds_and_the_interval_covers(cap
     # and so do T_max +- 1.96 standard errors and the spin-up command +- 1.96 standard errors
     assert summary["thrust_max_coverage"] >= 0.9
     assert summary["spin_up_coverage"] >= 0.9
+    # on a pack 13 % below the sweep's lowest bus voltage the hover command (of the exported
+    # curve and of the motor model) keeps the hover-command bound, one supply or three; with
+    # one supply the voltage exponent (not measured: the motor model's, the duty law held
+    # near linear) stays within 0.25 of the truth's d ln T / d ln V (the 200-truth study's
+    # worst is 0.23; it was 0.50 when the duty exponent was left free)
+    for name in ("one_supply", "three_supply"):
+        group = summary[name]
+        assert group["sag_curve"][0] <= BOUNDS["hover_command"], (name, group)
+        assert group["sag_motor"][0] <= BOUNDS["hover_command"], (name, group)
+    assert abs(summary["one_supply"]["n_worst"]) <= 0.25, summary["one_supply"]

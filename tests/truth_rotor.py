@@ -170,7 +170,7 @@ def sweep_rows(truth, rng):
     t_top, i_top = float(np.max(rows[:, 3])), float(np.max(rows[:, 2]))
     rows[:, 3] += rng.normal(0.0, truth["thrust_noise"], n) * (0.5 * t_top + 0.5 * rows[:, 3])
     rows[:, 2] += rng.normal(0.0, truth["current_noise"], n) * (0.5 * i_top + 0.5 * rows[:, 2])
-    rows[:, 1] *= 1.0 + rng.normal(0.0, 0.0005, n)
+    rows[:, 1] *= 1.0 + rng.normal(0.0, truth.get("volt_noise", 0.0005), n)  # the voltmeter's noise [-]
     bad = rng.random(n) < truth["outliers"]
     rows[bad, 3] += rng.choice([-1.0, 1.0], int(np.count_nonzero(bad))) * rng.uniform(0.1, 0.3) * t_top
     return rows
@@ -233,3 +233,28 @@ def truth_values(truth, v_ref):
     return {"thrust_max_N": t_max, "curve": curve, "hover_command": float(command_for_duty(truth, d_h)),
             "thrust_to_weight": float(t_f[0]) * n_rot / (vh["mass_kg"] * G0),
             "hover_current_A": float(i_h[0]), "flight_time_min": 60.0 * usable / float(i_h[0])}
+
+
+def voltage_exponent(truth, v_ref):
+    """The truth's voltage exponent n = d ln T / d ln V at full duty and bus voltage v_ref [V]
+    (central difference of +-1 %; DC motor equivalent model + propeller coefficients) [-]."""
+    rho = truth["rho"]
+    t_up = float(rotor_at(truth, np.array([1.0]), v_ref * 1.01, rho)[0][0])
+    t_dn = float(rotor_at(truth, np.array([1.0]), v_ref * 0.99, rho)[0][0])
+    return math.log(t_up / t_dn) / math.log(1.01 / 0.99)
+
+
+def command_at_bus_V(truth, thrust_N, bus_V):
+    """The truth's command [-] that makes thrust_N [N] on one rotor at a held bus voltage
+    bus_V [V] (a sagged pack), or None when full duty is not enough: three vectorised grids
+    of 257 duties (thrust rises with duty)."""
+    rho = truth["rho"]
+    lo, hi = 0.0, 1.0
+    if float(rotor_at(truth, np.array([1.0]), bus_V, rho)[0][0]) < thrust_N:
+        return None
+    for _ in range(3):
+        grid = np.linspace(lo, hi, 257)
+        t, _ = rotor_at(truth, grid, np.full_like(grid, bus_V), rho)
+        k = int(np.searchsorted(t, thrust_N))
+        lo, hi = grid[max(k - 1, 0)], grid[min(k, grid.size - 1)]
+    return float(command_for_duty(truth, 0.5 * (lo + hi)))

@@ -19,7 +19,11 @@ import tempfile
 
 import numpy as np
 
-from truth_rotor import random_truth, sweep_rows, truth_values, vehicle_file, write_csv
+from truth_rotor import (G0, command_at_bus_V, random_truth, sweep_rows, truth_values, vehicle_file,
+                         voltage_exponent, write_csv)
+
+# a sagged pack: this far below the sweep's lowest bus voltage [-]
+SAG_SHARE = 0.13
 
 BOUNDS = {"thrust_max": 0.03, "curve": 0.03, "hover_command": 0.02, "thrust_to_weight": 0.03,
           "hover_current": 0.05, "endurance": 0.10}
@@ -79,9 +83,39 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
         "warnings": len(params.get("warnings", [])),
         "spin_up": params["motor_model"]["command_start"] - spin_up_command(truth),
         "spin_up_se": params["motor_model"].get("command_start_standard_error", 0.0),
+        "supplies": len(truth["supplies"]),
     })
+    out.update(sagged(truth, params))
     if keep:
         out.update({"truth": truth, "params": params, "truth_values": tv})
+    return out
+
+
+def sagged(truth, params):
+    """Voltage exponent and hover command at a sagged bus (SAG_SHARE below the sweep's lowest
+    bus voltage), fitted against the truth: n_error [-] and its standard error n_se [-]; the
+    hover command of the exported curve (what the watch and the controller use) and of the
+    motor model (the hover sheet), each minus the truth's command at that held bus voltage
+    (DC motor equivalent model + propeller coefficients, tests/truth_rotor.py)."""
+    from estimator.core.thrust_curve import hover_command
+    from estimator.preflight.measured_rotor import FittedRotor
+
+    c = params["thrust_curve"]
+    n_true = voltage_exponent(truth, c["reference_voltage_V"])
+    out = {"n_error": c["voltage_exponent"] - n_true,
+           "n_se": params["standard_errors"]["voltage_exponent"], "n_source": c["voltage_exponent_source"]}
+    v_sag = (1.0 - SAG_SHARE) * c["voltage_min_V"]
+    t_h = truth["vehicle"]["mass_kg"] * G0 / truth["vehicle"]["rotors"]
+    u_true = command_at_bus_V(truth, t_h, v_sag)
+    if u_true is None:
+        return out
+    u_curve, _ = hover_command(t_h, v_sag, truth["rho"], c)
+    rotor = FittedRotor(params, truth["rho"])
+    vm, _ = rotor.for_thrust(t_h)
+    u_motor = rotor.command(vm / v_sag) if vm <= v_sag else None
+    # a fit that says full command is not enough is as far off as the truth's command is from full
+    out["sag_curve"] = abs(u_curve - u_true) if u_curve is not None else 1.0 - u_true
+    out["sag_motor"] = abs(u_motor - u_true) if u_motor is not None else 1.0 - u_true
     return out
 
 
@@ -106,8 +140,27 @@ def summarise(results):
     summary["spin_up"] = {"worst": max(spin, key=abs) if spin else math.nan,
                           "worst_seed": max(ok, key=lambda r: abs(r["spin_up"]))["seed"] if ok else None}
     summary["spin_up_coverage"] = sum(abs(r["spin_up"]) <= 1.959964 * r["spin_up_se"] for r in ok) / max(len(ok), 1)
+    for supplies, name in ((1, "one"), (3, "three")):
+        group = [r for r in ok if r["supplies"] == supplies]
+        summary[name + "_supply"] = sagged_summary(group)
     summary["median_half_width"] = float(np.median([r["half_width"] for r in ok])) if ok else math.nan
     return summary
+
+
+def sagged_summary(group):
+    """Worst voltage-exponent error, its coverage and worst hover-command errors at the sag."""
+    if not group:
+        return None
+    worst_n = max(group, key=lambda r: abs(r["n_error"]))
+    sag = [r for r in group if "sag_curve" in r]
+    out = {"truths": len(group), "n_worst": worst_n["n_error"], "n_worst_seed": worst_n["seed"],
+           "n_coverage": sum(abs(r["n_error"]) <= 1.959964 * r["n_se"] for r in group) / len(group),
+           "n_median_se": float(np.median([r["n_se"] for r in group])), "sag_truths": len(sag)}
+    for key in ("sag_curve", "sag_motor"):
+        worst = max(sag, key=lambda r: r[key]) if sag else None
+        out[key] = (worst[key], worst["seed"]) if worst else (math.nan, None)
+        out[key + "_within"] = sum(r[key] <= BOUNDS["hover_command"] for r in sag) / max(len(sag), 1)
+    return out
 
 
 def report_lines(summary):
@@ -127,4 +180,16 @@ def report_lines(summary):
                  % (100.0 * summary["coverage"], summary["median_half_width"]))
     lines.append("  T_max +-1.96 standard errors (incl. curve-form error) holds the truth in %.1f %%"
                  % (100.0 * summary["thrust_max_coverage"]))
+    for name in ("one", "three"):
+        s = summary.get(name + "_supply")
+        if not s:
+            continue
+        lines.append("  %s supply (%d truths): voltage exponent worst error %+.3f (seed %s), +-1.96 se holds "
+                     "the truth in %.1f %% (median se %.3f)" % (name, s["truths"], s["n_worst"], s["n_worst_seed"],
+                                                                100.0 * s["n_coverage"], s["n_median_se"]))
+        lines.append("    hover command at %.0f %% below the sweep's lowest bus (%d truths): curve worst %.3f "
+                     "(seed %s, within 0.02: %.1f %%), motor model worst %.3f (seed %s, within 0.02: %.1f %%)"
+                     % (100.0 * SAG_SHARE, s["sag_truths"], s["sag_curve"][0], s["sag_curve"][1],
+                        100.0 * s["sag_curve_within"], s["sag_motor"][0], s["sag_motor"][1],
+                        100.0 * s["sag_motor_within"]))
     return lines

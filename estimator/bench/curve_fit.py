@@ -113,14 +113,15 @@ def project(command, thrust_N, u_max, n):
     return np.append(res.x, n)
 
 
-def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projection=None):
+def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projection=None, motor_n_se=0.0):
     """Fit the curve to levels (dict command [-], voltage_V [V], thrust_N [N]).
 
     projection: optional (command grid [-], thrust [N] at v_ref) of the fitted motor model;
     without a voltage spread the exported curve is its projection (project), with one the
     levels fit starts there.
     v_ref: reference voltage [V]; u_max: top end point [-]; motor_n: the motor model's
-    voltage exponent [-], used when the sweep has no voltage spread; voltage_exponent: fix
+    voltage exponent [-], used when the sweep has no voltage spread, and motor_n_se its
+    standard error [-] (estimator.bench.motor_fit.exponent_errors), carried as n's; voltage_exponent: fix
     n [-]. Returns dict (thrust_max_N, quadratic_share, command_min, command_max,
     voltage_exponent, voltage_exponent_source, standard_errors, covariance, rms_residual_N,
     residual_scale_N, voltage_spread, warnings, quadratic_share_held: the share could not be
@@ -178,7 +179,9 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
     cov[np.ix_(free, free)] = np.linalg.pinv(sub.T @ sub) * s2 * FORM_INFLATION ** 2
     se = np.sqrt(np.maximum(np.diag(cov), 0.0))
     if fixed:
-        se[3] = 0.0
+        # n was not fitted to the levels: a given n has no error bar, the motor model's has its own
+        se[3] = float(motor_n_se) if source == "motor model" else 0.0
+        cov[3, 3] = se[3] ** 2
     elif se[3] > 0.25:
         warnings.append("voltage exponent %.2f is poorly determined (standard error %.2f); sweep at "
                         "supply voltages further apart" % (theta[3], se[3]))

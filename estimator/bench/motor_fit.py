@@ -15,7 +15,29 @@ density at fixed speed. The fit is scipy.optimize.least_squares (trust region re
 bounds, soft_l1 loss) on the command levels (estimator.bench.levels), thrust and bus
 current residuals each scaled by its own robust residual scale, from a start read off
 the levels; a second pass takes the scales from the first.
-Sources: DC motor equivalent model (Drela 2007, from memory); scipy.optimize.least_squares.
+
+One supply voltage cannot tell the duty exponent g from the motor's resistance and loss
+terms: at one bus voltage a steeper duty law (g > 1) and a larger resistive drop bend the
+thrust and current against command alike (the cost changes by well under 0.1 % between
+g = 0.9 and 1.3 on such a sweep), yet they predict different thrust at another voltage
+(n = d ln T / d ln V falls from about 2 at R = 0 towards 1 as the resistive drop grows,
+design notes sec. 3). Left to itself, g drifts: the only voltage changes such a sweep shows
+are the supply's sag and the voltmeter's noise, and a fit that takes each level's noisy
+voltage as exact lowers n to match (the attenuation of errors in variables, e.g. Fuller,
+Measurement Error Models, 1987, from memory), which it can do at no cost by raising g and the
+resistive drop together (g 1.32 and n 1.34 for a rotor whose two-voltage sweep gives g 1.00
+and n 1.81). A sweep without a voltage spread (the caller decides: curve_fit.voltage_spread)
+is therefore fitted
+  - on the supply's own line V = V_s - R_s I_bus through the levels (supply_line_V), not on
+    the voltmeter's noise, and
+  - with a prior on g, DUTY_PRIOR = 1 +- 0.1: duty linear in command, the usual ESC throttle
+    mapping (common practice), with a spread for ESCs that bend it (from memory). The prior
+    is one more residual, and its precision is added to the covariance's information, so the
+    voltage exponent's standard error carries what one voltage cannot measure.
+With several supplies g is fitted from the data alone.
+Sources: DC motor equivalent model (Drela 2007, from memory); scipy.optimize.least_squares;
+a Gaussian prior's precision added to the data's information (e.g. Tarantola, Inverse Problem
+Theory, ch. 3, from memory).
 """
 
 import math
@@ -26,6 +48,14 @@ NAMES = ("thrust_per_V2_N", "current_per_V2_A", "resistance_ohm", "no_load_curre
          "command_start", "command_top", "duty_exponent", "esc_idle_current_A", "speed_current_A_per_V")
 # residuals beyond this many robust scales count less and less (soft_l1's f_scale) [-]
 LOSS_SCALE = 2.5
+# the duty exponent where one supply voltage cannot measure it: (mean, standard deviation);
+# duty linear in command is the usual ESC throttle mapping (common practice), the spread covers
+# ESCs that bend it (from memory) [-]
+DUTY_PRIOR = (1.0, 0.1)
+DUTY_INDEX = 6
+# a one-supply sweep's voltages further than this (rms, share of the median) from the
+# supply's line are real changes (a pack drifting as it discharges), not voltmeter noise [-]
+SUPPLY_LINE_MAX_RMS = 0.005
 
 
 def rotor_arrays(theta, command, voltage_V, density_ratio=1.0):
@@ -142,7 +172,7 @@ def _bounds(lv):
     return np.array(lo), np.array(hi)
 
 
-def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None):
+def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None, duty_prior=None):
     """Fit the model (module docstring) to levels: dict command [-], voltage_V [V],
     thrust_N [N], current_A [A] (bus), count [-].
 
@@ -150,6 +180,9 @@ def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None):
     highest command); else u1 = top [-]. start: a previous fit's result to start from (and
     its residual scales). passes: least-squares passes, each weighting the residuals by the
     robust scales of the previous one (default 2 from the start values, 1 from a previous fit).
+    duty_prior: (mean, standard deviation) of the duty exponent g [-] for a one-supply sweep
+    that cannot measure it (module docstring; DUTY_PRIOR): the prior, and the supply's line
+    for the bus voltage; else None (g fitted from the data alone, the levels' voltages).
     Returns dict: theta (NAMES order, linear), scale_thrust_N, scale_current_A (robust
     residual scales of the levels after the last pass), rms_thrust_N, success (bool), message.
     """
@@ -161,17 +194,19 @@ def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None):
     x0 = np.clip(x0, lo + 1e-9, hi - 1e-9)
     if not top_end:
         lo[5], hi[5], x0[5] = top - 1e-9, top, top - 5e-10
+    if duty_prior is not None:  # one supply: its line, not the voltmeter's noise (module docstring)
+        v = supply_line_V(lv)
     s_t = 0.01 * float(np.max(np.abs(t))) if start is None else start["scale_thrust_N"]
     s_i = 0.01 * float(np.max(np.abs(i))) if start is None else start["scale_current_A"]
     res = None
     for _ in range(passes or (2 if start is None else 1)):
         def residuals(p, s_t=s_t, s_i=s_i):
             tm, im, _, _, _ = rotor_arrays(_unpack(p), u, v)
-            return np.concatenate([(tm - t) / s_t, (im - i) / s_i])
+            return np.concatenate([(tm - t) / s_t, (im - i) / s_i, _prior_residual(p, duty_prior)])
 
         def jacobian(p, s_t=s_t, s_i=s_i):
             _, _, jt, ji = rotor_jacobian(p, u, v)
-            return np.concatenate([jt / s_t, ji / s_i])
+            return np.concatenate([jt / s_t, ji / s_i, _prior_jacobian(duty_prior)])
 
         res = least_squares(residuals, x0, jac=jacobian, bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE,
                             x_scale="jac", max_nfev=400, method="trf", ftol=1e-7, xtol=1e-7)
@@ -182,37 +217,117 @@ def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None):
         s_i = max(_scale(im - i), floor_i)
     theta = np.array(_unpack(res.x))
     tm, _, _, _, _ = rotor_arrays(theta, u, v)
-    held = [k for k in range(9) if res.active_mask[k] != 0 and k != 4] + ([] if top_end else [5])
+    held = [k for k in range(9) if res.active_mask[k] != 0 and k not in (4, DUTY_INDEX if duty_prior else -1)]
+    held += [] if top_end else [5]
     return {"theta": theta, "x": res.x, "jac": res.jac, "scale_thrust_N": s_t, "scale_current_A": s_i,
             "rms_thrust_N": float(np.sqrt(np.mean((tm - t) ** 2))), "success": bool(res.success),
-            "message": res.message, "active": res.active_mask.copy(),
-            "covariance": _covariance(res.jac, res.fun, held)}
+            "message": res.message, "active": res.active_mask.copy(), "duty_prior": duty_prior,
+            "covariance": _covariance(res.jac[:2 * u.size], res.fun[:2 * u.size], held, duty_prior)}
 
 
-def _covariance(jac, scaled_residuals, held):
+def _prior_residual(p, duty_prior):
+    """The prior's residual FORM_INFLATION (g - mean) / sd, or none. The data residuals are in
+    robust scales, and the covariance counts them FORM_INFLATION^2 times less (their form
+    error is correlated between neighbouring levels): so the prior weighs alike in both."""
+    from estimator.bench.curve_fit import FORM_INFLATION
+
+    if duty_prior is None:
+        return np.zeros(0)
+    return np.array([FORM_INFLATION * (p[DUTY_INDEX] - duty_prior[0]) / duty_prior[1]])
+
+
+def _prior_jacobian(duty_prior):
+    """The prior residual's derivative by the packed parameters (one row, or none)."""
+    from estimator.bench.curve_fit import FORM_INFLATION
+
+    row = np.zeros((0 if duty_prior is None else 1, 9))
+    if duty_prior is not None:
+        row[0, DUTY_INDEX] = FORM_INFLATION / duty_prior[1]
+    return row
+
+
+def supply_line_V(lv):
+    """The bus voltage of a one-supply sweep as the supply's own line, V = V_s - R_s I_bus
+    (a Thevenin source: a bench supply or a pack over the few minutes of a sweep), fitted to
+    the levels by least squares weighted by their row counts [V per level]; the levels' own
+    voltages when the line leaves more than SUPPLY_LINE_MAX_RMS of them unexplained (a pack
+    drifting as it discharges, a supply in current limit: then the voltage changes are real).
+    lv: levels with voltage_V [V], current_A [A], count [-]."""
+    v, i, n = lv["voltage_V"], lv["current_A"], lv["count"]
+    if v.size < 3 or float(np.ptp(i)) <= 0.0:
+        return v
+    design = np.column_stack([np.ones_like(i), i]) * np.sqrt(n)[:, None]
+    coef, *_ = np.linalg.lstsq(design, v * np.sqrt(n), rcond=None)
+    line = coef[0] + coef[1] * i
+    rms = math.sqrt(float(np.sum(n * (v - line) ** 2)) / float(np.sum(n)))
+    return line if rms <= SUPPLY_LINE_MAX_RMS * float(np.median(v)) else v
+
+
+def _covariance(jac, scaled_residuals, held, duty_prior=None):
     """Covariance of the packed parameters (NAMES order; logarithms of the positive ones, u0,
-    u1 and g linear): s^2 (J^T J)^-1 FORM_INFLATION^2 over the parameters not held (held:
-    indices at an active bound or fixed; their rows and columns are 0). J is least_squares'
-    Jacobian of the residuals scaled by their robust scales (modified by the soft_l1 loss,
-    so outliers weigh little), s^2 their mean square clipped at 4 scales, and FORM_INFLATION
-    the curve fit's allowance for the curve form's error being correlated between
-    neighbouring levels (estimator.bench.curve_fit). Gauss-Newton covariance of nonlinear
-    least squares (e.g. Seber and Wild, Nonlinear Regression, ch. 2, from memory)."""
+    u1 and g linear): (J^T J / (s^2 FORM_INFLATION^2) + P)^-1 over the parameters not held
+    (held: indices at an active bound or fixed; their rows and columns are 0). J is
+    least_squares' Jacobian of the data residuals scaled by their robust scales (modified by
+    the soft_l1 loss, so outliers weigh little), s^2 their mean square clipped at 4 scales,
+    FORM_INFLATION the curve fit's allowance for the curve form's error being correlated
+    between neighbouring levels (estimator.bench.curve_fit), and P the prior's precision,
+    1 / sd^2 on the duty exponent (0 without a prior). Gauss-Newton covariance of nonlinear
+    least squares (e.g. Seber and Wild, Nonlinear Regression, ch. 2, from memory); a prior adds
+    its information to the data's (Tarantola, Inverse Problem Theory, ch. 3, from memory)."""
     from estimator.bench.curve_fit import FORM_INFLATION
 
     free = [k for k in range(jac.shape[1]) if k not in held]
     r = np.asarray(scaled_residuals, dtype=float)
     s2 = float(np.sum(np.minimum(r * r, 16.0))) / max(r.size - len(free), 1)
-    sub = np.asarray(jac)[:, free]
+    info = np.asarray(jac).T @ np.asarray(jac) / max(s2 * FORM_INFLATION ** 2, 1e-300)
+    if duty_prior is not None:
+        info[DUTY_INDEX, DUTY_INDEX] += 1.0 / duty_prior[1] ** 2
     cov = np.zeros((jac.shape[1], jac.shape[1]))
     with np.errstate(all="ignore"):
-        cov[np.ix_(free, free)] = np.linalg.pinv(sub.T @ sub) * s2 * FORM_INFLATION ** 2
+        cov[np.ix_(free, free)] = np.linalg.pinv(info[np.ix_(free, free)])
     return cov
 
 
 def _scale(r):
     from estimator.bench.levels import robust_scale
     return robust_scale(r) if r.size > 3 else float(np.sqrt(np.mean(r * r)))
+
+
+def motor_exponents(theta, v_ref):
+    """Voltage and density exponents of the fitted motor model at full command and v_ref [V]:
+    n = d ln T / d ln V, m = d ln T / d ln rho by central differences of +-1 % [-]."""
+    h = 0.01
+    one = np.array([1.0])
+    t_up = rotor_arrays(theta, one, v_ref * (1.0 + h))[0][0]
+    t_dn = rotor_arrays(theta, one, v_ref * (1.0 - h))[0][0]
+    r_up = rotor_arrays(theta, one, v_ref, 1.0 + h)[0][0]
+    r_dn = rotor_arrays(theta, one, v_ref, 1.0 - h)[0][0]
+    scale = math.log((1.0 + h) / (1.0 - h))
+    return math.log(t_up / t_dn) / scale, math.log(r_up / r_dn) / scale
+
+
+def exponent_errors(motor, v_ref):
+    """Standard errors of the motor model's voltage and density exponents (motor_exponents)
+    at v_ref [V] from the fit's covariance (with the duty prior where the sweep has one
+    voltage) by the delta method: var(n) = grad(n) C grad(n)^T, the gradient by central
+    differences in the packed parameters (steps of 1e-4, relative for the logarithms) [-].
+    Returns (se_n, se_m)."""
+    cov = motor["covariance"]
+    x = np.asarray(motor["x"], dtype=float)
+    grad = np.zeros((2, x.size))
+    for k in range(x.size):
+        if cov[k, k] <= 0.0:
+            continue
+        step = 1e-4
+        up, dn = x.copy(), x.copy()
+        up[k] += step
+        dn[k] -= step
+        grad[:, k] = (np.array(motor_exponents(_unpack(up), v_ref))
+                      - np.array(motor_exponents(_unpack(dn), v_ref))) / (2.0 * step)
+    var = np.einsum("ij,jk,ik->i", grad, cov, grad)
+    if not np.all(np.isfinite(var)):
+        return 1.0, 1.0
+    return float(math.sqrt(max(var[0], 0.0))), float(math.sqrt(max(var[1], 0.0)))
 
 
 def params_dict(theta):

@@ -14,11 +14,13 @@ import numpy as np
 
 from estimator.errors import InputError
 from estimator.core.momentum import disk_area_m2
-from estimator.bench.curve_fit import check_rising, fit_quadratic, thrust_model_N
+from estimator.bench.curve_fit import (MIN_VOLTAGE_SPREAD, check_rising, fit_quadratic, thrust_model_N,
+                                       voltage_spread)
 from estimator.bench.levels import command_levels
 from estimator.bench.load_cell import check_thrust_sign, tare_warning
 from estimator.bench.wording import command_text, command_with_error, thrust_text
-from estimator.bench.motor_fit import fit_motor, params_dict, rotor_arrays
+from estimator.bench.motor_fit import (DUTY_INDEX, DUTY_PRIOR, exponent_errors, fit_motor, motor_exponents,
+                                       params_dict, rotor_arrays)
 from estimator.bench.power_fit import (MAD_ROWS, check_static_factor, fit_power_model, fit_static_factor,
                                        power_model_W, static_factor_at, watch_residual_rel_std)
 
@@ -207,19 +209,6 @@ def start_standard_error(motor, command, both_ways):
     return math.sqrt(max(var, 0.0) + h * h / 12.0 + lag * lag)
 
 
-def motor_exponents(theta, v_ref):
-    """Voltage and density exponents of the fitted motor model at full command and v_ref [V]:
-    n = d ln T / d ln V, m = d ln T / d ln rho by central differences of +-1 % [-]."""
-    h = 0.01
-    one = np.array([1.0])
-    t_up = rotor_arrays(theta, one, v_ref * (1.0 + h))[0][0]
-    t_dn = rotor_arrays(theta, one, v_ref * (1.0 - h))[0][0]
-    r_up = rotor_arrays(theta, one, v_ref, 1.0 + h)[0][0]
-    r_dn = rotor_arrays(theta, one, v_ref, 1.0 - h)[0][0]
-    scale = math.log((1.0 + h) / (1.0 - h))
-    return math.log(t_up / t_dn) / scale, math.log(r_up / r_dn) / scale
-
-
 def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block):
     from estimator.params import build_params, check_vehicle_match
 
@@ -239,16 +228,19 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     check_rising(lv, source)
     u_hi = float(np.max(lv["command"]))
     # one pass to see whether the sweep levels off below its highest command (the ESC's top
-    # end point), then one more pass weighted by that pass's residual scales
-    motor = fit_motor(lv, top_end=True, passes=1)
+    # end point), then one more pass weighted by that pass's residual scales; one supply
+    # voltage cannot tell the duty law from the resistive drop: a prior on it (motor_fit)
+    prior = DUTY_PRIOR if voltage_spread(lv) < MIN_VOLTAGE_SPREAD else None
+    motor = fit_motor(lv, top_end=True, passes=1, duty_prior=prior)
     top_found = motor["theta"][5] < u_hi - TOP_END_MARGIN
 
     def final_motor(start):
         if top_found:
-            return fit_motor(lv, top_end=True, start=start)
+            return fit_motor(lv, top_end=True, start=start, duty_prior=prior)
         # full command at 1, or at the sweep's top when it stops short (an ESC calibrated to
         # a narrower pulse range, or a sweep cut short): never extrapolated beyond it
-        return fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi, start=start)
+        return fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi, start=start,
+                         duty_prior=prior)
 
     motor = final_motor(motor)
     if _model_spikes(lv, motor["theta"], u, v, t, p):
@@ -256,9 +248,11 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
     theta = motor["theta"]
     v_ref = float(round(float(np.median(v[:: max(1, v.size // MAD_ROWS)])), 2))
     n_motor, m_motor = motor_exponents(theta, v_ref)
+    se_n, se_m = exponent_errors(motor, v_ref)
     grid = np.linspace(float(theta[4]), float(theta[5]), 161)
     curve = fit_quadratic(lv, v_ref, float(theta[5]), n_motor, voltage_exponent,
-                          projection=(grid, rotor_arrays(theta, grid, v_ref)[0]))
+                          projection=(grid, rotor_arrays(theta, grid, v_ref)[0]), motor_n_se=se_n)
+    curve["standard_errors"]["density_exponent"] = se_m
     both_ways = swept_both_ways(u)
     if not both_ways:
         _add_lag(curve)
@@ -269,9 +263,11 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
                   "command_swept_min": float(np.min(lv["command"]))})
     if curve["voltage_exponent_source"] == "motor model":
         curve["warnings"].append(
-            "the sweep's voltage spread at equal command is only %.1f %%: voltage exponent n = %.2f taken "
-            "from the motor model fitted to thrust and current; sweep at two or three supply voltages to "
-            "measure it" % (100.0 * curve["voltage_spread"], n_motor))
+            "the sweep's voltage spread at equal command is only %.1f %%: voltage exponent n = %.2f +- %.2f "
+            "taken from the motor model fitted to thrust and current, with the ESC's duty held near linear in "
+            "command (one voltage cannot tell the duty law from the motor's resistance); beyond %.1f..%.1f V "
+            "thrust and power are extrapolated. Sweep at two or three supply voltages to measure it"
+            % (100.0 * curve["voltage_spread"], n_motor, se_n, v_span[0], v_span[1]))
     power = fit_power_model(lv, rho)
     spikes = lv["thrust_spike"] | lv["power_spike"]
     step = max(1, u.size // MAD_ROWS)
@@ -291,6 +287,9 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
                         "thrust_residual_scale_N": motor["scale_thrust_N"],
                         "current_residual_scale_A": motor["scale_current_A"],
                         "top_end_found": bool(top_found), "sweep_both_ways": both_ways,
+                        "duty_exponent_standard_error": math.sqrt(max(motor["covariance"][DUTY_INDEX, DUTY_INDEX], 0)),
+                        "duty_exponent_source": "fitted" if prior is None else
+                        "prior %.2f +- %.2f (one supply voltage cannot measure it)" % prior,
                         "command_start_standard_error": start_standard_error(motor, lv["command"], both_ways)})
     fit = {
         "curve": curve, "power": power, "static": sf, "rejected": rejected, "motor": motor_block,

@@ -12,10 +12,11 @@ from estimator.commands.options import Bounded, Number
 from estimator.jsonio import dumps
 
 BENCH_CAUTIONS = cautions("settings")
-# why a voltage exponent carries no error bar, by its source (thrust_curve.voltage_exponent_source)
+# where a voltage exponent comes from, by its source (thrust_curve.voltage_exponent_source)
 VOLTAGE_EXPONENT_WHY = {
-    "motor model": "from the fitted motor model, d ln T / d ln V at full command: one supply "
-                   "voltage cannot measure it, no error bar",
+    "fitted": "fitted to the sweep's supply voltages",
+    "motor model": "NOT MEASURED: one supply voltage cannot measure it; from the fitted motor model, "
+                   "d ln T / d ln V at full command, with the ESC's duty held near linear",
     "given": "given with --voltage-exponent, not fitted",
     "default": "a default, not fitted",
 }
@@ -30,6 +31,14 @@ def _pm(value, se, why_none):
     if error:
         return "%s +- %s" % (text, error)
     return "%.3f (%s)" % (value, why_none)
+
+
+def _exponent_text(value, se, why):
+    """'value +- error (why)', or 'value (why; no error bar)' when there is none."""
+    from estimator.bench.wording import value_and_error
+
+    text, error = value_and_error(value, se, 3)
+    return "%s +- %s (%s)" % (text, error, why) if error else "%.3f (%s; no error bar)" % (value, why)
 
 
 def _start_text(mm, unit):
@@ -73,12 +82,12 @@ def _human_fit(params, out_file, warnings=None, columns=None):
             command_with_error(c["command_min"], se["command_min"], cu)),
         "  rotor starts at      %s%s" % (_start_text(params["motor_model"], cu),
                                         "; full command at %s" % cmd(c["command_max"]) if c["command_max"] < 1.0 else ""),
-        "  voltage exponent     %s" % _pm(c["voltage_exponent"], se["voltage_exponent"],
-                                          VOLTAGE_EXPONENT_WHY.get(c.get("voltage_exponent_source"), "not fitted"))
-        + (" (fitted)" if se["voltage_exponent"] > 0.0 else ""),
-        "  density exponent     %s" % _pm(c["density_exponent"], se.get("density_exponent", 0.0),
-                                          "from the fitted motor model, d ln T / d ln rho at full "
-                                          "command; not fitted by itself, no error bar"),
+        "  voltage exponent     %s" % _exponent_text(c["voltage_exponent"], se["voltage_exponent"],
+                                                     VOLTAGE_EXPONENT_WHY.get(c.get("voltage_exponent_source"),
+                                                                              "not fitted")),
+        "  density exponent     %s" % _exponent_text(c["density_exponent"], se.get("density_exponent", 0.0),
+                                                     "from the fitted motor model, d ln T / d ln rho at "
+                                                     "full command"),
         "  thrust residual      %s rms" % thr(q["rms_residual_N"]),
         "power per rotor  P = %.4g W + %.4g W/N^0.5 T^0.5 + %.4g W/N T + %.4g W/N^1.5 T^1.5 + %.4g W/N^2 T^2 "
         "(all >= 0; rms %.3g W)" % (

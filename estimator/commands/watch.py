@@ -58,6 +58,29 @@ def _note_mass_after_baseline(events):
                          % (100.0 * first_high["residual"], first_high["t_s"]))
 
 
+def _exponent_warning(params, vehicle, source):
+    """[one warning] when the parameter set's voltage exponent was not measured (one supply
+    voltage, estimator.watch.replay.exponent_not_measured), naming the sweep's voltages and
+    the pack's; [] otherwise."""
+    from estimator.watch.config import vehicle_facts
+    from estimator.watch.replay import exponent_not_measured
+
+    if not exponent_not_measured(params):
+        return []
+    c = params["thrust_curve"]
+    se = params.get("standard_errors", {}).get("voltage_exponent", 0.0)
+    v = vehicle_facts(params, vehicle, source)
+    pack = ""
+    if v.get("full_voltage_V") and v.get("empty_voltage_V"):
+        pack = " and the pack runs %.1f..%.1f V" % (v["empty_voltage_V"], v["full_voltage_V"])
+    return ["%s: the voltage exponent n = %.2f +- %.2f was not measured (the sweep ran from one supply, "
+            "%.1f..%.1f V)%s: outside the sweep's voltages the expected power is extrapolated, and a "
+            "power_low or power_high there may be the model, not the rotor (replay names the bus voltage at "
+            "each alarm). Sweep at two or three supply voltages and refit before trusting the watch on a "
+            "sagging pack" % (source, c["voltage_exponent"], se, c.get("voltage_min_V", 0.0),
+                              c.get("voltage_max_V", 0.0), pack)]
+
+
 def _count(n, word):
     return "%d %s%s" % (n, word, "" if n == 1 else "s")
 
@@ -87,10 +110,11 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
     cfg = out["config"]
     # the kernel's limit is plan x (1 + permille / 1000) exactly (it compares permille), not floored
     mass_limit_g = round(cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) / 1000.0, 1)
+    warnings = _exponent_warning(params, vehicle, params_file)
     summary = {"out_dir": out["out_dir"], "files": out["files"], "mpy_bytes": out["mpy_bytes"],
                "cusum_k_sigma": cfg["cusum_k_q8"] / 256.0, "cusum_h_sigma": cfg["cusum_h_q8"] / 256.0,
                "noise_floor": cfg["noise_floor_permille"] / 1000.0, "lag_ms": cfg["lag_ms"],
-               "mass_limit_g": mass_limit_g, "cautions": list(WATCH_CAUTIONS)}
+               "mass_limit_g": mass_limit_g, "warnings": warnings, "cautions": list(WATCH_CAUTIONS)}
     if as_json:
         click.echo(dumps(summary))
         return
@@ -100,6 +124,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
              "at least %.1f %%); expected power lagged %d ms; mass alarm above %.1f g"
              % (cfg["block_ms"], summary["cusum_k_sigma"], summary["cusum_h_sigma"],
                 100.0 * summary["noise_floor"], cfg["lag_ms"], mass_limit_g)]
+    lines += ["! " + w for w in warnings]
     lines += ["- " + c for c in WATCH_CAUTIONS]
     click.echo(fit_width("\n".join(lines)))
 

@@ -18,7 +18,9 @@ route applies to CP (only the ideal induced power is multiplied by the coaxial f
 The 95 % interval of the hover command: +-1.96 standard errors, the standard error made of
 the model-form error (the motor fit's robust thrust residual scale, times FORM_INFLATION,
 through dT/du at hover), of the extrapolation beyond the sweep's bus voltages (the share
-of the voltage outside the sweep times EXTRAPOLATION_N_ERROR in the voltage exponent) and,
+of the voltage outside the sweep times EXTRAPOLATION_N_ERROR in the voltage exponent, or,
+for an exponent not measured (one supply voltage), ln(V / V_ref) times its own standard
+error, whichever is larger) and,
 when the sweep stepped the command one way only, of the rotor's lag (ONE_WAY_LAG_SE).
 Beyond the sweep's voltage or command range the sheet says by how much it extrapolates.
 """
@@ -203,7 +205,13 @@ def hover_interval(params, state):
     lo_v, hi_v = curve.get("voltage_min_V", v_h), curve.get("voltage_max_V", v_h)
     beyond = max(0.0, math.log(lo_v / v_h), math.log(v_h / hi_v))
     t_h = state["thrust_per_rotor_N"]
-    se_extra = EXTRAPOLATION_N_ERROR * beyond * t_h / slope if slope > 0.0 else 0.0
+    # a voltage exponent not measured (one supply) carries its own standard error over the
+    # whole way from the reference voltage: d ln T = ln(V / V_ref) dn
+    se_n = params.get("standard_errors", {}).get("voltage_exponent", 0.0)
+    n_part = 0.0
+    if curve.get("voltage_exponent_source") == "motor model":
+        n_part = se_n * abs(math.log(v_h / curve.get("reference_voltage_V", v_h)))
+    se_extra = max(EXTRAPOLATION_N_ERROR * beyond, n_part) * t_h / slope if slope > 0.0 else 0.0
     se_lag = 0.0 if mm.get("sweep_both_ways", True) else ONE_WAY_LAG_SE
     se = math.sqrt(se_form ** 2 + se_extra ** 2 + se_lag ** 2 + MIN_COMMAND_SE ** 2)
     return [max(0.0, u_h - Z_95 * se), min(1.0, u_h + Z_95 * se)], se

@@ -124,7 +124,8 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
             if new:
                 for bit, kind in KINDS:
                     if new & bit:
-                        e = {"t_s": round(ti - t0, 3), "kind": kind, "residual": w.residual_permille / 1000.0}
+                        e = {"t_s": round(ti - t0, 3), "kind": kind, "residual": w.residual_permille / 1000.0,
+                             "bus_V": mv[i] / 1000.0}
                         if bit == 16:    # the implied mass against the plan and the alarm limit
                             e.update(mass_kg=w.mass_g / 1000.0, planned_kg=plan_kg, limit_kg=round(limit_kg, 4))
                         if bit == 4:     # which sensor check it was, with the value and the limit
@@ -174,7 +175,9 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
     detail, a text with the value and the watch's limit), learned_at_s (end of the learning
     window, None when it never ended), flights_s (flight time above the spin command of each
     flight between landings, as the kernel counts it [s]) and sensor_fault_s (flight time of
-    the samples set aside as sensor faults [s]). A progress bar goes
+    the samples set aside as sensor faults [s]). Every event has bus_V, the bus voltage at
+    its sample [V]; a power event outside the sweep's voltages on a set whose voltage exponent
+    was not measured has a note saying so (exponent_note). A progress bar goes
     to stderr on logs above PROGRESS_ROWS rows when stderr is a terminal (progress=None),
     always (True) or never (False). Raises InputError on a bad file: time that goes back or
     repeats (unless ``drop_bad_time``: those rows are dropped and counted in ``dropped_rows``),
@@ -190,11 +193,47 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
     if progress is None:
         progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
     out = run_kernel(flight, config, keep_arrays=keep_arrays, progress=_bar if progress else None)
+    for e in out["events"]:
+        note = exponent_note(e, params)
+        if note:
+            e["note"] = note
     if not out["learned"]:
         out["note"] = learning_note(out, config)
     if dropped:
         out["dropped_rows"] = dropped
     return out
+
+
+# events whose verdict rests on the expected power at the present bus voltage
+POWER_KINDS = ("power_high", "power_low", "baseline_off")
+
+
+def exponent_not_measured(params):
+    """True when the parameter set's voltage exponent was not measured: its sweep ran from one
+    supply voltage, and n comes from the fitted motor model with the ESC's duty held near
+    linear (thrust_curve.voltage_exponent_source "motor model", estimator.bench.motor_fit)."""
+    return params["thrust_curve"].get("voltage_exponent_source") == "motor model"
+
+
+def exponent_note(event, params):
+    """A note for a power event whose bus voltage lies outside the sweep's when the voltage
+    exponent was not measured, else None: the expected power there is extrapolated with an n
+    known only to its standard error, so the residual may be the model's, not the rotor's.
+    event: a run_kernel event (bus_V [V]); params: the parameter set."""
+    bus = event.get("bus_V")
+    if event["kind"] not in POWER_KINDS or bus is None or not exponent_not_measured(params):
+        return None
+    c = params["thrust_curve"]
+    lo, hi = c.get("voltage_min_V"), c.get("voltage_max_V")
+    if lo is None or hi is None or lo <= bus <= hi:
+        return None
+    where = ("%.1f %% below the sweep's lowest (%.2f V)" % (100.0 * (1.0 - bus / lo), lo) if bus < lo
+             else "%.1f %% above the sweep's highest (%.2f V)" % (100.0 * (bus / hi - 1.0), hi))
+    se = params.get("standard_errors", {}).get("voltage_exponent", 0.0)
+    n = "%.2f +- %.2f" % (c["voltage_exponent"], se) if se > 0.0 else "%.2f, no error bar" % c["voltage_exponent"]
+    return ("bus %.2f V at the alarm, %s; the voltage exponent was not measured (one supply voltage; n = %s "
+            "from the motor model): this may be the model, not the rotor. Sweep the rotor at two or three "
+            "supply voltages, refit and replay" % (bus, where, n))
 
 
 def learning_note(out, cfg):
