@@ -231,7 +231,7 @@ def format_payload_table(result, unit="kg"):
         if not r["keeps"]:  # the margins it breaks, on a line of their own under the row
             lines += wrap_line("       breaks " + ", ".join(r["broken"]), indent=14)
     if any(judged_thrust_to_weight(r)[1] for r in result["rows"]):
-        lines += wrap_line("   T/W%s  %s" % (REACHABLE_MARK, REACHABLE_MARK_NOTE), indent=10)
+        lines += wrap_line("   T/W%s  %s" % (REACHABLE_MARK, REACHABLE_MARK_NOTE), indent=9)
     for line in verdict_lines(result, unit):
         lines += wrap_line("   " + line, indent=5)
     return "\n".join(lines) + "\n"
