@@ -45,11 +45,10 @@ class Watch:
         tq = (((c[117] << 12) // span) << 12) // span
         i_pos = c[112] if c[112] > 0 else 0   # currents below this: negative (power 0) or a fault
         # st: [0] CONFIG, [1..12] per-sample state ([2] the lagged expected power [0.1 W / 4]),
-        # [13..25] CONFIG scalars, [26..29] derived, [30] the block's thrust-factor sum, [31] its
-        # lead sum (static less lagged expected power) [0.1 W ms]
+        # [13..21] CONFIG scalars read on every sample, [22..25] derived, [26] the block's
+        # thrust-factor sum, [27] its lead sum (static less lagged expected power) [0.1 W ms]
         self.st = [c, 0, 0, 0, 0, -1, 0, 0, 0, 0, 0, 0, 0,
-                   c[109], c[110], c[111], c[112], c[113], c[114], c[115], c[118], c[119], c[120],
-                   c[121], c[125], c[126],
+                   c[109], c[110], c[111], c[113], c[114], c[115], c[118], c[119], c[121],
                    ta, tq, c[115] + span, i_pos, 0, 0]
         # sb: block state (learning, l_sum, l_n, l_ms, l_dev, scale, sig_q6, k, h, s_hi, s_lo,
         # drift_q8, hover thrust factor q7, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, the previous
@@ -81,34 +80,33 @@ class Watch:
 
         Returns the flag bits (int). Never raises for int inputs, never allocates.
         """
-        u = command_permille
         st = self.st
         (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw, low,
-         dt_max, v_min, v_max, i_min, i_max, spin, cmd_min, vstep, pfloor, lag, blk, stuck_lim, landed,
+         dt_max, v_min, v_max, i_max, spin, cmd_min, vstep, pfloor, blk,
          ta, tq, u_top, i_pos, fsum, edsum) = st
         # range checks: comparisons only, so any int is safe here
         if dt_ms <= 0 or dt_ms > dt_max or bus_mV < v_min or bus_mV > v_max:
             flags |= 4
             st[1] = flags
             return flags
-        if u < cmd_min:
-            if u < 0:
+        if command_permille < cmd_min:
+            if command_permille < 0:
                 flags |= 4
                 st[1] = flags
                 return flags
             t = 0
-        elif u > u_top:
-            if u > 1000:
+        elif command_permille > u_top:
+            if command_permille > 1000:
                 flags |= 4
                 st[1] = flags
                 return flags
             t = 4096
         else:
-            d = u - cmd_min                               # 0..span
+            d = command_permille - cmd_min                # 0..span
             t = d * (ta + (tq * d >> 10)) >> 14           # tq*d <= 6.9e8 ; d*(..) <= 2^26
         ma = bus_mA
         if bus_mA < i_pos:
-            if bus_mA < i_min:
+            if bus_mA < tb[112]:                          # i_min_mA
                 flags |= 4
                 st[1] = flags
                 return flags
@@ -117,11 +115,11 @@ class Watch:
             flags |= 4
             st[1] = flags
             return flags
-        # now 0 < dt <= 60000, 0 <= u <= 1000, 0 <= mV <= 60000, 0 <= ma <= 300000
-        if bus_mA == last_mA and u >= spin:
-            stuck += dt_ms                                # <= stuck_lim + dt_max < 7e5
-            if stuck >= stuck_lim:
-                st[6] = stuck_lim
+        # now 0 < dt <= 60000, 0 <= command_permille <= 1000, 0 <= mV <= 60000, 0 <= ma <= 300000
+        if bus_mA == last_mA and command_permille >= spin:
+            stuck += dt_ms                                # <= stuck_ms + dt_max < 7e5
+            if stuck >= tb[125]:                          # stuck_ms
+                st[6] = tb[125]
                 flags |= 4
                 st[1] = flags
                 return flags
@@ -129,7 +127,9 @@ class Watch:
         elif stuck:
             st[6] = 0
         st[5] = bus_mA
-        flags &= 27                                       # a good sample clears sensor_fault
+        if flags & 4:                                     # a good sample clears sensor_fault
+            flags &= 27
+            st[1] = flags
 
         # expected power: voltage factor by table, power by table over f = factor x t
         dv = bus_mV - v_min                               # 0 .. < 12 vstep
@@ -141,20 +141,21 @@ class Watch:
         pe = a + ((tb[j + 1] - a) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7
         # first-order lag, alpha = dt / (lag + dt) in Q8 (recomputed only when dt changes)
         if dt_ms != dt_last:
-            alpha = (dt_ms << 8) // (lag + dt_ms)         # 60000 * 256 = 1.5e7
+            alpha = (dt_ms << 8) // (tb[120] + dt_ms)     # lag_ms; 60000 * 256 = 1.5e7
             st[3] = dt_ms
             st[4] = alpha
         pl4 += ((pe << 2) - pl4) * alpha >> 8             # 2^20 * 256 = 2^28 ; pl4 < 2^20
         st[2] = pl4
         pm = (bus_mV // 20) * ma // 5000                  # 3000 * 300000 = 9e8 ; pm <= 180000
 
-        if u < spin:                                      # on the ground (or rotors stopped)
-            quiet += dt_ms                                # <= landed + dt_max <= 120000
-            if quiet >= landed:
-                quiet = landed
+        if command_permille < spin:                       # on the ground (or rotors stopped)
+            quiet += dt_ms                                # <= landed_ms + dt_max <= 120000
+            if quiet >= tb[126]:                          # landed_ms
+                quiet = tb[126]
                 if fl_ms:                                 # landed after a flight: a new one next
                     self._reset()
                     flags = 0
+                    st[1] = 0
                     st[8] = 0
             st[7] = quiet
             if bw:
@@ -162,8 +163,7 @@ class Watch:
                 st[10] = 0
                 st[11] = 0
                 st[12] = 0
-                st[30] = 0
-            st[1] = flags
+                st[26] = 0
             return flags
         if quiet:
             st[7] = 0
@@ -177,22 +177,22 @@ class Watch:
         fsum += f * w                                     # 6143 * 2000 = 1.2e7
         if pe < pfloor:
             low = 1
+            st[12] = 1
         if bw >= blk:
-            st[31] = 0
+            st[27] = 0
             flags = self._block(flags, em, ee, bw, bus_mV, low, fl_ms, fsum, edsum + (pe - (pl4 >> 2)) * w)
+            st[1] = flags
             st[9] = 0
             st[10] = 0
             st[11] = 0
             st[12] = 0
-            st[30] = 0
+            st[26] = 0
         else:
             st[9] = em
             st[10] = ee
             st[11] = bw
-            st[12] = low
-            st[30] = fsum
-            st[31] = edsum + (pe - (pl4 >> 2)) * w         # 2^18 * 2000 = 5.2e8
-        st[1] = flags
+            st[26] = fsum
+            st[27] = edsum + (pe - (pl4 >> 2)) * w         # 2^18 * 2000 = 5.2e8
         return flags
 
     def _block(self, flags, em, ee, bw, mv, low, fl_ms, fsum, ed):
