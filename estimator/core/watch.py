@@ -46,7 +46,7 @@ class Watch:
         i_pos = c[112] if c[112] > 0 else 0   # currents below this: negative (power 0) or a fault
         # st: [0] CONFIG, [1..12] per-sample state ([2] the lagged expected power [0.1 W / 4]),
         # [13..21] CONFIG scalars read on every sample, [22..25] derived, [26] the block's
-        # thrust-factor sum, [27] its lead sum (static less lagged expected power) [0.1 W ms]
+        # thrust-factor sum, [27] its static (not lagged) expected energy [0.1 W ms]
         self.st = [c, 0, 0, 0, 0, -1, 0, 0, 0, 0, 0, 0, 0,
                    c[109], c[110], c[111], c[113], c[114], c[115], c[118], c[119], c[121],
                    ta, tq, c[115] + span, i_pos, 0, 0]
@@ -83,7 +83,7 @@ class Watch:
         st = self.st
         (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw, low,
          dt_max, v_min, v_max, i_max, spin, cmd_min, vstep, pfloor, blk,
-         ta, tq, u_top, i_pos, fsum, edsum) = st
+         ta, tq, u_top, i_pos, fsum, es) = st
         # range checks: comparisons only, so any int is safe here
         if dt_ms <= 0 or dt_ms > dt_max or bus_mV < v_min or bus_mV > v_max:
             flags |= 4
@@ -164,6 +164,7 @@ class Watch:
                 st[11] = 0
                 st[12] = 0
                 st[26] = 0
+                st[27] = es - ee                          # the lead sum is kept (ee is cleared)
             return flags
         if quiet:
             st[7] = 0
@@ -175,12 +176,13 @@ class Watch:
         ee += (pl4 >> 2) * w                              # 2^18 * 2000 = 5.2e8
         bw += w                                           # < 2 blk
         fsum += f * w                                     # 6143 * 2000 = 1.2e7
+        es += pe * w                                      # 2^18 * 2000 = 5.2e8
         if pe < pfloor:
             low = 1
             st[12] = 1
         if bw >= blk:
             st[27] = 0
-            flags = self._block(flags, em, ee, bw, bus_mV, low, fl_ms, fsum, edsum + (pe - (pl4 >> 2)) * w)
+            flags = self._block(tb, flags, em, ee, bw, bus_mV, low, fl_ms, fsum, es - ee)
             st[1] = flags
             st[9] = 0
             st[10] = 0
@@ -192,18 +194,18 @@ class Watch:
             st[10] = ee
             st[11] = bw
             st[26] = fsum
-            st[27] = edsum + (pe - (pl4 >> 2)) * w         # 2^18 * 2000 = 5.2e8
+            st[27] = es
         return flags
 
-    def _block(self, flags, em, ee, bw, mv, low, fl_ms, fsum, ed):
+    def _block(self, c, flags, em, ee, bw, mv, low, fl_ms, fsum, ed):
         """One block of flight time: residual, learning, CUSUM, noise, drift, implied mass.
 
-        em, ee: measured and lagged expected energy [0.1 W ms]; bw: block length [ms]; mv: last
+        c: CONFIG; em, ee: measured and lagged expected energy [0.1 W ms]; bw: block length [ms]; mv: last
         voltage [mV]; low: expected power fell below the floor; fl_ms: flight time [ms]; fsum:
-        the thrust factor f (thrust / full thrust at the reference voltage, Q12) summed [Q12 ms].
+        the thrust factor f (thrust / full thrust at the reference voltage, Q12) summed [Q12 ms];
+        ed: static less lagged expected energy (the lead) [0.1 W ms], |ed| < 5.2e8.
         Returns the flags. No loops, no allocation.
         """
-        c = self.st[0]
         sb = self.sb
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
          m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd) = sb
@@ -273,7 +275,7 @@ class Watch:
         # rotor spins up, and less while it slows down)
         g = (ed >> c[122]) * 1000 // (e0 + 1)             # 2^19 * 1000
         g = 500 if g > 500 else (-500 if g < -500 else g)
-        if low == 0 and -250 <= x <= 250 and (learning or s_hi + s_lo < (h >> 1)):
+        if near and (learning or s_hi + s_lo < (h >> 1)):
             # the power of axial flight (climb, descent, gusts) is not the static model's: the
             # residual follows the thrust deviation x (momentum theory: dP = (T_static - W) v_h)
             # and the lead g; slopes cx = cov(r, x) / var(x), cd = cov(r, g) / var(g), each
@@ -438,15 +440,14 @@ class Watch:
                     m_n = 0
                     m_ms = 0
                 sb[17] = m_run
-            else:
-                m_sum = 0
-                m_sq = 0
-                m_n = 0
-                m_ms = 0
-                n_p = 0
-                sb[23] = n_p
-            sb[13] = m_sum
-            sb[14] = m_sq
-            sb[15] = m_n
-            sb[16] = m_ms
+                sb[13] = m_sum
+                sb[14] = m_sq
+                sb[15] = m_n
+                sb[16] = m_ms
+            elif m_n or n_p:                              # m_n = 0: m_sum, m_sq, m_ms are 0 too
+                sb[13] = 0
+                sb[14] = 0
+                sb[15] = 0
+                sb[16] = 0
+                sb[23] = 0
         return flags
