@@ -46,10 +46,11 @@ class Watch:
         i_pos = c[112] if c[112] > 0 else 0   # currents below this: negative (power 0) or a fault
         # st: [0] CONFIG, [1..12] per-sample state ([2] the lagged expected power [0.1 W / 4]),
         # [13..21] CONFIG scalars read on every sample, [22..25] derived, [26] the block's
-        # thrust-factor sum, [27] its static (not lagged) expected energy [0.1 W ms]
+        # thrust-factor sum, [27] its static (not lagged) expected energy [0.1 W ms], [28] the
+        # block weight of a sample of the last dt (recomputed with alpha when dt changes)
         self.st = [c, 0, 0, 0, 0, -1, 0, 0, 0, 0, 0, 0, 0,
                    c[109], c[110], c[111], c[113], c[114], c[115], c[118], c[119], c[121],
-                   ta, tq, c[115] + span, i_pos, 0, 0]
+                   ta, tq, c[115] + span, i_pos, 0, 0, 0]
         # sb: block state (learning, l_sum, l_n, l_ms, l_dev, scale, sig_q6, k, h, s_hi, s_lo,
         # drift_q8, hover thrust factor q7, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, the previous
         # mass window's mean, variance and count, y16 the smoothed residual, hold the settle time
@@ -83,7 +84,7 @@ class Watch:
         st = self.st
         (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw, low,
          dt_max, v_min, v_max, i_max, spin, cmd_min, vstep, pfloor, blk,
-         ta, tq, u_top, i_pos, fsum, es) = st
+         ta, tq, u_top, i_pos, fsum, es, w) = st
         # range checks: comparisons only, so any int is safe here
         if dt_ms <= 0 or dt_ms > dt_max or bus_mV < v_min or bus_mV > v_max:
             flags |= 4
@@ -104,18 +105,19 @@ class Watch:
         else:
             d = command_permille - cmd_min                # 0..span
             t = d * (ta + (tq * d >> 10)) >> 14           # tq*d <= 6.9e8 ; d*(..) <= 2^26
-        ma = bus_mA
         if bus_mA < i_pos:
             if bus_mA < tb[112]:                          # i_min_mA
                 flags |= 4
                 st[1] = flags
                 return flags
-            ma = 0                                        # negative current: measured power 0
+            pm = 0                                        # negative current: measured power 0
         elif bus_mA > i_max:
             flags |= 4
             st[1] = flags
             return flags
-        # now 0 < dt <= 60000, 0 <= command_permille <= 1000, 0 <= mV <= 60000, 0 <= ma <= 300000
+        else:
+            pm = (bus_mV // 20) * bus_mA // 5000          # [0.1 W] 3000 * 300000 = 9e8 ; pm <= 180000
+        # now 0 < dt <= 60000, 0 <= command_permille <= 1000, 0 <= mV <= 60000, 0 <= pm <= 180000
         if bus_mA == last_mA and command_permille >= spin:
             stuck += dt_ms                                # <= stuck_ms + dt_max < 7e5
             if stuck >= tb[125]:                          # stuck_ms
@@ -139,14 +141,16 @@ class Watch:
         j = (f >> 7) + 26
         a = tb[j]                                         # [0.1 W], < 2^18
         pe = a + ((tb[j + 1] - a) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7
-        # first-order lag, alpha = dt / (lag + dt) in Q8 (recomputed only when dt changes)
+        # first-order lag, alpha = dt / (lag + dt) in Q8, and the sample's block weight w (one
+        # sample counts at most one block): recomputed only when dt changes
         if dt_ms != dt_last:
             alpha = (dt_ms << 8) // (tb[120] + dt_ms)     # lag_ms; 60000 * 256 = 1.5e7
+            w = dt_ms if dt_ms < blk else blk
             st[3] = dt_ms
             st[4] = alpha
+            st[28] = w
         pl4 += ((pe << 2) - pl4) * alpha >> 8             # 2^20 * 256 = 2^28 ; pl4 < 2^20
         st[2] = pl4
-        pm = (bus_mV // 20) * ma // 5000                  # 3000 * 300000 = 9e8 ; pm <= 180000
 
         if command_permille < spin:                       # on the ground (or rotors stopped)
             quiet += dt_ms                                # <= landed_ms + dt_max <= 120000
@@ -168,10 +172,8 @@ class Watch:
             return flags
         if quiet:
             st[7] = 0
-        if fl_ms < 536870912:
-            fl_ms += dt_ms                                # < 2^29 + 60000
-            st[8] = fl_ms
-        w = dt_ms if dt_ms < blk else blk                 # one sample counts at most one block
+        fl_ms += dt_ms                                    # < 2^29 + 2 x 61000 (capped at blocks)
+        st[8] = fl_ms
         em += pm * w                                      # 180000 * 2000 = 3.6e8
         ee += (pl4 >> 2) * w                              # 2^18 * 2000 = 5.2e8
         bw += w                                           # < 2 blk
@@ -184,6 +186,8 @@ class Watch:
             st[27] = 0
             flags = self._block(tb, flags, em, ee, bw, bus_mV, low, fl_ms, fsum, es - ee)
             st[1] = flags
+            if fl_ms > 536870912:                         # flight time saturates at 2^29 ms (6 days;
+                st[8] = 536870912                         # the block compares it with minutes only)
             st[9] = 0
             st[10] = 0
             st[11] = 0
