@@ -1,40 +1,24 @@
 """Onboard power watch: integer-only, heap-free kernel (runs unchanged on MicroPython).
 
-``w = Watch(CONFIG)``; ``flags = w.update(dt_ms, command_permille, bus_mV, bus_mA)``.
-Flag bits (estimator/core/watch_layout.py): 1 power_high, 2 power_low, 4 sensor_fault,
-8 baseline_off, 16 mass_high. Readable after each block: ``residual_permille``
-r = (E_meas - s E_exp) / (s E_exp) of the last block [1/1000], ``thrust_mN`` thrust from the
-block's measured power [mN], ``hover_permille`` hover command expected at this voltage [1/1000],
-``mass_g`` all-up mass implied by the last mass window [g] (0 until one is complete), ``scale``
-the learned power scale s [1/1000] and ``sigma_permille`` the block-residual noise (0 while the
-learning window runs).
-
-Models (design notes sec. 3, Watch; the full description is in DEVELOPERS.md, "The onboard
-watch kernel"): expected power from the thrust curve and power model through a first-order
-lag; measured and expected energy over blocks of flight time, one residual per block, less its
-modelled parts (axial flight, spin-up lead); a learning window for the power scale and the
-block noise; a two-sided CUSUM per block in units of that noise (Page 1954, self-starting in
-the sense of Hawkins 1987, threshold from Siegmund's approximation); implied mass over windows
-of steady flight with its standard error; sensor-fault limits in milliseconds.
-
-Integer contract: every intermediate stays below 2^30 in magnitude for every input (range
-checks only compare; the bound for each product is the comment beside it, with the CONFIG
-bounds of watch_layout.check). update() and _block() have no loops, build no tuples, lists
-or floats and never raise for int inputs. This file is copied verbatim into the board bundle
-as ``liftwatch.py``; CONFIG indices are literal numbers here (watch_layout.INDEX).
+``w = Watch(CONFIG)``; ``flags = w.update(dt_ms, command_permille, bus_mV, bus_mA)``; flag bits
+in estimator/core/watch_layout.py. Readable after each block: ``residual_permille`` [1/1000],
+``thrust_mN`` [mN], ``hover_permille`` [1/1000], ``mass_g`` [g], ``scale`` [1/1000],
+``sigma_permille`` [1/1000]. Their meaning, the model and its published sources (Page 1954,
+Hawkins 1987, Siegmund 1985) and the integer contract: DEVELOPERS.md, "The onboard watch
+kernel". Every intermediate stays below 2^30 (the bound of each product is the comment beside
+it, with the CONFIG bounds of watch_layout.check); update() and _block() have no loops, build
+nothing and never raise for int inputs. Copied verbatim into the board bundle as
+``liftwatch.py``; CONFIG indices are literal numbers here (watch_layout.INDEX).
 """
 
 
 class Watch:
-    """Power watch state for one vehicle; CONFIG is the list written by liftcal firmware
-    (on the desktop: estimator.watch.config.as_tuple(make_config(...)[0]))."""
+    """Power watch of one vehicle (CONFIG by liftcal firmware; desktop: watch.config.new_watch)."""
 
     def __init__(self, config):
-        """config: CONFIG of liftwatch_config, a tuple or list of 145 ints (watch_layout).
-
-        Raises ValueError naming the cause when CONFIG was made for another kernel format (the
-        board loader liftwatch_load checks every bound first and says what is wrong).
-        """
+        """config: CONFIG of liftwatch_config, a tuple or list of 145 ints [-] (watch_layout).
+        Raises ValueError when CONFIG was made for another kernel format (the board loader
+        liftwatch_load checks every bound first and says what is wrong in words)."""
         if len(config) != 145 or config[108] != 5:
             raise ValueError("CONFIG: run liftcal firmware again")
         c = config
@@ -44,62 +28,62 @@ class Watch:
         ta = ((4096 - c[117]) << 14) // span
         tq = (((c[117] << 12) // span) << 12) // span
         i_pos = c[112] if c[112] > 0 else 0   # currents below this: negative (power 0) or a fault
-        # st: [0] CONFIG, [1..12] per-sample state ([2] the lagged expected power [0.1 W / 4]),
-        # [13..21] CONFIG scalars read on every sample, [22..25] derived, [26] the block's
-        # thrust-factor sum, [27] its static (not lagged) expected energy [0.1 W ms], [28] the
-        # block weight of a sample of the last dt (recomputed with alpha when dt changes)
-        self.st = [c, 0, 0, 0, 0, -1, 0, 0, 0, 0, 0, 0, 0,
+        # st: [0] CONFIG, [1..11] per-sample state ([2] lagged expected power [0.1 W / 4]), [12..20]
+        # CONFIG scalars read every sample, [21..24] derived, [25] the block's thrust-factor sum,
+        # [26] its static expected energy [0.1 W ms], [27] the block weight w of a sample of dt;
+        # dt_last, alpha and w start as those of a 1 ms sample (a valid dt: checked on change only)
+        self.st = [c, 0, 0, 1, 256 // (c[120] + 1), -1, 0, 0, 0, 0, 0, 0,
                    c[109], c[110], c[111], c[113], c[114], c[115], c[118], c[119], c[121],
-                   ta, tq, c[115] + span, i_pos, 0, 0, 0]
-        # sb: block state (learning, l_sum, l_n, l_ms, l_dev, scale, sig_q6, k, h, s_hi, s_lo,
-        # drift_q8, hover thrust factor q7, m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, the previous
-        # mass window's mean, variance and count, y16 the smoothed residual, hold the settle time
-        # left, sdd, srd, cd); the inflow slope starts at 0.5, momentum theory's ideal-power share
-        self.thrust_mN = 0
-        self.hover_permille = 0
-        self.sb = [0] * 29
+                   ta, tq, c[115] + span, i_pos, 0, 0, 1]
+        # sb: block state, named by the unpacking in _block (DEVELOPERS.md: sig in Q6, drift in Q8,
+        # fsl the hover thrust factor in Q7, low: the block's expected power fell below the floor);
+        # the inflow slope cx starts at momentum theory's 0.5
+        self.thrust_mN = self.hover_permille = 0
+        self.sb = [0] * 30
         self._reset()
 
     def _reset(self):
         """A new flight: forget the learned scale, noise, CUSUM sums, drift and mass."""
         sb = self.sb
-        for i in range(29):                               # a counted loop: no allocation
+        for i in range(30):                               # a counted loop: no allocation
             sb[i] = 0
         sb[0] = 1
         sb[5] = 1000
-        sb[18] = 400
+        sb[18] = sb[26] = 400
         sb[19] = 200
         sb[20] = 500
-        sb[26] = 400
-        self.mass_g = 0
+        self.mass_g = self.sigma_permille = self.residual_permille = 0
         self.scale = 1000
-        self.sigma_permille = 0
-        self.residual_permille = 0
 
     def update(self, dt_ms, command_permille, bus_mV, bus_mA):
         """One sample: dt_ms [ms] since the last, command [1/1000], bus voltage [mV], current [mA].
-
-        Returns the flag bits (int). Never raises for int inputs, never allocates.
-        """
+        Returns the flag bits (int). Never raises for int inputs, never allocates."""
         st = self.st
-        (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw, low,
+        (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw,
          dt_max, v_min, v_max, i_max, spin, cmd_min, vstep, pfloor, blk,
          ta, tq, u_top, i_pos, fsum, es, w) = st
-        # range checks: comparisons only, so any int is safe here
-        if dt_ms <= 0 or dt_ms > dt_max or bus_mV < v_min or bus_mV > v_max:
-            flags |= 4
-            st[1] = flags
+        # range checks: comparisons only, so any int is safe here; dt only when it changes, then
+        # the lag's alpha = dt / (lag + dt) in Q8 and the sample's block weight w (at most a block)
+        if dt_ms != dt_last:
+            if dt_ms <= 0 or dt_ms > dt_max:
+                st[1] = flags = flags | 4
+                return flags
+            alpha = (dt_ms << 8) // (tb[120] + dt_ms)     # lag_ms; 60000 * 256 = 1.5e7
+            w = dt_ms if dt_ms < blk else blk
+            st[3] = dt_ms
+            st[4] = alpha
+            st[27] = w
+        if bus_mV < v_min or bus_mV > v_max:
+            st[1] = flags = flags | 4
             return flags
         if command_permille < cmd_min:
             if command_permille < 0:
-                flags |= 4
-                st[1] = flags
+                st[1] = flags = flags | 4
                 return flags
             t = 0
         elif command_permille > u_top:
             if command_permille > 1000:
-                flags |= 4
-                st[1] = flags
+                st[1] = flags = flags | 4
                 return flags
             t = 4096
         else:
@@ -107,13 +91,11 @@ class Watch:
             t = d * (ta + (tq * d >> 10)) >> 14           # tq*d <= 6.9e8 ; d*(..) <= 2^26
         if bus_mA < i_pos:
             if bus_mA < tb[112]:                          # i_min_mA
-                flags |= 4
-                st[1] = flags
+                st[1] = flags = flags | 4
                 return flags
             pm = 0                                        # negative current: measured power 0
         elif bus_mA > i_max:
-            flags |= 4
-            st[1] = flags
+            st[1] = flags = flags | 4
             return flags
         else:
             pm = (bus_mV // 20) * bus_mA // 5000          # [0.1 W] 3000 * 300000 = 9e8 ; pm <= 180000
@@ -122,8 +104,7 @@ class Watch:
             stuck += dt_ms                                # <= stuck_ms + dt_max < 7e5
             if stuck >= tb[125]:                          # stuck_ms
                 st[6] = tb[125]
-                flags |= 4
-                st[1] = flags
+                st[1] = flags = flags | 4
                 return flags
             st[6] = stuck
         elif stuck:
@@ -141,15 +122,7 @@ class Watch:
         j = (f >> 7) + 26
         a = tb[j]                                         # [0.1 W], < 2^18
         pe = a + ((tb[j + 1] - a) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7
-        # first-order lag, alpha = dt / (lag + dt) in Q8, and the sample's block weight w (one
-        # sample counts at most one block): recomputed only when dt changes
-        if dt_ms != dt_last:
-            alpha = (dt_ms << 8) // (tb[120] + dt_ms)     # lag_ms; 60000 * 256 = 1.5e7
-            w = dt_ms if dt_ms < blk else blk
-            st[3] = dt_ms
-            st[4] = alpha
-            st[28] = w
-        pl4 += ((pe << 2) - pl4) * alpha >> 8             # 2^20 * 256 = 2^28 ; pl4 < 2^20
+        pl4 += ((pe << 2) - pl4) * alpha >> 8             # first-order lag; 2^20 * 256 = 2^28 ; pl4 < 2^20
         st[2] = pl4
 
         if command_permille < spin:                       # on the ground (or rotors stopped)
@@ -163,12 +136,9 @@ class Watch:
                     st[8] = 0
             st[7] = quiet
             if bw:
-                st[9] = 0
-                st[10] = 0
-                st[11] = 0
-                st[12] = 0
-                st[26] = 0
-                st[27] = es - ee                          # the lead sum is kept (ee is cleared)
+                st[9] = st[10] = st[11] = st[25] = 0
+                st[26] = es - ee                          # the lead sum is kept (ee is cleared)
+                self.sb[29] = 0
             return flags
         if quiet:
             st[7] = 0
@@ -180,44 +150,32 @@ class Watch:
         fsum += f * w                                     # 6143 * 2000 = 1.2e7
         es += pe * w                                      # 2^18 * 2000 = 5.2e8
         if pe < pfloor:
-            low = 1
-            st[12] = 1
+            self.sb[29] = 1                               # low: the block is not judged
         if bw >= blk:
-            st[27] = 0
-            flags = self._block(tb, flags, em, ee, bw, bus_mV, low, fl_ms, fsum, es - ee)
+            st[26] = 0
+            flags = self._block(tb, flags, em, ee, bw, bus_mV, fl_ms, fsum, es - ee)
             st[1] = flags
             if fl_ms > 536870912:                         # flight time saturates at 2^29 ms (6 days;
                 st[8] = 536870912                         # the block compares it with minutes only)
-            st[9] = 0
-            st[10] = 0
-            st[11] = 0
-            st[12] = 0
-            st[26] = 0
+            st[9] = st[10] = st[11] = st[25] = 0
         else:
             st[9] = em
             st[10] = ee
             st[11] = bw
-            st[26] = fsum
-            st[27] = es
+            st[25] = fsum
+            st[26] = es
         return flags
 
-    def _block(self, c, flags, em, ee, bw, mv, low, fl_ms, fsum, ed):
-        """One block of flight time: residual, learning, CUSUM, noise, drift, implied mass.
-
-        c: CONFIG; em, ee: measured and lagged expected energy [0.1 W ms]; bw: block length [ms]; mv: last
-        voltage [mV]; low: expected power fell below the floor; fl_ms: flight time [ms]; fsum:
-        the thrust factor f (thrust / full thrust at the reference voltage, Q12) summed [Q12 ms];
-        ed: static less lagged expected energy (the lead) [0.1 W ms], |ed| < 5.2e8.
-        Returns the flags. No loops, no allocation.
-        """
+    def _block(self, c, flags, em, ee, bw, mv, fl_ms, fsum, ed):
+        """One block of flight time: residual, learning, CUSUM, noise, drift, implied mass; returns
+        the flags. c: CONFIG; em, ee: measured and lagged expected energy [0.1 W ms]; bw [ms]; mv:
+        last voltage [mV]; fl_ms: flight time [ms]; fsum:
+        thrust factor (Q12 of full thrust) x ms; ed: static less lagged expected energy (the lead)."""
         sb = self.sb
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
-         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd) = sb
-        # CUSUM reference k and threshold h [permille] from the block noise: k_sigma and h_sigma
-        # (Siegmund) times the noise; k at most k_max (half the smallest step to catch soon,
-        # whatever the noise), then h = h_sigma s x k_sigma s / k_max: for a large in-control ARL
-        # Siegmund's approximation gives ln ARL ~ 2 k h (k, h in noise sigma), so h k constant
-        # keeps the false-alarm rate (a little below the target: h k grows slightly with k)
+         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low) = sb
+        # CUSUM k and h [permille] from the block noise; k at most k_max, then h grows so that
+        # h k stays (Siegmund: ln ARL ~ 2 k h; DEVELOPERS.md)
         k = sig >> 6
         k = c[131] if k < c[131] else (1000 if k > 1000 else k)   # the noise, within floor..100 %
         h = k * c[134] >> 8                               # 1000 * 12800
@@ -243,14 +201,15 @@ class Watch:
         j = dv // vs
         a = c[j + 13]
         self.hover_permille = a + (c[j + 14] - a) * (dv % vs) // vs   # 1000 * 5001
-        # thrust deviation x = (f - f_hover) / f_hover of the block from the hover thrust (EMA over
-        # 16 blocks while learning, 128 after) [permille]; steady: |x| within steady_permille
+        # thrust deviation x = (f - f_hover) / f_hover from the hover thrust [permille]
         fb = fsum // bw                                   # Q12, <= 6143
         if fsl == 0:
             fsl = fb << 7                                 # Q7 of Q12, < 2^20
         fsd = (fsl >> 7) + 1
         x = (fb - fsd) * 1000 // fsd                      # 6143 * 1000
         x = 500 if x > 500 else (-500 if x < -500 else x)
+        if low:
+            sb[29] = 0
         if low or x < -c[135] or x > c[135]:
             hold = c[143]                                 # a manoeuvre: not judged for settle_ms after it
         elif hold > 0:
@@ -274,16 +233,12 @@ class Watch:
         if fl_ms < c[127]:                                # take-off: not judged, not learned
             return flags
 
-        # lead g: static power at the present command less its lagged value over the block, in
-        # permille of the expected energy (a DC motor draws more than the static power while its
-        # rotor spins up, and less while it slows down)
+        # lead g: static less lagged expected energy [permille of the expected] (spin-up draw)
         g = (ed >> c[122]) * 1000 // (e0 + 1)             # 2^19 * 1000
         g = 500 if g > 500 else (-500 if g < -500 else g)
         if near and (learning or s_hi + s_lo < (h >> 1)):
-            # the power of axial flight (climb, descent, gusts) is not the static model's: the
-            # residual follows the thrust deviation x (momentum theory: dP = (T_static - W) v_h)
-            # and the lead g; slopes cx = cov(r, x) / var(x), cd = cov(r, g) / var(g), each
-            # on the residual less the other's part, learned by EMA (faster while learning)
+            # slopes of the residual on x (axial flight) and g (lead): cx = cov(r, x) / var(x),
+            # cd = cov(r, g) / var(g), each less the other's part, EMA (faster while learning)
             sh = c[132]
             m = drift >> 8                                # the baseline: the residual's mean
             if learning:
@@ -336,8 +291,7 @@ class Watch:
                     s = floor
                 if s > 1000:
                     s = 1000
-                # baseline_off when |m| exceeds the tolerance by 2 standard errors of the mean
-                # (s / sqrt(l_n): s is the long-run noise of one block); m is clipped to +-tol
+                # baseline_off: |m| beyond the tolerance by 2 standard errors s / sqrt(l_n)
                 tol = c[130]
                 d = (m if m > 0 else -m) - tol            # |.| <= 2000
                 if d > 0:
@@ -349,9 +303,7 @@ class Watch:
                 scale = 1000 + m
                 sb[0] = 0
                 sb[5] = scale
-                # a window of ~20 s holds only a few independent stretches of the correlated
-                # residual: the in-flight estimate starts at 1.5x it (an upper confidence bound)
-                # and may only come down from there as flight blocks are learned
+                # in flight the noise starts at 1.5x (an upper confidence bound) and only comes down
                 s += s >> 1
                 sb[6] = s << 6                            # Q6, <= 128000
                 self.scale = scale
@@ -371,7 +323,7 @@ class Watch:
             sb[9] = s_hi
             sb[10] = s_lo
             if quiet and steady:
-                # noise: EMA of |z| x sqrt(pi/2) (Q6: 80 = 64 x 1.2533), |z| clipped at 5 sigma
+                # noise [Q6]: EMA of |y16| x 53 / 4 = |y| x 64 sqrt(7) sqrt(pi/2), |z| within 5 sigma
                 s = sig >> 6
                 floor = c[131]
                 if s < floor:
@@ -386,7 +338,7 @@ class Watch:
                 s = sig >> 6
                 self.sigma_permille = s if s > floor else floor
             if steady and s_hi + s_lo < (h >> 1):
-                # slow bounded drift of the baseline [1/256 permille], not from a block that raised a suspicion
+                # slow bounded drift of the baseline [1/256 permille] (not after a suspicion)
                 drift += ((r << 8) - drift) >> c[136]     # 1000 * 256
                 lim = c[137] << 8
                 drift = lim if drift > lim else (-lim if drift < -lim else drift)
@@ -401,11 +353,8 @@ class Watch:
         if steady:
             if s_hi + s_lo < (h >> 1) or learning:
                 plan = c[140]
-                # thrust from power, less the axial-flight part of the power (cx x, as above;
-                # T ~ P^(2/3) in momentum theory)
-                th -= th * x // 1500                      # 1e6 * 500
-                # in thrust units, not whole grams (a gram is 5 % of a 21 g whoop); the plan's
-                # weight plan x 9.807 mN/g (standard gravity) <= 4.9e6
+                th -= th * x // 1500                      # less axial flight (T ~ P^(2/3)); 1e6 * 500
+                # mass deviation in thrust units; the plan's weight plan x 9.807 mN/g <= 4.9e6
                 dm = th * 1000 // (plan * 9 + plan * 807 // 1000) - 1000   # 1e6 * 1000 ; 5e5 * 807
                 dm = 500 if dm > 500 else (-500 if dm < -500 else dm)
                 m_sum += dm                               # <= 500 x 1200 blocks
@@ -439,19 +388,12 @@ class Watch:
                     sb[21] = mu_p
                     sb[22] = var_p
                     sb[23] = n_p
-                    m_sum = 0
-                    m_sq = 0
-                    m_n = 0
-                    m_ms = 0
+                    m_sum = m_sq = m_n = m_ms = 0
                 sb[17] = m_run
                 sb[13] = m_sum
                 sb[14] = m_sq
                 sb[15] = m_n
                 sb[16] = m_ms
             elif m_n or n_p:                              # m_n = 0: m_sum, m_sq, m_ms are 0 too
-                sb[13] = 0
-                sb[14] = 0
-                sb[15] = 0
-                sb[16] = 0
-                sb[23] = 0
+                sb[13] = sb[14] = sb[15] = sb[16] = sb[23] = 0
         return flags
