@@ -174,8 +174,7 @@ class Watch:
         sb = self.sb
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
          m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low) = sb
-        # CUSUM k and h [permille] from the block noise; k at most k_max, then h grows so that
-        # h k stays (Siegmund: ln ARL ~ 2 k h; DEVELOPERS.md)
+        # CUSUM k, h [permille] from the noise; k at most k_max, h raised so that h k stays
         k = sig >> 6
         k = c[131] if k < c[131] else (1000 if k > 1000 else k)   # the noise, within floor..100 %
         h = k * c[134] >> 8                               # 1000 * 12800
@@ -186,8 +185,8 @@ class Watch:
             k = c[144]
         sb[7] = k
         sb[8] = h
+        hh = h >> 1                                       # sums below this: no suspicion
         pmb = em // bw                                    # mean measured power [0.1 W] <= 180000
-        # slow outputs: thrust from the block's measured power (table over power), hover command
         sh = c[123]
         top = (32 << sh) - 1
         if pmb > top:
@@ -195,34 +194,35 @@ class Watch:
         j = (pmb >> sh) + 75
         a = c[j]                                          # < 2^13
         th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[124]  # 2^13 * 2^13 ; <= 1e6
-        self.thrust_mN = th
+        self.thrust_mN = th                               # thrust from measured power (table)
         dv = mv - c[110]
         vs = c[118]
         j = dv // vs
         a = c[j + 13]
         self.hover_permille = a + (c[j + 14] - a) * (dv % vs) // vs   # 1000 * 5001
-        # thrust deviation x = (f - f_hover) / f_hover from the hover thrust [permille]
         fb = fsum // bw                                   # Q12, <= 6143
         if fsl == 0:
             fsl = fb << 7                                 # Q7 of Q12, < 2^20
         fsd = (fsl >> 7) + 1
-        x = (fb - fsd) * 1000 // fsd                      # 6143 * 1000
+        x = (fb - fsd) * 1000 // fsd                      # from the hover thrust [permille]; 6143 * 1000
         x = 500 if x > 500 else (-500 if x < -500 else x)
         if low:
             sb[29] = 0
         if low or x < -c[135] or x > c[135]:
             hold = c[143]                                 # a manoeuvre: not judged for settle_ms after it
+            sb[25] = hold
         elif hold > 0:
             hold -= bw
-        sb[25] = hold
+            sb[25] = hold
         steady = hold <= 0
         near = low == 0 and -250 <= x <= 250              # judged (at half weight unless steady)
         sb[12] = fsl + (((fb << 7) - fsl) >> (4 if learning else 7))   # 2^20
-        e0 = ee >> c[122]                                 # < 2^19 (energy_shift, watch_layout)
+        esh = c[122]                                      # energy_shift (watch_layout)
+        e0 = ee >> esh                                    # < 2^19
         e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
         if e0s <= 0:
             return flags
-        d = (em >> c[122]) - e0s
+        d = (em >> esh) - e0s
         if d >= e0s:
             r = 1000
         elif -d >= e0s:
@@ -232,11 +232,11 @@ class Watch:
         self.residual_permille = r
         if fl_ms < c[127]:                                # take-off: not judged, not learned
             return flags
-
         # lead g: static less lagged expected energy [permille of the expected] (spin-up draw)
-        g = (ed >> c[122]) * 1000 // (e0 + 1)             # 2^19 * 1000
+        g = (ed >> esh) * 1000 // (e0 + 1)                # 2^19 * 1000
         g = 500 if g > 500 else (-500 if g < -500 else g)
-        if near and (learning or s_hi + s_lo < (h >> 1)):
+        quiet = near and (learning or s_hi + s_lo < hh)     # no suspicion: slopes learned
+        if quiet:
             # slopes of the residual on x (axial flight) and g (lead): cx = cov(r, x) / var(x),
             # cd = cov(r, g) / var(g), each less the other's part, EMA (faster while learning)
             sh = c[132]
@@ -312,14 +312,14 @@ class Watch:
             z = r - (drift >> 8) - x                      # |.| <= 1600
             if not steady:
                 z = z // 2                                # manoeuvre blocks: about 1.5x the noise
-            quiet = s_hi + s_lo < (h >> 1)
-            cl = k + (h >> 1) + 1                         # one block adds at most this
+            cl = k + hh + 1                               # one block adds at most this
             zc = z
             zc = cl if zc > cl else (-cl if zc < -cl else zc)
             s_hi += zc - k                                # <= 2h + 2 cl < 1e5
             s_lo -= zc + k
-            s_hi = 0 if s_hi < 0 else (h + h if s_hi > h + h else s_hi)
-            s_lo = 0 if s_lo < 0 else (h + h if s_lo > h + h else s_lo)
+            h2 = h + h
+            s_hi = 0 if s_hi < 0 else (h2 if s_hi > h2 else s_hi)
+            s_lo = 0 if s_lo < 0 else (h2 if s_lo > h2 else s_lo)
             sb[9] = s_hi
             sb[10] = s_lo
             if quiet and steady:
@@ -337,7 +337,8 @@ class Watch:
                 sb[6] = sig
                 s = sig >> 6
                 self.sigma_permille = s if s > floor else floor
-            if steady and s_hi + s_lo < (h >> 1):
+            calm = s_hi + s_lo < hh
+            if steady and calm:
                 # slow bounded drift of the baseline [1/256 permille] (not after a suspicion)
                 drift += ((r << 8) - drift) >> c[136]     # 1000 * 256
                 lim = c[137] << 8
@@ -351,7 +352,7 @@ class Watch:
 
         # implied mass over windows of steady flight (not while a power fault is suspected)
         if steady:
-            if s_hi + s_lo < (h >> 1) or learning:
+            if learning or (calm if near else s_hi + s_lo < hh):
                 plan = c[140]
                 th -= th * x // 1500                      # less axial flight (T ~ P^(2/3)); 1e6 * 500
                 # mass deviation in thrust units; the plan's weight plan x 9.807 mN/g <= 4.9e6
