@@ -296,9 +296,12 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
         scanned[:] = [levels, rows]
         return rows
 
-    either = (max_t > _bound2(scale_t, SPIKE_SIGMAS, big)) | (max_p > _bound2(scale_p, SPIKE_SIGMAS, spinning))
-    if np.any(either):
-        rows_of(either)
+    def look():  # one look for the rows of the levels either screen may judge at today's scales
+        either = (max_t > _bound2(scale_t, SPIKE_SIGMAS, big)) | (max_p > _bound2(scale_p, SPIKE_SIGMAS, spinning))
+        if np.any(either):
+            rows_of(either)  # a second look is free when its levels are among the first's
+
+    look()
     thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big, rows_of)
     if profile_t is not None and t_hits.size:
         # a spike moves its whole level's deviations: judge again with a profile made only
@@ -311,20 +314,9 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
         again = noise_profile(*(x[clean] for x in sub))
         if again is not None:
             scale_t = np.maximum(np.interp(np.abs(t_m), *again), 1e-6 * t_top)
-            spinning = big & (np.abs(t_m) > 0.02 * t_top)
-    scanned = []  # the levels of the last look for their rows, and those rows
-
-    def rows_of(levels):  # the rows of the levels marked, in order: one pass serves the screens
-        if scanned and not np.any(levels & ~scanned[0]):
-            return scanned[1][np.take(levels, key[scanned[1]])]
-        rows = np.flatnonzero(np.take(levels, key))
-        scanned[:] = [levels, rows]
-        return rows
-
-    either = (max_t > _bound2(scale_t, SPIKE_SIGMAS, big)) | (max_p > _bound2(scale_p, SPIKE_SIGMAS, spinning))
-    if np.any(either):
-        rows_of(either)
-    thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big, rows_of)
+            look()
+            thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big,
+                                           rows_of)
     power_spike, p_hits = _screen(key, n_keys, count, p, dp2_of, max_p, scale_p, SPIKE_SIGMAS, spinning, rows_of)
     out = np.union1d(t_hits, p_hits)  # the rows of either kind of spike
     if out.size:
