@@ -13,7 +13,8 @@ import os
 
 from estimator import __version__
 from estimator.errors import InputError
-from estimator.core.power_model import KEYS as POWER_KEYS
+from estimator.core.momentum import disk_area_m2
+from estimator.core.power_model import KEYS as POWER_KEYS, rotor_static_factor
 from estimator.jsonio import load_json, validate, write_json_atomic
 
 MODEL = "liftcal.rotor/1"
@@ -35,8 +36,9 @@ def _r(x, digits=6):
     return float("%.*g" % (digits, x))
 
 
-def build_params(data, fit, source, vehicle=None, hover=None):
-    """Assemble the parameter-set dict from estimator.bench.reader data and the fit results."""
+def build_params(data, fit, source):
+    """Assemble the parameter-set dict from estimator.bench.reader data and the fit results
+    (no vehicle: add_vehicle adds one)."""
     curve, power, sf = fit["curve"], fit["power"], fit["static"]
     rho = data["bench_air"]["density_kg_m3"]
     se = dict(curve["standard_errors"])
@@ -80,8 +82,9 @@ def build_params(data, fit, source, vehicle=None, hover=None):
         "static_factor": {
             "value": _r(sf.get("value", sf["k0"] + sf["slope_per_N"] * sf["median_thrust_N"])),
             "k0": _r(sf["k0"]), "slope_per_N": _r(sf["slope_per_N"]),
-            "value_at": "hover" if hover else "median thrust",
-            "thrust_at_value_N": _r(hover["thrust_per_rotor_N"] if hover else sf["median_thrust_N"]),
+            "value_at": "median thrust",
+            "thrust_at_value_N": _r(sf["median_thrust_N"]),
+            "line_covariance": [[_r(float(x), 8) for x in row] for row in sf["cov"]],
         },
         "standard_errors": {k: _r(v, 4) for k, v in se.items()},
         "thrust_curve_covariance": {
@@ -105,11 +108,45 @@ def build_params(data, fit, source, vehicle=None, hover=None):
         },
         "warnings": list(fit["warnings"]),
     }
-    if vehicle is not None:
-        params["vehicle"] = vehicle_block(vehicle)
-    if hover is not None:
-        params["hover"] = {k: (_r(v) if isinstance(v, float) else v) for k, v in hover.items()}
     return params
+
+
+def add_vehicle(params, vehicle, hover):
+    """The parameter set for a vehicle: params (fitted without one) with the vehicle block, the
+    hover block and k taken at the hover thrust per rotor instead of the sweep's median.
+
+    params: validated parameter set; vehicle: checked vehicle dict; hover: the pre-flight
+    flow's hover block for this set and vehicle (estimator.preflight.measured_rotor.hover_block,
+    which the command chaining the flows calls). k = T / (2 rho A P(T)^2)^(1/3) from the power
+    model (core.power_model.rotor_static_factor) and its standard error sqrt(g C g'), g = (1, T),
+    C the summary line's covariance. Raises InputError when k > 1 (impossible: momentum theory).
+    Returns a new dict; params is not changed.
+    """
+    out = dict(params)
+    bench_d, own_d = params["rotor"]["diameter_m"], vehicle["propeller"]["diameter_m"]
+    warnings = list(params.get("warnings", []))
+    if abs(bench_d / own_d - 1.0) > SAME_PROPELLER:
+        warnings.insert(0, "the bench propeller (%.4g m) is not the vehicle's (%.4g m): the hover values "
+                           "assume the bench propeller" % (bench_d, own_d))
+    hover = dict(hover)
+    about_vehicle = hover.pop("_warnings", [])
+    thrust = hover["thrust_per_rotor_N"]
+    sf = dict(params["static_factor"])
+    power, rho = params["power_model"], params["power_model"]["reference_density_kg_m3"]
+    value = rotor_static_factor(power, float(thrust), rho, disk_area_m2(bench_d))
+    if value > 1.0:
+        raise InputError("%s: static thrust factor %.3g at hover is above 1, which is impossible; check the "
+                         "thrust and current units and the load-cell calibration"
+                         % (params["provenance"]["input_file"], value))
+    c = sf["line_covariance"]
+    variance = c[0][0] + 2.0 * thrust * c[0][1] + thrust * thrust * c[1][1]
+    sf.update({"value": _r(value), "value_at": "hover", "thrust_at_value_N": _r(thrust)})
+    out["static_factor"] = sf
+    out["standard_errors"] = dict(params["standard_errors"], static_factor=_r(math.sqrt(max(variance, 0.0)), 4))
+    out["warnings"] = list(dict.fromkeys(warnings + about_vehicle))
+    out["vehicle"] = vehicle_block(vehicle)
+    out["hover"] = {k: (_r(v) if isinstance(v, float) else v) for k, v in hover.items()}
+    return out
 
 
 def motor_block(motor):
@@ -135,6 +172,10 @@ def vehicle_block(vehicle):
     }
 
 
+# a bench propeller this far from the vehicle's is named in a warning (add_vehicle); makers'
+# nominal sizes round to about 1 % [-]
+SAME_PROPELLER = 0.01
+
 # A parameter set is used on a vehicle only within these bounds (check_vehicle_match).
 # Propeller diameter: makers' nominal sizes are rounded to about 1 % and the same model from
 # two makers differs by a few percent; beyond 5 % it is another propeller: at equal speed
@@ -159,7 +200,7 @@ VOLTAGE_BELOW_SWEEP_MIN = 0.5
 def check_vehicle_match(params, vehicle, params_source, vehicle_source=None, json_paths=True):
     """Refuse a parameter set used on a vehicle it was not fitted for (InputError, exit 2).
 
-    params: validated parameter set (or a draft from the fit); vehicle: checked vehicle dict
+    params: validated parameter set (also one just fitted, before add_vehicle); vehicle: checked vehicle dict
     (estimator.vehicle.check_vehicle); params_source / vehicle_source: file names for the
     message; json_paths=False leaves the parameter set's JSON paths out (the fit names its CSV).
     Refused: a propeller diameter more than DIAMETER_MATCH_TOLERANCE from the fitted one,

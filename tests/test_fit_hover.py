@@ -19,8 +19,7 @@ from estimator.demo.bench_sim import DEAD_BAND, bench_density_kg_m3, simulate_sw
 from estimator.cli import main
 from estimator.core.momentum import disk_area_m2, ideal_power_W
 from estimator.demo.scenario import DEMO_VEHICLE
-from estimator.bench.sweep import fit_bench_file
-from estimator.preflight.measured_rotor import hover_block
+from estimator.commands.bench import fit_for_vehicle
 from estimator.preflight.measured_rotor import hover_from_params, rotor_power_W, sagged_bus_V
 from estimator.units import STANDARD_GRAVITY_M_S2
 from estimator.vehicle import check_vehicle
@@ -34,7 +33,7 @@ def fitted(tmp_path_factory):
     path = folder / "demo.csv"
     path.write_text(simulate_sweep(seed=31))
     vehicle = check_vehicle(DEMO_VEHICLE, "demo")
-    return vehicle, fit_bench_file(str(path), vehicle=vehicle, hover_block=hover_block), folder
+    return vehicle, fit_for_vehicle(str(path), vehicle), folder
 
 
 def test_sagged_bus_voltage_solves_the_thevenin_pack():

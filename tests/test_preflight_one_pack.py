@@ -13,11 +13,10 @@ import math
 
 import pytest
 
-from estimator.bench.sweep import fit_bench_file
+from estimator.commands.bench import fit_for_vehicle
 from estimator.cli import main
 from estimator.demo.bench_sim import simulate_sweep
 from estimator.demo.scenario import DEMO_VEHICLE
-from estimator.preflight.measured_rotor import hover_block
 from estimator.preflight.report import hover_report
 from estimator.vehicle import check_vehicle
 
@@ -39,7 +38,7 @@ def sweep(tmp_path_factory):
 @pytest.mark.parametrize("temperature_C", [-20.0, 5.0, 25.0])
 def test_fit_hover_block_is_the_sheet_of_hover_params(sweep, temperature_C):
     vehicle = _vehicle(temperature_C)
-    params = fit_bench_file(sweep, vehicle=vehicle, hover_block=hover_block)
+    params = fit_for_vehicle(sweep, vehicle)
     stored = params["hover"]
     sheet = hover_report(vehicle, params)
     for key in ("hover_command", "hover_command_full", "hover_command_empty", "thrust_to_weight",
@@ -56,8 +55,8 @@ def test_fit_hover_block_is_the_sheet_of_hover_params(sweep, temperature_C):
 
 
 def test_a_cold_pack_lowers_the_stored_thrust_to_weight(sweep):
-    warm = fit_bench_file(sweep, vehicle=_vehicle(25.0), hover_block=hover_block)["hover"]
-    cold = fit_bench_file(sweep, vehicle=_vehicle(-20.0), hover_block=hover_block)["hover"]
+    warm = fit_for_vehicle(sweep, _vehicle(25.0))["hover"]
+    cold = fit_for_vehicle(sweep, _vehicle(-20.0))["hover"]
     # a pack with ~3.9 x the resistance sags further at full command: less thrust (Thevenin)
     assert cold["full_bus_V"] < warm["full_bus_V"] - 0.2
     assert cold["thrust_to_weight"] < warm["thrust_to_weight"]

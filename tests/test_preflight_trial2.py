@@ -11,10 +11,9 @@ import math
 
 import pytest
 
-from estimator.bench.sweep import fit_bench_file
+from estimator.commands.bench import fit_for_vehicle
 from estimator.demo.bench_sim import simulate_sweep
 from estimator.demo.scenario import DEMO_VEHICLE
-from estimator.preflight.measured_rotor import hover_block
 from estimator.preflight.report import format_sheet, hover_report
 from estimator.vehicle import check_vehicle
 
@@ -68,7 +67,7 @@ def high_fit(tmp_path_factory):
     path = tmp_path_factory.mktemp("trial2") / "sweep.csv"
     path.write_text(simulate_sweep(seed=31))
     high = check_vehicle(_doc({"altitude_m": 4200, "temperature_C": -5}), "high.json")
-    return high, fit_bench_file(str(path), vehicle=high, hover_block=hover_block)
+    return high, fit_for_vehicle(str(path), high)
 
 
 def test_each_warning_once_on_the_fit_vehicle(high_fit):

@@ -1,6 +1,6 @@
 """The randomised study of the bench fit against independent truths (tests/truth_rotor.py).
 
-Each truth's sweep is written as a CSV in its own units and fitted by ``fit_bench_file``
+Each truth's sweep is written as a CSV in its own units and fitted by ``fit_for_vehicle``
 with the truth's vehicle, exactly as ``liftcal fit BENCH.csv --vehicle VEHICLE.json`` does.
 The checks, with the published model each truth value comes from:
   T_max            thrust at full command at V_ref: DC motor equivalent model + propeller
@@ -41,8 +41,7 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
     """Fit one truth; returns a dict of errors (or 'failed': message). tweak(truth) may change
     the drawn truth before its rows are made; keep=True adds the truth, params and truth values."""
     from estimator.bench.curve_fit import thrust_model_N
-    from estimator.bench.sweep import fit_bench_file
-    from estimator.preflight.measured_rotor import hover_block
+    from estimator.commands.bench import fit_for_vehicle
     from estimator.errors import InputError
     from estimator.vehicle import check_vehicle
 
@@ -58,7 +57,7 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
     out = {"seed": seed, "rows": int(table.shape[0]), "diameter_m": truth["diameter_m"],
            "cells": truth["cells"], "thrust_unit": truth["thrust_unit"], "command_unit": truth["command_unit"]}
     try:
-        params = fit_bench_file(path, vehicle=vehicle, hover_block=hover_block)
+        params = fit_for_vehicle(path, vehicle)
     except InputError as exc:
         out["failed"] = str(exc)
         return out

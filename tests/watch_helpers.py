@@ -77,13 +77,12 @@ def demo_fit_params():
         import tempfile
 
         from estimator.demo.bench_sim import simulate_sweep
-        from estimator.bench.sweep import fit_bench_file
-        from estimator.preflight.measured_rotor import hover_block
+        from estimator.commands.bench import fit_for_vehicle
         folder = tempfile.mkdtemp(prefix="liftwatch-fit-")
         path = os.path.join(folder, "bench.csv")
         with open(path, "w", encoding="utf-8") as fh:
             fh.write(simulate_sweep(seed=1))
-        params = fit_bench_file(path, vehicle=demo_vehicle(), hover_block=hover_block)
+        params = fit_for_vehicle(path, demo_vehicle())
         params.pop("_arrays", None)
         _DEMO_FIT["p"] = params
     return _DEMO_FIT["p"]

@@ -3,9 +3,10 @@
 read (estimator.bench.reader) -> static-factor plausibility (k <= 1, unit slips) -> command
 levels (estimator.bench.levels) -> DC motor + propeller model (estimator.bench.motor_fit,
 liftcal's own predictions) -> the controller's quadratic (estimator.bench.curve_fit) ->
-power model and k(T) (estimator.bench.power_fit) -> optional hover values for a vehicle (a ``hover_block``
-function handed in by the caller, e.g. estimator.preflight.measured_rotor.hover_block: the
-bench flow never imports the pre-flight flow) -> parameter set (estimator.params.build_params).
+power model and k(T) (estimator.bench.power_fit) -> parameter set (estimator.params.build_params).
+The vehicle's hover values are added afterwards by the command that chains the flows
+(estimator.commands.bench.fit_for_vehicle: pre-flight hover_block, then params.add_vehicle); the
+bench flow never imports the pre-flight flow.
 """
 
 import math
@@ -35,15 +36,14 @@ FULL_COMMAND_SWEPT = 0.98
 START_POORLY_DETERMINED = 0.025
 
 
-def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, altitude_m=None,
+def fit_bench_file(path, diameter_m=None, default_diameter_m=None, density_kg_m3=None, altitude_m=None,
                    temperature_C=None, pressure_Pa=None, humidity_pct=None,
-                   voltage_exponent=None, keep_arrays=False, hover_block=None):
+                   voltage_exponent=None, keep_arrays=False):
     """Fit a bench CSV and return the parameter-set dict (not yet written; see params.write_params).
 
-    path: bench CSV; diameter_m: propeller diameter [m] (else ``# diameter:`` or the
-    vehicle's propeller); vehicle: validated vehicle dict (adds the vehicle and hover
-    blocks; needs hover_block(vehicle, draft parameter set) -> hover block dict, which the
-    command that chains the flows passes); density_kg_m3 [kg/m^3] / altitude_m [m] / temperature_C [C] / pressure_Pa [Pa]
+    path: bench CSV; diameter_m: propeller diameter [m] (else ``# diameter:``, else
+    default_diameter_m, e.g. the vehicle's propeller); density_kg_m3 [kg/m^3] / altitude_m [m] /
+    temperature_C [C] / pressure_Pa [Pa]
     / humidity_pct [%]: bench air overriding the file; voltage_exponent: fix n [-].
     keep_arrays=True adds a private ``_arrays`` entry (rows and fits) for plots; it is
     removed by params.write_params. Raises InputError on bad or impossible data.
@@ -53,31 +53,23 @@ def fit_bench_file(path, diameter_m=None, vehicle=None, density_kg_m3=None, alti
     data = read_bench(path, diameter_m=diameter_m, density_kg_m3=density_kg_m3,
                       altitude_m=altitude_m, temperature_C=temperature_C,
                       pressure_Pa=pressure_Pa, humidity_pct=humidity_pct)
-    if vehicle is not None:
-        d_vehicle = vehicle["propeller"]["diameter_m"]
-        if data["diameter_m"] is None:
-            data["diameter_m"] = d_vehicle
-        elif abs(data["diameter_m"] / d_vehicle - 1.0) > 0.01:
-            data["warnings"].append("the bench propeller (%.4g m) is not the vehicle's (%.4g m): the "
-                                    "hover values assume the bench propeller" % (data["diameter_m"], d_vehicle))
+    if data["diameter_m"] is None:
+        data["diameter_m"] = default_diameter_m
     if data["diameter_m"] is None:
         raise InputError("%s: the propeller diameter is needed for the static thrust factor; "
                          "add '# diameter: 10in' to the CSV, or pass --diameter or --vehicle" % path)
-    return fit_bench(data, path, vehicle=vehicle, voltage_exponent=voltage_exponent,
-                     keep_arrays=keep_arrays, hover_block=hover_block)
+    return fit_bench(data, path, voltage_exponent=voltage_exponent, keep_arrays=keep_arrays)
 
 
-def fit_bench(data, source, vehicle=None, voltage_exponent=None, keep_arrays=False, hover_block=None):
+def fit_bench(data, source, voltage_exponent=None, keep_arrays=False):
     """Fit the arrays returned by estimator.bench.read_bench; see fit_bench_file.
 
     Floating-point trouble on pathological data (overflow, a singular system) becomes an
     InputError: the sweep cannot be fitted, and nothing is written.
     """
-    if vehicle is not None and hover_block is None:
-        raise TypeError("fit_bench: a vehicle needs hover_block (the pre-flight flow's function)")
     try:
         with np.errstate(all="ignore"):
-            params = _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block)
+            params = _fit_bench(data, source, voltage_exponent, keep_arrays)
     except (np.linalg.LinAlgError, FloatingPointError, OverflowError, ZeroDivisionError,
             ValueError) as exc:
         raise InputError("%s: the sweep cannot be fitted (%s); check that command, voltage, "
@@ -209,8 +201,8 @@ def start_standard_error(motor, command, both_ways):
     return math.sqrt(max(var, 0.0) + h * h / 12.0 + lag * lag)
 
 
-def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block):
-    from estimator.params import build_params, check_vehicle_match
+def _fit_bench(data, source, voltage_exponent, keep_arrays):
+    from estimator.params import build_params
 
     rho = data["bench_air"]["density_kg_m3"]
     area = disk_area_m2(data["diameter_m"])
@@ -300,24 +292,12 @@ def _fit_bench(data, source, vehicle, voltage_exponent, keep_arrays, hover_block
         + _start_warning(motor_block, data.get("command_unit", "-")),
         "levels": {"command": lv["command"], "thrust_residual_N": r_levels, "thrust_N": lv["thrust_N"]},
     }
-    hover = None
-    if vehicle is not None:
-        params_draft = build_params(data, fit, source, None, None)
-        check_vehicle_match(params_draft, vehicle, source, json_paths=False)
-        hover = hover_block(vehicle, params_draft)
-        value, value_se = static_factor_at(sf, hover["thrust_per_rotor_N"], power, rho, area)
-        fit["warnings"] = params_draft["warnings"]
-    else:
-        value, value_se = static_factor_at(sf, sf["median_thrust_N"], power, rho, area)
+    value, value_se = static_factor_at(sf, sf["median_thrust_N"], power, rho, area)
     sf["value"], sf["value_se"] = float(value), value_se
     if value > 1.0:
-        raise InputError("%s: static thrust factor %.3g at %s is above 1, which is impossible; "
-                         "check the thrust and current units and the load-cell calibration"
-                         % (source, value, "hover" if vehicle else "the median thrust"))
-    params = build_params(data, fit, source, vehicle, hover)
-    if hover is not None:
-        params["warnings"] = list(dict.fromkeys(params["warnings"] + hover.pop("_warnings", [])))
-        params["hover"].pop("_warnings", None)
+        raise InputError("%s: static thrust factor %.3g at the median thrust is above 1, which is impossible; "
+                         "check the thrust and current units and the load-cell calibration" % (source, value))
+    params = build_params(data, fit, source)
     if keep_arrays:
         params["_arrays"] = {"command": u, "voltage_V": v, "thrust_N": t, "power_W": p,
                              "used": ~spikes, "thrust_model_N": thrust_model_N(curve, u, v),

@@ -22,6 +22,25 @@ VOLTAGE_EXPONENT_WHY = {
 }
 
 
+def fit_for_vehicle(bench_file, vehicle, **fit_options):
+    """Fit a bench CSV and add a vehicle's hover values: the bench flow's fit, the pre-flight
+    flow's hover block from that parameter set, then params.add_vehicle (this command chains
+    the two flows; neither imports the other). The vehicle's propeller gives the diameter when
+    neither --diameter nor the CSV does. Raises InputError for a vehicle the sweep does not
+    fit (params.check_vehicle_match) or one that cannot hover on it."""
+    from estimator.bench.sweep import fit_bench_file
+    from estimator.params import add_vehicle, check_vehicle_match
+    from estimator.preflight.measured_rotor import hover_block
+
+    params = fit_bench_file(bench_file, default_diameter_m=vehicle["propeller"]["diameter_m"], **fit_options)
+    arrays = params.pop("_arrays", None)
+    check_vehicle_match(params, vehicle, bench_file, json_paths=False)
+    out = add_vehicle(params, vehicle, hover_block(vehicle, params))
+    if arrays is not None:
+        out["_arrays"] = arrays
+    return out
+
+
 def _pm(value, se, why_none):
     """'value +- error' with matching digits, or 'value (why_none)' for a value without a
     fitted error (held, taken from the motor model, or given): never a false '+- 0'."""
@@ -148,7 +167,6 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     or '# density:' comments give the bench air and '# diameter:' the propeller.
     """
     from estimator.bench.sweep import fit_bench_file, summary
-    from estimator.preflight.measured_rotor import hover_block
     from estimator.params import check_params, write_params
 
     from estimator.outputs import check_outputs
@@ -159,10 +177,12 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     if vehicle_file is not None:
         from estimator.vehicle import load_vehicle
         vehicle = load_vehicle(vehicle_file)
-    params = fit_bench_file(bench_file, diameter_m=diameter, vehicle=vehicle, hover_block=hover_block, density_kg_m3=density,
-                            altitude_m=altitude, temperature_C=temperature, pressure_Pa=pressure,
-                            humidity_pct=humidity, voltage_exponent=voltage_exponent,
-                            keep_arrays=plot_file is not None)
+    air = dict(density_kg_m3=density, altitude_m=altitude, temperature_C=temperature, pressure_Pa=pressure,
+               humidity_pct=humidity, voltage_exponent=voltage_exponent, keep_arrays=plot_file is not None)
+    if vehicle is None:
+        params = fit_bench_file(bench_file, diameter_m=diameter, **air)
+    else:
+        params = fit_for_vehicle(bench_file, vehicle, diameter_m=diameter, **air)
     if voltage_exponent is not None:
         params["thrust_curve"]["voltage_exponent_source"] = "given"
     arrays = params.pop("_arrays", None)

@@ -70,12 +70,11 @@ DEMO_JOB_MIN = 10.0
 
 def _run(out_dir, work, seed, emit):
     """run_demo's steps, writing into ``work`` and naming the files as they will be in ``out_dir``."""
+    from estimator.commands.bench import fit_for_vehicle
     from estimator.demo.bench_sim import simulate_sweep
     from estimator.demo.scenario import DEMO_VEHICLE
     from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, format_lines, load_map
     from estimator.watch.bundle import write_bundle
-    from estimator.bench.sweep import fit_bench_file
-    from estimator.preflight.measured_rotor import hover_block
     from estimator.demo.flight_sim import simulate_flight
     from estimator.params import write_params
     from estimator.preflight.report import format_sheet, hover_report
@@ -110,7 +109,7 @@ def _run(out_dir, work, seed, emit):
 
     # 2. after a bench sweep: fit -> parameter set -> hover sheet -> export
     write_atomic(path("bench.csv"), simulate_sweep(seed=seed))
-    params = fit_bench_file(path("bench.csv"), vehicle=vehicle, hover_block=hover_block)
+    params = fit_for_vehicle(path("bench.csv"), vehicle)
     write_params(path("params.json"), params)  # validates against the schema before writing
     fitted = hover_report(vehicle, params)
     map_file = EXAMPLE_MAP

@@ -127,12 +127,14 @@ def fitted_params(name, seed=1):
     key = (name, seed)
     if key not in _FITS:
         from estimator.bench.sweep import fit_bench_file
+        from estimator.params import add_vehicle
         from estimator.preflight.measured_rotor import hover_block
         folder = tempfile.mkdtemp(prefix="liftcal-simbench-")
         path = os.path.join(folder, "bench.csv")
         with open(path, "w", encoding="utf-8") as fh:
             fh.write(bench_csv(name, seed))
-        params = fit_bench_file(path, vehicle=checked_vehicle(name), hover_block=hover_block)
-        params.pop("_arrays", None)
+        vehicle = checked_vehicle(name)
+        params = fit_bench_file(path, default_diameter_m=vehicle["propeller"]["diameter_m"])
+        params = add_vehicle(params, vehicle, hover_block(vehicle, params))
         _FITS[key] = params
     return _FITS[key]
