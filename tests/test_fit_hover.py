@@ -263,6 +263,7 @@ def test_fit_with_a_vehicle_that_cannot_hover_names_the_file(fitted, tmp_path):
     lines = done.stderr.strip().splitlines()
     assert len(lines) == 1 and lines[0].startswith("error: %s: " % heavy) and "Traceback" not in done.stderr
     assert "cannot hover" in lines[0] and "demo.csv" in lines[0] and "(command)" not in lines[0]
+    assert lines[0].count("lighten it") == 1  # the cause's advice, not repeated by the fit
     assert not out.exists() and not [p for p in os.listdir(tmp_path) if p.startswith(".tmp-")]
 
 

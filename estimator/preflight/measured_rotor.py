@@ -345,11 +345,12 @@ def hover_block(vehicle, params):
     if r["hover_command"] is None:
         cause = [w for w in r["warnings"] if w.startswith("cannot hover: ")][:1]
         bench = (params.get("provenance") or {}).get("input_file")
+        why = cause[0][len("cannot hover: "):] if cause else "no hover command"
+        # the cause's own advice stands; the fit's alternative is added once
+        advice = "" if "lighten it" in why else "lighten it or fit more thrust, "
         raise InputError("%s: this vehicle cannot hover on the rotor fitted from %s at nominal pack: %s; "
-                         "lighten it or fit more thrust, or fit without --vehicle (the parameter set "
-                         "would have no hover values)"
-                         % (vehicle_source(vehicle, "the vehicle"), bench or "the bench sweep",
-                            cause[0][len("cannot hover: "):] if cause else "no hover command"))
+                         "%sor fit without --vehicle (the parameter set would have no hover values)"
+                         % (vehicle_source(vehicle, "the vehicle"), bench or "the bench sweep", why, advice))
     return {
         "_warnings": [w for w in r["warnings"] if about_the_vehicle(w)],
         "hover_command": r["hover_command"],
