@@ -111,15 +111,34 @@ def build_params(data, fit, source):
     return params
 
 
+def static_factor_at(power, thrust_N, density_kg_m3, area_m2, line_covariance, source, where):
+    """k [-] at thrust_N [N] and its standard error, refusing k > 1.
+
+    k = T / (2 rho A P(T)^2)^(1/3) from the fitted power model itself
+    (core.power_model.rotor_static_factor; the line k0 + slope T is only its summary over
+    15..80 % of T_max and strays by several % where the idle terms bend k(T)); the error
+    sqrt(g C g'), g = (1, T), from the line's covariance C [[var k0, cov], [cov, var slope]].
+    power: power-model dict; density_kg_m3: bench rho [kg/m^3]; area_m2: disk area [m^2];
+    source, where: the sweep's name and "hover" / "the median thrust" for the message.
+    Raises InputError when k > 1 (impossible: momentum theory, design notes sec. 3).
+    """
+    k = rotor_static_factor(power, float(thrust_N), density_kg_m3, area_m2)
+    if k > 1.0:
+        raise InputError("%s: static thrust factor %.3g at %s is above 1, which is impossible; check the "
+                         "thrust and current units and the load-cell calibration" % (source, k, where))
+    c, t = line_covariance, float(thrust_N)
+    variance = c[0][0] + 2.0 * t * c[0][1] + t * t * c[1][1]
+    return k, math.sqrt(max(float(variance), 0.0))
+
+
 def add_vehicle(params, vehicle, hover):
     """The parameter set for a vehicle: params (fitted without one) with the vehicle block, the
-    hover block and k taken at the hover thrust per rotor instead of the sweep's median.
+    hover block and k taken at the hover thrust per rotor instead of the sweep's median
+    (static_factor_at).
 
     params: validated parameter set; vehicle: checked vehicle dict; hover: the pre-flight
     flow's hover block for this set and vehicle (estimator.preflight.measured_rotor.hover_block,
-    which the command chaining the flows calls). k = T / (2 rho A P(T)^2)^(1/3) from the power
-    model (core.power_model.rotor_static_factor) and its standard error sqrt(g C g'), g = (1, T),
-    C the summary line's covariance. Raises InputError when k > 1 (impossible: momentum theory).
+    which the command chaining the flows calls). Raises InputError when k > 1 there.
     Returns a new dict; params is not changed.
     """
     out = dict(params)
@@ -132,17 +151,12 @@ def add_vehicle(params, vehicle, hover):
     about_vehicle = hover.pop("_warnings", [])
     thrust = hover["thrust_per_rotor_N"]
     sf = dict(params["static_factor"])
-    power, rho = params["power_model"], params["power_model"]["reference_density_kg_m3"]
-    value = rotor_static_factor(power, float(thrust), rho, disk_area_m2(bench_d))
-    if value > 1.0:
-        raise InputError("%s: static thrust factor %.3g at hover is above 1, which is impossible; check the "
-                         "thrust and current units and the load-cell calibration"
-                         % (params["provenance"]["input_file"], value))
-    c = sf["line_covariance"]
-    variance = c[0][0] + 2.0 * thrust * c[0][1] + thrust * thrust * c[1][1]
+    power = params["power_model"]
+    value, value_se = static_factor_at(power, thrust, power["reference_density_kg_m3"], disk_area_m2(bench_d),
+                                       sf["line_covariance"], params["provenance"]["input_file"], "hover")
     sf.update({"value": _r(value), "value_at": "hover", "thrust_at_value_N": _r(thrust)})
     out["static_factor"] = sf
-    out["standard_errors"] = dict(params["standard_errors"], static_factor=_r(math.sqrt(max(variance, 0.0)), 4))
+    out["standard_errors"] = dict(params["standard_errors"], static_factor=_r(value_se, 4))
     out["warnings"] = list(dict.fromkeys(warnings + about_vehicle))
     out["vehicle"] = vehicle_block(vehicle)
     out["hover"] = {k: (_r(v) if isinstance(v, float) else v) for k, v in hover.items()}

@@ -64,3 +64,24 @@ def test_the_watch_reads_the_hover_thrust_from_hover_power_within_1_percent(fitt
         _, bus, current = at_supply(truth, np.array([d]), v_oc, vh["r_pack"], rho, n)
         implied = thrust_from_power_total_N(bus[0] * current[0], params, n, rho)
         assert implied == pytest.approx(weight, rel=0.01), r["seed"]
+
+
+def test_static_factor_at_refuses_k_above_one_and_gives_the_line_error():
+    from estimator.errors import InputError
+    from estimator.params import static_factor_at
+
+    rho, area = 1.2, math.pi * 0.127 ** 2
+    # ideal power P = T^1.5 / sqrt(2 rho A) (momentum theory) gives k = 1: a rotor drawing 5 % more
+    # has k = 1.05^(-2/3); one drawing 10 % less is impossible (k = 0.9^(-2/3) > 1)
+    ideal = {"idle_power_W": 0.0, "sqrt_W_per_N0_5": 0.0, "linear_W_per_N": 0.0, "copper_W_per_N2": 0.0,
+             "induced_W_per_N1_5": 1.0 / math.sqrt(2.0 * rho * area), "reference_density_kg_m3": rho}
+    cov = [[4e-4, -1e-5], [-1e-5, 9e-7]]
+    real = dict(ideal, induced_W_per_N1_5=1.05 * ideal["induced_W_per_N1_5"])
+    k, se = static_factor_at(real, 5.0, rho, area, cov, "s.csv", "hover")
+    assert k == pytest.approx(1.05 ** (-2.0 / 3.0), rel=1e-9)
+    # the error of k0 + slope T at T = 5 N: sqrt(g C g') with g = (1, T) (variance of a linear form)
+    g = np.array([1.0, 5.0])
+    assert se == pytest.approx(math.sqrt(g @ np.array(cov) @ g), rel=1e-12)
+    under = dict(ideal, induced_W_per_N1_5=0.9 * ideal["induced_W_per_N1_5"])
+    with pytest.raises(InputError, match=r"s.csv: static thrust factor 1.07 at hover is above 1"):
+        static_factor_at(under, 5.0, rho, area, cov, "s.csv", "hover")

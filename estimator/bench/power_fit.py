@@ -11,7 +11,6 @@ Static factor (design notes sec. 3): k = T / (2 rho A P^2)^(1/3) per row; k <= 1
 k(T) = k0 + slope T is a line through the levels above 10 % of T_max.
 """
 
-import math
 
 import numpy as np
 
@@ -231,16 +230,3 @@ def fit_static_factor(levels, density_kg_m3, area_m2, thrust_max_N, power):
     return {"k0": float(coef[0]), "slope_per_N": float(coef[1]),
             "standard_errors": {"k0": float(se[0]), "slope_per_N": float(se[1])},
             "cov": cov, "median_thrust_N": t_med}
-
-
-def static_factor_at(sf, thrust_N, power, density_kg_m3, area_m2):
-    """k [-] at thrust_N [N] and its standard error: k = T / (2 rho A P(T)^2)^(1/3) from the fitted
-    power model itself (the line k0 + slope T is only its summary over 15..80 % of T_max and
-    strays by several % where the idle terms bend k(T)); the error from the line's scatter.
-    sf: from fit_static_factor; power: the fitted power-model dict; density_kg_m3: bench rho
-    [kg/m^3]; area_m2: disk area [m^2]. Source: momentum theory, design notes sec. 3."""
-    from estimator.core.power_model import rotor_static_factor
-
-    k = rotor_static_factor(power, float(thrust_N), density_kg_m3, area_m2)
-    g = np.array([1.0, thrust_N])
-    return k, float(math.sqrt(max(g @ sf["cov"] @ g, 0.0)))

@@ -23,7 +23,7 @@ from estimator.bench.wording import command_text, command_with_error, thrust_tex
 from estimator.bench.motor_fit import (DUTY_INDEX, DUTY_PRIOR, exponent_errors, fit_motor, motor_exponents,
                                        params_dict, rotor_arrays)
 from estimator.bench.power_fit import (MAD_ROWS, check_static_factor, fit_power_model, fit_static_factor,
-                                       power_model_W, static_factor_at, watch_residual_rel_std)
+                                       power_model_W, watch_residual_rel_std)
 
 # the sweep shows the ESC's top end point when the motor fit puts it this far below the
 # highest command swept [-]
@@ -202,7 +202,7 @@ def start_standard_error(motor, command, both_ways):
 
 
 def _fit_bench(data, source, voltage_exponent, keep_arrays):
-    from estimator.params import build_params
+    from estimator.params import build_params, static_factor_at
 
     rho = data["bench_air"]["density_kg_m3"]
     area = disk_area_m2(data["diameter_m"])
@@ -292,11 +292,8 @@ def _fit_bench(data, source, voltage_exponent, keep_arrays):
         + _start_warning(motor_block, data.get("command_unit", "-")),
         "levels": {"command": lv["command"], "thrust_residual_N": r_levels, "thrust_N": lv["thrust_N"]},
     }
-    value, value_se = static_factor_at(sf, sf["median_thrust_N"], power, rho, area)
-    sf["value"], sf["value_se"] = float(value), value_se
-    if value > 1.0:
-        raise InputError("%s: static thrust factor %.3g at the median thrust is above 1, which is impossible; "
-                         "check the thrust and current units and the load-cell calibration" % (source, value))
+    sf["value"], sf["value_se"] = static_factor_at(power, sf["median_thrust_N"], rho, area, sf["cov"], source,
+                                                   "the median thrust")
     params = build_params(data, fit, source)
     if keep_arrays:
         params["_arrays"] = {"command": u, "voltage_V": v, "thrust_N": t, "power_W": p,
