@@ -130,8 +130,8 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
 
 
 def _bundle_files():
-    """The bundle's files as the firmware help lists them (estimator.watch.bundle.FILES: one source)."""
-    from estimator.watch.bundle import FILES
+    """The bundle's files as the firmware help lists them (estimator.watch.bundle_files: one source)."""
+    from estimator.watch.bundle_files import FILES
 
     return ", ".join("%s (%s)" % pair for pair in FILES)
 

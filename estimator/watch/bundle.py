@@ -33,13 +33,6 @@ LAYOUT_SOURCE = os.path.join(PACKAGE_DIR, "core", "watch_layout.py")
 MODULES = ("liftwatch", "liftwatch_config", "liftwatch_layout", "liftwatch_load", "board_loop")
 
 CAUTION = " ".join(cautions("board"))
-# the bundle's files besides mpy/*.mpy, each with what it is (`liftcal firmware --help` lists them)
-FILES = (
-    ("liftwatch.py", "the kernel"), ("liftwatch_config.py", "CONFIG, integers only"),
-    ("liftwatch_layout.py", "CONFIG's indices and bounds"), ("liftwatch_load.py", "the loader that checks CONFIG"),
-    ("board_loop.py", "example loop"), ("README.md", "for the builder"), ("package.json", "for mip"),
-    ("manifest.py", "for freezing into a firmware build"),
-)
 
 
 def readme_text(template, config):
