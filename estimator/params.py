@@ -290,7 +290,6 @@ def load_params(path):
 
 def write_params(path, params):
     """Validate and write a parameter set atomically (never a partial file)."""
-    params = {k: v for k, v in params.items() if not k.startswith("_")}
     check_params(params, path)
     write_json_atomic(path, params, "params")
     return params

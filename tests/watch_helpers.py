@@ -83,7 +83,6 @@ def demo_fit_params():
         with open(path, "w", encoding="utf-8") as fh:
             fh.write(simulate_sweep(seed=1))
         params = fit_for_vehicle(path, demo_vehicle())
-        params.pop("_arrays", None)
         _DEMO_FIT["p"] = params
     return _DEMO_FIT["p"]
 

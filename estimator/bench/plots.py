@@ -53,8 +53,13 @@ def user_units(params):
                                    "permille": "command [permille]"}.get(c_unit, "command u [-]")
 
 
-def plot_fit(path, params, arrays):
-    """Draw the two panels to ``path`` (PNG), written through a temporary file and a rename."""
+def plot_fit(path, params, rows):
+    """Draw the two panels to ``path`` (PNG), written through a temporary file and a rename.
+
+    params: the fitted parameter set; rows: the sweep's rows in SI and which the fit used
+    (estimator.bench.sweep.Rows); the residuals are taken against the set's own curve."""
+    from estimator.bench.curve_fit import thrust_model_N
+
     import matplotlib
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
@@ -65,12 +70,10 @@ def plot_fit(path, params, arrays):
     curve, power = params["thrust_curve"], params["power_model"]
     rho = curve["reference_density_kg_m3"]
     area = disk_area_m2(params["rotor"]["diameter_m"])
-    u, v, t, p = arrays["command"], arrays["voltage_V"], arrays["thrust_N"], arrays["power_W"]
-    used = arrays["used"]
     # few hundred thousand points are plenty for a picture of a million-row sweep
-    step = max(1, u.size // 200000)
-    sl = slice(None, None, step)
-    u, v, t, p, used, t_model = u[sl], v[sl], t[sl], p[sl], used[sl], arrays["thrust_model_N"][sl]
+    sl = slice(None, None, max(1, rows.command.size // 200000))
+    u, v, t, p, used = rows.command[sl], rows.voltage_V[sl], rows.thrust_N[sl], rows.power_W[sl], rows.used[sl]
+    t_model = thrust_model_N(curve, u, v)
     to_ref = (curve["reference_voltage_V"] / v) ** curve["voltage_exponent"]
     tf, t_unit, cu, c_label = user_units(params)
 

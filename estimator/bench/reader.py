@@ -6,8 +6,8 @@ then one header row of ``name[unit]`` cells; then comma-separated numbers. Requi
 ``command[-|%|permille|us]``, ``voltage[V|mV]``, ``current[A|mA]``, ``thrust[N|g|gf|kgf|lbf|mN]``.
 Optional columns (OPTIONAL: ``time[s]``, ``rpm[rpm]``, ``torque[N*m]``, ``temperature[C]``)
 are read and checked like the others (text refused with its line and column, an empty cell
-drops the row, counted), but the fit does not use them (estimator.bench.wording.
-columns_note says so); unknown columns are read past with a warning.
+drops the row, counted), but the fit does not use them (read_bench's ``columns`` and the
+fit's summary say so); unknown columns are read past with a warning.
 
 Rows that are merely bad (a NaN or empty cell, a negative current, a command outside 0..1)
 are dropped and counted. Files that are broken (no header, a row with the wrong number of
@@ -211,10 +211,10 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
 
     Options override the file's comment header. Returns a dict: command, voltage_V,
     thrust_N, power_W (numpy arrays of the rows kept), voltage_span_V (their lowest and
-    highest bus voltage [V]), rows_total, rows_rejected,
-    rejected (reason -> count), bench_air {density_kg_m3, source}, diameter_m (or None),
-    input_sha256, warnings (list of str). Raises InputError on broken files and on units
-    that are very likely mislabelled.
+    highest bus voltage [V]), rows_total, rows_rejected, rejected (reason -> count), bench_air
+    {density_kg_m3, source}, diameter_m (or None), input_sha256, warnings (list of str),
+    thrust_unit, command_unit, current_unit, columns {fitted, read_not_used: ["name[unit]"]}.
+    Raises InputError on broken files and on units that are very likely mislabelled.
     """
     import numpy as np
 
@@ -270,17 +270,17 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     if diameter_m is not None and not (0.01 <= diameter_m <= 3.0):
         raise InputError("%s: propeller diameter %.4g m is outside 0.01..3 m; give it as e.g. "
                          "'# diameter: 10in' or '--diameter 0.254'" % (path, diameter_m))
-    out = {
+    return {
         "command": u, "voltage_V": v, "thrust_N": t, "power_W": power, "voltage_span_V": v_span,
-        "thrust_unit": units["thrust"], "command_unit": units["command"],
-        "current_unit": units["current"],
+        "thrust_unit": units["thrust"], "command_unit": units["command"], "current_unit": units["current"],
+        "columns": {"fitted": ["%s[%s]" % (n, columns[n][1]) for n in REQUIRED],
+                    "read_not_used": ["%s[%s]" % (n, columns[n][1]) for n in extra]},
         "rows_total": rows_total, "rows_rejected": rows_total - n_keep,
         "rejected": {k: c for k, c in rejected.items() if c},
         "bench_air": air, "diameter_m": diameter_m,
         "input_sha256": digest,
         "warnings": warnings,
     }
-    return out
 
 
 def _row_checks(path, data, rows_total):

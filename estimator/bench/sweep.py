@@ -10,6 +10,7 @@ bench flow never imports the pre-flight flow.
 """
 
 import math
+from collections import namedtuple
 
 import numpy as np
 
@@ -36,17 +37,24 @@ FULL_COMMAND_SWEPT = 0.98
 START_POORLY_DETERMINED = 0.025
 
 
-def fit_bench_file(path, diameter_m=None, default_diameter_m=None, density_kg_m3=None, altitude_m=None,
-                   temperature_C=None, pressure_Pa=None, humidity_pct=None,
-                   voltage_exponent=None, keep_arrays=False):
-    """Fit a bench CSV and return the parameter-set dict (not yet written; see params.write_params).
+# the rows a fit read, in SI (command [-], voltage_V [V], thrust_N [N], power_W [W]), and
+# which of them it used (False for a spike): what the plot step draws (estimator.bench.plots)
+Rows = namedtuple("Rows", "command voltage_V thrust_N power_W used")
+# what fit_sweep returns: the parameter set (not yet written), the rows, and the CSV's
+# columns as the reader took them ({fitted, read_not_used: ["name[unit]", ...]})
+SweepFit = namedtuple("SweepFit", "params rows columns")
+
+
+def fit_sweep(path, diameter_m=None, default_diameter_m=None, density_kg_m3=None, altitude_m=None,
+              temperature_C=None, pressure_Pa=None, humidity_pct=None, voltage_exponent=None):
+    """Fit a bench CSV: a SweepFit (the parameter-set dict, not yet written, see
+    params.write_params; the rows for a plot; the columns read).
 
     path: bench CSV; diameter_m: propeller diameter [m] (else ``# diameter:``, else
     default_diameter_m, e.g. the vehicle's propeller); density_kg_m3 [kg/m^3] / altitude_m [m] /
     temperature_C [C] / pressure_Pa [Pa]
     / humidity_pct [%]: bench air overriding the file; voltage_exponent: fix n [-].
-    keep_arrays=True adds a private ``_arrays`` entry (rows and fits) for plots; it is
-    removed by params.write_params. Raises InputError on bad or impossible data.
+    Raises InputError on bad or impossible data.
     """
     from estimator.bench.reader import read_bench
 
@@ -58,33 +66,41 @@ def fit_bench_file(path, diameter_m=None, default_diameter_m=None, density_kg_m3
     if data["diameter_m"] is None:
         raise InputError("%s: the propeller diameter is needed for the static thrust factor; "
                          "add '# diameter: 10in' to the CSV, or pass --diameter or --vehicle" % path)
-    return fit_bench(data, path, voltage_exponent=voltage_exponent, keep_arrays=keep_arrays)
+    params, rows = _fit_or_refuse(data, path, voltage_exponent)
+    return SweepFit(params, rows, data["columns"])
 
 
-def fit_bench(data, source, voltage_exponent=None, keep_arrays=False):
-    """Fit the arrays returned by estimator.bench.read_bench; see fit_bench_file.
+def fit_bench_file(path, **options):
+    """Fit a bench CSV and return the parameter-set dict (fit_sweep's options)."""
+    return fit_sweep(path, **options).params
 
-    Floating-point trouble on pathological data (overflow, a singular system) becomes an
-    InputError: the sweep cannot be fitted, and nothing is written.
+
+def fit_bench(data, source, voltage_exponent=None):
+    """Fit the arrays returned by estimator.bench.read_bench; the parameter-set dict."""
+    return _fit_or_refuse(data, source, voltage_exponent)[0]
+
+
+def _fit_or_refuse(data, source, voltage_exponent):
+    """(parameter set, Rows). Floating-point trouble on pathological data (overflow, a
+    singular system) becomes an InputError: the sweep cannot be fitted, and nothing is written.
     """
     try:
         with np.errstate(all="ignore"):
-            params = _fit_bench(data, source, voltage_exponent, keep_arrays)
+            params, rows = _fit_bench(data, source, voltage_exponent)
     except (np.linalg.LinAlgError, FloatingPointError, OverflowError, ZeroDivisionError,
             ValueError) as exc:
         raise InputError("%s: the sweep cannot be fitted (%s); check that command, voltage, "
                          "current and thrust hold a real sweep from idle to full command"
                          % (source, exc)) from None
     _check_finite(params, source)
-    return params
+    return params, rows
 
 
 def _check_finite(node, source, path="$"):
     """Refuse a parameter set with a NaN or infinite number (it would not be valid JSON)."""
     if isinstance(node, dict):
         for key, value in node.items():
-            if not key.startswith("_"):
-                _check_finite(value, source, path + "." + key)
+            _check_finite(value, source, path + "." + key)
     elif isinstance(node, list):
         for i, value in enumerate(node):
             _check_finite(value, source, "%s[%d]" % (path, i))
@@ -201,7 +217,7 @@ def start_standard_error(motor, command, both_ways):
     return math.sqrt(max(var, 0.0) + h * h / 12.0 + lag * lag)
 
 
-def _fit_bench(data, source, voltage_exponent, keep_arrays):
+def _fit_bench(data, source, voltage_exponent):
     from estimator.params import build_params, static_factor_at
 
     rho = data["bench_air"]["density_kg_m3"]
@@ -273,7 +289,6 @@ def _fit_bench(data, source, voltage_exponent, keep_arrays):
               "power_spike": int(np.count_nonzero(lv["power_spike"] & ~lv["thrust_spike"]))}
     rejected.update({k: c for k, c in counts.items() if c})
     rows_used = int(u.size - np.count_nonzero(spikes))
-    r_levels = rotor_arrays(theta, lv["command"], lv["voltage_V"])[0] - lv["thrust_N"]
     motor_block = params_dict(theta)
     motor_block.update({"reference_density_kg_m3": rho, "rms_thrust_residual_N": motor["rms_thrust_N"],
                         "thrust_residual_scale_N": motor["scale_thrust_N"],
@@ -290,17 +305,10 @@ def _fit_bench(data, source, voltage_exponent, keep_arrays):
                                                                           data.get("command_unit", "-"))
         + _reference_warning(curve, lv, data.get("command_unit", "-"), data.get("thrust_unit", "N"))
         + _start_warning(motor_block, data.get("command_unit", "-")),
-        "levels": {"command": lv["command"], "thrust_residual_N": r_levels, "thrust_N": lv["thrust_N"]},
     }
     sf["value"], sf["value_se"] = static_factor_at(power, sf["median_thrust_N"], rho, area, sf["cov"], source,
                                                    "the median thrust")
-    params = build_params(data, fit, source)
-    if keep_arrays:
-        params["_arrays"] = {"command": u, "voltage_V": v, "thrust_N": t, "power_W": p,
-                             "used": ~spikes, "thrust_model_N": thrust_model_N(curve, u, v),
-                             "command_unit": data.get("command_unit", "-"),
-                             "thrust_unit": data.get("thrust_unit", "N")}
-    return params
+    return build_params(data, fit, source), Rows(u, v, t, p, ~spikes)
 
 
 def _range_warnings(curve, theta, v_ref, top_found, unit="-"):

@@ -85,22 +85,15 @@ OPTIONAL_WHY = ("the fit takes each row's command, voltage, current and thrust; 
                 "needs neither rotor speed nor torque, and it does not correct for time or temperature")
 
 
-def column_use(path):
-    """Which columns of the bench CSV ``path`` the fit used: {"fitted": ["command[us]", ...],
-    "read_not_used": ["rpm[rpm]", ...] (the optional columns, estimator.bench.reader.OPTIONAL,
-    read and checked as numbers), "why_not_used": text}. The header is read again (a few lines)."""
-    from estimator import csvtable
-    from estimator.bench.reader import EXAMPLE_HEADER, OPTIONAL, REQUIRED, UNITS
-
-    head = csvtable.read_head(path, "a bench CSV", EXAMPLE_HEADER)
-    columns = csvtable.parse_header(path, head, UNITS, OPTIONAL)[0]
-    return {"fitted": ["%s[%s]" % (n, columns[n][1]) for n in REQUIRED],
-            "read_not_used": ["%s[%s]" % (n, columns[n][1]) for n in OPTIONAL if n in columns],
-            "why_not_used": OPTIONAL_WHY}
+def column_use(columns):
+    """Which columns of the bench CSV the fit used, from the reader's ``columns``: {"fitted":
+    ["command[us]", ...], "read_not_used": ["rpm[rpm]", ...] (the optional columns,
+    estimator.bench.reader.OPTIONAL, read and checked as numbers), "why_not_used": text}."""
+    return dict(columns, why_not_used=OPTIONAL_WHY)
 
 
 def columns_note(use):
-    """The fit summary's one line from column_use(path)."""
+    """The fit summary's one line from column_use(columns)."""
     from estimator.bench.reader import OPTIONAL
 
     fitted = ", ".join(use["fitted"])

@@ -23,22 +23,23 @@ VOLTAGE_EXPONENT_WHY = {
 
 
 def fit_for_vehicle(bench_file, vehicle, **fit_options):
-    """Fit a bench CSV and add a vehicle's hover values: the bench flow's fit, the pre-flight
-    flow's hover block from that parameter set, then params.add_vehicle (this command chains
-    the two flows; neither imports the other). The vehicle's propeller gives the diameter when
-    neither --diameter nor the CSV does. Raises InputError for a vehicle the sweep does not
-    fit (params.check_vehicle_match) or one that cannot hover on it."""
+    """Fit a bench CSV and add a vehicle's hover values (fit_sweep's options); the parameter set."""
     from estimator.bench.sweep import fit_bench_file
+
+    params = fit_bench_file(bench_file, default_diameter_m=vehicle["propeller"]["diameter_m"], **fit_options)
+    return with_vehicle(params, vehicle, bench_file)
+
+
+def with_vehicle(params, vehicle, bench_file):
+    """A parameter set fitted without a vehicle, with the vehicle's hover values: the pre-flight
+    flow's hover block from that set, then params.add_vehicle (this command chains the two
+    flows; neither imports the other). Raises InputError for a vehicle the sweep does not fit
+    (params.check_vehicle_match) or one that cannot hover on it."""
     from estimator.params import add_vehicle, check_vehicle_match
     from estimator.preflight.measured_rotor import hover_block
 
-    params = fit_bench_file(bench_file, default_diameter_m=vehicle["propeller"]["diameter_m"], **fit_options)
-    arrays = params.pop("_arrays", None)
     check_vehicle_match(params, vehicle, bench_file, json_paths=False)
-    out = add_vehicle(params, vehicle, hover_block(vehicle, params))
-    if arrays is not None:
-        out["_arrays"] = arrays
-    return out
+    return add_vehicle(params, vehicle, hover_block(vehicle, params))
 
 
 def _pm(value, se, why_none):
@@ -166,7 +167,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     The CSV has a name[unit] header: {header}; '# altitude:', '# temperature:', '# pressure:', '# humidity:'
     or '# density:' comments give the bench air and '# diameter:' the propeller.
     """
-    from estimator.bench.sweep import fit_bench_file, summary
+    from estimator.bench.sweep import fit_sweep, summary
     from estimator.params import check_params, write_params
 
     from estimator.outputs import check_outputs
@@ -177,17 +178,15 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     if vehicle_file is not None:
         from estimator.vehicle import load_vehicle
         vehicle = load_vehicle(vehicle_file)
-    air = dict(density_kg_m3=density, altitude_m=altitude, temperature_C=temperature, pressure_Pa=pressure,
-               humidity_pct=humidity, voltage_exponent=voltage_exponent, keep_arrays=plot_file is not None)
-    if vehicle is None:
-        params = fit_bench_file(bench_file, diameter_m=diameter, **air)
-    else:
-        params = fit_for_vehicle(bench_file, vehicle, diameter_m=diameter, **air)
+    fitted = fit_sweep(bench_file, diameter_m=diameter, density_kg_m3=density, altitude_m=altitude,
+                       temperature_C=temperature, pressure_Pa=pressure, humidity_pct=humidity,
+                       voltage_exponent=voltage_exponent,
+                       default_diameter_m=vehicle and vehicle["propeller"]["diameter_m"])
+    params = fitted.params if vehicle is None else with_vehicle(fitted.params, vehicle, bench_file)
     if voltage_exponent is not None:
         params["thrust_curve"]["voltage_exponent_source"] = "given"
-    arrays = params.pop("_arrays", None)
     from estimator.bench.wording import column_use
-    columns = column_use(bench_file)
+    columns = column_use(fitted.columns)
     check_params(params, out_file)
     # the vehicle's margins (full-command pack sag, motor and pack current, thin air...) as the
     # hover sheet gives them from this parameter set: printed, not stored (they belong to the
@@ -199,7 +198,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     plot_existed = plot_file is not None and os.path.lexists(plot_file)
     if plot_file is not None:
         from estimator.bench.plots import plot_fit
-        plot_fit(plot_file, params, arrays)
+        plot_fit(plot_file, params, fitted.rows)
     try:
         write_params(out_file, params)
     except Exception:
