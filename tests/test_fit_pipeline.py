@@ -22,3 +22,38 @@ def test_fit_returns_rows_and_columns_as_named_values(tmp_path):
     # the simulator writes time[s],command[us],voltage[V],current[A],thrust[g] (demo/bench_sim.py)
     assert fitted.columns == {"fitted": ["command[us]", "voltage[V]", "current[A]", "thrust[g]"],
                               "read_not_used": ["time[s]"]}
+
+
+def _entries(run, caller):
+    """{module: calls} from the module ``caller`` into other modules of estimator/ while run()
+    runs (sys.setprofile; the import of a module is not a call)."""
+    import collections
+    import sys
+
+    counts = collections.Counter()
+
+    def profile(frame, event, arg):
+        if event == "call" and frame.f_code.co_name != "<module>" and frame.f_back is not None:
+            callee = frame.f_globals.get("__name__", "")
+            if callee.startswith("estimator") and callee != caller \
+                    and frame.f_back.f_globals.get("__name__") == caller:
+                counts[callee] += 1
+
+    sys.setprofile(profile)
+    try:
+        run()
+    finally:
+        sys.setprofile(None)
+    return counts
+
+
+def test_the_pipeline_enters_each_step_once_or_twice(tmp_path):
+    # the fit reads top-down (issue 10's "done when"): reader, checks, levels, each model's
+    # fitter (one call returns all it knows), wording, parameter set; a check before a fit
+    # (k <= 1 before the levels, a rising sweep before the motor fit) is the second entry
+    path = _demo_csv(tmp_path)
+    fit_sweep(path)  # imports happen here, outside the count
+    counts = _entries(lambda: fit_sweep(path), "estimator.bench.sweep")
+    assert set(counts) >= {"estimator.bench.reader", "estimator.bench.motor_fit", "estimator.bench.curve_fit",
+                           "estimator.bench.power_fit", "estimator.params"}
+    assert max(counts.values()) <= 2, counts

@@ -6,7 +6,8 @@ level keeps its mean command, voltage, thrust and power and its row count; rows 
 their own level's mean (a load-cell knock, a current glitch) are counted as spikes and left
 out of the mean, judged only in levels of at least three rows (two rows cannot say which one
 is wrong). The grouping works over integer keys (estimator.bench.row_sums: sums in row
-order, in blocks that stay in cache): linear in the rows, no sort.
+order, in blocks that stay in cache): linear in the rows, no sort. Rows of levels too small
+to judge so are screened against the fitted motor model instead (drop_model_spikes).
 """
 
 import math
@@ -338,3 +339,43 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     return {"command": u_m[has], "voltage_V": v_m[has], "thrust_N": t_m[has], "power_W": p_m[has],
             "count": count[has], "row_key": key, "key_level": out_level,
             "thrust_spike": thrust_spike, "power_spike": power_spike}
+
+
+def drop_model_spikes(lv, thrust_of, u, v, t, p):
+    """Rows of small levels (one or two rows, where command_levels cannot judge) far from a
+    fitted model, thrust_of(command [-], voltage [V]) -> thrust [N] (the motor model's,
+    estimator.bench.motor_fit), among the rows u [-], v [V], t [N], p [W]. A row is a spike
+    when its residual exceeds SPIKE_SIGMAS times the spread of the level residuals at its
+    thrust (noise_profile of the level residuals scaled to one row: load-cell noise grows with the load, and the model's
+    own misfit is part of that spread). Spikes are marked in lv["thrust_spike"] (counted and
+    left out of rows_used) and taken out of their levels' means; a level left empty is
+    dropped. Returns True when a level changed (the fits must run again)."""
+    n = lv["count"]
+    t_lv = np.abs(lv["thrust_N"])
+    r_lv = thrust_of(lv["command"], lv["voltage_V"]) - lv["thrust_N"]
+    r_row = r_lv * np.sqrt(n)  # a level mean's residual scaled to one row's
+    profile = noise_profile(t_lv, r_row)
+    row_scale = np.interp(t_lv, *profile) if profile is not None else np.full(n.size, robust_scale(r_row))
+    if not np.all(row_scale > 0.0):
+        return False
+    bad = (np.abs(r_row) > SPIKE_SIGMAS * row_scale) & (n <= 2)
+    if not np.any(bad):
+        return False
+    rows = np.flatnonzero(np.take(bad[lv["key_level"]], lv["row_key"]))
+    r_rows = thrust_of(u[rows], v[rows]) - t[rows]
+    rows = rows[np.abs(r_rows) > SPIKE_SIGMAS * row_scale[lv["key_level"][lv["row_key"][rows]]]]
+    rows = rows[~lv["thrust_spike"][rows]]
+    if rows.size == 0:
+        return False
+    lv["thrust_spike"][rows] = True
+    k = lv["key_level"][lv["row_key"][rows]]
+    count = n - np.bincount(k, minlength=n.size)
+    for name, x in (("command", u), ("voltage_V", v), ("thrust_N", t), ("power_W", p)):
+        lv[name] = (lv[name] * n - np.bincount(k, weights=x[rows], minlength=n.size)) / np.maximum(count, 1.0)
+    keep = count > 0
+    for name in ("command", "voltage_V", "thrust_N", "power_W"):
+        lv[name] = lv[name][keep]
+    lv["count"] = count[keep]
+    lv["key_level"] = (np.cumsum(keep) - 1)[lv["key_level"]]
+    lv["current_A"] = lv["power_W"] / lv["voltage_V"]
+    return True

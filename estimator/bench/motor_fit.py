@@ -56,6 +56,11 @@ DUTY_INDEX = 6
 # a one-supply sweep's voltages further than this (rms, share of the median) from the
 # supply's line are real changes (a pack drifting as it discharges), not voltmeter noise [-]
 SUPPLY_LINE_MAX_RMS = 0.005
+# the sweep shows the ESC's top end point when the fit puts it this far below the highest
+# command swept [-]
+TOP_END_MARGIN = 0.01
+# a sweep whose highest command is at least this reaches full command [-]
+FULL_COMMAND_SWEPT = 0.98
 
 
 def rotor_arrays(theta, command, voltage_V, density_ratio=1.0):
@@ -170,6 +175,53 @@ def _bounds(lv):
     hi = [60.0, 60.0, math.log(1e3), math.log(2.0 * i_top), 0.5, 1.0, 2.5, math.log(0.5 * i_top + 1e-12),
           math.log(2.0 * i_top / v_top)]
     return np.array(lo), np.array(hi)
+
+
+def fit_motor_model(lv, rows, v_ref):
+    """The motor model fitted to a sweep's levels, with all the fit says: one call.
+
+    One pass sees whether the sweep levels off below its highest command (the ESC's top end
+    point); the final passes fit u1 there, or hold full command at 1 (at the sweep's top when
+    it stops short of FULL_COMMAND_SWEPT: an ESC calibrated to a narrower pulse range, or a
+    sweep cut short; never extrapolated beyond it). A sweep without a voltage spread
+    (curve_fit.voltage_spread) gets the duty prior (module docstring). Rows of small levels
+    far from the fitted model are dropped as spikes (levels.drop_model_spikes; lv changes) and
+    the model fitted again. lv: levels (fit_motor); rows: (command [-], voltage [V], thrust
+    [N], power [W]) arrays of the rows; v_ref: reference voltage [V].
+    Returns fit_motor's dict plus: top_found (bool), command_swept_max [-] (highest level
+    command before the spike screen), voltage_exponent, density_exponent [-] at full command
+    and v_ref (motor_exponents) and their standard errors voltage_exponent_se,
+    density_exponent_se (exponent_errors), projection (command grid [-] from u0 to u1, thrust
+    [N] there at v_ref: what the controller's quadratic is fitted to), thrust_top_N [N] at u1
+    and v_ref, block (params_dict of theta).
+    """
+    from estimator.bench.curve_fit import MIN_VOLTAGE_SPREAD, voltage_spread
+    from estimator.bench.levels import drop_model_spikes
+
+    u_hi = float(np.max(lv["command"]))
+    prior = DUTY_PRIOR if voltage_spread(lv) < MIN_VOLTAGE_SPREAD else None
+    motor = fit_motor(lv, top_end=True, passes=1, duty_prior=prior)
+    top_found = motor["theta"][5] < u_hi - TOP_END_MARGIN
+
+    def final_motor(start):
+        if top_found:
+            return fit_motor(lv, top_end=True, start=start, duty_prior=prior)
+        return fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi, start=start,
+                         duty_prior=prior)
+
+    motor = final_motor(motor)
+    if drop_model_spikes(lv, lambda c, v, theta=motor["theta"]: rotor_arrays(theta, c, v)[0], *rows):
+        motor = final_motor(motor)
+    theta = motor["theta"]
+    n, m = motor_exponents(theta, v_ref)
+    se_n, se_m = exponent_errors(motor, v_ref)
+    grid = np.linspace(float(theta[4]), float(theta[5]), 161)
+    motor.update({"top_found": bool(top_found), "command_swept_max": u_hi,
+                  "voltage_exponent": n, "density_exponent": m, "voltage_exponent_se": se_n,
+                  "density_exponent_se": se_m, "projection": (grid, rotor_arrays(theta, grid, v_ref)[0]),
+                  "thrust_top_N": float(rotor_arrays(theta, np.array([theta[5]]), v_ref)[0][0]),
+                  "block": params_dict(theta)})
+    return motor
 
 
 def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None, duty_prior=None):

@@ -80,6 +80,80 @@ def thrust_text(thrust_N, unit, se_N=None):
     return "%s %s +- %s %s" % (value, unit, error, unit) if error else "%s %s" % (value, unit)
 
 
+# a spin-up command whose standard error exceeds this (a 95 % interval wider than +-0.05) is
+# called poorly determined: the sweep cannot tell where the ESC's duty starts from the shape
+# of its duty curve (the duty exponent) [-]
+START_POORLY_DETERMINED = 0.025
+
+
+def fit_warnings(curve, motor, lv, command_unit="-", thrust_unit="N"):
+    """The fit's own warnings, with numbers, in the CSV's units: full command beyond the sweep
+    or at the ESC's top end point, the full-command thrust quoted above every thrust measured,
+    a poorly determined spin-up command. curve: estimator.bench.curve_fit.fit_curve's dict;
+    motor: the parameter set's motor_model block; lv: the levels. Returns a list of texts."""
+    return (_range_warnings(curve, motor["command_top"], motor["top_end_found"], command_unit)
+            + _reference_warning(curve, lv, command_unit, thrust_unit) + _start_warning(motor, command_unit))
+
+
+def _range_warnings(curve, command_top, top_found, unit="-"):
+    """Warnings with numbers when the parameter set's full command lies beyond the sweep."""
+    from estimator.bench.motor_fit import FULL_COMMAND_SWEPT
+
+    out = []
+    u_hi = curve["command_swept_max"]
+    if top_found:
+        out.append("thrust levels off above command %s: the ESC's top end point; thrust_max_N is the "
+                   "thrust there (command_max), commands above it add nothing" % command_text(command_top, unit))
+    elif u_hi < FULL_COMMAND_SWEPT:
+        out.append("the sweep stops at command %s: taken as full command (thrust_max_N and command_max "
+                   "there); if the ESC runs on to %s, thrust-to-weight is higher than stated. "
+                   "Sweep to full command, or set the ESC's end points to the swept range"
+                   % (command_text(u_hi, unit), command_text(1.0, unit)))
+    return out
+
+
+def _reference_warning(curve, lv, command_unit="-", thrust_unit="N"):
+    """A warning when the full-command thrust, quoted at the reference voltage (the sweep's
+    median bus voltage), lies above every thrust level measured by more than its standard
+    error: the rows at full command ran at a lower bus voltage (a supply sagging under load),
+    and the curve there gives less. [] otherwise."""
+    import numpy as np
+
+    from estimator.bench.curve_fit import thrust_model_N
+
+    t_max, se = curve["thrust_max_N"], curve["standard_errors"]["thrust_max_N"]
+    t_seen = float(np.max(lv["thrust_N"]))
+    if not t_max > t_seen + se:
+        return []
+    top = lv["command"] >= curve["command_max"] - 0.005
+    if not np.any(top):
+        top = lv["command"] >= float(np.max(lv["command"])) - 0.005
+    v_all = lv["voltage_V"][top]
+    v_top = float(np.median(v_all))
+    t_there = float(thrust_model_N(curve, np.array([curve["command_max"]]), np.array([v_top]))[0])
+    ran = "%.2f V" % v_top
+    if float(np.ptp(v_all)) > 0.01 * v_top:  # several supplies
+        ran = "%.2f..%.2f V (median %.2f V)" % (float(np.min(v_all)), float(np.max(v_all)), v_top)
+    return ["full-command thrust %s is the curve at the reference voltage %.2f V (the sweep's median bus "
+            "voltage), above the highest thrust measured (%s): the full-command rows ran at %s, where "
+            "the curve gives %s; on a pack, full command gives the thrust at the pack's own sagged voltage"
+            % (thrust_text(t_max, thrust_unit), curve["reference_voltage_V"], thrust_text(t_seen, thrust_unit),
+               ran, thrust_text(t_there, thrust_unit))]
+
+
+def _start_warning(motor_block, unit="-"):
+    """A warning when the spin-up command is poorly determined (standard error beyond
+    START_POORLY_DETERMINED); [] otherwise."""
+    se = motor_block["command_start_standard_error"]
+    if not se > START_POORLY_DETERMINED:
+        return []
+    return ["the rotor's start command %s is poorly determined by this sweep: it trades off against the "
+            "ESC's duty curve (duty exponent %.2f fitted); log more command steps just above idle to pin "
+            "it. The hover command and current come from the fitted duty curve as a whole and do not "
+            "rest on it" % (command_with_error(motor_block["command_start"], se, unit),
+                            motor_block["duty_exponent"])]
+
+
 # why the optional columns of a sweep are read (checked as numbers) but not used
 OPTIONAL_WHY = ("the fit takes each row's command, voltage, current and thrust; its motor model "
                 "needs neither rotor speed nor torque, and it does not correct for time or temperature")

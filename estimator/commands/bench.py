@@ -63,8 +63,7 @@ def _exponent_text(value, se, why):
 
 def _start_text(mm, unit):
     """The spin-up command with its standard error, and a word when the sweep cannot tell it."""
-    from estimator.bench.sweep import START_POORLY_DETERMINED
-    from estimator.bench.wording import command_with_error
+    from estimator.bench.wording import START_POORLY_DETERMINED, command_with_error
 
     se = mm.get("command_start_standard_error")
     text = command_with_error(mm["command_start"], se or 0.0, unit) + " (motor model: where the ESC's duty starts)"
