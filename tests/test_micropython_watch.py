@@ -154,7 +154,7 @@ print("ALLOC", a1 - a0)
 def locked():
     micropython.heap_lock()
     try:
-        w._reset()   # a landing: the state list is cleared in place
+        w.clear()   # a landing: the state list is cleared in place
         run_stream(w, 10000, 13, stats)
         err = "none"
     except MemoryError:

@@ -65,7 +65,7 @@ def instrumented_watch_class():
     for node in ast.walk(tree):
         if isinstance(node, ast.ClassDef):
             for fn in node.body:
-                if isinstance(fn, ast.FunctionDef) and fn.name in ("update", "_block", "_reset"):
+                if isinstance(fn, ast.FunctionDef) and fn.name in ("update", "_block", "clear"):
                     _Checker().visit(fn)
     ast.fix_missing_locations(tree)
     ns = {"_chk": _chk}
@@ -80,9 +80,9 @@ def _state_ok(w):
     for name, value in vars(w).items():
         if isinstance(value, int):
             assert -LIMIT < value < LIMIT, name
-    for i, value in enumerate(w.st[1:]):   # the state list after the CONFIG reference
+    for i, value in enumerate(w.state[1:]):   # the state list after the CONFIG reference
         assert type(value) is int and -LIMIT < value < LIMIT, (i + 1, value)
-    for i, value in enumerate(w.sb):
+    for i, value in enumerate(w.data):
         assert type(value) is int and -LIMIT < value < LIMIT, ("sb", i, value)
 
 
@@ -268,7 +268,7 @@ def test_expected_power_matches_float_power_model():
                 w.update(100, int(round(1000 * u)), int(volts * 1000), 20000 + _ % 2)
             t = thrust_curve.thrust_N(u, volts, rho, params["thrust_curve"])
             ref = n * rotor_power_W(pm, t, rho)  # the one power model (estimator.core.power_model)
-            expected_dW = w.st[2] >> 2     # the lagged expected power (state slot 2, in 0.1 W / 4)
+            expected_dW = w.state[2] >> 2     # the lagged expected power (state slot 2, in 0.1 W / 4)
             assert abs(expected_dW / 10.0 - ref) / ref < 0.01, (u, volts, expected_dW, ref)
 
 
@@ -291,12 +291,12 @@ def test_update_source_has_no_loops_and_no_allocating_nodes():
     # No data-dependent loops and nothing that builds objects inside update (design notes sec. 3).
     with open(WATCH_SRC, "r", encoding="utf-8") as fh:
         tree = ast.parse(fh.read())
-    funcs = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name in ("update", "_block", "_reset")]
+    funcs = [n for n in ast.walk(tree) if isinstance(n, ast.FunctionDef) and n.name in ("update", "_block", "clear")]
     assert len(funcs) == 3
     banned = (ast.For, ast.While, ast.List, ast.Dict, ast.Set, ast.ListComp, ast.GeneratorExp,
               ast.Lambda, ast.JoinedStr, ast.Try, ast.Raise)
     for f in funcs:
-        if f.name == "_reset":   # one counted loop over the state list (range(constant): no allocation)
+        if f.name == "clear":   # one counted loop over the state list (range(constant): no allocation)
             loops = [n for n in f.body if isinstance(n, ast.For)]
             from watch_helpers import block_state_names
             assert len(loops) == 1 and ast.unparse(loops[0].iter) == "range(%d)" % len(block_state_names())
@@ -377,7 +377,7 @@ def test_a_sustained_descent_stays_a_manoeuvre_for_its_whole_length():
     def matching_mA(u):   # the current at which the measured power is the expected one
         w = Watch(as_tuple(cfg))
         w.update(100, u, mv, 20000)
-        return int(round((w.st[2] >> 2) * 1e5 / mv / 10.0)) * 10 + 5
+        return int(round((w.state[2] >> 2) * 1e5 / mv / 10.0)) * 10 + 5
 
     w = Watch(as_tuple(cfg))
     for u, blocks in ((520, 40), (470, 60)):
@@ -385,5 +385,5 @@ def test_a_sustained_descent_stays_a_manoeuvre_for_its_whole_length():
         for i in range(blocks):
             flags = w.update(100, u, mv, ma + (i % 2) * 10)
         if u == 520:
-            assert w.sb[0] == 0 and w.sb[25] <= 0, "learning done, hover steady"
-    assert w.sb[25] > 0 and flags == 0, (w.sb[25], flags)
+            assert w.data[0] == 0 and w.data[25] <= 0, "learning done, hover steady"
+    assert w.data[25] > 0 and flags == 0, (w.data[25], flags)

@@ -72,7 +72,7 @@ def _kernel_run_length(cfg, sigma_pm, rng, cap=20000):
     mv, u = 15000, 520
     for _ in range(3):
         w.update(100, u, mv, 20000 + _)
-    pe = w.st[2] >> 2                 # the lagged expected power [0.1 W] (settled: no lag)
+    pe = w.state[2] >> 2                 # the lagged expected power [0.1 W] (settled: no lag)
     k = cfg["cusum_k_q8"] * sigma_pm >> 8
     h = cfg["cusum_h_q8"] * sigma_pm >> 8
     set_state(w, learning=0, scale=1000, sig=sigma_pm << 6, k=k, h=h, s_hi=0, s_lo=0, drift=0, flags=0)
@@ -147,7 +147,7 @@ def test_capped_reference_keeps_the_false_alarm_rate():
         set_state(w, learning=0, sig=s << 6)
         for _ in range(cfg["block_ms"] // 100):               # one block: k and h from the noise
             w.update(100, 520, 15000, 20000)
-        k, h = w.sb[7], w.sb[8]
+        k, h = w.data[7], w.data[8]
         s = max(s, cfg["noise_floor_permille"])               # the kernel's noise is never below its floor
         assert k <= k_max
         ks, hs = k / s, h / s
@@ -170,7 +170,7 @@ def _learn_baseline(sigma_rel, offset_rel, seed):
     rng = random.Random(seed)
     mv, u = 15000, 520
     w.update(100, u, mv, 20000)
-    pe = w.st[2] >> 2
+    pe = w.state[2] >> 2
     flags = 0
     for _ in range(60):
         target_dW = pe * (1.0 + offset_rel + sigma_rel * rng.gauss(0.0, 1.0))

@@ -103,13 +103,13 @@ def _unpacked_names(func_name, list_name):
 
 
 def state_names():
-    """Names of the kernel's per-sample state list ``Watch.st`` in order: the targets of the one
+    """Names of the kernel's per-sample state list ``Watch.state`` (``st`` in update) in order: the targets of the one
     unpacking ``(...) = st`` in update() (read from the source, so they cannot drift)."""
     return _unpacked_names("update", "st")
 
 
 def block_state_names():
-    """Names of the kernel's block state list ``Watch.sb`` (the unpacking in _block())."""
+    """Names of the kernel's block state list ``Watch.data`` (``sb`` in _block) (the unpacking in _block())."""
     return _unpacked_names("_block", "sb")
 
 
@@ -118,9 +118,9 @@ def set_state(w, **values):
     names, bnames = state_names(), block_state_names()
     for name, value in values.items():
         if name in bnames:
-            w.sb[bnames.index(name)] = value
+            w.data[bnames.index(name)] = value
         else:
-            w.st[names.index(name)] = value
+            w.state[names.index(name)] = value
 
 
 def flight_ints(flight):
@@ -146,7 +146,7 @@ def run_flight(config, flight, dt_ms=100):
         prev = f
         if new:
             events.append((float(flight["time_s"][i]), new))
-        if w.mass_g and w.sb[0] == 0 and u[i] > 100:
+        if w.mass_g and w.data[0] == 0 and u[i] > 100:
             masses.append(w.mass_g)
     return w, events, masses
 

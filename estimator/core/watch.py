@@ -15,36 +15,36 @@ nothing and never raise for int inputs. Copied verbatim into the board bundle as
 class Watch:
     """Power watch of one vehicle (CONFIG by liftcal firmware; desktop: watch.config.new_watch)."""
 
-    def __init__(self, config):
-        """config: CONFIG of liftwatch_config, a tuple or list of 145 ints [-] (watch_layout).
-        Raises ValueError when CONFIG was made for another kernel format (the board loader
-        liftwatch_load checks every bound first and says what is wrong in words)."""
-        if len(config) != 145 or config[108] != 5:
-            raise ValueError("CONFIG: run liftcal firmware again")
-        c = config
+    def __init__(self, c):
+        """c: CONFIG of liftwatch_config, a tuple or list of 145 ints [-] (watch_layout).
+        Raises ValueError (no message: a string constant would stay on the heap) when CONFIG was
+        made for another kernel format; the board loader liftwatch_load and the desktop builder
+        check every bound first and say what is wrong in words."""
+        if len(c) != 145 or c[108] != 5:
+            raise ValueError
         span = c[116]
         # thrust fraction t = 4096 ((1 - a) d/S + a (d/S)^2) = d (ta + (tq d >> 10)) >> 14 with
         # d = u - u_min, S = command span (>= 100): ta <= 6.7e5, tq <= 6.9e6
         ta = ((4096 - c[117]) << 14) // span
         tq = (((c[117] << 12) // span) << 12) // span
         i_pos = c[112] if c[112] > 0 else 0   # currents below this: negative (power 0) or a fault
-        # st: [0] CONFIG, [1..11] per-sample state ([2] lagged expected power [0.1 W / 4]), [12..20]
-        # CONFIG scalars read every sample, [21..24] derived, [25] the block's thrust-factor sum,
-        # [26] its static expected energy [0.1 W ms], [27] the block weight w of a sample of dt;
-        # dt_last, alpha and w start as those of a 1 ms sample (a valid dt: checked on change only)
-        self.st = [c, 0, 0, 1, 256 // (c[120] + 1), -1, 0, 0, 0, 0, 0, 0,
-                   c[109], c[110], c[111], c[113], c[114], c[115], c[118], c[119], c[121],
-                   ta, tq, c[115] + span, i_pos, 0, 0, 1]
-        # sb: block state, named by the unpacking in _block (DEVELOPERS.md: sig in Q6, drift in Q8,
-        # fsl the hover thrust factor in Q7, low: the block's expected power fell below the floor);
-        # the inflow slope cx starts at momentum theory's 0.5
+        # state (st in update): [0] CONFIG, [1..11] per-sample state ([2] lagged expected power
+        # [0.1 W / 4]), [12..20] CONFIG scalars read every sample, [21..24] derived, [25] the
+        # block's thrust-factor sum, [26] its static expected energy [0.1 W ms], [27] the block
+        # weight w of a sample of dt; dt_last, alpha and w start as those of a 1 ms sample (a valid dt: checked on change only)
+        self.state = [c, 0, 0, 1, 256 // (c[120] + 1), -1, 0, 0, 0, 0, 0, 0,
+                      c[109], c[110], c[111], c[113], c[114], c[115], c[118], c[119], c[121],
+                      ta, tq, c[115] + span, i_pos, 0, 0, 1]
+        # data (sb in _block): block state, named by the unpacking in _block (DEVELOPERS.md: sig in
+        # Q6, drift in Q8, fsl the hover thrust factor in Q7, low: the block's expected power fell
+        # below the floor); the inflow slope cx starts at momentum theory's 0.5
         self.thrust_mN = self.hover_permille = 0
-        self.sb = [0] * 30
-        self._reset()
+        self.data = [0] * 30
+        self.clear()
 
-    def _reset(self):
+    def clear(self):
         """A new flight: forget the learned scale, noise, CUSUM sums, drift and mass."""
-        sb = self.sb
+        sb = self.data
         for i in range(30):                               # a counted loop: no allocation
             sb[i] = 0
         sb[0] = 1
@@ -58,7 +58,7 @@ class Watch:
     def update(self, dt_ms, command_permille, bus_mV, bus_mA):
         """One sample: dt_ms [ms] since the last, command [1/1000], bus voltage [mV], current [mA].
         Returns the flag bits (int). Never raises for int inputs, never allocates."""
-        st = self.st
+        st = self.state
         (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw,
          dt_max, v_min, v_max, i_max, spin, cmd_min, vstep, pfloor, blk,
          ta, tq, u_top, i_pos, fsum, es, w) = st
@@ -130,7 +130,7 @@ class Watch:
             if quiet >= tb[126]:                          # landed_ms
                 quiet = tb[126]
                 if fl_ms:                                 # landed after a flight: a new one next
-                    self._reset()
+                    self.clear()
                     flags = 0
                     st[1] = 0
                     st[8] = 0
@@ -138,7 +138,7 @@ class Watch:
             if bw:
                 st[9] = st[10] = st[11] = st[25] = 0
                 st[26] = es - ee                          # the lead sum is kept (ee is cleared)
-                self.sb[29] = 0
+                self.data[29] = 0
             return flags
         if quiet:
             st[7] = 0
@@ -150,7 +150,7 @@ class Watch:
         fsum += f * w                                     # 6143 * 2000 = 1.2e7
         es += pe * w                                      # 2^18 * 2000 = 5.2e8
         if pe < pfloor:
-            self.sb[29] = 1                               # low: the block is not judged
+            self.data[29] = 1                             # low: the block is not judged
         if bw >= blk:
             st[26] = 0
             flags = self._block(tb, flags, em, ee, bw, bus_mV, fl_ms, fsum, es - ee)
@@ -166,12 +166,13 @@ class Watch:
             st[26] = es
         return flags
 
-    def _block(self, c, flags, em, ee, bw, mv, fl_ms, fsum, ed):
+    def _block(self, c, flags, e, p, b, v, t, f, l):
         """One block of flight time: residual, learning, CUSUM, noise, drift, implied mass; returns
-        the flags. c: CONFIG; em, ee: measured and lagged expected energy [0.1 W ms]; bw [ms]; mv:
-        last voltage [mV]; fl_ms: flight time [ms]; fsum:
-        thrust factor (Q12 of full thrust) x ms; ed: static less lagged expected energy (the lead)."""
-        sb = self.sb
+        the flags. c: CONFIG; e, p: measured and lagged expected energy [0.1 W ms]; b: block length
+        [ms]; v: last voltage [mV]; t: flight time [ms]; f: thrust factor (Q12 of full thrust) x ms;
+        l: static less lagged expected energy (the lead). (Names the interpreter already holds
+        cost no heap: DEVELOPERS.md, "Heap on the board".)"""
+        sb = self.data
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
          m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low) = sb
         # CUSUM k, h [permille] from the noise; k at most k_max, h raised so that h k stays
@@ -186,7 +187,7 @@ class Watch:
         sb[7] = k
         sb[8] = h
         hh = h >> 1                                       # sums below this: no suspicion
-        pmb = em // bw                                    # mean measured power [0.1 W] <= 180000
+        pmb = e // b                                      # mean measured power [0.1 W] <= 180000
         sh = c[123]
         top = (32 << sh) - 1
         if pmb > top:
@@ -195,12 +196,12 @@ class Watch:
         a = c[j]                                          # < 2^13
         th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[124]  # 2^13 * 2^13 ; <= 1e6
         self.thrust_mN = th                               # thrust from measured power (table)
-        dv = mv - c[110]
+        dv = v - c[110]
         vs = c[118]
         j = dv // vs
         a = c[j + 13]
         self.hover_permille = a + (c[j + 14] - a) * (dv % vs) // vs   # 1000 * 5001
-        fb = fsum // bw                                   # Q12, <= 6143
+        fb = f // b                                       # Q12, <= 6143
         if fsl == 0:
             fsl = fb << 7                                 # Q7 of Q12, < 2^20
         fsd = (fsl >> 7) + 1
@@ -212,17 +213,17 @@ class Watch:
             hold = c[143]                                 # a manoeuvre: not judged for settle_ms after it
             sb[25] = hold
         elif hold > 0:
-            hold -= bw
+            hold -= b
             sb[25] = hold
         steady = hold <= 0
         near = low == 0 and -250 <= x <= 250              # judged (at half weight unless steady)
         sb[12] = fsl + (((fb << 7) - fsl) >> (4 if learning else 7))   # 2^20
         esh = c[122]                                      # energy_shift (watch_layout)
-        e0 = ee >> esh                                    # < 2^19
+        e0 = p >> esh                                     # < 2^19
         e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
         if e0s <= 0:
             return flags
-        d = (em >> esh) - e0s
+        d = (e >> esh) - e0s
         if d >= e0s:
             r = 1000
         elif -d >= e0s:
@@ -230,10 +231,10 @@ class Watch:
         else:
             r = d * 1000 // e0s                           # 6.8e5 * 1000
         self.residual_permille = r
-        if fl_ms < c[127]:                                # take-off: not judged, not learned
+        if t < c[127]:                                    # take-off: not judged, not learned
             return flags
         # lead g: static less lagged expected energy [permille of the expected] (spin-up draw)
-        g = (ed >> esh) * 1000 // (e0 + 1)                # 2^19 * 1000
+        g = (l >> esh) * 1000 // (e0 + 1)                 # 2^19 * 1000
         g = 500 if g > 500 else (-500 if g < -500 else g)
         quiet = near and (learning or s_hi + s_lo < hh)     # no suspicion: slopes learned
         if quiet:
@@ -274,12 +275,12 @@ class Watch:
                 y16 += ((dz << 4) - y16) >> 2             # smoothed deviation x 16, |.| <= 48000
                 sb[24] = y16
                 l_dev += y16 if y16 > 0 else -y16         # <= 48000 x 18000 = 8.7e8
-                l_ms += bw
+                l_ms += b
                 sb[1] = l_sum
                 sb[2] = l_n
                 sb[3] = l_ms
                 sb[4] = l_dev
-            if l_ms >= c[128] or fl_ms >= c[129]:
+            if l_ms >= c[128] or t >= c[129]:
                 floor = c[131]
                 if l_n >= 4:
                     m = l_sum // l_n
@@ -361,7 +362,7 @@ class Watch:
                 m_sum += dm                               # <= 500 x 1200 blocks
                 m_sq += dm * dm                           # <= 250000 x 1200 = 3e8
                 m_n += 1
-                m_ms += bw
+                m_ms += b
                 if m_ms >= c[138]:
                     mu = m_sum // m_n
                     var = m_sq // m_n - mu * mu           # <= 250000

@@ -135,7 +135,7 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
             prev = flags
         if keep_arrays:
             arrays["power_W"].append(mv[i] * max(ma[i], 0) / 1e6)
-            arrays["expected_W"].append((w.st[2] >> 2) * w.scale / 10000.0)   # the kernel's lagged expected power
+            arrays["expected_W"].append((w.state[2] >> 2) * w.scale / 10000.0)   # the kernel's lagged expected power
             arrays["flags"].append(flags)
             arrays["residual"].append(w.residual_permille / 1000.0)
         if progress is not None and i % step == 0:
