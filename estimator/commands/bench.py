@@ -158,9 +158,13 @@ def _human_fit(params, out_file, warnings=None, columns=None):
               help="Fix the voltage exponent n instead of fitting it.")
 @click.option("--plot", "plot_file", default=None, metavar="PNG",
               help="Also draw the fit, its interval and residuals, and power against the ideal bound.")
+@click.option("--replace", "replace", is_flag=True,
+              help="Replace the parameter set at --out even when it was fitted from another bench "
+                   "file or for another propeller (without it liftcal refuses; a re-fit of the same "
+                   "file and rotor replaces it, and says so).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, temperature, pressure,
-        humidity, voltage_exponent, plot_file, as_json):
+        humidity, voltage_exponent, plot_file, replace, as_json):
     """Fit a bench sweep CSV into a validated parameter set.
 
     The CSV has a name[unit] header: {header}; '# altitude:', '# temperature:', '# pressure:', '# humidity:'
@@ -194,6 +198,10 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     if vehicle is not None:
         from estimator.preflight.measured_rotor import hover_from_params
         shown = list(dict.fromkeys(shown + hover_from_params(vehicle, params)["warnings"]))
+    from estimator.replacing import check_set_replacement, replaced_line
+
+    replaced = [line for line in (check_set_replacement(out_file, params, replace),
+                                  replaced_line(plot_file, "png") if plot_file else None) if line]
     plot_existed = plot_file is not None and os.path.lexists(plot_file)
     if plot_file is not None:
         from estimator.bench.plots import plot_fit
@@ -212,9 +220,14 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
         if plot_file:
             out["plot"] = plot_file
         out["cautions"] = list(BENCH_CAUTIONS)
+        out["replaced"] = replaced
         click.echo(dumps(out))
     else:
         click.echo(_human_fit(params, out_file, shown, columns))
+        from estimator.textwidth import fit_width
+
+        for line in replaced:
+            click.echo(fit_width(line))
         if plot_file:
             click.echo("plot written to %s" % plot_file)
 
@@ -322,8 +335,12 @@ def export(params_file, map_file, out_file, as_json):
     from estimator.outputs import SETTINGS_MARK, check_output, write_text
     from estimator.params import load_params
 
+    from estimator.replacing import replaced_line
+
+    replaced = None
     if out_file is not None:
         check_output(out_file, "settings", inputs=(params_file, map_file))
+        replaced = replaced_line(out_file, "settings")
     params = load_params(params_file)
     path = EXAMPLE_MAP if map_file is None else map_file
     mapping = load_map(path)
@@ -344,3 +361,7 @@ def export(params_file, map_file, out_file, as_json):
     click.echo(text if as_json else _fold_arrows(text), nl=False)
     if out_file is not None and not as_json:
         click.echo("settings written to %s" % out_file)
+    if replaced:  # under --json stdout holds the settings object only
+        from estimator.textwidth import fit_width
+
+        click.echo(replaced if as_json else fit_width(replaced), err=as_json)
