@@ -14,8 +14,6 @@ safe in an interrupt). Anything that allocates (printing, logging, radio) is han
 import micropython
 import time
 
-from liftwatch_load import load
-
 SAMPLE_MS = 100  # timer period [ms]; the watch takes the real period from ticks_ms, so late ticks are seen
 
 
@@ -68,6 +66,7 @@ class Monitor:
     """Timer-driven sampling: tick() is the interrupt handler, it never allocates."""
 
     def __init__(self, adapter, config=None, clock=time):
+        from liftwatch_load import load   # imported here: load() lets the loader go once it ran
         self.adapter = adapter
         self.watch = load(config)   # checks CONFIG first; ConfigProblem says what is wrong
         self.clock = clock          # anything with ticks_ms() and ticks_diff() (time, or a test clock)

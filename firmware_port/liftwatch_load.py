@@ -8,8 +8,11 @@ refused before the first flight, not in the air. Python ``assert`` is not used: 
 files may drop it.
 
 The layout module (names, bounds and messages: several KB of heap once imported) is needed
-only for this one check, so load() imports it and lets it go again (sys.modules); the watch
-itself keeps only the kernel, CONFIG and its own state (benchmarks/watch_memory.py).
+only for this one check, so load() imports it and lets it go again (sys.modules); so does this
+module itself (about 0.5 KB: its code and messages) once it has made the Watch - import it
+where you call load(), inside a function, as board_loop does, and it is freed at the next
+collection. The watch itself keeps only the kernel, CONFIG and its own state
+(benchmarks/watch_memory.py).
 """
 
 import sys
@@ -39,4 +42,5 @@ def load(config=None):
         sys.modules.pop("liftwatch_layout", None)   # needed once: its heap is freed at the next collection
     if problem:
         raise ConfigProblem("liftwatch: " + problem + " (regenerate it with liftcal firmware)")
+    sys.modules.pop("liftwatch_load", None)   # needed once too (a later import loads it again)
     return Watch(config)
