@@ -4,13 +4,15 @@
 product of the variations (here 4 rows). Each combination is the vehicle file with those keys
 replaced, checked as a file would be (units, schema, physics), then run through hover_report.
 Rows are ranked by endurance among the combinations that keep every margin
-(estimator.preflight.margins), then the others by endurance.
+(estimator.preflight.margins), then the others by endurance: the endurance the hover sheet leads
+with (estimator.preflight.low_reynolds.endurance_lead).
 """
 
 import copy
 import itertools
 
 from estimator.errors import InputError, shorten
+from estimator.preflight.low_reynolds import endurance_lead
 from estimator.preflight.margins import MARGINS, broken, keeps_margins, margins
 from estimator.preflight.report import hover_report
 from estimator.preflight.warnings import (ENDED_BY_WORDS, REACHABLE_MARK, REACHABLE_MARK_NOTE,
@@ -119,8 +121,11 @@ def compare_rows(document, source, variations, progress=None):
     thrust_to_weight_reachable (False when full command sags the pack below its cutoff),
     reachable_thrust_to_weight [-] (at the cutoff-limited command),
     hover_esc_input_current_A, hover_pack_current_A, full_pack_current_A [A],
-    flight_time_min, flight_ended_by, margins {name: bool|None}, keeps_margins, broken
-    [names]), margins (MARGINS), best (the first row that keeps every margin, or None).
+    flight_time_min (the estimate's), flight_time_lead_min and flight_time_lead_basis (what the
+    row shows and is ranked on: low_reynolds.endurance_lead, the conservative endurance for a
+    small estimated rotor), endurance_lead (that dict), flight_ended_by (of the flight shown),
+    margins {name: bool|None}, keeps_margins, broken [names]), margins (MARGINS), best (the
+    first row that keeps every margin, or None).
     Raises InputError naming the --vary value when a combination is not a valid vehicle.
     """
     combos = combinations(variations)
@@ -150,7 +155,10 @@ def compare_rows(document, source, variations, progress=None):
             "full_pack_current_A": report.get("full_pack_current_A"),
             "mass_kg": report["mass_kg"],
             "flight_time_min": report["flight_time_min"],
-            "flight_ended_by": report.get("flight_ended_by"),
+            "flight_time_lead_min": report["flight_time_lead_min"],
+            "flight_time_lead_basis": report["flight_time_lead_basis"],
+            "endurance_lead": endurance_lead(report),
+            "flight_ended_by": endurance_lead(report)["flight_ended_by"],  # of the flight the row shows
             "propeller_source": report.get("propeller_source"),
             "margins": marks,
             "keeps_margins": keeps_margins(marks),
@@ -158,7 +166,9 @@ def compare_rows(document, source, variations, progress=None):
         })
         if progress is not None:
             progress(i + 1, len(combos))
-    rows.sort(key=lambda r: (not r["keeps_margins"], -(r["flight_time_min"] or 0.0)))
+    # ranked on the endurance the sheet leads with (low_reynolds.endurance_lead: the conservative
+    # one for a small estimated rotor)
+    rows.sort(key=lambda r: (not r["keeps_margins"], -(r["flight_time_lead_min"] or 0.0)))
     for rank, row in enumerate(rows, 1):
         row["rank"] = rank
     best = rows[0] if rows and rows[0]["keeps_margins"] else None
@@ -195,17 +205,23 @@ def format_table(result, name):
         cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
         motor = "%.1f" % r["hover_motor_current_A"] if r["hover_motor_current_A"] is not None else "-"
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
-        time = "%.1f min" % r["flight_time_min"] if r["flight_time_min"] is not None else "no hover"
+        time = "%.1f min" % r["flight_time_lead_min"] if r["flight_time_lead_min"] is not None else "no hover"
         lines.append("%*d  %s  %-7s  %-5s %-7s  %-6s  %s" % (
             rank_w, r["rank"], cells, cmd, _tw_cell(r), motor, pack, time))
         ended = ("ended by %s; " % ENDED_BY_WORDS.get(r["flight_ended_by"], r["flight_ended_by"])
                  if r.get("flight_ended_by") else "")
         marks = "keeps every margin" if r["keeps_margins"] else "breaks " + ", ".join(r["broken"])
         lines += wrap_line(" " * (rank_w + 2) + ended + marks, indent=rank_w + 4)  # words under the row
+        lead = r["endurance_lead"]
+        if lead["other_flight_time_min"] is not None:
+            lines += wrap_line(" " * (rank_w + 2) + "SMALL ROTOR: endurance at the figure of merit %.2f measured "
+                               "rotors of this size reach; the estimate says %.1f min, but %s"
+                               % (lead["figure_of_merit"], lead["other_flight_time_min"], lead["reason"]),
+                               indent=rank_w + 4)
     table, lines = lines, [""]
     if result["best"]:
         lines.append("longest hover that keeps every margin: %s (%.1f min)"
-                     % (result["best"]["label"], result["best"]["flight_time_min"]))
+                     % (result["best"]["label"], result["best"]["flight_time_lead_min"]))
     else:
         lines.append("no combination keeps every margin")
     if labels != list(keys):

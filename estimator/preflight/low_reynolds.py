@@ -132,3 +132,30 @@ def static_note(thrust_N, diameter_m, density_kg_m3):
     duct = duct_note(diameter_m, "more power for the thrust than even this")
     return {"reynolds_75": re75, "figure_of_merit_measured": [fm, fm + FALLBACK_FM_SPREAD],
             "static_factor_band": [k_lo, k_hi], "text": text + ("; " + duct if duct else "")}
+
+
+def endurance_lead(report):
+    """Which endurance a pre-flight sheet or table leads with, and the other beside it.
+
+    For an estimated propeller below LOW_REYNOLDS_75 (report["low_reynolds_check"]) the generic
+    blade's figure of merit is optimistic (module docstring: measured micro rotors reach less;
+    from memory), so the conservative figure leads: the hover at fallback_figure_of_merit. Else
+    the estimate leads alone. Returns {flight_time_min [min] (None: no hover), basis ("small
+    rotor" or "estimate"), flight_ended_by (what ended that flight, or None), figure_of_merit [-],
+    other_flight_time_min [min] or None,
+    other_figure_of_merit [-] or None, reason (text, '' when there is no other)}.
+    """
+    check = report.get("low_reynolds_check")
+    if not check or report.get("flight_time_min") is None:
+        return {"flight_time_min": report.get("flight_time_min"), "basis": "estimate",
+                "flight_ended_by": report.get("flight_ended_by"),
+                "figure_of_merit": report.get("figure_of_merit"), "other_flight_time_min": None,
+                "other_figure_of_merit": None, "reason": ""}
+    return {"flight_time_min": check.get("flight_time_min"), "basis": "small rotor",
+            "flight_ended_by": check.get("flight_ended_by"),
+            "figure_of_merit": check["figure_of_merit_assumed"],
+            "other_flight_time_min": report["flight_time_min"],
+            "other_figure_of_merit": check["figure_of_merit_estimated"],
+            "reason": "the generic blade's figure of merit %.2f is likely optimistic at a blade Reynolds "
+                      "number of %.0f (below about %.0f)" % (check["figure_of_merit_estimated"],
+                                                             check["reynolds_75"], LOW_REYNOLDS_75)}

@@ -30,16 +30,16 @@ def plot_compare(path, result, name):
     """
     plt = _pyplot()
     fig, ax = plt.subplots(figsize=(8.0, 5.5))
-    rows = [r for r in result["rows"] if r["hover_command"] is not None]
+    rows = [r for r in result["rows"] if r["hover_command"] is not None and r["flight_time_lead_min"] is not None]
     for keeps, colour, label in ((True, "tab:green", "keeps every margin"),
                                  (False, "tab:red", "breaks a margin")):
         pts = [r for r in rows if r["keeps_margins"] == keeps]
         if pts:
-            ax.scatter([r["hover_command"] for r in pts], [r["flight_time_min"] for r in pts],
+            ax.scatter([r["hover_command"] for r in pts], [r["flight_time_lead_min"] for r in pts],
                        c=colour, label=label, s=30, alpha=0.8)
     for r in sorted(rows, key=lambda r: r["rank"])[:LABEL_ALL]:
         short = ", ".join(str(v) for v in r["values"].values())
-        ax.annotate("#%d %s" % (r["rank"], short), (r["hover_command"], r["flight_time_min"]), fontsize=7,
+        ax.annotate("#%d %s" % (r["rank"], short), (r["hover_command"], r["flight_time_lead_min"]), fontsize=7,
                     xytext=(4, 4), textcoords="offset points")
     ax.margins(x=0.25, y=0.1)
     ax.axvline(HOVER_COMMAND_LIMIT, color="grey", ls="--", lw=1)

@@ -13,7 +13,8 @@ from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_
 from estimator.cautions import cautions
 from estimator.textwidth import fit_width
 from estimator.preflight.pack import pack_in_the_air, pack_keys, pack_temperature_text
-from estimator.preflight.low_reynolds import fallback_figure_of_merit, hover_warning as low_reynolds_warning
+from estimator.preflight.low_reynolds import (endurance_lead, fallback_figure_of_merit,
+                                              hover_warning as low_reynolds_warning)
 from estimator.preflight.propeller_estimate import estimated_propeller, low_reynolds_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
@@ -139,6 +140,9 @@ def _report(vehicle, params=None):
     report.update(full_command_sag(report))
     low_re = _low_reynolds_check(vehicle, propeller, estimate, est, count, layout, rho, battery, esc_eff)
     report["low_reynolds_check"] = low_re
+    lead = endurance_lead(report)
+    report["flight_time_lead_min"] = lead["flight_time_min"]  # what the sheet and compare lead with
+    report["flight_time_lead_basis"] = lead["basis"]
     report["suspect_keys"] = slip_keys(checks)
     report["warnings"] = (checks + assumed_warnings(vehicle) + ([estimate["note"]] if estimate else [])
                           + ([low_reynolds_warning(low_re, propeller["diameter_m"])]
@@ -163,6 +167,7 @@ def _low_reynolds_check(vehicle, propeller, estimate, est, count, layout, rho, b
             "figure_of_merit_assumed": fallback_figure_of_merit(estimate["reynolds_75"]), "cp": lower["cp"],
             "hover_command": low["hover_command"], "hover_power_W": low["hover_power_W"],
             "hover_current_A": low["hover_current_A"], "flight_time_min": low["flight_time_min"],
+            "flight_ended_by": low["discharge"]["ended_by"] if low["hover_command"] is not None else None,
             "thrust_to_weight": low["thrust_to_weight"], "estimate_hover_power_W": est["hover_power_W"],
             "estimate_flight_time_min": est["flight_time_min"]}
 
@@ -281,14 +286,25 @@ def format_sheet(report):
     lines.append("3. For how long?")
     if report.get("can_hover"):
         ended = report.get("flight_ended_by")
-        if ended:
+        lead = endurance_lead(report)
+        if ended and lead["basis"] == "small rotor":  # the conservative figure leads (low_reynolds)
+            low = report["low_reynolds_check"]
+            low_ended = low.get("flight_ended_by")
+            if lead["flight_time_min"] is None:
+                lines.append("   SMALL ROTOR: no hover at the figure of merit %.2f that measured rotors of "
+                             "this size reach" % lead["figure_of_merit"])
+            else:
+                lines.append("   SMALL ROTOR: about %s at the figure of merit %.2f that measured rotors of "
+                             "this size reach (hover from a full pack%s)" % (
+                                 _num(lead["flight_time_min"], "%.1f", "min"), lead["figure_of_merit"],
+                                 ", ended by %s" % ENDED_BY_WORDS.get(low_ended, low_ended) if low_ended else ""))
+            lines.append("   the estimate says about %s (ended by %s), but %s; see below" % (
+                _num(lead["other_flight_time_min"], "%.1f", "min"), ENDED_BY_WORDS.get(ended, ended),
+                lead["reason"]))
+        elif ended:
             lines.append("   about %s of hover from a full pack, ended by %s" % (
                 _num(report.get("flight_time_min"), "%.1f", "min"), ENDED_BY_WORDS.get(ended, ended)))
-            low = report.get("low_reynolds_check") or {}
-            if low.get("hover_command") is not None:
-                lines.append("   SMALL ROTOR: about %s at the figure of merit %.2f that measured rotors of "
-                             "this size reach (see below)" % (_num(low.get("flight_time_min"), "%.1f", "min",
-                                                                  none="no hover"), low["figure_of_merit_assumed"]))
+        if ended:
             lines.append("   (the usable share alone, %s at the nominal-pack hover current, gives %s)" % (
                 _num(report.get("usable_Ah"), "%.2f", "Ah"),
                 _num(report.get("flight_time_usable_share_min"), "%.1f", "min")))
