@@ -124,6 +124,7 @@ def compare_rows(document, source, variations, progress=None):
     flight_time_min (the estimate's), flight_time_lead_min and flight_time_lead_basis (what the
     row shows and is ranked on: low_reynolds.endurance_lead, the conservative endurance for a
     small estimated rotor), endurance_lead (that dict), flight_ended_by (of the flight shown),
+    caveats (preflight.caveats: unit slips, small rotor, cold pack, as the hover sheet has them),
     margins {name: bool|None}, keeps_margins, broken [names]), margins (MARGINS), best (the
     first row that keeps every margin, or None).
     Raises InputError naming the --vary value when a combination is not a valid vehicle.
@@ -160,6 +161,7 @@ def compare_rows(document, source, variations, progress=None):
             "endurance_lead": endurance_lead(report),
             "flight_ended_by": endurance_lead(report)["flight_ended_by"],  # of the flight the row shows
             "propeller_source": report.get("propeller_source"),
+            "caveats": report["caveats"],
             "margins": marks,
             "keeps_margins": keeps_margins(marks),
             "broken": broken(marks),
@@ -212,12 +214,10 @@ def format_table(result, name):
                  if r.get("flight_ended_by") else "")
         marks = "keeps every margin" if r["keeps_margins"] else "breaks " + ", ".join(r["broken"])
         lines += wrap_line(" " * (rank_w + 2) + ended + marks, indent=rank_w + 4)  # words under the row
-        lead = r["endurance_lead"]
-        if lead["other_flight_time_min"] is not None:
-            lines += wrap_line(" " * (rank_w + 2) + "SMALL ROTOR: endurance at the figure of merit %.2f measured "
-                               "rotors of this size reach; the estimate says %.1f min, but %s"
-                               % (lead["figure_of_merit"], lead["other_flight_time_min"], lead["reason"]),
-                               indent=rank_w + 4)
+        for caveat in r["caveats"]:  # the hover sheet's caveats, one line each (preflight.caveats)
+            if caveat["kind"] == "cold_pack" and len(rows) > 1 and all(caveat in o["caveats"] for o in rows):
+                continue  # the same pack caution for every row: once, below the table
+            lines += wrap_line(" " * (rank_w + 2) + "! " + caveat["short"], indent=rank_w + 6)
     table, lines = lines, [""]
     if result["best"]:
         lines.append("longest hover that keeps every margin: %s (%.1f min)"
@@ -233,6 +233,11 @@ def format_table(result, name):
     lines.append("pack A   all motors from the pack")
     if any(r.get("thrust_to_weight_reachable") is False for r in rows):
         lines.append("T/W%s     %s" % (REACHABLE_MARK, REACHABLE_MARK_NOTE))
+    kinds = [c for r in rows for c in r["caveats"]]
+    if any(c["kind"] == "small_rotor" for c in kinds):
+        from estimator.preflight.low_reynolds import TABLE_NOTE
+        lines.append("! " + TABLE_NOTE)
+    lines += ["! " + text for text in dict.fromkeys(c["text"] for c in kinds if c["kind"] == "cold_pack")]
     if any(r.get("propeller_source") == "estimated" for r in rows):
         from estimator.preflight.propeller_estimate import ESTIMATE_NOTE
         lines.append("- " + ESTIMATE_NOTE)

@@ -40,6 +40,11 @@ DUCTED_CLASS_DIAMETER_M = 0.0635
 SMALL_MOTOR_EFFICIENCY = (0.4, 0.7)
 TYPICAL_CT = 0.1  # a small propeller's static CT, n in rev/s (from memory)
 SEA_LEVEL_VISCOSITY_PA_S = 1.7894e-5  # at 288.15 K (US Standard Atmosphere 1976, Sutherland's law)
+# under a compare table with small-rotor rows (their own lines give each row's numbers)
+TABLE_NOTE = ("SMALL ROTOR rows: below a blade Reynolds number of about %.0f the generic blade's figure of "
+              "merit is likely optimistic; their endurance is at the low end of what measured micro rotors "
+              "reach (Kroo and Kunz 2001; Bohorquez and Pines 2003; Hein and Chopra 2007; from memory); "
+              "liftcal hover on one of them gives the full note" % LOW_REYNOLDS_75)
 
 
 def fallback_figure_of_merit(reynolds_75):

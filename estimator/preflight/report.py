@@ -12,6 +12,7 @@ from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_
                                      induced_velocity_m_s, static_factor)
 from estimator.cautions import cautions
 from estimator.textwidth import fit_width
+from estimator.preflight.caveats import caveats
 from estimator.preflight.pack import pack_in_the_air, pack_keys, pack_temperature_text
 from estimator.preflight.low_reynolds import (endurance_lead, fallback_figure_of_merit,
                                               hover_warning as low_reynolds_warning)
@@ -39,6 +40,7 @@ def hover_report(vehicle, params=None):
     reasons = not_flyable_reasons(report) if report.get("can_hover") else ["it cannot hover"]
     report["flyable"] = not reasons
     report["not_flyable_because"] = reasons
+    report["caveats"] = caveats(report)  # compare shows them under its rows (preflight.caveats)
     return report
 
 

@@ -1,0 +1,46 @@
+"""The caveats of one pre-flight report, written once: the hover sheet lists their texts among
+its warnings, ``compare`` shows each row's under the row (sixth new-user trial, item 5: compare
+had dropped them).
+
+Three kinds, each worded by its own module:
+  unit_slip    a value that looks like a unit or decimal slip (preflight.unit_checks; its
+               text starts with the key's JSON path)
+  small_rotor  an estimated propeller below a blade Reynolds number of about 3e4
+               (preflight.low_reynolds: hover_warning, endurance_lead)
+  cold_pack    a pack below COLD_PACK_BELOW_C (preflight.pack.cold_pack_warning; the sentence
+               itself lives in estimator.cautions)
+
+API: caveats(report) -> [{kind, text, short}]: text as the hover sheet prints it among its
+warnings, short as a line under a compare row.
+"""
+
+from estimator.preflight.low_reynolds import endurance_lead, hover_warning
+from estimator.preflight.pack import cold_pack_warning
+
+
+def caveats(report):
+    """The caveats of a report dict of preflight.report.hover_report (module docstring), in the
+    order unit slips, small rotor, cold pack; [] when none applies."""
+    out = [{"kind": "unit_slip", "text": w, "short": w}
+           for w in report.get("warnings") or [] if w.startswith("$.")]
+    check = report.get("low_reynolds_check")
+    if check and report.get("hover_command") is not None:
+        lead = endurance_lead(report)
+        if lead["flight_time_min"] is None:
+            short = ("SMALL ROTOR: no hover at the figure of merit %.2f measured rotors of this size reach; "
+                     "the estimate says %.1f min, but %s" % (lead["figure_of_merit"], lead["other_flight_time_min"],
+                                                             lead["reason"]))
+        else:
+            short = ("SMALL ROTOR: endurance at the figure of merit %.2f measured rotors of this size reach; "
+                     "the estimate says %.1f min, but %s" % (lead["figure_of_merit"], lead["other_flight_time_min"],
+                                                             lead["reason"]))
+        out.append({"kind": "small_rotor", "text": hover_warning(check, report.get("propeller_diameter_m") or 0.0),
+                    "short": short})
+    cold = cold_pack_warning(report)
+    if cold is not None:
+        out.append({"kind": "cold_pack", "text": cold,
+                    "short": "cold pack (%.0f C): capacity x%.2f and resistance x%.2f in these numbers (from "
+                             "memory); see below" % (report["pack_temperature_C"],
+                                                     report.get("pack_capacity_factor") or 1.0,
+                                                     report.get("pack_cold_factor") or 1.0)})
+    return out
