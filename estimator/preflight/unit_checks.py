@@ -13,7 +13,7 @@ import math
 import re
 
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
-from estimator.core.momentum import disk_area_m2
+from estimator.core.momentum import disk_area_m2, figure_of_merit
 from estimator.preflight.slip_diagnosis import whole_vehicle_slip, whole_vehicle_warning
 from estimator.vehicle import given_text
 # the typical ranges live with the vehicle file's unit reading (one home)
@@ -29,6 +29,12 @@ CELL_SPECIFIC_ENERGY_MAX_WH_KG = 260.0
 # any size (a 5 Ah cell near 5 milliohm, a 0.3 Ah cell near 80 milliohm; from memory); 0.5
 # is ten times the worst of them.
 CELL_RESISTANCE_CAPACITY_MAX_OHM_AH = 0.5
+# figures of merit measured on real rotors in hover, from micro rotors at low Reynolds numbers
+# (about 0.3: Kroo and Kunz 2001) to good propellers and helicopter rotors (about 0.8: Leishman,
+# Principles of Helicopter Aerodynamics, ch. 2); all from memory [-]
+FIGURE_OF_MERIT_MEASURED = (0.3, 0.8)
+# measured ct and cp below this figure of merit (half the lowest measured) are a slip, not a rotor [-]
+FIGURE_OF_MERIT_FLOOR = 0.15
 # slips of a value written with its unit: the prefix (g for kg, mAh for Ah) or the decimal point
 WRITTEN_SLIPS = ((1e-3, "the unit prefix"), (0.1, "a misplaced decimal point"))
 
@@ -165,7 +171,37 @@ def suspicious_values(vehicle):
                       bat["cells"], bat["capacity_Ah"],
                       r_cell_ah / 0.025, 0.025 * bat["cells"] / bat["capacity_Ah"],
                       bat["resistance_ohm"], bat["resistance_ohm"] * 1e-3))
+    coefficients = _coefficient_slip(prop)
+    if coefficients:
+        out.append(coefficients)
     return out
+
+
+def _coefficient_slip(prop):
+    """A warning when measured ct and cp give a figure of merit no rotor has, or ''.
+
+    FM = sqrt(2/pi) CT^1.5 / CP (core.momentum.figure_of_merit); the schema and
+    vehicle.check_vehicle refuse FM > 1; below FIGURE_OF_MERIT_FLOOR it names the coefficient
+    that, moved by one decimal place, gives a figure of merit real rotors have.
+    """
+    if "ct" not in prop or "cp" not in prop or prop.get("source") == "estimated":
+        return ""
+    ct, cp = prop["ct"], prop["cp"]
+    fm = figure_of_merit(ct, cp)
+    if fm >= FIGURE_OF_MERIT_FLOOR:
+        return ""
+    fixes = []
+    for key, scale in (("ct", 10.0), ("cp", 0.1)):
+        new_ct, new_cp = (ct * scale, cp) if key == "ct" else (ct, cp * scale)
+        new_fm = figure_of_merit(new_ct, new_cp)
+        if FIGURE_OF_MERIT_MEASURED[0] <= new_fm <= FIGURE_OF_MERIT_MEASURED[1]:
+            fixes.append("%s %.4g gives %.2f" % (key, new_ct if key == "ct" else new_cp, new_fm))
+    return ("$.propeller.%s: ct %g and cp %g give a figure of merit of %.3f (FM = sqrt(2/pi) ct^1.5 / cp), "
+            "far below the %.1f..%.1f that measured rotors reach (micro-rotor and propeller hover tests, "
+            "from memory): a decimal slip in ct or cp? %s" % (
+                "ct" if not fixes or fixes[0].startswith("ct") else "cp", ct, cp, fm,
+                FIGURE_OF_MERIT_MEASURED[0], FIGURE_OF_MERIT_MEASURED[1],
+                "; ".join(fixes) if fixes else "check both against the propeller's data"))
 
 
 def slip_keys(warnings):
