@@ -69,6 +69,9 @@ COMMAND_OUTSIDE_SHARE = 0.05
 # of at most about this many rows: they judge factors of 2 and 1000, far coarser than its
 # sampling error [-]
 MEDIAN_ROWS = 20000
+# --diameter and '# diameter:' further apart than this are named (makers round sizes to 0.1 in,
+# 1 % of a 10-inch propeller; the two ways of writing one size agree far closer) [-]
+DIAMETER_AGREEMENT = 0.005
 
 
 def _head_commas(path, skip):
@@ -267,6 +270,10 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
                      humidity_pct, warnings)
     if diameter_m is None and "diameter" in comments:
         diameter_m = comments["diameter"][0]
+    elif diameter_m is not None and "diameter" in comments and \
+            abs(diameter_m / comments["diameter"][0] - 1.0) > DIAMETER_AGREEMENT:
+        warnings.append("--diameter %.4g m is used, not the %.4g m of %s (k scales as D^-2/3): check which "
+                        "propeller was on the stand" % (diameter_m, comments["diameter"][0], comments["diameter"][1]))
     if diameter_m is not None and not (0.01 <= diameter_m <= 3.0):
         raise InputError("%s: propeller diameter %.4g m is outside 0.01..3 m; give it as e.g. "
                          "'# diameter: 10in' or '--diameter 0.254'" % (path, diameter_m))

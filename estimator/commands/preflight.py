@@ -148,8 +148,9 @@ def _check_disk_loading(thrust_N, area_m2, diameter_m):
 @click.option("--params", "params_file", default=None, metavar="PARAMS.json",
               help="A fitted parameter set from `liftcal fit`: thrust and power from the bench.")
 @click.option("--payload", "payload_text", default=None, metavar="RANGE|LIST",
-              help="Payloads to add to the mass, a range 0..2kg (9 points) or a list 0,500g,1kg: "
-                   "endurance and margins per payload and the largest payload that keeps them.")
+              help="Payloads to add to the mass, a range 0..2kg (about 9 payloads on a round step "
+                   "of 1, 2, 2.5 or 5 x 10^k, ends included: 0..1kg gives 0, 0.1, ..., 1 kg) or a list "
+                   "0,500g,1kg: endurance and margins per payload and the largest payload that keeps them.")
 @click.option("--job-time", "job_time", type=Quantity("time", positive=True, unit_example="15min or 900s"),
               default=None,
               help="With --payload: the hover time the job needs, with its unit (15min, 900s); "

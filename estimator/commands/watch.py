@@ -155,8 +155,9 @@ firmware.help = firmware.help.replace("{files}", _bundle_files())
 def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_time, as_json):
     """Run a logged flight through the power watch and list its events.
 
-    FLIGHT.csv has time[s], command[-] (or [%], [permille], [us]), voltage[V] and current[A] columns
-    (bus totals). The same integer kernel as on the board runs on every row.
+    FLIGHT.csv has time[s] or time[ms], command[-] (or [%], [permille], [us]), voltage[V] or
+    voltage[mV] and current[A] or current[mA] columns (bus totals). The same integer kernel as
+    on the board runs on every row.
     """
     from estimator.watch.replay import replay_file
 
