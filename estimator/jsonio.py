@@ -230,8 +230,9 @@ def _likely_cause(err):
         slip = unit_slip(err.instance, kind, slips, err.schema)
         if slip is None:
             return ""
-        return "; given in %s instead of %s? %g %s = %.4g %s" % (slip[0], unit, err.instance, slip[0],
-                                                                slip[1], unit)
+        # "given in in" reads as a typo: the inch is named in words there
+        return "; given in %s instead of %s? %g %s = %.4g %s" % ("inches" if slip[0] == "in" else slip[0], unit,
+                                                                err.instance, slip[0], slip[1], unit)
     if err.validator == "type" and isinstance(err.instance, str) and "number" in str(err.validator_value):
         return _text_for_number(err)
     if err.validator == "type" and isinstance(err.instance, str) and "integer" in str(err.validator_value):

@@ -361,7 +361,12 @@ def export(params_file, map_file, out_file, as_json):
     click.echo(text if as_json else _fold_arrows(text), nl=False)
     if out_file is not None and not as_json:
         click.echo("settings written to %s" % out_file)
-    if replaced:  # under --json stdout holds the settings object only
-        from estimator.textwidth import fit_width
+    from estimator.outputs import seal_of
+    from estimator.textwidth import fit_width
 
+    if seal_of(params_file) == "broken":  # as `check` says it: the settings come from a person's edits
+        note = ("note: %s was edited since liftcal wrote it (its content seal no longer matches): these "
+                "settings come from the edited values" % params_file)
+        click.echo(note if as_json else fit_width(note), err=as_json)
+    if replaced:  # under --json stdout holds the settings object only
         click.echo(replaced if as_json else fit_width(replaced), err=as_json)

@@ -177,7 +177,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     if as_json:
         click.echo(dumps(dict(out, cautions=list(WATCH_CAUTIONS))))
         return
-    lines = ["%s: %d samples, %s, %s" % (flight_file, out["samples"], _count(out["alarms"], "alarm"),
+    lines = ["%s: %s, %s, %s" % (flight_file, _count(out["samples"], "sample"), _count(out["alarms"], "alarm"),
                                            _count(len(out["events"]), "event"))]
     if out.get("dropped_rows"):
         lines.append("  dropped %s whose time went back or repeated" % _count(out["dropped_rows"], "row"))

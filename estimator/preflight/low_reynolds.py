@@ -81,7 +81,8 @@ def duct_note(diameter_m, expect="more power and a shorter flight than even this
         return ""
     return ("if the rotors run in ducts or guards (whoops): liftcal models open rotors; a short duct with a "
             "whoop's tip gap gives little of a shroud's gain and its struts and the frame under the rotor "
-            "block part of the slipstream (Pereira 2008; Leishman, download; from memory): expect %s" % expect)
+            "block part of the slipstream (Pereira 2008; Leishman on the download of a body under a rotor; from "
+            "memory): expect %s" % expect)
 
 
 def static_factor_band(reynolds_75):

@@ -189,6 +189,18 @@ def _fitted_report(vehicle, params, checks):
     return report
 
 
+def coaxial_text(report):
+    """The sheet's line on a coaxial layout's penalty: the factor, its basis and source, and the
+    figure of merit with it and for an isolated rotor (when the report has the rotor's CT, CP)."""
+    text = ("coaxial pairs: ideal induced power x%.4g, included above (power basis: momentum theory "
+            "with the lower rotor in the upper's fully developed slipstream; Leishman 2006, coaxial "
+            "rotors, from memory)" % report["coaxial_induced_power_factor"])
+    if report.get("propeller_ct") and report.get("propeller_cp"):
+        text += "; figure of merit %.2f for an isolated rotor" % figure_of_merit(report["propeller_ct"],
+                                                                                report["propeller_cp"])
+    return text
+
+
 def _at_hover(current_A):
     return "" if current_A is None else "%s at hover, " % _num(current_A, SIG3, "A")
 
@@ -324,8 +336,12 @@ def format_sheet(report):
         extras = []
         if report.get("hover_rpm") is not None:
             extras.append("rotors at %.0f rpm" % report["hover_rpm"])
+        coaxial = (report.get("coaxial_induced_power_factor") or 1.0) > 1.0
         if report.get("figure_of_merit") is not None:
-            extras.append("figure of merit %.2f" % report["figure_of_merit"])
+            extras.append("figure of merit %.2f%s" % (report["figure_of_merit"],
+                                                      " (with the coaxial penalty)" if coaxial else ""))
+        if coaxial:
+            lines.append("   " + coaxial_text(report))
         estimate = report.get("propeller_estimate")
         if estimate:
             lines.append("   propeller CT %.3f, CP %.4f ESTIMATED from %.3g m x %.3g m pitch, %d blades "
