@@ -63,6 +63,33 @@ def source_unit(source):
     return "W/N^" + m.group(1) if m and m.group(1) else ("W/N" if m else "-")
 
 
+def number_paths(node, prefix=""):
+    """Every dotted path to a number in a parameter set (list items by index)."""
+    if isinstance(node, dict):
+        items = node.items()
+    elif isinstance(node, list):
+        items = ((str(i), v) for i, v in enumerate(node))
+    else:
+        return [prefix] if isinstance(node, (int, float)) and not isinstance(node, bool) else []
+    out = []
+    for key, value in items:
+        out += number_paths(value, "%s.%s" % (prefix, key) if prefix else str(key))
+    return out
+
+
+def _missing_hint(params, source):
+    """Why a map source is not in the set: the nearest number's path (a typo, difflib), else for
+    a hover value on a set without one, how to get it."""
+    import difflib
+
+    near = difflib.get_close_matches(source, number_paths(params), 1, 0.8)
+    if near:
+        return "; did you mean %r?" % near[0]
+    if source.startswith("hover.") and "hover" not in params:
+        return " (this set has no hover values: fit with --vehicle to get them)"
+    return ""
+
+
 def export_settings(params, mapping, source_name="map"):
     """Mapped settings, in map order, as dicts: name, value (int when decimals is 0, else
     float), unit, source, source_value, source_unit, scale, offset.
@@ -75,8 +102,8 @@ def export_settings(params, mapping, source_name="map"):
         where = "%s: $.settings[%d] (%s)" % (source_name, i, entry["name"])
         value = lookup(params, entry["source"])
         if value is None:
-            hint = " (fit with --vehicle to get hover values)" if entry["source"].startswith("hover.") else ""
-            raise InputError("%s: source %r is not in the parameter set%s" % (where, entry["source"], hint))
+            raise InputError("%s: source %r is not in the parameter set%s"
+                             % (where, entry["source"], _missing_hint(params, entry["source"])))
         if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
             raise InputError("%s: source %r is not a number" % (where, entry["source"]))
         raw = value * entry.get("scale", 1.0) + entry.get("offset", 0.0)

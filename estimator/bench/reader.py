@@ -314,6 +314,9 @@ def _row_checks(path, data, rows_total):
         odd_v = finite & ~bad_v & ((v > 2.0 * v_med) | (v < 0.5 * v_med))
         odd_i = finite & (i > MAX_CURRENT_A)
         odd_t = finite & (np.abs(t) > MAX_THRUST_N)
+    from estimator.bench.sensor_checks import check_current_sign
+
+    check_current_sign(path, int(np.count_nonzero(neg_i)), int(np.count_nonzero(finite)), i[finite])
     rejected["negative_current"] = int(np.count_nonzero(neg_i))
     rejected["voltage_not_positive"] = int(np.count_nonzero(bad_v))
     rejected["command_outside_0_1"] = int(np.count_nonzero(out_u))
@@ -342,6 +345,9 @@ def _check_units(path, data, v_med=None, extremes=None):
     """
     import numpy as np
 
+    from estimator.bench.sensor_checks import check_voltage_current_swapped
+
+    check_voltage_current_swapped(path, data["command"], data["voltage"], data["current"])
     with np.errstate(invalid="ignore"):
         if v_med is None:
             v = data["voltage"]
@@ -381,6 +387,9 @@ def _check_units(path, data, v_med=None, extremes=None):
         if data["command_unit"] in ("%", "permille") and u_max <= 1.01 * UNITS["command"][data["command_unit"]][0]:
             raise InputError("%s: command[%s] never exceeds 1 %s; is it command[-] (0..1)?"
                              % (path, data["command_unit"], data["command_unit"]))
+        from estimator.bench.sensor_checks import check_permille_as_percent
+
+        check_permille_as_percent(path, data["command_unit"], u_max)
         # the median can only exceed the limit when the largest value does (the clean case
         # knows it already: no pass over the column then)
         i_big = data["current_unit"] == "A" and (extremes is None or extremes[5] > MAX_CURRENT_A)

@@ -180,7 +180,7 @@ def _flight_medians(flight, cfg):
     return median(1), median(2), total
 
 
-def check_vehicle(path, flight, params, facts, cfg):
+def check_vehicle(path, flight, params, facts, cfg, units=None):
     """Refuse a log that looks like another vehicle or pack than the parameter set's (InputError
     with the figures): its median bus voltage in flight above LOG_ABOVE_FULL x the full pack or
     below LOG_BELOW_EMPTY x the empty pack, or the mass its median bus power in flight implies
@@ -189,7 +189,9 @@ def check_vehicle(path, flight, params, facts, cfg):
 
     facts: estimator.watch.config.vehicle_facts (mass_kg, rotor_count, site_density_kg_m3, cells,
     full_voltage_V, empty_voltage_V, name); cfg: the watch CONFIG (without pack voltages in facts,
-    its v_max_mV / v_min_mV: 1.2 x full and 0.5 x empty pack).
+    its v_max_mV / v_min_mV: 1.2 x full and 0.5 x empty pack); units: the header's units (a
+    current labelled [mA] whose power implies a mass far below the plan, and within the range at
+    1000 times, is named as amps labelled [mA]).
     """
     from estimator.watch.thrust_table import thrust_from_power_total_N
 
@@ -211,6 +213,14 @@ def check_vehicle(path, flight, params, facts, cfg):
         mass = thrust_from_power_total_N(med_W, params, int(facts["rotor_count"]),
                                          float(facts["site_density_kg_m3"])) / STANDARD_GRAVITY_M_S2
         off = not IMPLIED_MASS_RANGE[0] <= mass / plan <= IMPLIED_MASS_RANGE[1]
+        if off and mass < plan and (units or {}).get("current") == "mA" and not found:
+            as_A = thrust_from_power_total_N(1000.0 * med_W, params, int(facts["rotor_count"]),
+                                             float(facts["site_density_kg_m3"])) / STANDARD_GRAVITY_M_S2
+            if IMPLIED_MASS_RANGE[0] <= as_A / plan <= IMPLIED_MASS_RANGE[1]:
+                raise InputError("%s: column current[mA]: the power in flight (%.4g W) implies %.3g kg against "
+                                 "%.3g kg planned; read as amps it implies %.3g kg: the current is 1000 times too "
+                                 "small, likely amps in a column labelled [mA]; label it current[A]"
+                                 % (path, med_W, mass, plan, as_A))
         if off or found:
             found.append("implied mass %.3g kg (%.4g W in flight through its power model) against %.3g kg "
                          "planned%s" % (mass, med_W, plan, ", outside the %g..%g x a payload or the flying "

@@ -189,7 +189,7 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
     flight = read_flight(path)
     dropped = check_time(path, flight, go_on=drop_bad_time)
     check_plausible(path, flight, flight["units"], config)
-    check_vehicle(path, flight, params, vehicle_facts(params, vehicle, params_source), config)
+    check_vehicle(path, flight, params, vehicle_facts(params, vehicle, params_source), config, flight["units"])
     if progress is None:
         progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
     out = run_kernel(flight, config, keep_arrays=keep_arrays, progress=_bar if progress else None)
