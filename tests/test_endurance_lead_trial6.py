@@ -93,3 +93,17 @@ def test_compare_ranks_and_shows_the_conservative_endurance(tmp_path):
     assert first.rstrip().endswith("%.1f min" % single["1500mAh"]["flight_time_lead_min"]), first
     flat = " ".join(table.split())
     assert "the estimate says %.1f min" % single["1500mAh"]["flight_time_min"] in flat
+
+
+def test_the_payload_table_shows_and_judges_the_conservative_endurance(tmp_path):
+    path = _files(tmp_path, WHOOP65)
+    lead = json.loads(_ok(["hover", path, "--json"]))["flight_time_lead_min"]
+    report = json.loads(_ok(["hover", path, "--payload", "0g,5g", "--job-time", "%.2fmin" % (lead + 0.05),
+                             "--json"]))
+    first = report["payload"]["rows"][0]
+    assert first["payload_kg"] == 0 and first["flight_time_lead_min"] == lead < first["flight_time_min"]
+    # the estimate's endurance would reach the job time; the conservative one does not
+    assert first["flight_time_min"] > lead + 0.05 and first["margins"]["job_time"] is False
+    table = _ok(["hover", path, "--payload", "0g,5g"])
+    row = [line for line in table.splitlines() if line.startswith("   0 g")][0]
+    assert "%.1f min" % lead in row

@@ -16,6 +16,7 @@ import math
 import re
 
 from estimator.errors import InputError, shorten
+from estimator.preflight.low_reynolds import endurance_lead
 from estimator.preflight.margins import PAYLOAD_BLIND, broken, margins
 from estimator.preflight.report import hover_report
 from estimator.preflight.warnings import REACHABLE_MARK, REACHABLE_MARK_NOTE, judged_thrust_to_weight, judged_thrust_to_weight_text
@@ -86,8 +87,10 @@ def _row(vehicle, payload_kg, job_min, params=None):
     v["mass_kg"] = vehicle["mass_kg"] + payload_kg
     report = hover_report(v, params)
     marks = margins(report)
+    # the endurance the sheet leads with (the conservative one on a small estimated rotor)
+    lead = report.get("flight_time_lead_min", report["flight_time_min"])
     if job_min is not None:
-        marks["job_time"] = report["flight_time_min"] is not None and report["flight_time_min"] >= job_min
+        marks["job_time"] = lead is not None and lead >= job_min
     row = {
         "payload_kg": payload_kg, "mass_kg": v["mass_kg"],
         "hover_command": report["hover_command"], "hover_command_empty": report["hover_command_empty"],
@@ -96,7 +99,9 @@ def _row(vehicle, payload_kg, job_min, params=None):
         "reachable_thrust_to_weight": report.get("reachable_thrust_to_weight"),
         "thrust_to_weight_judged": judged_thrust_to_weight(report)[0], "hover_pack_current_A": report["hover_current_A"],
         "hover_motor_current_A": report.get("hover_motor_current_A"),
-        "flight_time_min": report["flight_time_min"], "flight_ended_by": report.get("flight_ended_by"),
+        "flight_time_min": report["flight_time_min"], "flight_time_lead_min": lead,
+        "flight_time_lead_basis": report.get("flight_time_lead_basis", "estimate"),
+        "flight_ended_by": endurance_lead(report)["flight_ended_by"],
         "margins": marks, "keeps": all(m is not False for m in marks.values()),
         "broken": broken(marks) + (["job_time"] if marks.get("job_time") is False else []),
     }
@@ -142,8 +147,9 @@ def payload_table(vehicle, payloads_kg, job_min=None, params=None):
     mass_kg [kg], hover_command [-], hover_command_empty [-], thrust_to_weight [-] (full command),
     thrust_to_weight_reachable, reachable_thrust_to_weight [-], thrust_to_weight_judged [-] (the one
     the margin judges, warnings.judged_thrust_to_weight),
-    hover_pack_current_A [A], hover_motor_current_A [A], flight_time_min [min],
-    flight_ended_by, margins, keeps, broken, and with params hover_command_interval_95 [-]),
+    hover_pack_current_A [A], hover_motor_current_A [A], flight_time_min [min] (the estimate's),
+    flight_time_lead_min [min] and flight_time_lead_basis (what the table shows and job_time
+    judges: low_reynolds.endurance_lead), flight_ended_by (of that flight), margins, keeps, broken, and with params hover_command_interval_95 [-]),
     max_payload_kg [kg] or None (none keeps), max_payload_found ("beyond_list", "bisection",
     "none"), broken_beyond (margins broken just beyond it), broken_at_every_payload (margins
     judged at full command, PAYLOAD_BLIND, that the smallest payload already breaks: no payload
@@ -223,13 +229,16 @@ def format_payload_table(result, unit="kg"):
         cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
         empty = "%.2f" % r["hover_command_empty"] if r["hover_command_empty"] is not None else "none"
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
-        time = ("%.1f min (%s)" % (r["flight_time_min"], r["flight_ended_by"])
-                if r["flight_time_min"] is not None else "no hover")
+        time = ("%.1f min (%s)" % (r["flight_time_lead_min"], r["flight_ended_by"])
+                if r["flight_time_lead_min"] is not None else "no hover")
         lines.append("   %-9s  %-9s  %-4s  %-5s  %-5s %-6s  %-18s  %s" % (
             "%.*f %s" % (shown, r["payload_kg"] / scale, unit), "%.*f %s" % (shown, r["mass_kg"] / scale, unit), cmd,
             empty, judged_thrust_to_weight_text(r), pack, time, "yes" if r["keeps"] else "no"))
         if not r["keeps"]:  # the margins it breaks, on a line of their own under the row
             lines += wrap_line("       breaks " + ", ".join(r["broken"]), indent=14)
+    if any(r["flight_time_lead_basis"] == "small rotor" for r in result["rows"]):
+        lines += wrap_line("   endurance: SMALL ROTOR, at the figure of merit measured rotors of this size "
+                           "reach, as in section 3", indent=5)
     if any(judged_thrust_to_weight(r)[1] for r in result["rows"]):
         lines += wrap_line("   T/W%s  %s" % (REACHABLE_MARK, REACHABLE_MARK_NOTE), indent=9)
     for line in verdict_lines(result, unit):

@@ -67,14 +67,14 @@ def plot_payload(path, result, name, unit="kg"):
     scale = parse_quantity("1" + unit, "mass")
     rows = result["rows"]
     fig, ax = plt.subplots(figsize=(8.0, 5.0))
-    xs = [r["payload_kg"] / scale for r in rows if r["flight_time_min"] is not None]
-    ys = [r["flight_time_min"] for r in rows if r["flight_time_min"] is not None]
+    xs = [r["payload_kg"] / scale for r in rows if r["flight_time_lead_min"] is not None]
+    ys = [r["flight_time_lead_min"] for r in rows if r["flight_time_lead_min"] is not None]
     ax.plot(xs, ys, "-", color="tab:blue", lw=1.5, label="endurance")
     for keeps, colour, label in ((True, "tab:green", "keeps every margin"),
                                  (False, "tab:red", "breaks a margin")):
-        pts = [r for r in rows if r["flight_time_min"] is not None and bool(r["keeps"]) == keeps]
+        pts = [r for r in rows if r["flight_time_lead_min"] is not None and bool(r["keeps"]) == keeps]
         if pts:
-            ax.plot([r["payload_kg"] / scale for r in pts], [r["flight_time_min"] for r in pts], "o",
+            ax.plot([r["payload_kg"] / scale for r in pts], [r["flight_time_lead_min"] for r in pts], "o",
                     color=colour, ms=5, ls="none", label=label)
     if result["max_payload_kg"] is not None:
         ax.axvline(result["max_payload_kg"] / scale, color="tab:green", ls="--", lw=1,
