@@ -87,3 +87,11 @@ def test_export_of_an_edited_set_says_so(tmp_path):
     assert "note: %s was edited since liftcal wrote it" % params in edited
     assert PARAMS  # the shipped example set (no seal) is not called edited:
     assert "was edited" not in _ok(["export", PARAMS])
+
+
+def test_static_answers_in_the_unit_it_was_asked_in():
+    # 500 g of thrust = 0.5 kg x 9.80665 m/s^2 = 4.90 N (standard gravity, NIST SP 811)
+    text = " ".join(_ok(["static", "--diameter", "10in", "--thrust", "500g"]).split())
+    assert "500g (%.1f N) of thrust needs" % (0.5 * 9.80665) in text
+    plain = " ".join(_ok(["static", "--diameter", "10in", "--thrust", "4.9N"]).split())
+    assert "4.9 N of thrust needs" in plain and "(4.9 N)" not in plain

@@ -118,7 +118,8 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
         click.echo(dumps(out))
     else:
         from estimator.textwidth import fit_width
-        click.echo(fit_width("\n".join(format_static(out, power is not None))))
+        click.echo(fit_width("\n".join(format_static(out, power is not None,
+                                                      click.get_current_context().meta.get("liftcal.typed.thrust")))))
 
 
 def _check_disk_loading(thrust_N, area_m2, diameter_m):

@@ -91,8 +91,9 @@ def diameter_slip_warning(out, typed, power_given):
     return None
 
 
-def format_static(out, power_given):
-    """Text lines for ``liftcal static``; ranges always read low..high."""
+def format_static(out, power_given, thrust_typed=None):
+    """Text lines for ``liftcal static``; ranges always read low..high. thrust_typed: the
+    --thrust as the person typed it (500g): the answer names it in that unit, the newtons beside."""
     default = out["static_factor_source"] != "given"
     lines = ["one rotor, D = %s m (disk %s m^2), air %.3f kg/m^3, k = %.2f%s"
              % (plain_number(out["diameter_m"], 3), plain_number(out["disk_area_m2"], 3),
@@ -104,8 +105,11 @@ def format_static(out, power_given):
                      % tuple(plain_number(out[k], 3, trim=True) for k in ("power_W", "thrust_N", "ideal_thrust_N")))
         key, unit = "thrust_N_at_k_", "N"
     else:
-        lines.append("  %s N of thrust needs %s W in (ideal actuator disk: %s W)"
-                     % tuple(plain_number(out[k], 3, trim=True) for k in ("thrust_N", "power_W", "ideal_power_W")))
+        thrust, power, ideal = (plain_number(out[k], 3, trim=True) for k in ("thrust_N", "power_W", "ideal_power_W"))
+        asked = "%s N" % thrust
+        if thrust_typed and not str(thrust_typed).strip().rstrip("N").strip().replace(".", "", 1).isdigit():
+            asked = "%s (%s N)" % (str(thrust_typed).strip(), thrust)  # in the unit the person asked in
+        lines.append("  %s of thrust needs %s W in (ideal actuator disk: %s W)" % (asked, power, ideal))
         key, unit = "power_W_at_k_", "W"
     small = out.get("low_reynolds")
     if small:
