@@ -41,6 +41,8 @@ def hover_report(vehicle, params=None):
     report["flyable"] = not reasons
     report["not_flyable_because"] = reasons
     report["caveats"] = caveats(report)  # compare shows them under its rows (preflight.caveats)
+    report.setdefault("flight_time_lead_min", report.get("flight_time_min"))  # a bench fit: measured
+    report.setdefault("flight_time_lead_basis", "bench fit")
     return report
 
 
@@ -319,7 +321,8 @@ def format_sheet(report):
             lines.append("   about %s of hover from a full pack, ended by %s" % (
                 _num(report.get("flight_time_min"), "%.1f", "min"), ENDED_BY_WORDS.get(ended, ended)))
         if ended:
-            lines.append("   (the usable share alone, %s at the nominal-pack hover current, gives %s)" % (
+            lines.append("   (%s usable share alone, %s at the nominal-pack hover current, gives %s)" % (
+                "the estimate's" if lead["basis"] == "small rotor" else "the",
                 _num(report.get("usable_Ah"), "%.2f", "Ah"),
                 _num(report.get("flight_time_usable_share_min"), "%.1f", "min")))
         else:
