@@ -177,6 +177,7 @@ def _csv_variants(csv_bytes, flight):
             ("voltage in mV labelled V", build(r=[_scale(x, 2, 1000.0) for x in rows])),
             ("command in % labelled [-]", build(r=[_scale(x, 1, 100.0) for x in rows])),
             ("empty cell", cell(5, 3, "")),
+            ("current in A labelled mA", build(h=header.replace("current[A]", "current[mA]"))),
         ]
     else:
         out += [
@@ -184,6 +185,9 @@ def _csv_variants(csv_bytes, flight):
             ("voltage in mV labelled V", build(r=[_scale(x, 2, 1000.0) for x in rows])),
             ("command in us labelled [-]", build(h=header.replace("command[us]", "command[-]"))),
             ("three rows", build(r=rows[:3])),
+            ("voltage and current columns swapped", build(h=header.replace("voltage[V],current[A]",
+                                                                           "current[A],voltage[V]"))),
+            ("current sensor reversed", build(r=[_scale(x, 3, -1.0) for x in rows])),
             ("all rows the same", build(r=[rows[len(rows) // 2]] * 40)),
             ("bad comment value", build(p=pre + ["# altitude: high"])),
             ("density comment out of range", build(p=pre + ["# density: 12"])),
