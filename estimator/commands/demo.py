@@ -127,8 +127,7 @@ def _run(out_dir, work, seed, emit):
              % (c["command_min"], params["motor_model"]["command_start"], c["voltage_exponent"], k["value"]),
              "$ liftcal hover %s --params %s" % (show("vehicle.json"), show("params.json")),
              format_sheet(fitted),
-             "$ liftcal export %s --map %s   (example map, invented setting names)"
-             % (show("params.json"), map_file),
+             "$ liftcal export %s   (the shipped example map, invented setting names)" % show("params.json"),
              format_lines(settings).rstrip()]
 
     # 3. in the air: board bundle + replay of simulated flights
@@ -140,13 +139,14 @@ def _run(out_dir, work, seed, emit):
     flights = []
     for stem, fault, meaning in FLIGHTS:
         csv_path = path(stem + ".csv")
+        # the command shows while its flight is simulated and replayed (several seconds each)
+        text.append("$ liftcal replay %s --params %s" % (show(stem + ".csv"), show("params.json")))
         write_atomic(csv_path, simulate_flight(vehicle, fault=fault, seed=seed))
         result = replay_file(csv_path, params, vehicle=vehicle, progress=False)
         kinds = sorted({e["kind"] for e in result["events"]})
         first = result["events"][0]["t_s"] if result["events"] else None
         flights.append({"file": show(stem + ".csv"), "fault": fault, "samples": result["samples"],
                         "alarms": result["alarms"], "kinds": kinds, "first_event_t_s": first})
-        text.append("$ liftcal replay %s --params %s" % (show(stem + ".csv"), show("params.json")))
         text.append("  -> %s: %s (%d samples)" % (
             meaning, "no alarm" if not result["events"] else
             "%s first at %.1f s" % (", ".join(kinds), first), result["samples"]))
