@@ -92,7 +92,8 @@ def test_compare_ranks_and_shows_the_conservative_endurance(tmp_path):
     first = [line for line in table.splitlines() if line.startswith(" 1  ")][0]
     assert first.rstrip().endswith("%.1f min" % single["1500mAh"]["flight_time_lead_min"]), first
     flat = " ".join(table.split())
-    assert "the estimate says %.1f min" % single["1500mAh"]["flight_time_min"] in flat
+    assert "generic blade estimate (%.2f, likely optimistic" % single["1500mAh"]["low_reynolds_check"][
+        "figure_of_merit_estimated"] in flat and "says %.1f min" % single["1500mAh"]["flight_time_min"] in flat
 
 
 def test_the_payload_table_shows_and_judges_the_conservative_endurance(tmp_path):

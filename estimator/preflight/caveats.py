@@ -26,14 +26,10 @@ def caveats(report):
     check = report.get("low_reynolds_check")
     if check and report.get("hover_command") is not None:
         lead = endurance_lead(report)
-        if lead["flight_time_min"] is None:
-            short = ("SMALL ROTOR: no hover at the figure of merit %.2f measured rotors of this size reach; "
-                     "the estimate says %.1f min, but %s" % (lead["figure_of_merit"], lead["other_flight_time_min"],
-                                                             lead["reason"]))
-        else:
-            short = ("SMALL ROTOR: endurance at the figure of merit %.2f measured rotors of this size reach; "
-                     "the estimate says %.1f min, but %s" % (lead["figure_of_merit"], lead["other_flight_time_min"],
-                                                             lead["reason"]))
+        short = ("SMALL ROTOR: %s at the figure of merit %.2f measured rotors of this size reach; the "
+                 "generic blade estimate (%.2f, likely optimistic at a blade Reynolds number of %.0f) says %.1f min"
+                 % ("no hover" if lead["flight_time_min"] is None else "endurance", lead["figure_of_merit"],
+                    lead["other_figure_of_merit"], check["reynolds_75"], lead["other_flight_time_min"]))
         out.append({"kind": "small_rotor", "text": hover_warning(check, report.get("propeller_diameter_m") or 0.0),
                     "short": short})
     cold = cold_pack_warning(report)
