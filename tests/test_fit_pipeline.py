@@ -57,3 +57,37 @@ def test_the_pipeline_enters_each_step_once_or_twice(tmp_path):
     assert set(counts) >= {"estimator.bench.reader", "estimator.bench.motor_fit", "estimator.bench.curve_fit",
                            "estimator.bench.power_fit", "estimator.params"}
     assert max(counts.values()) <= 2, counts
+
+
+def test_the_fit_command_calls_the_pipeline_and_the_summary_once(tmp_path):
+    # `liftcal fit --vehicle`: the command chains the flows (fit, the vehicle's hover report,
+    # write, summary) and enters each bench module once: it no longer assembles the summary
+    # from the wording's parts (11 calls before), and the hover report is computed once (its
+    # block and the margins shown come from the same report; twice before)
+    import json
+
+    from click.testing import CliRunner
+
+    from estimator.cli import cli
+    from estimator.demo.scenario import DEMO_VEHICLE
+    import estimator.preflight.measured_rotor as measured_rotor
+
+    csv, vehicle = _demo_csv(tmp_path), tmp_path / "vehicle.json"
+    vehicle.write_text(json.dumps(DEMO_VEHICLE))
+    runner = CliRunner()
+
+    def run(name):
+        result = runner.invoke(cli, ["fit", csv, "--vehicle", str(vehicle), "--out", str(tmp_path / name)])
+        assert result.exit_code == 0, result.output
+
+    run("warm.json")
+    reports = []
+    original = measured_rotor.hover_from_params
+    measured_rotor.hover_from_params = lambda *a: reports.append(1) or original(*a)
+    try:
+        counts = _entries(lambda: run("p.json"), "estimator.commands.bench")
+    finally:
+        measured_rotor.hover_from_params = original
+    bench = {m: n for m, n in counts.items() if m.startswith("estimator.bench.")}
+    assert bench == {"estimator.bench.sweep": 1, "estimator.bench.summary": 1}, counts
+    assert len(reports) == 1

@@ -174,23 +174,3 @@ def _fit_bench(data, source, voltage_exponent):
         "warnings": warnings + curve["warnings"] + fit_warnings(curve, motor_block, lv, command_unit, thrust_unit),
     }
     return build_params(data, fit, source), Rows(u, v, t, p, ~spikes)
-
-
-def summary(params):
-    """The ``liftcal fit --json`` keys (design notes sec. 4) from a parameter set."""
-    c, q = params["thrust_curve"], params["fit_quality"]
-    out = {k: c[k] for k in ("quadratic_share", "command_min", "thrust_max_N",
-                             "reference_voltage_V", "voltage_exponent", "density_exponent")}
-    out.update({"static_factor": params["static_factor"]["value"],
-                "rows_used": q["rows_used"], "rows_rejected": q["rows_rejected"],
-                "rms_residual_N": q["rms_residual_N"],
-                "power_residual_rel_std": params["power_model"]["residual_rel_std"],
-                "standard_errors": params["standard_errors"],
-                "command_start": params["motor_model"]["command_start"],
-                "command_start_standard_error": params["motor_model"].get("command_start_standard_error"),
-                "warnings": params.get("warnings", [])})
-    if "hover" in params:
-        out["hover_command"] = params["hover"]["hover_command"]
-        out["hover_command_interval_95"] = params["hover"]["hover_command_interval_95"]
-    return out
-

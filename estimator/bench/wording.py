@@ -152,27 +152,3 @@ def _start_warning(motor_block, unit="-"):
             "it. The hover command and current come from the fitted duty curve as a whole and do not "
             "rest on it" % (command_with_error(motor_block["command_start"], se, unit),
                             motor_block["duty_exponent"])]
-
-
-# why the optional columns of a sweep are read (checked as numbers) but not used
-OPTIONAL_WHY = ("the fit takes each row's command, voltage, current and thrust; its motor model "
-                "needs neither rotor speed nor torque, and it does not correct for time or temperature")
-
-
-def column_use(columns):
-    """Which columns of the bench CSV the fit used, from the reader's ``columns``: {"fitted":
-    ["command[us]", ...], "read_not_used": ["rpm[rpm]", ...] (the optional columns,
-    estimator.bench.reader.OPTIONAL, read and checked as numbers), "why_not_used": text}."""
-    return dict(columns, why_not_used=OPTIONAL_WHY)
-
-
-def columns_note(use):
-    """The fit summary's one line from column_use(columns)."""
-    from estimator.bench.reader import OPTIONAL
-
-    fitted = ", ".join(use["fitted"])
-    if not use["read_not_used"]:
-        return "columns fitted: %s; no optional column (%s: read and checked, not used)" % (
-            fitted, ", ".join("%s[%s]" % (n, next(iter(u))) for n, u in OPTIONAL.items()))
-    return "columns fitted: %s; read and checked, not used: %s (%s)" % (
-        fitted, ", ".join(use["read_not_used"]), use["why_not_used"])

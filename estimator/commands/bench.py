@@ -7,19 +7,9 @@ import os
 
 import click
 
-from estimator.cautions import SHORT, cautions
+from estimator.cautions import SHORT
 from estimator.commands.options import Bounded, Number
 from estimator.jsonio import dumps
-
-BENCH_CAUTIONS = cautions("settings")
-# where a voltage exponent comes from, by its source (thrust_curve.voltage_exponent_source)
-VOLTAGE_EXPONENT_WHY = {
-    "fitted": "fitted to the sweep's supply voltages",
-    "motor model": "NOT MEASURED: one supply voltage cannot measure it; from the fitted motor model, "
-                   "d ln T / d ln V at full command, with the ESC's duty held near linear",
-    "given": "given with --voltage-exponent, not fitted",
-    "default": "a default, not fitted",
-}
 
 
 def fit_for_vehicle(bench_file, vehicle, **fit_options):
@@ -27,113 +17,21 @@ def fit_for_vehicle(bench_file, vehicle, **fit_options):
     from estimator.bench.sweep import fit_bench_file
 
     params = fit_bench_file(bench_file, default_diameter_m=vehicle["propeller"]["diameter_m"], **fit_options)
-    return with_vehicle(params, vehicle, bench_file)
+    return with_vehicle(params, vehicle, bench_file)[0]
 
 
 def with_vehicle(params, vehicle, bench_file):
     """A parameter set fitted without a vehicle, with the vehicle's hover values: the pre-flight
-    flow's hover block from that set, then params.add_vehicle (this command chains the two
-    flows; neither imports the other). Raises InputError for a vehicle the sweep does not fit
-    (params.check_vehicle_match) or one that cannot hover on it."""
+    flow's hover report and block from that set, then params.add_vehicle (this command chains
+    the two flows; neither imports the other). Returns (the parameter set, the hover report:
+    its warnings are the vehicle's margins). Raises InputError for a vehicle the sweep does
+    not fit (params.check_vehicle_match) or one that cannot hover on it."""
     from estimator.params import add_vehicle, check_vehicle_match
-    from estimator.preflight.measured_rotor import hover_block
+    from estimator.preflight.measured_rotor import hover_block, hover_from_params
 
     check_vehicle_match(params, vehicle, bench_file, json_paths=False)
-    return add_vehicle(params, vehicle, hover_block(vehicle, params))
-
-
-def _pm(value, se, why_none):
-    """'value +- error' with matching digits, or 'value (why_none)' for a value without a
-    fitted error (held, taken from the motor model, or given): never a false '+- 0'."""
-    from estimator.bench.wording import value_and_error
-
-    text, error = value_and_error(value, se, 3)
-    if error:
-        return "%s +- %s" % (text, error)
-    return "%.3f (%s)" % (value, why_none)
-
-
-def _exponent_text(value, se, why):
-    """'value +- error (why)', or 'value (why; no error bar)' when there is none."""
-    from estimator.bench.wording import value_and_error
-
-    text, error = value_and_error(value, se, 3)
-    return "%s +- %s (%s)" % (text, error, why) if error else "%.3f (%s; no error bar)" % (value, why)
-
-
-def _start_text(mm, unit):
-    """The spin-up command with its standard error, and a word when the sweep cannot tell it."""
-    from estimator.bench.wording import START_POORLY_DETERMINED, command_with_error
-
-    se = mm.get("command_start_standard_error")
-    text = command_with_error(mm["command_start"], se or 0.0, unit) + " (motor model: where the ESC's duty starts)"
-    if se is not None and se > START_POORLY_DETERMINED:
-        text += "; poorly determined by this sweep"
-    return text
-
-
-def _human_fit(params, out_file, warnings=None, columns=None):
-    from estimator.bench.wording import columns_note, command_text, command_with_error, thrust_text
-    from estimator.units import plain_number
-
-    c, p, k, q = (params["thrust_curve"], params["power_model"], params["static_factor"],
-                  params["fit_quality"])
-    se = params["standard_errors"]
-    units = params["provenance"].get("units", {})
-    tu, cu = units.get("thrust", "N"), units.get("command", "-")
-    cmd = lambda u, span=False: command_text(u, cu, span)  # noqa: E731
-    thr = lambda t_N: thrust_text(t_N, tu)  # noqa: E731
-    lines = [
-        "fitted %d rows (%d dropped: %s) -> %s" % (
-            q["rows_used"], q["rows_rejected"],
-            ", ".join("%s %d" % kv for kv in sorted(q["rejected"].items())) or "none", out_file),
-    ] + ([columns_note(columns)] if columns else []) + [
-        "thrust curve for the controller (at %.2f V, %.3f kg/m^3; +- one standard error incl. curve-form error)" % (
-            c["reference_voltage_V"], c["reference_density_kg_m3"]),
-        "  full-command thrust  %s%s" % (thrust_text(c["thrust_max_N"], tu, se["thrust_max_N"]),
-                                         "" if tu == "N" else " (%s N)" % plain_number(c["thrust_max_N"])),
-        "  quadratic share      %s" % _pm(c["quadratic_share"], se["quadratic_share"],
-                                          "not fitted" if "quadratic_share_error" not in c else
-                                          "not separable from the intercept on this sweep (at a = 1 both "
-                                          "shift the curve alike): no error bar of its own, the "
-                                          "intercept's carries it"),
-        "  curve intercept      %s (command_min: the quadratic's zero, not a duty offset)" % (
-            command_with_error(c["command_min"], se["command_min"], cu)),
-        "  rotor starts at      %s%s" % (_start_text(params["motor_model"], cu),
-                                        "; full command at %s" % cmd(c["command_max"]) if c["command_max"] < 1.0 else ""),
-        "  voltage exponent     %s" % _exponent_text(c["voltage_exponent"], se["voltage_exponent"],
-                                                     VOLTAGE_EXPONENT_WHY.get(c.get("voltage_exponent_source"),
-                                                                              "not fitted")),
-        "  density exponent     %s" % _exponent_text(c["density_exponent"], se.get("density_exponent", 0.0),
-                                                     "from the fitted motor model, d ln T / d ln rho at "
-                                                     "full command"),
-        "  thrust residual      %s rms" % thr(q["rms_residual_N"]),
-        "power per rotor  P = %.4g W + %.4g W/N^0.5 T^0.5 + %.4g W/N T + %.4g W/N^1.5 T^1.5 + %.4g W/N^2 T^2 "
-        "(all >= 0; rms %.3g W)" % (
-            p["idle_power_W"], p["sqrt_W_per_N0_5"], p["linear_W_per_N"], p["induced_W_per_N1_5"],
-            p["copper_W_per_N2"], q["power_rms_residual_W"]),
-        "  power noise for the watch  %.1f %% (robust, through the thrust curve)" % (100.0 * p["residual_rel_std"]),
-        "static thrust factor k = %.3f at %s (%s); efficiency k^1.5 = %.0f %% of ideal" % (
-            k["value"], k.get("value_at", "median thrust"), thr(k.get("thrust_at_value_N", 0.0)),
-            100.0 * k["value"] ** 1.5),
-    ]
-    h = params.get("hover")
-    if h:
-        from estimator.preflight.warnings import thrust_to_weight_text  # printed as the sheet does
-
-        lo, hi = h["hover_command_interval_95"]
-        lines += ["hover for %s: command %s (95 %% interval %s..%s), thrust fraction %.3f, "
-                  "%.4g W, %.3g A, thrust-to-weight %s (motor model at the sagged bus %.2f V)" % (
-                      params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),
-                      h["hover_thrust_fraction"], h["power_W"], h["current_A"],
-                      thrust_to_weight_text(h.get("thrust_to_weight", 0.0)), h["voltage_V"])]
-    from estimator.bench.wording import in_sweep_units
-
-    for w in params.get("warnings", []) if warnings is None else warnings:
-        lines.append("! " + in_sweep_units(w, cu))
-    lines += ["- " + c for c in BENCH_CAUTIONS]
-    from estimator.textwidth import fit_width  # an 80-column terminal
-    return fit_width("\n".join(lines))
+    report = hover_from_params(vehicle, params)
+    return add_vehicle(params, vehicle, hover_block(vehicle, params, report)), report
 
 
 @click.command()
@@ -170,10 +68,10 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     The CSV has a name[unit] header: {header}; '# altitude:', '# temperature:', '# pressure:', '# humidity:'
     or '# density:' comments give the bench air and '# diameter:' the propeller.
     """
-    from estimator.bench.sweep import fit_sweep, summary
-    from estimator.params import check_params, write_params
-
+    from estimator.bench.summary import fit_json, fit_text
+    from estimator.bench.sweep import fit_sweep
     from estimator.outputs import check_outputs
+    from estimator.params import check_params, write_params
 
     check_outputs([(out_file, "params", "--out"), (plot_file, "png", "--plot")],
                   inputs=(bench_file, vehicle_file))
@@ -185,19 +83,16 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
                        temperature_C=temperature, pressure_Pa=pressure, humidity_pct=humidity,
                        voltage_exponent=voltage_exponent,
                        default_diameter_m=vehicle and vehicle["propeller"]["diameter_m"])
-    params = fitted.params if vehicle is None else with_vehicle(fitted.params, vehicle, bench_file)
-    if voltage_exponent is not None:
-        params["thrust_curve"]["voltage_exponent_source"] = "given"
-    from estimator.bench.wording import column_use
-    columns = column_use(fitted.columns)
-    check_params(params, out_file)
-    # the vehicle's margins (full-command pack sag, motor and pack current, thin air...) as the
-    # hover sheet gives them from this parameter set: printed, not stored (they belong to the
-    # vehicle, and `hover --params` computes them afresh for the vehicle asked about)
-    shown = list(params.get("warnings", []))
+    params, shown, tw_text = fitted.params, list(fitted.params["warnings"]), None
     if vehicle is not None:
-        from estimator.preflight.measured_rotor import hover_from_params
-        shown = list(dict.fromkeys(shown + hover_from_params(vehicle, params)["warnings"]))
+        from estimator.preflight.warnings import thrust_to_weight_text  # printed as the sheet does
+
+        params, report = with_vehicle(params, vehicle, bench_file)
+        # the vehicle's margins (full-command pack sag, motor and pack current, thin air...) as
+        # the hover sheet gives them from this parameter set: printed, not stored (they belong
+        # to the vehicle, and `hover --params` computes them afresh for the vehicle asked about)
+        shown, tw_text = list(dict.fromkeys(params["warnings"] + report["warnings"])), thrust_to_weight_text
+    check_params(params, out_file)
     from estimator.replacing import check_set_replacement, replaced_line
 
     replaced = [line for line in (check_set_replacement(out_file, params, replace),
@@ -213,17 +108,11 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
             os.unlink(plot_file)
         raise
     if as_json:
-        out = summary(params)
-        out["warnings"] = shown
-        out["out"] = out_file
-        out["columns"] = columns
-        if plot_file:
-            out["plot"] = plot_file
-        out["cautions"] = list(BENCH_CAUTIONS)
+        out = fit_json(params, shown, fitted.columns, out_file, plot_file)
         out["replaced"] = replaced
         click.echo(dumps(out))
     else:
-        click.echo(_human_fit(params, out_file, shown, columns))
+        click.echo(fit_text(params, out_file, shown, fitted.columns, tw_text))
         from estimator.textwidth import fit_width
 
         for line in replaced:

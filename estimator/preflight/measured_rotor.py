@@ -335,13 +335,14 @@ def _reachable(state, battery, rotors):
             "reachable_thrust_to_weight": rotors * at["thrust_N"] / state["weight_N"]}
 
 
-def hover_block(vehicle, params):
-    """The ``hover`` block of a parameter set (DEVELOPERS.md layout) for a vehicle.
+def hover_block(vehicle, params, report=None):
+    """The ``hover`` block of a parameter set (DEVELOPERS.md layout) for a vehicle, from its
+    hover report (hover_from_params(vehicle, params), computed here when not given).
 
     Raises InputError when the vehicle cannot hover on this rotor (there is no hover command
     to store).
     """
-    r = hover_from_params(vehicle, params)
+    r = hover_from_params(vehicle, params) if report is None else report
     if r["hover_command"] is None:
         cause = [w for w in r["warnings"] if w.startswith("cannot hover: ")][:1]
         bench = (params.get("provenance") or {}).get("input_file")
