@@ -133,3 +133,18 @@ def plain_number(x, digits=4, trim=False):
     if decimals and trim:
         text = text.rstrip("0").rstrip(".")
     return text
+
+
+def command_text(u, unit, span=False):
+    """A command [-] (a fraction of full command) written in a command unit, as a bench CSV's
+    command column has it (us: a 1000..2000 us pulse, %, permille; '-' as the fraction to
+    three decimals); span=True for a difference of commands (no 1000 us offset). Both flows
+    write commands in a sweep's own unit with it (the fit, and the pre-flight warnings for
+    a vehicle on a fitted set)."""
+    if unit == "us":
+        return "%.0f us" % ((0.0 if span else 1000.0) + 1000.0 * u)
+    if unit == "permille":
+        return "%.0f permille" % (1000.0 * u)
+    if unit == "%":
+        return "%.1f %%" % (100.0 * u)
+    return "%.3f" % u

@@ -9,7 +9,8 @@ import re
 
 import pytest
 
-from estimator.bench.wording import command_with_error, in_sweep_units
+from estimator.bench.wording import command_with_error
+from estimator.preflight.warnings import command_words, margin_warnings
 from io_helpers import VEHICLE, run
 from test_csv_header_hints import AIR, _rows
 
@@ -44,12 +45,28 @@ def test_fit_warnings_speak_the_sweeps_command_unit(tmp_path):
     ("us", "hover command 1620 us at empty pack is above 1600 us: little left"),
     ("-", "hover command 0.62 at empty pack is above 0.6 of full command: little left"),
 ])
-def test_in_sweep_units_rewrites_each_command_form(unit, text):
-    given = "hover command 0.62 at empty pack is above 0.6 of full command: little left"
-    assert in_sweep_units(given, unit) == text
-    swept = "hover command 0.970 at full pack lies above the highest command swept (0.950): extrapolated"
-    assert in_sweep_units(swept, "permille") == ("hover command 970 permille at full pack lies above the "
-                                                 "highest command swept (950 permille): extrapolated")
+def test_preflight_warnings_write_commands_in_the_sweeps_unit(unit, text):
+    # the warnings take the unit and write it themselves (no rewriting of their English after
+    # the fact): 0.62 of full command is 1620 us of a 1000..2000 us pulse, 62.0 %, 620 permille
+    report = {"hover_command": 0.55, "hover_command_empty": 0.62, "hover_command_full": 0.5,
+              "thrust_to_weight": 2.5, "density_ratio": 1.0}
+    warned = [w for w in margin_warnings(report, unit) if w.startswith("hover command")]
+    assert len(warned) == 1 and warned[0].startswith(text), warned
+    assert command_words("0.950", "permille") == "950 permille" and command_words("0.950", "-") == "0.950"
+
+
+def test_the_fits_own_warnings_are_not_rewritten_twice(tmp_path):
+    # a % sweep that stops at 90 %: the fit's own warning is written in % once; the pre-flight
+    # rewriting read its '90.0' as a fraction and printed 'command 9000.0 % %'
+    sweep = tmp_path / "s.csv"
+    cells = [r.split(",", 1) for r in _rows(40)]  # command in us of a 1000..2000 us pulse
+    rows = ["%.1f,%s" % (0.1 * (float(us) - 1000.0), rest) for us, rest in cells if float(us) <= 1900.0]
+    sweep.write_text(AIR + "command[%],voltage[V],current[A],thrust[gf]\n" + "\n".join(rows) + "\n")
+    code, out, err = run(["fit", sweep, "--out", tmp_path / "p.json"])
+    assert code == 0, err
+    text = " ".join(out.split())
+    assert "the sweep stops at command 90.0 %: taken as full command" in text, text
+    assert "% %" not in text, text
 
 
 def test_a_start_command_error_bar_is_bounded_at_zero():

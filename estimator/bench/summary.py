@@ -4,9 +4,8 @@ error digits: estimator.bench.wording)."""
 
 from estimator.cautions import cautions
 from estimator.bench.reader import OPTIONAL
-from estimator.bench.wording import (START_POORLY_DETERMINED, command_text, command_with_error, in_sweep_units,
-                                     thrust_text, value_and_error)
-from estimator.units import plain_number
+from estimator.bench.wording import START_POORLY_DETERMINED, command_with_error, thrust_text, value_and_error
+from estimator.units import command_text, plain_number
 
 # where a voltage exponent comes from, by its source (thrust_curve.voltage_exponent_source)
 VOLTAGE_EXPONENT_WHY = {
@@ -101,7 +100,7 @@ def fit_text(params, out_file, warnings, columns, thrust_to_weight_text=None):
                       params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),
                       h["hover_thrust_fraction"], h["power_W"], h["current_A"],
                       tw_text(h.get("thrust_to_weight", 0.0)), h["voltage_V"])]
-    lines += ["! " + in_sweep_units(w, cu) for w in warnings]
+    lines += ["! " + w for w in warnings]
     lines += ["- " + c for c in cautions("settings")]
     return fit_width("\n".join(lines))
 

@@ -3,21 +3,8 @@ grams out; microseconds logged, microseconds shown), values with their standard 
 matching digits, plain decimals rather than exponent forms."""
 
 import math
-import re
 
-from estimator.units import plain_number
-
-
-def command_text(u, unit, span=False):
-    """A command [-] written in the unit of the CSV's command column (us, %, permille or -);
-    span=True for a difference of commands (no 1000 us offset)."""
-    if unit == "us":
-        return "%.0f us" % ((0.0 if span else 1000.0) + 1000.0 * u)
-    if unit == "permille":
-        return "%.0f permille" % (1000.0 * u)
-    if unit == "%":
-        return "%.1f %%" % (100.0 * u)
-    return "%.3f" % u
+from estimator.units import command_text, plain_number
 
 
 def command_with_error(u, se, unit):
@@ -32,28 +19,6 @@ def command_with_error(u, se, unit):
         return "%s (%s..%s within one standard error)" % (
             command_text(u, unit), command_text(0.0, unit).split(" ")[0], command_text(u + se, unit))
     return "%s%s +- %s%s" % (value, tail, error, tail)
-
-
-# commands written as fractions of full command by the pre-flight warnings (estimator.preflight
-# .warnings, range_warnings), which the fit shows for its vehicle: 'command 0.62', 'above 0.6 of
-# full command', 'command swept (0.950)', '... to 1.000 by the motor model'
-_FRACTION = r"(\d*\.\d+)(?![\d.])"
-_COMMAND_FRACTIONS = (
-    (re.compile(r"\babove %s of full command" % _FRACTION), "above %s"),
-    (re.compile(r"\bcommand swept \(%s\)" % _FRACTION), "command swept (%s)"),
-    (re.compile(r"\bto %s by the motor model" % _FRACTION), "to %s by the motor model"),
-    (re.compile(r"\bcommand %s" % _FRACTION), "command %s"),
-)
-
-
-def in_sweep_units(text, unit):
-    """A warning of the pre-flight flow with its commands (fractions of full command) written in
-    the sweep's command unit (us, %, permille), as the rest of the fit speaks; unchanged for [-]."""
-    if unit not in ("us", "%", "permille"):
-        return text
-    for pattern, form in _COMMAND_FRACTIONS:
-        text = pattern.sub(lambda m: form % command_text(float(m.group(1)), unit), text)
-    return text
 
 
 def value_and_error(value, se, digits=4):

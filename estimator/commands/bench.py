@@ -30,7 +30,8 @@ def with_vehicle(params, vehicle, bench_file):
     from estimator.preflight.measured_rotor import hover_block, hover_from_params
 
     check_vehicle_match(params, vehicle, bench_file, json_paths=False)
-    report = hover_from_params(vehicle, params)
+    # the vehicle's warnings write commands in the sweep's unit, as the fit's own do
+    report = hover_from_params(vehicle, params, params["provenance"]["units"]["command"])
     return add_vehicle(params, vehicle, hover_block(vehicle, params, report)), report
 
 

@@ -217,10 +217,11 @@ def hover_interval(params, state):
     return [max(0.0, u_h - Z_95 * se), min(1.0, u_h + Z_95 * se)], se
 
 
-def hover_from_params(vehicle, params):
+def hover_from_params(vehicle, params, command_unit="-"):
     """The ``liftcal hover --json`` report for a vehicle, from a fitted parameter set.
 
-    vehicle: checked vehicle dict; params: validated parameter set. Returns a dict with
+    vehicle: checked vehicle dict; params: validated parameter set; command_unit: the unit the
+    warnings write commands in (the fit passes its sweep's: us, %, permille). Returns a dict with
     hover_command, hover_command_full, hover_command_empty [-] (None when it cannot hover),
     hover_command_interval_95 [-, -], interval_method, hover_thrust_fraction [-],
     thrust_to_weight [-], hover_current_A [A], hover_power_W [W], flight_time_min [min],
@@ -296,7 +297,7 @@ def hover_from_params(vehicle, params):
                                 b["full_cell_V"], b["nominal_cell_V"], b["empty_cell_V"],
                                 b["cutoff_cell_V"], _hover_load(params, vehicle, rho))
         report.update({"flight_time_min": d["minutes"], "flight_ended_by": d["ended_by"], "discharge": d})
-    warnings = assumed_warnings(vehicle) + margin_warnings(report)
+    warnings = assumed_warnings(vehicle) + margin_warnings(report, command_unit)
     volts = [("hover bus, %s pack" % name if states[name]["command"] is not None
                else "open circuit, %s pack" % name,
               states[name]["bus_V"] if states[name]["command"] is not None else states[name]["open_circuit_V"])
@@ -305,7 +306,7 @@ def hover_from_params(vehicle, params):
     extrapolated = voltage_range_warning(params, volts)
     if extrapolated:
         warnings.append(extrapolated)
-    warnings += command_range_warnings(params, states)
+    warnings += command_range_warnings(params, states, command_unit)
     bench_rho = params["thrust_curve"]["reference_density_kg_m3"]
     if abs(rho / bench_rho - 1.0) > 0.15:
         warnings.append("the site air (%.3f kg/m^3) differs from the bench air (%.3f kg/m^3) by more "

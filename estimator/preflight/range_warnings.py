@@ -9,8 +9,14 @@ VOLTAGE_RANGE_TOLERANCE = 0.02
 REFERENCE_VOLTAGE_BAND = 0.12
 
 
-def command_range_warnings(params, states):
-    """Warnings, with numbers, when a hover command lies beyond the commands the sweep measured."""
+def command_range_warnings(params, states, command_unit="-"):
+    """Warnings, with numbers, when a hover command lies beyond the commands the sweep measured;
+    commands in command_unit (warnings.command_words)."""
+    from estimator.preflight.warnings import command_words
+
+    def cmd(u):
+        return command_words("%.3f" % u, command_unit)
+
     curve = params["thrust_curve"]
     top = curve.get("command_swept_max")
     out = []
@@ -19,12 +25,12 @@ def command_range_warnings(params, states):
     for name in ("full", "nominal", "empty"):
         u = states[name]["command"]
         if u is not None and u > top + 0.005:
-            out.append("hover command %.3f at %s pack lies above the highest command swept (%.3f): "
-                       "extrapolated by the motor model" % (u, name, top))
+            out.append("hover command %s at %s pack lies above the highest command swept (%s): "
+                       "extrapolated by the motor model" % (cmd(u), name, cmd(top)))
     mm = params["motor_model"]
     if top < mm["command_top"] - 0.02:
-        out.append("full-command thrust and thrust-to-weight are extrapolated from command %.3f (the "
-                   "sweep's top) to %.3f by the motor model" % (top, mm["command_top"]))
+        out.append("full-command thrust and thrust-to-weight are extrapolated from command %s (the "
+                   "sweep's top) to %s by the motor model" % (cmd(top), cmd(mm["command_top"])))
     return out
 
 

@@ -6,7 +6,7 @@ neither imports the other. Thresholds are common practice for multirotors, not a
 
 import math
 
-from estimator.units import plain_number
+from estimator.units import command_text, plain_number
 
 
 # Warning thresholds (common practice for multirotors, not a standard):
@@ -30,6 +30,17 @@ def vehicle_site_air(vehicle):
 SAG_CAUSE_SHARE = 0.2
 ENDED_BY_WORDS = {"cutoff": "the loaded-voltage cutoff", "reserve": "the landing reserve",
                   "thrust": "the loss of hover (the drained pack can no longer hold it)"}
+
+
+def command_words(text, unit="-", of_full=False):
+    """A command as a warning writes it: given as the fraction of full command the warning
+    rounds it to ('0.62'), in the sweep's command unit (us, %, permille: '1620 us', estimator.
+    units.command_text) for a report on a set fitted from such a sweep; else the fraction
+    itself, followed by 'of full command' where of_full (a threshold: 'above 0.6 of full
+    command')."""
+    if unit in ("us", "%", "permille"):
+        return command_text(float(text), unit)
+    return text + " of full command" if of_full else text
 
 
 def beside(value, threshold, below=True, digits=2):
@@ -90,14 +101,14 @@ def full_command_sag(report):
     return {"full_command_cell_V": bus / cells, "thrust_to_weight_reachable": bus / cells >= cutoff}
 
 
-def cannot_hover_cause(report):
+def cannot_hover_cause(report, command_unit="-"):
     """One warning that names the real limiting factor of a vehicle that cannot hover.
 
     When the vehicle file holds values that look like a unit slip (report key suspect_keys,
     the JSON paths of preflight.unit_checks warnings), the cause names them first: the
     physics below is then that of the values as read.
     """
-    text = _cannot_hover_cause(report)
+    text = _cannot_hover_cause(report, command_unit)
     keys = report.get("suspect_keys") or []
     if keys:
         text = text.replace("cannot hover", "cannot hover with the values as read (first check %s: %s "
@@ -106,7 +117,7 @@ def cannot_hover_cause(report):
     return text
 
 
-def _cannot_hover_cause(report):
+def _cannot_hover_cause(report, command_unit="-"):
     weight = report.get("weight_N") or 0.0
     full = report.get("full_thrust_N")
     tw = report.get("thrust_to_weight")
@@ -136,8 +147,8 @@ def _cannot_hover_cause(report):
         text = ("cannot hover at nominal pack: the command needed exceeds full command (thrust-to-weight "
                 "%.2f)" % (tw or 0.0))
     if report.get("hover_command_full") is not None:
-        text += ("; a freshly charged pack would just hold it (command %.2f at full pack): not flyable"
-                 % report["hover_command_full"])
+        text += ("; a freshly charged pack would just hold it (command %s at full pack): not flyable"
+                 % command_words("%.2f" % report["hover_command_full"], command_unit))
     return text
 
 
@@ -162,13 +173,14 @@ def not_flyable_reasons(report):
     return out
 
 
-def margin_warnings(report):
-    """Warnings for a report dict with the keys of hover_report (also usable on fitted reports)."""
+def margin_warnings(report, command_unit="-"):
+    """Warnings for a report dict with the keys of hover_report (also usable on fitted reports);
+    commands in command_unit (command_words: the unit of the sweep a fitted set came from)."""
     out = []
     tw = report.get("thrust_to_weight")
     judged, marked = judged_thrust_to_weight(report)
     if report.get("hover_command") is None:
-        out.append(cannot_hover_cause(report))
+        out.append(cannot_hover_cause(report, command_unit))
     worst = None
     for key, label in (("hover_command_empty", "empty"), ("hover_command", "nominal"),
                        ("hover_command_full", "full")):
@@ -177,9 +189,10 @@ def margin_warnings(report):
             worst = (value, label)
             break
     if worst and report.get("hover_command") is not None:  # a vehicle that cannot hover got its cause
-        out.append("hover command %s at %s pack is above %.1f of full command: little left for "
-                   "control and gusts (thrust-to-weight %s)"
-                   % (beside(worst[0], HOVER_COMMAND_LIMIT, below=False), worst[1], HOVER_COMMAND_LIMIT,
+        out.append("hover command %s at %s pack is above %s: little left for control and gusts "
+                   "(thrust-to-weight %s)"
+                   % (command_words(beside(worst[0], HOVER_COMMAND_LIMIT, below=False), command_unit), worst[1],
+                      command_words("%.1f" % HOVER_COMMAND_LIMIT, command_unit, of_full=True),
                       judged_thrust_to_weight_text(report)))
     if report.get("hover_command") is not None and report.get("hover_command_empty") is None:
         out.append("near the end of the pack it cannot hover (command would exceed full at %s V open "
