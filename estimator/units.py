@@ -148,3 +148,24 @@ def command_text(u, unit, span=False):
     if unit == "%":
         return "%.1f %%" % (100.0 * u)
     return "%.3f" % u
+
+
+# a command [-] as a number in a bench CSV's command unit: unit -> (scale, offset, JSON key
+# suffix), shown = offset + scale * u (a 1000..2000 us pulse, %, permille; '-' is u itself)
+COMMAND_SHOWN = {"us": (1000.0, 1000.0, "us"), "%": (100.0, 0.0, "pct"), "permille": (1000.0, 0.0, "permille")}
+
+
+def commands_in_unit(values, unit):
+    """Commands in a sweep's command unit, as JSON keys with the unit in the name, beside the
+    0..1 values they come from: {key: command [-], [low, high] or None} -> {key_us: 1000 +
+    1000 u, ...} (key_pct for %, key_permille); {} for '-' (the values are already in it)."""
+    if unit not in COMMAND_SHOWN:
+        return {}
+    scale, offset, suffix = COMMAND_SHOWN[unit]
+
+    def shown(u):  # 7 significant digits: a 0..1 value's 6 and no float tail (14.0857, not 14.085700000000001)
+        if isinstance(u, (list, tuple)):
+            return [shown(x) for x in u]
+        return None if u is None else float("%.7g" % (offset + scale * u))
+
+    return {"%s_%s" % (key, suffix): shown(u) for key, u in values.items()}

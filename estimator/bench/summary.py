@@ -5,8 +5,10 @@ error digits: estimator.bench.wording)."""
 from estimator.cautions import cautions
 from estimator.bench.reader import OPTIONAL
 from estimator.bench.wording import START_POORLY_DETERMINED, command_with_error, thrust_text, value_and_error
-from estimator.units import command_text, plain_number
+from estimator.units import command_text, commands_in_unit, plain_number
 
+# the commands of the --json object that are also given in the sweep's own unit
+COMMAND_KEYS = ("command_min", "command_start", "hover_command", "hover_command_interval_95")
 # where a voltage exponent comes from, by its source (thrust_curve.voltage_exponent_source)
 VOLTAGE_EXPONENT_WHY = {
     "fitted": "fitted to the sweep's supply voltages",
@@ -36,6 +38,9 @@ def fit_json(params, warnings, columns, out_file, plot_file=None):
     if "hover" in params:
         out["hover_command"] = params["hover"]["hover_command"]
         out["hover_command_interval_95"] = params["hover"]["hover_command_interval_95"]
+    # the same commands in the sweep's own unit (hover_command_us, ...), beside the 0..1 values
+    out.update(commands_in_unit({k: out[k] for k in COMMAND_KEYS if k in out},
+                                params["provenance"].get("units", {}).get("command", "-")))
     out.update({"out": out_file, "columns": dict(columns, why_not_used=OPTIONAL_WHY)})
     if plot_file:
         out["plot"] = plot_file

@@ -4,14 +4,14 @@ matching digits, plain decimals rather than exponent forms."""
 
 import math
 
-from estimator.units import command_text, plain_number
+from estimator.units import COMMAND_SHOWN, command_text, plain_number
 
 
 def command_with_error(u, se, unit):
     """A command [-] and its standard error [-] in the CSV's command unit, in matching digits
     (value_and_error): '1200.0 us +- 2.3 us', '18.6 % +- 1.3 %', '0.186 +- 0.013'."""
-    scale, offset, tail = {"us": (1000.0, 1000.0, " us"), "%": (100.0, 0.0, " %"),
-                           "permille": (1000.0, 0.0, " permille")}.get(unit, (1.0, 0.0, ""))
+    scale, offset, _ = COMMAND_SHOWN.get(unit, (1.0, 0.0, ""))
+    tail = " " + unit if unit in COMMAND_SHOWN else ""
     value, error = value_and_error(offset + scale * u, scale * se)
     if not error:
         return command_text(u, unit)

@@ -39,7 +39,7 @@ from estimator.preflight.range_warnings import (about_the_vehicle, command_range
 from estimator.cautions import cautions
 from estimator.preflight.pack import pack_in_the_air, pack_keys
 from estimator.preflight.warnings import full_command_sag, margin_warnings, vehicle_site_air
-from estimator.units import STANDARD_GRAVITY_M_S2
+from estimator.units import COMMAND_SHOWN, STANDARD_GRAVITY_M_S2, commands_in_unit
 from estimator.vehicle import assumed_warnings, given_text, vehicle_source
 
 INTERVAL_METHOD = ("+-1.96 standard errors of the motor model's hover command: model-form error (robust "
@@ -47,6 +47,9 @@ INTERVAL_METHOD = ("+-1.96 standard errors of the motor model's hover command: m
                    "extrapolation beyond the sweep and, for a one-way sweep, the rotor's lag, in "
                    "quadrature; clipped to 0..1")
 INTERVAL_SCOPE = "bench-fit and model-form uncertainty; not site, pack or prop-to-prop spread"
+# the report's commands also given in the sweep's own unit (units.commands_in_unit)
+COMMANDS = ("hover_command", "hover_command_full", "hover_command_empty", "hover_command_interval_95",
+            "hover_command_start")
 # measured on independent truths (benchmarks/fit_study.py): level residuals of neighbouring
 # commands are correlated, and the hover point sits between levels [-]
 FORM_INFLATION = 2.0
@@ -289,6 +292,9 @@ def hover_from_params(vehicle, params, command_unit="-"):
                               "to the first of: loaded cutoff, landing reserve, loss of hover"),
         "flight_ended_by": None, "discharge": None,
     }
+    unit = (params["provenance"].get("units") or {}).get("command", "-")  # the sweep's command unit
+    if unit in COMMAND_SHOWN:  # the commands in it too (hover_command_us ...), beside the 0..1 values
+        report.update(commands_in_unit({k: report[k] for k in COMMANDS}, unit), command_unit=unit)
     report.update(pack_keys(raw_vehicle, b, pack_temperature, pack_basis))
     report.update(full_command_sag(report))
     report.update(_reachable(nom, b, count))

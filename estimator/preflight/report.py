@@ -13,6 +13,7 @@ from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_
 from estimator.cautions import cautions
 from estimator.textwidth import fit_width
 from estimator.preflight.caveats import caveats
+from estimator.units import command_text
 from estimator.preflight.pack import pack_in_the_air, pack_keys, pack_temperature_text
 from estimator.preflight.low_reynolds import (endurance_lead, fallback_figure_of_merit,
                                               hover_warning as low_reynolds_warning)
@@ -207,6 +208,13 @@ def _at_hover(current_A):
     return "" if current_A is None else "%s at hover, " % _num(current_A, SIG3, "A")
 
 
+def _command(report, key, none="n/a"):
+    """A command of the report as the fraction of full command, with the sweep's own unit
+    beside it for a fitted set from a sweep in us, % or permille ('0.58 (1578 us)')."""
+    value, unit = report.get(key), report.get("command_unit")
+    return _num(value, "%.2f", none=none) + (" (%s)" % command_text(value, unit) if unit and value is not None else "")
+
+
 def format_sheet(report):
     """The human pre-flight sheet for a report dict, grouped by the builder's questions
     (lines wrapped to an 80-column terminal, estimator.textwidth)."""
@@ -233,19 +241,21 @@ def format_sheet(report):
         why_not = not_flyable_reasons(report)
         if why_not:
             lines.append("   ONLY JUST - it holds its weight at command %s on a nominal pack, but it is not "
-                         "flyable: %s" % (_num(report.get("hover_command"), "%.2f"), "; ".join(why_not)))
+                         "flyable: %s" % (_command(report, "hover_command"), "; ".join(why_not)))
         else:
-            lines.append("   YES - command %s on a nominal pack" % _num(report.get("hover_command"), "%.2f"))
+            lines.append("   YES - command %s on a nominal pack" % _command(report, "hover_command"))
         lines.append("         %s on a full pack, %s near empty" % (
-            _num(report.get("hover_command_full"), "%.2f"),
-            _num(report.get("hover_command_empty"), "%.2f", none="cannot hover")))
+            _command(report, "hover_command_full"), _command(report, "hover_command_empty", none="cannot hover")))
         lines.append("         thrust fraction %s of full-command thrust at the hover bus voltage "
                      "(not 1/(T/W): T/W is taken at full command, where the pack sags further)" %
                      _num(report.get("hover_thrust_fraction"), "%.2f"))
         interval = report.get("hover_command_interval_95")
         if interval:
-            lines.append("         95 %% interval %.3f..%.3f (%s)"
-                         % (interval[0], interval[1], report.get("interval_scope", "bench-fit uncertainty only")))
+            unit = report.get("command_unit")
+            lines.append("         95 %% interval %.3f..%.3f%s (%s)"
+                         % (interval[0], interval[1], " (%s..%s)" % (command_text(interval[0], unit),
+                                                                     command_text(interval[1], unit)) if unit else "",
+                            report.get("interval_scope", "bench-fit uncertainty only")))
         if report.get("model") == MODEL:
             lines.append("         " + DUTY_NOTE)
     else:
