@@ -232,7 +232,7 @@ def main(n_flights=2, seed=1):
             print("%s: fit refused: %s" % (kind, err.strip()))
             continue
         for rate in (5, 10, 25, 50, 100, None):
-            cells = {"false": 0, "h": 0.0, "step": [], "ramp": [], "mass": []}
+            cells = {"false": 0, "h": 0.0, "step": [], "ramp": [], "mass": [], "unjudged": 0}
             cases = [(None, 1.0)] * n_flights + [(("step", 0.10), 1.0), (("step", -0.10), 1.0),
                                                   (("ramp", 0.15), 1.0), (None, 1.15)]
             for i, (fault, payload) in enumerate(cases):
@@ -257,17 +257,26 @@ def main(n_flights=2, seed=1):
                 else:
                     want = "power_high" if fault[1] > 0 else "power_low"
                     early = [e for e in events if e["t_s"] < t_f]
+                    for e in early:
+                        print("  FALSE %s %s flight %d (before the fault): %.1f s %s" % (kind, rate, i, e["t_s"], e["kind"]))
                     cells["false"] += len(early)
                     hits = [e["t_s"] - t_f for e in events if e["kind"] == want and e["t_s"] >= t_f]
                     d = hits[0] if hits else math.inf
+                    left_s = rows[-1][0] - t_f             # flight left after the onset (the pack's cutoff)
                     if fault[0] == "ramp":
-                        cells["ramp"].append(0.15 * min(1.0, d / 300.0) if d != math.inf else math.inf)
-                    else:
+                        if d != math.inf or 0.15 * min(1.0, left_s / 300.0) >= 0.08:
+                            cells["ramp"].append(0.15 * min(1.0, d / 300.0) if d != math.inf else math.inf)
+                        else:                              # landed before the ramp reached 8 %: not judged
+                            cells["unjudged"] += 1
+                    elif d != math.inf or left_s >= 30.0:
                         cells["step"].append(d)
-            print("%-6s %5s Hz  false %d in %.2f h  step +-10%% %s  ramp share %s  +15%% payload %s" % (
+                    else:
+                        cells["unjudged"] += 1
+            print("%-6s %5s Hz  false %d in %.2f h  step +-10%% %s  ramp share %s  +15%% payload %s%s" % (
                 kind, rate or "irr", cells["false"], cells["h"],
                 " ".join("%.1f" % x for x in cells["step"]), " ".join("%.3f" % x for x in cells["ramp"]),
-                " ".join("%.1f" % x for x in cells["mass"])))
+                " ".join("%.1f" % x for x in cells["mass"]),
+                "  (%d fault flights landed too soon to judge)" % cells["unjudged"] if cells["unjudged"] else ""))
             sys.stdout.flush()
             totals["false"] += cells["false"]
             totals["hours"] += cells["h"]
