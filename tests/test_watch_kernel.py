@@ -116,7 +116,7 @@ def test_every_intermediate_below_2_30_on_the_extremes():
 
 
 def test_every_intermediate_below_2_30_at_the_largest_noise():
-    # The in-flight noise may reach 1.5x the learning window's 100 % (sig 1.5 x 1000 x 64 in Q6);
+    # The in-flight noise may reach 1.75x the learning window's 100 % (sig 1.75 x 1000 x 64 in Q6);
     # from a state beyond that (2x), with the largest CONFIG k and h (in noise sigma) and the
     # smallest k cap, the capped reference's h = h_sigma s x k_sigma s / k_max must still stay
     # below 2^30 (it once reached 2e9 at 200 % noise).

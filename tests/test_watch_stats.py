@@ -17,7 +17,7 @@ from scipy.stats import norm
 
 from estimator.core.watch import Watch
 from estimator.watch.config import as_tuple, make_config, siegmund_arl, siegmund_arl_two_sided, threshold_for_arl
-from watch_helpers import demo_fit_params, set_state
+from watch_helpers import block_state_names, demo_fit_params, set_state
 
 
 def markov_arl(k, h, mu=0.0, m=400, clip=None):
@@ -75,7 +75,8 @@ def _kernel_run_length(cfg, sigma_pm, rng, cap=20000):
     pe = w.state[2] >> 2                 # the lagged expected power [0.1 W] (settled: no lag)
     k = cfg["cusum_k_q8"] * sigma_pm >> 8
     h = cfg["cusum_h_q8"] * sigma_pm >> 8
-    set_state(w, learning=0, scale=1000, sig=sigma_pm << 6, k=k, h=h, s_hi=0, s_lo=0, drift=0, flags=0)
+    set_state(w, learning=0, scale=1000, sig=sigma_pm << 6, k=k, h=h, s_hi=0, s_lo=0, drift=0, flags=0,
+              l_ms=0)                 # no floor on k from the learned baseline's error
     for n in range(1, cap):
         target_dW = pe * (1.0 + sigma_pm / 1000.0 * rng.gauss(0.0, 1.0))
         ma = int(round(target_dW * 1e5 / mv / 10.0)) * 10 + 5
@@ -162,9 +163,10 @@ def test_capped_reference_keeps_the_false_alarm_rate():
             assert siegmund_arl(ks, hs, mu=100.0 / s) < bound, (s, siegmund_arl(ks, hs, mu=100.0 / s))
 
 
-def _learn_baseline(sigma_rel, offset_rel, seed):
+def _learn_baseline(sigma_rel, offset_rel, seed, keep=False):
     """Flags after a learning window on blocks whose measured power is P_exp (1 + offset +
-    sigma z), z ~ N(0, 1) per 1 s block (steady hover command, take-off skip 0)."""
+    sigma z), z ~ N(0, 1) per 1 s block (steady hover command, take-off skip 0); the Watch
+    itself when keep."""
     cfg = make_config(demo_fit_params(), options={"takeoff_s": 0.0, "lag_ms": 0.0})[0]
     w = Watch(as_tuple(cfg))
     rng = random.Random(seed)
@@ -177,7 +179,7 @@ def _learn_baseline(sigma_rel, offset_rel, seed):
         ma = int(round(target_dW * 1e5 / mv))
         for i in range(10):
             flags |= w.update(100, u, mv, ma + i)
-    return flags
+    return w if keep else flags
 
 
 def test_baseline_off_only_beyond_the_learned_mean_error():
@@ -189,3 +191,75 @@ def test_baseline_off_only_beyond_the_learned_mean_error():
     for seed in (1, 2, 3):
         assert not _learn_baseline(0.30, 0.13, seed) & 8, seed
         assert _learn_baseline(0.30, 0.40, seed) & 8, seed
+
+
+def _learned_watch(cfg, sig_pm, **extra):
+    """A Watch past its learning window (scale 1, noise sig_pm [permille] also the window's) and
+    one 0.5 s block of steady hover (the hover thrust learned), plus the expected power [0.1 W]."""
+    w = Watch(as_tuple(cfg))
+    mv, u = 15000, 520
+    w.update(100, u, mv, 20000)
+    pe = w.state[2] >> 2
+    set_state(w, learning=0, scale=1000, sig=sig_pm << 6, l_dev=sig_pm << 6, l_ms=0, drift=0, **extra)
+    return w, pe
+
+
+def test_a_step_during_manoeuvres_is_caught():
+    # A block in a manoeuvre or its settle time is judged at half weight: its log-likelihood step
+    # for the shift the CUSUM is tuned to (2k) is (z - k)/2 (Page 1954 with each block weighted by
+    # its information). The earlier rule z/2 - k is the step for a 4k shift: at a 10 % power step
+    # with k at its 5 % cap (noise above 3.3 %) such blocks added nothing, and a step that comes
+    # while the vehicle keeps moving (a gusty sky keeps every block in settle time) was never
+    # caught. Here every block is in settle time; the 10 % step must be flagged within 60 s.
+    cfg = make_config(demo_fit_params(), options={"takeoff_s": 0.0, "lag_ms": 0.0})[0]
+    w, pe = _learned_watch(cfg, 60, hold=10 ** 8)
+    mv, u = 15000, 520
+    ma = int(round(pe * 1.10 * 1e5 / mv))
+    flags = 0
+    for i in range(600):                                  # 60 s of 100 ms samples
+        flags |= w.update(100, u, mv, ma + (i & 1))
+    assert w.data[7] == cfg["cusum_k_max_permille"]       # k at its cap: the case of the rule
+    assert w.data[25] > 0                                 # still in settle time
+    assert flags & 1, (w.data[9], w.data[8])
+
+
+def test_reference_is_never_below_the_learned_baseline_error():
+    # Self-starting CUSUM (Hawkins, J. Roy. Stat. Soc. C 36 (1987)): the in-control mean comes from
+    # the flight's own learning window, whose mean has a standard error s / sqrt(n). A shift within
+    # two of them is what the window could not tell from its own mean: the reference k must not be
+    # below 2 s / sqrt(n) (on a noisy log, 30 % block noise over 40 blocks: 9.5 %, above the 5 % cap).
+    for sigma_rel in (0.30, 0.01):
+        w = _learn_baseline(sigma_rel, 0.0, 5, keep=True)
+        sb = dict(zip(block_state_names(), w.data))
+        assert sb["learning"] == 0
+        s = sb["l_dev"] >> 6                              # the window's noise [permille]
+        n = sb["l_n"]
+        bound = 2.0 * s / math.sqrt(n + 1)
+        assert sb["k"] >= bound - 1, (sigma_rel, sb["k"], s, n, bound)
+        if sigma_rel > 0.1:
+            assert sb["k"] > cfg_k_max(), sb["k"]
+
+
+def cfg_k_max():
+    return make_config(demo_fit_params())[0]["cusum_k_max_permille"]
+
+
+def test_in_flight_noise_may_grow_past_the_learning_windows_bound():
+    # A learning window of calm flight underestimates the noise of the rest of the flight (a
+    # steadier stretch is more likely to be taken as steady). The in-flight noise starts at 1.5x
+    # the window's (an upper confidence bound) and must be able to rise above it, to 1.75x (a slow
+    # fault ramp must still not hide in more): blocks with 2.25x the window's noise raise it
+    # beyond 1.5x and no further than 1.75x.
+    cfg = make_config(demo_fit_params(), options={"takeoff_s": 0.0, "lag_ms": 0.0, "noise_s": 5.0})[0]
+    w, pe = _learned_watch(cfg, 20)
+    set_state(w, sig=30 << 6)                             # 1.5x the window's 2 %
+    rng = random.Random(11)
+    mv, u = 15000, 520
+    at = block_state_names().index("sig")
+    top = 0
+    for _ in range(400):                                  # 200 s of 0.5 s blocks, 4.5 % noise
+        ma = int(round(pe * (1.0 + 0.045 * rng.gauss(0.0, 1.0)) * 1e5 / mv))
+        for i in range(5):
+            w.update(100, u, mv, ma + i)
+        top = max(top, w.data[at] >> 6)                   # the estimate wanders (EMA over ~5 s)
+    assert 30 < top <= 35, top

@@ -184,6 +184,7 @@ class Watch:
             h = h * k // c[144]                           # 50000 * 10000 = 5e8
             h = 1048576 if h > 1048576 else h
             k = c[144]
+        k = l_ms if k < l_ms else k                       # after learning: 2 standard errors of m (below)
         sb[7] = k
         sb[8] = h
         hh = h >> 1                                       # sums below this: no suspicion
@@ -299,25 +300,30 @@ class Watch:
                     m = tol if m > 0 else -tol
                     if l_n and d * d > (s * s << 2) // l_n:   # 2000^2 ; 1000^2 x 4
                         flags |= 8
-                l_dev = s << 6                            # kept: in flight the noise stays below 1.5x this
+                # in flight k >= 2 s / sqrt(l_n + 1) (Hawkins 1987): two Newton steps from above
+                q = (s * s << 2) // (l_n + 1)             # 1000^2 x 4
+                l_ms = (s // 3 + 1 + q // (s // 3 + 1)) >> 1
+                sb[3] = l_ms = (l_ms + q // l_ms) >> 1
+                l_dev = s << 6                            # kept: in flight the noise stays below 1.75x this
                 sb[4] = l_dev
                 scale = 1000 + m
                 sb[0] = 0
                 sb[5] = scale
-                # in flight the noise starts at 1.5x (an upper confidence bound) and only comes down
+                # in flight the noise starts at 1.5x (an upper confidence bound), rises to 1.75x at most
                 s += s >> 1
                 sb[6] = s << 6                            # Q6, <= 128000
                 self.scale = scale
                 self.sigma_permille = s
         elif near:
             z = r - (drift >> 8) - x                      # |.| <= 1600
-            if not steady:
-                z = z // 2                                # manoeuvre blocks: about 1.5x the noise
             cl = k + hh + 1                               # one block adds at most this
-            zc = z
-            zc = cl if zc > cl else (-cl if zc < -cl else zc)
-            s_hi += zc - k                                # <= 2h + 2 cl < 1e5
-            s_lo -= zc + k
+            zc = cl if z > cl else (-cl if z < -cl else z)
+            if steady:
+                s_hi += zc - k                            # <= 2h + 2 cl < 1e5
+                s_lo -= zc + k
+            else:                                         # a manoeuvre block: half the step
+                s_hi += (zc - k) >> 1
+                s_lo -= (zc + k) >> 1
             h2 = h + h
             s_hi = 0 if s_hi < 0 else (h2 if s_hi > h2 else s_hi)
             s_lo = 0 if s_lo < 0 else (h2 if s_lo > h2 else s_lo)
@@ -333,8 +339,8 @@ class Watch:
                 y16 += ((z << 4) - y16) >> 2              # |.| <= 16 x 5000
                 sb[24] = y16
                 sig += ((y16 if y16 > 0 else -y16) * 53 - (sig << 2)) >> (c[132] + 2)   # 8e4 * 53 = 4.2e6
-                if sig > l_dev + (l_dev >> 1):
-                    sig = l_dev + (l_dev >> 1)            # a slow ramp must not hide in the noise
+                if sig > l_dev + (l_dev >> 1) + (l_dev >> 2):
+                    sig = l_dev + (l_dev >> 1) + (l_dev >> 2)   # 1.75x: a slow ramp hides in no more
                 sb[6] = sig
                 s = sig >> 6
                 self.sigma_permille = s if s > floor else floor
