@@ -76,6 +76,9 @@ def plot_fit(path, params, rows):
     t_model = thrust_model_N(curve, u, v)
     to_ref = (curve["reference_voltage_V"] / v) ** curve["voltage_exponent"]
     tf, t_unit, cu, c_label = user_units(params)
+    # a command value in the legend carries its unit, as the axis does (none for a 0..1 command)
+    c_unit = {"us": " us", "%": " %", "permille": " permille"}.get(
+        params.get("provenance", {}).get("units", {}).get("command", "-"), "")
 
     fig = plt.figure(figsize=(12, 6.5))
     grid = fig.add_gridspec(2, 2, height_ratios=[3, 1], hspace=0.08, wspace=0.22)
@@ -93,9 +96,9 @@ def plot_fit(path, params, rows):
     ax.fill_between(cu(grid_u), tf * (fit_t - half), tf * (fit_t + half), color="tab:blue", alpha=0.25, lw=0,
                     label="95 % band of the fit")
     ax.plot(cu(grid_u), tf * fit_t, "-", color="tab:blue", lw=1.8,
-            label="controller curve: T_max %.4g %s, a %.3f, intercept %.4g, n %.2f" % (
+            label="controller curve: T_max %.4g %s, a %.3f, intercept %.4g%s, n %.2f" % (
                 tf * curve["thrust_max_N"], t_unit, curve["quadratic_share"], float(cu(curve["command_min"])),
-                curve["voltage_exponent"]))
+                c_unit, curve["voltage_exponent"]))
     h = params.get("hover")
     if h:
         # the curve at the hover bus voltage and the thrust each rotor needs (at bench air, through
@@ -108,8 +111,8 @@ def plot_fit(path, params, rows):
                 label="curve at the hover bus voltage %.2f V" % v_h)
         ax.axhline(tf * need, color="tab:green", lw=0.8, ls=":")
         ax.axvline(float(cu(h["hover_command"])), color="tab:green", lw=1, ls="--",
-                   label="hover command %.4g (%s)" % (float(cu(h["hover_command"])),
-                                                     params["vehicle"].get("name", "vehicle")))
+                   label="hover command %.4g%s (%s)" % (float(cu(h["hover_command"])), c_unit,
+                                                       params["vehicle"].get("name", "vehicle")))
     ax.set_ylabel("thrust at %.2f V [%s]" % (curve["reference_voltage_V"], t_unit))
     ax.set_title("Thrust curve (bench air %.3f kg/m^3)" % rho)
     ax.legend(loc="upper left", fontsize=8)
