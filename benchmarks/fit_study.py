@@ -8,7 +8,9 @@ names the model behind each) and the coverage of the 95 % hover-command interval
 --volt-noise X: the bench voltmeter's relative noise per row (default 0.0005; a hobby logger
 reads to about 0.002, from memory): with one supply those readings are nearly all the voltage
 change the sweep shows, the case that once biased the voltage exponent.
-Usage: .venv/bin/python benchmarks/fit_study.py [TRUTHS] [--first SEED] [--volt-noise X]
+--cuts 0.5,0.6,...: also fit each truth's sweep stopped at these commands (the ESC's end
+points at idle and full command; tests/truth_study.py run_one) and report by cut-off.
+Usage: .venv/bin/python benchmarks/fit_study.py [TRUTHS] [--first SEED] [--volt-noise X] [--cuts LIST]
 """
 
 import os
@@ -20,7 +22,7 @@ ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 sys.path.insert(0, ROOT)
 sys.path.insert(0, os.path.join(ROOT, "tests"))
 
-from truth_study import report_lines, run_one, summarise  # noqa: E402
+from truth_study import cut_report_lines, cut_summary, report_lines, run_one, summarise  # noqa: E402
 
 
 def main(argv):
@@ -34,9 +36,15 @@ def main(argv):
         if noise is not None:
             truth["volt_noise"] = noise
 
-    results = [run_one(seed, folder=folder, tweak=tweak) for seed in range(first, first + count)]
-    for line in report_lines(summarise(results)):
-        print(line)
+    cuts = [float(x) for x in argv[argv.index("--cuts") + 1].split(",")] if "--cuts" in argv else []
+    if "--only-cuts" not in argv:
+        results = [run_one(seed, folder=folder, tweak=tweak) for seed in range(first, first + count)]
+        for line in report_lines(summarise(results)):
+            print(line)
+    for cut in cuts:
+        results = [run_one(seed, folder=folder, tweak=tweak, cut=cut) for seed in range(first, first + count)]
+        for line in cut_report_lines(cut, cut_summary(results)):
+            print(line, flush=True)
     print("  %.1f s for %d truths" % (time.perf_counter() - t0, count))
 
 

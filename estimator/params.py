@@ -21,6 +21,9 @@ MODEL = "liftcal.rotor/1"
 POWER_FORM = "p0+p_h*T^0.5+p_1*T+p_15*T^1.5+p_2*T^2"
 MOTOR_FORM = "dc-motor+propeller/back-emf"
 SCHEMA = "params.schema.json"
+# a full-command thrust whose standard error exceeds this share of it is no thrust curve (the
+# fit itself refuses an extrapolated one above bench.sweep.EXTRAPOLATION_MAX_SE) [-]
+CREDIBLE_THRUST_SE = 0.5
 SHARE_HELD = ("held at %.3f for the standard errors: this sweep cannot tell the quadratic share from "
               "the intercept (at a = 1 both move the curve alike); its error is carried by command_min")
 FIT_METHOD = ("rows averaged per command level and supply (rows beyond 6 robust sigmas of their level "
@@ -264,6 +267,7 @@ def check_params(document, source):
     if not c["command_min"] < c["command_max"]:
         raise InputError("%s: $.thrust_curve.command_min: %.4g is not below command_max %.4g"
                          % (source, c["command_min"], c["command_max"]))
+    _check_curve_credible(document, source)
     p, q = document["provenance"], document["fit_quality"]
     for key in ("rows_used", "rows_rejected"):
         if p[key] != q[key]:
@@ -276,6 +280,37 @@ def check_params(document, source):
             raise InputError("%s: $.hover.hover_command_interval_95: [%g, %g] does not contain "
                              "hover_command %g" % (source, lo, hi, h["hover_command"]))
     return document
+
+
+def _check_curve_credible(document, source):
+    """Refuse a set whose thrust curve or motor model has collapsed (a fit that broke down, or
+    an edited file), each against what the bench measured (static_factor.thrust_at_value_N,
+    the median thrust of the levels that carry k):
+      - full-command thrust below that median thrust: the curve would give less at full command
+        than the rotor made in the middle of its sweep;
+      - full-command thrust with a standard error above CREDIBLE_THRUST_SE of it;
+      - a motor model that cannot make the median thrust at the highest bus voltage swept:
+        its back-EMF s stays below the bus voltage and T = a s^2 (design notes sec. 3), so
+        a V_max^2 must reach it (reference density: a grows as the density, the median too).
+    Raises InputError naming the JSON path."""
+    c, sf = document["thrust_curve"], document["static_factor"]
+    t_med = sf.get("thrust_at_value_N")
+    t_max = c["thrust_max_N"]
+    se = document["standard_errors"]["thrust_max_N"]
+    end = "a fit that broke down or an edited file: fit the sweep again"
+    if t_med is not None and not t_max >= t_med:
+        raise InputError("%s: $.thrust_curve.thrust_max_N: full-command thrust %.4g N is below the %.4g N the "
+                         "bench measured mid-sweep ($.static_factor.thrust_at_value_N): %s" % (source, t_max, t_med, end))
+    if not se <= CREDIBLE_THRUST_SE * t_max:
+        raise InputError("%s: $.standard_errors.thrust_max_N: full-command thrust %.4g N +- %.4g N is not a "
+                         "thrust curve (standard error above %.0f %% of it): %s"
+                         % (source, t_max, se, 100.0 * CREDIBLE_THRUST_SE, end))
+    v_max = c.get("voltage_max_V", c["reference_voltage_V"])
+    a = document["motor_model"]["thrust_per_V2_N"]
+    if t_med is not None and not a * v_max * v_max >= t_med:
+        raise InputError("%s: $.motor_model.thrust_per_V2_N: %.4g N/V^2 cannot make the %.4g N the bench "
+                         "measured mid-sweep even at a back-EMF of the full %.4g V bus (T = a s^2, s below the bus "
+                         "voltage): %s" % (source, a, t_med, v_max, end))
 
 
 def load_params(path):

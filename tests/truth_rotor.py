@@ -209,7 +209,8 @@ def vehicle_file(truth):
 
 def truth_values(truth, v_ref):
     """True T_max at v_ref [N], thrust against command at v_ref (callable), and the vehicle's
-    hover command, thrust-to-weight, hover pack current [A] and endurance [min] at nominal pack."""
+    hover command, thrust-to-weight, hover pack current [A], pack power [W] (bus voltage times
+    pack current) and endurance [min] at nominal pack."""
     vh = truth["vehicle"]
     rho = truth["rho"]
     t_max = float(rotor_at(truth, np.array([1.0]), v_ref, rho)[0][0])
@@ -227,12 +228,13 @@ def truth_values(truth, v_ref):
         k = int(np.searchsorted(t, t_need))  # thrust rises with duty
         lo, hi = grid[max(k - 1, 0)], grid[min(k, grid.size - 1)]
     d_h = 0.5 * (lo + hi)
-    _, _, i_h = at_supply(truth, np.array([d_h]), v_oc, vh["r_pack"], rho, n_rot)
+    _, v_h, i_h = at_supply(truth, np.array([d_h]), v_oc, vh["r_pack"], rho, n_rot)
     t_f, _, _ = at_supply(truth, np.array([1.0]), v_oc, vh["r_pack"], rho, n_rot)
     usable = 0.8 * vh["capacity_Ah"]
     return {"thrust_max_N": t_max, "curve": curve, "hover_command": float(command_for_duty(truth, d_h)),
             "thrust_to_weight": float(t_f[0]) * n_rot / (vh["mass_kg"] * G0),
-            "hover_current_A": float(i_h[0]), "flight_time_min": 60.0 * usable / float(i_h[0])}
+            "hover_current_A": float(i_h[0]), "hover_power_W": float(v_h[0] * i_h[0]),
+            "flight_time_min": 60.0 * usable / float(i_h[0])}
 
 
 def voltage_exponent(truth, v_ref):

@@ -9,6 +9,7 @@ The checks, with the published model each truth value comes from:
   hover command    the truth's command that holds m g / N on the sagging Thevenin pack 0.02
   thrust-to-weight full-command thrust of N rotors on the sagging pack over m g       3 %
   hover current    pack current at hover (same models)                                5 %
+  hover power      bus voltage x pack current at hover (same models)                  5 %
   endurance        60 C_usable / I_hover (definition of capacity)                      10 %
   coverage         share of the 95 % hover-command intervals holding the truth       >= 90 %
 """
@@ -26,20 +27,25 @@ from truth_rotor import (G0, command_at_bus_V, random_truth, sweep_rows, truth_v
 SAG_SHARE = 0.13
 
 BOUNDS = {"thrust_max": 0.03, "curve": 0.03, "hover_command": 0.02, "thrust_to_weight": 0.03,
-          "hover_current": 0.05, "endurance": 0.10}
+          "hover_current": 0.05, "hover_power": 0.05, "endurance": 0.10}
 MODELS = {
     "thrust_max": "DC motor + propeller coefficients (Drela 2007; Brandt & Selig 2011)",
     "curve": "same truth over commands 0.25..1, share of T_max",
     "hover_command": "truth ESC + motor on the Thevenin pack (bisection)",
     "thrust_to_weight": "N rotors at full duty on the sagging pack",
     "hover_current": "pack current at hover, same models",
+    "hover_power": "bus voltage x pack current at hover, same models",
     "endurance": "60 C_usable / I_hover (capacity definition)",
 }
 
 
-def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
+def run_one(seed, rows=None, folder=None, tweak=None, keep=False, cut=None):
     """Fit one truth; returns a dict of errors (or 'failed': message). tweak(truth) may change
-    the drawn truth before its rows are made; keep=True adds the truth, params and truth values."""
+    the drawn truth before its rows are made; keep=True adds the truth, params and truth values.
+    cut: the sweep stops at this command [-] (a stand's current limit, heat, a small supply);
+    its ESC then has its end points at idle and full command (0..1): a sweep that stops short
+    cannot show an ESC calibrated to a narrower range (the fit's warning says so), so such a
+    truth asks a question the data cannot answer. The truth's values stay at full command."""
     from estimator.bench.curve_fit import thrust_model_N
     from estimator.commands.bench import fit_for_vehicle
     from estimator.errors import InputError
@@ -49,6 +55,8 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
     truth = random_truth(rng, rows=rows)
     if tweak is not None:
         tweak(truth)
+    if cut is not None:
+        truth.update({"sweep_top": cut, "e_lo": 0.0, "e_hi": 1.0})
     table = sweep_rows(truth, rng)
     folder = folder or tempfile.mkdtemp()
     path = os.path.join(folder, "truth-%d.csv" % seed)
@@ -74,10 +82,12 @@ def run_one(seed, rows=None, folder=None, tweak=None, keep=False):
         "hover_command": abs(h["hover_command"] - tv["hover_command"]),
         "thrust_to_weight": abs(h["thrust_to_weight"] / tv["thrust_to_weight"] - 1.0),
         "hover_current": abs(h["current_A"] / tv["hover_current_A"] - 1.0),
+        "hover_power": abs(h["power_W"] / tv["hover_power_W"] - 1.0),
         "endurance": abs(h["flight_time_min"] / tv["flight_time_min"] - 1.0),
         "covered": bool(lo <= tv["hover_command"] <= hi),
         "thrust_max_covered": bool(abs(c["thrust_max_N"] - tv["thrust_max_N"])
                                    <= 1.959964 * params["standard_errors"]["thrust_max_N"]),
+        "thrust_max_se": params["standard_errors"]["thrust_max_N"] / tv["thrust_max_N"],
         "half_width": 0.5 * (hi - lo),
         "warnings": len(params.get("warnings", [])),
         "spin_up": params["motor_model"]["command_start"] - spin_up_command(truth),
@@ -191,4 +201,41 @@ def report_lines(summary):
                      % (100.0 * SAG_SHARE, s["sag_truths"], s["sag_curve"][0], s["sag_curve"][1],
                         100.0 * s["sag_curve_within"], s["sag_motor"][0], s["sag_motor"][1],
                         100.0 * s["sag_motor_within"]))
+    return lines
+
+
+# a refusal of a short sweep is right only when it names the extrapolation to full command
+SHORT_SWEEP_CAUSE = "stops at command"
+
+
+def cut_summary(results):
+    """Per cut-off: truths, fitted, refusals naming the short sweep (refused) and other
+    failures (failed); worst T_max, hover command and hover power errors with their seeds;
+    coverage of the 95 % hover-command interval and of T_max +- 1.96 standard errors."""
+    ok = [r for r in results if "failed" not in r]
+    refused = [r for r in results if "failed" in r and SHORT_SWEEP_CAUSE in r["failed"]]
+    out = {"truths": len(results), "fitted": len(ok), "refused": refused,
+           "failed": [r for r in results if "failed" in r and r not in refused]}
+    for key in ("thrust_max", "hover_command", "hover_power"):
+        worst = max(ok, key=lambda r: r[key]) if ok else None
+        out[key] = (worst[key], worst["seed"]) if worst else (math.nan, None)
+    out["coverage"] = sum(r["covered"] for r in ok) / max(len(ok), 1)
+    out["thrust_max_coverage"] = sum(r["thrust_max_covered"] for r in ok) / max(len(ok), 1)
+    out["thrust_max_median_se"] = float(np.median([r["thrust_max_se"] for r in ok])) if ok else math.nan
+    return out
+
+
+def cut_report_lines(cut, s):
+    lines = ["sweep cut at %.2f: %d truths, %d fitted, %d refused naming the short sweep, %d failed"
+             % (cut, s["truths"], s["fitted"], len(s["refused"]), len(s["failed"]))]
+    for f in s["failed"]:
+        lines.append("  FAILED seed %d: %s" % (f["seed"], f["failed"][:200]))
+    for f in s["refused"]:
+        lines.append("  refused seed %d (%.3f m, %d cells): %s" % (f["seed"], f["diameter_m"], f["cells"],
+                                                                    f["failed"][:160]))
+    lines.append("  worst: T_max %.2f %% (seed %s), hover command %.4f (seed %s), hover power %.2f %% (seed %s)"
+                 % (100.0 * s["thrust_max"][0], s["thrust_max"][1], s["hover_command"][0], s["hover_command"][1],
+                    100.0 * s["hover_power"][0], s["hover_power"][1]))
+    lines.append("  coverage: hover-command 95 %% interval %.1f %%, T_max +-1.96 se %.1f %% (median se %.2f %% of T_max)"
+                 % (100.0 * s["coverage"], 100.0 * s["thrust_max_coverage"], 100.0 * s["thrust_max_median_se"]))
     return lines

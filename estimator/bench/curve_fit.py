@@ -14,9 +14,12 @@ hold noise and the curve form's own error alike, inflated by FORM_INFLATION for 
 correlation of that error between neighbouring levels.
 """
 
+import math
+
 import numpy as np
 
 from estimator.errors import InputError
+from estimator.bench.motor_fit import SHORT_OF_TOP  # levels this far below u_max leave its end to the motor model
 
 PARAM_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
 # below this relative voltage spread at equal command the exponent is not fitted [-]
@@ -25,6 +28,9 @@ LOSS_SCALE = 2.5
 # the curve form's error is smooth in u, so neighbouring levels' residuals are correlated;
 # about 4 levels per independent error is what the study measures (benchmarks/fit_study.py) [-]
 FORM_INFLATION = 2.0
+# a full-command thrust extrapolated beyond the sweep with a standard error above this share
+# of it is not credible: its 95 % interval would span more than +-40 % [-]
+EXTRAPOLATION_MAX_SE = 0.2
 # a quadratic share this close to 0 or 1 is at its bound: held there for the covariance [-]
 SHARE_AT_BOUND = 0.005
 
@@ -47,6 +53,13 @@ def voltage_spread(levels):
         elif vb.size >= 2:
             spreads.append(float(np.ptp(vb) / np.median(vb)))
     return float(np.median(spreads)) if spreads else 0.0
+
+
+def _inside(theta, lo, hi):
+    """theta moved strictly inside the bounds lo..hi by a millionth of each range (least_squares
+    refuses a start on a bound; an absolute margin would cross a range smaller than itself)."""
+    margin = 1e-6 * (np.asarray(hi) - np.asarray(lo))
+    return np.clip(theta, lo + margin, hi - margin)
 
 
 def curve_thrust(theta, u, log_v, u_max):
@@ -105,15 +118,18 @@ def project(command, thrust_N, u_max, n):
     zero = np.zeros_like(command)
     theta0 = _start(command, zero, thrust_N, n, u_max)
     t_top = float(np.max(thrust_N))
+    if not t_top > 0.0:
+        raise ValueError("the motor model gives no thrust over the flying range")
     lo, hi = np.array([1e-12 * t_top, 0.0, 0.0]), np.array([10.0 * t_top, 1.0, 0.6])
     res = least_squares(lambda p: curve_thrust((p[0], p[1], p[2], n), command, zero, u_max) - thrust_N,
-                        np.clip(theta0[:3], lo + 1e-12, hi - 1e-12), bounds=(lo, hi), x_scale="jac",
+                        _inside(theta0[:3], lo, hi), bounds=(lo, hi), x_scale="jac",
                         jac=lambda p: curve_jacobian((p[0], p[1], p[2], n), command, zero, u_max)[:, :3],
                         method="trf", max_nfev=300)
     return np.append(res.x, n)
 
 
-def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, voltage_span_V):
+def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, voltage_span_V, source="the sweep",
+              units=("-", "N")):
     """The controller's curve for a sweep, with all the fit says: one call.
 
     fit_quadratic on the levels lv (after the motor fit's spike screen) from the fitted motor
@@ -124,7 +140,9 @@ def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, volt
     density_kg_m3: bench air [kg/m^3]; voltage_span_V: the rows' lowest and highest bus
     voltage [V]. Returns fit_quadratic's dict plus reference_voltage_V,
     reference_density_kg_m3, voltage_min_V, voltage_max_V, density_exponent,
-    command_swept_min, command_swept_max, and a warning when n comes from the motor model.
+    command_swept_min, command_swept_max, extrapolation (the motor model's, when the sweep
+    stops short of full command: _add_extrapolation), and a warning when n comes from the motor
+    model. source: the bench file, and units: its (command, thrust) units, for a refusal.
     """
     theta = motor["theta"]
     n_motor, se_n = motor["voltage_exponent"], motor["voltage_exponent_se"]
@@ -134,6 +152,9 @@ def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, volt
     if not both_ways:
         _add_lag(curve)
     _add_form_gap(curve, motor["thrust_top_N"])
+    curve["extrapolation"] = motor.get("extrapolation")
+    if curve["extrapolation"] is not None:
+        _add_extrapolation(curve, motor["command_swept_max"], source, units)
     curve.update({"reference_voltage_V": v_ref, "reference_density_kg_m3": density_kg_m3,
                   "voltage_min_V": voltage_span_V[0], "voltage_max_V": voltage_span_V[1],
                   "density_exponent": motor["density_exponent"], "command_swept_max": motor["command_swept_max"],
@@ -146,6 +167,34 @@ def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, volt
             "thrust and power are extrapolated. Sweep at two or three supply voltages to measure it"
             % (100.0 * curve["voltage_spread"], n_motor, se_n, voltage_span_V[0], voltage_span_V[1]))
     return curve
+
+
+def _add_extrapolation(curve, swept_top, source, units=("-", "N")):
+    """Add the motor model's extrapolation error from the sweep's top command swept_top [-] to
+    full command (curve["extrapolation"], motor_fit.full_thrust_extrapolation) to the variance
+    of T_max, in quadrature; refuse (InputError naming source) a full-command thrust that is
+    not credible: one whose standard error exceeds EXTRAPOLATION_MAX_SE of it, or one not
+    above the model's thrust at the sweep's top. units: (command, thrust) units of the text."""
+    from estimator.bench.wording import command_text, thrust_text
+
+    ex = curve["extrapolation"]
+    m = np.array(curve["covariance"]["matrix"])
+    m[0, 0] += ex["standard_error_N"] ** 2
+    curve["covariance"]["matrix"] = m.tolist()
+    se = float(np.sqrt(m[0, 0]))
+    curve["standard_errors"]["thrust_max_N"] = se
+    t_max = curve["thrust_max_N"]
+    if math.isfinite(se) and t_max > ex["thrust_top_N"] and se <= EXTRAPOLATION_MAX_SE * t_max:
+        return
+    cu, tu = units
+    why = ("not above the %s the model gives at the sweep's top" % thrust_text(ex["thrust_top_N"], tu)
+           if not t_max > ex["thrust_top_N"] else
+           "standard error %.0f %% of it, above %.0f %%" % (100.0 * se / t_max, 100.0 * EXTRAPOLATION_MAX_SE))
+    raise InputError("%s: the sweep stops at command %s, and the full-command thrust the motor model extrapolates "
+                     "from there, %s +- %s, is not credible (%s): the sweep's thrust and current do not pin the "
+                     "motor's speed and losses far enough beyond its top. Sweep to a higher command (full "
+                     "command if the stand allows)" % (source, command_text(swept_top, cu), thrust_text(t_max, tu),
+                                                       thrust_text(se, tu), why))
 
 
 def _add_lag(curve):
@@ -216,14 +265,22 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
     hi = np.array([10.0 * t_top, 1.0, 0.6, 3.0])
     if fixed:
         lo[3], hi[3] = n0 - 1e-9, n0 + 1e-9
-    theta0 = np.clip(theta0, lo + 1e-12, hi - 1e-12)
+    # a sweep that stops short of full command: the levels cannot place the curve's end, the
+    # motor model's physics can (design notes sec. 3): T_max is its thrust at u_max, V_ref,
+    # and the levels shape the rest; its error is the motor model's (the caller adds it)
+    anchored = projection is not None and not fixed and float(np.max(u)) < u_max - SHORT_OF_TOP
+    if anchored:
+        t_end = float(projection[1][-1])
+        lo[0], hi[0] = t_end * (1.0 - 1e-9), t_end * (1.0 + 1e-9)
+        theta0[0] = t_end
+    theta0 = _inside(theta0, lo, hi)
     scale = max(0.01 * t_top, 1e-12)
     for _ in range(0 if fixed and projection is not None else 2):
         res = least_squares(lambda p, s=scale: (curve_thrust(p, u, log_v, u_max) - t) / s, theta0,
                             jac=lambda p, s=scale: curve_jacobian(p, u, log_v, u_max) / s,
                             bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE, x_scale="jac",
                             method="trf", max_nfev=300)
-        theta0 = np.clip(res.x, lo + 1e-12, hi - 1e-12)
+        theta0 = _inside(res.x, lo, hi)
         r = curve_thrust(res.x, u, log_v, u_max) - t
         from estimator.bench.levels import robust_scale
         scale = max(robust_scale(r) if r.size > 4 else float(np.sqrt(np.mean(r * r))), 1e-5 * t_top)
@@ -239,8 +296,8 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
     jac = curve_jacobian(theta, u, log_v, u_max)[:, :p_free]  # d r / d theta [N per unit of each]
     dof = max(r.size - p_free, 1)
     s2 = float(np.sum(np.minimum(r * r, (4.0 * scale) ** 2))) / dof
-    free = list(range(p_free))
-    share_held = _share_not_separable(theta[1], jac, s2)
+    free = [k for k in range(p_free) if not (anchored and k == 0)]
+    share_held = _share_not_separable(theta[1], jac[:, free], s2, free.index(1))
     if share_held:
         free.remove(1)
     cov = np.zeros((4, 4))
@@ -264,7 +321,7 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
             "voltage_spread": spread, "warnings": warnings}
 
 
-def _share_not_separable(share, jac, s2):
+def _share_not_separable(share, jac, s2, column=1):
     """True when the quadratic share cannot be told from the intercept on these levels.
 
     At a = 1 the curve's derivatives by a and by u_min are proportional (dt/da = x^2 - x,
@@ -277,7 +334,7 @@ def _share_not_separable(share, jac, s2):
     if share <= SHARE_AT_BOUND or share >= 1.0 - SHARE_AT_BOUND:
         return True
     with np.errstate(all="ignore"):
-        var = np.linalg.pinv(jac.T @ jac)[1, 1] * s2 * FORM_INFLATION ** 2
+        var = np.linalg.pinv(jac.T @ jac)[column, column] * s2 * FORM_INFLATION ** 2
     return not (np.isfinite(var) and var <= 1.0)
 
 

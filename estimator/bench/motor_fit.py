@@ -53,14 +53,18 @@ LOSS_SCALE = 2.5
 # ESCs that bend it (from memory) [-]
 DUTY_PRIOR = (1.0, 0.1)
 DUTY_INDEX = 6
+# how far a fixed-pitch propeller's thrust coefficient may drift as a power of its speed,
+# CT ~ n^e (full_thrust_extrapolation; Brandt and Selig 2011, from memory) [-]
+CT_SPEED_EXPONENT = 0.05
 # a one-supply sweep's voltages further than this (rms, share of the median) from the
 # supply's line are real changes (a pack drifting as it discharges), not voltmeter noise [-]
 SUPPLY_LINE_MAX_RMS = 0.005
 # the sweep shows the ESC's top end point when the fit puts it this far below the highest
 # command swept [-]
 TOP_END_MARGIN = 0.01
-# a sweep whose highest command is at least this reaches full command [-]
-FULL_COMMAND_SWEPT = 0.98
+# a sweep whose highest command lies this far below the top end point stops short of it:
+# full command is extrapolated (full_thrust_extrapolation) [-]
+SHORT_OF_TOP = 0.02
 
 
 def rotor_arrays(theta, command, voltage_V, density_ratio=1.0):
@@ -168,12 +172,28 @@ def _start(lv):
 
 
 def _bounds(lv):
+    """Bounds of the packed parameters, from what any motor on this sweep must satisfy (each
+    with a wide margin, so that they shape no ordinary fit but keep a fit out of the corners
+    where the model degenerates: a thrust and torque current of 1e-22 at an absurd speed):
+      - the back-EMF is below the bus voltage, s <= V_max, so the top level's thrust needs
+        a = T / s^2 >= T_top / V_max^2 (half of it: noise on the top level);
+      - it is above 1 % of V_max at the top level, a <= T_top / (0.01 V_max)^2;
+      - the torque current c s^2 is at least 1 % of the top level's bus current there (the
+        propeller is the motor's main load at the top of any sweep), c >= 0.01 I_top / V_max^2,
+        and c <= I_top / (0.01 V_max)^2 / 0.01 (duty down to 1 %);
+      - the resistive drop R I cannot exceed the motor voltage: R <= V_max / I_top (twice it),
+        and R >= 1e-6 V_max / I_top (a drop of a millionth);
+      - I0 and the ESC's own draw below the top bus current (twice it), the speed current b s
+        below twice it at the top.
+    Source: the DC motor equivalent model (module docstring) at the top level."""
     i_top = float(np.max(lv["current_A"]))
     v_top = float(np.max(lv["voltage_V"]))
-    lo = [-60.0, -60.0, math.log(1e-5), math.log(1e-6 * i_top), 0.0, 0.5, 0.5, math.log(1e-7 * i_top + 1e-12),
-          math.log(1e-6 * i_top / v_top)]
-    hi = [60.0, 60.0, math.log(1e3), math.log(2.0 * i_top), 0.5, 1.0, 2.5, math.log(0.5 * i_top + 1e-12),
-          math.log(2.0 * i_top / v_top)]
+    t_top = max(float(np.max(lv["thrust_N"])), 1e-300)
+    va, ra = v_top * v_top, v_top / i_top
+    lo = [math.log(0.5 * t_top / va), math.log(0.01 * i_top / va), math.log(1e-6 * ra),
+          math.log(1e-6 * i_top), 0.0, 0.5, 0.5, math.log(1e-7 * i_top + 1e-12), math.log(1e-6 * i_top / v_top)]
+    hi = [math.log(1e4 * t_top / va), math.log(1e6 * i_top / va), math.log(2.0 * ra),
+          math.log(2.0 * i_top), 0.5, 1.0, 2.5, math.log(0.5 * i_top + 1e-12), math.log(2.0 * i_top / v_top)]
     return np.array(lo), np.array(hi)
 
 
@@ -181,9 +201,11 @@ def fit_motor_model(lv, rows, v_ref):
     """The motor model fitted to a sweep's levels, with all the fit says: one call.
 
     One pass sees whether the sweep levels off below its highest command (the ESC's top end
-    point); the final passes fit u1 there, or hold full command at 1 (at the sweep's top when
-    it stops short of FULL_COMMAND_SWEPT: an ESC calibrated to a narrower pulse range, or a
-    sweep cut short; never extrapolated beyond it). A sweep without a voltage spread
+    point); the final passes fit u1 there, or hold full command at 1: a sweep that stops short
+    (a stand's current limit, heat, a small supply) is extrapolated from its top to full
+    command by the model (full_thrust_extrapolation says how far and how well; pinning full
+    duty at the sweep's top instead bent the motor to a resistance and losses it does not
+    have, and cannot be told from the data either: _move_top). A sweep without a voltage spread
     (curve_fit.voltage_spread) gets the duty prior (module docstring). Rows of small levels
     far from the fitted model are dropped as spikes (levels.drop_model_spikes; lv changes) and
     the model fitted again. lv: levels (fit_motor); rows: (command [-], voltage [V], thrust
@@ -193,7 +215,8 @@ def fit_motor_model(lv, rows, v_ref):
     and v_ref (motor_exponents) and their standard errors voltage_exponent_se,
     density_exponent_se (exponent_errors), projection (command grid [-] from u0 to u1, thrust
     [N] there at v_ref: what the controller's quadratic is fitted to), thrust_top_N [N] at u1
-    and v_ref, block (params_dict of theta).
+    and v_ref, block (params_dict of theta), extrapolation (full_thrust_extrapolation's dict
+    when the sweep stops SHORT_OF_TOP below u1, else None).
     """
     from estimator.bench.curve_fit import MIN_VOLTAGE_SPREAD, voltage_spread
     from estimator.bench.levels import drop_model_spikes
@@ -206,8 +229,7 @@ def fit_motor_model(lv, rows, v_ref):
     def final_motor(start):
         if top_found:
             return fit_motor(lv, top_end=True, start=start, duty_prior=prior)
-        return fit_motor(lv, top_end=False, top=1.0 if u_hi >= FULL_COMMAND_SWEPT else u_hi, start=start,
-                         duty_prior=prior)
+        return fit_motor(lv, top_end=False, top=1.0, start=start, duty_prior=prior)
 
     motor = final_motor(motor)
     if drop_model_spikes(lv, lambda c, v, theta=motor["theta"]: rotor_arrays(theta, c, v)[0], *rows):
@@ -221,6 +243,8 @@ def fit_motor_model(lv, rows, v_ref):
                   "density_exponent_se": se_m, "projection": (grid, rotor_arrays(theta, grid, v_ref)[0]),
                   "thrust_top_N": float(rotor_arrays(theta, np.array([theta[5]]), v_ref)[0][0]),
                   "block": params_dict(theta)})
+    short = not top_found and u_hi < float(theta[5]) - SHORT_OF_TOP
+    motor["extrapolation"] = full_thrust_extrapolation(motor, v_ref, u_hi) if short else None
     return motor
 
 
@@ -243,9 +267,10 @@ def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None, duty_prior=No
     u, v, t, i = lv["command"], lv["voltage_V"], lv["thrust_N"], lv["current_A"]
     x0 = _start(lv) if start is None else np.array(start["x"], dtype=float)
     lo, hi = _bounds(lv)
-    x0 = np.clip(x0, lo + 1e-9, hi - 1e-9)
     if not top_end:
-        lo[5], hi[5], x0[5] = top - 1e-9, top, top - 5e-10
+        x0 = _move_top(x0, top - 5e-10)
+        lo[5], hi[5] = top - 1e-9, top
+    x0 = np.clip(x0, lo + 1e-9 * (hi - lo), hi - 1e-9 * (hi - lo))
     if duty_prior is not None:  # one supply: its line, not the voltmeter's noise (module docstring)
         v = supply_line_V(lv)
     s_t = 0.01 * float(np.max(np.abs(t))) if start is None else start["scale_thrust_N"]
@@ -275,6 +300,29 @@ def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None, duty_prior=No
             "rms_thrust_N": float(np.sqrt(np.mean((tm - t) ** 2))), "success": bool(res.success),
             "message": res.message, "active": res.active_mask.copy(), "duty_prior": duty_prior,
             "covariance": _covariance(res.jac[:2 * u.size], res.fun[:2 * u.size], held, duty_prior)}
+
+
+def _move_top(x, top):
+    """Packed parameters x with the ESC's top end point moved to top [-] and the motor rescaled so
+    that the sweep's levels look the same: below the top end the duty is only known up to a
+    scale k (the ESC passes power, Vm I = d V_bus I, so bus current and thrust cannot tell
+    d from k d), and the model is unchanged under d -> k d with s -> k s, a -> a / k^2,
+    R -> k^2 R, I0 -> I0 / k, b -> b / k^2, c -> c / k^3 (each term of Vm = s + R I and of
+    I = I0 + b s + c s^2 scales alike). Moving u1 alone (the old start) left a model that
+    missed every level by the factor k and walked to a degenerate corner."""
+    x = np.array(x, dtype=float)
+    u0, u1, g = x[4], x[5], x[6]
+    if not (top > u0 and u1 > u0):
+        x[5] = top
+        return x
+    ln_k = g * math.log((u1 - u0) / (top - u0))  # the duty at a command is k times the old one
+    x[0] -= 2.0 * ln_k
+    x[1] -= 3.0 * ln_k
+    x[2] += 2.0 * ln_k
+    x[3] -= ln_k
+    x[8] -= 2.0 * ln_k
+    x[5] = top
+    return x
 
 
 def _prior_residual(p, duty_prior):
@@ -361,12 +409,18 @@ def motor_exponents(theta, v_ref):
 def exponent_errors(motor, v_ref):
     """Standard errors of the motor model's voltage and density exponents (motor_exponents)
     at v_ref [V] from the fit's covariance (with the duty prior where the sweep has one
-    voltage) by the delta method: var(n) = grad(n) C grad(n)^T, the gradient by central
-    differences in the packed parameters (steps of 1e-4, relative for the logarithms) [-].
-    Returns (se_n, se_m)."""
+    voltage) by the delta method (_delta_errors) [-]. Returns (se_n, se_m)."""
+    se = _delta_errors(motor, lambda theta: np.array(motor_exponents(theta, v_ref)))
+    return (1.0, 1.0) if se is None else (float(se[0]), float(se[1]))
+
+
+def _delta_errors(motor, values):
+    """Standard errors of values(theta) (an array) from the fit's covariance by the delta
+    method: var = grad C grad^T, the gradient by central differences in the packed parameters
+    (steps of 1e-4, relative for the logarithms). None when the variance is not finite."""
     cov = motor["covariance"]
     x = np.asarray(motor["x"], dtype=float)
-    grad = np.zeros((2, x.size))
+    grad = None
     for k in range(x.size):
         if cov[k, k] <= 0.0:
             continue
@@ -374,12 +428,44 @@ def exponent_errors(motor, v_ref):
         up, dn = x.copy(), x.copy()
         up[k] += step
         dn[k] -= step
-        grad[:, k] = (np.array(motor_exponents(_unpack(up), v_ref))
-                      - np.array(motor_exponents(_unpack(dn), v_ref))) / (2.0 * step)
+        g = (values(_unpack(up)) - values(_unpack(dn))) / (2.0 * step)
+        if grad is None:
+            grad = np.zeros((g.size, x.size))
+        grad[:, k] = g
+    if grad is None:
+        return np.zeros(values(_unpack(x)).size)
     var = np.einsum("ij,jk,ik->i", grad, cov, grad)
     if not np.all(np.isfinite(var)):
-        return 1.0, 1.0
-    return float(math.sqrt(max(var[0], 0.0))), float(math.sqrt(max(var[1], 0.0)))
+        return None
+    return np.sqrt(np.maximum(var, 0.0))
+
+
+def full_thrust_extrapolation(motor, v_ref, swept_top):
+    """The motor model's thrust at full command (its top end point u1) and v_ref [V] when the
+    sweep stops at command swept_top [-] below it, with its standard error [N], two parts in
+    quadrature:
+      - the fit's covariance by the delta method (_delta_errors): noise, the level misfit and,
+        with one supply, the duty prior, carried out along the duty curve to u1;
+      - the propeller's own drift: the model holds the thrust and torque coefficients
+        constant, while a fixed-pitch propeller's CT changes with speed (Reynolds number) by
+        up to CT_SPEED_EXPONENT as a power of speed (Brandt and Selig 2011 measured small
+        propellers' CT rising a few percent per doubling of rpm; from memory): a relative
+        error of CT_SPEED_EXPONENT ln(n_full / n_top), with speed n ~ sqrt(T) (T = CT rho n^2 D^4).
+    Returns dict thrust_N [N], standard_error_N [N], thrust_top_N [N] (the model at the sweep's
+    top), covariance_error_N [N], speed_ratio [-]."""
+    theta = motor["theta"]
+    u1 = float(theta[5])
+
+    def thrusts(th):
+        return rotor_arrays(th, np.array([u1, swept_top]), v_ref)[0]
+
+    t_full, t_top = (float(x) for x in thrusts(theta))
+    se = _delta_errors(motor, lambda th: thrusts(th)[:1])
+    se_cov = float(se[0]) if se is not None else math.inf
+    ratio = math.sqrt(t_full / t_top) if t_top > 0.0 and t_full > t_top else 1.0
+    se_drift = CT_SPEED_EXPONENT * math.log(ratio) * t_full
+    return {"thrust_N": t_full, "standard_error_N": math.hypot(se_cov, se_drift), "thrust_top_N": t_top,
+            "covariance_error_N": se_cov, "speed_ratio": ratio}
 
 
 def params_dict(theta):

@@ -150,7 +150,7 @@ def _fit_bench(data, source, voltage_exponent):
     v_ref = float(round(float(np.median(v[:: max(1, v.size // MAD_ROWS)])), 2))
     motor = fit_motor_model(lv, (u, v, t, p), v_ref)
     both_ways = swept_both_ways(u)
-    curve = fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, rho, v_span)
+    curve = fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, rho, v_span, source, (command_unit, thrust_unit))
     spikes = lv["thrust_spike"] | lv["power_spike"]
     power, sf = fit_power(lv, (u, v, p, ~spikes), curve, rho, area, source)
     rejected = dict(data["rejected"])

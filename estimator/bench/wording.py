@@ -56,24 +56,27 @@ def fit_warnings(curve, motor, lv, command_unit="-", thrust_unit="N"):
     or at the ESC's top end point, the full-command thrust quoted above every thrust measured,
     a poorly determined spin-up command. curve: estimator.bench.curve_fit.fit_curve's dict;
     motor: the parameter set's motor_model block; lv: the levels. Returns a list of texts."""
-    return (_range_warnings(curve, motor["command_top"], motor["top_end_found"], command_unit)
+    return (_range_warnings(curve, motor["command_top"], motor["top_end_found"], command_unit, thrust_unit)
             + _reference_warning(curve, lv, command_unit, thrust_unit) + _start_warning(motor, command_unit))
 
 
-def _range_warnings(curve, command_top, top_found, unit="-"):
+def _range_warnings(curve, command_top, top_found, unit="-", thrust_unit="N"):
     """Warnings with numbers when the parameter set's full command lies beyond the sweep."""
-    from estimator.bench.motor_fit import FULL_COMMAND_SWEPT
-
     out = []
-    u_hi = curve["command_swept_max"]
+    ex = curve.get("extrapolation")
     if top_found:
         out.append("thrust levels off above command %s: the ESC's top end point; thrust_max_N is the "
                    "thrust there (command_max), commands above it add nothing" % command_text(command_top, unit))
-    elif u_hi < FULL_COMMAND_SWEPT:
-        out.append("the sweep stops at command %s: taken as full command (thrust_max_N and command_max "
-                   "there); if the ESC runs on to %s, thrust-to-weight is higher than stated. "
-                   "Sweep to full command, or set the ESC's end points to the swept range"
-                   % (command_text(u_hi, unit), command_text(1.0, unit)))
+    elif ex is not None:
+        out.append("the sweep stops at command %s: full-command thrust %s +- %s is the motor model's "
+                   "extrapolation from there (it gives %s at the sweep's top, %.2f x the speed) to %s; "
+                   "thrust-to-weight and full-command current rest on it. If the ESC's end point is below "
+                   "%s (a narrower pulse range), full thrust comes earlier. Sweep to full command to "
+                   "measure it" % (command_text(curve["command_swept_max"], unit),
+                                   thrust_text(curve["thrust_max_N"], thrust_unit),
+                                   thrust_text(curve["standard_errors"]["thrust_max_N"], thrust_unit),
+                                   thrust_text(ex["thrust_top_N"], thrust_unit), ex["speed_ratio"],
+                                   command_text(command_top, unit), command_text(command_top, unit)))
     return out
 
 
@@ -88,6 +91,8 @@ def _reference_warning(curve, lv, command_unit="-", thrust_unit="N"):
 
     t_max, se = curve["thrust_max_N"], curve["standard_errors"]["thrust_max_N"]
     t_seen = float(np.max(lv["thrust_N"]))
+    if curve.get("extrapolation") is not None:
+        return []  # full command lies beyond the sweep: _range_warnings says so
     if not t_max > t_seen + se:
         return []
     top = lv["command"] >= curve["command_max"] - 0.005
