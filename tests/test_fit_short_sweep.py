@@ -94,3 +94,18 @@ def test_check_and_firmware_refuse_a_collapsed_curve(tmp_path):
     code = __import__("io_helpers").run(["check", PARAMS])[0]
     assert code == 0
     assert np.isfinite(json.load(open(PARAMS))["thrust_curve"]["thrust_max_N"])
+
+
+def test_a_short_sweep_that_cannot_pin_full_command_is_refused_with_its_cause(tmp_path):
+    """35 rows of a 59 mm 1S rotor stopped at 1500 us: the motor model's full-command thrust
+    carries a standard error of about a quarter of itself: one error line, nothing written."""
+    from truth_rotor import random_truth, sweep_rows, write_csv
+
+    rng = np.random.default_rng(10005)
+    truth = random_truth(rng)
+    truth.update({"sweep_top": 0.5, "e_lo": 0.0, "e_hi": 1.0})
+    path = tmp_path / "short.csv"
+    write_csv(truth, sweep_rows(truth, rng), str(path))
+    out = tmp_path / "set.json"
+    refused(["fit", path, "--out", out], "stops at command 1500 us", "not credible", "Sweep to a higher command")
+    assert not out.exists()

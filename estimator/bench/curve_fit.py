@@ -19,7 +19,6 @@ import math
 import numpy as np
 
 from estimator.errors import InputError
-from estimator.bench.motor_fit import SHORT_OF_TOP  # levels this far below u_max leave its end to the motor model
 
 PARAM_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
 # below this relative voltage spread at equal command the exponent is not fitted [-]
@@ -28,6 +27,9 @@ LOSS_SCALE = 2.5
 # the curve form's error is smooth in u, so neighbouring levels' residuals are correlated;
 # about 4 levels per independent error is what the study measures (benchmarks/fit_study.py) [-]
 FORM_INFLATION = 2.0
+# levels that stop this far below the top end point u_max leave the curve's end to the motor
+# model, which extrapolates full command (motor_fit.full_thrust_extrapolation) [-]
+SHORT_OF_TOP = 0.02
 # a full-command thrust extrapolated beyond the sweep with a standard error above this share
 # of it is not credible: its 95 % interval would span more than +-40 % [-]
 EXTRAPOLATION_MAX_SE = 0.2
@@ -128,8 +130,7 @@ def project(command, thrust_N, u_max, n):
     return np.append(res.x, n)
 
 
-def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, voltage_span_V, source="the sweep",
-              units=("-", "N")):
+def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, voltage_span_V):
     """The controller's curve for a sweep, with all the fit says: one call.
 
     fit_quadratic on the levels lv (after the motor fit's spike screen) from the fitted motor
@@ -141,8 +142,8 @@ def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, volt
     voltage [V]. Returns fit_quadratic's dict plus reference_voltage_V,
     reference_density_kg_m3, voltage_min_V, voltage_max_V, density_exponent,
     command_swept_min, command_swept_max, extrapolation (the motor model's, when the sweep
-    stops short of full command: _add_extrapolation), and a warning when n comes from the motor
-    model. source: the bench file, and units: its (command, thrust) units, for a refusal.
+    stops short of full command, judged by _add_extrapolation), and a warning when n comes from
+    the motor model.
     """
     theta = motor["theta"]
     n_motor, se_n = motor["voltage_exponent"], motor["voltage_exponent_se"]
@@ -154,7 +155,7 @@ def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, volt
     _add_form_gap(curve, motor["thrust_top_N"])
     curve["extrapolation"] = motor.get("extrapolation")
     if curve["extrapolation"] is not None:
-        _add_extrapolation(curve, motor["command_swept_max"], source, units)
+        _add_extrapolation(curve)
     curve.update({"reference_voltage_V": v_ref, "reference_density_kg_m3": density_kg_m3,
                   "voltage_min_V": voltage_span_V[0], "voltage_max_V": voltage_span_V[1],
                   "density_exponent": motor["density_exponent"], "command_swept_max": motor["command_swept_max"],
@@ -169,14 +170,12 @@ def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, volt
     return curve
 
 
-def _add_extrapolation(curve, swept_top, source, units=("-", "N")):
-    """Add the motor model's extrapolation error from the sweep's top command swept_top [-] to
-    full command (curve["extrapolation"], motor_fit.full_thrust_extrapolation) to the variance
-    of T_max, in quadrature; refuse (InputError naming source) a full-command thrust that is
-    not credible: one whose standard error exceeds EXTRAPOLATION_MAX_SE of it, or one not
-    above the model's thrust at the sweep's top. units: (command, thrust) units of the text."""
-    from estimator.bench.wording import command_text, thrust_text
-
+def _add_extrapolation(curve):
+    """Add the motor model's extrapolation error from the sweep's top command to full command
+    (curve["extrapolation"], motor_fit.full_thrust_extrapolation) to the variance of T_max, in
+    quadrature, and judge it: extrapolation["credible"] is False for a full-command thrust whose
+    standard error exceeds EXTRAPOLATION_MAX_SE of it, or one not above the model's thrust at
+    the sweep's top (the fit refuses it: wording.extrapolation_refusal)."""
     ex = curve["extrapolation"]
     m = np.array(curve["covariance"]["matrix"])
     m[0, 0] += ex["standard_error_N"] ** 2
@@ -184,17 +183,7 @@ def _add_extrapolation(curve, swept_top, source, units=("-", "N")):
     se = float(np.sqrt(m[0, 0]))
     curve["standard_errors"]["thrust_max_N"] = se
     t_max = curve["thrust_max_N"]
-    if math.isfinite(se) and t_max > ex["thrust_top_N"] and se <= EXTRAPOLATION_MAX_SE * t_max:
-        return
-    cu, tu = units
-    why = ("not above the %s the model gives at the sweep's top" % thrust_text(ex["thrust_top_N"], tu)
-           if not t_max > ex["thrust_top_N"] else
-           "standard error %.0f %% of it, above %.0f %%" % (100.0 * se / t_max, 100.0 * EXTRAPOLATION_MAX_SE))
-    raise InputError("%s: the sweep stops at command %s, and the full-command thrust the motor model extrapolates "
-                     "from there, %s +- %s, is not credible (%s): the sweep's thrust and current do not pin the "
-                     "motor's speed and losses far enough beyond its top. Sweep to a higher command (full "
-                     "command if the stand allows)" % (source, command_text(swept_top, cu), thrust_text(t_max, tu),
-                                                       thrust_text(se, tu), why))
+    ex["credible"] = bool(math.isfinite(se) and t_max > ex["thrust_top_N"] and se <= EXTRAPOLATION_MAX_SE * t_max)
 
 
 def _add_lag(curve):

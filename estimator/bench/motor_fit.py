@@ -62,9 +62,6 @@ SUPPLY_LINE_MAX_RMS = 0.005
 # the sweep shows the ESC's top end point when the fit puts it this far below the highest
 # command swept [-]
 TOP_END_MARGIN = 0.01
-# a sweep whose highest command lies this far below the top end point stops short of it:
-# full command is extrapolated (full_thrust_extrapolation) [-]
-SHORT_OF_TOP = 0.02
 
 
 def rotor_arrays(theta, command, voltage_V, density_ratio=1.0):
@@ -216,9 +213,9 @@ def fit_motor_model(lv, rows, v_ref):
     density_exponent_se (exponent_errors), projection (command grid [-] from u0 to u1, thrust
     [N] there at v_ref: what the controller's quadratic is fitted to), thrust_top_N [N] at u1
     and v_ref, block (params_dict of theta), extrapolation (full_thrust_extrapolation's dict
-    when the sweep stops SHORT_OF_TOP below u1, else None).
+    when the sweep stops curve_fit.SHORT_OF_TOP below u1, else None).
     """
-    from estimator.bench.curve_fit import MIN_VOLTAGE_SPREAD, voltage_spread
+    from estimator.bench.curve_fit import MIN_VOLTAGE_SPREAD, SHORT_OF_TOP, voltage_spread
     from estimator.bench.levels import drop_model_spikes
 
     u_hi = float(np.max(lv["command"]))

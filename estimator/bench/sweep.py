@@ -22,7 +22,7 @@ from estimator.bench.levels import command_levels
 from estimator.bench.load_cell import check_thrust_sign, tare_warning
 from estimator.bench.motor_fit import DUTY_INDEX, fit_motor_model
 from estimator.bench.power_fit import MAD_ROWS, check_static_factor, fit_power
-from estimator.bench.wording import fit_warnings
+from estimator.bench.wording import extrapolation_refusal, fit_warnings
 from estimator.params import build_params
 
 
@@ -150,7 +150,10 @@ def _fit_bench(data, source, voltage_exponent):
     v_ref = float(round(float(np.median(v[:: max(1, v.size // MAD_ROWS)])), 2))
     motor = fit_motor_model(lv, (u, v, t, p), v_ref)
     both_ways = swept_both_ways(u)
-    curve = fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, rho, v_span, source, (command_unit, thrust_unit))
+    curve = fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, rho, v_span)
+    refusal = extrapolation_refusal(curve, source, command_unit, thrust_unit)
+    if refusal:
+        raise InputError(refusal)
     spikes = lv["thrust_spike"] | lv["power_spike"]
     power, sf = fit_power(lv, (u, v, p, ~spikes), curve, rho, area, source)
     rejected = dict(data["rejected"])

@@ -80,6 +80,22 @@ def _range_warnings(curve, command_top, top_found, unit="-", thrust_unit="N"):
     return out
 
 
+def extrapolation_refusal(curve, source, command_unit="-", thrust_unit="N"):
+    """The refusal of a full-command thrust extrapolated beyond a sweep that stops short, when
+    curve_fit judged it not credible (curve["extrapolation"]["credible"]); None otherwise."""
+    ex = curve.get("extrapolation")
+    if ex is None or ex["credible"]:
+        return None
+    t_max, se = curve["thrust_max_N"], curve["standard_errors"]["thrust_max_N"]
+    why = ("not above the %s the model gives at the sweep's top" % thrust_text(ex["thrust_top_N"], thrust_unit)
+           if not t_max > ex["thrust_top_N"] else "standard error %.0f %% of it" % (100.0 * se / t_max))
+    return ("%s: the sweep stops at command %s, and the full-command thrust the motor model extrapolates from "
+            "there, %s +- %s, is not credible (%s): the sweep's thrust and current do not pin the motor's "
+            "speed and losses far enough beyond its top. Sweep to a higher command (full command if the "
+            "stand allows)" % (source, command_text(curve["command_swept_max"], command_unit),
+                               thrust_text(t_max, thrust_unit), thrust_text(se, thrust_unit), why))
+
+
 def _reference_warning(curve, lv, command_unit="-", thrust_unit="N"):
     """A warning when the full-command thrust, quoted at the reference voltage (the sweep's
     median bus voltage), lies above every thrust level measured by more than its standard
