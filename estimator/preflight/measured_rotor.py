@@ -17,7 +17,8 @@ route applies to CP (only the ideal induced power is multiplied by the coaxial f
 
 The 95 % interval of the hover command: +-1.96 standard errors, the standard error made of
 the model-form error (the motor fit's robust thrust residual scale, times FORM_INFLATION,
-through dT/du at hover), of the extrapolation beyond the sweep's bus voltages (the share
+through dT/du at hover), of the extrapolation beyond the sweep's top command (for a hover
+above it: _beyond_sweep_se), of the extrapolation beyond the sweep's bus voltages (the share
 of the voltage outside the sweep times EXTRAPOLATION_N_ERROR in the voltage exponent, or,
 for an exponent not measured (one supply voltage), ln(V / V_ref) times its own standard
 error, whichever is larger) and,
@@ -44,7 +45,7 @@ from estimator.vehicle import assumed_warnings, given_text, vehicle_source
 
 INTERVAL_METHOD = ("+-1.96 standard errors of the motor model's hover command: model-form error (robust "
                    "thrust residual scale of the command levels x %.1f, through dT/du at hover), voltage "
-                   "extrapolation beyond the sweep and, for a one-way sweep, the rotor's lag, in "
+                   "and command extrapolation beyond the sweep and, for a one-way sweep, the rotor's lag, in "
                    "quadrature; clipped to 0..1")
 INTERVAL_SCOPE = "bench-fit and model-form uncertainty; not site, pack or prop-to-prop spread"
 # the report's commands also given in the sweep's own unit (units.commands_in_unit)
@@ -187,6 +188,23 @@ def _state(params, vehicle, rho, open_circuit_V):
     return out
 
 
+def _beyond_sweep_se(params, thrust_at, u_h, u1):
+    """Relative thrust error [-] at a hover command u_h above the highest command swept: the
+    full-command thrust's relative standard error (which carries the motor model's
+    extrapolation beyond the sweep, bench.motor_fit.full_thrust_extrapolation) times the share
+    of that extrapolation reached at hover, ln(T(u_h) / T_top) / ln(T(u1) / T_top), the same
+    measure (speed ratio, T ~ n^2) the extrapolation's error grows with. 0 inside the sweep.
+    thrust_at(u): the model's thrust [N] at command u and the hover bus voltage."""
+    top = params["thrust_curve"].get("command_swept_max")
+    if top is None or not u_h > top or not u1 > top:
+        return 0.0
+    t_top, t_h, t_full = thrust_at(top), thrust_at(u_h), thrust_at(u1)
+    if not (t_top > 0.0 and t_full > t_h > t_top):
+        return 0.0
+    rel = params["standard_errors"]["thrust_max_N"] / params["thrust_curve"]["thrust_max_N"]
+    return rel * math.log(t_h / t_top) / math.log(t_full / t_top)
+
+
 def hover_interval(params, state):
     """95 % interval [lo, hi] of the hover command [-] and its standard error (module docstring).
 
@@ -216,7 +234,8 @@ def hover_interval(params, state):
         n_part = se_n * abs(math.log(v_h / curve.get("reference_voltage_V", v_h)))
     se_extra = max(EXTRAPOLATION_N_ERROR * beyond, n_part) * t_h / slope if slope > 0.0 else 0.0
     se_lag = 0.0 if mm.get("sweep_both_ways", True) else ONE_WAY_LAG_SE
-    se = math.sqrt(se_form ** 2 + se_extra ** 2 + se_lag ** 2 + MIN_COMMAND_SE ** 2)
+    se_beyond = _beyond_sweep_se(params, thrust_at, u_h, rotor.u1) * t_h / slope if slope > 0.0 else 0.0
+    se = math.sqrt(se_form ** 2 + se_extra ** 2 + se_lag ** 2 + se_beyond ** 2 + MIN_COMMAND_SE ** 2)
     return [max(0.0, u_h - Z_95 * se), min(1.0, u_h + Z_95 * se)], se
 
 
