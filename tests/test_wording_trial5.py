@@ -65,7 +65,8 @@ def test_the_fits_own_warnings_are_not_rewritten_twice(tmp_path):
     code, out, err = run(["fit", sweep, "--out", tmp_path / "p.json"])
     assert code == 0, err
     text = " ".join(out.split())
-    assert "the sweep stops at command 90.0 %: taken as full command" in text, text
+    # (full command is extrapolated from the sweep's top by the motor model: tests/test_fit_short_sweep.py)
+    assert "the sweep stops at command 90.0 %: full-command thrust" in text and "to 100.0 %" in text, text
     assert "% %" not in text, text
 
 

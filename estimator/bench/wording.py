@@ -68,13 +68,13 @@ def _range_warnings(curve, command_top, top_found, unit="-", thrust_unit="N"):
         out.append("thrust levels off above command %s: the ESC's top end point; thrust_max_N is the "
                    "thrust there (command_max), commands above it add nothing" % command_text(command_top, unit))
     elif ex is not None:
-        out.append("the sweep stops at command %s: full-command thrust %s +- %s is the motor model's "
+        out.append("the sweep stops at command %s: full-command thrust %s is the motor model's "
                    "extrapolation from there (it gives %s at the sweep's top, %.2f x the speed) to %s; "
                    "thrust-to-weight and full-command current rest on it. If the ESC's end point is below "
                    "%s (a narrower pulse range), full thrust comes earlier. Sweep to full command to "
                    "measure it" % (command_text(curve["command_swept_max"], unit),
-                                   thrust_text(curve["thrust_max_N"], thrust_unit),
-                                   thrust_text(curve["standard_errors"]["thrust_max_N"], thrust_unit),
+                                   thrust_text(curve["thrust_max_N"], thrust_unit,
+                                               curve["standard_errors"]["thrust_max_N"]),
                                    thrust_text(ex["thrust_top_N"], thrust_unit), ex["speed_ratio"],
                                    command_text(command_top, unit), command_text(command_top, unit)))
     return out
@@ -90,10 +90,10 @@ def extrapolation_refusal(curve, source, command_unit="-", thrust_unit="N"):
     why = ("not above the %s the model gives at the sweep's top" % thrust_text(ex["thrust_top_N"], thrust_unit)
            if not t_max > ex["thrust_top_N"] else "standard error %.0f %% of it" % (100.0 * se / t_max))
     return ("%s: the sweep stops at command %s, and the full-command thrust the motor model extrapolates from "
-            "there, %s +- %s, is not credible (%s): the sweep's thrust and current do not pin the motor's "
+            "there, %s, is not credible (%s): the sweep's thrust and current do not pin the motor's "
             "speed and losses far enough beyond its top. Sweep to a higher command (full command if the "
             "stand allows)" % (source, command_text(curve["command_swept_max"], command_unit),
-                               thrust_text(t_max, thrust_unit), thrust_text(se, thrust_unit), why))
+                               thrust_text(t_max, thrust_unit, se), why))
 
 
 def _reference_warning(curve, lv, command_unit="-", thrust_unit="N"):
