@@ -6,7 +6,7 @@ import pytest
 
 from estimator.cli import main
 from estimator.demo.flight_sim import simulate_flight
-from estimator.watch.replay import replay_file
+from estimator.watch.replay import replay_file, replay_file_traced
 from watch_helpers import demo_fit_params
 
 
@@ -154,8 +154,8 @@ def test_mass_event_shows_implied_against_planned_mass(tmp_path, params_file, ca
 def test_plot_title_counts_events_in_words_and_marks_learning(tmp_path):
     from estimator.watch.plots import plot_replay
     f = _flight(tmp_path, "power_high")
-    out = replay_file(str(f), demo_fit_params(), keep_arrays=True)
-    arrays = out.pop("_arrays")
+    out, arrays = replay_file_traced(str(f), demo_fit_params())
+    assert "_arrays" not in out and replay_file(str(f), demo_fit_params()) == out   # no side channel
     assert arrays["learn_span"][0] is not None and arrays["learn_span"][1] > arrays["learn_span"][0]
     assert out["learned_at_s"] == pytest.approx(arrays["learn_span"][1], abs=1e-3)
     title = plot_replay(str(tmp_path / "one.png"), arrays, out["events"][:1], title="f.csv")

@@ -159,20 +159,20 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     voltage[mV] and current[A] or current[mA] columns (bus totals). The same integer kernel as
     on the board runs on every row.
     """
-    from estimator.watch.replay import replay_file
+    from estimator.watch.replay import replay_file_traced
 
     if plot_file is not None:
         from estimator.outputs import check_output
 
         check_output(plot_file, "png", inputs=(flight_file, params_file, vehicle_file), option="--plot")
     params, vehicle = _load(params_file, vehicle_file)
-    out = replay_file(flight_file, params, vehicle=vehicle, keep_arrays=plot_file is not None,
-                      drop_bad_time=drop_bad_time, options=_options(lag_ms), params_source=params_file)
-    arrays = out.pop("_arrays", None)
+    out, trace = replay_file_traced(flight_file, params, vehicle=vehicle, drop_bad_time=drop_bad_time,
+                                    options=_options(lag_ms), params_source=params_file,
+                                    trace=plot_file is not None)
     _note_mass_after_baseline(out["events"])
     if plot_file is not None:
         from estimator.watch.plots import plot_replay
-        plot_replay(plot_file, arrays, out["events"], title=flight_file)
+        plot_replay(plot_file, trace, out["events"], title=flight_file)
         out["plot"] = plot_file
     if as_json:
         click.echo(dumps(dict(out, cautions=list(WATCH_CAUTIONS))))

@@ -68,8 +68,10 @@ def read_flight(path):
             "units": {name: table.columns[name][1] for name in COLUMNS}, "header_line": table.head.line}
 
 
-def run_kernel(flight, config, keep_arrays=False, progress=None):
-    """Feed a flight (dict from read_flight) through Watch(config); returns the replay dict."""
+def run_kernel(flight, config, trace=False, progress=None):
+    """Feed a flight (dict from read_flight) through Watch(config); returns (the replay dict, the
+    trace for the plot: time_s, power_W, expected_W, flags, residual per sample and learn_span,
+    or None unless ``trace``)."""
     t = flight["time_s"]
     u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
     n = len(t)
@@ -86,7 +88,7 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
     limit_kg = plan_kg * (1000 + config["mass_limit_permille"]) / 1000.0
     learn_span = [None, None]      # flight time of the learning window: first spin-up .. learned
     arrays = {"time_s": [x - t0 for x in t], "power_W": [], "expected_W": [], "flags": [], "residual": [],
-              "learn_span": learn_span} if keep_arrays else None
+              "learn_span": learn_span} if trace else None
     step = max(1, n // 50)
     spin = config["spin_permille"]
     stuck = StuckTimer(config)
@@ -133,7 +135,7 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
                             stuck_event = e if e["cause"] == "stuck_current" else None
                         events.append(e)
             prev = flags
-        if keep_arrays:
+        if trace:
             arrays["power_W"].append(mv[i] * max(ma[i], 0) / 1e6)
             arrays["expected_W"].append((w.state[2] >> 2) * w.scale / 10000.0)   # the kernel's lagged expected power
             arrays["flags"].append(flags)
@@ -147,9 +149,7 @@ def run_kernel(flight, config, keep_arrays=False, progress=None):
     out = {"learned": learned, "learned_at_s": None if learn_span[1] is None else round(learn_span[1], 3),
            "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events,
            "flights_s": [round(x / 1000.0, 3) for x in flights], "sensor_fault_s": round(fault_ms / 1000.0, 3)}
-    if keep_arrays:
-        out["_arrays"] = arrays
-    return out
+    return out, arrays
 
 
 def _bar(i, n):
@@ -161,7 +161,7 @@ def _bar(i, n):
     sys.stderr.flush()
 
 
-def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, progress=None, drop_bad_time=False,
+def replay_file(path, params, vehicle=None, options=None, progress=None, drop_bad_time=False,
                 params_source="parameter set"):
     """Replay a flight CSV through the watch configured from ``params`` (+ ``vehicle``);
     params_source names the parameter set (its file) in error messages.
@@ -185,6 +185,12 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
     vehicle or pack (log_checks.check_vehicle). A log on which the watch did not finish learning
     the baseline gets ``learned`` False and a ``note`` saying why (learning_note).
     """
+    return replay_file_traced(path, params, vehicle, options, progress, drop_bad_time, params_source, False)[0]
+
+
+def replay_file_traced(path, params, vehicle=None, options=None, progress=None, drop_bad_time=False,
+                       params_source="parameter set", trace=True):
+    """replay_file's dict and, when ``trace``, run_kernel's per-sample trace for the plot (else None)."""
     config, _ = make_config(params, vehicle, options, params_source)
     flight = read_flight(path)
     dropped = check_time(path, flight, go_on=drop_bad_time)
@@ -192,7 +198,7 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
     check_vehicle(path, flight, params, vehicle_facts(params, vehicle, params_source), config, flight["units"])
     if progress is None:
         progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
-    out = run_kernel(flight, config, keep_arrays=keep_arrays, progress=_bar if progress else None)
+    out, samples = run_kernel(flight, config, trace=trace, progress=_bar if progress else None)
     for e in out["events"]:
         note = exponent_note(e, params)
         if note:
@@ -201,7 +207,7 @@ def replay_file(path, params, vehicle=None, keep_arrays=False, options=None, pro
         out["note"] = learning_note(out, config)
     if dropped:
         out["dropped_rows"] = dropped
-    return out
+    return out, samples
 
 
 # events whose verdict rests on the expected power at the present bus voltage
