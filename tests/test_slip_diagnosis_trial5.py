@@ -71,6 +71,19 @@ def test_ordinary_craft_get_no_slip_note(tmp_path, base):
     assert _sheet(tmp_path, copy.deepcopy(base))["suspect_keys"] == []
 
 
+def test_an_ideal_motor_of_zero_resistance_is_computed_not_refused(tmp_path):
+    # the vehicle schema allows resistance_ohm 0 (an ideal motor); the slip check's resistive power
+    # limit V^2 / (4 R) is then unbounded, and the sheet must still be made (a property test found
+    # "cannot compute with these inputs (ZeroDivisionError ...)")
+    vehicle = copy.deepcopy(HEXA)
+    vehicle["motor"]["resistance_ohm"] = 0
+    path = tmp_path / "v.json"
+    path.write_text(json.dumps(vehicle))
+    code, out, err = run(["hover", str(path), "--json"])
+    assert code == 0 and err == "", err
+    assert json.loads(out)["suspect_keys"] == []
+
+
 def _invented(rng):
     """An ordinary multirotor from its own scaling (module docstring), SI keys."""
     d = math.exp(rng.uniform(math.log(0.03), math.log(0.76)))

@@ -58,23 +58,25 @@ def _facts(mass, count, diameter, bat, motor):
     volts = bat["cells"] * bat["nominal_cell_V"]
     energy_Wh = volts * bat["capacity_Ah"]
     ideal_W = thrust ** 1.5 / math.sqrt(2.0 * RHO * area)
-    most_W = volts ** 2 / (4.0 * motor["resistance_ohm"])
     hover_rpm = 60.0 * math.sqrt(thrust / (TYPICAL_CT * RHO * diameter ** 4))
     top_rpm = motor["kv_rpm_per_V"] * volts
     lo, hi = DISK_LOADING_TYPICAL_N_M2
-    return {
+    facts = {
         "disk loading": (thrust / area, lo, hi, "disk loading %s N/m^2 (small multirotors: %g..%g)"
                          % (_n(thrust / area), lo, hi)),
         "pack energy": (energy_Wh / PACK_SPECIFIC_ENERGY_WH_KG / mass,) + PACK_MASS_SHARE_USUAL
         + ("a %s Wh pack weighs %s %% of it at %.0f Wh/kg (usual %g..%g %%)" % (
             _n(energy_Wh), _n(100.0 * energy_Wh / PACK_SPECIFIC_ENERGY_WH_KG / mass), PACK_SPECIFIC_ENERGY_WH_KG,
             100 * PACK_MASS_SHARE_USUAL[0], 100 * PACK_MASS_SHARE_USUAL[1]),),
-        "motor power": (ideal_W / FIGURE_OF_MERIT / most_W, 0.0, 1.0,
-                        "hover needs about %s W per motor, a %g ohm motor on %s V gives at most %s W"
-                        % (_n(ideal_W / FIGURE_OF_MERIT), motor["resistance_ohm"], _n(volts), _n(most_W))),
         "motor speed": (hover_rpm / top_rpm, 0.0, 1.0, "hover needs about %s rpm, %g Kv on %s V "
                         "turns at most %s rpm" % (_n(hover_rpm), motor["kv_rpm_per_V"], _n(volts), _n(top_rpm))),
     }
+    if motor["resistance_ohm"] > 0.0:     # an ideal (0 ohm) motor has no resistive power limit to judge
+        most_W = volts ** 2 / (4.0 * motor["resistance_ohm"])
+        facts["motor power"] = (ideal_W / FIGURE_OF_MERIT / most_W, 0.0, 1.0,
+                                "hover needs about %s W per motor, a %g ohm motor on %s V gives at most %s W"
+                                % (_n(ideal_W / FIGURE_OF_MERIT), motor["resistance_ohm"], _n(volts), _n(most_W)))
+    return facts
 
 
 def _penalty(facts):
