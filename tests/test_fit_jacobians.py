@@ -1,7 +1,7 @@
 """The fits' analytic derivatives against scipy's numerical differentiation.
 
 The motor + propeller model and the thrust curve give least_squares their own Jacobians
-(estimator.bench.motor_fit.rotor_jacobian, estimator.bench.curve_fit.curve_jacobian). Each is
+(estimator.bench.rotor_model.rotor_jacobian, estimator.bench.curve_fit.curve_jacobian). Each is
 checked here against central differences (f(p + h) - f(p - h)) / 2h, error O(h^2) (the
 textbook formula, e.g. Press et al., Numerical Recipes, 3rd ed., sec. 5.7) at random parameters, commands
 on both sides of spin-up and the ESC's top end point, and supply voltages from 1 to 24 cells.
@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 
 from estimator.bench.curve_fit import curve_jacobian, curve_thrust
-from estimator.bench.motor_fit import rotor_arrays, rotor_jacobian, _unpack
+from estimator.bench.rotor_model import rotor_arrays, rotor_jacobian, unpack as _unpack
 
 
 def approx_derivative(f, p, method="3-point"):

@@ -172,7 +172,7 @@ def fit_curve(lv, motor, v_ref, voltage_exponent, both_ways, density_kg_m3, volt
 
 def _add_extrapolation(curve):
     """Add the motor model's extrapolation error from the sweep's top command to full command
-    (curve["extrapolation"], motor_fit.full_thrust_extrapolation) to the variance of T_max, in
+    (curve["extrapolation"], motor_errors.full_thrust_extrapolation) to the variance of T_max, in
     quadrature, and judge it: extrapolation["credible"] is False for a full-command thrust whose
     standard error exceeds EXTRAPOLATION_MAX_SE of it, or one not above the model's thrust at
     the sweep's top (the fit refuses it: wording.extrapolation_refusal)."""
@@ -228,7 +228,7 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
     levels fit starts there.
     v_ref: reference voltage [V]; u_max: top end point [-]; motor_n: the motor model's
     voltage exponent [-], used when the sweep has no voltage spread, and motor_n_se its
-    standard error [-] (estimator.bench.motor_fit.exponent_errors), carried as n's; voltage_exponent: fix
+    standard error [-] (estimator.bench.motor_errors.exponent_errors), carried as n's; voltage_exponent: fix
     n [-]. Returns dict (thrust_max_N, quadratic_share, command_min, command_max,
     voltage_exponent, voltage_exponent_source, standard_errors, covariance, rms_residual_N,
     residual_scale_N, voltage_spread, warnings, quadratic_share_held: the share could not be

@@ -44,8 +44,9 @@ import math
 
 import numpy as np
 
-NAMES = ("thrust_per_V2_N", "current_per_V2_A", "resistance_ohm", "no_load_current_A",
-         "command_start", "command_top", "duty_exponent", "esc_idle_current_A", "speed_current_A_per_V")
+from estimator.bench.motor_errors import exponent_errors, full_thrust_extrapolation
+from estimator.bench.rotor_model import NAMES, motor_exponents, rotor_arrays, rotor_jacobian, unpack
+
 # residuals beyond this many robust scales count less and less (soft_l1's f_scale) [-]
 LOSS_SCALE = 2.5
 # the duty exponent where one supply voltage cannot measure it: (mean, standard deviation);
@@ -53,82 +54,12 @@ LOSS_SCALE = 2.5
 # ESCs that bend it (from memory) [-]
 DUTY_PRIOR = (1.0, 0.1)
 DUTY_INDEX = 6
-# how far a fixed-pitch propeller's thrust coefficient may drift as a power of its speed,
-# CT ~ n^e (full_thrust_extrapolation; Brandt and Selig 2011, from memory) [-]
-CT_SPEED_EXPONENT = 0.05
 # a one-supply sweep's voltages further than this (rms, share of the median) from the
 # supply's line are real changes (a pack drifting as it discharges), not voltmeter noise [-]
 SUPPLY_LINE_MAX_RMS = 0.005
 # the sweep shows the ESC's top end point when the fit puts it this far below the highest
 # command swept [-]
 TOP_END_MARGIN = 0.01
-
-
-def rotor_arrays(theta, command, voltage_V, density_ratio=1.0):
-    """Thrust [N], bus current [A], motor voltage [V], motor current [A] and duty [-] per row.
-
-    theta: the nine parameters in NAMES order (linear values); command: u [-]; voltage_V:
-    bus voltage [V]; density_ratio: rho / rho_ref [-] (a and c scale with it).
-    """
-    a, c, r, i0, u0, u1, g, iq, b = theta
-    a, c = a * density_ratio, c * density_ratio
-    x = np.clip((np.asarray(command, dtype=float) - u0) / max(u1 - u0, 1e-6), 0.0, 1.0)
-    d = x ** g
-    vm = d * voltage_V
-    drive = vm - r * i0
-    lin = 1.0 + r * b
-    root = np.sqrt(lin * lin + 4.0 * r * c * np.maximum(drive, 0.0))
-    s = np.where(drive > 0.0, 2.0 * drive / (lin + root), 0.0)
-    im = np.where(drive > 0.0, i0 + b * s + c * s * s, vm / r)
-    return a * s * s, iq + d * im, vm, im, d
-
-
-def rotor_jacobian(p, command, voltage_V):
-    """Thrust [N], bus current [A] and their derivatives with respect to the packed fit
-    parameters p (NAMES order; logarithms of the positive ones, as fit_motor varies them).
-
-    Returns (T, I_bus, dT/dp, dI_bus/dp), the derivative arrays rows x 9. Implicit
-    differentiation of the speed equation F(s) = R c s^2 + (1 + R b) s - (Vm - R I0) = 0:
-    ds/dq = -(dF/dq) / (2 R c s + 1 + R b), the denominator being the square root of
-    rotor_arrays; below spin-up (Vm <= R I0) s = 0 and the motor current is Vm / R.
-    """
-    theta = _unpack(p)
-    a, c, r, i0, u0, u1, g, iq, b = theta
-    u = np.asarray(command, dtype=float)
-    t, i_bus, vm, im, d = rotor_arrays(theta, u, voltage_V)
-    span = max(u1 - u0, 1e-6)
-    x = (u - u0) / span
-    inside = (x > 0.0) & (x < 1.0)
-    x = np.clip(x, 0.0, 1.0)
-    safe_x = np.where(x > 0.0, x, 1.0)
-    dd_dx = np.where(inside, g * d / safe_x, 0.0)
-    dd = {4: dd_dx * (x - 1.0) / span, 5: -dd_dx * x / span,
-          6: np.where(x > 0.0, d * np.log(safe_x), 0.0)}
-    on = vm - r * i0 > 0.0
-    s = np.where(on, np.sqrt(np.maximum(t, 0.0) / a), 0.0)
-    root = 2.0 * r * c * s + 1.0 + r * b
-    q = b + 2.0 * c * s                       # d im / d s on the running branch
-    # d s / d q and the explicit d im / d q (running branch), for the motor's own parameters
-    ds = {1: -r * s * s / root, 2: -(c * s * s + b * s + i0) / root, 3: -r / root, 8: -r * s / root}
-    dim = {1: s * s + q * ds[1], 2: np.where(on, q * ds[2], -vm / (r * r)), 3: np.where(on, 1.0 + q * ds[3], 0.0),
-           8: s + q * ds[8]}
-    jt, ji = np.zeros((u.size, 9)), np.zeros((u.size, 9))
-    jt[:, 0] = t
-    for k, scale in ((1, c), (2, r), (3, i0), (8, b)):
-        jt[:, k] = 2.0 * a * s * ds[k] * scale
-        ji[:, k] = d * dim[k] * scale
-    for k, dd_k in dd.items():
-        dvm = dd_k * voltage_V
-        ds_k = np.where(on, dvm / root, 0.0)
-        jt[:, k] = 2.0 * a * s * ds_k
-        ji[:, k] = im * dd_k + d * np.where(on, q * ds_k, dvm / r)
-    ji[:, 7] = iq
-    return t, i_bus, jt, ji
-
-
-def _unpack(p):
-    a, c, r, i0, u0, u1, g, iq, b = p
-    return (math.exp(a), math.exp(c), math.exp(r), math.exp(i0), u0, u1, g, math.exp(iq), math.exp(b))
 
 
 def _start(lv):
@@ -275,7 +206,7 @@ def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None, duty_prior=No
     res = None
     for _ in range(passes or (2 if start is None else 1)):
         def residuals(p, s_t=s_t, s_i=s_i):
-            tm, im, _, _, _ = rotor_arrays(_unpack(p), u, v)
+            tm, im, _, _, _ = rotor_arrays(unpack(p), u, v)
             return np.concatenate([(tm - t) / s_t, (im - i) / s_i, _prior_residual(p, duty_prior)])
 
         def jacobian(p, s_t=s_t, s_i=s_i):
@@ -285,11 +216,11 @@ def fit_motor(lv, top_end=False, top=1.0, start=None, passes=None, duty_prior=No
         res = least_squares(residuals, x0, jac=jacobian, bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE,
                             x_scale="jac", max_nfev=400, method="trf", ftol=1e-7, xtol=1e-7)
         x0 = np.clip(res.x, lo + 1e-12, hi - 1e-12)
-        tm, im, _, _, _ = rotor_arrays(_unpack(res.x), u, v)
+        tm, im, _, _, _ = rotor_arrays(unpack(res.x), u, v)
         floor_t, floor_i = 1e-4 * float(np.max(np.abs(t))), 1e-4 * float(np.max(np.abs(i)))
         s_t = max(_scale(tm - t), floor_t)
         s_i = max(_scale(im - i), floor_i)
-    theta = np.array(_unpack(res.x))
+    theta = np.array(unpack(res.x))
     tm, _, _, _, _ = rotor_arrays(theta, u, v)
     held = [k for k in range(9) if res.active_mask[k] != 0 and k not in (4, DUTY_INDEX if duty_prior else -1)]
     held += [] if top_end else [5]
@@ -388,81 +319,6 @@ def _covariance(jac, scaled_residuals, held, duty_prior=None):
 def _scale(r):
     from estimator.bench.levels import robust_scale
     return robust_scale(r) if r.size > 3 else float(np.sqrt(np.mean(r * r)))
-
-
-def motor_exponents(theta, v_ref):
-    """Voltage and density exponents of the fitted motor model at full command and v_ref [V]:
-    n = d ln T / d ln V, m = d ln T / d ln rho by central differences of +-1 % [-]."""
-    h = 0.01
-    one = np.array([1.0])
-    t_up = rotor_arrays(theta, one, v_ref * (1.0 + h))[0][0]
-    t_dn = rotor_arrays(theta, one, v_ref * (1.0 - h))[0][0]
-    r_up = rotor_arrays(theta, one, v_ref, 1.0 + h)[0][0]
-    r_dn = rotor_arrays(theta, one, v_ref, 1.0 - h)[0][0]
-    scale = math.log((1.0 + h) / (1.0 - h))
-    return math.log(t_up / t_dn) / scale, math.log(r_up / r_dn) / scale
-
-
-def exponent_errors(motor, v_ref):
-    """Standard errors of the motor model's voltage and density exponents (motor_exponents)
-    at v_ref [V] from the fit's covariance (with the duty prior where the sweep has one
-    voltage) by the delta method (_delta_errors) [-]. Returns (se_n, se_m)."""
-    se = _delta_errors(motor, lambda theta: np.array(motor_exponents(theta, v_ref)))
-    return (1.0, 1.0) if se is None else (float(se[0]), float(se[1]))
-
-
-def _delta_errors(motor, values):
-    """Standard errors of values(theta) (an array) from the fit's covariance by the delta
-    method: var = grad C grad^T, the gradient by central differences in the packed parameters
-    (steps of 1e-4, relative for the logarithms). None when the variance is not finite."""
-    cov = motor["covariance"]
-    x = np.asarray(motor["x"], dtype=float)
-    grad = None
-    for k in range(x.size):
-        if cov[k, k] <= 0.0:
-            continue
-        step = 1e-4
-        up, dn = x.copy(), x.copy()
-        up[k] += step
-        dn[k] -= step
-        g = (values(_unpack(up)) - values(_unpack(dn))) / (2.0 * step)
-        if grad is None:
-            grad = np.zeros((g.size, x.size))
-        grad[:, k] = g
-    if grad is None:
-        return np.zeros(values(_unpack(x)).size)
-    var = np.einsum("ij,jk,ik->i", grad, cov, grad)
-    if not np.all(np.isfinite(var)):
-        return None
-    return np.sqrt(np.maximum(var, 0.0))
-
-
-def full_thrust_extrapolation(motor, v_ref, swept_top):
-    """The motor model's thrust at full command (its top end point u1) and v_ref [V] when the
-    sweep stops at command swept_top [-] below it, with its standard error [N], two parts in
-    quadrature:
-      - the fit's covariance by the delta method (_delta_errors): noise, the level misfit and,
-        with one supply, the duty prior, carried out along the duty curve to u1;
-      - the propeller's own drift: the model holds the thrust and torque coefficients
-        constant, while a fixed-pitch propeller's CT changes with speed (Reynolds number) by
-        up to CT_SPEED_EXPONENT as a power of speed (Brandt and Selig 2011 measured small
-        propellers' CT rising a few percent per doubling of rpm; from memory): a relative
-        error of CT_SPEED_EXPONENT ln(n_full / n_top), with speed n ~ sqrt(T) (T = CT rho n^2 D^4).
-    Returns dict thrust_N [N], standard_error_N [N], thrust_top_N [N] (the model at the sweep's
-    top), covariance_error_N [N], speed_ratio [-]."""
-    theta = motor["theta"]
-    u1 = float(theta[5])
-
-    def thrusts(th):
-        return rotor_arrays(th, np.array([u1, swept_top]), v_ref)[0]
-
-    t_full, t_top = (float(x) for x in thrusts(theta))
-    se = _delta_errors(motor, lambda th: thrusts(th)[:1])
-    se_cov = float(se[0]) if se is not None else math.inf
-    ratio = math.sqrt(t_full / t_top) if t_top > 0.0 and t_full > t_top else 1.0
-    se_drift = CT_SPEED_EXPONENT * math.log(ratio) * t_full
-    return {"thrust_N": t_full, "standard_error_N": math.hypot(se_cov, se_drift), "thrust_top_N": t_top,
-            "covariance_error_N": se_cov, "speed_ratio": ratio}
 
 
 def params_dict(theta):

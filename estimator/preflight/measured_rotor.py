@@ -191,7 +191,7 @@ def _state(params, vehicle, rho, open_circuit_V):
 def _beyond_sweep_se(params, thrust_at, u_h, u1):
     """Relative thrust error [-] at a hover command u_h above the highest command swept: the
     full-command thrust's relative standard error (which carries the motor model's
-    extrapolation beyond the sweep, bench.motor_fit.full_thrust_extrapolation) times the share
+    extrapolation beyond the sweep, bench.motor_errors.full_thrust_extrapolation) times the share
     of that extrapolation reached at hover, ln(T(u_h) / T_top) / ln(T(u1) / T_top), the same
     measure (speed ratio, T ~ n^2) the extrapolation's error grows with. 0 inside the sweep.
     thrust_at(u): the model's thrust [N] at command u and the hover bus voltage."""
