@@ -25,6 +25,7 @@ import math
 
 from estimator.errors import InputError, shorten
 from estimator.safepath import MiB, open_checked, size_text
+from estimator.units import COMMAND_SHOWN
 
 # the largest CSV read [bytes]: some ten million rows of a bench sweep or a flight log
 MAX_BYTES = 512 * MiB
@@ -36,8 +37,9 @@ MAX_HEAD_LINES = 10000
 
 # the command column's units, one table for bench sweeps and flight logs: unit -> (scale,
 # offset) so that the command [-] (0..1) = value * scale + offset. ``permille`` is the unit
-# liftcal itself speaks on the board (Watch.update, the exported hover command).
-COMMAND_UNITS = {"-": (1.0, 0.0), "%": (0.01, 0.0), "permille": (0.001, 0.0), "us": (0.001, -1.0)}
+# liftcal itself speaks on the board (Watch.update, the exported hover command). The inverse of
+# units.COMMAND_SHOWN, the one table of command units (exact in floats: 1 / 1000 is 0.001).
+COMMAND_UNITS = {unit: (1.0 / scale, -offset / scale) for unit, (scale, offset, _, _) in COMMAND_SHOWN.items()}
 
 
 class Head:

@@ -135,33 +135,30 @@ def plain_number(x, digits=4, trim=False):
     return text
 
 
+# the one table of command units: a command [-] (a fraction of full command) as a bench CSV or
+# flight log writes it: unit -> (scale, offset, JSON key suffix, text format), shown = offset +
+# scale * u (a 1000..2000 us pulse, %, permille; '-' is u itself). The readers' table
+# (csvtable.COMMAND_UNITS, u = value * s + o) is its inverse.
+COMMAND_SHOWN = {"-": (1.0, 0.0, None, "%.3f"), "%": (100.0, 0.0, "pct", "%.1f %%"),
+                 "permille": (1000.0, 0.0, "permille", "%.0f permille"), "us": (1000.0, 1000.0, "us", "%.0f us")}
+
+
 def command_text(u, unit, span=False):
-    """A command [-] (a fraction of full command) written in a command unit, as a bench CSV's
-    command column has it (us: a 1000..2000 us pulse, %, permille; '-' as the fraction to
-    three decimals); span=True for a difference of commands (no 1000 us offset). Both flows
-    write commands in a sweep's own unit with it (the fit, and the pre-flight warnings for
-    a vehicle on a fitted set)."""
-    if unit == "us":
-        return "%.0f us" % ((0.0 if span else 1000.0) + 1000.0 * u)
-    if unit == "permille":
-        return "%.0f permille" % (1000.0 * u)
-    if unit == "%":
-        return "%.1f %%" % (100.0 * u)
-    return "%.3f" % u
-
-
-# a command [-] as a number in a bench CSV's command unit: unit -> (scale, offset, JSON key
-# suffix), shown = offset + scale * u (a 1000..2000 us pulse, %, permille; '-' is u itself)
-COMMAND_SHOWN = {"us": (1000.0, 1000.0, "us"), "%": (100.0, 0.0, "pct"), "permille": (1000.0, 0.0, "permille")}
+    """A command [-] written in a command unit (COMMAND_SHOWN), as a bench CSV's command column
+    has it ('-' as the fraction to three decimals); span=True for a difference of commands (no
+    1000 us offset). Both flows write commands in a sweep's own unit with it (the fit, and the
+    pre-flight warnings for a vehicle on a fitted set)."""
+    scale, offset, _, form = COMMAND_SHOWN.get(unit, COMMAND_SHOWN["-"])
+    return form % ((0.0 if span else offset) + scale * u)
 
 
 def commands_in_unit(values, unit):
     """Commands in a sweep's command unit, as JSON keys with the unit in the name, beside the
     0..1 values they come from: {key: command [-], [low, high] or None} -> {key_us: 1000 +
     1000 u, ...} (key_pct for %, key_permille); {} for '-' (the values are already in it)."""
-    if unit not in COMMAND_SHOWN:
+    if COMMAND_SHOWN.get(unit, COMMAND_SHOWN["-"])[2] is None:
         return {}
-    scale, offset, suffix = COMMAND_SHOWN[unit]
+    scale, offset, suffix, _ = COMMAND_SHOWN[unit]
 
     def shown(u):  # 7 significant digits: a 0..1 value's 6 and no float tail (14.0857, not 14.085700000000001)
         if isinstance(u, (list, tuple)):

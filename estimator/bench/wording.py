@@ -10,8 +10,8 @@ from estimator.units import COMMAND_SHOWN, command_text, plain_number
 def command_with_error(u, se, unit):
     """A command [-] and its standard error [-] in the CSV's command unit, in matching digits
     (value_and_error): '1200.0 us +- 2.3 us', '18.6 % +- 1.3 %', '0.186 +- 0.013'."""
-    scale, offset, _ = COMMAND_SHOWN.get(unit, (1.0, 0.0, ""))
-    tail = " " + unit if unit in COMMAND_SHOWN else ""
+    scale, offset, suffix, _ = COMMAND_SHOWN.get(unit, COMMAND_SHOWN["-"])
+    tail = " " + unit if suffix else ""
     value, error = value_and_error(offset + scale * u, scale * se)
     if not error:
         return command_text(u, unit)

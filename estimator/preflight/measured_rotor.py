@@ -312,7 +312,7 @@ def hover_from_params(vehicle, params, command_unit="-"):
         "flight_ended_by": None, "discharge": None,
     }
     unit = (params["provenance"].get("units") or {}).get("command", "-")  # the sweep's command unit
-    if unit in COMMAND_SHOWN:  # the commands in it too (hover_command_us ...), beside the 0..1 values
+    if unit != "-" and unit in COMMAND_SHOWN:  # the commands in it too (hover_command_us ...), beside the 0..1 values
         report.update(commands_in_unit({k: report[k] for k in COMMANDS}, unit), command_unit=unit)
     report.update(pack_keys(raw_vehicle, b, pack_temperature, pack_basis))
     report.update(full_command_sag(report))
