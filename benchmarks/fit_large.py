@@ -99,11 +99,11 @@ def alternate_best(fns, rounds):
 
 
 def columns_read(path):
-    """The columns the fit's numpy.loadtxt parses (estimator.bench.reader._load_numbers):
+    """The columns the fit's numpy.loadtxt parses (estimator.bench.csv_numbers.load_numbers):
     None when it reads every column, else the four it needs, the optional ones it checks
     and the last one."""
     from estimator import csvtable
-    from estimator.bench.reader import OPTIONAL, REQUIRED, UNITS
+    from estimator.bench.columns import OPTIONAL, REQUIRED, UNITS
 
     head = csvtable.read_head(path, "a bench CSV", "")
     found, _ = csvtable.parse_header(path, head, UNITS, OPTIONAL)

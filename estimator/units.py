@@ -89,6 +89,13 @@ def parse_quantity(text, kind, what="value"):
     return value * scale + offset
 
 
+
+def unit_factors(kind, names):
+    """{unit: (scale, offset)} for the named units of ``kind`` (SI = value * scale + offset),
+    in the order named, from the one table here: a file's column takes these units
+    (estimator.bench.columns)."""
+    return {name: _UNITS[kind][name] for name in names}
+
 _SIZE = re.compile(r"^\s*((?:\d+\.?\d*|\.\d+))\s*[xX*]\s*((?:\d+\.?\d*|\.\d+))\s*([A-Za-z]*)\s*$")
 # a propeller size without a unit is in inches: the trade lists propellers that way (10x4.5)
 SIZE_DEFAULT_UNIT = "in"

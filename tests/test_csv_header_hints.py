@@ -14,7 +14,7 @@ import re
 
 import pytest
 
-from estimator.bench.reader import OPTIONAL
+from estimator.bench.columns import OPTIONAL
 from io_helpers import run
 
 AIR = "# density: 1.2\n# diameter: 0.254\n"

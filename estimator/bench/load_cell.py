@@ -9,7 +9,7 @@ that stands still (the power at its idle value) makes no thrust.
 import numpy as np
 
 from estimator.errors import InputError
-from estimator.bench.reader import UNITS
+from estimator.bench.columns import UNITS
 from estimator.units import plain_number
 
 # rows judged for the sign: a systematic subsample of at most this many [-]

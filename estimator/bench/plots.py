@@ -41,7 +41,7 @@ def curve_band_N(curve, cov, command):
 def user_units(params):
     """(thrust factor [unit per N], thrust unit, command function u -> shown, command label)
     in the units of the bench CSV (grams in, grams out; microseconds logged, shown)."""
-    from estimator.bench.reader import UNITS
+    from estimator.bench.columns import UNITS
 
     units = params.get("provenance", {}).get("units", {})
     t_unit = units.get("thrust", "N")

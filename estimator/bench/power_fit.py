@@ -51,7 +51,7 @@ def _unit_slips(k_value, thrust_unit, current_unit):
     off; k goes as current^(-2/3), so amps labelled mA make k 100 times too high and
     milliamps labelled A 100 times too low.
     """
-    from estimator.bench.reader import UNITS
+    from estimator.bench.columns import UNITS
 
     lo, hi = K_PLAUSIBLE
     out = []

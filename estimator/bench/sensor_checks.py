@@ -1,6 +1,7 @@
 """Sensor and column setup checks on a bench sweep that other checks would refuse with the
 wrong cause (sixth new-user trial, item 4): a current sensor reading backwards, the voltage
-and current columns swapped, percent data labelled permille.
+and current columns swapped, percent data labelled permille; and the unit checks of every column
+(check_units: values that do not fit their unit label, e.g. mV labelled V).
 
 Each is judged from the data alone, from what a real sweep cannot do (common practice on any
 bench): the bus voltage never rises several-fold as the command rises (a supply sags under
@@ -11,6 +12,7 @@ negative. Every function raises InputError naming the likely cause, or returns N
 import numpy as np
 
 from estimator.errors import InputError
+from estimator.bench.columns import BUS_VOLTAGE_RANGE_V, COMMAND_OUTSIDE_SHARE, MAX_CURRENT_A, MEDIAN_ROWS, UNITS
 
 # judged on a systematic subsample of at most this many rows [-]
 SAMPLE_ROWS = 20000
@@ -70,3 +72,67 @@ def check_permille_as_percent(path, unit, command_max):
         raise InputError("%s: command[permille] never exceeds %.4g permille (%.3g of full command): is "
                          "it command[%%] (0..100)? label it command[%%]" % (path, 1000.0 * command_max,
                                                                            command_max))
+
+
+def check_units(path, data, v_med=None, extremes=None):
+    """Refuse columns whose values do not fit their unit label: a voltage in mV labelled V (or
+    V labelled mV), a command in % or us labelled [-] (and the other ways round), a command in
+    [-] labelled % or permille, percent labelled permille, a current in mA labelled A; the
+    voltage and current columns swapped first (data: the reader's columns in SI and units).
+
+    v_med, extremes: the subsample median of the voltage [V] and the (min, max) of command,
+    voltage, current and thrust when every value is finite (estimator.bench.reader's clean case); they
+    spare passes over the columns and give the same answers.
+    """
+    import numpy as np
+
+    check_voltage_current_swapped(path, data["command"], data["voltage"], data["current"])
+    with np.errstate(invalid="ignore"):
+        if v_med is None:
+            v = data["voltage"]
+            v = v[:: max(1, v.size // MEDIAN_ROWS)]
+            v_med = float(np.nanmedian(v)) if np.any(np.isfinite(v)) else float("nan")
+        if not np.isfinite(v_med):
+            raise InputError("%s: column voltage holds no numbers" % path)
+        if v_med > BUS_VOLTAGE_RANGE_V[1]:
+            raise InputError("%s: voltage median %.4g V is above %g V for a small multirotor "
+                             "bus; is the column in mV but labelled [V]?"
+                             % (path, v_med, BUS_VOLTAGE_RANGE_V[1]))
+        if v_med < BUS_VOLTAGE_RANGE_V[0]:
+            raise InputError("%s: voltage median %.4g V is below %g V; is the column in V but "
+                             "labelled [mV], or is the supply off?" % (path, v_med, BUS_VOLTAGE_RANGE_V[0]))
+        u = data["command"]
+        if extremes is not None:
+            finite_u = u
+            u_max = extremes[1]
+            if extremes[0] >= -0.01 and u_max <= 1.01:
+                outside = 0
+            else:
+                outside = np.count_nonzero((u < -0.01) | (u > 1.01))
+        else:
+            finite_u = u[np.isfinite(u)]
+            if finite_u.size == 0:
+                raise InputError("%s: column command holds no numbers" % path)
+            outside = np.count_nonzero((finite_u < -0.01) | (finite_u > 1.01))
+            u_max = float(np.max(finite_u))
+        if outside > COMMAND_OUTSIDE_SHARE * finite_u.size:
+            hint = {"-": "is it command[%] (0..100) or command[us] (1000..2000)?",
+                    "%": "is it command[us] (1000..2000) or command[-] (0..1)?",
+                    "permille": "is it command[us] (1000..2000)?",
+                    "us": "is it command[%] or command[-]?"}[data["command_unit"]]
+            raise InputError("%s: %d of %d command values fall outside 0..1 after converting "
+                             "from [%s]; %s" % (path, outside, finite_u.size,
+                                                data["command_unit"], hint))
+        if data["command_unit"] in ("%", "permille") and u_max <= 1.01 * UNITS["command"][data["command_unit"]][0]:
+            raise InputError("%s: command[%s] never exceeds 1 %s; is it command[-] (0..1)?"
+                             % (path, data["command_unit"], data["command_unit"]))
+        check_permille_as_percent(path, data["command_unit"], u_max)
+        # the median can only exceed the limit when the largest value does (the clean case
+        # knows it already: no pass over the column then)
+        i_big = data["current_unit"] == "A" and (extremes is None or extremes[5] > MAX_CURRENT_A)
+        i = data["current"][:: max(1, data["current"].size // MEDIAN_ROWS)] if i_big else None
+        i_med = float(np.nanmedian(i)) if i_big and np.any(np.isfinite(i)) else float("nan")
+        if i_med > MAX_CURRENT_A:
+            raise InputError("%s: current median %.4g A is above %g A for one rotor's supply; is the "
+                             "column in mA but labelled [A]? label it current[mA]"
+                             % (path, i_med, MAX_CURRENT_A))

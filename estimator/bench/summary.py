@@ -3,7 +3,7 @@ from the parameter set (commands and thrusts in the CSV's own units, values with
 error digits: estimator.bench.wording)."""
 
 from estimator.cautions import cautions
-from estimator.bench.reader import OPTIONAL
+from estimator.bench.columns import OPTIONAL
 from estimator.bench.wording import START_POORLY_DETERMINED, command_with_error, thrust_text, value_and_error
 from estimator.units import command_text, commands_in_unit, plain_number
 
@@ -141,7 +141,7 @@ OPTIONAL_WHY = ("the fit takes each row's command, voltage, current and thrust; 
 
 def columns_note(columns):
     """The summary's line on the columns, from the reader's ``columns`` {fitted, read_not_used}:
-    the optional ones (estimator.bench.reader.OPTIONAL) are read and checked, not used."""
+    the optional ones (estimator.bench.columns.OPTIONAL) are read and checked, not used."""
     fitted = ", ".join(columns["fitted"])
     if not columns["read_not_used"]:
         return "columns fitted: %s; no optional column (%s: read and checked, not used)" % (

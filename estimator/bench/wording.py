@@ -36,7 +36,7 @@ def value_and_error(value, se, digits=4):
 def thrust_text(thrust_N, unit, se_N=None):
     """A thrust [N] written in the unit of the CSV's thrust column (grams in, grams out);
     with se_N [N], 'value unit +- error unit' in matching digits (value_and_error)."""
-    from estimator.bench.reader import UNITS
+    from estimator.bench.columns import UNITS
 
     scale = UNITS["thrust"].get(unit, (1.0, 0.0))[0]
     if se_N is None:

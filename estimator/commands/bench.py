@@ -125,7 +125,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
 def _header_units():
     """The bench header's columns and units as the reader takes them (its UNITS and OPTIONAL
     tables: one source)."""
-    from estimator.bench.reader import OPTIONAL, UNITS
+    from estimator.bench.columns import OPTIONAL, UNITS
 
     def cells(table):
         return ", ".join("%s[%s]" % (name, "|".join(units)) for name, units in table.items())

@@ -1,0 +1,81 @@
+"""The rows of a bench sweep the fit may use: the merely bad ones dropped and counted.
+
+A row is dropped, and counted by its reason, when it holds a NaN or an empty cell (also in an
+optional column), a clearly negative current (idle sensor noise below zero is tolerated, see
+estimator.bench.columns), a bus voltage at or below zero or off the sweep's median by more than
+a factor 2, a command outside 0..1, a current above MAX_CURRENT_A or a thrust beyond
+MAX_THRUST_N. A current negative in most rows is a sensor reading backwards and is refused
+(estimator.bench.sensor_checks). Fewer than 10 rows left: refused.
+"""
+
+from estimator.errors import InputError
+from estimator.bench.columns import MAX_CURRENT_A, MAX_THRUST_N, MEDIAN_ROWS, NEGATIVE_CURRENT_TOLERANCE_A
+from estimator.bench.sensor_checks import check_current_sign
+
+
+def keep_rows(path, data, rows_total, extremes=None, v_med=None):
+    """The rows to fit: (command [-], voltage_V [V], thrust_N [N], power_W [W] (bus power, v i),
+    voltage span (lowest, highest) [V], rejected {reason: count}, rows kept).
+
+    data: the reader's columns in SI (command, voltage, current, thrust, optional); extremes:
+    (min, max) of command, voltage, current and thrust flattened, when every value is finite,
+    with v_med the subsample median of the voltage [V]: one min and max per column then decide
+    the common case, every value inside every check, with no mask and no row dropped.
+    """
+    u, v, i, t = data["command"], data["voltage"], data["current"], data["thrust"]
+    if extremes is not None:
+        u_lo, u_hi, v_lo, v_hi, i_lo, i_hi, t_lo, t_hi = extremes
+        tol_i = max(NEGATIVE_CURRENT_TOLERANCE_A, 0.01 * max(abs(i_lo), abs(i_hi)))
+        if (u_lo >= 0.0 and u_hi <= 1.0 and v_lo > 0.0 and v_hi <= 2.0 * v_med
+                and v_lo >= 0.5 * v_med and i_lo >= -tol_i and i_hi <= MAX_CURRENT_A
+                and max(abs(t_lo), abs(t_hi)) <= MAX_THRUST_N):
+            power = v * i  # electrical (bus) power [W]; the current column itself is not kept
+            return u, v, t, power, (v_lo, v_hi), {}, rows_total
+    import numpy as np
+
+    u, v, t, power, rejected, n_keep = _masked_rows(path, data, rows_total)
+    return u, v, t, power, (float(np.min(v)), float(np.max(v))), rejected, n_keep
+
+
+def _masked_rows(path, data, rows_total):
+    """Drop and count the merely bad rows (module docstring) with a mask per check; returns
+    u, v, t, power, rejected counts and the number of rows kept."""
+    import numpy as np
+
+    u, v, i, t = data["command"], data["voltage"], data["current"], data["thrust"]
+    rejected = {}
+    finite = np.isfinite(u) & np.isfinite(v) & np.isfinite(i) & np.isfinite(t)
+    for column in data.get("optional", ()):  # an empty optional cell: the row goes, counted
+        finite &= np.isfinite(column)
+    rejected["not_a_number"] = int(rows_total - np.count_nonzero(finite))
+    with np.errstate(invalid="ignore"):
+        # current sensors read a little below zero at idle; only clearly negative rows are bad
+        tol_i = max(NEGATIVE_CURRENT_TOLERANCE_A, 0.01 * float(np.nanmax(np.abs(i[finite])))
+                    if np.any(finite) else 0.0)
+        neg_i = finite & (i < -tol_i)
+        bad_v = finite & (v <= 0.0)
+        out_u = finite & ((u < 0.0) | (u > 1.0))
+        step = max(1, rows_total // MEDIAN_ROWS)
+        v_fin = v[::step][finite[::step]]
+        v_med = float(np.median(v_fin)) if v_fin.size else float(np.median(v[finite]))
+        odd_v = finite & ~bad_v & ((v > 2.0 * v_med) | (v < 0.5 * v_med))
+        odd_i = finite & (i > MAX_CURRENT_A)
+        odd_t = finite & (np.abs(t) > MAX_THRUST_N)
+    check_current_sign(path, int(np.count_nonzero(neg_i)), int(np.count_nonzero(finite)), i[finite])
+    rejected["negative_current"] = int(np.count_nonzero(neg_i))
+    rejected["voltage_not_positive"] = int(np.count_nonzero(bad_v))
+    rejected["command_outside_0_1"] = int(np.count_nonzero(out_u))
+    rejected["voltage_out_of_range"] = int(np.count_nonzero(odd_v))
+    rejected["current_out_of_range"] = int(np.count_nonzero(odd_i))
+    rejected["thrust_out_of_range"] = int(np.count_nonzero(odd_t))
+    keep = finite & ~neg_i & ~bad_v & ~out_u & ~odd_v & ~odd_i & ~odd_t
+    n_keep = int(np.count_nonzero(keep))
+    if n_keep < 10:
+        raise InputError("%s: only %d of %d rows are usable (NaN, negative current, command "
+                         "outside 0..1, values out of range); a sweep needs at least 10"
+                         % (path, n_keep, rows_total))
+    with np.errstate(over="ignore", invalid="ignore"):
+        power = v * i  # electrical (bus) power [W]; the current column itself is not kept
+    if n_keep < rows_total:
+        u, v, t, power = u[keep], v[keep], t[keep], power[keep]
+    return u, v, t, power, {k: c for k, c in rejected.items() if c}, n_keep
