@@ -1,6 +1,6 @@
 """Onboard power watch: integer-only, heap-free kernel (runs unchanged on MicroPython).
 
-``w = Watch(CONFIG)``; ``flags = w.update(dt_ms, command_permille, bus_mV, bus_mA)``; flag bits
+``w = Watch(CONFIG)``; ``flags = w.update(dt, u, v, a)``; flag bits
 in estimator/core/watch_layout.py. Readable after each block: ``residual_permille`` [1/1000],
 ``thrust_mN`` [mN], ``hover_permille`` [1/1000], ``mass_g`` [g], ``scale`` [1/1000],
 ``sigma_permille`` [1/1000]. Their meaning, the model and its published sources (Page 1954,
@@ -55,53 +55,54 @@ class Watch:
         self.mass_g = self.sigma_permille = self.residual_permille = 0
         self.scale = 1000
 
-    def update(self, dt_ms, command_permille, bus_mV, bus_mA):
-        """One sample: dt_ms [ms] since the last, command [1/1000], bus voltage [mV], current [mA].
-        Returns the flag bits (int). Never raises for int inputs, never allocates."""
+    def update(self, dt, u, v, a):
+        """One sample: dt [ms] since the last, command u [1/1000], bus voltage v [mV], bus current a
+        [mA] (one-letter names: the interpreter holds them already, DEVELOPERS.md "Heap on the
+        board"). Returns the flag bits (int). Never raises for int inputs, never allocates."""
         st = self.state
         (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw,
          dt_max, v_min, v_max, i_max, spin, cmd_min, vstep, pfloor, blk,
          ta, tq, u_top, i_pos, fsum, es, w) = st
         # range checks: comparisons only, so any int is safe here; dt only when it changes, then
         # the lag's alpha = dt / (lag + dt) in Q8 and the sample's block weight w (at most a block)
-        if dt_ms != dt_last:
-            if dt_ms <= 0 or dt_ms > dt_max:
+        if dt != dt_last:
+            if dt <= 0 or dt > dt_max:
                 st[1] = flags = flags | 4
                 return flags
-            alpha = (dt_ms << 8) // (tb[120] + dt_ms)     # lag_ms; 60000 * 256 = 1.5e7
-            w = dt_ms if dt_ms < blk else blk
-            st[3] = dt_ms
+            alpha = (dt << 8) // (tb[120] + dt)           # lag_ms; 60000 * 256 = 1.5e7
+            w = dt if dt < blk else blk
+            st[3] = dt
             st[4] = alpha
             st[27] = w
-        if bus_mV < v_min or bus_mV > v_max:
+        if v < v_min or v > v_max:
             st[1] = flags = flags | 4
             return flags
-        if command_permille < cmd_min:
-            if command_permille < 0:
+        if u < cmd_min:
+            if u < 0:
                 st[1] = flags = flags | 4
                 return flags
             t = 0
-        elif command_permille > u_top:
-            if command_permille > 1000:
+        elif u > u_top:
+            if u > 1000:
                 st[1] = flags = flags | 4
                 return flags
             t = 4096
         else:
-            d = command_permille - cmd_min                # 0..span
+            d = u - cmd_min                               # 0..span
             t = d * (ta + (tq * d >> 10)) >> 14           # tq*d <= 6.9e8 ; d*(..) <= 2^26
-        if bus_mA < i_pos:
-            if bus_mA < tb[112]:                          # i_min_mA
+        if a < i_pos:
+            if a < tb[112]:                               # i_min_mA
                 st[1] = flags = flags | 4
                 return flags
             pm = 0                                        # negative current: measured power 0
-        elif bus_mA > i_max:
+        elif a > i_max:
             st[1] = flags = flags | 4
             return flags
         else:
-            pm = (bus_mV // 20) * bus_mA // 5000          # [0.1 W] 3000 * 300000 = 9e8 ; pm <= 180000
-        # now 0 < dt <= 60000, 0 <= command_permille <= 1000, 0 <= mV <= 60000, 0 <= pm <= 180000
-        if bus_mA == last_mA and command_permille >= spin:
-            stuck += dt_ms                                # <= stuck_ms + dt_max < 7e5
+            pm = (v // 20) * a // 5000                    # [0.1 W] 3000 * 300000 = 9e8 ; pm <= 180000
+        # now 0 < dt <= 60000, 0 <= u <= 1000, 0 <= v <= 60000 [mV], 0 <= pm <= 180000
+        if a == last_mA and u >= spin:
+            stuck += dt                                   # <= stuck_ms + dt_max < 7e5
             if stuck >= tb[125]:                          # stuck_ms
                 st[6] = tb[125]
                 st[1] = flags = flags | 4
@@ -109,24 +110,24 @@ class Watch:
             st[6] = stuck
         elif stuck:
             st[6] = 0
-        st[5] = bus_mA
+        st[5] = a
         if flags & 4:                                     # a good sample clears sensor_fault
             flags &= 27
             st[1] = flags
 
         # expected power: voltage factor by table, power by table over f = factor x t
-        dv = bus_mV - v_min                               # 0 .. < 12 vstep
+        dv = v - v_min                                    # 0 .. < 12 vstep
         i = dv // vstep
-        a = tb[i]                                         # Q12, 0..6143
-        f = (a + (tb[i + 1] - a) * (dv % vstep) // vstep) * t >> 12  # 6143 * 5001 ; 6143 * 4096 ; f <= 6143
+        y = tb[i]                                         # Q12, 0..6143
+        f = (y + (tb[i + 1] - y) * (dv % vstep) // vstep) * t >> 12   # 6143 * 5001 ; 6143 * 4096 ; f <= 6143
         j = (f >> 7) + 26
-        a = tb[j]                                         # [0.1 W], < 2^18
-        pe = a + ((tb[j + 1] - a) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7
+        y = tb[j]                                         # [0.1 W], < 2^18
+        pe = y + ((tb[j + 1] - y) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7
         pl4 += ((pe << 2) - pl4) * alpha >> 8             # first-order lag; 2^20 * 256 = 2^28 ; pl4 < 2^20
         st[2] = pl4
 
-        if command_permille < spin:                       # on the ground (or rotors stopped)
-            quiet += dt_ms                                # <= landed_ms + dt_max <= 120000
+        if u < spin:                                      # on the ground (or rotors stopped)
+            quiet += dt                                   # <= landed_ms + dt_max <= 120000
             if quiet >= tb[126]:                          # landed_ms
                 quiet = tb[126]
                 if fl_ms:                                 # landed after a flight: a new one next
@@ -142,7 +143,7 @@ class Watch:
             return flags
         if quiet:
             st[7] = 0
-        fl_ms += dt_ms                                    # < 2^29 + 2 x 61000 (capped at blocks)
+        fl_ms += dt                                       # < 2^29 + 2 x 61000 (capped at blocks)
         st[8] = fl_ms
         em += pm * w                                      # 180000 * 2000 = 3.6e8
         ee += (pl4 >> 2) * w                              # 2^18 * 2000 = 5.2e8
@@ -153,7 +154,7 @@ class Watch:
             self.data[29] = 1                             # low: the block is not judged
         if bw >= blk:
             st[26] = 0
-            flags = self._block(tb, flags, em, ee, bw, bus_mV, fl_ms, fsum, es - ee)
+            flags = self._block(tb, flags, em, ee, bw, v, fl_ms, fsum, es - ee)
             st[1] = flags
             if fl_ms > 536870912:                         # flight time saturates at 2^29 ms (6 days;
                 st[8] = 536870912                         # the block compares it with minutes only)
@@ -177,22 +178,19 @@ class Watch:
          m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low) = sb
         # CUSUM k, h [permille] from the noise; k at most k_max, h raised so that h k stays
         k = sig >> 6
-        k = c[131] if k < c[131] else (1000 if k > 1000 else k)   # the noise, within floor..100 %
+        k = min(max(k, c[131]), 1000)                     # the noise, within floor..100 %
         h = k * c[134] >> 8                               # 1000 * 12800
         k = k * c[133] >> 8                               # 1000 * 2560
         if k > c[144]:
             h = h * k // c[144]                           # 50000 * 10000 = 5e8
-            h = 1048576 if h > 1048576 else h
+            h = min(h, 1048576)
             k = c[144]
-        k = l_ms if k < l_ms else k                       # after learning: 2 standard errors of m (below)
+        k = max(k, l_ms)                                  # after learning: 2 standard errors of m (below)
         sb[7] = k
         sb[8] = h
         hh = h >> 1                                       # sums below this: no suspicion
-        pmb = e // b                                      # mean measured power [0.1 W] <= 180000
         sh = c[123]
-        top = (32 << sh) - 1
-        if pmb > top:
-            pmb = top
+        pmb = min(e // b, (32 << sh) - 1)                 # mean measured power [0.1 W] <= 180000
         j = (pmb >> sh) + 75
         a = c[j]                                          # < 2^13
         th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[124]  # 2^13 * 2^13 ; <= 1e6
@@ -206,8 +204,7 @@ class Watch:
         if fsl == 0:
             fsl = fb << 7                                 # Q7 of Q12, < 2^20
         fsd = (fsl >> 7) + 1
-        x = (fb - fsd) * 1000 // fsd                      # from the hover thrust [permille]; 6143 * 1000
-        x = 500 if x > 500 else (-500 if x < -500 else x)
+        x = min(max((fb - fsd) * 1000 // fsd, -500), 500)   # from the hover thrust [permille]; 6143 * 1000
         if low:
             sb[29] = 0
         if low or x < -c[135] or x > c[135]:
@@ -225,18 +222,12 @@ class Watch:
         if e0s <= 0:
             return flags
         d = (e >> esh) - e0s
-        if d >= e0s:
-            r = 1000
-        elif -d >= e0s:
-            r = -1000
-        else:
-            r = d * 1000 // e0s                           # 6.8e5 * 1000
+        r = min(max(d, -e0s), e0s) * 1000 // e0s          # 6.8e5 * 1000 (e0s <= 2^19 x 1300 / 1000)
         self.residual_permille = r
         if t < c[127]:                                    # take-off: not judged, not learned
             return flags
         # lead g: static less lagged expected energy [permille of the expected] (spin-up draw)
-        g = (l >> esh) * 1000 // (e0 + 1)                 # 2^19 * 1000
-        g = 500 if g > 500 else (-500 if g < -500 else g)
+        g = min(max((l >> esh) * 1000 // (e0 + 1), -500), 500)   # 2^19 * 1000
         quiet = near and (learning or s_hi + s_lo < hh)     # no suspicion: slopes learned
         if quiet:
             # slopes of the residual on x (axial flight) and g (lead): cx = cov(r, x) / var(x),
@@ -248,7 +239,7 @@ class Watch:
                 m = l_sum // l_n if l_n else 0
             r -= m                                        # |.| <= 2000
             rr = r - cd * g // 64                         # |.| <= 2000 + 8000
-            rr = 1000 if rr > 1000 else (-1000 if rr < -1000 else rr)
+            rr = min(max(rr, -1000), 1000)
             sxx += (x * x - sxx) >> sh                    # 250000
             srx += (rr * x - srx) >> sh                   # 1000 * 500
             rr = r - cx * x // 1000                       # |.| <= 2500
@@ -260,13 +251,12 @@ class Watch:
             sb[26] = sdd
             sb[27] = srd
             cx = srx * 1000 // (sxx + 100)                # 5e5 * 1000 (a ridge of 10 permille^2)
-            cx = 0 if cx < 0 else (1000 if cx > 1000 else cx)
+            cx = min(max(cx, 0), 1000)
             sb[20] = cx
             cd = srd * 64 // (sdd + 100)                  # 1.25e6 * 64 ; cd: Q6
-            cd = 0 if cd < 0 else (1023 if cd > 1023 else cd)
+            cd = min(max(cd, 0), 1023)
             sb[28] = cd
-        x = cx * x // 1000 + cd * g // 64                 # the modelled part of r, |.| <= 8500
-        x = 500 if x > 500 else (-500 if x < -500 else x)
+        x = min(max(cx * x // 1000 + cd * g // 64, -500), 500)   # the modelled part of r, |.| <= 8500
         if learning:
             if steady:
                 r -= x                                    # |.| <= 1500: take the modelled part out
@@ -275,7 +265,7 @@ class Watch:
                 dz = r - l_sum // l_n                     # |.| <= 3000
                 y16 += ((dz << 4) - y16) >> 2             # smoothed deviation x 16, |.| <= 48000
                 sb[24] = y16
-                l_dev += y16 if y16 > 0 else -y16         # <= 48000 x 18000 = 8.7e8
+                l_dev += abs(y16)                         # <= 48000 x 18000 = 8.7e8
                 l_ms += b
                 sb[1] = l_sum
                 sb[2] = l_n
@@ -289,13 +279,10 @@ class Watch:
                 else:
                     m = 0
                     s = floor + floor
-                if s < floor:
-                    s = floor
-                if s > 1000:
-                    s = 1000
+                s = min(max(s, floor), 1000)
                 # baseline_off: |m| beyond the tolerance by 2 standard errors s / sqrt(l_n)
                 tol = c[130]
-                d = (m if m > 0 else -m) - tol            # |.| <= 2000
+                d = abs(m) - tol                          # |.| <= 2000
                 if d > 0:
                     m = tol if m > 0 else -tol
                     if l_n and d * d > (s * s << 2) // l_n:   # 2000^2 ; 1000^2 x 4
@@ -317,7 +304,7 @@ class Watch:
         elif near:
             z = r - (drift >> 8) - x                      # |.| <= 1600
             cl = k + hh + 1                               # one block adds at most this
-            zc = cl if z > cl else (-cl if z < -cl else z)
+            zc = min(max(z, -cl), cl)
             if steady:
                 s_hi += zc - k                            # <= 2h + 2 cl < 1e5
                 s_lo -= zc + k
@@ -325,31 +312,28 @@ class Watch:
                 s_hi += (zc - k) >> 1
                 s_lo -= (zc + k) >> 1
             h2 = h + h
-            s_hi = 0 if s_hi < 0 else (h2 if s_hi > h2 else s_hi)
-            s_lo = 0 if s_lo < 0 else (h2 if s_lo > h2 else s_lo)
+            s_hi = min(max(s_hi, 0), h2)
+            s_lo = min(max(s_lo, 0), h2)
             sb[9] = s_hi
             sb[10] = s_lo
             if quiet and steady:
                 # noise [Q6]: EMA of |y16| x 53 / 4 = |y| x 64 sqrt(7) sqrt(pi/2), |z| within 5 sigma
-                s = sig >> 6
                 floor = c[131]
-                if s < floor:
-                    s = floor
-                z = 5 * s if z > 5 * s else (-5 * s if z < -5 * s else z)
+                s = max(sig >> 6, floor)
+                z = min(max(z, -5 * s), 5 * s)
                 y16 += ((z << 4) - y16) >> 2              # |.| <= 16 x 5000
                 sb[24] = y16
-                sig += ((y16 if y16 > 0 else -y16) * 53 - (sig << 2)) >> (c[132] + 2)   # 8e4 * 53 = 4.2e6
-                if sig > l_dev + (l_dev >> 1) + (l_dev >> 2):
-                    sig = l_dev + (l_dev >> 1) + (l_dev >> 2)   # 1.75x: a slow ramp hides in no more
+                sig += (abs(y16) * 53 - (sig << 2)) >> (c[132] + 2)   # 8e4 * 53 = 4.2e6
+                sig = min(sig, l_dev + (l_dev >> 1) + (l_dev >> 2))   # 1.75x: a slow ramp hides in no more
                 sb[6] = sig
                 s = sig >> 6
-                self.sigma_permille = s if s > floor else floor
+                self.sigma_permille = max(s, floor)
             calm = s_hi + s_lo < hh
             if steady and calm:
                 # slow bounded drift of the baseline [1/256 permille] (not after a suspicion)
                 drift += ((r << 8) - drift) >> c[136]     # 1000 * 256
                 lim = c[137] << 8
-                drift = lim if drift > lim else (-lim if drift < -lim else drift)
+                drift = min(max(drift, -lim), lim)
                 sb[11] = drift
             flags &= 28
             if s_hi >= h:
@@ -363,8 +347,7 @@ class Watch:
                 plan = c[140]
                 th -= th * x // 1500                      # less axial flight (T ~ P^(2/3)); 1e6 * 500
                 # mass deviation in thrust units; the plan's weight plan x 9.807 mN/g <= 4.9e6
-                dm = th * 1000 // (plan * 9 + plan * 807 // 1000) - 1000   # 1e6 * 1000 ; 5e5 * 807
-                dm = 500 if dm > 500 else (-500 if dm < -500 else dm)
+                dm = min(max(th * 1000 // (plan * 9 + plan * 807 // 1000) - 1000, -500), 500)   # 1e6 * 1000 ; 5e5 * 807
                 m_sum += dm                               # <= 500 x 1200 blocks
                 m_sq += dm * dm                           # <= 250000 x 1200 = 3e8
                 m_n += 1
