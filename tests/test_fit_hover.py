@@ -20,7 +20,9 @@ from estimator.cli import main
 from estimator.core.momentum import disk_area_m2, ideal_power_W
 from estimator.demo.scenario import DEMO_VEHICLE
 from estimator.commands.bench import fit_for_vehicle
-from estimator.preflight.measured_rotor import hover_from_params, rotor_power_W, sagged_bus_V
+from estimator.core.power_model import rotor_power_W
+from estimator.core.battery import sagged_bus_V
+from estimator.preflight.measured_rotor import hover_from_params
 from estimator.units import STANDARD_GRAVITY_M_S2
 from estimator.vehicle import check_vehicle
 
@@ -220,7 +222,7 @@ def test_fitted_hover_motor_current_follows_the_physics(fitted):
 
 
 def test_voltage_range_warning_uses_the_sweep_range_when_recorded(fitted):
-    from estimator.preflight.measured_rotor import voltage_range_warning
+    from estimator.preflight.range_warnings import voltage_range_warning
     _, params, _ = fitted
     # the demo pack on its own bench fit: 4S hover voltages within 12 % of V_ref, no warning
     demo = hover_from_params(check_vehicle(DEMO_VEHICLE, "demo"), params)
@@ -305,7 +307,7 @@ def test_fitted_sheet_gives_the_thrust_to_weight_reachable_before_the_cutoff(fit
     assert fitted_report["reachable_thrust_to_weight"] < fitted_report["thrust_to_weight"]
     assert fitted_report["reachable_command"] < 1.0
     # Thevenin pack: at that command the bus sits at the loaded cutoff, V = V_oc - R I_pack
-    from estimator.preflight.measured_rotor import FittedRotor
+    from estimator.preflight.fitted_rotor import FittedRotor
     b = sagging["battery"]
     cutoff_V = b["cells"] * (b["empty_cell_V"] - 0.2)
     rotor = FittedRotor(params, fitted_report["density_kg_m3"])

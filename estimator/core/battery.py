@@ -32,14 +32,18 @@ def cell_open_circuit_V(state_of_charge, full_cell_V, nominal_cell_V, empty_cell
     return nominal_cell_V + (full_cell_V - nominal_cell_V) * (s - 0.5) / 0.5
 
 
-def loaded_voltage_V(open_circuit_V, current_A, resistance_ohm):
-    """Bus voltage under load, V_bus = V_oc - I R_pack.
+def sagged_bus_V(open_circuit_V, resistance_ohm, power_W):
+    """Bus voltage at which a pack delivers power P: V_bus (V_oc - V_bus) = R_pack P, upper
+    (stable) root V_bus = (V_oc + sqrt(V_oc^2 - 4 R_pack P)) / 2.
 
-    open_circuit_V: V_oc [V]; current_A: pack current I [A]; resistance_ohm: R_pack [ohm].
-    Returns V_bus [V] (may be negative for an impossible load; callers bound I).
-    Source: Thevenin equivalent of a cell stack.
+    open_circuit_V: V_oc [V]; resistance_ohm: R_pack [ohm]; power_W: P drawn from the bus [W].
+    Returns V_bus [V], or None when the pack cannot deliver that power at any voltage
+    (V_oc^2 < 4 R_pack P). Source: Thevenin equivalent of a cell stack (design notes sec. 3).
     """
-    return open_circuit_V - current_A * resistance_ohm
+    disc = open_circuit_V * open_circuit_V - 4.0 * resistance_ohm * power_W
+    if disc < 0.0:
+        return None
+    return 0.5 * (open_circuit_V + math.sqrt(disc))
 
 
 def usable_capacity_Ah(capacity_Ah, usable_fraction):

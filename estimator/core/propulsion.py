@@ -10,6 +10,7 @@ SI units. Sources: design notes sec. 3; motor.py; momentum.py.
 
 import math
 
+from estimator.core.battery import sagged_bus_V
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
 from estimator.core.motor import motor_input_for_thrust, rotor_operating_point
 from estimator.core.power_model import coaxial_shaft_ratio
@@ -94,17 +95,16 @@ def shared_point_for_thrust(thrust_per_rotor_N, open_circuit_V, pack_resistance_
     """
     motor_V, current, omega = motor_input_for_thrust(thrust_per_rotor_N, density_kg_m3, motor, propeller)
     p_bus = motor_V * current / esc_efficiency
-    disc = open_circuit_V * open_circuit_V - 4.0 * pack_resistance_ohm * rotor_count * p_bus
     out = {
         "duty": None, "bus_V": None, "omega_rad_s": omega, "rpm": omega * 60.0 / (2.0 * math.pi),
         "thrust_N": thrust_per_rotor_N, "motor_voltage_V": motor_V, "motor_current_A": current,
         "bus_current_A": None, "pack_current_A": None, "total_power_W": rotor_count * p_bus,
         "limited_by": None,
     }
-    if disc < 0.0:
+    bus_V = sagged_bus_V(open_circuit_V, pack_resistance_ohm, rotor_count * p_bus)
+    if bus_V is None:
         out["limited_by"] = "pack"
         return out
-    bus_V = 0.5 * (open_circuit_V + math.sqrt(disc))
     duty = motor_V / bus_V
     out["duty"] = duty
     out["bus_V"] = bus_V
