@@ -41,14 +41,16 @@ def _r(x, digits=6):
 
 def build_params(data, fit, source):
     """Assemble the parameter-set dict from estimator.bench.reader data and the fit results
-    (no vehicle: add_vehicle adds one)."""
+    (no vehicle: complete_set adds one), k taken at the sweep's median thrust (static_factor_at:
+    raises InputError when k > 1 there)."""
     curve, power, sf = fit["curve"], fit["power"], fit["static"]
     rho = data["bench_air"]["density_kg_m3"]
+    k, k_se = static_factor_at(power, sf["median_thrust_N"], rho, disk_area_m2(data["diameter_m"]), sf["cov"],
+                               source, "the median thrust")
     se = dict(curve["standard_errors"])
     se.update(power["standard_errors"])
     se.update({"k0": sf["standard_errors"]["k0"], "slope_per_N": sf["standard_errors"]["slope_per_N"]})
-    if "value_se" in sf:
-        se["static_factor"] = sf["value_se"]
+    se["static_factor"] = k_se
     if curve.get("quadratic_share_held"):
         share_note = {"quadratic_share_error": SHARE_HELD % curve["quadratic_share"]}
     else:
@@ -83,7 +85,7 @@ def build_params(data, fit, source):
             "residual_basis": "command and voltage -> thrust curve -> power model, rows above 10 % of thrust_max_N",
         },
         "static_factor": {
-            "value": _r(sf.get("value", sf["k0"] + sf["slope_per_N"] * sf["median_thrust_N"])),
+            "value": _r(k),
             "k0": _r(sf["k0"]), "slope_per_N": _r(sf["slope_per_N"]),
             "value_at": "median thrust",
             "thrust_at_value_N": _r(sf["median_thrust_N"]),
@@ -134,15 +136,36 @@ def static_factor_at(power, thrust_N, density_kg_m3, area_m2, line_covariance, s
     return k, math.sqrt(max(float(variance), 0.0))
 
 
-def add_vehicle(params, vehicle, hover):
+def complete_set(params, source, vehicle=None, hover=None, bench_file=None):
+    """The parameter set the fit writes, complete and checked: the fit command's one call before
+    write_params.
+
+    params: the set as fitted (bench.sweep, no vehicle). With a vehicle (checked vehicle dict),
+    first refused when the sweep does not fit it (check_vehicle_match, naming bench_file) or when
+    it cannot hover on this rotor (hover.refusal), then given the vehicle and hover blocks and k
+    at hover (add_vehicle). Then validated against the schema and the cross-key rules
+    (check_params, naming source). hover: the pre-flight flow's hover block for this set and
+    vehicle (estimator.preflight.measured_rotor.hover_block: values, the warnings about the
+    vehicle, refusal), which the command chaining the flows computes. Raises InputError;
+    returns a new dict (params is not changed).
+    """
+    if vehicle is not None:
+        check_vehicle_match(params, vehicle, bench_file, json_paths=False)
+        if hover.refusal:
+            raise InputError(hover.refusal)
+        params = add_vehicle(params, vehicle, hover.values, hover.warnings)
+    return check_params(params, source)
+
+
+def add_vehicle(params, vehicle, hover, about_vehicle=()):
     """The parameter set for a vehicle: params (fitted without one) with the vehicle block, the
     hover block and k taken at the hover thrust per rotor instead of the sweep's median
     (static_factor_at).
 
-    params: validated parameter set; vehicle: checked vehicle dict; hover: the pre-flight
-    flow's hover block for this set and vehicle (estimator.preflight.measured_rotor.hover_block,
-    which the command chaining the flows calls). Raises InputError when k > 1 there.
-    Returns a new dict; params is not changed.
+    params: validated parameter set; vehicle: checked vehicle dict; hover: the hover block's
+    values for this set and vehicle (estimator.preflight.measured_rotor.hover_block);
+    about_vehicle: its warnings about the vehicle, kept in the set's warnings. Raises
+    InputError when k > 1 there. Returns a new dict; params is not changed.
     """
     out = dict(params)
     bench_d, own_d = params["rotor"]["diameter_m"], vehicle["propeller"]["diameter_m"]
@@ -150,8 +173,6 @@ def add_vehicle(params, vehicle, hover):
     if abs(bench_d / own_d - 1.0) > SAME_PROPELLER:
         warnings.insert(0, "the bench propeller (%.4g m) is not the vehicle's (%.4g m): the hover values "
                            "assume the bench propeller" % (bench_d, own_d))
-    hover = dict(hover)
-    about_vehicle = hover.pop("_warnings", [])
     thrust = hover["thrust_per_rotor_N"]
     sf = dict(params["static_factor"])
     power = params["power_model"]
@@ -160,7 +181,7 @@ def add_vehicle(params, vehicle, hover):
     sf.update({"value": _r(value), "value_at": "hover", "thrust_at_value_N": _r(thrust)})
     out["static_factor"] = sf
     out["standard_errors"] = dict(params["standard_errors"], static_factor=_r(value_se, 4))
-    out["warnings"] = list(dict.fromkeys(warnings + about_vehicle))
+    out["warnings"] = list(dict.fromkeys(warnings + list(about_vehicle)))
     out["vehicle"] = vehicle_block(vehicle)
     out["hover"] = {k: (_r(v) if isinstance(v, float) else v) for k, v in hover.items()}
     return out

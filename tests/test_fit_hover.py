@@ -281,9 +281,32 @@ def test_pack_limited_vehicle_on_the_fitted_model(fitted):
     iq = params["motor_model"]["esc_idle_current_A"]
     eta = doc["esc"]["efficiency"]  # motor current = eta x ESC input less its own draw, at duty 1
     assert report["full_motor_current_A"] == pytest.approx(eta * (report["full_pack_current_A"] / 4 - iq), rel=1e-9)
+    block = hover_block(check_vehicle(doc, "weak.json"), params)
+    assert block.values is None  # no hover command to store: the set's writer refuses it
+    assert block.refusal.startswith("weak.json: ") and "pack cannot deliver" in block.refusal
+    from estimator.params import complete_set
     with pytest.raises(InputError) as info:
-        hover_block(check_vehicle(doc, "weak.json"), params)
-    assert str(info.value).startswith("weak.json: ") and "pack cannot deliver" in str(info.value)
+        complete_set(params, "out.json", check_vehicle(doc, "weak.json"), block, "demo.csv")
+    assert str(info.value) == block.refusal
+
+
+def test_a_vehicle_the_sweep_does_not_fit_is_refused_for_that_before_it_cannot_hover(fitted):
+    # a 15-inch propeller on the 10-inch sweep, and too heavy to hover: the sweep's propeller is
+    # the cause named (params.check_vehicle_match runs before the hover refusal, as it did when
+    # the command checked the match before asking for the hover report)
+    from estimator.errors import InputError
+    from estimator.params import complete_set
+    from estimator.preflight.measured_rotor import hover_block
+    _, params, _ = fitted
+    doc = json.loads(json.dumps(DEMO_VEHICLE))
+    doc["propeller"]["diameter_m"] = 0.381
+    doc["mass_kg"] = 9.0
+    vehicle = check_vehicle(doc, "big.json")
+    block = hover_block(vehicle, params)
+    assert block.refusal and "cannot hover" in block.refusal
+    with pytest.raises(InputError) as info:
+        complete_set(params, "out.json", vehicle, block, "demo.csv")
+    assert str(info.value).startswith("demo.csv: swept with a 0.254 m") and "cannot hover" not in str(info.value)
 
 
 def test_fitted_sheet_gives_the_thrust_to_weight_reachable_before_the_cutoff(fitted):

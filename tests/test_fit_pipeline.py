@@ -91,3 +91,6 @@ def test_the_fit_command_calls_the_pipeline_and_the_summary_once(tmp_path):
     bench = {m: n for m, n in counts.items() if m.startswith("estimator.bench.")}
     assert bench == {"estimator.bench.sweep": 1, "estimator.bench.summary": 1}, counts
     assert len(reports) == 1
+    # the parameter set: one call builds the complete, checked set (vehicle match, hover block,
+    # k at hover, schema), one writes it (4 calls before: match, add, check, write)
+    assert counts["estimator.params"] == 2, counts

@@ -124,20 +124,20 @@ def check_static_factor(source, thrust_N, power_W, density_kg_m3, area_m2, thrus
     return k_med
 
 
-def fit_power(lv, rows, curve, density_kg_m3, area_m2, source):
+def fit_power(lv, rows, curve, density_kg_m3, area_m2):
     """The power model and the static factor of a sweep, with all the fit says: one call.
 
     fit_power_model on the levels lv; its relative noise as the watch will see it
     (watch_residual_rel_std: each row's command and voltage through the fitted curve, a dict
     of estimator.bench.curve_fit.fit_curve, to thrust, then the power model) over the rows
     (command [-], voltage [V], power [W], used: False for a spike; a systematic subsample of
-    at most MAD_ROWS); the line k(T) (fit_static_factor) and k at the sweep's median thrust
-    with its standard error (estimator.params.static_factor_at, which refuses k > 1).
-    density_kg_m3: bench air [kg/m^3]; area_m2: disk area [m^2]; source: the sweep's name.
-    Returns (power dict with residual_rel_std, static-factor dict with value and value_se).
+    at most MAD_ROWS); the line k(T) (fit_static_factor: its summary line and covariance, and
+    the median thrust, where the parameter set takes k from the power model itself,
+    estimator.params.build_params, which refuses k > 1).
+    density_kg_m3: bench air [kg/m^3]; area_m2: disk area [m^2].
+    Returns (power dict with residual_rel_std, static-factor dict).
     """
     from estimator.bench.curve_fit import thrust_model_N
-    from estimator.params import static_factor_at
 
     u, v, p, used = rows
     power = fit_power_model(lv, density_kg_m3)
@@ -146,10 +146,7 @@ def fit_power(lv, rows, curve, density_kg_m3, area_m2, source):
     ok = used[::step]
     power["residual_rel_std"] = watch_residual_rel_std(p[::step][ok], power_model_W(power, t_sub[ok]),
                                                        t_sub[ok] / curve["thrust_max_N"])
-    sf = fit_static_factor(lv, density_kg_m3, area_m2, curve["thrust_max_N"], power)
-    sf["value"], sf["value_se"] = static_factor_at(power, sf["median_thrust_N"], density_kg_m3, area_m2, sf["cov"],
-                                                   source, "the median thrust")
-    return power, sf
+    return power, fit_static_factor(lv, density_kg_m3, area_m2, curve["thrust_max_N"], power)
 
 
 def fit_power_model(levels, density_kg_m3):

@@ -6,9 +6,10 @@ command levels (estimator.bench.levels) -> DC motor + propeller model (estimator
 motor_fit.fit_motor_model, liftcal's own predictions) -> the controller's quadratic
 (estimator.bench.curve_fit.fit_curve) -> power model and k (estimator.bench.power_fit.
 fit_power) -> the fit's warnings (estimator.bench.wording.fit_warnings) -> parameter set
-(estimator.params.build_params). The vehicle's hover values are added afterwards by the
-command that chains the flows (estimator.commands.bench.with_vehicle: pre-flight hover_block,
-then params.add_vehicle); the bench flow never imports the pre-flight flow."""
+(estimator.params.build_params, which takes k at the median thrust). The vehicle's hover values
+are added afterwards by the command that chains the flows (estimator.commands.bench: the
+pre-flight hover report and hover_block, then params.complete_set); the bench flow never
+imports the pre-flight flow."""
 
 import math
 from collections import namedtuple
@@ -155,7 +156,7 @@ def _fit_bench(data, source, voltage_exponent):
     if refusal:
         raise InputError(refusal)
     spikes = lv["thrust_spike"] | lv["power_spike"]
-    power, sf = fit_power(lv, (u, v, p, ~spikes), curve, rho, area, source)
+    power, sf = fit_power(lv, (u, v, p, ~spikes), curve, rho, area)
     rejected = dict(data["rejected"])
     counts = {"thrust_spike": int(np.count_nonzero(lv["thrust_spike"])),
               "power_spike": int(np.count_nonzero(lv["power_spike"] & ~lv["thrust_spike"]))}

@@ -13,26 +13,25 @@ from estimator.jsonio import dumps
 
 
 def fit_for_vehicle(bench_file, vehicle, **fit_options):
-    """Fit a bench CSV and add a vehicle's hover values (fit_sweep's options); the parameter set."""
+    """Fit a bench CSV and add a vehicle's hover values (fit_sweep's options); the parameter
+    set, complete and checked (params.complete_set)."""
     from estimator.bench.sweep import fit_bench_file
+    from estimator.params import complete_set
 
     params = fit_bench_file(bench_file, default_diameter_m=vehicle["propeller"]["diameter_m"], **fit_options)
-    return with_vehicle(params, vehicle, bench_file)[0]
+    return complete_set(params, bench_file, vehicle, vehicle_hover(params, vehicle)[1], bench_file)
 
 
-def with_vehicle(params, vehicle, bench_file):
-    """A parameter set fitted without a vehicle, with the vehicle's hover values: the pre-flight
-    flow's hover report and block from that set, then params.add_vehicle (this command chains
-    the two flows; neither imports the other). Returns (the parameter set, the hover report:
-    its warnings are the vehicle's margins). Raises InputError for a vehicle the sweep does
-    not fit (params.check_vehicle_match) or one that cannot hover on it."""
-    from estimator.params import add_vehicle, check_vehicle_match
+def vehicle_hover(params, vehicle):
+    """The pre-flight flow's answer for a parameter set fitted without a vehicle (this command
+    chains the two flows; neither imports the other): (the vehicle's hover report from the set,
+    its warnings are the vehicle's margins; the set's hover block from that report, a
+    measured_rotor.HoverBlock that params.complete_set takes)."""
     from estimator.preflight.measured_rotor import hover_block, hover_from_params
 
-    check_vehicle_match(params, vehicle, bench_file, json_paths=False)
     # the vehicle's warnings write commands in the sweep's unit, as the fit's own do
     report = hover_from_params(vehicle, params, params["provenance"]["units"]["command"])
-    return add_vehicle(params, vehicle, hover_block(vehicle, params, report)), report
+    return report, hover_block(vehicle, params, report)
 
 
 @click.command()
@@ -72,7 +71,7 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     from estimator.bench.summary import fit_json, fit_text
     from estimator.bench.sweep import fit_sweep
     from estimator.outputs import check_outputs
-    from estimator.params import check_params, write_params
+    from estimator.params import complete_set, write_params
 
     check_outputs([(out_file, "params", "--out"), (plot_file, "png", "--plot")],
                   inputs=(bench_file, vehicle_file))
@@ -84,16 +83,18 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
                        temperature_C=temperature, pressure_Pa=pressure, humidity_pct=humidity,
                        voltage_exponent=voltage_exponent,
                        default_diameter_m=vehicle and vehicle["propeller"]["diameter_m"])
-    params, shown, tw_text = fitted.params, list(fitted.params["warnings"]), None
+    report = hover = None
+    if vehicle is not None:
+        report, hover = vehicle_hover(fitted.params, vehicle)
+    params = complete_set(fitted.params, out_file, vehicle, hover, bench_file)
+    shown, tw_text = list(params["warnings"]), None
     if vehicle is not None:
         from estimator.preflight.warnings import thrust_to_weight_text  # printed as the sheet does
 
-        params, report = with_vehicle(params, vehicle, bench_file)
         # the vehicle's margins (full-command pack sag, motor and pack current, thin air...) as
         # the hover sheet gives them from this parameter set: printed, not stored (they belong
         # to the vehicle, and `hover --params` computes them afresh for the vehicle asked about)
         shown, tw_text = list(dict.fromkeys(params["warnings"] + report["warnings"])), thrust_to_weight_text
-    check_params(params, out_file)
     from estimator.replacing import check_set_replacement, replaced_line
 
     replaced = [line for line in (check_set_replacement(out_file, params, replace),

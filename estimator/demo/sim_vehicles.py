@@ -127,6 +127,7 @@ def fitted_params(name, seed=1):
     key = (name, seed)
     if key not in _FITS:
         from estimator.bench.sweep import fit_bench_file
+        from estimator.errors import InputError
         from estimator.params import add_vehicle
         from estimator.preflight.measured_rotor import hover_block
         folder = tempfile.mkdtemp(prefix="liftcal-simbench-")
@@ -135,6 +136,9 @@ def fitted_params(name, seed=1):
             fh.write(bench_csv(name, seed))
         vehicle = checked_vehicle(name)
         params = fit_bench_file(path, default_diameter_m=vehicle["propeller"]["diameter_m"])
-        params = add_vehicle(params, vehicle, hover_block(vehicle, params))
+        hover = hover_block(vehicle, params)
+        if hover.refusal:
+            raise InputError(hover.refusal)
+        params = add_vehicle(params, vehicle, hover.values, hover.warnings)
         _FITS[key] = params
     return _FITS[key]

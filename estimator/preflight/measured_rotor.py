@@ -10,11 +10,12 @@ hover_interval. Beyond the sweep's voltage or command range the sheet says by ho
 extrapolates.
 """
 
+from collections import namedtuple
+
 from estimator.core.battery import endurance_min, max_pack_current_A, usable_capacity_Ah
 from estimator.core.discharge import discharge_to_cutoff
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
 from estimator.core.power_model import rotor_static_factor
-from estimator.errors import InputError
 from estimator.preflight.fitted_rotor import hover_load, reachable_at_cutoff, vehicle_state
 from estimator.preflight.hover_interval import FORM_INFLATION, INTERVAL_METHOD, INTERVAL_SCOPE, hover_interval
 from estimator.preflight.range_warnings import about_the_vehicle, command_range_warnings, voltage_range_warning
@@ -24,6 +25,10 @@ from estimator.preflight.warnings import full_command_sag, margin_warnings, vehi
 from estimator.units import COMMAND_SHOWN, commands_in_unit
 from estimator.vehicle import assumed_warnings, given_text, vehicle_source
 
+# a parameter set's hover block for a vehicle (hover_block): values (the block, None when the
+# vehicle cannot hover), warnings (those about the vehicle, which the set keeps), refusal (why
+# it cannot hover, or None)
+HoverBlock = namedtuple("HoverBlock", "values warnings refusal")
 # the report's commands also given in the sweep's own unit (units.commands_in_unit)
 COMMANDS = ("hover_command", "hover_command_full", "hover_command_empty", "hover_command_interval_95",
             "hover_command_start")
@@ -141,10 +146,10 @@ def hover_from_params(vehicle, params, command_unit="-"):
 
 def hover_block(vehicle, params, report=None):
     """The ``hover`` block of a parameter set (DEVELOPERS.md layout) for a vehicle, from its
-    hover report (hover_from_params(vehicle, params), computed here when not given).
-
-    Raises InputError when the vehicle cannot hover on this rotor (there is no hover command
-    to store).
+    hover report (hover_from_params(vehicle, params), computed here when not given): a
+    HoverBlock (values, warnings about the vehicle, refusal). When the vehicle cannot hover on
+    this rotor there is no hover command to store: values is None and refusal says why
+    (params.complete_set raises it, after checking that the sweep fits the vehicle).
     """
     r = hover_from_params(vehicle, params) if report is None else report
     if r["hover_command"] is None:
@@ -153,11 +158,10 @@ def hover_block(vehicle, params, report=None):
         why = cause[0][len("cannot hover: "):] if cause else "no hover command"
         # the cause's own advice stands; the fit's alternative is added once
         advice = "" if "lighten it" in why else "lighten it or fit more thrust, "
-        raise InputError("%s: this vehicle cannot hover on the rotor fitted from %s at nominal pack: %s; "
-                         "%sor fit without --vehicle (the parameter set would have no hover values)"
-                         % (vehicle_source(vehicle, "the vehicle"), bench or "the bench sweep", why, advice))
-    return {
-        "_warnings": [w for w in r["warnings"] if about_the_vehicle(w)],
+        return HoverBlock(None, [], "%s: this vehicle cannot hover on the rotor fitted from %s at nominal pack: "
+                                    "%s; %sor fit without --vehicle (the parameter set would have no hover values)"
+                          % (vehicle_source(vehicle, "the vehicle"), bench or "the bench sweep", why, advice))
+    return HoverBlock({
         "hover_command": r["hover_command"],
         "hover_command_interval_95": r["hover_command_interval_95"],
         "interval_method": r["interval_method"],
@@ -173,4 +177,4 @@ def hover_block(vehicle, params, report=None):
         "hover_command_empty": r["hover_command_empty"],
         "thrust_to_weight": r["thrust_to_weight"],
         "flight_time_min": r["flight_time_min"],
-    }
+    }, [w for w in r["warnings"] if about_the_vehicle(w)], None)
