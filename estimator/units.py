@@ -9,7 +9,7 @@ import re
 
 from estimator.errors import InputError, shorten
 
-from estimator.core.constants import STANDARD_GRAVITY_M_S2  # one home: the core
+from estimator.core.constants import CELSIUS_ZERO_K, STANDARD_GRAVITY_M_S2  # one home: the core
 
 # kind -> {suffix: (scale, offset)} so that SI = value * scale + offset
 _UNITS = {
@@ -22,7 +22,7 @@ _UNITS = {
         "lbf": (0.45359237 * STANDARD_GRAVITY_M_S2, 0.0),
     },
     "power": {"W": (1.0, 0.0), "kW": (1e3, 0.0), "mW": (1e-3, 0.0)},
-    "temperature": {"C": (1.0, 0.0), "degC": (1.0, 0.0), "K": (1.0, -273.15), "F": (5.0 / 9.0, -32.0 * 5.0 / 9.0)},
+    "temperature": {"C": (1.0, 0.0), "degC": (1.0, 0.0), "K": (1.0, -CELSIUS_ZERO_K), "F": (5.0 / 9.0, -32.0 * 5.0 / 9.0)},
     "pressure": {"Pa": (1.0, 0.0), "hPa": (100.0, 0.0), "kPa": (1e3, 0.0), "mbar": (100.0, 0.0), "bar": (1e5, 0.0)},
     "density": {"kg/m3": (1.0, 0.0), "kg/m^3": (1.0, 0.0)},
     "percent": {"%": (1.0, 0.0), "pct": (1.0, 0.0)},

@@ -231,11 +231,12 @@ def site_temperature_warning(altitude_m, temperature_C):
     above 11 km; ICAO Doc 7488, ISO 2533); the band SITE_TEMPERATURE_ABOVE/BELOW_STANDARD_K.
     """
     from estimator.core.atmosphere import standard_atmosphere
+    from estimator.core.constants import CELSIUS_ZERO_K
 
     if temperature_C is None:
         return None
     try:
-        t_std = standard_atmosphere(altitude_m)[0] - 273.15
+        t_std = standard_atmosphere(altitude_m)[0] - CELSIUS_ZERO_K
     except ValueError:
         return None  # the air model refuses the altitude itself, naming it
     off = temperature_C - t_std

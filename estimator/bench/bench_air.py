@@ -2,6 +2,7 @@
 the ISA sea-level standard, with the checks that keep the two sources from contradicting
 each other."""
 
+from estimator.core.constants import SEA_LEVEL_DENSITY_KG_M3
 from estimator.errors import InputError
 
 # the bench air from the comments and from the density comment differ by more than this:
@@ -68,7 +69,7 @@ def bench_air(path, comments, density, altitude, temperature, pressure, humidity
     elif "density" in comments:
         rho, source = comments["density"][0], "file comment '# density'"
     else:
-        rho, source = 1.225, "assumed: ISA sea level (no bench air given)"
+        rho, source = SEA_LEVEL_DENSITY_KG_M3, "assumed: ISA sea level (no bench air given)"
         warnings.append("no bench air in the file or options; assumed ISA sea level 1.225 kg/m^3 "
                         "(add '# altitude: M' and '# temperature: C' to the CSV)")
     if not (0.3 <= rho <= 1.6):

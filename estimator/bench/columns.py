@@ -6,9 +6,8 @@ One home for the tables the reader (estimator.bench.reader), its row and unit ch
 (thrust and command in the CSV's own units) and ``liftcal fit --help`` read.
 """
 
-import math
-
 from estimator import csvtable
+from estimator.core.constants import RAD_S_PER_RPM
 from estimator.units import unit_factors
 
 REQUIRED = ("command", "voltage", "current", "thrust")
@@ -16,7 +15,7 @@ REQUIRED = ("command", "voltage", "current", "thrust")
 # temperature in C as estimator.units takes it); checked as numbers, not used by the fit
 OPTIONAL = {
     "time": {"s": (1.0, 0.0), "ms": (1e-3, 0.0)},
-    "rpm": {"rpm": (2.0 * math.pi / 60.0, 0.0)},
+    "rpm": {"rpm": (RAD_S_PER_RPM, 0.0)},
     "torque": {"N*m": (1.0, 0.0), "mN*m": (1e-3, 0.0)},
     "temperature": unit_factors("temperature", ("C", "K")),
 }

@@ -57,6 +57,7 @@ def air(altitude, temperature, pressure, humidity, as_json):
     out = dict(res)
     out["altitude_m"] = altitude_m
     out["humidity_pct"] = humidity_pct
+    from estimator.core.constants import CELSIUS_ZERO_K
     from estimator.vehicle import site_temperature_warning
 
     note = site_temperature_warning(altitude_m, temperature_C)
@@ -66,7 +67,7 @@ def air(altitude, temperature, pressure, humidity, as_json):
         return
     click.echo("air at %.0f m: %.4f kg/m^3 (%.1f %% of sea-level standard)"
                % (altitude_m, res["density_kg_m3"], 100.0 * res["density_ratio"]))
-    click.echo("  temperature      %.2f K (%.1f C)" % (res["temperature_K"], res["temperature_K"] - 273.15))
+    click.echo("  temperature      %.2f K (%.1f C)" % (res["temperature_K"], res["temperature_K"] - CELSIUS_ZERO_K))
     click.echo("  pressure         %.0f Pa (%.1f hPa)" % (res["pressure_Pa"], res["pressure_Pa"] / 100.0))
     click.echo("  humidity         %.0f %% (vapour %.0f Pa)" % (humidity_pct, res["vapour_pressure_Pa"]))
     click.echo("  density altitude %.0f m" % res["density_altitude_m"])

@@ -13,8 +13,8 @@ sea level), so air and pack are never taken at two different assumed temperature
 """
 
 from estimator.core.battery import COLD_REFERENCE_C, cold_capacity_factor, cold_resistance_factor
+from estimator.core.constants import CELSIUS_ZERO_K
 
-KELVIN_OFFSET = 273.15  # 0 C in K (definition of the Celsius scale)
 # the loaded cutoff when the file gives none: 0.2 V below the empty open-circuit cell voltage
 # (common practice for lithium packs under load)
 CUTOFF_BELOW_EMPTY_V = 0.2
@@ -40,7 +40,7 @@ def pack_in_the_air(vehicle, air):
     elif site.get("temperature_C") is not None:
         temperature, basis = site["temperature_C"], "site"
     else:
-        temperature, basis = air["temperature_K"] - KELVIN_OFFSET, "air"
+        temperature, basis = air["temperature_K"] - CELSIUS_ZERO_K, "air"
     battery["resistance_ohm"] = battery["resistance_ohm"] * cold_resistance_factor(temperature)
     battery["usable_fraction"] = (battery.get("usable_fraction", DEFAULT_USABLE_FRACTION)
                                   * cold_capacity_factor(temperature))

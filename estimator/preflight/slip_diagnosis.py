@@ -24,13 +24,13 @@ The checks (sea-level standard air, 1.225 kg/m^3: the slips are factors of 10 an
 import math
 import re
 
-from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.core.constants import SEA_LEVEL_DENSITY_KG_M3, STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2
 from estimator.units import plain_number
 from estimator.vehicle import given_text
 from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, PACK_SPECIFIC_ENERGY_WH_KG
 
-RHO = 1.225  # sea-level standard density [kg/m^3], US Standard Atmosphere 1976
+RHO = SEA_LEVEL_DENSITY_KG_M3  # sea-level standard density [kg/m^3], US Standard Atmosphere 1976
 FIGURE_OF_MERIT = 0.5  # a small rotor's hover figure of merit, generous for this check [-] (from memory)
 TYPICAL_CT = 0.1  # a small propeller's static CT, n in rev/s (from memory)
 # slips per key: (factor applied to the value as read, words); 1 g = 1e-3 kg, 1 mAh = 1e-3 Ah
