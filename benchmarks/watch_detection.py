@@ -21,6 +21,8 @@ pack's cutoff ends early, = 104 h of simulated fault-free flight, each logged at
 Runs on 2 processes (concurrent.futures).
 """
 
+import json
+import os
 import statistics
 import sys
 import time
@@ -72,6 +74,9 @@ def main(n_clean=20, quick=False, reduced=False):
     with ProcessPoolExecutor(2) as ex:
         cells = list(ex.map(ws.run_cell, jobs))
     wall = time.perf_counter() - t0
+    if os.environ.get("LIFTCAL_WATCH_DUMP"):          # every cell's result as JSON, for comparing runs
+        with open(os.environ["LIFTCAL_WATCH_DUMP"], "w") as fh:
+            json.dump(cells, fh)
     hours = sum(c["clean_hours"] for c in cells)
     rates = jobs[0][6]
     print("detection matrix%s: %d cells (%d vehicles x %d jitters x %d lags), %d fault-free %.0f-min flights per "
