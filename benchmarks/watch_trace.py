@@ -18,6 +18,7 @@ import numpy as np
 
 import _watch_common  # noqa: F401  (paths)
 import watch_study as ws
+from watch_helpers import block_state_names
 from estimator.core.watch import Watch
 
 if os.environ.get("LIFTCAL_TRACE_KERNEL"):           # another kernel file to trace (e.g. main's)
@@ -28,9 +29,7 @@ if os.environ.get("LIFTCAL_TRACE_KERNEL"):           # another kernel file to tr
 from estimator.demo import flight_sim, sim_vehicles
 from estimator.watch.config import ROTOR_LAG_S_PER_M, as_tuple, make_config
 
-NAMES = ("learning", "l_sum", "l_n", "l_ms", "l_dev", "scale", "sig", "k", "h", "s_hi", "s_lo", "drift", "fsl",
-         "m_sum", "m_sq", "m_n", "m_ms", "m_run", "sxx", "srx", "cx", "mu_p", "var_p", "n_p", "y16", "hold",
-         "sdd", "srd", "cd", "low")
+NAMES = block_state_names()      # the block state's names, read from the kernel's own unpacking in _block
 
 
 class Traced(Watch):
