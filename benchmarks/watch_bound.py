@@ -116,7 +116,7 @@ def run_cell(args):
     from estimator.demo import flight_sim, sim_vehicles
     from estimator.watch.config import make_config, as_tuple, ROTOR_LAG_S_PER_M
     from estimator.watch.thrust_table import thrust_from_power_total_N
-    from estimator.core.watch import Watch
+    from estimator.watch.config import NamedWatch as Watch   # the kernel's Watch, outputs by name
 
     name, jitter, lag, seed, rates, n_use, kernel = args
     n_clean = 20

@@ -36,7 +36,7 @@ def load(config=None):
     try:
         problem = liftwatch_layout.check(config)
     except TypeError:
-        problem = "CONFIG is not a list of integers"
+        problem = "CONFIG is not a tuple of integers"
     finally:
         del liftwatch_layout
         sys.modules.pop("liftwatch_layout", None)   # needed once: its heap is freed at the next collection

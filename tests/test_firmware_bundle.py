@@ -42,7 +42,7 @@ def test_config_is_integers_only_with_comments(tmp_path):
     text = (tmp_path / "b" / "liftwatch_config.py").read_text()
     tree = ast.parse(text)
     config = ast.literal_eval(tree.body[0].value)
-    assert isinstance(config, list) and len(config) == CONFIG_LENGTH
+    assert isinstance(config, tuple) and len(config) == CONFIG_LENGTH
     assert all(type(v) is int and -(1 << 30) < v < 1 << 30 for v in config)
     for i, key in enumerate(CONFIG_KEYS):
         assert "# [%d] %s:" % (SCALAR_AT + i, key) in text   # every value is named in its comment

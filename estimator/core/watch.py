@@ -1,9 +1,11 @@
 """Onboard power watch: integer-only, heap-free kernel (runs unchanged on MicroPython).
 
-``w = Watch(CONFIG)``; ``flags = w.update(dt, u, v, a)``; flag bits
-in estimator/core/watch_layout.py. Readable after each block: ``residual_permille`` [1/1000],
-``thrust_mN`` [mN], ``hover_permille`` [1/1000], ``mass_g`` [g], ``scale`` [1/1000],
-``sigma_permille`` [1/1000]. Their meaning, the model and its published sources (Page 1954,
+``w = Watch(CONFIG)``; ``flags = w.update(dt, u, v, a)``; flag bits in
+estimator/core/watch_layout.py. Readable after each block in ``w.data`` (watch_layout.OUTPUT_AT;
+on the desktop also by name, estimator.watch.config.NamedWatch): [30] ``mass_g`` [g], [31]
+``sigma_permille`` [1/1000], [32] ``residual_permille`` [1/1000], [33] ``thrust_mN`` [mN], [34]
+``hover_permille`` [1/1000], [5] ``scale`` [1/1000] (in the list, not as attributes: an
+attribute's name would be interned on the board's heap). Their meaning, the model and its published sources (Page 1954,
 Hawkins 1987, Siegmund 1985) and the integer contract: DEVELOPERS.md, "The onboard watch
 kernel". Every intermediate stays below 2^30 (the bound of each product is the comment beside
 it, with the CONFIG bounds of watch_layout.check); update() and _block() have no loops, build
@@ -16,64 +18,64 @@ class Watch:
     """Power watch of one vehicle (CONFIG by liftcal firmware; desktop: watch.config.new_watch)."""
 
     def __init__(self, c):
-        """c: CONFIG of liftwatch_config, a tuple or list of 145 ints [-] (watch_layout).
+        """c: CONFIG of liftwatch_config, a tuple of 145 ints [-] (watch_layout: the scalars sit at
+        13..49, so most indices here compile to one-byte constants).
         Raises ValueError (no message: a string constant would stay on the heap) when CONFIG was
         made for another kernel format; the board loader liftwatch_load and the desktop builder
         check every bound first and say what is wrong in words."""
-        if len(c) != 145 or c[108] != 5:
+        if len(c) != 145 or c[13] != 6:
             raise ValueError
-        span = c[116]
+        span = c[21]
         # thrust fraction t = 4096 ((1 - a) d/S + a (d/S)^2) = d (ta + (tq d >> 10)) >> 14 with
         # d = u - u_min, S = command span (>= 100): ta <= 6.7e5, tq <= 6.9e6
-        ta = ((4096 - c[117]) << 14) // span
-        tq = (((c[117] << 12) // span) << 12) // span
-        i_pos = c[112] if c[112] > 0 else 0   # currents below this: negative (power 0) or a fault
+        ta = ((4096 - c[22]) << 14) // span
+        tq = (((c[22] << 12) // span) << 12) // span
+        i_pos = max(c[17], 0)                             # currents below this: negative (power 0) or a fault
         # state (st in update): [0] CONFIG, [1..11] per-sample state ([2] lagged expected power
-        # [0.1 W / 4]), [12..20] CONFIG scalars read every sample, [21..24] derived, [25] the
-        # block's thrust-factor sum, [26] its static expected energy [0.1 W ms], [27] the block
-        # weight w of a sample of dt; dt_last, alpha and w start as those of a 1 ms sample (a valid dt: checked on change only)
-        self.state = [c, 0, 0, 1, 256 // (c[120] + 1), -1, 0, 0, 0, 0, 0, 0,
-                      c[109], c[110], c[111], c[113], c[114], c[115], c[118], c[119], c[121],
-                      ta, tq, c[115] + span, i_pos, 0, 0, 1]
+        # [0.1 W / 4], [3] the block weight w of a sample of dt), [12..20] CONFIG scalars read
+        # every sample, [21..24] derived, [25] the block's thrust-factor sum, [26] its static
+        # expected energy [0.1 W ms], [27] dt_last; the most used come first (the first ten are
+        # update's locals 6..15, one byte of bytecode a use instead of two); dt_last, alpha and w
+        # start as those of a 1 ms sample (a valid dt: checked on change only)
+        self.state = [c, 0, 0, 1, 256 // (c[25] + 1), 0, 0, 0, 0, 0, -1, 0,
+                      c[14], c[15], c[16], c[18], c[19], c[20], c[23], c[24], c[26],
+                      ta, tq, c[20] + span, i_pos, 0, 0, 1]
         # data (sb in _block): block state, named by the unpacking in _block (DEVELOPERS.md: sig in
         # Q6, drift in Q8, fsl the hover thrust factor in Q7, low: the block's expected power fell
-        # below the floor); the inflow slope cx starts at momentum theory's 0.5
-        self.thrust_mN = self.hover_permille = 0
-        self.data = [0] * 30
+        # below the floor; [30..34] the outputs); the inflow slope cx starts at momentum theory's 0.5
+        self.data = [0] * 35
         self.clear()
 
     def clear(self):
-        """A new flight: forget the learned scale, noise, CUSUM sums, drift and mass."""
+        """A new flight: forget the learned scale, noise, CUSUM sums, drift and mass (the outputs
+        thrust_mN and hover_permille stay)."""
         sb = self.data
-        for i in range(30):                               # a counted loop: no allocation
+        for i in range(33):                               # a counted loop: no allocation
             sb[i] = 0
         sb[0] = 1
         sb[5] = 1000
         sb[18] = sb[26] = 400
         sb[19] = 200
         sb[20] = 500
-        self.mass_g = self.sigma_permille = self.residual_permille = 0
-        self.scale = 1000
 
     def update(self, dt, u, v, a):
         """One sample: dt [ms] since the last, command u [1/1000], bus voltage v [mV], bus current a
         [mA] (one-letter names: the interpreter holds them already, DEVELOPERS.md "Heap on the
         board"). Returns the flag bits (int). Never raises for int inputs, never allocates."""
         st = self.state
-        (tb, flags, pl4, dt_last, alpha, last_mA, stuck, quiet, fl_ms, em, ee, bw,
+        (tb, flags, pl4, w, alpha, ee, stuck, quiet, fl_ms, em, last_mA, bw,
          dt_max, v_min, v_max, i_max, spin, cmd_min, vstep, pfloor, blk,
-         ta, tq, u_top, i_pos, fsum, es, w) = st
+         ta, tq, u_top, i_pos, fsum, es, dt_last) = st
         # range checks: comparisons only, so any int is safe here; dt only when it changes, then
         # the lag's alpha = dt / (lag + dt) in Q8 and the sample's block weight w (at most a block)
         if dt != dt_last:
             if dt <= 0 or dt > dt_max:
                 st[1] = flags = flags | 4
                 return flags
-            alpha = (dt << 8) // (tb[120] + dt)           # lag_ms; 60000 * 256 = 1.5e7
-            w = dt if dt < blk else blk
-            st[3] = dt
+            alpha = (dt << 8) // (tb[25] + dt)           # lag_ms; 60000 * 256 = 1.5e7
+            st[3] = w = min(dt, blk)
+            st[27] = dt
             st[4] = alpha
-            st[27] = w
         if v < v_min or v > v_max:
             st[1] = flags = flags | 4
             return flags
@@ -91,7 +93,7 @@ class Watch:
             d = u - cmd_min                               # 0..span
             t = d * (ta + (tq * d >> 10)) >> 14           # tq*d <= 6.9e8 ; d*(..) <= 2^26
         if a < i_pos:
-            if a < tb[112]:                               # i_min_mA
+            if a < tb[17]:                               # i_min_mA
                 st[1] = flags = flags | 4
                 return flags
             pm = 0                                        # negative current: measured power 0
@@ -103,24 +105,23 @@ class Watch:
         # now 0 < dt <= 60000, 0 <= u <= 1000, 0 <= v <= 60000 [mV], 0 <= pm <= 180000
         if a == last_mA and u >= spin:
             stuck += dt                                   # <= stuck_ms + dt_max < 7e5
-            if stuck >= tb[125]:                          # stuck_ms
-                st[6] = tb[125]
+            if stuck >= tb[30]:                          # stuck_ms
+                st[6] = tb[30]
                 st[1] = flags = flags | 4
                 return flags
             st[6] = stuck
         elif stuck:
             st[6] = 0
-        st[5] = a
+        st[10] = a
         if flags & 4:                                     # a good sample clears sensor_fault
-            flags &= 27
-            st[1] = flags
+            st[1] = flags = flags & 27
 
         # expected power: voltage factor by table, power by table over f = factor x t
         dv = v - v_min                                    # 0 .. < 12 vstep
         i = dv // vstep
         y = tb[i]                                         # Q12, 0..6143
         f = (y + (tb[i + 1] - y) * (dv % vstep) // vstep) * t >> 12   # 6143 * 5001 ; 6143 * 4096 ; f <= 6143
-        j = (f >> 7) + 26
+        j = (f >> 7) + 63
         y = tb[j]                                         # [0.1 W], < 2^18
         pe = y + ((tb[j + 1] - y) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7
         pl4 += ((pe << 2) - pl4) * alpha >> 8             # first-order lag; 2^20 * 256 = 2^28 ; pl4 < 2^20
@@ -128,8 +129,8 @@ class Watch:
 
         if u < spin:                                      # on the ground (or rotors stopped)
             quiet += dt                                   # <= landed_ms + dt_max <= 120000
-            if quiet >= tb[126]:                          # landed_ms
-                quiet = tb[126]
+            if quiet >= tb[31]:                          # landed_ms
+                quiet = tb[31]
                 if fl_ms:                                 # landed after a flight: a new one next
                     self.clear()
                     flags = 0
@@ -137,7 +138,7 @@ class Watch:
                     st[8] = 0
             st[7] = quiet
             if bw:
-                st[9] = st[10] = st[11] = st[25] = 0
+                st[9] = st[5] = st[11] = st[25] = 0
                 st[26] = es - ee                          # the lead sum is kept (ee is cleared)
                 self.data[29] = 0
             return flags
@@ -153,18 +154,14 @@ class Watch:
         if pe < pfloor:
             self.data[29] = 1                             # low: the block is not judged
         if bw >= blk:
-            st[26] = 0
-            flags = self._block(tb, flags, em, ee, bw, v, fl_ms, fsum, es - ee)
-            st[1] = flags
-            if fl_ms > 536870912:                         # flight time saturates at 2^29 ms (6 days;
-                st[8] = 536870912                         # the block compares it with minutes only)
-            st[9] = st[10] = st[11] = st[25] = 0
-        else:
-            st[9] = em
-            st[10] = ee
-            st[11] = bw
-            st[25] = fsum
-            st[26] = es
+            st[1] = flags = self._block(tb, flags, em, ee, bw, v, fl_ms, fsum, es - ee)
+            st[8] = min(fl_ms, 536870912)                 # flight time saturates at 2^29 ms (6 days;
+            em = ee = bw = fsum = es = 0                  # the block compares it with minutes only)
+        st[9] = em
+        st[5] = ee
+        st[11] = bw
+        st[25] = fsum
+        st[26] = es
         return flags
 
     def _block(self, c, flags, e, p, b, v, t, f, l):
@@ -174,114 +171,98 @@ class Watch:
         l: static less lagged expected energy (the lead). (Names the interpreter already holds
         cost no heap: DEVELOPERS.md, "Heap on the board".)"""
         sb = self.data
+        lo = min                                          # in local slots below 16: 1 B a use, not 2
+        hi = max
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
-         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low) = sb
+         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low, mass_g, sigma_permille, residual_permille, thrust_mN, hover_permille) = sb
         # CUSUM k, h [permille] from the noise; k at most k_max, h raised so that h k stays
-        k = sig >> 6
-        k = min(max(k, c[131]), 1000)                     # the noise, within floor..100 %
-        h = k * c[134] >> 8                               # 1000 * 12800
-        k = k * c[133] >> 8                               # 1000 * 2560
-        if k > c[144]:
-            h = h * k // c[144]                           # 50000 * 10000 = 5e8
-            h = min(h, 1048576)
-            k = c[144]
-        k = max(k, l_ms)                                  # after learning: 2 standard errors of m (below)
-        sb[7] = k
+        k = lo(hi(sig >> 6, c[36]), 1000)                     # the noise, within its floor c[36]..100 %
+        h = k * c[39] >> 8                               # 1000 * 12800
+        k = k * c[38] >> 8                               # 1000 * 2560
+        if k > c[49]:
+            h = lo(h * k // c[49], 1048576)             # 50000 * 10000 = 5e8
+            k = c[49]
+        sb[7] = k = hi(k, l_ms)                           # after learning: 2 standard errors of m (below)
         sb[8] = h
         hh = h >> 1                                       # sums below this: no suspicion
-        sh = c[123]
-        pmb = min(e // b, (32 << sh) - 1)                 # mean measured power [0.1 W] <= 180000
-        j = (pmb >> sh) + 75
+        sh = c[28]
+        pmb = lo(e // b, (32 << sh) - 1)                 # mean measured power [0.1 W] <= 180000
+        j = (pmb >> sh) + 112
         a = c[j]                                          # < 2^13
-        th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[124]  # 2^13 * 2^13 ; <= 1e6
-        self.thrust_mN = th                               # thrust from measured power (table)
-        dv = v - c[110]
-        vs = c[118]
+        # thrust from measured power (table); 2^13 * 2^13 ; <= 1e6
+        sb[33] = th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[29]
+        dv = v - c[15]
+        vs = c[23]
         j = dv // vs
-        a = c[j + 13]
-        self.hover_permille = a + (c[j + 14] - a) * (dv % vs) // vs   # 1000 * 5001
+        a = c[j + 50]
+        sb[34] = a + (c[j + 51] - a) * (dv % vs) // vs   # 1000 * 5001
         fb = f // b                                       # Q12, <= 6143
-        if fsl == 0:
+        if not fsl:
             fsl = fb << 7                                 # Q7 of Q12, < 2^20
         fsd = (fsl >> 7) + 1
-        x = min(max((fb - fsd) * 1000 // fsd, -500), 500)   # from the hover thrust [permille]; 6143 * 1000
-        if low:
-            sb[29] = 0
-        if low or x < -c[135] or x > c[135]:
-            hold = c[143]                                 # a manoeuvre: not judged for settle_ms after it
-            sb[25] = hold
+        x = lo(hi((fb - fsd) * 1000 // fsd, -500), 500)   # from the hover thrust [permille]; 6143 * 1000
+        sb[29] = 0
+        if low or abs(x) > c[40]:
+            sb[25] = hold = c[48]                        # a manoeuvre: not judged for settle_ms after it
         elif hold > 0:
-            hold -= b
-            sb[25] = hold
+            sb[25] = hold = hold - b
         steady = hold <= 0
-        near = low == 0 and -250 <= x <= 250              # judged (at half weight unless steady)
+        near = not low and abs(x) <= 250              # judged (at half weight unless steady)
         sb[12] = fsl + (((fb << 7) - fsl) >> (4 if learning else 7))   # 2^20
-        esh = c[122]                                      # energy_shift (watch_layout)
+        esh = c[27]                                      # energy_shift (watch_layout)
         e0 = p >> esh                                     # < 2^19
         e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
         if e0s <= 0:
             return flags
-        d = (e >> esh) - e0s
-        r = min(max(d, -e0s), e0s) * 1000 // e0s          # 6.8e5 * 1000 (e0s <= 2^19 x 1300 / 1000)
-        self.residual_permille = r
-        if t < c[127]:                                    # take-off: not judged, not learned
+        sb[32] = r = lo(hi((e >> esh) - e0s, -e0s), e0s) * 1000 // e0s   # 6.8e5 * 1000 (e0s <= 2^19 x 1300 / 1000)
+        if t < c[32]:                                    # take-off: not judged, not learned
             return flags
         # lead g: static less lagged expected energy [permille of the expected] (spin-up draw)
-        g = min(max((l >> esh) * 1000 // (e0 + 1), -500), 500)   # 2^19 * 1000
+        g = lo(hi((l >> esh) * 1000 // (e0 + 1), -500), 500)   # 2^19 * 1000
         quiet = near and (learning or s_hi + s_lo < hh)     # no suspicion: slopes learned
         if quiet:
             # slopes of the residual on x (axial flight) and g (lead): cx = cov(r, x) / var(x),
             # cd = cov(r, g) / var(g), each less the other's part, EMA (faster while learning)
-            sh = c[132]
+            sh = c[37]
             m = drift >> 8                                # the baseline: the residual's mean
             if learning:
                 sh = 4
                 m = l_sum // l_n if l_n else 0
             r -= m                                        # |.| <= 2000
-            rr = r - cd * g // 64                         # |.| <= 2000 + 8000
-            rr = min(max(rr, -1000), 1000)
             sxx += (x * x - sxx) >> sh                    # 250000
-            srx += (rr * x - srx) >> sh                   # 1000 * 500
-            rr = r - cx * x // 1000                       # |.| <= 2500
-            r += m
+            srx += (lo(hi(r - cd * g // 64, -1000), 1000) * x - srx) >> sh   # |r - cd g| <= 2000 + 8000; 1000 * 500
             sdd += (g * g - sdd) >> sh                    # 250000
-            srd += (rr * g - srd) >> sh                   # 2500 * 500
+            srd += ((r - cx * x // 1000) * g - srd) >> sh   # |r - cx x| <= 2500; 2500 * 500
+            r += m
             sb[18] = sxx
             sb[19] = srx
             sb[26] = sdd
             sb[27] = srd
-            cx = srx * 1000 // (sxx + 100)                # 5e5 * 1000 (a ridge of 10 permille^2)
-            cx = min(max(cx, 0), 1000)
-            sb[20] = cx
-            cd = srd * 64 // (sdd + 100)                  # 1.25e6 * 64 ; cd: Q6
-            cd = min(max(cd, 0), 1023)
-            sb[28] = cd
-        x = min(max(cx * x // 1000 + cd * g // 64, -500), 500)   # the modelled part of r, |.| <= 8500
+            sb[20] = cx = lo(hi(srx * 1000 // (sxx + 100), 0), 1000)   # 5e5 * 1000 (a ridge of 10 permille^2)
+            sb[28] = cd = lo(hi(srd * 64 // (sdd + 100), 0), 1023)    # 1.25e6 * 64 ; cd: Q6
+        x = lo(hi(cx * x // 1000 + cd * g // 64, -500), 500)   # the modelled part of r, |.| <= 8500
         if learning:
             if steady:
                 r -= x                                    # |.| <= 1500: take the modelled part out
                 l_n += 1                                  # <= 18000 (timeout / block)
                 l_sum += r                                # <= 2.7e7
-                dz = r - l_sum // l_n                     # |.| <= 3000
-                y16 += ((dz << 4) - y16) >> 2             # smoothed deviation x 16, |.| <= 48000
-                sb[24] = y16
+                sb[24] = y16 = y16 + ((((r - l_sum // l_n) << 4) - y16) >> 2)   # deviation (|.| <= 3000) smoothed x 16, |.| <= 48000
                 l_dev += abs(y16)                         # <= 48000 x 18000 = 8.7e8
                 l_ms += b
                 sb[1] = l_sum
                 sb[2] = l_n
                 sb[3] = l_ms
                 sb[4] = l_dev
-            if l_ms >= c[128] or t >= c[129]:
-                floor = c[131]
+            if l_ms >= c[33] or t >= c[34]:
                 if l_n >= 4:
                     m = l_sum // l_n
                     s = (l_dev // l_n) * 53 >> 8          # mean |y16| / 16 x sqrt(7) x sqrt(pi/2)
                 else:
                     m = 0
-                    s = floor + floor
-                s = min(max(s, floor), 1000)
+                    s = c[36] + c[36]                     # twice the noise floor
+                s = lo(hi(s, c[36]), 1000)
                 # baseline_off: |m| beyond the tolerance by 2 standard errors s / sqrt(l_n)
-                tol = c[130]
+                tol = c[35]
                 d = abs(m) - tol                          # |.| <= 2000
                 if d > 0:
                     m = tol if m > 0 else -tol
@@ -290,21 +271,18 @@ class Watch:
                 # in flight k >= 2 s / sqrt(l_n + 1) (Hawkins 1987): two Newton steps from above
                 q = (s * s << 2) // (l_n + 1)             # 1000^2 x 4
                 l_ms = (s // 3 + 1 + q // (s // 3 + 1)) >> 1
-                sb[3] = l_ms = (l_ms + q // l_ms) >> 1
-                l_dev = s << 6                            # kept: in flight the noise stays below 1.75x this
-                sb[4] = l_dev
-                scale = 1000 + m
+                sb[3] = (l_ms + q // l_ms) >> 1
+                sb[4] = s << 6                            # kept: in flight the noise stays below 1.75x this
                 sb[0] = 0
-                sb[5] = scale
+                sb[5] = 1000 + m
                 # in flight the noise starts at 1.5x (an upper confidence bound), rises to 1.75x at most
                 s += s >> 1
                 sb[6] = s << 6                            # Q6, <= 128000
-                self.scale = scale
-                self.sigma_permille = s
+                sb[31] = s
         elif near:
             z = r - (drift >> 8) - x                      # |.| <= 1600
             cl = k + hh + 1                               # one block adds at most this
-            zc = min(max(z, -cl), cl)
+            zc = lo(hi(z, -cl), cl)
             if steady:
                 s_hi += zc - k                            # <= 2h + 2 cl < 1e5
                 s_lo -= zc + k
@@ -312,29 +290,22 @@ class Watch:
                 s_hi += (zc - k) >> 1
                 s_lo -= (zc + k) >> 1
             h2 = h + h
-            s_hi = min(max(s_hi, 0), h2)
-            s_lo = min(max(s_lo, 0), h2)
-            sb[9] = s_hi
-            sb[10] = s_lo
+            sb[9] = s_hi = lo(hi(s_hi, 0), h2)
+            sb[10] = s_lo = lo(hi(s_lo, 0), h2)
             if quiet and steady:
                 # noise [Q6]: EMA of |y16| x 53 / 4 = |y| x 64 sqrt(7) sqrt(pi/2), |z| within 5 sigma
-                floor = c[131]
-                s = max(sig >> 6, floor)
-                z = min(max(z, -5 * s), 5 * s)
-                y16 += ((z << 4) - y16) >> 2              # |.| <= 16 x 5000
-                sb[24] = y16
-                sig += (abs(y16) * 53 - (sig << 2)) >> (c[132] + 2)   # 8e4 * 53 = 4.2e6
-                sig = min(sig, l_dev + (l_dev >> 1) + (l_dev >> 2))   # 1.75x: a slow ramp hides in no more
-                sb[6] = sig
-                s = sig >> 6
-                self.sigma_permille = max(s, floor)
+                s = hi(sig >> 6, c[36])
+                z = lo(hi(z, -5 * s), 5 * s)
+                sb[24] = y16 = y16 + (((z << 4) - y16) >> 2)   # |.| <= 16 x 5000
+                sig += (abs(y16) * 53 - (sig << 2)) >> (c[37] + 2)   # 8e4 * 53 = 4.2e6
+                sb[6] = sig = lo(sig, l_dev + (l_dev >> 1) + (l_dev >> 2))   # 1.75x: a slow ramp hides in no more
+                sb[31] = hi(sig >> 6, c[36])
             calm = s_hi + s_lo < hh
             if steady and calm:
                 # slow bounded drift of the baseline [1/256 permille] (not after a suspicion)
-                drift += ((r << 8) - drift) >> c[136]     # 1000 * 256
-                lim = c[137] << 8
-                drift = min(max(drift, -lim), lim)
-                sb[11] = drift
+                drift += ((r << 8) - drift) >> c[41]     # 1000 * 256
+                lim = c[42] << 8
+                sb[11] = lo(hi(drift, -lim), lim)
             flags &= 28
             if s_hi >= h:
                 flags |= 1
@@ -344,15 +315,15 @@ class Watch:
         # implied mass over windows of steady flight (not while a power fault is suspected)
         if steady:
             if learning or (calm if near else s_hi + s_lo < hh):
-                plan = c[140]
+                plan = c[45]
                 th -= th * x // 1500                      # less axial flight (T ~ P^(2/3)); 1e6 * 500
                 # mass deviation in thrust units; the plan's weight plan x 9.807 mN/g <= 4.9e6
-                dm = min(max(th * 1000 // (plan * 9 + plan * 807 // 1000) - 1000, -500), 500)   # 1e6 * 1000 ; 5e5 * 807
+                dm = lo(hi(th * 1000 // (plan * 9 + plan * 807 // 1000) - 1000, -500), 500)   # 1e6 * 1000 ; 5e5 * 807
                 m_sum += dm                               # <= 500 x 1200 blocks
                 m_sq += dm * dm                           # <= 250000 x 1200 = 3e8
                 m_n += 1
                 m_ms += b
-                if m_ms >= c[138]:
+                if m_ms >= c[43]:
                     mu = m_sum // m_n
                     var = m_sq // m_n - mu * mu           # <= 250000
                     if n_p:
@@ -365,26 +336,23 @@ class Watch:
                         pmu = mu
                         pvar = var
                         pn = m_n
-                    self.mass_g = plan + (plan * pmu + 500) // 1000   # 5e5 * 500 (rounded, not floored)
-                    ex = pmu - c[141]
-                    if ex > 0 and ex * ex * pn > ((pvar >> 4) * c[142] >> 4):   # 2.5e5 * 2400 ; 31250 * 32767
+                    sb[30] = plan + (plan * pmu + 500) // 1000   # 5e5 * 500 (rounded, not floored)
+                    ex = pmu - c[46]
+                    if ex > 0 and ex * ex * pn > ((pvar >> 4) * c[47] >> 4):   # 2.5e5 * 2400 ; 31250 * 32767
                         m_run += 1
-                        if m_run >= c[139]:
+                        if m_run >= c[44]:
                             flags |= 16
                     else:
                         m_run = 0
-                    mu_p = mu
-                    var_p = var
-                    n_p = m_n
-                    sb[21] = mu_p
-                    sb[22] = var_p
-                    sb[23] = n_p
+                    sb[21] = mu
+                    sb[22] = var
+                    sb[23] = n_p = m_n
                     m_sum = m_sq = m_n = m_ms = 0
                 sb[17] = m_run
                 sb[13] = m_sum
                 sb[14] = m_sq
                 sb[15] = m_n
                 sb[16] = m_ms
-            elif m_n or n_p:                              # m_n = 0: m_sum, m_sq, m_ms are 0 too
+            else:                                         # (already 0 when m_n and n_p are)
                 sb[13] = sb[14] = sb[15] = sb[16] = sb[23] = 0
         return flags

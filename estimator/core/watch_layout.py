@@ -1,8 +1,10 @@
 """The watch's CONFIG layout: indices, bounds and flag bits, in one place (ints and strings only).
 
-CONFIG is one flat tuple (a list on the board) of plain ints, each below 2^30 in magnitude:
-the four tables knot after knot (TABLES order, at TABLE_AT), then the scalars in SCALARS
-order from SCALAR_AT ("format" first). The kernel (estimator/core/watch.py) reads it by these
+CONFIG is one flat tuple of plain ints, each below 2^30 in magnitude: the first table
+(volt_q12) knot after knot, then the scalars in SCALARS order from SCALAR_AT ("format"
+first), then the other three tables (TABLES order, at TABLE_AT). The scalars sit at 13..49
+so that the kernel's literal indices of them are one-byte constants in its bytecode (an index
+below 48; a table is read at a computed index, so its place costs nothing). The kernel (estimator/core/watch.py) reads it by these
 indices; the desktop builder (estimator/watch/config.py) writes it; ``check`` is the one set
 of bounds both sides apply: the desktop before writing a bundle, the board loader
 (firmware_port/liftwatch_load.py, which ships this file as ``liftwatch_layout``) before it
@@ -12,7 +14,7 @@ makes a Watch. The bounds are those under which every kernel intermediate stays 
 Runs unchanged on MicroPython: no imports, no floats.
 """
 
-FORMAT = 5  # CONFIG format of this kernel
+FORMAT = 6  # CONFIG format of this kernel (5: the same values, the scalars after the tables)
 
 # flag bits returned by Watch.update (design notes sec. 4)
 POWER_HIGH = 1
@@ -79,12 +81,19 @@ _at = 0
 for _t in TABLES:
     TABLE_AT[_t[0]] = _at
     _at += _t[1]
-SCALAR_AT = _at                             # 108
-CONFIG_LENGTH = _at + len(SCALARS)
+    if _t[0] == "volt_q12":                 # the scalars follow the first table
+        SCALAR_AT = _at                     # 13
+        _at += len(SCALARS)
+CONFIG_LENGTH = _at
 INDEX = {}
 for _i in range(len(SCALARS)):
     INDEX[SCALARS[_i][0]] = SCALAR_AT + _i
 del _at, _t, _i
+
+# where Watch keeps its outputs: indices in its block state list Watch.data (ints, updated
+# once per block); mass_g, sigma_permille and residual_permille are cleared at a landing
+OUTPUT_AT = (("mass_g", 30), ("sigma_permille", 31), ("residual_permille", 32), ("thrust_mN", 33),
+             ("hover_permille", 34), ("scale", 5))
 
 
 def check(config):

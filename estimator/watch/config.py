@@ -23,6 +23,7 @@ from estimator.core import thrust_curve
 from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.errors import InputError
+from estimator.watch.named_watch import NamedWatch
 from estimator.watch.thrust_table import thrust_from_power_total_N, thrust_knots_mN
 
 LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports; every kernel value stays below
@@ -74,8 +75,8 @@ DEFAULTS = {
     "current_max_A": None,          # above this [A] (default 1.5 x motors' max, at most 300 A)
 }
 
-# CONFIG is one flat tuple of plain ints (layout in estimator/core/watch_layout.py): the tables
-# in TABLES order, knot after knot, at TABLE_AT, then the scalars in CONFIG_KEYS order.
+# CONFIG is one flat tuple of plain ints (layout in estimator/core/watch_layout.py): each table
+# knot after knot at TABLE_AT, the scalars in CONFIG_KEYS order from SCALAR_AT.
 CONFIG_FORMAT = layout.FORMAT
 CONFIG_KEYS = tuple(name for name, _, _ in layout.SCALARS)
 TABLES = tuple((name, n) for name, n, _, _ in layout.TABLES)
@@ -362,18 +363,17 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
 
 
 def as_tuple(cfg):
-    """The CONFIG dict as the flat tuple of ints Watch takes: the tables, then CONFIG_KEYS order."""
-    out = []
-    for name, _ in TABLES:
-        out.extend(cfg[name])
-    out.extend(cfg[k] for k in CONFIG_KEYS)
+    """The CONFIG dict as the flat tuple of ints Watch takes (tables at TABLE_AT, scalars from SCALAR_AT)."""
+    out = [0] * CONFIG_LENGTH
+    for name, n in TABLES:
+        out[TABLE_AT[name]:TABLE_AT[name] + n] = cfg[name]
+    out[SCALAR_AT:SCALAR_AT + len(CONFIG_KEYS)] = [cfg[k] for k in CONFIG_KEYS]
     return tuple(out)
 
 
 def new_watch(cfg):
-    """A Watch (estimator/core/watch.py) made from a CONFIG dict."""
-    from estimator.core.watch import Watch
-    return Watch(as_tuple(cfg))
+    """A NamedWatch (the kernel's Watch with its outputs by name) made from a CONFIG dict."""
+    return NamedWatch(as_tuple(cfg))
 
 
 def _shift(blocks):
