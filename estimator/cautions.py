@@ -23,6 +23,11 @@ RULES = ("Local aviation rules and the makers' limits for the airframe, motors, 
 SAG_BELOW_CUTOFF = ("expect a low-voltage cut-out or a brownout on a punch-out: keep full command short, "
                     "or use a pack with less resistance or more capacity")
 
+# the same under a compare row or the payload table (a caution beside the result, not a margin:
+# the nominal pack's sag per cell [V] and its loaded cutoff [V] are filled in)
+SAG_BELOW_CUTOFF_SHORT = ("brownout risk: full command sags the nominal pack to %.2f V per cell, below its "
+                          "%.2f V cutoff; keep punch-outs short")
+
 # a pack below about 10 C (sheet warning; the pack temperature [C] and the share of its rated
 # capacity it still gives [%] are filled in)
 COLD_PACK = ("cold pack (%.0f C): warm it to room temperature before take-off and keep it warm until "

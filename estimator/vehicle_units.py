@@ -42,6 +42,7 @@ UNIT_KEYS = {
     "motor": {"resistance": ("resistance_ohm", "resistance"),
               "no_load_current": ("no_load_current_A", "current"),
               "max_current": ("max_current_A", "current")},
+    "esc": {"max_current": ("max_current_A", "current")},
     "battery": {"capacity": ("capacity_Ah", "capacity"), "resistance": ("resistance_ohm", "resistance"),
                 "full_cell": ("full_cell_V", "voltage"), "nominal_cell": ("nominal_cell_V", "voltage"),
                 "empty_cell": ("empty_cell_V", "voltage"), "cutoff_cell": ("cutoff_cell_V", "voltage"),

@@ -194,9 +194,13 @@ def test_fitted_sheet_keeps_the_motor_and_pack_current_checks(fitted):
     assert report["hover_motor_current_A"] == pytest.approx(eta * (report["hover_current_A"] / count - iq) / d, rel=1e-9)
     limit = vehicle["motor"]["max_current_A"]
     assert report["full_motor_current_A"] > limit  # the case the trial found (about 40 A on 30 A)
-    # the datasheet sheet's own wording: one shared function (estimator.preflight.margin_warnings)
-    assert any(w.startswith("full command draws %.1f A per motor, above the motor limit %.0f A"
-                            % (report["full_motor_current_A"], limit)) for w in report["warnings"])
+    # the limits are judged at full command on a full pack (seventh trial, finding 1), with the
+    # same ESC relation there; the datasheet sheet's own wording (estimator.preflight.margin_warnings)
+    assert report["motor_current_judged_A"] == pytest.approx(
+        eta * (report["pack_current_judged_A"] / count - iq), rel=1e-9)
+    assert report["motor_current_judged_A"] > report["full_motor_current_A"]
+    assert any(w.startswith("full command on a full pack draws %.1f A per motor, above the motor limit %.0f A"
+                            % (report["motor_current_judged_A"], limit)) for w in report["warnings"])
     # 20 C x 5 Ah = 100 A (definition of C-rate) is below the full-command pack current
     assert report["full_pack_current_A"] > 100.0
     assert any("above its rating of 100 A" in w for w in report["warnings"])

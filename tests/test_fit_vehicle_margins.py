@@ -13,11 +13,11 @@ from io_helpers import run
 from truth_rotor import G0, THRUST_UNITS, at_supply, duty, random_truth, rotor_at, sweep_rows, vehicle_file, write_csv
 
 
-def _full_command(truth, r_pack):
+def _full_command(truth, r_pack, cell="nominal_cell_V"):
     """The truth's bus voltage per cell [V] and motor current per rotor [A] at full command on
-    its nominal pack of resistance r_pack [ohm]."""
+    its nominal (or, cell="full_cell_V", full) pack of resistance r_pack [ohm]."""
     vh = truth["vehicle"]
-    _, v, i = at_supply(truth, np.array([1.0]), vh["cells"] * vh["nominal_cell_V"], r_pack, truth["rho"],
+    _, v, i = at_supply(truth, np.array([1.0]), vh["cells"] * vh[cell], r_pack, truth["rho"],
                         vh["rotors"])
     i_motor = (i[0] / vh["rotors"] - truth["i_q"]) * truth["eta_esc"]  # bus I_q + d I_m / eta at d = 1
     return float(v[0]) / vh["cells"], i_motor
@@ -42,13 +42,14 @@ def _files(tmp_path, seed):
     csv, vfile = tmp_path / "sweep.csv", tmp_path / "vehicle.json"
     write_csv(truth, sweep_rows(truth, rng), str(csv))
     vfile.write_text(json.dumps(vehicle))
-    return truth, csv, vfile, cell_V, motor_A
+    return truth, csv, vfile, cell_V, _full_command(truth, vh["r_pack"], "full_cell_V")[1]
 
 
 @pytest.mark.parametrize("seed", [62])
 def test_fit_with_a_vehicle_prints_the_margin_warnings_of_the_sheet(tmp_path, seed):
     # finding: `fit --vehicle` printed only the warnings stored in the parameter set, never the
     # vehicle's margins (full-command pack sag below the cutoff, motor current above its limit)
+    # motor_A: full command on a full pack, where the limits are judged (seventh trial, finding 1)
     truth, csv, vfile, cell_V, motor_A = _files(tmp_path, seed)
     code, text, err = run(["fit", csv, "--vehicle", vfile, "--out", tmp_path / "p.json"])
     assert code == 0, err

@@ -101,10 +101,14 @@ def test_motor_current_is_the_esc_output_in_both_routes(params, fitted):
     # definition of ESC efficiency at full duty (motor at the bus voltage): I_motor = eta (I_in - I_idle)
     assert r["full_motor_current_A"] == pytest.approx(0.9 * (r["full_esc_input_current_A"] - idle), rel=1e-9)
     assert r["full_motor_current_A"] < r["full_esc_input_current_A"]
+    # the limits are judged at full command on a full pack (seventh trial, finding 1): the same
+    # relation holds there, the full pack's ESC input being its share of the pack current
+    judged_in = r["pack_current_judged_A"] / r["rotor_count"]
+    assert r["motor_current_judged_A"] == pytest.approx(0.9 * (judged_in - idle), rel=1e-9)
     # a motor limit between the two: the motor is within it, so no motor-limit warning
-    doc["motor"]["max_current_A"] = 0.5 * (r["full_motor_current_A"] + r["full_esc_input_current_A"])
+    doc["motor"]["max_current_A"] = 0.5 * (r["motor_current_judged_A"] + judged_in)
     r2 = hover_report(check_vehicle(doc, "v.json"), params if fitted else None)
     assert not any("motor limit" in w for w in r2["warnings"])
-    doc["motor"]["max_current_A"] = 0.98 * r["full_motor_current_A"]
+    doc["motor"]["max_current_A"] = 0.98 * r["motor_current_judged_A"]
     r3 = hover_report(check_vehicle(doc, "v.json"), params if fitted else None)
-    assert any("%.1f A per motor" % r3["full_motor_current_A"] in w for w in r3["warnings"])
+    assert any("%.1f A per motor" % r3["motor_current_judged_A"] in w for w in r3["warnings"])

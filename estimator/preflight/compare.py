@@ -13,7 +13,7 @@ import itertools
 
 from estimator.errors import InputError, shorten
 from estimator.preflight.low_reynolds import endurance_lead
-from estimator.preflight.margins import MARGINS, broken, keeps_margins, margins
+from estimator.preflight.margins import MARGINS, TABLE_CAUTIONS, broken, keeps_margins, margins
 from estimator.preflight.report import hover_report
 from estimator.preflight.warnings import (ENDED_BY_WORDS, REACHABLE_MARK, REACHABLE_MARK_NOTE,
                                          judged_thrust_to_weight_text)
@@ -120,12 +120,16 @@ def compare_rows(document, source, variations, progress=None):
     as given}, hover_command, hover_command_empty, thrust_to_weight, hover_motor_current_A,
     thrust_to_weight_reachable (False when full command sags the pack below its cutoff),
     reachable_thrust_to_weight [-] (at the cutoff-limited command),
-    hover_esc_input_current_A, hover_pack_current_A, full_pack_current_A [A],
+    hover_esc_input_current_A, hover_pack_current_A, full_pack_current_A [A] (nominal pack),
+    current_judged_at, motor_current_judged_A, esc_current_judged_A, pack_current_judged_A [A]
+    (what the current margins judge: full command on a full pack), full_command_sag (True when
+    full command sags the nominal pack below its cutoff: a caveat under the row, not a margin),
     flight_time_min (the estimate's), flight_time_lead_min and flight_time_lead_basis (what the
     row shows and is ranked on: low_reynolds.endurance_lead, the conservative endurance for a
     small estimated rotor), endurance_lead (that dict), flight_ended_by (of the flight shown),
     caveats (preflight.caveats: unit slips, small rotor, cold pack, as the hover sheet has them),
-    margins {name: bool|None}, keeps_margins, broken [names]), margins (MARGINS), best (the
+    margins {name: bool|None}, keeps_margins, broken [names]), margins (MARGINS), not_margins
+    (margins.TABLE_CAUTIONS: shown beside a row, never ranking it), best (the
     first row that keeps every margin, or None).
     Raises InputError naming the --vary value when a combination is not a valid vehicle.
     """
@@ -154,6 +158,13 @@ def compare_rows(document, source, variations, progress=None):
             "hover_esc_input_current_A": report.get("hover_esc_input_current_A"),
             "hover_pack_current_A": report["hover_current_A"],
             "full_pack_current_A": report.get("full_pack_current_A"),
+            # what the current margins judge: full command on a full pack (warnings.judged_currents)
+            "current_judged_at": report.get("current_judged_at"),
+            "motor_current_judged_A": report.get("motor_current_judged_A"),
+            "esc_current_judged_A": report.get("esc_current_judged_A"),
+            "pack_current_judged_A": report.get("pack_current_judged_A"),
+            # a caution shown under the row, not a margin (margins.TABLE_CAUTIONS)
+            "full_command_sag": report.get("thrust_to_weight_reachable") is False,
             "mass_kg": report["mass_kg"],
             "flight_time_min": report["flight_time_min"],
             "flight_time_lead_min": report["flight_time_lead_min"],
@@ -174,7 +185,7 @@ def compare_rows(document, source, variations, progress=None):
     for rank, row in enumerate(rows, 1):
         row["rank"] = rank
     best = rows[0] if rows and rows[0]["keeps_margins"] else None
-    return {"rows": rows, "margins": dict(MARGINS), "best": best,
+    return {"rows": rows, "margins": dict(MARGINS), "not_margins": dict(TABLE_CAUTIONS), "best": best,
             "varied": [".".join(p) for p, _ in variations], "combinations": len(rows)}
 
 
@@ -229,6 +240,9 @@ def format_table(result, name):
     lines.append("margins:")
     width = max(len(k) for k in result["margins"])
     lines += ["  %s  %s" % (k.ljust(width), v) for k, v in result["margins"].items()]
+    if any(r.get("full_command_sag") for r in rows):
+        lines.append("not a margin (the ! line under a row; it does not rank the row):")
+        lines += ["  %s  %s" % (k.ljust(width), v) for k, v in result["not_margins"].items()]
     lines.append("motor A  each motor's current at hover (ESC output)")
     lines.append("pack A   all motors from the pack")
     if any(r.get("thrust_to_weight_reachable") is False for r in rows):

@@ -2,9 +2,14 @@
 
 A margin is kept (True), broken (False), or cannot be judged (None: the file gives no limit).
 The thresholds are the report's warning thresholds (estimator.preflight.report, common practice).
+The current margins are judged at full command on a full pack, the pack state that draws the
+most current (warnings.judged_currents). Full command sagging the nominal pack below its
+cutoff is not a margin (TABLE_CAUTIONS): the T/W margin already judges what is reachable
+before the cutoff; compare and the payload table show the sag beside the result.
 """
 
-from estimator.preflight.warnings import HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, judged_thrust_to_weight
+from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, current_judged,
+                                         judged_thrust_to_weight)
 
 # margin -> what it means, for tables and the JSON
 MARGINS = {
@@ -13,17 +18,24 @@ MARGINS = {
                          "before its loaded cutoff" % THRUST_TO_WEIGHT_MIN),
     "hover_command": "hover command at most %g of full, down to an empty pack (common practice)"
                      % HOVER_COMMAND_LIMIT,
-    "motor_current": "full command within the motor's current limit (when given)",
-    "pack_current": "full command within the pack's C-rating (when given)",
-    "full_command_sag": "full command keeps the nominal pack above its loaded cutoff",
+    "motor_current": "full command on a full pack within the motor's current limit (when given)",
+    "esc_current": "full command on a full pack within the ESC's current rating (when given)",
+    "pack_current": "full command on a full pack within the pack's C-rating (when given)",
     "landing_reserve": "the flight ends on the landing reserve, not on the cutoff or the loss of hover",
 }
 
-# margins judged at full command: the full-command current (and the pack sag it causes) does not
-# depend on the mass carried
-# (only through an estimated propeller's Reynolds number at the hover speed, a fraction of a percent),
-# so no payload (and no payload less) mends them
-PAYLOAD_BLIND = ("motor_current", "pack_current", "full_command_sag")
+# what is shown beside a result but does not decide whether it keeps its margins, and why
+SAG_NOT_A_MARGIN_WHY = ("a caution, not a margin: the thrust-to-weight margin already judges the T/W "
+                        "reachable before the cutoff (marked *), so the sag does not rank a row or break a payload")
+TABLE_CAUTIONS = {
+    "full_command_sag": ("full command sags the nominal pack below its loaded cutoff: a brownout risk on a "
+                         "long punch-out; " + SAG_NOT_A_MARGIN_WHY),
+}
+
+# margins judged at full command on a full pack: that current does not depend on the mass
+# carried (only through an estimated propeller's Reynolds number at the hover speed, a fraction
+# of a percent), so no payload (and no payload less) mends them
+PAYLOAD_BLIND = ("motor_current", "esc_current", "pack_current")
 
 
 def margins(report):
@@ -38,16 +50,15 @@ def margins(report):
         "thrust_to_weight": tw is not None and tw >= THRUST_TO_WEIGHT_MIN,
         "hover_command": hovering and worst_cmd <= HOVER_COMMAND_LIMIT,
         "motor_current": None,
+        "esc_current": None,
         "pack_current": None,
         "landing_reserve": hovering and report.get("flight_ended_by") == "reserve",
-        "full_command_sag": report.get("thrust_to_weight_reachable"),
     }
-    limit, full_i = report.get("motor_current_limit_A"), report.get("full_motor_current_A")
-    if limit is not None and full_i is not None:
-        out["motor_current"] = full_i <= limit
-    rating, full_pack = report.get("pack_current_limit_A"), report.get("full_pack_current_A")
-    if rating is not None and full_pack is not None:
-        out["pack_current"] = full_pack <= rating
+    for kind, limit_key in (("motor", "motor_current_limit_A"), ("esc", "esc_current_limit_A"),
+                            ("pack", "pack_current_limit_A")):
+        limit, current = report.get(limit_key), current_judged(report, kind)
+        if limit is not None and current is not None:
+            out[kind + "_current"] = current <= limit
     return out
 
 

@@ -21,7 +21,7 @@ from estimator.preflight.hover_interval import FORM_INFLATION, INTERVAL_METHOD, 
 from estimator.preflight.range_warnings import about_the_vehicle, command_range_warnings, voltage_range_warning
 from estimator.cautions import cautions
 from estimator.preflight.pack import pack_in_the_air, pack_keys
-from estimator.preflight.warnings import full_command_sag, margin_warnings, vehicle_site_air
+from estimator.preflight.warnings import full_command_sag, judged_currents, margin_warnings, vehicle_site_air
 from estimator.units import COMMAND_SHOWN, commands_in_unit
 from estimator.vehicle import assumed_warnings, given_text, vehicle_source
 
@@ -92,6 +92,7 @@ def hover_from_params(vehicle, params, command_unit="-"):
         "esc_efficiency": esc_eff,
         "motor_current_limit_A": vehicle["motor"].get("max_current_A"),
         "pack_current_limit_A": max_pack_current_A(b["capacity_Ah"], b.get("max_discharge_C")),
+        "esc_current_limit_A": vehicle.get("esc", {}).get("max_current_A"),
         "pack_voltage_V": {k: states[k]["open_circuit_V"] for k in states},
         "usable_Ah": usable, "density_kg_m3": rho, "density_ratio": air["density_ratio"],
         "density_altitude_m": air["density_altitude_m"], "temperature_K": air["temperature_K"],
@@ -111,6 +112,10 @@ def hover_from_params(vehicle, params, command_unit="-"):
         report.update(commands_in_unit({k: report[k] for k in COMMANDS}, unit), command_unit=unit)
     report.update(pack_keys(raw_vehicle, b, pack_temperature, pack_basis))
     report.update(full_command_sag(report))
+    peak = states["full"]  # the current limits' pack state (warnings.judged_currents)
+    report.update(judged_currents({"bus_V": peak["full_bus_V"], "motor_current_A": esc_eff * peak["full_motor_current_A"],
+                                   "esc_input_current_A": peak["full_pack_current_A"] / count,
+                                   "pack_current_A": peak["full_pack_current_A"]}, b["cells"], b["cutoff_cell_V"]))
     report.update(reachable_at_cutoff(nom, b, count))
     if hovering:
         d = discharge_to_cutoff(b["cells"], b["capacity_Ah"], b.get("usable_fraction", 0.8),

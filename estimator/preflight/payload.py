@@ -17,7 +17,7 @@ import re
 
 from estimator.errors import InputError, shorten
 from estimator.preflight.low_reynolds import endurance_lead
-from estimator.preflight.margins import PAYLOAD_BLIND, broken, margins
+from estimator.preflight.margins import PAYLOAD_BLIND, SAG_NOT_A_MARGIN_WHY, broken, margins
 from estimator.preflight.report import hover_report
 from estimator.preflight.warnings import REACHABLE_MARK, REACHABLE_MARK_NOTE, judged_thrust_to_weight, judged_thrust_to_weight_text
 from estimator.textwidth import wrap_line
@@ -102,6 +102,13 @@ def _row(vehicle, payload_kg, job_min, params=None):
         "flight_time_min": report["flight_time_min"], "flight_time_lead_min": lead,
         "flight_time_lead_basis": report.get("flight_time_lead_basis", "estimate"),
         "flight_ended_by": endurance_lead(report)["flight_ended_by"],
+        "current_judged_at": report.get("current_judged_at"),
+        "motor_current_judged_A": report.get("motor_current_judged_A"),
+        "esc_current_judged_A": report.get("esc_current_judged_A"),
+        "pack_current_judged_A": report.get("pack_current_judged_A"),
+        # a caution beside the row, not a margin (margins.TABLE_CAUTIONS)
+        "full_command_sag": report.get("thrust_to_weight_reachable") is False,
+        "caveats": [c for c in report.get("caveats") or [] if c["kind"] == "full_command_sag"],
         "margins": marks, "keeps": all(m is not False for m in marks.values()),
         "broken": broken(marks) + (["job_time"] if marks.get("job_time") is False else []),
     }
@@ -241,6 +248,14 @@ def format_payload_table(result, unit="kg"):
                            "reach, as in section 3", indent=5)
     if any(judged_thrust_to_weight(r)[1] for r in result["rows"]):
         lines += wrap_line("   T/W%s  %s" % (REACHABLE_MARK, REACHABLE_MARK_NOTE), indent=9)
+    sagging = [r for r in result["rows"] if r.get("full_command_sag")]
+    if sagging:  # a caution beside the table, not a margin: it decides no row's "keeps"
+        shorts = [r["caveats"][0]["short"] for r in sagging if r.get("caveats")]
+        if shorts:
+            lines += wrap_line("   ! " + shorts[0] + " (%s)" % (
+                "every payload" if len(sagging) == len(result["rows"]) else "payloads " + ", ".join(
+                    _mass(r["payload_kg"], unit) for r in sagging)), indent=7)
+        lines += wrap_line("     " + SAG_NOT_A_MARGIN_WHY, indent=7)
     for line in verdict_lines(result, unit):
         lines += wrap_line("   " + line, indent=5)
     return "\n".join(lines) + "\n"

@@ -20,7 +20,7 @@ from estimator.preflight.low_reynolds import (endurance_lead, fallback_figure_of
 from estimator.preflight.propeller_estimate import estimated_propeller, low_reynolds_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
-from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, REACHABLE_MARK, beside, judged_thrust_to_weight, judged_thrust_to_weight_text, full_command_sag, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num, SIG3)
+from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, REACHABLE_MARK, beside, judged_thrust_to_weight, judged_thrust_to_weight_text, full_command_sag, judged_currents, current_judged, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num, SIG3)
 
 MODEL = "liftcal.dc-motor-momentum/1"
 # the datasheet model takes command = ESC duty; a real ESC only starts the motor above a
@@ -119,6 +119,7 @@ def _report(vehicle, params=None):
         "motor_current_limit_A": vehicle["motor"].get("max_current_A"),
         "pack_current_limit_A": max_pack_current_A(vehicle["battery"]["capacity_Ah"],
                                                    vehicle["battery"].get("max_discharge_C")),
+        "esc_current_limit_A": vehicle.get("esc", {}).get("max_current_A"),
         "pack_voltage_V": {k: est["states"][k]["open_circuit_V"] for k in ("full", "nominal", "empty")},
         "usable_Ah": est["usable_Ah"],
         "density_kg_m3": rho,
@@ -143,6 +144,11 @@ def _report(vehicle, params=None):
     }
     report.update(pack_keys(vehicle, battery, pack_temperature, pack_basis))
     report.update(full_command_sag(report))
+    peak = est["states"]["full"]["full"]  # the current limits' pack state (warnings.judged_currents)
+    report.update(judged_currents({"bus_V": peak["bus_V"], "motor_current_A": peak["motor_current_A"],
+                                   "esc_input_current_A": peak["bus_current_A"],
+                                   "pack_current_A": peak["pack_current_A"]},
+                                  report.get("cells"), report.get("cutoff_cell_V")))
     low_re = _low_reynolds_check(vehicle, propeller, estimate, est, count, layout, rho, battery, esc_eff)
     report["low_reynolds_check"] = low_re
     lead = endurance_lead(report)
@@ -206,6 +212,22 @@ def coaxial_text(report):
 
 def _at_hover(current_A):
     return "" if current_A is None else "%s at hover, " % _num(current_A, SIG3, "A")
+
+
+def _at_full(report, judged_A, nominal_A):
+    """'28.3 A at full command on a full pack (23.1 A on a nominal pack)': the value the current
+    limits are judged on (warnings.judged_currents) and the nominal pack's; the nominal value
+    alone for a report without the judged one."""
+    if judged_A is None or report.get("current_judged_at") is None:
+        return "%s at full command" % _num(nominal_A, SIG3, "A")
+    return "%s at full command on a full pack (%s on a nominal pack)" % (
+        _num(judged_A, SIG3, "A"), _num(nominal_A, SIG3, "A"))
+
+
+def _esc_input_judged(report):
+    """The ESC's input current [A] at full command on a full pack: its pack share."""
+    pack, count = report.get("pack_current_judged_A"), report.get("rotor_count")
+    return pack / count if pack is not None and count else None
 
 
 def _command(report, key, none="n/a"):
@@ -290,23 +312,24 @@ def format_sheet(report):
     esc_full = report.get("full_esc_input_current_A")
     if esc_full is None and report.get("full_pack_current_A") is not None and count:
         esc_full = report["full_pack_current_A"] / count
+    # the limits are judged at full command on a full pack (warnings.judged_currents): that value
+    # first, the nominal pack's beside it
     if report.get("hover_motor_current_A") is not None or report.get("full_motor_current_A") is not None:
-        lines.append("   motor current      %s%s at full command, each motor (ESC output; "
-                     "motor limit %s)" % (
-                         _at_hover(report.get("hover_motor_current_A")),
-                         _num(report.get("full_motor_current_A"), SIG3, "A"),
-                         _num(report.get("motor_current_limit_A"), SIG3, "A", none="not given")))
-    lines.append("   ESC input current  %s%s at full command, each ESC from the pack (what "
-                 "ESC telemetry reports)" % (_at_hover(esc_hover), _num(esc_full, SIG3, "A")))
-    if report.get("can_hover"):
-        lines.append("   pack current       %s at hover, %s at full command, all %d motors (rating %s)" % (
-            _num(report.get("hover_current_A"), SIG3, "A"),
-            _num(report.get("full_pack_current_A"), SIG3, "A"), count,
-            _num(report.get("pack_current_limit_A"), SIG3, "A", none="not given")))
-    else:
-        lines.append("   pack current       %s at full command, all %d motors (rating %s)" % (
-            _num(report.get("full_pack_current_A"), SIG3, "A"), count,
-            _num(report.get("pack_current_limit_A"), SIG3, "A", none="not given")))
+        lines.append("   motor current      %s%s, each motor (ESC output; motor limit %s)" % (
+            _at_hover(report.get("hover_motor_current_A")),
+            _at_full(report, current_judged(report, "motor"), report.get("full_motor_current_A")),
+            _num(report.get("motor_current_limit_A"), SIG3, "A", none="not given")))
+    esc_peak = report.get("esc_current_judged_A")
+    lines.append("   ESC input current  %s%s, each ESC from the pack (what ESC telemetry reports; "
+                 "ESC rating %s%s)" % (
+                     _at_hover(esc_hover), _at_full(report, _esc_input_judged(report), esc_full),
+                     _num(report.get("esc_current_limit_A"), SIG3, "A", none="not given"),
+                     ", judged on %s, the larger of its input and output" % _num(esc_peak, SIG3, "A")
+                     if report.get("esc_current_limit_A") is not None and esc_peak is not None else ""))
+    lines.append("   pack current       %s%s, all %d motors (rating %s)" % (
+        _at_hover(report.get("hover_current_A")) if report.get("can_hover") else "",
+        _at_full(report, current_judged(report, "pack"), report.get("full_pack_current_A")), count,
+        _num(report.get("pack_current_limit_A"), SIG3, "A", none="not given")))
     lines.append("")
 
     lines.append("3. For how long?")

@@ -101,6 +101,49 @@ def full_command_sag(report):
     return {"full_command_cell_V": bus / cells, "thrust_to_weight_reachable": bus / cells >= cutoff}
 
 
+# where the current limits are judged (both routes, compare, payload): full command on a full pack
+CURRENT_JUDGED_AT = "full command, full pack"
+
+
+def judged_currents(full_pack_point, cells, cutoff_cell_V):
+    """The currents the motor, ESC and pack limits are judged on: full command on a full pack.
+
+    A motor at full duty draws more current the higher its bus voltage (DC motor equivalent
+    model: I = I0 + Kv Q(omega), omega rising with V_bus; Drela 2007, from memory), and the
+    sagged bus of a Thevenin pack V_bus = V_oc - R I_pack rises with V_oc, so of the pack states
+    a freshly charged (full) pack draws the most; it is also the pack of every take-off and
+    first punch-out. The sag check stays on the nominal pack (full_command_sag): the two
+    checks look at opposite ends of the pack. A full pack whose full-command sag reaches below
+    the loaded cutoff is still judged at full command (the current flows before any cutoff
+    acts) and says so (full_command_reachable False).
+    full_pack_point: dict bus_V [V], motor_current_A [A] (each motor, ESC output),
+    esc_input_current_A [A] (each ESC, from the pack), pack_current_A [A] (all motors), at full
+    command on the full pack; cells [-]; cutoff_cell_V [V] (loaded cutoff) or None.
+    Returns the report keys current_judged_at (CURRENT_JUDGED_AT), current_judged_bus_V [V],
+    current_judged_full_command_reachable (bool or None), motor_current_judged_A [A],
+    esc_current_judged_A [A] (the larger of the ESC's input and output current: its rating is
+    its continuous current, common practice), pack_current_judged_A [A].
+    """
+    bus = full_pack_point["bus_V"]
+    motor, esc_in = full_pack_point["motor_current_A"], full_pack_point["esc_input_current_A"]
+    reachable = None if not cells or cutoff_cell_V is None or bus is None else bus / cells >= cutoff_cell_V
+    return {"current_judged_at": CURRENT_JUDGED_AT, "current_judged_bus_V": bus,
+            "current_judged_full_command_reachable": reachable,
+            "motor_current_judged_A": motor,
+            "esc_current_judged_A": None if motor is None or esc_in is None else max(motor, esc_in),
+            "pack_current_judged_A": full_pack_point["pack_current_A"]}
+
+
+def current_judged(report, kind):
+    """The current [A] a report judges against the ``kind`` limit ("motor", "esc", "pack"):
+    full command on a full pack (judged_currents); a report without those keys (an older
+    caller) falls back to its full-command value on the nominal pack."""
+    value = report.get(kind + "_current_judged_A")
+    if value is not None or kind == "esc":
+        return value
+    return report.get({"motor": "full_motor_current_A", "pack": "full_pack_current_A"}[kind])
+
+
 def cannot_hover_cause(report, command_unit="-"):
     """One warning that names the real limiting factor of a vehicle that cannot hover.
 
@@ -204,31 +247,10 @@ def margin_warnings(report, command_unit="-"):
                    % (judged_thrust_to_weight_text(report), THRUST_TO_WEIGHT_MIN,
                       "; %s marks the T/W reachable before the pack's loaded cutoff: %s at full command is "
                       "not reachable" % (REACHABLE_MARK, thrust_to_weight_text(tw)) if marked else ""))
-    sag = full_command_sag(report)
-    if sag["thrust_to_weight_reachable"] is False:
-        from estimator.cautions import SAG_BELOW_CUTOFF
-        out.append("full command sags the pack to %s V per cell (%s on %d cell%s), below its %.2f V "
-                   "cutoff: %s; the thrust-to-weight %s at full command is not reachable on this pack"
-                   % (beside(sag["full_command_cell_V"], report["cutoff_cell_V"]), _num(report["full_bus_V"], SIG3, "V"),
-                      report["cells"], "" if report["cells"] == 1 else "s", report["cutoff_cell_V"],
-                      SAG_BELOW_CUTOFF, thrust_to_weight_text(tw)))
-    limit = report.get("motor_current_limit_A")
-    if limit is not None:
-        full_i = report.get("full_motor_current_A")
-        hov_i = report.get("hover_motor_current_A")
-        if hov_i is not None and hov_i > limit:
-            out.append("hover draws %s per motor, above the motor limit %s: it will overheat"
-                       % (_num(hov_i, SIG3, "A"), _num(limit, SIG3, "A")))
-        elif full_i is not None and full_i > limit:
-            out.append("full command draws %s per motor, above the motor limit %s: limit the "
-                       "command or use a smaller propeller" % (_num(full_i, SIG3, "A"), _num(limit, SIG3, "A")))
-    pack_limit = report.get("pack_current_limit_A")
-    if pack_limit is not None:
-        full_pack = report.get("full_pack_current_A")
-        if full_pack is not None and full_pack > pack_limit:
-            out.append("full command draws %s from the pack, above its rating of %s "
-                       "(C-rating x capacity): the pack will sag and heat"
-                       % (_num(full_pack, SIG3, "A"), _num(pack_limit, SIG3, "A")))
+    sag = sag_warning(report)
+    if sag is not None:
+        out.append(sag)
+    out += current_limit_warnings(report)
     from estimator.preflight.pack import cold_pack_warning
     cold = cold_pack_warning(report)
     if cold is not None:
@@ -238,6 +260,60 @@ def margin_warnings(report, command_unit="-"):
         out.append("thin air: %.3f kg/m^3 is %.0f %% of sea-level standard (density altitude %.0f m): "
                    "less thrust at full command and a higher hover command"
                    % (report["density_kg_m3"], 100.0 * ratio, report.get("density_altitude_m", 0.0)))
+    return out
+
+
+def _cutoff_note(report):
+    """'' or, when full command sags even a full pack below its loaded cutoff, the note that a
+    punch-out still draws that current until a cutoff acts."""
+    if report.get("current_judged_full_command_reachable") is False:
+        return "; a punch-out draws it until a cutoff acts, though it sags even a full pack below the cutoff"
+    return ""
+
+
+def sag_warning(report):
+    """The warning on full command sagging the nominal pack below its loaded cutoff, or None
+    (the sheet's warning; compare and the payload table show it as a caveat, preflight.caveats)."""
+    sag = full_command_sag(report)
+    if sag["thrust_to_weight_reachable"] is not False:
+        return None
+    from estimator.cautions import SAG_BELOW_CUTOFF
+    return ("full command sags the pack to %s V per cell (%s on %d cell%s), below its %.2f V "
+            "cutoff: %s; the thrust-to-weight %s at full command is not reachable on this pack"
+            % (beside(sag["full_command_cell_V"], report["cutoff_cell_V"]), _num(report["full_bus_V"], SIG3, "V"),
+               report["cells"], "" if report["cells"] == 1 else "s", report["cutoff_cell_V"],
+               SAG_BELOW_CUTOFF, thrust_to_weight_text(report.get("thrust_to_weight"))))
+
+
+def current_limit_warnings(report):
+    """Warnings for the motor, ESC and pack current limits, judged at full command on a full pack
+    (judged_currents), each with the nominal-pack value beside it."""
+    out = []
+    limit = report.get("motor_current_limit_A")
+    if limit is not None:
+        full_i = current_judged(report, "motor")
+        hov_i = report.get("hover_motor_current_A")
+        if hov_i is not None and hov_i > limit:
+            out.append("hover draws %s per motor, above the motor limit %s: it will overheat"
+                       % (_num(hov_i, SIG3, "A"), _num(limit, SIG3, "A")))
+        elif full_i is not None and full_i > limit:
+            out.append("full command on a full pack draws %s per motor, above the motor limit %s (%s on a "
+                       "nominal pack)%s: limit the command or use a smaller propeller"
+                       % (_num(full_i, SIG3, "A"), _num(limit, SIG3, "A"),
+                          _num(report.get("full_motor_current_A"), SIG3, "A"), _cutoff_note(report)))
+    esc_limit = report.get("esc_current_limit_A")
+    esc_i = current_judged(report, "esc")
+    if esc_limit is not None and esc_i is not None and esc_i > esc_limit:
+        out.append("full command on a full pack draws %s through each ESC (the larger of its input and "
+                   "output), above its rating %s%s: limit the command, or use a larger ESC or a smaller "
+                   "propeller" % (_num(esc_i, SIG3, "A"), _num(esc_limit, SIG3, "A"), _cutoff_note(report)))
+    pack_limit = report.get("pack_current_limit_A")
+    full_pack = current_judged(report, "pack")
+    if pack_limit is not None and full_pack is not None and full_pack > pack_limit:
+        out.append("full command on a full pack draws %s from the pack, above its rating of %s (C-rating x "
+                   "capacity; %s on a nominal pack)%s: the pack will sag and heat"
+                   % (_num(full_pack, SIG3, "A"), _num(pack_limit, SIG3, "A"),
+                      _num(report.get("full_pack_current_A"), SIG3, "A"), _cutoff_note(report)))
     return out
 
 
