@@ -91,7 +91,11 @@ def test_static_is_honest_about_small_rotors():
     # k = eta^(2/3), eta = FM x motor efficiency 0.4..0.7 (from memory)
     assert small["static_factor_band"] == pytest.approx([(fm * 0.4) ** (2 / 3), ((fm + 0.1) * 0.7) ** (2 / 3)])
     text = " ".join(_ok(["static", "--diameter", "31mm", "--thrust", "5.5g"]).split())
-    assert "k = 0.3 is NOT conservative here" in text and "is a conservative rule of thumb" not in text
+    # 0.3 inside the band (k^1.5 = FM x motor and ESC efficiency): typical there, not conservative
+    # (the wording of the seventh trial, item 9, which judges the k against the band it prints)
+    assert small["static_factor_band"][0] <= 0.3 <= small["static_factor_band"][1]
+    assert "k = 0.30 is inside that band: a typical value here, NOT a conservative one" in text
+    assert "is a conservative rule of thumb" not in text
     assert "measured rotors there reach a figure of merit of about" in text and "ducts or guards" in text
     big = " ".join(_ok(["static", "--diameter", "15in", "--thrust", "15N"]).split())
     assert "is a conservative rule of thumb" in big and "NOT conservative" not in big

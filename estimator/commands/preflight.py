@@ -12,9 +12,50 @@ from estimator.jsonio import dumps
 
 
 
+class StationPressure(Bounded):
+    """--pressure of a site: read with its unit; its bounds are checked by _air, which knows the
+    altitude (check_station_pressure), so a bare number's unit-slip hint can name the station
+    pressure instead of a sea-level one the next run refuses (trial 7, item 11)."""
+
+    def convert(self, value, param, ctx):
+        si = Quantity.convert(self, value, param, ctx)
+        if ctx is not None:
+            ctx.meta["liftcal.typed.pressure"] = value if isinstance(value, str) else None
+        return si
+
+
+def check_station_pressure(pressure_Pa, altitude_m):
+    """The bounds check of a --pressure (estimator.vehicle.check_quantity) with an altitude-aware
+    hint: when the unit slip it names (1013 -> 1013hPa) is itself a sea-level pressure (QNH) at
+    this altitude (core.atmosphere.station_pressure_problem), the hint is the station pressure of
+    the standard atmosphere there (US Standard Atmosphere 1976). Raises InputError."""
+    from estimator.core.atmosphere import standard_atmosphere, station_pressure_problem
+    from estimator.jsonio import unit_slip
+    from estimator.vehicle import QUANTITIES, check_quantity, quantity_schema, range_text
+
+    ctx = click.get_current_context(silent=True)
+    typed = ctx.meta.get("liftcal.typed.pressure") if ctx is not None else None
+    try:
+        check_quantity("pressure", pressure_Pa, typed, "--pressure")
+    except InputError:
+        slip = unit_slip(pressure_Pa, "pressure", QUANTITIES["pressure"][3], quantity_schema("pressure"))
+        bare = typed is not None and str(typed).strip().replace(".", "", 1).isdigit()
+        if slip is None or not bare or station_pressure_problem(altitude_m, slip[1]) is None:
+            raise
+        station = standard_atmosphere(altitude_m)[1]
+        raise InputError("--pressure: %s Pa is outside %s, and %s%s would be a sea-level pressure (QNH, what "
+                         "weather reports give), not the pressure at %.0f m: give the station pressure there, "
+                         "about %.0fhPa in the standard atmosphere (--pressure %.0fhPa), or leave --pressure out"
+                         % (str(typed).strip(), range_text("pressure"), str(typed).strip(), slip[0], altitude_m,
+                            station / 100.0, station / 100.0)) from None
+    return pressure_Pa
+
+
 def _air(altitude_m, temperature_C, pressure_Pa, humidity_pct):
     from estimator.core.atmosphere import AirInputError, site_air
 
+    if pressure_Pa is not None:
+        check_station_pressure(pressure_Pa, altitude_m)
     try:
         return site_air(altitude_m, temperature_C, pressure_Pa, humidity_pct or 0.0)
     except AirInputError as exc:  # the core names the input at fault: name its option
@@ -28,7 +69,7 @@ def site_options(note):
                      help="Geometric altitude of the site above sea level (m, km, ft)" + note + "."),
         click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
                      help="Outside air temperature (C, K, F); default: standard atmosphere" + note + "."),
-        click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
+        click.option("--pressure", type=StationPressure("pressure", "pressure", positive=True), default=None,
                      help="Station pressure (Pa, hPa, kPa, mbar), not sea-level QNH; default: "
                           "standard" + note + "."),
         click.option("--humidity", type=Bounded("percent", "humidity"), default="0%", show_default=True,
@@ -68,7 +109,8 @@ def air(altitude, temperature, pressure, humidity, as_json):
     click.echo("air at %.0f m: %.4f kg/m^3 (%.1f %% of sea-level standard)"
                % (altitude_m, res["density_kg_m3"], 100.0 * res["density_ratio"]))
     click.echo("  temperature      %.2f K (%.1f C)" % (res["temperature_K"], res["temperature_K"] - CELSIUS_ZERO_K))
-    click.echo("  pressure         %.0f Pa (%.1f hPa)" % (res["pressure_Pa"], res["pressure_Pa"] / 100.0))
+    # hPa to 0.01: 101325 Pa is 1013.25 hPa, the standard sea-level pressure as everyone writes it
+    click.echo("  pressure         %.0f Pa (%.2f hPa)" % (res["pressure_Pa"], res["pressure_Pa"] / 100.0))
     click.echo("  humidity         %.0f %% (vapour %.0f Pa)" % (humidity_pct, res["vapour_pressure_Pa"]))
     click.echo("  density altitude %.0f m" % res["density_altitude_m"])
     for w in out["warnings"]:
@@ -150,8 +192,9 @@ def _check_disk_loading(thrust_N, area_m2, diameter_m):
 @click.option("--params", "params_file", default=None, metavar="PARAMS.json",
               help="A fitted parameter set from `liftcal fit`: thrust and power from the bench.")
 @click.option("--payload", "payload_text", default=None, metavar="RANGE|LIST",
-              help="Payloads to add to the mass, a range 0..2kg (about 9 payloads on a round step "
-                   "of 1, 2, 2.5 or 5 x 10^k, ends included: 0..1kg gives 0, 0.1, ..., 1 kg) or a list "
+              help="Payloads to add to the mass, with their unit: a range 0..2kg (a round step of 1, 2, "
+                   "2.5 or 5 x 10^k near an eighth of the range, ends included: 7 to 13 payloads; 0..1kg "
+                   "gives 0, 0.1, ..., 1 kg, 11 payloads, 0..3kg gives 0, 0.5, ..., 3 kg, 7) or a list "
                    "0,500g,1kg: endurance and margins per payload and the largest payload that keeps them.")
 @click.option("--job-time", "job_time", type=Quantity("time", positive=True, unit_example="15min or 900s"),
               default=None,

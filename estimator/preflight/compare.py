@@ -211,7 +211,10 @@ def format_table(result, name):
     widths = [max(len(lab), max(len(str(r["values"][k])) for r in rows)) for k, lab in zip(keys, labels)]
     rank_w = max(2, len(str(len(rows))))
     header = "#".rjust(rank_w) + "  " + "  ".join(lab.ljust(w) for lab, w in zip(labels, widths))
-    header += "  command  T/W   motor A  pack A  endurance"
+    # the T/W column as wide as its widest cell: a value written with more digits so that it never
+    # rounds onto the floor of 2 it is judged by ('1.997*', warnings.beside) keeps the columns aligned
+    tw_w = max([5] + [len(_tw_cell(r)) for r in rows])
+    header += "  command  %s motor A  pack A  endurance" % "T/W".ljust(tw_w)
     lines.append(header)
     for r in rows:
         cells = "  ".join(str(r["values"][k]).ljust(w) for k, w in zip(keys, widths))
@@ -219,8 +222,8 @@ def format_table(result, name):
         motor = "%.1f" % r["hover_motor_current_A"] if r["hover_motor_current_A"] is not None else "-"
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
         time = "%.1f min" % r["flight_time_lead_min"] if r["flight_time_lead_min"] is not None else "no hover"
-        lines.append("%*d  %s  %-7s  %-5s %-7s  %-6s  %s" % (
-            rank_w, r["rank"], cells, cmd, _tw_cell(r), motor, pack, time))
+        lines.append("%*d  %s  %-7s  %-*s %-7s  %-6s  %s" % (
+            rank_w, r["rank"], cells, cmd, tw_w, _tw_cell(r), motor, pack, time))
         ended = ("ended by %s; " % ENDED_BY_WORDS.get(r["flight_ended_by"], r["flight_ended_by"])
                  if r.get("flight_ended_by") else "")
         marks = "keeps every margin" if r["keeps_margins"] else "breaks " + ", ".join(r["broken"])

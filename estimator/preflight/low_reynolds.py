@@ -122,19 +122,37 @@ def hover_warning(check, diameter_m):
     return text + ("; " + duct if duct else "")
 
 
-def static_note(thrust_N, diameter_m, density_kg_m3):
+def factor_against_band(factor, band):
+    """How a static thrust factor k compares with the band [lo, hi] small sets reach, in words.
+
+    Below the band it gives less thrust for the power (more power for the thrust) than any set
+    of the band: conservative; inside it, a typical value, not a conservative one; above it,
+    optimistic. The margin to the band's low end is given in thrust for a power (T ~ k) when
+    under 10 %: conservative, just."""
+    lo, hi = band
+    if factor < lo:
+        share = 1.0 - factor / lo
+        return ("k = %.2f is below that band: conservative here%s"
+                % (factor, " (just: %.0f %% less thrust than its low end)" % (100.0 * share) if share < 0.1 else ""))
+    if factor <= hi:
+        return "k = %.2f is inside that band: a typical value here, NOT a conservative one" % factor
+    return "k = %.2f is above that band: NOT conservative here (optimistic)" % factor
+
+
+def static_note(thrust_N, diameter_m, density_kg_m3, factor=0.3):
     """For ``liftcal static``: None for a rotor at or above LOW_REYNOLDS_75, else a dict:
-    reynolds_75 [-], figure_of_merit_measured [lo, hi] [-], static_factor_band [lo, hi] [-], text."""
+    reynolds_75 [-], figure_of_merit_measured [lo, hi] [-], static_factor_band [lo, hi] [-],
+    text (the band and how factor [-], the k used, compares with it: factor_against_band)."""
     re75 = reynolds_75_from_thrust(thrust_N, diameter_m, density_kg_m3)
     if re75 >= LOW_REYNOLDS_75:
         return None
     fm = fallback_figure_of_merit(re75)
     k_lo, k_hi = static_factor_band(re75)
-    text = ("small rotor, blade Reynolds number about %.0f (at a typical CT %.1f): k = 0.3 is NOT "
-            "conservative here: %s and a small motor and ESC pass about %.0f-%.0f %% of the power (from "
-            "memory), so expect k about %.2f-%.2f" % (re75, TYPICAL_CT, measured_text(re75),
-                                                       100 * SMALL_MOTOR_EFFICIENCY[0],
-                                                       100 * SMALL_MOTOR_EFFICIENCY[1], k_lo, k_hi))
+    text = ("small rotor, blade Reynolds number about %.0f (at a typical CT %.1f): %s and a small motor and "
+            "ESC pass about %.0f-%.0f %% of the power (from memory), so expect k about %.2f-%.2f (k^1.5 = "
+            "figure of merit x motor and ESC efficiency); %s"
+            % (re75, TYPICAL_CT, measured_text(re75), 100 * SMALL_MOTOR_EFFICIENCY[0],
+               100 * SMALL_MOTOR_EFFICIENCY[1], k_lo, k_hi, factor_against_band(factor, (k_lo, k_hi))))
     duct = duct_note(diameter_m, "more power for the thrust than even this")
     return {"reynolds_75": re75, "figure_of_merit_measured": [fm, fm + FALLBACK_FM_SPREAD],
             "static_factor_band": [k_lo, k_hi], "text": text + ("; " + duct if duct else "")}

@@ -20,7 +20,7 @@ from estimator.preflight.low_reynolds import (endurance_lead, fallback_figure_of
 from estimator.preflight.propeller_estimate import estimated_propeller, low_reynolds_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text
-from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, REACHABLE_MARK, beside, judged_thrust_to_weight, judged_thrust_to_weight_text, full_command_sag, judged_currents, current_judged, thrust_to_weight_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num, SIG3)
+from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, THRUST_TO_WEIGHT_MIN, FLYABLE_THRUST_TO_WEIGHT, FLYABLE_HOVER_COMMAND, THIN_AIR_DENSITY_RATIO, SAG_CAUSE_SHARE, ENDED_BY_WORDS, REACHABLE_MARK, beside, judged_thrust_to_weight, judged_thrust_to_weight_text, full_command_sag, judged_currents, current_judged, thrust_to_weight_text, resistance_text, vehicle_site_air, cannot_hover_cause, not_flyable_reasons, margin_warnings, _num, SIG3)
 
 MODEL = "liftcal.dc-motor-momentum/1"
 # the datasheet model takes command = ESC duty; a real ESC only starts the motor above a
@@ -214,6 +214,25 @@ def _at_hover(current_A):
     return "" if current_A is None else "%s at hover, " % _num(current_A, SIG3, "A")
 
 
+def _minutes(value):
+    """An endurance as the sheet prints it: 13.4 min, 1113 min (no tenths where they mean nothing)."""
+    if value is None:
+        return _num(value, "%.1f")
+    return _num(value, "%.1f" if value < 100.0 else "%.0f", "min")
+
+
+def static_factor_text(report):
+    """'static factor k 0.60 (...)': k is taken from the electrical power, so it counts the motor
+    and ESC losses besides the rotor's (k^1.5 = eta = T^1.5 / (P_elec sqrt(2 rho A)), momentum
+    theory), while the figure of merit is the rotor's alone: said beside it, with the motor and
+    ESC share k^1.5 / FM when the sheet shows a figure of merit (trial 7, item 9)."""
+    k, fm = report["static_factor"], report.get("figure_of_merit")
+    if fm:
+        return ("static factor k %.2f (from the electrical power, so it counts the motor and ESC losses: "
+                "k^1.5 = figure of merit x motor and ESC efficiency = %.2f x %.2f)" % (k, fm, k ** 1.5 / fm))
+    return "static factor k %.2f (from the electrical power: it counts the motor and ESC losses)" % k
+
+
 def _at_full(report, judged_A, nominal_A):
     """'28.3 A at full command on a full pack (23.1 A on a nominal pack)': the value the current
     limits are judged on (warnings.judged_currents) and the nominal pack's; the nominal value
@@ -259,6 +278,11 @@ def format_sheet(report):
     lines += ["vehicle  " + setup, "site     " + air, ""]
 
     lines.append("1. Will it hover?")
+    suspect = report.get("suspect_keys") or []
+    if suspect and report.get("can_hover"):  # a likely unit slip: no plain YES on a file that is likely wrong
+        lines.append("   CHECK THE FILE FIRST - %s %s like a unit or decimal slip (see 4.); the answers "
+                     "below are for the values as read" % (", ".join(suspect),
+                                                          "looks" if len(suspect) == 1 else "look"))
     if report.get("can_hover"):
         why_not = not_flyable_reasons(report)
         if why_not:
@@ -351,20 +375,21 @@ def format_sheet(report):
                 _num(lead["other_flight_time_min"], "%.1f", "min"), ENDED_BY_WORDS.get(ended, ended),
                 lead["reason"]))
         elif ended:
-            lines.append("   about %s of hover from a full pack, ended by %s" % (
-                _num(report.get("flight_time_min"), "%.1f", "min"), ENDED_BY_WORDS.get(ended, ended)))
+            lines.append("   about %s of hover from a full pack, ended by %s%s" % (
+                _minutes(report.get("flight_time_min")), ENDED_BY_WORDS.get(ended, ended),
+                " (as read: check %s first, see 4.)" % ", ".join(suspect) if suspect else ""))
         if ended:
             lines.append("   (%s usable share alone, %s at the nominal-pack hover current, gives %s)" % (
                 "the estimate's" if lead["basis"] == "small rotor" else "the",
-                _num(report.get("usable_Ah"), "%.2f", "Ah"),
-                _num(report.get("flight_time_usable_share_min"), "%.1f", "min")))
+                _num(report.get("usable_Ah"), SIG3, "Ah"),
+                _minutes(report.get("flight_time_usable_share_min"))))
         else:
             lines.append("   about %s of hover on %s usable (%s)" % (
                 _num(report.get("flight_time_min"), "%.1f", "min"), _num(report.get("usable_Ah"), "%.2f", "Ah"),
                 report.get("flight_time_basis", "usable share at the nominal-pack hover current")))
         if report.get("cutoff_cell_V") is not None:
             lines.append("   cutoff %.2f V per cell under load; pack resistance %s%s" % (
-                report["cutoff_cell_V"], _num(report.get("pack_resistance_ohm"), "%.3g", "ohm"),
+                report["cutoff_cell_V"], resistance_text(report.get("pack_resistance_ohm")),
                 pack_temperature_text(report)))
         lines.append("   hover draws %s from the pack (all motors), %s (nominal pack, bus at %s)" % (
             _num(report.get("hover_current_A"), SIG3, "A"), _num(report.get("hover_power_W"), SIG3, "W"),
@@ -387,7 +412,7 @@ def format_sheet(report):
                             "; likely optimistic at this small size, see below" if report.get("low_reynolds_check")
                             else ""))
         if report.get("static_factor") is not None:
-            extras.append("static factor k %.2f" % report["static_factor"])
+            extras.append(static_factor_text(report))
         if extras:
             lines.append("   " + "; ".join(extras))
     else:

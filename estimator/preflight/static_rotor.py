@@ -51,7 +51,7 @@ def static_rotor(diameter_m, density_kg_m3, factor=None, power_W=None, thrust_N=
             out["power_W_at_k_" + factor_tag(good)] = momentum.power_from_thrust_W(
                 thrust_N, good, density_kg_m3, area)
     thrust = out["thrust_N"]
-    out["low_reynolds"] = static_note(thrust, diameter_m, density_kg_m3)
+    out["low_reynolds"] = static_note(thrust, diameter_m, density_kg_m3, k)
     out["induced_velocity_m_s"] = momentum.induced_velocity_m_s(thrust, density_kg_m3, area)
     out["slipstream_velocity_m_s"] = 2.0 * out["induced_velocity_m_s"]
     out["disk_loading_N_m2"] = momentum.disk_loading_N_m2(thrust, area)
@@ -120,8 +120,10 @@ def format_static(out, power_given, thrust_typed=None):
               else momentum.thrust_from_power_N(out["power_W"], k, out["density_kg_m3"], out["disk_area_m2"])
               for k in (k_lo, k_hi)]
         lines.append("  ! " + small["text"])
-        lines.append("  at k %.2f: %s %s; at k %.2f: %s %s" % (k_lo, plain_number(at[0], 3, trim=True), unit, k_hi,
-                                                              plain_number(at[1], 3, trim=True), unit))
+        lines.append("  across that band: %s %s at k %.2f .. %s %s at k %.2f; at the k %.2f used: %s %s" % (
+            plain_number(at[0], 3, trim=True), unit, k_lo, plain_number(at[1], 3, trim=True), unit, k_hi,
+            out["static_factor"], plain_number(out["thrust_N"] if power_given else out["power_W"], 3, trim=True),
+            unit))
     elif default:
         # low..high values, each with the k that gives it (power falls as k rises)
         (a, ka), (b, kb) = sorted((out[key + factor_tag(k)], k) for k in (lo, hi))

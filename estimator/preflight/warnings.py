@@ -175,7 +175,7 @@ def _cannot_hover_cause(report, command_unit="-"):
             text += ("; the pack cannot deliver the power: it sags from %s to %s at full "
                      "command%s, which costs much of the thrust: a pack with less resistance, or more "
                      "cells" % (_num(v_oc, SIG3, "V"), _num(bus, SIG3, "V"),
-                                "" if r_pack is None else " (resistance %.3g ohm)" % r_pack))
+                                "" if r_pack is None else " (resistance %s)" % resistance_text(r_pack)))
         else:
             text += ": the propulsion is too weak for this mass, not the pack"
             if pack_i is not None and rating:
@@ -183,9 +183,9 @@ def _cannot_hover_cause(report, command_unit="-"):
                     _num(pack_i, SIG3, "A"), 100.0 * pack_i / rating, _num(rating, SIG3, "A"))
             text += "; lighten it, or fit a larger or higher-pitch propeller, a higher Kv or more cells"
     elif report.get("hover_limited_by") == "pack":
-        text = ("cannot hover: the pack cannot deliver the hover power through its resistance (%s ohm) "
+        text = ("cannot hover: the pack cannot deliver the hover power through its resistance (%s) "
                 "at any voltage: a pack with less resistance or more cells"
-                % _num(report.get("pack_resistance_ohm"), "%.3g"))
+                % resistance_text(report.get("pack_resistance_ohm")))
     else:
         text = ("cannot hover at nominal pack: the command needed exceeds full command (thrust-to-weight "
                 "%.2f)" % (tw or 0.0))
@@ -315,6 +315,16 @@ def current_limit_warnings(report):
                    % (_num(full_pack, SIG3, "A"), _num(pack_limit, SIG3, "A"),
                       _num(report.get("full_pack_current_A"), SIG3, "A"), _cutoff_note(report)))
     return out
+
+
+def resistance_text(ohm):
+    """A resistance as the sheet prints it: below 1 ohm in mohm, 3 significant digits, trailing
+    zeros dropped (30 mohm, 29.5 mohm, 1.2 ohm): '0.03 ohm' hid the 29.5 mohm of a cold pack."""
+    if ohm is None or (isinstance(ohm, float) and not math.isfinite(ohm)):
+        return "n/a"
+    if 0.0 < ohm < 1.0:
+        return plain_number(1e3 * ohm, 3, trim=True) + " mohm"
+    return plain_number(ohm, 3, trim=True) + " ohm"
 
 
 # the format of _num for a value shown with three significant digits (0.448 N, 21.3 A, 0.021 kg):
