@@ -247,3 +247,54 @@ def likely_unit(kind, value, block, key, document):
                 units[0])
 
 
+# a schema message's unit-slip hint (estimator.jsonio), made for a bare number in the key's unit
+_SLIP_HINT = re.compile(r"; given in .+ instead of .+\? .*$")
+# a value written with its unit: "178in", "178x89in" (a propeller size: the first number is the diameter)
+_WRITTEN_WITH_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)"
+                                r"(\s*[xX*]\s*(?:\d+\.?\d*|\.\d+))?\s*([A-Za-z]+)\s*$")
+_NUMBER_FIRST = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)")
+_UNIT_WORDS = {"in": "inches", "mm": "millimetres", "cm": "centimetres", "m": "metres", "ft": "feet",
+               "g": "grams", "kg": "kilograms", "lb": "pounds", "mAh": "mAh", "Ah": "Ah"}
+
+
+def written_unit_slip(si_path, text, written, message):
+    """The message with its unit-slip hint made for the unit the file wrote, or None to keep it.
+
+    jsonio's hint reads the number in the key's SI unit as if written bare, so a value written
+    with another unit ("size": "178x89in", 4.52 m) got a hint about its metre value in inches
+    (trial 7, item 8). Here the written number is tried in the other units of its kind (the SI
+    unit and the key's usual slips, not the unit written), inside the schema's bounds and nearest
+    its typical value (jsonio.unit_slip): 178 in -> 178 mm = 0.178 m. The SI value is shown with
+    4 significant digits. None when the text carries no unit other than the key's.
+    """
+    from estimator.jsonio import _KEY_UNITS, load_schema, unit_slip
+
+    m = _WRITTEN_WITH_UNIT.match(text) if isinstance(text, str) else None
+    leaf = si_path.rsplit(".", 1)[-1]
+    si_unit = leaf.rsplit("_", 1)[-1] if "_" in leaf else ""
+    if m is None or si_unit not in _KEY_UNITS or m.group(3) == si_unit:
+        return None
+    number, rest, unit = float(m.group(1)), m.group(2) or "", m.group(3)
+    kind, slips = _KEY_UNITS[si_unit]
+    if leaf.startswith("altitude"):
+        kind, slips = "altitude", ("ft", "km")
+    node = load_schema("vehicle.schema.json")
+    for part in si_path[2:].split("."):
+        node = (node.get("properties") or {}).get(part, {})
+    head, _, tail = message.partition(written + ": ")
+    value = _NUMBER_FIRST.match(tail)
+    if value is None:
+        return None
+    head += written
+    tail = _SLIP_HINT.sub("", tail[value.end():])
+    shown = "%.4g" % float(value.group(1))
+    what = "a diameter of " if rest and leaf == "diameter_m" else ""
+    out = "%s: \"%s\" gives %s%s %s, which%s" % (head, text.strip(), what, shown, si_unit, tail)
+    if not what:
+        out = "%s: \"%s\" = %s %s%s" % (head, text.strip(), shown, si_unit, tail)
+    slip = unit_slip(number, kind, tuple(u for u in (si_unit,) + tuple(slips) if u != unit), node)
+    if slip is not None:
+        meant = "%s%s%s" % (m.group(1), rest.replace(" ", ""), slip[0])
+        out += "; written in %s: %s meant? \"%s\" = %.4g %s" % (
+            _UNIT_WORDS.get(unit, unit), _UNIT_WORDS.get(slip[0], slip[0]), meant, slip[1], si_unit)
+    return out

@@ -1,0 +1,258 @@
+"""The pre-flight sheet: a report dict of preflight.report.hover_report laid out by the questions a
+builder asks before a first flight: will it hover, with what margin, for how long, what to watch
+out for (lines wrapped to an 80-column terminal, estimator.textwidth).
+"""
+
+from estimator.cautions import cautions
+from estimator.core.momentum import figure_of_merit
+from estimator.preflight.low_reynolds import endurance_lead
+from estimator.preflight.pack import pack_temperature_text
+from estimator.preflight.warnings import (ENDED_BY_WORDS, REACHABLE_MARK, SIG3, _num, beside,
+                                         cannot_hover_cause, current_judged, judged_thrust_to_weight,
+                                         judged_thrust_to_weight_text, not_flyable_reasons,
+                                         resistance_text, thrust_to_weight_text)
+from estimator.textwidth import fit_width
+from estimator.units import command_text
+
+MODEL = "liftcal.dc-motor-momentum/1"  # the datasheet route's report model
+# the datasheet model takes command = ESC duty; a real ESC only starts the motor above a
+# dead band, so a bench fit reports a higher hover command for the same set
+DUTY_NOTE = "command = ESC duty; a real ESC's start-up dead band adds to it: fit a bench sweep"
+
+CAUTIONS = cautions("sheet")
+
+
+def coaxial_text(report):
+    """The sheet's line on a coaxial layout's penalty: the factor, its basis and source, and the
+    figure of merit with it and for an isolated rotor (when the report has the rotor's CT, CP)."""
+    text = ("coaxial pairs: ideal induced power x%.4g, included above (power basis: momentum theory "
+            "with the lower rotor in the upper's fully developed slipstream; Leishman 2006, coaxial "
+            "rotors, from memory)" % report["coaxial_induced_power_factor"])
+    if report.get("propeller_ct") and report.get("propeller_cp"):
+        text += "; figure of merit %.2f for an isolated rotor" % figure_of_merit(report["propeller_ct"],
+                                                                                report["propeller_cp"])
+    return text
+
+
+def _at_hover(current_A):
+    return "" if current_A is None else "%s at hover, " % _num(current_A, SIG3, "A")
+
+
+def _minutes(value):
+    """An endurance as the sheet prints it: 13.4 min, 1113 min (no tenths where they mean nothing)."""
+    if value is None:
+        return _num(value, "%.1f")
+    return _num(value, "%.1f" if value < 100.0 else "%.0f", "min")
+
+
+def static_factor_text(report):
+    """'static factor k 0.60 (...)': k is taken from the electrical power, so it counts the motor
+    and ESC losses besides the rotor's (k^1.5 = eta = T^1.5 / (P_elec sqrt(2 rho A)), momentum
+    theory), while the figure of merit is the rotor's alone: said beside it, with the motor and
+    ESC share k^1.5 / FM when the sheet shows a figure of merit (trial 7, item 9)."""
+    k, fm = report["static_factor"], report.get("figure_of_merit")
+    if fm:
+        return ("static factor k %.2f (from the electrical power, so it counts the motor and ESC losses: "
+                "k^1.5 = figure of merit x motor and ESC efficiency = %.2f x %.2f)" % (k, fm, k ** 1.5 / fm))
+    return "static factor k %.2f (from the electrical power: it counts the motor and ESC losses)" % k
+
+
+def _at_full(report, judged_A, nominal_A):
+    """'28.3 A at full command on a full pack (23.1 A on a nominal pack)': the value the current
+    limits are judged on (warnings.judged_currents) and the nominal pack's; the nominal value
+    alone for a report without the judged one."""
+    if judged_A is None or report.get("current_judged_at") is None:
+        return "%s at full command" % _num(nominal_A, SIG3, "A")
+    return "%s at full command on a full pack (%s on a nominal pack)" % (
+        _num(judged_A, SIG3, "A"), _num(nominal_A, SIG3, "A"))
+
+
+def _esc_input_judged(report):
+    """The ESC's input current [A] at full command on a full pack: its pack share."""
+    pack, count = report.get("pack_current_judged_A"), report.get("rotor_count")
+    return pack / count if pack is not None and count else None
+
+
+def _command(report, key, none="n/a"):
+    """A command of the report as the fraction of full command, with the sweep's own unit
+    beside it for a fitted set from a sweep in us, % or permille ('0.58 (1578 us)')."""
+    value, unit = report.get(key), report.get("command_unit")
+    return _num(value, "%.2f", none=none) + (" (%s)" % command_text(value, unit) if unit and value is not None else "")
+
+
+def format_sheet(report):
+    """The human pre-flight sheet for a report dict, grouped by the builder's questions
+    (lines wrapped to an 80-column terminal, estimator.textwidth)."""
+    lines = []
+    title = "PRE-FLIGHT ESTIMATE: %s" % report.get("name", "vehicle")
+    lines += [title, "=" * len(title)]
+    air = "air %s (%s of standard, density altitude %s)" % (
+        _num(report.get("density_kg_m3"), "%.3f", "kg/m^3"),
+        _num(100.0 * report["density_ratio"] if report.get("density_ratio") else None, "%.0f", "%"),
+        _num(report.get("density_altitude_m"), "%.0f", "m"))
+    as_given = report.get("mass_as_given")
+    size_given = report.get("propeller_as_given")
+    diameter = report.get("propeller_diameter_m")
+    setup = "%s%s, %d rotors (%s)%s" % (
+        _num(report.get("mass_kg"), SIG3, "kg"), " (%s as written)" % as_given if as_given else "",
+        report.get("rotor_count", 0), report.get("layout", "flat"),
+        ", propellers %.3g m%s" % (diameter, " (%s as written)" % size_given if size_given else
+                                   " (bench rotor)" if report.get("propeller_source") == "bench sweep" else "")
+        if diameter else "")
+    lines += ["vehicle  " + setup, "site     " + air, ""]
+
+    lines.append("1. Will it hover?")
+    suspect = report.get("suspect_keys") or []
+    if suspect and report.get("can_hover"):  # a likely unit slip: no plain YES on a file that is likely wrong
+        lines.append("   CHECK THE FILE FIRST - %s %s like a unit or decimal slip (see 4.); the answers "
+                     "below are for the values as read" % (", ".join(suspect),
+                                                          "looks" if len(suspect) == 1 else "look"))
+    if report.get("can_hover"):
+        why_not = not_flyable_reasons(report)
+        if why_not:
+            lines.append("   ONLY JUST - it holds its weight at command %s on a nominal pack, but it is not "
+                         "flyable: %s" % (_command(report, "hover_command"), "; ".join(why_not)))
+        else:
+            lines.append("   YES - command %s on a nominal pack" % _command(report, "hover_command"))
+        lines.append("         %s on a full pack, %s near empty" % (
+            _command(report, "hover_command_full"), _command(report, "hover_command_empty", none="cannot hover")))
+        lines.append("         thrust fraction %s of full-command thrust at the hover bus voltage "
+                     "(not 1/(T/W): T/W is taken at full command, where the pack sags further)" %
+                     _num(report.get("hover_thrust_fraction"), "%.2f"))
+        interval = report.get("hover_command_interval_95")
+        if interval:
+            unit = report.get("command_unit")
+            lines.append("         95 %% interval %.3f..%.3f%s (%s)"
+                         % (interval[0], interval[1], " (%s..%s)" % (command_text(interval[0], unit),
+                                                                     command_text(interval[1], unit)) if unit else "",
+                            report.get("interval_scope", "bench-fit uncertainty only")))
+        if report.get("model") == MODEL:
+            lines.append("         " + DUTY_NOTE)
+    else:
+        cause = cannot_hover_cause(report)
+        lines.append("   NO - it " + cause)
+    lines.append("")
+
+    lines.append("2. With what margin?")
+    reachable = report.get("thrust_to_weight_reachable")
+    if judged_thrust_to_weight(report)[1]:
+        lines.append("   thrust-to-weight   %s  (judged: reachable at command %s, where the pack reaches "
+                     "its loaded cutoff; 2 is the usual floor)"
+                     % (judged_thrust_to_weight_text(report), _num(report.get("reachable_command"), "%.2f")))
+        lines.append("   %s marks the T/W reachable on this pack; full command would give %s but sags the "
+                     "pack below its loaded cutoff: NOT REACHABLE"
+                     % (REACHABLE_MARK, thrust_to_weight_text(report.get("thrust_to_weight"))))
+    else:
+        lines.append("   thrust-to-weight   %s   (full command, nominal pack; %s2 is the usual floor)"
+                     % (thrust_to_weight_text(report.get("thrust_to_weight")),
+                        "NOT REACHABLE on this pack, see below; " if reachable is False else ""))
+    full_total, rotors = report.get("full_thrust_N"), report.get("rotor_count") or 0
+    lines.append("   full-command thrust %s per rotor, %s total (hover needs %s per rotor)" % (
+        _num(full_total / rotors if full_total is not None and rotors else None, SIG3, "N"),
+        _num(full_total, SIG3, "N"), _num(report.get("thrust_per_rotor_N"), SIG3, "N")))
+    if report.get("full_command_cell_V") is not None:
+        lines.append("   full command sags the pack to %s (%s per cell; loaded cutoff %s per cell)" % (
+            _num(report.get("full_bus_V"), SIG3, "V"),
+            beside(report["full_command_cell_V"], report["cutoff_cell_V"]) + " V" if reachable is False
+            else _num(report["full_command_cell_V"], "%.2f", "V"), _num(report.get("cutoff_cell_V"), "%.2f", "V")))
+    count = report.get("rotor_count") or 0
+    esc_hover = report.get("hover_esc_input_current_A", report.get("per_rotor_bus_current_A"))
+    esc_full = report.get("full_esc_input_current_A")
+    if esc_full is None and report.get("full_pack_current_A") is not None and count:
+        esc_full = report["full_pack_current_A"] / count
+    # the limits are judged at full command on a full pack (warnings.judged_currents): that value
+    # first, the nominal pack's beside it
+    if report.get("hover_motor_current_A") is not None or report.get("full_motor_current_A") is not None:
+        lines.append("   motor current      %s%s, each motor (ESC output; motor limit %s)" % (
+            _at_hover(report.get("hover_motor_current_A")),
+            _at_full(report, current_judged(report, "motor"), report.get("full_motor_current_A")),
+            _num(report.get("motor_current_limit_A"), SIG3, "A", none="not given")))
+    esc_peak = report.get("esc_current_judged_A")
+    lines.append("   ESC input current  %s%s, each ESC from the pack (what ESC telemetry reports; "
+                 "ESC rating %s%s)" % (
+                     _at_hover(esc_hover), _at_full(report, _esc_input_judged(report), esc_full),
+                     _num(report.get("esc_current_limit_A"), SIG3, "A", none="not given"),
+                     ", judged on %s, the larger of its input and output" % _num(esc_peak, SIG3, "A")
+                     if report.get("esc_current_limit_A") is not None and esc_peak is not None else ""))
+    lines.append("   pack current       %s%s, all %d motors (rating %s)" % (
+        _at_hover(report.get("hover_current_A")) if report.get("can_hover") else "",
+        _at_full(report, current_judged(report, "pack"), report.get("full_pack_current_A")), count,
+        _num(report.get("pack_current_limit_A"), SIG3, "A", none="not given")))
+    lines.append("")
+
+    lines.append("3. For how long?")
+    if report.get("can_hover"):
+        ended = report.get("flight_ended_by")
+        lead = endurance_lead(report)
+        if ended and lead["basis"] == "small rotor":  # the conservative figure leads (low_reynolds)
+            low = report["low_reynolds_check"]
+            low_ended = low.get("flight_ended_by")
+            if lead["flight_time_min"] is None:
+                lines.append("   SMALL ROTOR: no hover at the figure of merit %.2f that measured rotors of "
+                             "this size reach" % lead["figure_of_merit"])
+            else:
+                lines.append("   SMALL ROTOR: about %s at the figure of merit %.2f that measured rotors of "
+                             "this size reach (hover from a full pack%s)" % (
+                                 _num(lead["flight_time_min"], "%.1f", "min"), lead["figure_of_merit"],
+                                 ", ended by %s" % ENDED_BY_WORDS.get(low_ended, low_ended) if low_ended else ""))
+            lines.append("   the estimate says about %s (ended by %s), but %s; see below" % (
+                _num(lead["other_flight_time_min"], "%.1f", "min"), ENDED_BY_WORDS.get(ended, ended),
+                lead["reason"]))
+        elif ended:
+            lines.append("   about %s of hover from a full pack, ended by %s%s" % (
+                _minutes(report.get("flight_time_min")), ENDED_BY_WORDS.get(ended, ended),
+                " (as read: check %s first, see 4.)" % ", ".join(suspect) if suspect else ""))
+        if ended:
+            lines.append("   (%s usable share alone, %s at the nominal-pack hover current, gives %s)" % (
+                "the estimate's" if lead["basis"] == "small rotor" else "the",
+                _num(report.get("usable_Ah"), SIG3, "Ah"),
+                _minutes(report.get("flight_time_usable_share_min"))))
+        else:
+            lines.append("   about %s of hover on %s usable (%s)" % (
+                _num(report.get("flight_time_min"), "%.1f", "min"), _num(report.get("usable_Ah"), "%.2f", "Ah"),
+                report.get("flight_time_basis", "usable share at the nominal-pack hover current")))
+        if report.get("cutoff_cell_V") is not None:
+            lines.append("   cutoff %.2f V per cell under load; pack resistance %s%s" % (
+                report["cutoff_cell_V"], resistance_text(report.get("pack_resistance_ohm")),
+                pack_temperature_text(report)))
+        lines.append("   hover draws %s from the pack (all motors), %s (nominal pack, bus at %s)" % (
+            _num(report.get("hover_current_A"), SIG3, "A"), _num(report.get("hover_power_W"), SIG3, "W"),
+            _num(report.get("hover_bus_V"), "%.2f", "V")))
+        extras = []
+        if report.get("hover_rpm") is not None:
+            extras.append("rotors at %.0f rpm" % report["hover_rpm"])
+        coaxial = (report.get("coaxial_induced_power_factor") or 1.0) > 1.0
+        if report.get("figure_of_merit") is not None:
+            extras.append("figure of merit %.2f%s" % (report["figure_of_merit"],
+                                                      " (with the coaxial penalty)" if coaxial else ""))
+        if coaxial:
+            lines.append("   " + coaxial_text(report))
+        estimate = report.get("propeller_estimate")
+        if estimate:
+            lines.append("   propeller CT %.3f, CP %.4f ESTIMATED from %.3g m x %.3g m pitch, %d blades "
+                         "(blade element momentum theory at %.0f rpm; typically 10-20 %% off%s)"
+                         % (report["propeller_ct"], report["propeller_cp"], report.get("propeller_diameter_m") or 0.0,
+                            estimate["pitch_m"], estimate["blades"], estimate["rpm"],
+                            "; likely optimistic at this small size, see below" if report.get("low_reynolds_check")
+                            else ""))
+        if report.get("static_factor") is not None:
+            extras.append(static_factor_text(report))
+        if extras:
+            lines.append("   " + "; ".join(extras))
+    else:
+        lines.append("   no hover, no endurance.")
+    lines.append("")
+
+    lines.append("4. What to watch out for")
+    warnings = [w for w in dict.fromkeys(report.get("warnings") or [])
+                if report.get("can_hover") or not w.startswith("cannot hover")]
+    if warnings:
+        for w in warnings:
+            lines.append("   ! " + w)
+    else:
+        lines.append("   nothing flagged by the estimate")
+    lines.append("")
+    lines.append("Before you go to the field")
+    for c in report.get("cautions") or CAUTIONS:
+        lines.append("   - " + c)
+    return fit_width("\n".join(lines) + "\n")
