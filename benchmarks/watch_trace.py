@@ -40,7 +40,7 @@ class Traced(Watch):
     def _block(self, c, flags, e, p, b, v, t, f, l):
         out = Watch._block(self, c, flags, e, p, b, v, t, f, l)
         row = dict(zip(NAMES, self.data))
-        row.update(t_s=t / 1000.0, r=self.residual_permille, flags=out, fb=f // b, mass_g=self.mass_g)
+        row.update(t_s=t / 1000.0, r=row["residual_permille"], flags=out, fb=f // b)   # mass_g: in the row
         self.rows.append(row)
         return out
 

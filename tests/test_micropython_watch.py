@@ -170,6 +170,34 @@ print("LOCKED", locked())
     assert "LOCKED none" in out, out
 
 
+def test_learning_ends_without_raising_at_the_lowest_noise_floor(bundle, tmp_path):
+    # "update never raises for int inputs" holds for every CONFIG the layout admits: with
+    # noise_floor_permille at its lower bound (1) and a hover whose residual never varies, the
+    # learned noise is 1 permille, the start of the two Newton steps for k's floor
+    # 2 s / sqrt(n + 1) was 0 and the second step divided by it (ZeroDivisionError when the
+    # learning window ended, in CPython and on the board; found replaying random in-bound CONFIGs).
+    from estimator.core import watch_layout
+    from estimator.core.watch import Watch
+    from estimator.watch.config import as_tuple, make_config
+
+    cfg = make_config(demo_fit_params(), options={"takeoff_s": 0.0, "lag_ms": 0.0, "stuck_s": 600.0})[0]
+    cfg["noise_floor_permille"] = 1
+    config = as_tuple(cfg)
+    assert watch_layout.check(config) is None
+    script = """
+from liftwatch import Watch
+w = Watch(%r)
+for i in range(600):
+    f = w.update(100, 520, 15000, 19000)
+print("LEARNED", w.data[0], w.data[7])
+""" % (config,)
+    out = run_micropython(script, [bundle / "liftwatch.py"], tmp_path)
+    w = Watch(config)
+    for _ in range(600):                     # 60 s of the same sample: learning ends at 20 s
+        w.update(100, 520, 15000, 19000)
+    assert "LEARNED 0 %d" % w.data[7] in out, out    # learned (data[0] = 0), the same k on both
+
+
 def test_heap_lock_really_catches_allocation(tmp_path):
     # The check above can fail: the same harness reports an allocation under heap_lock.
     script = r'''

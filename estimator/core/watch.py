@@ -270,7 +270,7 @@ class Watch:
                         flags |= 8
                 # in flight k >= 2 s / sqrt(l_n + 1) (Hawkins 1987): two Newton steps from above
                 q = (s * s << 2) // (l_n + 1)             # 1000^2 x 4
-                l_ms = (s // 3 + 1 + q // (s // 3 + 1)) >> 1
+                l_ms = (s // 3 + 1 + q // (s // 3 + 1)) >> 1 or 1   # 0 only when q is: the root is 0
                 sb[3] = (l_ms + q // l_ms) >> 1
                 sb[4] = s << 6                            # kept: in flight the noise stays below 1.75x this
                 sb[0] = 0
