@@ -18,6 +18,7 @@ import math
 
 import numpy as np
 
+from estimator.bench import solvers
 from estimator.errors import InputError
 
 PARAM_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")
@@ -96,7 +97,7 @@ def _start(u, log_v, t, n, u_max):
         for u_min in grid:
             x = np.clip((u - u_min) / (u_max - u_min), 0.0, 1.0)
             design = np.column_stack([s * x, s * x * x])
-            coef, *_ = np.linalg.lstsq(design, t, rcond=None)
+            coef, *_ = solvers.lstsq(design, t, "thrust curve's start values")
             r = t - design @ coef
             score = float(np.sum(np.minimum(r * r, 9.0 * np.median(r * r) + 1e-30)))
             if best is None or score < best[0]:
@@ -115,18 +116,16 @@ def project(command, thrust_N, u_max, n):
     """The quadratic closest (least squares) to a smooth thrust curve at V_ref: the projection
     of the fitted motor model over the flying range. command [-], thrust_N [N]: the model on a
     grid from its spin-up to u_max [-]; n: voltage exponent carried along [-]. Returns theta."""
-    from scipy.optimize import least_squares
-
     zero = np.zeros_like(command)
     theta0 = _start(command, zero, thrust_N, n, u_max)
     t_top = float(np.max(thrust_N))
     if not t_top > 0.0:
         raise ValueError("the motor model gives no thrust over the flying range")
     lo, hi = np.array([1e-12 * t_top, 0.0, 0.0]), np.array([10.0 * t_top, 1.0, 0.6])
-    res = least_squares(lambda p: curve_thrust((p[0], p[1], p[2], n), command, zero, u_max) - thrust_N,
-                        _inside(theta0[:3], lo, hi), bounds=(lo, hi), x_scale="jac",
-                        jac=lambda p: curve_jacobian((p[0], p[1], p[2], n), command, zero, u_max)[:, :3],
-                        method="trf", max_nfev=300)
+    res = solvers.least_squares(lambda p: curve_thrust((p[0], p[1], p[2], n), command, zero, u_max) - thrust_N,
+                                _inside(theta0[:3], lo, hi),
+                                lambda p: curve_jacobian((p[0], p[1], p[2], n), command, zero, u_max)[:, :3],
+                                "thrust curve", bounds=(lo, hi), x_scale="jac", method="trf", max_nfev=300)
     return np.append(res.x, n)
 
 
@@ -235,8 +234,6 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
     told from the intercept and was held for the covariance, its standard error 0). Raises InputError when the levels do not
     rise with command.
     """
-    from scipy.optimize import least_squares
-
     u, v, t = levels["command"], levels["voltage_V"], levels["thrust_N"]
     log_v = np.log(v / v_ref)
     warnings = []
@@ -265,10 +262,10 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
     theta0 = _inside(theta0, lo, hi)
     scale = max(0.01 * t_top, 1e-12)
     for _ in range(0 if fixed and projection is not None else 2):
-        res = least_squares(lambda p, s=scale: (curve_thrust(p, u, log_v, u_max) - t) / s, theta0,
-                            jac=lambda p, s=scale: curve_jacobian(p, u, log_v, u_max) / s,
-                            bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE, x_scale="jac",
-                            method="trf", max_nfev=300)
+        res = solvers.least_squares(lambda p, s=scale: (curve_thrust(p, u, log_v, u_max) - t) / s, theta0,
+                                    lambda p, s=scale: curve_jacobian(p, u, log_v, u_max) / s, "thrust curve",
+                                    bounds=(lo, hi), loss="soft_l1", f_scale=LOSS_SCALE, x_scale="jac",
+                                    method="trf", max_nfev=300)
         theta0 = _inside(res.x, lo, hi)
         r = curve_thrust(res.x, u, log_v, u_max) - t
         from estimator.bench.levels import robust_scale
@@ -291,7 +288,7 @@ def fit_quadratic(levels, v_ref, u_max, motor_n, voltage_exponent=None, projecti
         free.remove(1)
     cov = np.zeros((4, 4))
     sub = jac[:, free]
-    cov[np.ix_(free, free)] = np.linalg.pinv(sub.T @ sub) * s2 * FORM_INFLATION ** 2
+    cov[np.ix_(free, free)] = solvers.pinv(sub.T @ sub, "thrust curve's information") * s2 * FORM_INFLATION ** 2
     se = np.sqrt(np.maximum(np.diag(cov), 0.0))
     if fixed:
         # n was not fitted to the levels: a given n has no error bar, the motor model's has its own
@@ -323,7 +320,7 @@ def _share_not_separable(share, jac, s2, column=1):
     if share <= SHARE_AT_BOUND or share >= 1.0 - SHARE_AT_BOUND:
         return True
     with np.errstate(all="ignore"):
-        var = np.linalg.pinv(jac.T @ jac)[column, column] * s2 * FORM_INFLATION ** 2
+        var = solvers.pinv(jac.T @ jac, "thrust curve's information")[column, column] * s2 * FORM_INFLATION ** 2
     return not (np.isfinite(var) and var <= 1.0)
 
 
@@ -342,14 +339,16 @@ def check_rising(levels, source):
                          "reversed?" % source)
     order = np.argsort(u)
     lo_half, hi_half = order[: order.size // 2], order[order.size // 2:]
-    if np.mean(t[hi_half]) <= np.mean(t[lo_half]):
-        if np.mean(t[hi_half]) < -0.2 * top:
+    # medians: one glitch level of 200 times the top thrust (a saturated 32767 g on a 150 g
+    # rotor, screened only after the motor fit) outweighed every other level in a mean
+    hi, lo = float(np.median(t[hi_half])), float(np.median(t[lo_half]))
+    if hi <= lo:
+        if hi < -0.2 * top:
             raise InputError("%s: thrust grows more negative with command: the load cell's sign is "
                              "reversed (swap its leads or negate the column)" % source)
-        raise InputError("%s: thrust does not rise with command (mean thrust %.4g N in the upper half "
+        raise InputError("%s: thrust does not rise with command (median thrust %.4g N in the upper half "
                          "of the commands, %.4g N in the lower half); are the command and thrust "
-                         "columns from the same sweep?" % (source, float(np.mean(t[hi_half])),
-                                                           float(np.mean(t[lo_half]))))
+                         "columns from the same sweep?" % (source, hi, lo))
 
 
 def thrust_model_N(curve, command, voltage_V):
