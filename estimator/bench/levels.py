@@ -294,12 +294,9 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
     if profile_p is not None:
         scale_p = np.maximum(np.interp(np.abs(p_m), *profile_p), scale_p)
     if np.any(own):
-        # the level's rms without its largest deviation: with it, a lone glitch in a level
-        # of n rows is at most (n - 1) / sqrt(n) of the rms from the mean, below SPIKE_SIGMAS
-        # for n < 38, and a 9999 mN row among 20 of a 6 g rotor stayed in the fit (new-user
-        # trial 7, finding 3); without it the glitch stands n - 1 such scales out, while an
-        # honest level's scale drops by about 10 % at 20 rows (the largest of 20 normal
-        # deviations is about 1.9 sigmas: order statistics, from memory)
+        # the rms without the largest deviation: with it a lone glitch is at most (n - 1) /
+        # sqrt(n) rms out, below SPIKE_SIGMAS for n < 38 (trial 7, finding 3: 9999 mN among 20
+        # rows of a 6 g rotor); an honest level's scale drops about 10 % at 20 rows
         rest = np.maximum(safe - 1.0, 1.0)
         ms_t = np.maximum(sq_t - max_t, 0.0) / rest
         ms_p = np.maximum(sq_p - max_p, 0.0) / rest
@@ -333,10 +330,8 @@ def command_levels(command, voltage_V, thrust_N, power_W, voltage_span_V=None):
         again = noise_profile(*(x[clean] for x in sub))
         if again is not None:
             profile_scale = np.maximum(np.interp(np.abs(t_m), *again), 1e-6 * t_top)
-            # a level of its own scale keeps it where it is larger: that scale leaves its
-            # largest deviation out, while every row of a spiked level deviates from the
-            # spiked mean by 1 / n of the spike (a 9999 mN glitch among 20 rows of a 6 g
-            # rotor put all 20 beyond 6 profile scales: new-user trial 7, finding 3)
+            # a level keeps its own scale where larger: each row of a spiked level is 1 / n of
+            # the spike off the mean (all 20 rows were dropped: trial 7, finding 3)
             scale_t = np.where(own, np.maximum(profile_scale, scale_t), profile_scale)
             look()
             thrust_spike, t_hits = _screen(key, n_keys, count, t, dt2_of, max_t, scale_t, SPIKE_SIGMAS, big,
