@@ -158,7 +158,6 @@ def _csv_variants(csv_bytes, flight):
         ("unknown unit", build(h=header.replace("voltage[V]", "voltage[kV]"))),
         ("unit missing", build(h=header.replace("voltage[V]", "voltage"))),
         ("column twice", build(h=header.replace("voltage[V]", "current[A]"))),
-        ("NaN cell", cell(5, 2, "nan")),
         ("inf cell", cell(5, 2, "inf")),
         ("1e999 cell", cell(5, 2, "1e999")),
         ("text cell", cell(5, 2, "twelve")),
@@ -172,6 +171,9 @@ def _csv_variants(csv_bytes, flight):
     ]
     if flight:
         out += [
+            # a bench sweep drops a row with 'nan' as a missed reading, as an empty cell (new-user
+            # trial 7, finding 10); a flight log refuses both
+            ("NaN cell", cell(5, 2, "nan")),
             ("bench sweep given as a flight log", "BENCH"),
             ("time goes back", build(r=rows[:10] + [rows[5]] + rows[10:])),
             ("voltage in mV labelled V", build(r=[_scale(x, 2, 1000.0) for x in rows])),

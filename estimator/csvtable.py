@@ -16,7 +16,7 @@ an empty cell, where the caller allows one), a row of the wrong width.
 
 API: read_head(path, what, example) -> Head; parse_header(path, head, columns, optional,
 refuse) -> ({name: (index, unit)}, warnings); read_columns(path, head, indices,
-empty_ok) -> one list of floats per index; read_table(path, what, example, columns, ...)
+missing_ok) -> one list of floats per index; read_table(path, what, example, columns, ...)
 -> Table (all three in one call). ``columns`` maps a required name to its units
 {unit: (scale, offset)} (SI = value * scale + offset); the caller converts.
 """
@@ -114,15 +114,16 @@ def parse_header(path, head, columns, optional=(), refuse=None):
     return parse(path, head, columns, optional, refuse)
 
 
-def _number(path, line_no, col, cell, empty_ok, name=""):
-    """One cell as a float: NaN for an empty cell when allowed, else InputError (naming the
-    column's header cell ``name`` when given)."""
+def _number(path, line_no, col, cell, missing_ok, name=""):
+    """One cell as a float: NaN for a missing reading (an empty cell, or 'nan' as loggers write
+    for a missed sample) when allowed, else InputError (naming the column's header cell
+    ``name`` when given); infinity is always refused."""
     where = " in %s" % shorten(name) if name else ""
     cell = cell.strip()
     if cell[:1] == '"':
         cell = cell.strip('"').strip()
-    if not cell:
-        if empty_ok:
+    if not cell or (missing_ok and cell.lower().lstrip("+-") == "nan"):
+        if missing_ok:
             return math.nan
         raise InputError("%s: line %d column %d: empty cell%s (a missing reading?); every cell of "
                          "these columns needs a number" % (path, line_no, col + 1, where))
@@ -132,20 +133,20 @@ def _number(path, line_no, col, cell, empty_ok, name=""):
         raise InputError("%s: line %d column %d: cannot read %s as a number%s%s"
                          % (path, line_no, col + 1, shorten(cell), where,
                             "; leave a missing reading empty (that row is then counted and left "
-                            "out)" if empty_ok else "")) from None
+                            "out)" if missing_ok else "")) from None
     if not math.isfinite(value):
         raise InputError("%s: line %d column %d: %s is not a finite number%s (NaN and infinity are "
                          "refused%s)" % (path, line_no, col + 1, shorten(cell), where,
-                                         "; leave a missing reading empty" if empty_ok else ""))
+                                         "; leave a missing reading empty" if missing_ok else ""))
     return value
 
 
-def read_columns(path, head, indices, empty_ok=False, what="a CSV"):
+def read_columns(path, head, indices, missing_ok=False, what="a CSV"):
     """The numbers of the data rows in the columns ``indices``: one list of floats each.
 
     Every data row must have as many cells as the header; only the cells at ``indices`` are
-    read as numbers (others may hold text). empty_ok: an empty cell becomes NaN (the caller
-    drops or counts the row) instead of an error. Raises InputError naming the line.
+    read as numbers (others may hold text). missing_ok: an empty cell or 'nan' becomes NaN
+    (the caller drops and counts the row) instead of an error. Raises InputError naming the line.
     """
     ncols = len(head.cells)
     out = [[] for _ in indices]
@@ -162,10 +163,10 @@ def read_columns(path, head, indices, empty_ok=False, what="a CSV"):
                 try:
                     value = float(cell)
                 except ValueError:
-                    value = _number(path, line_no, index, cell, empty_ok, names[index])
+                    value = _number(path, line_no, index, cell, missing_ok, names[index])
                 else:
                     if value - value != 0.0:  # NaN or infinity, refused by _number
-                        value = _number(path, line_no, index, cell, empty_ok, names[index])
+                        value = _number(path, line_no, index, cell, missing_ok, names[index])
                 column.append(value)
     return out
 
@@ -200,10 +201,10 @@ class Table:
         self.rows = len(next(iter(values.values()))) if values else 0
 
 
-def read_table(path, what, example, columns, optional=(), refuse=None, empty_ok=False):
+def read_table(path, what, example, columns, optional=(), refuse=None, missing_ok=False):
     """read_head, parse_header and read_columns of the required columns in one call."""
     head = read_head(path, what, example)
     found, warnings = parse_header(path, head, columns, optional, refuse)
     names = list(columns)
-    lists = read_columns(path, head, [found[n][0] for n in names], empty_ok, what)
+    lists = read_columns(path, head, [found[n][0] for n in names], missing_ok, what)
     return Table(head, found, dict(zip(names, lists)), warnings)

@@ -344,6 +344,27 @@ def load_params(path):
     return params
 
 
+# the option that lets firmware and export use a set edited since liftcal wrote it
+FROM_EDITED = "--from-edited"
+
+
+def edited_set_warning(path, allowed, makes):
+    """None for a parameter set whose content seal is intact (or absent: an older liftcal);
+    for one edited since liftcal wrote it (seal broken, estimator.seal): InputError unless
+    ``allowed`` (FROM_EDITED given), else the warning line to print first. makes: what the
+    command writes from it ("the board bundle", "the settings"). check and hover --params
+    say the same of an edited set; the bundle and settings fly, so they refuse by default."""
+    from estimator.outputs import seal_of
+
+    if seal_of(path) != "broken":
+        return None
+    words = ("%s was EDITED since liftcal wrote it (its content seal no longer matches)" % path)
+    if not allowed:
+        raise InputError("%s: %s would carry values no fit gave; refit the bench sweep, or add %s "
+                         "to use the edited values" % (words, makes, FROM_EDITED))
+    return "%s: %s carries the edited values, not the fit's (%s)" % (words, makes, FROM_EDITED)
+
+
 def write_params(path, params):
     """Validate and write a parameter set atomically (never a partial file)."""
     check_params(params, path)

@@ -82,7 +82,9 @@ def test_cli_lines_and_json(tmp_path, capsys):
     # the text printed: each value in its map decimals, a line too long for 80 columns continued
     # at its arrow; joined back, the lines are format_lines' own
     from estimator.commands.bench import in_map_decimals
-    lines = [l for l in out.replace("\n    <- ", "  <- ").splitlines() if l.startswith("#") or not l.startswith(" ")]
+    # the settings and their header; the notes after them start with '! ' (the fit's warnings)
+    lines = [l for l in out.replace("\n    <- ", "  <- ").splitlines()
+             if l.startswith("#") or not l.startswith((" ", "!"))]
     body = format_lines(in_map_decimals(expected, load_map(EXAMPLE_MAP))).splitlines()
     assert lines[0].startswith("# liftcal settings from ")
     assert [" ".join(l.split()) for l in lines[1:]] == [" ".join(l.split()) for l in body]
@@ -93,6 +95,7 @@ def test_cli_lines_and_json(tmp_path, capsys):
     top = [l for l in lines if l.startswith("liftcurve.top_grams")][0]
     assert re.search(r"gf +<- thrust_curve\.thrust_max_N = ", top) and top.endswith(" N x 101.972")
     assert not any(re.fullmatch(r"\S+ \S+", l) for l in lines)  # never the bare "NAME value" layout
+    assert out.split("\n! ", 1)[1]  # notes follow the settings (new-user trial 7, finding 4)
     target = tmp_path / "settings.json"
     with pytest.raises(SystemExit) as exc:
         main(["export", WITH_HOVER, "--json", "--out", str(target)])

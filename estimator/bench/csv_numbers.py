@@ -17,16 +17,17 @@ def _head_commas(path, skip):
 
 
 def _slow_parse(path, skip, ncols, wanted=None):
-    """Line-by-line parse (estimator.csvtable) that names the first broken row; empty
-    cells become NaN (rows dropped and counted later), NaN or infinity written in a cell
-    is refused with its line. wanted: the column indices read as numbers (default all);
-    the others (text, notes, a NaN in a column not used) are left NaN, as a flight log's."""
+    """Line-by-line parse (estimator.csvtable) that names the first broken row; an empty
+    cell or 'nan' becomes NaN (a missed reading: the row is dropped and counted later),
+    infinity written in a cell is refused with its line. wanted: the column indices read as
+    numbers (default all); the others (text, notes, a NaN in a column not used) are left NaN,
+    as a flight log's."""
     import numpy as np
 
     wanted = list(range(ncols)) if wanted is None else list(wanted)
     cells = csvtable.read_head(path, "a bench CSV", EXAMPLE_HEADER).cells  # to name a column in errors
     head = csvtable.Head({}, cells if len(cells) == ncols else [""] * ncols, skip)
-    columns = csvtable.read_columns(path, head, wanted, empty_ok=True, what="a bench CSV")
+    columns = csvtable.read_columns(path, head, wanted, missing_ok=True, what="a bench CSV")
     rows = len(columns[0]) if columns else 0
     table = np.full((rows, ncols), np.nan)
     for index, column in zip(wanted, columns):
@@ -49,8 +50,8 @@ def load_numbers(path, skip, ncols, wanted, to_si, kept=None):
     read checks every row's width by itself). Each column is copied out once, in SI; its
     min and max (NaN or infinity makes one non-finite) decide finiteness and serve the row
     checks. On any trouble (a row of another width, text where a number belongs, NaN or
-    infinity written in a cell) the slow parse, which names the broken row or turns empty
-    cells into NaN.
+    infinity or 'nan' in a cell) the slow parse, which names the broken row or turns missing
+    readings into NaN.
     """
     import warnings
 

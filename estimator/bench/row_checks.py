@@ -1,7 +1,7 @@
 """The rows of a bench sweep the fit may use: the merely bad ones dropped and counted.
 
-A row is dropped, and counted by its reason, when it holds a NaN or an empty cell (also in an
-optional column), a clearly negative current (idle sensor noise below zero is tolerated, see
+A row is dropped, and counted by its reason, when it holds a missing reading: an empty cell
+or 'nan' (also in an optional column; counted as empty_or_nan_cell, the name of what was found), a clearly negative current (idle sensor noise below zero is tolerated, see
 estimator.bench.columns), a bus voltage at or below zero or off the sweep's median by more than
 a factor 2, a command outside 0..1, a current above MAX_CURRENT_A or a thrust beyond
 MAX_THRUST_N. A current negative in most rows is a sensor reading backwards and is refused
@@ -47,7 +47,9 @@ def _masked_rows(path, data, rows_total):
     finite = np.isfinite(u) & np.isfinite(v) & np.isfinite(i) & np.isfinite(t)
     for column in data.get("optional", ()):  # an empty optional cell: the row goes, counted
         finite &= np.isfinite(column)
-    rejected["not_a_number"] = int(rows_total - np.count_nonzero(finite))
+    # an empty cell and a logger's 'nan' are the same missed sample: dropped alike (new-user
+    # trial 7, finding 10: 'nan' refused the file while an empty cell was counted as not_a_number)
+    rejected["empty_or_nan_cell"] = int(rows_total - np.count_nonzero(finite))
     with np.errstate(invalid="ignore"):
         # current sensors read a little below zero at idle; only clearly negative rows are bad
         tol_i = max(NEGATIVE_CURRENT_TOLERANCE_A, 0.01 * float(np.nanmax(np.abs(i[finite])))

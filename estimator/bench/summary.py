@@ -48,11 +48,12 @@ def fit_json(params, warnings, columns, out_file, plot_file=None):
     return out
 
 
-def fit_text(params, out_file, warnings, columns, thrust_to_weight_text=None):
+def fit_text(params, out_file, warnings, columns, thrust_to_weight_words=None):
     """The fit's text summary for an 80-column terminal: rows, columns, the curve and its
-    errors, the power model, k, the vehicle's hover (thrust_to_weight_text: how the hover sheet
-    writes a thrust-to-weight, passed by the command that chains the flows), the warnings
-    and the cautions; commands and thrusts in the CSV's units (provenance.units)."""
+    errors, the power model, k, the vehicle's hover (thrust_to_weight_words: the thrust-to-weight
+    as the hover sheet judges and marks it, with what it means, passed by the command that
+    chains the flows), the warnings and the cautions; commands and thrusts in the CSV's units
+    (provenance.units)."""
     from estimator.textwidth import fit_width  # an 80-column terminal
 
     c, p, k, q = (params["thrust_curve"], params["power_model"], params["static_factor"],
@@ -98,13 +99,12 @@ def fit_text(params, out_file, warnings, columns, thrust_to_weight_text=None):
     ]
     h = params.get("hover")
     if h:
-        tw_text = thrust_to_weight_text or (lambda tw: "%.2f" % tw)
+        tw_words = thrust_to_weight_words or "%.2f (full command, nominal pack)" % h.get("thrust_to_weight", 0.0)
         lo, hi = h["hover_command_interval_95"]
         lines += ["hover for %s: command %s (95 %% interval %s..%s), thrust fraction %.3f, "
-                  "%.4g W, %.3g A, thrust-to-weight %s (motor model at the sagged bus %.2f V)" % (
+                  "%.4g W, %.3g A (motor model at the sagged bus %.2f V); thrust-to-weight %s" % (
                       params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),
-                      h["hover_thrust_fraction"], h["power_W"], h["current_A"],
-                      tw_text(h.get("thrust_to_weight", 0.0)), h["voltage_V"])]
+                      h["hover_thrust_fraction"], h["power_W"], h["current_A"], h["voltage_V"], tw_words)]
     lines += ["! " + w for w in warnings]
     lines += ["- " + c for c in cautions("settings")]
     return fit_width("\n".join(lines))

@@ -22,6 +22,23 @@ def fit_for_vehicle(bench_file, vehicle, **fit_options):
     return complete_set(params, bench_file, vehicle, vehicle_hover(params, vehicle)[1], bench_file)
 
 
+def judged_words(report):
+    """The thrust-to-weight as `hover --params` judges and marks it (preflight.warnings.
+    judged_thrust_to_weight_text: one rule), with what it is: reachable before the pack's
+    loaded cutoff, or full command on the nominal pack (new-user trial 7, finding 4: the fit
+    said 5.91 where the sheet judged 5.11*)."""
+    from estimator.preflight.warnings import (REACHABLE_MARK, judged_thrust_to_weight,
+                                              judged_thrust_to_weight_text, thrust_to_weight_text)
+
+    text = judged_thrust_to_weight_text(report)
+    if judged_thrust_to_weight(report)[1]:
+        return ("%s (%s: reachable at command %.2f, where the pack reaches its loaded cutoff; full command "
+                "would give %s but is NOT REACHABLE on this pack)"
+                % (text, REACHABLE_MARK, report["reachable_command"],
+                   thrust_to_weight_text(report.get("thrust_to_weight"))))
+    return "%s (full command, nominal pack)" % text
+
+
 def vehicle_hover(params, vehicle):
     """The pre-flight flow's answer for a parameter set fitted without a vehicle (this command
     chains the two flows; neither imports the other): (the vehicle's hover report from the set,
@@ -89,12 +106,10 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     params = complete_set(fitted.params, out_file, vehicle, hover, bench_file)
     shown, tw_text = list(params["warnings"]), None
     if vehicle is not None:
-        from estimator.preflight.warnings import thrust_to_weight_text  # printed as the sheet does
-
         # the vehicle's margins (full-command pack sag, motor and pack current, thin air...) as
         # the hover sheet gives them from this parameter set: printed, not stored (they belong
         # to the vehicle, and `hover --params` computes them afresh for the vehicle asked about)
-        shown, tw_text = list(dict.fromkeys(params["warnings"] + report["warnings"])), thrust_to_weight_text
+        shown, tw_text = list(dict.fromkeys(params["warnings"] + report["warnings"])), judged_words(report)
     from estimator.replacing import check_set_replacement, replaced_line
 
     replaced = [line for line in (check_set_replacement(out_file, params, replace),
@@ -205,6 +220,25 @@ def _fold_arrows(text):
     return fit_width("\n".join(out) + "\n")
 
 
+def top_thrust_notes(settings, params):
+    """A note for each exported setting taken from thrust_curve.thrust_max_N: it is the curve
+    at the reference voltage, which a pack under full command does not hold, and above the
+    thrust measured when the fit said so (new-user trial 7, finding 4: 'liftcurve.top_grams
+    2842 gf' was read as the motor's top thrust; the sweep measured 2465 g at 23.0 V)."""
+    ref = params["thrust_curve"]["reference_voltage_V"]
+    where = next(("%s = %.2f V" % (s["name"], ref) for s in settings
+                  if s["source"] == "thrust_curve.reference_voltage_V"),
+                 "%.2f V (thrust_curve.reference_voltage_V)" % ref)
+    c = params["thrust_curve"]
+    above = (c.get("command_swept_max", c["command_max"]) < c["command_max"]  # extrapolated
+             or any("above the highest thrust measured" in w for w in params.get("warnings", [])))
+    return ["%s %s %s is the curve's full-command thrust at %s%s; on a pack, full command gives the thrust "
+            "at the pack's own sagged voltage" % (
+                s["name"], s["value"], s["unit"], where,
+                ", ABOVE the highest thrust the sweep measured (see the fit's warning below)" if above else "")
+            for s in settings if s["source"] == "thrust_curve.thrust_max_N"]
+
+
 @click.command()
 @click.argument("params_file", metavar="PARAMS.json")
 @click.option("--map", "map_file", default=None, metavar="MAP.json",
@@ -214,8 +248,11 @@ def _fold_arrows(text):
               help="Also write the settings to FILE (atomically): the lines as printed, or with "
                    "--json a JSON document (model liftcal.settings/1) holding them. Replaces only "
                    "a settings file liftcal wrote.")
+@click.option("--from-edited", "from_edited", is_flag=True,
+              help="Export a parameter set edited since liftcal wrote it (its content seal broken); "
+                   "without it liftcal refuses such a set.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object {name: value}.")
-def export(params_file, map_file, out_file, as_json):
+def export(params_file, map_file, out_file, from_edited, as_json):
     """Map a parameter set to your flight controller's setting names.
 
     Each setting is round(value * scale + offset, decimals); a value outside the map's
@@ -233,11 +270,17 @@ def export(params_file, map_file, out_file, as_json):
         check_output(out_file, "settings", inputs=(params_file, map_file))
         replaced = replaced_line(out_file, "settings")
     params = load_params(params_file)
+    from estimator.params import edited_set_warning
+
+    edited = edited_set_warning(params_file, from_edited, "the settings")
     path = EXAMPLE_MAP if map_file is None else map_file
     mapping = load_map(path)
     settings = export_settings(params, mapping, path)
     header = "liftcal settings from %s through %s (%d); %s" % (
         os.path.basename(params_file), os.path.basename(path), len(settings), SHORT)
+    if edited:
+        header += "\n# WARNING: " + edited
+    notes = top_thrust_notes(settings, params) + ["fit: " + w for w in params.get("warnings", [])]
     text = dumps(as_mapping(settings)) + "\n" if as_json else format_lines(in_map_decimals(settings, mapping),
                                                                              header)
     if out_file is not None:
@@ -247,17 +290,17 @@ def export(params_file, map_file, out_file, as_json):
         kept = text if text.startswith(SETTINGS_MARK) else dumps({
             "schema_version": 1, "model": "liftcal.settings/1",
             "parameter_set": os.path.basename(params_file), "map": os.path.basename(path),
-            "settings": as_mapping(settings), "cautions": cautions("settings")}) + "\n"
+            "settings": as_mapping(settings), "warnings": ([edited] if edited else []) + notes,
+            "cautions": cautions("settings")}) + "\n"
         write_text(out_file, kept, "settings")
-    click.echo(text if as_json else _fold_arrows(text), nl=False)
-    if out_file is not None and not as_json:
-        click.echo("settings written to %s" % out_file)
-    from estimator.outputs import seal_of
     from estimator.textwidth import fit_width
 
-    if seal_of(params_file) == "broken":  # as `check` says it: the settings come from a person's edits
-        note = ("note: %s was edited since liftcal wrote it (its content seal no longer matches): these "
-                "settings come from the edited values" % params_file)
-        click.echo(note if as_json else fit_width(note), err=as_json)
+    if edited:  # before the settings (on stderr under --json: stdout holds the settings only)
+        click.echo("WARNING: " + edited if as_json else fit_width("WARNING: " + edited), err=as_json)
+    click.echo(text if as_json else _fold_arrows(text), nl=False)
+    for note in notes:  # what the values mean and what the fit warned about them
+        click.echo("! " + note if as_json else fit_width("! " + note), err=as_json)
+    if out_file is not None and not as_json:
+        click.echo("settings written to %s" % out_file)
     if replaced:  # under --json stdout holds the settings object only
         click.echo(replaced if as_json else fit_width(replaced), err=as_json)

@@ -94,8 +94,11 @@ def _count(n, word):
 @click.option("--lag-ms", "lag_ms", type=Number(LAG_MS_BOUNDS), default=None, metavar="MS",
               help="Time constant of the rotor and current-sensor response the expected power is lagged by "
                    "(default: 0.25 s per metre of propeller diameter + 20 ms).")
+@click.option("--from-edited", "from_edited", is_flag=True,
+              help="Build from a parameter set edited since liftcal wrote it (its content seal broken); "
+                   "without it liftcal refuses such a set.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
-def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
+def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     """Write the MicroPython power-watch bundle for a board.
 
     DIR gets {files} and mpy/*.mpy (the modules compiled).
@@ -103,28 +106,35 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, as_json):
     from estimator.watch.bundle import write_bundle
 
     from estimator.folders import check_folder
+    from estimator.params import edited_set_warning
 
-    check_folder(out_dir, "bundle", inputs=(params_file, vehicle_file))
+    state = check_folder(out_dir, "bundle", inputs=(params_file, vehicle_file))
     params, vehicle = _load(params_file, vehicle_file)
+    edited = edited_set_warning(params_file, from_edited, "the board bundle")
     out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=_options(lag_ms))
     cfg = out["config"]
     # the kernel's limit is plan x (1 + permille / 1000) exactly (it compares permille), not floored
     mass_limit_g = round(cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) / 1000.0, 1)
-    warnings = _exponent_warning(params, vehicle, params_file)
+    warnings = ([edited] if edited else []) + _exponent_warning(params, vehicle, params_file)
+    # README: whenever liftcal replaces one of its own files it says so in one line
+    replaced = ["replaced %s: a power-watch bundle liftcal wrote" % out_dir] if state == "own" else []
     summary = {"out_dir": out["out_dir"], "files": out["files"], "mpy_bytes": out["mpy_bytes"],
                "cusum_k_sigma": cfg["cusum_k_q8"] / 256.0, "cusum_h_sigma": cfg["cusum_h_q8"] / 256.0,
                "noise_floor": cfg["noise_floor_permille"] / 1000.0, "lag_ms": cfg["lag_ms"],
-               "mass_limit_g": mass_limit_g, "warnings": warnings, "cautions": list(WATCH_CAUTIONS)}
+               "mass_limit_g": mass_limit_g, "warnings": warnings, "cautions": list(WATCH_CAUTIONS),
+               "replaced": replaced}
     if as_json:
         click.echo(dumps(summary))
         return
-    lines = ["wrote the power-watch bundle to %s (%d files, .mpy total %d bytes)"
-             % (out["out_dir"], len(out["files"]), out["mpy_bytes"]),
-             "  CUSUM per %d ms block: reference %.2f, threshold %.2f x the block noise (learned in flight, "
-             "at least %.1f %%); expected power lagged %d ms; mass alarm above %.1f g"
-             % (cfg["block_ms"], summary["cusum_k_sigma"], summary["cusum_h_sigma"],
-                100.0 * summary["noise_floor"], cfg["lag_ms"], mass_limit_g)]
-    lines += ["! " + w for w in warnings]
+    lines = ["WARNING: " + edited] if edited else []
+    lines += ["wrote the power-watch bundle to %s (%d files, .mpy total %d bytes)"
+              % (out["out_dir"], len(out["files"]), out["mpy_bytes"]),
+              "  CUSUM per %d ms block: reference %.2f, threshold %.2f x the block noise (learned in flight, "
+              "at least %.1f %%); expected power lagged %d ms; mass alarm above %.1f g"
+              % (cfg["block_ms"], summary["cusum_k_sigma"], summary["cusum_h_sigma"],
+                 100.0 * summary["noise_floor"], cfg["lag_ms"], mass_limit_g)]
+    lines += replaced
+    lines += ["! " + w for w in warnings if w != edited]
     lines += ["- " + c for c in WATCH_CAUTIONS]
     click.echo(fit_width("\n".join(lines)))
 
