@@ -83,10 +83,12 @@ def test_export_of_an_edited_set_says_so(tmp_path):
                  "settings": [{"name": "my.top", "unit": "N", "source": "thrust_curve.thrust_max_N"}]}, "m.json")])
     assert "was edited" not in clean
     params.write_text(params.read_text().replace('"thrust_max_N": ', '"thrust_max_N": 1', 1))  # a person's edit
-    edited = " ".join(_ok(["export", params, "--map", tmp_path / "m.json"]).split())
-    assert "note: %s was edited since liftcal wrote it" % params in edited
+    # refused unless asked, then said first (new-user trial 7, finding 6; tests/test_bench_outputs_trial7.py)
+    refused(["export", params, "--map", tmp_path / "m.json"], "was EDITED since liftcal wrote it", "--from-edited")
+    edited = " ".join(_ok(["export", params, "--map", tmp_path / "m.json", "--from-edited"]).split())
+    assert edited.startswith("WARNING: %s was EDITED since liftcal wrote it" % params)
     assert PARAMS  # the shipped example set (no seal) is not called edited:
-    assert "was edited" not in _ok(["export", PARAMS])
+    assert "EDITED" not in _ok(["export", PARAMS])
 
 
 def test_static_answers_in_the_unit_it_was_asked_in():
