@@ -334,7 +334,7 @@ def test_fitted_sheet_gives_the_thrust_to_weight_reachable_before_the_cutoff(fit
     assert fitted_report["reachable_thrust_to_weight"] < fitted_report["thrust_to_weight"]
     assert fitted_report["reachable_command"] < 1.0
     # Thevenin pack: at that command the bus sits at the loaded cutoff, V = V_oc - R I_pack
-    from estimator.preflight.fitted_rotor import FittedRotor
+    from estimator.core.fitted_rotor import FittedRotor
     b = sagging["battery"]
     cutoff_V = b["cells"] * (b["empty_cell_V"] - 0.2)
     rotor = FittedRotor(params, fitted_report["density_kg_m3"])

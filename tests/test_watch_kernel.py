@@ -254,36 +254,45 @@ def test_thrust_estimate_matches_float_momentum_theory_within_1_percent():
 def test_expected_power_matches_float_power_model():
     from estimator.core.power_model import rotor_power_W
 
-    # DEVELOPERS.md power model at the thrust-curve thrust, times rotor count, density-corrected.
-    # Tolerance 1 %: Q12 fractions (0.05 %), 1/32 table steps in f (below 0.2 % at hover), 0.1 W units.
+    # DEVELOPERS.md power model at the thrust the CONFIG encodes (the controller curve's shape in
+    # command through the motor model's hover point in the site's air, the motor model's thrust
+    # factor in voltage: config.site_hover), times rotor count, density-corrected.
+    # Tolerance 1 %: Q12 fractions (0.05 %), 1/32 table steps in f (below 0.2 % at hover), 0.1 W
+    # units, linear voltage knots 1.5 V apart of a smooth factor (below 0.3 %).
+    from estimator.watch.config import site_hover
     params = demo_fit_params()
     cfg = make_config(params)[0]
     v = params["vehicle"]
     n, rho = v["rotor_count"], v["site_density_kg_m3"]
     pm = params["power_model"]
+    site = site_hover(params, v, rho, v["mass_kg"] * STANDARD_GRAVITY_M_S2 / n)
+    c = params["thrust_curve"]
     for u in (0.35, 0.45, 0.55, 0.65, 0.8):
         for volts in (14.2, 15.2, 16.4):
             w = Watch(as_tuple(cfg))
             for _ in range(30):   # 3 s at 100 ms: the 60 ms lag has settled (e^-50)
                 w.update(100, int(round(1000 * u)), int(volts * 1000), 20000 + _ % 2)
-            t = thrust_curve.thrust_N(u, volts, rho, params["thrust_curve"])
+            x = thrust_curve.command_to_x(u, c["command_min"], c.get("command_max", 1.0))
+            t = site["thrust_top_N"] * site["factor"](volts) * thrust_curve.curve_fraction(x, c["quadratic_share"])
             ref = n * rotor_power_W(pm, t, rho)  # the one power model (estimator.core.power_model)
             expected_dW = w.state[2] >> 2     # the lagged expected power (state slot 2, in 0.1 W / 4)
             assert abs(expected_dW / 10.0 - ref) / ref < 0.01, (u, volts, expected_dW, ref)
 
 
 def test_hover_command_matches_float_inversion():
-    # thrust_curve.hover_command (the float inversion of t(x)) at the present voltage; tolerance
-    # 3 permille: linear interpolation between voltage knots 0.4 V apart of a smooth curve.
+    # the fitted motor model's hover command in the site's air (config.site_hover) at the present
+    # voltage; tolerance 3 permille: linear interpolation between voltage knots of a smooth curve.
+    from estimator.watch.config import site_hover
     params = demo_fit_params()
     cfg = make_config(params)[0]
     v = params["vehicle"]
     weight = v["mass_kg"] * STANDARD_GRAVITY_M_S2 / v["rotor_count"]
+    site = site_hover(params, v, v["site_density_kg_m3"], weight)
     for volts in (14.0, 14.7, 15.5, 16.3):
         w = NamedWatch(as_tuple(cfg))
         for _ in range(10):   # slow outputs are refreshed once per block (1 s)
             w.update(100, 500, int(volts * 1000), 20000)
-        ref, _ = thrust_curve.hover_command(weight, volts, v["site_density_kg_m3"], params["thrust_curve"])
+        ref = site["hover_command"](volts)
         assert abs(w.hover_permille - 1000 * ref) <= 3, (volts, w.hover_permille, ref)
 
 

@@ -107,7 +107,7 @@ def sagged(truth, params):
     motor model (the hover sheet), each minus the truth's command at that held bus voltage
     (DC motor equivalent model + propeller coefficients, tests/truth_rotor.py)."""
     from estimator.core.thrust_curve import hover_command
-    from estimator.preflight.fitted_rotor import FittedRotor
+    from estimator.core.fitted_rotor import FittedRotor
 
     c = params["thrust_curve"]
     n_true = voltage_exponent(truth, c["reference_voltage_V"])

@@ -14,6 +14,7 @@ import os
 import numpy as np
 
 from estimator.cautions import SHORT
+from estimator.core.fitted_rotor import site_thrust_ratio
 from estimator.core.momentum import disk_area_m2
 from estimator.errors import InputError
 from estimator.jsonio import save_figure_atomic
@@ -101,12 +102,13 @@ def plot_fit(path, params, rows):
                 c_unit, curve["voltage_exponent"]))
     h = params.get("hover")
     if h:
-        # the curve at the hover bus voltage and the thrust each rotor needs (at bench air, through
-        # the density exponent): the hover command sits where they meet
+        # the curve at the hover bus voltage and the thrust each rotor needs in bench air (the
+        # motor model's thrust ratio at the hover thrust): the hover command sits where they meet
         v_h = h["voltage_V"]
         at_v = (v_h / curve["reference_voltage_V"]) ** curve["voltage_exponent"]
         rho_site = params["vehicle"]["site_density_kg_m3"]
-        need = h["thrust_per_rotor_N"] * (rho / rho_site) ** curve["density_exponent"]
+        need = h["thrust_per_rotor_N"] / site_thrust_ratio(params, rho_site, h["thrust_per_rotor_N"],
+                                                           params["vehicle"].get("layout") == "coaxial")
         ax.plot(cu(grid_u), tf * fit_t * at_v, "--", color="tab:green", lw=1.2,
                 label="curve at the hover bus voltage %.2f V" % v_h)
         ax.axhline(tf * need, color="tab:green", lw=0.8, ls=":")

@@ -1,6 +1,6 @@
 """Hover values of a vehicle from a fitted parameter set (instead of the datasheet model).
 
-The rotor is the set's fitted DC motor + propeller model (estimator.preflight.fitted_rotor).
+The rotor is the set's fitted DC motor + propeller model (estimator.preflight.fitted_vehicle).
 Each of N rotors holds T_r = m g / N on the vehicle's pack in the site's air (estimator.
 preflight.pack). The motor's own current on the sheet is eta_esc I with the vehicle's ESC
 efficiency (the fitted I is referred to the ESC input), the relation the datasheet route uses
@@ -16,7 +16,7 @@ from estimator.core.battery import endurance_min, max_pack_current_A, usable_cap
 from estimator.core.discharge import discharge_to_cutoff
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
 from estimator.core.power_model import rotor_static_factor
-from estimator.preflight.fitted_rotor import hover_load, reachable_at_cutoff, vehicle_state
+from estimator.preflight.fitted_vehicle import hover_load, reachable_at_cutoff, vehicle_state
 from estimator.preflight.hover_interval import FORM_INFLATION, INTERVAL_METHOD, INTERVAL_SCOPE, hover_interval
 from estimator.preflight.range_warnings import about_the_vehicle, command_range_warnings, voltage_range_warning
 from estimator.cautions import cautions

@@ -22,6 +22,7 @@ import math
 from estimator.core import thrust_curve
 from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.core.fitted_rotor import FittedRotor
 from estimator.errors import InputError
 from estimator.watch.named_watch import NamedWatch
 from estimator.watch.thrust_table import thrust_from_power_total_N, thrust_knots_mN
@@ -196,6 +197,33 @@ def _rotor_power_W(power_model, thrust_N, density_kg_m3):
     return rotor_power_W(power_model, thrust_N, density_kg_m3)
 
 
+def site_hover(params, v, rho, thrust_N):
+    """The fitted motor model (core.fitted_rotor) in the site's air around the hover.
+
+    At u_h, the command that holds thrust_N [N] per rotor on the nominal pack voltage: dict
+    command u_h [-], factor(V) = T(u_h, V) / T(u_h, V_ref) [-] of a bus voltage V [V],
+    thrust_top_N [N] the full-command thrust at V_ref that puts the controller curve's shape
+    through (u_h, T(u_h, V_ref)), hover_command(V) [-] at a bus voltage V [V] (1 where it cannot
+    hover). v: vehicle_facts; rho [kg/m^3]. None when the nominal pack cannot hover, the hover
+    command lies at the curve's intercept, or the set has no motor model (the kernel's range
+    tests build such sets by hand). Source: the DC motor model of the fit.
+    """
+    curve = params["thrust_curve"]
+    if "motor_model" not in params:
+        return None
+    rotor = FittedRotor(params, rho, v.get("layout") == "coaxial")
+    motor_V, _ = rotor.for_thrust(thrust_N)
+    duty = motor_V / (v.get("nominal_voltage_V") or curve["reference_voltage_V"])
+    u_min, u_max = curve["command_min"], curve.get("command_max", 1.0)
+    u_h = rotor.command(duty) if duty < 1.0 else None
+    if u_h is None or u_h <= u_min + 0.01 * (u_max - u_min):
+        return None
+    t_ref = rotor.at_motor_V(duty * curve["reference_voltage_V"])[0]
+    shape = thrust_curve.curve_fraction(thrust_curve.command_to_x(u_h, u_min, u_max), curve["quadratic_share"])
+    return {"command": u_h, "thrust_top_N": t_ref / shape,
+            "factor": lambda bus_V: rotor.at_motor_V(duty * bus_V)[0] / t_ref,
+            "hover_command": lambda bus_V: 1.0 if motor_V >= bus_V else min(1.0, rotor.command(motor_V / bus_V))}
+
 def make_config(params, vehicle=None, options=None, source="parameter set"):
     """Build (CONFIG, notes): CONFIG is a dict of ints / tuples of ints for liftwatch.Watch,
     notes maps each key to the float values it was made from (for the bundle's comments).
@@ -271,17 +299,34 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
         "offset and noise of the sensor)" % min(i_max, 300.0)))
     put("i_max_mA", int(round(min(i_max, 300.0) * 1000.0)), "current above this is a sensor fault [mA]")
 
-    n_exp, v_ref = curve["voltage_exponent"], curve["reference_voltage_V"]
-    volts = [(v_min_mV + i * v_step) / 1000.0 for i in range(13)]
-    # capped at 1.5 (6143): with t(x) <= 1 the power table's argument f = factor x t stays in its range
-    vq = [min(6143, int(round(4096.0 * (x / v_ref) ** n_exp))) for x in volts]
-    put("volt_q12", table(vq, "volt_q12", 6143), "(V / %.3f V)^%.4f x 4096 at the table voltages %.3f..%.3f V"
-        % (v_ref, n_exp, volts[0], volts[-1]))
+    # expected thrust from the fitted motor model in the site's air, where the watch judges: the
+    # thrust factor of each table voltage at the hover command, the full-command thrust that puts
+    # the controller curve through the hover point, the hover command at each voltage (the
+    # curve's exponents are full-command values: at a hover on a loaded motor in thin air they
+    # were 5-10 % off; site_hover)
     weight_N = mass_kg * STANDARD_GRAVITY_M_S2
-    hov = []
-    for x in volts:
-        u, _ = thrust_curve.hover_command(weight_N / n_rot, x, rho, curve)
-        hov.append(1000 if u is None else int(round(1000.0 * u)))
+    v_ref = curve["reference_voltage_V"]
+    volts = [(v_min_mV + i * v_step) / 1000.0 for i in range(13)]
+    site = site_hover(params, v, rho, weight_N / n_rot)
+    if site is None:   # no hover on the nominal pack: the curve's exponents
+        n_exp = curve["voltage_exponent"]
+        factors = [(x / v_ref) ** n_exp for x in volts]
+        t_site = curve["thrust_max_N"] * (rho / curve["reference_density_kg_m3"]) ** curve["density_exponent"]
+        hov = []
+        for x in volts:
+            u, _ = thrust_curve.hover_command(weight_N / n_rot, x, rho, curve)
+            hov.append(1000 if u is None else int(round(1000.0 * u)))
+        how = "(V / %.3f V)^%.4f (the curve's voltage exponent: no hover on the nominal pack)" % (v_ref, n_exp)
+    else:
+        factors = [site["factor"](x) for x in volts]
+        t_site = site["thrust_top_N"]
+        hov = [int(round(1000.0 * site["hover_command"](x))) for x in volts]
+        how = ("T(u_h, V) / T(u_h, %.3f V) of the motor model at rho %.4f kg/m^3, u_h = %.4f the hover command "
+               "on the nominal pack" % (v_ref, rho, site["command"]))
+    # capped at 1.5 (6143): with t(x) <= 1 the power table's argument f = factor x t stays in its range
+    vq = [min(6143, int(round(4096.0 * x))) for x in factors]
+    put("volt_q12", table(vq, "volt_q12", 6143), "%s x 4096 at the table voltages %.3f..%.3f V"
+        % (how, volts[0], volts[-1]))
     put("hover_table_permille", table(hov, "hover table", 1000), "hover command for %.3f kg on %d rotors at rho %.4f kg/m^3"
         % (mass_kg, n_rot, rho))
 
@@ -297,12 +342,11 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     spin = o["spin_command"] if o["spin_command"] is not None else u_min + 0.05
     put("spin_permille", int(round(1000.0 * spin)), "rotors spinning above command %.3f" % spin)
 
-    t_site = curve["thrust_max_N"] * (rho / curve["reference_density_kg_m3"]) ** curve["density_exponent"]
     p_tab = []
     for j in range(49):
         f = j * 128 / 4096.0
         p_tab.append(int(round(10.0 * n_rot * _rotor_power_W(pm, t_site * f, rho))))
-    f_top = min((1.05 * v_full / v_ref) ** n_exp, 1.5)  # full command at 1.05 x full pack voltage
+    f_top = min((1.05 * v_full / v_ref) ** curve["voltage_exponent"], 1.5)  # full command at 1.05 x full pack voltage
     # knots beyond 26 kW are capped: the sensor range (60 V x 300 A = 18 kW) ends before them,
     # so such power is out of range (a sensor fault) and never judged against the table
     p_tab = [min(p, (1 << 18) - 1) for p in p_tab]

@@ -1,19 +1,18 @@
-"""The fitted DC motor + propeller model of a parameter set at one air density (and layout):
-thrust, current and command of one rotor (FittedRotor), and a vehicle's N rotors on its
-sagging pack (vehicle_state at one pack voltage, reachable_at_cutoff, hover_load for the
-discharge to the cutoff), from which estimator.preflight.measured_rotor writes the report.
+"""The fitted DC motor + propeller model of a parameter set, for one rotor, in scalar form.
 
-liftcal's own predictions come from the DC motor + propeller model fitted to the sweep (the
-parameter set's motor_model block, estimator.bench.motor_fit), in back-EMF form:
+The parameter set's motor_model block (fitted to a bench sweep by estimator.bench.motor_fit,
+which holds the same model in vectorised form for the fit) in back-EMF form:
 T = a s^2, I = I0 + b s + c s^2, Vm = s + R I, duty d = Vm / V_bus, command
-u = u0 + (u1 - u0) d^(1/g), bus current I_q + d I per rotor; a and c grow as the air
-density. The pack sags as V_bus = V_oc - R_pack I_pack (Thevenin pack, design notes sec. 3),
-solved in closed form for hover and by bisection at full command. The bench measures the
-supply current, so the fitted I carries the ESC's loss (it is the ESC input power over Vm).
-The command where the rotor starts turning is u0; the controller quadratic's intercept
-command_min is never used as a duty offset. Coaxial pairs: the torque current is raised by
-power_model.coaxial_shaft_ratio, the same rule the datasheet route applies to CP (only the
-ideal induced power is multiplied by the coaxial factor).
+u = u0 + (u1 - u0) d^(1/g), bus current I_q + d I per rotor; a and c grow as the air density
+(thrust and torque at fixed speed scale as rho). The bench measures the supply current, so the
+fitted I carries the ESC's loss (it is the ESC input power over Vm). The command where the
+rotor starts turning is u0; the controller quadratic's intercept command_min is never used as
+a duty offset. Coaxial pairs: the torque current is raised by power_model.coaxial_shaft_ratio,
+the same rule the datasheet route applies to CP (only the ideal induced power is multiplied by
+the coaxial factor). Used by the pre-flight sheet from a set (estimator.preflight.fitted_vehicle)
+and the watch's CONFIG (estimator.watch.config.site_hover: the bench's thrust in the site's air).
+Source: the DC motor model (Hughes, Electric Motors and Drives, ch. 3, from memory) with the
+propeller's T ~ rho n^2, Q ~ rho n^2 at fixed coefficients.
 """
 
 import math
@@ -21,7 +20,6 @@ import math
 from estimator.core.battery import sagged_bus_V
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
 from estimator.core.power_model import coaxial_shaft_ratio
-from estimator.units import STANDARD_GRAVITY_M_S2
 
 BISECTION_STEPS = 60
 
@@ -111,62 +109,20 @@ class FittedRotor:
         return {"duty": lo, "command": self.command(lo), "thrust_N": self.at_motor_V(lo * bus_V)[0]}
 
 
-def vehicle_state(params, vehicle, rho, open_circuit_V):
-    """Hover and full-command values of a vehicle's N fitted rotors at one pack voltage.
+def site_thrust_ratio(params, density_kg_m3, thrust_N, coaxial=False):
+    """Thrust in other air over thrust at the bench, at the motor voltage that holds thrust_N there.
 
-    params: validated parameter set; vehicle: checked vehicle whose battery is the pack in the
-    air (preflight.pack); rho: site air density [kg/m^3]; open_circuit_V: pack V_oc [V]. Returns
-    a dict: weight_N, thrust_per_rotor_N, power_W, bus_V, command, fraction, current_A,
-    limited_by ("pack", "command" or None), duty, motor_current_A, the full_* values at full
-    command, and the FittedRotor itself (rotor).
+    T_site / T_bench at one command and bus voltage (one motor voltage Vm): the motor model at
+    density_kg_m3 holds thrust_N [N] at Vm; at the bench's density the same Vm gives T_bench.
+    A single power law (rho / rho_bench)^m cannot carry this: m = d ln T / d ln rho =
+    (1 + R b) / (1 + R b + 2 R c s) falls with the load (about 1 near idle, 0.7-0.8 at full
+    command on a loaded motor), so the ratio is taken where it is used. density_kg_m3
+    [kg/m^3]; thrust_N [N] > 0 per rotor; params: parameter-set dict [-]; coaxial: bool [-].
+    Returns the ratio [-]. Source: the DC motor model above, solved at both densities.
     """
-    count = vehicle["rotors"]["count"]
-    rotor = FittedRotor(params, rho, vehicle["rotors"].get("layout", "flat") == "coaxial")
-    weight = vehicle["mass_kg"] * STANDARD_GRAVITY_M_S2
-    t_r = weight / count
-    r_pack = vehicle["battery"]["resistance_ohm"]
-    h = rotor.hover(t_r, count, open_circuit_V, r_pack)
-    f = rotor.full(count, open_circuit_V, r_pack)
-    out = {"weight_N": weight, "thrust_per_rotor_N": t_r, "open_circuit_V": open_circuit_V,
-           "power_W": h["power_W"], "bus_V": h["bus_V"], "command": h["command"], "fraction": None,
-           "current_A": h["pack_current_A"], "limited_by": None, "duty": h["duty"],
-           "motor_current_A": h["motor_current_A"],
-           "full_thrust_N": count * f["thrust_N"], "full_power_W": f["pack_current_A"] * f["bus_V"],
-           "full_bus_V": f["bus_V"], "full_pack_current_A": f["pack_current_A"],
-           "full_motor_current_A": f["motor_current_A"], "rotor": rotor}
-    if h["bus_V"] is None:
-        out["limited_by"] = "pack"
-        return out
-    t_at_bus, _ = rotor.at_motor_V(h["bus_V"])
-    out["fraction"] = t_r / t_at_bus if t_at_bus > 0.0 else None
-    if h["command"] is None:
-        out["limited_by"] = "command"
-    return out
-
-
-def reachable_at_cutoff(state, battery, rotors):
-    """reachable_command [-] and reachable_thrust_to_weight [-] on the nominal pack: the command
-    that holds the bus at the loaded cutoff and the thrust-to-weight there (as the datasheet
-    route's core.hover.reachable_at_cutoff); None when full command keeps the cutoff."""
-    cutoff_V = battery["cells"] * battery["cutoff_cell_V"]
-    if state["full_bus_V"] >= cutoff_V or state["open_circuit_V"] <= cutoff_V:
-        return {"reachable_command": None, "reachable_thrust_to_weight": None}
-    at = state["rotor"].at_bus_V(rotors, cutoff_V, battery["resistance_ohm"], state["open_circuit_V"])
-    return {"reachable_command": at["command"],
-            "reachable_thrust_to_weight": rotors * at["thrust_N"] / state["weight_N"]}
-
-
-def hover_load(params, vehicle, rho):
-    """The hover load of the fitted model as core.discharge.discharge_to_cutoff takes it.
-
-    vehicle: checked vehicle whose battery is already the pack in the air (preflight.pack);
-    params: validated parameter set; rho: site air density [kg/m^3]. Returns a function of the
-    pack open-circuit voltage [V] giving (pack current [A], bus voltage [V]) at hover, or None
-    where the vehicle cannot hover (vehicle_state, one per call).
-    """
-    def load(open_circuit_V):
-        state = vehicle_state(params, vehicle, rho, open_circuit_V)
-        if state["command"] is None:
-            return None
-        return state["current_A"], state["bus_V"]
-    return load
+    mm = params["motor_model"]
+    site = FittedRotor(params, density_kg_m3, coaxial)
+    bench = FittedRotor(params, mm["reference_density_kg_m3"], coaxial)
+    motor_V, _ = site.for_thrust(thrust_N)
+    bench_N, _ = bench.at_motor_V(motor_V)
+    return thrust_N / bench_N if bench_N > 0.0 else 1.0
