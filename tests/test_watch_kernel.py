@@ -256,10 +256,10 @@ def test_expected_power_matches_float_power_model():
 
     # DEVELOPERS.md power model at the thrust the CONFIG encodes (the controller curve's shape in
     # command through the motor model's hover point in the site's air, the motor model's thrust
-    # factor in voltage: config.site_hover), times rotor count, density-corrected.
+    # factor in voltage: site_air.site_hover), times rotor count, density-corrected.
     # Tolerance 1 %: Q12 fractions (0.05 %), 1/32 table steps in f (below 0.2 % at hover), 0.1 W
     # units, linear voltage knots 1.5 V apart of a smooth factor (below 0.3 %).
-    from estimator.watch.config import site_hover
+    from estimator.watch.site_air import site_hover
     params = demo_fit_params()
     cfg = make_config(params)[0]
     v = params["vehicle"]
@@ -280,9 +280,9 @@ def test_expected_power_matches_float_power_model():
 
 
 def test_hover_command_matches_float_inversion():
-    # the fitted motor model's hover command in the site's air (config.site_hover) at the present
+    # the fitted motor model's hover command in the site's air (site_air.site_hover) at the present
     # voltage; tolerance 3 permille: linear interpolation between voltage knots of a smooth curve.
-    from estimator.watch.config import site_hover
+    from estimator.watch.site_air import site_hover
     params = demo_fit_params()
     cfg = make_config(params)[0]
     v = params["vehicle"]

@@ -22,9 +22,9 @@ import math
 from estimator.core import thrust_curve
 from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
-from estimator.core.fitted_rotor import FittedRotor
 from estimator.errors import InputError
 from estimator.watch.named_watch import NamedWatch
+from estimator.watch.site_air import expected_thrust
 from estimator.watch.thrust_table import thrust_from_power_total_N, thrust_knots_mN
 
 LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports; every kernel value stays below
@@ -197,33 +197,6 @@ def _rotor_power_W(power_model, thrust_N, density_kg_m3):
     return rotor_power_W(power_model, thrust_N, density_kg_m3)
 
 
-def site_hover(params, v, rho, thrust_N):
-    """The fitted motor model (core.fitted_rotor) in the site's air around the hover.
-
-    At u_h, the command that holds thrust_N [N] per rotor on the nominal pack voltage: dict
-    command u_h [-], factor(V) = T(u_h, V) / T(u_h, V_ref) [-] of a bus voltage V [V],
-    thrust_top_N [N] the full-command thrust at V_ref that puts the controller curve's shape
-    through (u_h, T(u_h, V_ref)), hover_command(V) [-] at a bus voltage V [V] (1 where it cannot
-    hover). v: vehicle_facts; rho [kg/m^3]. None when the nominal pack cannot hover, the hover
-    command lies at the curve's intercept, or the set has no motor model (the kernel's range
-    tests build such sets by hand). Source: the DC motor model of the fit.
-    """
-    curve = params["thrust_curve"]
-    if "motor_model" not in params:
-        return None
-    rotor = FittedRotor(params, rho, v.get("layout") == "coaxial")
-    motor_V, _ = rotor.for_thrust(thrust_N)
-    duty = motor_V / (v.get("nominal_voltage_V") or curve["reference_voltage_V"])
-    u_min, u_max = curve["command_min"], curve.get("command_max", 1.0)
-    u_h = rotor.command(duty) if duty < 1.0 else None
-    if u_h is None or u_h <= u_min + 0.01 * (u_max - u_min):
-        return None
-    t_ref = rotor.at_motor_V(duty * curve["reference_voltage_V"])[0]
-    shape = thrust_curve.curve_fraction(thrust_curve.command_to_x(u_h, u_min, u_max), curve["quadratic_share"])
-    return {"command": u_h, "thrust_top_N": t_ref / shape,
-            "factor": lambda bus_V: rotor.at_motor_V(duty * bus_V)[0] / t_ref,
-            "hover_command": lambda bus_V: 1.0 if motor_V >= bus_V else min(1.0, rotor.command(motor_V / bus_V))}
-
 def make_config(params, vehicle=None, options=None, source="parameter set"):
     """Build (CONFIG, notes): CONFIG is a dict of ints / tuples of ints for liftwatch.Watch,
     notes maps each key to the float values it was made from (for the bundle's comments).
@@ -307,22 +280,7 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     weight_N = mass_kg * STANDARD_GRAVITY_M_S2
     v_ref = curve["reference_voltage_V"]
     volts = [(v_min_mV + i * v_step) / 1000.0 for i in range(13)]
-    site = site_hover(params, v, rho, weight_N / n_rot)
-    if site is None:   # no hover on the nominal pack: the curve's exponents
-        n_exp = curve["voltage_exponent"]
-        factors = [(x / v_ref) ** n_exp for x in volts]
-        t_site = curve["thrust_max_N"] * (rho / curve["reference_density_kg_m3"]) ** curve["density_exponent"]
-        hov = []
-        for x in volts:
-            u, _ = thrust_curve.hover_command(weight_N / n_rot, x, rho, curve)
-            hov.append(1000 if u is None else int(round(1000.0 * u)))
-        how = "(V / %.3f V)^%.4f (the curve's voltage exponent: no hover on the nominal pack)" % (v_ref, n_exp)
-    else:
-        factors = [site["factor"](x) for x in volts]
-        t_site = site["thrust_top_N"]
-        hov = [int(round(1000.0 * site["hover_command"](x))) for x in volts]
-        how = ("T(u_h, V) / T(u_h, %.3f V) of the motor model at rho %.4f kg/m^3, u_h = %.4f the hover command "
-               "on the nominal pack" % (v_ref, rho, site["command"]))
+    factors, t_site, hov, how = expected_thrust(params, v, rho, weight_N / n_rot, volts)
     # capped at 1.5 (6143): with t(x) <= 1 the power table's argument f = factor x t stays in its range
     vq = [min(6143, int(round(4096.0 * x))) for x in factors]
     put("volt_q12", table(vq, "volt_q12", 6143), "%s x 4096 at the table voltages %.3f..%.3f V"
