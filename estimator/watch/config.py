@@ -19,7 +19,6 @@ and 168 two-sided, the published table values (design notes sec. 3a).
 
 import math
 
-from estimator.core import thrust_curve
 from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.errors import InputError
