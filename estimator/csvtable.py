@@ -40,6 +40,8 @@ MAX_HEAD_LINES = 10000
 # liftcal itself speaks on the board (Watch.update, the exported hover command). The inverse of
 # units.COMMAND_SHOWN, the one table of command units (exact in floats: 1 / 1000 is 0.001).
 COMMAND_UNITS = {unit: (1.0 / scale, -offset / scale) for unit, (scale, offset, _, _) in COMMAND_SHOWN.items()}
+# a time column of a bench sweep or a flight log: unit -> (scale, offset) to seconds
+TIME_UNITS = {"s": (1.0, 0.0), "ms": (1e-3, 0.0)}
 
 
 class Head:

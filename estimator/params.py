@@ -16,6 +16,7 @@ from estimator.errors import InputError
 from estimator.core.momentum import disk_area_m2
 from estimator.core.power_model import KEYS as POWER_KEYS, rotor_static_factor
 from estimator.jsonio import load_json, validate, write_json_atomic
+from estimator.units import INCH_M
 
 MODEL = "liftcal.rotor/1"
 POWER_FORM = "p0+p_h*T^0.5+p_1*T+p_15*T^1.5+p_2*T^2"
@@ -255,7 +256,7 @@ def check_vehicle_match(params, vehicle, params_source, vehicle_source=None, jso
             "(%.1f in), %.0f %% apart; beyond %.0f %% it is another propeller (thrust at equal speed "
             "grows as D^4: 5 %% is 22 %%), so this fit says nothing about it: sweep the vehicle's "
             "propeller, or use the parameter set fitted on it"
-            % (params_source, json_paths and ": $.rotor.diameter_m" or "", fitted, fitted / 0.0254, vsrc, mine, mine / 0.0254,
+            % (params_source, json_paths and ": $.rotor.diameter_m" or "", fitted, fitted / INCH_M, vsrc, mine, mine / INCH_M,
                100.0 * abs(mine / fitted - 1.0), 100.0 * DIAMETER_MATCH_TOLERANCE))
     curve = params["thrust_curve"]
     lo = curve.get("voltage_min_V") or curve["reference_voltage_V"]

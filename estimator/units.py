@@ -11,15 +11,20 @@ from estimator.errors import InputError, shorten
 
 from estimator.core.constants import CELSIUS_ZERO_K, STANDARD_GRAVITY_M_S2  # one home: the core
 
+# exact by definition (NIST SP 811, appendix B): 1 in = 0.0254 m, 1 ft = 0.3048 m, 1 lb = 0.45359237 kg
+INCH_M = 0.0254
+FOOT_M = 0.3048
+POUND_KG = 0.45359237
+
 # kind -> {suffix: (scale, offset)} so that SI = value * scale + offset
 _UNITS = {
-    "mass": {"kg": (1.0, 0.0), "g": (1e-3, 0.0), "lb": (0.45359237, 0.0), "oz": (0.028349523125, 0.0)},
-    "length": {"m": (1.0, 0.0), "cm": (1e-2, 0.0), "mm": (1e-3, 0.0), "in": (0.0254, 0.0), "ft": (0.3048, 0.0)},
-    "altitude": {"m": (1.0, 0.0), "km": (1e3, 0.0), "ft": (0.3048, 0.0)},
+    "mass": {"kg": (1.0, 0.0), "g": (1e-3, 0.0), "lb": (POUND_KG, 0.0), "oz": (POUND_KG / 16.0, 0.0)},
+    "length": {"m": (1.0, 0.0), "cm": (1e-2, 0.0), "mm": (1e-3, 0.0), "in": (INCH_M, 0.0), "ft": (FOOT_M, 0.0)},
+    "altitude": {"m": (1.0, 0.0), "km": (1e3, 0.0), "ft": (FOOT_M, 0.0)},
     "force": {
         "N": (1.0, 0.0), "mN": (1e-3, 0.0), "gf": (1e-3 * STANDARD_GRAVITY_M_S2, 0.0),
         "g": (1e-3 * STANDARD_GRAVITY_M_S2, 0.0), "kgf": (STANDARD_GRAVITY_M_S2, 0.0),
-        "lbf": (0.45359237 * STANDARD_GRAVITY_M_S2, 0.0),
+        "lbf": (POUND_KG * STANDARD_GRAVITY_M_S2, 0.0),
     },
     "power": {"W": (1.0, 0.0), "kW": (1e3, 0.0), "mW": (1e-3, 0.0)},
     "temperature": {"C": (1.0, 0.0), "degC": (1.0, 0.0), "K": (1.0, -CELSIUS_ZERO_K), "F": (5.0 / 9.0, -32.0 * 5.0 / 9.0)},
@@ -120,7 +125,7 @@ def parse_propeller_size(text, what="size"):
         mm = float(m.group(1)) * 1e-3
         raise InputError("%s: %s has no unit, so it reads as inches (%s in = %.3g m), larger than any "
                          "multirotor propeller; did you mean %smm (%.3g m)? write the unit: \"%smm\" "
-                         "or \"%sin\"" % (what, shorten(str(text)), m.group(1), float(m.group(1)) * 0.0254,
+                         "or \"%sin\"" % (what, shorten(str(text)), m.group(1), float(m.group(1)) * INCH_M,
                                           str(text).strip(), mm, str(text).strip(), str(text).strip()))
     if unit not in _UNITS["length"]:
         raise InputError("%s: unknown unit %s in %s; use one of %s"

@@ -17,6 +17,7 @@ import re
 
 from estimator.errors import InputError
 from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
+from estimator.units import INCH_M
 from estimator.vehicle_units import BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS
 from estimator.vehicle_units import normalise, propeller_notes  # noqa: F401 (normalise: also this module's API)
 from estimator.vehicle_units import written_unit_slip
@@ -283,7 +284,7 @@ def _check_physics(vehicle, source):
     if "ct" not in prop or "cp" not in prop:
         pitch, diameter = prop["pitch_m"], prop["diameter_m"]
         if pitch > PITCH_RATIO_MAX * diameter:
-            inches = pitch * 0.0254  # 1 in = 0.0254 m (NIST SP 811)
+            inches = pitch * INCH_M
             hint = ("inches meant? (%g in = %.4g m)" % (pitch, inches)
                     if PITCH_RATIO_MIN <= inches / diameter <= PITCH_RATIO_MAX
                     else "diameter and pitch swapped?")

@@ -14,7 +14,7 @@ REQUIRED = ("command", "voltage", "current", "thrust")
 # optional columns: name -> {unit as written: (scale, offset)} to SI (rpm -> rad/s,
 # temperature in C as estimator.units takes it); checked as numbers, not used by the fit
 OPTIONAL = {
-    "time": {"s": (1.0, 0.0), "ms": (1e-3, 0.0)},
+    "time": csvtable.TIME_UNITS,
     "rpm": {"rpm": (RAD_S_PER_RPM, 0.0)},
     "torque": {"N*m": (1.0, 0.0), "mN*m": (1e-3, 0.0)},
     "temperature": unit_factors("temperature", ("C", "K")),

@@ -16,7 +16,7 @@ import random
 
 from estimator.core.atmosphere import site_air
 from estimator.core.motor import rotor_operating_point
-from estimator.units import STANDARD_GRAVITY_M_S2
+from estimator.units import INCH_M, POUND_KG, STANDARD_GRAVITY_M_S2
 
 # INVENTED bench scenario (all values made up for the demo)
 BENCH_ALTITUDE_M = 300.0
@@ -33,7 +33,7 @@ THRUST_NOISE_N = (0.02, 0.004)           # (absolute [N], relative [-]) sigma
 CURRENT_NOISE_A = (0.03, 0.005)          # (absolute [A], relative [-]) sigma
 VOLTAGE_NOISE_V = 0.005                  # [V] sigma
 THRUST_SCALE = {"N": 1.0, "g": 1000.0 / STANDARD_GRAVITY_M_S2, "gf": 1000.0 / STANDARD_GRAVITY_M_S2,
-                "kgf": 1.0 / STANDARD_GRAVITY_M_S2, "lbf": 1.0 / (0.45359237 * STANDARD_GRAVITY_M_S2)}
+                "kgf": 1.0 / STANDARD_GRAVITY_M_S2, "lbf": 1.0 / (POUND_KG * STANDARD_GRAVITY_M_S2)}
 
 
 def demo_rotor():
@@ -107,7 +107,7 @@ def simulate_sweep(seed=1, thrust_unit="g", command_unit="us", supply_voltages_V
     if air_comment:
         lines += ["# altitude: %g" % BENCH_ALTITUDE_M, "# temperature: %g" % BENCH_TEMPERATURE_C]
     if diameter_comment:
-        lines.append("# diameter: %gin" % round(propeller["diameter_m"] / 0.0254, 3))
+        lines.append("# diameter: %gin" % round(propeller["diameter_m"] / INCH_M, 3))
     lines.append("time[s],command[%s],voltage[V],current[A],thrust[%s]" % (command_unit, thrust_unit))
     rows = []
     time_s = 0.0

@@ -26,7 +26,6 @@ from estimator.watch.named_watch import NamedWatch
 from estimator.watch.site_air import expected_thrust
 from estimator.watch.thrust_table import thrust_from_power_total_N, thrust_knots_mN
 
-LIMIT = 1 << 30  # small-int limit of 32-bit MicroPython ports; every kernel value stays below
 
 DEFAULTS = {
     "false_alarms_per_hour": 1e-6,  # target false power alarms per flight hour for independent blocks

@@ -12,26 +12,27 @@ are seconds from the log's first row (a logger's clock may count from 1970).
 import sys
 
 from estimator.core.watch_layout import FLAG_BITS
-from estimator.csvtable import COMMAND_UNITS
+from estimator.csvtable import COMMAND_UNITS, TIME_UNITS
 from estimator.errors import InputError
+from estimator.units import unit_factors
 from estimator.watch.config import make_config, new_watch, vehicle_facts
 from estimator.watch.fault_causes import StuckTimer, fault_cause, in_range
 from estimator.watch.log_checks import check_plausible, check_time, check_vehicle
 
 KINDS = FLAG_BITS
-ALARM_BITS = 1 | 2 | 8 | 16
 PROGRESS_ROWS = 100000  # logs longer than this get a progress bar (stderr, terminals only)
 
 # unit -> (scale, offset): permille = (value + offset) * scale, from the one command unit
 # table (estimator.csvtable.COMMAND_UNITS: command [-] = value * s + o); exact in floats
 _COMMAND_UNITS = {unit: (1000.0 * s, o / s) for unit, (s, o) in COMMAND_UNITS.items()}
-_VOLT_UNITS = {"V": 1000.0, "mV": 1.0}
-_AMP_UNITS = {"A": 1000.0, "mA": 1.0}
+# unit -> factor to mV, mA and s, from the one unit tables (estimator.units, csvtable.TIME_UNITS)
+_VOLT_UNITS = {u: 1000.0 * s for u, (s, _) in unit_factors("voltage", ("V", "mV")).items()}
+_AMP_UNITS = {u: 1000.0 * s for u, (s, _) in unit_factors("current", ("A", "mA")).items()}
+_TIME_UNITS = {u: s for u, (s, _) in TIME_UNITS.items()}
 
 
 EXAMPLE_HEADER = "time[s],command[-],voltage[V],current[A]"
-_TIME_UNITS = {"s": 1.0, "ms": 0.001}
-COLUMNS = {"time": {"s": (1.0, 0.0), "ms": (0.001, 0.0)}, "command": _COMMAND_UNITS, "voltage": _VOLT_UNITS,
+COLUMNS = {"time": TIME_UNITS, "command": _COMMAND_UNITS, "voltage": _VOLT_UNITS,
            "current": _AMP_UNITS}
 
 
