@@ -1,10 +1,14 @@
 """The DC motor + propeller model of a bench sweep in back-EMF form (the model bench.motor_fit
-fits; its equations and sources: that module's docstring): thrust and bus current per row, their
-derivatives in the packed fit parameters, and the voltage and density exponents it implies."""
+fits; its equations and sources: that module's docstring) over a sweep's rows: thrust and bus
+current per row (the forward equations: core.fitted_rotor.motor_point, with the command's duty
+here), their derivatives in the packed fit parameters, and the voltage and density exponents it
+implies."""
 
 import math
 
 import numpy as np
+
+from estimator.core.fitted_rotor import motor_point
 
 NAMES = ("thrust_per_V2_N", "current_per_V2_A", "resistance_ohm", "no_load_current_A",
          "command_start", "command_top", "duty_exponent", "esc_idle_current_A", "speed_current_A_per_V")
@@ -21,12 +25,8 @@ def rotor_arrays(theta, command, voltage_V, density_ratio=1.0):
     x = np.clip((np.asarray(command, dtype=float) - u0) / max(u1 - u0, 1e-6), 0.0, 1.0)
     d = x ** g
     vm = d * voltage_V
-    drive = vm - r * i0
-    lin = 1.0 + r * b
-    root = np.sqrt(lin * lin + 4.0 * r * c * np.maximum(drive, 0.0))
-    s = np.where(drive > 0.0, 2.0 * drive / (lin + root), 0.0)
-    im = np.where(drive > 0.0, i0 + b * s + c * s * s, vm / r)
-    return a * s * s, iq + d * im, vm, im, d
+    t, im = motor_point(a, c, r, i0, b, vm, np.sqrt)
+    return t, iq + d * im, vm, im, d
 
 
 def rotor_jacobian(p, command, voltage_V):

@@ -49,13 +49,8 @@ class FittedRotor:
         return s + self.r * i, i
 
     def at_motor_V(self, motor_V):
-        """(thrust [N], motor current [A]) at motor voltage Vm [V]."""
-        drive = motor_V - self.r * self.i0
-        if drive <= 0.0:
-            return 0.0, motor_V / self.r if self.r > 0.0 else 0.0
-        lin = 1.0 + self.r * self.b
-        s = 2.0 * drive / (lin + math.sqrt(lin * lin + 4.0 * self.r * self.c * drive))
-        return self.a * s * s, self.i0 + self.b * s + self.c * s * s
+        """(thrust [N], motor current [A]) at motor voltage Vm [V] (motor_point)."""
+        return motor_point(self.a, self.c, self.r, self.i0, self.b, motor_V)
 
     def command(self, duty):
         """Command [-] that gives duty [-] (above the spin-up u0)."""
@@ -107,6 +102,26 @@ class FittedRotor:
             else:
                 lo = mid
         return {"duty": lo, "command": self.command(lo), "thrust_N": self.at_motor_V(lo * bus_V)[0]}
+
+
+def motor_point(a, c, r, i0, b, motor_V, sqrt=math.sqrt):
+    """Thrust T [N] and motor current I [A] of the back-EMF model at a motor voltage Vm [V].
+
+    The speed term s (back-EMF [V]) solves R c s^2 + (1 + R b) s - (Vm - R I0) = 0, taken in the
+    cancellation-free form s = 2 D / (L + sqrt(L^2 + 4 R c D)), D = Vm - R I0, L = 1 + R b;
+    then T = a s^2 and I = I0 + b s + c s^2; below spin-up (D <= 0) s = 0 and I = Vm / R (0 for
+    R = 0). a [N/V^2], c [A/V^2], r [ohm], i0 [A], b [A/V]; motor_V [V], a float or (the bench
+    fit's rows) a numpy array with sqrt: numpy.sqrt (the square root [-] to use; math.sqrt for a
+float): written with operators only. The one copy
+    of the model's forward equations (the fit's Jacobian, estimator.bench.rotor_model,
+    differentiates them). Source: the DC motor model (module docstring).
+    """
+    on = motor_V - r * i0 > 0.0
+    drive = (motor_V - r * i0) * on
+    lin = 1.0 + r * b
+    s = 2.0 * drive / (lin + sqrt(lin * lin + 4.0 * r * c * drive))
+    stalled = motor_V / r if r > 0.0 else 0.0 * motor_V
+    return a * s * s, on * (i0 + b * s + c * s * s) + (1 - on) * stalled
 
 
 def site_thrust_ratio(params, density_kg_m3, thrust_N, coaxial=False):
