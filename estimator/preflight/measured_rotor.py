@@ -21,9 +21,9 @@ from estimator.preflight.hover_interval import FORM_INFLATION, INTERVAL_METHOD, 
 from estimator.preflight.range_warnings import about_the_vehicle, command_range_warnings, voltage_range_warning
 from estimator.cautions import cautions
 from estimator.preflight.pack import pack_in_the_air, pack_keys
-from estimator.preflight.warnings import full_command_sag, judged_currents, margin_warnings, vehicle_site_air
+from estimator.preflight.warnings import full_command_sag, judged_currents, margin_warnings
 from estimator.units import COMMAND_SHOWN, commands_in_unit
-from estimator.vehicle import assumed_warnings, given_text, vehicle_source
+from estimator.vehicle import assumed_warnings, given_text, vehicle_air, vehicle_source
 
 # a parameter set's hover block for a vehicle (hover_block): values (the block, None when the
 # vehicle cannot hover), warnings (those about the vehicle, which the set keeps), refusal (why
@@ -44,7 +44,7 @@ def hover_from_params(vehicle, params, command_unit="-"):
     thrust_to_weight [-], hover_current_A [A], hover_power_W [W], flight_time_min [min],
     warnings, and the keys the pre-flight sheet shows.
     """
-    air = vehicle_site_air(vehicle)
+    air = vehicle_air(vehicle)
     rho = air["density_kg_m3"]
     b, pack_temperature, pack_basis = pack_in_the_air(vehicle, air)
     raw_vehicle, vehicle = vehicle, dict(vehicle, battery=b)

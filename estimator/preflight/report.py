@@ -16,10 +16,10 @@ from estimator.preflight.low_reynolds import (endurance_lead, fallback_figure_of
                                               hover_warning as low_reynolds_warning)
 from estimator.preflight.propeller_estimate import estimated_propeller, low_reynolds_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
-from estimator.vehicle import assumed_warnings, given_text
+from estimator.vehicle import assumed_warnings, given_text, vehicle_air
 from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT,  # noqa: F401 (preflight.plots reads it here)
                                          full_command_sag, judged_currents, judged_thrust_to_weight,
-                                         margin_warnings, not_flyable_reasons, vehicle_site_air)
+                                         margin_warnings, not_flyable_reasons)
 
 # the sheet of a report lives in its own module (preflight.sheet); its names stay importable here
 from estimator.preflight.sheet import (CAUTIONS, DUTY_NOTE, MODEL, coaxial_text,  # noqa: F401,E402
@@ -55,7 +55,7 @@ def _report(vehicle, params=None):
         return _fitted_report(vehicle, params, checks)
 
     site = vehicle.get("site", {})
-    air = vehicle_site_air(vehicle)
+    air = vehicle_air(vehicle)
     rho = air["density_kg_m3"]
     rotors = vehicle["rotors"]
     layout = rotors.get("layout", "flat")

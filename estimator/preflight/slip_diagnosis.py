@@ -26,7 +26,7 @@ import re
 
 from estimator.core.constants import SEA_LEVEL_DENSITY_KG_M3, STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2
-from estimator.units import plain_number
+from estimator.units import INCH_M, plain_number
 from estimator.vehicle import given_text
 from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, PACK_SPECIFIC_ENERGY_WH_KG
 
@@ -41,8 +41,8 @@ _SLIPS = {
                               (0.1, "a misplaced decimal point"), (10.0, "a misplaced decimal point")),
     "$.motor.kv_rpm_per_V": ((0.1, "a digit too many"), (10.0, "a digit short")),
 }
-# 1 in = 0.0254 m, 1 cm = 0.01 m, 1 mm = 0.001 m (NIST SP 811, exact)
-_LENGTH_UNITS = (("in", 0.0254), ("cm", 0.01), ("mm", 0.001), ("m", 1.0))
+# 1 in = units.INCH_M, 1 cm = 0.01 m, 1 mm = 0.001 m (NIST SP 811, exact)
+_LENGTH_UNITS = (("in", INCH_M), ("cm", 0.01), ("mm", 0.001), ("m", 1.0))
 # the diameter and the unit of a written size or diameter ("5.1x4.6cm", "31mm", "7x4")
 _WRITTEN_LENGTH = re.compile(r"^\s*([0-9]*\.?[0-9]+)\s*(?:[xX*]\s*[0-9]*\.?[0-9]+)?\s*([A-Za-z]*)\s*$")
 

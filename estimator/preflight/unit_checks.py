@@ -15,6 +15,7 @@ import re
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2, figure_of_merit
 from estimator.preflight.slip_diagnosis import whole_vehicle_slip, whole_vehicle_warning
+from estimator.units import INCH_M
 from estimator.vehicle import given_text
 # the typical ranges live with the vehicle file's unit reading (one home)
 from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, PACK_SPECIFIC_ENERGY_WH_KG
@@ -62,8 +63,8 @@ def _written_hint(value, unit, plausible, fmt="%.3g"):
 
 
 # length units tried when a diameter gives a disk loading no small multirotor has: (unit, metres
-# per unit, word), 1 in = 0.0254 m, 1 cm = 0.01 m, 1 mm = 0.001 m (NIST SP 811, exact)
-LENGTH_SLIPS = (("in", 0.0254, "inches"), ("cm", 0.01, "centimetres"), ("mm", 0.001, "millimetres"))
+# per unit, word), 1 in = units.INCH_M, 1 cm = 0.01 m, 1 mm = 0.001 m (NIST SP 811, exact)
+LENGTH_SLIPS = (("in", INCH_M, "inches"), ("cm", 0.01, "centimetres"), ("mm", 0.001, "millimetres"))
 
 
 def _size_slip(vehicle, mass, count):
@@ -228,4 +229,4 @@ def params_propeller_warning(vehicle, params):
     return ("the parameter set was fitted on a %.3f m (%.1f in) propeller but the vehicle file has "
             "%.3f m (%.1f in): thrust, power and hover command below are those of the bench "
             "propeller, not this one; sweep this propeller on the bench, or correct the vehicle file"
-            % (fitted, fitted / 0.0254, mine, mine / 0.0254))
+            % (fitted, fitted / INCH_M, mine, mine / INCH_M))

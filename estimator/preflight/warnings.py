@@ -19,13 +19,6 @@ FLYABLE_HOVER_COMMAND = 0.8
 THIN_AIR_DENSITY_RATIO = 0.9  # below 90 % of 1.225 kg/m^3 thrust margins shrink noticeably
 
 
-def vehicle_site_air(vehicle):
-    """Site air of a vehicle (estimator.vehicle.vehicle_air); InputError naming file and JSON key."""
-    from estimator.vehicle import vehicle_air
-
-    return vehicle_air(vehicle)
-
-
 # a sag of more than this share of the open-circuit voltage at full command is named as a cause
 SAG_CAUSE_SHARE = 0.2
 ENDED_BY_WORDS = {"cutoff": "the loaded-voltage cutoff", "reserve": "the landing reserve",
