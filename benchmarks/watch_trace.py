@@ -4,7 +4,7 @@ CUSUM sums, noise, reference, threshold, drift, hold and learning were doing.
 
 Usage: python benchmarks/watch_trace.py VEHICLE JITTER_INDEX LAG_INDEX RATE KIND VALUE [BEFORE_S AFTER_S]
   RATE: 5, 10, 25, 50, 100 or irr; KIND: step, ramp, payload or clean (VALUE: the size, or the
-  clean flight's number); e.g. python benchmarks/watch_trace.py "octo 12S" 0 0 5 step 0.10
+  fault-free flight's number); e.g. python benchmarks/watch_trace.py "octo 12S" 0 0 5 step 0.10
 Set LIFTCAL_SIM_CACHE as for watch_detection.py (the same flights); LIFTCAL_TRACE_KERNEL=path/watch.py
 traces another kernel file. --diagnose DUMP.json [GOAL_S]: one line per +-10 % step slower than GOAL_S
 (default 5) in a matrix dump (watch_detection.py with LIFTCAL_WATCH_DUMP=DUMP.json).
