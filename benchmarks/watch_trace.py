@@ -68,12 +68,7 @@ def flight(vehicle, j, k, rate, kind, value, n_clean=20, duration_s=600.0):
 
 def run(cfg, fl):
     w = Traced(cfg)
-    t = fl["time_s"]
-    ms = np.round(t * 1000.0).astype(np.int64)
-    dts = np.diff(ms, prepend=ms[0] - 100).tolist()
-    u = np.round(fl["command"] * 1000.0).astype(np.int64).tolist()
-    mv = np.round(fl["voltage_V"] * 1000.0).astype(np.int64).tolist()
-    ma = np.round(fl["current_A"] * 1000.0).astype(np.int64).tolist()
+    dts, u, mv, ma = ws.kernel_inputs(fl)
     for i in range(len(u)):
         w.update(dts[i], u[i], mv[i], ma[i])
     return w.rows

@@ -37,16 +37,23 @@ def rate_name(rate):
     return "irr" if rate is None else "%dHz" % rate
 
 
+def kernel_inputs(fl):
+    """A logged flight as the kernel's integer inputs: lists dt [ms] (the first 100), command
+    [permille], bus voltage [mV], current [mA]."""
+    ms = np.round(fl["time_s"] * 1000.0).astype(np.int64)
+    dts = np.diff(ms, prepend=ms[0] - 100).tolist()
+    u = np.round(fl["command"] * 1000.0).astype(np.int64).tolist()
+    mv = np.round(fl["voltage_V"] * 1000.0).astype(np.int64).tolist()
+    ma = np.round(fl["current_A"] * 1000.0).astype(np.int64).tolist()
+    return dts, u, mv, ma
+
+
 def replay(cfg_tuple, fl):
     """Run the kernel over one logged flight; returns list of (t_s, new flag bits)."""
     w = Watch(cfg_tuple)
     up = w.update
     t = fl["time_s"]
-    ms = np.round(t * 1000.0).astype(np.int64)
-    dts = np.diff(ms, prepend=ms[0] - 100).tolist()
-    u = np.round(fl["command"] * 1000.0).astype(np.int64).tolist()
-    mv = np.round(fl["voltage_V"] * 1000.0).astype(np.int64).tolist()
-    ma = np.round(fl["current_A"] * 1000.0).astype(np.int64).tolist()
+    dts, u, mv, ma = kernel_inputs(fl)
     tl = t.tolist()
     prev = 0
     events = []
