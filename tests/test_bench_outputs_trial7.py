@@ -14,10 +14,9 @@ import os
 import re
 
 import pytest
-from click.testing import CliRunner
 
-from estimator.cli import cli
 from test_fit_glitch_trial7 import G0, _trial_csv
+from trial_helpers import ok, refused, run
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 VEHICLE = {"name": "INVENTED 7in long-range quad 6S", "mass": "950g", "rotors": {"count": 4},
@@ -30,10 +29,6 @@ VEHICLE = {"name": "INVENTED 7in long-range quad 6S", "mass": "950g", "rotors": 
            "site": {"altitude": "2200m", "temperature": "30C", "humidity": "20%"}}
 
 
-def run(*args):
-    return CliRunner().invoke(cli, [str(a) for a in args])
-
-
 @pytest.fixture(scope="module")
 def fitted(tmp_path_factory):
     """(folder, bench CSV, vehicle file, sealed parameter set, the fit's text output)."""
@@ -41,9 +36,7 @@ def fitted(tmp_path_factory):
     csv = _trial_csv(d / "bench.csv")
     vehicle = d / "v7lr.json"
     vehicle.write_text(json.dumps(VEHICLE))
-    res = run("fit", csv, "--vehicle", vehicle, "--out", d / "p.json")
-    assert res.exit_code == 0 and res.stderr == "", res.stderr
-    return d, csv, vehicle, d / "p.json", res.stdout
+    return d, csv, vehicle, d / "p.json", ok("fit", csv, "--vehicle", vehicle, "--out", d / "p.json")
 
 
 def _edited(fitted, tmp_path):
@@ -53,7 +46,7 @@ def _edited(fitted, tmp_path):
     assert edited != text
     path = tmp_path / "p_edited.json"
     path.write_text(edited)
-    assert "EDITED" in run("check", path).stdout  # check flags it (the loudness to match)
+    assert "EDITED" in run("check", path)[1]  # check flags it (the loudness to match)
     return path
 
 
@@ -63,21 +56,20 @@ def _words(text):
 
 def test_fit_summary_gives_the_hover_sheets_judged_thrust_to_weight(fitted):
     d, _, vehicle, params, fit_text = fitted
-    sheet = run("hover", vehicle, "--params", params)
-    assert sheet.exit_code == 0, sheet.stderr
-    judged = re.search(r"thrust-to-weight\s+(\S+)\s+\(judged", sheet.stdout).group(1)
+    code, sheet, err = run("hover", vehicle, "--params", params)
+    assert code == 0, err
+    judged = re.search(r"thrust-to-weight\s+(\S+)\s+\(judged", sheet).group(1)
     assert judged.endswith("*")  # this pack cannot reach full command: the reachable value
     # before: the fit said 'thrust-to-weight 5.91 (motor model at the sagged bus 21.98 V)'
     assert "thrust-to-weight %s (*: reachable at command" % judged in _words(fit_text)
-    full = re.search(r"full command would give (\S+) but", _words(sheet.stdout)).group(1)
+    full = re.search(r"full command would give (\S+) but", _words(sheet)).group(1)
     assert "full command would give %s but is NOT REACHABLE" % full in _words(fit_text)
 
 
 def test_export_says_the_top_thrust_is_at_the_reference_voltage_above_what_was_measured(fitted, tmp_path):
     d, csv, _, params, _ = fitted
-    res = run("export", params)
-    assert res.exit_code == 0 and res.stderr == "", res.stderr
-    top_g = int(re.search(r"liftcurve\.top_grams\s+(\d+) gf", res.stdout).group(1))
+    exported = ok("export", params)
+    top_g = int(re.search(r"liftcurve\.top_grams\s+(\d+) gf", exported).group(1))
     # the highest thrust measured, from the CSV itself: the mean of the four rows at full
     # command (2000 us), the top of the sweep (grams-force column)
     rows = [line.split(",") for line in csv.read_text().splitlines()[5:]]
@@ -85,20 +77,20 @@ def test_export_says_the_top_thrust_is_at_the_reference_voltage_above_what_was_m
     measured = sum(top_rows) / len(top_rows)
     assert top_g > max(float(r[4]) for r in rows)  # the curve at the reference voltage: above every reading
     ref = json.loads(params.read_text())["thrust_curve"]["reference_voltage_V"]
-    text = _words(res.stdout)
+    text = _words(exported)
     assert ("liftcurve.top_grams %d gf is the curve's full-command thrust at supply.reference_volts = %.2f V, "
             "ABOVE the highest thrust the sweep measured" % (top_g, ref)) in text
     # and the fit's own warnings about it, carried along (before: none of them)
     assert "! fit: full-command thrust %d g is the curve at the reference voltage" % top_g in text
     assert "above the highest thrust measured (%d g)" % round(measured) in text
     # under --json stdout holds the settings object only; the notes go to stderr
-    js = run("export", params, "--json")
-    assert js.exit_code == 0
-    assert json.loads(js.stdout)["liftcurve.top_grams"] == top_g
-    assert "ABOVE the highest thrust the sweep measured" in _words(js.stderr)
+    code, js, notes = run("export", params, "--json")
+    assert code == 0
+    assert json.loads(js)["liftcurve.top_grams"] == top_g
+    assert "ABOVE the highest thrust the sweep measured" in _words(notes)
     # a settings file written with --json carries them too
     out = tmp_path / "s.json"
-    assert run("export", params, "--json", "--out", out).exit_code == 0
+    assert run("export", params, "--json", "--out", out)[0] == 0
     assert any("ABOVE the highest thrust" in w for w in json.loads(out.read_text())["warnings"])
     assert G0 * top_g / 1000.0 == pytest.approx(json.loads(params.read_text())["thrust_curve"]["thrust_max_N"],
                                                 rel=2e-3)  # 1 gf = 9.80665 mN (CGPM 1901); 0-decimal rounding
@@ -106,51 +98,44 @@ def test_export_says_the_top_thrust_is_at_the_reference_voltage_above_what_was_m
 
 def test_firmware_refuses_an_edited_set_unless_asked_and_then_says_so_first(fitted, tmp_path):
     edited = _edited(fitted, tmp_path)
-    res = run("firmware", edited, "--out", tmp_path / "board")
-    lines = res.stderr.strip().splitlines()
-    assert res.exit_code == 2 and res.stdout == "" and len(lines) == 1, (res.stdout, res.stderr)
-    assert lines[0].startswith("error: %s was EDITED since liftcal wrote it" % edited)
-    assert "--from-edited" in lines[0] and "Traceback" not in res.stderr
+    line = refused("firmware", edited, "--out", tmp_path / "board")  # one error: line, exit 2, no traceback
+    assert line.startswith("error: %s was EDITED since liftcal wrote it" % edited)
+    assert "--from-edited" in line
     assert not (tmp_path / "board").exists()  # no bundle, not half a bundle
-    res = run("firmware", edited, "--out", tmp_path / "board", "--from-edited")
-    assert res.exit_code == 0 and res.stderr == "", res.stderr
-    assert _words(res.stdout).startswith("WARNING: %s was EDITED since liftcal wrote it" % edited)
-    assert "the board bundle carries the edited values" in _words(res.stdout)
-    js = run("firmware", edited, "--out", tmp_path / "board2", "--from-edited", "--json")
-    assert js.exit_code == 0
-    assert "EDITED" in json.loads(js.stdout)["warnings"][0]
+    said = _words(ok("firmware", edited, "--out", tmp_path / "board", "--from-edited"))
+    assert said.startswith("WARNING: %s was EDITED since liftcal wrote it" % edited)
+    assert "the board bundle carries the edited values" in said
+    code, js, _ = run("firmware", edited, "--out", tmp_path / "board2", "--from-edited", "--json")
+    assert code == 0
+    assert "EDITED" in json.loads(js)["warnings"][0]
     # an untouched set: no word about edits
-    clean = run("firmware", fitted[3], "--out", tmp_path / "board3")
-    assert clean.exit_code == 0 and "EDITED" not in clean.stdout
+    code, clean, _ = run("firmware", fitted[3], "--out", tmp_path / "board3")
+    assert code == 0 and "EDITED" not in clean
 
 
 def test_export_refuses_an_edited_set_unless_asked_and_then_says_so_first(fitted, tmp_path):
     edited = _edited(fitted, tmp_path)
-    res = run("export", edited, "--out", tmp_path / "s.txt")
-    lines = res.stderr.strip().splitlines()
-    assert res.exit_code == 2 and res.stdout == "" and len(lines) == 1, (res.stdout, res.stderr)
-    assert lines[0].startswith("error: %s was EDITED" % edited) and "--from-edited" in lines[0]
+    line = refused("export", edited, "--out", tmp_path / "s.txt")
+    assert line.startswith("error: %s was EDITED" % edited) and "--from-edited" in line
     assert not (tmp_path / "s.txt").exists()
-    res = run("export", edited, "--from-edited", "--out", tmp_path / "s.txt")
-    assert res.exit_code == 0 and res.stderr == ""
-    assert _words(res.stdout).startswith("WARNING: %s was EDITED" % edited)
+    assert _words(ok("export", edited, "--from-edited", "--out", tmp_path / "s.txt")).startswith(
+        "WARNING: %s was EDITED" % edited)
     assert "# WARNING: %s was EDITED" % edited in (tmp_path / "s.txt").read_text()  # the file says it too
-    js = run("export", edited, "--from-edited", "--json")
-    assert js.exit_code == 0 and json.loads(js.stdout)["liftcurve.top_grams"] == 3059  # 30 N x 101.97 gf/N
-    assert js.stderr.startswith("WARNING: %s was EDITED" % edited)
+    code, js, warned = run("export", edited, "--from-edited", "--json")
+    assert code == 0 and json.loads(js)["liftcurve.top_grams"] == 3059  # 30 N x 101.97 gf/N
+    assert warned.startswith("WARNING: %s was EDITED" % edited)
 
 
 def test_firmware_says_when_it_replaces_its_own_bundle(fitted, tmp_path):
     board = tmp_path / "board"
-    first = run("firmware", fitted[3], "--out", board)
-    assert first.exit_code == 0 and "replaced" not in first.stdout
-    again = run("firmware", fitted[3], "--out", board)
-    assert again.exit_code == 0 and again.stderr == ""
-    assert _words(again.stdout).count("replaced ") == 1
-    assert "replaced %s: a power-watch bundle liftcal wrote" % board in _words(again.stdout)
-    js = run("firmware", fitted[3], "--out", board, "--json")
-    assert json.loads(js.stdout)["replaced"] == ["replaced %s: a power-watch bundle liftcal wrote" % board]
-    assert json.loads(run("firmware", fitted[3], "--out", tmp_path / "new", "--json").stdout)["replaced"] == []
+    code, first, _ = run("firmware", fitted[3], "--out", board)
+    assert code == 0 and "replaced" not in first
+    again = _words(ok("firmware", fitted[3], "--out", board))
+    assert again.count("replaced ") == 1
+    assert "replaced %s: a power-watch bundle liftcal wrote" % board in again
+    js = run("firmware", fitted[3], "--out", board, "--json")[1]
+    assert json.loads(js)["replaced"] == ["replaced %s: a power-watch bundle liftcal wrote" % board]
+    assert json.loads(run("firmware", fitted[3], "--out", tmp_path / "new", "--json")[1])["replaced"] == []
 
 
 @pytest.mark.parametrize("missing", ["", "nan", "NaN", "-nan"])
@@ -164,11 +149,10 @@ def test_a_nan_cell_is_a_missing_reading_like_an_empty_one(fitted, tmp_path, mis
     rows[60] = ",".join(cells)
     csv = tmp_path / "b.csv"
     csv.write_text("\n".join(rows) + "\n")
-    res = run("fit", csv, "--out", tmp_path / "p.json")
-    assert res.exit_code == 0 and res.stderr == "", res.stderr  # before: 'nan' refused the file
+    said = ok("fit", csv, "--out", tmp_path / "p.json")  # before: 'nan' refused the file
     rejected = json.loads((tmp_path / "p.json").read_text())["fit_quality"]["rejected"]
     assert rejected == {"empty_or_nan_cell": 2}  # before: {"not_a_number": ...} for an empty cell
-    assert "empty_or_nan_cell 2" in res.stdout
+    assert "empty_or_nan_cell 2" in said
 
 
 def test_readme_lists_the_units_the_reader_takes():
@@ -179,7 +163,7 @@ def test_readme_lists_the_units_the_reader_takes():
     for name, units in list(UNITS.items()) + list(OPTIONAL.items()):
         for unit in units:
             assert "`%s[%s]`" % (name, unit) in readme or "`[%s]`" % unit in readme, (name, unit)
-    help_text = run("fit", "--help").stdout
+    help_text = run("fit", "--help")[1]
     assert "torque[N*m|mN*m]" in help_text
 
 

@@ -10,24 +10,10 @@ import json
 
 import ambiance
 import pytest
-from click.testing import CliRunner
 
-from estimator.cli import cli
 from estimator.core.atmosphere import site_air, station_pressure_problem
 from estimator.demo.scenario import DEMO_VEHICLE
-
-
-def run(*args):
-    result = CliRunner().invoke(cli, [str(a) for a in args])
-    return result.exit_code, result.stdout, result.stderr
-
-
-def refused(*args):
-    code, out, err = run(*args)
-    lines = err.strip().splitlines()
-    assert code == 2 and out == "" and len(lines) == 1 and lines[0].startswith("error: "), (code, out, err)
-    assert "Traceback" not in err
-    return lines[0]
+from trial_helpers import refused, run
 
 
 def _standard_hPa(altitude_m):

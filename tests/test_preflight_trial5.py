@@ -14,17 +14,11 @@ import json
 import re
 
 import pytest
-from click.testing import CliRunner
 
-from estimator.cli import cli
 from estimator.demo.scenario import DEMO_VEHICLE
+from trial_helpers import report as _json, run
 
 FLOOR = 2.0  # thrust-to-weight floor, common practice
-
-
-def run(*args):
-    result = CliRunner().invoke(cli, [str(a) for a in args])
-    return result.exit_code, result.stdout, result.stderr
 
 
 @pytest.fixture(scope="module")
@@ -37,12 +31,6 @@ def files(tmp_path_factory, params_file):
     path = folder / "soft.json"
     path.write_text(json.dumps(vehicle))
     return str(path), str(params_file)
-
-
-def _json(*args):
-    code, out, err = run(*args, "--json")
-    assert code == 0 and err == "", (code, err)
-    return json.loads(out)
 
 
 @pytest.mark.parametrize("route", ["datasheet", "bench fit"])

@@ -21,16 +21,14 @@ full pack (4.2 V per cell), against 23.1 A and 97.1 A on the nominal pack liftca
 """
 
 import copy
-import json
 import math
 
 import ambiance
 import numpy as np
 import pytest
-from click.testing import CliRunner
 from scipy.optimize import brentq
 
-from estimator.cli import cli
+from trial_helpers import json_file as _file, report as _json, run, words as _text
 
 R_DRY_AIR = 287.05287  # J/(kg K), ICAO Doc 7488 / ISO 2533
 SITE_PRESSURE_PA = float(ambiance.Atmosphere(2200.0).pressure[0])  # ICAO standard atmosphere
@@ -44,29 +42,6 @@ QUAD = {
     "esc": {"efficiency": 0.95},
     "site": {"altitude_m": 2200, "temperature_C": 30, "pressure_Pa": SITE_PRESSURE_PA},
 }
-
-
-def run(*args):
-    result = CliRunner().invoke(cli, [str(a) for a in args])
-    return result.exit_code, result.stdout, result.stderr
-
-
-def _json(*args):
-    code, out, err = run(*args, "--json")
-    assert code == 0 and err == "", (code, err)
-    return json.loads(out)
-
-
-def _text(*args):
-    code, out, err = run(*args)
-    assert code == 0 and err == "", (code, err)
-    return " ".join(out.split())  # the sheet wraps at 80 columns
-
-
-def _file(tmp_path, doc, name="quad.json"):
-    path = tmp_path / name
-    path.write_text(json.dumps(doc))
-    return path
 
 
 def hand_full_command(cell_V, doc=QUAD):
@@ -278,3 +253,4 @@ def test_a_missing_esc_efficiency_is_said(tmp_path):
     assert "the vehicle file gives no esc.efficiency: the ESC is taken as lossless" in _text("hover", path)
     given = _json("hover", _file(tmp_path, QUAD, "given.json"))
     assert not any("esc.efficiency" in w for w in given["warnings"])
+

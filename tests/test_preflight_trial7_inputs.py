@@ -17,9 +17,8 @@ import re
 
 import ambiance
 import pytest
-from click.testing import CliRunner
 
-from estimator.cli import cli
+from trial_helpers import json_file as _file, ok as _ok, refused, run
 
 QUAD = {
     "name": "INVENTED 7in long-range quad 6S (trial 7)", "mass": "950g", "rotors": {"count": 4},
@@ -30,31 +29,6 @@ QUAD = {
     "esc": {"efficiency": 0.95},
     "site": {"altitude": "2200m", "temperature": "30C"},
 }
-
-
-def run(*args):
-    result = CliRunner().invoke(cli, [str(a) for a in args])
-    return result.exit_code, result.stdout, result.stderr
-
-
-def refused(*args):
-    code, out, err = run(*args)
-    lines = err.strip().splitlines()
-    assert code == 2 and out == "" and len(lines) == 1 and lines[0].startswith("error: "), (code, out, err)
-    assert "Traceback" not in err
-    return lines[0]
-
-
-def _ok(*args):
-    code, out, err = run(*args)
-    assert code == 0 and err == "", (code, err)
-    return out
-
-
-def _file(tmp_path, doc, name="quad.json"):
-    path = tmp_path / name
-    path.write_text(json.dumps(doc))
-    return path
 
 
 # --- item 8: "178x89in" is millimetres written with `in` -----------------------------------------

@@ -11,15 +11,8 @@ Appendix B); "6S" for six cells in series is how the trade labels packs (common 
 import json
 import math
 
-from click.testing import CliRunner
-
-from estimator.cli import cli
 from estimator.demo.scenario import DEMO_VEHICLE
-
-
-def run(*args):
-    result = CliRunner().invoke(cli, [str(a) for a in args])
-    return result.exit_code, result.stdout, result.stderr
+from trial_helpers import report as _json, run
 
 
 def _vehicle(tmp_path, name, edit):
@@ -28,12 +21,6 @@ def _vehicle(tmp_path, name, edit):
     path = tmp_path / name
     path.write_text(json.dumps(doc))
     return path
-
-
-def _json(*args):
-    code, out, err = run(*args, "--json")
-    assert code == 0, err
-    return json.loads(out)
 
 
 def test_a_pack_written_6S_reads_as_six_cells(tmp_path):
