@@ -113,6 +113,37 @@ def test_firmware_refuses_an_edited_set_unless_asked_and_then_says_so_first(fitt
     assert code == 0 and "EDITED" not in clean
 
 
+def test_the_voltage_warning_names_full_command_on_a_full_pack(fitted):
+    # the fitted route warned of bus voltages beyond the sweep at the hovers and at full command on
+    # a nominal pack, but not at full command on a full pack, where the current limits are judged
+    d, _, vehicle, params, fit_text = fitted
+    from test_preflight_trial7 import QUAD, hand_full_command
+
+    report = json.loads(ok("hover", vehicle, "--params", params, "--json"))
+    swept = json.loads(params.read_text())["thrust_curve"]
+    lo, hi = swept["voltage_min_V"], swept["voltage_max_V"]
+    full_bus = report["current_judged_bus_V"]
+    # the full pack's full-command bus against the independent solve of the sweep's own rotor (the
+    # DC motor and propeller of tests/test_fit_glitch_trial7.py: CT 0.105, CP 0.046, ESC 96 %, on
+    # this 6S 30 mohm pack at 2200 m, 30 C): the fit extrapolates it within 1 %
+    truth = dict(QUAD, propeller={"ct": 0.105, "cp": 0.046}, esc={"efficiency": 0.96})
+    assert full_bus == pytest.approx(hand_full_command(4.2, truth)[3], rel=0.01)
+    assert full_bus < 0.98 * lo  # beyond the sweep by more than range_warnings' 2 % tolerance
+    entry = "%.1f V (full command, full pack: %.0f %% below)" % (full_bus, 100.0 * (1.0 - full_bus / lo))
+    swept_text = "the bench sweep ran at %.1f..%.1f V" % (lo, hi)
+    # one warning line, in hover --params and in the fit's vehicle summary
+    warned = [w for w in report["warnings"] if w.startswith("bus voltage beyond the bench sweep")]
+    assert len(warned) == 1 and entry in warned[0] and swept_text in warned[0]
+    assert "%.1f V (full command, nominal pack: %.0f %% below)" % (
+        report["full_bus_V"], 100.0 * (1.0 - report["full_bus_V"] / lo)) in warned[0]
+    printed = [" ".join(w.split()) for w in ("\n" + fit_text).split("\n! ")[1:]]
+    in_fit = [w for w in printed if w.startswith("bus voltage beyond the bench sweep")]
+    assert len(in_fit) == 1 and entry in in_fit[0]
+    # the fit's vehicle line names the pack state of its hover bus voltage too
+    assert "(motor model at the sagged hover bus %.2f V, nominal pack)" % report["hover_bus_V"] in _words(fit_text)
+    assert "where a nominal pack reaches its loaded cutoff" in _words(fit_text)
+
+
 def test_export_refuses_an_edited_set_unless_asked_and_then_says_so_first(fitted, tmp_path):
     edited = _edited(fitted, tmp_path)
     line = refused("export", edited, "--out", tmp_path / "s.txt")

@@ -58,12 +58,12 @@ def test_fit_with_a_vehicle_prints_the_margin_warnings_of_the_sheet(tmp_path, se
     warnings = json.loads(js)["warnings"]
     # the printed warnings, each joined back from its 80-column wrapping
     printed = [" ".join(w.split()) for w in ("\n" + text).split("\n! ")[1:]]
-    for needle in ("full command sags the pack to", "above the motor limit"):
+    for needle in ("full command sags the nominal pack to", "above the motor limit"):
         assert any(needle in w for w in printed), (needle, text)
         assert any(needle in w for w in warnings), (needle, warnings)
     # the sheet's numbers are the truth's within the study's bounds (3 % thrust side, 5 % current)
-    sag = [w for w in warnings if "full command sags the pack to" in w][0]
-    assert abs(float(sag.split("sags the pack to ")[1].split(" V")[0]) - cell_V) <= 0.03 * cell_V + 0.005
+    sag = [w for w in warnings if "full command sags the nominal pack to" in w][0]
+    assert abs(float(sag.split("sags the nominal pack to ")[1].split(" V")[0]) - cell_V) <= 0.03 * cell_V + 0.005
     limit = [w for w in warnings if "above the motor limit" in w][0]
     # (printed to 0.1 A: half a printed step besides the 5 %)
     assert abs(float(limit.split("draws ")[1].split(" A")[0]) - motor_A) <= 0.05 * motor_A + 0.05

@@ -47,7 +47,7 @@ def test_the_sheet_judges_and_shows_the_reachable_thrust_to_weight(files, route)
     assert code == 0 and err == ""
     # section 2 shows the judged value, marked, and says what the mark means
     assert "thrust-to-weight   %.2f*  (judged: reachable at command" % reachable in sheet
-    assert "* marks the T/W reachable on this pack; full command would give %.2f" % report["thrust_to_weight"] in sheet
+    assert "* marks the T/W reachable on a nominal pack; full command would give %.2f" % report["thrust_to_weight"] in sheet
     # section 4 warns: the judged T/W is below the floor (before: no "!" line at all)
     section4 = sheet.split("4. What to watch out for")[1]
     assert re.search(r"! thrust-to-weight %.2f\* is below 2" % reachable, section4), section4
@@ -68,7 +68,7 @@ def test_payload_table_shows_the_value_it_judged(files, route):
         line = next(ln for ln in table.splitlines() if ln.strip().startswith("%g g" % (row["payload_kg"] * 1e3)))
         assert " %.2f* " % row["reachable_thrust_to_weight"] in line, line
         assert ("thrust_to_weight" in row["broken"]) == (row["reachable_thrust_to_weight"] < FLOOR)
-    assert "T/W*  full command sags the pack below its loaded cutoff" in table
+    assert "T/W*  full command sags the nominal pack below its loaded cutoff" in table
 
 
 def test_compare_and_payload_and_sheet_agree_on_one_vehicle(files):

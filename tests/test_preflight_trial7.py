@@ -254,3 +254,33 @@ def test_a_missing_esc_efficiency_is_said(tmp_path):
     given = _json("hover", _file(tmp_path, QUAD, "given.json"))
     assert not any("esc.efficiency" in w for w in given["warnings"])
 
+
+# --- left from finding 1: each sag and voltage line of the sheet names its pack state -------------
+
+def test_every_sag_line_of_the_sheet_names_its_pack_state(tmp_path):
+    # the sheet showed both pack states for the currents, but its sag line said "full command sags
+    # the pack to 19.3 V" for a number that is the nominal pack's; now each voltage line says which
+    # pack it is for, the full pack's full-command bus (where the currents are judged) beside it
+    path = _file(tmp_path, QUAD)
+    report = _json("hover", path)
+    *_, full_bus = hand_full_command(4.2)     # independent solve (module docstring)
+    *_, nominal_bus = hand_full_command(3.7)
+    assert report["full_bus_V"] == pytest.approx(nominal_bus, rel=1e-4)
+    assert report["current_judged_bus_V"] == pytest.approx(full_bus, rel=1e-4)
+    text = _text("hover", path)
+    # 3.30 V per cell: the loaded cutoff, liftcal's default empty_cell_V - 0.2 V (DEVELOPERS.md glossary)
+    assert ("full command sags the pack to %.1f V on a nominal pack (%.2f V per cell; loaded cutoff 3.30 V per "
+            "cell) and to %.1f V on a full pack (%.2f V per cell, where the current limits are judged)"
+            % (nominal_bus, nominal_bus / 6, full_bus, full_bus / 6)) in text
+    # the T/W lines and the warning on the same sag, and the thrust beside it: the nominal pack's
+    assert "where a nominal pack reaches its loaded cutoff" in text
+    assert "* marks the T/W reachable on a nominal pack; full command would give" in text
+    assert "but sags the nominal pack below its loaded cutoff: NOT REACHABLE" in text
+    assert "N total on a nominal pack (hover needs" in text
+    assert "thrust fraction %.2f of full-command thrust at the hover bus voltage on a nominal pack" % (
+        report["hover_thrust_fraction"]) in text
+    assert ("! full command sags the nominal pack to %.2f V per cell (%.1f V on 6 cells), below its 3.30 V cutoff"
+            % (nominal_bus / 6, nominal_bus)) in text
+    assert "is not reachable on a nominal pack" in text
+    # no voltage line left without its pack state
+    assert "sags the pack below" not in text and "on this pack" not in text

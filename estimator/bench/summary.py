@@ -102,7 +102,7 @@ def fit_text(params, out_file, warnings, columns, thrust_to_weight_words=None):
         tw_words = thrust_to_weight_words or "%.2f (full command, nominal pack)" % h.get("thrust_to_weight", 0.0)
         lo, hi = h["hover_command_interval_95"]
         lines += ["hover for %s: command %s (95 %% interval %s..%s), thrust fraction %.3f, "
-                  "%.4g W, %.3g A (motor model at the sagged bus %.2f V); thrust-to-weight %s" % (
+                  "%.4g W, %.3g A (motor model at the sagged hover bus %.2f V, nominal pack); thrust-to-weight %s" % (
                       params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),
                       h["hover_thrust_fraction"], h["power_W"], h["current_A"], h["voltage_V"], tw_words)]
     lines += ["! " + w for w in warnings]

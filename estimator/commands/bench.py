@@ -32,8 +32,8 @@ def judged_words(report):
 
     text = judged_thrust_to_weight_text(report)
     if judged_thrust_to_weight(report)[1]:
-        return ("%s (%s: reachable at command %.2f, where the pack reaches its loaded cutoff; full command "
-                "would give %s but is NOT REACHABLE on this pack)"
+        return ("%s (%s: reachable at command %.2f, where a nominal pack reaches its loaded cutoff; full "
+                "command would give %s but is NOT REACHABLE on a nominal pack)"
                 % (text, REACHABLE_MARK, report["reachable_command"],
                    thrust_to_weight_text(report.get("thrust_to_weight"))))
     return "%s (full command, nominal pack)" % text

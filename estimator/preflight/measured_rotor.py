@@ -127,7 +127,9 @@ def hover_from_params(vehicle, params, command_unit="-"):
                else "open circuit, %s pack" % name,
               states[name]["bus_V"] if states[name]["command"] is not None else states[name]["open_circuit_V"])
              for name in ("full", "nominal", "empty")]
-    volts.append(("full command, nominal pack", nom["full_bus_V"]))
+    # full command on both pack states: the nominal pack's (the sag check, the T/W) and the full
+    # pack's (the current limits, warnings.judged_currents)
+    volts += [("full command, nominal pack", nom["full_bus_V"]), ("full command, full pack", peak["full_bus_V"])]
     extrapolated = voltage_range_warning(params, volts)
     if extrapolated:
         warnings.append(extrapolated)

@@ -35,12 +35,15 @@ def command_range_warnings(params, states, command_unit="-"):
 
 
 def voltage_range_warning(params, voltages):
-    """A warning when bus voltages lie beyond the bench sweep's, or None.
+    """One warning naming each bus voltage beyond the bench sweep's, with its pack state and how
+    far beyond, or None.
 
-    params: parameter set; voltages: list of (label, bus voltage [V]) where the model
-    evaluates the thrust curve. Uses thrust_curve.voltage_min_V / voltage_max_V (the sweep's
-    range) when the parameter set has them, else a band of +-REFERENCE_VOLTAGE_BAND around
-    reference_voltage_V (module constants).
+    params: parameter set; voltages: list of (state, bus voltage [V]) where the model evaluates
+    the rotor (the hover at each pack state, full command on a nominal and on a full pack).
+    A voltage is beyond when it lies outside thrust_curve.voltage_min_V .. voltage_max_V (the
+    sweep's range) by more than VOLTAGE_RANGE_TOLERANCE, or, for a set without them, outside
+    +-REFERENCE_VOLTAGE_BAND around reference_voltage_V (module constants); how far is the
+    relative distance [%] to that range's nearer end (the sweep's lowest or highest voltage).
     """
     curve = params["thrust_curve"]
     v_ref = curve["reference_voltage_V"]
@@ -49,21 +52,22 @@ def voltage_range_warning(params, voltages):
     if recorded:
         lo_ok, hi_ok = lo * (1.0 - VOLTAGE_RANGE_TOLERANCE), hi * (1.0 + VOLTAGE_RANGE_TOLERANCE)
     else:
-        lo_ok, hi_ok = v_ref * (1.0 - REFERENCE_VOLTAGE_BAND), v_ref * (1.0 + REFERENCE_VOLTAGE_BAND)
-    outside = ["%.1f V (%s)" % (v, label) for label, v in voltages
-               if v is not None and not lo_ok <= v <= hi_ok]
+        lo, hi = v_ref * (1.0 - REFERENCE_VOLTAGE_BAND), v_ref * (1.0 + REFERENCE_VOLTAGE_BAND)
+        lo_ok, hi_ok = lo, hi
+    outside = ["%.1f V (%s: %.0f %% %s)" % (v, state, 100.0 * abs(v / (lo if v < lo_ok else hi) - 1.0),
+                                           "below" if v < lo_ok else "above")
+               for state, v in voltages if v is not None and not lo_ok <= v <= hi_ok]
     if not outside:
         return None
     if recorded:
         swept = "the bench sweep ran at %.1f..%.1f V" % (lo, hi)
     else:
-        swept = ("against its reference voltage %.1f V; the parameter set does not record the "
-                 "sweep's range" % v_ref)
-    worst = max((max(lo_ok / v, v / hi_ok) for _, v in voltages if v is not None), default=1.0)
-    return ("bus voltage beyond the bench sweep: %s, %s (up to %.0f %% beyond); thrust, current and "
-            "margins there are extrapolated by the fitted motor model (voltage exponent %.2f at the "
-            "reference): sweep the rotor at this pack's voltage to confirm"
-            % (", ".join(outside), swept, 100.0 * (worst - 1.0), curve["voltage_exponent"]))
+        swept = ("against its reference voltage %.1f V +-%.0f %%; the parameter set does not record the "
+                 "sweep's range" % (v_ref, 100.0 * REFERENCE_VOLTAGE_BAND))
+    return ("bus voltage beyond the bench sweep: %s; %s; thrust, current and margins there are "
+            "extrapolated by the fitted motor model (voltage exponent %.2f at the reference): sweep the "
+            "rotor at this pack's voltage to confirm"
+            % (", ".join(outside), swept, curve["voltage_exponent"]))
 
 
 def about_the_vehicle(warning):

@@ -67,6 +67,32 @@ def _at_full(report, judged_A, nominal_A):
         _num(judged_A, SIG3, "A"), _num(nominal_A, SIG3, "A"))
 
 
+def _cell_V(bus_V, cells, cutoff_cell_V, below):
+    """A bus voltage per cell as the sag line prints it: 2 decimals, more where fewer would round
+    a value below the cutoff onto it (warnings.beside)."""
+    per_cell = bus_V / cells
+    return (beside(per_cell, cutoff_cell_V) if below else "%.2f" % per_cell) + " V"
+
+
+def sag_text(report):
+    """The sheet's sag line, naming the pack state of each voltage (as the current lines do):
+    'full command sags the pack to 19.3 V on a nominal pack (3.21 V per cell; loaded cutoff 3.30 V
+    per cell) and to 21.6 V on a full pack (3.60 V per cell, where the current limits are judged)'.
+    The nominal pack's is the one the sag check judges (warnings.full_command_sag); the full
+    pack's is the state of warnings.judged_currents, shown when the report has it."""
+    cells, cutoff = report["cells"], report["cutoff_cell_V"]
+    text = "full command sags the pack to %s on a nominal pack (%s per cell; loaded cutoff %s per cell)" % (
+        _num(report.get("full_bus_V"), SIG3, "V"),
+        _cell_V(report["full_bus_V"], cells, cutoff, report.get("thrust_to_weight_reachable") is False),
+        _num(cutoff, "%.2f", "V"))
+    full_bus = report.get("current_judged_bus_V")
+    if full_bus is not None and report.get("current_judged_at") is not None:
+        text += " and to %s on a full pack (%s per cell, where the current limits are judged)" % (
+            _num(full_bus, SIG3, "V"),
+            _cell_V(full_bus, cells, cutoff, report.get("current_judged_full_command_reachable") is False))
+    return text
+
+
 def _esc_input_judged(report):
     """The ESC's input current [A] at full command on a full pack: its pack share."""
     pack, count = report.get("pack_current_judged_A"), report.get("rotor_count")
@@ -116,8 +142,8 @@ def format_sheet(report):
             lines.append("   YES - command %s on a nominal pack" % _command(report, "hover_command"))
         lines.append("         %s on a full pack, %s near empty" % (
             _command(report, "hover_command_full"), _command(report, "hover_command_empty", none="cannot hover")))
-        lines.append("         thrust fraction %s of full-command thrust at the hover bus voltage "
-                     "(not 1/(T/W): T/W is taken at full command, where the pack sags further)" %
+        lines.append("         thrust fraction %s of full-command thrust at the hover bus voltage on a nominal "
+                     "pack (not 1/(T/W): T/W is taken at full command, where the pack sags further)" %
                      _num(report.get("hover_thrust_fraction"), "%.2f"))
         interval = report.get("hover_command_interval_95")
         if interval:
@@ -136,25 +162,22 @@ def format_sheet(report):
     lines.append("2. With what margin?")
     reachable = report.get("thrust_to_weight_reachable")
     if judged_thrust_to_weight(report)[1]:
-        lines.append("   thrust-to-weight   %s  (judged: reachable at command %s, where the pack reaches "
-                     "its loaded cutoff; 2 is the usual floor)"
+        lines.append("   thrust-to-weight   %s  (judged: reachable at command %s, where a nominal pack "
+                     "reaches its loaded cutoff; 2 is the usual floor)"
                      % (judged_thrust_to_weight_text(report), _num(report.get("reachable_command"), "%.2f")))
-        lines.append("   %s marks the T/W reachable on this pack; full command would give %s but sags the "
-                     "pack below its loaded cutoff: NOT REACHABLE"
+        lines.append("   %s marks the T/W reachable on a nominal pack; full command would give %s but sags "
+                     "the nominal pack below its loaded cutoff: NOT REACHABLE"
                      % (REACHABLE_MARK, thrust_to_weight_text(report.get("thrust_to_weight"))))
     else:
         lines.append("   thrust-to-weight   %s   (full command, nominal pack; %s2 is the usual floor)"
                      % (thrust_to_weight_text(report.get("thrust_to_weight")),
                         "NOT REACHABLE on this pack, see below; " if reachable is False else ""))
     full_total, rotors = report.get("full_thrust_N"), report.get("rotor_count") or 0
-    lines.append("   full-command thrust %s per rotor, %s total (hover needs %s per rotor)" % (
+    lines.append("   full-command thrust %s per rotor, %s total on a nominal pack (hover needs %s per rotor)" % (
         _num(full_total / rotors if full_total is not None and rotors else None, SIG3, "N"),
         _num(full_total, SIG3, "N"), _num(report.get("thrust_per_rotor_N"), SIG3, "N")))
     if report.get("full_command_cell_V") is not None:
-        lines.append("   full command sags the pack to %s (%s per cell; loaded cutoff %s per cell)" % (
-            _num(report.get("full_bus_V"), SIG3, "V"),
-            beside(report["full_command_cell_V"], report["cutoff_cell_V"]) + " V" if reachable is False
-            else _num(report["full_command_cell_V"], "%.2f", "V"), _num(report.get("cutoff_cell_V"), "%.2f", "V")))
+        lines.append("   " + sag_text(report))
     count = report.get("rotor_count") or 0
     esc_hover = report.get("hover_esc_input_current_A", report.get("per_rotor_bus_current_A"))
     esc_full = report.get("full_esc_input_current_A")

@@ -57,8 +57,9 @@ def thrust_to_weight_text(tw):
 # the mark of a thrust-to-weight judged at the pack's loaded cutoff instead of at full command
 # (every table and sheet: compare, payload, hover, hover --params) and what it means
 REACHABLE_MARK = "*"
-REACHABLE_MARK_NOTE = ("full command sags the pack below its loaded cutoff: the T/W shown and judged is the "
-                       "one reachable at the cutoff (the full-command value is not reachable on this pack)")
+REACHABLE_MARK_NOTE = ("full command sags the nominal pack below its loaded cutoff: the T/W shown and judged "
+                       "is the one reachable at the cutoff (the full-command value is not reachable on a "
+                       "nominal pack)")
 
 
 def judged_thrust_to_weight(report):
@@ -165,7 +166,7 @@ def _cannot_hover_cause(report, command_unit="-"):
                                report.get("pack_current_limit_A"))
         if v_oc and bus is not None and 1.0 - bus / v_oc > SAG_CAUSE_SHARE:
             r_pack = report.get("pack_resistance_ohm")
-            text += ("; the pack cannot deliver the power: it sags from %s to %s at full "
+            text += ("; the pack cannot deliver the power: a nominal pack sags from %s to %s at full "
                      "command%s, which costs much of the thrust: a pack with less resistance, or more "
                      "cells" % (_num(v_oc, SIG3, "V"), _num(bus, SIG3, "V"),
                                 "" if r_pack is None else " (resistance %s)" % resistance_text(r_pack)))
@@ -271,8 +272,8 @@ def sag_warning(report):
     if sag["thrust_to_weight_reachable"] is not False:
         return None
     from estimator.cautions import SAG_BELOW_CUTOFF
-    return ("full command sags the pack to %s V per cell (%s on %d cell%s), below its %.2f V "
-            "cutoff: %s; the thrust-to-weight %s at full command is not reachable on this pack"
+    return ("full command sags the nominal pack to %s V per cell (%s on %d cell%s), below its %.2f V "
+            "cutoff: %s; the thrust-to-weight %s at full command is not reachable on a nominal pack"
             % (beside(sag["full_command_cell_V"], report["cutoff_cell_V"]), _num(report["full_bus_V"], SIG3, "V"),
                report["cells"], "" if report["cells"] == 1 else "s", report["cutoff_cell_V"],
                SAG_BELOW_CUTOFF, thrust_to_weight_text(report.get("thrust_to_weight"))))
