@@ -113,6 +113,32 @@ def test_firmware_refuses_an_edited_set_unless_asked_and_then_says_so_first(fitt
     assert code == 0 and "EDITED" not in clean
 
 
+def test_the_bundles_own_files_say_the_set_was_edited(fitted, tmp_path):
+    # the command said WARNING, but the bundle itself (what is flashed and kept) did not: its
+    # generated CONFIG module and its README now carry the same line, the untouched set's do not
+    edited = _edited(fitted, tmp_path)
+    ok("firmware", edited, "--out", tmp_path / "board", "--from-edited")
+    config = (tmp_path / "board" / "liftwatch_config.py").read_text().splitlines()
+    assert config[1] == ("# WARNING: %s was EDITED since liftcal wrote it (its content seal no longer matches): "
+                         "the board bundle carries the edited values, not the fit's (--from-edited)" % edited)
+    readme = _words((tmp_path / "board" / "README.md").read_text())
+    assert readme.startswith("# liftwatch: the onboard power watch bundle **WARNING:** %s was EDITED since "
+                             "liftcal wrote it" % edited)
+    ok("firmware", fitted[3], "--out", tmp_path / "clean")
+    for name in ("liftwatch_config.py", "README.md"):
+        assert "EDITED" not in (tmp_path / "clean" / name).read_text()
+    # a line break in the file's name stays inside the comments: the module still holds CONFIG only
+    # (Python language reference, 2.1.3: a comment ends at the end of the physical line)
+    odd = tmp_path / "p_ed\nited.json"
+    odd.write_text(edited.read_text())
+    ok("firmware", odd, "--out", tmp_path / "odd", "--from-edited")
+    text = (tmp_path / "odd" / "liftwatch_config.py").read_text()
+    assert "# WARNING: %s was EDITED" % str(odd).replace("\n", " ") in text
+    names = {}
+    exec(compile(text, "liftwatch_config.py", "exec"), names)
+    assert sorted(k for k in names if k != "__builtins__") == ["CONFIG"]
+
+
 def test_the_voltage_warning_names_full_command_on_a_full_pack(fitted):
     # the fitted route warned of bus voltages beyond the sweep at the hovers and at full command on
     # a nominal pack, but not at full command on a full pack, where the current limits are judged

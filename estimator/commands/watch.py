@@ -111,7 +111,8 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     state = check_folder(out_dir, "bundle", inputs=(params_file, vehicle_file))
     params, vehicle = _load(params_file, vehicle_file)
     edited = edited_set_warning(params_file, from_edited, "the board bundle")
-    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=_options(lag_ms))
+    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=_options(lag_ms),
+                       edited=edited)
     cfg = out["config"]
     # the kernel's limit is plan x (1 + permille / 1000) exactly (it compares permille), not floored
     mass_limit_g = round(cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) / 1000.0, 1)
