@@ -165,7 +165,7 @@ def test_one_glitch_row_at_any_value_never_breaks_a_fit_nor_prints(tmp_path, cap
 
 def test_nothing_non_finite_reaches_a_solver_and_nothing_is_printed(capfd):
     from estimator.bench.curve_fit import project
-    from estimator.bench.solvers import NotFinite
+    from estimator.solvers import NotFinite
 
     # a motor model gone to NaN (the trial's degenerate corner) projected onto the quadratic:
     # before, numpy.linalg.lstsq got the NaNs, LAPACK printed ' ** On entry to DLASCL ...' on
@@ -180,23 +180,54 @@ def test_nothing_non_finite_reaches_a_solver_and_nothing_is_printed(capfd):
     assert leaked.out == "" and leaked.err == ""
 
 
-def test_the_bench_modules_call_solvers_only_through_their_finite_check():
+def test_every_flow_calls_solvers_only_through_their_finite_check():
+    # every module of estimator/ that takes a user's numbers (the edge modules, the three flows,
+    # the commands) calls numpy.linalg, numpy.polyfit and scipy's solvers only through
+    # estimator/solvers.py. Before, the walk covered bench/ alone and the watch's thrust table
+    # (watch/thrust_table.py) called numpy.linalg.lstsq itself. demo/ is left out: its flight
+    # simulator factors matrices built from the invented scenario's own constants, never from a
+    # file or an option.
     import ast
     import os
 
-    import estimator.bench
+    import estimator
 
-    folder = os.path.dirname(estimator.bench.__file__)
-    direct = []
-    for name in sorted(os.listdir(folder)):
-        if not name.endswith(".py") or name == "solvers.py":
-            continue
-        tree = ast.parse(open(os.path.join(folder, name)).read())
-        for node in ast.walk(tree):
-            if isinstance(node, ast.Call) and ast.unparse(node.func).startswith(
-                    ("np.linalg.", "numpy.linalg.", "np.polyfit", "numpy.polyfit")):
-                direct.append("%s:%d %s" % (name, node.lineno, ast.unparse(node.func)))
-            if isinstance(node, ast.ImportFrom) and (node.module or "").startswith(("scipy.optimize", "scipy.linalg",
-                                                                                   "numpy.linalg")):
-                direct.append("%s:%d %s" % (name, node.lineno, node.module))
+    root = os.path.dirname(estimator.__file__)
+    direct, walked = [], []
+    for folder, dirs, files in os.walk(root):
+        dirs[:] = sorted(d for d in dirs if d not in ("demo", "__pycache__"))
+        for name in sorted(files):
+            path = os.path.join(folder, name)
+            rel = os.path.relpath(path, root)
+            if not name.endswith(".py") or rel == "solvers.py":
+                continue
+            walked.append(rel)
+            tree = ast.parse(open(path).read())
+            for node in ast.walk(tree):
+                if isinstance(node, ast.Call) and ast.unparse(node.func).startswith(
+                        ("np.linalg.", "numpy.linalg.", "np.polyfit", "numpy.polyfit")):
+                    direct.append("%s:%d %s" % (rel, node.lineno, ast.unparse(node.func)))
+                if isinstance(node, ast.ImportFrom) and (node.module or "").startswith(
+                        ("scipy.optimize", "scipy.linalg", "numpy.linalg")):
+                    direct.append("%s:%d %s" % (rel, node.lineno, node.module))
+    # the walk reached the bench fits and the watch's table
+    assert {os.path.join("bench", "motor_fit.py"), os.path.join("watch", "thrust_table.py")} <= set(walked)
     assert direct == [], direct
+
+
+def test_a_thrust_table_that_is_not_finite_is_refused_before_lapack(capfd):
+    from estimator.solvers import NotFinite
+    from estimator.watch.thrust_table import thrust_knots_mN
+
+    # a thrust-from-power function gone to NaN or infinity above 3 W: before, numpy's lstsq took
+    # it and the table came back as 33 zeros (max(0, nan) is 0), a silent watch with no implied
+    # mass; now the finite check of estimator/solvers.py refuses it, and nothing is printed
+    for bad in (float("nan"), float("inf")):
+        capfd.readouterr()
+        with pytest.raises(NotFinite, match="NaN or an infinity in the watch's thrust-from-power table"):
+            thrust_knots_mN(lambda p_W, bad=bad: bad if p_W > 3.0 else 0.5 * p_W, 1.0)
+        leaked = capfd.readouterr()
+        assert leaked.out == "" and leaked.err == ""
+    # a finite one still gives its table: T = 0.5 N/W x P, linear, so the least-squares knots are
+    # the values at the knots themselves, 500 mN per W (linear interpolation is exact on a line)
+    assert thrust_knots_mN(lambda p_W: 0.5 * p_W, 1.0) == [500 * i for i in range(33)]

@@ -18,7 +18,7 @@ import math
 
 import numpy as np
 
-from estimator.bench import solvers
+from estimator import solvers
 from estimator.errors import InputError
 
 PARAM_NAMES = ("thrust_max_N", "quadratic_share", "command_min", "voltage_exponent")

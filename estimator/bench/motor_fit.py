@@ -44,7 +44,7 @@ import math
 
 import numpy as np
 
-from estimator.bench import solvers
+from estimator import solvers
 from estimator.bench.levels import confirmed_top as _confirmed_top
 from estimator.bench.motor_errors import exponent_errors, full_thrust_extrapolation
 from estimator.bench.rotor_model import NAMES, motor_exponents, rotor_arrays, rotor_jacobian, unpack

@@ -14,7 +14,7 @@ k(T) = k0 + slope T is a line through the levels above 10 % of T_max.
 
 import numpy as np
 
-from estimator.bench import solvers
+from estimator import solvers
 from estimator.errors import InputError
 from estimator.bench.levels import confirmed_top, robust_scale as mad_scale
 

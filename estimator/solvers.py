@@ -1,14 +1,17 @@
-"""The numerical solvers the bench fits call, each behind a check that what it is given is finite.
+"""The numerical solvers liftcal calls (the bench fits, the watch's thrust table), each behind a
+check that what it is given is finite.
 
 LAPACK (under numpy.linalg and scipy) writes its own complaint about a NaN or an infinity
 straight to the process's standard output (' ** On entry to DLASCL parameter number 4 had an
 illegal value') before numpy raises: Python cannot catch or redirect that text, and it broke
---json's one object on stdout (new-user trial 7, finding 3). So nothing non-finite may reach
-a solver: each wrapper here checks its arrays first and raises NotFinite (a
-FloatingPointError, which bench.sweep turns into the fit's refusal) naming what was not
-finite. least_squares checks the start, the residuals there and every Jacobian it is given
-(scipy's trust region steps already shrink away from non-finite residuals); the bench
-modules call only these (a test walks their source for direct calls).
+--json's one object on stdout (new-user trial 7, finding 3); where LAPACK stays silent, a NaN
+comes back as a NaN solution (the watch's thrust table read it as a table of zeros). So nothing
+non-finite may reach a solver: each wrapper here checks its arrays first and raises NotFinite
+(a FloatingPointError, which bench.sweep turns into the fit's refusal and the command line's
+last net into one error line) naming what was not finite. least_squares checks the start, the
+residuals there and every Jacobian it is given (scipy's trust region steps already shrink away
+from non-finite residuals). An edge module, so that every flow can use it; the modules of
+estimator/ call only these (a test walks their source for direct calls).
 """
 
 import numpy as np
