@@ -54,14 +54,15 @@ def test_the_whoop_sheet_leads_with_the_measured_figure_of_merit(tmp_path):
     # the figure behind the lead is within the micro-rotor tests' range (Kroo and Kunz; Bohorquez and Pines)
     assert 0.3 <= check["figure_of_merit_assumed"] <= 0.46
     assert report["flight_time_lead_basis"] == "small rotor"
-    assert report["flight_time_lead_min"] == check["flight_time_min"] < report["flight_time_min"]
+    assert report["flight_time_lead_min"] == check["flight_time_min"] < check["estimate_flight_time_min"]
     # 65 mm 1S whoop on 300 mAh: about 3-4 min (common practice): the lead is near that, the estimate
     # (generic blade, FM ~0.58) is far above it
-    assert 2.5 <= report["flight_time_lead_min"] <= 5.0 and report["flight_time_min"] > 6.0
+    assert 2.5 <= report["flight_time_lead_min"] <= 5.0 and check["estimate_flight_time_min"] > 6.0
     text = _section3(_ok(["hover", path]))
     first = "SMALL ROTOR: about %.1f min at the figure of merit %.2f" % (
         check["flight_time_min"], check["figure_of_merit_assumed"])
-    beside = "the estimate says about %.1f min" % report["flight_time_min"]
+    beside = "the generic blade estimate (figure of merit %.2f) says about %.1f min" % (
+        check["figure_of_merit_estimated"], check["estimate_flight_time_min"])
     assert text.startswith(first), text                      # the conservative number leads
     assert beside in text and text.index(first) < text.index(beside)
     assert "figure of merit %.2f is likely optimistic at a blade Reynolds number of %.0f" % (
@@ -86,14 +87,16 @@ def test_compare_ranks_and_shows_the_conservative_endurance(tmp_path):
     result = json.loads(_ok(["compare", path, "--vary", "battery.capacity=1100mAh,1500mAh", "--json"]))
     for row in result["rows"]:
         one = single[row["values"]["battery.capacity"]]
-        assert row["flight_time_lead_min"] == one["flight_time_lead_min"] < one["flight_time_min"]
+        assert row["flight_time_lead_min"] == one["flight_time_lead_min"] < one["low_reynolds_check"][
+            "estimate_flight_time_min"] == row["flight_time_min"]
         assert row["flight_time_lead_basis"] == "small rotor"
     table = _ok(["compare", path, "--vary", "battery.capacity=1100mAh,1500mAh"])
     first = [line for line in table.splitlines() if line.startswith(" 1  ")][0]
     assert first.rstrip().endswith("%.1f min" % single["1500mAh"]["flight_time_lead_min"]), first
     flat = " ".join(table.split())
     assert "generic blade estimate (%.2f, likely optimistic" % single["1500mAh"]["low_reynolds_check"][
-        "figure_of_merit_estimated"] in flat and "says %.1f min" % single["1500mAh"]["flight_time_min"] in flat
+        "figure_of_merit_estimated"] in flat and "says %.1f min" % single["1500mAh"]["low_reynolds_check"][
+        "estimate_flight_time_min"] in flat
 
 
 def test_the_payload_table_shows_and_judges_the_conservative_endurance(tmp_path):

@@ -12,7 +12,7 @@ import copy
 import itertools
 
 from estimator.errors import InputError, shorten
-from estimator.preflight.low_reynolds import endurance_lead
+from estimator.preflight.low_reynolds import endurance_lead, estimate_flight_time_min
 from estimator.preflight.margins import MARGINS, TABLE_CAUTIONS, broken, keeps_margins, margins
 from estimator.preflight.report import hover_report
 from estimator.preflight.warnings import (ENDED_BY_WORDS, REACHABLE_MARK, REACHABLE_MARK_NOTE,
@@ -166,7 +166,7 @@ def compare_rows(document, source, variations, progress=None):
             # a caution shown under the row, not a margin (margins.TABLE_CAUTIONS)
             "full_command_sag": report.get("thrust_to_weight_reachable") is False,
             "mass_kg": report["mass_kg"],
-            "flight_time_min": report["flight_time_min"],
+            "flight_time_min": estimate_flight_time_min(report),  # the generic blade estimate's
             "flight_time_lead_min": report["flight_time_lead_min"],
             "flight_time_lead_basis": report["flight_time_lead_basis"],
             "endurance_lead": endurance_lead(report),

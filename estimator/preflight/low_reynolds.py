@@ -178,8 +178,16 @@ def endurance_lead(report):
     return {"flight_time_min": check.get("flight_time_min"), "basis": "small rotor",
             "flight_ended_by": check.get("flight_ended_by"),
             "figure_of_merit": check["figure_of_merit_assumed"],
-            "other_flight_time_min": report["flight_time_min"],
+            "other_flight_time_min": check.get("estimate_flight_time_min", report["flight_time_min"]),
             "other_figure_of_merit": check["figure_of_merit_estimated"],
             "reason": "the generic blade's figure of merit %.2f is likely optimistic at a blade Reynolds "
                       "number of %.0f (below about %.0f)" % (check["figure_of_merit_estimated"],
                                                              check["reynolds_75"], LOW_REYNOLDS_75)}
+
+
+def estimate_flight_time_min(report):
+    """The generic blade estimate's endurance [min] of a report (None: no hover): beside the lead
+    in compare and payload rows. On a small rotor that hovers at the measured figure of merit the
+    report's own numbers are at that figure (preflight.report), so the estimate's is the check's."""
+    lead = endurance_lead(report)
+    return lead["other_flight_time_min"] if lead["basis"] == "small rotor" else report.get("flight_time_min")

@@ -16,7 +16,7 @@ import math
 import re
 
 from estimator.errors import InputError, shorten
-from estimator.preflight.low_reynolds import endurance_lead
+from estimator.preflight.low_reynolds import endurance_lead, estimate_flight_time_min
 from estimator.preflight.margins import PAYLOAD_BLIND, SAG_NOT_A_MARGIN_WHY, broken, margins
 from estimator.preflight.report import hover_report
 from estimator.preflight.warnings import REACHABLE_MARK, REACHABLE_MARK_NOTE, judged_thrust_to_weight, judged_thrust_to_weight_text
@@ -99,7 +99,7 @@ def _row(vehicle, payload_kg, job_min, params=None):
         "reachable_thrust_to_weight": report.get("reachable_thrust_to_weight"),
         "thrust_to_weight_judged": judged_thrust_to_weight(report)[0], "hover_pack_current_A": report["hover_current_A"],
         "hover_motor_current_A": report.get("hover_motor_current_A"),
-        "flight_time_min": report["flight_time_min"], "flight_time_lead_min": lead,
+        "flight_time_min": estimate_flight_time_min(report), "flight_time_lead_min": lead,
         "flight_time_lead_basis": report.get("flight_time_lead_basis", "estimate"),
         "flight_ended_by": endurance_lead(report)["flight_ended_by"],
         "current_judged_at": report.get("current_judged_at"),

@@ -106,6 +106,28 @@ def _command(report, key, none="n/a"):
     return _num(value, "%.2f", none=none) + (" (%s)" % command_text(value, unit) if unit and value is not None else "")
 
 
+def _small_rotor_leads(report):
+    """True when the report's hover numbers are at the small-rotor figure of merit (preflight.report:
+    a small estimated rotor that hovers there), the generic blade's estimate beside them."""
+    check = report.get("low_reynolds_check")
+    return bool(check) and check.get("hover_command") is not None and report.get("hover_command") is not None
+
+
+def _small_rotor_line(report):
+    """Section 1's label of a small rotor's hover numbers and the generic blade's beside them, or ''."""
+    if not _small_rotor_leads(report):
+        return ""
+    low = report["low_reynolds_check"]
+    return ("(hover command, currents, power and minutes at the figure of merit %.2f measured rotors of this "
+            "size reach; the generic blade estimate, %.2f and likely optimistic, gives command %s, motor "
+            "current %s, pack current %s, %s)" % (
+                low["figure_of_merit_assumed"], low["figure_of_merit_estimated"],
+                _num(low.get("estimate_hover_command"), "%.2f"),
+                _num(low.get("estimate_hover_motor_current_A"), SIG3, "A"),
+                _num(low.get("estimate_hover_current_A"), SIG3, "A"),
+                _num(low.get("estimate_hover_power_W"), SIG3, "W")))
+
+
 def format_sheet(report):
     """The human pre-flight sheet for a report dict, grouped by the builder's questions
     (lines wrapped to an 80-column terminal, estimator.textwidth)."""
@@ -152,6 +174,9 @@ def format_sheet(report):
                          % (interval[0], interval[1], " (%s..%s)" % (command_text(interval[0], unit),
                                                                      command_text(interval[1], unit)) if unit else "",
                             report.get("interval_scope", "bench-fit uncertainty only")))
+        small = _small_rotor_line(report)
+        if small:
+            lines.append("         " + small)
         if report.get("model") == MODEL:
             lines.append("         " + DUTY_NOTE)
     else:
@@ -218,16 +243,18 @@ def format_sheet(report):
                              "this size reach (hover from a full pack%s)" % (
                                  _num(lead["flight_time_min"], "%.1f", "min"), lead["figure_of_merit"],
                                  ", ended by %s" % ENDED_BY_WORDS.get(low_ended, low_ended) if low_ended else ""))
-            lines.append("   the estimate says about %s (ended by %s), but %s; see below" % (
-                _num(lead["other_flight_time_min"], "%.1f", "min"), ENDED_BY_WORDS.get(ended, ended),
-                lead["reason"]))
+            other_ended = low.get("estimate_flight_ended_by", ended)
+            lines.append("   the generic blade estimate (figure of merit %.2f) says about %s (ended by %s), "
+                         "but %s; see below" % (
+                             lead["other_figure_of_merit"], _num(lead["other_flight_time_min"], "%.1f", "min"),
+                             ENDED_BY_WORDS.get(other_ended, other_ended), lead["reason"]))
         elif ended:
             lines.append("   about %s of hover from a full pack, ended by %s%s" % (
                 _minutes(report.get("flight_time_min")), ENDED_BY_WORDS.get(ended, ended),
                 " (as read: check %s first, see 4.)" % ", ".join(suspect) if suspect else ""))
         if ended:
             lines.append("   (%s usable share alone, %s at the nominal-pack hover current, gives %s)" % (
-                "the estimate's" if lead["basis"] == "small rotor" else "the",
+                "the estimate's" if lead["basis"] == "small rotor" and not _small_rotor_leads(report) else "the",
                 _num(report.get("usable_Ah"), SIG3, "Ah"),
                 _minutes(report.get("flight_time_usable_share_min"))))
         else:
@@ -254,10 +281,16 @@ def format_sheet(report):
         if estimate:
             lines.append("   propeller CT %.3f, CP %.4f ESTIMATED from %.3g m x %.3g m pitch, %d blades "
                          "(blade element momentum theory at %.0f rpm; typically 10-20 %% off%s)"
-                         % (report["propeller_ct"], report["propeller_cp"], report.get("propeller_diameter_m") or 0.0,
+                         % (report["propeller_ct"], estimate.get("cp", report["propeller_cp"]),
+                            report.get("propeller_diameter_m") or 0.0,
                             estimate["pitch_m"], estimate["blades"], estimate["rpm"],
                             "; likely optimistic at this small size, see below" if report.get("low_reynolds_check")
                             else ""))
+        if _small_rotor_leads(report):
+            low = report["low_reynolds_check"]
+            lines.append("   CP raised from the estimate's %.4f to %.4f: the figure of merit %.2f measured rotors of "
+                         "this size reach; every hover number above is at it" % (
+                             low["estimate_cp"], low["cp"], low["figure_of_merit_assumed"]))
         if report.get("static_factor") is not None:
             extras.append(static_factor_text(report))
         if extras:
