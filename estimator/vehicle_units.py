@@ -22,6 +22,24 @@ DISK_LOADING_TYPICAL_N_M2 = (20.0, 1500.0)
 # fall in the band a little wider than that (3 to 60 %).
 PACK_SPECIFIC_ENERGY_WH_KG = 150.0
 PACK_MASS_SHARE_USUAL = (0.03, 0.6)
+# Li-ion cylindrical cells (18650, 21700) in a pack: about 250 Wh/kg (common practice, from
+# memory); their cells sit near 3.6 V nominal and are drained to about 3.0 V, where a LiPo pack's
+# stop near 3.7 and 3.5 V. Cell voltages at or below these read as Li-ion (from memory).
+LI_ION_SPECIFIC_ENERGY_WH_KG = 250.0
+LI_ION_NOMINAL_CELL_MAX_V = 3.65
+LI_ION_EMPTY_CELL_MAX_V = 3.2
+
+
+def pack_specific_energy(battery):
+    """(chemistry word, specific energy [Wh/kg]) of a checked vehicle's battery block, from its cell
+    voltages: nominal_cell_V <= LI_ION_NOMINAL_CELL_MAX_V and empty_cell_V <= LI_ION_EMPTY_CELL_MAX_V
+    [V] read as Li-ion (LI_ION_SPECIFIC_ENERGY_WH_KG), else LiPo (PACK_SPECIFIC_ENERGY_WH_KG); both
+    common practice, from memory."""
+    nominal, empty = battery.get("nominal_cell_V"), battery.get("empty_cell_V")
+    if (isinstance(nominal, (int, float)) and isinstance(empty, (int, float))
+            and nominal <= LI_ION_NOMINAL_CELL_MAX_V and empty <= LI_ION_EMPTY_CELL_MAX_V):
+        return "Li-ion", LI_ION_SPECIFIC_ENERGY_WH_KG
+    return "LiPo", PACK_SPECIFIC_ENERGY_WH_KG
 # a lithium cell's nominal voltage [V] for the pack-energy guess of a bare capacity (common practice)
 _CELL_NOMINAL_V = 3.7
 # the units a bare number on a short key was most likely written in, default unit first:
@@ -206,6 +224,14 @@ def _in_schema(kind, value_si, block, key):
     node = load_schema("vehicle.schema.json")["properties"]
     node = node.get(key) if block == "" else node.get(block, {}).get("properties", {}).get(key)
     return node is None or within(value_si, node)
+
+
+def in_vehicle_schema(path, value_si):
+    """True when the vehicle schema accepts ``value_si`` at the JSON path ("$.motor.kv_rpm_per_V",
+    "$.mass_kg"): a hint never suggests a value the schema would refuse (trial 8, item 5)."""
+    parts = path.split(".")[1:]
+    block, key = ("", parts[0]) if len(parts) == 1 else (parts[0], parts[1])
+    return _in_schema(None, value_si, block, key)
 
 
 def likely_unit(kind, value, block, key, document):

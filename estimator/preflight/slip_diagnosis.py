@@ -11,8 +11,9 @@ vehicle as read is ordinary, or when no single correction makes it so.
 
 The checks (sea-level standard air, 1.225 kg/m^3: the slips are factors of 10 and more):
 - disk loading m g / (N A) within DISK_LOADING_TYPICAL_N_M2 (common practice);
-- pack energy: its mass at PACK_SPECIFIC_ENERGY_WH_KG within PACK_MASS_SHARE_USUAL of the
-  all-up mass (common practice, from memory);
+- pack energy: its mass at the chemistry's specific energy (vehicle_units.pack_specific_energy:
+  Li-ion about 250 Wh/kg, LiPo about 150, told apart by the cell voltages) within
+  PACK_MASS_SHARE_USUAL of the all-up mass (common practice, from memory);
 - motor power: the ideal hover power per rotor, T^1.5 / sqrt(2 rho A) (momentum theory,
   design notes sec. 3), at a figure of merit of FIGURE_OF_MERIT, at most the most a DC motor of
   winding resistance R gives on the nominal pack voltage V, V^2 / (4 R) (back-EMF V / 2, the
@@ -28,11 +29,17 @@ from estimator.core.constants import SEA_LEVEL_DENSITY_KG_M3, STANDARD_GRAVITY_M
 from estimator.core.momentum import disk_area_m2
 from estimator.units import INCH_M, plain_number
 from estimator.vehicle import given_text
-from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, PACK_SPECIFIC_ENERGY_WH_KG
+from estimator.vehicle_units import (DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, in_vehicle_schema,
+                                    pack_specific_energy)
 
 RHO = SEA_LEVEL_DENSITY_KG_M3  # sea-level standard density [kg/m^3], US Standard Atmosphere 1976
 FIGURE_OF_MERIT = 0.5  # a small rotor's hover figure of merit, generous for this check [-] (from memory)
 TYPICAL_CT = 0.1  # a small propeller's static CT, n in rev/s (from memory)
+# A corrected vehicle must be ordinary, not just possible, before a key is blamed (trial 8, items
+# 4, 5): thrust-to-weight at least 2 (common practice) at the motor's no-load speed needs hover at
+# most 1/sqrt(2) of it (T ~ n^2), and at the motor's most power (P ~ T^1.5) hover at most 2^-1.5 of it.
+ORDINARY_SPEED_SHARE = 2.0 ** -0.5
+ORDINARY_POWER_SHARE = 2.0 ** -1.5
 # slips per key: (factor applied to the value as read, words); 1 g = 1e-3 kg, 1 mAh = 1e-3 Ah
 _SLIPS = {
     "$.mass_kg": ((1e-3, "the unit prefix: g, not kg"), (1e3, "the unit prefix: kg, not g"),
@@ -51,8 +58,15 @@ def _n(x):
     return plain_number(x, 3, trim=True)
 
 
+# the checks each key enters: a corrected key is credited only with these (trial 8, item 4)
+DEPENDS_ON = {"$.mass_kg": ("disk loading", "pack energy", "motor power", "motor speed"),
+              "$.battery.capacity_Ah": ("pack energy",),
+              "$.motor.kv_rpm_per_V": ("motor speed",),
+              "$.propeller.diameter_m": ("disk loading", "motor power", "motor speed")}
+
+
 def _facts(mass, count, diameter, bat, motor):
-    """The vehicle's numbers the checks read: {check: (value, band lo, band hi)}."""
+    """The vehicle's numbers the checks read: {check: (value, band lo, band hi, text)}."""
     thrust = mass * STANDARD_GRAVITY_M_S2 / count
     area = disk_area_m2(diameter)
     volts = bat["cells"] * bat["nominal_cell_V"]
@@ -61,13 +75,15 @@ def _facts(mass, count, diameter, bat, motor):
     hover_rpm = 60.0 * math.sqrt(thrust / (TYPICAL_CT * RHO * diameter ** 4))
     top_rpm = motor["kv_rpm_per_V"] * volts
     lo, hi = DISK_LOADING_TYPICAL_N_M2
+    chemistry, specific_Wh_kg = pack_specific_energy(bat)
     facts = {
         "disk loading": (thrust / area, lo, hi, "disk loading %s N/m^2 (small multirotors: %g..%g)"
                          % (_n(thrust / area), lo, hi)),
-        "pack energy": (energy_Wh / PACK_SPECIFIC_ENERGY_WH_KG / mass,) + PACK_MASS_SHARE_USUAL
-        + ("a %s Wh pack weighs %s %% of it at %.0f Wh/kg (usual %g..%g %%)" % (
-            _n(energy_Wh), _n(100.0 * energy_Wh / PACK_SPECIFIC_ENERGY_WH_KG / mass), PACK_SPECIFIC_ENERGY_WH_KG,
-            100 * PACK_MASS_SHARE_USUAL[0], 100 * PACK_MASS_SHARE_USUAL[1]),),
+        "pack energy": (energy_Wh / specific_Wh_kg / mass,) + PACK_MASS_SHARE_USUAL
+        + ("a %s Wh pack weighs %s %% of it at %.0f Wh/kg (%s, told by its cell voltages; usual %g..%g %%; "
+           "common practice, from memory)" % (
+               _n(energy_Wh), _n(100.0 * energy_Wh / specific_Wh_kg / mass), specific_Wh_kg, chemistry,
+               100 * PACK_MASS_SHARE_USUAL[0], 100 * PACK_MASS_SHARE_USUAL[1]),),
         "motor speed": (hover_rpm / top_rpm, 0.0, 1.0, "hover needs about %s rpm, %g Kv on %s V "
                         "turns at most %s rpm" % (_n(hover_rpm), motor["kv_rpm_per_V"], _n(volts), _n(top_rpm))),
     }
@@ -77,6 +93,16 @@ def _facts(mass, count, diameter, bat, motor):
                                 "hover needs about %s W per motor, a %g ohm motor on %s V gives at most %s W"
                                 % (_n(ideal_W / FIGURE_OF_MERIT), motor["resistance_ohm"], _n(volts), _n(most_W)))
     return facts
+
+
+def _ordinary(facts):
+    """The facts with the motor bands narrowed to an ordinary vehicle's (ORDINARY_*_SHARE)."""
+    out = dict(facts)
+    for name, share in (("motor speed", ORDINARY_SPEED_SHARE), ("motor power", ORDINARY_POWER_SHARE)):
+        if name in out:
+            value, lo, _, text = out[name]
+            out[name] = (value, lo, share, text)
+    return out
 
 
 def _penalty(facts):
@@ -151,9 +177,9 @@ def whole_vehicle_slip(vehicle):
         return None
     fits = []
     for path, key, value, shown, why in _candidates(vehicle):
-        if value <= 0.0:
+        if value <= 0.0 or not in_vehicle_schema(key, value):  # never a value the schema refuses
             continue
-        corrected = _judge(vehicle, key, value)
+        corrected = _ordinary(_judge(vehicle, key, value))
         if _penalty(corrected) == 0.0:
             fits.append((_off_centre(corrected), path, key, value, shown, why))
     if not fits:
@@ -176,10 +202,28 @@ def whole_vehicle_warning(vehicle, found):
                "$.battery.capacity_Ah": "%g Ah" % vehicle["battery"]["capacity_Ah"],
                "$.motor.kv_rpm_per_V": "%g Kv" % vehicle["motor"]["kv_rpm_per_V"],
                "$.propeller.diameter_m": "%.3g m" % vehicle["propeller"]["diameter_m"]}[found["key"]]
-    text = ("%s: %s%s does not fit the rest of the vehicle (%s): %s meant (%s)? with it the disk "
-            "loading, the pack energy, the motor power and the motor speed all fall in ordinary ranges: "
-            "check this key first" % (found["path"], as_read, ' (written "%s")' % written if written else "",
-                           "; ".join(found["failing"]), found["shown"], found["why"]))
+    checks = [c for c in DEPENDS_ON[found["key"]]]
+    named = checks[0] if len(checks) == 1 else ", ".join(checks[:-1]) + " and " + checks[-1]
+    text = ("%s: %s%s does not fit the rest of the vehicle (%s): %s meant (%s)? with it the %s %s in "
+            "%s: check this key first" % (found["path"], as_read, ' (written "%s")' % written if written else "",
+                                          "; ".join(found["failing"]), found["shown"], found["why"], named,
+                                          "falls" if len(checks) == 1 else "all fall",
+                                          "its ordinary range" if len(checks) == 1 else "ordinary ranges"))
     if found["others"]:
         text += "; less likely: " + ", ".join("%s %s" % o for o in found["others"][:2])
     return text
+
+
+def too_heavy_warning(vehicle):
+    """When the vehicle as read fails only checks its mass enters and no single slip explains it
+    (whole_vehicle_slip is None): the words that it is too heavy for its rotors, mass first; else
+    None. Not a slip warning (it does not start with a JSON path)."""
+    facts = _judge(vehicle)
+    failing = [(name, f) for name, f in facts.items() if f[0] > f[2] or (f[1] > 0.0 and f[0] < f[1])]
+    heavy = [name for name, f in failing if f[0] > f[2] and name in ("disk loading", "motor power", "motor speed")]
+    if not failing or len(heavy) != len(failing) or whole_vehicle_slip(vehicle) is not None:
+        return None
+    return ("the vehicle looks too heavy for its rotors (%s) and no single unit or decimal slip explains it: "
+            "check the mass first (%s), then the propeller size and the motor's Kv and winding "
+            "resistance" % ("; ".join(f[3] for _, f in failing), given_text(vehicle, "$.mass_kg")
+                            or "%s kg" % _n(vehicle["mass_kg"])))

@@ -14,11 +14,11 @@ import re
 
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2, figure_of_merit
-from estimator.preflight.slip_diagnosis import whole_vehicle_slip, whole_vehicle_warning
+from estimator.preflight.slip_diagnosis import too_heavy_warning, whole_vehicle_slip, whole_vehicle_warning
 from estimator.units import INCH_M
 from estimator.vehicle import given_text
 # the typical ranges live with the vehicle file's unit reading (one home)
-from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, PACK_SPECIFIC_ENERGY_WH_KG
+from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, pack_specific_energy
 
 # below this a propeller is far too large for the mass (a 0.25 kg frame on 10-inch propellers
 # still has 12 N/m^2) [N/m^2]
@@ -152,17 +152,22 @@ def suspicious_values(vehicle):
             out.append(head + ": mAh meant? (%g mAh = %g Ah)" % (bat["capacity_Ah"], bat["capacity_Ah"] * 1e-3))
         else:
             share_lo, share_hi = PACK_MASS_SHARE_USUAL
-            usual = [mass * share * PACK_SPECIFIC_ENERGY_WH_KG / pack_V for share in (share_lo, share_hi)]
+            chemistry, specific_Wh_kg = pack_specific_energy(bat)
+            usual = [mass * share * specific_Wh_kg / pack_V for share in (share_lo, share_hi)]
             hint = _written_hint(bat["capacity_Ah"], "Ah", lambda c: usual[0] <= c <= usual[1])
             out.append(head + ": a unit or decimal slip? %s (packs of %.0f..%.0f %% of the all-up mass at about %.0f "
-                       "Wh/kg hold %.2g..%.2g Ah on %d cells; common practice, from memory)"
+                       "Wh/kg, %s by the cell voltages, hold %.2g..%.2g Ah on %d cells; common practice, from memory)"
                        % (hint or "check the capacity",
-                          100 * share_lo, 100 * share_hi, PACK_SPECIFIC_ENERGY_WH_KG, usual[0], usual[1],
+                          100 * share_lo, 100 * share_hi, specific_Wh_kg, chemistry, usual[0], usual[1],
                           bat["cells"]))
     found = whole_vehicle_slip(vehicle)
     if found is not None:  # one key explains the whole vehicle: it goes first, the pairwise checks go
         out = [whole_vehicle_warning(vehicle, found)]
         capacity_odd = found["key"] == "$.battery.capacity_Ah"
+    else:
+        heavy = too_heavy_warning(vehicle)
+        if heavy is not None and not out:
+            out.append(heavy)
     r_cell_ah = bat["resistance_ohm"] / bat["cells"] * bat["capacity_Ah"]
     if not capacity_odd and r_cell_ah > CELL_RESISTANCE_CAPACITY_MAX_OHM_AH:
         out.append("$.battery.resistance_ohm: %g ohm%s for a %d-cell %g Ah pack is %.0f times the "
