@@ -4,7 +4,7 @@ Layout: DEVELOPERS.md "Parameter set" and ``schemas/params.schema.json`` (draft 
 Keys added beyond the DEVELOPERS.md layout (none renamed): thrust_curve_covariance,
 warnings, bench_air.source text, fit_quality.residual_scale_N, fit_quality.fit_method,
 provenance.bench_air, static_factor.value_at, hover.interval_method, power_model.
-residual_basis, thrust_curve.quadratic_share_error.
+residual_basis, thrust_curve.quadratic_share_error, fit_quality.thrust_offset_removed_N.
 """
 
 import datetime
@@ -114,6 +114,9 @@ def build_params(data, fit, source):
         },
         "warnings": list(fit["warnings"]),
     }
+    if fit.get("thrust_offset_N"):
+        # a load cell's zero offset the fit took off every row (bench.load_cell.tare_offset)
+        params["fit_quality"]["thrust_offset_removed_N"] = _r(fit["thrust_offset_N"])
     return params
 
 

@@ -20,6 +20,9 @@ STANDING_POWER_SHARE = 0.01
 # a standing rotor's mean thrust beyond this share of the largest level thrust is a tare
 # offset; honest idle readings scatter around zero far below it [-]
 TARE_SHARE = 0.015
+# the standing levels' thrusts may spread by at most this share of the offset for the offset to
+# be subtracted (a rotor turning slowly at idle power makes thrust that rises with command) [-]
+TARE_FLAT_SHARE = 0.25
 
 
 def _in_unit(thrust_N, unit):
@@ -44,11 +47,10 @@ def check_thrust_sign(source, thrust_N, power_W, thrust_unit="N"):
                          % (source, _in_unit(t_top, thrust_unit)))
 
 
-def tare_warning(levels, thrust_unit="N"):
-    """A warning (str) when the levels where the rotor stands (the lowest commands, their power
-    at the sweep's idle value) read thrust: the load cell was not zeroed. None otherwise.
-    levels: estimator.bench.levels.command_levels output (command, thrust_N, power_W)."""
-    u, t, p = levels["command"], levels["thrust_N"], levels["power_W"]
+def _standing(levels):
+    """(standing level indices, idle power [W]) of the levels where the rotor stands (the lowest
+    commands, their power at the sweep's idle value), or None when fewer than two."""
+    u, p = levels["command"], levels["power_W"]
     if u.size < 3:
         return None
     p_lo, p_hi = float(np.min(p)), float(np.max(p))
@@ -59,13 +61,47 @@ def tare_warning(levels, thrust_unit="N"):
     standing = order[:first_busy[0]] if first_busy.size else order
     # the lower half of them: a rotor just starting still draws about its idle power
     standing = standing[:max(2, standing.size // 2)]
-    t_top = float(np.max(t))
-    if standing.size < 2 or not t_top > 0.0:
+    if standing.size < 2:
         return None
+    return standing, float(np.median(p[standing]))
+
+
+def tare_offset(levels):
+    """The load cell's zero offset [N] read where the rotor stands, as (offset_N, idle_power_W,
+    unambiguous), or None when there is none to speak of (within TARE_SHARE of the largest
+    level thrust). unambiguous: the standing levels read the same thrust (their spread at most
+    TARE_FLAT_SHARE of the offset): a rotor that stands makes no thrust whatever the command,
+    while one that turns slowly at about idle power makes thrust that grows with it; only a flat
+    offset is the cell's zero and may be subtracted.
+    levels: estimator.bench.levels.command_levels output (command, thrust_N, power_W)."""
+    found = _standing(levels)
+    t = levels["thrust_N"]
+    if found is None or t.size == 0 or not float(np.max(t)) > 0.0:
+        return None
+    standing, idle_W = found
     offset = float(np.median(t[standing]))
-    if abs(offset) <= TARE_SHARE * t_top:
+    if abs(offset) <= TARE_SHARE * float(np.max(t)):
         return None
+    spread = float(np.max(t[standing]) - np.min(t[standing]))
+    return offset, idle_W, spread <= TARE_FLAT_SHARE * abs(offset)
+
+
+def tare_note(offset_N, thrust_unit="N"):
+    """The one line that says a zero offset [N] was subtracted from the thrust (the fit's
+    summary, the set's warnings, `hover --params` and `firmware` all say it in these words)."""
+    return ("thrust zero offset %s subtracted from every row: thrust read that much where the rotor "
+            "stood (power at its idle value), so the load cell was not zeroed; tare it with the "
+            "propeller on and the motor off next time" % _in_unit(offset_N, thrust_unit))
+
+
+def tare_warning(levels, thrust_unit="N"):
+    """A warning (str) when the levels where the rotor stands read thrust but not flat enough
+    to subtract (tare_offset: ambiguous): the load cell may not be zeroed. None otherwise."""
+    found = tare_offset(levels)
+    if found is None:
+        return None
+    offset, idle_W, _ = found
     return ("thrust reads about %s at the lowest commands, where the power stays at its idle value (%.3g W): "
             "if the rotor stood still there, the load cell was not zeroed; tare it with the propeller on "
             "and the motor off, and sweep again (the fit takes the offset for thrust)"
-            % (_in_unit(offset, thrust_unit), float(np.median(p[standing]))))
+            % (_in_unit(offset, thrust_unit), idle_W))

@@ -20,7 +20,7 @@ from estimator.errors import InputError
 from estimator.core.momentum import disk_area_m2
 from estimator.bench.curve_fit import check_rising, fit_curve
 from estimator.bench.levels import command_levels
-from estimator.bench.load_cell import check_thrust_sign, tare_warning
+from estimator.bench.load_cell import check_thrust_sign, tare_note, tare_offset, tare_warning
 from estimator.bench.motor_fit import DUTY_INDEX, fit_motor_model
 from estimator.bench.power_fit import MAD_ROWS, check_static_factor, fit_power
 from estimator.bench.wording import extrapolation_refusal, fit_warnings
@@ -140,12 +140,19 @@ def _fit_bench(data, source, voltage_exponent):
     command_unit, thrust_unit = data.get("command_unit", "-"), data.get("thrust_unit", "N")
     warnings = list(data["warnings"])
     check_thrust_sign(source, t, p, thrust_unit)
-    check_static_factor(source, t, p, rho, area, thrust_unit, data.get("current_unit", "A"), warnings)
     v_span = data.get("voltage_span_V") or (float(np.min(v)), float(np.max(v)))
     lv = command_levels(u, v, t, p, v_span)
-    tare = tare_warning(lv, thrust_unit)
-    if tare:
-        warnings.append(tare)
+    tare, offset_N = tare_offset(lv), 0.0
+    if tare is not None and tare[2]:
+        # the rotor stood still at a flat offset: the cell's zero, taken off every row (new-user
+        # trial 8, finding 1: kept as thrust it promised 20 % more endurance)
+        offset_N = tare[0]
+        t = t - offset_N
+        lv = command_levels(u, v, t, p, v_span)
+        warnings.append(tare_note(offset_N, thrust_unit))
+    elif tare is not None:
+        warnings.append(tare_warning(lv, thrust_unit))
+    check_static_factor(source, t, p, rho, area, thrust_unit, data.get("current_unit", "A"), warnings)
     lv["current_A"] = lv["power_W"] / lv["voltage_V"]
     check_rising(lv, source)
     v_ref = float(round(float(np.median(v[:: max(1, v.size // MAD_ROWS)])), 2))
@@ -174,7 +181,7 @@ def _fit_bench(data, source, voltage_exponent):
                         "command_start_standard_error": start_standard_error(motor, lv["command"], both_ways)})
     fit = {
         "curve": curve, "power": power, "static": sf, "rejected": rejected, "motor": motor_block,
-        "rows_used": rows_used, "rows_rejected": int(data["rows_total"] - rows_used),
+        "rows_used": rows_used, "thrust_offset_N": offset_N, "rows_rejected": int(data["rows_total"] - rows_used),
         "warnings": warnings + curve["warnings"] + fit_warnings(curve, motor_block, lv, command_unit, thrust_unit),
     }
     return build_params(data, fit, source), Rows(u, v, t, p, ~spikes)

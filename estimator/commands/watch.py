@@ -81,6 +81,18 @@ def _exponent_warning(params, vehicle, source):
                               c.get("voltage_max_V", 0.0), pack)]
 
 
+def _tare_warning(params, source):
+    """[the fit's one line] when the set's sweep had a load-cell zero offset that the fit
+    subtracted (fit_quality.thrust_offset_removed_N), in the sweep's thrust unit; [] otherwise."""
+    from estimator.bench.load_cell import tare_note
+
+    offset_N = params.get("fit_quality", {}).get("thrust_offset_removed_N")
+    if not offset_N:
+        return []
+    unit = params.get("provenance", {}).get("units", {}).get("thrust", "N")
+    return ["%s: %s" % (source, tare_note(offset_N, unit))]
+
+
 def _count(n, word):
     return "%d %s%s" % (n, word, "" if n == 1 else "s")
 
@@ -116,7 +128,8 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     cfg = out["config"]
     # the kernel's limit is plan x (1 + permille / 1000) exactly (it compares permille), not floored
     mass_limit_g = round(cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) / 1000.0, 1)
-    warnings = ([edited] if edited else []) + _exponent_warning(params, vehicle, params_file)
+    warnings = (([edited] if edited else []) + _tare_warning(params, params_file)
+                + _exponent_warning(params, vehicle, params_file))
     # README: whenever liftcal replaces one of its own files it says so in one line
     replaced = ["replaced %s: a power-watch bundle liftcal wrote" % out_dir] if state == "own" else []
     summary = {"out_dir": out["out_dir"], "files": out["files"], "mpy_bytes": out["mpy_bytes"],
@@ -196,6 +209,8 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         lines.append("  " + out["note"])
     elif not out["events"]:
         lines.append("  no event: power stayed within what the parameter set expects")
+    from estimator.watch.replay import mass_words
+    lines.append("  " + mass_words(out["mass"]))
     if out["events"]:
         lines.append("  (times in s from the log's first row)")
     for e in out["events"]:

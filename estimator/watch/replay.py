@@ -88,6 +88,7 @@ def run_kernel(flight, config, trace=False, progress=None):
     plan_kg = config["mass_plan_g"] / 1000.0
     limit_kg = plan_kg * (1000 + config["mass_limit_permille"]) / 1000.0
     learn_span = [None, None]      # flight time of the learning window: first spin-up .. learned
+    mass_last = None               # (the kernel's last implied mass [g], its time [s]) once judged
     arrays = {"time_s": [x - t0 for x in t], "power_W": [], "expected_W": [], "flags": [], "residual": [],
               "learn_span": learn_span} if trace else None
     step = max(1, n // 50)
@@ -119,6 +120,8 @@ def run_kernel(flight, config, trace=False, progress=None):
             stuck_event = None
         if learn_span[0] is None and u[i] >= spin:
             learn_span[0] = ti - t0
+        if w.mass_g:  # 0 until a mass window of steady flight is complete (NamedWatch.mass_g)
+            mass_last = (w.mass_g, ti - t0)
         if not learned and w.sigma_permille:
             learned = True
             learn_span[1] = ti - t0
@@ -150,7 +153,36 @@ def run_kernel(flight, config, trace=False, progress=None):
     out = {"learned": learned, "learned_at_s": None if learn_span[1] is None else round(learn_span[1], 3),
            "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events,
            "flights_s": [round(x / 1000.0, 3) for x in flights], "sensor_fault_s": round(fault_ms / 1000.0, 3)}
+    out["mass"] = mass_verdict(mass_last, plan_kg, limit_kg, learned, config)
     return out, arrays
+
+
+def mass_verdict(mass_last, plan_kg, limit_kg, learned, cfg):
+    """What became of the implied mass (new-user trial 8, finding 2: a replay without a mass alarm
+    must not read as a clean bill when the mass was never judged): dict judged (bool), planned_kg,
+    limit_kg [kg], and when judged implied_kg [kg], at_s [s from the log's first row], share [-]
+    (implied over planned less 1) and above_limit (bool); when not, reason (text).
+    mass_last: (the kernel's last non-zero mass_g [g], its time [s]) or None."""
+    out = {"judged": mass_last is not None, "planned_kg": plan_kg, "limit_kg": round(limit_kg, 4)}
+    if mass_last is not None:
+        kg = mass_last[0] / 1000.0
+        out.update(implied_kg=kg, at_s=round(mass_last[1], 3), share=round(kg / plan_kg - 1.0, 4),
+                   above_limit=kg > limit_kg)
+    elif not learned:
+        out["reason"] = "the watch did not learn its power baseline, and the mass is judged only after it"
+    else:
+        out["reason"] = ("no %.0f s window of steady flight near hover was completed (climbs, descents, gusts or "
+                         "a suspected power fault keep blocks out of it)" % (cfg["mass_window_ms"] / 1000.0))
+    return out
+
+
+def mass_words(mass):
+    """The one line replay prints for mass_verdict's dict."""
+    if not mass["judged"]:
+        return "mass not judged: %s" % mass["reason"]
+    return ("implied mass %.3f kg at %.1f s (the last window): %+.1f %% against %.3f kg planned, %s the alarm "
+            "limit %.3f kg" % (mass["implied_kg"], mass["at_s"], 100.0 * mass["share"], mass["planned_kg"],
+                               "above" if mass["above_limit"] else "below", mass["limit_kg"]))
 
 
 def _bar(i, n):
