@@ -205,6 +205,9 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
                                            _count(len(out["events"]), "event"))]
     if out.get("dropped_rows"):
         lines.append("  dropped %s whose time went back or repeated" % _count(out["dropped_rows"], "row"))
+    if out.get("dropped_missing_rows"):
+        lines.append("  dropped %s with an empty or 'nan' cell (a missed reading)"
+                     % _count(out["dropped_missing_rows"], "row"))
     if not out["learned"]:
         lines.append("  " + out["note"])
     elif not out["events"]:

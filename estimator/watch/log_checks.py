@@ -69,7 +69,9 @@ def check_time(path, flight, go_on=False):
         return 0
     if not go_on:
         i, before = bad[0]
-        line_of = data_line_numbers(path, flight["header_line"])
+        lines = data_line_numbers(path, flight["header_line"])
+        kept = flight.get("row_index")  # rows left after those with a missing reading were dropped
+        line_of = lines if kept is None else [lines[j] for j in kept]
         rows = ", ".join(str(line_of[j]) for j, _ in bad[:SHOWN_ROWS])
         more = "" if len(bad) <= SHOWN_ROWS else " and %d more" % (len(bad) - SHOWN_ROWS)
         raise InputError("%s: line %d: time %.6g s %s (after %.6g s); %d row%s where time does not rise "

@@ -21,6 +21,9 @@ from estimator.watch.log_checks import check_plausible, check_time, check_vehicl
 
 KINDS = FLAG_BITS
 PROGRESS_ROWS = 100000  # logs longer than this get a progress bar (stderr, terminals only)
+# a flight log with more rows than this share holding an empty or 'nan' cell is refused; fewer
+# are dropped and counted (a logger that misses a field now and then) [-]
+MISSING_SHARE = 0.05
 
 # unit -> (scale, offset): permille = (value + offset) * scale, from the one command unit
 # table (estimator.csvtable.COMMAND_UNITS: command [-] = value * s + o); exact in floats
@@ -49,14 +52,16 @@ def read_flight(path):
     (column -> unit as written) and header_line (the header's line number).
 
     The header and rows are read by estimator.csvtable (the bench CSV's reader): extra
-    columns are allowed, every row has the header's width, no empty cell, no NaN or infinity.
+    columns are allowed, every row has the header's width, no infinity; a row with an empty or
+    'nan' cell is dropped and counted in missing_rows (_drop_missing).
     """
     from estimator import csvtable
 
     table = csvtable.read_table(path, "a flight CSV", EXAMPLE_HEADER, COLUMNS,
-                                refuse=_bench_sweep_given)
+                                refuse=_bench_sweep_given, missing_ok=True)
     if not table.rows:
         raise InputError("%s: no data rows after the header (line %d)" % (path, table.head.line))
+    kept = _drop_missing(path, table)
     cs, co = _COMMAND_UNITS[table.columns["command"][1]]
     vs = _VOLT_UNITS[table.columns["voltage"][1]]
     as_ = _AMP_UNITS[table.columns["current"][1]]
@@ -66,7 +71,36 @@ def read_flight(path):
             "command_permille": [int(round((x + co) * cs)) for x in values["command"]],
             "bus_mV": [int(round(x * vs)) for x in values["voltage"]],
             "bus_mA": [int(round(x * as_)) for x in values["current"]],
-            "units": {name: table.columns[name][1] for name in COLUMNS}, "header_line": table.head.line}
+            "units": {name: table.columns[name][1] for name in COLUMNS}, "header_line": table.head.line,
+            "missing_rows": 0 if kept is None else table.rows - len(kept), "row_index": kept}
+
+
+def _drop_missing(path, table):
+    """Drop the rows with an empty or 'nan' cell (a dropped telemetry field, read as NaN by
+    csvtable) from table.values in place, as the bench reader does (new-user trial 8, finding 6);
+    the kernel then sees a longer dt across them, which its gap check judges. Returns the kept
+    rows' indices among the data rows, or None when none was dropped; raises InputError when
+    more than MISSING_SHARE of the rows have one (a log that broken is not judged). Infinity is
+    refused by csvtable before this."""
+    from estimator.watch.log_checks import data_line_numbers
+
+    cols = [table.values[name] for name in COLUMNS]
+    kept = [i for i in range(table.rows) if all(c[i] == c[i] for c in cols)]
+    dropped = table.rows - len(kept)
+    if not dropped:
+        return None
+    if dropped > MISSING_SHARE * table.rows:
+        first = next(i for i in range(table.rows) if any(c[i] != c[i] for c in cols))
+        names = [table.head.cells[table.columns[n][0]] for n in COLUMNS
+                 if any(x != x for x in table.values[n])]
+        raise InputError("%s: line %d: %d of %d data rows have an empty or 'nan' cell (in %s): more than "
+                         "%.0f %% of the log is missing, too much to judge; check the logger's fields"
+                         % (path, data_line_numbers(path, table.head.line)[first], dropped, table.rows,
+                            ", ".join(names), 100.0 * MISSING_SHARE))
+    for name in COLUMNS:
+        values = table.values[name]
+        table.values[name] = [values[i] for i in kept]
+    return kept
 
 
 def run_kernel(flight, config, trace=False, progress=None):
@@ -240,6 +274,8 @@ def replay_file_traced(path, params, vehicle=None, options=None, progress=None, 
         out["note"] = learning_note(out, config)
     if dropped:
         out["dropped_rows"] = dropped
+    if flight["missing_rows"]:
+        out["dropped_missing_rows"] = flight["missing_rows"]
     return out, samples
 
 
