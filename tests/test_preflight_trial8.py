@@ -11,6 +11,7 @@ All vehicles are INVENTED for these tests.
 
 import json
 import math
+import re
 from pathlib import Path
 
 import pytest
@@ -164,3 +165,80 @@ def test_an_overweight_whoop_is_told_it_is_too_heavy_not_offered_190000_kv(tmp_p
     report = json.loads(_ok(["hover", _file(tmp_path, slip, "slip.json"), "--json"]))
     assert report["suspect_keys"] == ["$.motor.kv_rpm_per_V"]
     assert "2e+04 Kv meant (a digit short)" in report["warnings"][0] or "20000 Kv meant" in report["warnings"][0]
+
+
+# an INVENTED coaxial X8 12S heavy lifter
+X8 = {"name": "INVENTED coaxial X8 12S heavy lifter", "mass_kg": 18.0, "rotors": {"count": 8, "layout": "coaxial"},
+      "propeller": {"diameter": "22in", "ct": 0.10, "cp": 0.04},
+      "motor": {"kv_rpm_per_V": 170, "resistance_ohm": 0.10, "no_load_current_A": 0.6, "max_current_A": 40},
+      "battery": {"cells": 12, "capacity_Ah": 22, "resistance_ohm": 0.015, "full_cell_V": 4.2,
+                  "nominal_cell_V": 3.7, "empty_cell_V": 3.5, "max_discharge_C": 15},
+      "esc": {"efficiency": 0.96, "max_current_A": 60}, "site": {"altitude_m": 200, "temperature_C": 15}}
+
+
+def _significant(text):
+    """Significant digits of a number as printed ('17.0' -> 3, '7.00' -> 3, '0.0785' -> 3)."""
+    return len(text.replace(".", "").lstrip("0"))
+
+
+def test_computed_currents_keep_three_significant_digits(tmp_path):
+    report = json.loads(_ok(["hover", _file(tmp_path, X8), "--json"]))
+    # the trial's case: 17.05 A per motor and 7.0 A per ESC at hover were printed '17 A' and '7 A'
+    assert round(report["hover_motor_current_A"], 1) == 17.0 and round(report["hover_esc_input_current_A"], 2) == 7.0
+    sheet = " ".join(_ok(["hover", _file(tmp_path, X8)]).split())
+    section = sheet[sheet.index("2. With what margin?"):sheet.index("3. For how long?")]
+    printed = re.findall(r"(\d+(?:\.\d+)?) A (?:at hover|at full command|on a nominal pack)", section)
+    assert len(printed) >= 8 and all(_significant(p) == 3 for p in printed), printed
+    assert "motor current 17.0 A at hover" in section and "ESC input current 7.00 A at hover" in section
+    assert "motor limit 40 A" in section  # a value the file gave stays as written
+
+
+def test_the_duct_note_is_decided_by_size_and_by_the_description(tmp_path):
+    # 3in ducted cinewhoop (0.076 m, above the whoop-size class) and a 31 mm whoop: both get it
+    for doc in (WHOOP3, TINY1S):
+        sheet = " ".join(_ok(["hover", _file(tmp_path, doc)]).split())
+        assert "SMALL ROTOR" in sheet and "liftcal models open rotors" in sheet, doc["name"]
+    # the same 3in rotor on an open-frame build is not told about ducts; a 31 mm rotor always is
+    open_frame = dict(WHOOP3, name="INVENTED 3in 4S open-frame micro quad")
+    sheet = " ".join(_ok(["hover", _file(tmp_path, open_frame)]).split())
+    assert "SMALL ROTOR" in sheet and "liftcal models open rotors" not in sheet
+    plain_tiny = dict(TINY1S, name="INVENTED 65mm 1S micro")
+    sheet = " ".join(_ok(["hover", _file(tmp_path, plain_tiny)]).split())
+    assert "if the rotors run in ducts or guards (whoops): liftcal models open rotors" in sheet
+
+
+def test_the_payload_plot_marks_the_largest_payload_the_text_gives(tmp_path, monkeypatch):
+    import estimator.preflight.plots as plots
+    from estimator.preflight.payload import payload_table
+    from estimator.vehicle import check_vehicle
+
+    captured = {}
+    monkeypatch.setattr(plots, "save_figure", lambda fig, path: captured.setdefault("fig", fig))
+    monkeypatch.setattr(plots._pyplot(), "close", lambda fig: None)
+    result = payload_table(check_vehicle(json.loads(json.dumps(X8)), "x8"), [0.0, 2.5, 5.0, 7.5, 10.0])
+    # the current margins break at every payload (judged at full command): the text gives the
+    # largest payload on the margins a payload affects
+    assert result["max_payload_kg"] is None and result["max_payload_kg_payload_margins"] is not None
+    largest = result["max_payload_kg_payload_margins"]
+    assert "largest payload %.3g kg" % largest in result["max_payload_note"]
+    plots.plot_payload(str(tmp_path / "p.png"), result, "x8", "kg")
+    marks = [line for ax in captured["fig"].axes for line in ax.get_lines()
+             if "largest payload" in line.get_label()]
+    assert len(marks) == 1 and list(marks[0].get_xdata()) == [largest, largest]
+    assert "%.3g kg" % largest in marks[0].get_label()
+
+
+def test_a_us_report_gives_the_reachable_command_in_microseconds(tmp_path):
+    from test_bench_outputs_trial7 import VEHICLE
+    from test_fit_glitch_trial7 import _trial_csv
+
+    csv = _trial_csv(tmp_path / "bench.csv")       # the invented sweep in us (1000..2000 us)
+    vehicle = _file(tmp_path, VEHICLE, "v7lr.json")
+    fit_text = " ".join(_ok(["fit", str(csv), "--vehicle", vehicle, "--out", str(tmp_path / "p.json")]).split())
+    report = json.loads(_ok(["hover", vehicle, "--params", str(tmp_path / "p.json"), "--json"]))
+    assert report["command_unit"] == "us" and report["reachable_command"] is not None
+    # a command u of 0..1 is 1000 + 1000 u us on this sweep's scale (the CSV's own unit)
+    us = "%.0f us" % (1000.0 + 1000.0 * report["reachable_command"])
+    assert "(*: reachable at command %s," % us in fit_text, fit_text
+    sheet = " ".join(_ok(["hover", vehicle, "--params", str(tmp_path / "p.json")]).split())
+    assert "reachable at command %.2f (%s)," % (report["reachable_command"], us) in sheet

@@ -30,11 +30,17 @@ def judged_words(report):
     from estimator.preflight.warnings import (REACHABLE_MARK, judged_thrust_to_weight,
                                               judged_thrust_to_weight_text, thrust_to_weight_text)
 
+    from estimator.units import command_text
+
     text = judged_thrust_to_weight_text(report)
     if judged_thrust_to_weight(report)[1]:
-        return ("%s (%s: reachable at command %.2f, where a nominal pack reaches its loaded cutoff; full "
+        # the command in the report's own unit, as its other commands (trial 8, item 9)
+        unit = report.get("command_unit") or "-"
+        command = ("%.2f" % report["reachable_command"] if unit == "-"
+                   else command_text(report["reachable_command"], unit))
+        return ("%s (%s: reachable at command %s, where a nominal pack reaches its loaded cutoff; full "
                 "command would give %s but is NOT REACHABLE on a nominal pack)"
-                % (text, REACHABLE_MARK, report["reachable_command"],
+                % (text, REACHABLE_MARK, command,
                    thrust_to_weight_text(report.get("thrust_to_weight"))))
     return "%s (full command, nominal pack)" % text
 

@@ -35,7 +35,8 @@ def caveats(report):
                  "generic blade estimate (%.2f, likely optimistic at a blade Reynolds number of %.0f) says %.1f min"
                  % ("no hover" if lead["flight_time_min"] is None else "endurance", lead["figure_of_merit"],
                     lead["other_figure_of_merit"], check["reynolds_75"], lead["other_flight_time_min"]))
-        out.append({"kind": "small_rotor", "text": hover_warning(check, report.get("propeller_diameter_m") or 0.0),
+        out.append({"kind": "small_rotor", "text": hover_warning(check, report.get("propeller_diameter_m") or 0.0,
+                                                                    bool(report.get("described_ducted"))),
                     "short": short})
     cold = cold_pack_warning(report)
     if cold is not None:

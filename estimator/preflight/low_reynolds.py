@@ -25,6 +25,7 @@ more for a guard close under a small rotor).
 """
 
 import math
+import re
 
 from estimator.core.propeller_bemt import chord_ratio
 
@@ -75,11 +76,25 @@ def reynolds_75_from_thrust(thrust_N, diameter_m, density_kg_m3, viscosity_Pa_s=
     return density_kg_m3 * 0.75 * math.pi * n * diameter_m * chord / viscosity_Pa_s
 
 
-def duct_note(diameter_m, expect="more power and a shorter flight than even this"):
-    """The duct and frame-blockage note for a rotor of a whoop's size, or '' for a larger one."""
-    if diameter_m > DUCTED_CLASS_DIAMETER_M:
+# words in a vehicle's name or notes that say its rotors run in ducts or guards (trial 8, item 9)
+_DUCT_WORDS = re.compile(r"duct|whoop|shroud|guard", re.IGNORECASE)
+
+
+def described_ducted(vehicle):
+    """True when the vehicle's name or notes describe it as ducted, guarded or a whoop."""
+    text = " ".join(str(vehicle.get(k) or "") for k in ("name", "notes"))
+    return bool(_DUCT_WORDS.search(text))
+
+
+def duct_note(diameter_m, expect="more power and a shorter flight than even this", described=False):
+    """The duct and frame-blockage note for a rotor of a whoop's size (DUCTED_CLASS_DIAMETER_M) or one
+    the vehicle's own description calls ducted or a whoop (described), or ''. One rule for every
+    small-rotor sheet: decided by size and by the description, never by one alone for some sheets."""
+    if diameter_m > DUCTED_CLASS_DIAMETER_M and not described:
         return ""
-    return ("if the rotors run in ducts or guards (whoops): liftcal models open rotors; a short duct with a "
+    return ("%s: liftcal models open rotors; a short duct with a " % (
+                "the vehicle is described as ducted, guarded or a whoop" if described
+                else "if the rotors run in ducts or guards (whoops)") +
             "whoop's tip gap gives little of a shroud's gain and its struts and the frame under the rotor "
             "block part of the slipstream (Pereira 2008; Leishman on the download of a body under a rotor; from "
             "memory): expect %s" % expect)
@@ -101,7 +116,7 @@ def measured_text(reynolds_75):
             % (fm, fm + FALLBACK_FM_SPREAD))
 
 
-def hover_warning(check, diameter_m):
+def hover_warning(check, diameter_m, described=False):
     """The hover sheet's words for report["low_reynolds_check"]: the estimate likely optimistic,
     the hover power and flight time at the fallback figure of merit, and the duct note."""
     head = ("small rotor at a blade Reynolds number of %.0f (below about %.0f): the estimate's figure of "
@@ -118,7 +133,7 @@ def hover_warning(check, diameter_m):
                                                "about %.1f min" % flight if flight is not None
                                                else "not at all (it could not hover)",
                                                check["estimate_flight_time_min"]))
-    duct = duct_note(diameter_m)
+    duct = duct_note(diameter_m, described=described)
     return text + ("; " + duct if duct else "")
 
 

@@ -79,6 +79,13 @@ def plot_payload(path, result, name, unit="kg"):
     if result["max_payload_kg"] is not None:
         ax.axvline(result["max_payload_kg"] / scale, color="tab:green", ls="--", lw=1,
                    label="largest payload keeping the margins: %.3g %s" % (result["max_payload_kg"] / scale, unit))
+    elif result.get("max_payload_kg_payload_margins") is not None:
+        # every payload breaks a full-command current margin; the text still gives the largest
+        # payload on the margins a payload affects: the plot marks that one (trial 8, item 9)
+        ax.axvline(result["max_payload_kg_payload_margins"] / scale, color="tab:olive", ls="--", lw=1,
+                   label="largest payload on the margins a payload affects: %.3g %s (%s broken at every "
+                         "payload)" % (result["max_payload_kg_payload_margins"] / scale, unit,
+                                       ", ".join(result.get("broken_at_every_payload") or [])))
     if result["job_min"] is not None:
         ax.axhline(result["job_min"], color="grey", ls=":", lw=1, label="job %.0f min" % result["job_min"])
     ax.set_xlabel("payload [%s]" % unit)

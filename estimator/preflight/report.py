@@ -13,7 +13,7 @@ from estimator.core.momentum import (disk_area_m2, disk_loading_N_m2, figure_of_
 from estimator.preflight.caveats import caveats
 from estimator.preflight.pack import pack_in_the_air, pack_keys
 from estimator.preflight.low_reynolds import (endurance_lead, fallback_figure_of_merit,
-                                              hover_warning as low_reynolds_warning)
+                                              described_ducted, hover_warning as low_reynolds_warning)
 from estimator.preflight.propeller_estimate import estimated_propeller, low_reynolds_propeller
 from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text, vehicle_air
@@ -153,12 +153,13 @@ def _report(vehicle, params=None):
                                    "pack_current_A": peak["pack_current_A"]},
                                   report.get("cells"), report.get("cutoff_cell_V")))
     report["low_reynolds_check"] = low_re
+    report["described_ducted"] = described_ducted(vehicle)  # the duct note: by size and description
     lead = endurance_lead(report)
     report["flight_time_lead_min"] = lead["flight_time_min"]  # what the sheet and compare lead with
     report["flight_time_lead_basis"] = lead["basis"]
     report["suspect_keys"] = slip_keys(checks)
     report["warnings"] = (checks + assumed_warnings(vehicle) + ([estimate["note"]] if estimate else [])
-                          + ([low_reynolds_warning(low_re, propeller["diameter_m"])]
+                          + ([low_reynolds_warning(low_re, propeller["diameter_m"], report["described_ducted"])]
                              if low_re and low_re["estimate_hover_command"] is not None
                              else []) + margin_warnings(report))
     report["cautions"] = list(CAUTIONS)

@@ -7,7 +7,7 @@ from estimator.cautions import cautions
 from estimator.core.momentum import figure_of_merit
 from estimator.preflight.low_reynolds import endurance_lead
 from estimator.preflight.pack import pack_temperature_text
-from estimator.preflight.warnings import (ENDED_BY_WORDS, REACHABLE_MARK, SIG3, _num, beside,
+from estimator.preflight.warnings import (ENDED_BY_WORDS, GIVEN3, REACHABLE_MARK, SIG3, _num, beside,
                                          cannot_hover_cause, current_judged, judged_thrust_to_weight,
                                          judged_thrust_to_weight_text, not_flyable_reasons,
                                          resistance_text, thrust_to_weight_text)
@@ -142,7 +142,7 @@ def format_sheet(report):
     size_given = report.get("propeller_as_given")
     diameter = report.get("propeller_diameter_m")
     setup = "%s%s, %d rotors (%s)%s" % (
-        _num(report.get("mass_kg"), SIG3, "kg"), " (%s as written)" % as_given if as_given else "",
+        _num(report.get("mass_kg"), GIVEN3, "kg"), " (%s as written)" % as_given if as_given else "",
         report.get("rotor_count", 0), report.get("layout", "flat"),
         ", propellers %.3g m%s" % (diameter, " (%s as written)" % size_given if size_given else
                                    " (bench rotor)" if report.get("propeller_source") == "bench sweep" else "")
@@ -189,7 +189,7 @@ def format_sheet(report):
     if judged_thrust_to_weight(report)[1]:
         lines.append("   thrust-to-weight   %s  (judged: reachable at command %s, where a nominal pack "
                      "reaches its loaded cutoff; 2 is the usual floor)"
-                     % (judged_thrust_to_weight_text(report), _num(report.get("reachable_command"), "%.2f")))
+                     % (judged_thrust_to_weight_text(report), _command(report, "reachable_command")))
         lines.append("   %s marks the T/W reachable on a nominal pack; full command would give %s but sags "
                      "the nominal pack below its loaded cutoff: NOT REACHABLE"
                      % (REACHABLE_MARK, thrust_to_weight_text(report.get("thrust_to_weight"))))
@@ -214,18 +214,18 @@ def format_sheet(report):
         lines.append("   motor current      %s%s, each motor (ESC output; motor limit %s)" % (
             _at_hover(report.get("hover_motor_current_A")),
             _at_full(report, current_judged(report, "motor"), report.get("full_motor_current_A")),
-            _num(report.get("motor_current_limit_A"), SIG3, "A", none="not given")))
+            _num(report.get("motor_current_limit_A"), GIVEN3, "A", none="not given")))
     esc_peak = report.get("esc_current_judged_A")
     lines.append("   ESC input current  %s%s, each ESC from the pack (what ESC telemetry reports; "
                  "ESC rating %s%s)" % (
                      _at_hover(esc_hover), _at_full(report, _esc_input_judged(report), esc_full),
-                     _num(report.get("esc_current_limit_A"), SIG3, "A", none="not given"),
+                     _num(report.get("esc_current_limit_A"), GIVEN3, "A", none="not given"),
                      ", judged on %s, the larger of its input and output" % _num(esc_peak, SIG3, "A")
                      if report.get("esc_current_limit_A") is not None and esc_peak is not None else ""))
     lines.append("   pack current       %s%s, all %d motors (rating %s)" % (
         _at_hover(report.get("hover_current_A")) if report.get("can_hover") else "",
         _at_full(report, current_judged(report, "pack"), report.get("full_pack_current_A")), count,
-        _num(report.get("pack_current_limit_A"), SIG3, "A", none="not given")))
+        _num(report.get("pack_current_limit_A"), GIVEN3, "A", none="not given")))
     lines.append("")
 
     lines.append("3. For how long?")

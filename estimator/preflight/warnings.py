@@ -289,24 +289,24 @@ def current_limit_warnings(report):
         hov_i = report.get("hover_motor_current_A")
         if hov_i is not None and hov_i > limit:
             out.append("hover draws %s per motor, above the motor limit %s: it will overheat"
-                       % (_num(hov_i, SIG3, "A"), _num(limit, SIG3, "A")))
+                       % (_num(hov_i, SIG3, "A"), _num(limit, GIVEN3, "A")))
         elif full_i is not None and full_i > limit:
             out.append("full command on a full pack draws %s per motor, above the motor limit %s (%s on a "
                        "nominal pack)%s: limit the command or use a smaller propeller"
-                       % (_num(full_i, SIG3, "A"), _num(limit, SIG3, "A"),
+                       % (_num(full_i, SIG3, "A"), _num(limit, GIVEN3, "A"),
                           _num(report.get("full_motor_current_A"), SIG3, "A"), _cutoff_note(report)))
     esc_limit = report.get("esc_current_limit_A")
     esc_i = current_judged(report, "esc")
     if esc_limit is not None and esc_i is not None and esc_i > esc_limit:
         out.append("full command on a full pack draws %s through each ESC (the larger of its input and "
                    "output), above its rating %s%s: limit the command, or use a larger ESC or a smaller "
-                   "propeller" % (_num(esc_i, SIG3, "A"), _num(esc_limit, SIG3, "A"), _cutoff_note(report)))
+                   "propeller" % (_num(esc_i, SIG3, "A"), _num(esc_limit, GIVEN3, "A"), _cutoff_note(report)))
     pack_limit = report.get("pack_current_limit_A")
     full_pack = current_judged(report, "pack")
     if pack_limit is not None and full_pack is not None and full_pack > pack_limit:
         out.append("full command on a full pack draws %s from the pack, above its rating of %s (C-rating x "
                    "capacity; %s on a nominal pack)%s: the pack will sag and heat"
-                   % (_num(full_pack, SIG3, "A"), _num(pack_limit, SIG3, "A"),
+                   % (_num(full_pack, SIG3, "A"), _num(pack_limit, GIVEN3, "A"),
                       _num(report.get("full_pack_current_A"), SIG3, "A"), _cutoff_note(report)))
     return out
 
@@ -324,10 +324,14 @@ def resistance_text(ohm):
 # the format of _num for a value shown with three significant digits (0.448 N, 21.3 A, 0.021 kg):
 # a total or a small craft's current is never rounded into another number (trial 4, item 8)
 SIG3 = "sig3"
+# a value as the vehicle file gave it (a motor limit, an ESC rating): 3 significant digits, trailing
+# zeros dropped (12 A as written); computed values keep theirs (17.0 A beside 5.99 A: trial 8, item 9)
+GIVEN3 = "given3"
 
 
 def _num(value, fmt, unit="", none="n/a"):
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
         return none
-    text = plain_number(value, 3, trim=True) if fmt == SIG3 else fmt % value
+    text = (plain_number(value, 3) if fmt == SIG3 else plain_number(value, 3, trim=True) if fmt == GIVEN3
+            else fmt % value)
     return text + (" " + unit if unit else "")
