@@ -49,5 +49,5 @@ def test_a_log_too_short_to_learn_says_the_mass_was_not_judged(tmp_path):
     flight = flight_arrays(seed=3, duration_s=25.0)
     text, out = _replay(tmp_path, flight)
     assert out["learned"] is False
-    assert out["mass"]["judged"] is False and "baseline" in out["mass"]["reason"]
+    assert out["mass"]["judged"] is False and "too little steady flight" in out["mass"]["reason"]
     assert "mass not judged: " in text and "implied_kg" not in out["mass"]

@@ -219,9 +219,12 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
     if (job_time is not None or plot_file is not None) and payload_text is None:
         raise InputError("--%s: goes with --payload (e.g. --payload 0..2kg)"
                          % ("job-time" if job_time is not None else "plot"))
+    replaced = None
     if plot_file is not None:
         from estimator.outputs import check_output
+        from estimator.replacing import replaced_line
         check_output(plot_file, "png", inputs=(vehicle_file, params_file), option="--plot")
+        replaced = replaced_line(plot_file, "png")  # README: a replaced liftcal file is named in one line
     vehicle = load_vehicle(vehicle_file)
     params = None
     if params_file is not None:
@@ -248,6 +251,7 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
             from estimator.preflight.plots import plot_payload
             plot_payload(plot_file, payload, report["name"], unit)
             report["plot"] = plot_file
+            report["replaced"] = [replaced] if replaced else []
     if as_json:
         click.echo(dumps(report))
         return
@@ -258,6 +262,8 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
         click.echo(format_payload_table(payload, unit), nl=False)
         if plot_file is not None:
             click.echo("   plot: %s" % plot_file)
+            if replaced:
+                click.echo("   " + replaced)
 
 
 @click.command()
@@ -285,9 +291,12 @@ def compare(vehicle_file, varies, plot_file, as_json):
     for key in keys:
         if keys.count(key) > 1:
             raise InputError("--vary %s: the key is given twice; list all its values in one --vary" % key)
+    replaced = None
     if plot_file is not None:
         from estimator.outputs import check_output
+        from estimator.replacing import replaced_line
         check_output(plot_file, "png", inputs=(vehicle_file,), option="--plot")
+        replaced = replaced_line(plot_file, "png")  # README: a replaced liftcal file is named in one line
     document = load_json(vehicle_file)
     from estimator.vehicle import check_vehicle
     name = check_vehicle(document, vehicle_file).get("name", "vehicle")
@@ -305,6 +314,7 @@ def compare(vehicle_file, varies, plot_file, as_json):
         from estimator.preflight.plots import plot_compare
         plot_compare(plot_file, result, name)
         result["plot"] = plot_file
+        result["replaced"] = [replaced] if replaced else []
     if as_json:
         from estimator.preflight.report import CAUTIONS
         result["cautions"] = list(CAUTIONS)
@@ -313,6 +323,8 @@ def compare(vehicle_file, varies, plot_file, as_json):
     click.echo(format_table(result, name), nl=False)
     if plot_file is not None:
         click.echo("plot: %s" % plot_file)
+        if replaced:
+            click.echo(replaced)
     from estimator.preflight.report import CAUTIONS
     from estimator.textwidth import wrap_line
     click.echo("")

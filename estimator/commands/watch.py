@@ -185,10 +185,13 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     """
     from estimator.watch.replay import replay_file_traced
 
+    replaced = None
     if plot_file is not None:
         from estimator.outputs import check_output
+        from estimator.replacing import replaced_line
 
         check_output(plot_file, "png", inputs=(flight_file, params_file, vehicle_file), option="--plot")
+        replaced = replaced_line(plot_file, "png")  # README: a replaced liftcal file is named in one line
     params, vehicle = _load(params_file, vehicle_file)
     out, trace = replay_file_traced(flight_file, params, vehicle=vehicle, drop_bad_time=drop_bad_time,
                                     options=_options(lag_ms), params_source=params_file,
@@ -198,6 +201,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         from estimator.watch.plots import plot_replay
         plot_replay(plot_file, trace, out["events"], title=flight_file)
         out["plot"] = plot_file
+        out["replaced"] = [replaced] if replaced else []
     if as_json:
         click.echo(dumps(dict(out, cautions=list(WATCH_CAUTIONS))))
         return
@@ -230,5 +234,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
             lines.append("  %11s  %-13s (%s)" % ("", "", e["note"]))
     if plot_file:
         lines.append("plot: %s" % plot_file)
+        if replaced:
+            lines.append(replaced)
     lines.append("- " + WATCH_CAUTIONS[0])
     click.echo(fit_width("\n".join(lines)))

@@ -202,11 +202,10 @@ def mass_verdict(mass_last, plan_kg, limit_kg, learned, cfg):
         kg = mass_last[0] / 1000.0
         out.update(implied_kg=kg, at_s=round(mass_last[1], 3), share=round(kg / plan_kg - 1.0, 4),
                    above_limit=kg > limit_kg)
-    elif not learned:
-        out["reason"] = "the watch did not learn its power baseline, and the mass is judged only after it"
     else:
-        out["reason"] = ("no %.0f s window of steady flight near hover was completed (climbs, descents, gusts or "
-                         "a suspected power fault keep blocks out of it)" % (cfg["mass_window_ms"] / 1000.0))
+        out["reason"] = ("no %.0f s window of steady flight near hover was completed (%s)"
+                         % (cfg["mass_window_ms"] / 1000.0, "too little steady flight in this log" if not learned else
+                            "climbs, descents, gusts or a suspected power fault keep blocks out of it"))
     return out
 
 
