@@ -34,6 +34,16 @@ COLD_PACK = ("cold pack (%.0f C): warm it to room temperature before take-off an
              "then; a cold lithium pack gives less capacity (about %.0f %% here) and sags more under "
              "load, so land early and watch the voltage")
 
+# the bell temperature [C] above which an ordinary hobby motor's magnets and winding enamel
+# begin to suffer (common practice, from memory; high-temperature motors are rated higher)
+HOT_MOTOR_C = 80.0
+# a bench sweep's temperature column above HOT_MOTOR_C (fit warning; the highest reading [C],
+# its column as written and the limit [C] are filled in)
+HOT_MOTOR = ("the motor got hot on the bench: %s read up to %.0f C, above about %.0f C, where an ordinary "
+             "motor's magnets and winding enamel begin to suffer (common practice, from memory): let it cool "
+             "between runs and sweep in shorter runs, check the motor's temperature rating, and keep it cooler "
+             "in flight; a hot winding also has more resistance, so this fit is of a warm motor")
+
 # one short line for plot titles and one-line outputs
 SHORT = "estimates: confirm with a tethered or low hover test; props off while configuring"
 

@@ -109,10 +109,14 @@ def plot_fit(path, params, rows):
         rho_site = params["vehicle"]["site_density_kg_m3"]
         need = h["thrust_per_rotor_N"] / site_thrust_ratio(params, rho_site, h["thrust_per_rotor_N"],
                                                            params["vehicle"].get("layout") == "coaxial")
+        # three lines, three styles, each in the legend (new-user trial 8, finding 9: the
+        # dotted line had no label and the hover command shared the curve's dashes)
         ax.plot(cu(grid_u), tf * fit_t * at_v, "--", color="tab:green", lw=1.2,
                 label="curve at the hover bus voltage %.2f V" % v_h)
-        ax.axhline(tf * need, color="tab:green", lw=0.8, ls=":")
-        ax.axvline(float(cu(h["hover_command"])), color="tab:green", lw=1, ls="--",
+        ax.axhline(tf * need, color="tab:purple", lw=0.9, ls=":",
+                   label="hover thrust per rotor moved to bench air: %.4g %s (%.4g %s in the site's air)"
+                         % (tf * need, t_unit, tf * h["thrust_per_rotor_N"], t_unit))
+        ax.axvline(float(cu(h["hover_command"])), color="tab:orange", lw=1.2, ls="-.",
                    label="hover command %.4g%s (%s)" % (float(cu(h["hover_command"])), c_unit,
                                                        params["vehicle"].get("name", "vehicle")))
     ax.set_ylabel("thrust at %.2f V [%s]" % (curve["reference_voltage_V"], t_unit))

@@ -73,6 +73,29 @@ def _read_head(path, warnings=None):
     return comments, head, head.line
 
 
+def _hot_motor(columns, extra, cols, extremes):
+    """The hot-motor caution (estimator.cautions.HOT_MOTOR) when the sweep's temperature column
+    (a thermocouple on the motor) reads above cautions.HOT_MOTOR_C, else None. columns: the
+    header's {name: (index, unit)}; extra: the optional columns read, in order after REQUIRED;
+    cols, extremes: load_numbers' arrays [C for temperature] and (min, max) pairs (or None)."""
+    import numpy as np
+
+    from estimator.cautions import HOT_MOTOR, HOT_MOTOR_C
+
+    if "temperature" not in extra:
+        return None
+    k = len(REQUIRED) + extra.index("temperature")
+    if extremes is not None:
+        top = float(extremes[k][1])
+    else:  # a missing reading somewhere: its row is dropped, the rest still count
+        values = np.asarray(cols[k], dtype=float)
+        values = values[np.isfinite(values)]
+        top = float(np.max(values)) if values.size else float("nan")
+    if not top > HOT_MOTOR_C:
+        return None
+    return HOT_MOTOR % ("temperature[%s]" % columns["temperature"][1], top, HOT_MOTOR_C)
+
+
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
                pressure_Pa=None, humidity_pct=None):
     """Read a bench CSV into SI arrays and apply the row checks.
@@ -103,6 +126,9 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
         kept=len(REQUIRED))
     data = {name: col for name, col in zip(REQUIRED, cols)}
     data["optional"] = cols[len(REQUIRED):]  # none when every value is finite: nothing to drop
+    hot = _hot_motor(columns, extra, cols, extremes)
+    if hot:
+        warnings.append(hot)
     extremes = extremes[:len(REQUIRED)] if extremes is not None else None
     data.update({name + "_unit": units[name] for name in REQUIRED})
     del cols
