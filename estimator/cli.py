@@ -13,6 +13,7 @@ import click
 
 from estimator import __version__
 from estimator.errors import InputError
+from estimator.names import shown
 
 # name -> (module, function); each command's help is its docstring
 COMMANDS = {
@@ -117,7 +118,7 @@ def main(argv=None):
         if isinstance(exc, BrokenPipeError):
             sys.exit(0)
         if exc.filename is not None:
-            fail("%s: %s" % (exc.filename, exc.strerror or str(exc)), as_json)
+            fail("%s: %s" % (shown(exc.filename), exc.strerror or str(exc)), as_json)
         else:
             fail("cannot write the output (%s)" % (exc.strerror or str(exc)), as_json)
         sys.exit(2)

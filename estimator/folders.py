@@ -18,6 +18,7 @@ import shutil
 import stat
 import tempfile
 
+from estimator.names import shown
 from estimator.errors import InputError
 from estimator.outputs import KIND_NAMES, SOFTWARE, _ANOTHER, _lstat, file_sha256, own_file, write_error
 from estimator.safepath import special_kind
@@ -116,7 +117,7 @@ def check_folder(path, kind, inputs=(), option="--out"):
     of this ``kind`` ("bundle", "demo"), with every file listed unchanged in its manifest,
     and hold none of the command's inputs.
     """
-    if path is None or str(path) == "":
+    if path is None or os.fspath(path) == "":
         raise InputError("%s: an empty path was given; name a folder to write" % option)
     path = os.fspath(path)
     where = "%s %s" % (option, path)
@@ -126,9 +127,9 @@ def check_folder(path, kind, inputs=(), option="--out"):
         parent = os.path.dirname(full)
         if not os.path.lexists(parent):
             raise InputError("%s: folder %s does not exist; create it first or %s"
-                             % (where, parent, _ANOTHER))
+                             % (where, shown(parent), _ANOTHER))
         if not os.path.isdir(parent):
-            raise InputError("%s: %s is a file, not a folder: %s" % (where, parent, _ANOTHER))
+            raise InputError("%s: %s is a file, not a folder: %s" % (where, shown(parent), _ANOTHER))
         return "new"
     if stat.S_ISLNK(st.st_mode):
         raise InputError("%s: is a symbolic link; name the folder itself or another path" % where)
@@ -139,7 +140,7 @@ def check_folder(path, kind, inputs=(), option="--out"):
     if full == os.path.abspath(os.sep):
         raise InputError("%s: is the root folder: name a new folder" % where)
     for given in inputs:
-        if given is not None and os.path.realpath(str(given)).startswith(os.path.realpath(full) + os.sep):
+        if given is not None and os.path.realpath(os.fspath(given)).startswith(os.path.realpath(full) + os.sep):
             raise InputError("%s: holds an input of this command (%s); name another folder" % (where, given))
     try:
         if not os.listdir(full):

@@ -30,6 +30,7 @@ import os
 import stat
 import tempfile
 
+from estimator.names import shown
 from estimator import __version__
 from estimator.errors import InputError
 from estimator.safepath import special_kind
@@ -57,7 +58,7 @@ def write_error(path, exc):
         getattr(exc, "errno", None), getattr(exc, "strerror", None) or str(exc))
     if getattr(exc, "errno", None) == errno.ENOENT and os.path.isdir(os.path.dirname(os.path.abspath(path))):
         why = "the folder exists but takes no new files: a system folder such as /proc or /sys?"
-    return InputError("%s: cannot write (%s); nothing was written: %s" % (path, why, _ANOTHER))
+    return InputError("%s: cannot write (%s); nothing was written: %s" % (shown(path), why, _ANOTHER))
 
 
 def _lstat(path, where):
@@ -79,7 +80,7 @@ def _same_as_input(path, inputs):
             if os.path.samefile(path, given):
                 return given
         except (OSError, ValueError):
-            if os.path.realpath(path) == os.path.realpath(str(given)):
+            if os.path.realpath(path) == os.path.realpath(os.fspath(given)):
                 return given
     return None
 
@@ -139,7 +140,7 @@ def check_output(path, kind, inputs=(), option="--out"):
     a file in a folder liftcal is building, which must not exist yet);
     inputs: the command's input paths; option: the option that gave the path, for the message.
     """
-    if path is None or str(path) == "":
+    if path is None or os.fspath(path) == "":
         raise InputError("%s: an empty path was given; name a file to write" % option)
     path = os.fspath(path)
     where = "%s %s" % (option, path)
@@ -148,9 +149,10 @@ def check_output(path, kind, inputs=(), option="--out"):
     directory = os.path.dirname(os.path.abspath(path))
     st_dir = _lstat(directory, where)
     if st_dir is None:
-        raise InputError("%s: folder %s does not exist; create it first or %s" % (where, directory, _ANOTHER))
+        raise InputError("%s: folder %s does not exist; create it first or %s"
+                         % (where, shown(directory), _ANOTHER))
     if not os.path.isdir(directory):
-        raise InputError("%s: %s is a file, not a folder: %s" % (where, directory, _ANOTHER))
+        raise InputError("%s: %s is a file, not a folder: %s" % (where, shown(directory), _ANOTHER))
     st = _lstat(path, where)
     png_only = kind == "png" and not path.lower().endswith(".png")
     if st is None:

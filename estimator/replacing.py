@@ -16,6 +16,7 @@ replaced_line(path, kind) -> the "replaced ..." line for a file about to be repl
 
 import os
 
+from estimator.names import shown
 from estimator.errors import InputError
 
 REPLACE_OPTION = "--replace"
@@ -47,7 +48,7 @@ def _set_words(info):
     created = info.get("created_utc")
     if isinstance(created, str) and len(created) >= 16:
         bits.append("%s %s UTC" % (created[:10], created[11:16]))
-    return "the parameter set fitted from %s%s" % (info.get("input_file") or "an unnamed bench file",
+    return "the parameter set fitted from %s%s" % (shown(info.get("input_file") or "an unnamed bench file"),
                                                   " (%s)" % ", ".join(bits) if bits else "")
 
 

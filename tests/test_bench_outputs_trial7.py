@@ -133,7 +133,7 @@ def test_the_bundles_own_files_say_the_set_was_edited(fitted, tmp_path):
     odd.write_text(edited.read_text())
     ok("firmware", odd, "--out", tmp_path / "odd", "--from-edited")
     text = (tmp_path / "odd" / "liftwatch_config.py").read_text()
-    assert "# WARNING: %s was EDITED" % str(odd).replace("\n", " ") in text
+    assert "# WARNING: %r was EDITED" % str(odd) in text  # escaped as every printed name (estimator.names)
     names = {}
     exec(compile(text, "liftwatch_config.py", "exec"), names)
     assert sorted(k for k in names if k != "__builtins__") == ["CONFIG"]

@@ -8,7 +8,8 @@ import os
 import click
 
 from estimator.cautions import SHORT
-from estimator.commands.options import Bounded, Number
+from estimator.commands.options import FILE_NAME, Bounded, Number
+from estimator.names import shown
 from estimator.jsonio import dumps
 
 
@@ -58,10 +59,10 @@ def vehicle_hover(params, vehicle):
 
 
 @click.command()
-@click.argument("bench_file", metavar="BENCH.csv")
-@click.option("--out", "out_file", required=True, metavar="PARAMS.json",
+@click.argument("bench_file", type=FILE_NAME, metavar="BENCH.csv")
+@click.option("--out", "out_file", type=FILE_NAME, required=True, metavar="PARAMS.json",
               help="Where to write the parameter set (written atomically).")
-@click.option("--vehicle", "vehicle_file", default=None, metavar="VEHICLE.json",
+@click.option("--vehicle", "vehicle_file", type=FILE_NAME, default=None, metavar="VEHICLE.json",
               help="Add hover values and rotor count for this vehicle at its site.")
 @click.option("--diameter", type=Bounded("length", "diameter", positive=True), default=None,
               help="Propeller diameter (e.g. 10in, 0.254); else '# diameter:' in the CSV or the vehicle.")
@@ -77,7 +78,7 @@ def vehicle_hover(params, vehicle):
 @click.option("--voltage-exponent", type=Number((0.5, 3.0, "the parameter set's bounds, "
                                                  "schemas/params.schema.json")), default=None,
               help="Fix the voltage exponent n instead of fitting it.")
-@click.option("--plot", "plot_file", default=None, metavar="PNG",
+@click.option("--plot", "plot_file", type=FILE_NAME, default=None, metavar="PNG",
               help="Also draw the fit, its interval and residuals, and power against the ideal bound.")
 @click.option("--replace", "replace", is_flag=True,
               help="Replace the parameter set at --out even when it was fitted from another bench "
@@ -159,7 +160,7 @@ fit.help = fit.help.replace("{header}", _header_units())
 
 
 @click.command()
-@click.argument("params_file", metavar="PARAMS.json")
+@click.argument("params_file", type=FILE_NAME, metavar="PARAMS.json")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def check(params_file, as_json):
     """Validate a parameter set against its schema (exit 0 when valid, 2 with the JSON path).
@@ -246,11 +247,11 @@ def top_thrust_notes(settings, params):
 
 
 @click.command()
-@click.argument("params_file", metavar="PARAMS.json")
-@click.option("--map", "map_file", default=None, metavar="MAP.json",
+@click.argument("params_file", type=FILE_NAME, metavar="PARAMS.json")
+@click.option("--map", "map_file", type=FILE_NAME, default=None, metavar="MAP.json",
               help="Your mapping of our keys to your controller's names (default: the shipped "
                    "example with invented names).")
-@click.option("--out", "out_file", default=None, metavar="FILE",
+@click.option("--out", "out_file", type=FILE_NAME, default=None, metavar="FILE",
               help="Also write the settings to FILE (atomically): the lines as printed, or with "
                    "--json a JSON document (model liftcal.settings/1) holding them. Replaces only "
                    "a settings file liftcal wrote.")
@@ -283,7 +284,7 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     mapping = load_map(path)
     settings = export_settings(params, mapping, path)
     header = "liftcal settings from %s through %s (%d); %s" % (
-        os.path.basename(params_file), os.path.basename(path), len(settings), SHORT)
+        shown(os.path.basename(params_file)), shown(os.path.basename(path)), len(settings), SHORT)
     if edited:
         header += "\n# WARNING: " + edited
     notes = top_thrust_notes(settings, params) + ["fit: " + w for w in params.get("warnings", [])]

@@ -11,6 +11,8 @@ import shutil
 
 import click
 
+from estimator.commands.options import FILE_NAME
+from estimator.names import shown
 from estimator.jsonio import dumps, write_atomic, write_json_atomic
 
 FLIGHTS = (  # (file stem, fault injected by the flight simulator, what it stands for)
@@ -81,7 +83,7 @@ def _run(out_dir, work, seed, emit):
     from estimator.watch.replay import replay_file
 
     path = lambda name: os.path.join(work, name)  # noqa: E731  where it is written
-    show = lambda name: os.path.join(out_dir, name)  # noqa: E731  where the person finds it
+    show = lambda name: shown(os.path.join(out_dir, name))  # noqa: E731  where the person finds it, as printed
     text = _Text(emit)
     text += ["liftcal demo - an INVENTED scenario: a 2.05 kg survey quad at a 1400 m, 28 C site;",
             "its bench sweep and flights are simulated. Files go to %s" % out_dir]
@@ -170,7 +172,7 @@ def _run(out_dir, work, seed, emit):
 
 
 @click.command()
-@click.option("--out", "out_dir", default="liftcal-demo", show_default=True, metavar="DIR",
+@click.option("--out", "out_dir", type=FILE_NAME, default="liftcal-demo", show_default=True, metavar="DIR",
               help="Folder for the demo's files (vehicle, bench sweep, parameter set, bundle, flights).")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of text.")
 def demo(out_dir, as_json):

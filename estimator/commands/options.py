@@ -3,6 +3,7 @@
 import click
 
 from estimator.errors import InputError
+from estimator.names import FileName
 from estimator.units import parse_quantity
 
 
@@ -41,6 +42,19 @@ class Quantity(click.ParamType):
         if self.positive and not si > 0:
             self.fail("must be above zero, got %r" % (value,), param, ctx)
         return si
+
+
+class _FileNameType(click.ParamType):
+    """A file or folder name: kept as given, printed through estimator.names.shown (one line,
+    control characters escaped) wherever a message names it."""
+
+    name = "file name"
+
+    def convert(self, value, param, ctx):
+        return value if isinstance(value, FileName) else FileName(value)
+
+
+FILE_NAME = _FileNameType()
 
 
 def _unit_in_name(param):

@@ -6,7 +6,7 @@ hover sheet). Imports stay light: no numpy, no matplotlib.
 
 import click
 
-from estimator.commands.options import Bounded, Quantity
+from estimator.commands.options import FILE_NAME, Bounded, Quantity
 from estimator.errors import InputError
 from estimator.jsonio import dumps
 
@@ -188,8 +188,8 @@ def _check_disk_loading(thrust_N, area_m2, diameter_m):
 
 
 @click.command()
-@click.argument("vehicle_file", metavar="VEHICLE.json")
-@click.option("--params", "params_file", default=None, metavar="PARAMS.json",
+@click.argument("vehicle_file", type=FILE_NAME, metavar="VEHICLE.json")
+@click.option("--params", "params_file", type=FILE_NAME, default=None, metavar="PARAMS.json",
               help="A fitted parameter set from `liftcal fit`: thrust and power from the bench.")
 @click.option("--payload", "payload_text", default=None, metavar="RANGE|LIST",
               help="Payloads to add to the mass, with their unit: a range 0..2kg (a round step of 1, 2, "
@@ -200,7 +200,7 @@ def _check_disk_loading(thrust_N, area_m2, diameter_m):
               default=None,
               help="With --payload: the hover time the job needs, with its unit (15min, 900s); "
                    "a payload must reach it.")
-@click.option("--plot", "plot_file", default=None, metavar="PNG",
+@click.option("--plot", "plot_file", type=FILE_NAME, default=None, metavar="PNG",
               help="With --payload: draw endurance and hover command against payload.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of the sheet.")
 def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json):
@@ -267,11 +267,11 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
 
 
 @click.command()
-@click.argument("vehicle_file", metavar="VEHICLE.json")
+@click.argument("vehicle_file", type=FILE_NAME, metavar="VEHICLE.json")
 @click.option("--vary", "varies", multiple=True, required=True, metavar="KEY=V1,V2,...",
               help="A key of the vehicle file and the values to try, e.g. battery.capacity=4000mAh,5000mAh "
                    "or propeller.size=10x4.5in,11x5in; several --vary give every combination.")
-@click.option("--plot", "plot_file", default=None, metavar="PNG",
+@click.option("--plot", "plot_file", type=FILE_NAME, default=None, metavar="PNG",
               help="Draw endurance against hover command, one point per combination.")
 @click.option("--json", "as_json", is_flag=True, help="Print one JSON object instead of the table.")
 def compare(vehicle_file, varies, plot_file, as_json):

@@ -6,7 +6,8 @@ numpy and matplotlib are imported inside the commands (replay --plot only), neve
 import click
 
 from estimator.cautions import cautions
-from estimator.commands.options import Number
+from estimator.commands.options import FILE_NAME, Number
+from estimator.names import shown
 from estimator.jsonio import dumps
 from estimator.textwidth import fit_width
 
@@ -98,10 +99,10 @@ def _count(n, word):
 
 
 @click.command()
-@click.argument("params_file", metavar="PARAMS.json")
-@click.option("--out", "out_dir", required=True, metavar="DIR",
+@click.argument("params_file", type=FILE_NAME, metavar="PARAMS.json")
+@click.option("--out", "out_dir", type=FILE_NAME, required=True, metavar="DIR",
               help="Folder for the bundle (new, empty, or an earlier bundle; replaced atomically).")
-@click.option("--vehicle", "vehicle_file", default=None, metavar="VEHICLE.json",
+@click.option("--vehicle", "vehicle_file", type=FILE_NAME, default=None, metavar="VEHICLE.json",
               help="Vehicle file (mass, rotors, pack, site); default: the parameter set's vehicle block.")
 @click.option("--lag-ms", "lag_ms", type=Number(LAG_MS_BOUNDS), default=None, metavar="MS",
               help="Time constant of the rotor and current-sensor response the expected power is lagged by "
@@ -142,7 +143,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
         return
     lines = ["WARNING: " + edited] if edited else []
     lines += ["wrote the power-watch bundle to %s (%d files, .mpy total %d bytes)"
-              % (out["out_dir"], len(out["files"]), out["mpy_bytes"]),
+              % (shown(out["out_dir"]), len(out["files"]), out["mpy_bytes"]),
               "  CUSUM per %d ms block: reference %.2f, threshold %.2f x the block noise (learned in flight, "
               "at least %.1f %%); expected power lagged %d ms; mass alarm above %.1f g"
               % (cfg["block_ms"], summary["cusum_k_sigma"], summary["cusum_h_sigma"],
@@ -164,11 +165,12 @@ firmware.help = firmware.help.replace("{files}", _bundle_files())
 
 
 @click.command()
-@click.argument("flight_file", metavar="FLIGHT.csv")
-@click.option("--params", "params_file", required=True, metavar="PARAMS.json", help="The fitted parameter set.")
-@click.option("--vehicle", "vehicle_file", default=None, metavar="VEHICLE.json",
+@click.argument("flight_file", type=FILE_NAME, metavar="FLIGHT.csv")
+@click.option("--params", "params_file", type=FILE_NAME, required=True, metavar="PARAMS.json",
+              help="The fitted parameter set.")
+@click.option("--vehicle", "vehicle_file", type=FILE_NAME, default=None, metavar="VEHICLE.json",
               help="Vehicle file; default: the parameter set's vehicle block.")
-@click.option("--plot", "plot_file", default=None, metavar="PNG",
+@click.option("--plot", "plot_file", type=FILE_NAME, default=None, metavar="PNG",
               help="Draw measured against expected power with alarms shaded.")
 @click.option("--lag-ms", "lag_ms", type=Number(LAG_MS_BOUNDS), default=None, metavar="MS",
               help="Time constant of the rotor and current-sensor response (default: 0.25 s per metre of "
