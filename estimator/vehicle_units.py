@@ -17,31 +17,46 @@ from estimator.errors import InputError
 # Hover disk loading of small multirotor propellers [N/m^2]: about 20 to 1500 (the schema's
 # disk_loading_N_m2 description; a 2 kg quad on 10-inch propellers is near 100). Common practice.
 DISK_LOADING_TYPICAL_N_M2 = (20.0, 1500.0)
-# Flight packs weigh about 10 to 50 % of a multirotor's all-up mass, at about 150 Wh/kg for
-# lithium-polymer packs (common practice, from memory); the capacity a slip hint suggests must
-# fall in the band a little wider than that (3 to 60 %).
-PACK_SPECIFIC_ENERGY_WH_KG = 150.0
+# Flight packs weigh about 10 to 50 % of a multirotor's all-up mass (common practice, from
+# memory); the capacity a slip hint suggests must fall in the band a little wider than that
+# (3 to 60 %), at the specific energy of the pack's chemistry (CHEMISTRIES).
 PACK_MASS_SHARE_USUAL = (0.03, 0.6)
-# Li-ion cylindrical cells (18650, 21700) in a pack: about 250 Wh/kg (common practice, from
-# memory); their cells sit near 3.6 V nominal and are drained to about 3.0 V, where a LiPo pack's
-# stop near 3.7 and 3.5 V. Cell voltages at or below these read as Li-ion (from memory).
-LI_ION_SPECIFIC_ENERGY_WH_KG = 250.0
-LI_ION_NOMINAL_CELL_MAX_V = 3.65
-LI_ION_EMPTY_CELL_MAX_V = 3.2
+# The lithium chemistries a flight pack is made of, told apart by the cell voltages the vehicle
+# file gives, the first row that matches: (word, typical nominal cell voltage [V], pack specific
+# energy [Wh/kg], read when nominal_cell_V <= [V], and empty_cell_V <= [V] (None: any)). All
+# common practice, from memory: LiFePO4 cells sit at 3.2..3.3 V nominal (drained to 2.5..2.8 V),
+# packs about 90..120 Wh/kg; Li-ion cylindrical cells (18650, 21700) near 3.6 V nominal, drained
+# to about 3.0 V, packs about 250 Wh/kg; LiPo (and LiHV) cells 3.7 V nominal (3.85 V), stopped
+# near 3.5 V, packs about 150 Wh/kg. The one table: the pre-flight pack-energy checks and the
+# bare-capacity unit guess read it.
+CHEMISTRIES = (
+    ("LiFePO4", 3.2, 100.0, 3.4, None),
+    ("Li-ion", 3.6, 250.0, 3.65, 3.2),
+    ("LiPo", 3.7, 150.0, None, None),
+)
+
+
+def pack_chemistry(nominal_cell_V, empty_cell_V):
+    """(chemistry word, typical nominal cell voltage [V], pack specific energy [Wh/kg]) of the
+    first CHEMISTRIES row whose voltage limits [V] the cells meet (a voltage not given, None,
+    meets no limit); LiPo when nothing matches. Common practice, from memory (CHEMISTRIES)."""
+    for word, cell_V, specific_Wh_kg, nominal_max, empty_max in CHEMISTRIES:
+        if nominal_max is not None and not (isinstance(nominal_cell_V, (int, float))
+                                            and nominal_cell_V <= nominal_max):
+            continue
+        if empty_max is not None and not (isinstance(empty_cell_V, (int, float)) and empty_cell_V <= empty_max):
+            continue
+        return word, cell_V, specific_Wh_kg
+    return CHEMISTRIES[-1]
 
 
 def pack_specific_energy(battery):
     """(chemistry word, specific energy [Wh/kg]) of a checked vehicle's battery block, from its cell
-    voltages: nominal_cell_V <= LI_ION_NOMINAL_CELL_MAX_V and empty_cell_V <= LI_ION_EMPTY_CELL_MAX_V
-    [V] read as Li-ion (LI_ION_SPECIFIC_ENERGY_WH_KG), else LiPo (PACK_SPECIFIC_ENERGY_WH_KG); both
-    common practice, from memory."""
-    nominal, empty = battery.get("nominal_cell_V"), battery.get("empty_cell_V")
-    if (isinstance(nominal, (int, float)) and isinstance(empty, (int, float))
-            and nominal <= LI_ION_NOMINAL_CELL_MAX_V and empty <= LI_ION_EMPTY_CELL_MAX_V):
-        return "Li-ion", LI_ION_SPECIFIC_ENERGY_WH_KG
-    return "LiPo", PACK_SPECIFIC_ENERGY_WH_KG
-# a lithium cell's nominal voltage [V] for the pack-energy guess of a bare capacity (common practice)
-_CELL_NOMINAL_V = 3.7
+    voltages (pack_chemistry: CHEMISTRIES, common practice, from memory)."""
+    word, _, specific_Wh_kg = pack_chemistry(battery.get("nominal_cell_V"), battery.get("empty_cell_V"))
+    return word, specific_Wh_kg
+
+
 # the units a bare number on a short key was most likely written in, default unit first:
 # the ones builders write for each quantity (common practice)
 _EXAMPLE_UNITS = {
@@ -242,7 +257,7 @@ def likely_unit(kind, value, block, key, document):
     the loaded vehicle file (for the sizes the guess needs). A mass is read in the unit that
     gives an ordinary hover disk loading on the file's propellers (DISK_LOADING_TYPICAL_N_M2),
     a capacity in the unit that gives a pack of an ordinary share of the all-up mass
-    (PACK_MASS_SHARE_USUAL at PACK_SPECIFIC_ENERGY_WH_KG); otherwise, and when the sizes are
+    (PACK_MASS_SHARE_USUAL at the specific energy of its cells' chemistry, CHEMISTRIES); otherwise, and when the sizes are
     missing, the first of the quantity's usual units that puts the value inside the schema.
     """
     from estimator.units import parse_quantity
@@ -263,7 +278,12 @@ def likely_unit(kind, value, block, key, document):
             cells = document["battery"].get("cells")
             cells = int(re.sub(r"[^0-9]", "", cells) or 0) if isinstance(cells, str) else cells
             if isinstance(cells, int) and cells > 0 and si > 0:
-                share = cells * _CELL_NOMINAL_V * si / PACK_SPECIFIC_ENERGY_WH_KG / mass
+                # the file's own cells: their chemistry's specific energy, their nominal voltage
+                # (the chemistry's typical one when the file gives none)
+                nominal = _si(document, "battery", "nominal_cell", "nominal_cell_V", "voltage")
+                empty = _si(document, "battery", "empty_cell", "empty_cell_V", "voltage")
+                _, cell_V, specific_Wh_kg = pack_chemistry(nominal, empty)
+                share = cells * (nominal or cell_V) * si / specific_Wh_kg / mass
                 if PACK_MASS_SHARE_USUAL[0] <= share <= PACK_MASS_SHARE_USUAL[1]:
                     return unit
                 continue

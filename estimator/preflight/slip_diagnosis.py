@@ -12,7 +12,7 @@ vehicle as read is ordinary, or when no single correction makes it so.
 The checks (sea-level standard air, 1.225 kg/m^3: the slips are factors of 10 and more):
 - disk loading m g / (N A) within DISK_LOADING_TYPICAL_N_M2 (common practice);
 - pack energy: its mass at the chemistry's specific energy (vehicle_units.pack_specific_energy:
-  Li-ion about 250 Wh/kg, LiPo about 150, told apart by the cell voltages) within
+  LiFePO4 about 100 Wh/kg, Li-ion about 250, LiPo about 150, told apart by the cell voltages) within
   PACK_MASS_SHARE_USUAL of the all-up mass (common practice, from memory);
 - motor power: the ideal hover power per rotor, T^1.5 / sqrt(2 rho A) (momentum theory,
   design notes sec. 3), at a figure of merit of FIGURE_OF_MERIT, at most the most a DC motor of
