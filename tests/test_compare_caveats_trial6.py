@@ -11,28 +11,22 @@ stdout, stderr apart).
 
 import json
 
-from io_helpers import run
+from trial_helpers import ok
 from test_endurance_lead_trial6 import RACER
-
-
-def _ok(args):
-    code, out, err = run(args)
-    assert code == 0 and err == "", (code, err)
-    return out
 
 
 def test_compare_rows_carry_the_caveats_hover_gives(tmp_path):
     path = tmp_path / "racer.json"
     path.write_text(json.dumps(RACER))
     vary = ["--vary", "propeller.size=5.1x3.6in,90x4.5in", "--vary", "battery.capacity=1100mAh,1500mAh"]
-    result = json.loads(_ok(["compare", path] + vary + ["--json"]))
+    result = json.loads(ok(*["compare", path] + vary + ["--json"]))
     kinds_seen = set()
     for row in result["rows"]:
         doc = dict(RACER, propeller=dict(RACER["propeller"], size=row["values"]["propeller.size"]),
                    battery=dict(RACER["battery"], capacity=row["values"]["battery.capacity"]))
         single = tmp_path / "single.json"
         single.write_text(json.dumps(doc))
-        report = json.loads(_ok(["hover", single, "--json"]))
+        report = json.loads(ok("hover", single, "--json"))
         assert row["caveats"] == report["caveats"] and row["caveats"]
         for caveat in row["caveats"]:
             assert caveat["text"] in report["warnings"]       # the sheet prints the same words
@@ -42,7 +36,7 @@ def test_compare_rows_carry_the_caveats_hover_gives(tmp_path):
         assert ("unit_slip" in kinds) == (row["values"]["propeller.size"] == "90x4.5in")
     # the full-command sag is a caveat beside the row since the seventh trial (finding 5), not a margin
     assert kinds_seen == {"unit_slip", "small_rotor", "cold_pack", "full_command_sag"}
-    table = _ok(["compare", path] + vary)
+    table = ok(*["compare", path] + vary)
     flat = " ".join(table.split())
     slip = [r for r in result["rows"] if r["values"]["propeller.size"] == "90x4.5in"][0]
     assert "$.propeller.size: 2.29 m (written \"90x4.5in\")" in flat and " meant" in flat and slip["caveats"][0]["short"] in flat

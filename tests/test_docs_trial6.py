@@ -11,7 +11,8 @@ import os
 import re
 
 from estimator.demo.ramp_sweep import ramp_sweep_rows, write_ramp_csv
-from io_helpers import ROOT, VEHICLE, run
+from io_helpers import ROOT, VEHICLE
+from trial_helpers import ok
 
 
 def _readme():
@@ -19,18 +20,12 @@ def _readme():
         return fh.read()
 
 
-def _ok(args):
-    code, out, err = run(args)
-    assert code == 0 and err == "", (code, err)
-    return out
-
-
 def test_the_readme_sheet_is_the_sheet_the_program_prints():
     text = _readme()
     start = text.index("    $ liftcal hover vehicle.json\n") + len("    $ liftcal hover vehicle.json\n")
     end = text.index("\nA vehicle that cannot hover is not an error")
     shown = [line[4:] if line.strip() else "" for line in text[start:end].rstrip("\n").split("\n")]
-    printed = _ok(["hover", VEHICLE]).rstrip("\n").split("\n")
+    printed = ok("hover", VEHICLE).rstrip("\n").split("\n")
     assert shown == printed
 
 
@@ -44,10 +39,10 @@ def test_readme_commands_run_outside_a_checkout():
 
 
 def test_payload_help_says_what_a_range_gives():
-    report = json.loads(_ok(["hover", VEHICLE, "--payload", "0..1kg", "--json"]))
+    report = json.loads(ok("hover", VEHICLE, "--payload", "0..1kg", "--json"))
     payloads = [round(row["payload_kg"], 6) for row in report["payload"]["rows"]]
     assert payloads == [round(0.1 * i, 6) for i in range(11)]
-    help_text = " ".join(_ok(["hover", "--help"]).split())
+    help_text = " ".join(ok("hover", "--help").split())
     assert "0..1kg gives 0, 0.1, ..., 1 kg" in help_text and "(9 points)" not in help_text
 
 
@@ -55,7 +50,7 @@ def test_replay_help_lists_every_unit_its_reader_takes():
     from estimator.csvtable import COMMAND_UNITS
     from estimator.watch import replay
 
-    help_text = " ".join(_ok(["replay", "--help"]).split())
+    help_text = " ".join(ok("replay", "--help").split())
     for name, table in (("time", replay._TIME_UNITS), ("voltage", replay._VOLT_UNITS),
                         ("current", replay._AMP_UNITS)):
         for unit in table:
@@ -68,9 +63,9 @@ def test_fit_diameter_against_the_csv_comment_is_named(tmp_path):
     sweep = tmp_path / "sweep.csv"
     write_ramp_csv(str(sweep), ramp_sweep_rows(3000, seed=5), "invented sweep for the diameter test")
     assert "# diameter: 10in" in sweep.read_text()
-    out = " ".join(_ok(["fit", sweep, "--diameter", "11in", "--out", tmp_path / "a.json"]).split())
+    out = " ".join(ok("fit", sweep, "--diameter", "11in", "--out", tmp_path / "a.json").split())
     assert out.count("--diameter 0.2794 m is used, not the 0.254 m of") == 1
     doc = json.loads((tmp_path / "a.json").read_text())
     assert doc["rotor"]["diameter_m"] == 0.2794                      # 11 in = 0.2794 m (NIST SP 811)
-    same = " ".join(_ok(["fit", sweep, "--diameter", "10in", "--out", tmp_path / "b.json"]).split())
+    same = " ".join(ok("fit", sweep, "--diameter", "10in", "--out", tmp_path / "b.json").split())
     assert "is used, not the" not in same

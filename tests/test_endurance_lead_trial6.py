@@ -13,7 +13,7 @@ and Chopra 2007; Ramasamy, Johnson and Leishman 2008). 65 mm whoops on one 300 m
 import json
 
 from invented_vehicles import HEXA
-from io_helpers import run
+from trial_helpers import ok
 
 # the trial's 65 mm 1S whoop and its 5-inch 6S racer at 3500 m, -10 C (findings/trial6.md)
 WHOOP65 = {"name": "trial 65mm whoop", "mass": "32g", "rotors": {"count": 4},
@@ -30,12 +30,6 @@ RACER = {"name": "trial 5in 6S racer", "mass": "720g", "rotors": {"count": 4},
          "site": {"altitude": "3500m", "temperature": "-10C"}}
 
 
-def _ok(args):
-    code, out, err = run(args)
-    assert code == 0 and err == "", (code, err)
-    return out
-
-
 def _section3(sheet):
     body = sheet.split("3. For how long?\n", 1)[1].split("\n4. ", 1)[0]
     return " ".join(body.split())
@@ -49,7 +43,7 @@ def _files(tmp_path, doc, name="v.json"):
 
 def test_the_whoop_sheet_leads_with_the_measured_figure_of_merit(tmp_path):
     path = _files(tmp_path, WHOOP65)
-    report = json.loads(_ok(["hover", path, "--json"]))
+    report = json.loads(ok("hover", path, "--json"))
     check = report["low_reynolds_check"]
     # the figure behind the lead is within the micro-rotor tests' range (Kroo and Kunz; Bohorquez and Pines)
     assert 0.3 <= check["figure_of_merit_assumed"] <= 0.46
@@ -58,7 +52,7 @@ def test_the_whoop_sheet_leads_with_the_measured_figure_of_merit(tmp_path):
     # 65 mm 1S whoop on 300 mAh: about 3-4 min (common practice): the lead is near that, the estimate
     # (generic blade, FM ~0.58) is far above it
     assert 2.5 <= report["flight_time_lead_min"] <= 5.0 and check["estimate_flight_time_min"] > 6.0
-    text = _section3(_ok(["hover", path]))
+    text = _section3(ok("hover", path))
     first = "SMALL ROTOR: about %.1f min at the figure of merit %.2f" % (
         check["flight_time_min"], check["figure_of_merit_assumed"])
     beside = "the generic blade estimate (figure of merit %.2f) says about %.1f min" % (
@@ -71,10 +65,10 @@ def test_the_whoop_sheet_leads_with_the_measured_figure_of_merit(tmp_path):
 
 def test_a_large_rotor_keeps_the_estimate_as_its_headline(tmp_path):
     path = _files(tmp_path, HEXA)
-    report = json.loads(_ok(["hover", path, "--json"]))
+    report = json.loads(ok("hover", path, "--json"))
     assert report["flight_time_lead_basis"] == "estimate"
     assert report["flight_time_lead_min"] == report["flight_time_min"]
-    assert _section3(_ok(["hover", path])).startswith("about %.1f min of hover from a full pack"
+    assert _section3(ok("hover", path)).startswith("about %.1f min of hover from a full pack"
                                                       % report["flight_time_min"])
 
 
@@ -83,14 +77,14 @@ def test_compare_ranks_and_shows_the_conservative_endurance(tmp_path):
     single = {}
     for capacity in ("1100mAh", "1500mAh"):
         doc = dict(RACER, battery=dict(RACER["battery"], capacity=capacity))
-        single[capacity] = json.loads(_ok(["hover", _files(tmp_path, doc, capacity + ".json"), "--json"]))
-    result = json.loads(_ok(["compare", path, "--vary", "battery.capacity=1100mAh,1500mAh", "--json"]))
+        single[capacity] = json.loads(ok("hover", _files(tmp_path, doc, capacity + ".json"), "--json"))
+    result = json.loads(ok("compare", path, "--vary", "battery.capacity=1100mAh,1500mAh", "--json"))
     for row in result["rows"]:
         one = single[row["values"]["battery.capacity"]]
         assert row["flight_time_lead_min"] == one["flight_time_lead_min"] < one["low_reynolds_check"][
             "estimate_flight_time_min"] == row["flight_time_min"]
         assert row["flight_time_lead_basis"] == "small rotor"
-    table = _ok(["compare", path, "--vary", "battery.capacity=1100mAh,1500mAh"])
+    table = ok("compare", path, "--vary", "battery.capacity=1100mAh,1500mAh")
     first = [line for line in table.splitlines() if line.startswith(" 1  ")][0]
     assert first.rstrip().endswith("%.1f min" % single["1500mAh"]["flight_time_lead_min"]), first
     flat = " ".join(table.split())
@@ -101,13 +95,13 @@ def test_compare_ranks_and_shows_the_conservative_endurance(tmp_path):
 
 def test_the_payload_table_shows_and_judges_the_conservative_endurance(tmp_path):
     path = _files(tmp_path, WHOOP65)
-    lead = json.loads(_ok(["hover", path, "--json"]))["flight_time_lead_min"]
-    report = json.loads(_ok(["hover", path, "--payload", "0g,5g", "--job-time", "%.2fmin" % (lead + 0.05),
-                             "--json"]))
+    lead = json.loads(ok("hover", path, "--json"))["flight_time_lead_min"]
+    report = json.loads(ok("hover", path, "--payload", "0g,5g", "--job-time", "%.2fmin" % (lead + 0.05),
+                             "--json"))
     first = report["payload"]["rows"][0]
     assert first["payload_kg"] == 0 and first["flight_time_lead_min"] == lead < first["flight_time_min"]
     # the estimate's endurance would reach the job time; the conservative one does not
     assert first["flight_time_min"] > lead + 0.05 and first["margins"]["job_time"] is False
-    table = _ok(["hover", path, "--payload", "0g,5g"])
+    table = ok("hover", path, "--payload", "0g,5g")
     row = [line for line in table.splitlines() if line.startswith("   0 g")][0]
     assert "%.1f min" % lead in row

@@ -19,7 +19,8 @@ from estimator.demo.bench_sim import simulate_sweep
 from estimator.demo.flight_sim import simulate_flight
 from estimator.folders import FOLDER_MANIFEST, check_folder, write_manifest
 from estimator.outputs import file_kind
-from io_helpers import PARAMS, ROOT, VEHICLE, refused, run, tree_digest
+from io_helpers import PARAMS, ROOT, VEHICLE, refused, tree_digest
+from trial_helpers import ok
 
 
 @pytest.fixture(scope="module")
@@ -34,12 +35,6 @@ def flight_csv(tmp_path_factory):
     path = tmp_path_factory.mktemp("flight") / "flight.csv"
     path.write_text(simulate_flight(seed=2))
     return str(path)
-
-
-def _ok(args):
-    code, out, err = run(args)
-    assert code == 0, err
-    return out
 
 
 # --- 1. no user file ever replaced -------------------------------------------------------------
@@ -92,9 +87,9 @@ def test_existing_files_liftcal_did_not_write_are_kept(tmp_path, bench_csv, flig
 def test_liftcal_replaces_its_own_files_of_the_same_kind_only(tmp_path, bench_csv, flight_csv):
     p, png, s = tmp_path / "p.json", tmp_path / "fit.png", tmp_path / "s.txt"
     for _ in range(2):  # the second run replaces what the first wrote
-        _ok(["fit", bench_csv, "--out", p, "--plot", png])
-        _ok(["export", PARAMS, "--out", s])
-    _ok(["replay", flight_csv, "--params", PARAMS, "--plot", png])
+        ok("fit", bench_csv, "--out", p, "--plot", png)
+        ok("export", PARAMS, "--out", s)
+    ok("replay", flight_csv, "--params", PARAMS, "--plot", png)
     assert (file_kind(str(p)), file_kind(str(png)), file_kind(str(s))) == ("params", "png", "settings")
     before = tree_digest(tmp_path)
     refused(["fit", bench_csv, "--out", png], "is a liftcal figure (PNG)", "a parameter set")
@@ -125,11 +120,11 @@ def test_demo_never_replaces_a_users_folder(tmp_path):
 
 def test_demo_replaces_its_own_folder_unless_changed(tmp_path, bench_csv):
     out = tmp_path / "demo"
-    _ok(["demo", "--out", out, "--json"])
+    ok("demo", "--out", out, "--json")
     assert os.path.exists(out / FOLDER_MANIFEST) and os.path.exists(out / "board" / FOLDER_MANIFEST)
     # rerunning a printed step rewrites liftcal's own files: the folder stays the demo's
-    _ok(["fit", out / "bench.csv", "--vehicle", out / "vehicle.json", "--out", out / "params.json"])
-    _ok(["firmware", out / "params.json", "--out", out / "board"])
+    ok("fit", out / "bench.csv", "--vehicle", out / "vehicle.json", "--out", out / "params.json")
+    ok("firmware", out / "params.json", "--out", out / "board")
     # (a second demo run would replace it: the guard says so; the run itself takes half a minute)
     assert check_folder(str(out), "demo") == "own"
     # a parameter set rewritten by fit and then edited by hand is the person's (its content

@@ -16,7 +16,7 @@ from pathlib import Path
 
 import pytest
 
-from io_helpers import run
+from trial_helpers import ok
 
 G = 9.80665  # standard gravity [m/s^2] (CGPM 1901)
 
@@ -28,12 +28,6 @@ WHOOP3 = {"name": "INVENTED 3in 4S ducted cinewhoop", "mass": "320g", "rotors": 
                       "nominal_cell_V": 3.7, "empty_cell_V": 3.5, "max_discharge_C": 75},
           "esc": {"efficiency": 0.95, "max_current_A": 30},
           "site": {"altitude": "0m", "temperature": "20C", "humidity_pct": 40}}
-
-
-def _ok(args):
-    code, out, err = run(args)
-    assert code == 0 and err == "", (code, err)
-    return out
 
 
 def _file(tmp_path, doc, name="vehicle.json"):
@@ -64,8 +58,8 @@ def _number_after(text, label):
 
 def test_a_small_rotor_sheet_gives_every_hover_number_at_the_headline_figure_of_merit(tmp_path):
     path = _file(tmp_path, WHOOP3)
-    report = json.loads(_ok(["hover", path, "--json"]))
-    sheet = " ".join(_ok(["hover", path]).split())
+    report = json.loads(ok("hover", path, "--json"))
+    sheet = " ".join(ok("hover", path).split())
     check = report["low_reynolds_check"]
     fm, fm_est = check["figure_of_merit_assumed"], check["figure_of_merit_estimated"]
     assert fm < fm_est and report["flight_time_lead_basis"] == "small rotor"
@@ -106,16 +100,16 @@ def test_a_li_ion_pack_is_judged_at_li_ion_specific_energy_not_called_a_slip(tmp
     # hand: 6 x 3.6 V x 8 Ah = 172.8 Wh; Li-ion packs about 250 Wh/kg (common practice, from memory)
     # -> 0.69 kg = 43 % of 1.6 kg, inside the usual 3..60 % (at LiPo's 150 Wh/kg it would be 72 %)
     assert 0.03 <= 6 * 3.6 * 8.0 / 250.0 / 1.6 <= 0.60 < 6 * 3.6 * 8.0 / 150.0 / 1.6
-    report = json.loads(_ok(["hover", _file(tmp_path, LR10), "--json"]))
+    report = json.loads(ok("hover", _file(tmp_path, LR10), "--json"))
     assert report["suspect_keys"] == [] and not any(w.startswith("$.battery") for w in report["warnings"])
     # the same pack on LiPo cell voltages (3.7 / 3.5 V): 177.6 Wh / 150 Wh/kg = 74 %: still questioned
     lipo = dict(LR10, battery=dict(LR10["battery"], nominal_cell_V=3.7, empty_cell_V=3.5, cutoff_cell_V=3.3))
-    report = json.loads(_ok(["hover", _file(tmp_path, lipo, "lipo.json"), "--json"]))
+    report = json.loads(ok("hover", _file(tmp_path, lipo, "lipo.json"), "--json"))
     assert report["suspect_keys"] == ["$.battery.capacity_Ah"]
     # a real decimal slip on the Li-ion pack (80 Ah: 1728 Wh, 6.9 kg at 250 Wh/kg) is named, with
     # only the check the capacity enters as the reason (disk loading, motor power and speed do not)
     slip = dict(LR10, battery=dict(LR10["battery"], capacity_Ah=80.0))
-    report = json.loads(_ok(["hover", _file(tmp_path, slip, "slip.json"), "--json"]))
+    report = json.loads(ok("hover", _file(tmp_path, slip, "slip.json"), "--json"))
     text = [w for w in report["warnings"] if w.startswith("$.battery.capacity_Ah")][0]
     assert "8 Ah meant" in text and "250 Wh/kg (Li-ion" in text
     assert "with it the pack energy falls in its ordinary range" in text
@@ -124,13 +118,13 @@ def test_a_li_ion_pack_is_judged_at_li_ion_specific_energy_not_called_a_slip(tmp
 
 def test_compare_does_not_repeat_a_refuted_pack_warning_or_offer_a_13_kg_quad(tmp_path):
     path = _file(tmp_path, LR10)
-    result = json.loads(_ok(["compare", path, "--vary", "battery.capacity=4Ah,8Ah,10Ah",
-                             "--vary", "mass_kg=1.3,1.6", "--json"]))
+    result = json.loads(ok("compare", path, "--vary", "battery.capacity=4Ah,8Ah,10Ah",
+                             "--vary", "mass_kg=1.3,1.6", "--json"))
     flagged = [r["label"] for r in result["rows"] if any(c["kind"] == "unit_slip" for c in r["caveats"])]
     # only 10 Ah on 1.3 kg: 216 Wh / 250 Wh/kg = 0.86 kg = 66 % of the vehicle, above the usual 60 %
     assert flagged == ["battery.capacity=10Ah, mass_kg=1.3"], flagged
-    table = " ".join(_ok(["compare", path, "--vary", "battery.capacity=4Ah,8Ah,10Ah",
-                          "--vary", "mass_kg=1.3,1.6"]).split())
+    table = " ".join(ok("compare", path, "--vary", "battery.capacity=4Ah,8Ah,10Ah",
+                          "--vary", "mass_kg=1.3,1.6").split())
     # 13 kg on four 10in rotors would hover at 93 % of the motors' no-load speed (T = CT rho n^2 D^4,
     # CT 0.1: 250 rev/s vs 750 Kv x 21.6 V = 270 rev/s): not an ordinary vehicle to suggest
     assert "$.mass_kg 13 kg" not in table and "less likely" not in table
@@ -147,7 +141,7 @@ TINY1S = {"name": "INVENTED 65mm 1S whoop", "mass": "32g", "rotors": {"count": 4
 
 def test_an_overweight_whoop_is_told_it_is_too_heavy_not_offered_190000_kv(tmp_path):
     heavy = dict(TINY1S, mass="70g")
-    report = json.loads(_ok(["hover", _file(tmp_path, heavy), "--json"]))
+    report = json.loads(ok("hover", _file(tmp_path, heavy), "--json"))
     schema = json.loads((Path(__file__).parent.parent / "schemas" / "vehicle.schema.json").read_text())
     kv_max = schema["properties"]["motor"]["properties"]["kv_rpm_per_V"]["maximum"]   # 60000
     assert kv_max == 60000
@@ -158,11 +152,11 @@ def test_an_overweight_whoop_is_told_it_is_too_heavy_not_offered_190000_kv(tmp_p
     assert n > 19000 * 3.8
     first = report["warnings"][0]
     assert first.startswith("the vehicle looks too heavy for its rotors") and "check the mass first (70g)" in first
-    sheet = " ".join(_ok(["hover", _file(tmp_path, heavy)]).split())
+    sheet = " ".join(ok("hover", _file(tmp_path, heavy)).split())
     assert "first check $.motor.kv_rpm_per_V" not in sheet and "Kv meant" not in sheet
     # a real Kv slip (a digit short: 2000 for 20000) is still found, with a value inside the schema
     slip = dict(TINY1S, motor=dict(TINY1S["motor"], kv_rpm_per_V=2000))
-    report = json.loads(_ok(["hover", _file(tmp_path, slip, "slip.json"), "--json"]))
+    report = json.loads(ok("hover", _file(tmp_path, slip, "slip.json"), "--json"))
     assert report["suspect_keys"] == ["$.motor.kv_rpm_per_V"]
     assert "2e+04 Kv meant (a digit short)" in report["warnings"][0] or "20000 Kv meant" in report["warnings"][0]
 
@@ -182,10 +176,10 @@ def _significant(text):
 
 
 def test_computed_currents_keep_three_significant_digits(tmp_path):
-    report = json.loads(_ok(["hover", _file(tmp_path, X8), "--json"]))
+    report = json.loads(ok("hover", _file(tmp_path, X8), "--json"))
     # the trial's case: 17.05 A per motor and 7.0 A per ESC at hover were printed '17 A' and '7 A'
     assert round(report["hover_motor_current_A"], 1) == 17.0 and round(report["hover_esc_input_current_A"], 2) == 7.0
-    sheet = " ".join(_ok(["hover", _file(tmp_path, X8)]).split())
+    sheet = " ".join(ok("hover", _file(tmp_path, X8)).split())
     section = sheet[sheet.index("2. With what margin?"):sheet.index("3. For how long?")]
     printed = re.findall(r"(\d+(?:\.\d+)?) A (?:at hover|at full command|on a nominal pack)", section)
     assert len(printed) >= 8 and all(_significant(p) == 3 for p in printed), printed
@@ -196,14 +190,14 @@ def test_computed_currents_keep_three_significant_digits(tmp_path):
 def test_the_duct_note_is_decided_by_size_and_by_the_description(tmp_path):
     # 3in ducted cinewhoop (0.076 m, above the whoop-size class) and a 31 mm whoop: both get it
     for doc in (WHOOP3, TINY1S):
-        sheet = " ".join(_ok(["hover", _file(tmp_path, doc)]).split())
+        sheet = " ".join(ok("hover", _file(tmp_path, doc)).split())
         assert "SMALL ROTOR" in sheet and "liftcal models open rotors" in sheet, doc["name"]
     # the same 3in rotor on an open-frame build is not told about ducts; a 31 mm rotor always is
     open_frame = dict(WHOOP3, name="INVENTED 3in 4S open-frame micro quad")
-    sheet = " ".join(_ok(["hover", _file(tmp_path, open_frame)]).split())
+    sheet = " ".join(ok("hover", _file(tmp_path, open_frame)).split())
     assert "SMALL ROTOR" in sheet and "liftcal models open rotors" not in sheet
     plain_tiny = dict(TINY1S, name="INVENTED 65mm 1S micro")
-    sheet = " ".join(_ok(["hover", _file(tmp_path, plain_tiny)]).split())
+    sheet = " ".join(ok("hover", _file(tmp_path, plain_tiny)).split())
     assert "if the rotors run in ducts or guards (whoops): liftcal models open rotors" in sheet
 
 
@@ -234,11 +228,11 @@ def test_a_us_report_gives_the_reachable_command_in_microseconds(tmp_path):
 
     csv = _trial_csv(tmp_path / "bench.csv")       # the invented sweep in us (1000..2000 us)
     vehicle = _file(tmp_path, VEHICLE, "v7lr.json")
-    fit_text = " ".join(_ok(["fit", str(csv), "--vehicle", vehicle, "--out", str(tmp_path / "p.json")]).split())
-    report = json.loads(_ok(["hover", vehicle, "--params", str(tmp_path / "p.json"), "--json"]))
+    fit_text = " ".join(ok("fit", str(csv), "--vehicle", vehicle, "--out", str(tmp_path / "p.json")).split())
+    report = json.loads(ok("hover", vehicle, "--params", str(tmp_path / "p.json"), "--json"))
     assert report["command_unit"] == "us" and report["reachable_command"] is not None
     # a command u of 0..1 is 1000 + 1000 u us on this sweep's scale (the CSV's own unit)
     us = "%.0f us" % (1000.0 + 1000.0 * report["reachable_command"])
     assert "(*: reachable at command %s," % us in fit_text, fit_text
-    sheet = " ".join(_ok(["hover", vehicle, "--params", str(tmp_path / "p.json")]).split())
+    sheet = " ".join(ok("hover", vehicle, "--params", str(tmp_path / "p.json")).split())
     assert "reachable at command %.2f (%s)," % (report["reachable_command"], us) in sheet

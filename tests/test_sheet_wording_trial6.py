@@ -17,7 +17,8 @@ import math
 import pytest
 
 from invented_vehicles import HEXA
-from io_helpers import PARAMS, refused, run
+from io_helpers import PARAMS, refused
+from trial_helpers import ok
 from test_endurance_lead_trial6 import WHOOP65
 
 X8 = {"name": "trial coaxial X8", "mass": "14kg", "rotors": {"count": 8, "layout": "coaxial"},
@@ -29,12 +30,6 @@ X8 = {"name": "trial coaxial X8", "mass": "14kg", "rotors": {"count": 8, "layout
 KAPPA = (1.0 + math.sqrt(17.0)) / 4.0
 
 
-def _ok(args):
-    code, out, err = run(args)
-    assert code == 0 and err == "", (code, err)
-    return out
-
-
 def _write(tmp_path, doc, name="v.json"):
     path = tmp_path / name
     path.write_text(json.dumps(doc))
@@ -43,15 +38,15 @@ def _write(tmp_path, doc, name="v.json"):
 
 def test_the_coaxial_penalty_is_on_the_sheet_with_its_source(tmp_path):
     path = _write(tmp_path, X8)
-    report = json.loads(_ok(["hover", path, "--json"]))
+    report = json.loads(ok("hover", path, "--json"))
     fm_isolated = math.sqrt(2.0 / math.pi) * report["propeller_ct"] ** 1.5 / report["propeller_cp"]
     assert report["figure_of_merit"] == pytest.approx(1.0 / (1.0 / fm_isolated + KAPPA - 1.0), rel=1e-6)
-    sheet = " ".join(_ok(["hover", path]).split())
+    sheet = " ".join(ok("hover", path).split())
     assert "coaxial pairs: ideal induced power x%.4g" % KAPPA in sheet and "power basis" in sheet
     assert "Leishman 2006" in sheet and "from memory" in sheet
     assert "figure of merit %.2f (with the coaxial penalty)" % report["figure_of_merit"] in sheet
     assert "figure of merit %.2f for an isolated rotor" % fm_isolated in sheet
-    flat = " ".join(_ok(["hover", _write(tmp_path, HEXA, "flat.json")]).split())
+    flat = " ".join(ok("hover", _write(tmp_path, HEXA, "flat.json")).split())
     assert "coaxial" not in flat
 
 
@@ -62,14 +57,14 @@ def test_an_inch_slip_reads_as_inches(tmp_path):
 
 
 def test_the_duct_note_names_the_download_effect(tmp_path):
-    sheet = " ".join(_ok(["hover", _write(tmp_path, WHOOP65)]).split())
+    sheet = " ".join(ok("hover", _write(tmp_path, WHOOP65)).split())
     assert "Leishman on the download of a body under a rotor" in sheet and "Leishman, download" not in sheet
 
 
 def test_a_one_row_log_is_one_sample(tmp_path, params_file):
     log = tmp_path / "one.csv"
     log.write_text("time[s],command[-],voltage[V],current[A]\n0.0,0.0,16.4,0.3\n")
-    out = " ".join(_ok(["replay", log, "--params", params_file]).split())
+    out = " ".join(ok("replay", log, "--params", params_file).split())
     assert ": 1 sample, 0 alarms" in out and "1 samples" not in out
 
 
@@ -78,22 +73,22 @@ def test_export_of_an_edited_set_says_so(tmp_path):
 
     sweep, params = tmp_path / "s.csv", tmp_path / "p.json"
     write_ramp_csv(str(sweep), ramp_sweep_rows(3000, seed=5), "invented sweep for the export note")
-    _ok(["fit", sweep, "--out", params])
-    clean = _ok(["export", params, "--map", _write(tmp_path, {"schema_version": 1, "model": "liftcal.map/1",
-                 "settings": [{"name": "my.top", "unit": "N", "source": "thrust_curve.thrust_max_N"}]}, "m.json")])
+    ok("fit", sweep, "--out", params)
+    clean = ok("export", params, "--map", _write(tmp_path, {"schema_version": 1, "model": "liftcal.map/1",
+                 "settings": [{"name": "my.top", "unit": "N", "source": "thrust_curve.thrust_max_N"}]}, "m.json"))
     assert "was edited" not in clean
     params.write_text(params.read_text().replace('"thrust_max_N": ', '"thrust_max_N": 1', 1))  # a person's edit
     # refused unless asked, then said first (new-user trial 7, finding 6; tests/test_bench_outputs_trial7.py)
     refused(["export", params, "--map", tmp_path / "m.json"], "was EDITED since liftcal wrote it", "--from-edited")
-    edited = " ".join(_ok(["export", params, "--map", tmp_path / "m.json", "--from-edited"]).split())
+    edited = " ".join(ok("export", params, "--map", tmp_path / "m.json", "--from-edited").split())
     assert edited.startswith("WARNING: %s was EDITED since liftcal wrote it" % params)
     assert PARAMS  # the shipped example set (no seal) is not called edited:
-    assert "EDITED" not in _ok(["export", PARAMS])
+    assert "EDITED" not in ok("export", PARAMS)
 
 
 def test_static_answers_in_the_unit_it_was_asked_in():
     # 500 g of thrust = 0.5 kg x 9.80665 m/s^2 = 4.90 N (standard gravity, NIST SP 811)
-    text = " ".join(_ok(["static", "--diameter", "10in", "--thrust", "500g"]).split())
+    text = " ".join(ok("static", "--diameter", "10in", "--thrust", "500g").split())
     assert "500g (%.1f N) of thrust needs" % (0.5 * 9.80665) in text
-    plain = " ".join(_ok(["static", "--diameter", "10in", "--thrust", "4.9N"]).split())
+    plain = " ".join(ok("static", "--diameter", "10in", "--thrust", "4.9N").split())
     assert "4.9 N of thrust needs" in plain and "(4.9 N)" not in plain

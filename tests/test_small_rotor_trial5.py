@@ -18,7 +18,7 @@ import math
 import pytest
 
 from invented_vehicles import HEXA, WHOOP
-from io_helpers import run
+from trial_helpers import ok
 from estimator.preflight import low_reynolds, propeller_estimate
 
 TINY = {"name": "invented 65 mm whoop", "mass": "22g", "rotors": {"count": 4},
@@ -26,12 +26,6 @@ TINY = {"name": "invented 65 mm whoop", "mass": "22g", "rotors": {"count": 4},
         "motor": {"kv_rpm_per_V": 25000, "resistance_ohm": 1.6, "no_load_current_A": 0.3},
         "battery": {"cells": 1, "capacity": "300mAh", "resistance": "90mohm",
                     "full_cell_V": 4.35, "nominal_cell_V": 3.8, "empty_cell_V": 3.5}}
-
-
-def _ok(args):
-    code, out, err = run(args)
-    assert code == 0 and err == "", (code, err)
-    return out
 
 
 def test_the_fallback_is_the_low_end_of_the_published_tests():
@@ -52,7 +46,7 @@ def test_the_fallback_is_the_low_end_of_the_published_tests():
 def _sheet(tmp_path, doc):
     path = tmp_path / "v.json"
     path.write_text(json.dumps(doc))
-    return json.loads(_ok(["hover", str(path), "--json"])), " ".join(_ok(["hover", str(path)]).split())
+    return json.loads(ok("hover", str(path), "--json")), " ".join(ok("hover", str(path)).split())
 
 
 def test_the_whoop_sheet_gives_the_measured_figure_and_the_duct_note(tmp_path):
@@ -81,7 +75,7 @@ def test_a_3_inch_whoop_gets_the_check_but_no_duct_note(tmp_path):
 
 def test_static_is_honest_about_small_rotors():
     ambiance = pytest.importorskip("ambiance")
-    out = json.loads(_ok(["static", "--diameter", "31mm", "--thrust", "5.5g", "--json"]))
+    out = json.loads(ok("static", "--diameter", "31mm", "--thrust", "5.5g", "--json"))
     small = out["low_reynolds"]
     # Re at 75 % radius by hand: n from T = CT rho n^2 D^4 (CT 0.1), section speed 0.75 pi n D,
     # chord 0.135 R (the generic blade, core/propeller_bemt.py), mu at 15 C (ambiance)
@@ -92,12 +86,12 @@ def test_static_is_honest_about_small_rotors():
     fm = low_reynolds.fallback_figure_of_merit(small["reynolds_75"])
     # k = eta^(2/3), eta = FM x motor efficiency 0.4..0.7 (from memory)
     assert small["static_factor_band"] == pytest.approx([(fm * 0.4) ** (2 / 3), ((fm + 0.1) * 0.7) ** (2 / 3)])
-    text = " ".join(_ok(["static", "--diameter", "31mm", "--thrust", "5.5g"]).split())
+    text = " ".join(ok("static", "--diameter", "31mm", "--thrust", "5.5g").split())
     # 0.3 inside the band (k^1.5 = FM x motor and ESC efficiency): typical there, not conservative
     # (the wording of the seventh trial, item 9, which judges the k against the band it prints)
     assert small["static_factor_band"][0] <= 0.3 <= small["static_factor_band"][1]
     assert "k = 0.30 is inside that band: a typical value here, NOT a conservative one" in text
     assert "is a conservative rule of thumb" not in text
     assert "measured rotors there reach a figure of merit of about" in text and "ducts or guards" in text
-    big = " ".join(_ok(["static", "--diameter", "15in", "--thrust", "15N"]).split())
+    big = " ".join(ok("static", "--diameter", "15in", "--thrust", "15N").split())
     assert "is a conservative rule of thumb" in big and "NOT conservative" not in big

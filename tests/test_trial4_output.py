@@ -2,7 +2,7 @@
 what the numbers say, the decimals an export map asks for, 80-column text, cautions in the
 settings and replay JSON, the cold-pack wording, the bench header hints and the fit help.
 
-Commands run in this process (tests/io_helpers.run). Sources are named beside each check.
+Commands run in this process (tests/io_helpers.refused, tests/trial_helpers.ok). Sources are named beside each check.
 """
 
 import copy
@@ -14,7 +14,8 @@ import pytest
 
 from estimator.cautions import cautions
 from estimator.demo.flight_sim import simulate_flight
-from io_helpers import MAP, PARAMS, refused, run
+from io_helpers import MAP, PARAMS, refused
+from trial_helpers import ok, run
 from invented_vehicles import HEXA
 from test_preflight_trial4 import WHOOP_1S
 from watch_helpers import demo_fit_params
@@ -28,21 +29,15 @@ def _write(tmp_path, doc, name="v.json"):
     return path
 
 
-def _ok(args):
-    code, out, err = run(args)
-    assert code == 0, (code, out, err)
-    return out
-
-
 # --- item 6: static --diameter 3 -----------------------------------------------------------------
 
 def test_static_bare_diameter_of_3_warns_inches_meant():
     # 3 m with 20 W gives about 0.8 N/m^2, far below the 20..1500 N/m^2 of small multirotors
     # (common practice); 3 in = 0.0762 m (NIST SP 811, exact)
-    out = _ok(["static", "--diameter", "3", "--power", "20W"])
+    out = ok("static", "--diameter", "3", "--power", "20W")
     flat = " ".join(out.split())
     assert "inches meant? 3 in = 0.0762 m" in flat and "--diameter 3in" in flat
-    data = json.loads(_ok(["static", "--diameter", "3", "--power", "20W", "--json"]))
+    data = json.loads(ok("static", "--diameter", "3", "--power", "20W", "--json"))
     assert len(data["warnings"]) == 1 and "inches meant" in data["warnings"][0]
 
 
@@ -50,14 +45,14 @@ def test_static_bare_diameter_of_3_warns_inches_meant():
                                   ["--diameter", "0.254", "--power", "100W"],
                                   ["--diameter", "0.254", "--thrust", "5N"]])
 def test_static_ordinary_diameters_get_no_warning(args):
-    assert "meant?" not in _ok(["static"] + args)
-    assert json.loads(_ok(["static"] + args + ["--json"]))["warnings"] == []
+    assert "meant?" not in ok(*["static"] + args)
+    assert json.loads(ok(*["static"] + args + ["--json"]))["warnings"] == []
 
 
 # --- item 8: rounding ------------------------------------------------------------------------------
 
 def test_whoop_sheet_totals_agree_with_per_rotor_values(tmp_path):
-    out = " ".join(_ok(["hover", _write(tmp_path, WHOOP_1S)]).split())
+    out = " ".join(ok("hover", _write(tmp_path, WHOOP_1S)).split())
     per, total = re.search(r"full-command thrust ([0-9.]+) N per rotor, ([0-9.]+) N total", out).groups()
     # 4 rotors: the total is 4 x the per-rotor value within the rounding of 3 significant digits
     assert abs(float(total) - 4 * float(per)) <= 0.005 * float(total), (per, total)
@@ -71,7 +66,7 @@ def test_payload_table_prints_each_mass_exactly(tmp_path):
     # all-up = vehicle + payload, exact in decimal arithmetic: 9.5 kg + 1.125 kg = 10.625 kg
     hexa = copy.deepcopy(HEXA)
     hexa["mass"] = "9.5kg"
-    out = _ok(["hover", _write(tmp_path, hexa), "--payload", "0,0.375,1.125,3kg"])
+    out = ok("hover", _write(tmp_path, hexa), "--payload", "0,0.375,1.125,3kg")
     rows = re.findall(r"^\s+([0-9.]+) kg\s+([0-9.]+) kg", out, re.M)
     assert len(rows) == 4
     for payload, all_up in rows:
@@ -80,7 +75,7 @@ def test_payload_table_prints_each_mass_exactly(tmp_path):
 
 def test_export_prints_the_decimals_the_map_asks_for():
     mapping = json.load(open(MAP))
-    out = _ok(["export", PARAMS, "--map", MAP])
+    out = ok("export", PARAMS, "--map", MAP)
     for entry in mapping["settings"]:
         value = re.search(r"^%s\s+(-?[0-9.]+)" % re.escape(entry["name"]), out, re.M).group(1)
         shown = len(value.split(".")[1]) if "." in value else 0
@@ -102,12 +97,12 @@ def flight(tmp_path_factory):
 def test_replay_firmware_export_compare_check_fit_80_columns(tmp_path, flight):
     folder, params, log = flight
     vehicle = _write(tmp_path, HEXA)
-    outputs = [_ok(["replay", log, "--params", params]),
-               _ok(["firmware", params, "--out", tmp_path / "board"]),
-               _ok(["export", PARAMS]),
-               _ok(["compare", vehicle, "--vary", "propeller.size=15x5.5in,16x5.5in",
-                    "--vary", "motor.kv_rpm_per_V=380,420", "--vary", "battery.capacity=12000mAh,16000mAh"]),
-               _ok(["check", PARAMS])]
+    outputs = [ok("replay", log, "--params", params),
+               ok("firmware", params, "--out", tmp_path / "board"),
+               ok("export", PARAMS),
+               ok("compare", vehicle, "--vary", "propeller.size=15x5.5in,16x5.5in",
+                    "--vary", "motor.kv_rpm_per_V=380,420", "--vary", "battery.capacity=12000mAh,16000mAh"),
+               ok("check", PARAMS)]
     for out in outputs:
         assert max(len(line) for line in out.splitlines()) <= COLUMNS, out
 
@@ -117,9 +112,10 @@ def test_replay_firmware_export_compare_check_fit_80_columns(tmp_path, flight):
 def test_settings_json_file_and_replay_json_carry_the_cautions(tmp_path, flight):
     folder, params, log = flight
     target = tmp_path / "set.json"
-    _ok(["export", PARAMS, "--json", "--out", target])
+    code, _, notes = run("export", PARAMS, "--json", "--out", target)
+    assert code == 0 and "top_grams" in notes  # under --json the fit's notes go to stderr
     assert json.loads(target.read_text())["cautions"] == cautions("settings")
-    assert json.loads(_ok(["replay", log, "--params", params, "--json"]))["cautions"] == cautions("board")
+    assert json.loads(ok("replay", log, "--params", params, "--json"))["cautions"] == cautions("board")
 
 
 # --- item 16: the cold-pack note -----------------------------------------------------------------
@@ -130,7 +126,7 @@ def test_cold_pack_words_only_below_the_cold_caution(tmp_path, temperature, cold
     # the threshold of the sheet's cold-pack caution
     doc = copy.deepcopy(HEXA)
     doc["site"]["temperature"] = temperature
-    out = " ".join(_ok(["hover", _write(tmp_path, doc)]).split())
+    out = " ".join(ok("hover", _write(tmp_path, doc)).split())
     assert ("sags more" in out) == cold   # the wording of a cold pack, not of one at room temperature
     assert ("cold pack (" in out) == cold
 
@@ -158,5 +154,5 @@ def test_fit_help_lists_the_units_the_reader_names(tmp_path):
     line = refused(["fit", _bench(tmp_path, "time[s],voltage[V],current[A],thrust[g]"),
                     "--out", tmp_path / "p.json"], "header lacks command")
     need = re.search(r"need (.*)$", line).group(1)
-    help_text = " ".join(_ok(["fit", "--help"]).split())
+    help_text = " ".join(ok("fit", "--help").split())
     assert need in help_text, (need, help_text)

@@ -15,19 +15,14 @@ import json
 import pytest
 
 from invented_vehicles import WHOOP
-from io_helpers import refused, run
+from io_helpers import refused
+from trial_helpers import ok
 
 
 def _file(tmp_path, doc, name="v.json"):
     path = tmp_path / name
     path.write_text(json.dumps(doc))
     return str(path)
-
-
-def _ok(args):
-    code, out, err = run(args)
-    assert code == 0 and err == "", (code, err)
-    return out
 
 
 # --- item 7: the propeller keys -------------------------------------------------------------------
@@ -50,7 +45,7 @@ def test_a_size_without_pitch_says_the_pitch_is_missing(tmp_path):
 def test_size_and_measured_coefficients_say_which_wins(tmp_path):
     doc = copy.deepcopy(WHOOP)
     doc["propeller"] = {"size": "3x1.8in", "ct": 0.1, "cp": 0.045}
-    report = json.loads(_ok(["hover", _file(tmp_path, doc), "--json"]))
+    report = json.loads(ok("hover", _file(tmp_path, doc), "--json"))
     assert report["propeller_source"] == "given" and report["propeller_ct"] == 0.1
     note = [w for w in report["warnings"] if w.startswith("$.propeller: ct and cp are given")]
     assert note and "pitch from $.propeller.size is not" in note[0]
@@ -59,12 +54,12 @@ def test_size_and_measured_coefficients_say_which_wins(tmp_path):
 def test_a_bare_size_is_inches_with_a_note(tmp_path):
     doc = copy.deepcopy(WHOOP)
     doc["propeller"] = {"size": "3x1.8", "blades": 3}
-    report = json.loads(_ok(["hover", _file(tmp_path, doc), "--json"]))
+    report = json.loads(ok("hover", _file(tmp_path, doc), "--json"))
     assert report["propeller_diameter_m"] == pytest.approx(3 * 0.0254, rel=1e-12)  # NIST SP 811
-    sheet = _ok(["hover", _file(tmp_path, doc)])
+    sheet = ok("hover", _file(tmp_path, doc))
     assert '$.propeller.size: "3x1.8" has no unit: read as inches ("3x1.8in")' in " ".join(sheet.split())
     doc["propeller"]["size"] = "3x1.8in"  # with its unit: no note
-    assert "has no unit" not in _ok(["hover", _file(tmp_path, doc, "w.json")])
+    assert "has no unit" not in ok("hover", _file(tmp_path, doc, "w.json"))
 
 
 # --- item 8: site temperature against the standard atmosphere -------------------------------------
@@ -77,8 +72,8 @@ def test_air_warns_on_a_temperature_far_from_the_standard_atmosphere(altitude_m)
         temperature = t_std + offset
         if temperature < -60.0 or temperature > 50.0:
             continue  # beyond the air command's own bounds, -60..50 C (schemas/vehicle.schema.json, site)
-        out = json.loads(_ok(["air", "--altitude", "%gm" % altitude_m, "--temperature", "%.3f" % temperature,
-                              "--json"]))
+        out = json.loads(ok("air", "--altitude", "%gm" % altitude_m, "--temperature", "%.3f" % temperature,
+                              "--json"))
         assert bool(out["warnings"]) == warned, (altitude_m, temperature, out["warnings"])
         if warned:
             assert "%.0f K %s the standard atmosphere" % (abs(offset), "above" if offset > 0 else "below") \
@@ -88,10 +83,10 @@ def test_air_warns_on_a_temperature_far_from_the_standard_atmosphere(altitude_m)
 def test_the_trial_site_30_C_at_9000_m_is_flagged_on_the_sheet(tmp_path):
     doc = copy.deepcopy(WHOOP)
     doc["site"] = {"altitude": "9000m", "temperature": "30C"}
-    sheet = " ".join(_ok(["hover", _file(tmp_path, doc)]).split())
+    sheet = " ".join(ok("hover", _file(tmp_path, doc)).split())
     # standard atmosphere at 9000 m: -43.4 C (ambiance, ICAO), so 30 C is 73 K above it
     assert "! site temperature 30.0 C at 9000 m is 73 K above the standard atmosphere's -43.4 C" in sheet
-    text = _ok(["air", "--altitude", "9000m", "--temperature", "30"])
+    text = ok("air", "--altitude", "9000m", "--temperature", "30")
     assert "! site temperature 30.0 C at 9000 m" in " ".join(text.split())
 
 
