@@ -210,20 +210,29 @@ def format_table(result, name):
         labels = list(keys)
     widths = [max(len(lab), max(len(str(r["values"][k])) for r in rows)) for k, lab in zip(keys, labels)]
     rank_w = max(2, len(str(len(rows))))
+    # the figures of each row; each column as wide as its heading or its widest cell, numbers
+    # right-aligned so that their places line up whatever their size (a 50 g micro beside a
+    # 25 kg octo), two spaces between columns. The T/W's reachable mark (*) stands in the first
+    # space after its figures, so the column after it keeps one space more than its widest cell
+    # (a value written with more digits so that it never rounds onto the floor of 2 it is
+    # judged by, '1.997*', widens the column, warnings.beside)
+    figures = [[("%.2f" % r["hover_command"]) if r["hover_command"] is not None else "none",
+                _tw_cell(r).rstrip(REACHABLE_MARK),
+                ("%.1f" % r["hover_motor_current_A"]) if r["hover_motor_current_A"] is not None else "-",
+                ("%.1f" % r["hover_pack_current_A"]) if r["hover_pack_current_A"] is not None else "-",
+                ("%.1f min" % r["flight_time_lead_min"]) if r["flight_time_lead_min"] is not None
+                else "no hover"] for r in rows]
+    headings = ["command", "T/W", "motor A", "pack A", "endurance"]
+    fig_w = [max(len(h), max(len(f[i]) + (i == 2) for f in figures)) for i, h in enumerate(headings)]
     header = "#".rjust(rank_w) + "  " + "  ".join(lab.ljust(w) for lab, w in zip(labels, widths))
-    # the T/W column as wide as its widest cell: a value written with more digits so that it never
-    # rounds onto the floor of 2 it is judged by ('1.997*', warnings.beside) keeps the columns aligned
-    tw_w = max([5] + [len(_tw_cell(r)) for r in rows])
-    header += "  command  %s motor A  pack A  endurance" % "T/W".ljust(tw_w)
+    header += "  " + "  ".join(h.rjust(w) for h, w in zip(headings, fig_w))
     lines.append(header)
-    for r in rows:
+    for r, fig in zip(rows, figures):
         cells = "  ".join(str(r["values"][k]).ljust(w) for k, w in zip(keys, widths))
-        cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
-        motor = "%.1f" % r["hover_motor_current_A"] if r["hover_motor_current_A"] is not None else "-"
-        pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
-        time = "%.1f min" % r["flight_time_lead_min"] if r["flight_time_lead_min"] is not None else "no hover"
-        lines.append("%*d  %s  %-7s  %-*s %-7s  %-6s  %s" % (
-            rank_w, r["rank"], cells, cmd, tw_w, _tw_cell(r), motor, pack, time))
+        mark = REACHABLE_MARK if _tw_cell(r).endswith(REACHABLE_MARK) else " "
+        lines.append("%*d  %s  %s  %s%s %s" % (
+            rank_w, r["rank"], cells, fig[0].rjust(fig_w[0]), fig[1].rjust(fig_w[1]), mark,
+            "  ".join(f.rjust(w) for f, w in zip(fig[2:], fig_w[2:]))))
         ended = ("ended by %s; " % ENDED_BY_WORDS.get(r["flight_ended_by"], r["flight_ended_by"])
                  if r.get("flight_ended_by") else "")
         marks = "keeps every margin" if r["keeps_margins"] else "breaks " + ", ".join(r["broken"])
