@@ -94,7 +94,7 @@ def test_kernel_cusum_run_length_matches_siegmund():
     # 1/ARL2 = 2/ARL1 (Siegmund 1985; symmetric scheme). Standard error of the mean is about
     # ARL / sqrt(500) = 4.5 %; tolerance 12 % (about 2.7 standard errors plus integer rounding).
     cfg = make_config(demo_fit_params(), options={"block_s": 0.1, "lag_ms": 0.0, "takeoff_s": 0.0,
-                                                  "drift_tol": 0.0})[0]
+                                                  "drift_rate_per_min": 0.0})[0]
     sigma_pm = 100
     cfg.update(cusum_k_q8=128, cusum_h_q8=1024, noise_floor_permille=sigma_pm, noise_shift=12)
     rng = random.Random(4)
@@ -263,3 +263,36 @@ def test_in_flight_noise_may_grow_past_the_learning_windows_bound():
             w.update(100, u, mv, ma + i)
         top = max(top, w.data[at] >> 6)                   # the estimate wanders (EMA over ~5 s)
     assert 30 < top <= 35, top
+
+
+def _walk_run(cfg, sig_pm, share_at, minutes, seed):
+    """Steady hover of a learned Watch (noise sig_pm [permille]) whose measured power is
+    P_exp (1 + share_at(t_min) + sigma z): the flight time [s] of the first power alarm (None)."""
+    w, pe = _learned_watch(cfg, sig_pm)
+    rng = random.Random(seed)
+    mv, u = 15000, 520
+    for b in range(int(minutes * 120)):                   # 0.5 s blocks of five 100 ms samples
+        share = share_at(b / 120.0)
+        ma = int(round(pe * (1.0 + share + sig_pm / 1000.0 * rng.gauss(0.0, 1.0)) * 1e5 / mv))
+        for i in range(5):
+            if w.update(100, u, mv, ma + i) & 3:
+                return b / 2.0, share
+    return None, None
+
+
+def test_a_slow_baseline_walk_is_followed_and_a_fault_ramp_is_not():
+    # The in-flight baseline walks as the pack drains and the air changes: up to 3.8 % (1.0 %
+    # median) in the 720 fault-free 10-min flights of the detection matrix (benchmarks/
+    # watch_detection.py, drift unbounded). A drift bounded in level at 1.5 % was pinned there and
+    # left the CUSUM that bias (one false power_low in 625 h of logs). The drift now follows the
+    # residual at a bounded rate (0.6 % a minute): a 5 % walk over 8 minutes (0.63 %/min) must
+    # raise no alarm, while the issue's fault ramp, 0 -> 15 % in 5 minutes (3 %/min), must still
+    # be caught before it reaches 8 % (goal of the detection matrix). Noise 1 % (the floor):
+    # k = 1.5 %, at most 2.6 % when the in-flight noise has risen to its bound (1.75x), so the
+    # 3.5 % bias a level bound leaves alarms. Ten seeds each.
+    cfg = make_config(demo_fit_params(), options={"takeoff_s": 0.0, "lag_ms": 0.0})[0]
+    for seed in range(10):
+        t, share = _walk_run(cfg, 10, lambda m: 0.05 * min(m / 8.0, 1.0), 10.0, seed)
+        assert t is None, (seed, t, share)
+        t, share = _walk_run(cfg, 10, lambda m: 0.15 * min(m / 5.0, 1.0), 6.0, 100 + seed)
+        assert t is not None and share < 0.08, (seed, t, share)

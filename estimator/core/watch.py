@@ -2,8 +2,8 @@
 
 ``w = Watch(CONFIG)``; ``flags = w.update(dt, u, v, a)``; flag bits in
 estimator/core/watch_layout.py. Readable after each block in ``w.data`` (watch_layout.OUTPUT_AT;
-on the desktop also by name, estimator.watch.config.NamedWatch): [30] ``mass_g`` [g], [31]
-``sigma_permille`` [1/1000], [32] ``residual_permille`` [1/1000], [33] ``thrust_mN`` [mN], [34]
+on the desktop also by name, estimator.watch.config.NamedWatch): [31] ``mass_g`` [g], [32]
+``sigma_permille`` [1/1000], [33] ``residual_permille`` [1/1000], [34] ``thrust_mN`` [mN], [35]
 ``hover_permille`` [1/1000], [5] ``scale`` [1/1000] (in the list, not as attributes: an
 attribute's name would be interned on the board's heap). Their meaning, the model and its published sources (Page 1954,
 Hawkins 1987, Siegmund 1985) and the integer contract: DEVELOPERS.md, "The onboard watch
@@ -23,7 +23,7 @@ class Watch:
         Raises ValueError (no message: a string constant would stay on the heap) when CONFIG was
         made for another kernel format; the board loader liftwatch_load and the desktop builder
         check every bound first and say what is wrong in words."""
-        if len(c) != 145 or c[13] != 6:
+        if len(c) != 145 or c[13] != 7:
             raise ValueError
         span = c[21]
         # thrust fraction t = 4096 ((1 - a) d/S + a (d/S)^2) = d (ta + (tq d >> 10)) >> 14 with
@@ -43,14 +43,14 @@ class Watch:
         # data (sb in _block): block state, named by the unpacking in _block (DEVELOPERS.md: sig in
         # Q6, drift in Q8, fsl the hover thrust factor in Q7, low: the block's expected power fell
         # below the floor; [30..34] the outputs); the inflow slope cx starts at momentum theory's 0.5
-        self.data = [0] * 35
+        self.data = [0] * 36
         self.clear()
 
     def clear(self):
         """A new flight: forget the learned scale, noise, CUSUM sums, drift and mass (the outputs
         thrust_mN and hover_permille stay)."""
         sb = self.data
-        for i in range(33):                               # a counted loop: no allocation
+        for i in range(34):                               # a counted loop: no allocation
             sb[i] = 0
         sb[0] = 1
         sb[5] = 1000
@@ -174,7 +174,7 @@ class Watch:
         lo = min                                          # in local slots below 16: 1 B a use, not 2
         hi = max
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
-         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low, mass_g, sigma_permille, residual_permille, thrust_mN, hover_permille) = sb
+         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low, bm, mass_g, sigma_permille, residual_permille, thrust_mN, hover_permille) = sb
         # CUSUM k, h [permille] from the noise; k at most k_max, h raised so that h k stays
         k = lo(hi(sig >> 6, c[36]), 1000)                     # the noise, within its floor c[36]..100 %
         h = k * c[39] >> 8                               # 1000 * 12800
@@ -190,12 +190,12 @@ class Watch:
         j = (pmb >> sh) + 112
         a = c[j]                                          # < 2^13
         # thrust from measured power (table); 2^13 * 2^13 ; <= 1e6
-        sb[33] = th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[29]
+        sb[34] = th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[29]
         dv = v - c[15]
         vs = c[23]
         j = dv // vs
         a = c[j + 50]
-        sb[34] = a + (c[j + 51] - a) * (dv % vs) // vs   # 1000 * 5001
+        sb[35] = a + (c[j + 51] - a) * (dv % vs) // vs   # 1000 * 5001
         fb = f // b                                       # Q12, <= 6143
         if not fsl:
             fsl = fb << 7                                 # Q7 of Q12, < 2^20
@@ -214,7 +214,7 @@ class Watch:
         e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
         if e0s <= 0:
             return flags
-        sb[32] = r = lo(hi((e >> esh) - e0s, -e0s), e0s) * 1000 // e0s   # 6.8e5 * 1000 (e0s <= 2^19 x 1300 / 1000)
+        sb[33] = r = lo(hi((e >> esh) - e0s, -e0s), e0s) * 1000 // e0s   # 6.8e5 * 1000 (e0s <= 2^19 x 1300 / 1000)
         if t < c[32]:                                    # take-off: not judged, not learned
             return flags
         # lead g: static less lagged expected energy [permille of the expected] (spin-up draw)
@@ -278,11 +278,11 @@ class Watch:
                 # in flight the noise starts at 1.5x (an upper confidence bound), rises to 1.75x at most
                 s += s >> 1
                 sb[6] = s << 6                            # Q6, <= 128000
-                sb[31] = s
+                sb[32] = s
         elif near:
-            z = r - (drift >> 8) - x                      # |.| <= 1600
+            p = r - (drift >> 8) - x                      # the deviation (p, e, v, f: low slots, 1 B a use); |.| <= 1600
             cl = k + hh + 1                               # one block adds at most this
-            zc = lo(hi(z, -cl), cl)
+            zc = lo(hi(p, -cl), cl)
             if steady:
                 s_hi += zc - k                            # <= 2h + 2 cl < 1e5
                 s_lo -= zc + k
@@ -293,19 +293,22 @@ class Watch:
             sb[9] = s_hi = lo(hi(s_hi, 0), h2)
             sb[10] = s_lo = lo(hi(s_lo, 0), h2)
             if quiet and steady:
-                # noise [Q6]: EMA of |y16| x 53 / 4 = |y| x 64 sqrt(7) sqrt(pi/2), |z| within 5 sigma
+                # noise [Q6]: EMA of |y16| x 53 / 4 = |y| x 64 sqrt(7) sqrt(pi/2), |p| within 5 sigma
                 s = hi(sig >> 6, c[36])
-                z = lo(hi(z, -5 * s), 5 * s)
-                sb[24] = y16 = y16 + (((z << 4) - y16) >> 2)   # |.| <= 16 x 5000
+                p = lo(hi(p, -5 * s), 5 * s)
+                sb[24] = y16 = y16 + (((p << 4) - y16) >> 2)   # |.| <= 16 x 5000
                 sig += (abs(y16) * 53 - (sig << 2)) >> (c[37] + 2)   # 8e4 * 53 = 4.2e6
                 sb[6] = sig = lo(sig, l_dev + (l_dev >> 1) + (l_dev >> 2))   # 1.75x: a slow ramp hides in no more
-                sb[31] = hi(sig >> 6, c[36])
+                sb[32] = hi(sig >> 6, c[36])
             calm = s_hi + s_lo < hh
             if steady and calm:
-                # slow bounded drift of the baseline [1/256 permille] (not after a suspicion)
-                drift += ((r << 8) - drift) >> c[41]     # 1000 * 256
-                lim = c[42] << 8
-                sb[11] = lo(hi(drift, -lim), lim)
+                # slow drift of the baseline [1/256 permille] (not after a suspicion): the residual's EMA
+                # bm, free within 2 standard errors of the learned baseline (l_ms), beyond at a bounded
+                # rate (a few permille a minute; a fault ramp moves 30); |bm|, |drift| <= 256000
+                sb[30] = bm = bm + (((r << 8) - bm) >> c[41])   # 1000 * 256
+                f = c[42]                                 # the step bound
+                v = l_ms << 8                             # the band; 2000 * 256
+                sb[11] = lo(hi(bm, lo(drift - f, -v)), hi(drift + f, v))
             flags &= 28
             if s_hi >= h:
                 flags |= 1
@@ -336,7 +339,7 @@ class Watch:
                         pmu = mu
                         pvar = var
                         pn = m_n
-                    sb[30] = plan + (plan * pmu + 500) // 1000   # 5e5 * 500 (rounded, not floored)
+                    sb[31] = plan + (plan * pmu + 500) // 1000   # 5e5 * 500 (rounded, not floored)
                     ex = pmu - c[46]
                     if ex > 0 and ex * ex * pn > ((pvar >> 4) * c[47] >> 4):   # 2.5e5 * 2400 ; 31250 * 32767
                         m_run += 1

@@ -14,7 +14,7 @@ makes a Watch. The bounds are those under which every kernel intermediate stays 
 Runs unchanged on MicroPython: no imports, no floats.
 """
 
-FORMAT = 6  # CONFIG format of this kernel (5: the same values, the scalars after the tables)
+FORMAT = 7  # CONFIG format of this kernel (6: drift bounded in level, not per block; 5: the scalars after the tables)
 
 # flag bits returned by Watch.update (design notes sec. 4)
 POWER_HIGH = 1
@@ -66,7 +66,7 @@ SCALARS = (
     ("cusum_h_q8", 1, 12800),               # CUSUM threshold [noise sigma x 256]
     ("steady_permille", 1, 1000),           # block thrust within this of the hover thrust: steady
     ("drift_shift", 0, 12),                 # slow baseline tracking: EMA over 2^shift blocks
-    ("drift_tol_permille", 0, 100),         # bound of that tracking
+    ("drift_step_q8", 0, 2560),             # that EMA's step per block at most this [1/256 permille]
     ("mass_window_ms", 1000, 120000),       # steady flight time per implied-mass window
     ("mass_windows", 1, 100),               # windows in a row above the limit for mass_high
     ("mass_plan_g", 1, 500000),             # planned all-up mass
@@ -92,8 +92,8 @@ del _at, _t, _i
 
 # where Watch keeps its outputs: indices in its block state list Watch.data (ints, updated
 # once per block); mass_g, sigma_permille and residual_permille are cleared at a landing
-OUTPUT_AT = (("mass_g", 30), ("sigma_permille", 31), ("residual_permille", 32), ("thrust_mN", 33),
-             ("hover_permille", 34), ("scale", 5))
+OUTPUT_AT = (("mass_g", 31), ("sigma_permille", 32), ("residual_permille", 33), ("thrust_mN", 34),
+             ("hover_permille", 35), ("scale", 5))
 
 
 def check(config):

@@ -55,8 +55,11 @@ DEFAULTS = {
     "steady_share": 0.10,           # block thrust within this share of the hover thrust: steady [-]
     "settle_s": 4.0,                # after a block beyond steady_share (a manoeuvre) judged at half weight this long [s]
     "drift_s": 60.0,                # slow baseline tracking: EMA time constant [s]
-    "drift_tol": 0.015,             # bound of the slow in-flight baseline tracking [-] (a slow fault ramp
-                                    # hides in it: 3 % let a 0 -> 15 % ramp reach 8.6 % before the alarm)
+    "drift_rate_per_min": 0.006,    # ... free within 2 standard errors of the learned baseline, beyond them
+                                    # moving at most this share a minute [1/min]: the in-flight baseline
+                                    # walks up to 2-4 % in a 10-min flight (pack, air) and a fault ramp of
+                                    # 0 -> 15 % in 5 min is 5x faster (bounded in level at 1.5 % instead, the
+                                    # baseline walked past it: one false power_low in 625 h of the detection matrix)
     "mass_share": 0.08,             # implied mass above planned by this share (+ margin) -> mass_high [-]
     "mass_window_s": 6.0,           # steady flight time per implied-mass window (pooled with the last) [s]
     "mass_windows": 2,              # windows in a row above limit + margin -> mass_high
@@ -339,7 +342,8 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
         "%.1f s judged at half weight (no noise, drift or mass learning): climbs and descents change the power "
         "at a given thrust" % o["settle_s"])
     put("drift_shift", _shift(o["drift_s"] * 1000.0 / block_ms), "baseline tracking EMA over about %.0f s" % o["drift_s"])
-    put("drift_tol_permille", int(round(1000.0 * o["drift_tol"])), "baseline tracking bounded to +-%.3f" % o["drift_tol"])
+    put("drift_step_q8", int(round(256000.0 * o["drift_rate_per_min"] * block_ms / 60000.0)),
+        "baseline tracking beyond 2 standard errors of the learned baseline moves at most %.4f a minute" % o["drift_rate_per_min"])
     put("mass_window_ms", int(round(1000.0 * o["mass_window_s"])), "implied mass averaged over %.0f s of steady flight"
         % o["mass_window_s"])
     put("mass_windows", int(o["mass_windows"]), "windows in a row above the limit for mass_high")
