@@ -1,7 +1,9 @@
 """Sensor and column setup checks on a bench sweep that other checks would refuse with the
 wrong cause (sixth new-user trial, item 4): a current sensor reading backwards, the voltage
 and current columns swapped, percent data labelled permille; and the unit checks of every column
-(check_units: values that do not fit their unit label, e.g. mV labelled V).
+(check_units: values that do not fit their unit label, e.g. mV labelled V). Also the thrust and
+current columns swapped (ninth new-user trial, finding 3: check_power_convex, judged on the
+command levels: power concave in thrust).
 
 Each is judged from the data alone, from what a real sweep cannot do (common practice on any
 bench): the bus voltage never rises several-fold as the command rises (a supply sags under
@@ -25,6 +27,15 @@ CURRENT_RISE_MIN = 1.2
 NEGATIVE_SHARE = 0.5
 # a command[permille] column that never exceeds this many permille is likely percent [permille]
 PERMILLE_AS_PERCENT_MAX = 100.0
+# the power-per-thrust slopes are taken between the median points of three thrust bands, shares of
+# the sweep's top thrust (levels.confirmed_top): (0.1, 0.4], (0.4, 0.7], (0.7, ...) [-]
+CONVEX_BANDS = (0.1, 0.4, 0.7)
+# power is judged concave in thrust when the upper slope is below this share of the lower one:
+# at 1 the two slopes are equal (a straight line). A rotor's power rises as thrust^1.5 (momentum
+# theory) or faster (copper losses), a ratio of 1.2..1.5 on the randomised truths of
+# tests/truth_rotor.py (150 seeds: lowest 1.23); thrust and current swapped make power go as
+# "thrust"^(2/3) or slower, a ratio of about 0.73 (the trial's octo sweep) [-]
+CONVEX_SLOPE_RATIO = 1.0
 
 
 def _quarters(command, column):
@@ -53,6 +64,58 @@ def check_voltage_current_swapped(path, command, voltage_V, current_A):
                          "commands, %.3g V in the highest) while current does not (%.3g A, %.3g A): the "
                          "voltage and current columns look swapped; check the header's order against the "
                          "data" % (path, v[0], v[1], i[0], i[1]))
+
+
+def power_slope_ratio(levels):
+    """(upper slope / lower slope, the three bands' median (thrust [N], power [W])) of power
+    against thrust over the command levels (dict thrust_N [N], power_W [W]): the slopes between
+    the median points of the CONVEX_BANDS thrust bands; None when a band is empty or the lower
+    slope is not positive (too short a sweep to judge)."""
+    from estimator.bench.levels import confirmed_top
+
+    t, p = np.asarray(levels["thrust_N"], dtype=float), np.asarray(levels["power_W"], dtype=float)
+    if t.size < 3:
+        return None
+    top = confirmed_top(t)
+    if not top > 0.0:
+        return None
+    x = t / top
+    lo, mid, hi = CONVEX_BANDS
+    points = []
+    for band in ((x > lo) & (x <= mid), (x > mid) & (x <= hi), x > hi):
+        if not np.any(band):
+            return None
+        points.append((float(np.median(t[band])), float(np.median(p[band]))))
+    (t1, p1), (t2, p2), (t3, p3) = points
+    if not (t2 > t1 and t3 > t2):
+        return None
+    lower, upper = (p2 - p1) / (t2 - t1), (p3 - p2) / (t3 - t2)
+    if not lower > 0.0:
+        return None
+    return upper / lower, points
+
+
+def check_power_convex(path, levels, thrust_unit="N"):
+    """Refuse a sweep whose power is concave in thrust: the slope of power against thrust in the
+    upper band of thrust below CONVEX_SLOPE_RATIO times the slope in the lower band
+    (power_slope_ratio). A rotor's power grows as thrust^1.5 by momentum theory (ideal
+    induced power P = T^1.5 / sqrt(2 rho A); Glauert; Leishman, Principles of Helicopter
+    Aerodynamics, 2006, ch. 2, from memory), faster with the motor's copper losses (I^2 R);
+    thrust and current columns swapped give power as "thrust"^(2/3) or slower.
+    levels: estimator.bench.levels.command_levels output (thrust_N [N], power_W [W])."""
+    from estimator.bench.wording import thrust_text
+
+    found = power_slope_ratio(levels)
+    if found is None or found[0] >= CONVEX_SLOPE_RATIO:
+        return
+    ratio, ((t1, p1), (t2, p2), (t3, p3)) = found
+    raise InputError("%s: power is concave in thrust over the sweep, rising ever more slowly (%.4g W at %s, %.4g W at %s, "
+                     "%.4g W at %s: %.2f times the power per unit thrust in the upper band as in the "
+                     "lower one), which no rotor does (power grows as thrust^1.5 by momentum theory, "
+                     "faster with motor losses): thrust and current columns swapped? check the "
+                     "header's order against the data"
+                     % (path, p1, thrust_text(t1, thrust_unit), p2, thrust_text(t2, thrust_unit), p3,
+                        thrust_text(t3, thrust_unit), ratio))
 
 
 def check_current_sign(path, negative_rows, finite_rows, current_A):

@@ -110,10 +110,15 @@ def fit_text(params, out_file, warnings, columns, thrust_to_weight_words=None):
     return fit_width("\n".join(lines))
 
 
+# a value with its error is shown to at most this many significant digits: an error far below it
+# ('2.000000000 +- 0.000000035', new-user trial 9, finding 3) is then quoted as a bound [-]
+MAX_DIGITS = 4
+
+
 def _pm(value, se, why_none):
     """'value +- error' with matching digits, or 'value (why_none)' for a value without a
     fitted error (held, taken from the motor model, or given): never a false '+- 0'."""
-    text, error = value_and_error(value, se, 3)
+    text, error = value_and_error(value, se, 3, MAX_DIGITS)
     if error:
         return "%s +- %s" % (text, error)
     return "%.3f (%s)" % (value, why_none)
@@ -121,7 +126,7 @@ def _pm(value, se, why_none):
 
 def _exponent_text(value, se, why):
     """'value +- error (why)', or 'value (why; no error bar)' when there is none."""
-    text, error = value_and_error(value, se, 3)
+    text, error = value_and_error(value, se, 3, MAX_DIGITS)
     return "%s +- %s (%s)" % (text, error, why) if error else "%.3f (%s; no error bar)" % (value, why)
 
 

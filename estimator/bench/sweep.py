@@ -23,6 +23,7 @@ from estimator.bench.levels import command_levels
 from estimator.bench.load_cell import check_thrust_sign, tare_note, tare_offset, tare_warning
 from estimator.bench.motor_fit import DUTY_INDEX, fit_motor_model
 from estimator.bench.power_fit import MAD_ROWS, check_static_factor, fit_power
+from estimator.bench.sensor_checks import check_power_convex
 from estimator.bench.wording import extrapolation_refusal, fit_warnings
 from estimator.params import build_params
 
@@ -152,6 +153,7 @@ def _fit_bench(data, source, voltage_exponent):
         warnings.append(tare_note(offset_N, thrust_unit))
     elif tare is not None:
         warnings.append(tare_warning(lv, thrust_unit))
+    check_power_convex(source, lv, thrust_unit)
     check_static_factor(source, t, p, rho, area, thrust_unit, data.get("current_unit", "A"), warnings)
     lv["current_A"] = lv["power_W"] / lv["voltage_V"]
     check_rising(lv, source)

