@@ -112,3 +112,53 @@ def test_exponents_are_quoted_to_the_digits_their_error_allows():
     assert value_and_error(1873.3, 7.019) == ("1873.3", "7.0")
     assert value_and_error(1873.3, 7.019, 4, 4) == ("1873", "7")
     assert value_and_error(1873.3, 0.3, 4, 4) == ("1873", "below 1")
+
+
+# --- finding 2: a load-cell offset judged against the hover thrust and the cell's scatter ----
+# The sweeps come from the invented 10in 6S rotor of test_fit_tare_trial8 (its own DC motor +
+# fixed-coefficient propeller model: any electric-machines text; McCormick, from memory), top
+# thrust 3580 g, 4 g row noise; its vehicle (1.6 kg, 4 rotors) hovers at 392 g per rotor.
+
+def test_an_offset_below_1_5_percent_of_top_thrust_but_8_percent_of_hover_is_taken_off(tmp_path):
+    from test_fit_tare_trial8 import _fit, _sweep
+    clean, _ = _fit(tmp_path, "zeroed", _sweep(0.0))
+    # 45 g: 1.3 % of the top thrust (the old rule's 1.5 % let it pass as thrust), 11 % of the
+    # hover thrust, about 25 times the standard error of 6 standing rows of 4 g noise
+    tared, text = _fit(tmp_path, "tare45", _sweep(45.0))
+    for key in ("hover_command", "power_W", "current_A", "flight_time_min"):
+        assert tared["hover"][key] == pytest.approx(clean["hover"][key], rel=0.01), key
+    assert tared["fit_quality"]["thrust_offset_removed_N"] == pytest.approx(0.045 * 9.80665, abs=0.005 * 9.80665)
+    said = [w for w in tared["warnings"] if "zero offset" in w]
+    assert len(said) == 1 and "of the hover thrust per rotor" in said[0], said
+    assert not any("zero offset" in w or "not zeroed" in w for w in clean["warnings"])
+
+
+def test_negative_thrust_at_rest_is_always_named(tmp_path):
+    from test_fit_tare_trial8 import _fit, _sweep
+    clean, _ = _fit(tmp_path, "zeroed", _sweep(0.0))
+    # -20 g: 0.6 % of the top thrust, 5 % of the hover thrust: a cell zeroed low
+    low, text = _fit(tmp_path, "low20", _sweep(-20.0))
+    said = [w for w in low["warnings"] if "zero offset" in w]
+    assert len(said) == 1 and "negative thrust with the rotor at rest" in said[0], low["warnings"]
+    assert low["fit_quality"]["thrust_offset_removed_N"] == pytest.approx(-0.020 * 9.80665, abs=0.005 * 9.80665)
+    for key in ("hover_command", "power_W", "flight_time_min"):
+        assert low["hover"][key] == pytest.approx(clean["hover"][key], rel=0.01), key
+
+
+def test_an_offset_inside_the_cells_scatter_is_not_spoken_of(tmp_path):
+    from test_fit_tare_trial8 import _fit, _sweep
+    # 1 g on 4 g row noise over 6 standing rows: 0.6 standard errors, noise
+    small, _ = _fit(tmp_path, "tare1", _sweep(1.0))
+    assert not any("zero offset" in w or "not zeroed" in w for w in small["warnings"]), small["warnings"]
+    assert "thrust_offset_removed_N" not in small["fit_quality"]
+
+
+def test_without_a_vehicle_the_offset_is_judged_against_a_low_hover_share():
+    # no vehicle: hover taken as HOVER_SHARE_LOW (0.2, thrust-to-weight 5, common practice) of
+    # the top thrust; 45 g is 6 % of that 716 g
+    from estimator.bench.reader import read_bench_text
+    from estimator.bench.sweep import fit_bench
+    from test_fit_tare_trial8 import _sweep
+    p = fit_bench(read_bench_text(_sweep(45.0)), "tare45.csv")
+    said = [w for w in p["warnings"] if "zero offset" in w]
+    assert len(said) == 1 and "thrust-to-weight 5" in said[0], p["warnings"]

@@ -20,7 +20,7 @@ from estimator.errors import InputError
 from estimator.core.momentum import disk_area_m2
 from estimator.bench.curve_fit import check_rising, fit_curve
 from estimator.bench.levels import command_levels
-from estimator.bench.load_cell import check_thrust_sign, tare_note, tare_offset, tare_warning
+from estimator.bench.load_cell import check_thrust_sign, tare_context, tare_note, tare_offset, tare_warning
 from estimator.bench.motor_fit import DUTY_INDEX, fit_motor_model
 from estimator.bench.power_fit import MAD_ROWS, check_static_factor, fit_power
 from estimator.bench.sensor_checks import check_power_convex
@@ -37,14 +37,17 @@ SweepFit = namedtuple("SweepFit", "params rows columns")
 
 
 def fit_sweep(path, diameter_m=None, default_diameter_m=None, density_kg_m3=None, altitude_m=None,
-              temperature_C=None, pressure_Pa=None, humidity_pct=None, voltage_exponent=None):
+              temperature_C=None, pressure_Pa=None, humidity_pct=None, voltage_exponent=None,
+              hover_thrust_N=None):
     """Fit a bench CSV: a SweepFit (the parameter-set dict, not yet written, see
     params.write_params; the rows for a plot; the columns read).
 
     path: bench CSV; diameter_m: propeller diameter [m] (else ``# diameter:``, else
     default_diameter_m, e.g. the vehicle's propeller); density_kg_m3 [kg/m^3] / altitude_m [m] /
     temperature_C [C] / pressure_Pa [Pa]
-    / humidity_pct [%]: bench air overriding the file; voltage_exponent: fix n [-].
+    / humidity_pct [%]: bench air overriding the file; voltage_exponent: fix n [-];
+    hover_thrust_N: the vehicle's weight per rotor [N], what a load-cell offset is judged against
+    (estimator.bench.load_cell.tare_offset; None: a share of the top thrust).
     Raises InputError on bad or impossible data.
     """
     from estimator.bench.reader import read_bench
@@ -57,7 +60,7 @@ def fit_sweep(path, diameter_m=None, default_diameter_m=None, density_kg_m3=None
     if data["diameter_m"] is None:
         raise InputError("%s: the propeller diameter is needed for the static thrust factor; "
                          "add '# diameter: 10in' to the CSV, or pass --diameter or --vehicle" % path)
-    params, rows = _fit_or_refuse(data, path, voltage_exponent)
+    params, rows = _fit_or_refuse(data, path, voltage_exponent, hover_thrust_N)
     return SweepFit(params, rows, data["columns"])
 
 
@@ -66,18 +69,18 @@ def fit_bench_file(path, **options):
     return fit_sweep(path, **options).params
 
 
-def fit_bench(data, source, voltage_exponent=None):
+def fit_bench(data, source, voltage_exponent=None, hover_thrust_N=None):
     """Fit the arrays returned by estimator.bench.read_bench; the parameter-set dict."""
-    return _fit_or_refuse(data, source, voltage_exponent)[0]
+    return _fit_or_refuse(data, source, voltage_exponent, hover_thrust_N)[0]
 
 
-def _fit_or_refuse(data, source, voltage_exponent):
+def _fit_or_refuse(data, source, voltage_exponent, hover_thrust_N=None):
     """(parameter set, Rows). Floating-point trouble on pathological data (overflow, a
     singular system) becomes an InputError: the sweep cannot be fitted, and nothing is written.
     """
     try:
         with np.errstate(all="ignore"):
-            params, rows = _fit_bench(data, source, voltage_exponent)
+            params, rows = _fit_bench(data, source, voltage_exponent, hover_thrust_N)
     except (np.linalg.LinAlgError, FloatingPointError, OverflowError, ZeroDivisionError,
             ValueError) as exc:
         raise InputError("%s: the sweep cannot be fitted (%s); check that command, voltage, "
@@ -133,7 +136,7 @@ def start_standard_error(motor, command, both_ways):
     return math.sqrt(max(var, 0.0) + h * h / 12.0 + lag * lag)
 
 
-def _fit_bench(data, source, voltage_exponent):
+def _fit_bench(data, source, voltage_exponent, hover_thrust_N=None):
     """The pipeline (module docstring): (parameter set, Rows)."""
     rho = data["bench_air"]["density_kg_m3"]
     area = disk_area_m2(data["diameter_m"])
@@ -143,16 +146,18 @@ def _fit_bench(data, source, voltage_exponent):
     check_thrust_sign(source, t, p, thrust_unit)
     v_span = data.get("voltage_span_V") or (float(np.min(v)), float(np.max(v)))
     lv = command_levels(u, v, t, p, v_span)
-    tare, offset_N = tare_offset(lv), 0.0
+    tare, offset_N = tare_offset(lv, t, hover_thrust_N), 0.0
     if tare is not None and tare[2]:
         # the rotor stood still at a flat offset: the cell's zero, taken off every row (new-user
-        # trial 8, finding 1: kept as thrust it promised 20 % more endurance)
+        # trial 8, finding 1: kept as thrust it promised 20 % more endurance; trial 9, finding 2:
+        # judged against the hover thrust and the cell's scatter, not the top thrust)
         offset_N = tare[0]
+        context = tare_context(offset_N, tare[3], thrust_unit)
         t = t - offset_N
         lv = command_levels(u, v, t, p, v_span)
-        warnings.append(tare_note(offset_N, thrust_unit))
+        warnings.append(tare_note(offset_N, thrust_unit, context))
     elif tare is not None:
-        warnings.append(tare_warning(lv, thrust_unit))
+        warnings.append(tare_warning(lv, thrust_unit, t, hover_thrust_N))
     check_power_convex(source, lv, thrust_unit)
     check_static_factor(source, t, p, rho, area, thrust_unit, data.get("current_unit", "A"), warnings)
     lv["current_A"] = lv["power_W"] / lv["voltage_V"]

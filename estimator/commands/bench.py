@@ -13,13 +13,22 @@ from estimator.names import shown
 from estimator.jsonio import dumps
 
 
+def hover_thrust_N(vehicle):
+    """The vehicle's weight per rotor [N] (mass_kg [kg] x standard gravity / rotor count): the
+    hover thrust a load-cell offset is judged against (estimator.bench.load_cell.tare_offset)."""
+    from estimator.core.constants import STANDARD_GRAVITY_M_S2
+
+    return vehicle["mass_kg"] * STANDARD_GRAVITY_M_S2 / vehicle["rotors"]["count"]
+
+
 def fit_for_vehicle(bench_file, vehicle, **fit_options):
     """Fit a bench CSV and add a vehicle's hover values (fit_sweep's options); the parameter
     set, complete and checked (params.complete_set)."""
     from estimator.bench.sweep import fit_bench_file
     from estimator.params import complete_set
 
-    params = fit_bench_file(bench_file, default_diameter_m=vehicle["propeller"]["diameter_m"], **fit_options)
+    params = fit_bench_file(bench_file, default_diameter_m=vehicle["propeller"]["diameter_m"],
+                            hover_thrust_N=hover_thrust_N(vehicle), **fit_options)
     return complete_set(params, bench_file, vehicle, vehicle_hover(params, vehicle)[1], bench_file)
 
 
@@ -106,7 +115,8 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     fitted = fit_sweep(bench_file, diameter_m=diameter, density_kg_m3=density, altitude_m=altitude,
                        temperature_C=temperature, pressure_Pa=pressure, humidity_pct=humidity,
                        voltage_exponent=voltage_exponent,
-                       default_diameter_m=vehicle and vehicle["propeller"]["diameter_m"])
+                       default_diameter_m=vehicle and vehicle["propeller"]["diameter_m"],
+                       hover_thrust_N=vehicle and hover_thrust_N(vehicle))
     report = hover = None
     if vehicle is not None:
         report, hover = vehicle_hover(fitted.params, vehicle)
