@@ -193,6 +193,17 @@ def _data_lines(path, fh, skip):
                 yield line_no, piece
 
 
+def data_line_number(path, skip, index):
+    """The line number (from 1) of the data row ``index`` (from 0) after ``skip`` lines, counted
+    as every reader here counts rows (_data_lines: comments and blank lines left out); None
+    past the end. Read only when a message needs to name a row."""
+    with open(path, "rb") as fh:
+        for i, (line_no, _) in enumerate(_data_lines(path, fh, skip)):
+            if i == index:
+                return line_no
+    return None
+
+
 class Table:
     """A CSV read by read_table: ``head`` (Head), ``columns`` {name: (index, unit)},
     ``values`` {name: list of floats as written, not converted}, ``rows`` (number of data

@@ -162,3 +162,44 @@ def test_without_a_vehicle_the_offset_is_judged_against_a_low_hover_share():
     p = fit_bench(read_bench_text(_sweep(45.0)), "tare45.csv")
     said = [w for w in p["warnings"] if "zero offset" in w]
     assert len(said) == 1 and "thrust-to-weight 5" in said[0], p["warnings"]
+
+
+# --- finding 12: a bench time column running backwards ---------------------------------------
+
+def _with_time(tmp_path, name, times, unit="s", blank_row=None):
+    from test_fit_tare_trial8 import _sweep
+    lines = _sweep(0.0).splitlines()
+    out, k = [], 0
+    for line in lines:
+        if line.startswith("command["):
+            line = "time[%s]," % unit + line
+        elif line[:1].isdigit():
+            line = "%s,%s" % ("" if k == blank_row else "%g" % times[k], line)
+            k += 1
+        out.append(line)
+    path = tmp_path / (name + ".csv")
+    path.write_text("\n".join(out) + "\n")
+    return path, k
+
+
+@pytest.mark.parametrize("unit,blank", [("s", None), ("ms", None), ("s", 3)])
+def test_time_running_back_is_one_warning_naming_its_first_line(tmp_path, unit, blank):
+    from test_fit_tare_trial8 import _sweep
+    n = sum(1 for line in _sweep(0.0).splitlines() if line[:1].isdigit())
+    times = list(np.arange(n, dtype=float) * (1000.0 if unit == "ms" else 1.0))
+    times[40] = times[39] - (500.0 if unit == "ms" else 0.5)  # the clock steps back once, at data row 41
+    path, _ = _with_time(tmp_path, "back", times, unit, blank)
+    code, out, err = run(["fit", path, "--out", tmp_path / "p.json"])
+    assert code == 0, err
+    said = [line for line in out.replace("\n  ", " ").splitlines() if "goes back" in line]
+    # 4 lines above the data (3 comments, the header): data row 41 is line 45
+    assert len(said) == 1 and "line 45: time" in said[0] and "1 row where time falls" in said[0], out
+
+
+def test_time_rising_or_repeating_says_nothing(tmp_path):
+    from test_fit_tare_trial8 import _sweep
+    n = sum(1 for line in _sweep(0.0).splitlines() if line[:1].isdigit())
+    times = [float(i // 3) for i in range(n)]  # three rows a second: repeats are ordinary
+    path, _ = _with_time(tmp_path, "rising", times)
+    code, out, err = run(["fit", path, "--out", tmp_path / "p.json"])
+    assert code == 0 and "goes back" not in out, err

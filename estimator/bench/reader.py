@@ -96,6 +96,31 @@ def _hot_motor(columns, extra, cols, extremes):
     return HOT_MOTOR % ("temperature[%s]" % columns["temperature"][1], top, HOT_MOTOR_C)
 
 
+def _time_back(path, header_line, time_s, unit):
+    """A warning (str) naming the first row where the bench's time column goes back, in the
+    flight-log reader's words (estimator.watch.log_checks.check_time), else None. The fit does
+    not use time, so a sweep whose time runs backwards is fitted, but rows sorted or merged
+    out of order may not be the sweep that was run. time_s: the column in SI [s]; unit: as
+    written (s or ms)."""
+    import numpy as np
+
+    from estimator.csvtable import TIME_UNITS, data_line_number
+
+    t = np.asarray(time_s, dtype=float)
+    with np.errstate(invalid="ignore"):
+        back = t[1:] < t[:-1]  # a missing reading (NaN) compares False: never counted
+    n = int(np.count_nonzero(back))
+    if not n:
+        return None
+    i = int(np.argmax(back)) + 1
+    scale = TIME_UNITS[unit][0]
+    line = data_line_number(path, header_line, i)
+    return ("%s: line %s: time %.6g %s goes back (after %.6g %s); %d row%s where time falls - rows "
+            "sorted, merged or logged by a restarted clock? The fit does not use time, so it goes on; "
+            "check that the rows are the sweep that was run"
+            % (path, line, t[i] / scale, unit, t[i - 1] / scale, unit, n, "" if n == 1 else "s"))
+
+
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
                pressure_Pa=None, humidity_pct=None):
     """Read a bench CSV into SI arrays and apply the row checks.
@@ -123,12 +148,16 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     cols, extremes, digest = load_numbers(
         path, header_line, ncols, [columns[name][0] for name in REQUIRED + tuple(extra)],
         [UNITS[name][units[name]] for name in REQUIRED] + [OPTIONAL[n][columns[n][1]] for n in extra],
-        kept=len(REQUIRED))
+        kept=len(REQUIRED) + (1 if "time" in extra else 0))  # time is OPTIONAL's first
     data = {name: col for name, col in zip(REQUIRED, cols)}
     data["optional"] = cols[len(REQUIRED):]  # none when every value is finite: nothing to drop
     hot = _hot_motor(columns, extra, cols, extremes)
     if hot:
         warnings.append(hot)
+    if "time" in extra:
+        back = _time_back(path, header_line, cols[len(REQUIRED)], columns["time"][1])
+        if back:
+            warnings.append(back)
     extremes = extremes[:len(REQUIRED)] if extremes is not None else None
     data.update({name + "_unit": units[name] for name in REQUIRED})
     del cols
