@@ -34,6 +34,18 @@ COLD_PACK = ("cold pack (%.0f C): warm it to room temperature before take-off an
              "then; a cold lithium pack gives less capacity (about %.0f %% here) and sags more under "
              "load, so land early and watch the voltage")
 
+# the pack temperature [C] (the battery's, else the site's) above which the sheet cautions about a
+# hot pack: about 40 C is where lithium packs age faster and lose headroom to their makers' limits
+# (common practice; the maker's own limits come first)
+HOT_PACK_ABOVE_C = 40.0
+# a pack or site above HOT_PACK_ABOVE_C (sheet warning; "pack" or "site", the hotter of the two
+# temperatures [C] and the threshold [C] are filled in)
+HOT_PACK = ("hot %s (%.0f C, above about %.0f C, common practice): keep packs shaded, do not charge a "
+            "hot pack (let it cool first), and stay below the pack maker's temperature limit; a pack "
+            "heats further under load, so check it after each flight")
+# the same under a compare row ("pack" or "site" and its temperature [C] filled in)
+HOT_PACK_SHORT = "hot %s (%.0f C): keep packs shaded, do not charge them hot; see below"
+
 # the bell temperature [C] above which an ordinary hobby motor's magnets and winding enamel
 # begin to suffer (common practice, from memory; high-temperature motors are rated higher)
 HOT_MOTOR_C = 80.0

@@ -89,3 +89,28 @@ def cold_pack_warning(report):
     if temperature is None or temperature >= COLD_PACK_BELOW_C:
         return None
     return COLD_PACK % (temperature, 100.0 * (report.get("pack_capacity_factor") or 1.0))
+
+
+def hot_pack_heat(report):
+    """("pack" or "site", its temperature [C]) when the pack or the site air is above
+    estimator.cautions.HOT_PACK_ABOVE_C (about 40 C, common practice), the hotter of the two; else
+    None. A pack kept cool on a hot site still needs shade, so the site counts too."""
+    from estimator.cautions import HOT_PACK_ABOVE_C
+
+    pack = report.get("pack_temperature_C")
+    air_K = report.get("temperature_K")
+    site = None if air_K is None else air_K - CELSIUS_ZERO_K
+    heats = [(t, what) for t, what in ((pack, "pack"), (site, "site")) if t is not None and t > HOT_PACK_ABOVE_C]
+    if not heats:
+        return None
+    t, what = max(heats, key=lambda h: (h[0], h[1] == "pack"))   # the pack's own on a tie
+    return what, t
+
+
+def hot_pack_warning(report):
+    """The sheet's hot-pack caution (estimator.cautions.HOT_PACK) or None when neither the pack nor
+    the site is above estimator.cautions.HOT_PACK_ABOVE_C (hot_pack_heat)."""
+    from estimator.cautions import HOT_PACK, HOT_PACK_ABOVE_C
+
+    heat = hot_pack_heat(report)
+    return None if heat is None else HOT_PACK % (heat[0], heat[1], HOT_PACK_ABOVE_C)

@@ -249,6 +249,10 @@ def margin_warnings(report, command_unit="-"):
     cold = cold_pack_warning(report)
     if cold is not None:
         out.append(cold)
+    from estimator.preflight.pack import hot_pack_warning
+    hot = hot_pack_warning(report)
+    if hot is not None:
+        out.append(hot)
     ratio = report.get("density_ratio")
     if ratio is not None and ratio < THIN_AIR_DENSITY_RATIO:
         out.append("thin air: %.3f kg/m^3 is %.0f %% of sea-level standard (density altitude %.0f m): "
