@@ -179,7 +179,7 @@ def test_hover_with_params_uses_the_fitted_flow():
     (("static", "--diameter", "10in", "--power", "70", "--density", "1225"), ("--density", "0.25..1.8 kg/m^3")),
     (("static", "--diameter", "10in", "--power", "70", "--factor", "30"),
      ("--factor", "above 1", "did you mean 0.3 (a fraction, not 30 %)?")),
-    (("static", "--diameter", "10in", "--power", "70", "--altitude", "1013", "--pressure", "1013"),
+    (("static", "--diameter", "10in", "--power", "70", "--altitude", "1013m", "--pressure", "1013"),
      ("--pressure", "1013hPa")),
 ])
 def test_implausible_numbers_are_refused_with_the_bound_and_the_slip(args, needles):

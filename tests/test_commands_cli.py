@@ -40,7 +40,7 @@ def one_json(res):
 
 
 def test_air_json_matches_the_1976_standard_at_sea_level(tmp_path):
-    res = invoke(tmp_path, "air", "--altitude", "0", "--json")
+    res = invoke(tmp_path, "air", "--altitude", "0m", "--json")
     out = one_json(res)
     # US Standard Atmosphere 1976, sea level: 1.225 kg/m^3, 288.15 K, 101325 Pa (table values)
     assert out["density_kg_m3"] == pytest.approx(1.225, rel=1e-4)

@@ -133,7 +133,7 @@ def test_payload_table_columns_stay_aligned_with_a_long_thrust_to_weight(tmp_pat
 def test_digits_of_resistance_pressure_and_long_endurance(tmp_path):
     text = " ".join(_ok("hover", _file(tmp_path, QUAD)).split())
     assert "pack resistance 30 mohm" in text and "0.03 ohm" not in text
-    air = _ok("air", "--altitude", "0m", "--temperature", "-5")
+    air = _ok("air", "--altitude", "0m", "--temperature", "-5C")
     assert "101325 Pa (1013.25 hPa)" in air  # standard sea-level pressure (ICAO)
 
 

@@ -58,3 +58,47 @@ def test_the_hot_caution_lives_in_cautions():
 
     assert cautions.HOT_PACK_ABOVE_C == HOT_ABOVE_C
     assert "shaded" in cautions.HOT_PACK and "maker's temperature limit" in cautions.HOT_PACK
+
+
+# --- finding 8: a bare --altitude or --temperature is refused, as in a vehicle file's site -----
+
+@pytest.mark.parametrize("args, option, units", [
+    (("air", "--altitude", "5000"), "--altitude", "5000m or 5000ft"),
+    (("static", "--diameter", "10in", "--power", "70W", "--altitude", "5000"), "--altitude", "5000m or 5000ft"),
+    (("air", "--temperature", "30"), "--temperature", "30C or 86F"),
+    (("static", "--diameter", "10in", "--power", "70W", "--temperature", "-5"), "--temperature", "30C or 86F"),
+])
+def test_a_bare_site_quantity_is_refused_naming_the_units(args, option, units, capsys):
+    # through main, as the console script runs it: one error line, exit 2, nothing on stdout
+    from estimator.cli import main
+
+    with pytest.raises(SystemExit) as exc:
+        main(list(args))
+    out, err = capsys.readouterr()
+    assert exc.value.code == 2 and out == "" and err.count("\n") == 1 and err.startswith("error: "), err
+    assert option in err and "has no unit" in err and units in err and "Traceback" not in err
+
+
+def test_the_same_values_with_units_are_read_in_them():
+    # US Standard Atmosphere 1976 (table, from memory): 1524 m (5000 ft, 1 ft = 0.3048 m exactly,
+    # NIST SP 811) 1.0556 kg/m^3; 5000 m 0.7364 kg/m^3
+    ft = json.loads(ok("air", "--altitude", "5000ft", "--json"))
+    m = json.loads(ok("air", "--altitude", "5000m", "--json"))
+    assert ft["density_kg_m3"] == pytest.approx(1.0556, rel=1e-3)
+    assert m["density_kg_m3"] == pytest.approx(0.7364, rel=1e-3)
+    hot = json.loads(ok("air", "--temperature", "86F", "--json"))
+    assert hot["temperature_K"] == pytest.approx(303.15, abs=1e-9)  # 86 F = 30 C (definition)
+
+
+def test_the_readme_and_help_use_units_for_the_site():
+    import os
+    import re
+
+    from io_helpers import ROOT
+
+    with open(os.path.join(ROOT, "README.md"), encoding="utf-8") as fh:
+        readme = fh.read()
+    assert not re.search(r"--(altitude|temperature)[ =]-?[0-9.]+(\s|$|`)", readme)
+    for command in ("air", "static"):
+        helptext = " ".join(ok(command, "--help").split())
+        assert not re.search(r"--(altitude|temperature)[ =]-?[0-9.]+(\s|$)", helptext)

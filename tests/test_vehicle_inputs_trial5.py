@@ -72,7 +72,7 @@ def test_air_warns_on_a_temperature_far_from_the_standard_atmosphere(altitude_m)
         temperature = t_std + offset
         if temperature < -60.0 or temperature > 50.0:
             continue  # beyond the air command's own bounds, -60..50 C (schemas/vehicle.schema.json, site)
-        out = json.loads(ok("air", "--altitude", "%gm" % altitude_m, "--temperature", "%.3f" % temperature,
+        out = json.loads(ok("air", "--altitude", "%gm" % altitude_m, "--temperature", "%.3fC" % temperature,
                               "--json"))
         assert bool(out["warnings"]) == warned, (altitude_m, temperature, out["warnings"])
         if warned:
@@ -86,7 +86,7 @@ def test_the_trial_site_30_C_at_9000_m_is_flagged_on_the_sheet(tmp_path):
     sheet = " ".join(ok("hover", _file(tmp_path, doc)).split())
     # standard atmosphere at 9000 m: -43.4 C (ambiance, ICAO), so 30 C is 73 K above it
     assert "! site temperature 30.0 C at 9000 m is 73 K above the standard atmosphere's -43.4 C" in sheet
-    text = ok("air", "--altitude", "9000m", "--temperature", "30")
+    text = ok("air", "--altitude", "9000m", "--temperature", "30C")
     assert "! site temperature 30.0 C at 9000 m" in " ".join(text.split())
 
 

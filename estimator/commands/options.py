@@ -24,14 +24,8 @@ class Quantity(click.ParamType):
     def convert(self, value, param, ctx):
         if isinstance(value, float):
             return value
-        if self.unit_example is not None:
-            try:
-                float(str(value))
-            except ValueError:
-                pass
-            else:
-                self.fail("%r has no unit; write it with one, e.g. %s" % (value, self.unit_example),
-                          param, ctx)
+        if self.unit_example is not None and _bare(value):
+            self.fail_bare(value, param, ctx)
         # click's message already names the option: "Invalid value for '--diameter': ..."
         try:
             si = parse_quantity(value, self.kind, "")
@@ -42,6 +36,20 @@ class Quantity(click.ParamType):
         if self.positive and not si > 0:
             self.fail("must be above zero, got %r" % (value,), param, ctx)
         return si
+
+
+    def fail_bare(self, value, param, ctx):
+        """Refuse a bare number for a kind whose unit is required (unit_example)."""
+        self.fail("%r has no unit; write it with one, e.g. %s" % (value, self.unit_example), param, ctx)
+
+
+def _bare(value):
+    """True when an option's text is a plain number without a unit ('5000', '-5')."""
+    try:
+        float(str(value))
+    except ValueError:
+        return False
+    return True
 
 
 class _FileNameType(click.ParamType):
@@ -110,14 +118,26 @@ class Bounded(Quantity):
     """A Quantity that also refuses values outside the sensible bounds of ``quantity``.
 
     The bounds live in schemas/vehicle.schema.json (estimator.vehicle.QUANTITIES); a bare
-    number outside them gets the likely unit slip named ("10 m: did you mean 10in?").
+    number outside them gets the likely unit slip named ("10 m: did you mean 10in?");
+    ``unit_example`` refuses a bare number altogether (Quantity).
     """
 
-    def __init__(self, kind, quantity, positive=False):
-        Quantity.__init__(self, kind, positive)
+    def __init__(self, kind, quantity, positive=False, unit_example=None):
+        Quantity.__init__(self, kind, positive, unit_example)
         self.quantity = quantity
 
     def convert(self, value, param, ctx):
+        if self.unit_example is not None and not isinstance(value, float) and _bare(value):
+            # a bare number outside the bounds gets its likely unit slip named first
+            # ("12000 m: did you mean 12000ft?"), any other the units it needs
+            from estimator.vehicle import check_quantity
+
+            what = param.opts[0] if param is not None and param.opts else None
+            si = float(str(value))
+            if si - si != 0.0:  # nan, 1e999
+                self.fail("%r is not a finite number" % (value,), param, ctx)
+            check_quantity(self.quantity, parse_quantity(value, self.kind, ""), str(value), what)
+            self.fail_bare(value, param, ctx)
         si = Quantity.convert(self, value, param, ctx)
         if si is not None:
             from estimator.vehicle import check_quantity

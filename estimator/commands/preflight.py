@@ -65,10 +65,14 @@ def _air(altitude_m, temperature_C, pressure_Pa, humidity_pct):
 def site_options(note):
     """The four options that describe the air at a site, shared by ``air`` and ``static``."""
     options = [
-        click.option("--altitude", type=Bounded("altitude", "altitude"), default="0m", show_default=True,
-                     help="Geometric altitude of the site above sea level (m, km, ft)" + note + "."),
-        click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
-                     help="Outside air temperature (C, K, F); default: standard atmosphere" + note + "."),
+        # a bare number is refused, as in a vehicle file's site: 5000 may mean metres or feet, 30 C or F
+        click.option("--altitude", type=Bounded("altitude", "altitude", unit_example="5000m or 5000ft"),
+                     default="0m", show_default=True,
+                     help="Geometric altitude of the site above sea level, with its unit (m, km, ft)" + note + "."),
+        click.option("--temperature", type=Bounded("temperature", "temperature", unit_example="30C or 86F"),
+                     default=None,
+                     help="Outside air temperature, with its unit (C, K, F); default: standard atmosphere"
+                          + note + "."),
         click.option("--pressure", type=StationPressure("pressure", "pressure", positive=True), default=None,
                      help="Station pressure (Pa, hPa, kPa, mbar), not sea-level QNH; default: "
                           "standard" + note + "."),
