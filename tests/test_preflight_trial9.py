@@ -102,3 +102,30 @@ def test_the_readme_and_help_use_units_for_the_site():
     for command in ("air", "static"):
         helptext = " ".join(ok(command, "--help").split())
         assert not re.search(r"--(altitude|temperature)[ =]-?[0-9.]+(\s|$)", helptext)
+
+
+# --- finding 9: an absurd --payload is refused ---------------------------------------------------
+
+# heavy-lift multirotors carry about their own mass at most (common practice, from memory): a
+# payload above 3 times the vehicle's all-up mass is a slip
+PAYLOAD_TIMES_MASS_MAX = 3.0
+
+
+@pytest.mark.parametrize("payload, unit_kg, unit", [("0..1e9kg", 1.0, "kg"), ("0,1e9kg", 1.0, "kg"),
+                                                    ("0..7kg", 1.0, "kg"),
+                                                    ("0..1000lb", 0.45359237, "lb")])  # NIST SP 811, exact
+def test_an_absurd_payload_is_refused_naming_the_rule(tmp_path, payload, unit_kg, unit):
+    path = _vehicle(tmp_path, 20.0)
+    plot = tmp_path / "payload.png"
+    line = refused("hover", path, "--payload", payload, "--plot", plot)
+    mass_kg = 2.05  # the demo vehicle's all-up mass (estimator.demo.scenario)
+    assert DEMO_VEHICLE["mass_kg"] == mass_kg
+    assert "more than 3 times the vehicle's all-up mass" in line and "common practice" in line
+    assert "up to %.4g %s" % (PAYLOAD_TIMES_MASS_MAX * mass_kg / unit_kg, unit) in line
+    assert not plot.exists()
+
+
+def test_a_payload_up_to_three_times_the_mass_is_still_tabled(tmp_path):
+    path = _vehicle(tmp_path, 20.0)
+    table = ok("hover", path, "--payload", "0..6kg")  # 6 kg < 3 x 2.05 kg
+    assert "\n   6.00 kg    8.05 kg " in table

@@ -245,9 +245,11 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
                 "values may not show here; fit the sweep again rather than editing the set" % params_file)
     payload, unit = None, "kg"
     if payload_text is not None:
-        from estimator.preflight.payload import check_bare_payload, parse_payloads, payload_table
+        from estimator.preflight.payload import (check_bare_payload, check_payload_size, parse_payloads,
+                                                 payload_table)
         payloads, unit = parse_payloads(payload_text)
         check_bare_payload(payload_text, payloads, vehicle["mass_kg"])
+        check_payload_size(payload_text, payloads, vehicle["mass_kg"], unit)
         payload = payload_table(vehicle, payloads, None if job_time is None else job_time / 60.0, params)
         report["payload"] = payload
         report["payload_unit"] = unit

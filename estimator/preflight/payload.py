@@ -300,3 +300,24 @@ def _with_unit(typed, unit):
     if ".." in typed:
         return typed + unit
     return ",".join(p + unit for p in typed.split(","))
+
+
+def check_payload_size(text, payloads_kg, vehicle_mass_kg, unit="kg"):
+    """Refuse a --payload whose largest value is more than PAYLOAD_MASS_RATIO_MAX times the
+    vehicle's all-up mass (new-user trial 9, finding 9: 0..1e9kg printed a table of 'no hover'
+    rows pushed out of line): heavy-lift machines carry about their own mass at most (common
+    practice, from memory), so such a payload is a slip, not a question the table can answer.
+
+    text: the --payload text; payloads_kg: parse_payloads's values [kg]; vehicle_mass_kg: the
+    vehicle's all-up mass [kg]; unit: the mass unit the person typed (parse_payloads), in which
+    the line gives the masses. Raises InputError naming the largest payload allowed.
+    """
+    top = max(payloads_kg) if payloads_kg else 0.0
+    limit = PAYLOAD_MASS_RATIO_MAX * vehicle_mass_kg
+    if top > limit:
+        scale = parse_quantity("1" + unit, "mass")
+        raise InputError("--payload %s: the largest payload, %.4g %s, is more than %g times the vehicle's "
+                         "all-up mass of %.4g %s, more than any multirotor lifts (heavy lifters carry about "
+                         "their own mass, common practice): give payloads up to %.4g %s"
+                         % (shorten(str(text)), top / scale, unit, PAYLOAD_MASS_RATIO_MAX, vehicle_mass_kg / scale,
+                            unit, limit / scale, unit))
