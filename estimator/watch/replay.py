@@ -9,6 +9,7 @@ the kernel, which flags them (sensor_fault) - a log with a glitch is still a log
 are seconds from the log's first row (a logger's clock may count from 1970).
 """
 
+import math
 import sys
 
 from estimator.core.watch_layout import FLAG_BITS
@@ -123,6 +124,9 @@ def run_kernel(flight, config, trace=False, progress=None):
     limit_kg = plan_kg * (1000 + config["mass_limit_permille"]) / 1000.0
     learn_span = [None, None]      # flight time of the learning window: first spin-up .. learned
     mass_last = None               # (the kernel's last implied mass [g], its time [s]) once judged
+    sb = w.data                    # the kernel's outputs and sums (estimator.core.watch)
+    window = window_done = None    # the last mass window's (mean, variance, count); the last one completed
+    mass_check = None              # mass_check's dict for the last completed window
     arrays = {"time_s": [x - t0 for x in t], "power_W": [], "expected_W": [], "flags": [], "residual": [],
               "learn_span": learn_span} if trace else None
     step = max(1, n // 50)
@@ -156,6 +160,12 @@ def run_kernel(flight, config, trace=False, progress=None):
             learn_span[0] = ti - t0
         if w.mass_g:  # 0 until a mass window of steady flight is complete (NamedWatch.mass_g)
             mass_last = (w.mass_g, ti - t0)
+        seen = (sb[21], sb[22], sb[23])
+        if seen != window:
+            window = seen
+            if seen[2]:   # a window completed: judged pooled with the one before, as the kernel does
+                mass_check = mass_margin(window_done, seen, sb[17], config)
+            window_done = seen if seen[2] else None   # a count of 0: the kernel pools no more
         if not learned and w.sigma_permille:
             learned = True
             learn_span[1] = ti - t0
@@ -188,7 +198,35 @@ def run_kernel(flight, config, trace=False, progress=None):
            "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events,
            "flights_s": [round(x / 1000.0, 3) for x in flights], "sensor_fault_s": round(fault_ms / 1000.0, 3)}
     out["mass"] = mass_verdict(mass_last, plan_kg, limit_kg, learned, config)
+    if out["mass"]["judged"] and mass_check is not None:
+        out["mass"].update(alarm_kg=round(plan_kg * (1.0 + mass_check["alarm_permille"] / 1000.0), 4),
+                           margin_kg=round(plan_kg * mass_check["margin_permille"] / 1000.0, 4),
+                           windows_above=mass_check["windows_above"], windows_needed=config["mass_windows"],
+                           mass_alarm=any(e["kind"] == "mass_high" for e in events))
     return out, arrays
+
+
+def mass_margin(before, last, run, cfg):
+    """The implied-mass alarm threshold of the kernel's last completed window (new-user trial 9,
+    finding 6: a replay said the mass was above the alarm limit beside "0 alarms", the margin
+    unsaid). The kernel (estimator.core.watch) raises mass_high when the pooled mean excess ex
+    over the limit share satisfies ex^2 n > var z^2 c (z standard errors, c blocks per
+    independent stretch; CONFIG mass_z2_q8 = 256 z^2 c) in mass_windows windows in a row; this
+    repeats its integer pooling of the window with the one before it.
+
+    before, last: (mean [permille], variance [permille^2], count [blocks]) of the window before
+    (None when not pooled) and of the last one; run: the kernel's count of windows in a row above
+    the threshold; cfg: CONFIG dict. Returns dict margin_permille (z sqrt(c var / n)), alarm_permille
+    (the limit share plus that margin) and windows_above (run)."""
+    mu, var, n = last
+    if before:
+        mu_p, var_p, n_p = before
+        d = (mu - mu_p) // 2
+        var = (var + var_p) // 2 + d * d
+        n = n_p + n
+    margin = math.sqrt(((var >> 4) * cfg["mass_z2_q8"] >> 4) / n) if n else 0.0
+    return {"margin_permille": margin, "alarm_permille": cfg["mass_limit_permille"] + margin,
+            "windows_above": run}
 
 
 def mass_verdict(mass_last, plan_kg, limit_kg, learned, cfg):
@@ -213,9 +251,18 @@ def mass_words(mass):
     """The one line replay prints for mass_verdict's dict."""
     if not mass["judged"]:
         return "mass not judged: %s" % mass["reason"]
-    return ("implied mass %.3f kg at %.1f s (the last window): %+.1f %% against %.3f kg planned, %s the alarm "
+    text = ("implied mass %.3f kg at %.1f s (the last window): %+.1f %% against %.3f kg planned, %s the alarm "
             "limit %.3f kg" % (mass["implied_kg"], mass["at_s"], 100.0 * mass["share"], mass["planned_kg"],
                                "above" if mass["above_limit"] else "below", mass["limit_kg"]))
+    if not mass["above_limit"] or mass.get("mass_alarm", True) or "alarm_kg" not in mass:
+        return text
+    # above the limit without a mass alarm: say why (trial 9, finding 6)
+    if mass["implied_kg"] <= mass["alarm_kg"]:
+        return text + (" but within the estimate's margin (+-%.3f kg over gusty or short windows): no alarm below "
+                       "%.3f kg, the limit plus that margin" % (mass["margin_kg"], mass["alarm_kg"]))
+    return text + (" and the limit plus the estimate's margin (%.3f kg) in %d window%s in a row: the alarm needs %d"
+                   % (mass["alarm_kg"], mass["windows_above"], "" if mass["windows_above"] == 1 else "s",
+                      mass["windows_needed"]))
 
 
 def _bar(i, n):
