@@ -40,7 +40,9 @@ class Quantity(click.ParamType):
 
     def fail_bare(self, value, param, ctx):
         """Refuse a bare number for a kind whose unit is required (unit_example)."""
-        self.fail("%r has no unit; write it with one, e.g. %s" % (value, self.unit_example), param, ctx)
+        from estimator.errors import shorten
+
+        self.fail("%s has no unit; write it with one, e.g. %s" % (shorten(str(value)), self.unit_example), param, ctx)
 
 
 def _bare(value):
@@ -135,7 +137,9 @@ class Bounded(Quantity):
             what = param.opts[0] if param is not None and param.opts else None
             si = float(str(value))
             if si - si != 0.0:  # nan, 1e999
-                self.fail("%r is not a finite number" % (value,), param, ctx)
+                from estimator.errors import shorten
+
+                self.fail("%s is not a finite number" % shorten(str(value)), param, ctx)
             check_quantity(self.quantity, parse_quantity(value, self.kind, ""), str(value), what)
             self.fail_bare(value, param, ctx)
         si = Quantity.convert(self, value, param, ctx)
