@@ -84,3 +84,12 @@ def test_above_limit_and_margin_in_too_few_windows_says_how_many_are_needed():
     # with a mass alarm raised, or below the limit, the line is as before (README examples)
     for change in ({"mass_alarm": True}, {"above_limit": False, "implied_kg": 2.2}):
         assert "margin" not in mass_words(dict(mass, **change))
+
+
+def test_a_negative_integer_variance_gives_no_margin_not_a_crash():
+    # the kernel's m_sq // n - mu * mu floors below zero on a near-constant window (seen on a
+    # log flown at 0.6 times the fitted power, tests/test_replay_log_match.py); its test
+    # ex^2 n > (negative) then passes for any excess, so the margin is 0
+    cfg = {"mass_z2_q8": 2400, "mass_limit_permille": 80}
+    check = mass_margin((-300, -1, 40), (-300, -1, 40), 0, cfg)
+    assert check["margin_permille"] == 0.0 and check["alarm_permille"] == 80

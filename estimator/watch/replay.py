@@ -224,7 +224,8 @@ def mass_margin(before, last, run, cfg):
         d = (mu - mu_p) // 2
         var = (var + var_p) // 2 + d * d
         n = n_p + n
-    margin = math.sqrt(((var >> 4) * cfg["mass_z2_q8"] >> 4) / n) if n else 0.0
+    # the kernel's integer variance can come out below zero (floored means): then any excess alarms
+    margin = math.sqrt(max(0, (var >> 4) * cfg["mass_z2_q8"] >> 4) / n) if n else 0.0
     return {"margin_permille": margin, "alarm_permille": cfg["mass_limit_permille"] + margin,
             "windows_above": run}
 
