@@ -130,7 +130,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     # the kernel's limit is plan x (1 + permille / 1000) exactly (it compares permille), not floored
     mass_limit_g = round(cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) / 1000.0, 1)
     warnings = (([edited] if edited else []) + _tare_warning(params, params_file)
-                + _exponent_warning(params, vehicle, params_file))
+                + _exponent_warning(params, vehicle, params_file) + out["warnings"])
     # README: whenever liftcal replaces one of its own files it says so in one line
     replaced = ["replaced %s: a power-watch bundle liftcal wrote" % out_dir] if state == "own" else []
     summary = {"out_dir": out["out_dir"], "files": out["files"], "mpy_bytes": out["mpy_bytes"],

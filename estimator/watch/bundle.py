@@ -178,4 +178,5 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
         shutil.rmtree(tmp, ignore_errors=True)
         raise
     files = sorted(list(texts) + ["mpy/%s.mpy" % m for m in MODULES])
-    return {"out_dir": out_dir, "files": files, "mpy_bytes": mpy_bytes, "config": config}
+    return {"out_dir": out_dir, "files": files, "mpy_bytes": mpy_bytes, "config": config,
+            "warnings": [notes["range_warning"]] if "range_warning" in notes else []}

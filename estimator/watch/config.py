@@ -171,6 +171,11 @@ def table(values, name, top):
     return out
 
 
+# the watch's sensor ranges: every kernel intermediate stays below 2^30 within them (watch_layout bounds)
+V_SENSOR_MAX_V = 60.0
+I_SENSOR_MAX_A = 300.0
+
+
 def vehicle_facts(params, vehicle=None, source="parameter set"):
     """Mass, rotor count, site density and pack voltages for the watch.
 
@@ -257,21 +262,25 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
 
     v_full = float(v.get("full_voltage_V") or curve["reference_voltage_V"] * 1.15)
     v_empty = float(v.get("empty_voltage_V") or curve["reference_voltage_V"] * 0.85)
-    if 1.05 * v_full > 60.0:
-        raise InputError("vehicle: full pack voltage %.1f V is beyond the watch's 60 V sensor range" % v_full)
+    if 1.05 * v_full > V_SENSOR_MAX_V:
+        raise InputError("vehicle: full pack voltage %.1f V: the watch reads bus voltages up to %.0f V and needs "
+                         "5 %% above a full pack, so it runs on packs of at most %.1f V full (13S LiPo at 4.2 V a "
+                         "cell: 54.6 V); this pack is beyond the watch, not beyond the vehicle"
+                         % (v_full, V_SENSOR_MAX_V, V_SENSOR_MAX_V / 1.05))
     v_min_mV = int(round(0.5 * v_empty * 1000.0))
-    v_max_mV = min(60000, int(round(1.2 * v_full * 1000.0)))
+    v_max_mV = min(int(V_SENSOR_MAX_V * 1000), int(round(1.2 * v_full * 1000.0)))
     put("v_min_mV", v_min_mV, "below half the empty-pack voltage %.2f V: sensor fault" % v_empty)
-    put("v_max_mV", v_max_mV, "above 1.2 x full pack %.2f V: sensor fault" % v_full)
+    put("v_max_mV", v_max_mV, "above %.2f V (1.2 x full pack %.2f V, at most the watch's %.0f V): sensor fault"
+        % (v_max_mV / 1000.0, v_full, V_SENSOR_MAX_V))
     # the voltage tables span the whole accepted range v_min..v_max (no clamping in the kernel)
     v_step = (v_max_mV - v_min_mV) // 12 + 1
     put("volt_step_mV", v_step, "voltage tables: 12 steps from v_min_mV, to %.3f V" % ((v_min_mV + 12 * v_step) / 1000.0))
-    i_max = o["current_max_A"] or min(300.0, 1.5 * (v.get("max_current_A") or 200.0))
-    i_min = o["current_min_A"] if o["current_min_A"] is not None else -max(0.2, 0.01 * min(i_max, 300.0))
+    i_max = o["current_max_A"] or min(I_SENSOR_MAX_A, 1.5 * (v.get("max_current_A") or 200.0))
+    i_min = o["current_min_A"] if o["current_min_A"] is not None else -max(0.2, 0.01 * min(i_max, I_SENSOR_MAX_A))
     put("i_min_mA", int(round(i_min * 1000.0)), "current below %.2f A is a sensor fault%s" % (
         i_min, "" if o["current_min_A"] is not None else " (1 %% of the %.0f A range, at least 0.2 A: zero "
-        "offset and noise of the sensor)" % min(i_max, 300.0)))
-    put("i_max_mA", int(round(min(i_max, 300.0) * 1000.0)), "current above this is a sensor fault [mA]")
+        "offset and noise of the sensor)" % min(i_max, I_SENSOR_MAX_A)))
+    put("i_max_mA", int(round(min(i_max, I_SENSOR_MAX_A) * 1000.0)), "current above this is a sensor fault [mA]")
 
     # expected thrust from the fitted motor model in the site's air, where the watch judges: the
     # thrust factor of each table voltage at the hover command, the full-command thrust that puts
@@ -282,6 +291,15 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     v_ref = curve["reference_voltage_V"]
     volts = [(v_min_mV + i * v_step) / 1000.0 for i in range(13)]
     factors, t_site, hov, how = expected_thrust(params, v, rho, weight_N / n_rot, volts)
+    # full command on a full pack: bus current from the power model (no sag: an upper estimate)
+    f_full = min((v_full / v_ref) ** curve["voltage_exponent"], 1.5)
+    i_full = n_rot * _rotor_power_W(pm, t_site * f_full, rho) / v_full
+    if i_full > cfg["i_max_mA"] / 1000.0:
+        notes["range_warning"] = (
+            "full command on a full pack draws about %.0f A, beyond the watch's current-sensor range (%.0f A%s): "
+            "a full-throttle climb reads as a sensor_fault and the alarms pause until the current is back in range"
+            % (i_full, cfg["i_max_mA"] / 1000.0, "" if cfg["i_max_mA"] < I_SENSOR_MAX_A * 1000
+               else ", the most it reads"))
     # capped at 1.5 (6143): with t(x) <= 1 the power table's argument f = factor x t stays in its range
     vq = [min(6143, int(round(4096.0 * x))) for x in factors]
     put("volt_q12", table(vq, "volt_q12", 6143), "%s x 4096 at the table voltages %.3f..%.3f V"
