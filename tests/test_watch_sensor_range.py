@@ -91,3 +91,32 @@ def test_a_14s_pack_is_refused_with_the_watch_limit_not_a_false_comparison(tmp_p
     assert code == 2 and len(lines) == 1 and lines[0].startswith("error:"), err
     assert "58.8 V" in lines[0] and "at most 57.1 V full" in lines[0], lines[0]
     assert not (tmp_path / "board").exists()
+
+
+def test_a_small_vehicle_without_a_motor_limit_gets_a_current_range_of_its_own(tmp_path):
+    # trial 9, finding 13: without the motors' current limit the range was 300 A for every
+    # vehicle, so the sensor-fault floor (1 % of the range) was -3 A, beyond a micro's whole
+    # hover current: a current sensor wired the wrong way round read as in range
+    from estimator.params import load_params
+    from estimator.watch.config import make_config
+
+    rng = random.Random(912)
+    rho = isa_density(100.0, 20.0)
+    for i in range(3):
+        truth = Truth(rng)
+        while truth.cells != 3 or truth.d_in > 3.6:    # 3-inch 3S micros hovering at 2-3 A
+            truth = Truth(rng)
+        mass = 0.2 * 4 * truth.thrust_N(1.0, 3.8 * truth.cells, rho) / G0
+        veh = _vehicle(truth, 4, mass)
+        (tmp_path / "v.json").write_text(json.dumps(veh))
+        bench_csv(truth, tmp_path / "b.csv", rng)
+        code, out, err = run(["fit", str(tmp_path / "b.csv"), "--vehicle", str(tmp_path / "v.json"),
+                              "--out", str(tmp_path / ("p%d.json" % i))])
+        assert code == 0, err
+        cfg, _ = make_config(load_params(str(tmp_path / ("p%d.json" % i))))
+        hover_A = 4 * truth.current_in(truth.hover_command(mass * G0 / 4, 3.7 * truth.cells, rho),
+                                       3.7 * truth.cells, rho)
+        full_A = 4 * truth.current_in(1.0, 4.2 * truth.cells, rho)
+        assert -cfg["i_min_mA"] / 1000.0 < 0.5 * hover_A, (cfg["i_min_mA"], hover_A)   # reversed: out of range
+        # the range still holds the truth's full command on a full pack
+        assert cfg["i_max_mA"] / 1000.0 > full_A, (cfg["i_max_mA"], full_A)

@@ -74,7 +74,7 @@ DEFAULTS = {
     "current_min_A": None,          # below this the current sensor is faulty [A] (default: -max(0.2 A,
                                     # 1 % of current_max_A): a sensor's zero offset and noise near zero
                                     # current are a few ADC steps, a fraction of a percent of its range)
-    "current_max_A": None,          # above this [A] (default 1.5 x motors' max, at most 300 A)
+    "current_max_A": None,          # above this [A] (default 1.5 x motors' max, else 1.5 x the full-command current; at most 300 A)
 }
 
 # CONFIG is one flat tuple of plain ints (layout in estimator/core/watch_layout.py): each table
@@ -275,12 +275,6 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     # the voltage tables span the whole accepted range v_min..v_max (no clamping in the kernel)
     v_step = (v_max_mV - v_min_mV) // 12 + 1
     put("volt_step_mV", v_step, "voltage tables: 12 steps from v_min_mV, to %.3f V" % ((v_min_mV + 12 * v_step) / 1000.0))
-    i_max = o["current_max_A"] or min(I_SENSOR_MAX_A, 1.5 * (v.get("max_current_A") or 200.0))
-    i_min = o["current_min_A"] if o["current_min_A"] is not None else -max(0.2, 0.01 * min(i_max, I_SENSOR_MAX_A))
-    put("i_min_mA", int(round(i_min * 1000.0)), "current below %.2f A is a sensor fault%s" % (
-        i_min, "" if o["current_min_A"] is not None else " (1 %% of the %.0f A range, at least 0.2 A: zero "
-        "offset and noise of the sensor)" % min(i_max, I_SENSOR_MAX_A)))
-    put("i_max_mA", int(round(min(i_max, I_SENSOR_MAX_A) * 1000.0)), "current above this is a sensor fault [mA]")
 
     # expected thrust from the fitted motor model in the site's air, where the watch judges: the
     # thrust factor of each table voltage at the hover command, the full-command thrust that puts
@@ -294,6 +288,16 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     # full command on a full pack: bus current from the power model (no sag: an upper estimate)
     f_full = min((v_full / v_ref) ** curve["voltage_exponent"], 1.5)
     i_full = n_rot * _rotor_power_W(pm, t_site * f_full, rho) / v_full
+    # the current range: 1.5 x the motors' limit, else 1.5 x that full-command current, at most the watch's
+    i_max = min(o["current_max_A"] or max(1.0, 1.5 * (v.get("max_current_A") or i_full)), I_SENSOR_MAX_A)
+    i_min = o["current_min_A"] if o["current_min_A"] is not None else -max(0.2, 0.01 * i_max)
+    put("i_min_mA", int(round(i_min * 1000.0)), "current below %.2f A is a sensor fault%s" % (
+        i_min, "" if o["current_min_A"] is not None else " (1 %% of the %.0f A range, at least 0.2 A: zero "
+        "offset and noise of the sensor)" % i_max))
+    put("i_max_mA", int(round(i_max * 1000.0)), "current above %.1f A is a sensor fault [mA] (%s)" % (
+        i_max, "the option current_max_A" if o["current_max_A"] else
+        "1.5 x the motors' limit %.1f A" % v["max_current_A"] if v.get("max_current_A") else
+        "1.5 x the full-command current %.1f A" % i_full))
     if i_full > cfg["i_max_mA"] / 1000.0:
         notes["range_warning"] = (
             "full command on a full pack draws about %.0f A, beyond the watch's current-sensor range (%.0f A%s): "
