@@ -23,6 +23,7 @@ from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.errors import InputError
 from estimator.watch.named_watch import NamedWatch
+from estimator.watch.sensor_range import current_range_mA, voltage_range_mV
 from estimator.watch.site_air import expected_thrust
 from estimator.watch.thrust_table import thrust_from_power_total_N, thrust_knots_mN
 
@@ -71,10 +72,8 @@ DEFAULTS = {
     "dt_max_s": 2.0,                # a sample gap above this is a sensor fault [s]
     "stuck_s": 3.0,                 # current identical this long while spinning -> sensor_fault [s]
     "spin_command": None,           # command above which the rotors make thrust [-] (default u_min + 0.05)
-    "current_min_A": None,          # below this the current sensor is faulty [A] (default: -max(0.2 A,
-                                    # 1 % of current_max_A): a sensor's zero offset and noise near zero
-                                    # current are a few ADC steps, a fraction of a percent of its range)
-    "current_max_A": None,          # above this [A] (default 1.5 x motors' max, else 1.5 x the full-command current; at most 300 A)
+    "current_min_A": None,          # below this the current sensor is faulty [A] (default: watch/sensor_range.py)
+    "current_max_A": None,          # above this [A] (default 1.5 x the motors' limit or full-command current; <= 300 A)
 }
 
 # CONFIG is one flat tuple of plain ints (layout in estimator/core/watch_layout.py): each table
@@ -171,11 +170,6 @@ def table(values, name, top):
     return out
 
 
-# the watch's sensor ranges: every kernel intermediate stays below 2^30 within them (watch_layout bounds)
-V_SENSOR_MAX_V = 60.0
-I_SENSOR_MAX_A = 300.0
-
-
 def vehicle_facts(params, vehicle=None, source="parameter set"):
     """Mass, rotor count, site density and pack voltages for the watch.
 
@@ -262,16 +256,9 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
 
     v_full = float(v.get("full_voltage_V") or curve["reference_voltage_V"] * 1.15)
     v_empty = float(v.get("empty_voltage_V") or curve["reference_voltage_V"] * 0.85)
-    if 1.05 * v_full > V_SENSOR_MAX_V:
-        raise InputError("vehicle: full pack voltage %.1f V: the watch reads bus voltages up to %.0f V and needs "
-                         "5 %% above a full pack, so it runs on packs of at most %.1f V full (13S LiPo at 4.2 V a "
-                         "cell: 54.6 V); this pack is beyond the watch, not beyond the vehicle"
-                         % (v_full, V_SENSOR_MAX_V, V_SENSOR_MAX_V / 1.05))
-    v_min_mV = int(round(0.5 * v_empty * 1000.0))
-    v_max_mV = min(int(V_SENSOR_MAX_V * 1000), int(round(1.2 * v_full * 1000.0)))
-    put("v_min_mV", v_min_mV, "below half the empty-pack voltage %.2f V: sensor fault" % v_empty)
-    put("v_max_mV", v_max_mV, "above %.2f V (1.2 x full pack %.2f V, at most the watch's %.0f V): sensor fault"
-        % (v_max_mV / 1000.0, v_full, V_SENSOR_MAX_V))
+    v_min_mV, v_max_mV, (n_lo, n_hi) = voltage_range_mV(v_full, v_empty)
+    put("v_min_mV", v_min_mV, n_lo)
+    put("v_max_mV", v_max_mV, n_hi)
     # the voltage tables span the whole accepted range v_min..v_max (no clamping in the kernel)
     v_step = (v_max_mV - v_min_mV) // 12 + 1
     put("volt_step_mV", v_step, "voltage tables: 12 steps from v_min_mV, to %.3f V" % ((v_min_mV + 12 * v_step) / 1000.0))
@@ -288,22 +275,12 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     # full command on a full pack: bus current from the power model (no sag: an upper estimate)
     f_full = min((v_full / v_ref) ** curve["voltage_exponent"], 1.5)
     i_full = n_rot * _rotor_power_W(pm, t_site * f_full, rho) / v_full
-    # the current range: 1.5 x the motors' limit, else 1.5 x that full-command current, at most the watch's
-    i_max = min(o["current_max_A"] or max(1.0, 1.5 * (v.get("max_current_A") or i_full)), I_SENSOR_MAX_A)
-    i_min = o["current_min_A"] if o["current_min_A"] is not None else -max(0.2, 0.01 * i_max)
-    put("i_min_mA", int(round(i_min * 1000.0)), "current below %.2f A is a sensor fault%s" % (
-        i_min, "" if o["current_min_A"] is not None else " (1 %% of the %.0f A range, at least 0.2 A: zero "
-        "offset and noise of the sensor)" % i_max))
-    put("i_max_mA", int(round(i_max * 1000.0)), "current above %.1f A is a sensor fault [mA] (%s)" % (
-        i_max, "the option current_max_A" if o["current_max_A"] else
-        "1.5 x the motors' limit %.1f A" % v["max_current_A"] if v.get("max_current_A") else
-        "1.5 x the full-command current %.1f A" % i_full))
-    if i_full > cfg["i_max_mA"] / 1000.0:
-        notes["range_warning"] = (
-            "full command on a full pack draws about %.0f A, beyond the watch's current-sensor range (%.0f A%s): "
-            "a full-throttle climb reads as a sensor_fault and the alarms pause until the current is back in range"
-            % (i_full, cfg["i_max_mA"] / 1000.0, "" if cfg["i_max_mA"] < I_SENSOR_MAX_A * 1000
-               else ", the most it reads"))
+    i_min_mA, i_max_mA, (n_lo, n_hi), warning = current_range_mA(
+        i_full, v.get("max_current_A"), o["current_max_A"], o["current_min_A"])
+    put("i_min_mA", i_min_mA, n_lo)
+    put("i_max_mA", i_max_mA, n_hi)
+    if warning:
+        notes["range_warning"] = warning
     # capped at 1.5 (6143): with t(x) <= 1 the power table's argument f = factor x t stays in its range
     vq = [min(6143, int(round(4096.0 * x))) for x in factors]
     put("volt_q12", table(vq, "volt_q12", 6143), "%s x 4096 at the table voltages %.3f..%.3f V"
