@@ -2,10 +2,13 @@
 fault. Every kernel intermediate stays below 2^30 within 0-60 V and 0-300 A (the bounds in
 estimator/core/watch_layout.py), so those are the most the watch reads."""
 
+from estimator.core import watch_layout as layout
 from estimator.errors import InputError
 
-V_SENSOR_MAX_V = 60.0
-I_SENSOR_MAX_A = 300.0
+# the highest bounds CONFIG takes (watch_layout.SCALARS, the one place they are written)
+_BOUND = {name: hi for name, lo, hi in layout.SCALARS}
+V_SENSOR_MAX_V = _BOUND["v_max_mV"] / 1000.0
+I_SENSOR_MAX_A = _BOUND["i_max_mA"] / 1000.0
 
 
 def voltage_range_mV(v_full, v_empty):
