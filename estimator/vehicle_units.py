@@ -17,37 +17,69 @@ from estimator.errors import InputError
 # Hover disk loading of small multirotor propellers [N/m^2]: about 20 to 1500 (the schema's
 # disk_loading_N_m2 description; a 2 kg quad on 10-inch propellers is near 100). Common practice.
 DISK_LOADING_TYPICAL_N_M2 = (20.0, 1500.0)
-# Flight packs weigh about 10 to 50 % of a multirotor's all-up mass (common practice, from
-# memory); the capacity a slip hint suggests must fall in the band a little wider than that
-# (3 to 60 %), at the specific energy of the pack's chemistry (CHEMISTRIES).
-PACK_MASS_SHARE_USUAL = (0.03, 0.6)
+# Flight packs weigh about 10 to 50 % of a multirotor's all-up mass, endurance builds up to
+# about 50..70 % (common practice, from memory). A pack is judged by the span of masses its energy
+# can have (CHEMISTRIES: at the chemistry's typical and at its best pack specific energy): it looks
+# like a slip only when even the lightest such pack weighs more than 70 % of the vehicle, or the
+# heaviest less than 3 % (a little wider than the usual band). Trial 9: a 14 kg octo's 12S 32 Ah
+# LiPo (1421 Wh) weighs 67.6 % at 150 Wh/kg, 50.7 % at 200 Wh/kg: an ordinary heavy lifter.
+PACK_MASS_SHARE_USUAL = (0.03, 0.7)
 # The lithium chemistries a flight pack is made of, told apart by the cell voltages the vehicle
-# file gives, the first row that matches: (word, typical nominal cell voltage [V], pack specific
-# energy [Wh/kg], read when nominal_cell_V <= [V], and empty_cell_V <= [V] (None: any)). All
-# common practice, from memory: LiFePO4 cells sit at 3.2..3.3 V nominal (drained to 2.5..2.8 V),
-# packs about 90..120 Wh/kg; Li-ion cylindrical cells (18650, 21700) near 3.6 V nominal, drained
-# to about 3.0 V, packs about 250 Wh/kg; LiPo (and LiHV) cells 3.7 V nominal (3.85 V), stopped
-# near 3.5 V, packs about 150 Wh/kg. The one table: the pre-flight pack-energy checks and the
-# bare-capacity unit guess read it.
+# file gives, the first row that matches: (word, typical nominal cell voltage [V], typical pack
+# specific energy [Wh/kg], best pack specific energy [Wh/kg], read when nominal_cell_V <= [V], and
+# empty_cell_V <= [V] (None: any)). All common practice, from memory: LiFePO4 cells sit at
+# 3.2..3.3 V nominal (drained to 2.5..2.8 V), packs about 90..120 Wh/kg, the best near 140;
+# Li-ion cylindrical cells (18650, 21700) near 3.6 V nominal, drained to about 3.0 V, packs about
+# 250 Wh/kg, the best cells near 260; LiPo (and LiHV) cells 3.7 V nominal (3.85 V), stopped near
+# 3.5 V, packs about 150 Wh/kg, large packs up to about 200. The one table: the pre-flight
+# pack-energy checks and the bare-capacity unit guess read it.
 CHEMISTRIES = (
-    ("LiFePO4", 3.2, 100.0, 3.4, None),
-    ("Li-ion", 3.6, 250.0, 3.65, 3.2),
-    ("LiPo", 3.7, 150.0, None, None),
+    ("LiFePO4", 3.2, 100.0, 140.0, 3.4, None),
+    ("Li-ion", 3.6, 250.0, 260.0, 3.65, 3.2),
+    ("LiPo", 3.7, 150.0, 200.0, None, None),
 )
 
 
 def pack_chemistry(nominal_cell_V, empty_cell_V):
-    """(chemistry word, typical nominal cell voltage [V], pack specific energy [Wh/kg]) of the
-    first CHEMISTRIES row whose voltage limits [V] the cells meet (a voltage not given, None,
+    """(chemistry word, typical nominal cell voltage [V], typical pack specific energy [Wh/kg]) of
+    the first CHEMISTRIES row whose voltage limits [V] the cells meet (a voltage not given, None,
     meets no limit); LiPo when nothing matches. Common practice, from memory (CHEMISTRIES)."""
-    for word, cell_V, specific_Wh_kg, nominal_max, empty_max in CHEMISTRIES:
+    return _chemistry_row(nominal_cell_V, empty_cell_V)[:3]
+
+
+def _chemistry_row(nominal_cell_V, empty_cell_V):
+    for row in CHEMISTRIES:
+        nominal_max, empty_max = row[4], row[5]
         if nominal_max is not None and not (isinstance(nominal_cell_V, (int, float))
                                             and nominal_cell_V <= nominal_max):
             continue
         if empty_max is not None and not (isinstance(empty_cell_V, (int, float)) and empty_cell_V <= empty_max):
             continue
-        return word, cell_V, specific_Wh_kg
+        return row
     return CHEMISTRIES[-1]
+
+
+def pack_share_span(energy_Wh, mass_kg, nominal_cell_V, empty_cell_V):
+    """(least, most) share [-] of an all-up mass ``mass_kg`` [kg] that a pack of ``energy_Wh`` [Wh]
+    weighs: its energy over the best and over the typical pack specific energy of the chemistry its
+    cell voltages [V] tell (CHEMISTRIES; common practice, from memory)."""
+    _, _, typical_Wh_kg, best_Wh_kg = _chemistry_row(nominal_cell_V, empty_cell_V)[:4]
+    return energy_Wh / best_Wh_kg / mass_kg, energy_Wh / typical_Wh_kg / mass_kg
+
+
+def pack_share_usual(energy_Wh, mass_kg, nominal_cell_V, empty_cell_V):
+    """True when a pack of ``energy_Wh`` [Wh] can weigh an ordinary share of ``mass_kg`` [kg]:
+    its span of masses (pack_share_span) meets PACK_MASS_SHARE_USUAL."""
+    least, most = pack_share_span(energy_Wh, mass_kg, nominal_cell_V, empty_cell_V)
+    return least <= PACK_MASS_SHARE_USUAL[1] and most >= PACK_MASS_SHARE_USUAL[0]
+
+
+def pack_energy_range(battery):
+    """(chemistry word, typical, best pack specific energy [Wh/kg]) of a checked vehicle's battery
+    block, from its cell voltages (CHEMISTRIES, common practice, from memory)."""
+    word, _, typical_Wh_kg, best_Wh_kg = _chemistry_row(battery.get("nominal_cell_V"),
+                                                        battery.get("empty_cell_V"))[:4]
+    return word, typical_Wh_kg, best_Wh_kg
 
 
 def pack_specific_energy(battery):
@@ -257,7 +289,7 @@ def likely_unit(kind, value, block, key, document):
     the loaded vehicle file (for the sizes the guess needs). A mass is read in the unit that
     gives an ordinary hover disk loading on the file's propellers (DISK_LOADING_TYPICAL_N_M2),
     a capacity in the unit that gives a pack of an ordinary share of the all-up mass
-    (PACK_MASS_SHARE_USUAL at the specific energy of its cells' chemistry, CHEMISTRIES); otherwise, and when the sizes are
+    (pack_share_usual: PACK_MASS_SHARE_USUAL at the specific energies of its cells' chemistry); otherwise, and when the sizes are
     missing, the first of the quantity's usual units that puts the value inside the schema.
     """
     from estimator.units import parse_quantity
@@ -282,9 +314,8 @@ def likely_unit(kind, value, block, key, document):
                 # (the chemistry's typical one when the file gives none)
                 nominal = _si(document, "battery", "nominal_cell", "nominal_cell_V", "voltage")
                 empty = _si(document, "battery", "empty_cell", "empty_cell_V", "voltage")
-                _, cell_V, specific_Wh_kg = pack_chemistry(nominal, empty)
-                share = cells * (nominal or cell_V) * si / specific_Wh_kg / mass
-                if PACK_MASS_SHARE_USUAL[0] <= share <= PACK_MASS_SHARE_USUAL[1]:
+                _, cell_V, _ = pack_chemistry(nominal, empty)
+                if pack_share_usual(cells * (nominal or cell_V) * si, mass, nominal, empty):
                     return unit
                 continue
         if _in_schema(kind, si, block, key):

@@ -98,12 +98,17 @@ LR10 = {"name": "INVENTED 10in 6S long-range quad", "mass_kg": 1.6, "rotors": {"
 
 def test_a_li_ion_pack_is_judged_at_li_ion_specific_energy_not_called_a_slip(tmp_path):
     # hand: 6 x 3.6 V x 8 Ah = 172.8 Wh; Li-ion packs about 250 Wh/kg (common practice, from memory)
-    # -> 0.69 kg = 43 % of 1.6 kg, inside the usual 3..60 % (at LiPo's 150 Wh/kg it would be 72 %)
-    assert 0.03 <= 6 * 3.6 * 8.0 / 250.0 / 1.6 <= 0.60 < 6 * 3.6 * 8.0 / 150.0 / 1.6
+    # -> 0.69 kg = 43 % of 1.6 kg, inside the usual 3..70 % (at LiPo's best 200 Wh/kg it would be
+    # 56 %; a 12 Ah pack on LiPo cells 83 %)
+    assert 0.03 <= 6 * 3.6 * 8.0 / 250.0 / 1.6 <= 0.70 < 6 * 3.7 * 12.0 / 200.0 / 1.6
     report = json.loads(ok("hover", _file(tmp_path, LR10), "--json"))
     assert report["suspect_keys"] == [] and not any(w.startswith("$.battery") for w in report["warnings"])
-    # the same pack on LiPo cell voltages (3.7 / 3.5 V): 177.6 Wh / 150 Wh/kg = 74 %: still questioned
-    lipo = dict(LR10, battery=dict(LR10["battery"], nominal_cell_V=3.7, empty_cell_V=3.5, cutoff_cell_V=3.3))
+    # a 12 Ah pack on LiPo cell voltages (3.7 / 3.5 V): 266.4 Wh weighs at least 1.33 kg at 200 Wh/kg
+    # (large LiPo packs, from memory), 83 % of the vehicle: still questioned (trial 9 finding 5
+    # moved the band's top from 60 % at the typical specific energy to 70 % at the best one: the
+    # 8 Ah LiPo variant, 55 % at 200 Wh/kg, is an ordinary endurance build)
+    lipo = dict(LR10, battery=dict(LR10["battery"], nominal_cell_V=3.7, empty_cell_V=3.5, cutoff_cell_V=3.3,
+                                   capacity_Ah=12.0))
     report = json.loads(ok("hover", _file(tmp_path, lipo, "lipo.json"), "--json"))
     assert report["suspect_keys"] == ["$.battery.capacity_Ah"]
     # a real decimal slip on the Li-ion pack (80 Ah: 1728 Wh, 6.9 kg at 250 Wh/kg) is named, with
@@ -111,19 +116,21 @@ def test_a_li_ion_pack_is_judged_at_li_ion_specific_energy_not_called_a_slip(tmp
     slip = dict(LR10, battery=dict(LR10["battery"], capacity_Ah=80.0))
     report = json.loads(ok("hover", _file(tmp_path, slip, "slip.json"), "--json"))
     text = [w for w in report["warnings"] if w.startswith("$.battery.capacity_Ah")][0]
-    assert "8 Ah meant" in text and "250 Wh/kg (Li-ion" in text
+    assert "8 Ah meant" in text and "at a typical 250 Wh/kg; Li-ion" in text
     assert "with it the pack energy falls in its ordinary range" in text
     assert "disk loading" not in text and "motor" not in text
 
 
 def test_compare_does_not_repeat_a_refuted_pack_warning_or_offer_a_13_kg_quad(tmp_path):
     path = _file(tmp_path, LR10)
-    result = json.loads(ok("compare", path, "--vary", "battery.capacity=4Ah,8Ah,10Ah",
+    result = json.loads(ok("compare", path, "--vary", "battery.capacity=4Ah,8Ah,12Ah",
                              "--vary", "mass_kg=1.3,1.6", "--json"))
     flagged = [r["label"] for r in result["rows"] if any(c["kind"] == "unit_slip" for c in r["caveats"])]
-    # only 10 Ah on 1.3 kg: 216 Wh / 250 Wh/kg = 0.86 kg = 66 % of the vehicle, above the usual 60 %
-    assert flagged == ["battery.capacity=10Ah, mass_kg=1.3"], flagged
-    table = " ".join(ok("compare", path, "--vary", "battery.capacity=4Ah,8Ah,10Ah",
+    # only 12 Ah on 1.3 kg: 259.2 Wh weighs at least 1.0 kg even at the best Li-ion 260 Wh/kg (from
+    # memory) = 77 % of the vehicle, above the 70 % of endurance builds (common practice); on 1.6 kg
+    # 62 %, not questioned
+    assert flagged == ["battery.capacity=12Ah, mass_kg=1.3"], flagged
+    table = " ".join(ok("compare", path, "--vary", "battery.capacity=4Ah,8Ah,12Ah",
                           "--vary", "mass_kg=1.3,1.6").split())
     # 13 kg on four 10in rotors would hover at 93 % of the motors' no-load speed (T = CT rho n^2 D^4,
     # CT 0.1: 250 rev/s vs 750 Kv x 21.6 V = 270 rev/s): not an ordinary vehicle to suggest

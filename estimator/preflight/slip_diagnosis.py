@@ -11,9 +11,10 @@ vehicle as read is ordinary, or when no single correction makes it so.
 
 The checks (sea-level standard air, 1.225 kg/m^3: the slips are factors of 10 and more):
 - disk loading m g / (N A) within DISK_LOADING_TYPICAL_N_M2 (common practice);
-- pack energy: its mass at the chemistry's specific energy (vehicle_units.pack_specific_energy:
-  LiFePO4 about 100 Wh/kg, Li-ion about 250, LiPo about 150, told apart by the cell voltages) within
-  PACK_MASS_SHARE_USUAL of the all-up mass (common practice, from memory);
+- pack energy: its mass at the chemistry's typical to best pack specific energy
+  (vehicle_units.pack_energy_range: LiFePO4 about 100..140 Wh/kg, Li-ion 250..260, LiPo 150..200,
+  told apart by the cell voltages) meets PACK_MASS_SHARE_USUAL of the all-up mass, 3..70 % (common
+  practice, from memory; endurance builds carry packs of up to about 70 %);
 - motor power: the ideal hover power per rotor, T^1.5 / sqrt(2 rho A) (momentum theory,
   design notes sec. 3), at a figure of merit of FIGURE_OF_MERIT, at most the most a DC motor of
   winding resistance R gives on the nominal pack voltage V, V^2 / (4 R) (back-EMF V / 2, the
@@ -30,7 +31,7 @@ from estimator.core.momentum import disk_area_m2
 from estimator.units import INCH_M, plain_number
 from estimator.vehicle import given_text
 from estimator.vehicle_units import (DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, in_vehicle_schema,
-                                    pack_specific_energy)
+                                    pack_energy_range)
 
 RHO = SEA_LEVEL_DENSITY_KG_M3  # sea-level standard density [kg/m^3], US Standard Atmosphere 1976
 FIGURE_OF_MERIT = 0.5  # a small rotor's hover figure of merit, generous for this check [-] (from memory)
@@ -75,15 +76,23 @@ def _facts(mass, count, diameter, bat, motor):
     hover_rpm = 60.0 * math.sqrt(thrust / (TYPICAL_CT * RHO * diameter ** 4))
     top_rpm = motor["kv_rpm_per_V"] * volts
     lo, hi = DISK_LOADING_TYPICAL_N_M2
-    chemistry, specific_Wh_kg = pack_specific_energy(bat)
+    chemistry, specific_Wh_kg, best_Wh_kg = pack_energy_range(bat)
+    least_share, most_share = energy_Wh / best_Wh_kg / mass, energy_Wh / specific_Wh_kg / mass
+    share_lo, share_hi = PACK_MASS_SHARE_USUAL
+    if most_share < share_lo:   # too light even at the typical specific energy
+        weighs = "at most %s %% of it (at a typical %.0f Wh/kg" % (_n(100.0 * most_share), specific_Wh_kg)
+    else:                       # judged by the least it can weigh, at the best specific energy
+        weighs = "at least %s %% of it (at the best %.0f Wh/kg; %s %% at a typical %.0f Wh/kg" % (
+            _n(100.0 * least_share), best_Wh_kg, _n(100.0 * most_share), specific_Wh_kg)
+    pack_text = ("a %s Wh pack weighs %s; %s, told by its cell voltages; packs weigh %g..%g %% of a "
+                 "multirotor, common practice, from memory)" % (_n(energy_Wh), weighs, chemistry,
+                                                                100 * share_lo, 100 * share_hi))
     facts = {
         "disk loading": (thrust / area, lo, hi, "disk loading %s N/m^2 (small multirotors: %g..%g)"
                          % (_n(thrust / area), lo, hi)),
-        "pack energy": (energy_Wh / specific_Wh_kg / mass,) + PACK_MASS_SHARE_USUAL
-        + ("a %s Wh pack weighs %s %% of it at %.0f Wh/kg (%s, told by its cell voltages; usual %g..%g %%; "
-           "common practice, from memory)" % (
-               _n(energy_Wh), _n(100.0 * energy_Wh / specific_Wh_kg / mass), specific_Wh_kg, chemistry,
-               100 * PACK_MASS_SHARE_USUAL[0], 100 * PACK_MASS_SHARE_USUAL[1]),),
+        # the share at the typical specific energy, against a band whose top is the most a pack
+        # of the best specific energy may weigh (vehicle_units.pack_share_usual, one rule)
+        "pack energy": (most_share, share_lo, share_hi * best_Wh_kg / specific_Wh_kg, pack_text),
         "motor speed": (hover_rpm / top_rpm, 0.0, 1.0, "hover needs about %s rpm, %g Kv on %s V "
                         "turns at most %s rpm" % (_n(hover_rpm), motor["kv_rpm_per_V"], _n(volts), _n(top_rpm))),
     }

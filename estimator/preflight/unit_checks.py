@@ -18,7 +18,7 @@ from estimator.preflight.slip_diagnosis import too_heavy_warning, whole_vehicle_
 from estimator.units import INCH_M
 from estimator.vehicle import given_text
 # the typical ranges live with the vehicle file's unit reading (one home)
-from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, pack_specific_energy
+from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, pack_energy_range
 
 # below this a propeller is far too large for the mass (a 0.25 kg frame on 10-inch propellers
 # still has 12 N/m^2) [N/m^2]
@@ -152,14 +152,16 @@ def suspicious_values(vehicle):
             out.append(head + ": mAh meant? (%g mAh = %g Ah)" % (bat["capacity_Ah"], bat["capacity_Ah"] * 1e-3))
         else:
             share_lo, share_hi = PACK_MASS_SHARE_USUAL
-            chemistry, specific_Wh_kg = pack_specific_energy(bat)
-            usual = [mass * share * specific_Wh_kg / pack_V for share in (share_lo, share_hi)]
+            chemistry, specific_Wh_kg, best_Wh_kg = pack_energy_range(bat)
+            # the least at the typical specific energy, the most at the best (pack_share_usual)
+            usual = (mass * share_lo * specific_Wh_kg / pack_V, mass * share_hi * best_Wh_kg / pack_V)
             hint = _written_hint(bat["capacity_Ah"], "Ah", lambda c: usual[0] <= c <= usual[1])
-            out.append(head + ": a unit or decimal slip? %s (packs of %.0f..%.0f %% of the all-up mass at about %.0f "
-                       "Wh/kg, %s by the cell voltages, hold %.2g..%.2g Ah on %d cells; common practice, from memory)"
+            out.append(head + ": a unit or decimal slip? %s (packs of %.0f..%.0f %% of the all-up mass at about "
+                       "%.0f..%.0f Wh/kg, %s by the cell voltages, hold %.2g..%.2g Ah on %d cells; common "
+                       "practice, from memory)"
                        % (hint or "check the capacity",
-                          100 * share_lo, 100 * share_hi, specific_Wh_kg, chemistry, usual[0], usual[1],
-                          bat["cells"]))
+                          100 * share_lo, 100 * share_hi, specific_Wh_kg, best_Wh_kg, chemistry, usual[0],
+                          usual[1], bat["cells"]))
     found = whole_vehicle_slip(vehicle)
     if found is not None:  # one key explains the whole vehicle: it goes first, the pairwise checks go
         out = [whole_vehicle_warning(vehicle, found)]
