@@ -11,7 +11,10 @@ How liftcal knows its own files (marks written into every file it writes):
                    "model": "liftcal.settings/..."
                    (both kinds also carry a content seal, estimator.seal: a file edited after
                    liftcal wrote it, or one without a seal, is treated as the person's)
-  kind "png"       PNG figure whose tEXt "Software" chunk starts with "liftcal"
+  kind "png"       PNG figure whose tEXt "Software" chunk starts with "liftcal"; its tEXt
+                   "liftcal-drawn-at" chunk holds the SHA-256 of the path liftcal drew it at
+                   (FIGURE_PATH_KEY): a figure is replaced only there, never as a copy or a
+                   renamed file a person kept (new-user trial 9, finding 10)
   folders          (board bundle, demo): estimator.folders
 
 Writes go to a temporary file in the target folder, then os.replace: never a partial file;
@@ -43,6 +46,8 @@ KIND_NAMES = {"params": "a liftcal parameter set", "settings": "a liftcal settin
 # kinds whose files carry a content seal (estimator.seal): an edited one is never replaced
 SEALED_KINDS = ("params", "settings")
 _PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
+# the PNG tEXt keyword of the drawn-at mark (module docstring)
+FIGURE_PATH_KEY = "liftcal-drawn-at"
 _ANOTHER = "name another path"
 
 
@@ -119,18 +124,47 @@ def file_kind(path):
 
 def _png_software(head):
     """The tEXt "Software" value among the PNG chunks before the image data, or ""."""
+    return _png_text(head, "Software")
+
+
+def _png_text(head, keyword):
+    """The tEXt value of ``keyword`` among the PNG chunks before the image data, or ""."""
     import struct
 
+    key = keyword.encode("latin-1") + b"\0"
     pos = len(_PNG_SIGNATURE)
     while pos + 8 <= len(head):
         length, ctype = struct.unpack(">I4s", head[pos:pos + 8])
         body = head[pos + 8:pos + 8 + length]
         if ctype == b"IDAT" or len(body) < length:
             break
-        if ctype == b"tEXt" and body.startswith(b"Software\0"):
-            return body[9:].decode("latin-1")
+        if ctype == b"tEXt" and body.startswith(key):
+            return body[len(key):].decode("latin-1")
         pos += 12 + length
     return ""
+
+
+def figure_path_mark(path):
+    """The drawn-at mark of a figure written at ``path``: "sha256:" and the SHA-256 of its
+    absolute, link-free path (the path itself stays out of a figure a person may share)."""
+    full = os.path.realpath(os.path.abspath(os.fspath(path)))
+    return "sha256:" + hashlib.sha256(os.fsencode(full)).hexdigest()
+
+
+def _check_figure_place(path, where):
+    """Refuse a liftcal figure that was not drawn at ``path``: a copy or a renamed figure a
+    person kept, or one an older liftcal drew without the mark (FIGURE_PATH_KEY)."""
+    try:
+        with open(path, "rb") as fh:
+            mark = _png_text(fh.read(1 << 16), FIGURE_PATH_KEY)
+    except OSError:
+        mark = ""
+    if mark == figure_path_mark(path):
+        return
+    why = ("liftcal drew it under another name or in another folder: a copy or a renamed figure someone "
+           "kept" if mark else "it carries no record of where liftcal drew it (an older liftcal drew it)")
+    raise InputError("%s: a figure liftcal drew, but %s; liftcal replaces a figure only at the path it "
+                     "drew it at: %s (or move that file away)" % (where, why, _ANOTHER))
 
 
 def check_output(path, kind, inputs=(), option="--out"):
@@ -182,6 +216,8 @@ def check_output(path, kind, inputs=(), option="--out"):
                          % (where, KIND_NAMES[found], KIND_NAMES[kind].replace("liftcal ", ""), _ANOTHER))
     if kind in SEALED_KINDS:
         _check_seal(path, where)
+    if kind == "png":
+        _check_figure_place(path, where)
     return os.path.abspath(path)
 
 
@@ -314,10 +350,13 @@ def write_json(path, document, kind):
 
 
 def save_figure(fig, path, dpi=110):
-    """Save a matplotlib figure as PNG (marked Software: liftcal) atomically after check_output."""
+    """Save a matplotlib figure as PNG atomically after check_output, marked Software: liftcal
+    and with the path it is drawn at (figure_path_mark)."""
+    metadata = {"Software": SOFTWARE, FIGURE_PATH_KEY: figure_path_mark(path)}
+
     def write(fd, tmp):
         with os.fdopen(fd, "wb") as fh:
-            fig.savefig(fh, dpi=dpi, format="png", metadata={"Software": SOFTWARE})
+            fig.savefig(fh, dpi=dpi, format="png", metadata=metadata)
             fh.flush()
             os.fsync(fh.fileno())
 
