@@ -83,6 +83,9 @@ def _message(err):
         unknown = [k for k in value if k not in allowed]
         return "unknown key%s %s%s" % ("s" if len(unknown) > 1 else "", ", ".join(shorten(k) for k in unknown[:3]),
                                         " (and %d more)" % (len(unknown) - 3) if len(unknown) > 3 else "")
+    choice = _key_choice(err)
+    if choice:
+        return choice
     text = str(err.message)
     whole = repr(value)[:10001] if isinstance(value, (str, int, float)) or value is None else None
     if whole is not None and len(whole) > 60 and whole in text:
@@ -90,6 +93,26 @@ def _message(err):
     if len(text) > 300:
         text = "%s (%s)" % (err.validator, shorten(value))
     return text
+
+
+def _key_choice(err):
+    """For an object that meets none of the schema's choices of keys (anyOf / oneOf whose
+    branches each only require keys, e.g. the propeller's ct and cp, or pitch_m): which key
+    of a half-given choice is missing and what the choices are, in words; else ""."""
+    branches = err.validator_value if err.validator in ("anyOf", "oneOf") else None
+    if not isinstance(err.instance, dict) or not isinstance(branches, list) or not branches \
+            or not all(isinstance(b, dict) and set(b) == {"required"} for b in branches):
+        return ""
+    words = "; ".join(" and ".join(b["required"]) for b in branches)
+    half = [(b["required"], [k for k in b["required"] if k not in err.instance]) for b in branches
+            if any(k in err.instance for k in b["required"])]
+    if half:
+        keys, missing = half[0]
+        given = [k for k in keys if k in err.instance]
+        others = " or ".join(" and ".join(b["required"]) for b in branches if b["required"] != keys)
+        return "%s given without %s: give both%s" % (
+            " and ".join(given), " and ".join(missing), ", or %s instead" % others if others else "")
+    return "needs one of: %s" % words
 
 
 def _shown(value):

@@ -300,9 +300,14 @@ def _check_physics(vehicle, source):
                          "instead of rev/s?)" % (source, prop["ct"], prop["cp"], fm))
 
 
-# fraction keys (0..1) a person may write in percent, and an example of each short key written with
-# its unit text, for a schema message that misses it (trial 5, item 9)
-_FRACTION_KEYS = ("$.esc.efficiency", "$.battery.usable_fraction")
+# fraction keys (0..1) a person may write in percent (trial 5, item 9): (the least share that reads
+# as a likely percent, the key's meaning otherwise); ESCs pass about 0.85..0.98 of the bus power, a
+# flight uses about 0.5..0.9 of a pack (common practice): 1.5 is not "1.5 %" (trial 9, finding 11).
+# An example of each short key written with its unit text, for a schema message that misses it.
+_FRACTION_KEYS = {"$.esc.efficiency": (0.5, "it is the share of the bus power an ESC passes on, 1 at most; "
+                                            "ESCs reach about 0.85..0.98 (common practice)"),
+                  "$.battery.usable_fraction": (0.3, "it is the share of the capacity a flight may use, 1 at "
+                                                     "most (the whole pack); 0.8 is common practice")}
 _SHORT_KEY_EXAMPLES = {"mass": "1.05kg", "capacity": "4200mAh", "resistance": "20mohm", "diameter": "254mm",
                        "pitch": "4.5in", "no_load_current": "0.8A", "max_current": "30A", "full_cell": "4.2V",
                        "nominal_cell": "3.7V", "empty_cell": "3.5V"}
@@ -317,8 +322,18 @@ def _schema_hint(message, document):
     m = _ABOVE_ONE.match(message)
     if m and m.group(1) in _FRACTION_KEYS:
         value = float(m.group(2))
-        if 1.0 < value <= 100.0:
+        least, words = _FRACTION_KEYS[m.group(1)]
+        if least * 100.0 <= value <= 100.0:
             return message + ": percent meant? %g %% is %g (a fraction of 1)" % (value, value / 100.0)
+        return message + ": " + words
+    # the propeller's coefficients or its pitch (jsonio._key_choice), the pitch as a builder writes
+    # it (vehicle_units): liftcal then estimates ct and cp by blade element momentum theory
+    pitch = 'the pitch ("size": "10x4.5in", or "pitch": "4.5in"), from which liftcal estimates both'
+    if ": $.propeller: " in message and message.endswith(", or pitch_m instead"):
+        return message[:-len("pitch_m instead")] + pitch
+    if message.endswith(": $.propeller: needs one of: ct and cp; pitch_m"):
+        return message[:-len("needs one of: ct and cp; pitch_m")] + "give ct and cp (the propeller's " \
+            "static coefficients), or " + pitch
     m = _REQUIRED.match(message)
     if m:
         block = m.group(2)[2:]

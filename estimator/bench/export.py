@@ -90,17 +90,26 @@ def _missing_hint(params, source):
     return ""
 
 
-def export_settings(params, mapping, source_name="map"):
+def export_settings(params, mapping, source_name="map", params_name=None):
     """Mapped settings, in map order, as dicts: name, value (int when decimals is 0, else
     float), unit, source, source_value, source_unit, scale, offset.
 
-    params: validated parameter set; mapping: validated map dict. Raises InputError naming
-    the map entry when a source is missing, not a number, or the result is out of bounds.
+    params: validated parameter set; mapping: validated map dict; source_name, params_name: the
+    two files as the messages name them. Raises InputError naming the map entry when a source is
+    missing, not a number, or the result is out of bounds; naming the parameter set (params_name)
+    when the map asks for hover values a set fitted without a vehicle does not have (the set is
+    at fault, not the map: trial 9, finding 11).
     """
     out = []
     for i, entry in enumerate(mapping["settings"]):
         where = "%s: $.settings[%d] (%s)" % (source_name, i, entry["name"])
         value = lookup(params, entry["source"])
+        if value is None and params_name is not None and entry["source"].startswith("hover.") \
+                and "hover" not in params:
+            raise InputError("%s: this parameter set has no hover values (it was fitted without "
+                             "--vehicle), and the map's setting %s takes %s (%s: $.settings[%d]): fit "
+                             "the sweep again with --vehicle, or give a --map without hover settings"
+                             % (params_name, entry["name"], entry["source"], source_name, i))
         if value is None:
             raise InputError("%s: source %r is not in the parameter set%s"
                              % (where, entry["source"], _missing_hint(params, entry["source"])))

@@ -292,7 +292,8 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     edited = edited_set_warning(params_file, from_edited, "the settings")
     path = EXAMPLE_MAP if map_file is None else map_file
     mapping = load_map(path)
-    settings = export_settings(params, mapping, path)
+    settings = export_settings(params, mapping, shown(path) if map_file is not None else
+                               "the shipped example-map.json", shown(params_file))
     header = "liftcal settings from %s through %s (%d); %s" % (
         shown(os.path.basename(params_file)), shown(os.path.basename(path)), len(settings), SHORT)
     if edited:
