@@ -167,6 +167,22 @@ def _check_figure_place(path, where):
                      "drew it at: %s (or move that file away)" % (where, why, _ANOTHER))
 
 
+def _suffix_refusal(path, kind, where):
+    """The InputError for an output name whose ending says another format than ``kind`` writes
+    (a figure is PNG; a parameter set is JSON: "params_out.csv" would hold JSON under a name that
+    reads as a bench sweep or a flight log, trial 9, finding 12), or None."""
+    name = path.lower()
+    if kind == "png" and not name.endswith(".png"):
+        return InputError("%s: liftcal draws figures as PNG only; name a file ending in .png" % where)
+    if kind == "params" and not name.endswith(".json"):
+        ending = os.path.splitext(name)[1]
+        why = {".csv": " (a .csv name reads as a bench sweep or a flight log)", "": ""}.get(
+            ending, " (a %s name reads as another kind of file)" % ending)
+        return InputError("%s: a parameter set is a JSON file%s; name a file ending in .json (e.g. params.json)"
+                          % (where, why))
+    return None
+
+
 def check_output(path, kind, inputs=(), option="--out"):
     """Refuse an output file path liftcal must not write (module docstring); return it absolute.
 
@@ -188,11 +204,12 @@ def check_output(path, kind, inputs=(), option="--out"):
     if not os.path.isdir(directory):
         raise InputError("%s: %s is a file, not a folder: %s" % (where, shown(directory), _ANOTHER))
     st = _lstat(path, where)
-    png_only = kind == "png" and not path.lower().endswith(".png")
+    wrong_suffix = _suffix_refusal(path, kind, where)
     if st is None:
-        if png_only:
-            raise InputError("%s: liftcal draws figures as PNG only; name a file ending in .png" % where)
+        if wrong_suffix:
+            raise wrong_suffix
         return os.path.abspath(path)
+    png_only = kind == "png" and wrong_suffix   # a figure's name first; another file's kind first
     same = _same_as_input(path, inputs)
     if same is not None:
         raise InputError("%s: is also an input of this command (%s); liftcal never writes over "
@@ -206,7 +223,7 @@ def check_output(path, kind, inputs=(), option="--out"):
         raise InputError("%s: is %s, not a file liftcal may replace: %s"
                          % (where, special_kind(st.st_mode), _ANOTHER))
     if png_only:
-        raise InputError("%s: liftcal draws figures as PNG only; name a file ending in .png" % where)
+        raise wrong_suffix
     found = file_kind(path) if kind is not None else None
     if found is None:
         raise InputError("%s: a file liftcal did not write is already there; liftcal never "
@@ -214,6 +231,8 @@ def check_output(path, kind, inputs=(), option="--out"):
     if found != kind:
         raise InputError("%s: is %s, and this would write %s over it: %s"
                          % (where, KIND_NAMES[found], KIND_NAMES[kind].replace("liftcal ", ""), _ANOTHER))
+    if wrong_suffix:
+        raise wrong_suffix
     if kind in SEALED_KINDS:
         _check_seal(path, where)
     if kind == "png":
@@ -256,14 +275,17 @@ def check_outputs(outputs, inputs=()):
     """check_output for every (path, kind, option) given (None paths skipped); also refuses
     two outputs at the same path."""
     seen = {}
-    for path, kind, option in outputs:
-        if path is None:
+    for path, kind, option in outputs:   # the same path twice is said first: the plainest cause
+        if path is None or os.fspath(path) == "":
             continue
-        full = check_output(path, kind, inputs, option)
+        full = os.path.realpath(os.path.abspath(os.fspath(path)))
         if full in seen:
             raise InputError("%s %s: the same path as %s; each output needs its own path"
                              % (option, path, seen[full]))
         seen[full] = option
+    for path, kind, option in outputs:
+        if path is not None:
+            check_output(path, kind, inputs, option)
 
 
 def file_sha256(path):

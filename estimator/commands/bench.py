@@ -77,9 +77,11 @@ def vehicle_hover(params, vehicle):
               help="Propeller diameter (e.g. 10in, 0.254); else '# diameter:' in the CSV or the vehicle.")
 @click.option("--density", type=Bounded("density", "density", positive=True), default=None,
               help="Bench air density [kg/m^3]; overrides the CSV comments (not with --altitude etc.).")
-@click.option("--altitude", type=Bounded("altitude", "altitude"), default=None, help="Bench altitude (e.g. 300m).")
-@click.option("--temperature", type=Bounded("temperature", "temperature"), default=None,
-              help="Bench air temperature (e.g. 21C).")
+# a bare number is refused, as by air and static: 5000 may mean metres or feet, 30 C or F (trial 9, finding 8)
+@click.option("--altitude", type=Bounded("altitude", "altitude", unit_example="300m or 1000ft"), default=None,
+              help="Bench altitude, with its unit (e.g. 300m, 1000ft).")
+@click.option("--temperature", type=Bounded("temperature", "temperature", unit_example="21C or 70F"), default=None,
+              help="Bench air temperature, with its unit (e.g. 21C, 70F).")
 @click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
               help="Bench station pressure (e.g. 1013hPa), not sea-level QNH.")
 @click.option("--humidity", type=Bounded("percent", "humidity"), default=None,
