@@ -140,8 +140,10 @@ def main(argv=None):
         fail("aborted", as_json)
         sys.exit(2)
     except click.exceptions.NoArgsIsHelpError as exc:
-        click.echo(exc.ctx.get_help() if exc.ctx is not None else cli.get_help(click.Context(cli)))
-        sys.exit(0)
+        # no command given: the help on stderr and exit 2, click's own standard for a group run
+        # without one (trial 9, finding 15: it exited 0, as if a command had run)
+        click.echo(exc.ctx.get_help() if exc.ctx is not None else cli.get_help(click.Context(cli)), err=True)
+        sys.exit(2)
     except click.ClickException as exc:
         msg = exc.format_message().replace("\n", " ")
         ctx_cmd = getattr(getattr(exc, "ctx", None), "command_path", "liftcal")
