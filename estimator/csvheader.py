@@ -3,8 +3,8 @@
 Used by estimator.csvtable (bench sweeps and flight logs alike). Every problem of a header
 is collected and reported in ONE error (still one ``error:`` line), each named by its
 column, so a header from another tool's export is fixed in one round trip. A cell whose
-words name one of liftcal's columns in the trade's plain words (``ESC signal (us)``,
-``Thrust (gf)``, ``Motor speed (RPM)``) gets liftcal's own cell as the hint
+words name one of liftcal's columns in the trade's plain words (``Pulse width (us)``,
+``Lift (gf)``, ``Shaft speed (RPM)``) gets liftcal's own cell as the hint
 (``command[us]``, ``thrust[gf]``, ``rpm[rpm]``); the column is never renamed silently:
 the person fixes the header. Unit spellings (``µs`` for ``us``) come from the one unit
 table, estimator.units.
@@ -17,7 +17,7 @@ from estimator.errors import InputError, shorten
 from estimator.units import unit_spelling
 
 _HEADER_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*(?:\[([^\]]*)\])?\s*$")
-# a spreadsheet-style cell: 'Thrust (gf)', 'ESC signal (µs)'
+# a spreadsheet-style cell: 'Lift (gf)', 'Pulse width (µs)'
 _SPREADSHEET_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*\(([^)]*)\)\s*$")
 
 # the most problems one error line lists (a header of thousands of columns stays one short line)
@@ -45,7 +45,7 @@ def _words(name):
 def column_for(name, known):
     """liftcal's column among ``known`` that the header name ``name`` (lower case) means, or
     None: the name itself, a trade word of it (the last one that names a column: 'motor
-    speed' -> rpm, 'esc signal' -> command) or a close misspelling ('voltge')."""
+    speed' -> rpm, 'pulse width' -> command) or a close misspelling ('voltge')."""
     if name in known:
         return name
     for word in reversed(_words(name)):

@@ -1,7 +1,7 @@
 """Headers from a thrust stand's or a logger's export, and the bench sweep's optional columns
 (trial 5, items 5 and 6), through the commands.
 
-A header written the usual spreadsheet way (``ESC signal (µs)``, ``Thrust (gf)``) is refused
+A header written the usual spreadsheet way (``Pulse width (µs)``, ``Lift (gf)``: invented cells) is refused
 with every problem in ONE `error:` line, each named by its column, and the hint is liftcal's
 own cell (``command[us]``): doing what the hints say must give a file that fits. Nothing is
 renamed silently. Optional bench columns are read and checked like the others (text refused
@@ -49,33 +49,34 @@ def _refused(args):
     return lines[0]
 
 
-STAND = "ESC signal (\u00b5s),Voltage (V),Current (A),Thrust (gf),Motor Speed (RPM)"
+# an INVENTED export header in a spreadsheet's style (our own words, no tool's format)
+STAND = "Pulse width (\u00b5s),Supply volts (V),Supply amps (A),Lift (gf),Shaft Speed (RPM)"
 
 
 def test_stand_header_lists_every_problem_with_liftcals_cells_in_one_line(tmp_path):
     path = _write(tmp_path, STAND, _rows(extra=lambda k: [1000 * k]))
     line = _refused(["fit", path, "--out", tmp_path / "p.json"])
     assert "5 header problems" in line, line
-    for col, cell, ours in ((1, "'ESC signal (\u00b5s)'", "command[us]"), (2, "'Voltage (V)'", "voltage[V]"),
-                            (3, "'Current (A)'", "current[A]"), (4, "'Thrust (gf)'", "thrust[gf]"),
-                            (5, "'Motor Speed (RPM)'", "rpm[rpm]")):
+    for col, cell, ours in ((1, "'Pulse width (\u00b5s)'", "command[us]"), (2, "'Supply volts (V)'", "voltage[V]"),
+                            (3, "'Supply amps (A)'", "current[A]"), (4, "'Lift (gf)'", "thrust[gf]"),
+                            (5, "'Shaft Speed (RPM)'", "rpm[rpm]")):
         assert re.search(r"column %d %s: write %s(;|$)" % (col, re.escape(cell), re.escape(ours)), line), (col, line)
-    assert "esc signal[" not in line  # never a hint that liftcal then refuses (trial 5)
+    assert "pulse width[" not in line  # never a hint that liftcal then refuses (trial 5)
     assert not (tmp_path / "p.json").exists()
 
 
 def test_a_wide_stand_export_fits_one_line_with_every_column_named(tmp_path):
-    # a stand's export often carries a dozen columns (powers, efficiencies) liftcal does not use
-    header = ("Time (s),ESC signal (\u00b5s),Thrust (kgf),Torque (N\u00b7m),Voltage (V),Current (A),"
-              "Motor Speed (RPM),Electrical Power (W),Mechanical Power (W),Motor Efficiency (%),"
-              "Propeller Efficiency (gf/W),Overall Efficiency (gf/W),Temperature (\u00b0C)")
+    # an export often carries a dozen columns (powers, efficiencies) liftcal does not use; INVENTED cells
+    header = ("Elapsed (s),Pulse width (\u00b5s),Lift (kgf),Shaft torque (N\u00b7m),Supply volts (V),Supply amps (A),"
+              "Shaft speed (RPM),Bus power (W),Shaft power (W),Drive efficiency (%),"
+              "Grams per watt (gf/W),System grams per watt (gf/W),Winding temp (\u00b0C)")
     path = _write(tmp_path, header, ["0,1000,0,0,16,0,0,0,0,0,0,0,20"] * 12)
     line = _refused(["fit", path, "--out", tmp_path / "p.json"])
     assert not line.endswith("..."), line  # not cut short
     for ours in ("time[s]", "command[us]", "thrust[kgf]", "torque[N*m]", "voltage[V]", "current[A]",
                  "rpm[rpm]", "temperature[C]"):
         assert ": write %s" % ours in line, ours
-    assert "column 8 'Electrical Power (W)', column 9 'Mechanical Power (W)' and 3 more: not name[unit], " \
+    assert "column 8 'Bus power (W)', column 9 'Shaft power (W)' and 3 more: not name[unit], " \
            "not used by liftcal: delete them or write name[unit]" in line, line
 
 

@@ -199,7 +199,8 @@ def _check_disk_loading(thrust_N, area_m2, diameter_m):
               help="Payloads to add to the mass, with their unit: a range 0..2kg (a round step of 1, 2, "
                    "2.5 or 5 x 10^k near an eighth of the range, ends included: 7 to 13 payloads; 0..1kg "
                    "gives 0, 0.1, ..., 1 kg, 11 payloads, 0..3kg gives 0, 0.5, ..., 3 kg, 7) or a list "
-                   "0,500g,1kg: endurance and margins per payload and the largest payload that keeps them.")
+                   "0,500g,1kg (a number without a unit takes the list's last unit: 0,0.25,0.5kg): "
+                   "endurance and margins per payload and the largest payload that keeps them.")
 @click.option("--job-time", "job_time", type=Quantity("time", positive=True, unit_example="15min or 900s"),
               default=None,
               help="With --payload: the hover time the job needs, with its unit (15min, 900s); "
