@@ -8,6 +8,7 @@ the next command.
 
 import json
 import os
+import re
 import subprocess
 import sys
 
@@ -91,3 +92,30 @@ def test_the_demo_command_fits_80_columns(monkeypatch, tmp_path):
     lines = res.stdout.splitlines()
     assert len(lines) > 2 and max(len(line) for line in lines) <= 80
     assert " ".join(res.stdout.split()).endswith("with nobody in the plane of the rotors.")
+
+
+def test_the_demo_header_keeps_each_sentence_on_its_line(demo_run):
+    # new-user trial 9, finding 15: the header wrapped mid-sentence at 80 columns ('...28 C' then
+    # '  site;' alone); each sentence now has its own line within 80 columns
+    from estimator.textwidth import fit_width
+
+    lines = fit_width(demo_run[2]).split("\n")
+    assert lines[0] == "liftcal demo: an INVENTED 2.05 kg survey quad at a 1400 m, 28 C site.", lines[0]
+    assert lines[1].startswith("Its bench sweep and flights are simulated. Files go to")
+
+
+def test_the_readme_names_the_files_the_demo_writes(demo_run):
+    # README: 'The demo writes its files into liftcal-demo/ (vehicle.json, ...)': each exists
+    from io_helpers import ROOT
+
+    out = demo_run[0]
+    with open(os.path.join(ROOT, "README.md"), encoding="utf-8") as fh:
+        text = " ".join(fh.read().split())
+    said = text[text.index("The demo writes its files into"):].split("cd liftcal-demo")[0]
+    names = re.findall(r"`([^`]+)`", said)
+    assert {"vehicle.json", "bench.csv", "params.json", "settings.txt", "board/"} <= set(names), names
+    for name in names:
+        if name.startswith("flight-"):
+            assert [f for f in os.listdir(out) if f.startswith("flight-") and f.endswith(".csv")], name
+        elif name != "liftcal-demo/":
+            assert os.path.exists(os.path.join(out, name.rstrip("/"))), name
