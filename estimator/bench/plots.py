@@ -54,6 +54,18 @@ def user_units(params):
                                    "permille": "command [permille]"}.get(c_unit, "command u [-]")
 
 
+# the top of the legend band [figure fraction]: below the residual panel's tick labels and axis label
+LEGEND_TOP = 0.2
+
+
+def legend_below(fig, ax, handles_labels, top=LEGEND_TOP):
+    """A legend for ``ax`` in the band below the panels (figure coordinates, left-aligned with
+    ``ax``), outside every data area."""
+    handles, labels = handles_labels
+    return ax.legend(handles, labels, loc="upper left", fontsize=8, frameon=False,
+                      bbox_to_anchor=(ax.get_position().x0, top), bbox_transform=fig.transFigure)
+
+
 def plot_fit(path, params, rows):
     """Draw the two panels to ``path`` (PNG), written through a temporary file and a rename.
 
@@ -81,8 +93,10 @@ def plot_fit(path, params, rows):
     c_unit = {"us": " us", "%": " %", "permille": " permille"}.get(
         params.get("provenance", {}).get("units", {}).get("command", "-"), "")
 
-    fig = plt.figure(figsize=(12, 6.5))
-    grid = fig.add_gridspec(2, 2, height_ratios=[3, 1], hspace=0.08, wspace=0.22)
+    # the legends go in a band below the panels, never over the data (trial 9, finding 15: the
+    # thrust panel's legend covered the curve between about 1650 and 1830 us)
+    fig = plt.figure(figsize=(12, 8.6))
+    grid = fig.add_gridspec(2, 2, height_ratios=[3, 1], hspace=0.08, wspace=0.22, top=0.93, bottom=0.3)
     ax = fig.add_subplot(grid[0, 0])
     axr = fig.add_subplot(grid[1, 0], sharex=ax)
     axp = fig.add_subplot(grid[:, 1])
@@ -121,7 +135,7 @@ def plot_fit(path, params, rows):
                                                        params["vehicle"].get("name", "vehicle")))
     ax.set_ylabel("thrust at %.2f V [%s]" % (curve["reference_voltage_V"], t_unit))
     ax.set_title("Thrust curve (bench air %.3f kg/m^3)" % rho)
-    ax.legend(loc="upper left", fontsize=8)
+    legend_below(fig, ax, ax.get_legend_handles_labels())
     ax.grid(alpha=0.3)
     plt.setp(ax.get_xticklabels(), visible=False)
     axr.plot(cu(u[used]), tf * (t - t_model)[used], ".", ms=2, color="0.35")
@@ -147,7 +161,7 @@ def plot_fit(path, params, rows):
     axp.set_ylabel("electrical power P [W]")
     axp.set_title("Power against thrust; k = %.2f at %s" % (
         params["static_factor"]["value"], params["static_factor"].get("value_at", "median thrust")))
-    axp.legend(loc="upper left", fontsize=8)
+    legend_below(fig, axp, axp.get_legend_handles_labels())
     axp.grid(alpha=0.3)
     fig.suptitle("liftcal bench fit: %s (%s)" % (params["provenance"]["input_file"], SHORT), fontsize=9)
 

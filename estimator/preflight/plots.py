@@ -29,7 +29,7 @@ def plot_compare(path, result, name):
     when there are at most LABEL_ALL of them, else the first LABEL_ALL by rank.
     """
     plt = _pyplot()
-    fig, ax = plt.subplots(figsize=(8.0, 5.5))
+    fig, ax = plt.subplots(figsize=(8.0, 6.2))
     rows = [r for r in result["rows"] if r["hover_command"] is not None and r["flight_time_lead_min"] is not None]
     for keeps, colour, label in ((True, "tab:green", "keeps every margin"),
                                  (False, "tab:red", "breaks a margin")):
@@ -37,10 +37,11 @@ def plot_compare(path, result, name):
         if pts:
             ax.scatter([r["hover_command"] for r in pts], [r["flight_time_lead_min"] for r in pts],
                        c=colour, label=label, s=30, alpha=0.8)
+    labels = []
     for r in sorted(rows, key=lambda r: r["rank"])[:LABEL_ALL]:
         short = ", ".join(str(v) for v in r["values"].values())
-        ax.annotate("#%d %s" % (r["rank"], short), (r["hover_command"], r["flight_time_lead_min"]), fontsize=7,
-                    xytext=(4, 4), textcoords="offset points")
+        labels.append(ax.annotate("#%d %s" % (r["rank"], short), (r["hover_command"], r["flight_time_lead_min"]),
+                                  fontsize=7, xytext=(4, 4), textcoords="offset points"))
     ax.margins(x=0.25, y=0.1)
     ax.axvline(HOVER_COMMAND_LIMIT, color="grey", ls="--", lw=1)
     ax.text(HOVER_COMMAND_LIMIT, ax.get_ylim()[0], " command limit %.1f" % HOVER_COMMAND_LIMIT,
@@ -50,11 +51,57 @@ def plot_compare(path, result, name):
     ax.set_title("%s: %d combinations\nvaried: %s" % (name, len(result["rows"]), ", ".join(result["varied"])),
                  fontsize=9)
     ax.grid(True, alpha=0.3)
-    ax.legend(fontsize=8)
+    fig.tight_layout(rect=(0.0, 0.1, 1.0, 1.0))
+    _legend_below(fig, ax, ax.get_legend_handles_labels(), ncol=2)
     fig.text(0.01, 0.01, SHORT, fontsize=7, color="grey")
-    fig.tight_layout()
+    _spread_labels(fig, labels, [(r["hover_command"], r["flight_time_lead_min"]) for r in rows])
     save_figure(fig, path)
     plt.close(fig)
+
+
+# offsets [points] a point's label tries, in order, until it overlaps no label placed before it
+_LABEL_OFFSETS = ((4, 4), (4, -11), (-4, 4), (-4, -11), (4, 14), (4, -21), (-4, 14), (-4, -21),
+                  (4, 24), (4, -31))
+
+
+def _spread_labels(fig, labels, points=()):
+    """Move each point label (in rank order) to the first of _LABEL_OFFSETS where its box overlaps
+    no earlier label's and no point's marker (``points``: (x, y) in data coordinates) (trial 9,
+    finding 15: labels #6 and #7 of a compare plot overlapped); a label that finds none keeps its
+    first place."""
+    from matplotlib.transforms import Bbox
+
+    renderer = fig.canvas.get_renderer()
+    half = 3.0 * fig.dpi / 72.0               # a marker's half width [pixels]: 3 points
+    placed = []
+    for label in labels:
+        x, y = label.axes.transData.transform(label.xy)
+        placed.append(Bbox([[x - half, y - half], [x + half, y + half]]))
+    for x, y in points:
+        x, y = labels[0].axes.transData.transform((x, y)) if labels else (x, y)
+        placed.append(Bbox([[x - half, y - half], [x + half, y + half]]))
+    for label in labels:
+        for dx, dy in _LABEL_OFFSETS:
+            label.set_position((dx, dy))       # the offset, in points (textcoords)
+            label.set_horizontalalignment("left" if dx >= 0 else "right")
+            label.set_verticalalignment("bottom" if dy >= 0 else "top")
+            box = label.get_window_extent(renderer)
+            if not any(box.overlaps(other) for other in placed):
+                break
+        else:
+            label.set_position(_LABEL_OFFSETS[0])
+            label.set_horizontalalignment("left")
+            label.set_verticalalignment("bottom")
+            box = label.get_window_extent(renderer)
+        placed.append(box)
+
+
+def _legend_below(fig, ax, handles_labels, ncol=1):
+    """The legend in the band below the axes (figure coordinates), outside the data area
+    (trial 9, finding 15: the payload legend hid the 0 g and 5 g points)."""
+    handles, labels = handles_labels
+    return ax.legend(handles, labels, loc="upper left", fontsize=8, frameon=False, ncol=ncol,
+                      bbox_to_anchor=(ax.get_position().x0, 0.095), bbox_transform=fig.transFigure)
 
 
 def plot_payload(path, result, name, unit="kg"):
@@ -66,7 +113,7 @@ def plot_payload(path, result, name, unit="kg"):
     plt = _pyplot()
     scale = parse_quantity("1" + unit, "mass")
     rows = result["rows"]
-    fig, ax = plt.subplots(figsize=(8.0, 5.0))
+    fig, ax = plt.subplots(figsize=(8.0, 6.6))
     xs = [r["payload_kg"] / scale for r in rows if r["flight_time_lead_min"] is not None]
     ys = [r["flight_time_lead_min"] for r in rows if r["flight_time_lead_min"] is not None]
     ax.plot(xs, ys, "-", color="tab:blue", lw=1.5, label="endurance")
@@ -106,8 +153,9 @@ def plot_payload(path, result, name, unit="kg"):
     ax.grid(True, alpha=0.3)
     handles, labels = ax.get_legend_handles_labels()
     more, more_labels = ax2.get_legend_handles_labels()
-    ax.legend(handles + more, labels + more_labels, fontsize=8, loc="upper right")
+    fig.tight_layout(rect=(0.0, 0.26, 1.0, 1.0))
+    _legend_below(fig, ax, (handles + more, labels + more_labels), ncol=1).set_bbox_to_anchor(
+        (ax.get_position().x0, 0.25), transform=fig.transFigure)
     fig.text(0.01, 0.01, SHORT, fontsize=7, color="grey")
-    fig.tight_layout()
     save_figure(fig, path)
     plt.close(fig)
