@@ -43,3 +43,11 @@ def test_the_parameter_set_must_be_named_json(tmp_path, name, why):
     assert not out.exists() and sorted(p.name for p in tmp_path.iterdir()) == ["b.csv"]
     code, text, _ = run(["fit", _sweep(tmp_path, ""), "--out", tmp_path / "P.JSON"])
     assert code == 0 and (tmp_path / "P.JSON").exists(), line
+
+
+def test_the_assumed_temperatures_altitude_is_quoted_to_the_metre(tmp_path):
+    # finding 15: '# altitude: 1150ft' was quoted as '350.52 m' (1150 ft = 350.52 m, 1 ft = 0.3048 m
+    # exact); the standard atmosphere's temperature there needs no centimetres
+    summary, _ = _fit_json(tmp_path, _sweep(tmp_path, "# altitude: 1150ft\n"))
+    text = " ".join(" ".join(summary["warnings"]).split())
+    assert "temperature at 351 m is assumed" in text and "350.52" not in text, text

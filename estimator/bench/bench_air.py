@@ -49,7 +49,7 @@ def bench_air(path, comments, density, altitude, temperature, pressure, humidity
         source = named + ", standard atmosphere for the rest"
         if "temperature" not in given:
             warnings.append("bench air: no temperature given, so the standard atmosphere's temperature "
-                            "at %g m is assumed with the %s given by the %s; add '# temperature: C' to "
+                            "at %.0f m is assumed with the %s given by the %s; add '# temperature: C' to "
                             "the CSV" % (given.get("altitude", 0.0), " and ".join(sorted(given)), named))
         if "altitude" not in given and "pressure" not in given:
             warnings.append("bench air: no altitude or pressure given, so sea-level standard pressure "
