@@ -106,6 +106,25 @@ def _command(report, key, none="n/a"):
     return _num(value, "%.2f", none=none) + (" (%s)" % command_text(value, unit) if unit and value is not None else "")
 
 
+def hover_below_cutoff(report):
+    """The verdict's words when holding the weight sags a nominal pack below its loaded cutoff,
+    else None. Then the thrust-to-weight reachable before the cutoff (warnings.judged_thrust_to_weight,
+    marked) is below 1, and 'it holds its weight' would contradict it: the hover command is
+    reached only past the cutoff. Reads hover_bus_V [V], cells [-], cutoff_cell_V [V]."""
+    tw, marked = judged_thrust_to_weight(report)
+    if not marked or tw is None or tw >= 1.0:
+        return None
+    cells, bus, cutoff = report.get("cells"), report.get("hover_bus_V"), report.get("cutoff_cell_V")
+    sagged = ("which sags a nominal pack to %s V per cell, below its %.2f V loaded cutoff"
+              % (beside(bus / cells, cutoff), cutoff) if cells and bus is not None and cutoff is not None
+              else "which sags a nominal pack below its loaded cutoff")
+    return ("holding its weight takes command %s, %s: before the cutoff it reaches only thrust-to-weight "
+            "%s (command %s), so it sinks on a nominal pack; check $.battery.cutoff_cell_V (a loaded "
+            "cutoff this close to the nominal cell voltage ends every flight early) or the pack"
+            % (_command(report, "hover_command"), sagged, judged_thrust_to_weight_text(report),
+               _command(report, "reachable_command")))
+
+
 def _small_rotor_leads(report):
     """True when the report's hover numbers are at the small-rotor figure of merit (preflight.report:
     a small estimated rotor that hovers there), the generic blade's estimate beside them."""
@@ -157,7 +176,10 @@ def format_sheet(report):
                                                           "looks" if len(suspect) == 1 else "look"))
     if report.get("can_hover"):
         why_not = not_flyable_reasons(report)
-        if why_not:
+        below_cutoff = hover_below_cutoff(report)
+        if below_cutoff:
+            lines.append("   NOT ON A NOMINAL PACK - " + below_cutoff)
+        elif why_not:
             lines.append("   ONLY JUST - it holds its weight at command %s on a nominal pack, but it is not "
                          "flyable: %s" % (_command(report, "hover_command"), "; ".join(why_not)))
         else:
