@@ -96,6 +96,38 @@ def _hot_motor(columns, extra, cols, extremes):
     return HOT_MOTOR % ("temperature[%s]" % columns["temperature"][1], top, HOT_MOTOR_C)
 
 
+# a temperature column labelled C whose every reading is above this is in kelvin: room
+# temperature is about 293 K, and no motor sweeps with its coldest reading at 200 C (common
+# practice: ordinary motors are rated to about 80..180 C) [C]
+KELVIN_LOOKING_C = 200.0
+
+
+def _kelvin_as_celsius(path, columns, extra, cols, extremes):
+    """Refuse a temperature[C] column whose lowest reading is above KELVIN_LOOKING_C: the
+    readings are kelvin labelled C (the rotor at rest reads room temperature, about 293 K), and
+    the hot-motor caution would be false. cols, extremes: load_numbers' arrays [C] and (min, max)
+    pairs (or None: then cols holds every column)."""
+    import numpy as np
+
+    if "temperature" not in extra or columns["temperature"][1] != "C":
+        return
+    k = len(REQUIRED) + extra.index("temperature")
+    if extremes is not None:
+        lowest, highest = (float(x) for x in extremes[k])
+    else:  # a missing reading somewhere: the rest still count
+        values = np.asarray(cols[k], dtype=float)
+        values = values[np.isfinite(values)]
+        if not values.size:
+            return
+        lowest, highest = float(np.min(values)), float(np.max(values))
+    if not lowest > KELVIN_LOOKING_C:
+        return
+    raise InputError("%s: column %d 'temperature[C]': even its lowest reading, %.1f C (highest %.1f C), "
+                     "is above %.0f C, where the rotor stands at room temperature: kelvin labelled C? "
+                     "(room temperature is about 293 K) label the column temperature[K]"
+                     % (path, columns["temperature"][0] + 1, lowest, highest, KELVIN_LOOKING_C))
+
+
 def _time_back(path, header_line, time_s, unit):
     """A warning (str) naming the first row where the bench's time column goes back, in the
     flight-log reader's words (estimator.watch.log_checks.check_time), else None. The fit does
@@ -151,6 +183,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
         kept=len(REQUIRED) + (1 if "time" in extra else 0))  # time is OPTIONAL's first
     data = {name: col for name, col in zip(REQUIRED, cols)}
     data["optional"] = cols[len(REQUIRED):]  # none when every value is finite: nothing to drop
+    _kelvin_as_celsius(path, columns, extra, cols, extremes)
     hot = _hot_motor(columns, extra, cols, extremes)
     if hot:
         warnings.append(hot)

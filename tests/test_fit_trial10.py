@@ -1,0 +1,50 @@
+"""Tenth new-user trial, bench items (finding 7): a temperature column in kelvin labelled C is
+refused with a unit hint instead of a hot-motor caution. The sweep is the INVENTED 10-inch
+rotor of test_fit_tare_trial8 (its own DC motor model)."""
+
+import pytest
+
+from test_fit_tare_trial8 import _sweep
+from trial_helpers import ok, refused
+
+# room temperature about 20 C is about 293 K (0 C = 273.15 K, SI brochure); no motor sweeps with
+# its coldest reading above 200 C (common practice)
+ROOM_K = 293.15
+
+
+def _with_temperature(text, start, top, unit="C", blank_row=None):
+    """The sweep with a temperature[unit] column rising from start to top over the rows (one
+    cell left empty at blank_row)."""
+    lines = text.splitlines()
+    head = next(i for i, line in enumerate(lines) if line.startswith("command"))
+    rows = len(lines) - head - 1
+    out = lines[:head] + [lines[head] + ",temperature[%s]" % unit]
+    for k, line in enumerate(lines[head + 1:]):
+        out.append("%s,%s" % (line, "" if k == blank_row else "%.1f" % (start + (top - start) * k / (rows - 1))))
+    return "\n".join(out) + "\n"
+
+
+@pytest.mark.parametrize("blank_row", [None, 7])
+def test_kelvin_labelled_celsius_is_refused_with_a_unit_hint(tmp_path, blank_row):
+    csv = tmp_path / "k.csv"
+    csv.write_text(_with_temperature(_sweep(0.0), ROOM_K, ROOM_K + 20.0, blank_row=blank_row))
+    out = tmp_path / "p.json"
+    line = refused("fit", csv, "--out", out)
+    assert "k.csv: column 5 'temperature[C]': even its lowest reading, 293.1 C" in line, line
+    assert "kelvin labelled C?" in line and "label the column temperature[K]" in line
+    assert "got hot" not in line and not out.exists()
+
+
+def test_the_same_readings_labelled_kelvin_give_no_hot_motor_caution(tmp_path):
+    csv = tmp_path / "k.csv"
+    csv.write_text(_with_temperature(_sweep(0.0), ROOM_K, ROOM_K + 20.0, unit="K"))
+    text = " ".join(ok("fit", csv, "--out", tmp_path / "p.json").split())
+    assert "got hot" not in text and "kelvin" not in text
+
+
+def test_a_motor_that_really_got_hot_still_gets_the_caution(tmp_path):
+    # from 20 C at rest to 250 C: a burning motor, not kelvin (its coldest reading is room air)
+    csv = tmp_path / "hot.csv"
+    csv.write_text(_with_temperature(_sweep(0.0), 20.0, 250.0))
+    text = " ".join(ok("fit", csv, "--out", tmp_path / "p.json").split())
+    assert "temperature[C] read up to 250 C, above about 80 C" in text
