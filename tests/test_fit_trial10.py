@@ -48,3 +48,23 @@ def test_a_motor_that_really_got_hot_still_gets_the_caution(tmp_path):
     csv.write_text(_with_temperature(_sweep(0.0), 20.0, 250.0))
     text = " ".join(ok("fit", csv, "--out", tmp_path / "p.json").split())
     assert "temperature[C] read up to 250 C, above about 80 C" in text
+
+
+def test_a_diameter_that_is_not_the_vehicles_is_named_before_the_static_factor_check(tmp_path):
+    # trial 10: --diameter 11in against a 22in vehicle was blamed on "thrust in lbf labelled as
+    # kgf" by the k <= 1 check (k grows as D^(-2/3): half the diameter is 1.59 x k, above 1 from
+    # the sweep's k of about 0.7); the mismatch itself is the cause
+    import json
+
+    from test_fit_tare_trial8 import VEHICLE
+
+    csv, vehicle = tmp_path / "s.csv", tmp_path / "v.json"
+    csv.write_text(_sweep(0.0))
+    vehicle.write_text(json.dumps(VEHICLE))
+    inch = 0.0254  # m, exact by definition (international inch, 1959)
+    half = VEHICLE["propeller"]["diameter_m"] / 2.0 / inch
+    line = refused("fit", csv, "--vehicle", vehicle, "--diameter", "%.1fin" % half, "--out", tmp_path / "p.json")
+    assert "s.csv: swept with a %.3g m (%.1f in) propeller (--diameter), but the vehicle (--vehicle) has %.3g m" \
+        % (half * inch, half, VEHICLE["propeller"]["diameter_m"]) in line, line
+    assert "lbf" not in line and "static thrust factor" not in line
+    assert not (tmp_path / "p.json").exists()

@@ -57,11 +57,34 @@ def fit_sweep(path, diameter_m=None, default_diameter_m=None, density_kg_m3=None
                       pressure_Pa=pressure_Pa, humidity_pct=humidity_pct)
     if data["diameter_m"] is None:
         data["diameter_m"] = default_diameter_m
+    elif default_diameter_m is not None:
+        _same_propeller(path, data["diameter_m"], default_diameter_m,
+                        "--diameter" if diameter_m is not None else "its '# diameter:' comment")
     if data["diameter_m"] is None:
         raise InputError("%s: the propeller diameter is needed for the static thrust factor; "
                          "add '# diameter: 10in' to the CSV, or pass --diameter or --vehicle" % path)
     params, rows = _fit_or_refuse(data, path, voltage_exponent, hover_thrust_N)
     return SweepFit(params, rows, data["columns"])
+
+
+def _same_propeller(path, swept_m, vehicle_m, given_by):
+    """Refuse, before any fit, a sweep whose propeller diameter [m] (given_by: --diameter or the
+    CSV's comment) is not the vehicle's [m]: beyond params.DIAMETER_MATCH_TOLERANCE it is another
+    propeller, and a fit on the wrong diameter fails its static-factor check with a unit slip
+    for a cause (k grows as D^(-2/3)), hiding the mismatch (params.check_vehicle_match, which
+    judges the finished set, words it alike)."""
+    from estimator.params import DIAMETER_MATCH_TOLERANCE
+    from estimator.units import INCH_M
+
+    apart = abs(vehicle_m / swept_m - 1.0)
+    if apart > DIAMETER_MATCH_TOLERANCE:
+        raise InputError(
+            "%s: swept with a %.3g m (%.1f in) propeller (%s), but the vehicle (--vehicle) has %.3g m "
+            "(%.1f in), %.0f %% apart; beyond %.0f %% it is another propeller (thrust at equal speed grows "
+            "as D^4: 5 %% is 22 %%): give the diameter of the propeller that was on the stand, or the "
+            "vehicle file of the vehicle it flies on"
+            % (path, swept_m, swept_m / INCH_M, given_by, vehicle_m, vehicle_m / INCH_M, 100.0 * apart,
+               100.0 * DIAMETER_MATCH_TOLERANCE))
 
 
 def fit_bench_file(path, **options):
