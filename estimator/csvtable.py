@@ -22,6 +22,7 @@ missing_ok) -> one list of floats per index; read_table(path, what, example, col
 """
 
 import math
+import re
 
 from estimator.errors import InputError, shorten
 from estimator.safepath import MiB, open_checked, size_text
@@ -143,6 +144,32 @@ def _number(path, line_no, col, cell, missing_ok, name=""):
     return value
 
 
+# a header cell: a name with its unit in brackets ("thrust[kgf]", "command[-]")
+_HEADER_CELL = re.compile(r"^\s*[A-Za-z_][\w ]*\[[^\]]*\]\s*$")
+
+
+def _not_a_header_again(path, line_no, cells, header):
+    """Refuse a data row that is a header row again (two files joined one after the other): the
+    header's own cells, or name[unit] cells where numbers belong. One error naming the line;
+    the advice to leave a missing reading empty would not fit it."""
+    cells = [c.strip().strip('"').strip() for c in cells]
+    if cells == [c.strip() for c in header]:
+        raise InputError("%s: line %d repeats the header row (%s): two files joined? delete that line, "
+                         "or split the file there and read each part on its own"
+                         % (path, line_no, _first_cells(cells)))
+    if sum(1 for c in cells if _HEADER_CELL.match(c)) * 2 > len(cells):
+        raise InputError("%s: line %d looks like another header row (%s), not readings: two files "
+                         "joined? delete that line, or split the file there and read each part on its own"
+                         % (path, line_no, _first_cells(cells)))
+
+
+def _first_cells(cells, shown=2):
+    """'command[us], voltage[mV], ...': a row's first cells, each shortened (errors.shorten's
+    limit), to name a row without quoting it whole."""
+    words = [shorten(c).strip("'") for c in cells[:shown]]
+    return ", ".join(words) + (", ..." if len(cells) > shown else "")
+
+
 def read_columns(path, head, indices, missing_ok=False, what="a CSV"):
     """The numbers of the data rows in the columns ``indices``: one list of floats each.
 
@@ -165,6 +192,7 @@ def read_columns(path, head, indices, missing_ok=False, what="a CSV"):
                 try:
                     value = float(cell)
                 except ValueError:
+                    _not_a_header_again(path, line_no, cells, head.cells)
                     value = _number(path, line_no, index, cell, missing_ok, names[index])
                 else:
                     if value - value != 0.0:  # NaN or infinity, refused by _number

@@ -68,3 +68,32 @@ def test_a_diameter_that_is_not_the_vehicles_is_named_before_the_static_factor_c
         % (half * inch, half, VEHICLE["propeller"]["diameter_m"]) in line, line
     assert "lbf" not in line and "static thrust factor" not in line
     assert not (tmp_path / "p.json").exists()
+
+
+def test_a_header_repeated_mid_file_is_named_as_such(tmp_path):
+    # trial 10: two sweeps joined into one file got "leave a missing reading empty"
+    text = _sweep(0.0)
+    lines = text.splitlines()
+    head = next(i for i, line in enumerate(lines) if line.startswith("command"))
+    rows = lines[head + 1:]
+    joined = lines[:head + 1] + rows[:40] + [lines[head]] + rows[40:]
+    csv = tmp_path / "joined.csv"
+    csv.write_text("\n".join(joined) + "\n")
+    line = refused("fit", csv, "--out", tmp_path / "p.json")
+    assert "joined.csv: line %d repeats the header row (command[" % (head + 1 + 40 + 1) in line, line
+    assert "two files joined? delete that line" in line and "missing reading" not in line
+
+
+def test_a_flight_logs_second_header_is_named_too(tmp_path):
+    # the one CSV reader of sweeps and flight logs (estimator.csvtable); a second log's header
+    # with other units after the first log's rows
+    from estimator import csvtable
+    from estimator.errors import InputError
+
+    path = tmp_path / "log.csv"
+    path.write_text("time[s],current[A]\n0.0,1.5\n0.1,1.6\ntime[ms],current[mA]\n0,1500\n")
+    with pytest.raises(InputError) as info:
+        csvtable.read_table(str(path), "a flight CSV", "time[s],current[A]",
+                            {"time": csvtable.TIME_UNITS, "current": {"A": (1.0, 0.0)}}, missing_ok=True)
+    assert "log.csv: line 4 looks like another header row (time[ms], current[mA])" in str(info.value)
+    assert "missing reading" not in str(info.value)
