@@ -65,7 +65,8 @@ def write_manifest(folder, kind):
 
 
 def _foreign(folder, kind):
-    """The first entry of ``folder`` that makes it not liftcal's own of ``kind``, or None."""
+    """The entries of ``folder`` that make it not liftcal's own of ``kind`` (files liftcal never
+    listed first, then listed ones that changed; each group sorted), or [] when it is its own."""
     try:
         with open(os.path.join(folder, FOLDER_MANIFEST), "r", encoding="utf-8") as fh:
             manifest = json.load(fh)
@@ -75,7 +76,7 @@ def _foreign(folder, kind):
     if not isinstance(manifest, dict) or manifest.get("kind") != kind \
             or not isinstance(manifest.get("files"), dict):
         others = sorted(rel for rel in tree if rel != FOLDER_MANIFEST)
-        return others[0] if others else FOLDER_MANIFEST
+        return others or [FOLDER_MANIFEST]
     listed = manifest["files"]
     vouched = _own_subfolders(folder, tree)
     foreign = []
@@ -88,9 +89,8 @@ def _foreign(folder, kind):
         if digest is not None and own_file(os.path.join(folder, rel)):
             continue  # rewritten by a liftcal command since (fit --out, --plot, export --out)
         foreign.append(rel)
-    # name a file liftcal never listed before one it listed and that changed
-    unknown = [rel for rel in foreign if rel not in listed]
-    return (unknown or foreign or [None])[0]
+    # name the files liftcal never listed before the ones it listed and that changed
+    return [rel for rel in foreign if rel not in listed] + [rel for rel in foreign if rel in listed]
 
 
 def _own_subfolders(folder, tree):
@@ -105,7 +105,7 @@ def _own_subfolders(folder, tree):
                     kind = json.load(fh).get("kind")
             except (OSError, ValueError, AttributeError):
                 continue
-            if kind in KIND_NAMES and _foreign(os.path.join(folder, sub), kind) is None:
+            if kind in KIND_NAMES and not _foreign(os.path.join(folder, sub), kind):
                 subs.append(sub)
     return subs
 
@@ -149,11 +149,21 @@ def check_folder(path, kind, inputs=(), option="--out"):
     except OSError as exc:
         raise InputError("%s: cannot look into this folder (%s): name another path"
                          % (where, exc.strerror)) from None
-    if foreign is None:
+    if not foreign:
         return "own"
     raise InputError("%s: holds files liftcal did not write or that were changed since (%s); "
                      "liftcal writes %s into a new or empty folder, or replaces one it wrote: "
-                     "name another folder" % (where, foreign[:60], KIND_NAMES[kind].replace("liftcal ", "")))
+                     "name another folder" % (where, _some(foreign), KIND_NAMES[kind].replace("liftcal ", "")))
+
+
+FOREIGN_SHOWN = 5  # files a refusal names before "and N more" (one error line stays readable)
+
+
+def _some(names):
+    """'notes.md, vehicle.json.bak' or, past FOREIGN_SHOWN, the first ones 'and 7 more'; each
+    name cut at 60 characters."""
+    shown_names = ", ".join(name[:60] for name in names[:FOREIGN_SHOWN])
+    return shown_names + (" and %d more" % (len(names) - FOREIGN_SHOWN) if len(names) > FOREIGN_SHOWN else "")
 
 
 def replace_folder(staged, target):
