@@ -20,7 +20,7 @@ from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
 from estimator.units import INCH_M
 from estimator.vehicle_units import BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS
 from estimator.vehicle_units import normalise, propeller_notes  # noqa: F401 (normalise: also this module's API)
-from estimator.vehicle_units import written_unit_slip
+from estimator.vehicle_units import cutoff_above_nominal, written_unit_slip
 
 SCHEMA = "vehicle.schema.json"
 
@@ -266,35 +266,6 @@ def assumed_warnings(vehicle):
     return list((vehicle.get("checked") or {}).get("assumed") or [])
 
 
-# the loaded cutoff builders set per cell, by chemistry [V] (common practice, from memory: a LiPo
-# flight is stopped at about 3.3..3.5 V per cell under load, nominal 3.7 V; cylindrical Li-ion
-# cells at about 2.8..3.2 V, nominal 3.6 V; LiFePO4 at about 2.5..2.9 V, nominal 3.2 V)
-USUAL_CUTOFF_CELL_V = {"LiPo": (3.3, 3.5), "Li-ion": (2.8, 3.2), "LiFePO4": (2.5, 2.9)}
-
-
-def cutoff_above_nominal(battery, source):
-    """The refusal of a loaded cutoff at or above the nominal cell voltage (one line).
-
-    A loaded cell sits below its open-circuit voltage, so a cutoff at or above the nominal
-    open-circuit voltage stops the flight before a nominal pack can give any current: every
-    answer of the sheet would be about a pack that is 'below cutoff' at rest. battery: the
-    battery block, cell voltages [V]; the chemistry (vehicle_units.pack_chemistry) picks the
-    usual range, USUAL_CUTOFF_CELL_V (common practice, from memory)."""
-    from estimator.vehicle_units import pack_chemistry
-
-    word = pack_chemistry(battery["nominal_cell_V"], battery["empty_cell_V"])[0]
-    lo, hi = USUAL_CUTOFF_CELL_V.get(word, USUAL_CUTOFF_CELL_V["LiPo"])
-    cutoff, nominal, empty = battery["cutoff_cell_V"], battery["nominal_cell_V"], battery["empty_cell_V"]
-    default = max(empty - CUTOFF_BELOW_EMPTY_V, 0.8 * empty)
-    return ("%s: $.battery.cutoff_cell_V: the loaded cutoff %g V is at or above the nominal cell voltage "
-            "%g V%s: a loaded cell sits below its open-circuit voltage, so a nominal pack would be below "
-            "its cutoff at rest and nothing could fly: a typing slip? common practice for a %s pack is a "
-            "loaded cutoff of about %.1f..%.1f V per cell (nominal %g V); leave the key out for %.2f V "
-            "(empty_cell_V - %.1f V)"
-            % (source, cutoff, nominal, " (and the empty %g V)" % empty if cutoff > empty else "",
-               word, lo, hi, nominal, default, CUTOFF_BELOW_EMPTY_V))
-
-
 def _check_physics(vehicle, source):
     bat = vehicle["battery"]
     if not bat["empty_cell_V"] <= bat["nominal_cell_V"] <= bat["full_cell_V"]:
@@ -306,7 +277,9 @@ def _check_physics(vehicle, source):
                          "voltage %g V (a loaded cell sits below its open-circuit voltage)"
                          % (source, bat["cutoff_cell_V"], bat["full_cell_V"]))
     if "cutoff_cell_V" in bat and not bat["cutoff_cell_V"] < bat["nominal_cell_V"]:
-        raise InputError(cutoff_above_nominal(bat, source))
+        empty = bat["empty_cell_V"]
+        raise InputError(cutoff_above_nominal(bat, source, max(empty - CUTOFF_BELOW_EMPTY_V, 0.8 * empty),
+                                              CUTOFF_BELOW_EMPTY_V))
     prop = vehicle["propeller"]
     if "blades" in prop and "pitch_m" not in prop:
         raise InputError("%s: $.propeller.blades: the blade count is used with the pitch (pitch_m or "
