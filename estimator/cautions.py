@@ -56,6 +56,18 @@ HOT_MOTOR = ("the motor got hot on the bench: %s read up to %.0f C, above about 
              "between runs and sweep in shorter runs, check the motor's temperature rating, and keep it cooler "
              "in flight; a hot winding also has more resistance, so this fit is of a warm motor")
 
+# full command drawing more from the pack than its discharge rating (C-rating x capacity; sheet
+# warning after the currents): a little beyond it, and far beyond it, from this multiple of the
+# rating on: makers' short-burst ratings are commonly about twice the continuous one, so beyond
+# twice the rating a pack is past even its burst rating (common practice, from memory)
+PACK_OVER_RATING = "beyond its discharge rating the pack will sag and heat"
+PACK_FAR_OVER_RATING_FACTOR = 2.0
+# (the draw as a multiple of the rating [-] is filled in)
+PACK_FAR_OVER_RATING = ("%.1f times its discharge rating, beyond even a burst rating: a lithium pack drawn so "
+                        "hard can overheat, swell or vent (cylindrical Li-ion cells, with their low ratings, "
+                        "most of all; common practice): limit the command or use a pack rated for this "
+                        "current, and if the pack gets hot, land, stop and let it cool before anything else")
+
 # one short line for plot titles and one-line outputs
 SHORT = "estimates: confirm with a tethered or low hover test; props off while configuring"
 

@@ -68,3 +68,32 @@ def test_the_verdict_never_holds_the_weight_beside_a_reachable_thrust_to_weight_
             assert "NOT ON A NOMINAL PACK" not in verdict, (cutoff, verdict)
             assert r["hover_bus_V"] / r["cells"] >= cutoff
     assert seen_below >= 2  # the grid reaches the case it guards
+
+
+# common practice (from memory): makers' short-burst discharge ratings are about twice the
+# continuous one, so a draw beyond twice the C-rating x capacity is beyond even a burst rating
+BURST_OVER_CONTINUOUS = 2.0
+
+
+@pytest.mark.parametrize("c_rating, far", [(6.8, True), (13.5, False)])
+def test_a_pack_drawn_far_beyond_its_rating_gets_the_caution(tmp_path, c_rating, far):
+    # trial 10: a 6S Li-ion pack drawn at 3 x its rating got only "will sag and heat"; here the
+    # demo quad on Li-ion cells (4.2 / 3.6 / 3.0 V, common practice) with a low C-rating
+    from estimator.cautions import PACK_FAR_OVER_RATING, PACK_FAR_OVER_RATING_FACTOR, PACK_OVER_RATING
+
+    assert PACK_FAR_OVER_RATING_FACTOR == BURST_OVER_CONTINUOUS
+    path = json_file(tmp_path, _quad(full_cell_V=4.2, nominal_cell_V=3.6, empty_cell_V=3.0, max_discharge_C=c_rating))
+    r = report("hover", path)
+    ratio = r["pack_current_judged_A"] / r["pack_current_limit_A"]
+    assert r["pack_current_limit_A"] == pytest.approx(5.0 * c_rating)  # C-rating x capacity (5 Ah)
+    assert (ratio >= BURST_OVER_CONTINUOUS) is far
+    section4 = " ".join(ok("hover", path).split()).split("4. What to watch out for")[1]
+    line = [w for w in section4.split("! ") if "from the pack, above its rating of" in w]
+    assert len(line) == 1, section4
+    if far:
+        assert "%.1f times its discharge rating, beyond even a burst rating" % ratio in line[0]
+        assert "can overheat, swell or vent" in line[0] and "let it cool" in line[0]
+        assert " ".join((PACK_FAR_OVER_RATING % ratio).split()) in line[0]
+    else:
+        assert "beyond its discharge rating the pack will sag and heat" in line[0] and "vent" not in line[0]
+        assert PACK_OVER_RATING in line[0]

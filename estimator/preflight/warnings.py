@@ -308,10 +308,13 @@ def current_limit_warnings(report):
     pack_limit = report.get("pack_current_limit_A")
     full_pack = current_judged(report, "pack")
     if pack_limit is not None and full_pack is not None and full_pack > pack_limit:
+        from estimator.cautions import PACK_FAR_OVER_RATING, PACK_FAR_OVER_RATING_FACTOR, PACK_OVER_RATING
+        ratio = full_pack / pack_limit
         out.append("full command on a full pack draws %s from the pack, above its rating of %s (C-rating x "
-                   "capacity; %s on a nominal pack)%s: the pack will sag and heat"
+                   "capacity; %s on a nominal pack)%s: %s"
                    % (_num(full_pack, SIG3, "A"), _num(pack_limit, GIVEN3, "A"),
-                      _num(report.get("full_pack_current_A"), SIG3, "A"), _cutoff_note(report)))
+                      _num(report.get("full_pack_current_A"), SIG3, "A"), _cutoff_note(report),
+                      PACK_FAR_OVER_RATING % ratio if ratio >= PACK_FAR_OVER_RATING_FACTOR else PACK_OVER_RATING))
     return out
 
 
