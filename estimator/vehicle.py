@@ -272,14 +272,8 @@ def _check_physics(vehicle, source):
         raise InputError("%s: $.battery: cell voltages must satisfy empty_cell_V <= nominal_cell_V <= "
                          "full_cell_V, got %g, %g, %g V (swapped values?)"
                          % (source, bat["empty_cell_V"], bat["nominal_cell_V"], bat["full_cell_V"]))
-    if "cutoff_cell_V" in bat and not bat["cutoff_cell_V"] < bat["full_cell_V"]:
-        raise InputError("%s: $.battery.cutoff_cell_V: the loaded cutoff %g V must be below the full cell "
-                         "voltage %g V (a loaded cell sits below its open-circuit voltage)"
-                         % (source, bat["cutoff_cell_V"], bat["full_cell_V"]))
-    if "cutoff_cell_V" in bat and not bat["cutoff_cell_V"] < bat["nominal_cell_V"]:
-        empty = bat["empty_cell_V"]
-        raise InputError(cutoff_above_nominal(bat, source, max(empty - CUTOFF_BELOW_EMPTY_V, 0.8 * empty),
-                                              CUTOFF_BELOW_EMPTY_V))
+    if "cutoff_cell_V" in bat and not bat["cutoff_cell_V"] < bat["nominal_cell_V"]:  # nominal <= full
+        raise InputError(cutoff_above_nominal(bat, source, CUTOFF_BELOW_EMPTY_V))
     prop = vehicle["propeller"]
     if "blades" in prop and "pitch_m" not in prop:
         raise InputError("%s: $.propeller.blades: the blade count is used with the pitch (pitch_m or "

@@ -89,21 +89,16 @@ def pack_specific_energy(battery):
     return word, specific_Wh_kg
 
 
-# the loaded cutoff builders set per cell, by chemistry [V] (common practice, from memory: a LiPo
-# flight is stopped at about 3.3..3.5 V per cell under load, nominal 3.7 V; cylindrical Li-ion
-# cells at about 2.8..3.2 V, nominal 3.6 V; LiFePO4 at about 2.5..2.9 V, nominal 3.2 V)
+# the loaded cutoff per cell builders set, by chemistry [V] (common practice, from memory: LiPo
+# 3.3..3.5 V, nominal 3.7 V; cylindrical Li-ion 2.8..3.2 V, nominal 3.6 V; LiFePO4 2.5..2.9 V, 3.2 V)
 USUAL_CUTOFF_CELL_V = {"LiPo": (3.3, 3.5), "Li-ion": (2.8, 3.2), "LiFePO4": (2.5, 2.9)}
 
 
-def cutoff_above_nominal(battery, source, default_cutoff_V, below_empty_V):
-    """The refusal of a loaded cutoff at or above the nominal cell voltage (one line).
-
-    A loaded cell sits below its open-circuit voltage, so a cutoff at or above the nominal
-    open-circuit voltage stops the flight before a nominal pack can give any current: every
-    answer of the sheet would be about a pack that is 'below cutoff' at rest. battery: the
-    battery block, cell voltages [V]; the chemistry (pack_chemistry) picks the
-    usual range, USUAL_CUTOFF_CELL_V (common practice, from memory); default_cutoff_V: the
-    cutoff [V] taken when the key is left out, below_empty_V: how far it sits below empty [V]."""
+def cutoff_above_nominal(battery, source, below_empty_V):
+    """The one-line refusal of a loaded cutoff at or above the nominal cell voltage: a loaded cell
+    sits below its open-circuit voltage, so a nominal pack would be below its cutoff at rest.
+    battery: cell voltages [V]; the chemistry (pack_chemistry) picks USUAL_CUTOFF_CELL_V; the
+    default cutoff sits below_empty_V [V] below empty (vehicle.check_vehicle)."""
     word = pack_chemistry(battery["nominal_cell_V"], battery["empty_cell_V"])[0]
     lo, hi = USUAL_CUTOFF_CELL_V.get(word, USUAL_CUTOFF_CELL_V["LiPo"])
     cutoff, nominal, empty = battery["cutoff_cell_V"], battery["nominal_cell_V"], battery["empty_cell_V"]
@@ -113,7 +108,7 @@ def cutoff_above_nominal(battery, source, default_cutoff_V, below_empty_V):
             "loaded cutoff of about %.1f..%.1f V per cell (nominal %g V); leave the key out for %.2f V "
             "(empty_cell_V - %.1f V)"
             % (source, cutoff, nominal, " (and the empty %g V)" % empty if cutoff > empty else "",
-               word, lo, hi, nominal, default_cutoff_V, below_empty_V))
+               word, lo, hi, nominal, max(empty - below_empty_V, 0.8 * empty), below_empty_V))
 
 
 # the units a bare number on a short key was most likely written in, default unit first:
