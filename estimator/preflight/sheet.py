@@ -110,19 +110,30 @@ def hover_below_cutoff(report):
     """The verdict's words when holding the weight sags a nominal pack below its loaded cutoff,
     else None. Then the thrust-to-weight reachable before the cutoff (warnings.judged_thrust_to_weight,
     marked) is below 1, and 'it holds its weight' would contradict it: the hover command is
-    reached only past the cutoff. Reads hover_bus_V [V], cells [-], cutoff_cell_V [V]."""
+    reached only past the cutoff. Reads hover_bus_V [V], cells [-], cutoff_cell_V [V] and the
+    nominal open-circuit pack_voltage_V [V]; a cutoff within CUTOFF_NEAR_NOMINAL_V of the nominal
+    cell voltage is named as the likely cause, else the pack's sag."""
     tw, marked = judged_thrust_to_weight(report)
     if not marked or tw is None or tw >= 1.0:
         return None
     cells, bus, cutoff = report.get("cells"), report.get("hover_bus_V"), report.get("cutoff_cell_V")
-    sagged = ("which sags a nominal pack to %s V per cell, below its %.2f V loaded cutoff"
-              % (beside(bus / cells, cutoff), cutoff) if cells and bus is not None and cutoff is not None
-              else "which sags a nominal pack below its loaded cutoff")
-    return ("holding its weight takes command %s, %s: before the cutoff it reaches only thrust-to-weight "
-            "%s (command %s), so it sinks on a nominal pack; check $.battery.cutoff_cell_V (a loaded "
-            "cutoff this close to the nominal cell voltage ends every flight early) or the pack"
-            % (_command(report, "hover_command"), sagged, judged_thrust_to_weight_text(report),
-               _command(report, "reachable_command")))
+    nominal = (report.get("pack_voltage_V") or {}).get("nominal")
+    known = cells and bus is not None and cutoff is not None
+    text = ("holding its weight takes command %s on a nominal pack, %s: before the cutoff it reaches only "
+            "thrust-to-weight %s (command %s), so it sinks on a nominal pack; "
+            % (_command(report, "hover_command"),
+               "which sags it to %s V per cell, below its %.2f V loaded cutoff" % (beside(bus / cells, cutoff), cutoff)
+               if known else "which sags it below its loaded cutoff",
+               judged_thrust_to_weight_text(report), _command(report, "reachable_command")))
+    if known and nominal and nominal / cells - cutoff < CUTOFF_NEAR_NOMINAL_V:
+        return text + ("check $.battery.cutoff_cell_V: %.2f V is only %.2f V below the nominal cell voltage "
+                       "%.2f V" % (cutoff, nominal / cells - cutoff, nominal / cells))
+    return text + "the pack sags too much at hover: a pack with less resistance or more cells, or a lighter vehicle"
+
+
+# a loaded cutoff closer than this to the nominal cell voltage is the likely cause of a hover that
+# sags a nominal pack below it (the default sits 0.4 V below a LiPo's nominal; common practice) [V]
+CUTOFF_NEAR_NOMINAL_V = 0.2
 
 
 def _small_rotor_leads(report):
