@@ -155,6 +155,26 @@ COMMAND_SHOWN = {"-": (1.0, 0.0, None, "%.3f"), "%": (100.0, 0.0, "pct", "%.1f %
                  "permille": (1000.0, 0.0, "permille", "%.0f permille"), "us": (1000.0, 1000.0, "us", "%.0f us")}
 
 
+# a command column's unit in words, for the likely-label hints of both readers
+COMMAND_UNIT_WORDS = {"-": "a 0..1 fraction", "%": "percent (0..100)", "permille": "permille (0..1000)",
+                      "us": "microseconds (1000..2000)"}
+
+
+def likely_command_unit(low, high, unit):
+    """The command unit (COMMAND_SHOWN) other than ``unit`` in which a command column's values
+    low..high (as written) lie within 0..1 of full command (1 % either side) with the highest at
+    least a tenth of it (a sweep or a flight goes well above idle), the one that puts the highest
+    value nearest full command; None when no other unit fits. The likely label of a
+    column whose values do not fit its own: 0..1000 labelled % -> 'permille', 1000..2000
+    labelled % -> 'us', 0..100 labelled - -> '%'."""
+    best, top = None, -1.0
+    for other, (scale, offset, _, _) in COMMAND_SHOWN.items():
+        lo, hi = (low - offset) / scale, (high - offset) / scale
+        if other != unit and lo >= -0.01 and 0.1 <= hi <= 1.01 and hi > top:
+            best, top = other, hi
+    return best
+
+
 def command_text(u, unit, span=False):
     """A command [-] written in a command unit (COMMAND_SHOWN), as a bench CSV's command column
     has it ('-' as the fraction to three decimals); span=True for a difference of commands (no

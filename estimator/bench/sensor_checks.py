@@ -14,6 +14,7 @@ negative. Every function raises InputError naming the likely cause, or returns N
 import numpy as np
 
 from estimator.errors import InputError
+from estimator.units import COMMAND_SHOWN, COMMAND_UNIT_WORDS, likely_command_unit
 from estimator.bench.columns import BUS_VOLTAGE_RANGE_V, COMMAND_OUTSIDE_SHARE, MAX_CURRENT_A, MEDIAN_ROWS, UNITS
 
 # judged on a systematic subsample of at most this many rows [-]
@@ -186,13 +187,18 @@ def check_units(path, data, v_med=None, extremes=None):
             outside = np.count_nonzero((finite_u < -0.01) | (finite_u > 1.01))
             u_max = float(np.max(finite_u))
         if outside > COMMAND_OUTSIDE_SHARE * finite_u.size:
-            hint = {"-": "is it command[%] (0..100) or command[us] (1000..2000)?",
-                    "%": "is it command[us] (1000..2000) or command[-] (0..1)?",
-                    "permille": "is it command[us] (1000..2000)?",
-                    "us": "is it command[%] or command[-]?"}[data["command_unit"]]
-            raise InputError("%s: %d of %d command values fall outside 0..1 after converting "
-                             "from [%s]; %s" % (path, outside, finite_u.size,
-                                                data["command_unit"], hint))
+            unit = data["command_unit"]
+            scale, offset = COMMAND_SHOWN[unit][:2]
+            low, high = offset + scale * float(np.min(finite_u)), offset + scale * u_max
+            likely = likely_command_unit(low, high, unit)
+            hint = ("likely %s labelled [%s]; label it command[%s]" % (COMMAND_UNIT_WORDS[likely], unit, likely)
+                    if likely else
+                    {"-": "is it command[%] (0..100) or command[us] (1000..2000)?",
+                     "%": "is it command[us] (1000..2000) or command[-] (0..1)?",
+                     "permille": "is it command[us] (1000..2000)?",
+                     "us": "is it command[%] or command[-]?"}[unit])
+            raise InputError("%s: column command[%s]: %d of %d values fall outside 0..1 of full command "
+                             "(%.6g..%.6g as written); %s" % (path, unit, outside, finite_u.size, low, high, hint))
         if data["command_unit"] in ("%", "permille") and u_max <= 1.01 * UNITS["command"][data["command_unit"]][0]:
             raise InputError("%s: command[%s] never exceeds 1 %s; is it command[-] (0..1)?"
                              % (path, data["command_unit"], data["command_unit"]))

@@ -23,7 +23,7 @@ from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.errors import InputError
 from estimator.watch.named_watch import NamedWatch
-from estimator.watch.sensor_range import current_range_mA, voltage_range_mV
+from estimator.watch.sensor_range import current_range_mA, pack_voltages, voltage_range_mV
 from estimator.watch.site_air import expected_thrust
 from estimator.watch.thrust_table import thrust_from_power_total_N, thrust_knots_mN
 
@@ -254,8 +254,7 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
         "(rotor spin-up + current sensor%s)" % (lag_ms, "" if o["lag_ms"] is not None else
                                                 ": default from the propeller diameter"))
 
-    v_full = float(v.get("full_voltage_V") or curve["reference_voltage_V"] * 1.15)
-    v_empty = float(v.get("empty_voltage_V") or curve["reference_voltage_V"] * 0.85)
+    v_full, v_empty = pack_voltages(v, curve)
     v_min_mV, v_max_mV, (n_lo, n_hi) = voltage_range_mV(v_full, v_empty)
     put("v_min_mV", v_min_mV, n_lo)
     put("v_max_mV", v_max_mV, n_hi)

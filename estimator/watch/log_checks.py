@@ -3,8 +3,9 @@
 - time must rise: rows that go back or repeat are named (file, row numbers) in one error, or,
   when the user asks to go on, dropped and counted;
 - values implausible for the parameter set are refused with the likely unit slip: a 0..1
-  command in a column labelled %, millivolts labelled V (or volts labelled mV), a current
-  sensor reading negative while the rotors turn, milliamps labelled A;
+  command in a column labelled %, a command in another unit than its label (permille or us
+  labelled %), millivolts labelled V (or volts labelled mV), the voltage and current columns
+  swapped, a current sensor reading negative or zero while the rotors turn, milliamps labelled A;
 - a log from another vehicle or pack than the parameter set's is refused before the watch
   runs (the watch would learn a power scale and read the difference as a propulsion fault):
   the bus voltage in flight against the set's pack, and the mass the log's power implies
@@ -12,11 +13,15 @@
 - a log with too little settled flight to learn the baseline says so (no verdict), so that
   silence is never read as health.
 
-All limits come from the watch CONFIG (dict from estimator.watch.config.make_config).
+The limits come from the watch CONFIG (dict from estimator.watch.config.make_config) and the
+pack's own voltages (sensor_range.pack_voltages; the CONFIG's v_max_mV stops at the sensor's
+60 V, below a 13-cell pack's 1.2 x full, so it cannot stand for the full pack).
 """
 
 from estimator.errors import InputError
-from estimator.units import STANDARD_GRAVITY_M_S2
+from estimator.units import COMMAND_SHOWN, COMMAND_UNIT_WORDS, STANDARD_GRAVITY_M_S2, command_text
+from estimator.units import likely_command_unit, unit_factors
+from estimator.watch.sensor_range import pack_voltages
 
 SHOWN_ROWS = 5  # row numbers named in one error line
 
@@ -42,6 +47,15 @@ LOG_BELOW_EMPTY = 0.90
 IMPLIED_MASS_RANGE = (0.5, 2.0)
 # the implied mass is judged on at least this much flight above the spin command [s]
 IMPLIED_MASS_MIN_FLIGHT_S = 10.0
+# a current whose median over that flight is below this share of the hover current reads zero:
+# an unplugged or unpowered sensor (an idle spin draws about a tenth of the hover current and
+# less flies nothing; common practice) [-]
+ZERO_CURRENT_SHARE = 0.05
+# a command column with more than this share of its values above full command has the wrong
+# unit label (as the bench reader's COMMAND_OUTSIDE_SHARE) [-]
+COMMAND_ABOVE_SHARE = 0.05
+# rows the voltage/current swap judgement samples (systematic), at most [-]
+SWAP_SAMPLE_ROWS = 20000
 
 
 def _median(values):
@@ -99,16 +113,19 @@ def data_line_numbers(path, header_line):
     return out
 
 
-def check_plausible(path, flight, units, cfg):
+def check_plausible(path, flight, params, facts, cfg, units):
     """Refuse a log whose values cannot come from this vehicle, naming the likely unit slip.
 
-    units: dict column -> unit as written in the header; cfg: the watch CONFIG dict.
+    params: the parameter set; facts: estimator.watch.config.vehicle_facts (the pack's cells and
+    full / empty voltage: the vehicle's own, not the CONFIG's voltage range, which stops at the
+    sensor's 60 V); cfg: the watch CONFIG dict; units: dict column -> unit as written in the header.
     """
     u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
     _check_time_unit(path, flight["time_s"], units.get("time"), cfg["dt_max_ms"] / 1000.0)
-    v_full = cfg["v_max_mV"] / 1.2          # CONFIG: v_max = 1.2 x full pack
-    v_empty = cfg["v_min_mV"] * 2.0         # CONFIG: v_min = half the empty pack
+    full_V, empty_V = pack_voltages(facts, params["thrust_curve"])
+    v_full, v_empty = 1000.0 * full_V, 1000.0 * empty_V   # [mV]
     med_v = _median(mv)
+    _check_swapped(path, flight, units, full_V, empty_V)
     if med_v > 50.0 * v_full:
         raise InputError("%s: column voltage[%s]: median %.4g %s is %.0f times the full pack (%.1f V): "
                          "likely millivolts in a column labelled [V]; label it voltage[mV]"
@@ -118,7 +135,7 @@ def check_plausible(path, flight, units, cfg):
         raise InputError("%s: column voltage[%s]: median %.4g %s is far below the empty pack (%.1f V): "
                          "likely volts in a column labelled [mV]; label it voltage[V]"
                          % (path, units["voltage"], med_v, units["voltage"], v_empty / 1000.0))
-    cells = int(round(v_full / 4200.0))  # full lithium cell about 4.2 V (common practice)
+    cells = facts.get("cells") or int(round(v_full / 4200.0))  # full lithium cell about 4.2 V (common practice)
     if cells >= 2 and 0 < med_v < 0.6 * v_empty:
         per_cell = 0.8 * v_empty / cells <= med_v <= 1.2 * v_full / cells
         raise InputError("%s: column voltage[%s]: median %.3g V is far below the empty pack (%.1f V)%s"
@@ -135,12 +152,8 @@ def check_plausible(path, flight, units, cfg):
             raise InputError("%s: column command[%s]: every value is between 0 and 1 while %.1f A flows: "
                              "likely a 0..1 command labelled %s; label it command[-]"
                              % (path, units["command"], _median(ma) / 1000.0, units["command"]))
-    if units["command"] == "-" and len(u) and max(u) > 1000:
-        share = sum(1 for x in u if x > 1000) / len(u)
-        if share > 0.05:
-            raise InputError("%s: column command[-]: %.0f %% of the values are above 1 (largest %.4g): "
-                             "likely percent or microseconds labelled [-]; label it command[%%] or command[us]"
-                             % (path, 100.0 * share, max(u) / 1000.0))
+    if len(u) and max(u) > 1000:
+        _check_command_above_full(path, u, units["command"])
     if flying:
         cur = [ma[i] for i in flying]
         med_a = _median(cur)
@@ -154,6 +167,99 @@ def check_plausible(path, flight, units, cfg):
                              "current-sensor range (%.0f A): likely milliamps in a column labelled [A]; label "
                              "it current[mA]" % (path, units["current"], med_a / 1000.0,
                                                 med_a / cfg["i_max_mA"], cfg["i_max_mA"] / 1000.0))
+
+
+def _check_command_above_full(path, u, unit):
+    """Refuse a command column (u [permille], unit as written) with more than COMMAND_ABOVE_SHARE
+    of its values above full command, naming the unit its values fit (units.likely_command_unit):
+    permille 0..1000 labelled %, percent or microseconds labelled [-] (new-user trial 9, finding 7)."""
+    share = sum(1 for x in u if x > 1000) / len(u)
+    if share <= COMMAND_ABOVE_SHARE:
+        return
+    scale, offset = COMMAND_SHOWN[unit][:2]
+    low, high = (offset + scale * min(u) / 1000.0, offset + scale * max(u) / 1000.0)
+    likely = likely_command_unit(low, high, unit)
+    if likely is None:
+        cause = ("likely percent or microseconds labelled [-]; label it command[%] or command[us]" if unit == "-" else
+                 "no command unit liftcal reads fits these values; check the logger's command field (command[-] "
+                 "0..1, [%], [permille] or [us])")
+    else:
+        cause = ("likely %s labelled [%s]; label it command[%s]"
+                 % (COMMAND_UNIT_WORDS[likely], unit, likely))
+    raise InputError("%s: column command[%s]: %.0f %% of the values are above full command (%s), %.6g..%.6g as "
+                     "written: %s" % (path, unit, 100.0 * share, command_text(1.0, unit), low, high, cause))
+
+
+def _correlation(x, y):
+    """Pearson correlation of two equal-length sequences (0 when either is constant)."""
+    n = len(x)
+    if n < 3:
+        return 0.0
+    mx, my = sum(x) / n, sum(y) / n
+    sxy = sum((a - mx) * (b - my) for a, b in zip(x, y))
+    sxx = sum((a - mx) ** 2 for a in x)
+    syy = sum((b - my) ** 2 for b in y)
+    return sxy / (sxx * syy) ** 0.5 if sxx > 0 and syy > 0 else 0.0
+
+
+def _check_swapped(path, flight, units, full_V, empty_V):
+    """Refuse a log whose voltage and current columns are swapped (new-user trial 9, finding 7:
+    'another vehicle or pack' was blamed): the voltage column's median outside the pack's range
+    (LOG_BELOW_EMPTY x empty .. LOG_ABOVE_FULL x full [V], as check_vehicle judges it), the current
+    column's median, read in the voltage column's unit, inside it, and the voltage column rising
+    with the command more than the current column does (a motor's current rises with the
+    command, a pack's voltage sags under it: common practice on any log; the power, their
+    product, is the same either way, so it cannot tell)."""
+    u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
+    if len(u) < 3:
+        return
+    lo, hi = LOG_BELOW_EMPTY * empty_V, LOG_ABOVE_FULL * full_V
+    v_col = _median(mv) / 1000.0
+    v_unit, i_unit = units["voltage"], units["current"]
+    v_scale = unit_factors("voltage", (v_unit,))[v_unit][0]
+    i_scale = unit_factors("current", (i_unit,))[i_unit][0]
+    written = _median(ma) / 1000.0 / i_scale           # the current column's median as written
+    as_V = written * v_scale
+    if lo <= v_col <= hi or not lo <= as_V <= hi:
+        return
+    step = max(1, len(u) // SWAP_SAMPLE_ROWS)
+    us, vs, is_ = u[::step], mv[::step], ma[::step]
+    rise_v, rise_i = _correlation(us, vs), _correlation(us, is_)
+    if rise_v <= rise_i:
+        return
+    raise InputError("%s: columns voltage[%s] and current[%s]: the voltage column's median %.3g V is outside this "
+                     "pack's %.1f..%.1f V and rises with the command (correlation %+.2f) as a current does, while "
+                     "the current column's median %.4g %s would be %.3g V, within the pack's range (correlation "
+                     "%+.2f): likely the voltage and current columns swapped; check the header's order against "
+                     "the data" % (path, v_unit, i_unit, v_col, lo, hi, rise_v, written, i_unit, as_V, rise_i))
+
+
+def _check_current_zero(path, flight, params, facts, units, cfg, bus_V, flown_s):
+    """Refuse a log whose current reads zero (below ZERO_CURRENT_SHARE of the hover current, the
+    set's power model at the planned mass over the median bus voltage bus_V [V]) over the flight
+    above the spin command, flown_s [s] of it (new-user trial 9, finding 7: 'implied mass 0 kg ...
+    another vehicle' was blamed): an unplugged or unpowered current sensor. Amps labelled [mA]
+    (a current 1000 times too small, not zero) are left to check_vehicle, which names them."""
+    from estimator.core.power_model import rotor_power_W
+
+    spin = cfg["spin_permille"]
+    u, ma = flight["command_permille"], flight["bus_mA"]
+    flying = [i for i in range(len(u)) if u[i] >= spin]
+    if not flying or bus_V <= 0:
+        return
+    med_mA = _median([abs(ma[i]) for i in flying])
+    n = int(facts["rotor_count"])
+    weight_N = float(facts["mass_kg"]) * STANDARD_GRAVITY_M_S2
+    hover_A = n * rotor_power_W(params["power_model"], weight_N / n, float(facts["site_density_kg_m3"])) / bus_V
+    limit_mA = 1000.0 * ZERO_CURRENT_SHARE * hover_A
+    if med_mA >= limit_mA or (units or {}).get("current") == "mA" and 1000.0 * med_mA >= limit_mA:
+        return
+    i_unit = (units or {}).get("current", "A")
+    cmd = command_text(_median([u[i] for i in flying]) / 1000.0, (units or {}).get("command", "-"))
+    raise InputError("%s: column current[%s]: median %.3g A over %.0f s above the spin command "
+                     "(median command %s), where a hover draws about %.3g A: the current reads zero in flight; "
+                     "is the current sensor connected and powered?"
+                     % (path, i_unit, med_mA / 1000.0, flown_s, cmd, hover_A))
 
 
 def _flight_medians(flight, cfg):
@@ -190,19 +296,20 @@ def check_vehicle(path, flight, params, facts, cfg, units=None):
     IMPLIED_MASS_RANGE x the planned mass.
 
     facts: estimator.watch.config.vehicle_facts (mass_kg, rotor_count, site_density_kg_m3, cells,
-    full_voltage_V, empty_voltage_V, name); cfg: the watch CONFIG (without pack voltages in facts,
-    its v_max_mV / v_min_mV: 1.2 x full and 0.5 x empty pack); units: the header's units (a
-    current labelled [mA] whose power implies a mass far below the plan, and within the range at
-    1000 times, is named as amps labelled [mA]).
+    full_voltage_V, empty_voltage_V, name; without pack voltages, sensor_range.pack_voltages' stand-ins);
+    cfg: the watch CONFIG; units: the header's units. A current that reads zero in flight is named
+    as an unplugged sensor (_check_current_zero); a current labelled [mA] whose power implies a
+    mass far below the plan, and within the range at 1000 times, as amps labelled [mA].
     """
     from estimator.watch.thrust_table import thrust_from_power_total_N
 
     med_mV, med_W, flown_s = _flight_medians(flight, cfg)
     if med_mV is None:
         return
-    v_full = float(facts.get("full_voltage_V") or cfg["v_max_mV"] / 1200.0)   # as make_config took them
-    v_empty = float(facts.get("empty_voltage_V") or cfg["v_min_mV"] / 500.0)
+    v_full, v_empty = pack_voltages(facts, params["thrust_curve"])   # as make_config took them
     v = med_mV / 1000.0
+    if flown_s >= IMPLIED_MASS_MIN_FLIGHT_S:
+        _check_current_zero(path, flight, params, facts, units, cfg, v, flown_s)
     cells = facts.get("cells")
     pack = "%d cell%s" % (cells, "" if cells == 1 else "s") if cells else "its pack"
     found = []

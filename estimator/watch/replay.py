@@ -308,8 +308,9 @@ def replay_file_traced(path, params, vehicle=None, options=None, progress=None, 
     config, _ = make_config(params, vehicle, options, params_source)
     flight = read_flight(path)
     dropped = check_time(path, flight, go_on=drop_bad_time)
-    check_plausible(path, flight, flight["units"], config)
-    check_vehicle(path, flight, params, vehicle_facts(params, vehicle, params_source), config, flight["units"])
+    facts = vehicle_facts(params, vehicle, params_source)
+    check_plausible(path, flight, params, facts, config, flight["units"])
+    check_vehicle(path, flight, params, facts, config, flight["units"])
     if progress is None:
         progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
     out, samples = run_kernel(flight, config, trace=trace, progress=_bar if progress else None)

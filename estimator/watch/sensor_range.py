@@ -11,6 +11,15 @@ V_SENSOR_MAX_V = _BOUND["v_max_mV"] / 1000.0
 I_SENSOR_MAX_A = _BOUND["i_max_mA"] / 1000.0
 
 
+def pack_voltages(facts, curve):
+    """(full, empty) open-circuit pack voltage [V] the watch and the log checks judge against: the
+    vehicle's (facts: vehicle_facts; a parameter set's vehicle block always has them), else the
+    set's reference voltage curve["reference_voltage_V"] [V] x 1.15 and x 0.85 (a lithium pack's
+    4.2 V full and 3.1 V empty a cell around 3.7 V nominal, common practice)."""
+    v_ref = curve["reference_voltage_V"]
+    return (float(facts.get("full_voltage_V") or v_ref * 1.15), float(facts.get("empty_voltage_V") or v_ref * 0.85))
+
+
 def voltage_range_mV(v_full, v_empty):
     """(v_min_mV, v_max_mV, notes) for a pack of v_full / v_empty [V]: half the empty voltage to
     1.2 x the full one, at most 60 V; raises InputError when a full pack leaves less than 5 %."""
