@@ -221,15 +221,13 @@ def _data_lines(path, fh, skip):
                 yield line_no, piece
 
 
-def data_line_number(path, skip, index):
-    """The line number (from 1) of the data row ``index`` (from 0) after ``skip`` lines, counted
-    as every reader here counts rows (_data_lines: comments and blank lines left out); None
-    past the end. Read only when a message needs to name a row."""
+def data_line_numbers(path, skip):
+    """The line numbers (from 1) of the data rows after ``skip`` lines, in order, counted as every
+    reader here counts rows (_data_lines: comments and blank lines left out); the one row
+    numbering of both flows' messages (a bench sweep's time warning, a flight log's time and
+    missing-cell errors). Read only when a message needs to name a row."""
     with open(path, "rb") as fh:
-        for i, (line_no, _) in enumerate(_data_lines(path, fh, skip)):
-            if i == index:
-                return line_no
-    return None
+        return [line_no for line_no, _ in _data_lines(path, fh, skip)]
 
 
 class Table:

@@ -136,7 +136,7 @@ def _time_back(path, header_line, time_s, unit):
     written (s or ms)."""
     import numpy as np
 
-    from estimator.csvtable import TIME_UNITS, data_line_number
+    from estimator.csvtable import TIME_UNITS, data_line_numbers
 
     t = np.asarray(time_s, dtype=float)
     with np.errstate(invalid="ignore"):
@@ -146,7 +146,7 @@ def _time_back(path, header_line, time_s, unit):
         return None
     i = int(np.argmax(back)) + 1
     scale = TIME_UNITS[unit][0]
-    line = data_line_number(path, header_line, i)
+    line = data_line_numbers(path, header_line)[i]
     return ("%s: line %s: time %.6g %s goes back (after %.6g %s); %d row%s where time falls - rows "
             "sorted, merged or logged by a restarted clock? The fit does not use time, so it goes on; "
             "check that the rows are the sweep that was run"

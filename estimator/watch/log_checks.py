@@ -18,6 +18,7 @@ pack's own voltages (sensor_range.pack_voltages; the CONFIG's v_max_mV stops at 
 60 V, below a 13-cell pack's 1.2 x full, so it cannot stand for the full pack).
 """
 
+from estimator.csvtable import data_line_numbers
 from estimator.errors import InputError
 from estimator.units import COMMAND_SHOWN, COMMAND_UNIT_WORDS, STANDARD_GRAVITY_M_S2, command_text
 from estimator.units import likely_command_unit, unit_factors
@@ -83,7 +84,7 @@ def check_time(path, flight, go_on=False):
         return 0
     if not go_on:
         i, before = bad[0]
-        lines = data_line_numbers(path, flight["header_line"])
+        lines = data_line_numbers(path, flight["header_line"])   # as the CSV reader counts them
         kept = flight.get("row_index")  # rows left after those with a missing reading were dropped
         line_of = lines if kept is None else [lines[j] for j in kept]
         rows = ", ".join(str(line_of[j]) for j, _ in bad[:SHOWN_ROWS])
@@ -96,21 +97,6 @@ def check_time(path, flight, go_on=False):
     for key in ("time_s", "command_permille", "bus_mV", "bus_mA"):
         flight[key] = [flight[key][j] for j in keep]
     return len(bad)
-
-
-def data_line_numbers(path, header_line):
-    """Line numbers (from 1) of the data rows after the header: lines that hold something
-    besides blanks and a ``#`` comment (as estimator.csvtable counts them). Read only when an
-    error needs to name a row."""
-    out = []
-    with open(path, "rb") as fh:
-        for no, raw in enumerate(fh, start=1):
-            if no <= header_line:
-                continue
-            for piece in raw.decode("utf-8", "replace").rstrip("\r\n").split("\r"):
-                if piece.split("#", 1)[0].strip():
-                    out.append(no)
-    return out
 
 
 def check_plausible(path, flight, params, facts, cfg, units):

@@ -13,7 +13,7 @@ import math
 import sys
 
 from estimator.core.watch_layout import FLAG_BITS
-from estimator.csvtable import COMMAND_UNITS, TIME_UNITS
+from estimator.csvtable import COMMAND_UNITS, TIME_UNITS, data_line_numbers
 from estimator.errors import InputError
 from estimator.units import unit_factors
 from estimator.watch.config import make_config, new_watch, vehicle_facts
@@ -83,8 +83,6 @@ def _drop_missing(path, table):
     rows' indices among the data rows, or None when none was dropped; raises InputError when
     more than MISSING_SHARE of the rows have one (a log that broken is not judged). Infinity is
     refused by csvtable before this."""
-    from estimator.watch.log_checks import data_line_numbers
-
     cols = [table.values[name] for name in COLUMNS]
     kept = [i for i in range(table.rows) if all(c[i] == c[i] for c in cols)]
     dropped = table.rows - len(kept)
