@@ -81,6 +81,7 @@ def _run(out_dir, work, seed, emit):
     from estimator.params import write_params
     from estimator.preflight.report import format_sheet, hover_report
     from estimator.watch.replay import replay_file
+    from estimator.commands.watch import watch_options
 
     path = lambda name: os.path.join(work, name)  # noqa: E731  where it is written
     show = lambda name: shown(os.path.join(out_dir, name))  # noqa: E731  where the person finds it, as printed
@@ -135,7 +136,8 @@ def _run(out_dir, work, seed, emit):
              format_lines(settings).rstrip()]
 
     # 3. in the air: board bundle + replay of simulated flights
-    bundle = write_bundle(params, path("board"), vehicle=vehicle)
+    options = watch_options(params, vehicle)   # the CONFIG liftcal firmware/replay --vehicle build
+    bundle = write_bundle(params, path("board"), vehicle=vehicle, options=options)
     text += [_rule("3. onboard power watch"),
              "$ liftcal firmware %s --vehicle %s --out %s" % (show("params.json"), show("vehicle.json"),
                                                               show("board")),
@@ -146,7 +148,7 @@ def _run(out_dir, work, seed, emit):
         # the command shows while its flight is simulated and replayed (several seconds each)
         text.append("$ liftcal replay %s --params %s" % (show(stem + ".csv"), show("params.json")))
         write_atomic(csv_path, simulate_flight(vehicle, fault=fault, seed=seed))
-        result = replay_file(csv_path, params, vehicle=vehicle, progress=False)
+        result = replay_file(csv_path, params, vehicle=vehicle, options=options, progress=False)
         kinds = sorted({e["kind"] for e in result["events"]})
         first = result["events"][0]["t_s"] if result["events"] else None
         flights.append({"file": show(stem + ".csv"), "fault": fault, "samples": result["samples"],

@@ -32,9 +32,22 @@ def _load(params_file, vehicle_file):
     return params, vehicle
 
 
-def _options(lag_ms):
-    """watch CONFIG option overrides from the command line (estimator.watch.config.DEFAULTS)."""
-    return {} if lag_ms is None else {"lag_ms": lag_ms}
+def watch_options(params, vehicle=None, lag_ms=None):
+    """watch CONFIG option overrides (estimator.watch.config.DEFAULTS) of firmware, replay and the
+    demo alike, so that the board and the desktop run one CONFIG: --lag-ms, and with a vehicle file
+    the pack current at full command on a full pack that the pre-flight sheet judges the current
+    limits on (preflight.measured_rotor.hover_from_params, pack_current_judged_A: the set's motor
+    model on the vehicle's sagging pack; the one calculation, not a second copy), which the watch's
+    current range and its warning take instead of the power model's figure without sag (trial 9:
+    463 A without sag against the sheet's 408 A on a 12S octo)."""
+    out = {} if lag_ms is None else {"lag_ms": lag_ms}
+    if vehicle is not None:
+        from estimator.preflight.measured_rotor import hover_from_params
+
+        amps = hover_from_params(vehicle, params).get("pack_current_judged_A")
+        if amps is not None and amps > 0.0:
+            out["full_command_current_A"] = amps
+    return out
 
 
 EVENT_MEANING = {
@@ -124,7 +137,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     state = check_folder(out_dir, "bundle", inputs=(params_file, vehicle_file))
     params, vehicle = _load(params_file, vehicle_file)
     edited = edited_set_warning(params_file, from_edited, "the board bundle")
-    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=_options(lag_ms),
+    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=watch_options(params, vehicle, lag_ms),
                        edited=edited)
     cfg = out["config"]
     # the kernel's limit is plan x (1 + permille / 1000) exactly (it compares permille), not floored
@@ -196,7 +209,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         replaced = replaced_line(plot_file, "png")  # README: a replaced liftcal file is named in one line
     params, vehicle = _load(params_file, vehicle_file)
     out, trace = replay_file_traced(flight_file, params, vehicle=vehicle, drop_bad_time=drop_bad_time,
-                                    options=_options(lag_ms), params_source=params_file,
+                                    options=watch_options(params, vehicle, lag_ms), params_source=params_file,
                                     trace=plot_file is not None)
     _note_mass_after_baseline(out["events"])
     if plot_file is not None:
@@ -214,6 +227,8 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     if out.get("dropped_missing_rows"):
         lines.append("  dropped %s with an empty or 'nan' cell (a missed reading)"
                      % _count(out["dropped_missing_rows"], "row"))
+    # before the events: a punch-out beyond the current-sensor range shows as a sensor_fault
+    lines += ["  ! " + w for w in out.get("warnings", [])]
     if not out["learned"]:
         lines.append("  " + out["note"])
     elif not out["events"]:

@@ -74,6 +74,7 @@ DEFAULTS = {
     "spin_command": None,           # command above which the rotors make thrust [-] (default u_min + 0.05)
     "current_min_A": None,          # below this the current sensor is faulty [A] (default: watch/sensor_range.py)
     "current_max_A": None,          # above this [A] (default 1.5 x the motors' limit or full-command current; <= 300 A)
+    "full_command_current_A": None, # full command on a full pack [A] (default: the power model without sag)
 }
 
 # CONFIG is one flat tuple of plain ints (layout in estimator/core/watch_layout.py): each table
@@ -271,11 +272,12 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     v_ref = curve["reference_voltage_V"]
     volts = [(v_min_mV + i * v_step) / 1000.0 for i in range(13)]
     factors, t_site, hov, how = expected_thrust(params, v, rho, weight_N / n_rot, volts)
-    # full command on a full pack: bus current from the power model (no sag: an upper estimate)
+    # full command on a full pack: the pre-flight sheet's pack current (commands.watch.watch_options, with a
+    # vehicle file), else the power model's bus current at the full pack voltage (no sag: an upper figure)
     f_full = min((v_full / v_ref) ** curve["voltage_exponent"], 1.5)
-    i_full = n_rot * _rotor_power_W(pm, t_site * f_full, rho) / v_full
+    i_full = o["full_command_current_A"] or n_rot * _rotor_power_W(pm, t_site * f_full, rho) / v_full
     i_min_mA, i_max_mA, (n_lo, n_hi), warning = current_range_mA(
-        i_full, v.get("max_current_A"), o["current_max_A"], o["current_min_A"])
+        i_full, v.get("max_current_A"), o["current_max_A"], o["current_min_A"], o["full_command_current_A"] is None)
     put("i_min_mA", i_min_mA, n_lo)
     put("i_max_mA", i_max_mA, n_hi)
     if warning:

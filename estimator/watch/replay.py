@@ -294,7 +294,8 @@ def replay_file(path, params, vehicle=None, options=None, progress=None, drop_ba
     always (True) or never (False). Raises InputError on a bad file: time that goes back or
     repeats (unless ``drop_bad_time``: those rows are dropped and counted in ``dropped_rows``),
     values implausible for the parameter set (the likely unit slip is named), a log from another
-    vehicle or pack (log_checks.check_vehicle). A log on which the watch did not finish learning
+    vehicle or pack (log_checks.check_vehicle). warnings: the CONFIG's range warning (the vehicle's
+    full command beyond the current-sensor range), as firmware gives it. A log on which the watch did not finish learning
     the baseline gets ``learned`` False and a ``note`` saying why (learning_note).
     """
     return replay_file_traced(path, params, vehicle, options, progress, drop_bad_time, params_source, False)[0]
@@ -303,7 +304,7 @@ def replay_file(path, params, vehicle=None, options=None, progress=None, drop_ba
 def replay_file_traced(path, params, vehicle=None, options=None, progress=None, drop_bad_time=False,
                        params_source="parameter set", trace=True):
     """replay_file's dict and, when ``trace``, run_kernel's per-sample trace for the plot (else None)."""
-    config, _ = make_config(params, vehicle, options, params_source)
+    config, notes = make_config(params, vehicle, options, params_source)
     flight = read_flight(path)
     dropped = check_time(path, flight, go_on=drop_bad_time)
     facts = vehicle_facts(params, vehicle, params_source)
@@ -318,6 +319,8 @@ def replay_file_traced(path, params, vehicle=None, options=None, progress=None, 
             e["note"] = note
     if not out["learned"]:
         out["note"] = learning_note(out, config)
+    # the range warning firmware gives, repeated: a punch-out beyond the range is a sensor_fault
+    out["warnings"] = [notes["range_warning"]] if "range_warning" in notes else []
     if dropped:
         out["dropped_rows"] = dropped
     if flight["missing_rows"]:

@@ -36,24 +36,35 @@ def voltage_range_mV(v_full, v_empty):
         % (v_max_mV / 1000.0, v_full, V_SENSOR_MAX_V))
 
 
-def current_range_mA(i_full, motors_max_A=None, max_A=None, min_A=None):
+def current_range_mA(i_full, motors_max_A=None, max_A=None, min_A=None, upper=True):
     """(i_min_mA, i_max_mA, notes, warning or None): the current range [mA] for a vehicle whose full
     command on a full pack draws i_full [A]: max_A (an option) or 1.5 x the motors' limit
     motors_max_A [A], else 1.5 x i_full, at most 300 A; min_A or -max(0.2 A, 1 % of the range)
-    (a sensor's zero offset and noise). The warning says when i_full is beyond the range."""
+    (a sensor's zero offset and noise). The warning says when i_full is beyond the range, and
+    where i_full comes from: upper True, the power model without pack sag (an upper figure),
+    else the pre-flight sheet's (the set's motor model on the vehicle's sagging pack)."""
     i_max = min(max_A or max(1.0, 1.5 * (motors_max_A or i_full)), I_SENSOR_MAX_A)
     i_min = min_A if min_A is not None else -max(0.2, 0.01 * i_max)
+    basis = (FULL_CURRENT_UPPER if upper else FULL_CURRENT_PREFLIGHT) % i_full
     notes = ("current below %.2f A is a sensor fault%s" % (
         i_min, "" if min_A is not None else " (1 %% of the %.0f A range, at least 0.2 A: zero "
         "offset and noise of the sensor)" % i_max),
         "current above %.1f A is a sensor fault [mA] (%s)" % (
         i_max, "the option current_max_A" if max_A else
         "1.5 x the motors' limit %.1f A" % motors_max_A if motors_max_A else
-        "1.5 x the full-command current %.1f A" % i_full))
+        "1.5 x the full-command current: %s" % basis))
     i_max_mA = int(round(i_max * 1000.0))
     warning = None
     if i_full > i_max_mA / 1000.0:
-        warning = ("full command on a full pack draws about %.0f A, beyond the watch's current-sensor range (%.0f A%s): "
+        warning = ("full command on a full pack draws %sabout %.0f A, beyond the watch's current-sensor range (%.0f A%s): "
                    "a full-throttle climb reads as a sensor_fault and the alarms pause until the current is back in "
-                   "range" % (i_full, i_max, "" if i_max < I_SENSOR_MAX_A else ", the most it reads"))
+                   "range; %s" % ("up to " if upper else "", i_full, i_max,
+                                  "" if i_max < I_SENSOR_MAX_A else ", the most it reads", basis))
     return int(round(i_min * 1000.0)), i_max_mA, notes, warning
+
+
+# where the full-command current on a full pack comes from (current_range_mA's words)
+FULL_CURRENT_PREFLIGHT = ("%.0f A is the pre-flight sheet's figure (liftcal hover VEHICLE --params SET: the set's motor "
+                          "model on the vehicle's sagging pack)")
+FULL_CURRENT_UPPER = ("%.0f A is an upper figure (the set's power model at the full pack voltage, without the pack's "
+                      "sag; give --vehicle for the pre-flight sheet's figure on the sagging pack)")
