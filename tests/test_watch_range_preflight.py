@@ -9,28 +9,17 @@ showed a punch-out beyond the range as a sensor_fault without saying why.
 The current is judged against an invented truth written apart from the project's code
 (tests/test_watch_site_air.Truth: a DC motor on a propeller of fixed coefficients; Hughes,
 Electric Motors and Drives, ch. 3, from memory) on a Thevenin pack, V_bus = V_oc - R_pack I
-(the pack model of the design notes; common practice), solved here with scipy's brentq.
+(the pack model of the design notes; common practice), solved with scipy's brentq
+(tests/test_watch_sensor_range.sagged_amps).
 """
 
 import json
 import random
 import re
 
-from scipy.optimize import brentq
-
 from io_helpers import run
-from test_watch_sensor_range import _truths, _vehicle
+from test_watch_sensor_range import _truths, _vehicle, sagged_amps
 from test_watch_site_air import G0, bench_csv, isa_density
-
-PACK_OHM = 0.005    # the test vehicle's pack resistance (tests/test_watch_sensor_range._vehicle: 5 mohm)
-
-
-def _sagged_amps(truth, rotors, rho):
-    """The truth's pack current at full command on a full pack (4.2 V a cell, LiPo, common
-    practice) through PACK_OHM: the bus voltage where V_oc - R I(V) = V."""
-    v_oc = 4.2 * truth.cells
-    bus = brentq(lambda v: v_oc - PACK_OHM * rotors * truth.current_in(1.0, v, rho) - v, 0.5 * v_oc, v_oc)
-    return rotors * truth.current_in(1.0, bus, rho)
 
 
 def _fitted(tmp_path, truth, rng, tag):
@@ -65,7 +54,7 @@ def test_firmware_with_a_vehicle_warns_with_the_pre_flight_sheets_current(tmp_pa
         assert code == 0, err
         assert amps == round(json.loads(sheet)["pack_current_judged_A"]), (amps, sheet)
         # and the truth's on its sagging pack, within the fit's few per cent
-        truth_amps = _sagged_amps(truth, 8, rho)
+        truth_amps = sagged_amps(truth, 8, rho)
         assert abs(amps / truth_amps - 1.0) < 0.08, (amps, truth_amps, stiff_amps)
         # without the vehicle file (the set's vehicle block has no pack resistance) the power
         # model's figure stays, said to be an upper one

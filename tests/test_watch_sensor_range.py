@@ -26,6 +26,20 @@ def _vehicle(truth, rotors, mass_kg, cells=None):
             "site": {"altitude": "100m", "temperature": "20C", "humidity": "0%"}}
 
 
+PACK_OHM = 0.005    # _vehicle's pack resistance (5 mohm)
+
+
+def sagged_amps(truth, rotors, rho):
+    """The truth's pack current at full command on a full pack (4.2 V a cell, LiPo, common
+    practice) through PACK_OHM on a Thevenin pack (V_bus = V_oc - R I, the pack model of the
+    design notes; common practice): the bus voltage where V_oc - R I(V) = V, by scipy's brentq."""
+    from scipy.optimize import brentq
+
+    v_oc = 4.2 * truth.cells
+    bus = brentq(lambda v: v_oc - PACK_OHM * rotors * truth.current_in(1.0, v, rho) - v, 0.5 * v_oc, v_oc)
+    return rotors * truth.current_in(1.0, bus, rho)
+
+
 def _truths(rng, want_high, n, cells=None):
     """n truths on 8 rotors whose full command on a full pack draws above 360 A (want_high) or
     below 240 A in all (20 % either side of the 300 A range, so the model's few-% error cannot
@@ -62,8 +76,11 @@ def test_a_vehicle_drawing_more_than_the_current_range_is_warned_with_its_curren
         m = re.search(r"full command on a full pack draws about (\d+) A, beyond the watch's current-sensor "
                       r"range \(300 A, the most it reads\)", " ".join((out + err).split()))
         assert m, out + err
-        # the estimate (no sag) within 15 % of the truth's current on a stiff full pack
-        assert abs(float(m.group(1)) / amps - 1.0) < 0.15, (m.group(1), amps)
+        # the pre-flight sheet's figure (--vehicle given: the set's motor model on the sagging
+        # pack) within 15 % of the truth's current on the same sagging pack (the stiff pack's,
+        # amps, was the reference while the figure was the power model's without sag)
+        sagged = sagged_amps(truth, 8, isa_density(100.0, 20.0))
+        assert abs(float(m.group(1)) / sagged - 1.0) < 0.15, (m.group(1), sagged, amps)
 
 
 def test_a_vehicle_within_the_current_range_gets_no_range_warning(tmp_path):
