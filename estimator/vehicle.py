@@ -124,8 +124,9 @@ def check_quantity(name, value, text=None, what=None):
         if bare and 2.0 <= value <= 100.0:
             hint = ": did you mean %g (a fraction, not %g %%)?" % (value / 100.0, value)
         raise InputError("%s: %s is %s (0 < k <= 1)%s" % (what, shown, side, hint))
-    slip = unit_slip(value, kind, slips, sub) if bare else None
-    if slip is not None:
+    slip = bare and (name == "diameter" and unit_slip(value, kind, ("in",), sub)  # props are sized in inches
+                     or unit_slip(value, kind, slips, sub))  # (common practice): '22' is 22in, not 22cm
+    if slip:
         raise InputError("%s: %s: did you mean %s%s? (%s must be %s)"
                          % (what, shown, str(text).strip(), slip[0], label, range_text(name)))
     raise InputError("%s: %s is outside %s (%s)" % (what, shown, range_text(name), label))

@@ -50,7 +50,7 @@ def test_air_json_matches_the_1976_standard_at_sea_level(tmp_path):
 
 
 def test_static_json_is_momentum_theory_and_text_ranges_read_low_to_high(tmp_path):
-    out = one_json(invoke(tmp_path, "static", "--diameter", "0.3", "--power", "100", "--density",
+    out = one_json(invoke(tmp_path, "static", "--diameter", "0.3m", "--power", "100", "--density",
                           "1.2", "--json"))
     # actuator disk, hand formula: T_ideal = (2 rho A P^2)^(1/3) (Glauert / Leishman ch. 2, from memory)
     area = math.pi * 0.15 ** 2

@@ -21,7 +21,7 @@ def test_voltage_exponent_names_the_option(tmp_path, value, words):
 
 @pytest.mark.parametrize("args", [
     ["static", "--diameter", "1e999in", "--power", "100"],
-    ["static", "--diameter", "0.25", "--power", "1e999W"],
+    ["static", "--diameter", "0.25m", "--power", "1e999W"],
     ["air", "--altitude", "1e999m"],
     ["fit", "x.csv", "--out", "p.json", "--density", "1e999"],
 ])

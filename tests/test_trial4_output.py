@@ -30,20 +30,11 @@ def _write(tmp_path, doc, name="v.json"):
 
 
 # --- item 6: static --diameter 3 -----------------------------------------------------------------
-
-def test_static_bare_diameter_of_3_warns_inches_meant():
-    # 3 m with 20 W gives about 0.8 N/m^2, far below the 20..1500 N/m^2 of small multirotors
-    # (common practice); 3 in = 0.0762 m (NIST SP 811, exact)
-    out = ok("static", "--diameter", "3", "--power", "20W")
-    flat = " ".join(out.split())
-    assert "inches meant? 3 in = 0.0762 m" in flat and "--diameter 3in" in flat
-    data = json.loads(ok("static", "--diameter", "3", "--power", "20W", "--json"))
-    assert len(data["warnings"]) == 1 and "inches meant" in data["warnings"][0]
-
+# a bare --diameter is refused since trial 10 (finding 10): tests/test_small_fixes_trial10.py
 
 @pytest.mark.parametrize("args", [["--diameter", "3in", "--power", "20W"],
-                                  ["--diameter", "0.254", "--power", "100W"],
-                                  ["--diameter", "0.254", "--thrust", "5N"]])
+                                  ["--diameter", "0.254m", "--power", "100W"],
+                                  ["--diameter", "0.254m", "--thrust", "5N"]])
 def test_static_ordinary_diameters_get_no_warning(args):
     assert "meant?" not in ok(*["static"] + args)
     assert json.loads(ok(*["static"] + args + ["--json"]))["warnings"] == []

@@ -58,39 +58,6 @@ def static_rotor(diameter_m, density_kg_m3, factor=None, power_W=None, thrust_N=
     return out
 
 
-def diameter_slip_warning(out, typed, power_given):
-    """A warning when a bare --diameter (metres) gives a disk loading far outside that of small
-    multirotors while the same number in inches, centimetres or millimetres gives an ordinary
-    one (the vehicle file's check, estimator.preflight.unit_checks); else None.
-
-    out: the static_rotor dict; typed: what the person typed (None or a text with a unit: no
-    warning, the unit was written); power_given: True when thrust came from --power.
-    """
-    from estimator.preflight.unit_checks import (DISK_LOADING_FLOOR_N_M2, DISK_LOADING_TYPICAL_N_M2,
-                                                 LENGTH_SLIPS)
-    from estimator.vehicle_units import BARE_NUMBER
-
-    if typed is None or not BARE_NUMBER.match(str(typed)):
-        return None
-    lo, hi = DISK_LOADING_TYPICAL_N_M2
-    loading = out["disk_loading_N_m2"]
-    if DISK_LOADING_FLOOR_N_M2 <= loading:
-        return None
-    number = float(typed)
-    for unit, scale, word in LENGTH_SLIPS:  # a bare --diameter is metres
-        other = static_rotor(number * scale, out["density_kg_m3"],
-                             out["static_factor"] if out["static_factor_source"] == "given" else None,
-                             power_W=out["power_W"] if power_given else None,
-                             thrust_N=None if power_given else out["thrust_N"])
-        if lo <= other["disk_loading_N_m2"] <= hi:
-            return ("--diameter %s reads as a %s m rotor: disk loading %s N/m^2, far below the %g..%g "
-                    "N/m^2 of small multirotors (common practice); %s meant? %s %s = %s m: write the "
-                    "unit (--diameter %s%s)" % (typed.strip(), "%g" % number, plain_number(loading, 3),
-                                                lo, hi, word, "%g" % number, unit,
-                                                plain_number(number * scale, 3), typed.strip(), unit))
-    return None
-
-
 def format_static(out, power_given, thrust_typed=None):
     """Text lines for ``liftcal static``; ranges always read low..high. thrust_typed: the
     --thrust as the person typed it (500g): the answer names it in that unit, the newtons beside."""
