@@ -42,6 +42,16 @@ class LazyGroup(click.Group):
         module_name, attr = COMMANDS[name]
         return getattr(importlib.import_module(module_name), attr)
 
+    def resolve_command(self, ctx, args):
+        """click's own, plus the nearest command name for a typo ('hovr': did you mean 'hover'?)."""
+        import difflib
+
+        name = click.utils.make_str(args[0]) if args else ""
+        if name in COMMANDS or name.startswith("-"):
+            return super().resolve_command(ctx, args)
+        near = difflib.get_close_matches(name.lower(), list(COMMANDS), n=1, cutoff=0.6)
+        ctx.fail("No such command %r%s" % (name, "; did you mean %r?" % near[0] if near else "."))
+
     def format_commands(self, ctx, formatter):
         """One line per command: the first sentence of its docstring, not cut short."""
         rows = [(name, self.get_command(ctx, name).get_short_help_str(limit=200)) for name in COMMANDS]

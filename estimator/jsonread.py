@@ -109,6 +109,9 @@ def loads(text, path):
             raise InputError("%s: is a settings file that liftcal export wrote (lines for the flight "
                              "controller), not a JSON file; is it the right file? (the parameter set it "
                              "came from is the JSON that liftcal fit wrote)" % path) from None
+        if not text.lstrip("\ufeff").strip():
+            raise InputError("%s: the file is empty (or white space only); is it the right file, "
+                             "or was it not saved?" % path) from None
         if _looks_like_csv(text):
             raise InputError("%s: looks like a CSV file (a bench sweep or a flight log?), not a JSON "
                              "file; is it the right file?" % path) from None

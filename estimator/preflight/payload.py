@@ -223,6 +223,15 @@ def _shared_decimals(values, most=3):
     return most
 
 
+def _shown_minutes(row):
+    """A row's endurance [min] to one decimal; rounded down when it misses the job time, so the
+    table never shows a missed job time as met (3.96 min against 4 min is 3.9, not 4.0)."""
+    minutes = row["flight_time_lead_min"]
+    if row["margins"].get("job_time") is False:
+        return math.floor(minutes * 10.0) / 10.0
+    return minutes
+
+
 def format_payload_table(result, unit="kg"):
     """The payload table for the sheet, masses in the unit the person typed (g, kg, lb, oz);
     cmd is the hover command on a nominal pack, empty the one near empty; a payload that breaks a
@@ -238,7 +247,7 @@ def format_payload_table(result, unit="kg"):
         cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
         empty = "%.2f" % r["hover_command_empty"] if r["hover_command_empty"] is not None else "none"
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
-        time = ("%.1f min (%s)" % (r["flight_time_lead_min"], r["flight_ended_by"])
+        time = ("%.1f min (%s)" % (_shown_minutes(r), r["flight_ended_by"])
                 if r["flight_time_lead_min"] is not None else "no hover")
         lines.append("   %-9s  %-9s  %-4s  %-5s  %-6s %-6s  %-18s  %s" % (
             "%.*f %s" % (shown, r["payload_kg"] / scale, unit), "%.*f %s" % (shown, r["mass_kg"] / scale, unit), cmd,
