@@ -5,7 +5,10 @@ product of the variations (here 4 rows). Each combination is the vehicle file wi
 replaced, checked as a file would be (units, schema, physics), then run through hover_report.
 Rows are ranked by endurance among the combinations that keep every margin
 (estimator.preflight.margins), then the others by endurance: the endurance the hover sheet leads
-with (estimator.preflight.low_reynolds.endurance_lead).
+with (estimator.preflight.low_reynolds.endurance_lead). A row whose values look like a unit or
+decimal slip (a unit_slip caveat: a pack weighing most of the vehicle) is ranked after the rows
+that keep every margin with ordinary values and never named the best build: the verdict says it
+was left out and why (new-user trial 10, finding 4: a 1332 Wh pack on a 9 kg hexa won it).
 """
 
 import copy
@@ -20,6 +23,10 @@ from estimator.preflight.warnings import (ENDED_BY_WORDS, REACHABLE_MARK, REACHA
 from estimator.textwidth import WIDTH, fit_width, wrap_line
 from estimator.vehicle import check_vehicle, vehicle_keys
 
+# a row that keeps every margin while a value looks like a unit or decimal slip (the ! line under it)
+SLIP_LEFT_OUT = "left out of the verdict: a value looks like a slip (the ! line)"
+SLIP_WHY = ("a value looks like a unit or decimal slip, e.g. a pack weighing most of the vehicle: the ! line "
+            "under each row; check it before trusting that row")
 MAX_COMBINATIONS = 10000  # a product larger than this is refused (say so) [-]
 # propeller keys that a new propeller description replaces
 _PROPELLER_SETS = {"size": ("diameter_m", "pitch_m", "diameter", "pitch", "ct", "cp"),
@@ -128,9 +135,10 @@ def compare_rows(document, source, variations, progress=None):
     row shows and is ranked on: low_reynolds.endurance_lead, the conservative endurance for a
     small estimated rotor), endurance_lead (that dict), flight_ended_by (of the flight shown),
     caveats (preflight.caveats: unit slips, small rotor, cold pack, as the hover sheet has them),
-    margins {name: bool|None}, keeps_margins, broken [names]), margins (MARGINS), not_margins
-    (margins.TABLE_CAUTIONS: shown beside a row, never ranking it), best (the
-    first row that keeps every margin, or None).
+    margins {name: bool|None}, keeps_margins, broken [names], looks_like_slip (a unit_slip
+    caveat)), margins (MARGINS), not_margins (margins.TABLE_CAUTIONS: shown beside a row, never
+    ranking it), best (the first row that keeps every margin and does not look like a slip, or
+    None), left_out (the rows that keep every margin but look like a slip, by rank).
     Raises InputError naming the --vary value when a combination is not a valid vehicle.
     """
     combos = combinations(variations)
@@ -176,17 +184,21 @@ def compare_rows(document, source, variations, progress=None):
             "margins": marks,
             "keeps_margins": keeps_margins(marks),
             "broken": broken(marks),
+            "looks_like_slip": any(c["kind"] == "unit_slip" for c in report["caveats"]),
         })
         if progress is not None:
             progress(i + 1, len(combos))
     # ranked on the endurance the sheet leads with (low_reynolds.endurance_lead: the conservative
     # one for a small estimated rotor)
-    rows.sort(key=lambda r: (not r["keeps_margins"], -(r["flight_time_lead_min"] or 0.0)))
+    # (a row that looks like a slip after the ordinary ones that keep every margin)
+    rows.sort(key=lambda r: (not r["keeps_margins"], r["keeps_margins"] and r["looks_like_slip"],
+                             -(r["flight_time_lead_min"] or 0.0)))
     for rank, row in enumerate(rows, 1):
         row["rank"] = rank
-    best = rows[0] if rows and rows[0]["keeps_margins"] else None
+    best = rows[0] if rows and rows[0]["keeps_margins"] and not rows[0]["looks_like_slip"] else None
+    left_out = [r for r in rows if r["keeps_margins"] and r["looks_like_slip"]]
     return {"rows": rows, "margins": dict(MARGINS), "not_margins": dict(TABLE_CAUTIONS), "best": best,
-            "varied": [".".join(p) for p, _ in variations], "combinations": len(rows)}
+            "left_out": left_out, "varied": [".".join(p) for p, _ in variations], "combinations": len(rows)}
 
 
 def _tw_cell(row):
@@ -236,17 +248,24 @@ def format_table(result, name):
         ended = ("ended by %s; " % ENDED_BY_WORDS.get(r["flight_ended_by"], r["flight_ended_by"])
                  if r.get("flight_ended_by") else "")
         marks = "keeps every margin" if r["keeps_margins"] else "breaks " + ", ".join(r["broken"])
+        if r["keeps_margins"] and r["looks_like_slip"]:
+            marks += ", but " + SLIP_LEFT_OUT
         lines += wrap_line(" " * (rank_w + 2) + ended + marks, indent=rank_w + 4)  # words under the row
         for caveat in r["caveats"]:  # the hover sheet's caveats, one line each (preflight.caveats)
             if caveat["kind"] == "cold_pack" and len(rows) > 1 and all(caveat in o["caveats"] for o in rows):
                 continue  # the same pack caution for every row: once, below the table
             lines += wrap_line(" " * (rank_w + 2) + "! " + caveat["short"], indent=rank_w + 6)
     table, lines = lines, [""]
+    left_out = result.get("left_out") or []
     if result["best"]:
         lines.append("longest hover that keeps every margin: %s (%.1f min)"
                      % (result["best"]["label"], result["best"]["flight_time_lead_min"]))
     else:
-        lines.append("no combination keeps every margin")
+        lines.append("no combination keeps every margin" + (" with values that look ordinary" if left_out else ""))
+    if left_out:
+        ranks = ", ".join("#%d" % r["rank"] for r in left_out[:5]) + (
+            " and %d more" % (len(left_out) - 5) if len(left_out) > 5 else "")
+        lines.append("left out of that verdict: %s (%s)" % (ranks, SLIP_WHY))
     if labels != list(keys):
         lines.append("columns: " + "; ".join("%s = %s" % (lab, k) for lab, k in zip(labels, keys) if lab != k))
     lines.append("margins:")

@@ -31,12 +31,17 @@ def plot_compare(path, result, name):
     plt = _pyplot()
     fig, ax = plt.subplots(figsize=(8.0, 6.2))
     rows = [r for r in result["rows"] if r["hover_command"] is not None and r["flight_time_lead_min"] is not None]
-    for keeps, colour, label in ((True, "tab:green", "keeps every margin"),
-                                 (False, "tab:red", "breaks a margin")):
-        pts = [r for r in rows if r["keeps_margins"] == keeps]
+    # a row whose values look like a unit or decimal slip is never drawn as keeping every margin
+    kinds = (("keeps", "tab:green", "o", "keeps every margin"),
+             ("slip", "tab:orange", "x", "keeps the margins, but a value looks like a slip: left out"),
+             ("breaks", "tab:red", "o", "breaks a margin"))
+    kind = {id(r): "breaks" if not r["keeps_margins"] else "slip" if r.get("looks_like_slip") else "keeps"
+            for r in rows}
+    for which, colour, marker, label in kinds:
+        pts = [r for r in rows if kind[id(r)] == which]
         if pts:
             ax.scatter([r["hover_command"] for r in pts], [r["flight_time_lead_min"] for r in pts],
-                       c=colour, label=label, s=30, alpha=0.8)
+                       c=colour, marker=marker, label=label, s=30, alpha=0.8)
     labels = []
     for r in sorted(rows, key=lambda r: r["rank"])[:LABEL_ALL]:
         short = ", ".join(str(v) for v in r["values"].values())
