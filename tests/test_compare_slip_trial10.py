@@ -63,3 +63,37 @@ def test_the_plot_draws_the_slip_row_apart_from_the_rows_that_keep_every_margin(
     assert labels == ["keeps every margin", "keeps the margins, but a value looks like a slip: left out"]
     # one point in each group: the slip row is not among the points drawn as keeping every margin
     assert [len(c.get_offsets()) for c in ax.collections] == [1, 1]
+
+
+# --- a slip suggestion only when the corrected vehicle is an ordinary one ----------------------
+# The trial's file carries "max_discharge_C": 15 (its pack's rating, invented). Hover power from
+# momentum theory, P = T^1.5 / sqrt(2 rho A) per rotor at a figure of merit of 0.5 (from memory),
+# sea-level standard air 1.225 kg/m^3 (US Standard Atmosphere 1976): 10 kg on six 22in rotors
+# needs about 1023 W, and thrust-to-weight 2 needs 2^1.5 of it (P ~ T^1.5), about 65 A on 44.4 V.
+
+def _warnings(tmp_path, capacity, **changes):
+    doc = json.loads(json.dumps(HEXA))
+    doc["battery"].update(capacity=capacity, max_discharge_C=15)
+    doc.update(changes)
+    return [w for w in json.loads(ok("hover", json_file(tmp_path, doc), "--json"))["warnings"]
+            if w.startswith("$.battery.capacity_Ah")]
+
+
+def test_a_decimal_slip_is_not_suggested_when_its_pack_could_not_lift_the_vehicle(tmp_path):
+    # 40 Ah (1776 Wh, 89 % of the vehicle at 200 Wh/kg) is flagged; 4 Ah would fit the pack-share
+    # band but at 15C gives 60 A, below the 65 A thrust-to-weight 2 needs: not an ordinary vehicle
+    (warning,) = _warnings(tmp_path, "40Ah")
+    assert "meant" not in warning and "no single unit or decimal slip gives an ordinary vehicle" in warning
+
+
+def test_a_decimal_slip_is_not_suggested_when_its_pack_would_hover_only_minutes(tmp_path):
+    # on 15in rotors the same 10 kg needs about 1500 W: 3.5 Ah (155 Wh) would hover at most about
+    # 6 min even at this generous figure of merit, no ordinary 10 kg vehicle; 35 Ah is still flagged
+    (warning,) = _warnings(tmp_path, "35Ah", propeller={"diameter": "15in", "ct": 0.100, "cp": 0.038})
+    assert "meant" not in warning and "check the capacity and the mass" in warning
+
+
+def test_a_slip_to_an_ordinary_pack_is_still_suggested(tmp_path):
+    # 160 Ah for 16 Ah: about an hour of hover at 65 A of 240 A rated: ordinary, so named first
+    (warning,) = _warnings(tmp_path, "160Ah")
+    assert "16 Ah meant (a misplaced decimal point)?" in warning

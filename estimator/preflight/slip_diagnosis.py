@@ -41,6 +41,12 @@ TYPICAL_CT = 0.1  # a small propeller's static CT, n in rev/s (from memory)
 # most 1/sqrt(2) of it (T ~ n^2), and at the motor's most power (P ~ T^1.5) hover at most 2^-1.5 of it.
 ORDINARY_SPEED_SHARE = 2.0 ** -0.5
 ORDINARY_POWER_SHARE = 2.0 ** -1.5
+# ... and its pack ordinary too (trial 10, finding 4: '2.2 Ah meant?' for a 10 kg 12S hexa, which
+# would hover about 5 min at 10C): the corrected vehicle hovers at least ORDINARY_HOVER_MIN on the
+# whole pack at the generous FIGURE_OF_MERIT with no motor or ESC loss (an upper bound: a 5-inch
+# racer that flies 4..5 min reads about 11 here, a real hover is about half of it), and the pack's
+# rating (max_discharge_C, when given) delivers thrust-to-weight 2 (2^1.5 the hover power, P ~ T^1.5).
+ORDINARY_HOVER_MIN = 8.0
 # slips per key: (factor applied to the value as read, words); 1 g = 1e-3 kg, 1 mAh = 1e-3 Ah
 _SLIPS = {
     "$.mass_kg": ((1e-3, "the unit prefix: g, not kg"), (1e3, "the unit prefix: kg, not g"),
@@ -112,6 +118,22 @@ def _ordinary(facts):
             value, lo, _, text = out[name]
             out[name] = (value, lo, share, text)
     return out
+
+
+def _ordinary_pack(vehicle, key, value):
+    """True when the vehicle with ``key`` corrected to ``value`` has an ordinary pack for its hover
+    (ORDINARY_HOVER_MIN, the rating at thrust-to-weight 2); sea-level standard air as the checks."""
+    mass = value if key == "$.mass_kg" else vehicle["mass_kg"]
+    diameter = value if key == "$.propeller.diameter_m" else vehicle["propeller"]["diameter_m"]
+    bat = vehicle["battery"]
+    capacity_Ah = value if key == "$.battery.capacity_Ah" else bat["capacity_Ah"]
+    count = vehicle["rotors"]["count"]
+    thrust = mass * STANDARD_GRAVITY_M_S2 / count
+    hover_W = count * thrust ** 1.5 / math.sqrt(2.0 * RHO * disk_area_m2(diameter)) / FIGURE_OF_MERIT
+    volts = bat["cells"] * bat["nominal_cell_V"]
+    if 60.0 * capacity_Ah * volts / hover_W < ORDINARY_HOVER_MIN:
+        return False
+    return "max_discharge_C" not in bat or 2.0 ** 1.5 * hover_W / volts <= capacity_Ah * bat["max_discharge_C"]
 
 
 def _penalty(facts):
@@ -189,7 +211,7 @@ def whole_vehicle_slip(vehicle):
         if value <= 0.0 or not in_vehicle_schema(key, value):  # never a value the schema refuses
             continue
         corrected = _ordinary(_judge(vehicle, key, value))
-        if _penalty(corrected) == 0.0:
+        if _penalty(corrected) == 0.0 and _ordinary_pack(vehicle, key, value):
             fits.append((_off_centre(corrected), path, key, value, shown, why))
     if not fits:
         return None
@@ -221,6 +243,20 @@ def whole_vehicle_warning(vehicle, found):
     if found["others"]:
         text += "; less likely: " + ", ".join("%s %s" % o for o in found["others"][:2])
     return text
+
+
+def pack_share_warning(vehicle):
+    """When the pack energy check fails and no single slip gives an ordinary vehicle
+    (whole_vehicle_slip is None; e.g. the only correction that fits the bands would hover a 10 kg
+    hexa about 5 min at 10C): the words that the pack does not fit, with no suggestion; else None.
+    Starts with the JSON path (a unit_slip caveat: compare leaves such a row out of its verdict)."""
+    value, lo, hi, text = _judge(vehicle)["pack energy"]
+    if lo <= value <= hi or whole_vehicle_slip(vehicle) is not None:
+        return None
+    written = given_text(vehicle, "$.battery.capacity_Ah")
+    return ("$.battery.capacity_Ah: %g Ah%s does not fit the rest of the vehicle (%s); no single unit or decimal "
+            "slip gives an ordinary vehicle: check the capacity and the mass"
+            % (vehicle["battery"]["capacity_Ah"], ' (written "%s")' % written if written else "", text))
 
 
 def too_heavy_warning(vehicle):

@@ -14,7 +14,7 @@ import re
 
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2, figure_of_merit
-from estimator.preflight.slip_diagnosis import too_heavy_warning, whole_vehicle_slip, whole_vehicle_warning
+from estimator.preflight.slip_diagnosis import pack_share_warning, too_heavy_warning, whole_vehicle_slip, whole_vehicle_warning
 from estimator.units import INCH_M
 from estimator.vehicle import given_text
 # the typical ranges live with the vehicle file's unit reading (one home)
@@ -167,6 +167,8 @@ def suspicious_values(vehicle):
         out = [whole_vehicle_warning(vehicle, found)]
         capacity_odd = found["key"] == "$.battery.capacity_Ah"
     else:
+        share = None if capacity_odd or out else pack_share_warning(vehicle)  # the pack's alone
+        out += [share] if share else []
         heavy = too_heavy_warning(vehicle)
         if heavy is not None and not out:
             out.append(heavy)
