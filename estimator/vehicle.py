@@ -55,7 +55,7 @@ NO_ALTITUDE_WARNING = ("the vehicle file's site has no altitude_m: sea level ass
 # estimator.units, unit shown, unit slips to try on a bare number, what it is)
 QUANTITIES = {
     "diameter": (("properties", "propeller", "properties", "diameter_m"), "length", "m",
-                 ("in", "cm", "mm"), "a rotor diameter"),
+                 ("in", "cm", "mm"), "a rotor diameter"),  # inches first when they fit (props are sized in inches)
     "altitude": (("properties", "site", "properties", "altitude_m"), "altitude", "m", ("ft", "km"),
                  "a site altitude above sea level"),
     "temperature": (("properties", "site", "properties", "temperature_C"), "temperature", "C",
@@ -124,8 +124,7 @@ def check_quantity(name, value, text=None, what=None):
         if bare and 2.0 <= value <= 100.0:
             hint = ": did you mean %g (a fraction, not %g %%)?" % (value / 100.0, value)
         raise InputError("%s: %s is %s (0 < k <= 1)%s" % (what, shown, side, hint))
-    slip = bare and (name == "diameter" and unit_slip(value, kind, ("in",), sub)  # props are sized in inches
-                     or unit_slip(value, kind, slips, sub))  # (common practice): '22' is 22in, not 22cm
+    slip = bare and (name == "diameter" and unit_slip(value, kind, ("in",), sub) or unit_slip(value, kind, slips, sub))
     if slip:
         raise InputError("%s: %s: did you mean %s%s? (%s must be %s)"
                          % (what, shown, str(text).strip(), slip[0], label, range_text(name)))
