@@ -120,7 +120,7 @@ def _ordinary(facts):
     return out
 
 
-def _ordinary_pack(vehicle, key, value):
+def ordinary_pack(vehicle, key, value):
     """True when the vehicle with ``key`` corrected to ``value`` has an ordinary pack for its hover
     (ORDINARY_HOVER_MIN, the rating at thrust-to-weight 2); sea-level standard air as the checks."""
     mass = value if key == "$.mass_kg" else vehicle["mass_kg"]
@@ -211,7 +211,7 @@ def whole_vehicle_slip(vehicle):
         if value <= 0.0 or not in_vehicle_schema(key, value):  # never a value the schema refuses
             continue
         corrected = _ordinary(_judge(vehicle, key, value))
-        if _penalty(corrected) == 0.0 and _ordinary_pack(vehicle, key, value):
+        if _penalty(corrected) == 0.0 and ordinary_pack(vehicle, key, value):
             fits.append((_off_centre(corrected), path, key, value, shown, why))
     if not fits:
         return None

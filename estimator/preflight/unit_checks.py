@@ -14,7 +14,8 @@ import re
 
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2, figure_of_merit
-from estimator.preflight.slip_diagnosis import pack_share_warning, too_heavy_warning, whole_vehicle_slip, whole_vehicle_warning
+from estimator.preflight.slip_diagnosis import (ordinary_pack, pack_share_warning, too_heavy_warning,
+                                               whole_vehicle_slip, whole_vehicle_warning)
 from estimator.units import INCH_M
 from estimator.vehicle import given_text
 # the typical ranges live with the vehicle file's unit reading (one home)
@@ -155,7 +156,8 @@ def suspicious_values(vehicle):
             chemistry, specific_Wh_kg, best_Wh_kg = pack_energy_range(bat)
             # the least at the typical specific energy, the most at the best (pack_share_usual)
             usual = (mass * share_lo * specific_Wh_kg / pack_V, mass * share_hi * best_Wh_kg / pack_V)
-            hint = _written_hint(bat["capacity_Ah"], "Ah", lambda c: usual[0] <= c <= usual[1])
+            hint = _written_hint(bat["capacity_Ah"], "Ah", lambda c: usual[0] <= c <= usual[1]
+                                 and ordinary_pack(vehicle, "$.battery.capacity_Ah", c))
             out.append(head + ": a unit or decimal slip? %s (packs of %.0f..%.0f %% of the all-up mass at about "
                        "%.0f..%.0f Wh/kg, %s by the cell voltages, hold %.2g..%.2g Ah on %d cells; common "
                        "practice, from memory)"
