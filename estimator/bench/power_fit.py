@@ -73,6 +73,20 @@ def _unit_slips(k_value, thrust_unit, current_unit):
     return out
 
 
+def _why_no_power(thrust_N, power_W, sel, current_unit):
+    """The likely cause when too few thrusting rows have power: the current reads zero (or below
+    it) on the rows whose thrust rises above K_MIN_THRUST_SHARE of the top, while a rotor that
+    thrusts draws current (new-user trial 10, finding 5: a sweep with its current sensor off got
+    no cause at all); else ''."""
+    thrusting = int(np.count_nonzero(sel))
+    dead = int(np.count_nonzero(np.asarray(power_W)[sel] <= 0.0))
+    if thrusting < 5 or dead < 0.9 * thrusting:
+        return ""
+    return (": the current reads zero (or below) on %d of the %d rows whose thrust rises above %.0f %% of the "
+            "top, where a turning rotor draws current: is the current sensor connected and powered, or is "
+            "current[%s] the wrong column?" % (dead, thrusting, 100.0 * K_MIN_THRUST_SHARE, current_unit))
+
+
 def check_static_factor(source, thrust_N, power_W, density_kg_m3, area_m2, thrust_unit="N",
                         current_unit="A", warnings=None):
     """Refuse data whose static factor is robustly above 1 (impossible) or far too low.
@@ -101,7 +115,8 @@ def check_static_factor(source, thrust_N, power_W, density_kg_m3, area_m2, thrus
     good = np.isfinite(k)
     ts, k = ts[good], k[good]
     if k.size < 5:
-        raise InputError("%s: fewer than 5 rows with thrust and power above idle" % source)
+        raise InputError("%s: fewer than 5 rows with thrust and power above idle%s" % (source, _why_no_power(
+            t, power_W, sel, current_unit)))
     n_bins = min(10, k.size // 5)
     order = np.argsort(ts, kind="stable")
     worst = max(float(np.median(part)) for part in np.array_split(k[order], n_bins))
