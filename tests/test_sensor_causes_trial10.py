@@ -1,5 +1,9 @@
-"""Tenth new-user trial, finding 5 leftovers: a bench sweep whose current column reads zero got
-'fewer than 5 rows with thrust and power above idle' with no cause.
+"""Tenth new-user trial: a bench sweep whose current column reads zero got 'fewer than 5 rows
+with thrust and power above idle' with no cause, and a flight log current of 1e12 A was called
+'likely milliamps' (1e12 mA is still 1e9 A) (finding 5).
+
+The flight logs are the simulated demo flight (tests/watch_helpers.demo_flight_rows) changed by
+the one slip.
 
 The sweep is tests/test_fit_tare_trial8._sweep (an INVENTED 10-inch 6S rotor from a DC motor and
 fixed-coefficient propeller model written there, not any product) with its current column set to
@@ -7,8 +11,12 @@ zero, as a current sensor that is not connected reads. A turning rotor draws cur
 motor's torque is Kt I: any electric-machines text, from memory).
 """
 
+import pytest
+
+from io_helpers import refused as refused_in_main
 from test_fit_tare_trial8 import _sweep
 from trial_helpers import refused
+from watch_helpers import demo_flight_rows
 
 
 def _zero_current(text, value="0.000"):
@@ -39,3 +47,32 @@ def test_the_same_sweep_with_its_current_fits(tmp_path):
     csv.write_text(_sweep(0.0))
     code, out, err = run("fit", csv, "--out", tmp_path / "p.json")
     assert code == 0, err
+
+
+@pytest.fixture(scope="module")
+def rows():
+    return demo_flight_rows(7)
+
+
+@pytest.mark.parametrize("scale", [1e12, 1e9])
+def test_a_current_no_unit_makes_plausible_gets_no_milliamp_hint(tmp_path, params_file, rows, scale):
+    # 1e12 (or 1e9) times the demo's flight current: as milliamps still a million amps and more,
+    # far beyond the watch's sensor range: not a current of this vehicle in either unit
+    f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows,
+               lambda t, u, v, a: (t, u, v, scale * a))
+    line = refused_in_main(["replay", f, "--params", params_file], "column current[A]",
+                           "not a current of this vehicle")
+    assert "likely milliamps" not in line
+
+
+def test_milliamps_labelled_amps_keep_their_hint(tmp_path, params_file, rows):
+    # the control: the demo's current written in mA under [A] fits the range as milliamps
+    f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows,
+               lambda t, u, v, a: (t, u, v, 1000.0 * a))
+    refused_in_main(["replay", f, "--params", params_file], "likely milliamps in a column labelled [A]")
+
+
+def _write(tmp_path, header, rows, fn, name="log.csv"):
+    f = tmp_path / name
+    f.write_text(header + "\n" + "\n".join(",".join("%.6g" % x for x in fn(*r)) for r in rows) + "\n")
+    return f

@@ -149,10 +149,16 @@ def check_plausible(path, flight, params, facts, cfg, units):
                              "rotors turn (median %.2f A): the current sensor reads reversed; flip its sign"
                              % (path, units["current"], 100.0 * neg, med_a / 1000.0))
         if med_a > 20.0 * cfg["i_max_mA"]:
+            # milliamps only when the values read as milliamps fit the sensor's range: 1e12 'A'
+            # is still 1e9 A as milliamps (new-user trial 10, finding 5)
+            as_mA = units["current"] == "A" and med_a / 1000.0 <= cfg["i_max_mA"]
             raise InputError("%s: column current[%s]: median %.4g A while flying is %.0f times the watch's "
-                             "current-sensor range (%.0f A): likely milliamps in a column labelled [A]; label "
-                             "it current[mA]" % (path, units["current"], med_a / 1000.0,
-                                                med_a / cfg["i_max_mA"], cfg["i_max_mA"] / 1000.0))
+                             "current-sensor range (%.0f A): %s" % (
+                                 path, units["current"], med_a / 1000.0, med_a / cfg["i_max_mA"],
+                                 cfg["i_max_mA"] / 1000.0,
+                                 "likely milliamps in a column labelled [A]; label it current[mA]" if as_mA else
+                                 "these values are not a current of this vehicle, neither as amps nor as milliamps; "
+                                 "is it the current column, and does the logger write it in A or mA?"))
 
 
 def _check_command_above_full(path, u, unit):
