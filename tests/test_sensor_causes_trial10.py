@@ -1,9 +1,11 @@
 """Tenth new-user trial: a bench sweep whose current column reads zero got 'fewer than 5 rows
-with thrust and power above idle' with no cause, and a flight log current of 1e12 A was called
-'likely milliamps' (1e12 mA is still 1e9 A) (finding 5).
+with thrust and power above idle' with no cause, a flight log current of 1e12 A was called
+'likely milliamps' (1e12 mA is still 1e9 A) (finding 5), and a flight log command in permille
+labelled [us] exited 0 with every sample a sensor fault (finding 1).
 
 The flight logs are the simulated demo flight (tests/watch_helpers.demo_flight_rows) changed by
-the one slip.
+the one slip, as tests/test_replay_slip_causes_trial9.py does; a command in permille runs
+0..1000, in % 0..100, in microseconds 1000..2000 (common practice).
 
 The sweep is tests/test_fit_tare_trial8._sweep (an INVENTED 10-inch 6S rotor from a DC motor and
 fixed-coefficient propeller model written there, not any product) with its current column set to
@@ -15,6 +17,7 @@ import pytest
 
 from io_helpers import refused as refused_in_main
 from test_fit_tare_trial8 import _sweep
+from test_replay_slip_causes_trial9 import _write
 from trial_helpers import refused
 from watch_helpers import demo_flight_rows
 
@@ -72,7 +75,29 @@ def test_milliamps_labelled_amps_keep_their_hint(tmp_path, params_file, rows):
     refused_in_main(["replay", f, "--params", params_file], "likely milliamps in a column labelled [A]")
 
 
-def _write(tmp_path, header, rows, fn, name="log.csv"):
-    f = tmp_path / name
-    f.write_text(header + "\n" + "\n".join(",".join("%.6g" % x for x in fn(*r)) for r in rows) + "\n")
-    return f
+@pytest.mark.parametrize("scale,likely", [
+    (1000.0, "likely permille (0..1000) labelled [us]; label it command[permille]"),
+    (100.0, "likely percent (0..100) labelled [us]; label it command[%]"),
+])
+def test_a_flight_command_labelled_microseconds_in_another_unit_is_named(tmp_path, params_file, rows, scale,
+                                                                          likely):
+    # before: exit 0, 'too short to learn: 0.0 s of flight', a sensor_fault 'command -0.878'
+    f = _write(tmp_path, "time[s],command[us],voltage[V],current[A]", rows,
+               lambda t, u, v, a: (t, scale * u, v, a))
+    refused_in_main(["replay", f, "--params", params_file], "column command[us]", "below zero command", likely)
+
+
+def test_a_microsecond_log_idling_at_988_us_is_no_slip(tmp_path, params_file, rows):
+    # an ESC low end point of 988 us (common practice) is 12 permille below zero: no refusal, also
+    # when the log idles there for its first 30 s (10 % of it, beyond the 5 % share a slip needs)
+    idle = [(t, -0.012, v, 0.05 * a) if t < 30.0 else (t, u, v, a) for t, u, v, a in rows]
+    f = _write(tmp_path, "time[s],command[us],voltage[V],current[A]", idle,
+               lambda t, u, v, a: (t, 1000.0 + 1000.0 * u, v, a))
+    code, out, err = run_main(["replay", f, "--params", params_file])
+    assert code == 0 and "below zero command" not in err, err
+
+
+def run_main(args):
+    from io_helpers import run
+
+    return run([str(a) for a in args])

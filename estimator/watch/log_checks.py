@@ -55,6 +55,9 @@ ZERO_CURRENT_SHARE = 0.05
 # a command column with more than this share of its values above full command has the wrong
 # unit label (as the bench reader's COMMAND_OUTSIDE_SHARE) [-]
 COMMAND_ABOVE_SHARE = 0.05
+# a command below zero by more than this [permille] counts as below it (an ESC's low end point of
+# 988 us, common practice, is -12 permille: no slip)
+COMMAND_BELOW_PERMILLE = -100
 # rows the voltage/current swap judgement samples (systematic), at most [-]
 SWAP_SAMPLE_ROWS = 20000
 
@@ -140,6 +143,8 @@ def check_plausible(path, flight, params, facts, cfg, units):
                              % (path, units["command"], _median(ma) / 1000.0, units["command"]))
     if len(u) and max(u) > 1000:
         _check_command_above_full(path, u, units["command"])
+    if len(u) and min(u) < COMMAND_BELOW_PERMILLE:
+        _check_command_below_zero(path, u, units["command"])
     if flying:
         cur = [ma[i] for i in flying]
         med_a = _median(cur)
@@ -159,6 +164,25 @@ def check_plausible(path, flight, params, facts, cfg, units):
                                  "likely milliamps in a column labelled [A]; label it current[mA]" if as_mA else
                                  "these values are not a current of this vehicle, neither as amps nor as milliamps; "
                                  "is it the current column, and does the logger write it in A or mA?"))
+
+
+def _check_command_below_zero(path, u, unit):
+    """Refuse a command column (u [permille], unit as written) with more than COMMAND_ABOVE_SHARE
+    of its values below zero by more than a tenth of full command (COMMAND_BELOW_PERMILLE: an
+    ESC's low end point at 988 us is no slip), naming the unit its values fit
+    (units.likely_command_unit): permille or percent labelled [us] read 122 as -0.878 (new-user
+    trial 10, finding 1: exit 0 with every sample a sensor fault)."""
+    share = sum(1 for x in u if x < COMMAND_BELOW_PERMILLE) / len(u)
+    if share <= COMMAND_ABOVE_SHARE:
+        return
+    scale, offset = COMMAND_SHOWN[unit][:2]
+    low, high = (offset + scale * min(u) / 1000.0, offset + scale * max(u) / 1000.0)
+    likely = likely_command_unit(low, high, unit)
+    cause = ("likely %s labelled [%s]; label it command[%s]" % (COMMAND_UNIT_WORDS[likely], unit, likely)
+             if likely is not None else "no command unit liftcal reads fits these values; check the logger's "
+             "command field (command[-] 0..1, [%], [permille] or [us])")
+    raise InputError("%s: column command[%s]: %.0f %% of the values are below zero command (%s), %.6g..%.6g as "
+                     "written: %s" % (path, unit, 100.0 * share, command_text(0.0, unit), low, high, cause))
 
 
 def _check_command_above_full(path, u, unit):
