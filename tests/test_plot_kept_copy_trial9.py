@@ -6,7 +6,6 @@ re-run at the same path still replaces it and says so. The vehicle, sweep and fl
 (tests/invented_vehicles.py, the demo's simulators); nothing here is physics.
 """
 
-import json
 import shutil
 
 import pytest
@@ -14,25 +13,15 @@ from click.testing import CliRunner
 
 from estimator.cli import cli
 from estimator.demo.bench_sim import simulate_sweep
-from estimator.demo.flight_sim import simulate_flight
-from invented_vehicles import WHOOP
-from trial_helpers import refused
-from watch_helpers import demo_fit_params
+from trial_helpers import plot_commands, refused
 
 
 def _commands(tmp_path):
-    vehicle = tmp_path / "whoop.json"
-    vehicle.write_text(json.dumps(WHOOP))
-    params = tmp_path / "p.json"
-    params.write_text(json.dumps(demo_fit_params()))
-    flight = tmp_path / "f.csv"
-    flight.write_text(simulate_flight(seed=5, duration_s=40.0))
+    commands = plot_commands(tmp_path)
     bench = tmp_path / "bench.csv"
     bench.write_text(simulate_sweep(seed=3))
-    return {"hover": ["hover", str(vehicle), "--payload", "0..40g"],
-            "compare": ["compare", str(vehicle), "--vary", "battery.capacity=450mAh,650mAh"],
-            "replay": ["replay", str(flight), "--params", str(params)],
-            "fit": ["fit", str(bench), "--out", str(tmp_path / "fitted.json")]}
+    commands["fit"] = ["fit", str(bench), "--out", str(tmp_path / "fitted.json")]
+    return commands
 
 
 def _invoke(argv):

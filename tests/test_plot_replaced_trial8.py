@@ -9,21 +9,11 @@ import pytest
 from click.testing import CliRunner
 
 from estimator.cli import cli
-from estimator.demo.flight_sim import simulate_flight
-from invented_vehicles import WHOOP
-from watch_helpers import demo_fit_params
+from trial_helpers import plot_commands
 
 
 def _commands(tmp_path):
-    vehicle = tmp_path / "whoop.json"
-    vehicle.write_text(json.dumps(WHOOP))
-    params = tmp_path / "p.json"
-    params.write_text(json.dumps(demo_fit_params()))
-    flight = tmp_path / "f.csv"
-    flight.write_text(simulate_flight(seed=5, duration_s=40.0))
-    return {"hover": ["hover", str(vehicle), "--payload", "0..40g"],
-            "compare": ["compare", str(vehicle), "--vary", "battery.capacity=450mAh,650mAh"],
-            "replay": ["replay", str(flight), "--params", str(params)]}
+    return plot_commands(tmp_path)
 
 
 @pytest.mark.parametrize("command", ["hover", "compare", "replay"])

@@ -10,6 +10,9 @@ import json
 from click.testing import CliRunner
 
 from estimator.cli import cli
+from estimator.demo.flight_sim import simulate_flight
+from invented_vehicles import WHOOP
+from watch_helpers import demo_fit_params
 
 
 def run(*args):
@@ -50,3 +53,17 @@ def json_file(folder, doc, name="quad.json"):
     path = folder / name
     path.write_text(json.dumps(doc))
     return path
+
+
+def plot_commands(tmp_path):
+    """Invented whoop vehicle, the demo fit's parameter set and a 40 s demo flight written to
+    tmp_path; the hover, compare and replay command lines that draw a figure of each."""
+    vehicle = tmp_path / "whoop.json"
+    vehicle.write_text(json.dumps(WHOOP))
+    params = tmp_path / "p.json"
+    params.write_text(json.dumps(demo_fit_params()))
+    flight = tmp_path / "f.csv"
+    flight.write_text(simulate_flight(seed=5, duration_s=40.0))
+    return {"hover": ["hover", str(vehicle), "--payload", "0..40g"],
+            "compare": ["compare", str(vehicle), "--vary", "battery.capacity=450mAh,650mAh"],
+            "replay": ["replay", str(flight), "--params", str(params)]}
