@@ -10,7 +10,8 @@ rotor starts turning is u0; the controller quadratic's intercept command_min is 
 a duty offset. Coaxial pairs: the torque current is raised by power_model.coaxial_shaft_ratio,
 the same rule the datasheet route applies to CP (only the ideal induced power is multiplied by
 the coaxial factor). Used by the pre-flight sheet from a set (estimator.preflight.fitted_vehicle)
-and the watch's CONFIG (estimator.watch.config.site_hover: the bench's thrust in the site's air).
+and the watch's CONFIG (estimator.watch.site_air.site_hover: the bench's thrust in the site's air;
+coaxial_power_increment: a coaxial pair's extra power in the watch's power model).
 Source: the DC motor model (Hughes, Electric Motors and Drives, ch. 3, from memory) with the
 propeller's T ~ rho n^2, Q ~ rho n^2 at fixed coefficients.
 """
@@ -19,9 +20,59 @@ import math
 
 from estimator.core.battery import sagged_bus_V
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
-from estimator.core.power_model import coaxial_shaft_ratio
+from estimator.core.power_model import KEYS, coaxial_shaft_ratio, coefficients_from_motor
 
 BISECTION_STEPS = 60
+
+
+def coaxial_torque_ratio(params, density_kg_m3):
+    """Torque (shaft-power) ratio e [-] of one rotor of a coaxial pair to the isolated rotor at
+    equal thrust, from the parameter set's fitted motor model at air density rho [kg/m^3].
+
+    The motor model's shaft power c s^3 against the ideal induced power T^1.5 / sqrt(2 rho A) =
+    a^1.5 s^3 / sqrt(2 rho A) (a = T / s^2, c = torque current / s^2, both ~ rho; A the disk
+    area) gives P_ideal / P_shaft, and e = power_model.coaxial_shaft_ratio(that, kappa) with
+    kappa = momentum.COAXIAL_INDUCED_POWER_FACTOR = (1 + sqrt(17)) / 4 (power basis: only the
+    ideal induced power is multiplied). The one coaxial penalty of a fitted set: FittedRotor
+    (the pre-flight sheet) raises its torque current c by e, and the watch adds the watts that
+    costs (coaxial_power_increment, through estimator.watch.thrust_table.flight_power_model).
+    params: parameter-set dict with motor_model and rotor.diameter_m [m]. Source: momentum
+    theory of a coaxial pair, lower rotor in the upper's fully developed slipstream (Leishman,
+    Principles of Helicopter Aerodynamics, 2006, ch. 6, coaxial rotors; from memory).
+    """
+    mm = params["motor_model"]
+    ratio = density_kg_m3 / mm["reference_density_kg_m3"]
+    a, c = mm["thrust_per_V2_N"] * ratio, mm["current_per_V2_A"] * ratio
+    area = disk_area_m2(params["rotor"]["diameter_m"])
+    ideal_over_shaft = a ** 1.5 / (math.sqrt(2.0 * density_kg_m3 * area) * c)
+    return coaxial_shaft_ratio(ideal_over_shaft, COAXIAL_INDUCED_POWER_FACTOR)
+
+
+def coaxial_power_increment(params):
+    """The electrical power a coaxial pair adds to one rotor of the fitted motor model, as
+    power-model coefficients (estimator.core.power_model form, at the motor model's reference
+    density rho_ref [kg/m^3]; rotor_power_W carries them to any density).
+
+    FittedRotor(coaxial=True) draws P = Vm I with the torque current c raised by e =
+    coaxial_torque_ratio; expanded in thrust (power_model.coefficients_from_motor, the b s
+    current included) the difference to the flat rotor is (e - 1) c (1 + 2 R b) / a^1.5 on
+    T^1.5, (e - 1) 2 R I0 c / a on T and (e^2 - 1) R c^2 / a^2 on T^2; the no-load terms are
+    unchanged (exactly 0 here). e does not depend on the density (a^1.5 / (sqrt(rho) c) with a, c
+    ~ rho), and the terms scale with rho as the power model's do, so the flat power model plus
+    these coefficients draws, at every thrust and density, exactly the extra power the
+    pre-flight sheet's FittedRotor draws: the watch's expected power and implied mass take the
+    same coaxial penalty (estimator.watch.thrust_table.flight_power_model). Returns a dict with
+    power_model.KEYS [W, W/N^0.5, W/N, W/N^1.5, W/N^2]. params: parameter-set dict with
+    motor_model and rotor.diameter_m. Source: as coaxial_torque_ratio (Leishman 2006, ch. 6,
+    coaxial rotors, from memory) and the DC motor model (power_model.coefficients_from_motor).
+    """
+    mm = params["motor_model"]
+    e = coaxial_torque_ratio(params, mm["reference_density_kg_m3"])
+    a, c = mm["thrust_per_V2_N"], mm["current_per_V2_A"]
+    rest = (mm["resistance_ohm"], mm["no_load_current_A"], 0.0, mm.get("speed_current_A_per_V", 0.0))
+    flat = coefficients_from_motor(a, c, *rest)
+    coax = coefficients_from_motor(a, c * e, *rest)
+    return {k: coax[k] - flat[k] for k in KEYS}
 
 
 class FittedRotor:
@@ -37,10 +88,7 @@ class FittedRotor:
         self.iq = mm["esc_idle_current_A"]
         self.b = mm.get("speed_current_A_per_V", 0.0)
         if coaxial:
-            area = disk_area_m2(params["rotor"]["diameter_m"])
-            # shaft power c s^3 against ideal T^1.5 / sqrt(2 rho A) = a^1.5 s^3 / sqrt(2 rho A)
-            ideal_over_shaft = self.a ** 1.5 / (math.sqrt(2.0 * density_kg_m3 * area) * self.c)
-            self.c *= coaxial_shaft_ratio(ideal_over_shaft, COAXIAL_INDUCED_POWER_FACTOR)
+            self.c *= coaxial_torque_ratio(params, density_kg_m3)
 
     def for_thrust(self, thrust_N):
         """(motor voltage Vm [V], motor current I [A]) that hold thrust_N [N]."""

@@ -29,18 +29,21 @@ BISECTION_STEPS = 80
 
 
 def coefficients_from_motor(thrust_per_V2_N, current_per_V2_A, resistance_ohm, no_load_current_A,
-                            idle_power_W=0.0):
+                            idle_power_W=0.0, speed_current_A_per_V=0.0):
     """Power-model coefficients of a DC motor + propeller (the expansion in the module docstring).
 
     thrust_per_V2_N: a = T / s^2 [N/V^2] (s = back-EMF [V]); current_per_V2_A: c = Kv Q / s^2
     [A/V^2]; resistance_ohm: R [ohm]; no_load_current_A: I0 [A]; idle_power_W: extra draw
-    at zero thrust [W] (ESC). Returns a dict with the KEYS [W, W/N^0.5, W/N, W/N^1.5, W/N^2].
-    Source: DC motor equivalent model, Vm = s + R I, I = I0 + c s^2 (Drela 2007, from memory).
+    at zero thrust [W] (ESC); speed_current_A_per_V: b [A/V], a current growing with speed,
+    I = I0 + b s + c s^2 (the fitted motor model's, estimator.core.fitted_rotor), which adds
+    (1 + 2 R b) to the T^0.5 and T^1.5 terms and b + R b^2 to the T term. Returns a dict with
+    the KEYS [W, W/N^0.5, W/N, W/N^1.5, W/N^2].
+    Source: DC motor equivalent model, Vm = s + R I, I = I0 + b s + c s^2 (Drela 2007, from memory).
     """
-    a, c, r, i0 = thrust_per_V2_N, current_per_V2_A, resistance_ohm, no_load_current_A
-    return {"idle_power_W": r * i0 * i0 + idle_power_W, "sqrt_W_per_N0_5": i0 / math.sqrt(a),
-            "linear_W_per_N": 2.0 * r * i0 * c / a, "induced_W_per_N1_5": c / a ** 1.5,
-            "copper_W_per_N2": r * c * c / (a * a)}
+    a, c, r, i0, b = thrust_per_V2_N, current_per_V2_A, resistance_ohm, no_load_current_A, speed_current_A_per_V
+    return {"idle_power_W": r * i0 * i0 + idle_power_W, "sqrt_W_per_N0_5": i0 * (1.0 + 2.0 * r * b) / math.sqrt(a),
+            "linear_W_per_N": (b + r * b * b + 2.0 * r * i0 * c) / a,
+            "induced_W_per_N1_5": c * (1.0 + 2.0 * r * b) / a ** 1.5, "copper_W_per_N2": r * c * c / (a * a)}
 
 
 def coaxial_shaft_ratio(ideal_over_shaft, induced_power_factor):

@@ -21,11 +21,12 @@ import math
 
 from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
+from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
 from estimator.errors import InputError
 from estimator.watch.named_watch import NamedWatch
 from estimator.watch.sensor_range import current_range_mA, pack_voltages, voltage_range_mV
 from estimator.watch.site_air import expected_thrust
-from estimator.watch.thrust_table import thrust_from_power_total_N, thrust_knots_mN
+from estimator.watch.thrust_table import flight_power_model, thrust_from_power_total_N, thrust_knots_mN
 
 
 DEFAULTS = {
@@ -193,9 +194,21 @@ def vehicle_facts(params, vehicle=None, source="parameter set"):
 
 
 def _rotor_power_W(power_model, thrust_N, density_kg_m3):
-    """P(T, rho) of one rotor [W]: the one power model, estimator.core.power_model.rotor_power_W."""
+    """P(T, rho) of one rotor [W]: the one power model, estimator.core.power_model.rotor_power_W
+    (power_model: the vehicle's, estimator.watch.thrust_table.flight_power_model)."""
     from estimator.core.power_model import rotor_power_W
     return rotor_power_W(power_model, thrust_N, density_kg_m3)
+
+
+def _coaxial_note(params, layout, power_model, rho, thrust_N, rotors):
+    """The power table note's words on a coaxial pair's penalty ('' for a flat layout): the watts
+    it adds at thrust_N [N] per rotor on all rotors [-]; power_model: flight_power_model's."""
+    if layout != "coaxial":
+        return ""
+    extra_W = rotors * (_rotor_power_W(power_model, thrust_N, rho)
+                        - _rotor_power_W(params["power_model"], thrust_N, rho))
+    return (", coaxial pairs: +%.1f W at the hover, the pre-flight sheet's penalty: ideal induced power x %.4f, "
+            "power basis, Leishman 2006, coaxial rotors, from memory" % (extra_W, COAXIAL_INDUCED_POWER_FACTOR))
 
 
 def make_config(params, vehicle=None, options=None, source="parameter set"):
@@ -211,9 +224,10 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     o.update(options or {})
     v = vehicle_facts(params, vehicle, source)
     curve = params["thrust_curve"]
-    pm = params["power_model"]
     n_rot = int(v["rotor_count"])
     rho = float(v["site_density_kg_m3"])
+    layout = v.get("layout", "flat")
+    pm = flight_power_model(params, layout, rho)   # a coaxial pair's penalty as the pre-flight sheet's
     mass_kg = float(v["mass_kg"])
     notes = {}
     cfg = {}
@@ -310,7 +324,8 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     # so such power is out of range (a sensor fault) and never judged against the table
     p_tab = [min(p, (1 << 18) - 1) for p in p_tab]
     put("power_table", table(p_tab, "power table", (1 << 18) - 1), "N x P(T) [0.1 W] at T = %.3f N x f, "
-        "f = 0..1.5 step 1/32 (power model at rho %.4f; capped at 26 kW beyond full command)" % (t_site, rho))
+        "f = 0..1.5 step 1/32 (power model at rho %.4f%s; capped at 26 kW beyond full command)"
+        % (t_site, rho, _coaxial_note(params, layout, pm, rho, weight_N / n_rot, n_rot)))
     p_hover = n_rot * _rotor_power_W(pm, weight_N / n_rot, rho)
     put("power_floor_dW", max(2, int(round(10.0 * 0.2 * p_hover))), "20 %% of hover power %.1f W" % p_hover)
 
@@ -319,7 +334,7 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     sh = 0
     while (32 << sh) < p_top_dW:
         sh += 1
-    t_tab = thrust_knots_mN(lambda p_W: thrust_from_power_total_N(p_W, params, n_rot, rho), (1 << sh) / 10.0)
+    t_tab = thrust_knots_mN(lambda p_W: thrust_from_power_total_N(p_W, params, n_rot, rho, layout), (1 << sh) / 10.0)
     tu = 0
     while max(t_tab) >> tu >= 1 << 13:   # knots below 2^13: short in the bundle, 2^13 x 2^13 in the kernel
         tu += 1

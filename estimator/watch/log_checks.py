@@ -257,6 +257,7 @@ def _check_current_zero(path, flight, params, facts, units, cfg, bus_V, flown_s)
     another vehicle' was blamed): an unplugged or unpowered current sensor. Amps labelled [mA]
     (a current 1000 times too small, not zero) are left to check_vehicle, which names them."""
     from estimator.core.power_model import rotor_power_W
+    from estimator.watch.thrust_table import flight_power_model
 
     spin = cfg["spin_permille"]
     u, ma = flight["command_permille"], flight["bus_mA"]
@@ -266,7 +267,8 @@ def _check_current_zero(path, flight, params, facts, units, cfg, bus_V, flown_s)
     med_mA = _median([abs(ma[i]) for i in flying])
     n = int(facts["rotor_count"])
     weight_N = float(facts["mass_kg"]) * STANDARD_GRAVITY_M_S2
-    hover_A = n * rotor_power_W(params["power_model"], weight_N / n, float(facts["site_density_kg_m3"])) / bus_V
+    rho = float(facts["site_density_kg_m3"])
+    hover_A = n * rotor_power_W(flight_power_model(params, facts.get("layout"), rho), weight_N / n, rho) / bus_V
     limit_mA = 1000.0 * ZERO_CURRENT_SHARE * hover_A
     if med_mA >= limit_mA or (units or {}).get("current") == "mA" and 1000.0 * med_mA >= limit_mA:
         return
@@ -308,8 +310,8 @@ def check_vehicle(path, flight, params, facts, cfg, units=None):
     """Refuse a log that looks like another vehicle or pack than the parameter set's (InputError
     with the figures): its median bus voltage in flight above LOG_ABOVE_FULL x the full pack or
     below LOG_BELOW_EMPTY x the empty pack, or the mass its median bus power in flight implies
-    (through the set's power model, estimator.watch.thrust_table.thrust_from_power_total_N) outside
-    IMPLIED_MASS_RANGE x the planned mass.
+    (through the vehicle's power model, estimator.watch.thrust_table.thrust_from_power_total_N, a
+    coaxial pair's penalty included) outside IMPLIED_MASS_RANGE x the planned mass.
 
     facts: estimator.watch.config.vehicle_facts (mass_kg, rotor_count, site_density_kg_m3, cells,
     full_voltage_V, empty_voltage_V, name; without pack voltages, sensor_range.pack_voltages' stand-ins);
@@ -335,12 +337,13 @@ def check_vehicle(path, flight, params, facts, cfg, units=None):
         found.append("median bus voltage in flight %.1f V, below its empty pack (%.1f V on %s)" % (v, v_empty, pack))
     if flown_s >= IMPLIED_MASS_MIN_FLIGHT_S:
         plan = float(facts["mass_kg"])
-        mass = thrust_from_power_total_N(med_W, params, int(facts["rotor_count"]),
-                                         float(facts["site_density_kg_m3"])) / STANDARD_GRAVITY_M_S2
+        mass = thrust_from_power_total_N(med_W, params, int(facts["rotor_count"]), float(facts["site_density_kg_m3"]),
+                                         facts.get("layout", "flat")) / STANDARD_GRAVITY_M_S2
         off = not IMPLIED_MASS_RANGE[0] <= mass / plan <= IMPLIED_MASS_RANGE[1]
         if off and mass < plan and (units or {}).get("current") == "mA" and not found:
             as_A = thrust_from_power_total_N(1000.0 * med_W, params, int(facts["rotor_count"]),
-                                             float(facts["site_density_kg_m3"])) / STANDARD_GRAVITY_M_S2
+                                             float(facts["site_density_kg_m3"]),
+                                             facts.get("layout", "flat")) / STANDARD_GRAVITY_M_S2
             if IMPLIED_MASS_RANGE[0] <= as_A / plan <= IMPLIED_MASS_RANGE[1]:
                 raise InputError("%s: column current[mA]: the power in flight (%.4g W) implies %.3g kg against "
                                  "%.3g kg planned; read as amps it implies %.3g kg: the current is 1000 times too "

@@ -4,17 +4,49 @@ and the knots of the piecewise-linear table the kernel interpolates (estimator.c
 from estimator.core.power_model import thrust_from_power_N
 
 
-def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3):
-    """Total thrust [N] from total bus power [W]: the parameter set's power model inverted.
+def flight_power_model(params, layout, density_kg_m3):
+    """The power model of one rotor as the vehicle flies it: P(T, rho) coefficients (a dict as
+    estimator.core.power_model.rotor_power_W takes) for the watch's expected power and implied mass.
+
+    layout "flat" (or None): the parameter set's power_model itself (the bench rotor, in clean
+    air). "coaxial": that power model plus the power the pair's penalty adds in the pre-flight
+    sheet's model, estimator.core.fitted_rotor.coaxial_power_increment (the fitted motor model's
+    torque current raised by coaxial_torque_ratio, as FittedRotor does), so the watch and the
+    sheet add the same watts at every thrust; a set without a motor model (hand-built) takes the
+    same rule on its own T^1.5 term (power_model.coaxial_coefficients). density_kg_m3: site rho
+    [kg/m^3] (used by that fallback only). Source: momentum theory of a coaxial pair, induced-power
+    factor (1 + sqrt(17)) / 4 = 1.2808 on a power basis (Leishman, Principles of Helicopter
+    Aerodynamics, 2006, ch. 6, coaxial rotors; from memory), through the DC motor model
+    (estimator.core.power_model docstring).
+    """
+    power = params["power_model"]
+    if layout != "coaxial":
+        return power
+    if "motor_model" not in params:
+        from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
+        from estimator.core.power_model import coaxial_coefficients
+        return coaxial_coefficients(power, density_kg_m3, disk_area_m2(params["rotor"]["diameter_m"]),
+                                    COAXIAL_INDUCED_POWER_FACTOR)
+    from estimator.core.fitted_rotor import coaxial_power_increment
+    out = dict(power)
+    for key, extra in coaxial_power_increment(params).items():
+        out[key] = power.get(key, 0.0) + extra
+    return out
+
+
+def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3, layout="flat"):
+    """Total thrust [N] from total bus power [W]: the vehicle's power model inverted.
 
     Per rotor T = P^-1(P_total / N) with P(T, rho) the one power model
-    (estimator.core.power_model.thrust_from_power_N: the same P(T) the expected-power table
-    uses, so the implied mass and the expected power never disagree). power_W: total bus power
-    [W]; rotor_count N [-]; density_kg_m3: site rho [kg/m^3].
-    Source: DC motor + momentum theory power model (estimator.core.power_model docstring).
+    (estimator.core.power_model.thrust_from_power_N) of flight_power_model(params, layout, rho):
+    the same P(T) the expected-power table uses, so the implied mass and the expected power
+    never disagree, a coaxial pair's penalty included. power_W: total bus power [W]; rotor_count
+    N [-]; density_kg_m3: site rho [kg/m^3]; layout: the vehicle's rotor layout ("flat",
+    "coaxial"). Source: DC motor + momentum theory power model (estimator.core.power_model
+    docstring; coaxial: flight_power_model).
     """
-    return rotor_count * thrust_from_power_N(params["power_model"], max(power_W, 0.0) / rotor_count,
-                                             density_kg_m3)
+    return rotor_count * thrust_from_power_N(flight_power_model(params, layout, density_kg_m3),
+                                             max(power_W, 0.0) / rotor_count, density_kg_m3)
 
 
 def thrust_knots_mN(thrust_N, step_W):
