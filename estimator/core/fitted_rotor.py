@@ -36,7 +36,8 @@ def coaxial_torque_ratio(params, density_kg_m3):
     ideal induced power is multiplied). The one coaxial penalty of a fitted set: FittedRotor
     (the pre-flight sheet) raises its torque current c by e, and the watch adds the watts that
     costs (coaxial_power_increment, through estimator.watch.thrust_table.flight_power_model).
-    params: parameter-set dict with motor_model and rotor.diameter_m [m]. Source: momentum
+    params: parameter-set dict with motor_model and rotor.diameter_m [-]; density_kg_m3: rho
+    [kg/m^3]. Returns e [-]. Source: momentum
     theory of a coaxial pair, lower rotor in the upper's fully developed slipstream (Leishman,
     Principles of Helicopter Aerodynamics, 2006, ch. 6, coaxial rotors; from memory).
     """
@@ -63,7 +64,7 @@ def coaxial_power_increment(params):
     pre-flight sheet's FittedRotor draws: the watch's expected power and implied mass take the
     same coaxial penalty (estimator.watch.thrust_table.flight_power_model). Returns a dict with
     power_model.KEYS [W, W/N^0.5, W/N, W/N^1.5, W/N^2]. params: parameter-set dict with
-    motor_model and rotor.diameter_m. Source: as coaxial_torque_ratio (Leishman 2006, ch. 6,
+    motor_model and rotor.diameter_m [-]. Source: as coaxial_torque_ratio (Leishman 2006, ch. 6,
     coaxial rotors, from memory) and the DC motor model (power_model.coefficients_from_motor).
     """
     mm = params["motor_model"]
