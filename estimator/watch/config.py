@@ -21,12 +21,12 @@ import math
 
 from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
-from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
+from estimator.core.power_model import rotor_power_W
 from estimator.errors import InputError
 from estimator.watch.named_watch import NamedWatch
 from estimator.watch.sensor_range import current_range_mA, pack_voltages, voltage_range_mV
 from estimator.watch.site_air import expected_thrust
-from estimator.watch.thrust_table import flight_power_model, thrust_from_power_total_N, thrust_knots_mN
+from estimator.watch.thrust_table import coaxial_note, flight_power_model, thrust_from_power_total_N, thrust_knots_mN
 
 
 DEFAULTS = {
@@ -193,24 +193,6 @@ def vehicle_facts(params, vehicle=None, source="parameter set"):
     return block
 
 
-def _rotor_power_W(power_model, thrust_N, density_kg_m3):
-    """P(T, rho) of one rotor [W]: the one power model, estimator.core.power_model.rotor_power_W
-    (power_model: the vehicle's, estimator.watch.thrust_table.flight_power_model)."""
-    from estimator.core.power_model import rotor_power_W
-    return rotor_power_W(power_model, thrust_N, density_kg_m3)
-
-
-def _coaxial_note(params, layout, power_model, rho, thrust_N, rotors):
-    """The power table note's words on a coaxial pair's penalty ('' for a flat layout): the watts
-    it adds at thrust_N [N] per rotor on all rotors [-]; power_model: flight_power_model's."""
-    if layout != "coaxial":
-        return ""
-    extra_W = rotors * (_rotor_power_W(power_model, thrust_N, rho)
-                        - _rotor_power_W(params["power_model"], thrust_N, rho))
-    return (", coaxial pairs: +%.1f W at the hover, the pre-flight sheet's penalty: ideal induced power x %.4f, "
-            "power basis, Leishman 2006, coaxial rotors, from memory" % (extra_W, COAXIAL_INDUCED_POWER_FACTOR))
-
-
 def make_config(params, vehicle=None, options=None, source="parameter set"):
     """Build (CONFIG, notes): CONFIG is a dict of ints / tuples of ints for liftwatch.Watch,
     notes maps each key to the float values it was made from (for the bundle's comments).
@@ -289,7 +271,7 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     # full command on a full pack: the pre-flight sheet's pack current (commands.watch.watch_options, with a
     # vehicle file), else the power model's bus current at the full pack voltage (no sag: an upper figure)
     f_full = min((v_full / v_ref) ** curve["voltage_exponent"], 1.5)
-    i_full = o["full_command_current_A"] or n_rot * _rotor_power_W(pm, t_site * f_full, rho) / v_full
+    i_full = o["full_command_current_A"] or n_rot * rotor_power_W(pm, t_site * f_full, rho) / v_full
     i_min_mA, i_max_mA, (n_lo, n_hi), warning = current_range_mA(
         i_full, v.get("max_current_A"), o["current_max_A"], o["current_min_A"], o["full_command_current_A"] is None)
     put("i_min_mA", i_min_mA, n_lo)
@@ -318,18 +300,18 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     p_tab = []
     for j in range(49):
         f = j * 128 / 4096.0
-        p_tab.append(int(round(10.0 * n_rot * _rotor_power_W(pm, t_site * f, rho))))
+        p_tab.append(int(round(10.0 * n_rot * rotor_power_W(pm, t_site * f, rho))))
     f_top = min((1.05 * v_full / v_ref) ** curve["voltage_exponent"], 1.5)  # full command at 1.05 x full pack voltage
     # knots beyond 26 kW are capped: the sensor range (60 V x 300 A = 18 kW) ends before them,
     # so such power is out of range (a sensor fault) and never judged against the table
     p_tab = [min(p, (1 << 18) - 1) for p in p_tab]
     put("power_table", table(p_tab, "power table", (1 << 18) - 1), "N x P(T) [0.1 W] at T = %.3f N x f, "
         "f = 0..1.5 step 1/32 (power model at rho %.4f%s; capped at 26 kW beyond full command)"
-        % (t_site, rho, _coaxial_note(params, layout, pm, rho, weight_N / n_rot, n_rot)))
-    p_hover = n_rot * _rotor_power_W(pm, weight_N / n_rot, rho)
+        % (t_site, rho, coaxial_note(params, layout, rho, weight_N / n_rot, n_rot)))
+    p_hover = n_rot * rotor_power_W(pm, weight_N / n_rot, rho)
     put("power_floor_dW", max(2, int(round(10.0 * 0.2 * p_hover))), "20 %% of hover power %.1f W" % p_hover)
 
-    p_top_dW = min(1.1 * 10.0 * n_rot * _rotor_power_W(pm, t_site * f_top, rho),
+    p_top_dW = min(1.1 * 10.0 * n_rot * rotor_power_W(pm, t_site * f_top, rho),
                    (cfg["v_max_mV"] // 20) * cfg["i_max_mA"] // 5000)   # no more than the sensors can read
     sh = 0
     while (32 << sh) < p_top_dW:

@@ -34,6 +34,20 @@ def flight_power_model(params, layout, density_kg_m3):
     return out
 
 
+def coaxial_note(params, layout, density_kg_m3, thrust_N, rotors):
+    """Words on a coaxial pair's penalty for the watch's notes ('' for a flat layout): the watts
+    flight_power_model adds at thrust_N [N] per rotor on all rotors [-] at rho density_kg_m3
+    [kg/m^3], and kappa's source (Leishman 2006, coaxial rotors, from memory). params: set [-]."""
+    if layout != "coaxial":
+        return ""
+    from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
+    from estimator.core.power_model import rotor_power_W
+    extra_W = rotors * (rotor_power_W(flight_power_model(params, layout, density_kg_m3), thrust_N, density_kg_m3)
+                        - rotor_power_W(params["power_model"], thrust_N, density_kg_m3))
+    return (", coaxial pairs: +%.1f W at the hover, the pre-flight sheet's penalty: ideal induced power x %.4f, "
+            "power basis, Leishman 2006, coaxial rotors, from memory" % (extra_W, COAXIAL_INDUCED_POWER_FACTOR))
+
+
 def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3, layout="flat"):
     """Total thrust [N] from total bus power [W]: the vehicle's power model inverted.
 
