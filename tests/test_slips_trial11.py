@@ -1,0 +1,57 @@
+"""Unit slips a new user met that passed or got the wrong hint (new-user trial 11, findings 2..5).
+
+- 2: a flight log's command[permille] column holding percent (0..100): replay said "too short to
+  learn: 0.0 s of flight" and exited 0 on a log that drew the hover current for minutes. A
+  command in permille runs 0..1000, in % 0..100; a flight draws about the hover current, an idle
+  spin on the ground about a tenth of it (common practice).
+- 3: a bench temperature[K] column holding Celsius readings (85..126): passed silently and the
+  hot-motor caution was lost. 0 C = 273.15 K (the kelvin's definition, SI brochure, 9th ed.); the
+  coldest air recorded on Earth is about -89 C, 184 K (WMO record, from memory).
+- 4: a mass of 200..250 "kg" on a 3-inch quad got a pounds hint (108.9 kg) where grams (0.24 kg)
+  fit the vehicle: the hint is judged by the hover disk loading m g / (N pi D^2 / 4) on the file's
+  propellers (small multirotors about 20..1500 N/m^2, common practice).
+- 5: a bench '# diameter: 76' beside a 3-inch vehicle got 'did you mean 76in?' (1.93 m); 1 in =
+  25.4 mm exactly (NIST SP 811), so 76 mm is the vehicle's 3 in.
+"""
+
+import pytest
+
+from trial_helpers import ok, refused, run
+from watch_helpers import demo_flight_rows
+
+
+@pytest.fixture(scope="module")
+def rows():
+    return demo_flight_rows(7)
+
+
+def _write_log(tmp_path, header, rows, fn, name="log.csv"):
+    f = tmp_path / name
+    f.write_text(header + "\n" + "\n".join(",".join("%.6g" % x for x in fn(*r)) for r in rows) + "\n")
+    return f
+
+
+# --- finding 2 ---------------------------------------------------------------------------------
+
+def test_percent_in_a_permille_flight_column_is_named(tmp_path, params_file, rows):
+    # before: exit 0, "too short to learn: the log has 0.0 s of flight above the spin command"
+    f = _write_log(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
+                   lambda t, u, v, a: (t, 100.0 * u, v, a))
+    line = refused("replay", f, "--params", params_file)
+    assert line.startswith("error: %s: column command[permille]: " % f), line
+    assert "likely percent labelled [permille]; label it command[%]" in line, line
+
+
+def test_a_permille_log_that_only_idles_on_the_ground_is_not_called_percent(tmp_path, params_file, rows):
+    # a true permille log of a vehicle idling on the ground: 60 permille, a tenth of the flight's
+    # current; it flies nothing, so replay says so (exit 0), and its unit is not blamed
+    f = _write_log(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
+                   lambda t, u, v, a: (t, 60.0, v, 0.1 * a))
+    code, out, err = run("replay", f, "--params", params_file)
+    assert code == 0 and "too short to learn" in " ".join(out.split()), (code, out, err)
+
+
+def test_true_permille_flight_still_replays(tmp_path, params_file, rows):
+    f = _write_log(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
+                   lambda t, u, v, a: (t, 1000.0 * u, v, a))
+    assert "no event" in ok("replay", f, "--params", params_file)
