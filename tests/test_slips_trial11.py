@@ -55,3 +55,33 @@ def test_true_permille_flight_still_replays(tmp_path, params_file, rows):
     f = _write_log(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
                    lambda t, u, v, a: (t, 1000.0 * u, v, a))
     assert "no event" in ok("replay", f, "--params", params_file)
+
+
+# --- finding 3 ---------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("blank_row", [None, 7])
+def test_celsius_labelled_kelvin_is_refused_with_a_unit_hint(tmp_path, blank_row):
+    # before: exit 0, "read and checked, not used: temperature[K]", and no hot-motor caution for
+    # a motor that reached 126 C
+    from test_fit_tare_trial8 import _sweep
+    from test_fit_trial10 import _with_temperature
+
+    csv = tmp_path / "k.csv"
+    csv.write_text(_with_temperature(_sweep(0.0), 85.0, 126.0, unit="K", blank_row=blank_row))
+    out = tmp_path / "p.json"
+    line = refused("fit", csv, "--out", out)
+    # 126 K is -147.15 C (t/C = T/K - 273.15)
+    assert "k.csv: column 5 'temperature[K]': even its highest reading, 126.0 K (-147." in line, line
+    assert "Celsius labelled K?" in line and "label the column temperature[C]" in line, line
+    assert not out.exists()
+
+
+def test_a_cold_bench_in_kelvin_is_read(tmp_path):
+    # a sweep at -40 C (233 K) air warming to -10 C (263 K): ordinary kelvin, no slip
+    from test_fit_tare_trial8 import _sweep
+    from test_fit_trial10 import _with_temperature
+
+    csv = tmp_path / "cold.csv"
+    csv.write_text(_with_temperature(_sweep(0.0), 233.15, 263.15, unit="K"))
+    text = " ".join(ok("fit", csv, "--out", tmp_path / "p.json").split())
+    assert "temperature[K]" in text and "Celsius labelled" not in text

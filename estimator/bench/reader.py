@@ -25,6 +25,7 @@ from estimator.errors import InputError
 from estimator import csvtable
 from estimator.bench.bench_air import bench_air
 from estimator.bench.columns import EXAMPLE_HEADER, MEDIAN_ROWS, OPTIONAL, REQUIRED, UNITS
+from estimator.core.constants import CELSIUS_ZERO_K
 from estimator.units import parse_quantity
 
 _COMMENT_KEYS = {"density": "density", "altitude": "altitude", "temperature": "temperature",
@@ -100,16 +101,22 @@ def _hot_motor(columns, extra, cols, extremes):
 # temperature is about 293 K, and no motor sweeps with its coldest reading at 200 C (common
 # practice: ordinary motors are rated to about 80..180 C) [C]
 KELVIN_LOOKING_C = 200.0
+# ... and a temperature column labelled K whose every reading is below this is in Celsius: the
+# coldest air recorded on Earth is about -89 C, 184 K (WMO record, from memory), and a motor that
+# turns warms above its air; Celsius readings of a sweep (about 0..150) all fall below it [K]
+CELSIUS_LOOKING_K = 184.0
 
 
 def _kelvin_as_celsius(path, columns, extra, cols, extremes):
     """Refuse a temperature[C] column whose lowest reading is above KELVIN_LOOKING_C: the
     readings are kelvin labelled C (the rotor at rest reads room temperature, about 293 K), and
-    the hot-motor caution would be false. cols, extremes: load_numbers' arrays [C] and (min, max)
-    pairs (or None: then cols holds every column)."""
+    the hot-motor caution would be false; and the mirror slip, a temperature[K] column whose
+    highest reading is below CELSIUS_LOOKING_K: Celsius labelled K (new-user trial 11, finding 3:
+    85..126 'K' passed and the hot-motor caution was lost). cols, extremes: load_numbers' arrays
+    [C] and (min, max) pairs (or None: then cols holds every column)."""
     import numpy as np
 
-    if "temperature" not in extra or columns["temperature"][1] != "C":
+    if "temperature" not in extra or columns["temperature"][1] not in ("C", "K"):
         return
     k = len(REQUIRED) + extra.index("temperature")
     if extremes is not None:
@@ -120,6 +127,15 @@ def _kelvin_as_celsius(path, columns, extra, cols, extremes):
         if not values.size:
             return
         lowest, highest = float(np.min(values)), float(np.max(values))
+    if columns["temperature"][1] == "K":
+        if highest + CELSIUS_ZERO_K < CELSIUS_LOOKING_K:
+            raise InputError("%s: column %d 'temperature[K]': even its highest reading, %.1f K (%.1f C; lowest "
+                             "%.1f K), is below %.0f K, colder than any air on Earth, where a motor on the stand "
+                             "warms above its air: Celsius labelled K? (room temperature is about 20 C, 293 K) "
+                             "label the column temperature[C]"
+                             % (path, columns["temperature"][0] + 1, highest + CELSIUS_ZERO_K, highest,
+                                lowest + CELSIUS_ZERO_K, CELSIUS_LOOKING_K))
+        return
     if not lowest > KELVIN_LOOKING_C:
         return
     raise InputError("%s: column %d 'temperature[C]': even its lowest reading, %.1f C (highest %.1f C), "
