@@ -17,6 +17,7 @@ import re
 
 from estimator.errors import InputError
 from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
+from estimator.mass_slip import mass_hint
 from estimator.units import INCH_M
 from estimator.vehicle_units import BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS
 from estimator.vehicle_units import normalise, propeller_notes  # noqa: F401 (normalise: also this module's API)
@@ -152,7 +153,7 @@ def check_vehicle(document, source):
     try:
         validate(document, SCHEMA, source)
     except InputError as exc:  # name the key as the file wrote it
-        raise InputError(_schema_hint(_as_written(str(exc), given), document)) from None
+        raise InputError(mass_hint(_schema_hint(_as_written(str(exc), given), document), document)) from None
     vehicle = copy.deepcopy(document)
     _check_physics(vehicle, source)
     assumed = propeller_notes(document, given)

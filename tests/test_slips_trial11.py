@@ -85,3 +85,55 @@ def test_a_cold_bench_in_kelvin_is_read(tmp_path):
     csv.write_text(_with_temperature(_sweep(0.0), 233.15, 263.15, unit="K"))
     text = " ".join(ok("fit", csv, "--out", tmp_path / "p.json").split())
     assert "temperature[K]" in text and "Celsius labelled" not in text
+
+
+# --- finding 4 ---------------------------------------------------------------------------------
+
+# an INVENTED 3-inch 4S quad (the trial's whoop), and an INVENTED 30-inch X8 lift octo
+WHOOP = {"name": "invented 3-inch quad", "mass": "240g", "rotors": {"count": 4},
+         "propeller": {"size": "3x3in", "blades": 3},
+         "motor": {"kv_rpm_per_V": 3800, "resistance_ohm": 0.15, "no_load_current_A": 0.6, "max_current_A": 20},
+         "battery": {"cells": 4, "capacity": "650mAh", "resistance": "60mohm",
+                     "full_cell_V": 4.2, "nominal_cell_V": 3.7, "empty_cell_V": 3.5},
+         "esc": {"efficiency": 0.93, "max_current_A": 25}}
+OCTO = {"name": "invented lift octo", "mass": "24kg", "rotors": {"count": 8, "layout": "coaxial"},
+        "propeller": {"size": "30x10in", "blades": 2},
+        "motor": {"kv_rpm_per_V": 100, "resistance_ohm": 0.08, "no_load_current_A": 1.2, "max_current_A": 60},
+        "battery": {"cells": 12, "capacity": "44000mAh", "resistance": "8mohm",
+                    "full_cell_V": 4.2, "nominal_cell_V": 3.7, "empty_cell_V": 3.5},
+        "esc": {"efficiency": 0.95, "max_current_A": 80}}
+
+
+def _with_mass(doc, key, value):
+    out = {k: v for k, v in doc.items() if k not in ("mass", "mass_kg")}
+    out[key] = value
+    return out
+
+
+@pytest.mark.parametrize("key,value,shown", [("mass", "240kg", "240"), ("mass_kg", 240, "240"),
+                                             ("mass_kg", 249, "249"), ("mass_kg", 250, "250")])
+def test_a_small_quads_mass_in_grams_written_as_kg_gets_the_gram_hint(tmp_path, key, value, shown):
+    # before: 'given in lb instead of kg? 240 lb = 108.9 kg' (108.9 kg on four 3-inch propellers is
+    # a disk loading near 58 000 N/m^2; 0.24 kg gives 129 N/m^2: 0.24 x 9.80665 / (4 pi 0.0381^2))
+    from trial_helpers import json_file
+
+    f = json_file(tmp_path, _with_mass(WHOOP, key, value))
+    line = refused("hover", f)
+    assert "given in g instead of kg? %s g = %.4g kg" % (shown, float(shown) / 1000.0) in line, line
+    assert " lb" not in line, line
+
+
+def test_the_same_number_on_a_lift_octo_keeps_the_pound_hint(tmp_path):
+    # 240 lb = 108.86 kg (1 lb = 0.45359237 kg exactly, NIST SP 811) on eight 30-inch rotors:
+    # 108.86 x 9.80665 / (8 pi 0.381^2) = 292 N/m^2, ordinary; 240 g there is 0.7 N/m^2
+    from trial_helpers import json_file
+
+    line = refused("hover", json_file(tmp_path, _with_mass(OCTO, "mass_kg", 240)))
+    assert "given in lb instead of kg? 240 lb = 108.9 kg" in line, line
+
+
+def test_compare_vary_mass_gets_the_gram_hint(tmp_path):
+    from trial_helpers import json_file
+
+    line = refused("compare", json_file(tmp_path, WHOOP), "--vary", "mass_kg=240,300")
+    assert "given in g instead of kg? 240 g = 0.24 kg" in line, line
