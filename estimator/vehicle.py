@@ -49,8 +49,7 @@ NO_ESC_EFFICIENCY_WARNING = (
     "(a bench fit measures the ESC's input: there only the motor current shown depends on it); multirotor "
     "ESCs are about 0.9-0.95 efficient (common practice, from memory): add \"esc\": {\"efficiency\": %.2f} "
     "or the maker's figure" % 0.95)
-NO_ALTITUDE_WARNING = ("the vehicle file's site has no altitude_m: sea level assumed; add the field's "
-                       "altitude above sea level")
+NO_ALTITUDE_WARNING = "the vehicle file's site has no altitude_m: sea level assumed; add the field's altitude above sea level"
 
 # quantity typed on the command line -> (where vehicle.schema.json keeps its bounds, kind in
 # estimator.units, unit shown, unit slips to try on a bare number, what it is)
@@ -100,14 +99,15 @@ def range_text(name):
     return "%g..%g%s" % (lo, hi, tail)
 
 
-def check_quantity(name, value, text=None, what=None):
+def check_quantity(name, value, text=None, what=None, typical=None):
     """Refuse a typed quantity outside its sensible bounds; return ``value`` when inside.
 
     name: a key of QUANTITIES; value: the quantity in SI (temperature in C); text: what the
     person typed, or None; what: the option to name (default ``--<name>``). A bare number
     (no unit suffix) outside the bounds is most often a unit slip, so the message names the
     slip that would bring it inside: ``--diameter: 10 m: did you mean 10in? (a rotor
-    diameter must be 0.01..3 m)``. Raises InputError.
+    diameter must be 0.01..3 m)``; the one nearest ``typical`` [SI] when the context expects a
+    value (a bench's diameter: the vehicle's, 76 -> 76mm on 3 in; trial 11). Raises InputError.
     """
     sub = quantity_schema(name)
     if within(value, sub):
@@ -125,7 +125,9 @@ def check_quantity(name, value, text=None, what=None):
         if bare and 2.0 <= value <= 100.0:
             hint = ": did you mean %g (a fraction, not %g %%)?" % (value / 100.0, value)
         raise InputError("%s: %s is %s (0 < k <= 1)%s" % (what, shown, side, hint))
-    slip = bare and (name == "diameter" and unit_slip(value, kind, ("in",), sub) or unit_slip(value, kind, slips, sub))
+    first = ("in",) if name == "diameter" and typical is None else ()  # props are sized in inches
+    slip = bare and (first and unit_slip(value, kind, first, sub) or unit_slip(
+        value, kind, slips, sub if typical is None else dict(sub, examples=[typical])))
     if slip:
         raise InputError("%s: %s: did you mean %s%s? (%s must be %s)"
                          % (what, shown, str(text).strip(), slip[0], label, range_text(name)))
@@ -219,8 +221,7 @@ def vehicle_air(vehicle):
         return site_air(site.get("altitude_m", 0.0), site.get("temperature_C"),
                         site.get("pressure_Pa"), site.get("humidity_pct", 0.0))
     except AirInputError as exc:
-        raise InputError("%s: $.site.%s: %s" % (vehicle_source(vehicle), _SITE_KEYS[exc.quantity],
-                                                 exc)) from None
+        raise InputError("%s: $.site.%s: %s" % (vehicle_source(vehicle), _SITE_KEYS[exc.quantity], exc)) from None
 
 
 # How far a site's air temperature may sit from the standard atmosphere's at its altitude before

@@ -137,3 +137,31 @@ def test_compare_vary_mass_gets_the_gram_hint(tmp_path):
 
     line = refused("compare", json_file(tmp_path, WHOOP), "--vary", "mass_kg=240,300")
     assert "given in g instead of kg? 240 g = 0.24 kg" in line, line
+
+
+# --- finding 5 ---------------------------------------------------------------------------------
+
+def _bench_with_diameter(tmp_path, diameter_text):
+    from test_fit_tare_trial8 import _sweep
+
+    csv = tmp_path / "b.csv"
+    csv.write_text(_sweep(0.0).replace("# diameter: 10in", "# diameter: %s" % diameter_text))
+    return csv
+
+
+def test_a_bare_bench_diameter_gets_the_unit_of_the_vehicles_size(tmp_path):
+    # before: 'did you mean 76in?' (1.93 m) beside a 3-inch vehicle; 76 mm = 2.99 in (1 in = 25.4 mm)
+    from trial_helpers import json_file
+
+    csv = _bench_with_diameter(tmp_path, "76")
+    vehicle = json_file(tmp_path, WHOOP, "whoop.json")
+    out = tmp_path / "p.json"
+    line = refused("fit", csv, "--vehicle", vehicle, "--out", out)
+    assert line.startswith("error: %s: line 3: # diameter: 76 m: did you mean 76mm?" % csv), line
+    assert not out.exists()
+
+
+def test_without_a_vehicle_a_bare_diameter_still_reads_as_inches_first(tmp_path):
+    # propellers are sized in inches: 76 in fits 0.01..3 m, so it stays the hint without a vehicle
+    line = refused("fit", _bench_with_diameter(tmp_path, "76"), "--out", tmp_path / "p.json")
+    assert "did you mean 76in?" in line, line

@@ -42,13 +42,15 @@ _QUANTITY_TEXT = re.compile(r"^\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*[A
 DIAMETER_AGREEMENT = 0.005
 
 
-def _read_head(path, warnings=None):
+def _read_head(path, warnings=None, expected_diameter_m=None):
     """Return (comment dict, header cells, number of lines before the data).
 
     The comment dict maps each known key to (value in SI, where: 'FILE: line N: # key');
     values outside the sensible bounds `liftcal air` applies are refused (vehicle.
-    check_quantity), an unknown key close to a known one is refused as a typo, and any
-    other unknown key whose value reads as a quantity is named in ``warnings``.
+    check_quantity; a bare diameter's unit hint is the one nearest expected_diameter_m [m], the
+    vehicle's, when given: new-user trial 11, finding 5), an unknown key close to a known one is
+    refused as a typo, and any other unknown key whose value reads as a quantity is named in
+    ``warnings``.
     """
     from estimator.vehicle import check_quantity
 
@@ -59,7 +61,7 @@ def _read_head(path, warnings=None):
         where = "%s: line %d: # %s" % (path, line_no, key)
         if key in _COMMENT_KEYS:
             si = parse_quantity(value, _COMMENT_KEYS[key], where)
-            check_quantity(_COMMENT_BOUNDS[key], si, value, where)
+            check_quantity(_COMMENT_BOUNDS[key], si, value, where, expected_diameter_m if key == "diameter" else None)
             comments[key] = (si, where)
             continue
         typo = difflib.get_close_matches(key, list(_COMMENT_KEYS), n=1, cutoff=TYPO_SIMILARITY)
@@ -170,10 +172,11 @@ def _time_back(path, header_line, time_s, unit):
 
 
 def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, temperature_C=None,
-               pressure_Pa=None, humidity_pct=None):
+               pressure_Pa=None, humidity_pct=None, expected_diameter_m=None):
     """Read a bench CSV into SI arrays and apply the row checks.
 
-    Options override the file's comment header. Returns a dict: command, voltage_V,
+    Options override the file's comment header; expected_diameter_m [m] (the vehicle's
+    propeller) picks the unit hint of a bare '# diameter:' outside the bounds. Returns a dict: command, voltage_V,
     thrust_N, power_W (numpy arrays of the rows kept), voltage_span_V (their lowest and
     highest bus voltage [V]), rows_total, rows_rejected, rejected (reason -> count), bench_air
     {density_kg_m3, source}, diameter_m (or None), input_sha256, warnings (list of str),
@@ -187,7 +190,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     from estimator.bench.sensor_checks import check_units
 
     comment_warnings = []
-    comments, head, header_line = _read_head(path, comment_warnings)
+    comments, head, header_line = _read_head(path, comment_warnings, expected_diameter_m)
     columns, warnings = csvtable.parse_header(path, head, UNITS, OPTIONAL)  # name -> (index, unit)
     warnings = comment_warnings + list(warnings)
     ncols = len(head.cells)

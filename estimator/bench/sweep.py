@@ -54,7 +54,7 @@ def fit_sweep(path, diameter_m=None, default_diameter_m=None, density_kg_m3=None
 
     data = read_bench(path, diameter_m=diameter_m, density_kg_m3=density_kg_m3,
                       altitude_m=altitude_m, temperature_C=temperature_C,
-                      pressure_Pa=pressure_Pa, humidity_pct=humidity_pct)
+                      pressure_Pa=pressure_Pa, humidity_pct=humidity_pct, expected_diameter_m=default_diameter_m)
     if data["diameter_m"] is None:
         data["diameter_m"] = default_diameter_m
     elif default_diameter_m is not None:
