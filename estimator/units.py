@@ -175,6 +175,23 @@ def likely_command_unit(low, high, unit):
     return best
 
 
+# a relative humidity above 0 and at most this is likelier a fraction of 1 written where percent
+# is read (0.4 for 40 %) than real air: the driest desert air measures a few per cent (from
+# memory) [%]
+HUMIDITY_FRACTION_MAX_PCT = 1.0
+
+
+def humidity_fraction_note(humidity_pct, what):
+    """A warning (str) when a relative humidity [%] lies above 0 and at most HUMIDITY_FRACTION_MAX_PCT,
+    a fraction of 1 likely meant (new-user trial 11, finding 8: 0.4 was read as 0.4 % and shown as
+    '0 %'), else None. what: where it was given ('--humidity', a JSON path, a comment line)."""
+    if humidity_pct is None or not 0.0 < humidity_pct <= HUMIDITY_FRACTION_MAX_PCT:
+        return None
+    return ("%s: %g %% is a relative humidity drier than the driest desert air (a few per cent, from memory): "
+            "a fraction of 1 meant? %g is %g %%; write %g%% if so (the air is worked out with %g %% as given)"
+            % (what, humidity_pct, humidity_pct, 100.0 * humidity_pct, 100.0 * humidity_pct, humidity_pct))
+
+
 def command_text(u, unit, span=False):
     """A command [-] written in a command unit (COMMAND_SHOWN), as a bench CSV's command column
     has it ('-' as the fraction to three decimals); span=True for a difference of commands (no

@@ -18,7 +18,7 @@ import re
 from estimator.errors import InputError
 from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
 from estimator.mass_slip import mass_hint
-from estimator.units import INCH_M
+from estimator.units import INCH_M, humidity_fraction_note
 from estimator.vehicle_units import BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS
 from estimator.vehicle_units import normalise, propeller_notes  # noqa: F401 (normalise: also this module's API)
 from estimator.vehicle_units import cutoff_above_nominal, written_unit_slip
@@ -165,10 +165,9 @@ def check_vehicle(document, source):
         assumed.append(NO_ALTITUDE_WARNING)
     if "efficiency" not in (document.get("esc") or {}):
         assumed.append(NO_ESC_EFFICIENCY_WARNING)
-    site_note = site_temperature_warning((document.get("site") or {}).get("altitude_m", DEFAULT_ALTITUDE_M),
-                                         (document.get("site") or {}).get("temperature_C"))
-    if site_note:
-        assumed.append(site_note)
+    site = document.get("site") or {}  # a temperature odd for the altitude; a humidity in 0..1 (a fraction?)
+    assumed += [w for w in (site_temperature_warning(site.get("altitude_m", DEFAULT_ALTITUDE_M), site.get(
+        "temperature_C")), humidity_fraction_note(site.get("humidity_pct"), "$.site.humidity_pct")) if w]
     vehicle["checked"] = {"source": source, "assumed": assumed,
                           "given": {path: text for path, (_, text) in given.items()}}
     vehicle["rotors"].setdefault("layout", DEFAULT_LAYOUT)

@@ -165,3 +165,37 @@ def test_without_a_vehicle_a_bare_diameter_still_reads_as_inches_first(tmp_path)
     # propellers are sized in inches: 76 in fits 0.01..3 m, so it stays the hint without a vehicle
     line = refused("fit", _bench_with_diameter(tmp_path, "76"), "--out", tmp_path / "p.json")
     assert "did you mean 76in?" in line, line
+
+
+# --- finding 8 (small items) -------------------------------------------------------------------
+
+def test_air_humidity_given_as_a_fraction_is_shown_and_questioned():
+    # before: 'humidity 0 % (vapour 4 Pa)', no word; 0.4 % RH is drier than any desert air
+    import json
+
+    text = " ".join(ok("air", "--altitude", "1400m", "--humidity", "0.4").split())
+    assert "humidity 0.4 % (vapour" in text, text
+    assert "--humidity: 0.4 % is a relative humidity drier than" in text and "0.4 is 40 %" in text, text
+    out = json.loads(ok("air", "--altitude", "1400m", "--humidity", "0.4", "--json"))
+    assert any("a fraction of 1 meant?" in w for w in out["warnings"]), out
+    # 40 % is ordinary: no word
+    assert "fraction" not in ok("air", "--altitude", "1400m", "--humidity", "40%")
+
+
+def test_a_vehicle_files_humidity_as_a_fraction_is_questioned_on_the_sheet(tmp_path):
+    from trial_helpers import json_file
+
+    doc = dict(WHOOP, site={"altitude": "100m", "temperature": "15C", "humidity_pct": 0.4})
+    text = " ".join(ok("hover", json_file(tmp_path, doc)).split())
+    assert "$.site.humidity_pct: 0.4 % is a relative humidity drier than" in text, text
+    doc["site"]["humidity_pct"] = 40
+    assert "fraction of 1" not in ok("hover", json_file(tmp_path, doc))
+
+
+def test_a_bench_humidity_as_a_fraction_is_questioned(tmp_path):
+    from test_fit_tare_trial8 import _sweep
+
+    csv = tmp_path / "b.csv"
+    csv.write_text(_sweep(0.0).replace("# diameter: 10in", "# diameter: 10in\n# humidity: 0.4"))
+    text = " ".join(ok("fit", csv, "--out", tmp_path / "p.json").split())
+    assert "# humidity: 0.4 % is a relative humidity drier than" in text, text

@@ -4,6 +4,7 @@ each other."""
 
 from estimator.core.constants import SEA_LEVEL_DENSITY_KG_M3
 from estimator.errors import InputError
+from estimator.units import humidity_fraction_note
 
 # the bench air from the comments and from the density comment differ by more than this:
 # the file contradicts itself [-]
@@ -55,6 +56,9 @@ def bench_air(path, comments, density, altitude, temperature, pressure, humidity
             warnings.append("bench air: no altitude or pressure given, so sea-level standard pressure "
                             "is assumed with the %s given by the %s; add '# altitude: M' to the CSV"
                             % (" and ".join(sorted(given)), named))
+        humid = humidity_fraction_note(given.get("humidity"), where.get("humidity"))
+        if humid:
+            warnings.append(humid)
         if "density" in comments and any(w.startswith("--") for w in where.values()):
             warnings.append("%s: not used: the bench air options (%s) describe the air instead"
                             % (comments["density"][1], ", ".join(w for w in where.values() if w.startswith("--"))))

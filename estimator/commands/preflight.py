@@ -103,10 +103,12 @@ def air(altitude, temperature, pressure, humidity, as_json):
     out["altitude_m"] = altitude_m
     out["humidity_pct"] = humidity_pct
     from estimator.core.constants import CELSIUS_ZERO_K
+    from estimator.units import humidity_fraction_note, plain_number
     from estimator.vehicle import site_temperature_warning
 
     note = site_temperature_warning(altitude_m, temperature_C)
-    out["warnings"] = [note] if note else []
+    humid = humidity_fraction_note(humidity_pct, "--humidity")
+    out["warnings"] = [w for w in (note, humid) if w]
     if as_json:
         click.echo(dumps(out))
         return
@@ -115,7 +117,9 @@ def air(altitude, temperature, pressure, humidity, as_json):
     click.echo("  temperature      %.2f K (%.1f C)" % (res["temperature_K"], res["temperature_K"] - CELSIUS_ZERO_K))
     # hPa to 0.01: 101325 Pa is 1013.25 hPa, the standard sea-level pressure as everyone writes it
     click.echo("  pressure         %.0f Pa (%.2f hPa)" % (res["pressure_Pa"], res["pressure_Pa"] / 100.0))
-    click.echo("  humidity         %.0f %% (vapour %.0f Pa)" % (humidity_pct, res["vapour_pressure_Pa"]))
+    # 0.4 % shown as such, not rounded to '0 %' (new-user trial 11, finding 8)
+    click.echo("  humidity         %s %% (vapour %.0f Pa)" % (plain_number(humidity_pct, 3, trim=True),
+                                                            res["vapour_pressure_Pa"]))
     click.echo("  density altitude %.0f m" % res["density_altitude_m"])
     for w in out["warnings"]:
         from estimator.textwidth import wrap_line
