@@ -199,3 +199,40 @@ def test_a_bench_humidity_as_a_fraction_is_questioned(tmp_path):
     csv.write_text(_sweep(0.0).replace("# diameter: 10in", "# diameter: 10in\n# humidity: 0.4"))
     text = " ".join(ok("fit", csv, "--out", tmp_path / "p.json").split())
     assert "# humidity: 0.4 % is a relative humidity drier than" in text, text
+
+
+# --- finding 7 (small items) -------------------------------------------------------------------
+
+def test_air_with_only_a_station_pressure_is_not_called_sea_level():
+    # before: 'air at 0 m: 0.9902 kg/m^3'. The standard atmosphere's pressure at 1400 m, by hand
+    # from the ICAO barometric formula 101325 (1 - 2.25577e-5 h)^5.25588 (ICAO Doc 7488, h
+    # geopotential; 1400 m geometric is 1399.7 m geopotential), is 85 601 Pa
+    import json
+
+    text = ok("air", "--pressure", "85601Pa", "--temperature", "28C")
+    assert text.startswith("air at 856.01 hPa: 0.9902 kg/m^3"), text
+    assert "pressure alt.    1400 m (standard atmosphere; no --altitude given)" in text, text
+    assert "air at 0 m" not in text
+    out = json.loads(ok("air", "--pressure", "85601Pa", "--temperature", "28C", "--json"))
+    assert abs(out["pressure_altitude_m"] - 1400.0) < 1.0, out
+    # without a temperature the sea-level standard's 15 C is taken: said, with the site's 5.9 C
+    # (288.15 K - 6.5 K/km x 1.3997 km = 279.05 K, ICAO Doc 7488)
+    text = " ".join(ok("air", "--pressure", "85601Pa").split())
+    assert "no --temperature and no --altitude: the standard atmosphere's sea-level temperature, 15 C" in text
+    assert "at about 1400 m, at 5.9 C" in text, text
+
+
+def test_air_at_a_given_altitude_keeps_its_heading():
+    text = ok("air", "--altitude", "1400m", "--pressure", "856hPa", "--temperature", "28C")
+    assert text.startswith("air at 1400 m: ") and "pressure alt." not in text, text
+
+
+def test_pressure_altitude_round_trips_with_the_standard_atmosphere():
+    # the inverse of US Standard Atmosphere 1976 eqs. 33a/33b, in both layers; at 11 km
+    # geopotential the standard gives 22 632 Pa (its table, from memory)
+    from estimator.core.atmosphere import geometric_m, pressure_altitude_m, standard_atmosphere
+
+    for h in (-4000.0, 0.0, 1400.0, 8000.0, 15000.0):
+        assert abs(pressure_altitude_m(standard_atmosphere(h)[1]) - h) < 1e-6 * max(1.0, abs(h)), h
+    assert abs(pressure_altitude_m(22632.0) - geometric_m(11000.0)) < 1.0
+    assert abs(pressure_altitude_m(101325.0)) < 1e-9

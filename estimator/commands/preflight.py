@@ -102,18 +102,34 @@ def air(altitude, temperature, pressure, humidity, as_json):
     out = dict(res)
     out["altitude_m"] = altitude_m
     out["humidity_pct"] = humidity_pct
+    from estimator.core.atmosphere import pressure_altitude_m, standard_atmosphere
     from estimator.core.constants import CELSIUS_ZERO_K
     from estimator.units import humidity_fraction_note, plain_number
     from estimator.vehicle import site_temperature_warning
 
+    # a station pressure without --altitude: the air is at that pressure, not at '0 m' (new-user
+    # trial 11, finding 7); its pressure altitude says where the standard atmosphere has it
+    at_pressure = pressure_Pa is not None and \
+        click.get_current_context().get_parameter_source("altitude") == click.core.ParameterSource.DEFAULT
+    if at_pressure:
+        out["pressure_altitude_m"] = pressure_altitude_m(pressure_Pa)
+
     note = site_temperature_warning(altitude_m, temperature_C)
     humid = humidity_fraction_note(humidity_pct, "--humidity")
     out["warnings"] = [w for w in (note, humid) if w]
+    if at_pressure and temperature_C is None:
+        out["warnings"].append(
+            "no --temperature and no --altitude: the standard atmosphere's sea-level temperature, 15 C, is "
+            "taken with the %.2f hPa given%s; give --temperature (or --altitude) for the site"
+            % (pressure_Pa / 100.0, " (the standard atmosphere has %.2f hPa at about %.0f m, at %.1f C)" % (
+                pressure_Pa / 100.0, out["pressure_altitude_m"],
+                standard_atmosphere(out["pressure_altitude_m"])[0] - CELSIUS_ZERO_K)))
     if as_json:
         click.echo(dumps(out))
         return
-    click.echo("air at %.0f m: %.4f kg/m^3 (%.1f %% of sea-level standard)"
-               % (altitude_m, res["density_kg_m3"], 100.0 * res["density_ratio"]))
+    where = "%.2f hPa" % (pressure_Pa / 100.0) if at_pressure else "%.0f m" % altitude_m
+    click.echo("air at %s: %.4f kg/m^3 (%.1f %% of sea-level standard)"
+               % (where, res["density_kg_m3"], 100.0 * res["density_ratio"]))
     click.echo("  temperature      %.2f K (%.1f C)" % (res["temperature_K"], res["temperature_K"] - CELSIUS_ZERO_K))
     # hPa to 0.01: 101325 Pa is 1013.25 hPa, the standard sea-level pressure as everyone writes it
     click.echo("  pressure         %.0f Pa (%.2f hPa)" % (res["pressure_Pa"], res["pressure_Pa"] / 100.0))
@@ -121,6 +137,8 @@ def air(altitude, temperature, pressure, humidity, as_json):
     click.echo("  humidity         %s %% (vapour %.0f Pa)" % (plain_number(humidity_pct, 3, trim=True),
                                                             res["vapour_pressure_Pa"]))
     click.echo("  density altitude %.0f m" % res["density_altitude_m"])
+    if at_pressure:
+        click.echo("  pressure alt.    %.0f m (standard atmosphere; no --altitude given)" % out["pressure_altitude_m"])
     for w in out["warnings"]:
         from estimator.textwidth import wrap_line
         for line in wrap_line("  ! " + w, indent=4):

@@ -1,4 +1,4 @@
-"""ICAO / US Standard Atmosphere 1976 below 20 km, site air and density altitude.
+"""ICAO / US Standard Atmosphere 1976 below 20 km, site air, density and pressure altitude.
 
 Troposphere (lapse 6.5 K per geopotential km) up to 11 km and the isothermal layer from
 11 to 20 km, both in geopotential height; inputs are geometric altitudes (maps, GNSS)
@@ -99,6 +99,27 @@ def density_altitude_m(density_kg_m3):
     else:
         h_geo = TROPOPAUSE_GEOPOTENTIAL_M + (DRY_AIR_GAS_CONSTANT_J_KG_K * _T11
                                              * math.log(_RHO11 / density_kg_m3) / STANDARD_GRAVITY_M_S2)
+    return geometric_m(h_geo)
+
+
+def pressure_altitude_m(pressure_Pa):
+    """Geometric altitude at which the standard atmosphere has this pressure (pressure altitude).
+
+    Troposphere: T = T0 (p / p0)^(R L / g0), H = (T0 - T) / L; isothermal layer:
+    H = 11000 + R T11 ln(p11 / p) / g0; then h = r0 H / (r0 - H). pressure_Pa: station
+    pressure p [Pa], > 0. Returns the pressure altitude [m, geometric, so that it round-trips
+    with standard_atmosphere]; pressures beyond the model's range (-5 km .. 20 km) are
+    extrapolated with the nearer layer's law.
+    Source: inverse of US Standard Atmosphere 1976 eqs. 33a/33b.
+    """
+    if not pressure_Pa > 0.0:
+        raise ValueError("pressure must be above zero [Pa]")
+    if pressure_Pa >= _P11:
+        t = SEA_LEVEL_TEMPERATURE_K * (pressure_Pa / SEA_LEVEL_PRESSURE_PA) ** (1.0 / _EXPONENT)
+        h_geo = (SEA_LEVEL_TEMPERATURE_K - t) / TROPOSPHERE_LAPSE_K_M
+    else:
+        h_geo = TROPOPAUSE_GEOPOTENTIAL_M + (DRY_AIR_GAS_CONSTANT_J_KG_K * _T11
+                                             * math.log(_P11 / pressure_Pa) / STANDARD_GRAVITY_M_S2)
     return geometric_m(h_geo)
 
 
