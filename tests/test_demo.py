@@ -119,3 +119,20 @@ def test_the_readme_names_the_files_the_demo_writes(demo_run):
             assert [f for f in os.listdir(out) if f.startswith("flight-") and f.endswith(".csv")], name
         elif name != "liftcal-demo/":
             assert os.path.exists(os.path.join(out, name.rstrip("/"))), name
+
+
+def test_the_demo_settings_file_is_what_export_writes(demo_run, tmp_path):
+    # new-user trial 11, finding 12: settings.txt said 'supply.reference_volts 15.2 V' and
+    # 'through the example map (invented names)' where export says 15.20 V and 'through
+    # example-map.json (8)'; and the tour shows export's own output (header, folded arrows)
+    from trial_helpers import ok
+
+    out, _, text = demo_run
+    exported = tmp_path / "s.txt"
+    printed = ok("export", os.path.join(out, "params.json"), "--out", exported)
+    sealed = [line for line in exported.read_text().splitlines() if not line.startswith("# content sha256:")]
+    with open(os.path.join(out, "settings.txt"), encoding="utf-8") as fh:
+        assert fh.read().splitlines() == sealed
+    lines = printed.splitlines()
+    settings = lines[:next(i for i, line in enumerate(lines) if line.startswith(("!", "-", "settings written")))]
+    assert "\n".join(settings) in text

@@ -236,3 +236,23 @@ def test_pressure_altitude_round_trips_with_the_standard_atmosphere():
         assert abs(pressure_altitude_m(standard_atmosphere(h)[1]) - h) < 1e-6 * max(1.0, abs(h)), h
     assert abs(pressure_altitude_m(22632.0) - geometric_m(11000.0)) < 1.0
     assert abs(pressure_altitude_m(101325.0)) < 1e-9
+
+
+# --- finding 12 (small items) ------------------------------------------------------------------
+
+def test_export_provenance_shows_a_fit_bound_as_zero_not_float_noise(tmp_path):
+    # before: 'motor_model.command_start = 1.26587e-24 - x 1000 + 1000'; a command [-] a million
+    # times below the setting's last digit (1 us here) is the noise of a fit that ended at 0
+    import json
+
+    from watch_helpers import demo_fit_params
+
+    params = demo_fit_params()
+    params["motor_model"]["command_start"] = 1.26587e-24
+    f = tmp_path / "p.json"
+    f.write_text(json.dumps(params))
+    code, out, err = run("export", f)
+    text = " ".join(out.split())
+    assert "motor_model.command_start = 0 - x 1000 + 1000" in text, (code, out, err)
+    assert "e-24" not in out
+

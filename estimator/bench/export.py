@@ -130,7 +130,7 @@ def export_settings(params, mapping, source_name="map", params_name=None):
                                      else "(unit not in map)")
         out.append({"name": entry["name"], "value": result, "unit": unit, "source": entry["source"],
                     "source_value": value, "source_unit": source_unit(entry["source"]),
-                    "scale": scale, "offset": offset})
+                    "scale": scale, "offset": offset, "decimals": decimals})
     return out
 
 
@@ -148,8 +148,21 @@ def format_lines(settings, header=None):
         if s["offset"] != 0.0:
             how += " %s %g" % ("+" if s["offset"] > 0 else "-", abs(s["offset"]))
         lines.append("%-*s  %-*s  <- %s = %.6g %s%s" % (width, s["name"], vwidth, value, s["source"],
-                                                      s["source_value"], s["source_unit"], how))
+                                                      _shown_source(s), s["source_unit"], how))
     return "\n".join(lines) + "\n"
+
+
+# a source value whose scaled size is below this share of the setting's last digit is float noise [-]
+SOURCE_NOISE_SHARE = 1e-6
+
+
+def _shown_source(setting):
+    """The source value of a setting as its provenance shows it: 0 when, scaled, it lies below
+    SOURCE_NOISE_SHARE of the setting's last digit (10^-decimals), the float noise of a fit that
+    ended at its bound (new-user trial 11, finding 12: 'command_start = 1.26587e-24'); else itself."""
+    value = setting["source_value"]
+    last_digit = 10.0 ** -setting.get("decimals", 6)
+    return 0.0 if abs(value * setting["scale"]) < SOURCE_NOISE_SHARE * last_digit else value
 
 
 def as_mapping(settings):

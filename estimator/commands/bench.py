@@ -211,6 +211,18 @@ def check(params_file, as_json):
                                 seal_text)))
 
 
+def settings_text(settings, mapping, params_name, map_name):
+    """The settings file's text as ``liftcal export`` prints and writes it: the header naming the
+    parameter set and the map (file names as shown), then the lines in each entry's decimals.
+    The demo's settings.txt is the same text (new-user trial 11, finding 12: it said 15.2 V and
+    'through the example map' where export says 15.20 V and 'through example-map.json (8)')."""
+    from estimator.bench.export import format_lines
+
+    header = "liftcal settings from %s through %s (%d); %s" % (
+        shown(os.path.basename(params_name)), shown(os.path.basename(map_name)), len(settings), SHORT)
+    return format_lines(in_map_decimals(settings, mapping), header)
+
+
 def in_map_decimals(settings, mapping):
     """The settings with each value as text in the decimals its map entry asks for (0.280 for
     3 decimals, not 0.28); an entry without ``decimals`` keeps the value as it is."""
@@ -277,7 +289,7 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     Each setting is round(value * scale + offset, decimals); a value outside the map's
     bounds is refused, never clipped. Props off while you load settings into a controller.
     """
-    from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, format_lines, load_map
+    from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, load_map
     from estimator.cautions import cautions
     from estimator.outputs import SETTINGS_MARK, check_output, write_text
     from estimator.params import load_params
@@ -296,13 +308,11 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     mapping = load_map(path)
     settings = export_settings(params, mapping, shown(path) if map_file is not None else
                                "the shipped example-map.json", shown(params_file))
-    header = "liftcal settings from %s through %s (%d); %s" % (
-        shown(os.path.basename(params_file)), shown(os.path.basename(path)), len(settings), SHORT)
-    if edited:
-        header += "\n# WARNING: " + edited
     notes = top_thrust_notes(settings, params) + ["fit: " + w for w in params.get("warnings", [])]
-    text = dumps(as_mapping(settings)) + "\n" if as_json else format_lines(in_map_decimals(settings, mapping),
-                                                                             header)
+    text = dumps(as_mapping(settings)) + "\n" if as_json else settings_text(settings, mapping, params_file, path)
+    if edited and not as_json:  # under the header line
+        head, rest = text.split("\n", 1)
+        text = "%s\n# WARNING: %s\n%s" % (head, edited, rest)
     if out_file is not None:
         # a file carries its mark, so liftcal knows it as its own later (outputs.py): the
         # lines start with the '# liftcal settings' header, a JSON file names its model; the

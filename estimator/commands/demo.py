@@ -72,10 +72,10 @@ DEMO_JOB_MIN = 10.0
 
 def _run(out_dir, work, seed, emit):
     """run_demo's steps, writing into ``work`` and naming the files as they will be in ``out_dir``."""
-    from estimator.commands.bench import fit_for_vehicle
+    from estimator.commands.bench import _fold_arrows, fit_for_vehicle, settings_text
     from estimator.demo.bench_sim import simulate_sweep
     from estimator.demo.scenario import DEMO_VEHICLE
-    from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, format_lines, load_map
+    from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, load_map
     from estimator.watch.bundle import write_bundle
     from estimator.demo.flight_sim import simulate_flight
     from estimator.params import write_params
@@ -118,9 +118,9 @@ def _run(out_dir, work, seed, emit):
     write_params(path("params.json"), params)  # validates against the schema before writing
     fitted = hover_report(vehicle, params)
     map_file = EXAMPLE_MAP
-    settings = export_settings(params, load_map(map_file), map_file)
-    write_atomic(path("settings.txt"), format_lines(
-        settings, "liftcal settings from params.json through the example map (invented names)"))
+    mapping = load_map(map_file)
+    settings = export_settings(params, mapping, map_file)
+    write_atomic(path("settings.txt"), settings_text(settings, mapping, "params.json", map_file))
     c, k = params["thrust_curve"], params["static_factor"]
     text += [_rule("2. bench sweep -> parameter set -> settings"),
              "$ liftcal fit %s --vehicle %s --out %s" % (show("bench.csv"), show("vehicle.json"),
@@ -133,7 +133,7 @@ def _run(out_dir, work, seed, emit):
              "$ liftcal hover %s --params %s" % (show("vehicle.json"), show("params.json")),
              format_sheet(fitted),
              "$ liftcal export %s   (the shipped example map, invented setting names)" % show("params.json"),
-             format_lines(settings).rstrip()]
+             _fold_arrows(settings_text(settings, mapping, "params.json", map_file)).rstrip()]
 
     # 3. in the air: board bundle + replay of simulated flights
     options = watch_options(params, vehicle)   # the CONFIG liftcal firmware/replay --vehicle build
