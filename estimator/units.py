@@ -86,8 +86,12 @@ def parse_quantity(text, kind, what="value"):
         raise InputError("%s: %s: takes a plain number without a unit%s"
                          % (what, shorten(str(text)), hint))
     if suffix not in table:
-        raise InputError("%s: unknown unit %s in %s; use one of %s"
-                         % (what, shorten(suffix), shorten(text), ", ".join(repr(u) for u in table if u)))
+        # a mass unit where a force is read ('g' reads as gf): name its weight's unit (new-user
+        # trial 11, finding 6: 850g was taken, 85kg refused without a word why)
+        weight = "; %s is a mass: its weight is %s%sf" % (suffix, m.group(1), suffix) \
+            if kind == "force" and suffix in ("kg", "lb") else ""
+        raise InputError("%s: unknown unit %s in %s; use one of %s%s"
+                         % (what, shorten(suffix), shorten(text), ", ".join(repr(u) for u in table if u), weight))
     scale, offset = table[suffix]
     if not math.isfinite(value):
         raise InputError("%s: %s is not a finite number" % (what, shorten(text)))

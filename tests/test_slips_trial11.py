@@ -256,3 +256,15 @@ def test_export_provenance_shows_a_fit_bound_as_zero_not_float_noise(tmp_path):
     assert "motor_model.command_start = 0 - x 1000 + 1000" in text, (code, out, err)
     assert "e-24" not in out
 
+
+
+# --- finding 6, sub-point (small items) --------------------------------------------------------
+
+@pytest.mark.parametrize("typed,meant", [("8.5kg", "8.5kgf"), ("2lb", "2lbf")])
+def test_a_mass_unit_for_a_thrust_names_its_weights_unit(typed, meant):
+    # before: "unknown unit 'kg' in '8.5kg'; use one of ..." while '850g' reads as gram-force
+    from io_helpers import refused as refused_by_main   # through cli.main: one 'error:' line
+
+    line = refused_by_main(["static", "--diameter", "10in", "--thrust", typed], "error: ",
+                           "unknown unit", "is a mass: its weight is %s" % meant)
+    assert "Traceback" not in line
