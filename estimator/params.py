@@ -16,7 +16,7 @@ from estimator.errors import InputError
 from estimator.core.momentum import disk_area_m2
 from estimator.core.power_model import KEYS as POWER_KEYS, rotor_static_factor
 from estimator.jsonio import load_json, validate, write_json_atomic
-from estimator.units import INCH_M
+from estimator.units import INCH_M, beside
 
 MODEL = "liftcal.rotor/1"
 POWER_FORM = "p0+p_h*T^0.5+p_1*T+p_15*T^1.5+p_2*T^2"
@@ -269,17 +269,19 @@ def check_vehicle_match(params, vehicle, params_source, vehicle_source=None, jso
     pack = "%s's %d-cell pack spans %.1f..%.1f V" % (vsrc, b["cells"], empty, full)
     if full > VOLTAGE_ABOVE_SWEEP_MAX * hi:
         raise InputError(
-            "%s%s: the sweep ran at %.1f..%.1f V but %s, %.1f x the "
+            "%s%s: the sweep ran at %.1f..%.1f V but %s, %s x the "
             "sweep's top; beyond %.1f x the rotor would turn faster than anything measured "
             "(1.5 x the speed is 2.2 x the thrust and 3.4 x the power), where the fitted motor "
             "and propeller constants no longer apply: sweep the rotor at this pack's voltage"
-            % (params_source, json_paths and ": $.thrust_curve.voltage_max_V" or "", lo, hi, pack, full / hi, VOLTAGE_ABOVE_SWEEP_MAX))
+            % (params_source, json_paths and ": $.thrust_curve.voltage_max_V" or "", lo, hi, pack,
+               beside(full / hi, VOLTAGE_ABOVE_SWEEP_MAX, below=False, digits=1), VOLTAGE_ABOVE_SWEEP_MAX))
     if empty < VOLTAGE_BELOW_SWEEP_MIN * lo:
         raise InputError(
-            "%s%s: the sweep ran at %.1f..%.1f V but %s, %.2f x the "
+            "%s%s: the sweep ran at %.1f..%.1f V but %s, %s x the "
             "sweep's lowest; below %.1f x the pack leaves under a quarter of the swept thrust: "
             "a parameter set of another vehicle? sweep the rotor at this pack's voltage"
-            % (params_source, json_paths and ": $.thrust_curve.voltage_min_V" or "", lo, hi, pack, empty / lo, VOLTAGE_BELOW_SWEEP_MIN))
+            % (params_source, json_paths and ": $.thrust_curve.voltage_min_V" or "", lo, hi, pack,
+               beside(empty / lo, VOLTAGE_BELOW_SWEEP_MIN), VOLTAGE_BELOW_SWEEP_MIN))
 
 
 def check_params(document, source):

@@ -151,6 +151,18 @@ def plain_number(x, digits=4, trim=False):
     return text
 
 
+def beside(value, threshold, below=True, digits=2):
+    """value written with `digits` decimals, or with more where fewer would round it onto or past
+    the threshold it is compared with ("2.00 is below 2" is never printed): below=True for a value
+    reported as below the threshold, False for one above it. One copy for every flow: the
+    sheet's margins, the payload table, a pack beyond a sweep (new-user trial 11, finding 10)."""
+    for places in range(digits, 10):
+        text = "%.*f" % (places, value)
+        if (float(text) < threshold) if below else (float(text) > threshold):
+            return text
+    return repr(value)
+
+
 # the one table of command units: a command [-] (a fraction of full command) as a bench CSV or
 # flight log writes it: unit -> (scale, offset, JSON key suffix, text format), shown = offset +
 # scale * u (a 1000..2000 us pulse, %, permille; '-' is u itself). The readers' table

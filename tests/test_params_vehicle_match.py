@@ -96,6 +96,15 @@ def test_a_pack_far_above_the_sweep_is_refused_and_a_bit_above_is_used(fitted):
     refused(["replay", str(folder / "no-log.csv"), "--params", params, "--vehicle", far], "1.5 x")
 
 
+def test_a_pack_just_beyond_the_sweep_shows_the_digit_that_tells(fitted):
+    # new-user trial 11, finding 10: a pack 1.52 x the sweep's top read '1.5 x the sweep's top;
+    # beyond 1.5 x ...', as if at the limit; the ratio gets the digit that tells it from the limit
+    folder, params, truth, v_lo, v_hi = fitted
+    cells = int(np.ceil(1.52 * v_hi / 4.3))
+    just = _vehicle(folder, truth, "v152.json", cells=cells, full_cell_V=1.52 * v_hi / cells)
+    refused(["hover", just, "--params", params], "1.52 x the sweep's top; beyond 1.5 x", "v152.json")
+
+
 def test_a_pack_of_another_vehicle_far_below_the_sweep_is_refused(fitted):
     folder, params, truth, v_lo, _ = fitted
     # cells whose empty pack (3.5 V a cell in the truth vehicle) is below half the sweep's lowest

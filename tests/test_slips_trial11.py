@@ -268,3 +268,29 @@ def test_a_mass_unit_for_a_thrust_names_its_weights_unit(typed, meant):
     line = refused_by_main(["static", "--diameter", "10in", "--thrust", typed], "error: ",
                            "unknown unit", "is a mass: its weight is %s" % meant)
     assert "Traceback" not in line
+
+
+# --- finding 10 (small items) ------------------------------------------------------------------
+
+def test_the_payload_tables_near_empty_command_never_rounds_onto_its_limit(tmp_path):
+    # before: the demo quad with 0.1 kg showed 'empty 0.60 ... breaks hover_command' against the
+    # rule 'at most 0.6' (the value was 0.6021). Each row's shown near-empty command must agree
+    # with its verdict: above 0.6 when hover_command breaks, at most 0.6 when it holds
+    from estimator.demo.scenario import DEMO_VEHICLE
+    from estimator.preflight.warnings import HOVER_COMMAND_LIMIT
+    from trial_helpers import json_file
+
+    out = ok("hover", json_file(tmp_path, dict(DEMO_VEHICLE)), "--payload", "0..1kg")
+    lines = out.splitlines()
+    start = next(i for i, line in enumerate(lines) if line.strip().startswith("payload") and "empty" in line)
+    rows = 0
+    for i in range(start + 1, len(lines)):
+        cells = lines[i].split()
+        if len(cells) < 6 or cells[1] != "kg":
+            continue
+        empty = float(cells[5])
+        broken = i + 1 < len(lines) and lines[i + 1].strip().startswith("breaks") and "hover_command" in lines[i + 1]
+        assert (empty > HOVER_COMMAND_LIMIT) == broken, (lines[i], lines[i + 1])
+        rows += 1
+    assert rows == 11
+

@@ -19,9 +19,10 @@ from estimator.errors import InputError, shorten
 from estimator.preflight.low_reynolds import endurance_lead, estimate_flight_time_min
 from estimator.preflight.margins import PAYLOAD_BLIND, SAG_NOT_A_MARGIN_WHY, broken, margins
 from estimator.preflight.report import hover_report
-from estimator.preflight.warnings import REACHABLE_MARK, REACHABLE_MARK_NOTE, judged_thrust_to_weight, judged_thrust_to_weight_text
+from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT, REACHABLE_MARK, REACHABLE_MARK_NOTE, judged_thrust_to_weight,
+                                         judged_thrust_to_weight_text)
 from estimator.textwidth import wrap_line
-from estimator.units import parse_quantity
+from estimator.units import beside, parse_quantity
 
 RANGE_POINTS = 9  # payloads in a range A..B, ends included [-]
 BISECTION_STEPS = 30  # halvings between a payload that keeps and one that does not [-]
@@ -245,7 +246,11 @@ def format_payload_table(result, unit="kg"):
     shown = _shared_decimals([v / scale for r in result["rows"] for v in (r["payload_kg"], r["mass_kg"])])
     for r in result["rows"]:
         cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
-        empty = "%.2f" % r["hover_command_empty"] if r["hover_command_empty"] is not None else "none"
+        # near empty is where the hover command limit is judged: never rounded onto it (0.602 breaks
+        # 'at most 0.6', 0.60 would not; new-user trial 11, finding 10)
+        empty = "none" if r["hover_command_empty"] is None else beside(
+            r["hover_command_empty"], HOVER_COMMAND_LIMIT, below=False) \
+            if r["hover_command_empty"] > HOVER_COMMAND_LIMIT else "%.2f" % r["hover_command_empty"]
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
         time = ("%.1f min (%s)" % (_shown_minutes(r), r["flight_ended_by"])
                 if r["flight_time_lead_min"] is not None else "no hover")

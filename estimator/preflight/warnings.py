@@ -6,7 +6,7 @@ neither imports the other. Thresholds are common practice for multirotors, not a
 
 import math
 
-from estimator.units import command_text, plain_number
+from estimator.units import beside, command_text, plain_number  # beside: also the sheet's (sheet.py)
 
 
 # Warning thresholds (common practice for multirotors, not a standard):
@@ -34,17 +34,6 @@ def command_words(text, unit="-", of_full=False):
     if unit in ("us", "%", "permille"):
         return command_text(float(text), unit)
     return text + " of full command" if of_full else text
-
-
-def beside(value, threshold, below=True, digits=2):
-    """value written with `digits` decimals, or with more where fewer would round it onto or past
-    the threshold it is compared with ("2.00 is below 2" is never printed): below=True for a value
-    reported as below the threshold, False for one above it."""
-    for places in range(digits, 10):
-        text = "%.*f" % (places, value)
-        if (float(text) < threshold) if below else (float(text) > threshold):
-            return text
-    return repr(value)
 
 
 def thrust_to_weight_text(tw):
