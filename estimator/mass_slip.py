@@ -26,6 +26,8 @@ def mass_slips_by_loading(value, slips, document):
     disk loading m g / (N A) within DISK_LOADING_TYPICAL_N_M2 on the file's propellers (A = pi D^2 / 4,
     momentum theory) and lies inside the schema, nearest the band's geometric middle first; None
     when the file lacks the propeller's diameter or the rotor count."""
+    if not isinstance(document, dict):
+        return None
     diameter = _si(document, "propeller", "diameter", "diameter_m", "length")
     rotors = document.get("rotors")
     count = rotors.get("count") if isinstance(rotors, dict) else None
@@ -48,6 +50,8 @@ def mass_hint(message, document):
     the sizes, or when no slip fits them either (the schema's guess then stands).
 
     document: the normalised vehicle document (``mass_kg`` in kg)."""
+    if not isinstance(document, dict):  # a list or a number where the vehicle belongs: no mass to judge
+        return message
     hint = _MASS_SLIP_HINT.search(message)
     value = document.get("mass_kg")
     if not _MASS_MESSAGE.search(message) or hint is None or isinstance(value, bool) \
