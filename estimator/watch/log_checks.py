@@ -4,8 +4,9 @@
   when the user asks to go on, dropped and counted;
 - values implausible for the parameter set are refused with the likely unit slip: a 0..1
   command in a column labelled %, a command in another unit than its label (permille or us
-  labelled %, percent labelled permille while the hover current flows), millivolts labelled V
-  (or volts labelled mV), the voltage and current columns swapped, a current sensor reading negative or zero while the rotors turn, milliamps labelled A;
+  labelled %, percent labelled permille while the hover current flows: log_current), millivolts
+  labelled V (or volts labelled mV), the voltage and current columns swapped, a current sensor
+  reading negative or zero while the rotors turn, milliamps labelled A;
 - a log from another vehicle or pack than the parameter set's is refused before the watch
   runs (the watch would learn a power scale and read the difference as a propulsion fault):
   the bus voltage in flight against the set's pack, and the mass the log's power implies
@@ -22,6 +23,7 @@ from estimator.csvtable import data_line_numbers
 from estimator.errors import InputError
 from estimator.units import COMMAND_SHOWN, COMMAND_UNIT_WORDS, STANDARD_GRAVITY_M_S2, command_text
 from estimator.units import likely_command_unit, unit_factors
+from estimator.watch.log_current import check_percent_as_permille, hover_current_A, upper_median as _median
 from estimator.watch.sensor_range import pack_voltages
 
 SHOWN_ROWS = 5  # row numbers named in one error line
@@ -58,17 +60,8 @@ COMMAND_ABOVE_SHARE = 0.05
 # a command below zero by more than this [permille] counts as below it (an ESC's low end point of
 # 988 us, common practice, is -12 permille: no slip)
 COMMAND_BELOW_PERMILLE = -100
-# percent labelled permille: the rows that would fly as percent draw at least this share of the
-# hover current (an idle spin on the ground draws about a tenth of it, common practice, as
-# ZERO_CURRENT_SHARE; a flight's median is near the hover current) [-]
-PERCENT_AS_PERMILLE_HOVER_SHARE = 0.3
 # rows the voltage/current swap judgement samples (systematic), at most [-]
 SWAP_SAMPLE_ROWS = 20000
-
-
-def _median(values):
-    s = sorted(values)
-    return s[len(s) // 2] if s else 0
 
 
 def check_time(path, flight, go_on=False):
@@ -146,7 +139,7 @@ def check_plausible(path, flight, params, facts, cfg, units):
                              "likely a 0..1 command labelled %s; label it command[-]"
                              % (path, units["command"], _median(ma) / 1000.0, units["command"]))
     if units["command"] == "permille":
-        _check_percent_as_permille(path, flight, params, facts, cfg)
+        check_percent_as_permille(path, flight, params, facts, cfg)
     if len(u) and max(u) > 1000:
         _check_command_above_full(path, u, units["command"])
     if len(u) and min(u) < COMMAND_BELOW_PERMILLE:
@@ -256,48 +249,6 @@ def _check_swapped(path, flight, units, full_V, empty_V):
                      "the data" % (path, v_unit, i_unit, v_col, lo, hi, rise_v, written, i_unit, as_V, rise_i))
 
 
-def _hover_current_A(params, facts, bus_V):
-    """The pack current of a hover at the planned mass [A]: the set's power model in flight (the one
-    copy, estimator.core.power_model.rotor_power_W, with a coaxial layout's penalty:
-    thrust_table.flight_power_model) for each rotor's share of the weight, in the site's air, over
-    the bus voltage bus_V [V]."""
-    from estimator.core.power_model import rotor_power_W
-    from estimator.watch.thrust_table import flight_power_model
-
-    n = int(facts["rotor_count"])
-    weight_N = float(facts["mass_kg"]) * STANDARD_GRAVITY_M_S2
-    rho = float(facts["site_density_kg_m3"])
-    return n * rotor_power_W(flight_power_model(params, facts.get("layout"), rho), weight_N / n, rho) / bus_V
-
-
-def _check_percent_as_permille(path, flight, params, facts, cfg):
-    """Refuse a command[permille] column whose values are percent (new-user trial 11, finding 2:
-    a 90 s flight at 3.5 A read as '0.0 s of flight', exit 0): the unit its values fit is percent
-    (units.likely_command_unit, the guess the bench reader makes too: at most about 100 as written,
-    so below a tenth of full command as permille), and the rows that would turn the rotors if the
-    values were percent draw, in their median, at least PERCENT_AS_PERMILLE_HOVER_SHARE of the hover
-    current at the planned mass (_hover_current_A): flight, not a spin on the ground at idle."""
-    u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
-    if not u or likely_command_unit(min(u), max(u), "permille") != "%":
-        return
-    spin = cfg["spin_permille"]
-    as_pct = [i for i in range(len(u)) if 10 * u[i] >= spin]   # the rows that fly if the values are percent
-    if not as_pct:
-        return
-    bus_V = _median([mv[i] for i in as_pct]) / 1000.0
-    if bus_V <= 0:
-        return
-    med_A = _median([ma[i] for i in as_pct]) / 1000.0
-    hover_A = _hover_current_A(params, facts, bus_V)
-    if med_A < PERCENT_AS_PERMILLE_HOVER_SHARE * hover_A:
-        return
-    raise InputError("%s: column command[permille]: every value is between %.4g and %.4g permille (at most %.3g of "
-                     "full command; the rotors turn above %s) while a median %.3g A flows where a hover draws "
-                     "about %.3g A: likely percent labelled [permille]; label it command[%%]"
-                     % (path, min(u), max(u), max(u) / 1000.0, command_text(spin / 1000.0, "permille"), med_A,
-                        hover_A))
-
-
 def _check_current_zero(path, flight, params, facts, units, cfg, bus_V, flown_s):
     """Refuse a log whose current reads zero (below ZERO_CURRENT_SHARE of the hover current, the
     set's power model at the planned mass over the median bus voltage bus_V [V]) over the flight
@@ -310,7 +261,7 @@ def _check_current_zero(path, flight, params, facts, units, cfg, bus_V, flown_s)
     if not flying or bus_V <= 0:
         return
     med_mA = _median([abs(ma[i]) for i in flying])
-    hover_A = _hover_current_A(params, facts, bus_V)
+    hover_A = hover_current_A(params, facts, bus_V)
     limit_mA = 1000.0 * ZERO_CURRENT_SHARE * hover_A
     if med_mA >= limit_mA or (units or {}).get("current") == "mA" and 1000.0 * med_mA >= limit_mA:
         return
