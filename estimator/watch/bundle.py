@@ -23,6 +23,7 @@ import subprocess
 import firmware_port
 from estimator import __version__
 from estimator.cautions import cautions
+from estimator.core import watch_layout as layout
 from estimator.errors import InputError
 from estimator.watch.config import CONFIG_KEYS, SCALAR_AT, TABLE_AT, TABLES, make_config
 
@@ -44,12 +45,14 @@ def _one_line(text):
 def readme_text(template, config, edited=None):
     """README.md from the firmware_port template: its ``{name}`` fields filled from this
     bundle's CONFIG (block_ms, lag_ms; takeoff_s, learn_s, learn_timeout_s from the *_ms
-    values), so the text says what the board runs; ``edited`` (params.edited_set_warning's
-    line for a set edited since liftcal sealed it, or None) as a WARNING paragraph under the
-    title."""
+    values) and the outputs' places in ``Watch.data`` (at_NAME), so the text says what the board
+    runs; ``edited`` (params.edited_set_warning's line for a set edited since liftcal sealed it,
+    or None) as a WARNING paragraph under the title."""
     fields = {"block_ms": "%d" % config["block_ms"], "lag_ms": "%d" % config["lag_ms"]}
     for name in ("takeoff", "learn", "learn_timeout"):
         fields[name + "_s"] = "%g" % (config[name + "_ms"] / 1000.0)
+    for name, at in layout.OUTPUT_AT:       # where each output sits in the Watch's data list
+        fields["at_" + name] = "%d" % at
     for name, value in fields.items():
         template = template.replace("{%s}" % name, value)
     if edited:  # after the fields: a file name is never filled in
