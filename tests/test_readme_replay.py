@@ -9,10 +9,10 @@ import os
 
 import pytest
 
-from estimator.demo.flight_sim import simulate_flight
 from estimator.demo.scenario import DEMO_VEHICLE
 from io_helpers import ROOT
 from trial_helpers import ok
+from watch_helpers import flight_csv_once
 
 
 def _readme_block(command):
@@ -31,7 +31,7 @@ def test_the_readme_replay_examples_are_what_replay_prints(stem, fault, plot, pa
                                                            monkeypatch):
     monkeypatch.chdir(tmp_path)
     with open(stem + ".csv", "w", encoding="utf-8") as fh:
-        fh.write(simulate_flight(dict(DEMO_VEHICLE), fault=fault, seed=1))
+        fh.write(flight_csv_once(dict(DEMO_VEHICLE), fault=fault, seed=1))
     os.symlink(params_file, "params.json")
     command = ["replay", stem + ".csv", "--params", "params.json"] + (["--plot", "replay.png"] if plot else [])
     printed = ok(*command).rstrip("\n").split("\n")

@@ -5,14 +5,13 @@ import json
 import pytest
 
 from estimator.cli import main
-from estimator.demo.flight_sim import simulate_flight
 from estimator.watch.replay import replay_file, replay_file_traced
-from watch_helpers import demo_fit_params
+from watch_helpers import demo_fit_params, flight_csv_once
 
 
 def _flight(tmp_path, fault, seed=5):
     f = tmp_path / ("flight-%s.csv" % fault)
-    f.write_text(simulate_flight(fault=fault, seed=seed))
+    f.write_text(flight_csv_once(fault=fault, seed=seed))
     return f
 
 

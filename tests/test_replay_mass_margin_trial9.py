@@ -19,13 +19,13 @@ from estimator.cli import cli
 from estimator.demo import flight_sim
 from estimator.watch.config import make_config, new_watch
 from estimator.watch.replay import mass_margin, read_flight
-from watch_helpers import demo_fit_params
+from watch_helpers import demo_fit_params, flight_csv_once
 
 
 def _log(tmp_path, monkeypatch, share, seed):
     monkeypatch.setattr(flight_sim, "FAULT_SHARE", share)  # "heavy": flown this share over plan
     log = tmp_path / ("f%s_%d.csv" % (share, seed))
-    log.write_text(flight_sim.to_csv(flight_sim.flight_arrays(fault="heavy", seed=seed)))
+    log.write_text(flight_csv_once(fault="heavy", seed=seed))
     params = tmp_path / "p.json"
     params.write_text(json.dumps(demo_fit_params()))
     return log, params

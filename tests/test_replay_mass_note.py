@@ -10,8 +10,7 @@ from click.testing import CliRunner
 
 from estimator.cli import cli
 from estimator.commands.watch import _note_mass_after_baseline
-from estimator.demo.flight_sim import simulate_flight
-from watch_helpers import demo_fit_params
+from watch_helpers import demo_fit_params, flight_csv_once
 
 
 def test_mass_high_after_a_high_baseline_carries_the_note():
@@ -36,7 +35,7 @@ def test_a_truly_heavy_demo_flight_gets_no_note_in_text_or_json(tmp_path):
     params = tmp_path / "p.json"
     params.write_text(json.dumps(demo_fit_params()))
     flight = tmp_path / "heavy.csv"
-    flight.write_text(simulate_flight(fault="heavy", seed=1))
+    flight.write_text(flight_csv_once(fault="heavy", seed=1))
     result = CliRunner().invoke(cli, ["replay", str(flight), "--params", str(params), "--json"])
     assert result.exit_code == 0, result.stderr
     events = json.loads(result.stdout)["events"]

@@ -9,14 +9,13 @@ import pytest
 from click.testing import CliRunner
 
 from estimator.cli import cli
-from estimator.demo.flight_sim import simulate_flight
-from watch_helpers import demo_fit_params
+from watch_helpers import demo_fit_params, flight_csv_once
 
 
 def _files(tmp_path, edit):
     params = tmp_path / "p.json"
     params.write_text(json.dumps(demo_fit_params()))
-    lines = simulate_flight(seed=4).splitlines()
+    lines = flight_csv_once(seed=4).splitlines()
     first = next(i for i, line in enumerate(lines) if line.startswith("time"))
     clean, edited = tmp_path / "clean.csv", tmp_path / "edited.csv"
     clean.write_text("\n".join(lines) + "\n")

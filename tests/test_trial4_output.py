@@ -13,12 +13,11 @@ from decimal import Decimal
 import pytest
 
 from estimator.cautions import cautions
-from estimator.demo.flight_sim import simulate_flight
 from io_helpers import MAP, PARAMS, refused
 from trial_helpers import ok, run
 from invented_vehicles import HEXA
 from test_preflight_trial4 import WHOOP_1S
-from watch_helpers import demo_fit_params
+from watch_helpers import demo_fit_params, flight_csv_once
 
 COLUMNS = 79  # an 80-column terminal without its last column (common practice; estimator.textwidth)
 
@@ -81,7 +80,7 @@ def flight(tmp_path_factory):
     params = folder / "params.json"
     params.write_text(json.dumps(demo_fit_params()))
     log = folder / "heavy.csv"
-    log.write_text(simulate_flight(fault="heavy", seed=5))
+    log.write_text(flight_csv_once(fault="heavy", seed=5))
     return folder, params, log
 
 

@@ -87,10 +87,10 @@ def test_one_cell_is_a_cell(tmp_path):
 
 
 def test_replay_mass_event_is_one_sentence(tmp_path, params_file):
-    from estimator.demo.flight_sim import simulate_flight
+    from watch_helpers import flight_csv_once
 
     flight = tmp_path / "heavy.csv"
-    flight.write_text(simulate_flight(fault="heavy", seed=1))
+    flight.write_text(flight_csv_once(fault="heavy", seed=1))
     code, out, err = run(["replay", flight, "--params", params_file])
     assert code == 0, err
     text = " ".join(out.split())

@@ -10,9 +10,8 @@ import json
 from click.testing import CliRunner
 
 from estimator.cli import cli
-from estimator.demo.flight_sim import simulate_flight
 from invented_vehicles import WHOOP
-from watch_helpers import demo_fit_params
+from watch_helpers import demo_fit_params, flight_csv_once
 
 
 def run(*args):
@@ -63,7 +62,7 @@ def plot_commands(tmp_path):
     params = tmp_path / "p.json"
     params.write_text(json.dumps(demo_fit_params()))
     flight = tmp_path / "f.csv"
-    flight.write_text(simulate_flight(seed=5, duration_s=40.0))
+    flight.write_text(flight_csv_once(seed=5, duration_s=40.0))
     return {"hover": ["hover", str(vehicle), "--payload", "0..40g"],
             "compare": ["compare", str(vehicle), "--vary", "battery.capacity=450mAh,650mAh"],
             "replay": ["replay", str(flight), "--params", str(params)]}

@@ -164,3 +164,31 @@ def demo_flight_rows(seed=7):
         _DEMO_FLIGHT[seed] = [[float(x) for x in line.split(",")] for line in text.splitlines()
                               if line and not line.startswith(("#", "time"))]
     return [list(r) for r in _DEMO_FLIGHT[seed]]
+
+
+_FLIGHTS = {}
+
+
+def flight_arrays_once(vehicle=None, fault=None, seed=1, duration_s=300.0, fault_at_s=120.0):
+    """estimator.demo.flight_sim.flight_arrays for these arguments, simulated once per test run
+    (each 300 s flight takes 8-15 s on a 2-core machine and many tests replay the same one);
+    the key holds every argument and flight_sim.FAULT_SHARE (a test may patch it). Returns a
+    deep copy, so a test may edit its flight."""
+    import copy
+    import json
+
+    from estimator.demo import flight_sim
+
+    key = (json.dumps(vehicle, sort_keys=True), fault, seed, duration_s, fault_at_s, flight_sim.FAULT_SHARE)
+    if key not in _FLIGHTS:
+        _FLIGHTS[key] = flight_sim.flight_arrays(copy.deepcopy(vehicle), fault=fault, seed=seed,
+                                                 duration_s=duration_s, fault_at_s=fault_at_s)
+    return copy.deepcopy(_FLIGHTS[key])
+
+
+def flight_csv_once(vehicle=None, fault=None, seed=1, duration_s=300.0, fault_at_s=120.0):
+    """The text of estimator.demo.flight_sim.simulate_flight for these arguments (which is
+    to_csv(flight_arrays(...))), from flight_arrays_once."""
+    from estimator.demo import flight_sim
+
+    return flight_sim.to_csv(flight_arrays_once(vehicle, fault, seed, duration_s, fault_at_s))
