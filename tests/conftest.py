@@ -26,3 +26,18 @@ def params_file(tmp_path_factory):
     p = tmp_path_factory.mktemp("params") / "params.json"
     p.write_text(json.dumps(demo_fit_params()))
     return p
+
+
+@pytest.fixture(scope="session")
+def demo_cli_run(tmp_path_factory):
+    """One ``python -m estimator demo --out PARENT/demo --json`` run per test session (it takes
+    40-70 s on a 2-core machine), shared read-only: (completed process, the demo folder, the
+    names in PARENT right after the run). A test that writes into the folder copies it first."""
+    import subprocess
+    import sys
+
+    parent = tmp_path_factory.mktemp("demo_cli")
+    folder = parent / "demo"
+    done = subprocess.run([sys.executable, "-m", "estimator", "demo", "--out", str(folder), "--json"],
+                          capture_output=True, text=True, timeout=300)
+    return done, folder, sorted(os.listdir(parent))

@@ -9,8 +9,6 @@ the next command.
 import json
 import os
 import re
-import subprocess
-import sys
 
 import pytest
 
@@ -49,9 +47,8 @@ def test_demo_files_feed_the_next_commands(demo_run):
         report["preflight"]["hover_power_W"], rel=0.02)
 
 
-def test_demo_cli_json_is_one_object(tmp_path):
-    out = subprocess.run([sys.executable, "-m", "estimator", "demo", "--out", str(tmp_path / "d"), "--json"],
-                         capture_output=True, text=True, timeout=300)
+def test_demo_cli_json_is_one_object(demo_cli_run):
+    out, _, _ = demo_cli_run   # `python -m estimator demo --out DIR --json` (tests/conftest.py)
     assert out.returncode == 0, out.stderr
     doc = json.loads(out.stdout)
     assert {"preflight", "fit", "fitted_hover", "settings", "flights"} <= set(doc)

@@ -9,6 +9,7 @@ line, exit 2, and leaves nothing behind.
 import json
 import os
 import resource
+import shutil
 import signal
 import subprocess
 import sys
@@ -16,11 +17,11 @@ import sys
 import pytest
 
 from estimator.demo.bench_sim import simulate_sweep
-from estimator.demo.flight_sim import simulate_flight
 from estimator.folders import FOLDER_MANIFEST, check_folder, write_manifest
 from estimator.outputs import file_kind
 from io_helpers import PARAMS, ROOT, VEHICLE, refused, tree_digest
 from trial_helpers import ok
+from watch_helpers import flight_csv_once
 
 
 @pytest.fixture(scope="module")
@@ -33,7 +34,7 @@ def bench_csv(tmp_path_factory):
 @pytest.fixture(scope="module")
 def flight_csv(tmp_path_factory):
     path = tmp_path_factory.mktemp("flight") / "flight.csv"
-    path.write_text(simulate_flight(seed=2))
+    path.write_text(flight_csv_once(seed=2))
     return str(path)
 
 
@@ -118,9 +119,14 @@ def test_demo_never_replaces_a_users_folder(tmp_path):
     assert tree_digest(tmp_path) == before
 
 
-def test_demo_replaces_its_own_folder_unless_changed(tmp_path, bench_csv):
+def test_demo_replaces_its_own_folder_unless_changed(tmp_path, bench_csv, demo_cli_run):
+    # the folder `liftcal demo --out DIR --json` left (one run per session, tests/conftest.py):
+    # it exited 0, said nothing on stderr and left no temporary folder beside DIR; a copy is edited
+    done, made, beside = demo_cli_run
+    assert done.returncode == 0 and done.stderr == "", (done.returncode, done.stderr)
+    assert beside == ["demo"]  # no temporary folder left
     out = tmp_path / "demo"
-    ok("demo", "--out", out, "--json")
+    shutil.copytree(made, out, symlinks=True)
     assert os.path.exists(out / FOLDER_MANIFEST) and os.path.exists(out / "board" / FOLDER_MANIFEST)
     # rerunning a printed step rewrites liftcal's own files: the folder stays the demo's
     ok("fit", out / "bench.csv", "--vehicle", out / "vehicle.json", "--out", out / "params.json")
