@@ -14,18 +14,12 @@ import pytest
 
 from estimator.demo.bench_sim import simulate_sweep
 from io_helpers import refused, run
-from watch_helpers import demo_flight_rows
+from watch_helpers import demo_flight_rows, write_log_rows
 
 
 @pytest.fixture(scope="module")
 def rows():
     return demo_flight_rows(7)
-
-
-def _write(tmp_path, header, rows, fn, name="log.csv"):
-    f = tmp_path / name
-    f.write_text(header + "\n" + "\n".join(",".join("%.6g" % x for x in fn(*r)) for r in rows) + "\n")
-    return f
 
 
 def _replay_refused(f, params_file, *needles):
@@ -36,7 +30,7 @@ def _replay_refused(f, params_file, *needles):
 
 def test_voltage_and_current_labels_swapped_are_named(tmp_path, params_file, rows):
     # the header names current before voltage, the data keep voltage before current
-    f = _write(tmp_path, "time[s],command[-],current[A],voltage[V]", rows, lambda t, u, v, a: (t, u, v, a))
+    f = write_log_rows(tmp_path, "time[s],command[-],current[A],voltage[V]", rows, lambda t, u, v, a: (t, u, v, a))
     _replay_refused(f, params_file, "columns voltage[V] and current[A]",
                     "likely the voltage and current columns swapped")
 
@@ -45,7 +39,7 @@ def test_another_pack_whose_current_falls_in_the_pack_range_is_not_called_a_swap
     # a 3-cell log (voltage x 3/4: below the 4-cell pack) whose current (x 0.8, about 14.6 A) lies
     # within the 4-cell pack's 12.6..17.6 V by chance: its voltage sags and its current rises with
     # the command, so it is another pack, as before
-    f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows,
+    f = write_log_rows(tmp_path, "time[s],command[-],voltage[V],current[A]", rows,
                lambda t, u, v, a: (t, u, 0.75 * v, 0.8 * a))
     line = refused(["replay", str(f), "--params", str(params_file)], "another vehicle or pack",
                    "below its empty pack")
@@ -54,7 +48,7 @@ def test_another_pack_whose_current_falls_in_the_pack_range_is_not_called_a_swap
 
 @pytest.mark.parametrize("unit", ["A", "mA"])
 def test_a_current_that_reads_zero_in_flight_names_the_sensor(tmp_path, params_file, rows, unit):
-    f = _write(tmp_path, "time[s],command[-],voltage[V],current[%s]" % unit, rows,
+    f = write_log_rows(tmp_path, "time[s],command[-],voltage[V],current[%s]" % unit, rows,
                lambda t, u, v, a: (t, u, v, 0.0))
     _replay_refused(f, params_file, "column current[%s]: median 0 A over" % unit,
                     "the current reads zero in flight; is the current sensor connected")
@@ -62,7 +56,7 @@ def test_a_current_that_reads_zero_in_flight_names_the_sensor(tmp_path, params_f
 
 def test_amps_labelled_milliamps_are_still_named_as_such(tmp_path, params_file, rows):
     # a current 1000 times too small is not a zero current: the [mA] slip keeps its own words
-    f = _write(tmp_path, "time[s],command[-],voltage[V],current[mA]", rows, lambda t, u, v, a: (t, u, v, a))
+    f = write_log_rows(tmp_path, "time[s],command[-],voltage[V],current[mA]", rows, lambda t, u, v, a: (t, u, v, a))
     line = _replay_refused(f, params_file, "likely amps in a column labelled [mA]")
     assert "reads zero" not in line, line
 
@@ -74,7 +68,7 @@ def test_amps_labelled_milliamps_are_still_named_as_such(tmp_path, params_file, 
 def test_a_flight_command_in_another_unit_labelled_percent_is_named(tmp_path, params_file, rows, scale, offset,
                                                                      likely):
     # before: exit 0, every sample a sensor_fault ("command 2.400 outside 0..1"), no verdict
-    f = _write(tmp_path, "time[s],command[%],voltage[V],current[A]", rows,
+    f = write_log_rows(tmp_path, "time[s],command[%],voltage[V],current[A]", rows,
                lambda t, u, v, a: (t, offset + scale * u, v, a))
     _replay_refused(f, params_file, "column command[%]", likely)
 
@@ -110,12 +104,12 @@ def test_a_13_cell_pack_is_judged_on_its_own_full_voltage(tmp_path):
     assert params["vehicle"]["full_voltage_V"] == pytest.approx(54.6)
     # one cell's voltage logged (3.9 V) while 6 rotors draw 30 A at half command, 60 s at 5 Hz
     rows = [(0.2 * i, 0.5, 3.9, 30.0) for i in range(300)]
-    f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows, lambda t, u, v, a: (t, u, v, a))
+    f = write_log_rows(tmp_path, "time[s],command[-],voltage[V],current[A]", rows, lambda t, u, v, a: (t, u, v, a))
     with pytest.raises(InputError) as err:
         replay_file(str(f), params)
     assert "(45.5 V)" in str(err.value) and "likely one cell's voltage on this 13-cell pack" in str(err.value)
     # millivolts labelled V: compared with the full pack itself, 54.6 V
-    f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows, lambda t, u, v, a: (t, u, 13000 * v, a),
+    f = write_log_rows(tmp_path, "time[s],command[-],voltage[V],current[A]", rows, lambda t, u, v, a: (t, u, 13000 * v, a),
                name="mv.csv")
     with pytest.raises(InputError) as err:
         replay_file(str(f), params)

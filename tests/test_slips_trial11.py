@@ -17,7 +17,7 @@
 import pytest
 
 from trial_helpers import ok, refused, run
-from watch_helpers import demo_flight_rows
+from watch_helpers import demo_flight_rows, write_log_rows
 
 
 @pytest.fixture(scope="module")
@@ -25,17 +25,11 @@ def rows():
     return demo_flight_rows(7)
 
 
-def _write_log(tmp_path, header, rows, fn, name="log.csv"):
-    f = tmp_path / name
-    f.write_text(header + "\n" + "\n".join(",".join("%.6g" % x for x in fn(*r)) for r in rows) + "\n")
-    return f
-
-
 # --- finding 2 ---------------------------------------------------------------------------------
 
 def test_percent_in_a_permille_flight_column_is_named(tmp_path, params_file, rows):
     # before: exit 0, "too short to learn: the log has 0.0 s of flight above the spin command"
-    f = _write_log(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
+    f = write_log_rows(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
                    lambda t, u, v, a: (t, 100.0 * u, v, a))
     line = refused("replay", f, "--params", params_file)
     assert line.startswith("error: %s: column command[permille]: " % f), line
@@ -45,14 +39,14 @@ def test_percent_in_a_permille_flight_column_is_named(tmp_path, params_file, row
 def test_a_permille_log_that_only_idles_on_the_ground_is_not_called_percent(tmp_path, params_file, rows):
     # a true permille log of a vehicle idling on the ground: 60 permille, a tenth of the flight's
     # current; it flies nothing, so replay says so (exit 0), and its unit is not blamed
-    f = _write_log(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
+    f = write_log_rows(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
                    lambda t, u, v, a: (t, 60.0, v, 0.1 * a))
     code, out, err = run("replay", f, "--params", params_file)
     assert code == 0 and "too short to learn" in " ".join(out.split()), (code, out, err)
 
 
 def test_true_permille_flight_still_replays(tmp_path, params_file, rows):
-    f = _write_log(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
+    f = write_log_rows(tmp_path, "time[s],command[permille],voltage[V],current[A]", rows,
                    lambda t, u, v, a: (t, 1000.0 * u, v, a))
     assert "no event" in ok("replay", f, "--params", params_file)
 

@@ -166,6 +166,14 @@ def demo_flight_rows(seed=7):
     return [list(r) for r in _DEMO_FLIGHT[seed]]
 
 
+def write_log_rows(tmp_path, header, rows, fn, name="log.csv"):
+    """A flight-log CSV in tmp_path: the header line, then fn(*row) of each row (e.g. of
+    demo_flight_rows) written as %.6g numbers; returns its path."""
+    f = tmp_path / name
+    f.write_text(header + "\n" + "\n".join(",".join("%.6g" % x for x in fn(*r)) for r in rows) + "\n")
+    return f
+
+
 _FLIGHTS = {}
 
 
