@@ -17,7 +17,7 @@ import pytest
 
 from io_helpers import refused as refused_in_main
 from test_fit_tare_trial8 import _sweep
-from test_replay_slip_causes_trial9 import _write
+from watch_helpers import write_log_rows
 from trial_helpers import refused
 from watch_helpers import demo_flight_rows
 
@@ -61,7 +61,7 @@ def rows():
 def test_a_current_no_unit_makes_plausible_gets_no_milliamp_hint(tmp_path, params_file, rows, scale):
     # 1e12 (or 1e9) times the demo's flight current: as milliamps still a million amps and more,
     # far beyond the watch's sensor range: not a current of this vehicle in either unit
-    f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows,
+    f = write_log_rows(tmp_path, "time[s],command[-],voltage[V],current[A]", rows,
                lambda t, u, v, a: (t, u, v, scale * a))
     line = refused_in_main(["replay", f, "--params", params_file], "column current[A]",
                            "not a current of this vehicle")
@@ -70,7 +70,7 @@ def test_a_current_no_unit_makes_plausible_gets_no_milliamp_hint(tmp_path, param
 
 def test_milliamps_labelled_amps_keep_their_hint(tmp_path, params_file, rows):
     # the control: the demo's current written in mA under [A] fits the range as milliamps
-    f = _write(tmp_path, "time[s],command[-],voltage[V],current[A]", rows,
+    f = write_log_rows(tmp_path, "time[s],command[-],voltage[V],current[A]", rows,
                lambda t, u, v, a: (t, u, v, 1000.0 * a))
     refused_in_main(["replay", f, "--params", params_file], "likely milliamps in a column labelled [A]")
 
@@ -82,7 +82,7 @@ def test_milliamps_labelled_amps_keep_their_hint(tmp_path, params_file, rows):
 def test_a_flight_command_labelled_microseconds_in_another_unit_is_named(tmp_path, params_file, rows, scale,
                                                                           likely):
     # before: exit 0, 'too short to learn: 0.0 s of flight', a sensor_fault 'command -0.878'
-    f = _write(tmp_path, "time[s],command[us],voltage[V],current[A]", rows,
+    f = write_log_rows(tmp_path, "time[s],command[us],voltage[V],current[A]", rows,
                lambda t, u, v, a: (t, scale * u, v, a))
     refused_in_main(["replay", f, "--params", params_file], "column command[us]", "below zero command", likely)
 
@@ -91,7 +91,7 @@ def test_a_microsecond_log_idling_at_988_us_is_no_slip(tmp_path, params_file, ro
     # an ESC low end point of 988 us (common practice) is 12 permille below zero: no refusal, also
     # when the log idles there for its first 30 s (10 % of it, beyond the 5 % share a slip needs)
     idle = [(t, -0.012, v, 0.05 * a) if t < 30.0 else (t, u, v, a) for t, u, v, a in rows]
-    f = _write(tmp_path, "time[s],command[us],voltage[V],current[A]", idle,
+    f = write_log_rows(tmp_path, "time[s],command[us],voltage[V],current[A]", idle,
                lambda t, u, v, a: (t, 1000.0 + 1000.0 * u, v, a))
     code, out, err = run_main(["replay", f, "--params", params_file])
     assert code == 0 and "below zero command" not in err, err
