@@ -80,7 +80,7 @@ def write_layout(path, out, header, columns, formats):
     """The rows ``out`` (ramp_sweep_rows) in another layout, with the demo's comments."""
     with open(path, "w") as fh:
         fh.write("# invented demo sweep for the benchmark, another layout (simulated, not measured)\n"
-                 "# altitude: 300\n# temperature: 21\n# diameter: 10in\n" + header + "\n")
+                 "# altitude: 300m\n# temperature: 21C\n# diameter: 10in\n" + header + "\n")
         np.savetxt(fh, columns(out), fmt=formats, delimiter=",")
 
 

@@ -39,7 +39,7 @@ def _fit_json(tmp_path, csv, *options):
 
 
 def test_temperature_comment_alone_is_used_and_the_warning_says_what_was_assumed(tmp_path):
-    summary, params = _fit_json(tmp_path, _sweep(tmp_path, "# temperature: 35\n"))
+    summary, params = _fit_json(tmp_path, _sweep(tmp_path, "# temperature: 35C\n"))
     p0 = float(ambiance.Atmosphere(0.0).pressure[0])  # 101325 Pa, US Standard Atmosphere 1976
     expected = p0 / (R_D * (35.0 + 273.15))
     assert params["bench_air"]["density_kg_m3"] == pytest.approx(expected, rel=1e-4)
@@ -61,7 +61,7 @@ def test_an_unknown_quantity_comment_is_named_and_a_note_is_not(tmp_path):
 
 
 @pytest.mark.parametrize("comment, option, air_args", [
-    ("# altitude: 1500\n# temperature: 300\n", ["--temperature", "300"], ["--temperature", "300"]),
+    ("# altitude: 1500m\n# temperature: 300\n", ["--temperature", "300"], ["--temperature", "300"]),
     ("# humidity: 150\n", ["--humidity", "150"], ["--humidity", "150"]),
     ("# altitude: 30000\n", ["--altitude", "30000"], ["--altitude", "30000"]),
 ])
@@ -81,11 +81,11 @@ def test_density_with_altitude_is_refused_not_silently_preferred(tmp_path):
 def test_a_density_comment_contradicting_the_altitude_comment_is_refused(tmp_path):
     # 200 m in the US Standard Atmosphere 1976 is 1.2017 kg/m^3 (ambiance): 1.0 is 17 % off
     rho_200 = float(ambiance.Atmosphere(200.0).density[0])
-    line = refused(["fit", _sweep(tmp_path, "# density: 1.0\n# altitude: 200\n"), "--out", tmp_path / "p.json"],
+    line = refused(["fit", _sweep(tmp_path, "# density: 1.0\n# altitude: 200m\n"), "--out", tmp_path / "p.json"],
                    "# density", "# altitude")
     assert ("%.4g" % rho_200) in line
     # agreeing within 3 %: the stated density is used
-    _, params = _fit_json(tmp_path, _sweep(tmp_path, "# density: %.4f\n# altitude: 200\n" % (rho_200 * 1.01),
+    _, params = _fit_json(tmp_path, _sweep(tmp_path, "# density: %.4f\n# altitude: 200m\n" % (rho_200 * 1.01),
                                             "ok.csv"))
     assert params["bench_air"]["density_kg_m3"] == pytest.approx(rho_200 * 1.01, rel=1e-3)
 

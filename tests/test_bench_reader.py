@@ -57,7 +57,7 @@ def test_command_units(tmp_path, unit, text, expected):
 
 
 def test_bench_air_from_altitude_comment_matches_the_standard_atmosphere(tmp_path):
-    path = _csv(tmp_path, "0.5,15,5,2\n" * 12, comments="# altitude: 300\n# diameter: 10in\n")
+    path = _csv(tmp_path, "0.5,15,5,2\n" * 12, comments="# altitude: 300m\n# diameter: 10in\n")
     data = read_bench(path)
     # US Standard Atmosphere 1976 (ambiance package); ambiance takes geometric altitude too,
     # so only float-level differences are expected (1e-6 relative)
@@ -266,7 +266,7 @@ def test_semicolon_separated_file_gets_a_clear_refusal(tmp_path):
 
 
 def test_bench_air_options_combine_with_the_file_comments(tmp_path):
-    path = _csv(tmp_path, "0.5,15,5,2\n" * 12, comments="# altitude: 300\n# diameter: 10in\n")
+    path = _csv(tmp_path, "0.5,15,5,2\n" * 12, comments="# altitude: 300m\n# diameter: 10in\n")
     data = read_bench(path, temperature_C=35.0)
     # 300 m from the file, 35 C from the option: ideal-gas density at the standard pressure of
     # 300 m (ambiance, US Standard Atmosphere 1976), rho = p / (R_d T), R_d = 287.05 J/(kg K)

@@ -68,8 +68,8 @@ def _trial_rows(seed=7):
 
 
 def _trial_csv(path, glitch_g=None):
-    lines = ["# INVENTED bench sweep (test), DC motor 1300 Kv + 7x3.5in prop", "# altitude: 120",
-             "# temperature: 19", "# diameter: 7in", "time[s],command[us],voltage[V],current[A],thrust[g]"]
+    lines = ["# INVENTED bench sweep (test), DC motor 1300 Kv + 7x3.5in prop", "# altitude: 120m",
+             "# temperature: 19C", "# diameter: 7in", "time[s],command[us],voltage[V],current[A],thrust[g]"]
     rows = ["%.2f,%.0f,%.3f,%.3f,%.1f" % row for row in _trial_rows()]
     if glitch_g is not None:
         rows[80] = "20.00,1500,24.5,6.0,%s" % glitch_g  # the trial's row: 24.5 V, 6.0 A, a saturated count

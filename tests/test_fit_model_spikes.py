@@ -25,7 +25,7 @@ def _sweep_csv(rng, bump=None):
     area = math.pi * d_m ** 2 / 4.0
     v_full, r_pack = rng.uniform(11.0, 50.0), rng.uniform(0.02, 0.08)
     steps, passes = int(rng.integers(25, 45)), int(rng.integers(2, 4))
-    lines = ["# diameter: %.4fm" % d_m, "# altitude: 0", "# temperature: 15",
+    lines = ["# diameter: %.4fm" % d_m, "# altitude: 0m", "# temperature: 15C",
              "command[-],voltage[V],current[A],thrust[N]"]
     rows = []
     for k in range(passes):

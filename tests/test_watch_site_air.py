@@ -86,7 +86,7 @@ def bench_csv(truth, path, rng):
     rho = isa_density(100.0, 20.0)
     supply, leads = 4.2 * truth.cells, 0.03
     t_top = truth.thrust_N(1.0, supply, rho)
-    lines = ["# INVENTED bench sweep of an invented motor (test truth)", "# altitude: 100", "# temperature: 20",
+    lines = ["# INVENTED bench sweep of an invented motor (test truth)", "# altitude: 100m", "# temperature: 20C",
              "# diameter: %.3fin" % truth.d_in, "command[-],voltage[V],current[A],thrust[N]"]
     for k in range(41):
         u = k / 40.0

@@ -50,11 +50,11 @@ def bench_air(path, comments, density, altitude, temperature, pressure, humidity
         source = named + ", standard atmosphere for the rest"
         if "temperature" not in given:
             warnings.append("bench air: no temperature given, so the standard atmosphere's temperature "
-                            "at %.0f m is assumed with the %s given by the %s; add '# temperature: C' to "
-                            "the CSV" % (given.get("altitude", 0.0), " and ".join(sorted(given)), named))
+                            "at %.0f m is assumed with the %s given by the %s; add '# temperature: 21C' "
+                            "(with its unit) to the CSV" % (given.get("altitude", 0.0), " and ".join(sorted(given)), named))
         if "altitude" not in given and "pressure" not in given:
             warnings.append("bench air: no altitude or pressure given, so sea-level standard pressure "
-                            "is assumed with the %s given by the %s; add '# altitude: M' to the CSV"
+                            "is assumed with the %s given by the %s; add '# altitude: 300m' (with its unit) to the CSV"
                             % (" and ".join(sorted(given)), named))
         humid = humidity_fraction_note(given.get("humidity"), where.get("humidity"))
         if humid:
@@ -75,7 +75,7 @@ def bench_air(path, comments, density, altitude, temperature, pressure, humidity
     else:
         rho, source = SEA_LEVEL_DENSITY_KG_M3, "assumed: ISA sea level (no bench air given)"
         warnings.append("no bench air in the file or options; assumed ISA sea level 1.225 kg/m^3 "
-                        "(add '# altitude: M' and '# temperature: C' to the CSV)")
+                        "(add '# altitude: 300m' and '# temperature: 21C', with their units, to the CSV)")
     if not (0.3 <= rho <= 1.6):
         raise InputError("%s: bench air density %.4g kg/m^3 is outside 0.3..1.6" % (path, rho))
     return {"density_kg_m3": float(rho), "source": source}

@@ -1,7 +1,7 @@
 """Reading a bench sweep CSV (design notes sec. 4) into SI numpy arrays, with row checks.
 
-File layout: lines starting with ``#`` are comments (``# density: 1.19``, ``# altitude: 300``,
-``# temperature: 21``, ``# pressure: 97000``, ``# humidity: 40``, ``# diameter: 10in``);
+File layout: lines starting with ``#`` are comments (``# density: 1.19``, ``# altitude: 300m``,
+``# temperature: 21C`` (these two with their unit, as the options need), ``# pressure: 97000``, ``# humidity: 40``, ``# diameter: 10in``);
 then one header row of ``name[unit]`` cells; then comma-separated numbers. Required columns:
 ``command[-|%|permille|us]``, ``voltage[V|mV]``, ``current[A|mA]``, ``thrust[N|g|gf|kgf|lbf|mN]``.
 Optional columns (OPTIONAL: ``time[s]``, ``rpm[rpm]``, ``torque[N*m]``, ``temperature[C]``)
@@ -27,6 +27,7 @@ from estimator.bench.bench_air import bench_air
 from estimator.bench.columns import EXAMPLE_HEADER, MEDIAN_ROWS, OPTIONAL, REQUIRED, UNITS
 from estimator.core.constants import CELSIUS_ZERO_K
 from estimator.units import parse_quantity
+from estimator.unit_required import refuse_bare_comment
 
 _COMMENT_KEYS = {"density": "density", "altitude": "altitude", "temperature": "temperature",
                  "pressure": "pressure", "humidity": "percent", "diameter": "length"}
@@ -60,6 +61,7 @@ def _read_head(path, warnings=None, expected_diameter_m=None):
     for key, (value, line_no) in head.comments.items():
         where = "%s: line %d: # %s" % (path, line_no, key)
         if key in _COMMENT_KEYS:
+            refuse_bare_comment(key, value, where)
             si = parse_quantity(value, _COMMENT_KEYS[key], where)
             check_quantity(_COMMENT_BOUNDS[key], si, value, where, expected_diameter_m if key == "diameter" else None)
             comments[key] = (si, where)

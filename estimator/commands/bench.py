@@ -101,7 +101,8 @@ def fit(bench_file, out_file, vehicle_file, diameter, density, altitude, tempera
     """Fit a bench sweep CSV into a validated parameter set.
 
     The CSV has a name[unit] header: {header}; '# altitude:', '# temperature:', '# pressure:', '# humidity:'
-    or '# density:' comments give the bench air and '# diameter:' the propeller.
+    or '# density:' comments give the bench air (altitude and temperature with their unit, e.g.
+    300m, 21C) and '# diameter:' the propeller.
     """
     from estimator.bench.summary import fit_json, fit_text
     from estimator.bench.sweep import fit_sweep

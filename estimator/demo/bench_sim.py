@@ -105,7 +105,7 @@ def simulate_sweep(seed=1, thrust_unit="g", command_unit="us", supply_voltages_V
              "# set: 880 Kv motor, 10 in propeller, bench supply at %s V"
              % "/".join("%.1f" % v for v in supply_voltages_V)]
     if air_comment:
-        lines += ["# altitude: %g" % BENCH_ALTITUDE_M, "# temperature: %g" % BENCH_TEMPERATURE_C]
+        lines += ["# altitude: %gm" % BENCH_ALTITUDE_M, "# temperature: %gC" % BENCH_TEMPERATURE_C]
     if diameter_comment:
         lines.append("# diameter: %gin" % round(propeller["diameter_m"] / INCH_M, 3))
     lines.append("time[s],command[%s],voltage[V],current[A],thrust[%s]" % (command_unit, thrust_unit))

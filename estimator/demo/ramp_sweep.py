@@ -44,7 +44,7 @@ def ramp_sweep_rows(rows, seed=1, sample_s=0.001, thrust_spikes=None, current_sp
 def write_ramp_csv(path, out, note, time_format="%.3f"):
     """Write ``out`` (from ramp_sweep_rows) as a bench CSV with the demo's bench-air comments."""
     with open(path, "w") as fh:
-        fh.write("# %s (simulated, not measured)\n# altitude: 300\n# temperature: 21\n"
+        fh.write("# %s (simulated, not measured)\n# altitude: 300m\n# temperature: 21C\n"
                  "# diameter: 10in\n" % note + HEADER)
         np.savetxt(fh, out, fmt=[time_format, "%.5f", "%.4f", "%.4f", "%.4f"], delimiter=",")
     return out.nbytes
