@@ -150,7 +150,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
                "cusum_k_sigma": cfg["cusum_k_q8"] / 256.0, "cusum_h_sigma": cfg["cusum_h_q8"] / 256.0,
                "noise_floor": cfg["noise_floor_permille"] / 1000.0, "lag_ms": cfg["lag_ms"],
                "mass_limit_g": mass_limit_g, "warnings": warnings, "cautions": list(WATCH_CAUTIONS),
-               "replaced": replaced}
+               "replaced": replaced, "site": out["site"]}
     if as_json:
         click.echo(dumps(summary))
         return
@@ -160,7 +160,11 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
               "  CUSUM per %d ms block: reference %.2f, threshold %.2f x the block noise (learned in flight, "
               "at least %.1f %%); expected power lagged %d ms; mass alarm above %.1f g"
               % (cfg["block_ms"], summary["cusum_k_sigma"], summary["cusum_h_sigma"],
-                 100.0 * summary["noise_floor"], cfg["lag_ms"], mass_limit_g)]
+                 100.0 * summary["noise_floor"], cfg["lag_ms"], mass_limit_g),
+              "  made for one site's air, %s, and a current sensor that reads as the bench's meter did: "
+              "at another field a healthy flight reads baseline_off and false power alarms; rebuild for it: "
+              "liftcal firmware %s --vehicle VEHICLE.json (with that field's site) --out DIR"
+              % (out["site"]["words"], shown(params_file))]
     lines += replaced
     lines += ["! " + w for w in warnings if w != edited]
     lines += ["- " + c for c in WATCH_CAUTIONS]

@@ -42,13 +42,37 @@ def _one_line(text):
     return " ".join(str(text).splitlines())
 
 
-def readme_text(template, config, edited=None):
+def site_air_words(params, vehicle=None):
+    """The one site's air a bundle's CONFIG is made for, as (words, JSON dict): the density the
+    tables were computed at (the vehicle file's site when given, else the parameter set's vehicle
+    block), its density altitude, and the vehicle file's altitude and temperature when given
+    (new-user trial 12, finding 2: at a sea-level field a healthy flight read baseline_off and
+    power_high, and nothing outside liftwatch_config.py's comments said the bundle was for one
+    site). Words: '0.841 kg/m^3 (2400 m, 38 C; density altitude 3750 m)'."""
+    from estimator.core.atmosphere import density_altitude_m
+    from estimator.watch.config import vehicle_facts
+
+    rho = float(vehicle_facts(params, vehicle)["site_density_kg_m3"])
+    out = {"density_kg_m3": round(rho, 4), "density_altitude_m": round(density_altitude_m(rho))}
+    where = ""
+    if vehicle is not None:
+        site = vehicle.get("site") or {}
+        out["altitude_m"] = site.get("altitude_m", 0.0)
+        out["temperature_C"] = site.get("temperature_C")
+        where = "%.0f m, %s; " % (out["altitude_m"], "standard temperature" if out["temperature_C"] is None
+                                  else "%.0f C" % out["temperature_C"])
+    return "%.3f kg/m^3 (%sdensity altitude %.0f m)" % (rho, where, out["density_altitude_m"]), out
+
+
+def readme_text(template, config, edited=None, site=None):
     """README.md from the firmware_port template: its ``{name}`` fields filled from this
     bundle's CONFIG (block_ms, lag_ms; takeoff_s, learn_s, learn_timeout_s from the *_ms
     values) and the outputs' places in ``Watch.data`` (at_NAME), so the text says what the board
     runs; ``edited`` (params.edited_set_warning's line for a set edited since liftcal sealed it,
-    or None) as a WARNING paragraph under the title."""
-    fields = {"block_ms": "%d" % config["block_ms"], "lag_ms": "%d" % config["lag_ms"]}
+    or None) as a WARNING paragraph under the title; ``site``: site_air_words' words, the air the
+    CONFIG is made for."""
+    fields = {"block_ms": "%d" % config["block_ms"], "lag_ms": "%d" % config["lag_ms"],
+              "site_air": site or "one site's"}
     for name in ("takeoff", "learn", "learn_timeout"):
         fields[name + "_s"] = "%g" % (config[name + "_ms"] / 1000.0)
     for name, at in layout.OUTPUT_AT:       # where each output sits in the Watch's data list
@@ -143,7 +167,8 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
     set's vehicle block); options: watch_config.DEFAULTS overrides; edited: the warning line of
     a set edited since liftcal sealed it (params.edited_set_warning), written into
     liftwatch_config.py's header and the README, or None.
-    Summary: out_dir, files (relative), mpy_bytes (total size of the .mpy files), config.
+    Summary: out_dir, files (relative), mpy_bytes (total size of the .mpy files), config, site
+    (site_air_words' dict and its words).
     Raises InputError (nothing written) on bad input or an occupied out_dir.
     """
     from estimator.folders import check_folder, publish_folder, staging_folder
@@ -163,7 +188,8 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
         for name in ("board_loop.py", "liftwatch_load.py", "manifest.py", "README.md"):
             with open(os.path.join(PORT_DIR, name), "r", encoding="utf-8") as fh:
                 texts[name] = fh.read()
-        texts["README.md"] = readme_text(texts["README.md"], config, edited)
+        site_words, site = site_air_words(params, vehicle)
+        texts["README.md"] = readme_text(texts["README.md"], config, edited, site_words)
         try:
             for name, text in texts.items():
                 with open(os.path.join(tmp, name), "w", encoding="utf-8") as fh:
@@ -182,4 +208,4 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
         raise
     files = sorted(list(texts) + ["mpy/%s.mpy" % m for m in MODULES])
     return {"out_dir": out_dir, "files": files, "mpy_bytes": mpy_bytes, "config": config,
-            "warnings": [notes["range_warning"]] if "range_warning" in notes else []}
+            "site": dict(site, words=site_words), "warnings": [notes["range_warning"]] if "range_warning" in notes else []}
