@@ -68,6 +68,22 @@ PACK_FAR_OVER_RATING = ("%.1f times its discharge rating, beyond even a burst ra
                         "most of all; common practice): limit the command or use a pack rated for this "
                         "current, and if the pack gets hot, land, stop and let it cool before anything else")
 
+# a lithium cell's charge limit [V per cell]: standard LiPo and Li-ion cells 4.20 V, high-voltage
+# (LiHV) cells 4.35 V (from memory; the pack maker's own limit comes first). A vehicle file's
+# full_cell_V above the first gets FULL_CELL_HV, above the second FULL_CELL_OVER (new-user trial
+# 12, finding 4: 4.5 V per cell was taken without a word)
+LITHIUM_FULL_CELL_V = 4.20
+LITHIUM_HV_FULL_CELL_V = 4.35
+# (full_cell_V [V] filled in)
+FULL_CELL_OVER = ("full charge %.2f V per cell is above any lithium cell's charge limit (typically 4.20 V, "
+                  "4.35 V for high-voltage LiHV cells, from memory): check the value and the charger setting, "
+                  "and keep to the pack maker's limit; a lithium cell charged past it can swell, vent or burn")
+FULL_CELL_HV = ("full charge %.2f V per cell is above a standard lithium cell's 4.20 V (from memory): only "
+                "high-voltage (LiHV) cells, typically rated to 4.35 V, take it; check that the pack and the "
+                "charger setting are LiHV, and keep to the pack maker's limit")
+# the same under a compare row
+FULL_CELL_SHORT = "full charge %.2f V per cell: above %s; check the pack maker's limit; see below"
+
 # one short line for plot titles and one-line outputs
 SHORT = "estimates: confirm with a tethered or low hover test; props off while configuring"
 

@@ -2,7 +2,7 @@
 its warnings, ``compare`` shows each row's under the row (sixth new-user trial, item 5: compare
 had dropped them).
 
-Five kinds, each worded by its own module:
+Six kinds, each worded by its own module:
   unit_slip    a value that looks like a unit or decimal slip (preflight.unit_checks; its
                text starts with the key's JSON path)
   small_rotor  an estimated propeller below a blade Reynolds number of about 3e4
@@ -11,6 +11,8 @@ Five kinds, each worded by its own module:
                itself lives in estimator.cautions)
   hot_pack     a pack or site above estimator.cautions.HOT_PACK_ABOVE_C (preflight.pack.hot_pack_warning;
                the sentence itself lives in estimator.cautions)
+  full_charge  a full-charge cell voltage above a lithium cell's charge limit
+               (preflight.pack.full_cell_warning; the sentences live in estimator.cautions)
   full_command_sag  full command sags the nominal pack below its loaded cutoff
                (preflight.warnings.sag_warning; a brownout risk shown beside the result, not a
                margin: the thrust-to-weight margin already judges the T/W reachable before
@@ -21,13 +23,13 @@ warnings, short as a line under a compare row.
 """
 
 from estimator.preflight.low_reynolds import endurance_lead, hover_warning
-from estimator.preflight.pack import cold_pack_warning, hot_pack_heat, hot_pack_warning
+from estimator.preflight.pack import cold_pack_warning, full_cell_warning, hot_pack_heat, hot_pack_warning
 from estimator.preflight.warnings import sag_warning
 
 
 def caveats(report):
     """The caveats of a report dict of preflight.report.hover_report (module docstring), in the
-    order unit slips, small rotor, cold pack, hot pack, full-command sag; [] when none applies."""
+    order unit slips, small rotor, cold pack, hot pack, full charge, full-command sag; [] when none applies."""
     out = [{"kind": "unit_slip", "text": w, "short": w}
            for w in report.get("warnings") or [] if w.startswith("$.")]
     check = report.get("low_reynolds_check")
@@ -51,6 +53,9 @@ def caveats(report):
     if hot is not None:
         from estimator.cautions import HOT_PACK_SHORT
         out.append({"kind": "hot_pack", "text": hot, "short": HOT_PACK_SHORT % hot_pack_heat(report)})
+    full = full_cell_warning(report)
+    if full is not None:
+        out.append({"kind": "full_charge", "text": full[0], "short": full[1]})
     sag = sag_warning(report)
     if sag is not None:
         from estimator.cautions import SAG_BELOW_CUTOFF_SHORT

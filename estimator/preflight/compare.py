@@ -282,7 +282,7 @@ def format_table(result, name):
     if any(c["kind"] == "small_rotor" for c in kinds):
         from estimator.preflight.low_reynolds import TABLE_NOTE
         lines.append("! " + TABLE_NOTE)
-    lines += ["! " + text for text in dict.fromkeys(c["text"] for c in kinds if c["kind"] == "cold_pack")]
+    lines += ["! " + text for text in dict.fromkeys(c["text"] for c in kinds if c["kind"] in ("cold_pack", "full_charge"))]
     if any(r.get("propeller_source") == "estimated" for r in rows):
         from estimator.preflight.propeller_estimate import ESTIMATE_NOTE
         lines.append("- " + ESTIMATE_NOTE)

@@ -59,7 +59,8 @@ def pack_keys(vehicle, battery, temperature, basis):
             "pack_temperature_basis": basis,
             "pack_cold_factor": battery["resistance_ohm"] / raw if raw > 0.0 else 1.0,
             "pack_capacity_factor": cold_capacity_factor(temperature),
-            "cutoff_cell_V": battery["cutoff_cell_V"], "cells": battery["cells"]}
+            "cutoff_cell_V": battery["cutoff_cell_V"], "cells": battery["cells"],
+            "full_cell_V": vehicle["battery"]["full_cell_V"]}
 
 
 def pack_temperature_text(report):
@@ -114,3 +115,17 @@ def hot_pack_warning(report):
 
     heat = hot_pack_heat(report)
     return None if heat is None else HOT_PACK % (heat[0], heat[1], HOT_PACK_ABOVE_C)
+
+
+def full_cell_warning(report):
+    """(caution, short) when the pack's full-charge cell voltage is above a lithium cell's charge
+    limit (estimator.cautions.LITHIUM_FULL_CELL_V, LITHIUM_HV_FULL_CELL_V), else None."""
+    from estimator.cautions import (FULL_CELL_HV, FULL_CELL_OVER, FULL_CELL_SHORT, LITHIUM_FULL_CELL_V,
+                                    LITHIUM_HV_FULL_CELL_V)
+
+    full = report.get("full_cell_V")
+    if full is None or full <= LITHIUM_FULL_CELL_V + 1e-9:
+        return None
+    if full > LITHIUM_HV_FULL_CELL_V + 1e-9:
+        return FULL_CELL_OVER % full, FULL_CELL_SHORT % (full, "any lithium charge limit")
+    return FULL_CELL_HV % full, FULL_CELL_SHORT % (full, "a standard cell's 4.20 V, LiHV only")

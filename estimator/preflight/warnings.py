@@ -242,6 +242,10 @@ def margin_warnings(report, command_unit="-"):
     hot = hot_pack_warning(report)
     if hot is not None:
         out.append(hot)
+    from estimator.preflight.pack import full_cell_warning
+    full = full_cell_warning(report)
+    if full is not None:
+        out.append(full[0])
     ratio = report.get("density_ratio")
     if ratio is not None and ratio < THIN_AIR_DENSITY_RATIO:
         out.append("thin air: %.3f kg/m^3 is %.0f %% of sea-level standard (density altitude %.0f m): "
