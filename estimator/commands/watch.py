@@ -74,10 +74,10 @@ def _note_mass_after_baseline(events):
 
 def _exponent_warning(params, vehicle, source):
     """[one warning] when the parameter set's voltage exponent was not measured (one supply
-    voltage, estimator.watch.replay.exponent_not_measured), naming the sweep's voltages and
+    voltage, estimator.watch.model_hedge.exponent_not_measured), naming the sweep's voltages and
     the pack's; [] otherwise."""
     from estimator.watch.config import vehicle_facts
-    from estimator.watch.replay import exponent_not_measured
+    from estimator.watch.model_hedge import exponent_not_measured
 
     if not exponent_not_measured(params):
         return []

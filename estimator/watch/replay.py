@@ -16,6 +16,7 @@ from estimator.core.watch_layout import FLAG_BITS
 from estimator.csvtable import COMMAND_UNITS, TIME_UNITS, data_line_numbers
 from estimator.errors import InputError
 from estimator.units import unit_factors
+from estimator.watch.model_hedge import POWER_KINDS, exponent_not_measured, exponent_note  # noqa: F401 (API)
 from estimator.watch.config import make_config, new_watch, vehicle_facts
 from estimator.watch.fault_causes import StuckTimer, fault_cause, in_range
 from estimator.watch.log_checks import check_plausible, check_time, check_vehicle
@@ -326,38 +327,6 @@ def replay_file_traced(path, params, vehicle=None, options=None, progress=None, 
     if flight["missing_rows"]:
         out["dropped_missing_rows"] = flight["missing_rows"]
     return out, samples
-
-
-# events whose verdict rests on the expected power at the present bus voltage
-POWER_KINDS = ("power_high", "power_low", "baseline_off")
-
-
-def exponent_not_measured(params):
-    """True when the parameter set's voltage exponent was not measured: its sweep ran from one
-    supply voltage, and n comes from the fitted motor model with the ESC's duty held near
-    linear (thrust_curve.voltage_exponent_source "motor model", estimator.bench.motor_fit)."""
-    return params["thrust_curve"].get("voltage_exponent_source") == "motor model"
-
-
-def exponent_note(event, params):
-    """A note for a power event whose bus voltage lies outside the sweep's when the voltage
-    exponent was not measured, else None: the expected power there is extrapolated with an n
-    known only to its standard error, so the residual may be the model's, not the rotor's.
-    event: a run_kernel event (bus_V [V]); params: the parameter set."""
-    bus = event.get("bus_V")
-    if event["kind"] not in POWER_KINDS or bus is None or not exponent_not_measured(params):
-        return None
-    c = params["thrust_curve"]
-    lo, hi = c.get("voltage_min_V"), c.get("voltage_max_V")
-    if lo is None or hi is None or lo <= bus <= hi:
-        return None
-    where = ("%.1f %% below the sweep's lowest (%.2f V)" % (100.0 * (1.0 - bus / lo), lo) if bus < lo
-             else "%.1f %% above the sweep's highest (%.2f V)" % (100.0 * (bus / hi - 1.0), hi))
-    se = params.get("standard_errors", {}).get("voltage_exponent", 0.0)
-    n = "%.2f +- %.2f" % (c["voltage_exponent"], se) if se > 0.0 else "%.2f, no error bar" % c["voltage_exponent"]
-    return ("bus %.2f V at the alarm, %s; the voltage exponent was not measured (one supply voltage; n = %s "
-            "from the motor model): this may be the model, not the rotor. Sweep the rotor at two or three "
-            "supply voltages, refit and replay" % (bus, where, n))
 
 
 def learning_note(out, cfg):
