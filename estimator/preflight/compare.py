@@ -138,7 +138,8 @@ def compare_rows(document, source, variations, progress=None):
     margins {name: bool|None}, keeps_margins, broken [names], looks_like_slip (a unit_slip
     caveat)), margins (MARGINS), not_margins (margins.TABLE_CAUTIONS: shown beside a row, never
     ranking it), best (the first row that keeps every margin and does not look like a slip, or
-    None), left_out (the rows that keep every margin but look like a slip, by rank).
+    None), left_out (the rows that keep every margin but look like a slip, by rank), held (the keys
+    held as written while a pack-size key was varied: held_with_pack).
     Raises InputError naming the --vary value when a combination is not a valid vehicle.
     """
     combos = combinations(variations)
@@ -198,7 +199,40 @@ def compare_rows(document, source, variations, progress=None):
     best = rows[0] if rows and rows[0]["keeps_margins"] and not rows[0]["looks_like_slip"] else None
     left_out = [r for r in rows if r["keeps_margins"] and r["looks_like_slip"]]
     return {"rows": rows, "margins": dict(MARGINS), "not_margins": dict(TABLE_CAUTIONS), "best": best,
-            "left_out": left_out, "varied": [".".join(p) for p, _ in variations], "combinations": len(rows)}
+            "left_out": left_out, "varied": [".".join(p) for p, _ in variations], "combinations": len(rows),
+            "held": [k for k, _ in held_with_pack([".".join(p) for p, _ in variations])]}
+
+
+# varied keys that change a pack's size, and the keys such a change moves with it: a larger pack
+# weighs more, and more cells in parallel have less resistance (new-user trial 12, finding 3:
+# --vary battery.capacity=10Ah,16Ah,22Ah kept 5 kg and ranked the 22 Ah pack first, while such a
+# 6S pack alone weighs about 2.7 kg, without a word on screen)
+PACK_SIZE_KEYS = ("battery.capacity", "battery.cells")
+HELD_WITH_PACK = (("mass", "the all-up mass"), ("battery.resistance", "the pack resistance"))
+
+
+def held_with_pack(varied):
+    """[(key, words)] of HELD_WITH_PACK not varied while a pack-size key is; [] when none is varied.
+    varied: the varied keys as written (a unit-suffixed key counts as its short one: mass_kg)."""
+    short = {k.rsplit("_", 1)[0] if k.endswith(("_kg", "_Ah", "_ohm")) else k for k in varied}
+    if not short & set(PACK_SIZE_KEYS):
+        return []
+    return [(k, words) for k, words in HELD_WITH_PACK if k not in short]
+
+
+def held_note(result):
+    """The ! line under the table when a pack-size key was varied with the mass or the pack
+    resistance held as written, else None."""
+    held = held_with_pack(result["varied"])
+    if not held:
+        return None
+    size = " and ".join(k for k in result["varied"] if k.startswith(PACK_SIZE_KEYS))
+    mass = " (%.3g kg)" % result["rows"][0]["mass_kg"] if held[0][0] == "mass" else ""
+    return ("%s varied with %s held as written%s: another pack weighs more or less and has another "
+            "resistance, so these rows compare packs of one %s; vary %s too"
+            % (size, " and ".join(w for _, w in held), mass,
+               " and ".join({"mass": "weight", "battery.resistance": "resistance"}[k] for k, _ in held),
+               " and ".join(k for k, _ in held)))
 
 
 def _tw_cell(row):
@@ -257,9 +291,12 @@ def format_table(result, name):
             lines += wrap_line(" " * (rank_w + 2) + "! " + caveat["short"], indent=rank_w + 6)
     table, lines = lines, [""]
     left_out = result.get("left_out") or []
+    held = held_note(result)
     if result["best"]:
         lines.append("longest hover that keeps every margin: %s (%.1f min)"
                      % (result["best"]["label"], result["best"]["flight_time_lead_min"]))
+    if held:
+        lines.append("! " + held)
     else:
         lines.append("no combination keeps every margin" + (" with values that look ordinary" if left_out else ""))
     if left_out:
