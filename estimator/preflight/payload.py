@@ -192,7 +192,8 @@ def _how(best_kg, how, beyond, unit):
 def verdict_lines(result, unit="kg"):
     """The payload verdict in words, one idea per line, masses in ``unit`` (the table's)."""
     rows = result["rows"]
-    job = " and %.0f min of hover" % result["job_min"] if result["job_min"] is not None else ""
+    # the job time as the person wrote it (16.6 min, not 17: new-user trial 12, finding 6)
+    job = " and %.4g min of hover" % result["job_min"] if result["job_min"] is not None else ""
     blind = result.get("broken_at_every_payload") or []
     if result["max_payload_kg"] is not None:
         return ["largest payload that keeps the margins and the landing reserve%s: %s (%s)" % (
@@ -224,13 +225,16 @@ def _shared_decimals(values, most=3):
     return most
 
 
-def _shown_minutes(row):
-    """A row's endurance [min] to one decimal; rounded down when it misses the job time, so the
-    table never shows a missed job time as met (3.96 min against 4 min is 3.9, not 4.0)."""
+def _shown_minutes(row, job_min=None):
+    """A row's endurance [min] as text, to one decimal as everywhere else; with more decimals
+    where one would round a missed job time onto it (units.beside, the rule of the T/W and
+    command columns), so the table never shows a missed job time as met (3.96 min against 4 min
+    is 3.96, not 4.0), nor one endurance two ways with and without a job time (new-user trial
+    12, finding 6: 14.774 min read 14.7 with --job-time 15min, 14.8 without)."""
     minutes = row["flight_time_lead_min"]
-    if row["margins"].get("job_time") is False:
-        return math.floor(minutes * 10.0) / 10.0
-    return minutes
+    if row["margins"].get("job_time") is False and job_min is not None:
+        return beside(minutes, job_min, below=True, digits=1)
+    return "%.1f" % minutes
 
 
 def format_payload_table(result, unit="kg"):
@@ -244,6 +248,7 @@ def format_payload_table(result, unit="kg"):
     header = "   payload    all-up     cmd   empty  T/W    pack A  endurance           keeps"
     lines = ["5. How much can it carry?", header]
     shown = _shared_decimals([v / scale for r in result["rows"] for v in (r["payload_kg"], r["mass_kg"])])
+    empties = []
     for r in result["rows"]:
         cmd = "%.2f" % r["hover_command"] if r["hover_command"] is not None else "none"
         # near empty is where the hover command limit is judged: never rounded onto it (0.602 breaks
@@ -251,14 +256,19 @@ def format_payload_table(result, unit="kg"):
         empty = "none" if r["hover_command_empty"] is None else beside(
             r["hover_command_empty"], HOVER_COMMAND_LIMIT, below=False) \
             if r["hover_command_empty"] > HOVER_COMMAND_LIMIT else "%.2f" % r["hover_command_empty"]
+        empties.append(empty)
         pack = "%.1f" % r["hover_pack_current_A"] if r["hover_pack_current_A"] is not None else "-"
-        time = ("%.1f min (%s)" % (_shown_minutes(r), r["flight_ended_by"])
+        time = ("%s min (%s)" % (_shown_minutes(r, result["job_min"]), r["flight_ended_by"])
                 if r["flight_time_lead_min"] is not None else "no hover")
         lines.append("   %-9s  %-9s  %-4s  %-5s  %-6s %-6s  %-18s  %s" % (
             "%.*f %s" % (shown, r["payload_kg"] / scale, unit), "%.*f %s" % (shown, r["mass_kg"] / scale, unit), cmd,
             empty, judged_thrust_to_weight_text(r), pack, time, "yes" if r["keeps"] else "no"))
         if not r["keeps"]:  # the margins it breaks, on a line of their own under the row
             lines += wrap_line("       breaks " + ", ".join(r["broken"]), indent=14)
+    if any(len(e.partition(".")[2]) > 2 for e in empties):
+        # the empty column's rule (units.beside), said once (new-user trial 12, finding 14)
+        lines += wrap_line("   empty: with more decimals where two would round it onto the %.1f limit it breaks"
+                           % HOVER_COMMAND_LIMIT, indent=5)
     if any(r["flight_time_lead_basis"] == "small rotor" for r in result["rows"]):
         lines += wrap_line("   endurance: SMALL ROTOR, at the figure of merit measured rotors of this size "
                            "reach, as in section 3", indent=5)
