@@ -181,12 +181,15 @@ def read_columns(path, head, indices, missing_ok=False, what="a CSV"):
     out = [[] for _ in indices]
     pairs = list(zip(indices, out))
     names = list(head.cells) + [""] * (max(indices, default=0) + 1 - len(head.cells))
+    previous = None
     with open_checked(path, what, MAX_BYTES) as fh:
         for line_no, text in _data_lines(path, fh, head.line):
             cells = text.split(",")
             if len(cells) != ncols:
-                raise InputError("%s: line %d: %d cells where the header has %d (truncated or "
-                                 "merged row?)" % (path, line_no, len(cells), ncols))
+                comma = _decimal_comma(cells, ncols, previous, names)
+                raise InputError("%s: line %d: %d cells where the header has %d (%s)"
+                                 % (path, line_no, len(cells), ncols, comma or "truncated or merged row?"))
+            previous = cells
             for index, column in pairs:
                 cell = cells[index]
                 try:
@@ -199,6 +202,40 @@ def read_columns(path, head, indices, missing_ok=False, what="a CSV"):
                         value = _number(path, line_no, index, cell, missing_ok, names[index])
                 column.append(value)
     return out
+
+
+_WHOLE = re.compile(r"^\s*[-+]?\d+\s*$")
+_DIGITS = re.compile(r"^\d+\s*$")
+
+
+def _decimal_comma(cells, ncols, previous, names):
+    """The likely cause of a row one cell longer than the header when two neighbouring cells
+    read as one number written with a decimal comma ('24,92' for 24.92: new-user trial 12, finding
+    7), else None. Of several such pairs, the one whose joined row lies nearest the previous row
+    (relative differences, cell by cell) is named; without a previous row, every pair is."""
+    if len(cells) != ncols + 1:
+        return None
+    pairs = [i for i in range(len(cells) - 1) if _WHOLE.match(cells[i]) and _DIGITS.match(cells[i + 1])]
+    if not pairs:
+        return None
+
+    def distance(i):
+        joined = cells[:i] + [cells[i].strip() + "." + cells[i + 1].strip()] + cells[i + 2:]
+        total = 0.0
+        for new, old in zip(joined, previous):
+            try:
+                a, b = float(new), float(old)
+            except ValueError:
+                continue
+            total += abs(a - b) / max(abs(a), abs(b), 1e-9)
+        return total
+
+    if previous is not None and len(previous) == ncols:
+        pairs = [min(pairs, key=distance)]
+    shown = " or ".join("'%s,%s' in column %s looks like a decimal comma: write %s.%s"
+                        % (cells[i].strip(), cells[i + 1].strip(), names[i] or i + 1, cells[i].strip(),
+                           cells[i + 1].strip()) for i in pairs[:3])
+    return shown + "; liftcal reads a point as the decimal mark"
 
 
 def _data_lines(path, fh, skip):
