@@ -36,7 +36,7 @@ def refuse_bare_comment(key, text, where):
     value = float(number)
     if value - value != 0.0:  # nan, inf
         raise InputError("%s: %s is not a finite number" % (where, shorten(number)))
-    check_quantity(quantity, parse_quantity(number, kind, where), number, where)
+    check_quantity(quantity, parse_quantity(number, kind, where), number, where, unit_required=True)
     raise InputError("%s: %s has no unit; write it with one, e.g. %s (as the --%s option "
                      "and a vehicle file's site need)"
                      % (where, shorten(number), " or ".join("'# %s: %s%s'" % (key, number, u) for u in units), key))

@@ -5,10 +5,8 @@ Numbers may be written as text with a unit suffix (``"mass_kg": "650g"``, ``"cap
 the SI keys of the schema with estimator.units, the one parser the command line uses too. A
 bare number keeps the unit its key names; a key without a unit (``mass``) needs a suffix. Checks that JSON Schema cannot express (cell voltages in order,
 figure of merit at most 1) are done here and reported with the JSON path and the reason.
-
 The same schema keeps the sensible bounds of the quantities typed on the command line
-(``liftcal air/static``): check_quantity refuses a value outside them, naming the bound,
-its unit and the likely unit slip ("10 m: did you mean 10in?").
+(``liftcal air/static``): check_quantity refuses a value outside them, naming the bound, its unit and the likely unit slip.
 """
 
 import copy
@@ -19,9 +17,8 @@ from estimator.errors import InputError
 from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
 from estimator.mass_slip import mass_hint
 from estimator.units import INCH_M, humidity_fraction_note
-from estimator.vehicle_units import BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS
-from estimator.vehicle_units import normalise, propeller_notes  # noqa: F401 (normalise: also this module's API)
-from estimator.vehicle_units import cutoff_above_nominal, written_unit_slip
+from estimator.vehicle_units import (BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS, cutoff_above_nominal,
+                                     normalise, propeller_notes, written_unit_slip)  # noqa: F401 (normalise: API)
 
 SCHEMA = "vehicle.schema.json"
 
@@ -29,9 +26,7 @@ SCHEMA = "vehicle.schema.json"
 DEFAULT_LAYOUT = "flat"
 DEFAULT_USABLE_FRACTION = 0.8  # common practice: keep a 20 % reserve on lithium packs
 DEFAULT_ESC_EFFICIENCY = 1.0  # ideal ESC
-DEFAULT_ALTITUDE_M = 0.0
-DEFAULT_HUMIDITY_PCT = 0.0
-DEFAULT_BLADES = 2
+DEFAULT_ALTITUDE_M, DEFAULT_HUMIDITY_PCT, DEFAULT_BLADES = 0.0, 0.0, 2
 # pitch / diameter of propellers that the blade-element estimate covers (multirotor and sport
 # propellers run from about 0.3 to 1.0; common practice)
 PITCH_RATIO_MIN, PITCH_RATIO_MAX = 0.2, 1.5
@@ -99,7 +94,7 @@ def range_text(name):
     return "%g..%g%s" % (lo, hi, tail)
 
 
-def check_quantity(name, value, text=None, what=None, typical=None):
+def check_quantity(name, value, text=None, what=None, typical=None, unit_required=False):
     """Refuse a typed quantity outside its sensible bounds; return ``value`` when inside.
 
     name: a key of QUANTITIES; value: the quantity in SI (temperature in C); text: what the
@@ -107,7 +102,9 @@ def check_quantity(name, value, text=None, what=None, typical=None):
     (no unit suffix) outside the bounds is most often a unit slip, so the message names the
     slip that would bring it inside: ``--diameter: 10 m: did you mean 10in? (a rotor
     diameter must be 0.01..3 m)``; the one nearest ``typical`` [SI] when the context expects a
-    value (a bench's diameter: the vehicle's, 76 -> 76mm on 3 in; trial 11). Raises InputError.
+    value (a bench's diameter: the vehicle's, 76 -> 76mm on 3 in; trial 11). unit_required: a
+    bare number is called unitless, never given a unit it was not written with ('82' has no unit:
+    did you mean 82F?; trial 12, finding 9). Raises InputError.
     """
     sub = quantity_schema(name)
     if within(value, sub):
@@ -119,6 +116,8 @@ def check_quantity(name, value, text=None, what=None, typical=None):
     typed = _LEADING_NUMBER.match(str(text)) if text is not None else None
     if typed is not None and not bare and float(typed.group(1)) != value:
         shown = "%s = %s" % (str(text).strip(), shown)
+    unitless = unit_required and bare
+    shown = "'%s' has no unit" % str(text).strip() if unitless else shown
     if name == "factor":
         side = "above 1, which momentum theory forbids" if value > 1.0 else "not above 0"
         hint = ""
@@ -131,7 +130,8 @@ def check_quantity(name, value, text=None, what=None, typical=None):
     if slip:
         raise InputError("%s: %s: did you mean %s%s? (%s must be %s)"
                          % (what, shown, str(text).strip(), slip[0], label, range_text(name)))
-    raise InputError("%s: %s is outside %s (%s)" % (what, shown, range_text(name), label))
+    raise InputError("%s: %s%s %s (%s)" % (what, shown, ", and no unit brings it inside" if unitless else " is outside",
+                                             range_text(name), label))
 
 
 def load_vehicle(path):

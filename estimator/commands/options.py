@@ -130,8 +130,8 @@ class Bounded(Quantity):
 
     def convert(self, value, param, ctx):
         if self.unit_example is not None and not isinstance(value, float) and _bare(value):
-            # a bare number outside the bounds gets its likely unit slip named first
-            # ("12000 m: did you mean 12000ft?"), any other the units it needs
+            # a bare number outside the bounds gets its likely unit slip named first ("'12000' has
+            # no unit: did you mean 12000ft?"), any other the units it needs
             from estimator.vehicle import check_quantity
 
             what = param.opts[0] if param is not None and param.opts else None
@@ -140,7 +140,7 @@ class Bounded(Quantity):
                 from estimator.errors import shorten
 
                 self.fail("%s is not a finite number" % shorten(str(value)), param, ctx)
-            check_quantity(self.quantity, parse_quantity(value, self.kind, ""), str(value), what)
+            check_quantity(self.quantity, parse_quantity(value, self.kind, ""), str(value), what, unit_required=True)
             self.fail_bare(value, param, ctx)
         si = Quantity.convert(self, value, param, ctx)
         if si is not None:
