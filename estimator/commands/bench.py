@@ -224,6 +224,18 @@ def settings_text(settings, mapping, params_name, map_name):
     return format_lines(in_map_decimals(settings, mapping), header)
 
 
+def export_notes(settings, params):
+    """The notes export shows under the settings: what the top-thrust values mean, then the fit's
+    warnings ('fit: ...')."""
+    return top_thrust_notes(settings, params) + ["fit: " + w for w in params.get("warnings", [])]
+
+
+def with_notes(text, notes):
+    """A settings file's text with the notes export shows as '# !' lines after the settings (the
+    file kept beside the controller says what the screen said: new-user trial 12, finding 10)."""
+    return text + "".join("# ! %s\n" % " ".join(n.splitlines()) for n in notes)
+
+
 def in_map_decimals(settings, mapping):
     """The settings with each value as text in the decimals its map entry asks for (0.280 for
     3 decimals, not 0.28); an entry without ``decimals`` keeps the value as it is."""
@@ -277,9 +289,9 @@ def top_thrust_notes(settings, params):
               help="Your mapping of our keys to your controller's names (default: the shipped "
                    "example with invented names).")
 @click.option("--out", "out_file", type=FILE_NAME, default=None, metavar="FILE",
-              help="Also write the settings to FILE (atomically): the lines as printed, or with "
-                   "--json a JSON document (model liftcal.settings/1) holding them. Replaces only "
-                   "a settings file liftcal wrote.")
+              help="Also write the settings to FILE (atomically): the lines as printed, with the "
+                   "notes and the fit's warnings as '# !' lines, or with --json a JSON document (model "
+                   "liftcal.settings/1) holding them. Replaces only a settings file liftcal wrote.")
 @click.option("--from-edited", "from_edited", is_flag=True,
               help="Export a parameter set edited since liftcal wrote it (its content seal broken); "
                    "without it liftcal refuses such a set.")
@@ -309,7 +321,7 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     mapping = load_map(path)
     settings = export_settings(params, mapping, shown(path) if map_file is not None else
                                "the shipped example-map.json", shown(params_file))
-    notes = top_thrust_notes(settings, params) + ["fit: " + w for w in params.get("warnings", [])]
+    notes = export_notes(settings, params)
     text = dumps(as_mapping(settings)) + "\n" if as_json else settings_text(settings, mapping, params_file, path)
     if edited and not as_json:  # under the header line
         head, rest = text.split("\n", 1)
@@ -318,7 +330,10 @@ def export(params_file, map_file, out_file, from_edited, as_json):
         # a file carries its mark, so liftcal knows it as its own later (outputs.py): the
         # lines start with the '# liftcal settings' header, a JSON file names its model; the
         # JSON file is what a person loads into a controller, so it carries the cautions too
-        kept = text if text.startswith(SETTINGS_MARK) else dumps({
+        # the notes (what the values mean, the fit's warnings) go into the text file too, as '#'
+        # lines: the file kept beside the controller says what the screen said (new-user trial 12,
+        # finding 10)
+        kept = with_notes(text, notes) if text.startswith(SETTINGS_MARK) else dumps({
             "schema_version": 1, "model": "liftcal.settings/1",
             "parameter_set": os.path.basename(params_file), "map": os.path.basename(path),
             "settings": as_mapping(settings), "warnings": ([edited] if edited else []) + notes,

@@ -72,7 +72,7 @@ DEMO_JOB_MIN = 10.0
 
 def _run(out_dir, work, seed, emit):
     """run_demo's steps, writing into ``work`` and naming the files as they will be in ``out_dir``."""
-    from estimator.commands.bench import _fold_arrows, fit_for_vehicle, settings_text
+    from estimator.commands.bench import _fold_arrows, export_notes, fit_for_vehicle, settings_text, with_notes
     from estimator.demo.bench_sim import simulate_sweep
     from estimator.demo.scenario import DEMO_VEHICLE
     from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, load_map
@@ -120,7 +120,8 @@ def _run(out_dir, work, seed, emit):
     map_file = EXAMPLE_MAP
     mapping = load_map(map_file)
     settings = export_settings(params, mapping, map_file)
-    write_atomic(path("settings.txt"), settings_text(settings, mapping, "params.json", map_file))
+    write_atomic(path("settings.txt"), with_notes(settings_text(settings, mapping, "params.json", map_file),
+                                                  export_notes(settings, params)))
     c, k = params["thrust_curve"], params["static_factor"]
     text += [_rule("2. bench sweep -> parameter set -> settings"),
              "$ liftcal fit %s --vehicle %s --out %s" % (show("bench.csv"), show("vehicle.json"),
