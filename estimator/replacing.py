@@ -36,8 +36,21 @@ def existing_set(path):
         return None
     prov = doc.get("provenance") if isinstance(doc.get("provenance"), dict) else {}
     rotor = doc.get("rotor") if isinstance(doc.get("rotor"), dict) else {}
+    vehicle = doc.get("vehicle") if isinstance(doc.get("vehicle"), dict) else None
     return {"input_file": prov.get("input_file"), "input_sha256": prov.get("input_sha256"),
-            "diameter_m": rotor.get("diameter_m"), "created_utc": prov.get("created_utc")}
+            "diameter_m": rotor.get("diameter_m"), "created_utc": prov.get("created_utc"),
+            "hover_for": (str(vehicle.get("name") or "a vehicle") if vehicle is not None and "hover" in doc
+                          else None)}
+
+
+def _dropped_hover(old, params):
+    """'; the old set had hover values for NAME; this one has none (...)' when the replaced set had
+    hover values and the new one has none, else '' (new-user trial 12, finding 11: a re-fit
+    without --vehicle dropped them without a word, and the next firmware failed on $.vehicle)."""
+    if not old.get("hover_for") or "hover" in params:
+        return ""
+    return ("; the old set had hover values for %s, this one has none (fit with --vehicle to keep them: "
+            "firmware without --vehicle needs them)" % shown(old["hover_for"]))
 
 
 def _set_words(info):
@@ -82,7 +95,7 @@ def check_set_replacement(path, params, replace=False, option="--out"):
         raise InputError("%s %s: holds %s; this fit is of %s: liftcal does not replace a set of another "
                          "bench or rotor unless asked: name another path, or add %s to replace it"
                          % (option, path, _set_words(old), " and ".join(differs), REPLACE_OPTION))
-    return "replaced %s: %s" % (path, _set_words(old))
+    return "replaced %s: %s%s" % (path, _set_words(old), _dropped_hover(old, params))
 
 
 def replaced_line(path, kind):
