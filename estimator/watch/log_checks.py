@@ -48,6 +48,11 @@ LOG_BELOW_EMPTY = 0.90
 #   the 2 a controllable multirotor needs, common practice) gives 1.97: 2.0. The watch's own
 #   mass alarm (plan + 8 %) judges everything in between.
 IMPLIED_MASS_RANGE = (0.5, 2.0)
+# a log whose power, times the rotor count, implies a mass this near the plan carries one ESC's
+# current, not the pack's (new-user trial 12, finding 8): the plan give or take a payload of a
+# quarter of it, narrower than IMPLIED_MASS_RANGE so that a current merely low is not blamed on an
+# ESC (a tenth on a quad, x4, implies about half the plan) (a judgement, common practice) [-]
+ONE_ESC_MASS_RANGE = (0.8, 1.25)
 # the implied mass is judged on at least this much flight above the spin command [s]
 IMPLIED_MASS_MIN_FLIGHT_S = 10.0
 # a current whose median over that flight is below this share of the hover current reads zero:
@@ -310,7 +315,8 @@ def check_vehicle(path, flight, params, facts, cfg, units=None):
     full_voltage_V, empty_voltage_V, name; without pack voltages, sensor_range.pack_voltages' stand-ins);
     cfg: the watch CONFIG; units: the header's units. A current that reads zero in flight is named
     as an unplugged sensor (_check_current_zero); a current labelled [mA] whose power implies a
-    mass far below the plan, and within the range at 1000 times, as amps labelled [mA].
+    mass far below the plan, and within the range at 1000 times, as amps labelled [mA]; one whose
+    power at rotor-count times implies the plan (ONE_ESC_MASS_RANGE) as one ESC's current.
     """
     from estimator.watch.thrust_table import thrust_from_power_total_N
 
@@ -342,6 +348,18 @@ def check_vehicle(path, flight, params, facts, cfg, units=None):
                                  "%.3g kg planned; read as amps it implies %.3g kg: the current is 1000 times too "
                                  "small, likely amps in a column labelled [mA]; label it current[A]"
                                  % (path, med_W, mass, plan, as_A))
+        n_rot = int(facts["rotor_count"])
+        if off and mass < plan and n_rot > 1 and not found:
+            # one ESC's current logged instead of the pack's: about 1/n of the bus total (new-user
+            # trial 12, finding 8: a hex log at 1/6 was called another vehicle)
+            as_bus = thrust_from_power_total_N(n_rot * med_W, params, n_rot, float(facts["site_density_kg_m3"]),
+                                               facts.get("layout", "flat")) / STANDARD_GRAVITY_M_S2
+            if ONE_ESC_MASS_RANGE[0] <= as_bus / plan <= ONE_ESC_MASS_RANGE[1]:
+                raise InputError("%s: column current[%s]: the power in flight (%.4g W) implies %.3g kg against "
+                                 "%.3g kg planned; %d times it (the rotor count) implies %.3g kg: the current is "
+                                 "about 1/%d of the expected bus total, likely one ESC's current rather than the "
+                                 "pack's; log the bus total (the pack's current sensor, or the sum over the ESCs)"
+                                 % (path, (units or {}).get("current", "A"), med_W, mass, plan, n_rot, as_bus, n_rot))
         if off or found:
             found.append("implied mass %.3g kg (%.4g W in flight through its power model) against %.3g kg "
                          "planned%s" % (mass, med_W, plan, ", outside the %g..%g x a payload or the flying "
