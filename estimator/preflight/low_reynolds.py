@@ -108,12 +108,22 @@ def static_factor_band(reynolds_75):
     return (fm * lo) ** (2.0 / 3.0), ((fm + FALLBACK_FM_SPREAD) * hi) ** (2.0 / 3.0)
 
 
+def band_text():
+    """How the measured band rises with the Reynolds number, in words (README, the sheet and
+    `static` say it one way: new-user trial 12, finding 12 found 0.35-0.45, 0.40-0.50 and 0.41-0.51
+    without a word that the band depends on the Reynolds number)."""
+    return ("the band rises with the blade Reynolds number, from %.2f-%.2f at %.0f and below to %.2f-%.2f at "
+            "%.0f" % (FALLBACK_FM_LOW, FALLBACK_FM_LOW + FALLBACK_FM_SPREAD, FALLBACK_RE_LOW, FALLBACK_FM_HIGH,
+                      FALLBACK_FM_HIGH + FALLBACK_FM_SPREAD, LOW_REYNOLDS_75))
+
+
 def measured_text(reynolds_75):
-    """'measured rotors there reach about 0.35-0.45 (...; from memory)': one wording everywhere."""
+    """'measured rotors there reach about 0.40-0.50 (the band rises ...; from memory)': one wording
+    everywhere."""
     fm = fallback_figure_of_merit(reynolds_75)
-    return ("measured rotors there reach a figure of merit of about %.2f-%.2f (micro-rotor hover tests: "
+    return ("measured rotors there reach a figure of merit of about %.2f-%.2f (%s; micro-rotor hover tests: "
             "Kroo and Kunz 2001; Bohorquez and Pines 2003; Hein and Chopra 2007; from memory)"
-            % (fm, fm + FALLBACK_FM_SPREAD))
+            % (fm, fm + FALLBACK_FM_SPREAD, band_text()))
 
 
 def hover_warning(check, diameter_m, described=False):
