@@ -237,6 +237,8 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         lines.append("  " + out["note"])
     elif not out["events"]:
         lines.append("  no event: power stayed within what the parameter set expects")
+    from estimator.textwidth import wrap_line
+    from estimator.units import mass_text
     from estimator.watch.replay import mass_words
     lines.append("  " + mass_words(out["mass"]))
     if out["events"]:
@@ -246,13 +248,14 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
             what = e.get("detail") or EVENT_MEANING.get(e["kind"], "")
         elif e["kind"] == "mass_high":
             # one sentence that wraps cleanly: the numbers, then the likely cause
-            what = ("implied mass %.3f kg against %.3f kg planned (alarm above %.3f kg plus the estimate's "
-                    "margin): payload heavier than planned?" % (e["mass_kg"], e["planned_kg"], e["limit_kg"]))
+            what = ("implied mass %s against %s planned (alarm above %s plus the estimate's margin): payload "
+                    "heavier than planned?" % tuple(mass_text(e[k], e["planned_kg"])
+                                                    for k in ("mass_kg", "planned_kg", "limit_kg")))
         else:
             what = "residual %+.1f %%  %s" % (100.0 * e["residual"], EVENT_MEANING.get(e["kind"], ""))
         lines.append("  %9.1f s  %-13s %s" % (e["t_s"], e["kind"], what))
-        if e.get("note"):
-            lines.append("  %11s  %-13s (%s)" % ("", "", e["note"]))
+        if e.get("note"):  # under the event's own wrapped text, not deeper (new-user trial 12, finding 14)
+            lines.extend(wrap_line("  %11s  (%s)" % ("", e["note"]), indent=16))
     if plot_file:
         lines.append("plot: %s" % plot_file)
         if replaced:

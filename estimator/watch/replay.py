@@ -15,7 +15,7 @@ import sys
 from estimator.core.watch_layout import FLAG_BITS
 from estimator.csvtable import COMMAND_UNITS, TIME_UNITS, data_line_numbers
 from estimator.errors import InputError
-from estimator.units import unit_factors
+from estimator.units import mass_text, unit_factors
 from estimator.watch.model_hedge import POWER_KINDS, exponent_not_measured, exponent_note  # noqa: F401 (API)
 from estimator.watch.config import make_config, new_watch, vehicle_facts
 from estimator.watch.fault_causes import StuckTimer, fault_cause, in_range
@@ -251,17 +251,21 @@ def mass_words(mass):
     """The one line replay prints for mass_verdict's dict."""
     if not mass["judged"]:
         return "mass not judged: %s" % mass["reason"]
-    text = ("implied mass %.3f kg at %.1f s (the last window): %+.1f %% against %.3f kg planned, %s the alarm "
-            "limit %.3f kg" % (mass["implied_kg"], mass["at_s"], 100.0 * mass["share"], mass["planned_kg"],
-                               "above" if mass["above_limit"] else "below", mass["limit_kg"]))
+    plan = mass["planned_kg"]
+
+    def m(kg):  # grams for a small vehicle, as firmware says them (units.mass_text)
+        return mass_text(kg, plan)
+    text = ("implied mass %s at %.1f s (the last window): %+.1f %% against %s planned, %s the alarm "
+            "limit %s" % (m(mass["implied_kg"]), mass["at_s"], 100.0 * mass["share"], m(plan),
+                          "above" if mass["above_limit"] else "below", m(mass["limit_kg"])))
     if not mass["above_limit"] or mass.get("mass_alarm", True) or "alarm_kg" not in mass:
         return text
     # above the limit without a mass alarm: say why (trial 9, finding 6)
     if mass["implied_kg"] <= mass["alarm_kg"]:
-        return text + (" but within the estimate's margin (+-%.3f kg over gusty or short windows): no alarm below "
-                       "%.3f kg, the limit plus that margin" % (mass["margin_kg"], mass["alarm_kg"]))
-    return text + (" and the limit plus the estimate's margin (%.3f kg) in %d window%s in a row: the alarm needs %d"
-                   % (mass["alarm_kg"], mass["windows_above"], "" if mass["windows_above"] == 1 else "s",
+        return text + (" but within the estimate's margin (+-%s over gusty or short windows): no alarm below "
+                       "%s, the limit plus that margin" % (m(mass["margin_kg"]), m(mass["alarm_kg"])))
+    return text + (" and the limit plus the estimate's margin (%s) in %d window%s in a row: the alarm needs %d"
+                   % (m(mass["alarm_kg"]), mass["windows_above"], "" if mass["windows_above"] == 1 else "s",
                       mass["windows_needed"]))
 
 
