@@ -264,6 +264,10 @@ def _likely_cause(err):
         whole = re.match(r"^\s*(\d+)\s*[A-Za-z]?\s*$", err.instance)  # "6S", "4 s", "6"
         if whole:
             return "; write %d (a plain whole number, without quotes)" % int(whole.group(1))
+        sp = re.match(r"^\s*(\d+)\s*[sS]\s*(\d+)\s*[pP]\s*$", err.instance)  # "4S2P" (trial 12, finding 14)
+        if sp:
+            return ("; a %sS%sP pack: write the cells in series, %s, and the paralleled pack's capacity "
+                    "under capacity (%s x one cell's)" % (sp.group(1), sp.group(2), sp.group(1), sp.group(2)))
     return ""
 
 

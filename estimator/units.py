@@ -90,6 +90,9 @@ def parse_quantity(text, kind, what="value"):
         # trial 11, finding 6: 850g was taken, 85kg refused without a word why)
         weight = "; %s is a mass: its weight is %s%sf" % (suffix, m.group(1), suffix) \
             if kind == "force" and suffix in ("kg", "lb") else ""
+        # the same letters in another case ('mah' for 'mAh': new-user trial 12, finding 14)
+        cased = [u for u in table if u and u.lower() == suffix.lower()]
+        weight += "; units are case-sensitive: did you mean %s%s?" % (m.group(1), cased[0]) if len(cased) == 1 else ""
         raise InputError("%s: unknown unit %s in %s; use one of %s%s"
                          % (what, shorten(suffix), shorten(text), ", ".join(repr(u) for u in table if u), weight))
     scale, offset = table[suffix]

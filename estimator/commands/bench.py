@@ -316,7 +316,7 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     params = load_params(params_file)
     from estimator.params import edited_set_warning
 
-    edited = edited_set_warning(params_file, from_edited, "the settings")
+    edited = edited_set_warning(params_file, from_edited, "the settings file")
     path = EXAMPLE_MAP if map_file is None else map_file
     mapping = load_map(path)
     settings = export_settings(params, mapping, shown(path) if map_file is not None else

@@ -95,10 +95,11 @@ def check_time(path, flight, go_on=False):
         rows = ", ".join(str(line_of[j]) for j, _ in bad[:SHOWN_ROWS])
         more = "" if len(bad) <= SHOWN_ROWS else " and %d more" % (len(bad) - SHOWN_ROWS)
         raise InputError("%s: line %d: time %.6g s %s (after %.6g s); %d row%s where time does not rise "
-                         "(lines %s%s) - a merged or restarted log? Fix the log, or pass --drop-bad-time "
-                         "to drop those rows" % (path, line_of[i], t[i],
-                                                 "repeats" if t[i] == before else "goes back", before,
-                                                 len(bad), "" if len(bad) == 1 else "s", rows, more))
+                         "(line%s %s%s) - a merged or restarted log? Fix the log, or pass --drop-bad-time "
+                         "to drop %s" % (path, line_of[i], t[i],
+                                         "repeats" if t[i] == before else "goes back", before,
+                                         len(bad), "" if len(bad) == 1 else "s", "" if len(bad) == 1 else "s",
+                                         rows, more, "that row" if len(bad) == 1 else "those rows"))
     for key in ("time_s", "command_permille", "bus_mV", "bus_mA"):
         flight[key] = [flight[key][j] for j in keep]
     return len(bad)
