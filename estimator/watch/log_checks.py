@@ -49,10 +49,11 @@ LOG_BELOW_EMPTY = 0.90
 #   mass alarm (plan + 8 %) judges everything in between.
 IMPLIED_MASS_RANGE = (0.5, 2.0)
 # a log whose power, times the rotor count, implies a mass this near the plan carries one ESC's
-# current, not the pack's (new-user trial 12, finding 8): the plan give or take a payload of a
-# quarter of it, narrower than IMPLIED_MASS_RANGE so that a current merely low is not blamed on an
-# ESC (a tenth on a quad, x4, implies about half the plan) (a judgement, common practice) [-]
-ONE_ESC_MASS_RANGE = (0.8, 1.25)
+# current, not the pack's (new-user trial 12, finding 8): the plan give or take about a tenth,
+# far narrower than IMPLIED_MASS_RANGE so that a current merely low is not blamed on an ESC (a
+# fifth of a quad's, x4, implies about 0.8 of the plan: another vehicle, as before; a tenth about
+# half) (a judgement, common practice) [-]
+ONE_ESC_MASS_RANGE = (0.9, 1.12)
 # the implied mass is judged on at least this much flight above the spin command [s]
 IMPLIED_MASS_MIN_FLIGHT_S = 10.0
 # a current whose median over that flight is below this share of the hover current reads zero:
