@@ -191,7 +191,8 @@ def test_firmware_says_when_it_replaces_its_own_bundle(fitted, tmp_path):
     assert again.count("replaced ") == 1
     assert "replaced %s: a power-watch bundle liftcal wrote" % board in again
     js = run("firmware", fitted[3], "--out", board, "--json")[1]
-    assert json.loads(js)["replaced"] == ["replaced %s: a power-watch bundle liftcal wrote" % board]
+    # ... and the parameter set it was made from (new-user trial 12, finding 14)
+    assert json.loads(js)["replaced"] == ["replaced %s: a power-watch bundle liftcal wrote from %s" % (board, fitted[3])]
     assert json.loads(run("firmware", fitted[3], "--out", tmp_path / "new", "--json")[1])["replaced"] == []
 
 

@@ -73,3 +73,11 @@ def test_the_empty_column_says_why_one_value_has_more_decimals(tmp_path):
     note = "empty: with more decimals where two would round it onto the 0.6 limit it breaks"
     assert note in " ".join(ok("hover", path, "--payload", "0..1kg").split())
     assert note not in " ".join(ok("hover", path, "--payload", "0..0.3kg").split())
+
+
+def test_section_5_comes_before_the_closing_cautions(tmp_path):
+    # finding 14: with --payload, section 5 was printed after 'Before you go to the field'
+    text, _ = _table()
+    assert text.index("4. What to watch out for") < text.index("5. How much can it carry?") \
+        < text.index("Before you go to the field")
+    assert text.rstrip().splitlines()[-1].startswith("     ") or "come first" in text.rstrip().splitlines()[-1]

@@ -283,15 +283,13 @@ def hover(vehicle_file, params_file, payload_text, job_time, plot_file, as_json)
     if as_json:
         click.echo(dumps(report))
         return
-    click.echo(format_sheet(report), nl=False)
-    if payload is not None:
+    section5 = None
+    if payload is not None:  # before the closing cautions (format_sheet)
         from estimator.preflight.payload import format_payload_table
-        click.echo("")
-        click.echo(format_payload_table(payload, unit), nl=False)
+        section5 = format_payload_table(payload, unit).rstrip("\n")
         if plot_file is not None:
-            click.echo("   plot: %s" % plot_file)
-            if replaced:
-                click.echo("   " + replaced)
+            section5 += "\n   plot: %s" % plot_file + ("\n   " + replaced if replaced else "")
+    click.echo(format_sheet(report, section5), nl=False)
 
 
 @click.command()

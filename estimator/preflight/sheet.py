@@ -158,9 +158,11 @@ def _small_rotor_line(report):
                 _num(low.get("estimate_hover_power_W"), SIG3, "W")))
 
 
-def format_sheet(report):
+def format_sheet(report, section5=None):
     """The human pre-flight sheet for a report dict, grouped by the builder's questions
-    (lines wrapped to an 80-column terminal, estimator.textwidth)."""
+    (lines wrapped to an 80-column terminal, estimator.textwidth); section5: the payload table's
+    text (preflight.payload.format_payload_table) or None, placed before the closing cautions
+    (new-user trial 12, finding 14: it came after them, so the cautions sat mid-sheet)."""
     lines = []
     title = "PRE-FLIGHT ESTIMATE: %s" % report.get("name", "vehicle")
     lines += [title, "=" * len(title)]
@@ -341,7 +343,6 @@ def format_sheet(report):
     else:
         lines.append("   nothing flagged by the estimate")
     lines.append("")
-    lines.append("Before you go to the field")
-    for c in report.get("cautions") or CAUTIONS:
-        lines.append("   - " + c)
-    return fit_width("\n".join(lines) + "\n")
+    text = fit_width("\n".join(lines) + "\n") + (section5 + "\n\n" if section5 else "")
+    cautions = ["Before you go to the field"] + ["   - " + c for c in report.get("cautions") or CAUTIONS]
+    return text + fit_width("\n".join(cautions) + "\n")
