@@ -137,18 +137,32 @@ def rotor_at(truth, d, bus_V, rho):
 
 def at_supply(truth, d, supply_V, r_source, rho, rotors=1):
     """Thrust [N] per rotor, bus voltage [V] and total current [A] of ``rotors`` rotors at
-    duty d on a source V_s, R_s: V_bus found by 60 bisections of V + R_s N I(V) = V_s."""
+    duty d on a source V_s, R_s: the rotor speed omega found by 60 bisections of
+    omega / Kv + I_m R = d V_bus with V_bus = V_s - R_s N (I_q + d I_m / eta_esc) and
+    I_m = I0(omega) + Q(omega) Kv (the left side rises with omega, the right side falls)."""
     d = np.asarray(d, dtype=float)
-    lo, hi = np.zeros_like(d), np.full_like(d, float(supply_V))
+    lo = np.zeros_like(d)
+    hi = np.full_like(d, truth["kv"] * max(float(supply_V), 1e-9) * 1.01 + 1.0)
+    dd = truth["diameter_m"]
     for _ in range(60):
         mid = 0.5 * (lo + hi)
-        _, i = rotor_at(truth, d, mid, rho)
-        over = mid + r_source * rotors * i > supply_V
-        hi = np.where(over, mid, hi)
-        lo = np.where(over, lo, mid)
-    v = 0.5 * (lo + hi)
-    t, i = rotor_at(truth, d, v, rho)
-    return t, v, rotors * i
+        n = mid / (2.0 * math.pi)
+        _, cp = _coefficients(truth, n)
+        q = cp * rho * n * n * dd ** 5 / (2.0 * math.pi)
+        i_m = truth["i0"] * (1.0 - truth["i0_speed_share"] + truth["i0_speed_share"] * n / truth["n_ref"]) \
+            + q * truth["kv"]
+        bus = supply_V - r_source * rotors * (truth["i_q"] + d * i_m / truth["eta_esc"])
+        up = mid / truth["kv"] + i_m * truth["r_m"] < d * bus
+        lo = np.where(up, mid, lo)
+        hi = np.where(up, hi, mid)
+    omega = 0.5 * (lo + hi)
+    n = omega / (2.0 * math.pi)
+    ct, cp = _coefficients(truth, n)
+    thrust = ct * rho * n * n * dd ** 4
+    q = cp * rho * n * n * dd ** 5 / (2.0 * math.pi)
+    i0 = truth["i0"] * (1.0 - truth["i0_speed_share"] + truth["i0_speed_share"] * n / truth["n_ref"])
+    i = truth["i_q"] + d * np.where(omega > 0.0, i0 + q * truth["kv"], 0.0) / truth["eta_esc"]
+    return thrust, supply_V - r_source * rotors * i, rotors * i
 
 
 def sweep_rows(truth, rng):
