@@ -7,7 +7,10 @@ Commands run in this process (tests/io_helpers.refused, tests/trial_helpers.ok).
 
 import copy
 import json
+import os
 import re
+import shutil
+import tempfile
 from decimal import Decimal
 
 import pytest
@@ -84,18 +87,20 @@ def flight(tmp_path_factory):
     return folder, params, log
 
 
-def test_replay_firmware_export_compare_check_fit_80_columns(tmp_path, flight, monkeypatch):
+def test_replay_firmware_export_compare_check_fit_80_columns(tmp_path, flight):
     folder, params, log = flight
     vehicle = _write(tmp_path, HEXA)
-    # a relative --out: firmware prints its folder on a line of its own, which must not depend on
-    # the length of the temporary folder's name (longer under pytest-xdist or a longer user name)
-    monkeypatch.chdir(tmp_path)
+    # firmware prints its folder's full path on a line of its own (a path is not broken): a short
+    # folder, so the check does not depend on the length of pytest's temporary folder names
+    # (longer under pytest-xdist, or with a longer user name)
+    short = tempfile.mkdtemp(prefix="t4-")
     outputs = [ok("replay", log, "--params", params),
-               ok("firmware", params, "--out", "board"),
+               ok("firmware", params, "--out", os.path.join(short, "board")),
                ok("export", PARAMS),
                ok("compare", vehicle, "--vary", "propeller.size=15x5.5in,16x5.5in",
                     "--vary", "motor.kv_rpm_per_V=380,420", "--vary", "battery.capacity=12000mAh,16000mAh"),
                ok("check", PARAMS)]
+    shutil.rmtree(short)
     for out in outputs:
         assert max(len(line) for line in out.splitlines()) <= COLUMNS, out
 
