@@ -17,4 +17,7 @@ if ! command -v node >/dev/null 2>&1 || ! command -v npm >/dev/null 2>&1; then
 fi
 npm ci --prefix tests/micropython --no-audit --no-fund --loglevel=error
 
-exec .venv/bin/python -m pytest "$@"
+# One worker per core (pytest-xdist); all tests of a file on one worker, so each module fixture is
+# made once (tests/conftest.py also keeps files that share an expensive session fixture together).
+# Arguments given here come after, so `-n 0` runs everything in this one process.
+exec .venv/bin/python -m pytest -n auto --dist loadfile "$@"
