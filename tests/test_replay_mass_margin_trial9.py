@@ -3,7 +3,7 @@
 ... no event"): the alarm needs the limit PLUS the estimate's margin (z standard errors of the
 pooled window mean) in CONFIG mass_windows windows in a row; the line gives that threshold.
 
-Flights from the demo's closed-loop simulator (an INVENTED vehicle) flown 9 % over the planned
+Flights from the demo's closed-loop simulator (an INVENTED vehicle) flown 8-15 % over the planned
 mass (the watch's limit is +8 %, estimator.watch.config). The threshold is checked against the
 kernel itself (estimator.core.watch, run sample by sample here): at every completed mass
 window, "implied share above the stated threshold" must be exactly when the kernel counts the
@@ -22,17 +22,20 @@ from estimator.watch.replay import mass_margin, read_flight
 from watch_helpers import demo_fit_params, flight_csv_once
 
 
-def _log(tmp_path, monkeypatch, share, seed):
+def _log(tmp_path, monkeypatch, share, seed, duration_s=300.0):
     monkeypatch.setattr(flight_sim, "FAULT_SHARE", share)  # "heavy": flown this share over plan
     log = tmp_path / ("f%s_%d.csv" % (share, seed))
-    log.write_text(flight_csv_once(fault="heavy", seed=seed))
+    log.write_text(flight_csv_once(fault="heavy", seed=seed, duration_s=duration_s))
     params = tmp_path / "p.json"
     params.write_text(json.dumps(demo_fit_params()))
     return log, params
 
 
 def test_above_the_limit_without_an_alarm_says_the_margin(tmp_path, monkeypatch):
-    log, params = _log(tmp_path, monkeypatch, 0.09, 3)
+    # 8 % over plan, 100 s: its last window's implied mass is above the limit, within the margin
+    # (with one 12-s window pooled with the last needed for the alarm, a longer flight this close
+    # to the limit raises it: tests/test_watch_payload_slow_log.py)
+    log, params = _log(tmp_path, monkeypatch, 0.08, 2, 100.0)
     runs = [CliRunner().invoke(cli, ["replay", str(log), "--params", str(params)] + j) for j in ([], ["--json"])]
     assert all(r.exit_code == 0 for r in runs), runs[0].output
     out = json.loads(runs[1].stdout)
@@ -69,7 +72,7 @@ def test_the_stated_threshold_is_the_kernels(tmp_path, monkeypatch, share, seed)
             assert (mu > check["alarm_permille"]) == counted, (t[i], mu, check, run_before, sb[17])
             judged += 1
         done = seen if seen[2] else None
-    assert judged >= 10  # a 300 s flight has many 6 s windows of steady flight
+    assert judged >= 10  # a 300 s flight has many 12 s windows of steady flight
 
 
 def test_above_limit_and_margin_in_too_few_windows_says_how_many_are_needed():
