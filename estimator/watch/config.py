@@ -66,16 +66,11 @@ DEFAULTS = {
     "mass_window_s": 12.0,          # steady flight time per implied-mass window (pooled with the last) [s]
     "mass_windows": 1,              # windows in a row above limit + margin -> mass_high
     "mass_z": 2.0,                  # margin in standard errors of the window mean [-]
-    "mass_corr_s": 2.0,             # flight time per independent stretch of the implied mass [s]. Measured
-                                    # in the detection matrix (variance of 12-s window means over the mean
-                                    # within-window variance / n, 4 fault-free flights a cell-rate): 0.5-5 s,
-                                    # median 2.7 s; 2 s with 12-s windows, one needed (24 s pooled), took the
-                                    # +15 % payload's worst delay 280 -> 82 s, cell-rates over 60 s 14 -> 5,
-                                    # the +10 % payload's misses 12 -> 1, with no false mass_high in 625 h
-                                    # (6-s windows, two in a row and 3 s before; 1.5 s flagged a power ramp
-                                    # the CUSUM missed as mass_high). Below the median: the 8 % limit, not
-                                    # the margin, keeps fault-free flights (their implied mass -1.2..+4.6 %
-                                    # off the plan in the matrix) from the alarm
+    "mass_corr_s": 2.0,             # flight time per independent stretch of the implied mass [s]: measured 0.5-5 s
+                                    # (median 2.7 s) in the detection matrix; 2 s and 12-s windows, one needed: +15 %
+                                    # payload worst 280 -> 82 s, no false mass_high in 625 h (the 8 % limit, not the
+                                    # margin, keeps fault-free flights, -1.2..+4.6 % off plan, clear; 1.5 s flagged a
+                                    # missed power ramp as mass)
     "landed_s": 3.0,                # command below spin this long = landed, next spin-up a new flight [s]
     "dt_max_s": 2.0,                # a sample gap above this is a sensor fault [s]
     "stuck_s": 3.0,                 # current identical this long while spinning -> sensor_fault [s]
