@@ -213,11 +213,23 @@ HELD_WITH_PACK = (("mass", "the all-up mass"), ("battery.resistance", "the pack 
 
 def held_with_pack(varied):
     """[(key, words)] of HELD_WITH_PACK not varied while a pack-size key is; [] when none is varied.
-    varied: the varied keys as written (a unit-suffixed key counts as its short one: mass_kg)."""
-    short = {k.rsplit("_", 1)[0] if k.endswith(("_kg", "_Ah", "_ohm")) else k for k in varied}
+    varied: the varied keys as written (a unit-suffixed key counts as its short one: _short_key)."""
+    short = {_short_key(k) for k in varied}
     if not short & set(PACK_SIZE_KEYS):
         return []
     return [(k, words) for k, words in HELD_WITH_PACK if k not in short]
+
+
+def _short_key(key):
+    """A vehicle key as written on its short name: 'battery.capacity_Ah' -> 'battery.capacity',
+    'mass_kg' -> 'mass' (estimator.vehicle_units.UNIT_KEYS, the one table of unit-bearing keys)."""
+    from estimator.vehicle_units import UNIT_KEYS
+
+    block, _, name = key.rpartition(".")
+    for short, (si_key, _kind) in UNIT_KEYS.get(block, {}).items():
+        if name == si_key:
+            return (block + "." if block else "") + short
+    return key
 
 
 def held_note(result):
