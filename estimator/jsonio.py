@@ -18,7 +18,13 @@ def load_json(path):
     JSON path on failure."""
     from estimator.jsonread import load
 
-    return load(path)
+    document = load(path)
+    if isinstance(document, dict) and str(document.get("model", "")).startswith("liftcal.settings/"):
+        # the JSON twin of jsonread's settings-lines refusal (new-user trial 13, finding 9)
+        raise InputError("%s: is a settings file that liftcal export wrote (a JSON document for the flight "
+                         "controller); is it the right file? (the parameter set it came from is the JSON "
+                         "that liftcal fit wrote)" % path)
+    return document
 
 
 def load_schema(name):
@@ -83,6 +89,8 @@ def _message(err):
         unknown = [k for k in value if k not in allowed]
         return "unknown key%s %s%s" % ("s" if len(unknown) > 1 else "", ", ".join(shorten(k) for k in unknown[:3]),
                                         " (and %d more)" % (len(unknown) - 3) if len(unknown) > 3 else "")
+    if err.validator == "not" and isinstance(err.schema, dict) and err.schema.get("description"):
+        return "%s is not allowed here: %s" % (json.dumps(value)[:40], err.schema["description"])  # map scale 0
     choice = _key_choice(err)
     if choice:
         return choice

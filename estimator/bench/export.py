@@ -117,6 +117,9 @@ def export_settings(params, mapping, source_name="map", params_name=None):
             raise InputError("%s: source %r is not a number" % (where, entry["source"]))
         raw = value * entry.get("scale", 1.0) + entry.get("offset", 0.0)
         decimals = entry.get("decimals", 6)
+        if not math.isfinite(raw):
+            raise InputError("%s: %s = %.6g x scale %g overflows (no finite number): check the map's scale"
+                             % (where, entry["source"], value, entry.get("scale", 1.0)))
         result = int(round(raw)) if decimals == 0 else round(raw, decimals)
         lo, hi = entry.get("min"), entry.get("max")
         if (lo is not None and result < lo) or (hi is not None and result > hi):
@@ -154,15 +157,38 @@ def format_lines(settings, header=None):
 
 # a source value whose scaled size is below this share of the setting's last digit is float noise [-]
 SOURCE_NOISE_SHARE = 1e-6
+# ... and so is one below this in its own SI unit (no value of a parameter set is that small) [-]
+SOURCE_NOISE_SI = 1e-12
+
+
+def _noise(setting):
+    """True when a setting's source value is the float noise of a fit that ended at its bound
+    (new-user trial 11, finding 12: 'command_start = 1.26587e-24'): below SOURCE_NOISE_SI and,
+    scaled, below SOURCE_NOISE_SHARE of the setting's last digit (10^-decimals). The value itself
+    decides, so a scale can never make a real value look like 0 (new-user trial 13, finding 8)."""
+    value = setting["source_value"]
+    last_digit = 10.0 ** -setting.get("decimals", 6)
+    return abs(value) < SOURCE_NOISE_SI and abs(value * setting["scale"]) < SOURCE_NOISE_SHARE * last_digit
 
 
 def _shown_source(setting):
-    """The source value of a setting as its provenance shows it: 0 when, scaled, it lies below
-    SOURCE_NOISE_SHARE of the setting's last digit (10^-decimals), the float noise of a fit that
-    ended at its bound (new-user trial 11, finding 12: 'command_start = 1.26587e-24'); else itself."""
-    value = setting["source_value"]
-    last_digit = 10.0 ** -setting.get("decimals", 6)
-    return 0.0 if abs(value * setting["scale"]) < SOURCE_NOISE_SHARE * last_digit else value
+    """The source value of a setting as its provenance shows it: 0 for float noise (_noise), else itself."""
+    return 0.0 if _noise(setting) else setting["source_value"]
+
+
+def lost_value_notes(settings):
+    """A note for each setting whose source value, not noise, is lost at the map's decimals: the
+    scaled value rounds to zero (0.769 x 0.001 at 2 decimals is 0.00; new-user trial 13, finding 8),
+    so the setting carries nothing of it. settings: export_settings' dicts."""
+    out = []
+    for s in settings:
+        scaled = s["source_value"] * s["scale"]
+        if scaled != 0.0 and not _noise(s) and round(scaled, s["decimals"]) == 0.0:
+            out.append("%s: %s = %.6g %s x %g is %.3g, which rounds to 0 at %d decimal%s: the setting "
+                       "carries none of the value; check the map's scale or give it more decimals"
+                       % (s["name"], s["source"], s["source_value"], s["source_unit"], s["scale"], scaled,
+                          s["decimals"], "" if s["decimals"] == 1 else "s"))
+    return out
 
 
 def as_mapping(settings):

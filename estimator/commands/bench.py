@@ -219,15 +219,27 @@ def settings_text(settings, mapping, params_name, map_name):
     'through the example map' where export says 15.20 V and 'through example-map.json (8)')."""
     from estimator.bench.export import format_lines
 
-    header = "liftcal settings from %s through %s (%d); %s" % (
-        shown(os.path.basename(params_name)), shown(os.path.basename(map_name)), len(settings), SHORT)
+    # the count says what it counts (new-user trial 13, finding 12: a bare '(8)' was never explained)
+    header = "liftcal settings from %s through %s (%d setting%s); %s" % (
+        shown(os.path.basename(params_name)), shown(os.path.basename(map_name)), len(settings),
+        "" if len(settings) == 1 else "s", SHORT)
     return format_lines(in_map_decimals(settings, mapping), header)
 
 
+def settings_json_name(path):
+    """True when an export --out name ends in .json: the file is then the JSON document, else the
+    settings lines (the name says the format, as fit's .json parameter sets; new-user trial 13,
+    finding 9)."""
+    return os.fspath(path).lower().endswith(".json")
+
+
 def export_notes(settings, params):
-    """The notes export shows under the settings: what the top-thrust values mean, then the fit's
-    warnings ('fit: ...')."""
-    return top_thrust_notes(settings, params) + ["fit: " + w for w in params.get("warnings", [])]
+    """The notes export shows under the settings: a value lost to rounding, what the top-thrust values
+    mean, then the fit's warnings ('fit: ...')."""
+    from estimator.bench.export import lost_value_notes
+
+    return (lost_value_notes(settings) + top_thrust_notes(settings, params)
+            + ["fit: " + w for w in params.get("warnings", [])])
 
 
 def with_notes(text, notes):
@@ -289,9 +301,10 @@ def top_thrust_notes(settings, params):
               help="Your mapping of our keys to your controller's names (default: the shipped "
                    "example with invented names).")
 @click.option("--out", "out_file", type=FILE_NAME, default=None, metavar="FILE",
-              help="Also write the settings to FILE (atomically): the lines as printed, with the "
-                   "notes and the fit's warnings as '# !' lines, or with --json a JSON document (model "
-                   "liftcal.settings/1) holding them. Replaces only a settings file liftcal wrote.")
+              help="Also write the settings to FILE (atomically); its name says the format: FILE.json "
+                   "a JSON document (model liftcal.settings/1) holding the settings, notes and the "
+                   "fit's warnings, any other name the lines with the notes as '# !' lines (with or "
+                   "without --json). Replaces only a settings file liftcal wrote.")
 @click.option("--from-edited", "from_edited", is_flag=True,
               help="Export a parameter set edited since liftcal wrote it (its content seal broken); "
                    "without it liftcal refuses such a set.")
@@ -304,7 +317,7 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     """
     from estimator.bench.export import EXAMPLE_MAP, as_mapping, export_settings, load_map
     from estimator.cautions import cautions
-    from estimator.outputs import SETTINGS_MARK, check_output, write_text
+    from estimator.outputs import check_output, write_text
     from estimator.params import load_params
 
     from estimator.replacing import replaced_line
@@ -322,18 +335,20 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     settings = export_settings(params, mapping, shown(path) if map_file is not None else
                                "the shipped example-map.json", shown(params_file))
     notes = export_notes(settings, params)
-    text = dumps(as_mapping(settings)) + "\n" if as_json else settings_text(settings, mapping, params_file, path)
-    if edited and not as_json:  # under the header line
-        head, rest = text.split("\n", 1)
-        text = "%s\n# WARNING: %s\n%s" % (head, edited, rest)
+    lines = settings_text(settings, mapping, params_file, path)
+    if edited:  # under the header line
+        head, rest = lines.split("\n", 1)
+        lines = "%s\n# WARNING: %s\n%s" % (head, edited, rest)
+    text = dumps(as_mapping(settings)) + "\n" if as_json else lines
     if out_file is not None:
         # a file carries its mark, so liftcal knows it as its own later (outputs.py): the
         # lines start with the '# liftcal settings' header, a JSON file names its model; the
         # JSON file is what a person loads into a controller, so it carries the cautions too
         # the notes (what the values mean, the fit's warnings) go into the text file too, as '#'
         # lines: the file kept beside the controller says what the screen said (new-user trial 12,
-        # finding 10)
-        kept = with_notes(text, notes) if text.startswith(SETTINGS_MARK) else dumps({
+        # finding 10). The file's format follows its name, .json a JSON document, any other the
+        # lines, whatever the screen shows (new-user trial 13, finding 9: 'fresh.json' held the lines)
+        kept = with_notes(lines, notes) if not settings_json_name(out_file) else dumps({
             "schema_version": 1, "model": "liftcal.settings/1",
             "parameter_set": os.path.basename(params_file), "map": os.path.basename(path),
             "settings": as_mapping(settings), "warnings": ([edited] if edited else []) + notes,
@@ -347,6 +362,7 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     for note in notes:  # what the values mean and what the fit warned about them
         click.echo("! " + note if as_json else fit_width("! " + note), err=as_json)
     if out_file is not None and not as_json:
-        click.echo("settings written to %s" % out_file)
+        click.echo("settings written to %s%s" % (out_file, " (a JSON document, model liftcal.settings/1)"
+                                                  if settings_json_name(out_file) else ""))
     if replaced:  # under --json stdout holds the settings object only
         click.echo(replaced if as_json else fit_width(replaced), err=as_json)
