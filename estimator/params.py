@@ -211,6 +211,7 @@ def vehicle_block(vehicle):
         "full_voltage_V": _r(b["cells"] * b["full_cell_V"]),
         "nominal_voltage_V": _r(b["cells"] * b["nominal_cell_V"]),
         "empty_voltage_V": _r(b["cells"] * b["empty_cell_V"]),
+        **({"avionics_current_A": vehicle["avionics_current_A"]} if vehicle.get("avionics_current_A") else {}),
     }
 
 

@@ -124,7 +124,7 @@ BARE_NUMBER = re.compile(r"^\s*[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*$")
 # where a key may be written without its unit, and the unit kind of every unit-bearing key:
 # block -> {short key: (SI key, estimator.units kind)}; "" is the top level
 UNIT_KEYS = {
-    "": {"mass": ("mass_kg", "mass")},
+    "": {"mass": ("mass_kg", "mass"), "avionics_current": ("avionics_current_A", "current")},
     "propeller": {"diameter": ("diameter_m", "length"), "pitch": ("pitch_m", "length")},
     "motor": {"resistance": ("resistance_ohm", "resistance"),
               "no_load_current": ("no_load_current_A", "current"),

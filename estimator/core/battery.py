@@ -17,6 +17,19 @@ def pack_open_circuit_V(cells, cell_V):
     return cells * cell_V
 
 
+def rotor_source_V(open_circuit_V, resistance_ohm, avionics_current_A):
+    """Open-circuit voltage of the pack as the rotors see it while a constant avionics current
+    (flight controller, video transmitter, camera, gimbal) also flows from it.
+
+    V_bus = V_oc - R_pack (I_rotors + I_av) = (V_oc - R_pack I_av) - R_pack I_rotors: the rotors
+    see a pack of open-circuit voltage V_oc - R_pack I_av and the same resistance, and the pack
+    current is I_rotors + I_av. open_circuit_V: V_oc [V]; resistance_ohm: R_pack [ohm];
+    avionics_current_A: I_av [A], >= 0. Returns V_oc - R_pack I_av [V].
+    Source: Thevenin equivalent of a cell stack (design notes sec. 3), superposition.
+    """
+    return open_circuit_V - resistance_ohm * avionics_current_A
+
+
 def cell_open_circuit_V(state_of_charge, full_cell_V, nominal_cell_V, empty_cell_V):
     """Open-circuit cell voltage against state of charge, piecewise linear.
 

@@ -10,7 +10,7 @@ of hover); the usable charge over the nominal-pack hover current is given beside
 Sources: design notes sec. 3; the modules named above.
 """
 
-from estimator.core.battery import endurance_min, pack_open_circuit_V, usable_capacity_Ah
+from estimator.core.battery import endurance_min, pack_open_circuit_V, rotor_source_V, usable_capacity_Ah
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.discharge import discharge_to_cutoff
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
@@ -36,13 +36,15 @@ def rotor_propeller(propeller, layout):
 
 
 def hover_at_pack(mass_kg, rotor_count, open_circuit_V, pack_resistance_ohm, density_kg_m3,
-                  motor, propeller, esc_efficiency=1.0):
+                  motor, propeller, esc_efficiency=1.0, avionics_current_A=0.0):
     """Hover and full-command points of N rotors at one pack open-circuit voltage.
 
     mass_kg: all-up mass m [kg]; rotor_count: N [-]; open_circuit_V: V_oc [V];
     pack_resistance_ohm: R_pack [ohm]; density_kg_m3: rho [kg/m^3];
     motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
-    propeller: dict diameter_m [m], ct [-], cp [-] (already adjusted for the layout); esc_efficiency: eta_esc [-].
+    propeller: dict diameter_m [m], ct [-], cp [-] (already adjusted for the layout); esc_efficiency: eta_esc [-];
+    avionics_current_A: constant current of everything else on the pack I_av [A] (the rotors see
+    battery.rotor_source_V; the pack_current_A of hover and full include it).
     Returns a dict: hover (propulsion.shared_point_for_thrust result), full
     (propulsion.shared_operating_point at d = 1), command [-] or None when the vehicle
     cannot hover, thrust_to_weight [-] (full-command thrust / weight),
@@ -52,10 +54,14 @@ def hover_at_pack(mass_kg, rotor_count, open_circuit_V, pack_resistance_ohm, den
     """
     weight = mass_kg * STANDARD_GRAVITY_M_S2
     per_rotor = weight / rotor_count
-    hover = shared_point_for_thrust(per_rotor, open_circuit_V, pack_resistance_ohm, rotor_count,
+    source_V = rotor_source_V(open_circuit_V, pack_resistance_ohm, avionics_current_A)
+    hover = shared_point_for_thrust(per_rotor, source_V, pack_resistance_ohm, rotor_count,
                                     density_kg_m3, motor, propeller, esc_efficiency)
-    full = shared_operating_point(1.0, open_circuit_V, pack_resistance_ohm, rotor_count,
+    full = shared_operating_point(1.0, source_V, pack_resistance_ohm, rotor_count,
                                   density_kg_m3, motor, propeller, esc_efficiency)
+    for point in (hover, full):
+        if point["pack_current_A"] is not None:
+            point["pack_current_A"] += avionics_current_A
     can_hover = hover["limited_by"] is None and full["total_thrust_N"] >= weight
     fraction = None
     if hover["bus_V"] is not None:
@@ -73,13 +79,14 @@ def hover_at_pack(mass_kg, rotor_count, open_circuit_V, pack_resistance_ohm, den
 
 
 def hover_load(mass_kg, rotor_count, density_kg_m3, motor, propeller, pack_resistance_ohm,
-               esc_efficiency=1.0):
+               esc_efficiency=1.0, avionics_current_A=0.0):
     """The hover load of a vehicle as core.discharge wants it: V_oc -> (I_pack, V_bus) or None.
 
     mass_kg: all-up mass [kg]; rotor_count: N [-]; density_kg_m3: rho [kg/m^3];
     motor: dict kv_rpm_per_V [rpm/V], resistance_ohm [ohm], no_load_current_A [A];
     propeller: dict diameter_m [m], ct [-], cp [-] (already adjusted for the layout);
-    pack_resistance_ohm: R_pack [ohm]; esc_efficiency: eta_esc [-]. The returned
+    pack_resistance_ohm: R_pack [ohm]; esc_efficiency: eta_esc [-]; avionics_current_A: I_av [A]
+    (battery.rotor_source_V; included in the pack current). The returned
     function gives the pack current [A] and bus voltage [V] of the hover point at a pack
     open-circuit voltage [V], or None where the vehicle cannot hover (duty above 1, or the
     pack cannot deliver the power). Source: propulsion.shared_point_for_thrust.
@@ -87,16 +94,16 @@ def hover_load(mass_kg, rotor_count, density_kg_m3, motor, propeller, pack_resis
     per_rotor = mass_kg * STANDARD_GRAVITY_M_S2 / rotor_count
 
     def load(open_circuit_V):
-        point = shared_point_for_thrust(per_rotor, open_circuit_V, pack_resistance_ohm, rotor_count,
-                                        density_kg_m3, motor, propeller, esc_efficiency)
+        point = shared_point_for_thrust(per_rotor, rotor_source_V(open_circuit_V, pack_resistance_ohm, avionics_current_A),
+                                        pack_resistance_ohm, rotor_count, density_kg_m3, motor, propeller, esc_efficiency)
         if point["limited_by"] is not None:
             return None
-        return point["pack_current_A"], point["bus_V"]
+        return point["pack_current_A"] + avionics_current_A, point["bus_V"]
     return load
 
 
 def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller, battery,
-                   esc_efficiency=1.0):
+                   esc_efficiency=1.0, avionics_current_A=0.0):
     """Hover at full, nominal and empty pack and the endurance of a vehicle.
 
     mass_kg: all-up mass [kg]; rotor_count: total rotors N [-] (coaxial: 2 per arm);
@@ -105,7 +112,9 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
     propeller: dict diameter_m [m], ct [-], cp [-]; battery: dict cells [-],
     capacity_Ah [Ah], resistance_ohm [ohm], full_cell_V / nominal_cell_V / empty_cell_V [V],
     usable_fraction [-], cutoff_cell_V [V] (loaded; default empty_cell_V - 0.2 V);
-    esc_efficiency: eta_esc [-].
+    esc_efficiency: eta_esc [-]; avionics_current_A: steady current of everything on the pack that
+    is not a motor (flight controller, video transmitter, camera, gimbal) [A]: in the pack
+    current, the sag and the endurance (battery.rotor_source_V); hover_power_W stays the rotors'.
     Returns a dict: states {full, nominal, empty} -> hover_at_pack result (plus
     open_circuit_V [V]); hover_command, hover_command_full, hover_command_empty [-] or None;
     thrust_to_weight [-] and hover_thrust_fraction [-] at nominal pack; hover_current_A [A]
@@ -123,7 +132,7 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
     for name in PACK_STATES:
         v_oc = pack_open_circuit_V(battery["cells"], battery[name + "_cell_V"])
         st = hover_at_pack(mass_kg, rotor_count, v_oc, battery["resistance_ohm"], density_kg_m3,
-                           motor, prop, esc_efficiency)
+                           motor, prop, esc_efficiency, avionics_current_A)
         st["open_circuit_V"] = v_oc
         states[name] = st
     nominal = states["nominal"]
@@ -131,13 +140,14 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
     hovering = nominal["command"] is not None
     current = nominal["hover"]["pack_current_A"] if hovering else None
     load = hover_load(mass_kg, rotor_count, density_kg_m3, motor, prop, battery["resistance_ohm"],
-                      esc_efficiency)
+                      esc_efficiency, avionics_current_A)
     discharge = discharge_to_cutoff(battery["cells"], battery["capacity_Ah"],
                                     battery.get("usable_fraction", 0.8), battery["full_cell_V"],
                                     battery["nominal_cell_V"], battery["empty_cell_V"],
                                     battery.get("cutoff_cell_V", battery["empty_cell_V"] - 0.2), load)
     cutoff_cell_V = battery.get("cutoff_cell_V", battery["empty_cell_V"] - 0.2)
-    reachable = reachable_at_cutoff(battery["cells"] * cutoff_cell_V, nominal["open_circuit_V"],
+    reachable = reachable_at_cutoff(battery["cells"] * cutoff_cell_V,
+                                    rotor_source_V(nominal["open_circuit_V"], battery["resistance_ohm"], avionics_current_A),
                                     battery["resistance_ohm"], rotor_count, density_kg_m3, motor, prop,
                                     esc_efficiency, nominal["weight_N"])
     return {

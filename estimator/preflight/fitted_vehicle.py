@@ -5,6 +5,7 @@ fitted DC motor + propeller, at any air density) is estimator.core.fitted_rotor.
 The pack sags as V_bus = V_oc - R_pack I_pack (Thevenin pack, design notes sec. 3).
 """
 
+from estimator.core.battery import rotor_source_V
 from estimator.core.fitted_rotor import FittedRotor
 from estimator.units import STANDARD_GRAVITY_M_S2
 
@@ -16,21 +17,26 @@ def vehicle_state(params, vehicle, rho, open_circuit_V):
     air (preflight.pack); rho: site air density [kg/m^3]; open_circuit_V: pack V_oc [V]. Returns
     a dict: weight_N, thrust_per_rotor_N, power_W, bus_V, command, fraction, current_A,
     limited_by ("pack", "command" or None), duty, motor_current_A, the full_* values at full
-    command, and the FittedRotor itself (rotor).
+    command, and the FittedRotor itself (rotor). The vehicle's avionics_current_A [A] (default 0)
+    flows from the pack too: the rotors see core.battery.rotor_source_V (source_V), and current_A
+    and full_pack_current_A include it (avionics_current_A is given back beside them).
     """
     count = vehicle["rotors"]["count"]
     rotor = FittedRotor(params, rho, vehicle["rotors"].get("layout", "flat") == "coaxial")
     weight = vehicle["mass_kg"] * STANDARD_GRAVITY_M_S2
     t_r = weight / count
     r_pack = vehicle["battery"]["resistance_ohm"]
-    h = rotor.hover(t_r, count, open_circuit_V, r_pack)
-    f = rotor.full(count, open_circuit_V, r_pack)
-    out = {"weight_N": weight, "thrust_per_rotor_N": t_r, "open_circuit_V": open_circuit_V,
+    av = vehicle.get("avionics_current_A", 0.0)
+    source_V = rotor_source_V(open_circuit_V, r_pack, av)
+    h = rotor.hover(t_r, count, source_V, r_pack)
+    f = rotor.full(count, source_V, r_pack)
+    out = {"weight_N": weight, "thrust_per_rotor_N": t_r, "open_circuit_V": open_circuit_V, "source_V": source_V,
+           "avionics_current_A": av,
            "power_W": h["power_W"], "bus_V": h["bus_V"], "command": h["command"], "fraction": None,
-           "current_A": h["pack_current_A"], "limited_by": None, "duty": h["duty"],
-           "motor_current_A": h["motor_current_A"],
+           "current_A": None if h["pack_current_A"] is None else h["pack_current_A"] + av,
+           "limited_by": None, "duty": h["duty"], "motor_current_A": h["motor_current_A"],
            "full_thrust_N": count * f["thrust_N"], "full_power_W": f["pack_current_A"] * f["bus_V"],
-           "full_bus_V": f["bus_V"], "full_pack_current_A": f["pack_current_A"],
+           "full_bus_V": f["bus_V"], "full_pack_current_A": f["pack_current_A"] + av,
            "full_motor_current_A": f["motor_current_A"], "rotor": rotor}
     if h["bus_V"] is None:
         out["limited_by"] = "pack"
@@ -49,7 +55,7 @@ def reachable_at_cutoff(state, battery, rotors):
     cutoff_V = battery["cells"] * battery["cutoff_cell_V"]
     if state["full_bus_V"] >= cutoff_V or state["open_circuit_V"] <= cutoff_V:
         return {"reachable_command": None, "reachable_thrust_to_weight": None}
-    at = state["rotor"].at_bus_V(rotors, cutoff_V, battery["resistance_ohm"], state["open_circuit_V"])
+    at = state["rotor"].at_bus_V(rotors, cutoff_V, battery["resistance_ohm"], state["source_V"])
     return {"reachable_command": at["command"],
             "reachable_thrust_to_weight": rotors * at["thrust_N"] / state["weight_N"]}
 

@@ -86,9 +86,10 @@ def hover_from_params(vehicle, params, command_unit="-"):
         # the fitted current is referred to the ESC input (module docstring): the motor's own
         # current is eta_esc times it, as in the datasheet route (P_bus = Vm I / eta_esc)
         "full_motor_current_A": esc_eff * nom["full_motor_current_A"],
-        "full_esc_input_current_A": nom["full_pack_current_A"] / count,
+        "full_esc_input_current_A": (nom["full_pack_current_A"] - nom["avionics_current_A"]) / count,
         "hover_motor_current_A": esc_eff * nom["motor_current_A"] if hovering else None,
-        "hover_esc_input_current_A": nom["current_A"] / count if hovering else None,
+        "hover_esc_input_current_A": (nom["current_A"] - nom["avionics_current_A"]) / count if hovering else None,
+        "avionics_current_A": nom["avionics_current_A"],
         "esc_efficiency": esc_eff,
         "motor_current_limit_A": vehicle["motor"].get("max_current_A"),
         "pack_current_limit_A": max_pack_current_A(b["capacity_Ah"], b.get("max_discharge_C")),
@@ -100,7 +101,7 @@ def hover_from_params(vehicle, params, command_unit="-"):
         "static_factor": rotor_static_factor(params["power_model"], nom["thrust_per_rotor_N"],
                                              params["power_model"]["reference_density_kg_m3"],
                                              disk_area_m2(params["rotor"]["diameter_m"])),
-        "per_rotor_bus_current_A": (nom["current_A"] / count) if hovering else None,
+        "per_rotor_bus_current_A": (nom["current_A"] - nom["avionics_current_A"]) / count if hovering else None,
         "flight_time_usable_share_min": endurance_min(usable, nom["current_A"]) if hovering else None,
         "flight_time_usable_share_basis": "usable share of the capacity at the nominal-pack hover current",
         "flight_time_basis": ("discharge from a full pack, hover current rising as the pack drains, "
@@ -114,7 +115,7 @@ def hover_from_params(vehicle, params, command_unit="-"):
     report.update(full_command_sag(report))
     peak = states["full"]  # the current limits' pack state (warnings.judged_currents)
     report.update(judged_currents({"bus_V": peak["full_bus_V"], "motor_current_A": esc_eff * peak["full_motor_current_A"],
-                                   "esc_input_current_A": peak["full_pack_current_A"] / count,
+                                   "esc_input_current_A": (peak["full_pack_current_A"] - peak["avionics_current_A"]) / count,
                                    "pack_current_A": peak["full_pack_current_A"]}, b["cells"], b["cutoff_cell_V"]))
     report.update(reachable_at_cutoff(nom, b, count))
     if hovering:

@@ -66,7 +66,7 @@ def _report(vehicle, params=None):
         propeller, estimate = estimated_propeller(propeller, vehicle["mass_kg"], count, air)
     battery, pack_temperature, pack_basis = pack_in_the_air(vehicle, air)
     est = hover_estimate(vehicle["mass_kg"], count, layout, rho, vehicle["motor"],
-                         propeller, battery, esc_eff)
+                         propeller, battery, esc_eff, vehicle.get("avionics_current_A", 0.0))
     # a small estimated rotor: the sheet leads with the figure of merit measured rotors of its size
     # reach, so every hover number (command, currents, power, minutes, margins) is taken there too
     # and the generic blade's estimate becomes the secondary line (trial 8, item 3)
@@ -144,6 +144,7 @@ def _report(vehicle, params=None):
         "coaxial_induced_power_factor": est["coaxial_induced_power_factor"],
         "coaxial_factor_basis": "power",
         "esc_efficiency": esc_eff,
+        "avionics_current_A": vehicle.get("avionics_current_A", 0.0),
     }
     report.update(pack_keys(vehicle, battery, pack_temperature, pack_basis))
     report.update(full_command_sag(report))
@@ -181,7 +182,8 @@ def _low_reynolds_check(vehicle, propeller, estimate, est, count, layout, rho, b
     lower = low_reynolds_propeller(propeller, estimate)
     if lower is None:
         return None, None, None
-    low = hover_estimate(vehicle["mass_kg"], count, layout, rho, vehicle["motor"], lower, battery, esc_eff)
+    low = hover_estimate(vehicle["mass_kg"], count, layout, rho, vehicle["motor"], lower, battery, esc_eff,
+                         vehicle.get("avionics_current_A", 0.0))
     hovering = est["hover_command"] is not None
     est_hover = est["states"]["nominal"]["hover"]
     check = {"reynolds_75": estimate["reynolds_75"], "figure_of_merit_estimated": estimate["figure_of_merit"],

@@ -34,6 +34,11 @@ def coaxial_text(report):
     return text
 
 
+def _avionics(report):
+    """' + 0.50 A avionics' when the vehicle gives a steady non-motor current (in the pack current), else ''."""
+    return " + %s avionics" % _num(report["avionics_current_A"], SIG3, "A") if report.get("avionics_current_A") else ""
+
+
 def _at_hover(current_A):
     return "" if current_A is None else "%s at hover, " % _num(current_A, SIG3, "A")
 
@@ -94,9 +99,9 @@ def sag_text(report):
 
 
 def _esc_input_judged(report):
-    """The ESC's input current [A] at full command on a full pack: its pack share."""
+    """The ESC's input current [A] at full command on a full pack: its pack share (less the avionics)."""
     pack, count = report.get("pack_current_judged_A"), report.get("rotor_count")
-    return pack / count if pack is not None and count else None
+    return (pack - (report.get("avionics_current_A") or 0.0)) / count if pack is not None and count else None
 
 
 def _command(report, key, none="n/a"):
@@ -257,9 +262,9 @@ def format_sheet(report, section5=None):
                      _num(report.get("esc_current_limit_A"), GIVEN3, "A", none="not given"),
                      ", judged on %s, the larger of its input and output" % _num(esc_peak, SIG3, "A")
                      if report.get("esc_current_limit_A") is not None and esc_peak is not None else ""))
-    lines.append("   pack current       %s%s, all %d motors (rating %s)" % (
+    lines.append("   pack current       %s%s, all %d motors%s (rating %s)" % (
         _at_hover(report.get("hover_current_A")) if report.get("can_hover") else "",
-        _at_full(report, current_judged(report, "pack"), report.get("full_pack_current_A")), count,
+        _at_full(report, current_judged(report, "pack"), report.get("full_pack_current_A")), count, _avionics(report),
         _num(report.get("pack_current_limit_A"), GIVEN3, "A", none="not given")))
     lines.append("")
 
@@ -300,8 +305,8 @@ def format_sheet(report, section5=None):
             lines.append("   cutoff %.2f V per cell under load; pack resistance %s%s" % (
                 report["cutoff_cell_V"], resistance_text(report.get("pack_resistance_ohm")),
                 pack_temperature_text(report)))
-        lines.append("   hover draws %s from the pack (all motors), %s (nominal pack, bus at %s)" % (
-            _num(report.get("hover_current_A"), SIG3, "A"), _num(report.get("hover_power_W"), SIG3, "W"),
+        lines.append("   hover draws %s from the pack (all motors%s), %s (nominal pack, bus at %s)" % (
+            _num(report.get("hover_current_A"), SIG3, "A"), _avionics(report), _num(report.get("hover_power_W"), SIG3, "W"),
             _num(report.get("hover_bus_V"), "%.2f", "V")))
         extras = []
         if report.get("hover_rpm") is not None:

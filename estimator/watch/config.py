@@ -23,10 +23,13 @@ from estimator.core import watch_layout as layout
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.power_model import rotor_power_W
 from estimator.errors import InputError
+from estimator.watch.cusum_arl import SIEGMUND_OFFSET, log_arl_two_sided, log_siegmund_arl  # noqa: F401 (re-exported)
+from estimator.watch.cusum_arl import siegmund_arl, siegmund_arl_two_sided, threshold_for_arl  # noqa: F401
 from estimator.watch.named_watch import NamedWatch
 from estimator.watch.sensor_range import current_range_mA, pack_voltages, voltage_range_mV
 from estimator.watch.site_air import expected_thrust
-from estimator.watch.thrust_table import coaxial_note, flight_power_model, thrust_from_power_total_N, thrust_knots_mN
+from estimator.watch.thrust_table import avionics_power_W, coaxial_note, flight_power_model
+from estimator.watch.thrust_table import thrust_from_power_total_N, thrust_knots_mN
 
 
 DEFAULTS = {
@@ -95,76 +98,6 @@ CONFIG_LENGTH = layout.CONFIG_LENGTH
 ROTOR_LAG_S_PER_M = 0.25    # [s/m] of propeller diameter
 SENSOR_LAG_MS = 20.0        # [ms]
 
-SIEGMUND_OFFSET = 1.166  # b = h + 1.166: 2 x 0.583, the overshoot correction (Siegmund 1985)
-
-
-def log_siegmund_arl(k, h, mu=0.0):
-    """Natural log of the one-sided CUSUM average run length by Siegmund's approximation.
-
-    ARL = (exp(-2 D b) + 2 D b - 1) / (2 D^2), D = mu - k, b = h + 1.166 (ARL = b^2 when D = 0),
-    for standardised increments N(mu, 1); k reference value [sigma], h threshold [sigma].
-    Computed in logs so that no value overflows for any k, h >= 0: with x = -2 D b > 0,
-    ln ARL = x + ln(1 - (1 + x) e^-x) - ln(2 D^2). Source: Siegmund (1985), sec. X.2 (from memory).
-    """
-    d = mu - k
-    b = h + SIEGMUND_OFFSET
-    x = -2.0 * d * b
-    if abs(x) < 1e-6:
-        return 2.0 * math.log(b)
-    if x > 0.0:
-        return x + math.log1p(-(1.0 + x) * math.exp(-x)) - math.log(2.0 * d * d)
-    # x < 0: exp(x) <= 1, the numerator is at most 2 |D| b: no overflow either
-    return math.log(math.expm1(x) - x) - math.log(2.0 * d * d)
-
-
-def siegmund_arl(k, h, mu=0.0):
-    """One-sided CUSUM average run length by Siegmund's approximation [samples].
-
-    k: reference value [sigma]; h: threshold [sigma]; mu: mean of the standardised
-    increments [sigma]. ARL = (exp(-2 D b) + 2 D b - 1) / (2 D^2), D = mu - k, b = h + 1.166.
-    Returns inf (never raises) when the run length is beyond floating point.
-    Source: Siegmund (1985), sec. X.2 (from memory).
-    """
-    v = log_siegmund_arl(k, h, mu)
-    return math.exp(v) if v < 700.0 else float("inf")
-
-
-def log_arl_two_sided(k, h, mu=0.0):
-    """ln of the two-sided ARL: 1 / ARL2 = 1 / ARL+(mu) + 1 / ARL-(mu) (Siegmund 1985), in logs."""
-    a, b = log_siegmund_arl(k, h, mu), log_siegmund_arl(k, h, -mu)
-    lo, hi = (a, b) if a < b else (b, a)
-    return lo - math.log1p(math.exp(lo - hi))
-
-
-def siegmund_arl_two_sided(k, h, mu=0.0):
-    """Two-sided CUSUM ARL [samples]: 1 / ARL2 = 1 / ARL+(mu) + 1 / ARL-(mu) (Siegmund 1985)."""
-    v = log_arl_two_sided(k, h, mu)
-    return math.exp(v) if v < 700.0 else float("inf")
-
-
-def threshold_for_arl(k, arl_two_sided):
-    """Threshold h [sigma] at which the two-sided in-control ARL equals ``arl_two_sided``.
-
-    The log ARL rises monotonically with h; the bracket [0, hi] is doubled until it holds the
-    target, then bisected (100 halvings), all in logs: no overflow for any k >= 0 and any target
-    (a very clean bench gives a large k in sigma units; that is valid input). Returns 0 when the
-    target is below the ARL at h = 0. k: reference value [sigma].
-    """
-    target = math.log(max(arl_two_sided, 1.0))
-    if log_arl_two_sided(k, 0.0) >= target:
-        return 0.0
-    lo, hi = 0.0, 1.0
-    while log_arl_two_sided(k, hi) < target:   # ln ARL grows at least like 2 ln(h): ends quickly
-        lo, hi = hi, 2.0 * hi
-    for _ in range(100):
-        mid = 0.5 * (lo + hi)
-        if log_arl_two_sided(k, mid) < target:
-            lo = mid
-        else:
-            hi = mid
-    return 0.5 * (lo + hi)
-
-
 def table(values, name, top):
     """A CONFIG table: tuple of ints in 0..top (InputError otherwise)."""
     out = tuple(int(v) for v in values)
@@ -213,6 +146,8 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     layout = v.get("layout", "flat")
     pm = flight_power_model(params, layout, rho)   # a coaxial pair's penalty as the pre-flight sheet's
     mass_kg = float(v["mass_kg"])
+    p_av = avionics_power_W(v)   # the bus power that reaches no rotor: in the expected power, out of the implied thrust
+    av_note = " + avionics %.3g A = %.1f W" % (v["avionics_current_A"], p_av) if p_av > 0.0 else ""
     notes = {}
     cfg = {}
 
@@ -259,7 +194,8 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     put("v_max_mV", v_max_mV, n_hi)
     # the voltage tables span the whole accepted range v_min..v_max (no clamping in the kernel)
     v_step = (v_max_mV - v_min_mV) // 12 + 1
-    put("volt_step_mV", v_step, "voltage tables: 12 steps from v_min_mV, to %.3f V" % ((v_min_mV + 12 * v_step) / 1000.0))
+    put("volt_step_mV", v_step, "voltage tables: 12 steps of %.3f V from v_min_mV; the last knot, %.3f V, lies just above "
+        "v_max_mV so that every voltage the watch accepts is inside the table" % (v_step / 1000.0, (v_min_mV + 12 * v_step) / 1000.0))
 
     # expected thrust from the fitted motor model in the site's air, where the watch judges: the
     # thrust factor of each table voltage at the hover command, the full-command thrust that puts
@@ -273,7 +209,7 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     # full command on a full pack: the pre-flight sheet's pack current (commands.watch.watch_options, with a
     # vehicle file), else the power model's bus current at the full pack voltage (no sag: an upper figure)
     f_full = min((v_full / v_ref) ** curve["voltage_exponent"], 1.5)
-    i_full = o["full_command_current_A"] or n_rot * rotor_power_W(pm, t_site * f_full, rho) / v_full
+    i_full = o["full_command_current_A"] or n_rot * rotor_power_W(pm, t_site * f_full, rho) / v_full + v.get("avionics_current_A", 0.0)
     i_min_mA, i_max_mA, (n_lo, n_hi), warning = current_range_mA(
         i_full, v.get("max_current_A"), o["current_max_A"], o["current_min_A"], o["full_command_current_A"] is None)
     put("i_min_mA", i_min_mA, n_lo)
@@ -282,8 +218,10 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
         notes["range_warning"] = warning
     # capped at 1.5 (6143): with t(x) <= 1 the power table's argument f = factor x t stays in its range
     vq = [min(6143, int(round(4096.0 * x))) for x in factors]
-    put("volt_q12", table(vq, "volt_q12", 6143), "%s x 4096 at the table voltages %.3f..%.3f V"
-        % (how, volts[0], volts[-1]))
+    capped = [v for v, x in zip(volts, factors) if 4096.0 * x >= 6143.0]
+    put("volt_q12", table(vq, "volt_q12", 6143), "%s x 4096 at the table voltages %.3f..%.3f V%s" % (
+        how, volts[0], volts[-1], "; from %.3f V on capped at 6143 (1.5, where the power table ends): the factor "
+        "there is beyond it and reads as 1.5" % capped[0] if capped else ""))
     put("hover_table_permille", table(hov, "hover table", 1000), "hover command for %.3f kg on %d rotors at rho %.4f kg/m^3"
         % (mass_kg, n_rot, rho))
 
@@ -302,31 +240,31 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     p_tab = []
     for j in range(49):
         f = j * 128 / 4096.0
-        p_tab.append(int(round(10.0 * n_rot * rotor_power_W(pm, t_site * f, rho))))
+        p_tab.append(int(round(10.0 * (n_rot * rotor_power_W(pm, t_site * f, rho) + p_av))))
     f_top = min((1.05 * v_full / v_ref) ** curve["voltage_exponent"], 1.5)  # full command at 1.05 x full pack voltage
     # knots beyond 26 kW are capped: the sensor range (60 V x 300 A = 18 kW) ends before them,
     # so such power is out of range (a sensor fault) and never judged against the table
     p_tab = [min(p, (1 << 18) - 1) for p in p_tab]
     put("power_table", table(p_tab, "power table", (1 << 18) - 1), "N x P(T) [0.1 W] at T = %.3f N x f, "
-        "f = 0..1.5 step 1/32 (power model at rho %.4f%s; capped at 26 kW beyond full command)"
-        % (t_site, rho, coaxial_note(params, layout, rho, weight_N / n_rot, n_rot)))
+        "f = 0..1.5 step 1/32 (power model at rho %.4f%s; capped at 26 kW beyond full command)%s"
+        % (t_site, rho, coaxial_note(params, layout, rho, weight_N / n_rot, n_rot), av_note))
     p_hover = n_rot * rotor_power_W(pm, weight_N / n_rot, rho)
-    put("power_floor_dW", max(2, int(round(10.0 * 0.2 * p_hover))), "20 %% of hover power %.1f W" % p_hover)
+    put("power_floor_dW", max(2, int(round(10.0 * (0.2 * p_hover + p_av)))), "20 %% of hover power %.1f W%s" % (p_hover, av_note))
 
-    p_top_dW = min(1.1 * 10.0 * n_rot * rotor_power_W(pm, t_site * f_top, rho),
+    p_top_dW = min(1.1 * 10.0 * (n_rot * rotor_power_W(pm, t_site * f_top, rho) + p_av),
                    (cfg["v_max_mV"] // 20) * cfg["i_max_mA"] // 5000)   # no more than the sensors can read
     sh = 0
     while (32 << sh) < p_top_dW:
         sh += 1
-    t_tab = thrust_knots_mN(lambda p_W: thrust_from_power_total_N(p_W, params, n_rot, rho, layout), (1 << sh) / 10.0)
+    t_tab = thrust_knots_mN(lambda p_W: thrust_from_power_total_N(p_W, params, n_rot, rho, layout, p_av), (1 << sh) / 10.0)
     tu = 0
     while max(t_tab) >> tu >= 1 << 13:   # knots below 2^13: short in the bundle, 2^13 x 2^13 in the kernel
         tu += 1
     put("thrust_shift", sh, "thrust table step 2^%d x 0.1 W, up to %.0f W" % (sh, 32 * (1 << sh) / 10.0))
     put("thrust_unit_shift", tu, "thrust table unit 2^%d mN" % tu)
     put("thrust_table", table([x >> tu for x in t_tab], "thrust table", (1 << 13) - 1),
-        "N x T(P/N), the power model inverted, [2^%d mN] at P = 0.1 W x 2^%d x 0..32, rho %.4f kg/m^3; "
-        "in mN: %s" % (tu, sh, rho, " ".join(str(x) for x in t_tab)))
+        "N x T((P - P_av)/N), the power model inverted, [2^%d mN] at P = 0.1 W x 2^%d x 0..32, rho %.4f kg/m^3%s; "
+        "in mN: %s" % (tu, sh, rho, av_note.replace(" + avionics", ", P_av: avionics"), " ".join(str(x) for x in t_tab)))
 
     put("takeoff_ms", int(round(1000.0 * o["takeoff_s"])), "first %.1f s of each flight not judged" % o["takeoff_s"])
     put("learn_ms", int(round(1000.0 * o["learn_s"])), "learning window: %.1f s of steady flight" % o["learn_s"])

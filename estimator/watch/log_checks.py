@@ -320,7 +320,7 @@ def check_vehicle(path, flight, params, facts, cfg, units=None):
     mass far below the plan, and within the range at 1000 times, as amps labelled [mA]; one whose
     power at rotor-count times implies the plan (ONE_ESC_MASS_RANGE) as one ESC's current.
     """
-    from estimator.watch.thrust_table import thrust_from_power_total_N
+    from estimator.watch.thrust_table import avionics_power_W, thrust_from_power_total_N
 
     med_mV, med_W, flown_s = _flight_medians(flight, cfg)
     if med_mV is None:
@@ -339,7 +339,7 @@ def check_vehicle(path, flight, params, facts, cfg, units=None):
     if flown_s >= IMPLIED_MASS_MIN_FLIGHT_S:
         plan = float(facts["mass_kg"])
         mass = thrust_from_power_total_N(med_W, params, int(facts["rotor_count"]), float(facts["site_density_kg_m3"]),
-                                         facts.get("layout", "flat")) / STANDARD_GRAVITY_M_S2
+                                         facts.get("layout", "flat"), avionics_power_W(facts, v)) / STANDARD_GRAVITY_M_S2
         off = not IMPLIED_MASS_RANGE[0] <= mass / plan <= IMPLIED_MASS_RANGE[1]
         if off and mass < plan and (units or {}).get("current") == "mA" and not found:
             as_A = thrust_from_power_total_N(1000.0 * med_W, params, int(facts["rotor_count"]),

@@ -22,14 +22,15 @@ def hover_current_A(params, facts, bus_V):
     """The pack current of a hover at the planned mass [A]: the set's power model in flight (the one
     copy, estimator.core.power_model.rotor_power_W, with a coaxial layout's penalty:
     thrust_table.flight_power_model) for each rotor's share of the weight, in the site's air, over
-    the bus voltage bus_V [V]."""
+    the bus voltage bus_V [V], plus the vehicle's avionics_current_A (flight controller, video transmitter, camera)."""
     from estimator.core.power_model import rotor_power_W
     from estimator.watch.thrust_table import flight_power_model
 
     n = int(facts["rotor_count"])
     weight_N = float(facts["mass_kg"]) * STANDARD_GRAVITY_M_S2
     rho = float(facts["site_density_kg_m3"])
-    return n * rotor_power_W(flight_power_model(params, facts.get("layout"), rho), weight_N / n, rho) / bus_V
+    return (n * rotor_power_W(flight_power_model(params, facts.get("layout"), rho), weight_N / n, rho) / bus_V
+            + float(facts.get("avionics_current_A") or 0.0))
 
 
 def check_percent_as_permille(path, flight, params, facts, cfg):

@@ -43,16 +43,18 @@ def current_range_mA(i_full, motors_max_A=None, max_A=None, min_A=None, upper=Tr
     (a sensor's zero offset and noise). The warning says when i_full is beyond the range, and
     where i_full comes from: upper True, the power model without pack sag (an upper figure),
     else the pre-flight sheet's (the set's motor model on the vehicle's sagging pack)."""
-    i_max = min(max_A or max(1.0, 1.5 * (motors_max_A or i_full)), I_SENSOR_MAX_A)
+    wanted = max_A or max(1.0, 1.5 * (motors_max_A or i_full))
+    i_max = min(wanted, I_SENSOR_MAX_A)
     i_min = min_A if min_A is not None else -max(0.2, 0.01 * i_max)
     basis = (FULL_CURRENT_UPPER if upper else FULL_CURRENT_PREFLIGHT) % i_full
     notes = ("current below %.2f A is a sensor fault%s" % (
         i_min, "" if min_A is not None else " (1 %% of the %.0f A range, at least 0.2 A: zero "
         "offset and noise of the sensor)" % i_max),
-        "current above %.1f A is a sensor fault [mA] (%s)" % (
+        "current above %.1f A is a sensor fault [mA] (%s%s)" % (
         i_max, "the option current_max_A" if max_A else
         "1.5 x the motors' limit %.1f A" % motors_max_A if motors_max_A else
-        "1.5 x the full-command current: %s" % basis))
+        "1.5 x the full-command current: %s" % basis,
+        " = %.0f A, capped at the watch's %.0f A" % (wanted, I_SENSOR_MAX_A) if wanted > I_SENSOR_MAX_A else ""))
     i_max_mA = int(round(i_max * 1000.0))
     warning = None
     if i_full > i_max_mA / 1000.0:

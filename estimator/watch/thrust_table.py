@@ -48,19 +48,33 @@ def coaxial_note(params, layout, density_kg_m3, thrust_N, rotors):
             "power basis, Leishman 2006, coaxial rotors, from memory" % (extra_W, COAXIAL_INDUCED_POWER_FACTOR))
 
 
-def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3, layout="flat"):
+def avionics_power_W(facts, bus_V=None):
+    """The bus power of everything on the pack that is not a motor [W]: P_av = I_av V_bus, with
+    I_av the vehicle's avionics_current_A [A] (facts: estimator.watch.config.vehicle_facts; 0 when
+    not given) and V_bus [V] the bus voltage, by default the nominal pack voltage (else the middle
+    of full and empty; the watch's tables take one value: over a flight the bus moves by about
+    +-10 %, so +-10 % of P_av, 0.2 W for 0.5 A on a 2S pack). Source: P = V I."""
+    current_A = float(facts.get("avionics_current_A") or 0.0)
+    if bus_V is None:
+        bus_V = facts.get("nominal_voltage_V") or 0.5 * ((facts.get("full_voltage_V") or 0.0)
+                                                          + (facts.get("empty_voltage_V") or 0.0))
+    return current_A * float(bus_V)
+
+
+def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3, layout="flat", avionics_W=0.0):
     """Total thrust [N] from total bus power [W]: the vehicle's power model inverted.
 
-    Per rotor T = P^-1(P_total / N) with P(T, rho) the one power model
+    Per rotor T = P^-1((P_total - P_av) / N) with P(T, rho) the one power model
     (estimator.core.power_model.thrust_from_power_N) of flight_power_model(params, layout, rho):
     the same P(T) the expected-power table uses, so the implied mass and the expected power
     never disagree, a coaxial pair's penalty included. power_W: total bus power [W]; rotor_count
     N [-]; density_kg_m3: site rho [kg/m^3]; layout: the vehicle's rotor layout ("flat",
-    "coaxial"). Source: DC motor + momentum theory power model (estimator.core.power_model
-    docstring; coaxial: flight_power_model).
+    "coaxial"); avionics_W: P_av [W], the bus power that does not reach a rotor (avionics_power_W).
+    Source: DC motor + momentum theory power model (estimator.core.power_model docstring; coaxial:
+    flight_power_model).
     """
     return rotor_count * thrust_from_power_N(flight_power_model(params, layout, density_kg_m3),
-                                             max(power_W, 0.0) / rotor_count, density_kg_m3)
+                                             max(power_W - avionics_W, 0.0) / rotor_count, density_kg_m3)
 
 
 def thrust_knots_mN(thrust_N, step_W):
