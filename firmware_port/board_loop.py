@@ -20,8 +20,11 @@ SAMPLE_MS = 100  # timer period [ms]; the watch takes the real period from ticks
 class SensorAdapter:
     """Reads command, bus voltage and bus current as ints; hardware objects are passed in.
 
-    ``command_src()`` returns the collective command in permille (0..1000), e.g. from the
-    flight controller's telemetry; ``volt_adc`` / ``amp_adc`` are ADC-like objects with
+    ``command_src()`` returns the collective command in permille (0..1000). It runs inside the
+    timer interrupt: it must only return a value already read (an int kept in a list or an
+    attribute), never read a UART or parse telemetry itself (that allocates); read the flight
+    controller's telemetry in the main loop and store the command there. ``volt_adc`` /
+    ``amp_adc`` are ADC-like objects with
     ``read_u16()``. Scale factors convert raw counts to mV / mA with integer maths only:
     mV = raw * mv_num // mv_den + mv_offset (choose num/den so raw * num stays below 2^30).
     """
@@ -57,9 +60,9 @@ def report(flags):
     if flags & 2:
         print("liftwatch: power LOW for the command - land and check for a chipped or loose blade")
     if flags & 16:
-        print("liftwatch: vehicle heavier than planned - land, check payload and margin")
+        print("liftwatch: implied mass above plan - land; heavier payload, or a rotor drawing extra power? check both")
     if flags & 8:
-        print("liftwatch: baseline far from the bench fit - refit or check the pack and props")
+        print("liftwatch: baseline far from the bench fit - another field than the bundle's? rebuild it; else refit, check pack and props")
 
 
 class Monitor:

@@ -95,6 +95,7 @@ def test_replay_mass_event_is_one_sentence(tmp_path, params_file):
     assert code == 0, err
     text = " ".join(out.split())
     assert re.search(r"mass_high implied mass \d\.\d{3} kg against 2\.050 kg planned \(alarm above 2\.214 kg "
-                     r"plus the estimate's margin\): payload heavier than planned\?", text), text
+                     r"plus the estimate's margin\): a heavier payload, or a rotor or motor drawing more power "
+                     r"than the bench fit since take-off\? check both", text), text
     # was: "...margin)  implied" / "all-up mass above plan (payload heavier than planned?)"
     assert "margin)  " not in out and "implied all-up" not in text, out

@@ -34,19 +34,29 @@ def _load(params_file, vehicle_file):
     return params, vehicle
 
 
-def watch_options(params, vehicle=None, lag_ms=None):
+def watch_options(params, vehicle=None, lag_ms=None, hover_needed_by=None):
     """watch CONFIG option overrides (estimator.watch.config.DEFAULTS) of firmware, replay and the
     demo alike, so that the board and the desktop run one CONFIG: --lag-ms, and with a vehicle file
     the pack current at full command on a full pack that the pre-flight sheet judges the current
     limits on (preflight.measured_rotor.hover_from_params, pack_current_judged_A: the set's motor
     model on the vehicle's sagging pack; the one calculation, not a second copy), which the watch's
     current range and its warning take instead of the power model's figure without sag (trial 9:
-    463 A without sag against the sheet's 408 A on a 12S octo)."""
+    463 A without sag against the sheet's 408 A on a 12S octo). hover_needed_by: (vehicle file,
+    parameter-set file) when the vehicle must hover on the set (firmware): InputError with the
+    pre-flight sheet's own verdict when it cannot (new-user trial 13, finding 5)."""
     out = {} if lag_ms is None else {"lag_ms": lag_ms}
     if vehicle is not None:
         from estimator.preflight.measured_rotor import hover_from_params
 
-        amps = hover_from_params(vehicle, params).get("pack_current_judged_A")
+        report = hover_from_params(vehicle, params)
+        if hover_needed_by and not report.get("can_hover"):
+            verdict = next((w for w in report.get("warnings", []) if w.startswith("cannot hover")), "cannot hover")
+            from estimator.errors import InputError
+            vehicle_file, params_file = (shown(f) for f in hover_needed_by)
+            raise InputError("%s: %s on %s (as `liftcal hover %s --params %s` says); the power watch needs a "
+                             "vehicle that hovers: no bundle written"
+                             % (vehicle_file, verdict, params_file, vehicle_file, params_file))
+        amps = report.get("pack_current_judged_A")
         if amps is not None and amps > 0.0:
             out["full_command_current_A"] = amps
     return out
@@ -56,9 +66,29 @@ EVENT_MEANING = {
     "power_high": "more power than expected (bearing, winding, prop strike?)",
     "power_low": "less power than expected (chipped or loose blade?)",
     "sensor_fault": "reading out of range, stuck current or a bad sample gap",
-    "baseline_off": "power at flight start far from the bench fit (site, pack, other prop? units?)",
-    "mass_high": "implied all-up mass above plan (payload heavier than planned?)",
+    "baseline_off": ("power at flight start far from the bench fit (flown at another site or in other air than the "
+                     "vehicle file's? give that site, and rebuild the bundle; else refit, check pack, props, units)"),
+    "mass_high": ("implied all-up mass above plan (a heavier payload, or a rotor or motor drawing more power than the "
+                  "bench fit since take-off? check both)"),
 }
+# a power_high this soon after a baseline_off of the same flight may share its cause [s] (the watch's
+# take-off and learning windows, 20 s each by default: the rest of the flight's start)
+POWER_AFTER_BASELINE_S = 60.0
+
+
+def _note_power_after_baseline(events):
+    """Add a "note" to a power_high that comes within POWER_AFTER_BASELINE_S of a baseline_off in the
+    same flight (event key "flight"): a site, pack or propeller off the bench fit shows first as the
+    one, then as the other (new-user trial 13, finding 3: a sea-level flight on a 2200 m bundle)."""
+    for e in events:
+        if e["kind"] != "power_high":
+            continue
+        base = next((b for b in events if b["kind"] == "baseline_off" and b.get("flight") == e.get("flight")
+                     and 0.0 <= e["t_s"] - b["t_s"] <= POWER_AFTER_BASELINE_S), None)
+        if base is not None:
+            note = ("%.1f s after the baseline_off of this flight: it may share its cause, another site or air, "
+                    "the pack or the props; settle that first" % (e["t_s"] - base["t_s"]))
+            e["note"] = e["note"] + "; " + note if e.get("note") else note
 
 
 def _note_mass_after_baseline(events):
@@ -145,7 +175,10 @@ def _count(n, word):
 def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     """Write the MicroPython power-watch bundle for a board.
 
-    DIR gets {files} and mpy/*.mpy (the modules compiled).
+    DIR gets {files} and mpy/*.mpy (the modules compiled). The board's current sensor reads the
+    whole bus: give the avionics' steady current (flight controller, video transmitter, camera, gimbal) as
+    avionics_current_A in the vehicle file, or a healthy flight reads as extra power. A vehicle that
+    cannot hover (liftcal hover) gets no bundle.
     """
     from estimator.folders import FOLDER_MANIFEST
     from estimator.watch.bundle import write_bundle
@@ -157,7 +190,8 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     old_source = _bundle_source(out_dir) if state == "own" else ""
     params, vehicle = _load(params_file, vehicle_file)
     edited = edited_set_warning(params_file, from_edited, "the board bundle")
-    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=watch_options(params, vehicle, lag_ms),
+    options = watch_options(params, vehicle, lag_ms, hover_needed_by=(vehicle_file, params_file))
+    out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=options,
                        edited=edited)
     cfg = out["config"]
     # the kernel's limit is plan x (1 + permille / 1000) exactly (it compares permille), not floored
@@ -236,6 +270,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
                                     options=watch_options(params, vehicle, lag_ms), params_source=params_file,
                                     trace=plot_file is not None)
     _note_mass_after_baseline(out["events"])
+    _note_power_after_baseline(out["events"])
     if plot_file is not None:
         from estimator.watch.plots import plot_replay
         plot_replay(plot_file, trace, out["events"], title=flight_file)
@@ -251,6 +286,13 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     if out.get("dropped_missing_rows"):
         lines.append("  dropped %s with an empty or 'nan' cell (a missed reading)"
                      % _count(out["dropped_missing_rows"], "row"))
+    flights = out.get("flights_s") or []
+    if len(flights) > 1:   # landings between them; the watch learns each flight anew
+        lines.append("  %d flights (landings between them), %s above the spin command; each learned anew"
+                     % (len(flights), ", ".join("%.1f s" % f for f in flights)))
+    for p in out.get("ground_pauses", []):
+        lines.append("  logging paused %.1f s at %.1f s with the rotors stopped: time on the ground, not a sensor fault"
+                     % (p["gap_s"], p["t_s"]))
     # before the events: a punch-out beyond the current-sensor range shows as a sensor_fault
     lines += ["  ! " + w for w in out.get("warnings", [])]
     if not out["learned"]:
@@ -268,9 +310,9 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
             what = e.get("detail") or EVENT_MEANING.get(e["kind"], "")
         elif e["kind"] == "mass_high":
             # one sentence that wraps cleanly: the numbers, then the likely cause
-            what = ("implied mass %s against %s planned (alarm above %s plus the estimate's margin): payload "
-                    "heavier than planned?" % tuple(mass_text(e[k], e["planned_kg"])
-                                                    for k in ("mass_kg", "planned_kg", "limit_kg")))
+            what = ("implied mass %s against %s planned (alarm above %s plus the estimate's margin): a heavier "
+                    "payload, or a rotor or motor drawing more power than the bench fit since take-off? check both"
+                    % tuple(mass_text(e[k], e["planned_kg"]) for k in ("mass_kg", "planned_kg", "limit_kg")))
         else:
             what = "residual %+.1f %%  %s" % (100.0 * e["residual"], EVENT_MEANING.get(e["kind"], ""))
         lines.append("  %9.1f s  %-13s %s" % (e["t_s"], e["kind"], what))

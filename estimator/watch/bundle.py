@@ -6,7 +6,7 @@ DIR/liftwatch_layout.py   CONFIG indices and bounds: estimator/core/watch_layout
 DIR/liftwatch_load.py     loader: checks CONFIG with those bounds, says what is wrong in words
 DIR/board_loop.py         example board loop: sensor adapter, timer calling update, flags
 DIR/README.md             for the builder, with safety cautions
-DIR/package.json          for mip (installs the .mpy files)
+DIR/package.json          for mip (installs the .mpy files of the watch and board_loop.py, to edit)
 DIR/manifest.py           for freezing the watch into a firmware build
 DIR/mpy/*.mpy             the five modules compiled by mpy-cross (bytecode, any port)
 
@@ -64,15 +64,39 @@ def site_air_words(params, vehicle=None):
     return "%.3f kg/m^3 (%sdensity altitude %.0f m)" % (rho, where, out["density_altitude_m"]), out
 
 
-def readme_text(template, config, edited=None, site=None):
+# which firmware loads the .mpy files (README field mpy_loaders), by their format's major version: a file
+# without native code loads on any release of its major version from the one that ignores the sub-version
+# (MicroPython documentation, "MicroPython .mpy files": format 6.1 came with 1.20; from memory)
+MPY_LOADERS = {6: "MicroPython 1.20 or later loads them (bytecode .mpy files of format 6 load whatever their "
+                  "sub-version: it counts only for native code); measured on MicroPython 1.27"}
+
+
+def mpy_format():
+    """The .mpy format mpy-cross writes ('6.3'), from ``mpy-cross --version``, or '?' when it does not say."""
+    import re
+
+    proc = subprocess.run([mpy_cross_path(), "--version"], capture_output=True, text=True)
+    found = re.search(r"mpy v([0-9]+(?:\.[0-9]+)?)", proc.stdout)
+    return found.group(1) if found else "?"
+
+
+def mpy_loaders(fmt):
+    """README words: the MicroPython releases that load .mpy files of format ``fmt`` ('6.3')."""
+    major = fmt.split(".")[0]
+    return MPY_LOADERS.get(int(major) if major.isdigit() else None,
+                           "the MicroPython release of the mpy-cross that wrote them loads them (mpy-cross --version)")
+
+
+def readme_text(template, config, edited=None, site=None, avionics_A=0.0, mpy_fmt="?"):
     """README.md from the firmware_port template: its ``{name}`` fields filled from this
     bundle's CONFIG (block_ms, lag_ms; takeoff_s, learn_s, learn_timeout_s from the *_ms
     values) and the outputs' places in ``Watch.data`` (at_NAME), so the text says what the board
     runs; ``edited`` (params.edited_set_warning's line for a set edited since liftcal sealed it,
     or None) as a WARNING paragraph under the title; ``site``: site_air_words' words, the air the
-    CONFIG is made for."""
+    CONFIG is made for; avionics_A: the vehicle's avionics_current_A [A]; mpy_fmt: mpy_format()."""
     fields = {"block_ms": "%d" % config["block_ms"], "lag_ms": "%d" % config["lag_ms"],
-              "site_air": site or "one site's"}
+              "site_air": site or "one site's", "mpy_format": mpy_fmt, "mpy_loaders": mpy_loaders(mpy_fmt),
+              "avionics": "%.3g A" % avionics_A if avionics_A else "no current (avionics_current_A not given)"}
     for name in ("takeoff", "learn", "learn_timeout"):
         fields[name + "_s"] = "%g" % (config[name + "_ms"] / 1000.0)
     for name, at in layout.OUTPUT_AT:       # where each output sits in the Watch's data list
@@ -189,7 +213,9 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
             with open(os.path.join(PORT_DIR, name), "r", encoding="utf-8") as fh:
                 texts[name] = fh.read()
         site_words, site = site_air_words(params, vehicle)
-        texts["README.md"] = readme_text(texts["README.md"], config, edited, site_words)
+        from estimator.watch.config import vehicle_facts
+        avionics_A = float(vehicle_facts(params, vehicle, source).get("avionics_current_A") or 0.0)
+        texts["README.md"] = readme_text(texts["README.md"], config, edited, site_words, avionics_A, mpy_format())
         try:
             for name, text in texts.items():
                 with open(os.path.join(tmp, name), "w", encoding="utf-8") as fh:

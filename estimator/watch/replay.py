@@ -135,9 +135,20 @@ def run_kernel(flight, config, trace=False, progress=None):
     # flight time as the kernel counts it: samples that pass the sensor checks, above spin; a
     # landing (landed_ms below spin) starts a new flight [ms]
     flights, flight_ms, quiet_ms, fault_ms = [], 0, 0, 0
+    pauses, dt_max = [], config["dt_max_ms"]   # logging pauses with the rotors stopped on both sides
     for i in range(n):
         ti = t[i]
         dt = first_ms if t_prev is None else int(round((ti - t_prev) * 1000.0))
+        if i and dt > dt_max and u[i] < spin and u[i - 1] < spin:
+            # a logger that logs only while armed (a pack swap between flights): time on the ground, not
+            # a sensor fault; fed in steps the watch takes, up to its landing time (a new flight next)
+            pauses.append({"t_s": round(t_prev - t0, 3), "gap_s": round(dt / 1000.0, 3)})
+            ground = min(dt, config["landed_ms"] + dt_max)
+            while ground > dt_max:
+                update(dt_max, u[i], mv[i], ma[i])
+                quiet_ms += dt_max
+                ground -= dt_max
+            dt = ground
         t_prev = ti
         flags = update(dt, u[i], mv[i], ma[i])
         stuck.step(dt, u[i], ma[i], in_range(dt, u[i], mv[i], ma[i], config))
@@ -174,7 +185,7 @@ def run_kernel(flight, config, trace=False, progress=None):
                 for bit, kind in KINDS:
                     if new & bit:
                         e = {"t_s": round(ti - t0, 3), "kind": kind, "residual": w.residual_permille / 1000.0,
-                             "bus_V": mv[i] / 1000.0}
+                             "bus_V": mv[i] / 1000.0, "flight": len(flights) + 1}
                         if bit == 16:    # the implied mass against the plan and the alarm limit
                             e.update(mass_kg=w.mass_g / 1000.0, planned_kg=plan_kg, limit_kg=round(limit_kg, 4))
                         if bit == 4:     # which sensor check it was, with the value and the limit
@@ -195,7 +206,8 @@ def run_kernel(flight, config, trace=False, progress=None):
         flights.append(flight_ms)
     out = {"learned": learned, "learned_at_s": None if learn_span[1] is None else round(learn_span[1], 3),
            "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events,
-           "flights_s": [round(x / 1000.0, 3) for x in flights], "sensor_fault_s": round(fault_ms / 1000.0, 3)}
+           "flights_s": [round(x / 1000.0, 3) for x in flights], "sensor_fault_s": round(fault_ms / 1000.0, 3),
+           "ground_pauses": pauses}
     out["mass"] = mass_verdict(mass_last, plan_kg, limit_kg, learned, config)
     if out["mass"]["judged"] and mass_check is not None:
         out["mass"].update(alarm_kg=round(plan_kg * (1.0 + mass_check["alarm_permille"] / 1000.0), 4),
@@ -292,8 +304,10 @@ def replay_file(path, params, vehicle=None, options=None, progress=None, drop_ba
     detail, a text with the value and the watch's limit), learned_at_s (end of the learning
     window, None when it never ended), flights_s (flight time above the spin command of each
     flight between landings, as the kernel counts it [s]) and sensor_fault_s (flight time of
-    the samples set aside as sensor faults [s]). Every event has bus_V, the bus voltage at
-    its sample [V]; a power event outside the sweep's voltages on a set whose voltage exponent
+    the samples set aside as sensor faults [s]), ground_pauses ([{t_s, gap_s}]: logging pauses above
+    the watch's gap limit with the command below spin on both sides, taken as time on the ground,
+    not as sensor faults). Every event has bus_V, the bus voltage at its sample [V], and flight,
+    the number of its flight in the log (1, 2, ...); a power event outside the sweep's voltages on a set whose voltage exponent
     was not measured has a note saying so (exponent_note). A progress bar goes
     to stderr on logs above PROGRESS_ROWS rows when stderr is a terminal (progress=None),
     always (True) or never (False). Raises InputError on a bad file: time that goes back or
