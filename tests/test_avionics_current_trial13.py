@@ -17,7 +17,7 @@ from estimator.core.hover import hover_at_pack
 from estimator.demo.flight_sim import to_csv
 from estimator.demo.scenario import DEMO_VEHICLE
 from io_helpers import PARAMS, refused, run
-from watch_helpers import demo_fit_params, flight_arrays_once
+from watch_helpers import flight_arrays_once
 
 MOTOR, PROP = DEMO_VEHICLE["motor"], DEMO_VEHICLE["propeller"]
 
@@ -78,11 +78,10 @@ def flights():
 
 
 def _replay(tmp_path, flight, vehicle):
-    params = tmp_path / "p.json"
-    params.write_text(json.dumps(demo_fit_params()))
+    # the example set on disk (the demo's fitted set): a shared in-memory set may have been edited by another test
     log = tmp_path / "f.csv"
     log.write_text(to_csv(flight))
-    code, text, err = run(["replay", log, "--params", params, "--vehicle", vehicle, "--json"])
+    code, text, err = run(["replay", log, "--params", PARAMS, "--vehicle", vehicle, "--json"])
     assert code == 0, err
     return json.loads(text)
 

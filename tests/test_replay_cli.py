@@ -40,7 +40,7 @@ def test_cli_replay_json_and_plot(tmp_path, params_file, capsys):
     captured = capsys.readouterr()
     out = json.loads(captured.out)
     assert set(out) >= {"samples", "alarms", "events"} and out["alarms"] == 1
-    assert set(out["events"][0]) == {"t_s", "kind", "residual", "bus_V"}  # bus_V: the bus at the event
+    assert set(out["events"][0]) == {"t_s", "kind", "residual", "bus_V", "flight"}  # bus_V: the bus at the event; flight: its number in the log
     assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     assert captured.err == ""   # no progress bar when stderr is not a terminal
 
