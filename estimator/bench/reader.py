@@ -188,7 +188,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     import numpy as np
 
     from estimator.bench.csv_numbers import load_numbers
-    from estimator.bench.row_checks import keep_rows
+    from estimator.bench.row_checks import dropped_share_warning, keep_rows
     from estimator.bench.sensor_checks import check_units
 
     comment_warnings = []
@@ -217,9 +217,9 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     del cols
     rows_total = data["command"].shape[0]
     if rows_total < 10:
-        raise InputError("%s: only %d data rows; a sweep needs at least 10 (the fit has 9 motor and "
+        raise InputError("%s: only %d data row%s; a sweep needs at least 10 (the fit has 9 motor and "
                          "propeller parameters): log two readings at each step, or more steps from idle "
-                         "to full command" % (path, rows_total))
+                         "to full command" % (path, rows_total, "" if rows_total == 1 else "s"))
 
     # one min and max per column decide the common case: every value finite and inside
     # every row check, so no row is dropped and no mask is needed (row_checks.keep_rows)
@@ -230,6 +230,7 @@ def read_bench(path, diameter_m=None, density_kg_m3=None, altitude_m=None, tempe
     check_units(path, data, v_med, extremes)
     u, v, t, power, v_span, rejected, n_keep = keep_rows(path, data, rows_total, extremes, v_med)
     del data
+    warnings += [w for w in (dropped_share_warning(rows_total, n_keep, rejected),) if w]
 
     air = bench_air(path, comments, density_kg_m3, altitude_m, temperature_C, pressure_Pa,
                      humidity_pct, warnings)
