@@ -141,6 +141,13 @@ def parse_propeller_size(text, what="size"):
     return float(m.group(1)) * scale, float(m.group(2)) * scale
 
 
+def size_parts(text):
+    """The parts of a propeller size as written: (diameter, pitch, unit) as text ("22", "7.4",
+    "m"; the unit "" when none is written), or None when ``text`` is no DIAMETERxPITCH."""
+    m = _SIZE.match(str(text)) if isinstance(text, str) else None
+    return m.groups() if m else None
+
+
 def plain_number(x, digits=4, trim=False):
     """x with ``digits`` significant digits in plain decimal notation (15410, 7.076, 0.01241),
     never the exponent form a person misreads (1.541e+04); trim: drop trailing zeros after
@@ -220,6 +227,24 @@ def humidity_fraction_note(humidity_pct, what):
     return ("%s: %g %% is a relative humidity drier than the driest desert air (a few per cent, from memory): "
             "a fraction of 1 meant? %g is %g %%; write %g%% if so (the air is worked out with %g %% as given)"
             % (what, humidity_pct, humidity_pct, 100.0 * humidity_pct, 100.0 * humidity_pct, humidity_pct))
+
+
+# a site altitude given as a bare number of metres above this may be feet: few flying sites lie
+# higher, and a feet reading of 3000..9000 (the schema's top) lands at 914..2743 m, an ordinary
+# site (common practice) [m]
+ALTITUDE_FEET_ABOVE_M = 3000.0
+
+
+def altitude_feet_note(altitude_m, what):
+    """A hint (str) when a site altitude [m] written as a bare number lies above
+    ALTITUDE_FEET_ABOVE_M, where feet are likely meant ("7200 ft = 2195 m?"; new-user trial 13,
+    finding 14), else None: a hint, not a refusal (a few sites are that high). what: where it was
+    given (a JSON path). 1 ft = 0.3048 m (NIST SP 811, exact)."""
+    if altitude_m is None or altitude_m <= ALTITUDE_FEET_ABOVE_M:
+        return None
+    return ("%s: %g m is higher than almost any flying site: feet meant? %g ft = %.0f m; if so write "
+            "\"altitude\": \"%gft\" (the air is worked out at %g m as given)"
+            % (what, altitude_m, altitude_m, altitude_m * FOOT_M, altitude_m, altitude_m))
 
 
 def command_text(u, unit, span=False):

@@ -16,7 +16,7 @@ import re
 from estimator.errors import InputError
 from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
 from estimator.mass_slip import mass_hint
-from estimator.units import INCH_M, humidity_fraction_note
+from estimator.units import INCH_M, altitude_feet_note, humidity_fraction_note
 from estimator.vehicle_units import (BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS, cutoff_above_nominal,
                                      normalise, propeller_notes, written_unit_slip)  # noqa: F401 (normalise: API)
 
@@ -38,12 +38,11 @@ NO_SITE_WARNING = ("the vehicle file has no site: sea level, standard atmosphere
                    "1.225 kg/m^3) and dry air assumed; add \"site\": {\"altitude_m\": ..., "
                    "\"temperature_C\": ...} for the field you will fly at")
 # an ESC left out of the vehicle file is taken as lossless (the schema's default), and the sheet says so
-NO_ESC_EFFICIENCY_WARNING = (
+NO_ESC_EFFICIENCY_WARNING = (  # the datasheet route's words; a bench fit's: preflight.measured_rotor
     "the vehicle file gives no esc.efficiency: the ESC is taken as lossless (efficiency 1), so on the "
-    "datasheet model the pack current comes out a few per cent low and the endurance a few per cent long "
-    "(a bench fit measures the ESC's input: there only the motor current shown depends on it); multirotor "
-    "ESCs are about 0.9-0.95 efficient (common practice, from memory): add \"esc\": {\"efficiency\": %.2f} "
-    "or the maker's figure" % 0.95)
+    "datasheet model the pack current comes out a few per cent low and the endurance a few per cent long; "
+    "multirotor ESCs are about 0.9-0.95 efficient (common practice, from memory): add \"esc\": "
+    "{\"efficiency\": %.2f} or the maker's figure" % 0.95)
 NO_ALTITUDE_WARNING = "the vehicle file's site has no altitude_m: sea level assumed; add the field's altitude above sea level"
 
 # quantity typed on the command line -> (where vehicle.schema.json keeps its bounds, kind in
@@ -165,9 +164,10 @@ def check_vehicle(document, source):
         assumed.append(NO_ALTITUDE_WARNING)
     if "efficiency" not in (document.get("esc") or {}):
         assumed.append(NO_ESC_EFFICIENCY_WARNING)
-    site = document.get("site") or {}  # a temperature odd for the altitude; a humidity in 0..1 (a fraction?)
-    assumed += [w for w in (site_temperature_warning(site.get("altitude_m", DEFAULT_ALTITUDE_M), site.get(
-        "temperature_C")), humidity_fraction_note(site.get("humidity_pct"), "$.site.humidity_pct")) if w]
+    site = document.get("site") or {}  # a temperature odd for the altitude; a humidity in 0..1; bare feet?
+    assumed += [w for w in (site_temperature_warning(site.get("altitude_m", DEFAULT_ALTITUDE_M), site.get("temperature_C")),
+                humidity_fraction_note(site.get("humidity_pct"), "$.site.humidity_pct"), "$.site.altitude_m" not in given
+                and altitude_feet_note(site.get("altitude_m"), "$.site.altitude_m")) if w]
     vehicle["checked"] = {"source": source, "assumed": assumed,
                           "given": {path: text for path, (_, text) in given.items()}}
     vehicle["rotors"].setdefault("layout", DEFAULT_LAYOUT)

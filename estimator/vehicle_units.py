@@ -199,7 +199,8 @@ def normalise(document, source):
     (JSON path as written, text as written)} for each converted value. Raises InputError
     naming the file and the JSON path.
     """
-    from estimator.units import parse_propeller_size, parse_quantity
+    from estimator.propeller_size import read_size
+    from estimator.units import parse_quantity
 
     if not isinstance(document, dict):
         return document, {}
@@ -229,7 +230,7 @@ def normalise(document, source):
                 raise InputError("%s: %s: \"%s\" is only a diameter; a size needs the pitch too: %s, or %s"
                                  % (source, path, text.strip(), _size_example(text, node.get("pitch")),
                                     PARTS_EXAMPLE))
-            diameter, pitch = parse_propeller_size(text, "%s: %s" % (source, path))
+            diameter, pitch = read_size(text, "%s: %s" % (source, path))
             node["diameter_m"], node["pitch_m"] = diameter, pitch
             given[_json_path(block, "diameter_m")] = (path, text)
             given[_json_path(block, "pitch_m")] = (path, text)

@@ -23,7 +23,16 @@ from estimator.cautions import cautions
 from estimator.preflight.pack import pack_in_the_air, pack_keys
 from estimator.preflight.warnings import full_command_sag, judged_currents, margin_warnings
 from estimator.units import COMMAND_SHOWN, commands_in_unit
-from estimator.vehicle import assumed_warnings, given_text, vehicle_air, vehicle_source
+from estimator.vehicle import NO_ESC_EFFICIENCY_WARNING, assumed_warnings, given_text, vehicle_air, vehicle_source
+
+# a missing esc.efficiency on this route: the fit measured the ESC's input, so only the motor
+# current the sheet shows depends on it (new-user trial 13, finding 12: fit printed the datasheet
+# route's words, pack current low and endurance long)
+NO_ESC_EFFICIENCY_BENCH = (
+    "the vehicle file gives no esc.efficiency: the ESC is taken as lossless (efficiency 1); the bench fit "
+    "measured the ESC's input, so the pack current and the endurance do not depend on it, only the motor "
+    "current shown does; multirotor ESCs are about 0.9-0.95 efficient "
+    "(common practice, from memory): add \"esc\": {\"efficiency\": 0.95} or the maker's figure")
 
 # a parameter set's hover block for a vehicle (hover_block): values (the block, None when the
 # vehicle cannot hover), warnings (those about the vehicle, which the set keeps), refusal (why
@@ -123,7 +132,8 @@ def hover_from_params(vehicle, params, command_unit="-"):
                                 b["full_cell_V"], b["nominal_cell_V"], b["empty_cell_V"],
                                 b["cutoff_cell_V"], hover_load(params, vehicle, rho))
         report.update({"flight_time_min": d["minutes"], "flight_ended_by": d["ended_by"], "discharge": d})
-    warnings = assumed_warnings(vehicle) + margin_warnings(report, command_unit)
+    warnings = [NO_ESC_EFFICIENCY_BENCH if w == NO_ESC_EFFICIENCY_WARNING else w for w in assumed_warnings(vehicle)]
+    warnings += margin_warnings(report, command_unit)
     volts = [("hover bus, %s pack" % name if states[name]["command"] is not None
                else "open circuit, %s pack" % name,
               states[name]["bus_V"] if states[name]["command"] is not None else states[name]["open_circuit_V"])
