@@ -82,8 +82,8 @@ def vehicle_hover(params, vehicle):
               help="Bench altitude, with its unit (e.g. 300m, 1000ft).")
 @click.option("--temperature", type=Bounded("temperature", "temperature", unit_example="21C or 70F"), default=None,
               help="Bench air temperature, with its unit (e.g. 21C, 70F).")
-@click.option("--pressure", type=Bounded("pressure", "pressure", positive=True), default=None,
-              help="Bench station pressure (e.g. 1013hPa), not sea-level QNH.")
+@click.option("--pressure", type=Bounded("pressure", "pressure", positive=True, unit_example="97000Pa or 970hPa"),
+              default=None, help="Bench station pressure, with its unit (e.g. 1013hPa), not sea-level QNH.")
 @click.option("--humidity", type=Bounded("percent", "humidity"), default=None,
               help="Bench relative humidity (e.g. 40%).")
 @click.option("--voltage-exponent", type=Number((0.5, 3.0, "the parameter set's bounds, "

@@ -7,21 +7,28 @@ hover sheet). Imports stay light: no numpy, no matplotlib.
 import click
 
 from estimator.commands.options import FILE_NAME, Bounded, Quantity
-from estimator.errors import InputError
+from estimator.errors import InputError, shorten
+from estimator.unit_required import is_bare
+from estimator.units import plain_number
 from estimator.jsonio import dumps
 
 
 
 class StationPressure(Bounded):
-    """--pressure of a site: read with its unit; its bounds are checked by _air, which knows the
-    altitude (check_station_pressure), so a bare number's unit-slip hint can name the station
-    pressure instead of a sea-level one the next run refuses (trial 7, item 11)."""
+    """--pressure of a site: read with its unit; its bounds and a missing unit are judged by _air,
+    which knows the altitude (check_station_pressure), so a bare number's unit-slip hint can name
+    the station pressure instead of a sea-level one the next run refuses (trial 7, item 11)."""
 
     def convert(self, value, param, ctx):
-        si = Quantity.convert(self, value, param, ctx)
+        typed = value if isinstance(value, str) else None
         if ctx is not None:
-            ctx.meta["liftcal.typed.pressure"] = value if isinstance(value, str) else None
-        return si
+            ctx.meta["liftcal.typed.pressure"] = typed
+        if typed is not None and is_bare(typed):  # read as Pa here; refused by check_station_pressure
+            si = float(typed)
+            if si - si != 0.0:  # nan, 1e999
+                self.fail("%s is not a finite number" % shorten(typed), param, ctx)
+            return si
+        return Quantity.convert(self, value, param, ctx)
 
 
 def check_station_pressure(pressure_Pa, altitude_m):
@@ -35,19 +42,23 @@ def check_station_pressure(pressure_Pa, altitude_m):
 
     ctx = click.get_current_context(silent=True)
     typed = ctx.meta.get("liftcal.typed.pressure") if ctx is not None else None
+    unitless = typed is not None and is_bare(typed)
     try:
-        check_quantity("pressure", pressure_Pa, typed, "--pressure")
+        check_quantity("pressure", pressure_Pa, typed, "--pressure", unit_required=unitless)
     except InputError:
         slip = unit_slip(pressure_Pa, "pressure", QUANTITIES["pressure"][3], quantity_schema("pressure"))
         bare = typed is not None and str(typed).strip().replace(".", "", 1).isdigit()
         if slip is None or not bare or station_pressure_problem(altitude_m, slip[1]) is None:
             raise
         station = standard_atmosphere(altitude_m)[1]
-        raise InputError("--pressure: %s Pa is outside %s, and %s%s would be a sea-level pressure (QNH, what "
-                         "weather reports give), not the pressure at %.0f m: give the station pressure there, "
+        raise InputError("--pressure: '%s' has no unit, as Pa it is outside %s, and %s%s would be a sea-level "
+                         "pressure (QNH, what weather reports give), not the pressure at %.0f m: give the station pressure there, "
                          "about %.0fhPa in the standard atmosphere (--pressure %.0fhPa), or leave --pressure out"
                          % (str(typed).strip(), range_text("pressure"), str(typed).strip(), slip[0], altitude_m,
                             station / 100.0, station / 100.0)) from None
+    if unitless:  # a unit is required, as for --altitude and --temperature (new-user trial 13, finding 12)
+        raise InputError("--pressure: '%s' has no unit; write it with one, e.g. %sPa or %shPa"
+                         % (typed.strip(), typed.strip(), plain_number(pressure_Pa / 100.0, 6, trim=True)))
     return pressure_Pa
 
 
@@ -74,8 +85,8 @@ def site_options(note):
                      help="Outside air temperature, with its unit (C, K, F); default: standard atmosphere"
                           + note + "."),
         click.option("--pressure", type=StationPressure("pressure", "pressure", positive=True), default=None,
-                     help="Station pressure (Pa, hPa, kPa, mbar), not sea-level QNH; default: "
-                          "standard" + note + "."),
+                     help="Station pressure, with its unit (Pa, hPa, kPa, mbar), not sea-level QNH; "
+                          "default: standard" + note + "."),
         click.option("--humidity", type=Bounded("percent", "humidity"), default="0%", show_default=True,
                      help="Relative humidity (%)" + note + "."),
     ]

@@ -258,7 +258,7 @@ def format_table(result, name):
     lines below the table wrapped to an 80-column terminal (estimator.textwidth). A row with
     many varied keys may be wider: it is never cut."""
     rows = result["rows"]
-    head = fit_width("COMPARE: %s, %d combinations" % (name, len(rows)))
+    head = fit_width("COMPARE: %s, %d combination%s" % (name, len(rows), "" if len(rows) == 1 else "s"))
     lines = [head, "=" * min(WIDTH, max(len(line) for line in head.split("\n")))]
     keys = result["varied"]
     # a column is headed by its key's last part (motor.kv_rpm_per_V -> kv_rpm_per_V) so that the

@@ -53,7 +53,8 @@ def plot_compare(path, result, name):
             fontsize=8, color="grey", va="bottom")
     ax.set_xlabel("hover command, nominal pack [-]")
     ax.set_ylabel("hover endurance to cutoff or reserve [min]")
-    ax.set_title("%s: %d combinations\nvaried: %s" % (name, len(result["rows"]), ", ".join(result["varied"])),
+    n = len(result["rows"])
+    ax.set_title("%s: %d combination%s\nvaried: %s" % (name, n, "" if n == 1 else "s", ", ".join(result["varied"])),
                  fontsize=9)
     ax.grid(True, alpha=0.3)
     fig.tight_layout(rect=(0.0, 0.1, 1.0, 1.0))
