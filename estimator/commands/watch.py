@@ -293,6 +293,8 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     for p in out.get("ground_pauses", []):
         lines.append("  logging paused %.1f s at %.1f s with the rotors stopped: time on the ground, not a sensor fault"
                      % (p["gap_s"], p["t_s"]))
+    if out.get("ground_current_note"):
+        lines.append("  note: " + out["ground_current_note"])
     # before the events: a punch-out beyond the current-sensor range shows as a sensor_fault
     lines += ["  ! " + w for w in out.get("warnings", [])]
     if not out["learned"]:

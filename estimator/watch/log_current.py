@@ -59,3 +59,38 @@ def check_percent_as_permille(path, flight, params, facts, cfg):
                      "about %.3g A: likely percent labelled [permille]; label it command[%%]"
                      % (path, min(u), max(u), max(u) / 1000.0, command_text(spin / 1000.0, "permille"), med_A,
                         hover_A))
+
+
+# on the ground with the rotors stopped a bus current above this share of the rotors' hover current
+# (and above GROUND_CURRENT_MIN_A) is a draw the watch should know of: avionics, or a sensor's zero
+# offset; a 3 % draw moves the implied mass about 2 % (hover power ~ mass^1.5, momentum theory) [-]
+GROUND_CURRENT_SHARE = 0.03
+GROUND_CURRENT_MIN_A = 0.1     # below this: a current sensor's noise on the ground (common practice) [A]
+
+
+def ground_current_note(flight, params, facts, cfg):
+    """A note (text) when the log's bus current with the rotors stopped (command below half of the
+    thrust curve's u_min) says the bus carries a steady draw the vehicle does not give, else None.
+
+    The median current of those rows [A] against the vehicle's avionics_current_A (0 when not
+    given): noted when it is above GROUND_CURRENT_MIN_A and GROUND_CURRENT_SHARE of the rotors'
+    hover current (hover_current_A less the avionics), and off the given value by more than that
+    too (new-user trial 13, finding 1: 0.5 A of flight controller and video transmitter on a 2S
+    toothpick read as three alarms). flight: replay.read_flight's dict; cfg: the watch CONFIG."""
+    u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
+    rows = [i for i in range(len(u)) if 2 * u[i] < cfg["command_min_permille"] or u[i] == 0]
+    if len(rows) < 10:
+        return None
+    ground_A = upper_median([ma[i] for i in rows]) / 1000.0
+    given_A = float(facts.get("avionics_current_A") or 0.0)
+    bus_V = upper_median([mv[i] for i in rows]) / 1000.0
+    if bus_V <= 0.0:
+        return None
+    floor_A = max(GROUND_CURRENT_MIN_A, GROUND_CURRENT_SHARE * (hover_current_A(params, facts, bus_V) - given_A))
+    if ground_A < floor_A or abs(ground_A - given_A) < floor_A:
+        return None
+    return ("with the rotors stopped the bus carries %.2f A (median of %d rows) while the vehicle gives %s: "
+            "avionics (flight controller, video transmitter, camera, gimbal) the watch counts as rotor power, or "
+            "a current sensor's zero offset; give the avionics' current as avionics_current_A in the vehicle file "
+            "(or correct the sensor's offset)" % (ground_A, len(rows), "avionics_current_A %.2f A" % given_A
+                                                   if given_A else "no avionics_current_A"))

@@ -20,6 +20,7 @@ from estimator.watch.model_hedge import POWER_KINDS, exponent_not_measured, expo
 from estimator.watch.config import make_config, new_watch, vehicle_facts
 from estimator.watch.fault_causes import StuckTimer, fault_cause, in_range
 from estimator.watch.log_checks import check_plausible, check_time, check_vehicle
+from estimator.watch.log_current import ground_current_note
 
 KINDS = FLAG_BITS
 PROGRESS_ROWS = 100000  # logs longer than this get a progress bar (stderr, terminals only)
@@ -332,6 +333,9 @@ def replay_file_traced(path, params, vehicle=None, options=None, progress=None, 
     if progress is None:
         progress = len(flight["time_s"]) > PROGRESS_ROWS and sys.stderr.isatty()
     out, samples = run_kernel(flight, config, trace=trace, progress=_bar if progress else None)
+    ground = ground_current_note(flight, params, facts, config)
+    if ground:
+        out["ground_current_note"] = ground
     for e in out["events"]:
         note = exponent_note(e, params)
         if note:
