@@ -117,9 +117,6 @@ def export_settings(params, mapping, source_name="map", params_name=None):
             raise InputError("%s: source %r is not a number" % (where, entry["source"]))
         raw = value * entry.get("scale", 1.0) + entry.get("offset", 0.0)
         decimals = entry.get("decimals", 6)
-        if not math.isfinite(raw):
-            raise InputError("%s: %s = %.6g x scale %g overflows (no finite number): check the map's scale"
-                             % (where, entry["source"], value, entry.get("scale", 1.0)))
         result = int(round(raw)) if decimals == 0 else round(raw, decimals)
         lo, hi = entry.get("min"), entry.get("max")
         if (lo is not None and result < lo) or (hi is not None and result > hi):
