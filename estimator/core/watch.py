@@ -18,12 +18,12 @@ class Watch:
     """Power watch of one vehicle (CONFIG by liftcal firmware; desktop: watch.config.new_watch)."""
 
     def __init__(self, c):
-        """c: CONFIG of liftwatch_config, a tuple of 145 ints [-] (watch_layout: the scalars sit at
+        """c: CONFIG of liftwatch_config, a tuple of 129 ints [-] (watch_layout: the scalars sit at
         13..49, so most indices here compile to one-byte constants).
         Raises ValueError (no message: a string constant would stay on the heap) when CONFIG was
         made for another kernel format; the board loader liftwatch_load and the desktop builder
         check every bound first and say what is wrong in words."""
-        if len(c) != 145 or c[13] != 7:
+        if len(c) != 129 or c[13] != 8:
             raise ValueError
         span = c[21]
         # thrust fraction t = 4096 ((1 - a) d/S + a (d/S)^2) = d (ta + (tq d >> 10)) >> 14 with
@@ -121,7 +121,7 @@ class Watch:
         i = dv // vstep
         y = tb[i]                                         # Q12, 0..6143
         f = (y + (tb[i + 1] - y) * (dv % vstep) // vstep) * t >> 12   # 6143 * 5001 ; 6143 * 4096 ; f <= 6143
-        j = (f >> 7) + 63
+        j = (min(f, 4095) >> 7) + 63                      # the table ends at f = 1: beyond, read in its last step
         y = tb[j]                                         # [0.1 W], < 2^18
         pe = y + ((tb[j + 1] - y) * (f & 127) >> 7)       # 2^18 * 127 = 3.3e7
         pl4 += ((pe << 2) - pl4) * alpha >> 8             # first-order lag; 2^20 * 256 = 2^28 ; pl4 < 2^20
@@ -187,7 +187,7 @@ class Watch:
         hh = h >> 1                                       # sums below this: no suspicion
         sh = c[28]
         pmb = lo(e // b, (32 << sh) - 1)                 # mean measured power [0.1 W] <= 180000
-        j = (pmb >> sh) + 112
+        j = (pmb >> sh) + 96
         a = c[j]                                          # < 2^13
         # thrust from measured power (table); 2^13 * 2^13 ; <= 1e6
         sb[34] = th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[29]

@@ -14,7 +14,7 @@ makes a Watch. The bounds are those under which every kernel intermediate stays 
 Runs unchanged on MicroPython: no imports, no floats.
 """
 
-FORMAT = 7  # CONFIG format of this kernel (6: drift bounded in level, not per block; 5: the scalars after the tables)
+FORMAT = 8  # CONFIG format of this kernel (7: the power table up to f = 1.5, 49 knots; 6: drift bounded in level, not per block; 5: the scalars after the tables)
 
 # flag bits returned by Watch.update (design notes sec. 4)
 POWER_HIGH = 1
@@ -29,7 +29,7 @@ FLAG_BITS = ((POWER_HIGH, "power_high"), (POWER_LOW, "power_low"), (SENSOR_FAULT
 TABLES = (
     ("volt_q12", 13, 0, 6143),              # (V / V_ref)^n in Q12 at 13 voltages v_min + i step
     ("hover_table_permille", 13, 0, 1000),  # hover command at the same voltages
-    ("power_table", 49, 0, 262143),         # expected bus power [0.1 W] over f = 0..1.5 step 1/32
+    ("power_table", 33, 0, 262143),         # expected bus power [0.1 W] over f = 0..1 step 1/32 (held beyond)
     ("thrust_table", 33, 0, 8191),          # thrust [2^thrust_unit_shift mN] over measured power
 )
 
@@ -142,7 +142,7 @@ def check(config):
     # block energies: expected power (< 2^18 x 0.1 W) x 2 blocks >> energy_shift below 2^19
     top = 0
     at = TABLE_AT["power_table"]
-    for j in range(at, at + 49):
+    for j in range(at, at + 33):
         if config[j] > top:
             top = config[j]
     if (top * 2 * g("block_ms")) >> g("energy_shift") >= 1 << 19:

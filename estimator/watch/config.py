@@ -238,7 +238,7 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     put("spin_permille", int(round(1000.0 * spin)), "rotors spinning above command %.3f" % spin)
 
     p_tab = []
-    for j in range(49):
+    for j in range(33):
         f = j * 128 / 4096.0
         p_tab.append(int(round(10.0 * (n_rot * rotor_power_W(pm, t_site * f, rho) + p_av))))
     f_top = min((1.05 * v_full / v_ref) ** curve["voltage_exponent"], 1.5)  # full command at 1.05 x full pack voltage
@@ -246,7 +246,7 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     # so such power is out of range (a sensor fault) and never judged against the table
     p_tab = [min(p, (1 << 18) - 1) for p in p_tab]
     put("power_table", table(p_tab, "power table", (1 << 18) - 1), "N x P(T) [0.1 W] at T = %.3f N x f, "
-        "f = 0..1.5 step 1/32 (power model at rho %.4f%s; capped at 26 kW beyond full command)%s"
+        "f = 0..1 step 1/32, read in its last step beyond (power model at rho %.4f%s; capped at 26 kW)%s"
         % (t_site, rho, coaxial_note(params, layout, rho, weight_N / n_rot, n_rot), av_note))
     p_hover = n_rot * rotor_power_W(pm, weight_N / n_rot, rho)
     put("power_floor_dW", max(2, int(round(10.0 * (0.2 * p_hover + p_av)))), "20 %% of hover power %.1f W%s" % (p_hover, av_note))
