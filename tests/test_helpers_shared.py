@@ -17,3 +17,13 @@ def test_no_test_module_writes_its_own_ok_helper():
                 if re.search(r"^def _ok\(", fh.read(), re.M):
                     own.append(name)
     assert own == []
+
+
+def test_demo_fit_params_hands_each_caller_its_own_copy():
+    # an edit in one test (test_slips_trial11 sets motor_model.command_start) once reached the
+    # replays of later tests on the same worker through the shared cached set
+    from watch_helpers import demo_fit_params
+
+    a = demo_fit_params()
+    a["motor_model"]["command_start"] = 1.26587e-24
+    assert demo_fit_params()["motor_model"]["command_start"] != 1.26587e-24

@@ -71,7 +71,8 @@ _DEMO_FIT = {}
 
 
 def demo_fit_params():
-    """The real fitted demo parameter set: the demo bench sweep (benchsim, seed 1) through the fit."""
+    """The real fitted demo parameter set: the demo bench sweep (benchsim, seed 1) through the fit
+    (fitted once per worker, a fresh copy per call)."""
     if "p" not in _DEMO_FIT:
         import os
         import tempfile
@@ -84,7 +85,8 @@ def demo_fit_params():
             fh.write(simulate_sweep(seed=1))
         params = fit_for_vehicle(path, demo_vehicle())
         _DEMO_FIT["p"] = params
-    return _DEMO_FIT["p"]
+    import copy
+    return copy.deepcopy(_DEMO_FIT["p"])   # a copy: a test that edits its set leaves the others' alone
 
 
 def _unpacked_names(func_name, list_name):
