@@ -66,4 +66,6 @@ def test_mass_limit_is_not_floored(tmp_path):
     assert cfg["mass_plan_g"] == 2051 and json.loads(out)["mass_limit_g"] == round(exact, 1) == 2215.1
     code, out, err = run(["firmware", PARAMS, "--vehicle", path, "--out", tmp_path / "b2"])
     assert code == 0, err
-    assert "mass alarm above 2215.1 g" in " ".join(out.split())
+    # in the vehicle's unit as replay writes it (units.mass_text: kilograms for a vehicle of 1 kg or
+    # more; new-user trial 13, finding 12: firmware said 9720.0 g where replay said 9.720 kg)
+    assert "mass alarm above 2.215 kg" in " ".join(out.split())

@@ -12,6 +12,7 @@ from estimator.commands.options import FILE_NAME, Number
 from estimator.names import shown
 from estimator.jsonio import dumps
 from estimator.textwidth import fit_width
+from estimator.units import mass_text
 
 WATCH_CAUTIONS = cautions("board")
 # --lag-ms: the rotor's spin-up and the current sensor's response of a small multirotor take
@@ -212,9 +213,10 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     lines += ["wrote the power-watch bundle to %s (%d files, .mpy total %d bytes; and %s, liftcal's record "
               "of them)" % (shown(out["out_dir"]), len(out["files"]), out["mpy_bytes"], FOLDER_MANIFEST),
               "  CUSUM per %d ms block: reference %.2f, threshold %.2f x the block noise (learned in flight, "
-              "at least %.1f %%); expected power lagged %d ms; mass alarm above %.1f g"
+              "at least %.1f %%); expected power lagged %d ms; mass alarm above %s"
               % (cfg["block_ms"], summary["cusum_k_sigma"], summary["cusum_h_sigma"],
-                 100.0 * summary["noise_floor"], cfg["lag_ms"], mass_limit_g),
+                 100.0 * summary["noise_floor"], cfg["lag_ms"],
+                 mass_text(mass_limit_g / 1000.0, cfg["mass_plan_g"] / 1000.0)),
               "  made for one site's air, %s, and a current sensor that reads as the bench's meter did: "
               "at another field a healthy flight reads baseline_off and false power alarms; rebuild for it: "
               "liftcal firmware %s --vehicle VEHICLE.json (with that field's site) --out DIR"

@@ -10,7 +10,8 @@ Hawkins 1987, Siegmund 1985) and the integer contract: DEVELOPERS.md, "The onboa
 kernel". Every intermediate stays below 2^30 (the bound of each product is the comment beside
 it, with the CONFIG bounds of watch_layout.check); update() and _block() have no loops, build
 nothing and never raise for int inputs. Copied verbatim into the board bundle as
-``liftwatch.py``; CONFIG indices are literal numbers here (watch_layout.INDEX).
+``liftwatch.py``; CONFIG indices are literal numbers here (watch_layout.INDEX). The files named
+here are liftcal's source, not the bundle's (there watch_layout is ``liftwatch_layout.py``).
 """
 
 
@@ -42,7 +43,7 @@ class Watch:
                       ta, tq, c[20] + span, i_pos, 0, 0, 1]
         # data (sb in _block): block state, named by the unpacking in _block (DEVELOPERS.md: sig in
         # Q6, drift in Q8, fsl the hover thrust factor in Q7, low: the block's expected power fell
-        # below the floor; [30..34] the outputs); the inflow slope cx starts at momentum theory's 0.5
+        # below the floor; [30] bm, [31..35] the outputs); the inflow slope cx starts at momentum theory's 0.5
         self.data = [0] * 36
         self.clear()
 
