@@ -1,5 +1,5 @@
 """The vehicle key avionics_current_A (new-user trial 13, finding 1): the steady current the flight
-pack gives to everything that is not a motor (flight controller, video transmitter, camera,
+pack gives to everything that is not a motor (flight controller, FPV transmitter, camera,
 gimbal). A board's current sensor measures the whole bus, the bench one ESC: without the key a
 healthy flight with 0.5 A of avionics on a 2S toothpick raised three alarms.
 
@@ -66,7 +66,7 @@ def test_a_negative_avionics_current_is_refused(tmp_path):
     refused(["hover", _vehicle(tmp_path, "neg.json", avionics_current_A=-0.5)], "avionics_current_A")
 
 
-AVIONICS_A = 2.0   # about 12 % of the demo quad's hover current: a gimbal and a video transmitter
+AVIONICS_A = 2.0   # about 12 % of the demo quad's hover current: a gimbal and a FPV transmitter
 
 
 @pytest.fixture(scope="module")

@@ -177,7 +177,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     """Write the MicroPython power-watch bundle for a board.
 
     DIR gets {files} and mpy/*.mpy (the modules compiled). The board's current sensor reads the
-    whole bus: give the avionics' steady current (flight controller, video transmitter, camera, gimbal) as
+    whole bus: give the avionics' steady current (flight controller, FPV transmitter, camera, gimbal) as
     avionics_current_A in the vehicle file, or a healthy flight reads as extra power. A vehicle that
     cannot hover (liftcal hover) gets no bundle.
     """

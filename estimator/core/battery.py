@@ -19,7 +19,7 @@ def pack_open_circuit_V(cells, cell_V):
 
 def rotor_source_V(open_circuit_V, resistance_ohm, avionics_current_A):
     """Open-circuit voltage of the pack as the rotors see it while a constant avionics current
-    (flight controller, video transmitter, camera, gimbal) also flows from it.
+    (flight controller, FPV transmitter, camera, gimbal) also flows from it.
 
     V_bus = V_oc - R_pack (I_rotors + I_av) = (V_oc - R_pack I_av) - R_pack I_rotors: the rotors
     see a pack of open-circuit voltage V_oc - R_pack I_av and the same resistance, and the pack

@@ -113,7 +113,7 @@ def hover_estimate(mass_kg, rotor_count, layout, density_kg_m3, motor, propeller
     capacity_Ah [Ah], resistance_ohm [ohm], full_cell_V / nominal_cell_V / empty_cell_V [V],
     usable_fraction [-], cutoff_cell_V [V] (loaded; default empty_cell_V - 0.2 V);
     esc_efficiency: eta_esc [-]; avionics_current_A: steady current of everything on the pack that
-    is not a motor (flight controller, video transmitter, camera, gimbal) [A]: in the pack
+    is not a motor (flight controller, FPV transmitter, camera, gimbal) [A]: in the pack
     current, the sag and the endurance (battery.rotor_source_V); hover_power_W stays the rotors'.
     Returns a dict: states {full, nominal, empty} -> hover_at_pack result (plus
     open_circuit_V [V]); hover_command, hover_command_full, hover_command_empty [-] or None;

@@ -22,7 +22,7 @@ def hover_current_A(params, facts, bus_V):
     """The pack current of a hover at the planned mass [A]: the set's power model in flight (the one
     copy, estimator.core.power_model.rotor_power_W, with a coaxial layout's penalty:
     thrust_table.flight_power_model) for each rotor's share of the weight, in the site's air, over
-    the bus voltage bus_V [V], plus the vehicle's avionics_current_A (flight controller, video transmitter, camera)."""
+    the bus voltage bus_V [V], plus the vehicle's avionics_current_A (flight controller, FPV transmitter, camera)."""
     from estimator.core.power_model import rotor_power_W
     from estimator.watch.thrust_table import flight_power_model
 
@@ -75,7 +75,7 @@ def ground_current_note(flight, params, facts, cfg):
     The median current of those rows [A] against the vehicle's avionics_current_A (0 when not
     given): noted when it is above GROUND_CURRENT_MIN_A and GROUND_CURRENT_SHARE of the rotors'
     hover current (hover_current_A less the avionics), and off the given value by more than that
-    too (new-user trial 13, finding 1: 0.5 A of flight controller and video transmitter on a 2S
+    too (new-user trial 13, finding 1: 0.5 A of flight controller and FPV transmitter on a 2S
     toothpick read as three alarms). flight: replay.read_flight's dict; cfg: the watch CONFIG."""
     u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
     rows = [i for i in range(len(u)) if 2 * u[i] < cfg["command_min_permille"] or u[i] == 0]
@@ -90,7 +90,7 @@ def ground_current_note(flight, params, facts, cfg):
     if ground_A < floor_A or abs(ground_A - given_A) < floor_A:
         return None
     return ("with the rotors stopped the bus carries %.2f A (median of %d rows) while the vehicle gives %s: "
-            "avionics (flight controller, video transmitter, camera, gimbal) the watch counts as rotor power, or "
+            "avionics (flight controller, FPV transmitter, camera, gimbal) the watch counts as rotor power, or "
             "a current sensor's zero offset; give the avionics' current as avionics_current_A in the vehicle file "
             "(or correct the sensor's offset)" % (ground_A, len(rows), "avionics_current_A %.2f A" % given_A
                                                    if given_A else "no avionics_current_A"))
