@@ -31,6 +31,18 @@ def test_no_note_without_a_high_baseline_first():
         assert not any("note" in e for e in events)
 
 
+def test_a_high_baseline_of_an_earlier_flight_in_the_log_gives_no_note():
+    # each flight is learned anew: flight 1's baseline_off says nothing of flight 2's mass (before:
+    # the first baseline_off anywhere in the log annotated every later mass_high)
+    events = [{"kind": "baseline_off", "t_s": 38.9, "residual": 0.108, "flight": 1},
+              {"kind": "mass_high", "t_s": 400.0, "flight": 2}]
+    _note_mass_after_baseline(events)
+    assert "note" not in events[1]
+    events[1]["flight"] = 1
+    _note_mass_after_baseline(events)
+    assert "+10.8 % off the bench fit at 38.9 s" in events[1]["note"]
+
+
 def test_a_truly_heavy_demo_flight_gets_no_note_in_text_or_json(tmp_path):
     params = tmp_path / "p.json"
     params.write_text(json.dumps(demo_fit_params()))

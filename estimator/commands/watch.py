@@ -77,32 +77,42 @@ EVENT_MEANING = {
 POWER_AFTER_BASELINE_S = 60.0
 
 
+def _baseline_before(events, e, within_s=None, high=False):
+    """The first baseline_off of event e's flight (event key "flight") at or before e, within
+    within_s [s] of it when given, with more power than the bench fit (residual > 0) when high;
+    None when there is none. One lookup for the notes below: a baseline_off of an earlier flight
+    in the log says nothing of this one (each flight is learned anew)."""
+    return next((b for b in events if b["kind"] == "baseline_off" and b.get("flight") == e.get("flight")
+                 and 0.0 <= e["t_s"] - b["t_s"] and (within_s is None or e["t_s"] - b["t_s"] <= within_s)
+                 and (not high or b.get("residual", 0.0) > 0.0)), None)
+
+
+def _add_note(e, note):
+    e["note"] = e["note"] + "; " + note if e.get("note") else note
+
+
 def _note_power_after_baseline(events):
     """Add a "note" to a power_high that comes within POWER_AFTER_BASELINE_S of a baseline_off in the
-    same flight (event key "flight"): a site, pack or propeller off the bench fit shows first as the
-    one, then as the other (new-user trial 13, finding 3: a sea-level flight on a 2200 m bundle)."""
+    same flight: a site, pack or propeller off the bench fit shows first as the one, then as the
+    other (new-user trial 13, finding 3: a sea-level flight on a 2200 m bundle)."""
     for e in events:
-        if e["kind"] != "power_high":
-            continue
-        base = next((b for b in events if b["kind"] == "baseline_off" and b.get("flight") == e.get("flight")
-                     and 0.0 <= e["t_s"] - b["t_s"] <= POWER_AFTER_BASELINE_S), None)
+        base = _baseline_before(events, e, POWER_AFTER_BASELINE_S) if e["kind"] == "power_high" else None
         if base is not None:
-            note = ("%.1f s after the baseline_off of this flight: it may share its cause, another site or air, "
-                    "the pack or the props; settle that first" % (e["t_s"] - base["t_s"]))
-            e["note"] = e["note"] + "; " + note if e.get("note") else note
+            _add_note(e, "%.1f s after the baseline_off of this flight: it may share its cause, another site or "
+                         "air, the pack or the props; settle that first" % (e["t_s"] - base["t_s"]))
 
 
 def _note_mass_after_baseline(events):
-    """Add a "note" to a mass_high event that follows a baseline_off event with more power than
-    the bench fit expects: a power fault present from the start (a dragging bearing, a damaged
-    propeller) raises the implied mass just as a heavier payload does."""
-    first_high = next((e for e in events if e["kind"] == "baseline_off" and e.get("residual", 0.0) > 0.0), None)
+    """Add a "note" to a mass_high event that follows, in the same flight, a baseline_off with more
+    power than the bench fit expects: a power fault present from the start (a dragging bearing, a
+    damaged propeller) raises the implied mass just as a heavier payload does."""
     for e in events:
-        if e["kind"] == "mass_high" and first_high is not None and first_high["t_s"] <= e["t_s"]:
-            e["note"] = ("the power was already %+.1f %% off the bench fit at %.1f s: more power from the "
+        base = _baseline_before(events, e, high=True) if e["kind"] == "mass_high" else None
+        if base is not None:
+            _add_note(e, "the power was already %+.1f %% off the bench fit at %.1f s: more power from the "
                          "start (a dragging bearing, a damaged propeller) reads as extra mass too; weigh the "
                          "aircraft, and if it is as planned look for a power fault"
-                         % (100.0 * first_high["residual"], first_high["t_s"]))
+                         % (100.0 * base["residual"], base["t_s"]))
 
 
 def _exponent_warning(params, vehicle, source):
