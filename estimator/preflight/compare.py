@@ -307,10 +307,10 @@ def format_table(result, name):
     if result["best"]:
         lines.append("longest hover that keeps every margin: %s (%.1f min)"
                      % (result["best"]["label"], result["best"]["flight_time_lead_min"]))
+    else:  # one verdict line, the best choice or none
+        lines.append("no combination keeps every margin" + (" with values that look ordinary" if left_out else ""))
     if held:
         lines.append("! " + held)
-    else:
-        lines.append("no combination keeps every margin" + (" with values that look ordinary" if left_out else ""))
     if left_out:
         ranks = ", ".join("#%d" % r["rank"] for r in left_out[:5]) + (
             " and %d more" % (len(left_out) - 5) if len(left_out) > 5 else "")
