@@ -136,3 +136,12 @@ def test_the_demo_settings_file_is_what_export_writes(demo_run, tmp_path):
     lines = printed.splitlines()
     settings = lines[:next(i for i, line in enumerate(lines) if line.startswith(("!", "-", "settings written")))]
     assert "\n".join(settings) in text
+
+
+def test_the_demo_bundle_names_the_parameter_set_it_was_made_from(demo_run):
+    # new-user trial 14, finding 12: the demo's board folder named no file ("from parameter set"),
+    # so `firmware --out board` over it printed a cut-short "replaced" line
+    out, _, _ = demo_run
+    with open(os.path.join(out, "board", "liftwatch_config.py"), encoding="utf-8") as fh:
+        first = fh.readline()
+    assert re.search(r" from \S*params\.json - regenerate", first), first

@@ -96,7 +96,8 @@ def readme_text(template, config, edited=None, site=None, avionics_A=0.0, mpy_fm
     CONFIG is made for; avionics_A: the vehicle's avionics_current_A [A]; mpy_fmt: mpy_format()."""
     fields = {"block_ms": "%d" % config["block_ms"], "lag_ms": "%d" % config["lag_ms"],
               "site_air": site or "one site's", "mpy_format": mpy_fmt, "mpy_loaders": mpy_loaders(mpy_fmt),
-              "avionics": "%.3g A" % avionics_A if avionics_A else "no current (avionics_current_A not given)"}
+              "avionics": ("counts %.3g A for them (the vehicle file's `avionics_current_A`)" % avionics_A if avionics_A
+                           else "counts no current for them: the vehicle file gives no `avionics_current_A`")}
     for name in ("takeoff", "learn", "learn_timeout"):
         fields[name + "_s"] = "%g" % (config[name + "_ms"] / 1000.0)
     for name, at in layout.OUTPUT_AT:       # where each output sits in the Watch's data list
