@@ -8,7 +8,8 @@ A new folder is built beside the target (staging_folder), its manifest written l
 renamed into place (publish_folder / replace_folder).
 
 API: check_folder(path, kind, inputs, option) -> "new" | "empty" | "own";
-staging_folder(target); publish_folder(staged, target, kind); write_manifest(folder, kind);
+staging_folder(target); publish_folder(staged, target, kind) -> the files kept (made_since);
+write_manifest(folder, kind);
 folder_files(folder); replace_folder(staged, target).
 """
 
@@ -28,12 +29,40 @@ FOLDER_MANIFEST = ".liftcal-folder.json"
 
 def publish_folder(staged, target, kind):
     """Write the manifest into a staged folder and rename it into place; a failed write is one
-    InputError naming the target (the caller removes the staged folder on any failure)."""
+    InputError naming the target (the caller removes the staged folder on any failure).
+
+    Files in an earlier folder at ``target`` that its manifest does not list as they are (a
+    liftcal command wrote them there since: a figure, a settings file, a re-fit; check_folder let
+    only such files pass) and that the new folder does not write are carried over, unlisted, so
+    they stay the person's (new-user trial 14, finding 2: re-running the demo deleted them).
+    Returns their relative paths, sorted."""
     try:
         write_manifest(staged, kind)
+        kept = made_since(target, staged)
+        for rel in kept:
+            dest = os.path.join(staged, *rel.split("/"))
+            os.makedirs(os.path.dirname(dest), exist_ok=True)
+            shutil.copy2(os.path.join(target, *rel.split("/")), dest)
     except OSError as exc:
         raise write_error(target, exc) from None
     replace_folder(staged, target)
+    return kept
+
+
+def made_since(target, staged):
+    """The relative paths in the folder ``target`` (if any) that its manifest does not list
+    unchanged and that ``staged`` does not hold: what was made there after liftcal wrote it."""
+    if not os.path.isdir(target) or os.path.islink(target):
+        return []
+    try:
+        with open(os.path.join(target, FOLDER_MANIFEST), "r", encoding="utf-8") as fh:
+            listed = json.load(fh).get("files")
+    except (OSError, ValueError, AttributeError):
+        listed = None
+    listed = listed if isinstance(listed, dict) else {}
+    new = _tree(staged)
+    return sorted(rel for rel, digest in _tree(target).items()
+                  if rel != FOLDER_MANIFEST and rel not in new and listed.get(rel) != digest)
 
 
 def _tree(folder):
@@ -164,6 +193,14 @@ def _some(names):
     name cut at 60 characters."""
     shown_names = ", ".join(name[:60] for name in names[:FOREIGN_SHOWN])
     return shown_names + (" and %d more" % (len(names) - FOREIGN_SHOWN) if len(names) > FOREIGN_SHOWN else "")
+
+
+def kept_words(kept):
+    """'' or '; kept the 2 files made there since, as they were: a.png, b.txt' (publish_folder's list)."""
+    if not kept:
+        return ""
+    return "; kept the %d file%s made there since, as they were: %s" % (
+        len(kept), "" if len(kept) == 1 else "s", _some(kept))
 
 
 def replace_folder(staged, target):

@@ -54,15 +54,30 @@ def run_demo(out_dir, seed=1, emit=None):
 
     # a new or empty folder, or one an earlier demo wrote and nobody changed (folders.py); the
     # files are made in a folder beside it and renamed into place at the end: never half a demo
-    check_folder(out_dir, "demo")
+    state = check_folder(out_dir, "demo")
     work = staging_folder(out_dir)
     try:
         report, text = _run(out_dir, work, seed, emit)
-        publish_folder(work, out_dir, "demo")
+        kept = publish_folder(work, out_dir, "demo")
     except BaseException:
         shutil.rmtree(work, ignore_errors=True)
         raise
+    # README: whenever liftcal replaces its own files it says so in one line; the files made in
+    # the folder since the earlier demo (the tour's figures, settings, re-fits) are kept and named
+    report["replaced"] = [replaced_words(out_dir, kept)] if state == "own" else []
+    report["kept"] = kept
+    for line in report["replaced"]:
+        text += "\n" + line
+        if emit is not None:
+            emit(line)
     return report, text
+
+
+def replaced_words(out_dir, kept):
+    """The line a demo over an earlier one prints: what it replaced and which files it kept."""
+    from estimator.folders import kept_words
+
+    return "replaced %s: the files an earlier liftcal demo wrote there%s" % (shown(out_dir), kept_words(kept))
 
 
 # the payloads and job time of the demo's payload table, as typed on its printed command line

@@ -211,7 +211,9 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     warnings = (([edited] if edited else []) + _tare_warning(params, params_file)
                 + _exponent_warning(params, vehicle, params_file) + out["warnings"])
     # README: whenever liftcal replaces one of its own files it says so in one line
-    replaced = ["replaced %s: a power-watch bundle liftcal wrote%s" % (out_dir, old_source)] if state == "own" else []
+    from estimator.folders import kept_words
+    replaced = (["replaced %s: a power-watch bundle liftcal wrote%s%s" % (out_dir, old_source, kept_words(out["kept"]))]
+                if state == "own" else [])
     summary = {"out_dir": out["out_dir"], "files": out["files"], "mpy_bytes": out["mpy_bytes"],
                "cusum_k_sigma": cfg["cusum_k_q8"] / 256.0, "cusum_h_sigma": cfg["cusum_h_q8"] / 256.0,
                "noise_floor": cfg["noise_floor_permille"] / 1000.0, "lag_ms": cfg["lag_ms"],

@@ -192,7 +192,8 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
     set's vehicle block); options: watch_config.DEFAULTS overrides; edited: the warning line of
     a set edited since liftcal sealed it (params.edited_set_warning), written into
     liftwatch_config.py's header and the README, or None.
-    Summary: out_dir, files (relative), mpy_bytes (total size of the .mpy files), config, site
+    Summary: out_dir, files (relative), mpy_bytes (total size of the .mpy files), config, kept (files made in an
+    earlier bundle folder there since, carried over: folders.publish_folder), site
     (site_air_words' dict and its words).
     Raises InputError (nothing written) on bad input or an occupied out_dir.
     """
@@ -229,10 +230,10 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
             target = os.path.join(tmp, "mpy", mod + ".mpy")
             compile_mpy(os.path.join(tmp, mod + ".py"), target)
             mpy_bytes += os.path.getsize(target)
-        publish_folder(tmp, out_dir, "bundle")
+        kept = publish_folder(tmp, out_dir, "bundle")
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise
     files = sorted(list(texts) + ["mpy/%s.mpy" % m for m in MODULES])
-    return {"out_dir": out_dir, "files": files, "mpy_bytes": mpy_bytes, "config": config,
+    return {"out_dir": out_dir, "files": files, "mpy_bytes": mpy_bytes, "config": config, "kept": kept,
             "site": dict(site, words=site_words), "warnings": [notes["range_warning"]] if "range_warning" in notes else []}
