@@ -141,6 +141,17 @@ def hover_below_cutoff(report):
 CUTOFF_NEAR_NOMINAL_V = 0.2
 
 
+def _pack_power(report):
+    """(the hover power beside the pack current, words for the bracket after it): the motors'
+    (hover_power_W), plus the avionics' current at the bus voltage when the vehicle gives one,
+    the motors' share then named in the bracket (new-user trial 14, finding 8)."""
+    motors_W, bus_V = report.get("hover_power_W"), report.get("hover_bus_V")
+    if not report.get("avionics_current_A") or motors_W is None or bus_V is None:
+        return _num(motors_W, SIG3, "W"), ""
+    return (_num(motors_W + report["avionics_current_A"] * bus_V, SIG3, "W"),
+            "the motors %s; " % _num(motors_W, SIG3, "W"))
+
+
 def _small_rotor_leads(report):
     """True when the report's hover numbers are at the small-rotor figure of merit (preflight.report:
     a small estimated rotor that hovers there), the generic blade's estimate beside them."""
@@ -155,7 +166,7 @@ def _small_rotor_line(report):
     low = report["low_reynolds_check"]
     return ("(hover command, currents, power and minutes at the figure of merit %.2f measured rotors of this "
             "size reach; the generic blade estimate, %.2f and likely optimistic, gives command %s, motor "
-            "current %s, pack current %s, %s)" % (
+            "current %s, pack current %s, the motors %s)" % (
                 low["figure_of_merit_assumed"], low["figure_of_merit_estimated"],
                 _num(low.get("estimate_hover_command"), "%.2f"),
                 _num(low.get("estimate_hover_motor_current_A"), SIG3, "A"),
@@ -305,9 +316,9 @@ def format_sheet(report, section5=None):
             lines.append("   cutoff %.2f V per cell under load; pack resistance %s%s" % (
                 report["cutoff_cell_V"], resistance_text(report.get("pack_resistance_ohm")),
                 pack_temperature_text(report)))
-        lines.append("   hover draws %s from the pack (all motors%s), %s (nominal pack, bus at %s)" % (
-            _num(report.get("hover_current_A"), SIG3, "A"), _avionics(report), _num(report.get("hover_power_W"), SIG3, "W"),
-            _num(report.get("hover_bus_V"), "%.2f", "V")))
+        lines.append("   hover draws %s from the pack (all motors%s), %s (%snominal pack, bus at %s)" % (
+            (_num(report.get("hover_current_A"), SIG3, "A"), _avionics(report)) + _pack_power(report)
+            + (_num(report.get("hover_bus_V"), "%.2f", "V"),)))
         extras = []
         if report.get("hover_rpm") is not None:
             extras.append("rotors at %.0f rpm" % report["hover_rpm"])
