@@ -41,8 +41,9 @@ def json_path(error_path):
     return out
 
 
-def validate(document, schema_name, source):
-    """Validate ``document`` against ``schemas/<schema_name>`` (draft 2020-12).
+def validate(document, schema_name, source, text_keys=None):
+    """Validate ``document`` against ``schemas/<schema_name>`` (draft 2020-12); text_keys: the
+    keys that also take text with a unit, {block: {short key: (key, kind)}} (key_hints).
 
     Raises InputError naming ``source`` and the JSON path of the first (deepest) problem,
     with the likely cause where one can be told from the document itself: a missing key
@@ -63,7 +64,7 @@ def validate(document, schema_name, source):
         foreign = _not_ours(document, schema) if not list(err.absolute_path) else None
         if foreign:
             raise InputError("%s: $: %s" % (source, foreign))
-        raise InputError("%s: %s: %s%s" % (source, json_path(err.absolute_path), _message(err), _likely_cause(err)))
+        raise InputError("%s: %s: %s%s" % (source, json_path(err.absolute_path), _message(err), _likely_cause(err, text_keys)))
 
 
 def _message(err):
@@ -220,7 +221,7 @@ def _unknown_keys(err):
     return [k for k in err.instance if k not in props]
 
 
-def _likely_cause(err):
+def _likely_cause(err, text_keys=None):
     """A short "; did you mean ..." for a schema error, or ""."""
     import difflib
 
@@ -235,20 +236,9 @@ def _likely_cause(err):
                 if short:  # "kv" for "kv_rpm_per_V": the key's name without its unit
                     return "; the file has %r: did you mean %r? (the key names its unit)" % (short[0], key)
         return ""
-    if err.validator == "additionalProperties":
-        props = list(err.schema.get("properties", {}))
-        free = [k for k in props if k not in err.instance]
-        given = [k for k in props if k in err.instance]
-        hints = []
-        for key in _unknown_keys(err) or []:
-            close = difflib.get_close_matches(key, free, 1, _CLOSE)
-            if close:
-                hints.append("did you mean %r for %r?" % (close[0], key))
-                continue
-            close = difflib.get_close_matches(key, given, 1, _CLOSE)
-            if close:
-                hints.append("%r repeats %r, which is already given: remove it" % (key, close[0]))
-        return ("; " + "; ".join(hints)) if hints else ""
+    if err.validator == "additionalProperties" and isinstance(err.instance, dict):
+        from estimator.key_hints import unknown_key_hints
+        return unknown_key_hints(err, text_keys)
     if err.validator in ("maximum", "exclusiveMaximum", "minimum", "exclusiveMinimum"):
         path = list(err.absolute_path)
         key = path[-1] if path and isinstance(path[-1], str) else ""

@@ -152,7 +152,7 @@ def check_vehicle(document, source):
     _not_another_file(document, source)
     document, given = normalise(document, source)
     try:
-        validate(document, SCHEMA, source)
+        validate(document, SCHEMA, source, _UNIT_KEYS)
     except InputError as exc:  # name the key as the file wrote it
         raise InputError(mass_hint(_schema_hint(_as_written(str(exc), given), document), document)) from None
     vehicle = copy.deepcopy(document)

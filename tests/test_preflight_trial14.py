@@ -2,6 +2,8 @@
 1. `compare` printed "no combination keeps every margin" right under the combination that keeps
    them all, and no verdict at all when no row kept them and a pack size was varied.
 8. the sheet's hover current counted the avionics while the watts beside it were the motors' alone.
+9. an unknown key's hint: 'frame' was said to repeat 'name'; "avionic_current": "600mA" was pointed
+   at avionics_current_A, not at the key that takes text with a unit, and "for 'key'" repeated it.
 """
 
 import json
@@ -9,7 +11,7 @@ import re
 
 import pytest
 
-from io_helpers import VEHICLE, run
+from io_helpers import VEHICLE, refused, run
 
 NONE_KEEPS = "no combination keeps every margin"
 BEST = "longest hover that keeps every margin:"
@@ -59,3 +61,23 @@ def test_the_hover_watts_beside_the_pack_current_count_the_avionics_too(tmp_path
     assert motors == pytest.approx((amps - 0.6) * bus, rel=0.005)
     report = json.loads(run(["hover", vehicle, "--json"])[1])
     assert motors == pytest.approx(report["hover_power_W"], rel=0.005)
+
+
+def test_a_free_key_is_pointed_to_notes_not_to_a_key_it_does_not_repeat(tmp_path):
+    line = refused(["hover", _vehicle(tmp_path, frame="X")], "v.json", "$:", "unknown key 'frame'", '"notes"')
+    assert "repeats" not in line and "'name'" not in line, line
+
+
+def test_a_misspelt_key_with_a_unit_text_is_pointed_to_the_key_that_takes_text(tmp_path):
+    line = refused(["hover", _vehicle(tmp_path, avionic_current="600mA")], "unknown key 'avionic_current'")
+    assert line.endswith("did you mean 'avionics_current'?"), line
+    line = refused(["hover", _vehicle(tmp_path, avionic_current_A=0.6)], "unknown key 'avionic_current_A'")
+    assert line.endswith("did you mean 'avionics_current_A'?"), line
+
+
+def test_a_key_written_twice_still_repeats(tmp_path):
+    doc = json.load(open(VEHICLE))
+    doc["motor"]["kv_rpm"] = 880
+    path = tmp_path / "twice.json"
+    path.write_text(json.dumps(doc))
+    refused(["hover", path], "$.motor", "'kv_rpm' repeats 'kv_rpm_per_V', which is already given")
