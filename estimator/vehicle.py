@@ -168,8 +168,8 @@ def check_vehicle(document, source):
     assumed += [w for w in (site_temperature_warning(site.get("altitude_m", DEFAULT_ALTITUDE_M), site.get("temperature_C")),
                 humidity_fraction_note(site.get("humidity_pct"), "$.site.humidity_pct"), "$.site.altitude_m" not in given
                 and altitude_feet_note(site.get("altitude_m"), "$.site.altitude_m")) if w]
-    vehicle["checked"] = {"source": source, "assumed": assumed,
-                          "given": {path: text for path, (_, text) in given.items()}}
+    vehicle["checked"] = {"source": source, "assumed": assumed, "given": {p: t for p, (_, t) in given.items()},
+                          "written": {p: w for p, (w, _) in given.items() if w != p}}  # its key as written
     vehicle["rotors"].setdefault("layout", DEFAULT_LAYOUT)
     vehicle["battery"].setdefault("usable_fraction", DEFAULT_USABLE_FRACTION)
     empty = vehicle["battery"]["empty_cell_V"]

@@ -4,6 +4,8 @@
 8. the sheet's hover current counted the avionics while the watts beside it were the motors' alone.
 9. an unknown key's hint: 'frame' was said to repeat 'name'; "avionic_current": "600mA" was pointed
    at avionics_current_A, not at the key that takes text with a unit, and "for 'key'" repeated it.
+10. a unit-slip caveat named $.mass_kg for a file that wrote "mass": "5kg" ($.battery.capacity_Ah
+   for "capacity": "150Ah").
 """
 
 import json
@@ -81,3 +83,29 @@ def test_a_key_written_twice_still_repeats(tmp_path):
     path = tmp_path / "twice.json"
     path.write_text(json.dumps(doc))
     refused(["hover", path], "$.motor", "'kv_rpm' repeats 'kv_rpm_per_V', which is already given")
+
+
+def _written_with_units(tmp_path, **changes):
+    doc = json.load(open(VEHICLE))
+    doc["mass"] = "%gkg" % doc.pop("mass_kg")
+    doc["battery"]["capacity"] = "%gAh" % doc["battery"].pop("capacity_Ah")
+    for key, value in changes.items():
+        block, _, leaf = key.rpartition("__")
+        (doc[block] if block else doc)[leaf] = value
+    path = tmp_path / "written.json"
+    path.write_text(json.dumps(doc))
+    return path
+
+
+@pytest.mark.parametrize("changes, written, si", [
+    ({"mass": "20kg"}, "$.mass", "$.mass_kg"),                      # 20 kg on 10-inch props
+    ({"battery__capacity": "150Ah"}, "$.battery.capacity", "$.battery.capacity_Ah"),
+])
+def test_a_slip_caveat_names_the_key_as_the_file_wrote_it(tmp_path, changes, written, si):
+    vehicle = _written_with_units(tmp_path, **changes)
+    code, out, err = run(["hover", vehicle])
+    assert code == 0, err
+    said = " ".join(out.split())
+    assert ("! %s: " % written) in said and si not in said, said
+    report = json.loads(run(["hover", vehicle, "--json"])[1])
+    assert report["suspect_keys"] == [written]

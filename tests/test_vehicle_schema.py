@@ -184,7 +184,8 @@ def test_a_parameter_set_or_map_is_not_taken_for_a_vehicle():
 
 def test_checked_vehicle_records_its_source_and_the_sea_level_assumption():
     doc = json.loads(DESIGN_NOTES_EXAMPLE)
-    assert check_vehicle(doc, "x.json")["checked"] == {"source": "x.json", "assumed": [], "given": {}}
+    assert check_vehicle(doc, "x.json")["checked"] == {"source": "x.json", "assumed": [], "given": {},
+                                                          "written": {}}
     del doc["site"]
     assumed = check_vehicle(doc, "x.json")["checked"]["assumed"]
     assert len(assumed) == 1 and "no site" in assumed[0] and "sea level" in assumed[0]

@@ -56,6 +56,16 @@ def _as_written(vehicle, path):
     return "" if text is None else ' (written "%s")' % text
 
 
+_JSON_PATH = re.compile(r"\$\.[A-Za-z_]+(?:\.[A-Za-z_]+)?")
+
+
+def _paths_as_written(vehicle, text):
+    """``text`` with each key the file wrote under another name named as written ($.mass_kg as
+    $.mass for "mass": "5kg"; new-user trial 14, finding 10)."""
+    written = (vehicle.get("checked") or {}).get("written") or {}
+    return _JSON_PATH.sub(lambda m: written.get(m.group(0), m.group(0)), text)
+
+
 def _written_hint(value, unit, plausible, fmt="%.3g"):
     """The slips of WRITTEN_SLIPS that make a value written with its unit plausible, as text."""
     out = [("%s %s meant (%s)?" % (fmt % (value * scale), unit, why))
@@ -95,7 +105,7 @@ def suspicious_values(vehicle):
     tell which of two keys is wrong), so the sheet names that key first.
 
     vehicle: dict from estimator.vehicle.check_vehicle (SI keys). Each warning starts with the
-    JSON path and names the value as read (and as written, when the file gave a unit), why it
+    JSON path (as the file wrote the key) and names the value as read (and as written, when the file gave a unit), why it
     is odd, and the unit or value that would make it ordinary.
     """
     out = []
@@ -186,7 +196,7 @@ def suspicious_values(vehicle):
     coefficients = _coefficient_slip(prop)
     if coefficients:
         out.append(coefficients)
-    return out
+    return [_paths_as_written(vehicle, w) for w in out]
 
 
 def _coefficient_slip(prop):
