@@ -247,6 +247,12 @@ def altitude_feet_note(altitude_m, what):
             % (what, altitude_m, altitude_m, altitude_m * FOOT_M, altitude_m, altitude_m))
 
 
+def counted(n, noun):
+    """'1 rotor', '4 rotors': a whole number of things with the noun in agreement (new-user trial 14,
+    finding 11: '1 rotors')."""
+    return "%d %s%s" % (n, noun, "" if n == 1 else "s")
+
+
 def command_text(u, unit, span=False):
     """A command [-] written in a command unit (COMMAND_SHOWN), as a bench CSV's command column
     has it ('-' as the fraction to three decimals); span=True for a difference of commands (no

@@ -6,6 +6,7 @@
    at avionics_current_A, not at the key that takes text with a unit, and "for 'key'" repeated it.
 10. a unit-slip caveat named $.mass_kg for a file that wrote "mass": "5kg" ($.battery.capacity_Ah
    for "capacity": "150Ah").
+11. '1 rotors' and 'all 1 motors' on a one-rotor, one-cell vehicle.
 """
 
 import json
@@ -109,3 +110,25 @@ def test_a_slip_caveat_names_the_key_as_the_file_wrote_it(tmp_path, changes, wri
     assert ("! %s: " % written) in said and si not in said, said
     report = json.loads(run(["hover", vehicle, "--json"])[1])
     assert report["suspect_keys"] == [written]
+
+
+def test_a_one_rotor_one_cell_vehicle_reads_in_the_singular(tmp_path):
+    doc = json.load(open(VEHICLE))
+    doc["rotors"]["count"] = 1
+    doc["mass_kg"] = 0.3
+    doc["battery"].update(cells=1, capacity_Ah=1.0)
+    path = tmp_path / "mono.json"
+    path.write_text(json.dumps(doc))
+    code, out, err = run(["hover", path])
+    assert code == 0, err
+    said = " ".join(out.split())
+    assert "1 rotor (flat), propeller 0.254 m" in said and ", 1 motor (rating" in said, said
+    assert "hover draws" not in said or "(the motor)" in said
+    for plural in ("1 rotors", "1 motors", "1 cells", "propellers 0.254"):
+        assert plural not in said, plural
+    # a slip warning counts its rotors and cells the same way: 60 Ah (222 Wh) on 1 cell of a 0.3 kg vehicle
+    doc["battery"]["capacity"] = "60Ah"
+    del doc["battery"]["capacity_Ah"]
+    path.write_text(json.dumps(doc))
+    warnings = json.loads(run(["hover", path, "--json"])[1])["warnings"]
+    assert any("60 Ah (written \"60Ah\") on 1 cell is" in w and "Ah on 1 cell;" in w for w in warnings), warnings

@@ -12,7 +12,7 @@ from estimator.preflight.warnings import (ENDED_BY_WORDS, GIVEN3, REACHABLE_MARK
                                          judged_thrust_to_weight_text, not_flyable_reasons,
                                          resistance_text, thrust_to_weight_text)
 from estimator.textwidth import fit_width
-from estimator.units import command_text
+from estimator.units import command_text, counted
 
 MODEL = "liftcal.dc-motor-momentum/1"  # the datasheet route's report model
 # the datasheet model takes command = ESC duty; a real ESC only starts the motor above a
@@ -189,10 +189,10 @@ def format_sheet(report, section5=None):
     as_given = report.get("mass_as_given")
     size_given = report.get("propeller_as_given")
     diameter = report.get("propeller_diameter_m")
-    setup = "%s%s, %d rotors (%s)%s" % (
+    setup = "%s%s, %s (%s)%s" % (
         _num(report.get("mass_kg"), GIVEN3, "kg"), " (%s as written)" % as_given if as_given else "",
-        report.get("rotor_count", 0), report.get("layout", "flat"),
-        ", propellers %.3g m%s" % (diameter, " (%s as written)" % size_given if size_given else
+        counted(report.get("rotor_count", 0), "rotor"), report.get("layout", "flat"),
+        ", propeller%s %.3g m%s" % ("" if report.get("rotor_count") == 1 else "s", diameter, " (%s as written)" % size_given if size_given else
                                    " (bench rotor)" if report.get("propeller_source") == "bench sweep" else "")
         if diameter else "")
     lines += ["vehicle  " + setup, "site     " + air, ""]
@@ -273,9 +273,10 @@ def format_sheet(report, section5=None):
                      _num(report.get("esc_current_limit_A"), GIVEN3, "A", none="not given"),
                      ", judged on %s, the larger of its input and output" % _num(esc_peak, SIG3, "A")
                      if report.get("esc_current_limit_A") is not None and esc_peak is not None else ""))
-    lines.append("   pack current       %s%s, all %d motors%s (rating %s)" % (
+    lines.append("   pack current       %s%s, %s%s (rating %s)" % (
         _at_hover(report.get("hover_current_A")) if report.get("can_hover") else "",
-        _at_full(report, current_judged(report, "pack"), report.get("full_pack_current_A")), count, _avionics(report),
+        _at_full(report, current_judged(report, "pack"), report.get("full_pack_current_A")),
+        ("all " if count != 1 else "") + counted(count, "motor"), _avionics(report),
         _num(report.get("pack_current_limit_A"), GIVEN3, "A", none="not given")))
     lines.append("")
 
@@ -316,8 +317,9 @@ def format_sheet(report, section5=None):
             lines.append("   cutoff %.2f V per cell under load; pack resistance %s%s" % (
                 report["cutoff_cell_V"], resistance_text(report.get("pack_resistance_ohm")),
                 pack_temperature_text(report)))
-        lines.append("   hover draws %s from the pack (all motors%s), %s (%snominal pack, bus at %s)" % (
-            (_num(report.get("hover_current_A"), SIG3, "A"), _avionics(report)) + _pack_power(report)
+        lines.append("   hover draws %s from the pack (%s%s), %s (%snominal pack, bus at %s)" % (
+            (_num(report.get("hover_current_A"), SIG3, "A"),
+             "the motor" if report.get("rotor_count") == 1 else "all motors", _avionics(report)) + _pack_power(report)
             + (_num(report.get("hover_bus_V"), "%.2f", "V"),)))
         extras = []
         if report.get("hover_rpm") is not None:

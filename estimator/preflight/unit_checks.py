@@ -16,7 +16,7 @@ from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2, figure_of_merit
 from estimator.preflight.slip_diagnosis import (ordinary_pack, pack_share_warning, too_heavy_warning,
                                                whole_vehicle_slip, whole_vehicle_warning)
-from estimator.units import INCH_M
+from estimator.units import INCH_M, counted
 from estimator.vehicle import given_text
 # the typical ranges live with the vehicle file's unit reading (one home)
 from estimator.vehicle_units import DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, pack_energy_range
@@ -144,9 +144,9 @@ def suspicious_values(vehicle):
                 hint = ": %s meant? (%g %s = %.3g m)" % (word, diameter, unit, diameter * scale)
                 break
         out.append("$.propeller.diameter_m: %g m%s propellers carry only %.1f N/m^2 each for a %g kg "
-                   "vehicle on %d rotors, far below the %g..%g N/m^2 of small multirotors%s"
+                   "vehicle on %s, far below the %g..%g N/m^2 of small multirotors%s"
                    % (diameter, _as_written(vehicle, "$.propeller.diameter_m"), loading,
-                      mass, count, lo, hi,
+                      mass, counted(count, "rotor"), lo, hi,
                       hint or ": a unit or decimal slip? check the diameter (metres) and the mass "
                       "(kilograms)"))
     pack_V = bat["cells"] * bat["nominal_cell_V"]
@@ -154,10 +154,10 @@ def suspicious_values(vehicle):
     least_pack_kg = energy_Wh / CELL_SPECIFIC_ENERGY_MAX_WH_KG
     capacity_odd = least_pack_kg > mass
     if capacity_odd:
-        head = ("$.battery.capacity_Ah: %g Ah%s on %d cells is %.0f Wh, which weighs at least %.2g kg "
+        head = ("$.battery.capacity_Ah: %g Ah%s on %s is %.0f Wh, which weighs at least %.2g kg "
                 "even at %.0f Wh/kg (the best lithium cells, from memory), more than the whole "
                 "%g kg vehicle" % (bat["capacity_Ah"], _as_written(vehicle, "$.battery.capacity_Ah"),
-                                   bat["cells"], energy_Wh, least_pack_kg,
+                                   counted(bat["cells"], "cell"), energy_Wh, least_pack_kg,
                                    CELL_SPECIFIC_ENERGY_MAX_WH_KG, mass))
         if given_text(vehicle, "$.battery.capacity_Ah") is None:
             out.append(head + ": mAh meant? (%g mAh = %g Ah)" % (bat["capacity_Ah"], bat["capacity_Ah"] * 1e-3))
@@ -169,11 +169,11 @@ def suspicious_values(vehicle):
             hint = _written_hint(bat["capacity_Ah"], "Ah", lambda c: usual[0] <= c <= usual[1]
                                  and ordinary_pack(vehicle, "$.battery.capacity_Ah", c))
             out.append(head + ": a unit or decimal slip? %s (packs of %.0f..%.0f %% of the all-up mass at about "
-                       "%.0f..%.0f Wh/kg, %s by the cell voltages, hold %.2g..%.2g Ah on %d cells; common "
+                       "%.0f..%.0f Wh/kg, %s by the cell voltages, hold %.2g..%.2g Ah on %s; common "
                        "practice, from memory)"
                        % (hint or "check the capacity",
                           100 * share_lo, 100 * share_hi, specific_Wh_kg, best_Wh_kg, chemistry, usual[0],
-                          usual[1], bat["cells"]))
+                          usual[1], counted(bat["cells"], "cell")))
     found = whole_vehicle_slip(vehicle)
     if found is not None:  # one key explains the whole vehicle: it goes first, the pairwise checks go
         out = [whole_vehicle_warning(vehicle, found)]
