@@ -16,9 +16,12 @@ import re
 from estimator.errors import InputError, shorten
 from estimator.units import unit_spelling
 
-_HEADER_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*(?:\[([^\]]*)\])?\s*$")
+# matched on the stripped cell; the name's words and the spaces between them cannot be taken two
+# ways, so a cell of ten thousand spaces is read in one pass (it backtracked for hours: a hang)
+_NAME = r"([A-Za-z_][A-Za-z0-9_]*(?: +[A-Za-z0-9_]+)*)"
+_HEADER_CELL = re.compile(r"^" + _NAME + r"\s*(?:\[([^\]]*)\])?$")
 # a spreadsheet-style cell: 'Lift (gf)', 'Pulse width (µs)'
-_SPREADSHEET_CELL = re.compile(r"^\s*([A-Za-z_][A-Za-z0-9_ ]*?)\s*\(([^)]*)\)\s*$")
+_SPREADSHEET_CELL = re.compile(r"^" + _NAME + r"\s*\(([^)]*)\)$")
 
 # the most problems one error line lists (a header of thousands of columns stays one short line)
 MAX_LISTED = 12
@@ -102,7 +105,7 @@ def parse_header(path, head, columns, optional=(), refuse=None):
     line = head.line
     cells = []  # (column number, cell, name or None, unit or None)
     for index, cell in enumerate(head.cells):
-        m = _HEADER_CELL.match(cell)
+        m = _HEADER_CELL.match(cell.strip())
         cells.append((index + 1, cell, m.group(1).strip().lower() if m else None,
                       (m.group(2) if m else None)))
     present = {name for _, _, name, _ in cells if name is not None}
@@ -110,7 +113,7 @@ def parse_header(path, head, columns, optional=(), refuse=None):
     for col, cell, name, unit in cells:
         where = "column %d %s" % (col, shorten(cell.strip()))
         if name is None:
-            m = _SPREADSHEET_CELL.match(cell)
+            m = _SPREADSHEET_CELL.match(cell.strip())
             target = column_for(m.group(1).strip().lower(), tables) if m else None
             if target is None:
                 strangers.append(where)

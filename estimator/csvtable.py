@@ -157,7 +157,7 @@ def _not_a_header_again(path, line_no, cells, header):
         raise InputError("%s: line %d repeats the header row (%s): two files joined? delete that line, "
                          "or split the file there and read each part on its own"
                          % (path, line_no, _first_cells(cells)))
-    if sum(1 for c in cells if _HEADER_CELL.match(c)) * 2 > len(cells):
+    if sum(1 for c in cells if _HEADER_CELL.match(c.strip())) * 2 > len(cells):
         raise InputError("%s: line %d looks like another header row (%s), not readings: two files "
                          "joined? delete that line, or split the file there and read each part on its own"
                          % (path, line_no, _first_cells(cells)))
