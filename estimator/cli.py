@@ -157,7 +157,13 @@ def main(argv=None):
     except click.ClickException as exc:
         msg = exc.format_message().replace("\n", " ")
         ctx_cmd = getattr(getattr(exc, "ctx", None), "command_path", "liftcal")
-        fail("%s: %s (see '%s --help')" % (ctx_cmd, msg, ctx_cmd), as_json)
+        param = getattr(exc, "param", None)
+        if isinstance(exc, click.BadParameter) and isinstance(param, click.Option) and param.opts:
+            # '--altitude: ...', as liftcal's own refusals name an option (new-user trial 14, finding 16)
+            msg = "%s: %s" % (max(param.opts, key=len), exc.message.replace("\n", " "))
+            fail("%s (see '%s --help')" % (msg, ctx_cmd), as_json)
+        else:
+            fail("%s: %s (see '%s --help')" % (ctx_cmd, msg, ctx_cmd), as_json)
         sys.exit(2)
     except BrokenPipeError:
         sys.exit(0)

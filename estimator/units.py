@@ -161,6 +161,12 @@ def plain_number(x, digits=4, trim=False):
     return text
 
 
+def rounded(x, digits=3):
+    """plain_number with its digits beyond ``digits`` significant ones rounded to zero: 'about
+    37200 rpm', not 37213 (new-user trial 14, finding 16)."""
+    return plain_number(float("%.*g" % (digits, x)), digits, trim=True) if math.isfinite(x) else "%g" % x
+
+
 # below this mass a vehicle's masses are shown in grams, as the payload table and firmware do [kg]
 GRAMS_BELOW_KG = 1.0
 

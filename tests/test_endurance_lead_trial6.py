@@ -14,6 +14,7 @@ import json
 
 from invented_vehicles import HEXA
 from trial_helpers import ok
+from estimator.units import rounded
 
 # the trial's 65 mm 1S whoop and its 5-inch 6S racer at 3500 m, -10 C (findings/trial6.md)
 WHOOP65 = {"name": "trial 65mm whoop", "mass": "32g", "rotors": {"count": 4},
@@ -59,8 +60,8 @@ def test_the_whoop_sheet_leads_with_the_measured_figure_of_merit(tmp_path):
         check["figure_of_merit_estimated"], check["estimate_flight_time_min"])
     assert text.startswith(first), text                      # the conservative number leads
     assert beside in text and text.index(first) < text.index(beside)
-    assert "figure of merit %.2f is likely optimistic at a blade Reynolds number of %.0f" % (
-        check["figure_of_merit_estimated"], check["reynolds_75"]) in text  # its reason beside it
+    assert "figure of merit %.2f is likely optimistic at a blade Reynolds number of %s" % (
+        check["figure_of_merit_estimated"], rounded(check["reynolds_75"])) in text  # its reason beside it
 
 
 def test_a_large_rotor_keeps_the_estimate_as_its_headline(tmp_path):

@@ -7,6 +7,9 @@
 10. a unit-slip caveat named $.mass_kg for a file that wrote "mass": "5kg" ($.battery.capacity_Ah
    for "capacity": "150Ah").
 11. '1 rotors' and 'all 1 motors' on a one-rotor, one-cell vehicle.
+16. small inconsistencies: a bad option value began 'liftcal air: Invalid value for '--altitude''
+   where liftcal's own refusals begin '--altitude:'; `air` alone answered for sea level without
+   saying so; 'a blade Reynolds number of 17329', 'hover needs about 37213 rpm'.
 """
 
 import json
@@ -132,3 +135,41 @@ def test_a_one_rotor_one_cell_vehicle_reads_in_the_singular(tmp_path):
     path.write_text(json.dumps(doc))
     warnings = json.loads(run(["hover", path, "--json"])[1])["warnings"]
     assert any("60 Ah (written \"60Ah\") on 1 cell is" in w and "Ah on 1 cell;" in w for w in warnings), warnings
+
+
+@pytest.mark.parametrize("args, option", [
+    (["air", "--altitude", "abc"], "--altitude"),
+    (["air", "--humidity", "abc"], "--humidity"),
+    (["static", "--diameter", "10in", "--power", "seventy"], "--power"),
+])
+def test_a_bad_option_value_is_named_like_liftcal_names_an_option(args, option):
+    line = refused(args, "cannot read")
+    assert line.startswith("error: %s: " % option) and "Invalid value" not in line, line
+
+
+def test_air_without_a_site_says_it_is_sea_level():
+    for args, words in ((["air"], "standard atmosphere (15 C, 1013.25 hPa)"), (["air", "--temperature", "30C"], "")):
+        code, out, err = run(args)
+        said = " ".join(out.split())
+        assert code == 0 and "! no --altitude: sea level assumed" in said and words in said, said
+        assert json.loads(run(args + ["--json"])[1])["warnings"][-1].startswith("no --altitude: sea level")
+    for args in (["air", "--altitude", "0m"], ["air", "--pressure", "900hPa", "--temperature", "20C"]):
+        assert "no --altitude: sea level" not in run(args)[1]
+
+
+def test_large_counts_are_rounded_to_the_digits_they_hold(tmp_path):
+    # a 5-inch rotor's blade Reynolds number and a too-slow motor's rpm: three significant digits
+    doc = json.load(open(VEHICLE))
+    doc.update(mass_kg=0.25, propeller={"size": "5x3.5in", "blades": 3})
+    doc["motor"].update(kv_rpm_per_V=2450)
+    small = tmp_path / "small.json"
+    small.write_text(json.dumps(doc))
+    said = " ".join(run(["hover", small])[1].split())
+    found = re.findall(r"Reynolds number (?:of|about) (\d+)", said)
+    assert found and all(len(n.rstrip("0")) <= 3 for n in found), found
+    doc["motor"].update(kv_rpm_per_V=100)  # hover needs more rpm than 100 Kv gives
+    doc["battery"].update(capacity_Ah=0.65)
+    small.write_text(json.dumps(doc))
+    said = " ".join(run(["hover", small])[1].split())
+    rpm = re.findall(r"hover needs about (\d+) rpm", said)
+    assert rpm and all(len(n.rstrip("0")) <= 3 for n in rpm), said

@@ -128,6 +128,10 @@ def air(altitude, temperature, pressure, humidity, as_json):
     note = site_temperature_warning(altitude_m, temperature_C)
     humid = humidity_fraction_note(humidity_pct, "--humidity")
     out["warnings"] = [w for w in (note, humid) if w]
+    if pressure_Pa is None and click.get_current_context().get_parameter_source("altitude") \
+            == click.core.ParameterSource.DEFAULT:  # said, as hover says it of a vehicle file (trial 14)
+        out["warnings"].append("no --altitude: sea level assumed%s; give --altitude for the field you will fly at"
+                               % (", standard atmosphere (15 C, 1013.25 hPa)" if temperature_C is None else ""))
     if at_pressure and temperature_C is None:
         out["warnings"].append(
             "no --temperature and no --altitude: the standard atmosphere's sea-level temperature, 15 C, is "

@@ -25,6 +25,7 @@ warnings, short as a line under a compare row.
 from estimator.preflight.low_reynolds import endurance_lead, hover_warning
 from estimator.preflight.pack import cold_pack_warning, full_cell_warning, hot_pack_heat, hot_pack_warning
 from estimator.preflight.warnings import sag_warning
+from estimator.units import rounded
 
 
 def caveats(report):
@@ -36,9 +37,9 @@ def caveats(report):
     if check and report.get("hover_command") is not None:
         lead = endurance_lead(report)
         short = ("SMALL ROTOR: %s at the figure of merit %.2f measured rotors of this size reach; the "
-                 "generic blade estimate (%.2f, likely optimistic at a blade Reynolds number of %.0f) says %.1f min"
+                 "generic blade estimate (%.2f, likely optimistic at a blade Reynolds number of %s) says %.1f min"
                  % ("no hover" if lead["flight_time_min"] is None else "endurance", lead["figure_of_merit"],
-                    lead["other_figure_of_merit"], check["reynolds_75"], lead["other_flight_time_min"]))
+                    lead["other_figure_of_merit"], rounded(check["reynolds_75"]), lead["other_flight_time_min"]))
         out.append({"kind": "small_rotor", "text": hover_warning(check, report.get("propeller_diameter_m") or 0.0,
                                                                     bool(report.get("described_ducted"))),
                     "short": short})

@@ -28,6 +28,7 @@ import math
 import re
 
 from estimator.core.propeller_bemt import chord_ratio
+from estimator.units import rounded
 
 LOW_REYNOLDS_75 = 3e4  # below this chord Reynolds number at 75 % radius the sheet adds the check [-]
 FALLBACK_RE_LOW = 5e3  # rotors of a few cm (Kroo and Kunz 2001; Kunz 2003) [-]
@@ -129,8 +130,8 @@ def measured_text(reynolds_75):
 def hover_warning(check, diameter_m, described=False):
     """The hover sheet's words for report["low_reynolds_check"]: the estimate likely optimistic,
     the hover power and flight time at the fallback figure of merit, and the duct note."""
-    head = ("small rotor at a blade Reynolds number of %.0f (below about %.0f): the estimate's figure of "
-            "merit %.2f is likely optimistic; %s" % (check["reynolds_75"], LOW_REYNOLDS_75,
+    head = ("small rotor at a blade Reynolds number of %s (below about %.0f): the estimate's figure of "
+            "merit %.2f is likely optimistic; %s" % (rounded(check["reynolds_75"]), LOW_REYNOLDS_75,
                                                      check["figure_of_merit_estimated"],
                                                      measured_text(check["reynolds_75"])))
     fm = check["figure_of_merit_assumed"]
@@ -173,10 +174,10 @@ def static_note(thrust_N, diameter_m, density_kg_m3, factor=0.3):
         return None
     fm = fallback_figure_of_merit(re75)
     k_lo, k_hi = static_factor_band(re75)
-    text = ("small rotor, blade Reynolds number about %.0f (at a typical CT %.1f): %s and a small motor and "
+    text = ("small rotor, blade Reynolds number about %s (at a typical CT %.1f): %s and a small motor and "
             "ESC pass about %.0f-%.0f %% of the power (from memory), so expect k about %.2f-%.2f (k^1.5 = "
             "figure of merit x motor and ESC efficiency); %s"
-            % (re75, TYPICAL_CT, measured_text(re75), 100 * SMALL_MOTOR_EFFICIENCY[0],
+            % (rounded(re75), TYPICAL_CT, measured_text(re75), 100 * SMALL_MOTOR_EFFICIENCY[0],
                100 * SMALL_MOTOR_EFFICIENCY[1], k_lo, k_hi, factor_against_band(factor, (k_lo, k_hi))))
     duct = duct_note(diameter_m, "more power for the thrust than even this")
     return {"reynolds_75": re75, "figure_of_merit_measured": [fm, fm + FALLBACK_FM_SPREAD],
@@ -206,8 +207,8 @@ def endurance_lead(report):
             "other_flight_time_min": check.get("estimate_flight_time_min", report["flight_time_min"]),
             "other_figure_of_merit": check["figure_of_merit_estimated"],
             "reason": "the generic blade's figure of merit %.2f is likely optimistic at a blade Reynolds "
-                      "number of %.0f (below about %.0f)" % (check["figure_of_merit_estimated"],
-                                                             check["reynolds_75"], LOW_REYNOLDS_75)}
+                      "number of %s (below about %.0f)" % (check["figure_of_merit_estimated"],
+                                                           rounded(check["reynolds_75"]), LOW_REYNOLDS_75)}
 
 
 def estimate_flight_time_min(report):

@@ -28,7 +28,7 @@ import re
 
 from estimator.core.constants import SEA_LEVEL_DENSITY_KG_M3, STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2
-from estimator.units import INCH_M, plain_number
+from estimator.units import INCH_M, rounded
 from estimator.vehicle import given_text
 from estimator.vehicle_units import (DISK_LOADING_TYPICAL_N_M2, PACK_MASS_SHARE_USUAL, in_vehicle_schema,
                                     pack_energy_range)
@@ -62,7 +62,7 @@ _WRITTEN_LENGTH = re.compile(r"^\s*([0-9]*\.?[0-9]+)\s*(?:[xX*]\s*[0-9]*\.?[0-9]
 
 
 def _n(x):
-    return plain_number(x, 3, trim=True)
+    return rounded(x, 3)
 
 
 # the checks each key enters: a corrected key is credited only with these (trial 8, item 4)
