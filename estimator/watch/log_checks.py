@@ -21,8 +21,8 @@ pack's own voltages (sensor_range.pack_voltages; the CONFIG's v_max_mV stops at 
 
 from estimator.csvtable import data_line_numbers
 from estimator.errors import InputError
-from estimator.units import COMMAND_SHOWN, COMMAND_UNIT_WORDS, STANDARD_GRAVITY_M_S2, command_text
-from estimator.units import likely_command_unit, unit_factors
+from estimator.units import STANDARD_GRAVITY_M_S2, command_text, unit_factors
+from estimator.watch.log_command import check_command_unit
 from estimator.watch.log_current import check_percent_as_permille, hover_current_A, upper_median as _median
 from estimator.watch.sensor_range import pack_voltages
 
@@ -60,12 +60,6 @@ IMPLIED_MASS_MIN_FLIGHT_S = 10.0
 # an unplugged or unpowered sensor (an idle spin draws about a tenth of the hover current and
 # less flies nothing; common practice) [-]
 ZERO_CURRENT_SHARE = 0.05
-# a command column with more than this share of its values above full command has the wrong
-# unit label (as the bench reader's COMMAND_OUTSIDE_SHARE) [-]
-COMMAND_ABOVE_SHARE = 0.05
-# a command below zero by more than this [permille] counts as below it (an ESC's low end point of
-# 988 us, common practice, is -12 permille: no slip)
-COMMAND_BELOW_PERMILLE = -100
 # rows the voltage/current swap judgement samples (systematic), at most [-]
 SWAP_SAMPLE_ROWS = 20000
 
@@ -119,6 +113,13 @@ def check_plausible(path, flight, params, facts, cfg, units):
     v_full, v_empty = 1000.0 * full_V, 1000.0 * empty_V   # [mV]
     med_v = _median(mv)
     _check_swapped(path, flight, units, full_V, empty_V)
+    if med_v < 0:   # a reversed voltage sensor (new-user trial 14, finding 5: 'another vehicle' was blamed)
+        as_pack = LOG_BELOW_EMPTY * v_empty <= -med_v <= LOG_ABOVE_FULL * v_full
+        raise InputError("%s: column voltage[%s]: the voltage is negative in %.0f %% of the rows (median %.3g V)%s"
+                         % (path, units["voltage"], 100.0 * sum(1 for x in mv if x < 0) / len(mv), med_v / 1000.0,
+                            ", within this pack's range with its sign flipped: the voltage sensor reads reversed; "
+                            "flip its sign" if as_pack else ": a bus voltage is never negative; is the column the "
+                            "pack's bus voltage, and are the sensor's leads the right way round?"))
     if med_v > 50.0 * v_full:
         raise InputError("%s: column voltage[%s]: median %.4g %s is %.0f times the full pack (%.1f V): "
                          "likely millivolts in a column labelled [V]; label it voltage[mV]"
@@ -147,10 +148,7 @@ def check_plausible(path, flight, params, facts, cfg, units):
                              % (path, units["command"], _median(ma) / 1000.0, units["command"]))
     if units["command"] == "permille":
         check_percent_as_permille(path, flight, params, facts, cfg)
-    if len(u) and max(u) > 1000:
-        _check_command_above_full(path, u, units["command"])
-    if len(u) and min(u) < COMMAND_BELOW_PERMILLE:
-        _check_command_below_zero(path, u, units["command"])
+    check_command_unit(path, flight, units["command"])
     if flying:
         cur = [ma[i] for i in flying]
         med_a = _median(cur)
@@ -170,46 +168,6 @@ def check_plausible(path, flight, params, facts, cfg, units):
                                  "likely milliamps in a column labelled [A]; label it current[mA]" if as_mA else
                                  "these values are not a current of this vehicle, neither as amps nor as milliamps; "
                                  "is it the current column, and does the logger write it in A or mA?"))
-
-
-def _check_command_below_zero(path, u, unit):
-    """Refuse a command column (u [permille], unit as written) with more than COMMAND_ABOVE_SHARE
-    of its values below zero by more than a tenth of full command (COMMAND_BELOW_PERMILLE: an
-    ESC's low end point at 988 us is no slip), naming the unit its values fit
-    (units.likely_command_unit): permille or percent labelled [us] read 122 as -0.878 (new-user
-    trial 10, finding 1: exit 0 with every sample a sensor fault)."""
-    share = sum(1 for x in u if x < COMMAND_BELOW_PERMILLE) / len(u)
-    if share <= COMMAND_ABOVE_SHARE:
-        return
-    scale, offset = COMMAND_SHOWN[unit][:2]
-    low, high = (offset + scale * min(u) / 1000.0, offset + scale * max(u) / 1000.0)
-    likely = likely_command_unit(low, high, unit)
-    cause = ("likely %s labelled [%s]; label it command[%s]" % (COMMAND_UNIT_WORDS[likely], unit, likely)
-             if likely is not None else "no command unit liftcal reads fits these values; check the logger's "
-             "command field (command[-] 0..1, [%], [permille] or [us])")
-    raise InputError("%s: column command[%s]: %.0f %% of the values are below zero command (%s), %.6g..%.6g as "
-                     "written: %s" % (path, unit, 100.0 * share, command_text(0.0, unit), low, high, cause))
-
-
-def _check_command_above_full(path, u, unit):
-    """Refuse a command column (u [permille], unit as written) with more than COMMAND_ABOVE_SHARE
-    of its values above full command, naming the unit its values fit (units.likely_command_unit):
-    permille 0..1000 labelled %, percent or microseconds labelled [-] (new-user trial 9, finding 7)."""
-    share = sum(1 for x in u if x > 1000) / len(u)
-    if share <= COMMAND_ABOVE_SHARE:
-        return
-    scale, offset = COMMAND_SHOWN[unit][:2]
-    low, high = (offset + scale * min(u) / 1000.0, offset + scale * max(u) / 1000.0)
-    likely = likely_command_unit(low, high, unit)
-    if likely is None:
-        cause = ("likely percent or microseconds labelled [-]; label it command[%] or command[us]" if unit == "-" else
-                 "no command unit liftcal reads fits these values; check the logger's command field (command[-] "
-                 "0..1, [%], [permille] or [us])")
-    else:
-        cause = ("likely %s labelled [%s]; label it command[%s]"
-                 % (COMMAND_UNIT_WORDS[likely], unit, likely))
-    raise InputError("%s: column command[%s]: %.0f %% of the values are above full command (%s), %.6g..%.6g as "
-                     "written: %s" % (path, unit, 100.0 * share, command_text(1.0, unit), low, high, cause))
 
 
 def _correlation(x, y):

@@ -66,6 +66,11 @@ def check_percent_as_permille(path, flight, params, facts, cfg):
 # offset; a 3 % draw moves the implied mass about 2 % (hover power ~ mass^1.5, momentum theory) [-]
 GROUND_CURRENT_SHARE = 0.03
 GROUND_CURRENT_MIN_A = 0.1     # below this: a current sensor's noise on the ground (common practice) [A]
+# ... and above this share of it no avionics: flight controller, FPV transmitter and camera draw a
+# few per cent of a hover's current, a fifth or so on the smallest quads (common practice, from
+# memory); half of it or more means the rotors turn while the command column says stopped: the
+# command sent to the ESCs is not what the column holds (new-user trial 14, finding 7) [-]
+GROUND_COMMAND_SHARE = 0.5
 
 
 def ground_current_note(flight, params, facts, cfg):
@@ -76,7 +81,8 @@ def ground_current_note(flight, params, facts, cfg):
     given): noted when it is above GROUND_CURRENT_MIN_A and GROUND_CURRENT_SHARE of the rotors'
     hover current (hover_current_A less the avionics), and off the given value by more than that
     too (new-user trial 13, finding 1: 0.5 A of flight controller and FPV transmitter on a 2S
-    toothpick read as three alarms). flight: replay.read_flight's dict; cfg: the watch CONFIG."""
+    toothpick read as three alarms); at GROUND_COMMAND_SHARE of that hover current or more, the command
+    column is suspected instead (trial 14, finding 7). flight: replay.read_flight's dict; cfg: the watch CONFIG."""
     u, mv, ma = flight["command_permille"], flight["bus_mV"], flight["bus_mA"]
     rows = [i for i in range(len(u)) if 2 * u[i] < cfg["command_min_permille"] or u[i] == 0]
     if len(rows) < 10:
@@ -86,9 +92,15 @@ def ground_current_note(flight, params, facts, cfg):
     bus_V = upper_median([mv[i] for i in rows]) / 1000.0
     if bus_V <= 0.0:
         return None
-    floor_A = max(GROUND_CURRENT_MIN_A, GROUND_CURRENT_SHARE * (hover_current_A(params, facts, bus_V) - given_A))
+    rotors_A = hover_current_A(params, facts, bus_V) - given_A
+    floor_A = max(GROUND_CURRENT_MIN_A, GROUND_CURRENT_SHARE * rotors_A)
     if ground_A < floor_A or abs(ground_A - given_A) < floor_A:
         return None
+    if ground_A - given_A >= GROUND_COMMAND_SHARE * rotors_A:
+        return ("where the command column says the rotors stand still the bus carries %.2f A (median of %d rows), "
+                "%.0f %% of the rotors' hover current (%.2f A): far more than avionics draw, so the rotors likely "
+                "turn; check the logger's command field (not logged, another field, or not recorded while armed)"
+                % (ground_A, len(rows), 100.0 * ground_A / rotors_A, rotors_A))
     return ("with the rotors stopped the bus carries %.2f A (median of %d rows) while the vehicle gives %s: "
             "avionics (flight controller, FPV transmitter, camera, gimbal) the watch counts as rotor power, or "
             "a current sensor's zero offset; give the avionics' current as avionics_current_A in the vehicle file "

@@ -72,6 +72,7 @@ def read_flight(path):
     ts = _TIME_UNITS[table.columns["time"][1]]
     return {"time_s": [x * ts for x in values["time"]] if ts != 1.0 else values["time"],
             "command_permille": [int(round((x + co) * cs)) for x in values["command"]],
+            "command_written": (min(values["command"]), max(values["command"])),   # log_command's hints
             "bus_mV": [int(round(x * vs)) for x in values["voltage"]],
             "bus_mA": [int(round(x * as_)) for x in values["current"]],
             "units": {name: table.columns[name][1] for name in COLUMNS}, "header_line": table.head.line,
