@@ -372,6 +372,18 @@ def edited_set_warning(path, allowed, makes):
     return "%s: %s carries the edited values, not the fit's (%s)" % (words, makes, FROM_EDITED)
 
 
+def edited_set_note(path, use):
+    """None, or for a parameter set edited since liftcal wrote it (seal broken) the warning of a
+    command that only reads it (use: what it does with it: "this replay judges the log"), as hover
+    --params gives one (new-user trial 14, finding 4: replay used an edited set without a word)."""
+    from estimator.outputs import seal_of
+
+    if seal_of(path) != "broken":
+        return None
+    return ("%s was edited since liftcal wrote it (its content seal no longer matches): %s by the edited "
+            "values, not the fit's; fit the sweep again rather than editing the set" % (path, use))
+
+
 def write_params(path, params):
     """Validate and write a parameter set atomically (never a partial file)."""
     check_params(params, path)

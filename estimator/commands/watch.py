@@ -7,7 +7,7 @@ import os
 
 import click
 
-from estimator.cautions import cautions
+from estimator.cautions import ALARM_ACTION, ALARM_ACTION_SHORT, cautions
 from estimator.commands.options import FILE_NAME, Number
 from estimator.names import shown
 from estimator.jsonio import dumps
@@ -284,6 +284,9 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     out, trace = replay_file_traced(flight_file, params, vehicle=vehicle, drop_bad_time=drop_bad_time,
                                     options=watch_options(params, vehicle, lag_ms), params_source=params_file,
                                     trace=plot_file is not None)
+    from estimator.params import edited_set_note
+    edited = edited_set_note(params_file, "this replay judges the log")
+    out["warnings"] = ([edited] if edited else []) + out["warnings"]
     _note_mass_after_baseline(out["events"])
     _note_power_after_baseline(out["events"])
     if plot_file is not None:
@@ -292,7 +295,7 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         out["plot"] = plot_file
         out["replaced"] = [replaced] if replaced else []
     if as_json:
-        click.echo(dumps(dict(out, cautions=list(WATCH_CAUTIONS))))
+        click.echo(dumps(dict(out, cautions=([ALARM_ACTION] if out["alarms"] else []) + list(WATCH_CAUTIONS))))
         return
     lines = ["%s: %s, %s, %s" % (flight_file, _count(out["samples"], "sample"), _count(out["alarms"], "alarm"),
                                            _count(len(out["events"]), "event"))]
@@ -328,10 +331,12 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         elif e["kind"] == "mass_high":
             # one sentence that wraps cleanly: the numbers, then the likely cause
             what = ("implied mass %s against %s planned (alarm above %s plus the estimate's margin): a heavier "
-                    "payload, or a rotor or motor drawing more power than the bench fit since take-off? check both"
-                    % tuple(mass_text(e[k], e["planned_kg"]) for k in ("mass_kg", "planned_kg", "limit_kg")))
+                    "payload, or a rotor or motor drawing more power than the bench fit since take-off? check both; %s"
+                    % (tuple(mass_text(e[k], e["planned_kg"]) for k in ("mass_kg", "planned_kg", "limit_kg"))
+                       + (ALARM_ACTION_SHORT,)))
         else:
-            what = "residual %+.1f %%  %s" % (100.0 * e["residual"], EVENT_MEANING.get(e["kind"], ""))
+            what = "residual %+.1f %%  %s; %s" % (100.0 * e["residual"], EVENT_MEANING.get(e["kind"], ""),
+                                                 ALARM_ACTION_SHORT)
         lines.append("  %9.1f s  %-13s %s" % (e["t_s"], e["kind"], what))
         if e.get("note"):  # under the event's own wrapped text, not deeper (new-user trial 12, finding 14)
             lines.extend(wrap_line("  %11s  (%s)" % ("", e["note"]), indent=16))

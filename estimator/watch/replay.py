@@ -9,18 +9,18 @@ the kernel, which flags them (sensor_fault) - a log with a glitch is still a log
 are seconds from the log's first row (a logger's clock may count from 1970).
 """
 
-import math
 import sys
 
 from estimator.core.watch_layout import FLAG_BITS
 from estimator.csvtable import COMMAND_UNITS, TIME_UNITS, data_line_numbers
 from estimator.errors import InputError
-from estimator.units import mass_text, unit_factors
+from estimator.units import unit_factors
 from estimator.watch.model_hedge import POWER_KINDS, exponent_not_measured, exponent_note  # noqa: F401 (API)
 from estimator.watch.config import make_config, new_watch, vehicle_facts
 from estimator.watch.fault_causes import StuckTimer, fault_cause, in_range
 from estimator.watch.log_checks import check_plausible, check_time, check_vehicle
 from estimator.watch.log_current import ground_current_note
+from estimator.watch.mass_verdict import mass_margin, mass_verdict, mass_words  # noqa: F401 (API)
 
 KINDS = FLAG_BITS
 PROGRESS_ROWS = 100000  # logs longer than this get a progress bar (stderr, terminals only)
@@ -170,13 +170,15 @@ def run_kernel(flight, config, trace=False, progress=None):
             stuck_event = None
         if learn_span[0] is None and u[i] >= spin:
             learn_span[0] = ti - t0
-        if w.mass_g:  # 0 until a mass window of steady flight is complete (NamedWatch.mass_g)
-            mass_last = (w.mass_g, ti - t0)
         seen = (sb[21], sb[22], sb[23])
+        completed = seen != window and seen[2]
         if seen != window:
             window = seen
-            if seen[2]:   # a window completed: judged pooled with the one before, as the kernel does
+            if completed:   # a window completed: judged pooled with the one before, as the kernel does
                 mass_check = mass_margin(window_done, seen, sb[17], config)
+        if w.mass_g and (completed or mass_last is None or w.mass_g != mass_last[0]):
+            # when the kernel last set the implied mass: it holds it while a power fault is suspected
+            mass_last = (w.mass_g, ti - t0)
             window_done = seen if seen[2] else None   # a count of 0: the kernel pools no more
         if not learned and w.sigma_permille:
             learned = True
@@ -210,77 +212,13 @@ def run_kernel(flight, config, trace=False, progress=None):
            "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events,
            "flights_s": [round(x / 1000.0, 3) for x in flights], "sensor_fault_s": round(fault_ms / 1000.0, 3),
            "ground_pauses": pauses}
-    out["mass"] = mass_verdict(mass_last, plan_kg, limit_kg, learned, config)
+    out["mass"] = mass_verdict(mass_last, plan_kg, limit_kg, learned, config, events)
     if out["mass"]["judged"] and mass_check is not None:
         out["mass"].update(alarm_kg=round(plan_kg * (1.0 + mass_check["alarm_permille"] / 1000.0), 4),
                            margin_kg=round(plan_kg * mass_check["margin_permille"] / 1000.0, 4),
                            windows_above=mass_check["windows_above"], windows_needed=config["mass_windows"],
                            mass_alarm=any(e["kind"] == "mass_high" for e in events))
     return out, arrays
-
-
-def mass_margin(before, last, run, cfg):
-    """The implied-mass alarm threshold of the kernel's last completed window (new-user trial 9,
-    finding 6: a replay said the mass was above the alarm limit beside "0 alarms", the margin
-    unsaid). The kernel (estimator.core.watch) raises mass_high when the pooled mean excess ex
-    over the limit share satisfies ex^2 n > var z^2 c (z standard errors, c blocks per
-    independent stretch; CONFIG mass_z2_q8 = 256 z^2 c) in mass_windows windows in a row; this
-    repeats its integer pooling of the window with the one before it.
-
-    before, last: (mean [permille], variance [permille^2], count [blocks]) of the window before
-    (None when not pooled) and of the last one; run: the kernel's count of windows in a row above
-    the threshold; cfg: CONFIG dict. Returns dict margin_permille (z sqrt(c var / n)), alarm_permille
-    (the limit share plus that margin) and windows_above (run)."""
-    mu, var, n = last
-    if before:
-        mu_p, var_p, n_p = before
-        d = (mu - mu_p) // 2
-        var = (var + var_p) // 2 + d * d
-        n = n_p + n
-    # the kernel's integer variance can come out below zero (floored means): then any excess alarms
-    margin = math.sqrt(max(0, (var >> 4) * cfg["mass_z2_q8"] >> 4) / n) if n else 0.0
-    return {"margin_permille": margin, "alarm_permille": cfg["mass_limit_permille"] + margin,
-            "windows_above": run}
-
-
-def mass_verdict(mass_last, plan_kg, limit_kg, learned, cfg):
-    """What became of the implied mass (new-user trial 8, finding 2: a replay without a mass alarm
-    must not read as a clean bill when the mass was never judged): dict judged (bool), planned_kg,
-    limit_kg [kg], and when judged implied_kg [kg], at_s [s from the log's first row], share [-]
-    (implied over planned less 1) and above_limit (bool); when not, reason (text).
-    mass_last: (the kernel's last non-zero mass_g [g], its time [s]) or None."""
-    out = {"judged": mass_last is not None, "planned_kg": plan_kg, "limit_kg": round(limit_kg, 4)}
-    if mass_last is not None:
-        kg = mass_last[0] / 1000.0
-        out.update(implied_kg=kg, at_s=round(mass_last[1], 3), share=round(kg / plan_kg - 1.0, 4),
-                   above_limit=kg > limit_kg)
-    else:
-        out["reason"] = ("no %.0f s window of steady flight near hover was completed (%s)"
-                         % (cfg["mass_window_ms"] / 1000.0, "too little steady flight in this log" if not learned else
-                            "climbs, descents, gusts or a suspected power fault keep blocks out of it"))
-    return out
-
-
-def mass_words(mass):
-    """The one line replay prints for mass_verdict's dict."""
-    if not mass["judged"]:
-        return "mass not judged: %s" % mass["reason"]
-    plan = mass["planned_kg"]
-
-    def m(kg):  # grams for a small vehicle, as firmware says them (units.mass_text)
-        return mass_text(kg, plan)
-    text = ("implied mass %s at %.1f s (the last window): %+.1f %% against %s planned, %s the alarm "
-            "limit %s" % (m(mass["implied_kg"]), mass["at_s"], 100.0 * mass["share"], m(plan),
-                          "above" if mass["above_limit"] else "below", m(mass["limit_kg"])))
-    if not mass["above_limit"] or mass.get("mass_alarm", True) or "alarm_kg" not in mass:
-        return text
-    # above the limit without a mass alarm: say why (trial 9, finding 6)
-    if mass["implied_kg"] <= mass["alarm_kg"]:
-        return text + (" but within the estimate's margin (+-%s over gusty or short windows): no alarm below "
-                       "%s, the limit plus that margin" % (m(mass["margin_kg"]), m(mass["alarm_kg"])))
-    return text + (" and the limit plus the estimate's margin (%s) in %d window%s in a row: the alarm needs %d"
-                   % (m(mass["alarm_kg"]), mass["windows_above"], "" if mass["windows_above"] == 1 else "s",
-                      mass["windows_needed"]))
 
 
 def _bar(i, n):
