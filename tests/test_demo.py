@@ -145,3 +145,21 @@ def test_the_demo_bundle_names_the_parameter_set_it_was_made_from(demo_run):
     with open(os.path.join(out, "board", "liftwatch_config.py"), encoding="utf-8") as fh:
         first = fh.readline()
     assert re.search(r" from \S*params\.json - regenerate", first), first
+
+
+def test_the_demo_fit_lines_write_commands_in_the_sweeps_unit_one_line_each(demo_run):
+    # new-user trial 14, finding 15: the demo's fit line gave the intercept and the rotor start as
+    # fractions (0.142, 0.062) where `fit` on the same microsecond sweep writes microseconds, and
+    # wrapped after a comma ('quadratic share 0.659,' alone)
+    from estimator.textwidth import fit_width
+    from estimator.units import command_text
+
+    out, report, text = demo_run
+    params = load_params(os.path.join(out, "params.json"))
+    assert params["provenance"]["units"]["command"] == "us"   # the demo's simulated sweep
+    line = "quadratic share %.3f, curve intercept %s (the rotor starts at %s)" % (
+        params["thrust_curve"]["quadratic_share"], command_text(params["thrust_curve"]["command_min"], "us"),
+        command_text(params["motor_model"]["command_start"], "us"))
+    assert line in text.splitlines() and " us (the rotor starts at " in line
+    step = text.split("== 2. bench sweep")[1].split("$ liftcal hover")[0]
+    assert not any(row.rstrip().endswith(",") for row in fit_width(step).splitlines())

@@ -13,6 +13,7 @@ import click
 
 from estimator.commands.options import FILE_NAME
 from estimator.names import shown
+from estimator.units import command_text
 from estimator.jsonio import dumps, write_atomic, write_json_atomic
 
 FLIGHTS = (  # (file stem, fault injected by the flight simulator, what it stands for)
@@ -138,14 +139,18 @@ def _run(out_dir, work, seed, emit):
     write_atomic(path("settings.txt"), with_notes(settings_text(settings, mapping, "params.json", map_file),
                                                   export_notes(settings, params)))
     c, k = params["thrust_curve"], params["static_factor"]
+    unit = params["provenance"]["units"]["command"]   # the bench sweep's command unit
     text += [_rule("2. bench sweep -> parameter set -> settings"),
              "$ liftcal fit %s --vehicle %s --out %s" % (show("bench.csv"), show("vehicle.json"),
                                                          show("params.json")),
-             "fitted %d rows (%d dropped): full-command thrust %.2f N at %.2f V, quadratic share %.3f,"
+             # one line each, commands in the sweep's own unit as `fit` writes them (trial 14, finding 15)
+             "fitted %d rows (%d dropped): full-command thrust %.2f N at %.2f V"
              % (params["fit_quality"]["rows_used"], params["fit_quality"]["rows_rejected"],
-                c["thrust_max_N"], c["reference_voltage_V"], c["quadratic_share"]),
-             "curve intercept %.3f (rotor starts at %.3f), voltage exponent %.2f, static factor k %.3f"
-             % (c["command_min"], params["motor_model"]["command_start"], c["voltage_exponent"], k["value"]),
+                c["thrust_max_N"], c["reference_voltage_V"]),
+             "quadratic share %.3f, curve intercept %s (the rotor starts at %s)"
+             % (c["quadratic_share"], command_text(c["command_min"], unit),
+                command_text(params["motor_model"]["command_start"], unit)),
+             "voltage exponent %.2f, static factor k %.3f" % (c["voltage_exponent"], k["value"]),
              "$ liftcal hover %s --params %s" % (show("vehicle.json"), show("params.json")),
              format_sheet(fitted),
              "$ liftcal export %s   (the shipped example map, invented setting names)" % show("params.json"),
