@@ -85,7 +85,7 @@ FULL_CELL_HV = ("full charge %.2f V per cell is above a standard lithium cell's 
 FULL_CELL_SHORT = "full charge %.2f V per cell: above %s; check the pack maker's limit; see below"
 
 # what to do after a watch alarm: the action under each alarm of a replay (new-user trial 14: its event
-# lines gave a guess at the cause but not the action), and the sentence in replay --json's cautions
+# lines gave a guess at the cause but not the action), and the sentence replay --json gives as after_alarm
 ALARM_ACTION_SHORT = "land and inspect before the next flight"
 ALARM_ACTION = ("An alarm in flight means land and inspect the motors, propellers, wiring and pack before "
                 "the next flight.")

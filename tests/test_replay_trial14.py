@@ -9,7 +9,8 @@ writes them) and the demo's fitted set:
 - 4: a parameter set edited since liftcal sealed it was replayed without a word (hover --params
   warns; export and firmware refuse);
 - safety: the event lines gave a guess at the cause but not the action; each alarm now says
-  "land and inspect before the next flight" (estimator.cautions).
+  "land and inspect before the next flight", and --json gives the sentence as after_alarm
+  (estimator.cautions).
 """
 
 import json
@@ -58,11 +59,11 @@ def test_an_alarm_line_says_land_and_inspect_and_a_quiet_flight_carries_no_such_
     event = " ".join(text.split("power_low", 1)[1].split("\n-")[0].split())
     assert event.endswith("(chipped or loose blade?); %s" % ALARM_ACTION_SHORT), event
     code, out, err = run(["replay", tmp_path / "f.csv", "--params", sealed, "--json"])
-    assert json.loads(out)["cautions"][0] == ALARM_ACTION
+    assert json.loads(out)["after_alarm"] == ALARM_ACTION
     clean = _flight(tmp_path, None, "clean.csv", duration_s=120.0)
     code, out, err = run(["replay", clean, "--params", sealed, "--json"])
     doc = json.loads(out)
-    assert doc["alarms"] == 0 and ALARM_ACTION not in doc["cautions"]
+    assert doc["alarms"] == 0 and "after_alarm" not in doc and ALARM_ACTION not in doc["cautions"]
     code, text, err = run(["replay", clean, "--params", sealed])
     assert ALARM_ACTION_SHORT not in text
 

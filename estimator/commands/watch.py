@@ -295,7 +295,8 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         out["plot"] = plot_file
         out["replaced"] = [replaced] if replaced else []
     if as_json:
-        click.echo(dumps(dict(out, cautions=([ALARM_ACTION] if out["alarms"] else []) + list(WATCH_CAUTIONS))))
+        # the action after an alarm beside, not among, the watch's cautions (those are the same for every log)
+        click.echo(dumps(dict(out, cautions=list(WATCH_CAUTIONS), **({"after_alarm": ALARM_ACTION} if out["alarms"] else {}))))
         return
     lines = ["%s: %s, %s, %s" % (flight_file, _count(out["samples"], "sample"), _count(out["alarms"], "alarm"),
                                            _count(len(out["events"]), "event"))]
