@@ -12,7 +12,7 @@ from estimator.commands.options import FILE_NAME, Number
 from estimator.names import shown
 from estimator.jsonio import dumps
 from estimator.textwidth import fit_width
-from estimator.units import mass_text
+from estimator.units import counted, mass_text
 
 WATCH_CAUTIONS = cautions("board")
 # --lag-ms: the rotor's spin-up and the current sensor's response of a small multirotor take
@@ -167,10 +167,6 @@ def _bundle_source(out_dir):
     return " from %s" % found.group(1) if found and found.group(1) != "parameter set" else ""
 
 
-def _count(n, word):
-    return "%d %s%s" % (n, word, "" if n == 1 else "s")
-
-
 @click.command()
 @click.argument("params_file", type=FILE_NAME, metavar="PARAMS.json")
 @click.option("--out", "out_dir", type=FILE_NAME, required=True, metavar="DIR",
@@ -298,13 +294,13 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         # the action after an alarm beside, not among, the watch's cautions (those are the same for every log)
         click.echo(dumps(dict(out, cautions=list(WATCH_CAUTIONS), **({"after_alarm": ALARM_ACTION} if out["alarms"] else {}))))
         return
-    lines = ["%s: %s, %s, %s" % (flight_file, _count(out["samples"], "sample"), _count(out["alarms"], "alarm"),
-                                           _count(len(out["events"]), "event"))]
+    lines = ["%s: %s, %s, %s" % (flight_file, counted(out["samples"], "sample"), counted(out["alarms"], "alarm"),
+                                           counted(len(out["events"]), "event"))]
     if out.get("dropped_rows"):
-        lines.append("  dropped %s whose time went back or repeated" % _count(out["dropped_rows"], "row"))
+        lines.append("  dropped %s whose time went back or repeated" % counted(out["dropped_rows"], "row"))
     if out.get("dropped_missing_rows"):
         lines.append("  dropped %s with an empty or 'nan' cell (a missed reading)"
-                     % _count(out["dropped_missing_rows"], "row"))
+                     % counted(out["dropped_missing_rows"], "row"))
     flights = out.get("flights_s") or []
     if len(flights) > 1:   # landings between them; the watch learns each flight anew
         lines.append("  %d flights (landings between them), %s above the spin command; each learned anew"
