@@ -341,5 +341,6 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         lines.append("plot: %s" % plot_file)
         if replaced:
             lines.append(replaced)
-    lines.append("- " + WATCH_CAUTIONS[0])
+    # every caution --json lists, in its order (new-user trial 15: the text gave only the first)
+    lines += ["- " + c for c in WATCH_CAUTIONS]
     click.echo(fit_width("\n".join(lines)))
