@@ -58,6 +58,8 @@ def _masked_rows(path, data, rows_total):
     # an empty cell and a logger's 'nan' are the same missed sample: dropped alike (new-user
     # trial 7, finding 10: 'nan' refused the file while an empty cell was counted as not_a_number)
     rejected["empty_or_nan_cell"] = int(rows_total - np.count_nonzero(finite))
+    if not np.any(finite):
+        _no_reading(path, data, rows_total)
     with np.errstate(invalid="ignore"):
         # current sensors read a little below zero at idle; only clearly negative rows are bad
         tol_i = max(NEGATIVE_CURRENT_TOLERANCE_A, 0.01 * float(np.nanmax(np.abs(i[finite])))
@@ -89,6 +91,23 @@ def _masked_rows(path, data, rows_total):
     if n_keep < rows_total:
         u, v, t, power = u[keep], v[keep], t[keep], power[keep]
     return u, v, t, power, {k: c for k, c in rejected.items() if c}, n_keep
+
+
+def _no_reading(path, data, rows_total):
+    """Refuse a sweep in which no row holds a reading in every column, naming the columns with none
+    at all (new-user trial 15: a thrust column of 'nan' only ended in a numpy warning on stderr
+    before the error line, which blamed the rows, not the column)."""
+    import numpy as np
+
+    empty = ["%s[%s]" % (name, data.get(name + "_unit", "?")) for name in ("command", "voltage", "current", "thrust")
+             if not np.any(np.isfinite(data[name]))]
+    if empty:
+        raise InputError("%s: column%s %s hold%s no reading in any of the %d rows (every cell empty or 'nan'): "
+                         "was that sensor logged? a sweep needs command, voltage, current and thrust in each row"
+                         % (path, "s" if len(empty) > 1 else "", ", ".join(empty), "" if len(empty) > 1 else "s",
+                            rows_total))
+    raise InputError("%s: no row of the %d holds a reading in every column (each has an empty or 'nan' cell); "
+                     "a sweep needs command, voltage, current and thrust in each row" % (path, rows_total))
 
 
 def dropped_share_warning(rows_total, n_keep, rejected):
