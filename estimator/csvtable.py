@@ -48,10 +48,14 @@ TIME_UNITS = {"s": (1.0, 0.0), "ms": (1e-3, 0.0)}
 class Head:
     """What precedes the data: ``comments`` {key: (value text, line number)} from
     ``# key: value`` lines (key lower case), the header ``cells`` (text as written, quotes
-    removed) and ``line`` (the header's line number, counted from 1; data follow it)."""
+    removed) and ``line`` (the header's line number, counted from 1; data follow it). A key
+    given on more than one line keeps its last value in ``comments``; ``earlier`` {key: [(value
+    text, line number), ...]} holds the ones before it, for readers that must not pick one
+    silently."""
 
-    def __init__(self, comments, cells, line):
+    def __init__(self, comments, cells, line, earlier=None):
         self.comments, self.cells, self.line = comments, cells, line
+        self.earlier = earlier or {}
 
 
 def _decode(path, raw, line_no):
@@ -78,7 +82,7 @@ def read_head(path, what, example):
     what: the kind of file for messages ("a bench CSV"); example: a header to show when
     none is found ("command[-],voltage[V],current[A],thrust[N]"). Raises InputError.
     """
-    comments = {}
+    comments, earlier = {}, {}
     with open_checked(path, what, MAX_BYTES) as fh:
         line_no = 0
         while line_no < MAX_HEAD_LINES:
@@ -100,11 +104,14 @@ def read_head(path, what, example):
                 body = line[1:].strip()
                 if ":" in body:
                     key, _, value = body.partition(":")
-                    comments[key.strip().lower()] = (value.strip(), line_no)
+                    key = key.strip().lower()
+                    if key in comments:
+                        earlier.setdefault(key, []).append(comments[key])
+                    comments[key] = (value.strip(), line_no)
                 continue
             _check_separator(path, line, line_no, example)
             cells = [c.strip().strip('"').strip() for c in line.split("#", 1)[0].split(",")]
-            return Head(comments, cells, line_no)
+            return Head(comments, cells, line_no, earlier)
     raise InputError("%s: no header row found; expected %s with a header such as %s"
                      % (path, what, example))
 

@@ -64,6 +64,7 @@ def _read_head(path, warnings=None, expected_diameter_m=None):
             refuse_bare_comment(key, value, where)
             si = parse_quantity(value, _COMMENT_KEYS[key], where)
             check_quantity(_COMMENT_BOUNDS[key], si, value, where, expected_diameter_m if key == "diameter" else None)
+            _one_value(path, key, si, value, line_no, head.earlier.get(key, ()))
             comments[key] = (si, where)
             continue
         typo = difflib.get_close_matches(key, list(_COMMENT_KEYS), n=1, cutoff=TYPO_SIMILARITY)
@@ -76,6 +77,17 @@ def _read_head(path, warnings=None, expected_diameter_m=None):
         warnings.append("%s: comment %s not read: the keys liftcal reads are %s"
                         % (path, ", ".join(unread), known))
     return comments, head, head.line
+
+
+def _one_value(path, key, si, value, line_no, earlier):
+    """Refuse a bench comment key given again with another value (new-user trial 15, finding 5:
+    '# diameter: 8m' above the sweep's own '# diameter: 8in' was read as the later one without a
+    word). earlier: [(value text, line number)] before the last, value/si/line_no: the last."""
+    for text, line in earlier:
+        other = parse_quantity(text, _COMMENT_KEYS[key], "%s: line %d: # %s" % (path, line, key))
+        if abs(other - si) > 1e-9 * max(abs(si), abs(other)):
+            raise InputError("%s: lines %d and %d: '# %s' is given twice, as %s and as %s; keep the one that "
+                             "describes this sweep and delete the other" % (path, line, line_no, key, text, value))
 
 
 def _hot_motor(columns, extra, cols, extremes):
