@@ -342,6 +342,14 @@ def _check_time_unit(path, time_s, unit, gap_s):
         raise InputError("%s: column time[s]: the median step between rows is %.4g s, %.0f times the "
                          "watch's sample gap limit (%.1f s): likely milliseconds in a column labelled "
                          "[s]; label it time[ms]" % (path, step, step / gap_s, gap_s))
+    if unit == "s" and step > gap_s and step / 1000.0 <= gap_s:
+        # closer to the limit (a 25..500 Hz logger in ms): still every step a gap the watch judges
+        # nothing across, whatever the unit (new-user trial 15, finding 4: a 37 Hz log was replayed)
+        raise InputError("%s: column time[s]: the median step between rows is %.4g s, beyond the watch's "
+                         "sample gap limit (%.1f s), so it could judge nothing: likely milliseconds in a "
+                         "column labelled [s] (a %.0f Hz log); label it time[ms] (a log really this slow "
+                         "is too coarse for the watch: log at least every %.1f s)"
+                         % (path, step, gap_s, 1000.0 / step, gap_s))
     if unit == "ms" and step < 0.002 and step * 1000.0 <= gap_s:
         raise InputError("%s: column time[ms]: the median step between rows is %.3g ms, a logging rate "
                          "above 500 Hz: likely seconds in a column labelled [ms]; label it time[s]"
