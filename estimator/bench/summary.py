@@ -101,10 +101,16 @@ def fit_text(params, out_file, warnings, columns, thrust_to_weight_words=None):
     if h:
         tw_words = thrust_to_weight_words or "%.2f (full command, nominal pack)" % h.get("thrust_to_weight", 0.0)
         lo, hi = h["hover_command_interval_95"]
+        avionics_A = params["vehicle"].get("avionics_current_A") or 0.0
+        # power_W is the rotors' and current_A the pack's: with avionics on the bus the two differ by
+        # their share, so each is named (new-user trial 15, finding 2: '253.3 W, 12.7 A' side by side)
+        draw = ("%.4g W, %.3g A" % (h["power_W"], h["current_A"]) if not avionics_A else
+                "%.4g W for the motors; %.3g A, %.4g W from the pack with %.3f A avionics"
+                % (h["power_W"], h["current_A"], h["current_A"] * h["voltage_V"], avionics_A))
         lines += ["hover for %s: command %s (95 %% interval %s..%s), thrust fraction %.3f, "
-                  "%.4g W, %.3g A (motor model at the sagged hover bus %.2f V, nominal pack); thrust-to-weight %s" % (
+                  "%s (motor model at the sagged hover bus %.2f V, nominal pack); thrust-to-weight %s" % (
                       params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),
-                      h["hover_thrust_fraction"], h["power_W"], h["current_A"], h["voltage_V"], tw_words)]
+                      h["hover_thrust_fraction"], draw, h["voltage_V"], tw_words)]
     lines += ["! " + w for w in warnings]
     lines += ["- " + c for c in cautions("settings")]
     return fit_width("\n".join(lines))
