@@ -158,11 +158,19 @@ def factor_against_band(factor, band):
     lo, hi = band
     if factor < lo:
         share = 1.0 - factor / lo
-        return ("k = %.2f is below that band: conservative here%s"
-                % (factor, " (just: %.0f %% less thrust than its low end)" % (100.0 * share) if share < 0.1 else ""))
+        return ("k = %s is below that band: conservative here%s"
+                % (k_text(factor, lo), " (just: %.0f %% less thrust than its low end)" % (100.0 * share)
+                   if share < 0.1 else ""))
     if factor <= hi:
         return "k = %.2f is inside that band: a typical value here, NOT a conservative one" % factor
     return "k = %.2f is above that band: NOT conservative here (optimistic)" % factor
+
+
+def k_text(k, other):
+    """A static factor k [-] with two decimals, or three where two would print it as the other k
+    beside it (new-user trial 15, finding 6: 'expect k about 0.30-0.51 ... k = 0.30 is below that
+    band' and '0.27 N at k 0.30 .. ; at the k 0.30 used: 0.268 N' for a band starting at 0.3027)."""
+    return "%.2f" % k if "%.2f" % k != "%.2f" % other or k == other else "%.3f" % k
 
 
 def static_note(thrust_N, diameter_m, density_kg_m3, factor=0.3):
@@ -175,10 +183,11 @@ def static_note(thrust_N, diameter_m, density_kg_m3, factor=0.3):
     fm = fallback_figure_of_merit(re75)
     k_lo, k_hi = static_factor_band(re75)
     text = ("small rotor, blade Reynolds number about %s (at a typical CT %.1f): %s and a small motor and "
-            "ESC pass about %.0f-%.0f %% of the power (from memory), so expect k about %.2f-%.2f (k^1.5 = "
+            "ESC pass about %.0f-%.0f %% of the power (from memory), so expect k about %s-%s (k^1.5 = "
             "figure of merit x motor and ESC efficiency); %s"
             % (rounded(re75), TYPICAL_CT, measured_text(re75), 100 * SMALL_MOTOR_EFFICIENCY[0],
-               100 * SMALL_MOTOR_EFFICIENCY[1], k_lo, k_hi, factor_against_band(factor, (k_lo, k_hi))))
+               100 * SMALL_MOTOR_EFFICIENCY[1], k_text(k_lo, factor), k_text(k_hi, factor),
+               factor_against_band(factor, (k_lo, k_hi))))
     duct = duct_note(diameter_m, "more power for the thrust than even this")
     return {"reynolds_75": re75, "figure_of_merit_measured": [fm, fm + FALLBACK_FM_SPREAD],
             "static_factor_band": [k_lo, k_hi], "text": text + ("; " + duct if duct else "")}

@@ -7,7 +7,7 @@ slipstream and disk loading. The command only reads options and prints.
 
 from estimator.cautions import cautions
 from estimator.core import momentum
-from estimator.preflight.low_reynolds import static_note
+from estimator.preflight.low_reynolds import k_text, static_note
 from estimator.units import plain_number
 
 # common practice rule of thumb for small electric propeller sets (design notes sec. 3a):
@@ -87,9 +87,10 @@ def format_static(out, power_given, thrust_typed=None):
               else momentum.thrust_from_power_N(out["power_W"], k, out["density_kg_m3"], out["disk_area_m2"])
               for k in (k_lo, k_hi)]
         lines.append("  ! " + small["text"])
-        lines.append("  across that band: %s %s at k %.2f .. %s %s at k %.2f; at the k %.2f used: %s %s" % (
-            plain_number(at[0], 3, trim=True), unit, k_lo, plain_number(at[1], 3, trim=True), unit, k_hi,
-            out["static_factor"], plain_number(out["thrust_N"] if power_given else out["power_W"], 3, trim=True),
+        k = out["static_factor"]
+        lines.append("  across that band: %s %s at k %s .. %s %s at k %s; at the k %s used: %s %s" % (
+            plain_number(at[0], 3, trim=True), unit, k_text(k_lo, k), plain_number(at[1], 3, trim=True), unit,
+            k_text(k_hi, k), k_text(k, k_lo if "%.2f" % k == "%.2f" % k_lo else k_hi), plain_number(out["thrust_N"] if power_given else out["power_W"], 3, trim=True),
             unit))
     elif default:
         # low..high values, each with the k that gives it (power falls as k rises)
