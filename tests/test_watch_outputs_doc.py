@@ -47,3 +47,23 @@ def test_the_places_hold_the_outputs():
     at = dict(OUTPUT_AT)
     assert w.data[at["thrust_mN"]] > 0 and w.data[at["hover_permille"]] > 0
     assert not hasattr(w, "residual_permille")
+
+
+def _places_listed(text):
+    """{output name: index} from '[i] `name`' (markdown) or '[i] ``name``' (docstring) lists."""
+    flat = " ".join(text.split())
+    found = {}
+    for name, _ in OUTPUT_AT:
+        m = re.search(r"\[(\d+)\] ``?%s``?" % re.escape(name), flat)
+        if m:
+            found[name] = int(m.group(1))
+    return found
+
+
+def test_contributor_guide_and_kernel_docstring_name_the_kernels_places():
+    # DEVELOPERS.md listed the outputs one place too low ([30] mass_g ... [34] hover_permille)
+    # after the kernel's state list grew: a contributor reading it would take bm for mass_g.
+    import estimator.core.watch as kernel
+    with open(os.path.join(ROOT, "DEVELOPERS.md"), encoding="utf-8") as fh:
+        assert _places_listed(fh.read()) == dict(OUTPUT_AT)
+    assert _places_listed(kernel.__doc__) == dict(OUTPUT_AT)
