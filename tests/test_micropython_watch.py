@@ -71,16 +71,16 @@ def run_stream(w, n, seed, stats):
         elif g == 9:
             ma = 900000
         f = w.update(dt, u, mv, ma)
-        d = w.data                     # outputs (watch_layout.OUTPUT_AT): [31] mass_g, [33] residual,
-        r = d[33]                      # [34] thrust_mN, [35] hover_permille
-        h = (h * 31 + f * 7 + r + 1000 + d[34] % 1000 + d[31] % 100 + d[35]) % 1000003
+        d = w.data                     # outputs (watch_layout.OUTPUT_AT): [32] mass_g, [34] residual,
+        r = d[34]                      # [35] thrust_mN, [36] hover_permille
+        h = (h * 31 + f * 7 + r + 1000 + d[35] % 1000 + d[32] % 100 + d[36]) % 1000003
         c1 += f & 1
         c2 += (f >> 1) & 1
         c4 += (f >> 2) & 1
         c8 += (f >> 3) & 1
         c16 += (f >> 4) & 1
         if i % 12345 == 0:
-            spot = (spot * 131 + r * 7 + f + d[34]) % 1000003
+            spot = (spot * 131 + r * 7 + f + d[35]) % 1000003
     stats[0] = h
     stats[1] = c1
     stats[2] = c2
@@ -88,7 +88,7 @@ def run_stream(w, n, seed, stats):
     stats[4] = c8
     stats[5] = c16
     stats[6] = spot
-    stats[7] = w.data[33]
+    stats[7] = w.data[34]
 '''
 
 
@@ -272,7 +272,7 @@ ticks(10)   # let the scheduled reports (they print, and may allocate) run first
 gc.collect()
 a0 = gc.mem_alloc()
 ticks(1000)
-print("TICK", gc.mem_alloc() - a0, m.watch.data[35] > 0)   # hover_permille (watch_layout.OUTPUT_AT)
+print("TICK", gc.mem_alloc() - a0, m.watch.data[36] > 0)   # hover_permille (watch_layout.OUTPUT_AT)
 '''
     out = run_micropython(script, mods, tmp_path)
     assert "LOCKED none" in out and "TICK 0 True" in out, out

@@ -35,6 +35,9 @@ def _logging(kernel):
         def _block(self, c, flags, e, p, b, v, t, f, l):
             sb = self.data
             learning, drift, fsl, cx, hold, cd, low = sb[0], sb[11], sb[12], sb[20], sb[25], sb[28], sb[29]
+            # g's part along x, b = cov(x, g) / var(x) (moments in Q4, a ridge of 50 on var x), taken
+            # out of g before its slope: the kernel's modelled part is cx x + cd (g - b x)
+            bx = max(-4.0, min(4.0, (sb[31] * 16 // ((sb[18] >> 4) + 50)) / 256.0))
             out = kernel._block(self, c, flags, e, p, b, v, t, f, l)
             fb = f / b
             hover = (fsl / 128.0 if fsl else fb) + 1.0
@@ -42,7 +45,7 @@ def _logging(kernel):
             sh = c[ENERGY_SHIFT_AT]
             g = (l >> sh) / ((p >> sh) + 1.0)
             judged = hold <= 0 and not low and abs(x) <= 0.25 and not learning
-            self.blocks.append((t / 1000.0, sb[33] / 1000.0, x, g, cx / 1000.0, cd / 64.0, drift / 256000.0, judged))
+            self.blocks.append((t / 1000.0, sb[34] / 1000.0, x, g, cx / 1000.0, cd / 64.0, drift / 256000.0, judged, bx))
             return out
     return Logged
 
@@ -57,11 +60,12 @@ def slope_spreads(cfg, log, kernel=Watch):
     up = w.update
     for i in range(len(u)):
         up(dts[i], u[i], mv[i], ma[i])
-    t, r, x, g, cx, cd, drift, judged = np.array(w.blocks, float).T
+    t, r, x, g, cx, cd, drift, judged, bx = np.array(w.blocks, float).T
     sel = (t > JUDGED_AFTER_S) & (judged > 0)
     if sel.sum() < 50:
         return None
-    p = r - drift - np.clip(cx * np.clip(x, -0.5, 0.5) + cd * np.clip(g, -0.5, 0.5), -0.5, 0.5)
+    x, g = np.clip(x, -0.5, 0.5), np.clip(g, -0.5, 0.5)
+    p = r - drift - np.clip(cx * x + cd * (g - bx * x), -0.5, 0.5)
     a = np.vstack([np.ones(sel.sum()), x[sel], g[sel]]).T
     coef, *_ = np.linalg.lstsq(a, r[sel], rcond=None)
     return {"sd_kernel": float(np.std(p[sel])), "sd_lsq": float(np.std(r[sel] - a @ coef)),

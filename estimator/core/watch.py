@@ -2,8 +2,8 @@
 
 ``w = Watch(CONFIG)``; ``flags = w.update(dt, u, v, a)``; flag bits in
 estimator/core/watch_layout.py. Readable after each block in ``w.data`` (watch_layout.OUTPUT_AT;
-on the desktop also by name, estimator.watch.config.NamedWatch): [31] ``mass_g`` [g], [32]
-``sigma_permille`` [1/1000], [33] ``residual_permille`` [1/1000], [34] ``thrust_mN`` [mN], [35]
+on the desktop also by name, estimator.watch.config.NamedWatch): [32] ``mass_g`` [g], [33]
+``sigma_permille`` [1/1000], [34] ``residual_permille`` [1/1000], [35] ``thrust_mN`` [mN], [36]
 ``hover_permille`` [1/1000], [5] ``scale`` [1/1000] (in the list, not as attributes: an
 attribute's name would be interned on the board's heap). Their meaning, the model and its published sources (Page 1954,
 Hawkins 1987, Siegmund 1985) and the integer contract: DEVELOPERS.md, "The onboard watch
@@ -43,20 +43,20 @@ class Watch:
                       ta, tq, c[20] + span, i_pos, 0, 0, 1]
         # data (sb in _block): block state, named by the unpacking in _block (DEVELOPERS.md: sig in
         # Q6, drift in Q8, fsl the hover thrust factor in Q7, low: the block's expected power fell
-        # below the floor; [30] bm, [31..35] the outputs); the inflow slope cx starts at momentum theory's 0.5
-        self.data = [0] * 36
+        # below the floor; [30] bm, [31] sxd, [32..36] the outputs); the inflow slope cx starts at momentum theory's 0.5
+        self.data = [0] * 37
         self.clear()
 
     def clear(self):
         """A new flight: forget the learned scale, noise, CUSUM sums, drift and mass (the outputs
         thrust_mN and hover_permille stay)."""
         sb = self.data
-        for i in range(34):                               # a counted loop: no allocation
+        for i in range(35):                               # a counted loop: no allocation
             sb[i] = 0
         sb[0] = 1
         sb[5] = 1000
-        sb[18] = sb[26] = 400
-        sb[19] = 200
+        sb[6] = sb[18] = sb[26] = 6400                     # sig: 10 % (Q6) for cd's ridge while learning
+        sb[19] = 3200
         sb[20] = 500
 
     def update(self, dt, u, v, a):
@@ -175,7 +175,7 @@ class Watch:
         lo = min                                          # in local slots below 16: 1 B a use, not 2
         hi = max
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
-         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low, bm, mass_g, sigma_permille, residual_permille, thrust_mN, hover_permille) = sb
+         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low, bm, sxd, mass_g, sigma_permille, residual_permille, thrust_mN, hover_permille) = sb
         # CUSUM k, h [permille] from the noise; k at most k_max, h raised so that h k stays
         k = lo(hi(sig >> 6, c[36]), 1000)                     # the noise, within its floor c[36]..100 %
         h = k * c[39] >> 8                               # 1000 * 12800
@@ -191,12 +191,12 @@ class Watch:
         j = (pmb >> sh) + 96
         a = c[j]                                          # < 2^13
         # thrust from measured power (table); 2^13 * 2^13 ; <= 1e6
-        sb[34] = th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[29]
+        sb[35] = th = (a + ((c[j + 1] - a) * (pmb & ((1 << sh) - 1)) >> sh)) << c[29]
         dv = v - c[15]
         vs = c[23]
         j = dv // vs
         a = c[j + 50]
-        sb[35] = a + (c[j + 51] - a) * (dv % vs) // vs   # 1000 * 5001
+        sb[36] = a + (c[j + 51] - a) * (dv % vs) // vs   # 1000 * 5001
         fb = f // b                                       # Q12, <= 6143
         if not fsl:
             fsl = fb << 7                                 # Q7 of Q12, < 2^20
@@ -215,33 +215,42 @@ class Watch:
         e0s = e0 * scale // 1000                          # 2^19 * 1300 = 6.8e8
         if e0s <= 0:
             return flags
-        sb[33] = r = lo(hi((e >> esh) - e0s, -e0s), e0s) * 1000 // e0s   # 6.8e5 * 1000 (e0s <= 2^19 x 1300 / 1000)
+        sb[34] = r = lo(hi((e >> esh) - e0s, -e0s), e0s) * 1000 // e0s   # 6.8e5 * 1000 (e0s <= 2^19 x 1300 / 1000)
         if t < c[32]:                                    # take-off: not judged, not learned
             return flags
         # lead g: static less lagged expected energy [permille of the expected] (spin-up draw)
         g = lo(hi((l >> esh) * 1000 // (e0 + 1), -500), 500)   # 2^19 * 1000
         quiet = near and (learning or s_hi + s_lo < hh)     # no suspicion: slopes learned
+        # slopes of the residual on x (axial flight) and g (lead), one joint least-squares fit: g less
+        # its part along x, gp = g - b x (b = cov(x, g) / var(x), Q8, within +-4), is orthogonal to x,
+        # so cx = cov(r, x) / var(x) and cd = cov(r, gp) / var(gp) are the pair's slopes (Gram-Schmidt)
+        bq = lo(hi(sxd * 16 // ((sxx >> 4) + 50), -1024), 1024)   # sxd <= 4e6 (Q4): x 16 = 6.4e7
+        gp = g - bq * x // 256                            # |.| <= 500 + 4 x 500
         if quiet:
-            # slopes of the residual on x (axial flight) and g (lead): cx = cov(r, x) / var(x),
-            # cd = cov(r, g) / var(g), each less the other's part, EMA (faster while learning)
-            sh = c[37]
+            sh = c[37] + 1                                # 2x the noise's EMA: a slow ramp is not taken in
             m = drift >> 8                                # the baseline: the residual's mean
             if learning:
                 sh = 4
                 m = l_sum // l_n if l_n else 0
-            r -= m                                        # |.| <= 2000
-            sxx += (x * x - sxx) >> sh                    # 250000
-            srx += (lo(hi(r - cd * g // 64, -1000), 1000) * x - srx) >> sh   # |r - cd g| <= 2000 + 8000; 1000 * 500
-            sdd += (g * g - sdd) >> sh                    # 250000
-            srd += ((r - cx * x // 1000) * g - srd) >> sh   # |r - cx x| <= 2500; 2500 * 500
-            r += m
+            q = lo(hi(r - m, -1000), 1000)
+            # EMA moments in Q4: a step (v - s) >> sh is floored, which biases a moment kept in
+            # plain units by about -2^sh / 2, as large as var(g) itself after learning
+            sxx += ((x * x << 4) - sxx) >> sh             # 250000 x 16 = 4e6
+            sxd += ((x * g << 4) - sxd) >> sh             # 500 x 500 x 16
+            srx += ((q * x << 4) - srx) >> sh             # 1000 x 500 x 16 = 8e6
+            sdd += ((gp * gp << 4) - sdd) >> sh           # 2500^2 x 16 = 1e8
+            srd += ((q * gp << 4) - srd) >> sh            # 1000 x 2500 x 16 = 4e7
             sb[18] = sxx
             sb[19] = srx
             sb[26] = sdd
             sb[27] = srd
-            sb[20] = cx = lo(hi(srx * 1000 // (sxx + 100), 0), 1000)   # 5e5 * 1000 (a ridge of 10 permille^2)
-            sb[28] = cd = lo(hi(srd * 64 // (sdd + 100), 0), 1023)    # 1.25e6 * 64 ; cd: Q6
-        x = lo(hi(cx * x // 1000 + cd * g // 64, -500), 500)   # the modelled part of r, |.| <= 8500
+            sb[31] = sxd
+            sb[20] = cx = lo(hi(srx * 125 // ((sxx >> 3) + 50), 0), 1000)   # 8e6 * 125 = 1e9 (a ridge of 25 permille^2)
+            # cd [Q6] with a ridge of the noise over the EMA's length, sigma^2 / 128 + 4 permille^2
+            # (sig Q6, so sig^2 >> 19): a clean log learns cd near least squares, a noisy one
+            # shrinks it; sig starts at 10 % (clear) while learning, so it does not jump after
+            sb[28] = cd = lo(hi(srd * 4 // ((sdd >> 4) + ((sig >> 9) * sig >> 10) + 4), 0), 1023)   # 4e7 * 4 ; 250 x 128000
+        x = lo(hi(cx * x // 1000 + cd * gp // 64, -500), 500)   # the modelled part of r, |.| <= 500
         if learning:
             if steady:
                 r -= x                                    # |.| <= 1500: take the modelled part out
@@ -279,7 +288,7 @@ class Watch:
                 # in flight the noise starts at 1.5x (an upper confidence bound), rises to 1.75x at most
                 s += s >> 1
                 sb[6] = s << 6                            # Q6, <= 128000
-                sb[32] = s
+                sb[33] = s
         elif near:
             p = r - (drift >> 8) - x                      # the deviation (p, e, v, f: low slots, 1 B a use); |.| <= 1600
             cl = k + hh + 1                               # one block adds at most this
@@ -300,7 +309,7 @@ class Watch:
                 sb[24] = y16 = y16 + (((p << 4) - y16) >> 2)   # |.| <= 16 x 5000
                 sig += (abs(y16) * 53 - (sig << 2)) >> (c[37] + 2)   # 8e4 * 53 = 4.2e6
                 sb[6] = sig = lo(sig, l_dev + (l_dev >> 1) + (l_dev >> 2))   # 1.75x: a slow ramp hides in no more
-                sb[32] = hi(sig >> 6, c[36])
+                sb[33] = hi(sig >> 6, c[36])
             calm = s_hi + s_lo < hh
             if steady and calm:
                 # slow drift of the baseline [1/256 permille] (not after a suspicion): the residual's EMA
@@ -310,15 +319,11 @@ class Watch:
                 f = c[42]                                 # the step bound
                 v = l_ms << 8                             # the band; 2000 * 256
                 sb[11] = lo(hi(bm, lo(drift - f, -v)), hi(drift + f, v))
-            flags &= 28
-            if s_hi >= h:
-                flags |= 1
-            if s_lo >= h:
-                flags |= 2
+            flags = flags & 28 | (s_hi >= h) | (s_lo >= h) << 1   # power_high 1, power_low 2
 
         # implied mass over windows of steady flight (not while a power fault is suspected)
         if steady:
-            if learning or (calm if near else s_hi + s_lo < hh):
+            if learning or s_hi + s_lo < hh >> 1:       # (a quarter of h: a small shift is not read as mass)
                 plan = c[45]
                 th -= th * x // 1500                      # less axial flight (T ~ P^(2/3)); 1e6 * 500
                 # mass deviation in thrust units; the plan's weight plan x 9.807 mN/g <= 4.9e6
@@ -340,7 +345,7 @@ class Watch:
                         pmu = mu
                         pvar = var
                         pn = m_n
-                    sb[31] = plan + (plan * pmu + 500) // 1000   # 5e5 * 500 (rounded, not floored)
+                    sb[32] = plan + (plan * pmu + 500) // 1000   # 5e5 * 500 (rounded, not floored)
                     ex = pmu - c[46]
                     if ex > 0 and ex * ex * pn > ((pvar >> 4) * c[47] >> 4):   # 2.5e5 * 2400 ; 31250 * 32767
                         m_run += 1

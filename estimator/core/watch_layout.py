@@ -92,8 +92,8 @@ del _at, _t, _i
 
 # where Watch keeps its outputs: indices in its block state list Watch.data (ints, updated
 # once per block); mass_g, sigma_permille and residual_permille are cleared at a landing
-OUTPUT_AT = (("mass_g", 31), ("sigma_permille", 32), ("residual_permille", 33), ("thrust_mN", 34),
-             ("hover_permille", 35), ("scale", 5))
+OUTPUT_AT = (("mass_g", 32), ("sigma_permille", 33), ("residual_permille", 34), ("thrust_mN", 35),
+             ("hover_permille", 36), ("scale", 5))
 
 
 def check(config):
