@@ -14,12 +14,16 @@ from watch_helpers import demo_fit_params
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
 
-def _places(text):
-    """{output name: index} from 'name` at `w.data[i]`' or 'name at `[i]`' phrases."""
+AT_PHRASE = r"{name}`?(?: \(permille\))? at `(?:w\.data)?\[(\d+)\]`"   # 'name` at `w.data[i]`', 'name at `[i]`'
+LISTED = r"\[(\d+)\] ``?{name}``?"          # '[i] `name`' (markdown) or '[i] ``name``' (docstring)
+
+
+def _places(text, pattern=AT_PHRASE):
+    """{output name: index} from the phrases of the pattern in text."""
     flat = " ".join(text.split())
     found = {}
     for name, _ in OUTPUT_AT:
-        m = re.search(r"%s`?(?: \(permille\))? at `(?:w\.data)?\[(\d+)\]`" % re.escape(name), flat)
+        m = re.search(pattern.format(name=re.escape(name)), flat)
         if m:
             found[name] = int(m.group(1))
     return found
@@ -49,21 +53,10 @@ def test_the_places_hold_the_outputs():
     assert not hasattr(w, "residual_permille")
 
 
-def _places_listed(text):
-    """{output name: index} from '[i] `name`' (markdown) or '[i] ``name``' (docstring) lists."""
-    flat = " ".join(text.split())
-    found = {}
-    for name, _ in OUTPUT_AT:
-        m = re.search(r"\[(\d+)\] ``?%s``?" % re.escape(name), flat)
-        if m:
-            found[name] = int(m.group(1))
-    return found
-
-
 def test_contributor_guide_and_kernel_docstring_name_the_kernels_places():
     # DEVELOPERS.md listed the outputs one place too low ([30] mass_g ... [34] hover_permille)
     # after the kernel's state list grew: a contributor reading it would take bm for mass_g.
     import estimator.core.watch as kernel
     with open(os.path.join(ROOT, "DEVELOPERS.md"), encoding="utf-8") as fh:
-        assert _places_listed(fh.read()) == dict(OUTPUT_AT)
-    assert _places_listed(kernel.__doc__) == dict(OUTPUT_AT)
+        assert _places(fh.read(), LISTED) == dict(OUTPUT_AT)
+    assert _places(kernel.__doc__, LISTED) == dict(OUTPUT_AT)
