@@ -310,8 +310,7 @@ class Watch:
                 sig += (abs(y16) * 53 - (sig << 2)) >> (c[37] + 2)   # 8e4 * 53 = 4.2e6
                 sb[6] = sig = lo(sig, l_dev + (l_dev >> 1) + (l_dev >> 2))   # 1.75x: a slow ramp hides in no more
                 sb[33] = hi(sig >> 6, c[36])
-            calm = s_hi + s_lo < hh
-            if steady and calm:
+            if steady and s_hi + s_lo < hh:               # calm: no suspicion
                 # slow drift of the baseline [1/256 permille] (not after a suspicion): the residual's EMA
                 # bm, free within 2 standard errors of the learned baseline (l_ms), beyond at a bounded
                 # rate (a few permille a minute; a fault ramp moves 30); |bm|, |drift| <= 256000
