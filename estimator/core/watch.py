@@ -43,8 +43,10 @@ class Watch:
                       ta, tq, c[20] + span, i_pos, 0, 0, 1]
         # data (sb in _block): block state, named by the unpacking in _block (DEVELOPERS.md: sig in
         # Q6, drift in Q8, fsl the hover thrust factor in Q7, low: the block's expected power fell
-        # below the floor; [30] bm, [31] sxd, [32..36] the outputs); the inflow slope cx starts at momentum theory's 0.5
-        self.data = [0] * 37
+        # below the floor; [30] bm, [31] sxd, [32..36] the outputs, [37] ym the implied mass's EMA and
+        # [38] xb x's over the mass's blocks, both restarted with the mass sums: clear leaves them); the
+        # inflow slope cx starts at momentum theory's 0.5
+        self.data = [0] * 39
         self.clear()
 
     def clear(self):
@@ -175,7 +177,7 @@ class Watch:
         lo = min                                          # in local slots below 16: 1 B a use, not 2
         hi = max
         (learning, l_sum, l_n, l_ms, l_dev, scale, sig, k, h, s_hi, s_lo, drift, fsl,
-         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low, bm, sxd, mass_g, sigma_permille, residual_permille, thrust_mN, hover_permille) = sb
+         m_sum, m_sq, m_n, m_ms, m_run, sxx, srx, cx, mu_p, var_p, n_p, y16, hold, sdd, srd, cd, low, bm, sxd, mass_g, sigma_permille, residual_permille, thrust_mN, hover_permille, ym, xb) = sb
         # CUSUM k, h [permille] from the noise; k at most k_max, h raised so that h k stays
         k = lo(hi(sig >> 6, c[36]), 1000)                     # the noise, within its floor c[36]..100 %
         h = k * c[39] >> 8                               # 1000 * 12800
@@ -201,14 +203,16 @@ class Watch:
         if not fsl:
             fsl = fb << 7                                 # Q7 of Q12, < 2^20
         fsd = (fsl >> 7) + 1
-        x = lo(hi((fb - fsd) * 1000 // fsd, -500), 500)   # from the hover thrust [permille]; 6143 * 1000
+        # x, the block's command thrust against the hover's [permille], is kept in v (the voltage is
+        # read above; a local below 16 is 1 B a use); 6143 * 1000
+        v = lo(hi((fb - fsd) * 1000 // fsd, -500), 500)
         sb[29] = 0
-        if low or abs(x) > c[40]:
+        if low or abs(v) > c[40]:
             sb[25] = hold = c[48]                        # a manoeuvre: not judged for settle_ms after it
         elif hold > 0:
             sb[25] = hold = hold - b
         steady = hold <= 0
-        near = not low and abs(x) <= 250              # judged (at half weight unless steady)
+        near = not low and abs(v) <= 250              # judged (at half weight unless steady)
         sb[12] = fsl + (((fb << 7) - fsl) >> (4 if learning else 7))   # 2^20
         esh = c[27]                                      # energy_shift (watch_layout)
         e0 = p >> esh                                     # < 2^19
@@ -225,7 +229,7 @@ class Watch:
         # its part along x, gp = g - b x (b = cov(x, g) / var(x), Q8, within +-4), is orthogonal to x,
         # so cx = cov(r, x) / var(x) and cd = cov(r, gp) / var(gp) are the pair's slopes (Gram-Schmidt)
         bq = lo(hi(sxd * 16 // ((sxx >> 4) + 50), -1024), 1024)   # sxd <= 4e6 (Q4): x 16 = 6.4e7
-        gp = g - bq * x // 256                            # |.| <= 500 + 4 x 500
+        gp = g - bq * v // 256                            # |.| <= 500 + 4 x 500
         if quiet:
             sh = c[37] + 1                                # 2x the noise's EMA: a slow ramp is not taken in
             m = drift >> 8                                # the baseline: the residual's mean
@@ -235,9 +239,9 @@ class Watch:
             q = lo(hi(r - m, -1000), 1000)
             # EMA moments in Q4: a step (v - s) >> sh is floored, which biases a moment kept in
             # plain units by about -2^sh / 2, as large as var(g) itself after learning
-            sxx += ((x * x << 4) - sxx) >> sh             # 250000 x 16 = 4e6
-            sxd += ((x * g << 4) - sxd) >> sh             # 500 x 500 x 16
-            srx += ((q * x << 4) - srx) >> sh             # 1000 x 500 x 16 = 8e6
+            sxx += ((v * v << 4) - sxx) >> sh             # 250000 x 16 = 4e6
+            sxd += ((v * g << 4) - sxd) >> sh             # 500 x 500 x 16
+            srx += ((q * v << 4) - srx) >> sh             # 1000 x 500 x 16 = 8e6
             sdd += ((gp * gp << 4) - sdd) >> sh           # 2500^2 x 16 = 1e8
             srd += ((q * gp << 4) - srd) >> sh            # 1000 x 2500 x 16 = 4e7
             sb[18] = sxx
@@ -250,10 +254,11 @@ class Watch:
             # (sig Q6, so sig^2 >> 19): a clean log learns cd near least squares, a noisy one
             # shrinks it; sig starts at 10 % (clear) while learning, so it does not jump after
             sb[28] = cd = lo(hi(srd * 4 // ((sdd >> 4) + ((sig >> 9) * sig >> 10) + 4), 0), 1023)   # 4e7 * 4 ; 250 x 128000
-        x = lo(hi(cx * x // 1000 + cd * gp // 64, -500), 500)   # the modelled part of r, |.| <= 500
+        # e: the modelled part of r, |.| <= 500 (e and, in the mass, l: low slots, 1 B a use)
+        e = lo(hi(cx * v // 1000 + cd * gp // 64, -500), 500)
         if learning:
             if steady:
-                r -= x                                    # |.| <= 1500: take the modelled part out
+                r -= e                                    # |.| <= 1500: take the modelled part out
                 l_n += 1                                  # <= 18000 (timeout / block)
                 l_sum += r                                # <= 2.7e7
                 sb[24] = y16 = y16 + ((((r - l_sum // l_n) << 4) - y16) >> 2)   # deviation (|.| <= 3000) smoothed x 16, |.| <= 48000
@@ -290,7 +295,7 @@ class Watch:
                 sb[6] = s << 6                            # Q6, <= 128000
                 sb[33] = s
         elif near:
-            p = r - (drift >> 8) - x                      # the deviation (p, e, v, f: low slots, 1 B a use); |.| <= 1600
+            p = r - (drift >> 8) - e                      # the deviation (p, e, v, f: low slots, 1 B a use); |.| <= 1600
             cl = k + hh + 1                               # one block adds at most this
             zc = lo(hi(p, -cl), cl)
             if steady:
@@ -316,37 +321,40 @@ class Watch:
                 # rate (a few permille a minute; a fault ramp moves 30); |bm|, |drift| <= 256000
                 sb[30] = bm = bm + (((r << 8) - bm) >> c[41])   # 1000 * 256
                 f = c[42]                                 # the step bound
-                v = l_ms << 8                             # the band; 2000 * 256
-                sb[11] = lo(hi(bm, lo(drift - f, -v)), hi(drift + f, v))
+                p = l_ms << 8                             # the band (x stays in v for the mass); 2000 * 256
+                sb[11] = lo(hi(bm, lo(drift - f, -p)), hi(drift + f, p))
             flags = flags & 28 | (s_hi >= h) | (s_lo >= h) << 1   # power_high 1, power_low 2
 
-        # implied mass over windows of steady flight (not while a power fault is suspected)
-        if steady:
+        # implied mass over flight near hover (not while a power fault is suspected), judged at the end
+        # of each window of mass_window_ms on everything since the first (or the last restart)
+        if near:
             if learning or s_hi + s_lo < hh >> 1:       # (a quarter of h: a small shift is not read as mass)
-                plan = c[45]
-                th -= th * x // 1500                      # less axial flight (T ~ P^(2/3)); 1e6 * 500
-                # mass deviation in thrust units; the plan's weight plan x 9.807 mN/g <= 4.9e6
-                dm = lo(hi(th * 1000 // (plan * 9 + plan * 807 // 1000) - 1000, -500), 500)   # 1e6 * 1000 ; 5e5 * 807
-                m_sum += dm                               # <= 500 x 1200 blocks
-                m_sq += dm * dm                           # <= 250000 x 1200 = 3e8
+                # thrust from measured power over the plan's weight [permille] (1000 / 9.807 mN/g = 102,
+                # 0.3 permille high), less the modelled axial-flight part (T ~ P^(2/3)), less 1, less the
+                # block's command thrust against the hover's, x, about its own mean xb over these blocks:
+                # the vehicle's acceleration (T = m (g + a)) comes out, a hover command that drifts or
+                # blocks picked on one side of it add no bias
+                l = lo(th * 102 // c[45], 1500)           # 1e6 * 102
+                sb[38] = xb = xb + ((v - xb) >> lo(m_n, 4))   # |.| <= 250 (restarted with the sums)
+                l = lo(hi(l - l * e // 1500 - 1000 - v + xb, -500), 500)   # 1500 * 500
+                # mean and spread of l's EMA over 4 blocks (Q2; restarted with the sums): the variance of
+                # independent blocks (a 5 Hz log's aliased jitter) is 1/7 in it, a slow wander's whole;
+                # mass_z2_q8's correlation factor counts blocks of this EMA
+                sb[37] = ym = ym + (((l << 2) - ym) >> lo(m_n, 2))   # 2000 x 4
+                m_sum += ym >> 2                          # <= 500 x 3200 blocks
+                m_sq += ym * ym >> 4                      # <= 250000 x 3200 = 8e8
                 m_n += 1
                 m_ms += b
                 if m_ms >= c[43]:
+                    # each window ends with a verdict on everything since the first (or the last restart),
+                    # from the second window on (n_p, the last verdict's count, is 0 before: a first window
+                    # alone, in the settling after take-off, read +13 % on a fault-free 5 Hz log); sb[21..23]
+                    # (mu_p, var_p, n_p) keep the verdict's mean, variance and count for the replay
                     mu = m_sum // m_n
                     var = m_sq // m_n - mu * mu           # <= 250000
-                    if n_p:
-                        # pooled with the previous window: mean, variance, count
-                        d = (mu - mu_p) // 2
-                        pmu = (mu + mu_p) // 2
-                        pvar = (var + var_p) // 2 + d * d    # <= 250000 + 250000
-                        pn = n_p + m_n
-                    else:
-                        pmu = mu
-                        pvar = var
-                        pn = m_n
-                    sb[32] = plan + (plan * pmu + 500) // 1000   # 5e5 * 500 (rounded, not floored)
-                    ex = pmu - c[46]
-                    if ex > 0 and ex * ex * pn > ((pvar >> 4) * c[47] >> 4):   # 2.5e5 * 2400 ; 31250 * 32767
+                    sb[32] = c[45] + (c[45] * mu + 500) // 1000   # 5e5 * 500 (rounded, not floored)
+                    ex = mu - c[46]
+                    if ex > 0 and n_p and ex * ex * m_n > ((var >> 4) * c[47] >> 4):   # 2.5e5 * 3200 ; 31250 * 32767
                         m_run += 1
                         if m_run >= c[44]:
                             flags |= 16
@@ -355,7 +363,11 @@ class Watch:
                     sb[21] = mu
                     sb[22] = var
                     sb[23] = n_p = m_n
-                    m_sum = m_sq = m_n = m_ms = 0
+                    m_ms = 0
+                    if m_n > 2000:                        # halved: the sums stay bounded, the mean and spread kept
+                        m_sum >>= 1
+                        m_sq >>= 1
+                        m_n >>= 1
                 sb[17] = m_run
                 sb[13] = m_sum
                 sb[14] = m_sq

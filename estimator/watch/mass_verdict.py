@@ -9,24 +9,22 @@ import math
 from estimator.units import mass_text
 
 
-def mass_margin(before, last, run, cfg):
-    """The implied-mass alarm threshold of the kernel's last completed window (new-user trial 9,
-    finding 6: a replay said the mass was above the alarm limit beside "0 alarms", the margin
-    unsaid). The kernel (estimator.core.watch) raises mass_high when the pooled mean excess ex
-    over the limit share satisfies ex^2 n > var z^2 c (z standard errors, c blocks per
-    independent stretch; CONFIG mass_z2_q8 = 256 z^2 c) in mass_windows windows in a row; this
-    repeats its integer pooling of the window with the one before it.
+def mass_margin(last, run, cfg, first=False):
+    """The implied-mass alarm threshold of the kernel's last verdict (new-user trial 9, finding 6: a
+    replay said the mass was above the alarm limit beside "0 alarms", the margin unsaid). The
+    kernel (estimator.core.watch) judges at the end of each window everything since the first (or
+    its last restart) and raises mass_high when the mean excess ex over the limit share satisfies
+    ex^2 n > var z^2 c (z standard errors, c blocks per independent stretch; CONFIG mass_z2_q8 =
+    256 z^2 c) in mass_windows verdicts in a row; this repeats its integer test.
 
-    before, last: (mean [permille], variance [permille^2], count [blocks]) of the window before
-    (None when not pooled) and of the last one; run: the kernel's count of windows in a row above
-    the threshold; cfg: CONFIG dict. Returns dict margin_permille (z sqrt(c var / n)), alarm_permille
-    (the limit share plus that margin) and windows_above (run)."""
+    last: (mean [permille], variance [permille^2], count [blocks]) of that verdict; run: the
+    kernel's count of verdicts in a row above the threshold; cfg: CONFIG dict; first: it was the
+    first window since take-off or a restart, which the kernel does not judge alone. Returns dict
+    margin_permille (z sqrt(c var / n)), alarm_permille (the limit share plus that margin) and
+    windows_above (run); for a first window margin_permille and alarm_permille are None."""
+    if first:
+        return {"margin_permille": None, "alarm_permille": None, "windows_above": run}
     mu, var, n = last
-    if before:
-        mu_p, var_p, n_p = before
-        d = (mu - mu_p) // 2
-        var = (var + var_p) // 2 + d * d
-        n = n_p + n
     # the kernel's integer variance can come out below zero (floored means): then any excess alarms
     margin = math.sqrt(max(0, (var >> 4) * cfg["mass_z2_q8"] >> 4) / n) if n else 0.0
     return {"margin_permille": margin, "alarm_permille": cfg["mass_limit_permille"] + margin,
@@ -50,9 +48,10 @@ def mass_verdict(mass_last, plan_kg, limit_kg, learned, cfg, events=()):
         if held:
             out["held_by"] = {"kind": held[0]["kind"], "t_s": held[0]["t_s"]}
     else:
-        out["reason"] = ("no %.0f s window of steady flight near hover was completed (%s)"
+        out["reason"] = ("no %.0f s window of flight near hover was completed (%s)"
                          % (cfg["mass_window_ms"] / 1000.0, "too little steady flight in this log" if not learned else
-                            "climbs, descents, gusts or a suspected power fault keep blocks out of it"))
+                            "climbs and descents beyond a quarter of the hover thrust, or a suspected power "
+                            "fault, keep blocks out of it"))
     return out
 
 
@@ -73,6 +72,9 @@ def mass_words(mass):
     if not mass["above_limit"] or mass.get("mass_alarm", True) or "alarm_kg" not in mass:
         return text
     # above the limit without a mass alarm: say why (trial 9, finding 6)
+    if mass["alarm_kg"] is None:
+        return text + (" but it is the first window since take-off or a suspected power fault, which is not "
+                       "judged alone (the settling after take-off can read high): the next one is")
     if mass["implied_kg"] <= mass["alarm_kg"]:
         return text + (" but within the estimate's margin (+-%s over gusty or short windows): no alarm below "
                        "%s, the limit plus that margin" % (m(mass["margin_kg"]), m(mass["alarm_kg"])))

@@ -126,7 +126,7 @@ def run_kernel(flight, config, trace=False, progress=None):
     learn_span = [None, None]      # flight time of the learning window: first spin-up .. learned
     mass_last = None               # (the kernel's last implied mass [g], its time [s]) once judged
     sb = w.data                    # the kernel's outputs and sums (estimator.core.watch)
-    window = window_done = None    # the last mass window's (mean, variance, count); the last one completed
+    window = None                  # the kernel's last mass verdict's (mean, variance, count)
     mass_check = None              # mass_check's dict for the last completed window
     arrays = {"time_s": [x - t0 for x in t], "power_W": [], "expected_W": [], "flags": [], "residual": [],
               "learn_span": learn_span} if trace else None
@@ -173,13 +173,12 @@ def run_kernel(flight, config, trace=False, progress=None):
         seen = (sb[21], sb[22], sb[23])
         completed = seen != window and seen[2]
         if seen != window:
+            if completed:   # a window completed: the kernel judged everything since its first, from its second on
+                mass_check = mass_margin(seen, sb[17], config, first=not (window and window[2]))
             window = seen
-            if completed:   # a window completed: judged pooled with the one before, as the kernel does
-                mass_check = mass_margin(window_done, seen, sb[17], config)
         if w.mass_g and (completed or mass_last is None or w.mass_g != mass_last[0]):
             # when the kernel last set the implied mass: it holds it while a power fault is suspected
             mass_last = (w.mass_g, ti - t0)
-            window_done = seen if seen[2] else None   # a count of 0: the kernel pools no more
         if not learned and w.sigma_permille:
             learned = True
             learn_span[1] = ti - t0
@@ -214,8 +213,9 @@ def run_kernel(flight, config, trace=False, progress=None):
            "ground_pauses": pauses}
     out["mass"] = mass_verdict(mass_last, plan_kg, limit_kg, learned, config, events)
     if out["mass"]["judged"] and mass_check is not None:
-        out["mass"].update(alarm_kg=round(plan_kg * (1.0 + mass_check["alarm_permille"] / 1000.0), 4),
-                           margin_kg=round(plan_kg * mass_check["margin_permille"] / 1000.0, 4),
+        alarm, margin = mass_check["alarm_permille"], mass_check["margin_permille"]   # None: a first window
+        out["mass"].update(alarm_kg=None if alarm is None else round(plan_kg * (1.0 + alarm / 1000.0), 4),
+                           margin_kg=None if margin is None else round(plan_kg * margin / 1000.0, 4),
                            windows_above=mass_check["windows_above"], windows_needed=config["mass_windows"],
                            mass_alarm=any(e["kind"] == "mass_high" for e in events))
     return out, arrays
