@@ -67,8 +67,8 @@ SCALARS = (
     ("steady_permille", 1, 1000),           # block thrust within this of the hover thrust: steady
     ("drift_shift", 0, 12),                 # slow baseline tracking: EMA over 2^shift blocks
     ("drift_step_q8", 0, 2560),             # that EMA's step per block at most this [1/256 permille]
-    ("mass_window_ms", 1000, 120000),       # steady flight time per implied-mass window
-    ("mass_windows", 1, 100),               # windows in a row above the limit for mass_high
+    ("mass_window_ms", 1000, 120000),       # flight time near hover per implied-mass verdict
+    ("mass_windows", 1, 100),               # verdicts in a row above the limit for mass_high
     ("mass_plan_g", 1, 500000),             # planned all-up mass
     ("mass_limit_permille", 0, 1000),       # mass_high above plan by this share ...
     ("mass_z2_q8", 0, 32767),               # ... plus a margin: z^2 x correlation factor x 256

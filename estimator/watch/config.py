@@ -68,9 +68,9 @@ DEFAULTS = {
                                     # 0 -> 15 % in 5 min is 5x faster (bounded in level at 1.5 % instead, the
                                     # baseline walked past it: one false power_low in 625 h of the detection matrix)
     "mass_share": 0.08,             # implied mass above planned by this share (+ margin) -> mass_high [-]
-    "mass_window_s": 12.0,          # flight time near hover per implied-mass window (pooled with the last) [s]
-    "mass_windows": 1,              # windows in a row above limit + margin -> mass_high
-    "mass_z": 2.0,                  # margin in standard errors of the window mean [-]
+    "mass_window_s": 12.0,          # flight time near hover per implied-mass verdict (on all since the first) [s]
+    "mass_windows": 1,              # verdicts in a row above limit + margin -> mass_high
+    "mass_z": 2.0,                  # margin in standard errors of the mean since the first window [-]
     "mass_corr_s": 3.5,             # flight time per independent stretch of the implied mass [s], counted on
                                     # its 4-block EMA, where independent blocks' variance is 1/7: 3.5 s = 7
                                     # blocks counts them exactly (5 Hz logs), a slower wander less. Detection
@@ -286,12 +286,12 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
         "baseline tracking beyond 2 standard errors of the learned baseline moves at most %.4f a minute" % o["drift_rate_per_min"])
     put("mass_window_ms", int(round(1000.0 * o["mass_window_s"])), "implied mass averaged over %.0f s of flight near hover"
         % o["mass_window_s"])
-    put("mass_windows", int(o["mass_windows"]), "windows in a row above the limit for mass_high")
+    put("mass_windows", int(o["mass_windows"]), "verdicts (one a window) in a row above the limit for mass_high")
     put("mass_plan_g", int(round(1000.0 * mass_kg)), "planned all-up mass %.3f kg" % mass_kg)
     put("mass_limit_permille", int(round(1000.0 * o["mass_share"])), "mass_high above plan + %.0f %% ..." % (100.0 * o["mass_share"]))
     corr_blocks = max(1.0, o["mass_corr_s"] * 1000.0 / block_ms)
     put("mass_z2_q8", min(32767, int(round(256.0 * o["mass_z"] ** 2 * corr_blocks))),
-        "... + %.1f standard errors of the window mean (blocks correlated over %.1f s = %.0f blocks)"
+        "... + %.1f standard errors of the mean since the first window (its EMA correlated over %.1f s = %.0f blocks)"
         % (o["mass_z"], o["mass_corr_s"], corr_blocks))
     put("landed_ms", max(1, int(round(1000.0 * o["landed_s"]))), "landed after %.1f s below spin" % o["landed_s"])
     put("dt_max_ms", int(round(1000.0 * o["dt_max_s"])), "sample gap limit %.1f s" % o["dt_max_s"])
