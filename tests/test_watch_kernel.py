@@ -314,8 +314,9 @@ def test_update_source_has_no_loops_and_no_allocating_nodes():
             from estimator.core.watch_layout import OUTPUT_AT
             from watch_helpers import block_state_names
             # up to the outputs a landing keeps (thrust_mN, hover_permille), the list's last two but the
-            # implied mass's EMAs ym and xb, which restart with the mass sums (their first step takes
-            # the block whole)
+            # implied mass's EMAs ym and xb: ym restarts with the mass sums (its first step takes the
+            # block whole); xb, x's mean over those blocks, goes on (restarted at the first block's x,
+            # a climb-out's, it delayed a whoop's +15 % payload from 65 to 118 s in the second world)
             kept = dict(OUTPUT_AT)["thrust_mN"]
             names = block_state_names()
             assert kept == len(names) - 4 and dict(OUTPUT_AT)["hover_permille"] == kept + 1

@@ -43,8 +43,8 @@ class Watch:
                       ta, tq, c[20] + span, i_pos, 0, 0, 1]
         # data (sb in _block): block state, named by the unpacking in _block (DEVELOPERS.md: sig in
         # Q6, drift in Q8, fsl the hover thrust factor in Q7, low: the block's expected power fell
-        # below the floor; [30] bm, [31] sxd, [32..36] the outputs, [37] ym the implied mass's EMA and
-        # [38] xb x's over the mass's blocks, both restarted with the mass sums: clear leaves them); the
+        # below the floor; [30] bm, [31] sxd, [32..36] the outputs, [37] ym the implied mass's EMA,
+        # restarted with the mass sums, [38] xb x's EMA over the mass's blocks: clear leaves both); the
         # inflow slope cx starts at momentum theory's 0.5
         self.data = [0] * 39
         self.clear()
@@ -335,7 +335,7 @@ class Watch:
                 # the vehicle's acceleration (T = m (g + a)) comes out, a hover command that drifts or
                 # blocks picked on one side of it add no bias
                 l = lo(th * 102 // c[45], 1500)           # 1e6 * 102
-                sb[38] = xb = xb + ((v - xb) >> lo(m_n, 4))   # |.| <= 250 (restarted with the sums)
+                sb[38] = xb = xb + ((v - xb) >> 4)        # |.| <= 250 (not restarted: from 0, or the last flight's)
                 l = lo(hi(l - l * e // 1500 - 1000 - v + xb, -500), 500)   # 1500 * 500
                 # mean and spread of l's EMA over 4 blocks (Q2; restarted with the sums): the variance of
                 # independent blocks (a 5 Hz log's aliased jitter) is 1/7 in it, a slow wander's whole;
