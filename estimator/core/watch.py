@@ -348,7 +348,7 @@ class Watch:
                 if m_ms >= c[43]:
                     # each window ends with a verdict on everything since the first (or the last restart),
                     # from the second window on (n_p, the last verdict's count, is 0 before: a first window
-                    # alone, in the settling after take-off, read +13 % on a fault-free 5 Hz log); sb[21..23]
+                    # alone, in the settling after take-off, read +14 % on a fault-free 5 Hz log); sb[21..23]
                     # (mu_p, var_p, n_p) keep the verdict's mean, variance and count for the replay
                     mu = m_sum // m_n
                     var = m_sq // m_n - mu * mu           # <= 250000
