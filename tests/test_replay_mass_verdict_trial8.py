@@ -40,7 +40,7 @@ def test_the_implied_mass_is_said_against_the_plan_and_the_limit(tmp_path, fault
     assert mass["implied_kg"] == pytest.approx(flight["mass_kg"], rel=0.06)
     assert mass["above_limit"] is (fault == "heavy")  # heavy flies 15 % over plan; the limit is +8 %
     assert mass["limit_kg"] > mass["planned_kg"]
-    said = [line for line in text.splitlines() if "implied mass" in line and "last window" in line]
+    said = [line for line in text.splitlines() if "implied mass" in line and "windows to the last" in line]
     assert len(said) == 1, text
     assert ("above the alarm" if fault else "below the alarm") in text.replace("\n", " ").replace("  ", " ")
 

@@ -49,7 +49,7 @@ def test_the_mass_held_after_a_power_alarm_says_so_and_gives_its_own_time(tmp_pa
     assert mass["at_s"] < alarm["t_s"] and mass["held_by"] == {"kind": "power_high", "t_s": alarm["t_s"]}
     code, text, err = run(["replay", log, "--params", sealed])
     flat = " ".join(text.split())
-    assert ("implied mass %s kg at %.1f s (the last window before the power_high alarm at %.1f s; no mass is "
+    assert ("implied mass %s kg at %.1f s (all windows to the last before the power_high alarm at %.1f s; no mass is "
             "judged while a power alarm is up)" % ("%.3f" % mass["implied_kg"], mass["at_s"], alarm["t_s"])) in flat
 
 

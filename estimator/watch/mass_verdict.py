@@ -64,8 +64,9 @@ def mass_words(mass):
     def m(kg):  # grams for a small vehicle, as firmware says them (units.mass_text)
         return mass_text(kg, plan)
     held = mass.get("held_by")
-    last = ("the last window before the %s alarm at %.1f s; no mass is judged while a power alarm is up"
-            % (held["kind"], held["t_s"]) if held else "the last window")
+    # the kernel's verdict is the mean of all its windows since take-off (or its last restart)
+    last = ("all windows to the last before the %s alarm at %.1f s; no mass is judged while a power alarm "
+            "is up" % (held["kind"], held["t_s"]) if held else "all windows to the last")
     text = ("implied mass %s at %.1f s (%s): %+.1f %% against %s planned, %s the alarm "
             "limit %s" % (m(mass["implied_kg"]), mass["at_s"], last, 100.0 * mass["share"], m(plan),
                           "above" if mass["above_limit"] else "below", m(mass["limit_kg"])))
