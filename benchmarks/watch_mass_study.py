@@ -14,29 +14,16 @@ import statistics
 import sys
 
 import _watch_common  # noqa: F401  (paths)
-import numpy as np
 import watch_study as ws
-from estimator.demo import flight_sim, sim_vehicles
-from estimator.watch.config import ROTOR_LAG_S_PER_M, as_tuple, make_config
+from estimator.demo import sim_vehicles
 
 N = 6
 
 
 def first_mass_high(name, payload, rates, seed, duration_s):
-    """{rate: [delay of the first mass_high after take-off [s] or inf] of the N flights}."""
-    d = sim_vehicles.spec(name)["vehicle"]["propeller"]["diameter_m"]
-    cfg = as_tuple(make_config(sim_vehicles.fitted_params(name), sim_vehicles.checked_vehicle(name),
-                               {"lag_ms": 1000.0 * ROTOR_LAG_S_PER_M * d})[0])
-    sim = flight_sim.simulate(name, N, seed, duration_s, jitter=0.01, sensor_lag_s=0.0, fault_size=[0.0] * N,
-                              fault_at_s=[1e9] * N, fault_ramp_s=[0.0] * N, payload=[payload] * N)
-    out = {}
-    for r in rates:
-        out[r] = []
-        for k in range(N):
-            fl = flight_sim.logged(sim, k, np.random.default_rng(k), None if r == "irr" else int(r))
-            hits = [t for t, bits in ws.replay(cfg, fl) if bits & 16]
-            out[r].append(hits[0] - ws.TAKEOFF_S if hits else float("inf"))
-    return out
+    """{rate name: delays} of watch_study.mass_high_delays ("irr": irregular intervals)."""
+    got = ws.mass_high_delays(name, payload, [None if r == "irr" else int(r) for r in rates], seed, duration_s, N)
+    return {r: got[None if r == "irr" else int(r)] for r in rates}
 
 
 def main(argv):

@@ -13,12 +13,10 @@ now; of 36 such flights (benchmarks/watch_mass_study.py has the study) some stil
 than a minute: the closing note of issue 7 has the numbers.
 """
 
-import numpy as np
 import pytest
 
 import watch_study as ws
-from estimator.demo import flight_sim, sim_vehicles
-from estimator.watch.config import ROTOR_LAG_S_PER_M, as_tuple, make_config
+from estimator.watch.config import as_tuple
 from test_watch_kernel import CHECKED, _state_ok, demo_config
 from watch_helpers import set_state
 
@@ -27,18 +25,7 @@ OCTO = "octo 12S"
 
 
 def _first_mass_high(payload, rate, seed, duration_s=130.0):
-    d = sim_vehicles.spec(OCTO)["vehicle"]["propeller"]["diameter_m"]
-    cfg = as_tuple(make_config(sim_vehicles.fitted_params(OCTO), sim_vehicles.checked_vehicle(OCTO),
-                               {"lag_ms": 1000.0 * ROTOR_LAG_S_PER_M * d})[0])
-    sim = flight_sim.simulate(OCTO, N_FLIGHTS, seed, duration_s, jitter=0.01, sensor_lag_s=0.0,
-                              fault_size=[0.0] * N_FLIGHTS, fault_at_s=[1e9] * N_FLIGHTS,
-                              fault_ramp_s=[0.0] * N_FLIGHTS, payload=[payload] * N_FLIGHTS)
-    out = []
-    for k in range(N_FLIGHTS):
-        events = ws.replay(cfg, flight_sim.logged(sim, k, np.random.default_rng(k), rate))
-        hits = [t for t, bits in events if bits & 16]
-        out.append(hits[0] - ws.TAKEOFF_S if hits else float("inf"))
-    return out
+    return ws.mass_high_delays(OCTO, payload, [rate], seed, duration_s, N_FLIGHTS)[rate]
 
 
 # The goal's 60 s is not met on every flight: 5 Hz 43.8-79.8 s (3 of these six missed in 130 s

@@ -204,6 +204,27 @@ def _simulate_cached(name, n, seed, duration_s, jitter, lag, size, at, ramp, pay
     return sim
 
 
+def mass_high_delays(name, payload, rates, seed, duration_s, n=6, jitter=0.01):
+    """{rate: [time of the first mass_high after take-off [s], inf when none] of n flights} of a
+    vehicle flown payload [-] over its planned mass (closed-loop simulator, no sensor lag beyond
+    the rotor's, collective jitter [-]), each logged at every rate of rates [Hz] (None: irregular)
+    and replayed through the kernel with the default CONFIG and the rotor's lag."""
+    from estimator.watch.config import ROTOR_LAG_S_PER_M
+    d = sim_vehicles.spec(name)["vehicle"]["propeller"]["diameter_m"]
+    cfg = as_tuple(make_config(sim_vehicles.fitted_params(name), sim_vehicles.checked_vehicle(name),
+                               {"lag_ms": 1000.0 * ROTOR_LAG_S_PER_M * d})[0])
+    sim = flight_sim.simulate(name, n, seed, duration_s, jitter=jitter, sensor_lag_s=0.0, fault_size=[0.0] * n,
+                              fault_at_s=[1e9] * n, fault_ramp_s=[0.0] * n, payload=[payload] * n)
+    out = {}
+    for rate in rates:
+        out[rate] = []
+        for k in range(n):
+            events = replay(cfg, flight_sim.logged(sim, k, np.random.default_rng(k), rate))
+            hits = [t for t, bits in events if bits & 16]
+            out[rate].append(hits[0] - TAKEOFF_S if hits else float("inf"))
+    return out
+
+
 def poisson_upper(k, hours):
     """95 % upper confidence bound of a Poisson rate with k events in ``hours`` [1/h]."""
     return chi2.ppf(0.95, 2 * (k + 1)) / 2.0 / hours
