@@ -62,6 +62,9 @@ IMPLIED_MASS_MIN_FLIGHT_S = 10.0
 ZERO_CURRENT_SHARE = 0.05
 # rows the voltage/current swap judgement samples (systematic), at most [-]
 SWAP_SAMPLE_ROWS = 20000
+# the watch is built and measured for logs at 5-100 Hz (benchmarks/watch_detection.py); a log
+# whose median sample rate is below this gets a warning [Hz]
+SLOW_LOG_HZ = 4.0
 
 
 def check_time(path, flight, go_on=False):
@@ -354,3 +357,16 @@ def _check_time_unit(path, time_s, unit, gap_s):
         raise InputError("%s: column time[ms]: the median step between rows is %.3g ms, a logging rate "
                          "above 500 Hz: likely seconds in a column labelled [ms]; label it time[s]"
                          % (path, step * 1000.0))
+
+
+def slow_log_warning(time_s):
+    """One sentence when the log's median sample period is longer than 1 / SLOW_LOG_HZ, else None:
+    at such a rate a block of the watch holds one sample or none, its alarms come later and a
+    short fault can fall between samples. time_s: the log's times [s], rising."""
+    steps = sorted(b - a for a, b in zip(time_s, time_s[1:]))
+    if not steps or steps[len(steps) // 2] * SLOW_LOG_HZ <= 1.0:
+        return None
+    period = steps[len(steps) // 2]
+    return ("this log has a sample every %.2g s (median, %.2g Hz): the watch is built for logs at 5-100 Hz; "
+            "at this rate its alarms come later and a short fault can pass between samples: log faster"
+            % (period, 1.0 / period))

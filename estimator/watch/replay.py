@@ -18,7 +18,7 @@ from estimator.units import unit_factors
 from estimator.watch.model_hedge import POWER_KINDS, exponent_not_measured, exponent_note  # noqa: F401 (API)
 from estimator.watch.config import make_config, new_watch, vehicle_facts
 from estimator.watch.fault_causes import StuckTimer, fault_cause, in_range
-from estimator.watch.log_checks import check_plausible, check_time, check_vehicle
+from estimator.watch.log_checks import check_plausible, check_time, check_vehicle, slow_log_warning
 from estimator.watch.log_current import ground_current_note
 from estimator.watch.mass_verdict import mass_margin, mass_verdict, mass_words  # noqa: F401 (API)
 
@@ -254,7 +254,8 @@ def replay_file(path, params, vehicle=None, options=None, progress=None, drop_ba
     repeats (unless ``drop_bad_time``: those rows are dropped and counted in ``dropped_rows``),
     values implausible for the parameter set (the likely unit slip is named), a log from another
     vehicle or pack (log_checks.check_vehicle). warnings: the CONFIG's range warning (the vehicle's
-    full command beyond the current-sensor range), as firmware gives it. A log on which the watch did not finish learning
+    full command beyond the current-sensor range), as firmware gives it, and a log below 4 Hz
+    (log_checks.slow_log_warning). A log on which the watch did not finish learning
     the baseline gets ``learned`` False and a ``note`` saying why (learning_note).
     """
     return replay_file_traced(path, params, vehicle, options, progress, drop_bad_time, params_source, False)[0]
@@ -283,6 +284,9 @@ def replay_file_traced(path, params, vehicle=None, options=None, progress=None, 
         out["note"] = learning_note(out, config)
     # the range warning firmware gives, repeated: a punch-out beyond the range is a sensor_fault
     out["warnings"] = [notes["range_warning"]] if "range_warning" in notes else []
+    slow = slow_log_warning(flight["time_s"])
+    if slow:
+        out["warnings"].append(slow)
     if dropped:
         out["dropped_rows"] = dropped
     if flight["missing_rows"]:
