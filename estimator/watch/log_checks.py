@@ -337,10 +337,9 @@ def _check_time_unit(path, time_s, unit, gap_s):
     """Refuse a time column whose median step only makes sense in the other unit: steps far
     beyond the watch's sample gap limit gap_s [s] that would be ordinary logging periods in
     ms (milliseconds labelled [s]), or steps below 2 ms that would be ordinary in s."""
-    steps = [b - a for a, b in zip(time_s, time_s[1:]) if b > a]
-    if len(steps) < 3:
+    step = _median_step(time_s)
+    if step is None:
         return
-    step = _median(steps)
     if unit == "s" and step > 20.0 * gap_s and step / 1000.0 <= gap_s:
         raise InputError("%s: column time[s]: the median step between rows is %.4g s, %.0f times the "
                          "watch's sample gap limit (%.1f s): likely milliseconds in a column labelled "
@@ -359,14 +358,19 @@ def _check_time_unit(path, time_s, unit, gap_s):
                          % (path, step * 1000.0))
 
 
+def _median_step(time_s):
+    """The median step between rows that rise [s], or None for fewer than 3 such steps."""
+    steps = [b - a for a, b in zip(time_s, time_s[1:]) if b > a]
+    return _median(steps) if len(steps) >= 3 else None
+
+
 def slow_log_warning(time_s):
     """One sentence when the log's median sample period is longer than 1 / SLOW_LOG_HZ, else None:
     at such a rate a block of the watch holds one sample or none, its alarms come later and a
-    short fault can fall between samples. time_s: the log's times [s], rising."""
-    steps = sorted(b - a for a, b in zip(time_s, time_s[1:]))
-    if not steps or steps[len(steps) // 2] * SLOW_LOG_HZ <= 1.0:
+    short fault can fall between samples. time_s: the log's times [s]."""
+    period = _median_step(time_s)
+    if period is None or period * SLOW_LOG_HZ <= 1.0:
         return None
-    period = steps[len(steps) // 2]
     return ("this log has a sample every %.2g s (median, %.2g Hz): the watch is built for logs at 5-100 Hz; "
             "at this rate its alarms come later and a short fault can pass between samples: log faster"
             % (period, 1.0 / period))
