@@ -308,9 +308,11 @@ class Watch:
             sb[9] = s_hi = lo(hi(s_hi, 0), h2)
             sb[10] = s_lo = lo(hi(s_lo, 0), h2)
             if quiet and steady:
-                # noise [Q6]: EMA of |y16| x 53 / 4 = |y| x 64 sqrt(7) sqrt(pi/2), |p| within 5 sigma
+                # noise [Q6]: EMA of |y16| x 53 / 4 = |y| x 64 sqrt(7) sqrt(pi/2), |y| within 5 sigma; y
+                # is p about the residual's own slow mean bm, not the bounded drift: a shift the drift
+                # may not follow yet (a slow fault ramp) is the CUSUM's to judge, not noise
                 s = hi(sig >> 6, c[36])
-                p = lo(hi(p, -5 * s), 5 * s)
+                p = lo(hi(p + (drift - bm >> 8), -5 * s), 5 * s)
                 sb[24] = y16 = y16 + (((p << 4) - y16) >> 2)   # |.| <= 16 x 5000
                 sig += (abs(y16) * 53 - (sig << 2)) >> (c[37] + 2)   # 8e4 * 53 = 4.2e6
                 sb[6] = sig = lo(sig, l_dev + (l_dev >> 1) + (l_dev >> 2))   # 1.75x: a slow ramp hides in no more
