@@ -37,11 +37,11 @@ def mass_verdict(mass_last, plan_kg, limit_kg, learned, cfg, events=()):
     limit_kg [kg], and when judged implied_kg [kg], at_s [s from the log's first row], share [-]
     (implied over planned less 1) and above_limit (bool), and held_by ({kind, t_s}: the first power
     alarm after that window, from which on the kernel held the mass; absent when none came); when
-    not judged, reason (text). mass_last: (the kernel's last non-zero mass_g [g], the time it was
-    set [s]) or None; events: run_kernel's events."""
+    not judged, reason (text). mass_last: (the kernel's last implied mass [kg], the plan times 1 + its
+    verdict's mean, the time it was set [s]) or None; events: run_kernel's events."""
     out = {"judged": mass_last is not None, "planned_kg": plan_kg, "limit_kg": round(limit_kg, 4)}
     if mass_last is not None:
-        kg = mass_last[0] / 1000.0
+        kg = mass_last[0]
         out.update(implied_kg=kg, at_s=round(mass_last[1], 3), share=round(kg / plan_kg - 1.0, 4),
                    above_limit=kg > limit_kg)
         held = [e for e in events if e["kind"] in ("power_high", "power_low") and e["t_s"] > out["at_s"]]

@@ -122,9 +122,14 @@ def run_kernel(flight, config, trace=False, progress=None):
     t_prev = None
     t0 = t[0] if n else 0.0
     plan_kg = config["mass_plan_g"] / 1000.0
+
+    def implied_kg(sb):
+        # the plan times 1 + the kernel's verdict mean [permille] (sb[21]), not its output mass_g:
+        # whole grams are 5 % steps on a 20 g whoop (a second-world whoop read +10.0 % at +8.x %)
+        return round(plan_kg * (1000 + sb[21]) / 1000.0, 6)
     limit_kg = plan_kg * (1000 + config["mass_limit_permille"]) / 1000.0
     learn_span = [None, None]      # flight time of the learning window: first spin-up .. learned
-    mass_last = None               # (the kernel's last implied mass [g], its time [s]) once judged
+    mass_last = None               # (the kernel's last implied mass [kg], its time [s]) once judged
     sb = w.data                    # the kernel's outputs and sums (estimator.core.watch)
     window = None                  # the kernel's last mass verdict's (mean, variance, count)
     mass_check = None              # mass_check's dict for the last completed window
@@ -176,9 +181,9 @@ def run_kernel(flight, config, trace=False, progress=None):
             if completed:   # a window completed: the kernel judged everything since its first, from its second on
                 mass_check = mass_margin(seen, sb[17], config, first=not (window and window[2]))
             window = seen
-        if w.mass_g and (completed or mass_last is None or w.mass_g != mass_last[0]):
+        if w.mass_g and (completed or mass_last is None or implied_kg(sb) != mass_last[0]):
             # when the kernel last set the implied mass: it holds it while a power fault is suspected
-            mass_last = (w.mass_g, ti - t0)
+            mass_last = (implied_kg(sb), ti - t0)
         if not learned and w.sigma_permille:
             learned = True
             learn_span[1] = ti - t0
@@ -190,7 +195,7 @@ def run_kernel(flight, config, trace=False, progress=None):
                         e = {"t_s": round(ti - t0, 3), "kind": kind, "residual": w.residual_permille / 1000.0,
                              "bus_V": mv[i] / 1000.0, "flight": len(flights) + 1}
                         if bit == 16:    # the implied mass against the plan and the alarm limit
-                            e.update(mass_kg=w.mass_g / 1000.0, planned_kg=plan_kg, limit_kg=round(limit_kg, 4))
+                            e.update(mass_kg=implied_kg(sb), planned_kg=plan_kg, limit_kg=round(limit_kg, 4))
                         if bit == 4:     # which sensor check it was, with the value and the limit
                             e["cause"], e["detail"] = fault_cause(dt, u[i], mv[i], ma[i], stuck.ms, config)
                             stuck_event = e if e["cause"] == "stuck_current" else None
