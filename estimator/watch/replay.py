@@ -181,8 +181,9 @@ def run_kernel(flight, config, trace=False, progress=None):
             if completed:   # a window completed: the kernel judged everything since its first, from its second on
                 mass_check = mass_margin(seen, sb[17], config, first=not (window and window[2]))
             window = seen
-        if w.mass_g and (completed or mass_last is None or implied_kg(sb) != mass_last[0]):
-            # when the kernel last set the implied mass: it holds it while a power fault is suspected
+        if w.mass_g and (completed or mass_last is None):
+            # when the kernel last set the implied mass (with a verdict, which changes seen): it
+            # holds it while a power fault is suspected
             mass_last = (implied_kg(sb), ti - t0)
         if not learned and w.sigma_permille:
             learned = True
