@@ -23,9 +23,10 @@ from estimator.core.watch import Watch
 from estimator.core.watch_layout import OUTPUT_AT
 from estimator.demo import flight_sim, sim_vehicles
 from estimator.watch.config import ROTOR_LAG_S_PER_M, as_tuple, make_config
+from watch_helpers import block_state_names
 
 SIGMA_AT = dict(OUTPUT_AT)["sigma_permille"]
-LEARNING_AT = 0                      # data[0]: 1 while the learning window is open
+LEARNING_AT = block_state_names().index("learning")   # 1 while the learning window is open
 TIMES_S = (150.0, 300.0, 450.0)
 JITTERS = (0.0, 0.004, 0.01)
 RATES = (5, 25, None)                # None: irregular intervals

@@ -16,6 +16,7 @@ from estimator.demo import flight_sim, sim_vehicles
 from estimator.watch.config import ROTOR_LAG_S_PER_M, as_tuple, make_config
 from estimator.watch.named_watch import NamedWatch
 from estimator.watch.replay import run_kernel
+from watch_helpers import block_state_names
 
 NAME = "tiny 3S quad"
 
@@ -29,11 +30,12 @@ def test_the_replays_implied_mass_is_the_kernels_verdict_mean_not_whole_grams():
     fl = flight_sim.logged(sim, 0, np.random.default_rng(0), 25)
     dts, u, mv, ma = ws.kernel_inputs(fl)
     w = NamedWatch(as_tuple(config))
+    mu_at, n_at = block_state_names().index("mu_p"), block_state_names().index("n_p")
     mus = []
     for q in range(len(u)):
         w.update(dts[q], u[q], mv[q], ma[q])
-        if w.data[23] and (not mus or mus[-1] != w.data[21]):
-            mus.append(w.data[21])           # each verdict's mean [permille]
+        if w.data[n_at] and (not mus or mus[-1] != w.data[mu_at]):
+            mus.append(w.data[mu_at])        # each verdict's mean [permille]
     out, _ = run_kernel({"time_s": [float(x) for x in fl["time_s"]], "command_permille": u, "bus_mV": mv,
                          "bus_mA": ma}, config)
     mass = out["mass"]
