@@ -217,7 +217,8 @@ def _float_thrust_total_N(power_W, params, n, rho):
     from scipy.optimize import brentq
 
     from estimator.core.power_model import rotor_power_W
-    pm = params["power_model"]
+    from estimator.watch.thrust_table import flight_power_model
+    pm = flight_power_model(params, "flat", rho)   # the one power model, in the site's air
     target = power_W / n
     if target <= rotor_power_W(pm, 0.0, rho):
         return 0.0
@@ -264,11 +265,12 @@ def test_expected_power_matches_float_power_model():
     # Tolerance 1 %: Q12 fractions (0.05 %), 1/32 table steps in f (below 0.2 % at hover), 0.1 W
     # units, linear voltage knots 1.5 V apart of a smooth factor (below 0.3 %).
     from estimator.watch.site_air import site_hover
+    from estimator.watch.thrust_table import flight_power_model
     params = demo_fit_params()
     cfg = make_config(params)[0]
     v = params["vehicle"]
     n, rho = v["rotor_count"], v["site_density_kg_m3"]
-    pm = params["power_model"]
+    pm = flight_power_model(params, "flat", rho)   # the one power model, in the site's air
     site = site_hover(params, v, rho, v["mass_kg"] * STANDARD_GRAVITY_M_S2 / n)
     c = params["thrust_curve"]
     for u in (0.35, 0.45, 0.55, 0.65, 0.8):

@@ -129,6 +129,7 @@ def test_fault_free_hover_reads_near_zero_residual_at_another_site(tmp_path, see
     watch = new_watch(make_config(params)[0])
     worst = 0
     flags = 0
+    residuals = []
     for cell_V in (4.1, 3.8, 3.55):              # full, mid and nearly empty pack
         bus_V = cell_V * truth.cells
         u = truth.hover_command(mass * G0 / rotors, bus_V, rho_site)
@@ -137,8 +138,12 @@ def test_fault_free_hover_reads_near_zero_residual_at_another_site(tmp_path, see
             flags |= watch.update(50, int(round(1000.0 * u)), int(round(1000.0 * bus_V)),
                                   int(round(1000.0 * amps)) + (k & 1))   # a live sensor is never stuck
         worst = max(worst, abs(watch.residual_permille))
-    assert flags == 0 and watch.residual_permille != 0, flags   # judged: no sensor fault, a residual
+        residuals.append(watch.residual_permille)
+    # judged: no sensor fault, a residual at each pack voltage, not all 0 (one may be 0 to the permille)
+    assert flags == 0 and any(residuals), (flags, residuals)
     # within the 10 % baseline tolerance with room: what is left is the bench's own limit (one air
     # density on the bench cannot split the losses that scale with the air from those that do
-    # not; 24 truths: worst 5.7 %, before the motor model carried the site's air 18.6 %)
+    # not; 40 truths: worst 3.5 % with the motor model's split of the power's terms that scale with the
+    # air, 5.7 % with the bench power model's own (estimator.core.fitted_rotor.site_power_model), 18.6 %
+    # before the motor model carried the site's thrust)
     assert worst <= 60, (share, altitude, temp, worst)

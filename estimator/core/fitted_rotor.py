@@ -190,3 +190,38 @@ def site_thrust_ratio(params, density_kg_m3, thrust_N, coaxial=False):
     motor_V, _ = site.for_thrust(thrust_N)
     bench_N, _ = bench.at_motor_V(motor_V)
     return thrust_N / bench_N if bench_N > 0.0 else 1.0
+
+
+def site_power_model(power, params, density_kg_m3):
+    """A power model (estimator.core.power_model form) of one rotor in the air at rho whose terms
+    that scale with the air take their size from the fitted motor model, not from the bench
+    power model's own split.
+
+    The form scales the T^0.5 and T^1.5 terms by r = sqrt(rho_ref / rho) and leaves the T and
+    T^2 terms (copper loss) alone. Fitted at one density, the four are nearly collinear, so the
+    bench fit may put the shaft power in terms that do not scale (a 20 g whoop's T^1.5 term came
+    out 0, and its hover power read 7 % low in air 25 % thinner than the bench's). The motor
+    model holds the split from physics (thrust and current fitted apart), so the change from the
+    bench's air is taken from its expansion (power_model.coefficients_from_motor: m_h, m_15 at
+    its reference rho_m) on the same two terms:
+        P(T, rho) = P_bench(T, rho_ref) + (r_m - r_m,ref) (m_h T^0.5 + m_15 T^1.5),
+    r_m = sqrt(rho_m / rho), r_m,ref = sqrt(rho_m / rho_ref). Returned with reference density
+    rho, so rotor_power_W and thrust_from_power_N at rho read it as is; a coefficient that would
+    fall below 0 (air denser than the bench's) is held at 0, which keeps P(T) rising for the
+    inversion. power: power-model dict [W, W/N^x, kg/m^3]; params: the parameter set [-];
+    density_kg_m3: rho [kg/m^3]. Returns the dict (power itself when the set has no motor
+    model). Source: the DC motor model with constant CT, CP (module docstring; power_model
+    docstring for the expansion and the terms that scale).
+    """
+    mm = params.get("motor_model")
+    if mm is None:
+        return power
+    rho_m = mm["reference_density_kg_m3"]
+    m = coefficients_from_motor(mm["thrust_per_V2_N"], mm["current_per_V2_A"], mm["resistance_ohm"],
+                                mm["no_load_current_A"], 0.0, mm.get("speed_current_A_per_V", 0.0))
+    shift = math.sqrt(rho_m / density_kg_m3) - math.sqrt(rho_m / power["reference_density_kg_m3"])
+    out = dict(power)
+    out["reference_density_kg_m3"] = float(density_kg_m3)
+    for key in ("sqrt_W_per_N0_5", "induced_W_per_N1_5"):
+        out[key] = max(0.0, power.get(key, 0.0) + shift * m[key])
+    return out

@@ -1,36 +1,47 @@
 """Thrust from bus power for the watch's implied mass: the parameter set's power model inverted,
 and the knots of the piecewise-linear table the kernel interpolates (estimator.core.watch)."""
 
+import math
+
 from estimator.core.power_model import thrust_from_power_N
 
 
 def flight_power_model(params, layout, density_kg_m3):
     """The power model of one rotor as the vehicle flies it: P(T, rho) coefficients (a dict as
-    estimator.core.power_model.rotor_power_W takes) for the watch's expected power and implied mass.
+    estimator.core.power_model.rotor_power_W takes) for the watch's expected power and implied mass,
+    in the site's air at density_kg_m3: its change from the bench's air is the fitted motor
+    model's (estimator.core.fitted_rotor.site_power_model; a set without a motor model keeps the
+    power model's own sqrt(rho_ref / rho) terms). Read it at that density only.
 
-    layout "flat" (or None): the parameter set's power_model itself (the bench rotor, in clean
-    air). "coaxial": that power model plus the power the pair's penalty adds in the pre-flight
-    sheet's model, estimator.core.fitted_rotor.coaxial_power_increment (the fitted motor model's
-    torque current raised by coaxial_torque_ratio, as FittedRotor does), so the watch and the
-    sheet add the same watts at every thrust; a set without a motor model (hand-built) takes the
+    layout "flat" (or None): the parameter set's power model in the site's air (the bench rotor,
+    in clean air; in the bench's own air the power model itself). "coaxial": that plus the power
+    the pair's penalty adds in the pre-flight sheet's model,
+    estimator.core.fitted_rotor.coaxial_power_increment (the fitted motor model's torque current
+    raised by coaxial_torque_ratio, as FittedRotor does), so the watch and the sheet add the same
+    watts at every thrust and air density; a set without a motor model (hand-built) takes the
     same rule on its own T^1.5 term (power_model.coaxial_coefficients). density_kg_m3: site rho
-    [kg/m^3] (used by that fallback only). Source: momentum theory of a coaxial pair, induced-power
-    factor (1 + sqrt(17)) / 4 = 1.2808 on a power basis (Leishman, Principles of Helicopter
+    [kg/m^3]. Source: momentum theory of a coaxial pair, induced-power factor (1 + sqrt(17)) / 4 =
+    1.2808 on a power basis (Leishman, Principles of Helicopter
     Aerodynamics, 2006, ch. 6, coaxial rotors; from memory), through the DC motor model
     (estimator.core.power_model docstring).
     """
+    from estimator.core.fitted_rotor import site_power_model
+
     power = params["power_model"]
     if layout != "coaxial":
-        return power
+        return site_power_model(power, params, density_kg_m3)
     if "motor_model" not in params:
         from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
         from estimator.core.power_model import coaxial_coefficients
         return coaxial_coefficients(power, density_kg_m3, disk_area_m2(params["rotor"]["diameter_m"]),
                                     COAXIAL_INDUCED_POWER_FACTOR)
     from estimator.core.fitted_rotor import coaxial_power_increment
-    out = dict(power)
+    # the flat rotor in the site's air (its reference density is rho), plus the pair's extra terms
+    # carried from the motor model's air to rho as the form carries them (sqrt(rho_m / rho) on T^0.5, T^1.5)
+    out = site_power_model(power, params, density_kg_m3)
+    r = math.sqrt(params["motor_model"]["reference_density_kg_m3"] / density_kg_m3)
     for key, extra in coaxial_power_increment(params).items():
-        out[key] = power.get(key, 0.0) + extra
+        out[key] = out.get(key, 0.0) + extra * (r if key in ("sqrt_W_per_N0_5", "induced_W_per_N1_5") else 1.0)
     return out
 
 
@@ -43,7 +54,7 @@ def coaxial_note(params, layout, density_kg_m3, thrust_N, rotors):
     from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR
     from estimator.core.power_model import rotor_power_W
     extra_W = rotors * (rotor_power_W(flight_power_model(params, layout, density_kg_m3), thrust_N, density_kg_m3)
-                        - rotor_power_W(params["power_model"], thrust_N, density_kg_m3))
+                        - rotor_power_W(flight_power_model(params, "flat", density_kg_m3), thrust_N, density_kg_m3))
     return (", coaxial pairs: +%.1f W at the hover, the pre-flight sheet's penalty: ideal induced power x %.4f, "
             "power basis, Leishman 2006, coaxial rotors, from memory" % (extra_W, COAXIAL_INDUCED_POWER_FACTOR))
 
