@@ -109,6 +109,9 @@ def read_head(path, what, example):
                         earlier.setdefault(key, []).append(comments[key])
                     comments[key] = (value.strip(), line_no)
                 continue
+            if line.lstrip("\ufeff")[:1] in ("{", "["):
+                raise InputError("%s: looks like a JSON file (a parameter set or a vehicle file?), not a "
+                                 "CSV file; expected %s; is it the right file?" % (path, what))
             _check_separator(path, line, line_no, example)
             cells = [c.strip().strip('"').strip() for c in line.split("#", 1)[0].split(",")]
             return Head(comments, cells, line_no, earlier)

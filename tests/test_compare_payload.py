@@ -172,3 +172,15 @@ def test_a_job_time_without_a_unit_is_refused_not_read_as_seconds(demo_file, cap
     err = capsys.readouterr().err
     assert exc.value.code == 2 and "'10' has no unit" in err and "15min" in err
     assert err.count("\n") == 1 and err.startswith("error: ")
+
+
+@pytest.mark.parametrize("text, named", [("0..abc", "'abc'"), ("0,2xyz", "'2xyz'")])
+def test_a_bad_unit_is_named_as_typed(text, named):
+    # new-user trial, session 23: '0..abc' was refused as "--payload '0': unknown unit 'abc' in
+    # '0abc'", quoting a part the person never typed
+    from estimator.errors import InputError
+    with pytest.raises(InputError) as caught:
+        parse_payloads(text)
+    message = str(caught.value)
+    assert message.startswith("--payload " + named), message
+    assert "'0abc'" not in message and "'0xyz'" not in message, message

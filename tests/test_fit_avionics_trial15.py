@@ -30,7 +30,7 @@ def _fit_text(tmp_path, avionics_A):
 
 def test_with_avionics_the_line_names_the_motors_watts_and_the_packs_amps_and_watts(tmp_path):
     flat, hover = _fit_text(tmp_path, 1.5)
-    found = re.search(r"([\d.]+) W for the motors; ([\d.]+) A, ([\d.]+) W from the pack with 1\.500 A avionics "
+    found = re.search(r"([\d.]+) W for all 4 motors; ([\d.]+) A, ([\d.]+) W from the pack with 1\.500 A avionics "
                       r"\(motor model at the sagged hover bus ([\d.]+) V", flat)
     assert found, flat
     motors_W, pack_A, pack_W, bus_V = (float(x) for x in found.groups())
@@ -41,7 +41,9 @@ def test_with_avionics_the_line_names_the_motors_watts_and_the_packs_amps_and_wa
     assert motors_W == pytest.approx(pack_W - 1.5 * bus_V, rel=5e-3)
 
 
-def test_without_avionics_the_line_is_as_before(tmp_path):
+def test_without_avionics_the_line_names_the_draw_of_all_rotors(tmp_path):
+    # new-user trial, session 23: '877.2 W, 20 A' just below 'power per rotor' read as one rotor's
     flat, hover = _fit_text(tmp_path, 0)
-    assert "%.4g W, %.3g A (motor model at the sagged hover bus" % (hover["power_W"], hover["current_A"]) in flat
+    assert ("%.4g W, %.3g A for all 4 rotors (motor model at the sagged hover bus" % (hover["power_W"], hover["current_A"])
+            in flat)
     assert "avionics" not in flat.split("hover for", 1)[1].split("thrust-to-weight")[0]

@@ -266,6 +266,10 @@ def test_cold_pack_raises_resistance_and_shortens_the_flight():
     assert cold["pack_resistance_ohm"] > 2.0 * warm["pack_resistance_ohm"]  # from memory: exp(0.03 * 35)
     assert cold["hover_bus_V"] < warm["hover_bus_V"]
     assert "cold factor from memory" in format_sheet(cold)
+    # the trade is against the cold air's extra density, not 'denser air' (new-user trial, session
+    # 23: at 2500 m and 5 C the same sheet calls the air thin)
+    flat = " ".join(format_sheet(cold).split())
+    assert "than the cold air's extra density gives" in flat and "than the denser air gives" not in flat
 
 
 def test_a_parameter_set_of_another_propeller_is_warned_in_the_report():

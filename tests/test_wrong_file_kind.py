@@ -36,3 +36,19 @@ def test_json_with_a_real_syntax_error_still_says_where(tmp_path):
     path.write_text('{"mass": "1.2kg",\n "rotors": 4,,\n}')
     result = CliRunner().invoke(cli, ["hover", str(path)])
     assert result.exit_code == 2 and "line 2 column" in result.stderr and "malformed JSON" in result.stderr
+
+
+@pytest.mark.parametrize("command", [["fit", "{path}", "--out", "{out}"],
+                                     ["replay", "{path}", "--params", "{path}"]])
+def test_a_json_file_where_a_csv_belongs_is_named_json(tmp_path, params_file, command):
+    # the reverse of the cases above (new-user trial, session 23): a parameter set given as the
+    # bench sweep or the flight log read "2 header problems ... column 1 '{': not name[unit]"
+    out = tmp_path / "new.json"
+    args = [a.format(path=params_file, out=out) for a in command]
+    result = CliRunner().invoke(cli, args)
+    assert result.exit_code == 2
+    lines = result.stderr.strip().splitlines()
+    assert len(lines) == 1 and lines[0].startswith("error: "), result.stderr
+    assert "looks like a JSON file" in lines[0] and "not a CSV file" in lines[0], lines[0]
+    assert "header" not in lines[0], lines[0]
+    assert not out.exists()

@@ -104,9 +104,11 @@ def fit_text(params, out_file, warnings, columns, thrust_to_weight_words=None):
         avionics_A = params["vehicle"].get("avionics_current_A") or 0.0
         # power_W is the rotors' and current_A the pack's: with avionics on the bus the two differ by
         # their share, so each is named (new-user trial 15, finding 2: '253.3 W, 12.7 A' side by side)
-        draw = ("%.4g W, %.3g A" % (h["power_W"], h["current_A"]) if not avionics_A else
-                "%.4g W for the motors; %.3g A, %.4g W from the pack with %.3f A avionics"
-                % (h["power_W"], h["current_A"], h["current_A"] * h["voltage_V"], avionics_A))
+        # (new-user trial, session 23: the line below 'power per rotor' read as one rotor's draw)
+        n_rot = params["vehicle"].get("rotor_count")
+        draw = ("%.4g W, %.3g A for all %s rotors" % (h["power_W"], h["current_A"], n_rot) if not avionics_A else
+                "%.4g W for all %s motors; %.3g A, %.4g W from the pack with %.3f A avionics"
+                % (h["power_W"], n_rot, h["current_A"], h["current_A"] * h["voltage_V"], avionics_A))
         lines += ["hover for %s: command %s (95 %% interval %s..%s), thrust fraction %.3f, "
                   "%s (motor model at the sagged hover bus %.2f V, nominal pack); thrust-to-weight %s" % (
                       params["vehicle"].get("name", "vehicle"), cmd(h["hover_command"]), cmd(lo), cmd(hi),

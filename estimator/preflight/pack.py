@@ -73,7 +73,7 @@ def pack_temperature_text(report):
     text = " (pack at %.0f C, %s" % (temperature, basis) if basis else " (pack at %.0f C" % temperature
     if cold >= 1.005 and temperature < COLD_PACK_BELOW_C:  # shown as x1.01 or more
         text += ("; resistance x%.2f, cold factor from memory: a cold pack sags more, which can cost "
-                 "more thrust-to-weight than the denser air gives" % cold)
+                 "more thrust-to-weight than the cold air's extra density gives" % cold)
     elif cold >= 1.005:  # a room-temperature pack: the model's small step from its 25 C reference
         text += "; resistance x%.2f against a pack at %.0f C, factor from memory" % (cold, COLD_REFERENCE_C)
     capacity = report.get("pack_capacity_factor") or 1.0

@@ -48,6 +48,9 @@ def parse_payloads(text):
                          % shorten(text))
     units = [_UNIT.search(p).group(0).strip() for p in parts if _UNIT.search(p)]
     unit = units[-1] if units else "kg"
+    for part in parts:   # a part with its own unit first: its error names what was typed, not '0abc'
+        if _UNIT.search(part):
+            parse_quantity(part, "mass", "--payload %s" % shorten(part))
     values = []
     for part in parts:
         typed = part if _UNIT.search(part) else part + unit
