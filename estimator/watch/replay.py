@@ -204,7 +204,10 @@ def run_kernel(flight, config, trace=False, progress=None):
             prev = flags
         if trace:
             arrays["power_W"].append(mv[i] * max(ma[i], 0) / 1e6)
-            arrays["expected_W"].append((w.state[2] >> 2) * w.scale / 10000.0)   # the kernel's lagged expected power
+            # the kernel's lagged expected power; none below the spin command (rotors stopped: the
+            # watch expects and judges nothing there, and the idle terms of all rotors drew a false gap
+            # on the ground in the plot, new-user trial, session 23)
+            arrays["expected_W"].append((w.state[2] >> 2) * w.scale / 10000.0 if u[i] >= spin else float("nan"))
             arrays["flags"].append(flags)
             arrays["residual"].append(w.residual_permille / 1000.0)
         if progress is not None and i % step == 0:
