@@ -20,7 +20,7 @@ import math
 
 from estimator.core.battery import sagged_bus_V
 from estimator.core.momentum import COAXIAL_INDUCED_POWER_FACTOR, disk_area_m2
-from estimator.core.power_model import KEYS, coaxial_shaft_ratio, coefficients_from_motor
+from estimator.core.power_model import AIR_KEYS, KEYS, coaxial_shaft_ratio, coefficients_from_motor
 
 BISECTION_STEPS = 60
 
@@ -222,6 +222,6 @@ def site_power_model(power, params, density_kg_m3):
     shift = math.sqrt(rho_m / density_kg_m3) - math.sqrt(rho_m / power["reference_density_kg_m3"])
     out = dict(power)
     out["reference_density_kg_m3"] = float(density_kg_m3)
-    for key in ("sqrt_W_per_N0_5", "induced_W_per_N1_5"):
+    for key in AIR_KEYS:
         out[key] = max(0.0, power.get(key, 0.0) + shift * m[key])
     return out

@@ -24,6 +24,8 @@ import math
 
 # the coefficient keys of a power-model dict (the parameter set's power_model block)
 KEYS = ("idle_power_W", "sqrt_W_per_N0_5", "linear_W_per_N", "induced_W_per_N1_5", "copper_W_per_N2")
+# the keys whose terms the form scales with the air, by r = sqrt(rho_ref / rho) (module docstring)
+AIR_KEYS = ("sqrt_W_per_N0_5", "induced_W_per_N1_5")
 # bisection halvings for thrust_from_power_N: 80 halvings of a bracket leave < 1e-24 of it
 BISECTION_STEPS = 80
 

@@ -3,7 +3,7 @@ and the knots of the piecewise-linear table the kernel interpolates (estimator.c
 
 import math
 
-from estimator.core.power_model import thrust_from_power_N
+from estimator.core.power_model import AIR_KEYS, thrust_from_power_N
 
 
 def flight_power_model(params, layout, density_kg_m3):
@@ -41,7 +41,7 @@ def flight_power_model(params, layout, density_kg_m3):
     out = site_power_model(power, params, density_kg_m3)
     r = math.sqrt(params["motor_model"]["reference_density_kg_m3"] / density_kg_m3)
     for key, extra in coaxial_power_increment(params).items():
-        out[key] = out.get(key, 0.0) + extra * (r if key in ("sqrt_W_per_N0_5", "induced_W_per_N1_5") else 1.0)
+        out[key] = out.get(key, 0.0) + extra * (r if key in AIR_KEYS else 1.0)
     return out
 
 
