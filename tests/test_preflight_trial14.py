@@ -173,3 +173,16 @@ def test_large_counts_are_rounded_to_the_digits_they_hold(tmp_path):
     said = " ".join(run(["hover", small])[1].split())
     rpm = re.findall(r"hover needs about (\d+) rpm", said)
     assert rpm and all(len(n.rstrip("0")) <= 3 for n in rpm), said
+
+
+@pytest.mark.parametrize("key", ["c_rating", "C-rate", "discharge_C"])
+def test_a_pack_rating_in_the_trades_words_is_pointed_to_its_key(tmp_path, key):
+    # new-user trial, session 23: "c_rating": 75 in the battery got no hint (the README says
+    # "C-rating"; the key is max_discharge_C, the maker's continuous discharge rating)
+    doc = json.load(open(VEHICLE))
+    doc["battery"].pop("max_discharge_C", None)
+    doc["battery"][key] = 75
+    path = tmp_path / "rated.json"
+    path.write_text(json.dumps(doc))
+    line = refused(["hover", path], "$.battery", "unknown key %r" % key)
+    assert line.endswith("did you mean 'max_discharge_C'?"), line
