@@ -2,7 +2,7 @@
 a hexa's log the expected line sat at about 120 W on the ground, the idle terms of six stopped
 rotors, against 15 W measured: a healthy ground segment looked like a large gap). Below the spin
 command the watch expects and judges nothing (DEVELOPERS.md, the kernel's flight time), so the
-trace holds no value there. The log is the demo's INVENTED clean flight (closed-loop simulator),
+trace holds no value there. The log is the demo's INVENTED fault-free flight (closed-loop simulator),
 which starts on the ground; nothing here is physics.
 """
 
