@@ -264,7 +264,8 @@ def make_config(params, vehicle=None, options=None, source="parameter set"):
     sh = 0
     while (32 << sh) < p_top_dW:
         sh += 1
-    t_tab = thrust_knots_mN(lambda p_W: thrust_from_power_total_N(p_W, params, n_rot, rho, layout, p_av), (1 << sh) / 10.0)
+    t_tab = thrust_knots_mN(lambda p_W: thrust_from_power_total_N(p_W, params, n_rot, rho, layout, p_av, pm),
+                           (1 << sh) / 10.0)
     tu = 0
     while max(t_tab) >> tu >= 1 << 13:   # knots below 2^13: short in the bundle, 2^13 x 2^13 in the kernel
         tu += 1

@@ -72,7 +72,8 @@ def avionics_power_W(facts, bus_V=None):
     return current_A * float(bus_V)
 
 
-def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3, layout="flat", avionics_W=0.0):
+def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3, layout="flat", avionics_W=0.0,
+                              flight_power=None):
     """Total thrust [N] from total bus power [W]: the vehicle's power model inverted.
 
     Per rotor T = P^-1((P_total - P_av) / N) with P(T, rho) the one power model
@@ -80,12 +81,13 @@ def thrust_from_power_total_N(power_W, params, rotor_count, density_kg_m3, layou
     the same P(T) the expected-power table uses, so the implied mass and the expected power
     never disagree, a coaxial pair's penalty included. power_W: total bus power [W]; rotor_count
     N [-]; density_kg_m3: site rho [kg/m^3]; layout: the vehicle's rotor layout ("flat",
-    "coaxial"); avionics_W: P_av [W], the bus power that does not reach a rotor (avionics_power_W).
-    Source: DC motor + momentum theory power model (estimator.core.power_model docstring; coaxial:
+    "coaxial"); avionics_W: P_av [W], the bus power that does not reach a rotor (avionics_power_W);
+    flight_power: that flight_power_model when the caller holds it already (the CONFIG's table
+    inverts it at 513 powers), else it is made here. Source: DC motor + momentum theory power model (estimator.core.power_model docstring; coaxial:
     flight_power_model).
     """
-    return rotor_count * thrust_from_power_N(flight_power_model(params, layout, density_kg_m3),
-                                             max(power_W - avionics_W, 0.0) / rotor_count, density_kg_m3)
+    power = flight_power if flight_power is not None else flight_power_model(params, layout, density_kg_m3)
+    return rotor_count * thrust_from_power_N(power, max(power_W - avionics_W, 0.0) / rotor_count, density_kg_m3)
 
 
 def thrust_knots_mN(thrust_N, step_W):
