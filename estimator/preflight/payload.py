@@ -48,13 +48,12 @@ def parse_payloads(text):
                          % shorten(text))
     units = [_UNIT.search(p).group(0).strip() for p in parts if _UNIT.search(p)]
     unit = units[-1] if units else "kg"
-    for part in parts:   # a part with its own unit first: its error names what was typed, not '0abc'
-        if _UNIT.search(part):
-            parse_quantity(part, "mass", "--payload %s" % shorten(part))
-    values = []
-    for part in parts:
-        typed = part if _UNIT.search(part) else part + unit
-        values.append(parse_quantity(typed, "mass", "--payload %s" % shorten(part)))
+    def read(part, typed):
+        return parse_quantity(typed, "mass", "--payload %s" % shorten(part))
+
+    # the parts with their own unit first: a bad unit's error names what was typed, not '0abc'
+    given = {i: read(part, part) for i, part in enumerate(parts) if _UNIT.search(part)}
+    values = [given[i] if i in given else read(part, part + unit) for i, part in enumerate(parts)]
     if any(v < 0.0 for v in values):
         raise InputError("--payload %s: a payload cannot be negative" % shorten(text))
     if m:
