@@ -16,7 +16,6 @@ Usage: python benchmarks/site_power_study.py [SETS_PER_KIND] [--seed N]
 """
 
 import json
-import math
 import os
 import random
 import subprocess
@@ -31,14 +30,6 @@ sys.path.insert(0, ROOT)
 import watch_second_world as world  # noqa: E402
 from estimator.core.power_model import rotor_power_W  # noqa: E402
 from estimator.watch.thrust_table import flight_power_model  # noqa: E402
-
-
-def true_power_W(truth, thrust_N, rho):
-    """Bus power [W] of one truth rotor holding thrust_N [N] in air rho [kg/m^3] (duty-free: Vm I / eta)."""
-    omega = math.sqrt(thrust_N * 4.0 * math.pi ** 2 / (truth.ct * rho * truth.D ** 4))
-    torque_A = truth.cp * rho * truth.D ** 5 * omega ** 2 / (8.0 * math.pi ** 3) * truth.kv
-    current_A = truth.I0 + torque_A
-    return (omega / truth.kv + truth.Rm * current_A) * current_A / truth.eta
 
 
 def main(per_kind=6, seed=11):
@@ -70,11 +61,11 @@ def main(per_kind=6, seed=11):
                 params = json.load(f)
             rho_b, rho_s = params["power_model"]["reference_density_kg_m3"], params["vehicle"]["site_density_kg_m3"]
             thrust = truth.mass * world.G / truth.rotors
-            true_ratio = true_power_W(truth, thrust, rho_s) / true_power_W(truth, thrust, rho_b)
+            true_ratio = truth.hover_bus_power_W(thrust, rho_s) / truth.hover_bus_power_W(thrust, rho_b)
             form = rotor_power_W(params["power_model"], thrust, rho_s) / rotor_power_W(params["power_model"], thrust, rho_b)
             site_W = rotor_power_W(flight_power_model(params, "flat", rho_s), thrust, rho_s)
             watch = site_W / rotor_power_W(flight_power_model(params, "flat", rho_b), thrust, rho_b)
-            power = site_W / true_power_W(truth, thrust, rho_s) - 1.0
+            power = site_W / truth.hover_bus_power_W(thrust, rho_s) - 1.0
             row = {"form": form / true_ratio - 1.0, "watch": watch / true_ratio - 1.0, "power": power}
             for key in worst:
                 worst[key] = max(worst[key], abs(row[key]))

@@ -92,6 +92,12 @@ class Truth:
         q = self.cp * rho * self.D ** 5 * omega ** 2 / (8 * math.pi ** 3)
         return d * (self.I0 + q * self.kv) / self.eta
 
+    def hover_bus_power_W(self, thrust_N, rho):
+        """Bus power [W] of one rotor holding thrust_N [N] steadily in air rho [kg/m^3]: Vm I / eta."""
+        omega = math.sqrt(thrust_N * 4 * math.pi ** 2 / (self.ct * rho * self.D ** 4))
+        current_A = self.I0 + self.cp * rho * self.D ** 5 * omega ** 2 / (8 * math.pi ** 3) * self.kv
+        return (omega / self.kv + self.Rm * current_A) * current_A / self.eta
+
     def ocv(self, soc):
         """Open-circuit cell voltage [V] against state of charge (a smooth LiPo-like curve)."""
         return 3.45 + 0.55 * soc + 0.18 * math.tanh((soc - 0.9) * 12) * 0.5 + 0.15 * (1 - math.exp(-soc * 15)) - 0.15

@@ -17,7 +17,6 @@ false mass_high). The watch takes that split from the fitted motor model
 
 import importlib.util
 import json
-import math
 import os
 import random
 
@@ -33,13 +32,6 @@ def _world():
     module = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(module)
     return module
-
-
-def _true_power_W(truth, thrust_N, rho):
-    """Bus power [W] of one truth rotor at thrust_N [N] in air rho [kg/m^3]: Vm I / eta."""
-    omega = math.sqrt(thrust_N * 4.0 * math.pi ** 2 / (truth.ct * rho * truth.D ** 4))
-    current_A = truth.I0 + truth.cp * rho * truth.D ** 5 * omega ** 2 / (8.0 * math.pi ** 3) * truth.kv
-    return (omega / truth.kv + truth.Rm * current_A) * current_A / truth.eta
 
 
 # (seed, kind): the second world's seed-5 whoop (its sweep is the benchmark's: the truth and the
@@ -65,7 +57,7 @@ def test_hover_power_in_thin_air_rises_as_the_truths(tmp_path, seed, kind):
     rho_site = params["vehicle"]["site_density_kg_m3"]
     assert rho_site < 0.8 * rho_bench                # the air is thinner by a fifth or more
     thrust = truth.mass * world.G / truth.rotors
-    true_ratio = _true_power_W(truth, thrust, rho_site) / _true_power_W(truth, thrust, rho_bench)
+    true_ratio = truth.hover_bus_power_W(thrust, rho_site) / truth.hover_bus_power_W(thrust, rho_bench)
     watch_ratio = (rotor_power_W(flight_power_model(params, "flat", rho_site), thrust, rho_site)
                    / rotor_power_W(flight_power_model(params, "flat", rho_bench), thrust, rho_bench))
     # the power's rise with thinner air within 2 % of the truth's (40 fresh sets: worst 0.7 %,
