@@ -318,10 +318,12 @@ class Watch:
                 sb[6] = sig = lo(sig, l_dev + (l_dev >> 1) + (l_dev >> 2))   # 1.75x: a slow ramp hides in no more
                 sb[33] = hi(sig >> 6, c[36])
             if steady and s_hi + s_lo < hh:               # calm: no suspicion
-                # slow drift of the baseline [1/256 permille] (not after a suspicion): the residual's EMA
-                # bm, free within 2 standard errors of the learned baseline (l_ms), beyond at a bounded
-                # rate (a few permille a minute; a fault ramp moves 30); |bm|, |drift| <= 256000
-                sb[30] = bm = bm + (((r << 8) - bm) >> c[41])   # 1000 * 256
+                # slow drift of the baseline [1/256 permille] (not after a suspicion): bm, the EMA of the
+                # residual less its modelled part, r - e (the learning window's baseline; the EMA of r
+                # held e's mean over steady blocks, a bias to z and 3.3x that to the noise), free within
+                # 2 standard errors of the learned baseline (l_ms), beyond at a bounded rate (a few
+                # permille a minute; a fault ramp moves 30); |bm|, |drift| <= 256000
+                sb[30] = bm = bm + ((((r - e) << 8) - bm) >> c[41])   # 1000 * 256
                 f = c[42]                                 # the step bound
                 p = l_ms << 8                             # the band (x stays in v for the mass); 2000 * 256
                 sb[11] = lo(hi(bm, lo(drift - f, -p)), hi(drift + f, p))
