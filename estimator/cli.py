@@ -158,7 +158,12 @@ def main(argv=None):
         msg = exc.format_message().replace("\n", " ")
         ctx_cmd = getattr(getattr(exc, "ctx", None), "command_path", "liftcal")
         param = getattr(exc, "param", None)
-        if isinstance(exc, click.BadParameter) and isinstance(param, click.Option) and param.opts:
+        if isinstance(exc, click.MissingParameter) and isinstance(param, click.Option) and param.opts:
+            # a required option not given: its message is empty (new-user trial 24, finding 1:
+            # 'error: --out: (see ...)' never said the option was missing)
+            fail("%s: not given; this command needs it (see '%s --help')" % (max(param.opts, key=len), ctx_cmd),
+                 as_json)
+        elif isinstance(exc, click.BadParameter) and isinstance(param, click.Option) and param.opts:
             # '--altitude: ...', as liftcal's own refusals name an option (new-user trial 14, finding 16)
             msg = "%s: %s" % (max(param.opts, key=len), exc.message.replace("\n", " "))
             fail("%s (see '%s --help')" % (msg, ctx_cmd), as_json)
