@@ -182,7 +182,13 @@ def format_sheet(report, section5=None):
     lines = []
     title = "PRE-FLIGHT ESTIMATE: %s" % report.get("name", "vehicle")
     lines += [title, "=" * len(title)]
-    air = "air %s (%s of standard, density altitude %s)" % (
+    # the site as read, in SI (new-user trial 24, finding 6: "altitude": "2000ft" showed only the
+    # air it gave, so an ft/m slip was easy to miss; mass and propeller are echoed already)
+    where = ""
+    if report.get("site_altitude_m") is not None:
+        where = "%.0f m%s; " % (report["site_altitude_m"], "" if report.get("temperature_K") is None
+                                else ", %.0f C" % (report["temperature_K"] - 273.15))
+    air = where + "air %s (%s of standard, density altitude %s)" % (
         _num(report.get("density_kg_m3"), "%.3f", "kg/m^3"),
         _num(100.0 * report["density_ratio"] if report.get("density_ratio") else None, "%.0f", "%"),
         _num(report.get("density_altitude_m"), "%.0f", "m"))
