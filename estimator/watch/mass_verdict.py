@@ -6,12 +6,11 @@ suspected: new-user trial 14, finding 3). estimator.watch.replay.run_kernel gath
 
 import math
 
-# an implied mass this share or more below the plan is named as such [-] (a judgement: a planned
-# payload left at home reads a few percent low; the watch's own margin on the implied mass is a
-# few percent on steady logs, benchmarks/watch_mass_study.py)
-FAR_BELOW_SHARE = 0.15
-
 from estimator.units import mass_text
+
+# an implied mass this share or more below the plan is named as such [-] (a judgement: beyond the
+# 10 % lighter flights the detection studies fly as ordinary, benchmarks/watch_detection.py)
+FAR_BELOW_SHARE = 0.15
 
 
 def mass_margin(last, run, cfg, first=False):
