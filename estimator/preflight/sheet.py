@@ -4,6 +4,7 @@ out for (lines wrapped to an 80-column terminal, estimator.textwidth).
 """
 
 from estimator.cautions import cautions
+from estimator.core.constants import CELSIUS_ZERO_K
 from estimator.core.momentum import figure_of_merit
 from estimator.preflight.low_reynolds import endurance_lead
 from estimator.preflight.pack import pack_temperature_text
@@ -187,7 +188,7 @@ def format_sheet(report, section5=None):
     where = ""
     if report.get("site_altitude_m") is not None:
         where = "%.0f m%s; " % (report["site_altitude_m"], "" if report.get("temperature_K") is None
-                                else ", %.0f C" % (report["temperature_K"] - 273.15))
+                                else ", %.0f C" % (report["temperature_K"] - CELSIUS_ZERO_K))
     air = where + "air %s (%s of standard, density altitude %s)" % (
         _num(report.get("density_kg_m3"), "%.3f", "kg/m^3"),
         _num(100.0 * report["density_ratio"] if report.get("density_ratio") else None, "%.0f", "%"),
