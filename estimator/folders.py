@@ -8,8 +8,8 @@ A new folder is built beside the target (staging_folder), its manifest written l
 renamed into place (publish_folder / replace_folder).
 
 API: check_folder(path, kind, inputs, option) -> "new" | "empty" | "own";
-staging_folder(target); publish_folder(staged, target, kind) -> the files kept (made_since);
-write_manifest(folder, kind);
+staging_folder(target); publish_folder(staged, target, kind, record) -> the files kept (made_since);
+write_manifest(folder, kind, record); kept_words(kept); source_record(given); recorded_source(folder);
 folder_files(folder); replace_folder(staged, target).
 """
 
@@ -27,42 +27,74 @@ from estimator.safepath import special_kind
 FOLDER_MANIFEST = ".liftcal-folder.json"
 
 
-def publish_folder(staged, target, kind):
+def publish_folder(staged, target, kind, record=None):
     """Write the manifest into a staged folder and rename it into place; a failed write is one
     InputError naming the target (the caller removes the staged folder on any failure).
 
     Files in an earlier folder at ``target`` that its manifest does not list as they are (a
     liftcal command wrote them there since: a figure, a settings file, a re-fit; check_folder let
-    only such files pass) and that the new folder does not write are carried over, unlisted, so
-    they stay the person's (new-user trial 14, finding 2: re-running the demo deleted them).
-    Returns their relative paths, sorted."""
+    only such files pass) are carried over, unlisted, so they stay the person's (new-user trial 14,
+    finding 2: re-running the demo deleted them), also where the new folder writes a file of that
+    name: the person's version is kept, not liftcal's new one (new-user trial 25, finding 1: a
+    re-fit params.json was replaced by the demo's). ``record``: more keys for the manifest
+    (write_manifest). Returns made_since's Kept list."""
     try:
-        write_manifest(staged, kind)
         kept = made_since(target, staged)
         for rel in kept:
-            dest = os.path.join(staged, *rel.split("/"))
+            _remove(os.path.join(staged, *rel.rstrip("/").split("/")))
+        write_manifest(staged, kind, record)   # liftcal's files only: the kept ones stay unlisted
+        for rel in kept:
+            src = os.path.join(target, *rel.rstrip("/").split("/"))
+            dest = os.path.join(staged, *rel.rstrip("/").split("/"))
             os.makedirs(os.path.dirname(dest), exist_ok=True)
-            shutil.copy2(os.path.join(target, *rel.split("/")), dest)
+            if rel.endswith("/"):
+                shutil.copytree(src, dest, symlinks=True)
+            else:
+                shutil.copy2(src, dest)
     except OSError as exc:
         raise write_error(target, exc) from None
     replace_folder(staged, target)
     return kept
 
 
+class Kept(list):
+    """made_since's sorted relative paths (a folder kept whole as 'sub/'), with ``changed``: those
+    that liftcal wrote there before or writes there now, where the person's version is kept."""
+
+    changed = ()
+
+
 def made_since(target, staged):
     """The relative paths in the folder ``target`` (if any) that its manifest does not list
-    unchanged and that ``staged`` does not hold: what was made there after liftcal wrote it."""
+    unchanged: what was made or rewritten there after liftcal wrote it, whether or not ``staged``
+    holds a file of that name. A liftcal folder in it (a bundle: its own manifest) rewritten since
+    (that manifest changed) is one entry 'sub/', kept whole: never half its files mixed with the
+    new folder's. Returns a Kept list; its ``changed`` are the entries the manifest lists or
+    ``staged`` holds (under)."""
     if not os.path.isdir(target) or os.path.islink(target):
-        return []
+        return Kept()
     try:
         with open(os.path.join(target, FOLDER_MANIFEST), "r", encoding="utf-8") as fh:
             listed = json.load(fh).get("files")
     except (OSError, ValueError, AttributeError):
         listed = None
     listed = listed if isinstance(listed, dict) else {}
-    new = _tree(staged)
-    return sorted(rel for rel, digest in _tree(target).items()
-                  if rel != FOLDER_MANIFEST and rel not in new and listed.get(rel) != digest)
+    rels = [rel for rel, digest in _tree(target).items() if rel != FOLDER_MANIFEST and listed.get(rel) != digest]
+    subs = [rel[: -len(FOLDER_MANIFEST)] for rel in rels if rel.endswith("/" + FOLDER_MANIFEST)]
+    subs = [sub for sub in subs if not any(sub != other and sub.startswith(other) for other in subs)]
+    kept = Kept(sorted([rel for rel in rels if not any(rel.startswith(sub) for sub in subs)] + subs))
+    liftcals = list(listed) + list(_tree(staged))
+    kept.changed = [rel for rel in kept if any(name == rel or (rel.endswith("/") and name.startswith(rel))
+                                               for name in liftcals)]
+    return kept
+
+
+def _remove(path):
+    """Remove a file or a folder from a staged folder, if there."""
+    if os.path.isdir(path) and not os.path.islink(path):
+        shutil.rmtree(path)
+    elif os.path.lexists(path):
+        os.remove(path)
 
 
 def _tree(folder):
@@ -84,11 +116,13 @@ def folder_files(folder):
     return {rel: digest for rel, digest in _tree(folder).items() if rel != FOLDER_MANIFEST}
 
 
-def write_manifest(folder, kind):
-    """Write FOLDER_MANIFEST into ``folder`` listing every file now in it (call it last)."""
-    doc = {"written_by": SOFTWARE, "kind": kind,
-           "note": "liftcal replaces this folder only while every file is listed here unchanged",
-           "files": folder_files(folder)}
+def write_manifest(folder, kind, record=None):
+    """Write FOLDER_MANIFEST into ``folder`` listing every file now in it (call it last);
+    ``record``: more keys to keep there (a bundle's source: source_record)."""
+    doc = dict(record or {})
+    doc.update({"written_by": SOFTWARE, "kind": kind,
+                "note": "liftcal replaces this folder only while every file is listed here unchanged",
+                "files": folder_files(folder)})
     with open(os.path.join(folder, FOLDER_MANIFEST), "w", encoding="utf-8") as fh:
         fh.write(json.dumps(doc, indent=1, sort_keys=True) + "\n")
 
@@ -196,11 +230,50 @@ def _some(names):
 
 
 def kept_words(kept):
-    """'' or '; kept the 2 files made there since, as they were: a.png, b.txt' (publish_folder's list)."""
-    if not kept:
+    """'' or '; kept the 2 files made there since, as they were: a.png, b.txt', then '; kept the 1
+    file changed there since, as they were: params.json' for those liftcal wrote there too
+    (publish_folder's Kept; a plain list is all made there since)."""
+    changed = getattr(kept, "changed", ())
+    return (_kept_clause([rel for rel in kept if rel not in changed], "made")
+            + _kept_clause([rel for rel in kept if rel in changed], "changed"))
+
+
+def _kept_clause(names, how):
+    if not names:
         return ""
-    return "; kept the %d file%s made there since, as they were: %s" % (
-        len(kept), "" if len(kept) == 1 else "s", _some(kept))
+    folders = sum(1 for name in names if name.endswith("/"))
+    counts = ["%d %s%s" % (n, what, "" if n == 1 else "s")
+              for n, what in ((len(names) - folders, "file"), (folders, "folder")) if n]
+    return "; kept the %s %s there since, as they were: %s" % (" and ".join(counts), how, _some(names))
+
+
+def source_record(given):
+    """The manifest keys naming the file a folder was made from (``given``, a path as the person
+    gave it): its absolute path, and whether it was given relative (recorded_source)."""
+    return {"source": {"path": os.path.abspath(given), "given": "absolute" if os.path.isabs(given) else "relative"}}
+
+
+def recorded_source(folder):
+    """The file the liftcal folder ``folder`` was made from (source_record), as seen from the
+    current folder: relative when it was given relative and that is shorter, else absolute;
+    None when its manifest records none (new-user trial 25, finding 2: the path as given then was
+    relative to the folder that command ran in)."""
+    try:
+        with open(os.path.join(folder, FOLDER_MANIFEST), "r", encoding="utf-8") as fh:
+            source = json.load(fh).get("source")
+        path = source["path"]
+        given = source.get("given")
+    except (OSError, ValueError, AttributeError, KeyError, TypeError):
+        return None
+    if not isinstance(path, str) or not os.path.isabs(path):
+        return None
+    if given == "relative":
+        try:
+            here = os.path.relpath(path)
+        except (ValueError, OSError):   # another drive, or the current folder is gone
+            return path
+        return here if len(here) < len(path) else path
+    return path
 
 
 def replace_folder(staged, target):

@@ -158,7 +158,8 @@ def _run(out_dir, work, seed, emit):
 
     # 3. in the air: board bundle + replay of simulated flights
     options = watch_options(params, vehicle)   # the CONFIG liftcal firmware/replay --vehicle build
-    bundle = write_bundle(params, path("board"), vehicle=vehicle, options=options, source=show("params.json"))
+    bundle = write_bundle(params, path("board"), vehicle=vehicle, options=options, source=show("params.json"),
+                          source_path=os.path.join(out_dir, "params.json"))
     text += [_rule("3. onboard power watch"),
              "$ liftcal firmware %s --vehicle %s --out %s" % (show("params.json"), show("vehicle.json"),
                                                               show("board")),

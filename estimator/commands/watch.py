@@ -153,9 +153,16 @@ def _tare_warning(params, source):
 def _bundle_source(out_dir):
     """' from SOURCE', the parameter set an earlier bundle at out_dir was made from (the first line
     of its liftwatch_config.py), or '' (new-user trial 12, finding 14: the replace line named no
-    source, while fit's names its bench file)."""
+    source, while fit's names its bench file). The path is the one its manifest records, as seen
+    from here (folders.recorded_source; trial 25, finding 2: the first line's is relative to where
+    that command ran); the first line's only for a bundle without that record."""
     import re
 
+    from estimator.folders import recorded_source
+
+    recorded = recorded_source(out_dir)
+    if recorded is not None:
+        return " from %s" % shown(recorded)
     try:
         with open(os.path.join(out_dir, "liftwatch_config.py"), encoding="utf-8") as fh:
             first = fh.readline()
@@ -200,7 +207,7 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
     edited = edited_set_warning(params_file, from_edited, "the board bundle")
     options = watch_options(params, vehicle, lag_ms, hover_needed_by=(vehicle_file, params_file))
     out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=options,
-                       edited=edited)
+                       edited=edited, source_path=params_file)
     cfg = out["config"]
     # the kernel's limit is plan x (1 + permille / 1000) exactly (it compares permille), not floored
     mass_limit_g = round(cfg["mass_plan_g"] * (1000 + cfg["mass_limit_permille"]) / 1000.0, 1)

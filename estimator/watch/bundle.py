@@ -185,19 +185,21 @@ def compile_mpy(py_path, mpy_path):
         raise InputError("%s: mpy-cross failed: %s" % (py_path, proc.stderr.strip() or proc.stdout.strip()))
 
 
-def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter set", edited=None):
+def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter set", edited=None,
+                 source_path=None):
     """Write the board bundle into ``out_dir``; returns a summary dict.
 
     params: parameter-set dict; vehicle: vehicle-file dict or None (then the parameter
     set's vehicle block); options: watch_config.DEFAULTS overrides; edited: the warning line of
     a set edited since liftcal sealed it (params.edited_set_warning), written into
-    liftwatch_config.py's header and the README, or None.
+    liftwatch_config.py's header and the README, or None; source_path: the parameter set's file
+    as the person gave it, recorded in the folder's manifest (folders.source_record), or None.
     Summary: out_dir, files (relative), mpy_bytes (total size of the .mpy files), config, kept (files made in an
     earlier bundle folder there since, carried over: folders.publish_folder), site
     (site_air_words' dict and its words).
     Raises InputError (nothing written) on bad input or an occupied out_dir.
     """
-    from estimator.folders import check_folder, publish_folder, staging_folder
+    from estimator.folders import check_folder, publish_folder, source_record, staging_folder
     from estimator.outputs import write_error
 
     config, notes = make_config(params, vehicle, options, source)
@@ -230,7 +232,8 @@ def write_bundle(params, out_dir, vehicle=None, options=None, source="parameter 
             target = os.path.join(tmp, "mpy", mod + ".mpy")
             compile_mpy(os.path.join(tmp, mod + ".py"), target)
             mpy_bytes += os.path.getsize(target)
-        kept = publish_folder(tmp, out_dir, "bundle")
+        record = source_record(source_path) if source_path is not None else None
+        kept = publish_folder(tmp, out_dir, "bundle", record)
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise
