@@ -220,8 +220,6 @@ class Watch:
         if e0s <= 0:
             return flags
         sb[34] = r = lo(hi((e >> esh) - e0s, -e0s), e0s) * 1000 // e0s   # 6.8e5 * 1000 (e0s <= 2^19 x 1300 / 1000)
-        if t < c[32]:                                    # take-off: not judged, not learned
-            return flags
         # lead g: static less lagged expected energy [permille of the expected] (spin-up draw)
         g = lo(hi((l >> esh) * 1000 // (e0 + 1), -500), 500)   # 2^19 * 1000
         quiet = near and (learning or s_hi + s_lo < hh)     # no suspicion: slopes learned
@@ -239,23 +237,26 @@ class Watch:
             q = lo(hi(r - m, -1000), 1000)
             # EMA moments in Q4: a step (v - s) >> sh is floored, which biases a moment kept in
             # plain units by about -2^sh / 2, as large as var(g) itself after learning
-            sxx += ((v * v << 4) - sxx) >> sh             # 250000 x 16 = 4e6
-            sxd += ((v * g << 4) - sxd) >> sh             # 500 x 500 x 16
-            srx += ((q * v << 4) - srx) >> sh             # 1000 x 500 x 16 = 8e6
             sdd += ((gp * gp << 4) - sdd) >> sh           # 2500^2 x 16 = 1e8
             srd += ((q * gp << 4) - srd) >> sh            # 1000 x 2500 x 16 = 4e7
-            sb[18] = sxx
-            sb[19] = srx
             sb[26] = sdd
             sb[27] = srd
-            sb[31] = sxd
-            sb[20] = cx = lo(hi(srx * 125 // ((sxx >> 3) + 50), 0), 1000)   # 8e6 * 125 = 1e9 (a ridge of 25 permille^2)
+            if t >= c[32]:                               # the axial slope: not from take-off (climb-out)
+                sxx += ((v * v << 4) - sxx) >> sh         # 250000 x 16 = 4e6
+                sxd += ((v * g << 4) - sxd) >> sh         # 500 x 500 x 16
+                srx += ((q * v << 4) - srx) >> sh         # 1000 x 500 x 16 = 8e6
+                sb[18] = sxx
+                sb[19] = srx
+                sb[31] = sxd
+                sb[20] = cx = lo(hi(srx * 125 // ((sxx >> 3) + 50), 0), 1000)   # 8e6 * 125 = 1e9 (a ridge of 25 permille^2)
             # cd [Q6] with a ridge of the noise over the EMA's length, sigma^2 / 128 + 4 permille^2
             # (sig Q6, so sig^2 >> 19): a clean log learns cd near least squares, a noisy one
             # shrinks it; sig starts at 10 % (clear) while learning, so it does not jump after
             sb[28] = cd = lo(hi(srd * 4 // ((sdd >> 4) + ((sig >> 9) * sig >> 10) + 4), 0), 1023)   # 4e7 * 4 ; 250 x 128000
         # e: the modelled part of r, |.| <= 500 (e and, in the mass, l: low slots, 1 B a use)
         e = lo(hi(cx * v // 1000 + cd * gp // 64, -500), 500)
+        if t < c[32]:                                    # take-off: not judged, only the lead slope learned
+            return flags
         if learning:
             if steady:
                 r -= e                                    # |.| <= 1500: take the modelled part out
