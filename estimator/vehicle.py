@@ -13,6 +13,7 @@ import copy
 import math
 import re
 
+from estimator.core.atmosphere import station_pressure_warning
 from estimator.errors import InputError
 from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
 from estimator.mass_slip import mass_hint
@@ -164,8 +165,9 @@ def check_vehicle(document, source):
         assumed.append(NO_ALTITUDE_WARNING)
     if "efficiency" not in (document.get("esc") or {}):
         assumed.append(NO_ESC_EFFICIENCY_WARNING)
-    site = document.get("site") or {}  # a temperature odd for the altitude; a humidity in 0..1; bare feet?
+    site = document.get("site") or {}  # a temperature or pressure odd for the altitude; a humidity in 0..1; bare feet?
     assumed += [w for w in (site_temperature_warning(site.get("altitude_m", DEFAULT_ALTITUDE_M), site.get("temperature_C")),
+                station_pressure_warning(site.get("altitude_m", DEFAULT_ALTITUDE_M), site.get("pressure_Pa")),  # a QNH?
                 humidity_fraction_note(site.get("humidity_pct"), "$.site.humidity_pct"), "$.site.altitude_m" not in given
                 and altitude_feet_note(site.get("altitude_m"), "$.site.altitude_m")) if w]
     vehicle["checked"] = {"source": source, "assumed": assumed, "given": {p: t for p, (_, t) in given.items()},
@@ -203,15 +205,14 @@ def vehicle_source(vehicle, default="vehicle"):
     return (vehicle.get("checked") or {}).get("source") or default
 
 
-_SITE_KEYS = {"altitude": "altitude_m", "temperature": "temperature_C", "pressure": "pressure_Pa",
-              "humidity": "humidity_pct"}
+_SITE_KEYS = {"altitude": "altitude_m", "temperature": "temperature_C", "pressure": "pressure_Pa", "humidity": "humidity_pct"}
 
 
 def vehicle_air(vehicle):
     """Site air of a checked vehicle (core.atmosphere.site_air, keys and units there).
 
-    Raises InputError naming the file and the site's JSON key when the
-    air model refuses an input (e.g. a sea-level QNH given as the station pressure).
+    Raises InputError naming the file and the site's JSON key when the air model refuses an input
+    (e.g. a sea-level QNH given as the station pressure; one a little too high: check_vehicle warns).
     """
     from estimator.core.atmosphere import AirInputError, site_air
 

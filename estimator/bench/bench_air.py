@@ -21,7 +21,7 @@ def bench_air(path, comments, density, altitude, temperature, pressure, humidity
     altitude, temperature, pressure or humidity is enough: the others come from the standard
     atmosphere, and the warning says which were assumed. Returns {density_kg_m3, source}.
     """
-    from estimator.core.atmosphere import AirInputError, site_air
+    from estimator.core.atmosphere import AirInputError, site_air, station_pressure_warning
     from estimator.vehicle import check_quantity
 
     options = {"altitude": altitude, "temperature": temperature, "pressure": pressure,
@@ -43,6 +43,9 @@ def bench_air(path, comments, density, altitude, temperature, pressure, humidity
         except AirInputError as exc:
             at = where.get(exc.quantity) or ", ".join(where[k] for k in sorted(where))
             raise InputError("%s: bench air: %s" % (at, exc)) from None
+        high = station_pressure_warning(given.get("altitude", 0.0), given.get("pressure"))  # a QNH given?
+        if high:
+            warnings.append("%s: bench air: %s" % (where["pressure"], high))
         opts = ["--" + k for k in sorted(given) if where[k].startswith("--")]
         notes = ["# " + k for k in sorted(given) if not where[k].startswith("--")]
         named = " and ".join(x for x in ("options (%s)" % ", ".join(opts) if opts else "",

@@ -73,6 +73,15 @@ def _air(altitude_m, temperature_C, pressure_Pa, humidity_pct):
         raise InputError("--%s: %s" % (exc.quantity, exc)) from None
 
 
+def _pressure_warning(altitude_m, pressure_Pa):
+    """A --pressure above what weather usually gives at the altitude, short of the refusal: the
+    warning of core.atmosphere.station_pressure_warning (a sea-level QNH given for the site?) or None."""
+    from estimator.core.atmosphere import station_pressure_warning
+
+    warning = station_pressure_warning(altitude_m, pressure_Pa)
+    return None if warning is None else "--pressure: " + warning
+
+
 def site_options(note):
     """The four options that describe the air at a site, shared by ``air`` and ``static``."""
     options = [
@@ -127,7 +136,7 @@ def air(altitude, temperature, pressure, humidity, as_json):
 
     note = site_temperature_warning(altitude_m, temperature_C)
     humid = humidity_fraction_note(humidity_pct, "--humidity")
-    out["warnings"] = [w for w in (note, humid) if w]
+    out["warnings"] = [w for w in (note, _pressure_warning(altitude_m, pressure_Pa), humid) if w]
     if pressure_Pa is None and click.get_current_context().get_parameter_source("altitude") \
             == click.core.ParameterSource.DEFAULT:  # said, as hover says it of a vehicle file (trial 14)
         out["warnings"].append("no --altitude: sea level assumed%s; give --altitude for the field you will fly at"
@@ -191,12 +200,14 @@ def static(diameter, power, thrust, factor, density, altitude, temperature, pres
         raise InputError("static: give exactly one of --power or --thrust")
     if density is not None and (temperature is not None or pressure is not None or altitude != 0.0):
         raise InputError("--density: give either --density or --altitude/--temperature/--pressure, not both")
+    warning = None
     if density is None:
         density = _air(altitude, temperature, pressure, humidity)["density_kg_m3"]
+        warning = _pressure_warning(altitude, pressure)
     if thrust is not None:
         _check_disk_loading(thrust, disk_area_m2(diameter), diameter)
     out = static_rotor(diameter, density, factor, power_W=power, thrust_N=thrust)
-    out["warnings"] = []
+    out["warnings"] = [warning] if warning else []
     if as_json:
         click.echo(dumps(out))
     else:

@@ -14,6 +14,7 @@ from estimator.core.constants import (ATMOSPHERE_BOTTOM_GEOPOTENTIAL_M, CELSIUS_
                                       ISOTHERMAL_TOP_GEOPOTENTIAL_M, SEA_LEVEL_DENSITY_KG_M3,
                                       SEA_LEVEL_PRESSURE_PA, QNH_RANGE_PA,
                                       STATION_PRESSURE_ABOVE_STANDARD_MAX,
+                                      STATION_PRESSURE_ABOVE_STANDARD_TYPICAL,
                                       SEA_LEVEL_TEMPERATURE_K, STANDARD_GRAVITY_M_S2,
                                       TROPOPAUSE_GEOPOTENTIAL_M, TROPOSPHERE_LAPSE_K_M)
 from estimator.core.humid_air import humid_air_density_kg_m3, vapour_pressure_Pa
@@ -161,6 +162,42 @@ def station_pressure_problem(altitude_m, pressure_Pa):
                 "the standard atmosphere" % (p_std / 100.0))
     return (head + ": check the altitude and the pressure (the station pressure at the site, about "
             "%.0f hPa in the standard atmosphere), or leave the pressure out" % (p_std / 100.0))
+
+
+def station_pressure_warning(altitude_m, pressure_Pa):
+    """A warning for a station pressure above what weather usually gives at this altitude, but not
+    so far above that station_pressure_problem refuses it; else None.
+
+    Warned when the pressure exceeds the standard atmosphere's pressure at the geometric altitude
+    by more than STATION_PRESSURE_ABOVE_STANDARD_TYPICAL (3 %, weather's usual range, from memory)
+    and at most STATION_PRESSURE_ABOVE_STANDARD_MAX (8 %). When the pressure is also within that
+    usual range of the standard sea-level pressure, the likely slip is named: a sea-level pressure
+    (QNH, what weather reports give) entered for the site. The air is computed with the pressure as
+    given (a strong high can reach it); the warning says how much denser that makes it.
+    altitude_m: geometric altitude h [m]; pressure_Pa: the station pressure given [Pa], or None
+    when none was given. Returns a message (str) or None. Source: the ISO 2533 / ICAO Doc 7488
+    standard atmosphere (US Standard Atmosphere 1976 below 32 km; standard_atmosphere).
+    """
+    if pressure_Pa is None:
+        return None
+    try:
+        p_std = standard_atmosphere(altitude_m)[1]
+    except ValueError:
+        return None  # site_air refuses the altitude itself, naming it
+    excess = pressure_Pa / p_std - 1.0
+    if not STATION_PRESSURE_ABOVE_STANDARD_TYPICAL < excess <= STATION_PRESSURE_ABOVE_STANDARD_MAX:
+        return None
+    head = ("station pressure %.1f hPa at %.0f m is %.1f %% above the standard atmosphere's %.0f hPa there "
+            "(ISO 2533 / ICAO), more than weather usually gives (about %.0f %%)"
+            % (pressure_Pa / 100.0, altitude_m, 100.0 * excess, p_std / 100.0,
+               100.0 * STATION_PRESSURE_ABOVE_STANDARD_TYPICAL))
+    if abs(pressure_Pa / SEA_LEVEL_PRESSURE_PA - 1.0) <= STATION_PRESSURE_ABOVE_STANDARD_TYPICAL:
+        head += ": a sea-level pressure (QNH, what weather reports give) given for the site?"
+    else:
+        head += ": is it the station pressure at the site, and is the altitude right?"
+    return (head + " the air is computed with it as given, %.0f %% denser than at %.0f hPa: give the "
+            "station pressure, or leave the pressure out to use the standard atmosphere"
+            % (100.0 * excess, p_std / 100.0))
 
 
 def site_air(altitude_m, temperature_C=None, pressure_Pa=None, humidity_pct=0.0):

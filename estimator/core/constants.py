@@ -42,6 +42,11 @@ ATMOSPHERE_BOTTOM_GEOPOTENTIAL_M = -5000.0
 # 8 % covers both (common practice, from memory). A sea-level pressure (QNH) entered at 1000 m
 # is 13 % above the standard station pressure there, at 2000 m 27 %.
 STATION_PRESSURE_ABOVE_STANDARD_MAX = 0.08
+# Share above that standard pressure within which weather usually keeps a station pressure [-]:
+# about +-3 % (from memory; record highs near +7 %). Between this and the refusal above a pressure
+# is taken as given, with a warning: at a low site (200..700 m) it is most often a sea-level
+# pressure (QNH) entered as the station pressure, 2..8 % too high, and the density with it.
+STATION_PRESSURE_ABOVE_STANDARD_TYPICAL = 0.03
 # Sea-level pressures (QNH) weather reports give [Pa]: the range above, widened (from memory).
 QNH_RANGE_PA = (94000.0, 106000.0)
 
