@@ -11,7 +11,7 @@ from estimator.preflight.pack import pack_temperature_text
 from estimator.preflight.warnings import (ENDED_BY_WORDS, GIVEN3, REACHABLE_MARK, SIG3, _num, beside,
                                          cannot_hover_cause, current_judged, judged_thrust_to_weight,
                                          judged_thrust_to_weight_text, not_flyable_reasons,
-                                         resistance_text, thrust_to_weight_text)
+                                         resistance_text, slip_words, thrust_to_weight_text)
 from estimator.textwidth import fit_width
 from estimator.units import command_text, counted
 
@@ -207,9 +207,8 @@ def format_sheet(report, section5=None):
     lines.append("1. Will it hover?")
     suspect = report.get("suspect_keys") or []
     if suspect and report.get("can_hover"):  # a likely unit slip: no plain YES on a file that is likely wrong
-        lines.append("   CHECK THE FILE FIRST - %s %s like a unit or decimal slip (see 4.); the answers "
-                     "below are for the values as read" % (", ".join(suspect),
-                                                          "looks" if len(suspect) == 1 else "look"))
+        lines.append("   CHECK THE FILE FIRST - %s %s like %s (see 4.); the answers below are for the values "
+                     "as read" % (", ".join(suspect), "looks" if len(suspect) == 1 else "look", slip_words(suspect)))
     if report.get("can_hover"):
         why_not = not_flyable_reasons(report)
         below_cutoff = hover_below_cutoff(report)

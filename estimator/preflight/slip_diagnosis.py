@@ -47,6 +47,11 @@ ORDINARY_POWER_SHARE = 2.0 ** -1.5
 # racer that flies 4..5 min reads about 11 here, a real hover is about half of it), and the pack's
 # rating (max_discharge_C, when given) delivers thrust-to-weight 2 (2^1.5 the hover power, P ~ T^1.5).
 ORDINARY_HOVER_MIN = 8.0
+# A pack whose voltage turns the motors unloaded more than 1 / CELLS_SPEED_SHARE_MIN times the hover
+# speed (at TYPICAL_CT) is far above what the rotors need: thrust-to-weight about 44 at the no-load
+# speed (T ~ n^2), where the hottest racing quads reach about 10..15 (common practice, from memory);
+# generous, as TYPICAL_CT may be off by half. Points at the cell count (cells_slip).
+CELLS_SPEED_SHARE_MIN = 0.15
 # slips per key: (factor applied to the value as read, words); 1 g = 1e-3 kg, 1 mAh = 1e-3 Ah
 _SLIPS = {
     "$.mass_kg": ((1e-3, "the unit prefix: g, not kg"), (1e3, "the unit prefix: kg, not g"),
@@ -130,7 +135,7 @@ def ordinary_pack(vehicle, key, value):
     count = vehicle["rotors"]["count"]
     thrust = mass * STANDARD_GRAVITY_M_S2 / count
     hover_W = count * thrust ** 1.5 / math.sqrt(2.0 * RHO * disk_area_m2(diameter)) / FIGURE_OF_MERIT
-    volts = bat["cells"] * bat["nominal_cell_V"]
+    volts = (value if key == "$.battery.cells" else bat["cells"]) * bat["nominal_cell_V"]
     if 60.0 * capacity_Ah * volts / hover_W < ORDINARY_HOVER_MIN:
         return False
     return "max_discharge_C" not in bat or 2.0 ** 1.5 * hover_W / volts <= capacity_Ah * bat["max_discharge_C"]
@@ -188,8 +193,8 @@ def _judge(vehicle, key=None, value=None):
     diameter = value if key == "$.propeller.diameter_m" else vehicle["propeller"]["diameter_m"]
     bat = dict(vehicle["battery"])
     motor = dict(vehicle["motor"])
-    if key == "$.battery.capacity_Ah":
-        bat["capacity_Ah"] = value
+    if key in ("$.battery.capacity_Ah", "$.battery.cells"):
+        bat[key.rsplit(".", 1)[1]] = value
     if key == "$.motor.kv_rpm_per_V":
         motor["kv_rpm_per_V"] = value
     return _facts(mass, vehicle["rotors"]["count"], diameter, bat, motor)
@@ -243,6 +248,53 @@ def whole_vehicle_warning(vehicle, found):
     if found["others"]:
         text += "; less likely: " + ", ".join("%s %s" % o for o in found["others"][:2])
     return text
+
+
+def cells_slip(vehicle):
+    """The smaller cell counts that make the whole vehicle ordinary when its pack has too many cells,
+    or None (new-user trial 25, finding 2: 24 cells on a 350 g 3-inch quad were blamed on the
+    capacity, and the cell count was never named).
+
+    Judged only when the pack voltage is far above what the rotors need (the motor's no-load speed
+    Kv V more than 1 / CELLS_SPEED_SHARE_MIN times the hover speed at TYPICAL_CT), which no capacity
+    or mass explains, and the vehicle as read fails only checks the cell count enters (pack energy,
+    motor speed, motor power), with no single slip of another key explaining it (whole_vehicle_slip;
+    a capacity slip found there gives way: the voltage points at the cells). Every smaller cell count
+    the schema takes is tried; those that bring every check into its ordinary band with an ordinary
+    pack (_ordinary, ordinary_pack) and hover at least CELLS_SPEED_SHARE_MIN of the no-load speed are
+    kept. Returns a dict: counts ([int], ascending), failing ([text] of the checks the vehicle as read
+    fails), speed_share (hover speed over the no-load speed as read [-]), or None.
+    """
+    facts = _judge(vehicle)
+    speed_share = facts["motor speed"][0]
+    failing = {name: f for name, f in facts.items() if f[0] > f[2] or (f[1] > 0.0 and f[0] < f[1])}
+    if speed_share >= CELLS_SPEED_SHARE_MIN or not failing or set(failing) - {"pack energy", "motor speed", "motor power"}:
+        return None
+    other = whole_vehicle_slip(vehicle)
+    if other is not None and other["key"] != "$.battery.capacity_Ah":
+        return None
+    counts = [n for n in range(1, vehicle["battery"]["cells"]) if in_vehicle_schema("$.battery.cells", n)
+              and _penalty(_ordinary(_judge(vehicle, "$.battery.cells", n))) == 0.0
+              and _judge(vehicle, "$.battery.cells", n)["motor speed"][0] >= CELLS_SPEED_SHARE_MIN
+              and ordinary_pack(vehicle, "$.battery.cells", n)]
+    if not counts:
+        return None
+    return {"counts": counts, "failing": [f[3] for f in failing.values()], "speed_share": speed_share}
+
+
+def cells_warning(vehicle, found):
+    """The sheet's words for cells_slip's result (starts with the JSON path $.battery.cells)."""
+    bat, motor = vehicle["battery"], vehicle["motor"]
+    volts = bat["cells"] * bat["nominal_cell_V"]
+    fast = ("%g Kv on %s V turns about %s times the hover speed unloaded, a pack voltage far above what these "
+            "rotors need (ordinary vehicles: at most about %s times)"
+            % (motor["kv_rpm_per_V"], _n(volts), _n(1.0 / found["speed_share"]), _n(1.0 / CELLS_SPEED_SHARE_MIN)))
+    counts = found["counts"]
+    shown = "%d" % counts[0] if len(counts) == 1 else "%d..%d" % (counts[0], counts[-1])
+    return ("$.battery.cells: %d cells (%s V nominal) do not fit the rest of the vehicle (%s): with %s cells in "
+            "series, and the capacity and the rest as read, the pack energy, motor speed and motor power all fall "
+            "in their ordinary ranges: check the cell count first (the cells in series, the S of the pack: 4 for "
+            "a 4S pack)" % (bat["cells"], _n(volts), "; ".join(found["failing"] + [fast]), shown))
 
 
 def pack_share_warning(vehicle):

@@ -14,8 +14,8 @@ import re
 
 from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.core.momentum import disk_area_m2, figure_of_merit
-from estimator.preflight.slip_diagnosis import (ordinary_pack, pack_share_warning, too_heavy_warning,
-                                               whole_vehicle_slip, whole_vehicle_warning)
+from estimator.preflight.slip_diagnosis import (cells_slip, cells_warning, ordinary_pack, pack_share_warning,
+                                               too_heavy_warning, whole_vehicle_slip, whole_vehicle_warning)
 from estimator.units import INCH_M, counted
 from estimator.vehicle import given_text
 # the typical ranges live with the vehicle file's unit reading (one home)
@@ -175,7 +175,10 @@ def suspicious_values(vehicle):
                           100 * share_lo, 100 * share_hi, specific_Wh_kg, best_Wh_kg, chemistry, usual[0],
                           usual[1], counted(bat["cells"], "cell")))
     found = whole_vehicle_slip(vehicle)
-    if found is not None:  # one key explains the whole vehicle: it goes first, the pairwise checks go
+    cells = cells_slip(vehicle)  # the cell count, which no unit or decimal slip of another key explains
+    if cells is not None:  # it goes first, alone; the resistance per cell is judged on it too
+        out, capacity_odd = [cells_warning(vehicle, cells)], True
+    elif found is not None:  # one key explains the whole vehicle: it goes first, the pairwise checks go
         out = [whole_vehicle_warning(vehicle, found)]
         capacity_odd = found["key"] == "$.battery.capacity_Ah"
     else:

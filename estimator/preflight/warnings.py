@@ -138,9 +138,15 @@ def cannot_hover_cause(report, command_unit="-"):
     keys = report.get("suspect_keys") or []
     if keys:
         text = text.replace("cannot hover", "cannot hover with the values as read (first check %s: %s "
-                            "like a unit or decimal slip, see below)"
-                            % (", ".join(keys), "it looks" if len(keys) == 1 else "they look"), 1)
+                            "like %s, see below)"
+                            % (", ".join(keys), "it looks" if len(keys) == 1 else "they look", slip_words(keys)), 1)
     return text
+
+
+def slip_words(keys):
+    """What the suspect keys (report key suspect_keys) look like: a cell count alone, a typing slip
+    (preflight.slip_diagnosis.cells_slip: no unit or decimal point to slip); else a unit or decimal slip."""
+    return "a typing slip" if list(keys) == ["$.battery.cells"] else "a unit or decimal slip"
 
 
 def _cannot_hover_cause(report, command_unit="-"):
