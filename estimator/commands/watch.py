@@ -253,6 +253,18 @@ def _bundle_files():
 firmware.help = firmware.help.replace("{files}", _bundle_files())
 
 
+def replay_headline(flight_file, out):
+    """The replay's first line: the counts, led by NOT JUDGED when the watch never learned its
+    baseline (new-user trial 25, finding 3: '1 sample, 0 alarms, 0 events' read as all clear), in
+    the words of the reason's head (replay.learning_note: 'too short to learn', 'learning did not
+    complete') and its 'no verdict'."""
+    counts = "%s, %s, %s" % (counted(out["samples"], "sample"), counted(out["alarms"], "alarm"),
+                             counted(len(out["events"]), "event"))
+    if out["learned"]:
+        return "%s: %s" % (flight_file, counts)
+    return "%s: NOT JUDGED, %s (no verdict): %s" % (flight_file, out["note"].split(":", 1)[0], counts)
+
+
 @click.command()
 @click.argument("flight_file", type=FILE_NAME, metavar="FLIGHT.csv")
 @click.option("--params", "params_file", type=FILE_NAME, required=True, metavar="PARAMS.json",
@@ -297,12 +309,13 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
         plot_replay(plot_file, trace, out["events"], title=flight_file)
         out["plot"] = plot_file
         out["replaced"] = [replaced] if replaced else []
+    headline = replay_headline(flight_file, out)
     if as_json:
         # the action after an alarm beside, not among, the watch's cautions (those are the same for every log)
-        click.echo(dumps(dict(out, cautions=list(WATCH_CAUTIONS), **({"after_alarm": ALARM_ACTION} if out["alarms"] else {}))))
+        click.echo(dumps(dict(dict(headline=headline, judged=out["learned"]), **out, cautions=list(WATCH_CAUTIONS),
+                              **({"after_alarm": ALARM_ACTION} if out["alarms"] else {}))))
         return
-    lines = ["%s: %s, %s, %s" % (flight_file, counted(out["samples"], "sample"), counted(out["alarms"], "alarm"),
-                                           counted(len(out["events"]), "event"))]
+    lines = [headline]
     if out.get("dropped_rows"):
         lines.append("  dropped %s whose time went back or repeated" % counted(out["dropped_rows"], "row"))
     if out.get("dropped_missing_rows"):
