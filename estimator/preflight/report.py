@@ -15,6 +15,8 @@ from estimator.preflight.pack import pack_in_the_air, pack_keys
 from estimator.preflight.low_reynolds import (endurance_lead, fallback_figure_of_merit,
                                               described_ducted, hover_warning as low_reynolds_warning)
 from estimator.preflight.propeller_estimate import estimated_propeller, low_reynolds_propeller
+from estimator.errors import InputError
+from estimator.preflight.route_check import route_disagreement
 from estimator.preflight.unit_checks import params_propeller_warning, slip_keys, suspicious_values
 from estimator.vehicle import assumed_warnings, given_text, vehicle_air
 from estimator.preflight.warnings import (HOVER_COMMAND_LIMIT,  # noqa: F401 (preflight.plots reads it here)
@@ -208,8 +210,13 @@ def _fitted_report(vehicle, params, checks):
 
     report = hover_from_params(vehicle, params)
     report["suspect_keys"] = slip_keys(checks)
-    other = params_propeller_warning(vehicle, params)
-    report["warnings"] = checks + ([other] if other else []) + [
+    try:
+        own = _report(vehicle)                  # the file's own motor and propeller, for route_check
+    except InputError:
+        own = None
+    other = [w for w in (params_propeller_warning(vehicle, params),
+                         route_disagreement(own, report, vehicle["motor"]["kv_rpm_per_V"])) if w]
+    report["warnings"] = checks + other + [
         w for w in report.get("warnings", []) if w not in checks]
     report.setdefault("cautions", list(CAUTIONS))
     return report
