@@ -280,6 +280,10 @@ def cases(base):
             add(("%s: %s" % (label, what), [a.replace("{o}", path) for a in argv], extra))
     add(("firmware --out: the folder of its input", ["firmware", "inside/params.json", "--out", "inside"],
          {"inside/params.json": "COPY:params.json"}))
+    # a map whose scale misses its unit's conversion (1000 on a thrust in N labelled g: 1 N is 101.97 gf)
+    add(("export --map: a thrust in N scaled as grams of mass", ["export", "params.json", "--map", "scaled.json"],
+         {"scaled.json": json.dumps({"schema_version": 1, "model": "liftcal.map/1", "settings": [
+             {"name": "my.thr", "unit": "g", "source": "thrust_curve.thrust_max_N", "scale": 1000}]}).encode()}))
     # compare and hover --payload: their own options and outputs
     for args in (["hover", "vehicle.json", "--payload", "nan"], ["hover", "vehicle.json", "--payload", "0..1e999kg"],
                  ["hover", "vehicle.json", "--payload", "-1..2kg"], ["hover", "vehicle.json", "--payload", "2..0kg"],

@@ -108,6 +108,13 @@ def unit_factors(kind, names):
     (estimator.bench.columns)."""
     return {name: _UNITS[kind][name] for name in names}
 
+
+def unit_conversion(kind, unit):
+    """(scale, offset) taking a value in ``unit`` (any spelling unit_spelling knows) of ``kind``
+    to SI (SI = value * scale + offset), or None for a unit the table of that kind lacks."""
+    return _UNITS[kind].get(unit_spelling(unit)) if unit else None
+
+
 _SIZE = re.compile(r"^\s*((?:\d+\.?\d*|\.\d+))\s*[xX*]\s*((?:\d+\.?\d*|\.\d+))\s*([A-Za-z]*)\s*$")
 # a propeller size without a unit is in inches: the trade lists propellers that way (10x4.5)
 SIZE_DEFAULT_UNIT = "in"

@@ -13,8 +13,10 @@ import math
 import os
 import re
 
+from estimator.core.constants import STANDARD_GRAVITY_M_S2
 from estimator.errors import InputError
 from estimator.jsonio import load_json, validate
+from estimator.units import unit_conversion, unit_spelling
 
 MAP_SCHEMA = "map.schema.json"
 EXAMPLE_MAP = os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "data", "example-map.json")
@@ -28,6 +30,10 @@ def load_map(path):
         if "min" in entry and "max" in entry and entry["min"] > entry["max"]:
             raise InputError("%s: $.settings[%d]: min %g is above max %g"
                              % (path, i, entry["min"], entry["max"]))
+    for i, entry in enumerate(mapping["settings"]):
+        wrong = scale_mismatch(entry)
+        if wrong:
+            raise InputError("%s: $.settings[%d] (%s): %s" % (path, i, entry["name"], wrong))
     names = [e["name"] for e in mapping["settings"]]
     dup = sorted({n for n in names if names.count(n) > 1})
     if dup:
@@ -61,6 +67,63 @@ def source_unit(source):
             return unit
     m = re.search(r"_W_per_N(\d*)$", key)
     return "W/N^" + m.group(1) if m and m.group(1) else ("W/N" if m else "-")
+
+
+# the kind of quantity (estimator.units' tables) of each source unit a key's suffix names
+# (source_unit); a compound key (thrust_per_V2_N, slope_per_N) is in another unit than its
+# suffix, so a map entry taking one is not judged
+_SOURCE_KINDS = {"N": "force", "V": "voltage", "W": "power", "A": "current", "m": "length",
+                 "Pa": "pressure", "s": "time", "kg/m^3": "density"}
+# a map's scale within this share of its unit's conversion is that conversion, written to three
+# or more significant digits (101.97 or 102 for 101.9716 gf per N) [-]
+SCALE_TOLERANCE = 0.005
+
+
+def _near(x, target):
+    return abs(x / target - 1.0) <= SCALE_TOLERANCE
+
+
+def _slip(given, needed, kind, frm, to):
+    """The likely slip behind a scale ``given`` where ``needed`` converts frm to to, in words."""
+    ratio = given / needed
+    if ratio < 0.0:
+        return "a negative scale turns the value's sign"
+    if kind == "force" and _near(ratio, STANDARD_GRAVITY_M_S2):
+        return ("%g is %.4g x that, standard gravity (%g m/s^2) left out: the value in %s converted as if it "
+                "were a mass in kg" % (given, ratio, STANDARD_GRAVITY_M_S2, frm))
+    if kind == "force" and _near(ratio, 1.0 / STANDARD_GRAVITY_M_S2):
+        return "%g is that divided by standard gravity (%g m/s^2) once too often" % (given, STANDARD_GRAVITY_M_S2)
+    if given == 1.0:
+        return "no scale given (1): the value would stay in %s under the label %s" % (frm, to)
+    if _near(given * needed, 1.0):
+        return "%g is the conversion turned upside down (from %s to %s)" % (given, to, frm)
+    power = round(math.log10(ratio))
+    if power and _near(ratio, 10.0 ** power):
+        return "%g is %s that: a unit prefix slip (milli, kilo)" % (
+            given, "%g x" % 10.0 ** power if power > 0 else "1/%g of" % 10.0 ** -power)
+    return "no common slip gives %g" % given
+
+
+def scale_mismatch(entry):
+    """None, or why a map entry's scale does not convert its source to the unit it names (a unit
+    liftcal knows for the source's kind of quantity, estimator.units: 'g' on a thrust in N is gram-force,
+    1 N = 1 / (9.80665e-3 N per gf) = 101.97 gf, standard gravity exact by CGPM 1901) within
+    SCALE_TOLERANCE: the scale given, the scale the unit needs and the likely slip. An entry
+    without a unit, or with one liftcal does not know for that kind, is not judged."""
+    key = [part for part in entry["source"].split(".") if not part.isdigit()][-1]
+    frm = source_unit(entry["source"])
+    kind = _SOURCE_KINDS.get(frm)
+    factor = unit_conversion(kind, entry.get("unit", "")) if kind and "_per_" not in key else None
+    if factor is None or factor[1] != 0.0:
+        return None
+    needed, given = 1.0 / factor[0], entry.get("scale", 1.0)
+    if _near(given, needed):
+        return None
+    to = unit_spelling(entry["unit"])
+    named = "%s (gram-force)" % to if (kind, to) == ("force", "g") else to
+    return ("scale %g does not convert %s from %s to %s: that unit needs %.6g (1 %s = %.6g %s); %s; "
+            "fix the scale or the unit" % (given, entry["source"], frm, named, needed, frm, needed, to,
+                                          _slip(given, needed, kind, frm, to)))
 
 
 def number_paths(node, prefix=""):
