@@ -284,6 +284,12 @@ def cases(base):
     add(("export --map: a thrust in N scaled as grams of mass", ["export", "params.json", "--map", "scaled.json"],
          {"scaled.json": json.dumps({"schema_version": 1, "model": "liftcal.map/1", "settings": [
              {"name": "my.thr", "unit": "g", "source": "thrust_curve.thrust_max_N", "scale": 1000}]}).encode()}))
+    # a set liftcal wrote (sealed), its hover command then set by hand outside the fit's interval
+    from estimator.seal import seal_text
+    edited = json.loads(seal_text(base["params.json"].decode()))
+    edited["hover"]["hover_command"] = 0.45
+    for args in (["check", "edited.json"], ["export", "edited.json"], ["hover", "vehicle.json", "--params", "edited.json"]):
+        add(("%s: an edited set at odds with itself" % args[0], args, {"edited.json": json.dumps(edited).encode()}))
     # compare and hover --payload: their own options and outputs
     for args in (["hover", "vehicle.json", "--payload", "nan"], ["hover", "vehicle.json", "--payload", "0..1e999kg"],
                  ["hover", "vehicle.json", "--payload", "-1..2kg"], ["hover", "vehicle.json", "--payload", "2..0kg"],

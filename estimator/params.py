@@ -17,6 +17,7 @@ from estimator.core.momentum import disk_area_m2
 from estimator.core.power_model import KEYS as POWER_KEYS, rotor_static_factor
 from estimator.jsonio import load_json, validate, write_json_atomic
 from estimator.units import INCH_M, beside
+from estimator.edited_set import FIT_OR_EDIT, FROM_EDITED, edited_set_note, edited_set_warning  # noqa: F401 (old home)
 
 MODEL = "liftcal.rotor/1"
 POWER_FORM = "p0+p_h*T^0.5+p_1*T+p_15*T^1.5+p_2*T^2"
@@ -285,10 +286,11 @@ def check_vehicle_match(params, vehicle, params_source, vehicle_source=None, jso
                beside(empty / lo, VOLTAGE_BELOW_SWEEP_MIN), VOLTAGE_BELOW_SWEEP_MIN))
 
 
-def check_params(document, source):
+def check_params(document, source, edited_hover=False):
     """Validate against the schema, then the cross-key rules a schema cannot state.
 
-    Raises InputError naming ``source`` and the JSON path; returns the document.
+    Raises InputError naming ``source`` and the JSON path; returns the document. edited_hover:
+    a hover command outside its interval passes (a person's edit, taken with --from-edited).
     """
     validate(document, SCHEMA, source)
     c = document["thrust_curve"]
@@ -302,7 +304,7 @@ def check_params(document, source):
             raise InputError("%s: $.provenance.%s: %d differs from $.fit_quality.%s %d"
                              % (source, key, p[key], key, q[key]))
     h = document.get("hover")
-    if h and h.get("hover_command") is not None and h.get("hover_command_interval_95"):
+    if h and h.get("hover_command") is not None and h.get("hover_command_interval_95") and not edited_hover:
         lo, hi = h["hover_command_interval_95"]
         if not lo <= h["hover_command"] <= hi:
             raise InputError("%s: $.hover.hover_command_interval_95: [%g, %g] does not contain "
@@ -325,7 +327,7 @@ def _check_curve_credible(document, source):
     t_med = sf.get("thrust_at_value_N")
     t_max = c["thrust_max_N"]
     se = document["standard_errors"]["thrust_max_N"]
-    end = "a fit that broke down or an edited file: fit the sweep again"
+    end = FIT_OR_EDIT
     if t_med is not None and not t_max >= t_med:
         raise InputError("%s: $.thrust_curve.thrust_max_N: full-command thrust %.4g N is below the %.4g N the "
                          "bench measured mid-sweep ($.static_factor.thrust_at_value_N): %s" % (source, t_max, t_med, end))
@@ -341,47 +343,28 @@ def _check_curve_credible(document, source):
                          "voltage): %s" % (source, a, t_med, v_max, end))
 
 
-def load_params(path):
+def load_params(path, from_edited=None):
     """Read and validate a parameter-set file; returns the dict (without the file's content
-    seal, estimator.seal: a property of the file, not of the set) or raises InputError."""
+    seal, estimator.seal: a property of the file, not of the set) or raises InputError.
+
+    A set edited since liftcal wrote it (seal broken) that fails its checks is refused with the
+    edit named first (estimator.edited_set.edited_refusal); from_edited: None for a command
+    without --from-edited, else whether it was given: given, it takes a hover command edited
+    outside the fit's interval (the one inconsistency that option takes, edited_set's docstring)."""
+    from estimator.edited_set import HOVER_EDIT_PATH, edited_refusal, is_edited
     from estimator.seal import SEAL_KEY
 
-    params = check_params(load_json(path), path)
+    document = load_json(path)
+    try:
+        params = check_params(document, path)
+    except InputError as exc:
+        if not is_edited(path):
+            raise
+        if not (from_edited and str(exc).startswith("%s: %s" % (path, HOVER_EDIT_PATH))):
+            raise edited_refusal(path, str(exc), from_edited) from None
+        params = check_params(document, path, edited_hover=True)
     params.pop(SEAL_KEY, None)
     return params
-
-
-# the option that lets firmware and export use a set edited since liftcal wrote it
-FROM_EDITED = "--from-edited"
-
-
-def edited_set_warning(path, allowed, makes):
-    """None for a parameter set whose content seal is intact (or absent: an older liftcal);
-    for one edited since liftcal wrote it (seal broken, estimator.seal): InputError unless
-    ``allowed`` (FROM_EDITED given), else the warning line to print first. makes: what the
-    command writes from it ("the board bundle", "the settings"). check and hover --params
-    say the same of an edited set; the bundle and settings fly, so they refuse by default."""
-    from estimator.outputs import seal_of
-
-    if seal_of(path) != "broken":
-        return None
-    words = ("%s was EDITED since liftcal wrote it (its content seal no longer matches)" % path)
-    if not allowed:
-        raise InputError("%s: %s would carry values no fit gave; refit the bench sweep, or add %s "
-                         "to use the edited values" % (words, makes, FROM_EDITED))
-    return "%s: %s carries the edited values, not the fit's (%s)" % (words, makes, FROM_EDITED)
-
-
-def edited_set_note(path, use):
-    """None, or for a parameter set edited since liftcal wrote it (seal broken) the warning of a
-    command that only reads it (use: what it does with it: "this replay judges the log"), as hover
-    --params gives one (new-user trial 14, finding 4: replay used an edited set without a word)."""
-    from estimator.outputs import seal_of
-
-    if seal_of(path) != "broken":
-        return None
-    return ("%s was edited since liftcal wrote it (its content seal no longer matches): %s by the edited "
-            "values, not the fit's; fit the sweep again rather than editing the set" % (path, use))
 
 
 def write_params(path, params):

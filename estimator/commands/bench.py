@@ -326,10 +326,10 @@ def export(params_file, map_file, out_file, from_edited, as_json):
     if out_file is not None:
         check_output(out_file, "settings", inputs=(params_file, map_file))
         replaced = replaced_line(out_file, "settings")
-    params = load_params(params_file)
+    params = load_params(params_file, from_edited)
     from estimator.params import edited_set_warning
 
-    edited = edited_set_warning(params_file, from_edited, "the settings file")
+    edited = edited_set_warning(params_file, from_edited, "the settings file", params)
     path = EXAMPLE_MAP if map_file is None else map_file
     mapping = load_map(path)
     settings = export_settings(params, mapping, shown(path) if map_file is not None else

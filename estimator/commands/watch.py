@@ -23,10 +23,10 @@ LAG_MS_BOUNDS = (0.0, 500.0, "a rotor's spin-up plus a current sensor's response
                              "multirotor, about 0.3 s on the largest rotors; common practice, from memory")
 
 
-def _load(params_file, vehicle_file):
+def _load(params_file, vehicle_file, from_edited=None):
     from estimator.params import check_vehicle_match, load_params
 
-    params = load_params(params_file)
+    params = load_params(params_file, from_edited)
     vehicle = None
     if vehicle_file is not None:
         from estimator.vehicle import load_vehicle
@@ -203,8 +203,8 @@ def firmware(params_file, out_dir, vehicle_file, lag_ms, from_edited, as_json):
 
     state = check_folder(out_dir, "bundle", inputs=(params_file, vehicle_file))
     old_source = _bundle_source(out_dir) if state == "own" else ""
-    params, vehicle = _load(params_file, vehicle_file)
-    edited = edited_set_warning(params_file, from_edited, "the board bundle")
+    params, vehicle = _load(params_file, vehicle_file, from_edited)
+    edited = edited_set_warning(params_file, from_edited, "the board bundle", params)
     options = watch_options(params, vehicle, lag_ms, hover_needed_by=(vehicle_file, params_file))
     out = write_bundle(params, out_dir, vehicle=vehicle, source=params_file, options=options,
                        edited=edited, source_path=params_file)
