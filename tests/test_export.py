@@ -124,3 +124,37 @@ def test_source_units_come_from_key_suffixes():
     assert source_unit("bench_air.density_kg_m3") == "kg/m^3"
     assert source_unit("hover.hover_command_interval_95.0") == "-"
     assert source_unit("thrust_curve.quadratic_share") == "-"
+
+
+def test_compound_key_units_read_as_their_quotient():
+    # the naming rule (DEVELOPERS.md glossary and parameter-set layout): slope_per_N is 1/N,
+    # linear_W_per_N W/N, sqrt_W_per_N0_5 W/N^0.5, thrust_per_V2_N (T = a s^2) N/V^2,
+    # speed_current_A_per_V A/V; a key ending _per_N was shown as "N"
+    from estimator.bench.export import source_unit
+    assert source_unit("static_factor.slope_per_N") == "1/N"
+    assert source_unit("standard_errors.slope_per_N") == "1/N"
+    assert source_unit("power_model.linear_W_per_N") == "W/N"
+    assert source_unit("power_model.sqrt_W_per_N0_5") == "W/N^0.5"
+    assert source_unit("power_model.induced_W_per_N1_5") == "W/N^1.5"
+    assert source_unit("power_model.copper_W_per_N2") == "W/N^2"
+    assert source_unit("motor_model.thrust_per_V2_N") == "N/V^2"
+    assert source_unit("motor_model.current_per_V2_A") == "A/V^2"
+    assert source_unit("motor_model.speed_current_A_per_V") == "A/V"
+    assert source_unit("motor_model.resistance_ohm") == "ohm"
+    assert source_unit("vehicle.mass_kg") == "kg"
+    assert source_unit("hover.flight_time_min") == "min"
+    # per rotor is not a unit; a command's _min is its minimum, not minutes
+    assert source_unit("hover.thrust_per_rotor_N") == "N"
+    assert source_unit("thrust_curve.command_min") == "-"
+    assert source_unit("thrust_curve.command_swept_min") == "-"
+
+
+def test_export_line_shows_per_N_unit(tmp_path, capsys):
+    # what the builder saw: "<- static_factor.slope_per_N = -0.000... N"
+    path = _map(tmp_path, [{"name": "K_SLOPE", "source": "static_factor.slope_per_N", "unit": "1/N"}])
+    with pytest.raises(SystemExit) as exc:
+        main(["export", WITH_HOVER, "--map", path])
+    out, _ = capsys.readouterr()
+    assert exc.value.code == 0
+    line = [ln for ln in out.splitlines() if "slope_per_N =" in ln][0]
+    assert line.rstrip().endswith(" 1/N"), line

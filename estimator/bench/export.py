@@ -54,19 +54,36 @@ def lookup(params, source):
     return node
 
 
-# unit of a parameter-set key from its suffix (the project's naming rule: names carry units)
-_SUFFIX_UNITS = (("_kg_m3", "kg/m^3"), ("_N", "N"), ("_V", "V"), ("_W", "W"), ("_A", "A"),
-                 ("_m", "m"), ("_Pa", "Pa"), ("_s", "s"), ("_per_N", "1/N"))
+# unit of a parameter-set key from its suffix (the project's naming rule: names carry units);
+# a compound key names a quotient: linear_W_per_N W/N, sqrt_W_per_N0_5 W/N^0.5, slope_per_N 1/N,
+# thrust_per_V2_N N/V^2 (a in T = a s^2); "per rotor" is no unit, nor a command's "_min"
+_UNIT = r"(kg_m3|N|V|W|A|m|Pa|s|kg|ohm)"
+_POWER = r"(\d+(?:_\d+)?)?"
+_UNIT_SPELLING = {"kg_m3": "kg/m^3"}
+
+
+def _unit_power(unit, power):
+    """A unit to a power written in a key (N, "0_5" -> N^0.5), as text."""
+    unit = _UNIT_SPELLING.get(unit, unit)
+    return unit + "^" + power.replace("_", ".") if power and power != "1" else unit
 
 
 def source_unit(source):
     """Unit of the number at a dotted parameter-set path, read from its key's suffix ("-" if none)."""
     key = [part for part in source.split(".") if not part.isdigit()][-1]
-    for suffix, unit in _SUFFIX_UNITS:
-        if key.endswith(suffix):
-            return unit
-    m = re.search(r"_W_per_N(\d*)$", key)
-    return "W/N^" + m.group(1) if m and m.group(1) else ("W/N" if m else "-")
+    m = re.search(r"_%s_per_%s%s$" % (_UNIT, _UNIT, _POWER), key)          # linear_W_per_N
+    if m:
+        return "%s/%s" % (_UNIT_SPELLING.get(m.group(1), m.group(1)), _unit_power(m.group(2), m.group(3)))
+    m = re.search(r"_per_%s%s_%s$" % (_UNIT, _POWER, _UNIT), key)          # thrust_per_V2_N
+    if m:
+        return "%s/%s" % (_UNIT_SPELLING.get(m.group(3), m.group(3)), _unit_power(m.group(1), m.group(2)))
+    m = re.search(r"(?:^|_)per_%s%s$" % (_UNIT, _POWER), key)              # slope_per_N
+    if m:
+        return "1/" + _unit_power(m.group(1), m.group(2))
+    if "time" in key and key.endswith("_min"):                            # flight_time_min
+        return "min"
+    m = re.search(r"_%s$" % _UNIT, key)
+    return _UNIT_SPELLING.get(m.group(1), m.group(1)) if m else "-"
 
 
 # the kind of quantity (estimator.units' tables) of each source unit a key's suffix names
