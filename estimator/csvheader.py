@@ -59,16 +59,25 @@ def column_for(name, known):
     return close[0] if close else None
 
 
+# a mass unit on a force column: a load cell's display in kg shows the weight of that mass, so
+# the numbers are in kgf (new-user trial 26: thrust[kg] was refused without a word why)
+WEIGHT_OF_MASS = {"kg": "kgf", "lb": "lbf"}
+
+
 def _unit_for(unit, table):
     """The unit of ``table`` that ``unit`` (as written) means, or None: its spelling
-    (units.unit_spelling), then the same letters in another case (RPM -> rpm)."""
+    (units.unit_spelling), then the same letters in another case (RPM -> rpm), then the
+    weight of a mass unit (kg -> kgf, WEIGHT_OF_MASS)."""
     if unit is None:
         return None
     unit = unit_spelling(unit)
     if unit in table:
         return unit
     same = [u for u in table if u.lower() == unit.lower()]
-    return same[0] if len(same) == 1 else None
+    if len(same) == 1:
+        return same[0]
+    weight = WEIGHT_OF_MASS.get(unit.lower())
+    return weight if weight in table else None
 
 
 def _cell_hint(target, unit, table):
@@ -142,9 +151,11 @@ def parse_header(path, head, columns, optional=(), refuse=None):
         ours = unit_spelling(unit)
         if ours not in tables[name]:
             near = _unit_for(unit, tables[name])
+            mass = " (%s is a mass: a reading in %s is its weight in %s, the same numbers)" % (ours, ours, near) \
+                if near and near == WEIGHT_OF_MASS.get(ours.lower()) else ""
             problems.append("%s: unit %s of column %r is not one of %s%s"
                             % (where, shorten(unit.strip()), name, ", ".join("[%s]" % u for u in tables[name]),
-                               "; did you mean %s[%s]?" % (name, near) if near else ""))
+                               "; did you mean %s[%s]?%s" % (name, near, mass) if near else ""))
         found[name] = (col - 1, ours)
     if refuse is not None:
         message = refuse([name for _, _, name, _ in cells if name is not None])
