@@ -5,6 +5,9 @@ typical mass, so 240 "kg" got "240 lb = 108.9 kg" even on 3-inch propellers (new
 finding 4). Here the slip is the one that gives an ordinary hover disk loading m g / (N A) on the
 file's own propellers (vehicle_units.DISK_LOADING_TYPICAL_N_M2, the band likely_unit judges a
 bare mass by): 240 g on four 3-inch propellers, 240 lb on eight 30-inch ones.
+
+A cell voltage above the schema is judged by the pack too (cell_voltage_hint): "full_cell_V": 25.2
+on 6 cells is the pack's 6 x 4.2 V, not 25.2 mV (new-user trial 26).
 """
 
 import math
@@ -63,3 +66,35 @@ def mass_hint(message, document):
     unit, loading, kg = fits[0]
     return "%s; given in %s instead of kg? %g %s = %.4g kg, an ordinary hover disk loading (%.3g N/m^2) on its " \
         "propellers" % (message[:hint.start()], unit, value, unit, kg, loading)
+
+
+_CELL_MESSAGE = re.compile(r": \$\.battery\.((?:full|nominal|empty|cutoff)_cell)(?:_V)?: ")
+_MILLIVOLT_HINT = re.compile(r"; given in mV instead of V\? [^;]*$")
+# the lowest voltage a cell of a common chemistry shows in use: a nickel cell's end of discharge,
+# about 1.0 V (from memory; a lithium cell's is 2.5..3.5 V) [V]
+CELL_V_LOWEST = 1.0
+
+
+def cell_voltage_hint(message, document):
+    """A schema message about a cell voltage ($.battery.full_cell_V, ... as written) whose
+    millivolt hint is replaced by the pack's voltage per cell when that lies within CELL_V_LOWEST
+    and the schema (25.2 V / 6 cells = 4.2 V), or dropped when its millivolts are below
+    CELL_V_LOWEST (no cell's voltage). Unchanged otherwise. document: the normalised vehicle."""
+    m, hint = _CELL_MESSAGE.search(message), _MILLIVOLT_HINT.search(message)
+    battery = document.get("battery") if isinstance(document, dict) else None
+    if m is None or hint is None or not isinstance(battery, dict):
+        return message
+    key, value, cells = m.group(1) + "_V", battery.get(m.group(1) + "_V"), battery.get("cells")
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return message
+    if isinstance(cells, int) and not isinstance(cells, bool) and cells > 1 \
+            and value / cells >= CELL_V_LOWEST and in_vehicle_schema("$.battery." + key, value / cells):
+        return "%s; the whole pack's voltage? %s is one cell's: %g V / %d cells = %.3g V" % (
+            message[:hint.start()], key, value, cells, value / cells)
+    return message[:hint.start()] if value * 1e-3 < CELL_V_LOWEST else message
+
+
+def slip_hints(message, document):
+    """A vehicle schema message with its unit-slip hint judged by the rest of the vehicle: the
+    mass (mass_hint), then a cell voltage (cell_voltage_hint)."""
+    return cell_voltage_hint(mass_hint(message, document), document)

@@ -16,7 +16,7 @@ import re
 from estimator.core.atmosphere import station_pressure_warning
 from estimator.errors import InputError
 from estimator.jsonio import load_json, load_schema, unit_slip, validate, within
-from estimator.mass_slip import mass_hint
+from estimator.mass_slip import slip_hints
 from estimator.units import INCH_M, altitude_feet_note, humidity_fraction_note
 from estimator.vehicle_units import (BARE_NUMBER as _BARE_NUMBER, UNIT_KEYS as _UNIT_KEYS, cutoff_above_nominal,
                                      normalise, propeller_notes, written_unit_slip)  # noqa: F401 (normalise: API)
@@ -155,7 +155,7 @@ def check_vehicle(document, source):
     try:
         validate(document, SCHEMA, source, _UNIT_KEYS)
     except InputError as exc:  # name the key as the file wrote it
-        raise InputError(mass_hint(_schema_hint(_as_written(str(exc), given), document), document)) from None
+        raise InputError(slip_hints(_schema_hint(_as_written(str(exc), given), document), document)) from None
     vehicle = copy.deepcopy(document)
     _check_physics(vehicle, source)
     assumed = propeller_notes(document, given)
