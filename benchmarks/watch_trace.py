@@ -27,6 +27,7 @@ if os.environ.get("LIFTCAL_TRACE_KERNEL"):           # another kernel file to tr
     _spec.loader.exec_module(_mod)
     Watch = _mod.Watch  # noqa: F811
 from estimator.demo import flight_sim, sim_vehicles
+from estimator.core.watch_layout import INDEX
 from estimator.watch.config import ROTOR_LAG_S_PER_M, as_tuple, make_config
 
 NAMES = block_state_names()      # the block state's names, read from the kernel's own unpacking in _block
@@ -66,6 +67,13 @@ def flight(vehicle, j, k, rate, kind, value, n_clean=20, duration_s=600.0):
     return cfg, fl, at[n], end
 
 
+def config_line(cfg):
+    """The CONFIG values the trace's columns depend on, read by name (watch_layout.INDEX)."""
+    return "floor %d permille, k_max %d permille, settle %d ms, block %d ms" % (
+        cfg[INDEX["noise_floor_permille"]], cfg[INDEX["cusum_k_max_permille"]], cfg[INDEX["settle_ms"]],
+        cfg[INDEX["block_ms"]])
+
+
 def run(cfg, fl):
     w = Traced(cfg)
     dts, u, mv, ma = ws.kernel_inputs(fl)
@@ -83,9 +91,8 @@ def main():
     cfg, fl, onset, end = flight(vehicle, j, k, rate, kind, value)
     rows = run(cfg, fl)
     t0 = ws.TAKEOFF_S
-    print("%s jit idx %d lag idx %d rate %s %s %+.2f: onset %.1f s (flight time %.1f s), end %.1f s; "
-          "floor %d permille, k_max %d, settle %d ms"
-          % (vehicle, j, k, a[3], kind, value, onset, onset - t0, end, cfg[131], cfg[144], cfg[143]))
+    print("%s jit idx %d lag idx %d rate %s %s %+.2f: onset %.1f s (flight time %.1f s), end %.1f s; %s"
+          % (vehicle, j, k, a[3], kind, value, onset, onset - t0, end, config_line(cfg)))
     first = [rw for rw in rows if rw["learning"] == 0]
     if first:
         rw = first[0]
