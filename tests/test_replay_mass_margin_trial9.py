@@ -99,3 +99,17 @@ def test_a_negative_integer_variance_gives_no_margin_not_a_crash():
     cfg = {"mass_z2_q8": 2400, "mass_limit_permille": 80}
     check = mass_margin((-300, -1, 40), 0, cfg)
     assert check["margin_permille"] == 0.0 and check["alarm_permille"] == 80
+
+
+def test_a_first_window_above_the_limit_says_no_second_window_came():
+    # new-user trial 26: the line ended "...: the next one is" although the log had ended, so no
+    # next window came; it now says the log has no second window and what would get one
+    from estimator.watch.replay import mass_words
+
+    mass = {"judged": True, "implied_kg": 2.31, "at_s": 40.0, "share": 0.1268, "planned_kg": 2.05,
+            "limit_kg": 2.214, "above_limit": True, "alarm_kg": None, "margin_kg": None, "windows_above": 0,
+            "windows_needed": 2, "mass_alarm": False}
+    line = " ".join(mass_words(mass).split())
+    assert "which is not judged alone" in line
+    assert "the log has no second window after it: fly longer near hover to have the mass judged" in line
+    assert not line.endswith("the next one is")

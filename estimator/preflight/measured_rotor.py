@@ -106,7 +106,7 @@ def hover_from_params(vehicle, params, command_unit="-"):
         "pack_voltage_V": {k: states[k]["open_circuit_V"] for k in states},
         "usable_Ah": usable, "density_kg_m3": rho, "density_ratio": air["density_ratio"],
         "density_altitude_m": air["density_altitude_m"], "temperature_K": air["temperature_K"],
-        "pressure_Pa": air["pressure_Pa"],
+        "pressure_Pa": air["pressure_Pa"], "site_altitude_m": vehicle.get("site", {}).get("altitude_m", 0.0),
         "static_factor": rotor_static_factor(params["power_model"], nom["thrust_per_rotor_N"],
                                              params["power_model"]["reference_density_kg_m3"],
                                              disk_area_m2(params["rotor"]["diameter_m"])),

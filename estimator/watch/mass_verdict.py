@@ -83,8 +83,10 @@ def mass_words(mass):
         return text
     # above the limit without a mass alarm: say why (trial 9, finding 6)
     if mass["alarm_kg"] is None:
+        # new-user trial 26: "...: the next one is" ended a replay whose log had no next window
         return text + (" but it is the first window since take-off or a suspected power fault, which is not "
-                       "judged alone (the settling after take-off can read high): the next one is")
+                       "judged alone (the settling after take-off can read high), and the log has no second "
+                       "window after it: fly longer near hover to have the mass judged")
     if mass["implied_kg"] <= mass["alarm_kg"]:
         return text + (" but within the estimate's margin (+-%s over gusty or short windows): no alarm below "
                        "%s, the limit plus that margin" % (m(mass["margin_kg"]), m(mass["alarm_kg"])))
