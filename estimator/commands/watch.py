@@ -335,7 +335,8 @@ def replay(flight_file, params_file, vehicle_file, plot_file, lag_ms, drop_bad_t
     if not out["learned"]:
         lines.append("  " + out["note"])
     elif not out["events"]:
-        lines.append("  no event: power stayed within what the parameter set expects")
+        lines.append("  no event: power stayed within what the parameter set expects over the %.1f s of flight "
+                     "judged after learning" % out["judged_s"])
     from estimator.textwidth import wrap_line
     from estimator.units import mass_text
     from estimator.watch.replay import mass_words

@@ -11,7 +11,7 @@ are seconds from the log's first row (a logger's clock may count from 1970).
 
 import sys
 
-from estimator.core.watch_layout import FLAG_BITS
+from estimator.core.watch_layout import FLAG_BITS, OUTPUT_AT
 from estimator.csvtable import COMMAND_UNITS, TIME_UNITS, data_line_numbers
 from estimator.errors import InputError
 from estimator.units import unit_factors
@@ -23,6 +23,7 @@ from estimator.watch.log_current import ground_current_note
 from estimator.watch.mass_verdict import mass_margin, mass_verdict, mass_words  # noqa: F401 (API)
 
 KINDS = FLAG_BITS
+_SIGMA_AT = dict(OUTPUT_AT)["sigma_permille"]   # 0 while this flight's learning window runs
 PROGRESS_ROWS = 100000  # logs longer than this get a progress bar (stderr, terminals only)
 # a flight log with more rows than this share holding an empty or 'nan' cell is refused; fewer
 # are dropped and counted (a logger that misses a field now and then) [-]
@@ -142,6 +143,7 @@ def run_kernel(flight, config, trace=False, progress=None):
     # flight time as the kernel counts it: samples that pass the sensor checks, above spin; a
     # landing (landed_ms below spin) starts a new flight [ms]
     flights, flight_ms, quiet_ms, fault_ms = [], 0, 0, 0
+    judged_ms = 0   # flight time the watch judged: above spin, no sensor fault, its flight's baseline learned
     pauses, dt_max = [], config["dt_max_ms"]   # logging pauses with the rotors stopped on both sides
     for i in range(n):
         ti = t[i]
@@ -166,6 +168,8 @@ def run_kernel(flight, config, trace=False, progress=None):
         elif u[i] >= spin:
             flight_ms += dt
             quiet_ms = 0
+            if sb[_SIGMA_AT]:
+                judged_ms += dt
         else:
             quiet_ms += dt
             if quiet_ms >= config["landed_ms"] and flight_ms:
@@ -219,6 +223,7 @@ def run_kernel(flight, config, trace=False, progress=None):
     out = {"learned": learned, "learned_at_s": None if learn_span[1] is None else round(learn_span[1], 3),
            "samples": n, "alarms": sum(1 for e in events if e["kind"] != "sensor_fault"), "events": events,
            "flights_s": [round(x / 1000.0, 3) for x in flights], "sensor_fault_s": round(fault_ms / 1000.0, 3),
+           "judged_s": round(judged_ms / 1000.0, 3),
            "ground_pauses": pauses}
     out["mass"] = mass_verdict(mass_last, plan_kg, limit_kg, learned, config, events)
     if out["mass"]["judged"] and mass_check is not None:
@@ -253,7 +258,8 @@ def replay_file(path, params, vehicle=None, options=None, progress=None, drop_ba
     detail, a text with the value and the watch's limit), learned_at_s (end of the learning
     window, None when it never ended), flights_s (flight time above the spin command of each
     flight between landings, as the kernel counts it [s]) and sensor_fault_s (flight time of
-    the samples set aside as sensor faults [s]), ground_pauses ([{t_s, gap_s}]: logging pauses above
+    the samples set aside as sensor faults [s]), judged_s (flight time the watch judged: above the spin
+    command, no sensor fault, after its flight's learning window [s]), ground_pauses ([{t_s, gap_s}]: logging pauses above
     the watch's gap limit with the command below spin on both sides, taken as time on the ground,
     not as sensor faults). Every event has bus_V, the bus voltage at its sample [V], and flight,
     the number of its flight in the log (1, 2, ...); a power event outside the sweep's voltages on a set whose voltage exponent
@@ -296,11 +302,22 @@ def replay_file_traced(path, params, vehicle=None, options=None, progress=None, 
     slow = slow_log_warning(flight["time_s"])
     if slow:
         out["warnings"].append(slow)
+    if out["learned"] and out["judged_s"] < config["learn_ms"] / 1000.0:
+        out["warnings"].append(short_judged_warning(out, config))
     if dropped:
         out["dropped_rows"] = dropped
     if flight["missing_rows"]:
         out["dropped_missing_rows"] = flight["missing_rows"]
     return out, samples
+
+
+def short_judged_warning(out, cfg):
+    """One sentence for a log the watch learned on but then judged for less flight time than its
+    learning window (CONFIG learn_ms): a 45 s hover read "no event" on 1.3 s of judged flight
+    (new-user trial 26). out: run_kernel's dict, learned True."""
+    return ("the watch judged only %.1f s of flight after it learned its baseline at %.1f s, less than its "
+            "%.0f s learning window: too little to count as a check of the propulsion; fly longer near hover"
+            % (out["judged_s"], out["learned_at_s"], cfg["learn_ms"] / 1000.0))
 
 
 def learning_note(out, cfg):
