@@ -6,7 +6,8 @@
   command in a column labelled %, a command in another unit than its label (permille or us
   labelled %, percent labelled permille while the hover current flows: log_current), millivolts
   labelled V (or volts labelled mV), the voltage and current columns swapped, a current sensor
-  reading negative or zero while the rotors turn, milliamps labelled A;
+  reading negative or zero while the rotors turn, milliamps labelled A, a voltage or current in counts
+  of 0.1 or 0.01 of its unit (log_decades);
 - a log from another vehicle or pack than the parameter set's is refused before the watch
   runs (the watch would learn a power scale and read the difference as a propulsion fault):
   the bus voltage in flight against the set's pack, and the mass the log's power implies
@@ -23,6 +24,7 @@ from estimator.csvtable import data_line_numbers
 from estimator.errors import InputError
 from estimator.units import STANDARD_GRAVITY_M_S2, command_text, unit_factors
 from estimator.watch.log_command import check_command_unit
+from estimator.watch.log_decades import decade_into, refuse_current_decade, refuse_voltage_decade
 from estimator.watch.log_current import check_percent_as_permille, hover_current_A, upper_median as _median
 from estimator.watch.sensor_range import pack_voltages
 
@@ -123,9 +125,14 @@ def check_plausible(path, flight, params, facts, cfg, units):
                             ", within this pack's range with its sign flipped: the voltage sensor reads reversed; "
                             "flip its sign" if as_pack else ": a bus voltage is never negative; is the column the "
                             "pack's bus voltage, and are the sensor's leads the right way round?"))
+    lo_V, hi_V = LOG_BELOW_EMPTY * empty_V, LOG_ABOVE_FULL * full_V
+    k = decade_into(med_v / 1000.0, lo_V, hi_V) if med_v > 1000.0 * hi_V else None
+    if k:   # millivolts labelled [V], or counts of 0.1 or 0.01 of the unit (log_decades)
+        refuse_voltage_decade(path, units["voltage"], med_v, k, empty_V, full_V)
     if med_v > 50.0 * v_full:
-        raise InputError("%s: column voltage[%s]: median %.4g %s is %.0f times the full pack (%.1f V): "
-                         "likely millivolts in a column labelled [V]; label it voltage[mV]"
+        raise InputError("%s: column voltage[%s]: median %.4g %s is %.0f times the full pack (%.1f V), and no "
+                         "power of ten makes it this pack's voltage: is it the pack's bus voltage, and in which "
+                         "unit does the logger write it?"
                          % (path, units["voltage"], med_v / (1000.0 if units["voltage"] == "V" else 1.0),
                             units["voltage"], med_v / v_full, v_full / 1000.0))
     if 0 < med_v < v_empty / 50.0:
@@ -323,6 +330,14 @@ def check_vehicle(path, flight, params, facts, cfg, units=None):
                                  "about 1/%d of the expected bus total, likely one ESC's current rather than the "
                                  "pack's; log the bus total (the pack's current sensor, or the sum over the ESCs)"
                                  % (path, (units or {}).get("current", "A"), med_W, mass, plan, n_rot, as_bus, n_rot))
+        if off and mass > plan and not found:
+            # counts of 0.1 or 0.01 A (log_decades): named only when the plan give or take a tenth results
+            def mass_at(watts):
+                return thrust_from_power_total_N(watts, params, n_rot, float(facts["site_density_kg_m3"]),
+                                                 facts.get("layout", "flat"), avionics_power_W(facts, v)) \
+                    / STANDARD_GRAVITY_M_S2
+            refuse_current_decade(path, (units or {}).get("current", "A"), med_W, mass, plan, mass_at,
+                                  ONE_ESC_MASS_RANGE)
         if off or found:
             found.append("implied mass %.3g kg (%.4g W in flight through its power model) against %.3g kg "
                          "planned%s" % (mass, med_W, plan, ", outside the %g..%g x a payload or the flying "
