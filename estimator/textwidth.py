@@ -6,8 +6,9 @@ every string whole. A wrapped line continues under the text it belongs to:
 - a label line (``motor current      8.4 A ...``: a label, then a run of two or more spaces
   within the first LABEL_COLUMNS columns) continues under the value;
 - any other line continues under its own first character, two columns in.
-Words are never broken, nor at their hyphens (``thrust-to-weight`` stays whole), so joining
-the pieces with one space gives the original words back.
+Words are never broken, nor at their hyphens (``thrust-to-weight`` stays whole), and a number
+stays on the line of the unit after it (``43.7 s``, ``0.958 kg/m^3``), so joining the pieces with
+one space gives the original words back.
 """
 
 import re
@@ -17,6 +18,14 @@ WIDTH = 79  # characters per line: an 80-column terminal without its last column
 LABEL_COLUMNS = 28  # a label's value starts within this many columns [-]
 _BULLET = re.compile(r"^(\s*)([!\-*] )")
 _LABEL = re.compile(r"^(\s*\S.*?\S\s{2,})\S")
+# a number, one space, then a unit liftcal prints (SI and the trade's own): the space is held
+# while wrapping (new-user trial 26: lines broke as "43.7" / "s" and "2229" / "m")
+_UNITS = ("s", "ms", "min", "h", "Hz", "m", "mm", "cm", "km", "in", "ft", "m/s", "km/h", "V", "mV", "A", "mA",
+          "Ah", "mAh", "Wh", "W", "kW", "N", "mN", "g", "gf", "kg", "kgf", "lbf", "lb", "oz", "C", "K", "Pa", "hPa",
+          "kPa", "%", "permille", "rpm", "rpm/V", "ohm", "mohm", "kg/m^3", "g/W", "N/W", "W/kg", "us")
+_NUMBER_UNIT = re.compile(r"(?<=\d) (?=(?:%s)(?![\w/^]))" % "|".join(
+    re.escape(u) for u in sorted(_UNITS, key=len, reverse=True)))
+_HELD = "\x00"
 
 
 def hanging_indent(line):
@@ -41,9 +50,10 @@ def wrap_line(line, indent=None, width=WIDTH):
     indent = hanging_indent(line) if indent is None else indent
     if indent >= width // 2:  # too deep to hold much text: fall back to the line's own indent + 2
         indent = min(lead + 2, width // 2)
-    return textwrap.wrap(line.strip(" "), width=width, initial_indent=" " * lead,
-                         subsequent_indent=" " * indent, break_long_words=False,
-                         break_on_hyphens=False, drop_whitespace=True) or [line]
+    held = _NUMBER_UNIT.sub(_HELD, line.strip(" "))
+    pieces = textwrap.wrap(held, width=width, initial_indent=" " * lead, subsequent_indent=" " * indent,
+                           break_long_words=False, break_on_hyphens=False, drop_whitespace=True)
+    return [p.replace(_HELD, " ") for p in pieces] or [line]
 
 
 def fit_width(text, width=WIDTH):

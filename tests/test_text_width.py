@@ -89,3 +89,16 @@ def test_full_command_thrust_is_shown_per_rotor_beside_the_per_rotor_hover_need(
     assert line.split()[:6] == ["full-command", "thrust", plain_number(per_rotor, 3), "N", "per", "rotor,"]
     assert "per rotor, %s N total" % plain_number(report["full_thrust_N"], 3) in line
     assert "hover needs %s N per rotor" % plain_number(report["thrust_per_rotor_N"], 3) in line
+
+
+def test_a_number_stays_with_its_unit_when_a_line_wraps():
+    # new-user trial 26: lines broke between a number and its unit ("43.7" / "s", "2229" / "m");
+    # a wrapped line keeps them together and the pieces joined by one space give the line back
+    line = ("  learning ended at flight time 43.7 s after the take-off, and the watch then judged 1.3 s of "
+            "flight at 2229 m with 45 % of the pack and 0.958 kg/m^3 air, 12 windows")
+    for width in range(30, 80):
+        pieces = wrap_line(line, width=width)
+        assert " ".join(p.strip() for p in pieces) == line.strip()
+        for p in pieces:
+            assert not p.rstrip().endswith(("43.7", " 1.3", "2229", " 45", "0.958")), (width, pieces)
+            assert not p.strip().startswith(("s ", "m ", "% ", "kg/m^3")), (width, pieces)
