@@ -30,7 +30,7 @@ MAX_LISTED = 12
 # names its columns in these), mapped to liftcal's column name; used for hints only
 COLUMN_WORDS = {
     "command": "command", "signal": "command", "throttle": "command", "thr": "command",
-    "pwm": "command", "input": "command", "pulse": "command", "duty": "command",
+    "pwm": "command", "input": "command", "pulse": "command", "duty": "command", "cmd": "command",
     "voltage": "voltage", "volts": "voltage", "volt": "voltage", "vbat": "voltage",
     "current": "current", "amps": "current", "amp": "current", "ibat": "current",
     "thrust": "thrust", "load": "thrust", "force": "thrust", "lift": "thrust",
@@ -62,12 +62,16 @@ def column_for(name, known):
 # a mass unit on a force column: a load cell's display in kg shows the weight of that mass, so
 # the numbers are in kgf (new-user trial 26: thrust[kg] was refused without a word why)
 WEIGHT_OF_MASS = {"kg": "kgf", "lb": "lbf"}
+# a time unit written out (time[sec], 'Time (seconds)'): liftcal's unit as a hint, never read as
+# it (new-user trial 26: time[sec] got no hint)
+UNIT_WORDS = {"sec": "s", "secs": "s", "second": "s", "seconds": "s",
+              "msec": "ms", "msecs": "ms", "millisecond": "ms", "milliseconds": "ms"}
 
 
 def _unit_for(unit, table):
     """The unit of ``table`` that ``unit`` (as written) means, or None: its spelling
     (units.unit_spelling), then the same letters in another case (RPM -> rpm), then the
-    weight of a mass unit (kg -> kgf, WEIGHT_OF_MASS)."""
+    weight of a mass unit (kg -> kgf, WEIGHT_OF_MASS) or a unit written out (sec -> s, UNIT_WORDS)."""
     if unit is None:
         return None
     unit = unit_spelling(unit)
@@ -76,8 +80,8 @@ def _unit_for(unit, table):
     same = [u for u in table if u.lower() == unit.lower()]
     if len(same) == 1:
         return same[0]
-    weight = WEIGHT_OF_MASS.get(unit.lower())
-    return weight if weight in table else None
+    near = WEIGHT_OF_MASS.get(unit.lower()) or UNIT_WORDS.get(unit.lower())
+    return near if near in table else None
 
 
 def _cell_hint(target, unit, table):

@@ -142,7 +142,8 @@ def _foreign(folder, kind):
         return others or [FOLDER_MANIFEST]
     listed = manifest["files"]
     vouched = _own_subfolders(folder, tree)
-    foreign = []
+    foreign = Foreign()
+    foreign.ours = True
     for rel, digest in sorted(tree.items()):
         if rel == FOLDER_MANIFEST or rel.endswith("/" + FOLDER_MANIFEST) \
                 or any(rel.startswith(sub + "/") for sub in vouched):
@@ -153,7 +154,15 @@ def _foreign(folder, kind):
             continue  # rewritten by a liftcal command since (fit --out, --plot, export --out)
         foreign.append(rel)
     # name the files liftcal never listed before the ones it listed and that changed
-    return [rel for rel in foreign if rel not in listed] + [rel for rel in foreign if rel in listed]
+    foreign[:] = [rel for rel in foreign if rel not in listed] + [rel for rel in foreign if rel in listed]
+    return foreign
+
+
+class Foreign(list):
+    """_foreign's entries, with ``ours``: the folder is one liftcal wrote of that kind (its
+    manifest), so they are the person's edits and additions, not a folder of their own."""
+
+    ours = False
 
 
 def _own_subfolders(folder, tree):
@@ -214,9 +223,14 @@ def check_folder(path, kind, inputs=(), option="--out"):
                          % (where, exc.strerror)) from None
     if not foreign:
         return "own"
+    # a folder liftcal wrote, edited since (a bundle's board_loop.py, as its README invites, or an
+    # added main.py): say how to keep the edits (new-user trial 26: the builder was left not knowing)
+    what = KIND_NAMES[kind].replace("liftcal ", "")
+    keep = " for the new %s, then carry your files over by hand (%s)" % (what.split(" ", 1)[1], _some(foreign)) \
+        if isinstance(foreign, Foreign) and foreign.ours else ""
     raise InputError("%s: holds files liftcal did not write or that were changed since (%s); "
                      "liftcal writes %s into a new or empty folder, or replaces one it wrote: "
-                     "name another folder" % (where, _some(foreign), KIND_NAMES[kind].replace("liftcal ", "")))
+                     "name another folder%s" % (where, _some(foreign), what, keep))
 
 
 FOREIGN_SHOWN = 5  # files a refusal names before "and N more" (one error line stays readable)
