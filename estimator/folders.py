@@ -127,23 +127,30 @@ def write_manifest(folder, kind, record=None):
         fh.write(json.dumps(doc, indent=1, sort_keys=True) + "\n")
 
 
-def _foreign(folder, kind):
-    """The entries of ``folder`` that make it not liftcal's own of ``kind`` (files liftcal never
-    listed first, then listed ones that changed; each group sorted), or [] when it is its own."""
+def _manifest(folder, kind):
+    """The FOLDER_MANIFEST of ``folder`` when liftcal wrote it as a folder of ``kind`` (a dict with
+    its files' digests), else None."""
     try:
         with open(os.path.join(folder, FOLDER_MANIFEST), "r", encoding="utf-8") as fh:
             manifest = json.load(fh)
     except (OSError, ValueError):
-        manifest = None
+        return None
+    if not isinstance(manifest, dict) or manifest.get("kind") != kind or not isinstance(manifest.get("files"), dict):
+        return None
+    return manifest
+
+
+def _foreign(folder, kind):
+    """The entries of ``folder`` that make it not liftcal's own of ``kind`` (files liftcal never
+    listed first, then listed ones that changed; each group sorted), or [] when it is its own."""
+    manifest = _manifest(folder, kind)
     tree = _tree(folder)
-    if not isinstance(manifest, dict) or manifest.get("kind") != kind \
-            or not isinstance(manifest.get("files"), dict):
+    if manifest is None:
         others = sorted(rel for rel in tree if rel != FOLDER_MANIFEST)
         return others or [FOLDER_MANIFEST]
     listed = manifest["files"]
     vouched = _own_subfolders(folder, tree)
-    foreign = Foreign()
-    foreign.ours = True
+    foreign = []
     for rel, digest in sorted(tree.items()):
         if rel == FOLDER_MANIFEST or rel.endswith("/" + FOLDER_MANIFEST) \
                 or any(rel.startswith(sub + "/") for sub in vouched):
@@ -154,15 +161,7 @@ def _foreign(folder, kind):
             continue  # rewritten by a liftcal command since (fit --out, --plot, export --out)
         foreign.append(rel)
     # name the files liftcal never listed before the ones it listed and that changed
-    foreign[:] = [rel for rel in foreign if rel not in listed] + [rel for rel in foreign if rel in listed]
-    return foreign
-
-
-class Foreign(list):
-    """_foreign's entries, with ``ours``: the folder is one liftcal wrote of that kind (its
-    manifest), so they are the person's edits and additions, not a folder of their own."""
-
-    ours = False
+    return [rel for rel in foreign if rel not in listed] + [rel for rel in foreign if rel in listed]
 
 
 def _own_subfolders(folder, tree):
@@ -227,7 +226,7 @@ def check_folder(path, kind, inputs=(), option="--out"):
     # added main.py): say how to keep the edits (new-user trial 26: the builder was left not knowing)
     what = KIND_NAMES[kind].replace("liftcal ", "")
     keep = " for the new %s, then carry your files over by hand (%s)" % (what.split(" ", 1)[1], _some(foreign)) \
-        if isinstance(foreign, Foreign) and foreign.ours else ""
+        if _manifest(full, kind) is not None else ""
     raise InputError("%s: holds files liftcal did not write or that were changed since (%s); "
                      "liftcal writes %s into a new or empty folder, or replaces one it wrote: "
                      "name another folder%s" % (where, _some(foreign), what, keep))
